@@ -1,0 +1,312 @@
+"""Typing the columns of a table and checking them, a whole column at a time.
+
+Every helper takes a :class:`~delay.case._problems.RawTable` of strings, records a problem
+for each bad row, and returns the typed column (bad cells become the column's blank value,
+so that later checks can still run on the rest).
+"""
+
+from __future__ import annotations
+
+from typing import Callable, Iterable
+
+import numpy as np
+import pandas as pd
+
+from delay.case._problems import Problems, RawTable
+from delay.model import COLUMNS
+
+__all__ = [
+    "DATE_DTYPE",
+    "DATE_COLUMNS",
+    "INTEGER_COLUMNS",
+    "NUMBER_COLUMNS",
+    "BOOLEAN_COLUMNS",
+    "REQUIRED_COLUMNS",
+    "require_columns",
+    "empty_cells",
+    "required_cells",
+    "dates",
+    "integers",
+    "numbers",
+    "choices",
+    "duplicates",
+    "references",
+    "id_lists",
+    "split_ids",
+    "assemble",
+]
+
+#: The dtype of every date column (pandas' own unit for parsed dates).
+DATE_DTYPE = "datetime64[us]"
+
+DATE_COLUMNS: dict[str, tuple[str, ...]] = {
+    "calendar_exceptions": ("date",),
+    "activities": ("constraint_date", "actual_start", "actual_finish"),
+    "asbuilt": ("actual_start", "actual_finish"),
+    "events": ("start", "finish", "notified"),
+    "sections": ("contract_completion",),
+    "extensions_granted": ("granted_on",),
+    "prolongation_rates": ("from", "to"),
+}
+#: Whole numbers that always have a value after loading (``int64``).
+INTEGER_COLUMNS: dict[str, tuple[str, ...]] = {
+    "activities": ("duration",),
+    "links": ("lag",),
+    "fragnets": ("duration",),
+    "fragnet_links": ("lag",),
+}
+#: Optional numbers (``float64``, blank is ``NaN``).
+NUMBER_COLUMNS: dict[str, tuple[str, ...]] = {
+    "activities": ("remaining",),
+    "events": ("days", "claimed_days"),
+    "elements": ("x", "y", "z", "dx", "dy", "dz"),
+    "sections": ("liquidated_damages_per_day",),
+    "extensions_granted": ("days",),
+    "prolongation_rates": ("cost_per_day",),
+}
+BOOLEAN_COLUMNS: dict[str, tuple[str, ...]] = {"calendar_exceptions": ("working",)}
+
+#: Columns each file must have in its header row.
+REQUIRED_COLUMNS: dict[str, tuple[str, ...]] = {
+    "calendars": ("calendar", "workdays"),
+    "calendar_exceptions": ("calendar", "date", "working"),
+    "activities": ("id", "name", "duration"),
+    "links": ("pred", "succ"),
+    "asbuilt": ("id", "actual_start", "actual_finish"),
+    "corrections": ("snapshot", "table", "key", "column", "value"),
+    "events": ("id", "title", "party", "start", "finish"),
+    "fragnets": ("event", "id", "name", "duration"),
+    "fragnet_links": ("event", "pred", "succ"),
+    "elements": ("id", "wbs"),
+    "sections": ("section", "completion_activity", "contract_completion"),
+    "extensions_granted": ("id", "granted_on", "days"),
+    "prolongation_rates": ("from", "to", "cost_per_day"),
+}
+
+Text = str | Callable[[int], str]
+
+
+def require_columns(problems: Problems, table: RawTable | None) -> bool:
+    """Record a problem for each required column missing from ``table``'s header.
+
+    Returns ``True`` when the table can be checked further. Missing optional columns of
+    the format are added as blank columns.
+    """
+    if table is None:
+        return False
+    missing = [c for c in REQUIRED_COLUMNS[table.name] if c not in table.frame.columns]
+    for column in missing:
+        problems.add(
+            table.file, f"the required column '{column}' is missing",
+            f"add a column '{column}' to the header row (row 1); the file's columns are "
+            + ", ".join(COLUMNS[table.name]), row=1, column=column,
+        )
+    if missing:
+        return False
+    table.ensure_columns(COLUMNS[table.name])
+    return True
+
+
+def empty_cells(text: pd.Series) -> np.ndarray:
+    """Mask of the blank cells of a text column (a numpy comparison: fast on big tables)."""
+    return text.to_numpy() == ""
+
+
+def blank(table: RawTable, column: str) -> np.ndarray:
+    return empty_cells(table.frame[column])
+
+
+def required_cells(problems: Problems, table: RawTable, column: str, message: Text,
+                   fix: Text) -> np.ndarray:
+    """Flag blank cells of ``column``; returns the mask of blank cells."""
+    empty = blank(table, column)
+    problems.flag(table, empty, column, message, fix)
+    return empty
+
+
+def dates(problems: Problems, table: RawTable, column: str, *, required: Text | None = None,
+          fix_required: Text = "") -> pd.Series:
+    """``column`` as dates (``NaT`` for blank); text that is not a date is a problem.
+
+    ``required``, when given, is the message for a blank cell.
+    """
+    text = table.frame[column]
+    empty = empty_cells(text)
+    parsed = pd.to_datetime(text.where(~empty), format="%Y-%m-%d", errors="coerce")
+    parsed = parsed.astype(DATE_DTYPE)
+    problems.flag(table, ~empty & parsed.isna().to_numpy(), column,
+                  "'{value}' is not a date",
+                  "write the date as YYYY-MM-DD, for example 2025-03-31")
+    if required is not None:
+        problems.flag(table, empty, column, required, fix_required or "fill in the date as YYYY-MM-DD")
+    return parsed
+
+
+def _numbers(text: pd.Series) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """(values, blank mask, not-a-number mask) of a text column."""
+    empty = empty_cells(text)
+    values = pd.to_numeric(text.where(~empty), errors="coerce").to_numpy(dtype=np.float64)
+    not_number = ~empty & ~np.isfinite(values)
+    values = np.where(not_number, np.nan, values)
+    return values, empty, not_number
+
+
+def integers(problems: Problems, table: RawTable, column: str, *, unit: str,
+             default: int | None = None, minimum: int | None = None,
+             required: Text | None = None) -> pd.Series:
+    """``column`` as ``int64`` whole numbers.
+
+    Blank cells take ``default``; when ``default`` is ``None`` a blank is a problem with
+    the message ``required``. Text that is not a number, a fraction, or a value below
+    ``minimum`` is a problem. Bad cells become ``default`` (or 0) in the result.
+    """
+    values, empty, not_number = _numbers(table.frame[column])
+    problems.flag(table, not_number, column, "'{value}' is not a number",
+                  f"write a whole number of {unit}")
+    fraction = ~empty & ~not_number & (np.floor(values) != values)
+    problems.flag(table, fraction, column, "'{value}' is not a whole number",
+                  f"give a whole number of {unit}")
+    bad = not_number | fraction
+    if minimum is not None:
+        low = ~empty & ~bad & (values < minimum)
+        problems.flag(table, low, column, f"{column} {{value}} is below {minimum}",
+                      f"give {minimum} or more {unit}")
+        bad |= low
+    if default is None:
+        problems.flag(table, empty, column, required or f"the {column} is missing",
+                      f"give the {column} as a whole number of {unit}")
+    fill = 0 if default is None else default
+    result = np.where(empty | bad, fill, np.nan_to_num(values)).astype(np.int64)
+    return pd.Series(result, index=table.frame.index, name=column)
+
+
+def numbers(problems: Problems, table: RawTable, column: str, *, unit: str = "",
+            whole: bool = False, minimum: float | None = None,
+            required: Text | None = None) -> pd.Series:
+    """``column`` as ``float64`` (``NaN`` for blank).
+
+    ``whole`` makes a fraction a problem; ``minimum`` a smaller value; ``required`` (a
+    message) a blank cell. Bad cells become ``NaN``.
+    """
+    values, empty, not_number = _numbers(table.frame[column])
+    what = f"a whole number of {unit}" if whole else (f"a number of {unit}" if unit else "a number")
+    problems.flag(table, not_number, column, "'{value}' is not a number", f"write {what}")
+    bad = not_number.copy()
+    if whole:
+        fraction = ~empty & ~bad & (np.floor(values) != values)
+        problems.flag(table, fraction, column, "'{value}' is not a whole number", f"give {what}")
+        bad |= fraction
+    if minimum is not None:
+        low = ~empty & ~bad & (values < minimum)
+        problems.flag(table, low, column, f"{column} {{value}} is below {minimum:g}",
+                      f"give {minimum:g} or more")
+        bad |= low
+    if required is not None:
+        problems.flag(table, empty, column, required, f"give {what}")
+    result = np.where(bad, np.nan, values)
+    return pd.Series(result, index=table.frame.index, name=column, dtype=np.float64)
+
+
+def choices(problems: Problems, table: RawTable, column: str, allowed: Iterable[str], *,
+            default: str | None = None, upper: bool = False, what: str = "value",
+            required: Text | None = None) -> pd.Series:
+    """``column`` as one of ``allowed`` (compared without regard to case).
+
+    Blank cells take ``default`` (or stay blank, or are a problem when ``required``).
+    Values are stored in the case of ``allowed``.
+    """
+    allowed = tuple(allowed)
+    text = table.frame[column]
+    empty = empty_cells(text)
+    if empty.all():
+        normal = text
+    else:
+        normal = text.str.upper() if upper else text.str.lower()
+    unknown = ~empty & ~normal.isin(allowed).to_numpy()
+    problems.flag(table, unknown, column, f"'{{value}}' is not a known {what}",
+                  "use one of: " + ", ".join(allowed))
+    if required is not None:
+        problems.flag(table, empty, column, required, "use one of: " + ", ".join(allowed))
+    if default is not None:
+        normal = normal.where(~empty, default)
+    return normal.astype("str")
+
+
+def _combined(table: RawTable, columns: list[str]) -> pd.Series:
+    key = table.frame[columns[0]]
+    for column in columns[1:]:
+        key = key + "\x1f" + table.frame[column]
+    return key
+
+
+def duplicates(problems: Problems, table: RawTable, columns: list[str], column: str,
+               describe: Callable[[int], str], fix: str, skip: np.ndarray | None = None) -> None:
+    """Flag every row whose ``columns`` repeat an earlier row's.
+
+    ``describe(position)`` names the repeated thing (``"activity id 'A'"``); the message
+    adds the row of the first occurrence. Rows where ``skip`` is true are ignored.
+    """
+    key = _combined(table, columns)
+    if skip is not None:
+        key = key.where(~skip)
+    repeated = key.duplicated(keep="first").to_numpy() & key.notna().to_numpy()
+    if not repeated.any():
+        return
+    first = key[~key.duplicated(keep="first") & key.notna()]
+    first_position = pd.Series(first.index.to_numpy(), index=first.to_numpy())
+
+    def message(position: int) -> str:
+        file, row = table.where(int(first_position[key.iat[position]]))
+        return f"{describe(position)} is given twice (first on row {row})"
+
+    problems.flag(table, repeated, column, message, fix)
+
+
+def references(problems: Problems, table: RawTable, column: str, known, message: Text,
+               fix: Text) -> np.ndarray:
+    """Flag non-blank cells of ``column`` not in ``known``; returns the mask of them."""
+    text = table.frame[column]
+    unknown = ~empty_cells(text) & ~text.isin(known).to_numpy()
+    problems.flag(table, unknown, column, message, fix)
+    return unknown
+
+
+def split_ids(text: pd.Series) -> pd.Series:
+    """Split ``;``-separated ids; one entry per id, indexed by the row's position."""
+    parts = text.str.split(";").explode().str.strip()
+    return parts[parts.notna() & (parts != "")]
+
+
+def id_lists(problems: Problems, table: RawTable, column: str, known, where: str,
+             fix: str) -> None:
+    """Flag rows of ``column`` (``;``-separated ids) naming an id not in ``known``.
+
+    The message reads "'X' is not in {where}" (or "'X', 'Y' are not in {where}").
+    """
+    parts = split_ids(table.frame[column])
+    unknown = parts[~parts.isin(known)]
+    if unknown.empty:
+        return
+    names = unknown.groupby(level=0).agg(list)
+    mask = np.zeros(len(table), dtype=bool)
+    mask[names.index.to_numpy(dtype=np.int64)] = True
+
+    def message(position: int) -> str:
+        ids = names[position]
+        verb = "is" if len(ids) == 1 else "are"
+        return ", ".join(f"'{i}'" for i in ids) + f" {verb} not in {where}"
+
+    problems.flag(table, mask, column, message, fix)
+
+
+def assemble(table: RawTable, typed: dict[str, pd.Series]) -> pd.DataFrame:
+    """The table with its stable columns in order (typed where given), then the rest as text."""
+    frame = table.frame
+    stable = COLUMNS[table.name]
+    data = {}
+    for column in stable:
+        data[column] = typed[column] if column in typed else frame[column].astype("str")
+    for column in frame.columns:
+        if column not in data:
+            data[column] = frame[column].astype("str")
+    return pd.DataFrame(data, index=pd.RangeIndex(len(frame)))

@@ -1,0 +1,212 @@
+"""Applying corrections.csv to the tables as read, before they are typed and checked.
+
+A correction changes one cell of an activity (by id) or of a link (by ``pred>succ``),
+removes a link (``column = delete``) or adds one (``column = add``, ``value = TYPE LAG``).
+Every applied correction becomes a :class:`~delay.model.Correction` with the original and
+the corrected cell as text, so that the report can list each change beside the record it
+changed. The corrected tables are then checked like any other; a problem in a corrected
+cell says which row of corrections.csv set it.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+import pandas as pd
+
+from delay.case._problems import Problems, RawTable
+from delay.model import COLUMNS, LINK_TYPES, Correction
+
+__all__ = ["CorrectionTarget", "apply_corrections", "ASBUILT"]
+
+#: The name that makes a correction apply to the as-built record.
+ASBUILT = "asbuilt"
+
+
+@dataclass
+class CorrectionTarget:
+    """What a correction's ``snapshot`` cell may name.
+
+    ``label`` is stored in :attr:`Correction.snapshot`; ``activities`` is the as-built
+    record for the as-built target, which has no links.
+    """
+
+    label: str
+    activities: RawTable | None
+    links: RawTable | None
+    asbuilt: bool = False
+
+
+def _link_text(frame: pd.DataFrame, position: int) -> str:
+    kind = frame["type"].iat[position] if "type" in frame else ""
+    lag = frame["lag"].iat[position] if "lag" in frame else ""
+    return f"{(kind or 'FS').upper()} {lag or '0'}"
+
+
+def apply_corrections(corrections: RawTable, targets: dict[str, CorrectionTarget],
+                      problems: Problems) -> list[Correction]:
+    """Apply every row of ``corrections`` to the tables of ``targets``.
+
+    Parameters
+    ----------
+    corrections:
+        corrections.csv as read (its required columns present).
+    targets:
+        Snapshot folder names and labels, and ``"asbuilt"``, mapped to their tables.
+        Tables are changed in place.
+    problems:
+        Where a correction that names no existing snapshot, record or column is recorded.
+
+    Returns
+    -------
+    list of Correction
+        The applied corrections, in file order.
+    """
+    applied: list[Correction] = []
+    frame = corrections.frame
+    file = corrections.file
+    id_positions: dict[int, dict[str, int]] = {}
+    next_code = -1
+    known = ", ".join(sorted({t.label for t in targets.values() if not t.asbuilt})) or "none"
+
+    for position in range(len(frame)):
+        _, row = corrections.where(position)
+        cell = {c: frame[c].iat[position] for c in COLUMNS["corrections"] if c in frame}
+        snapshot, table_name = cell["snapshot"], cell["table"].lower()
+        key, column, value = cell["key"], cell["column"], cell["value"]
+        reason = cell.get("reason", "")
+
+        def report(message: str, fix: str, at: str) -> None:
+            problems.add(file, message, fix, row=row, column=at)
+
+        target = targets.get(ASBUILT if snapshot.lower() == ASBUILT else snapshot)
+        if target is None:
+            if snapshot.lower() == ASBUILT:
+                report("there is no asbuilt.csv to correct", "add asbuilt.csv or remove the row",
+                       "snapshot")
+            else:
+                report(f"there is no snapshot '{snapshot}'",
+                       f"name a snapshot by its folder or label ({known}), or asbuilt", "snapshot")
+            continue
+        if table_name not in ("activities", "links"):
+            report(f"'{cell['table']}' is not a table that can be corrected",
+                   "write activities or links", "table")
+            continue
+        if target.asbuilt and table_name == "links":
+            report("the as-built record has no links", "correct the links of a snapshot instead",
+                   "table")
+            continue
+        if not key:
+            report("the key is blank", "give the activity id, or PRED>SUCC for a link", "key")
+            continue
+        table = target.activities if table_name == "activities" else target.links
+        if table is None:
+            continue  # the table itself could not be read; that problem is already listed
+        record = "the as-built record" if target.asbuilt else f"snapshot '{target.label}'"
+
+        if table_name == "activities":
+            if column == "id":
+                report("an activity's id cannot be corrected",
+                       "correct the id in the snapshot's own file, or correct other columns",
+                       "column")
+                continue
+            allowed = list(COLUMNS[table.name]) + [c for c in table.frame.columns]
+            if column not in allowed:
+                report(f"there is no column '{column}' in the activities of {record}",
+                       "use one of: " + ", ".join(dict.fromkeys(allowed)), "column")
+                continue
+            index = id_positions.get(id(table))
+            if index is None:
+                ids = table.frame["id"].tolist() if "id" in table.frame else []
+                index = {}
+                for at, activity in enumerate(ids):
+                    index.setdefault(activity, at)
+                id_positions[id(table)] = index
+            at = index.get(key)
+            if at is None:
+                report(f"there is no activity '{key}' in {record}",
+                       "check the activity id in the key column", "key")
+                continue
+            table.ensure_columns([column])
+            original = table.frame[column].iat[at]
+            table.frame.loc[at, column] = value
+            where = table.where(at)
+            problems.corrected_cells[(where[0], where[1], column)] = row
+            applied.append(Correction(target.label, "activities", key, column, original, value,
+                                      reason, row))
+            continue
+
+        # links
+        parts = [part.strip() for part in key.split(">")]
+        if len(parts) != 2 or not all(parts):
+            report(f"'{key}' is not a link key", "write the link as PRED>SUCC, e.g. A100>A110",
+                   "key")
+            continue
+        pred, succ = parts
+        link_key = f"{pred}>{succ}"
+        links = table.frame
+        matches = np.flatnonzero(((links["pred"] == pred) & (links["succ"] == succ)).to_numpy()) \
+            if len(links) else np.zeros(0, dtype=np.int64)
+        action = column.lower()
+        if action == "delete":
+            if not matches.size:
+                report(f"there is no link {link_key} in {record}",
+                       "check the key (PRED>SUCC) against the snapshot's links", "key")
+                continue
+            at = int(matches[0])
+            original = _link_text(links, at)
+            keep = np.ones(len(links), dtype=bool)
+            keep[at] = False
+            table.keep(keep)
+            applied.append(Correction(target.label, "links", link_key, "delete", original, "",
+                                      reason, row))
+        elif action == "add":
+            if matches.size:
+                report(f"the link {link_key} already exists in {record}",
+                       "correct its type or lag instead of adding it", "key")
+                continue
+            tokens = value.split()
+            kind = tokens[0].upper() if tokens else "FS"
+            lag = tokens[1] if len(tokens) > 1 else "0"
+            try:
+                lag_ok = float(lag).is_integer()
+            except ValueError:
+                lag_ok = False
+            if len(tokens) > 2 or kind not in LINK_TYPES or not lag_ok:
+                report(f"'{value}' is not a link type and lag",
+                       "write the type and the lag in work days, e.g. FS 0 or SS -2", "value")
+                continue
+            new_row = {c: "" for c in links.columns}
+            new_row.update({"pred": pred, "succ": succ, "type": kind, "lag": lag})
+            addition = pd.DataFrame([new_row], columns=links.columns, dtype="str")
+            table.frame = pd.concat([links, addition], ignore_index=True)
+            table.rows = np.append(table.rows, next_code)
+            table.origins[next_code] = (file, row)
+            next_code -= 1
+            applied.append(Correction(target.label, "links", link_key, "add", "",
+                                      f"{kind} {lag}", reason, row))
+        else:
+            if column in ("pred", "succ"):
+                report("a link's activities cannot be corrected",
+                       "delete the link and add the corrected one", "column")
+                continue
+            allowed = list(COLUMNS["links"]) + [c for c in links.columns]
+            if column not in allowed:
+                report(f"there is no column '{column}' in the links of {record}",
+                       "use one of: " + ", ".join(dict.fromkeys(allowed + ["delete", "add"])),
+                       "column")
+                continue
+            if not matches.size:
+                report(f"there is no link {link_key} in {record}",
+                       "check the key (PRED>SUCC) against the snapshot's links", "key")
+                continue
+            at = int(matches[0])
+            table.ensure_columns([column])
+            original = table.frame[column].iat[at]
+            table.frame.loc[at, column] = value
+            where = table.where(at)
+            problems.corrected_cells[(where[0], where[1], column)] = row
+            applied.append(Correction(target.label, "links", link_key, column, original, value,
+                                      reason, row))
+    return applied

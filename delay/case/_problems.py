@@ -1,0 +1,155 @@
+"""Collecting the problems of a case before raising one :class:`CaseError`.
+
+Checks are whole-column operations that produce a boolean mask of bad rows; only the rows
+already known to be bad are turned into :class:`~delay.errors.Problem` records, and at most
+:data:`~delay.errors.MAX_PROBLEMS_PER_FILE` of them per file reach the user.
+"""
+
+from __future__ import annotations
+
+from collections import Counter
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import Callable
+
+import numpy as np
+import pandas as pd
+
+from delay.errors import MAX_PROBLEMS_PER_FILE, CaseError, Problem
+
+__all__ = ["RawTable", "Problems"]
+
+
+@dataclass
+class RawTable:
+    """A table as read, before typing: every cell is a stripped string (blank is ``""``).
+
+    ``rows`` holds, for each row of ``frame`` (by position), the spreadsheet row it came
+    from. A row added by a correction has a negative code there that ``origins`` maps to
+    the (file, row) of the correction that added it.
+    """
+
+    name: str
+    file: str
+    frame: pd.DataFrame
+    rows: np.ndarray
+    path: Path | None = None
+    origins: dict[int, tuple[str, int]] = field(default_factory=dict)
+    #: False for the empty stand-in of an optional file that the case does not have.
+    present: bool = True
+
+    def __len__(self) -> int:
+        return len(self.frame)
+
+    def where(self, position: int) -> tuple[str, int]:
+        """The (file, spreadsheet row) of the row at ``position``."""
+        row = int(self.rows[position])
+        if row < 0:
+            return self.origins[row]
+        return self.file, row
+
+    def ensure_columns(self, columns) -> None:
+        """Add each missing column of ``columns`` as a blank column."""
+        for column in columns:
+            if column not in self.frame.columns:
+                self.frame[column] = pd.Series([""] * len(self.frame), dtype="str",
+                                               index=self.frame.index)
+
+    def keep(self, mask: np.ndarray) -> None:
+        """Keep only the rows where ``mask`` is true."""
+        self.frame = self.frame.loc[mask].reset_index(drop=True)
+        self.rows = self.rows[mask]
+
+
+Message = str | Callable[[int], str]
+
+
+class Problems:
+    """Every problem found so far, grouped by file."""
+
+    def __init__(self) -> None:
+        self._items: list[Problem] = []
+        self._found: Counter[str] = Counter()
+        #: (file, row, column) of every cell set by a correction -> row of corrections.csv
+        self.corrected_cells: dict[tuple[str, int, str], int] = {}
+
+    def __bool__(self) -> bool:
+        return bool(self._items)
+
+    def count(self, file: str | None = None) -> int:
+        """How many problems were found (in ``file``, or in all files)."""
+        if file is None:
+            return sum(self._found.values())
+        return self._found[file]
+
+    def add(self, file: str, message: str, fix: str = "", row: int | None = None,
+            column: str | None = None) -> None:
+        """Record one problem."""
+        self._found[file] += 1
+        if self._found[file] > MAX_PROBLEMS_PER_FILE:
+            return
+        if row is not None and column is not None:
+            source = self.corrected_cells.get((file, row, column))
+            if source is not None:
+                message += f" (the value was set by corrections.csv row {source})"
+        self._items.append(Problem(file=file, message=message, fix=fix, row=row, column=column))
+
+    def full(self, file: str) -> bool:
+        """Whether ``file`` already has as many problems as can be listed."""
+        return self._found[file] >= MAX_PROBLEMS_PER_FILE
+
+    def more(self, file: str, count: int) -> None:
+        """Count ``count`` further problems of ``file`` that will not be listed."""
+        self._found[file] += count
+
+    def flag(self, table: RawTable, mask, column: str | None, message: Message,
+             fix: Message = "") -> int:
+        """Record a problem for every row of ``table`` where ``mask`` is true.
+
+        ``message`` and ``fix`` are text, in which ``{value}`` stands for the row's cell in
+        ``column``, or functions of the row's position. Returns the number of bad rows.
+        """
+        mask = np.asarray(mask, dtype=bool)
+        bad = np.flatnonzero(mask)
+        if not bad.size:
+            return 0
+        values = table.frame[column] if column is not None and column in table.frame else None
+        # Only as many rows as can still be listed are turned into messages.
+        for number, position in enumerate(bad):
+            file, row = table.where(int(position))
+            if self._found[file] >= MAX_PROBLEMS_PER_FILE:
+                # Count the rest of this check's rows without building their messages.
+                self._found[file] += bad.size - number
+                break
+            value = "" if values is None else values.iat[int(position)]
+            text = message(int(position)) if callable(message) else message.format(value=value)
+            advice = fix(int(position)) if callable(fix) else fix.format(value=value)
+            self.add(file, text, advice, row, column)
+        return int(bad.size)
+
+    def raise_if_any(self) -> None:
+        """Raise one :class:`CaseError` holding every problem, listed file by file.
+
+        Within a file the problems are sorted by row. A file with more problems than
+        :data:`MAX_PROBLEMS_PER_FILE` lists the first ones and a last line saying how many
+        more there are, so that no file lists more than that many lines.
+        """
+        if not self._items:
+            return
+        files: dict[str, list[Problem]] = {}
+        for problem in self._items:
+            files.setdefault(problem.file, []).append(problem)
+        listed: list[Problem] = []
+        for file, problems in files.items():
+            problems.sort(key=lambda p: -1 if p.row is None else p.row)
+            found = self._found[file]
+            if found > MAX_PROBLEMS_PER_FILE:
+                shown = MAX_PROBLEMS_PER_FILE - 1
+                problems = problems[:shown]
+                problems.append(Problem(
+                    file=file,
+                    message=f"{found - shown} more problems in this file are not listed",
+                    fix="fix the problems listed above and check the case again",
+                ))
+            listed.extend(problems)
+        raise CaseError(listed)

@@ -1,0 +1,516 @@
+"""Reading the files of a case, in folder or workbook form, into untyped tables.
+
+Both forms produce the same :class:`CaseSource`: the settings as a nested mapping, one
+:class:`~delay.case._problems.RawTable` of strings per file, and the snapshots with their
+snapshot.toml facts. Nothing is typed or checked here beyond what is needed to read:
+missing files, unreadable files, broken headers.
+"""
+
+from __future__ import annotations
+
+import datetime as dt
+import re
+import tomllib
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import Any, Callable
+
+import numpy as np
+import pandas as pd
+
+from delay.case._problems import Problems, RawTable
+from delay.model import COLUMNS
+
+__all__ = [
+    "CaseSource",
+    "SettingsSource",
+    "SnapshotSource",
+    "OPTIONAL_FILES",
+    "WORKBOOK_NAME",
+    "open_source",
+    "read_csv_table",
+    "cell_text",
+]
+
+WORKBOOK_NAME = "case.xlsx"
+
+#: Optional files of the case folder, by table name, in the order they are checked.
+OPTIONAL_FILES = (
+    "calendar_exceptions",
+    "asbuilt",
+    "corrections",
+    "events",
+    "fragnets",
+    "fragnet_links",
+    "elements",
+    "sections",
+    "extensions_granted",
+    "prolongation_rates",
+)
+
+
+@dataclass
+class SettingsSource:
+    """The settings as read: nested mapping ``{section: {key: value}}``.
+
+    ``locate`` turns a dotted key (``"schedule.progress"``) into the (row, column) a
+    problem with it should name.
+    """
+
+    values: dict[str, Any]
+    file: str
+    locate: Callable[[str], tuple[int | None, str]]
+
+
+@dataclass
+class SnapshotSource:
+    """One snapshot as read: its snapshot.toml facts and its two tables."""
+
+    folder: str
+    facts: dict[str, Any] | None  # None when snapshot.toml could not be read
+    file: str
+    locate: Callable[[str], tuple[int | None, str]]
+    activities: RawTable | None = None
+    links: RawTable | None = None
+
+
+@dataclass
+class CaseSource:
+    """Everything read from a case folder or workbook, before typing and checking."""
+
+    root: Path
+    workbook: bool
+    settings: SettingsSource | None
+    tables: dict[str, RawTable | None]
+    snapshots: list[SnapshotSource]
+    input_files: list[Path] = field(default_factory=list)
+    #: False when the snapshots/ folder or the snapshots sheet is missing (already reported).
+    snapshots_found: bool = True
+
+
+# --------------------------------------------------------------------------- tables
+
+
+#: Whitespace (other than a line break) next to a separator, a quote or a line end: when a
+#: file has none, no cell needs stripping and the costly strip is skipped.
+_PADDING = re.compile(r'(?:^|[,"\n])[^\S\r\n]|[^\S\r\n](?:[,"\r\n]|$)')
+
+
+def _make_table(name: str, file: str, header: list[str], body: pd.DataFrame, rows: np.ndarray,
+                problems: Problems, path: Path | None = None, strip: bool = True) -> RawTable | None:
+    """Name the columns of ``body`` from ``header``, strip cells and drop blank rows."""
+    header = [str(h).strip() for h in header]
+    body = body.copy()
+    body.columns = range(body.shape[1])
+    usable = True
+    keep_columns = []
+    seen: set[str] = set()
+    for number, column_name in enumerate(header):
+        column = body[number].astype("str")
+        if strip and len(body):
+            column = column.str.strip()
+        body[number] = column
+        if not column_name:
+            if len(body) and (column != "").any():
+                problems.add(file, f"column {number + 1} has values but no name in the header row",
+                             "give the column a name in row 1, or delete it", row=1)
+                usable = False
+            continue
+        if column_name in seen:
+            problems.add(file, f"the column '{column_name}' appears twice in the header row",
+                         "keep one column of that name", row=1, column=column_name)
+            usable = False
+            continue
+        seen.add(column_name)
+        keep_columns.append(number)
+    if not usable:
+        return None
+    frame = body[keep_columns]
+    frame.columns = [header[n] for n in keep_columns]
+    if len(frame) and len(frame.columns):
+        filled = np.zeros(len(frame), dtype=bool)
+        for column in frame.columns:
+            filled |= frame[column].to_numpy() != ""
+        frame = frame.loc[filled]
+        rows = rows[filled]
+    elif not len(frame.columns):
+        frame = frame.iloc[0:0]
+        rows = rows[:0]
+    frame = frame.reset_index(drop=True)
+    return RawTable(name=name, file=file, frame=frame, rows=np.asarray(rows, dtype=np.int64),
+                    path=path)
+
+
+def read_csv_table(path: Path, name: str, file: str, problems: Problems) -> RawTable | None:
+    """Read one CSV file of the case into a :class:`RawTable` of strings.
+
+    Returns ``None`` (with a problem recorded) when the file cannot be read as a table.
+    """
+    try:
+        cells = pd.read_csv(
+            path, header=None, dtype=str, na_filter=False, skip_blank_lines=False,
+            index_col=False, encoding="utf-8-sig",
+        )
+    except pd.errors.EmptyDataError:
+        problems.add(file, "the file is empty",
+                     "give at least the header row: " + ",".join(COLUMNS[name]), row=1)
+        return None
+    except UnicodeDecodeError:
+        problems.add(file, "the file is not UTF-8 text",
+                     "save it as CSV in UTF-8 encoding")
+        return None
+    except pd.errors.ParserError as error:
+        found = re.search(r"line (\d+), saw (\d+)", str(error))
+        if found:
+            problems.add(file, f"this row has {found.group(2)} cells, more than the header row",
+                         "remove the extra cells or quote a value that contains a comma",
+                         row=int(found.group(1)))
+        else:
+            problems.add(file, f"the file cannot be read as CSV ({error})",
+                         "check the quoting of values that contain commas or line breaks")
+        return None
+    except OSError as error:
+        problems.add(file, f"the file cannot be read ({error.strerror or error})",
+                     "check that the file exists and may be read")
+        return None
+    header = cells.iloc[0].tolist() if len(cells) else []
+    body = cells.iloc[1:]
+    rows = np.arange(2, len(cells) + 1, dtype=np.int64)
+    try:
+        padded = bool(_PADDING.search(path.read_text(encoding="utf-8-sig")))
+    except (OSError, UnicodeDecodeError):
+        padded = True
+    return _make_table(name, file, header, body, rows, problems, path, strip=padded)
+
+
+def cell_text(value: Any) -> str:
+    """A workbook cell as the text a CSV file would hold for it."""
+    if value is None:
+        return ""
+    if isinstance(value, str):
+        return value
+    if isinstance(value, bool):
+        return "yes" if value else "no"
+    if isinstance(value, dt.datetime):
+        if value.time() == dt.time(0):
+            return value.date().isoformat()
+        return value.isoformat(sep=" ")
+    if isinstance(value, dt.date):
+        return value.isoformat()
+    if isinstance(value, float):
+        if value.is_integer():
+            return str(int(value))
+        return repr(value)
+    return str(value)
+
+
+# --------------------------------------------------------------------------- folder form
+
+
+def _toml_locator(file: str) -> Callable[[str], tuple[int | None, str]]:
+    return lambda key: (None, key)
+
+
+def _read_toml(path: Path, file: str, problems: Problems) -> dict[str, Any] | None:
+    try:
+        with path.open("rb") as handle:
+            return tomllib.load(handle)
+    except tomllib.TOMLDecodeError as error:
+        problems.add(file, f"the file is not valid TOML: {error}",
+                     "write each setting as key = value; put text in double quotes, dates as YYYY-MM-DD")
+    except UnicodeDecodeError:
+        problems.add(file, "the file is not UTF-8 text", "save it in UTF-8 encoding")
+    except OSError as error:
+        problems.add(file, f"the file cannot be read ({error.strerror or error})",
+                     "check that the file exists and may be read")
+    return None
+
+
+def _read_folder(root: Path, problems: Problems) -> CaseSource:
+    source = CaseSource(root=root, workbook=False, settings=None, tables={}, snapshots=[])
+
+    def required_file(relative: str) -> Path | None:
+        path = root / relative
+        if not path.is_file():
+            problems.add(relative, f"the required file {relative} is missing",
+                         f"create {relative} (see the case-format description; `delay new` writes a skeleton)")
+            return None
+        source.input_files.append(path)
+        return path
+
+    path = required_file("case.toml")
+    if path is not None:
+        values = _read_toml(path, "case.toml", problems)
+        if values is not None:
+            source.settings = SettingsSource(values, "case.toml", _toml_locator("case.toml"))
+
+    path = required_file("calendars.csv")
+    source.tables["calendars"] = (
+        read_csv_table(path, "calendars", "calendars.csv", problems) if path else None
+    )
+
+    snapshots_dir = root / "snapshots"
+    if not snapshots_dir.is_dir():
+        problems.add("snapshots", "the folder snapshots/ is missing",
+                     "create snapshots/baseline/ with snapshot.toml, activities.csv and links.csv")
+        source.snapshots_found = False
+    else:
+        folders = sorted(p for p in snapshots_dir.iterdir() if p.is_dir() and not p.name.startswith("."))
+        for folder in folders:
+            base = f"snapshots/{folder.name}"
+            meta_file = f"{base}/snapshot.toml"
+            path = required_file(meta_file)
+            facts = _read_toml(path, meta_file, problems) if path is not None else None
+            snap = SnapshotSource(folder=folder.name, facts=facts, file=meta_file,
+                                  locate=_toml_locator(meta_file))
+            for name in ("activities", "links"):
+                relative = f"{base}/{name}.csv"
+                path = required_file(relative)
+                table = read_csv_table(path, name, relative, problems) if path else None
+                setattr(snap, name, table)
+            source.snapshots.append(snap)
+
+    for name in OPTIONAL_FILES:
+        path = root / f"{name}.csv"
+        if path.is_file():
+            source.input_files.append(path)
+            source.tables[name] = read_csv_table(path, name, f"{name}.csv", problems)
+        else:
+            source.tables[name] = _empty_table(name, f"{name}.csv")
+    return source
+
+
+def _empty_table(name: str, file: str) -> RawTable:
+    frame = pd.DataFrame({column: pd.Series([], dtype="str") for column in COLUMNS[name]})
+    return RawTable(name=name, file=file, frame=frame, rows=np.zeros(0, dtype=np.int64),
+                    present=False)
+
+
+# --------------------------------------------------------------------------- workbook form
+
+
+def _sheet_cells(sheet) -> tuple[list[str], list[list[Any]], list[int]]:
+    """Header texts, body rows (raw cell values) and their sheet row numbers."""
+    header: list[str] = []
+    body: list[list[Any]] = []
+    rows: list[int] = []
+    for number, values in enumerate(sheet.iter_rows(values_only=True), start=1):
+        if number == 1:
+            header = [cell_text(v) for v in values]
+            continue
+        if values is None or all(v is None or (isinstance(v, str) and not v.strip()) for v in values):
+            continue
+        body.append(list(values))
+        rows.append(number)
+    # Trailing header cells without a name and without values are not columns.
+    while header and not header[-1].strip() and all(
+        len(r) < len(header) or r[len(header) - 1] is None for r in body
+    ):
+        header.pop()
+    return header, body, rows
+
+
+def _sheet_table(workbook, name: str, label: str, problems: Problems) -> RawTable | None:
+    header, body, rows = _sheet_cells(workbook[name])
+    width = len(header)
+    for values, row in zip(body, rows):
+        extra = [v for v in values[width:] if v is not None and cell_text(v).strip()]
+        if extra:
+            problems.add(label, "this row has values to the right of the last named column",
+                         "give the column a name in row 1, or delete the values", row=row)
+            return None
+    cells = [[cell_text(v).strip() for v in (values[:width] + [None] * (width - len(values)))]
+             for values in body]
+    frame = pd.DataFrame(cells, columns=range(width), dtype="str") if cells else pd.DataFrame(
+        {n: pd.Series([], dtype="str") for n in range(width)})
+    return _make_table(name, label, header, frame, np.asarray(rows, dtype=np.int64), problems,
+                       strip=False)
+
+
+def _read_workbook(path: Path, problems: Problems) -> CaseSource:
+    import openpyxl  # imported here: only the workbook form needs it
+
+    name = path.name
+    source = CaseSource(root=path, workbook=True, settings=None, tables={}, snapshots=[],
+                        input_files=[path])
+    try:
+        workbook = openpyxl.load_workbook(path, read_only=True, data_only=True)
+    except Exception as error:  # openpyxl raises many kinds for a damaged file
+        problems.add(name, f"the workbook cannot be opened ({error})",
+                     "save it again from the spreadsheet program as an .xlsx workbook")
+        return source
+    try:
+        sheets = set(workbook.sheetnames)
+
+        def label(sheet: str) -> str:
+            return f"{name}:{sheet}"
+
+        def required_sheet(sheet: str) -> bool:
+            if sheet not in sheets:
+                problems.add(name, f"the required sheet '{sheet}' is missing",
+                             f"add a sheet named '{sheet}' (see the case-format description)")
+                return False
+            return True
+
+        if required_sheet("case"):
+            source.settings = _read_case_sheet(workbook["case"], label("case"), problems)
+        source.tables["calendars"] = (
+            _sheet_table(workbook, "calendars", label("calendars"), problems)
+            if required_sheet("calendars") else None
+        )
+        source.snapshots_found = required_sheet("snapshots")
+        if source.snapshots_found:
+            source.snapshots = _read_snapshots_sheet(workbook, label, problems)
+            for table_name in ("activities", "links"):
+                if required_sheet(table_name):
+                    _split_snapshot_sheet(workbook, table_name, label(table_name), source.snapshots,
+                                          problems)
+        for table_name in OPTIONAL_FILES:
+            if table_name in sheets:
+                source.tables[table_name] = _sheet_table(workbook, table_name, label(table_name),
+                                                         problems)
+            else:
+                source.tables[table_name] = _empty_table(table_name, label(table_name))
+    finally:
+        workbook.close()
+    return source
+
+
+def _native(value: Any) -> Any:
+    if isinstance(value, dt.datetime) and value.time() == dt.time(0):
+        return value.date()
+    if isinstance(value, str):
+        return value.strip()
+    if isinstance(value, float) and value.is_integer():
+        return int(value)
+    return value
+
+
+def _read_case_sheet(sheet, file: str, problems: Problems) -> SettingsSource | None:
+    header, body, rows = _sheet_cells(sheet)
+    header = [h.strip() for h in header]
+    if "key" not in header or "value" not in header:
+        problems.add(file, "the sheet needs the columns 'key' and 'value' in row 1",
+                     "write key in A1 and value in B1, then one setting per row, e.g. project.name",
+                     row=1)
+        return None
+    key_at, value_at = header.index("key"), header.index("value")
+    values: dict[str, Any] = {}
+    where: dict[str, int] = {}
+    for cells, row in zip(body, rows):
+        cells = list(cells) + [None] * (len(header) - len(cells))
+        key = cell_text(cells[key_at]).strip()
+        if not key:
+            continue
+        if key in where:
+            problems.add(file, f"the setting '{key}' is given twice (first on row {where[key]})",
+                         "keep one row for each setting", row=row, column="key")
+            continue
+        where[key] = row
+        value = _native(cells[value_at])
+        if value is None or value == "":
+            continue
+        parts = key.split(".")
+        target = values
+        for part in parts[:-1]:
+            existing = target.setdefault(part, {})
+            if not isinstance(existing, dict):
+                problems.add(file, f"'{key}' conflicts with the setting '{part}'",
+                             "use keys of the form section.name", row=row, column="key")
+                break
+            target = existing
+        else:
+            target[parts[-1]] = value
+
+    def locate(key: str) -> tuple[int | None, str]:
+        return where.get(key), "value"
+
+    return SettingsSource(values, file, locate)
+
+
+def _read_snapshots_sheet(workbook, label, problems: Problems) -> list[SnapshotSource]:
+    file = label("snapshots")
+    header, body, rows = _sheet_cells(workbook["snapshots"])
+    header = [h.strip() for h in header]
+    missing = [c for c in ("label", "data_date") if c not in header]
+    for column in missing:
+        problems.add(file, f"the required column '{column}' is missing",
+                     f"add a column '{column}' to row 1", row=1, column=column)
+    if missing:
+        return []
+    snapshots: list[SnapshotSource] = []
+    for cells, row in zip(body, rows):
+        cells = list(cells) + [None] * (len(header) - len(cells))
+        facts = {}
+        for column, value in zip(header, cells):
+            value = _native(value)
+            if column and value is not None and value != "":
+                facts[column] = value
+        folder = str(facts.pop("folder", "") or facts.get("label", "")).strip()
+        if not folder:
+            problems.add(file, "the snapshot has neither a label nor a folder name",
+                         "give each snapshot a label", row=row, column="label")
+            continue
+        snapshots.append(SnapshotSource(
+            folder=folder, facts=facts, file=file,
+            locate=lambda key, _row=row: (_row, key),
+        ))
+    return snapshots
+
+
+def _split_snapshot_sheet(workbook, name: str, file: str, snapshots: list[SnapshotSource],
+                          problems: Problems) -> None:
+    """Split the activities or links sheet by its leading ``snapshot`` column."""
+    table = _sheet_table(workbook, name, file, problems)
+    if table is None:
+        return
+    if "snapshot" not in table.frame.columns:
+        problems.add(file, "the required column 'snapshot' is missing",
+                     "add a first column 'snapshot' naming the snapshot of each row", row=1,
+                     column="snapshot")
+        return
+    by_name: dict[str, SnapshotSource] = {}
+    for snap in snapshots:
+        by_name.setdefault(snap.folder, snap)
+    for snap in snapshots:
+        by_name.setdefault(str(snap.facts.get("label", "")), snap)
+    names = table.frame["snapshot"]
+    known = names.isin(list(by_name))
+    problems.flag(table, ~known & (names != ""), "snapshot",
+                  "the snapshot '{value}' is not in the snapshots sheet",
+                  "add it to the snapshots sheet or correct the name")
+    problems.flag(table, names == "", "snapshot", "the row names no snapshot",
+                  "write the snapshot's folder name or label in the snapshot column")
+    owner = names.map({n: snap.folder for n, snap in by_name.items()}).fillna("")
+    stable = set(COLUMNS[name])
+    for snap in snapshots:
+        mask = (owner == snap.folder).to_numpy()
+        frame = table.frame.loc[mask].drop(columns=["snapshot"]).reset_index(drop=True)
+        # A column the sheet has for another snapshot's sake is not part of this one.
+        unused = [c for c in frame.columns if c not in stable and not (frame[c] != "").any()]
+        frame = frame.drop(columns=unused)
+        setattr(snap, name, RawTable(name=name, file=file, frame=frame, rows=table.rows[mask]))
+
+
+# --------------------------------------------------------------------------- entry point
+
+
+def open_source(path: Path, problems: Problems) -> CaseSource | None:
+    """Read the case at ``path`` (a folder, a workbook, or a folder holding only a workbook).
+
+    Returns ``None`` when there is nothing to read at all (the problem is recorded).
+    """
+    path = Path(path)
+    if path.is_dir():
+        if not (path / "case.toml").exists() and (path / WORKBOOK_NAME).is_file():
+            return _read_workbook(path / WORKBOOK_NAME, problems)
+        return _read_folder(path, problems)
+    if path.is_file():
+        if path.suffix.lower() == ".xlsx":
+            return _read_workbook(path, problems)
+        problems.add(str(path), "this is neither a case folder nor an .xlsx workbook",
+                     "give the case folder (the one holding case.toml) or the case.xlsx workbook")
+        return None
+    problems.add(str(path), "there is no case folder or workbook at this path",
+                 "check the path; `delay new FOLDER` writes an empty case to start from")
+    return None

@@ -1,0 +1,65 @@
+"""Errors raised for bad input.
+
+A :class:`CaseError` carries one or more :class:`Problem` records. Each names the file, the
+row as a person counts it in a spreadsheet (the header is row 1, the first data row is
+row 2), the column, what is wrong and what to do about it. The command line prints one
+plain line per problem and exits with status 2; it never shows a traceback for them.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+__all__ = ["Problem", "CaseError", "MAX_PROBLEMS_PER_FILE"]
+
+#: At most this many problems are collected from one file before checking moves on.
+MAX_PROBLEMS_PER_FILE = 50
+
+
+@dataclass(frozen=True)
+class Problem:
+    """One thing wrong with the input.
+
+    Parameters
+    ----------
+    file:
+        Path of the file as the user would type it, relative to the case folder where
+        possible (``snapshots/baseline/links.csv``), or ``case.xlsx:links`` for a sheet.
+    message:
+        What is wrong, in plain words.
+    fix:
+        What the user should do.
+    row:
+        Spreadsheet row number (header = 1), or ``None`` when the problem is not in a row.
+    column:
+        Column name, or ``None``.
+    """
+
+    file: str
+    message: str
+    fix: str = ""
+    row: int | None = None
+    column: str | None = None
+
+    def __str__(self) -> str:
+        where = self.file
+        if self.row is not None:
+            where += f", row {self.row}"
+        if self.column is not None:
+            where += f", column '{self.column}'"
+        text = f"{where}: {self.message}"
+        if self.fix:
+            text += f" - {self.fix}"
+        return text
+
+
+class CaseError(Exception):
+    """The case cannot be used as given. ``problems`` lists every problem found."""
+
+    def __init__(self, problems: Problem | list[Problem] | tuple[Problem, ...]):
+        if isinstance(problems, Problem):
+            problems = [problems]
+        self.problems: tuple[Problem, ...] = tuple(problems)
+        if not self.problems:
+            raise ValueError("CaseError needs at least one problem")
+        super().__init__("\n".join(str(p) for p in self.problems))

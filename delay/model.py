@@ -1,0 +1,297 @@
+"""The loaded case: typed settings and read-only tables.
+
+:func:`delay.case.load_case` builds these objects; every other module reads them. Tables are
+pandas DataFrames with the stable column names listed below (unknown input columns follow
+them, unchanged). They are handed out as shallow copy-on-write copies, so whatever a caller
+does to the frame it receives never reaches the loaded case.
+
+Column types after loading
+--------------------------
+- identifiers and text: ``str``; a blank cell is ``""``
+- dates: ``datetime64``; a blank cell is ``NaT``
+- whole numbers that are always given (``duration``, ``lag``): ``int64``
+- optional numbers (``remaining``, ``days``, boxes, rates): ``float64``; blank is ``NaN``
+- yes/no: ``bool``
+"""
+
+from __future__ import annotations
+
+import datetime as dt
+from dataclasses import dataclass, field
+from functools import cached_property
+from pathlib import Path
+from typing import Literal, Mapping
+
+import numpy as np
+import pandas as pd
+
+__all__ = [
+    "ProjectSettings",
+    "ScheduleSettings",
+    "CommercialSettings",
+    "AnalysisSettings",
+    "CaseSettings",
+    "Snapshot",
+    "Correction",
+    "Case",
+    "COLUMNS",
+    "LINK_TYPES",
+    "ACTIVITY_KINDS",
+    "CONSTRAINTS",
+    "PARTIES",
+    "IMPACTS",
+    "WEEKDAYS",
+]
+
+LINK_TYPES = ("FS", "SS", "FF", "SF")
+ACTIVITY_KINDS = ("task", "start_milestone", "finish_milestone")
+CONSTRAINTS = ("earliest_start", "latest_finish", "fixed_start", "fixed_finish")
+PARTIES = ("employer", "contractor", "neutral")
+IMPACTS = ("extend", "hold", "fragnet")
+WEEKDAYS = ("Mon", "Tue", "Wed", "Thu", "Fri", "Sat", "Sun")
+
+#: The stable columns of every table, in order. Unknown input columns follow these.
+COLUMNS: dict[str, tuple[str, ...]] = {
+    "calendars": ("calendar", "workdays"),
+    "calendar_exceptions": ("calendar", "date", "working", "reason"),
+    "activities": (
+        "id", "name", "duration", "calendar", "wbs", "kind", "constraint",
+        "constraint_date", "party", "actual_start", "actual_finish", "remaining",
+    ),
+    "links": ("pred", "succ", "type", "lag"),
+    "asbuilt": ("id", "actual_start", "actual_finish", "source"),
+    "corrections": ("snapshot", "table", "key", "column", "value", "reason"),
+    "events": (
+        "id", "title", "party", "start", "finish", "activities", "impact", "days",
+        "evidence", "notified", "claimed_days",
+    ),
+    "fragnets": ("event", "id", "name", "duration", "calendar", "wbs"),
+    "fragnet_links": ("event", "pred", "succ", "type", "lag"),
+    "elements": (
+        "id", "name", "wbs", "classification", "x", "y", "z", "dx", "dy", "dz",
+        "level", "zone",
+    ),
+    "sections": (
+        "section", "name", "completion_activity", "contract_completion",
+        "liquidated_damages_per_day",
+    ),
+    "extensions_granted": ("id", "granted_on", "days", "section", "events", "reason"),
+    "prolongation_rates": ("from", "to", "cost_per_day"),
+}
+
+
+@dataclass(frozen=True)
+class ProjectSettings:
+    """``[project]`` of case.toml."""
+
+    name: str
+    contract_start: dt.date
+    contract_completion: dt.date
+
+
+@dataclass(frozen=True)
+class ScheduleSettings:
+    """``[schedule]`` of case.toml: everything the CPM engine needs to know.
+
+    Override one field for a what-if with :func:`dataclasses.replace`.
+    """
+
+    default_calendar: str = "5d"
+    progress: Literal["retained_logic", "progress_override"] = "retained_logic"
+    lag_calendar: Literal["successor", "predecessor"] = "successor"
+    float_to: Literal["project_finish", "contract_completion"] = "project_finish"
+
+
+@dataclass(frozen=True)
+class CommercialSettings:
+    """``[commercial]`` of case.toml (all optional)."""
+
+    currency: str = "EUR"
+    liquidated_damages_per_day: float = 0.0
+    liquidated_damages_cap: float = 0.0  # 0: no cap
+    prolongation_cost_per_day: float = 0.0
+
+
+@dataclass(frozen=True)
+class AnalysisSettings:
+    """``[analysis]`` of case.toml (all optional)."""
+
+    half_step: bool = True
+    concurrency: Literal["time_not_money", "apportion"] = "time_not_money"
+
+
+@dataclass(frozen=True)
+class CaseSettings:
+    """All of case.toml, defaults applied. ``extra`` keeps keys the toolkit does not know."""
+
+    project: ProjectSettings
+    schedule: ScheduleSettings = field(default_factory=ScheduleSettings)
+    commercial: CommercialSettings = field(default_factory=CommercialSettings)
+    analysis: AnalysisSettings = field(default_factory=AnalysisSettings)
+    extra: Mapping[str, object] = field(default_factory=dict)
+
+
+def _read_only(frame: pd.DataFrame) -> pd.DataFrame:
+    # pandas >= 3 copies on write: a shallow copy shares memory until either side writes.
+    return frame.copy(deep=False)
+
+
+@dataclass(frozen=True)
+class Snapshot:
+    """One programme: the baseline, a progress update, or the as-built record.
+
+    ``folder`` is the folder name under ``snapshots/`` (``"asbuilt"`` for the as-built
+    snapshot); ``label`` the label from snapshot.toml; ``kind`` is ``"baseline"``,
+    ``"update"`` or ``"asbuilt"``. The as-built snapshot is the last update with the
+    as-built record's actual dates laid over it, every activity complete, and a data date
+    one day after the latest actual finish.
+    """
+
+    folder: str
+    label: str
+    data_date: dt.date
+    kind: Literal["baseline", "update", "asbuilt"]
+    activities_table: pd.DataFrame = field(repr=False)
+    links_table: pd.DataFrame = field(repr=False)
+
+    @property
+    def activities(self) -> pd.DataFrame:
+        """Columns ``COLUMNS["activities"]`` then unknown ones; one row per activity."""
+        return _read_only(self.activities_table)
+
+    @property
+    def links(self) -> pd.DataFrame:
+        """Columns ``COLUMNS["links"]`` then unknown ones; one row per link."""
+        return _read_only(self.links_table)
+
+    @cached_property
+    def link_numbers(self) -> tuple[np.ndarray, np.ndarray]:
+        """Activity numbers (rows of ``activities``) of each link's predecessor and successor,
+        ``-1`` for an unknown id; computed once per snapshot and shared by every use."""
+        index = pd.Index(self.activities_table["id"])
+        pred = index.get_indexer(self.links_table["pred"]).astype(np.int64)
+        succ = index.get_indexer(self.links_table["succ"]).astype(np.int64)
+        pred.flags.writeable = False
+        succ.flags.writeable = False
+        return pred, succ
+
+
+@dataclass(frozen=True)
+class Correction:
+    """One disclosed correction by the analyst, applied on load.
+
+    ``record`` describes the corrected thing in words (``"snapshot 'Update 03', activity
+    A120, column remaining"``); ``original`` and ``corrected`` are the cell values as text
+    (``""`` for blank); ``row`` is the row of corrections.csv that asked for it.
+    """
+
+    snapshot: str
+    table: str
+    key: str
+    column: str
+    original: str
+    corrected: str
+    reason: str
+    row: int
+
+    @property
+    def record(self) -> str:
+        thing = "activity" if self.table == "activities" else "link"
+        return f"snapshot '{self.snapshot}', {thing} {self.key}, column {self.column}"
+
+
+_TABLE_DOCS = {
+    "calendars": "work calendars",
+    "calendar_exceptions": "holidays and extra working days",
+    "asbuilt": "the as-built record (rows as given, corrections applied)",
+    "events": "the delay event register",
+    "fragnets": "activities inserted by events",
+    "fragnet_links": "links of the fragnet activities",
+    "elements": "model elements",
+    "sections": "sectional completion dates",
+    "extensions_granted": "extensions of time already granted",
+    "prolongation_rates": "time-related cost per day by period",
+}
+
+
+class Case:
+    """A validated case. Build it with :func:`delay.case.load_case`.
+
+    Attributes
+    ----------
+    root: the case folder, or the workbook's path.
+    settings: :class:`CaseSettings`.
+    snapshots: baseline first, then updates by data date (the as-built snapshot is not
+        among them; see :attr:`asbuilt_snapshot`).
+    asbuilt_snapshot: :class:`Snapshot` built from the as-built record, or ``None``.
+    corrections: the analyst's corrections, applied, in corrections.csv order.
+    input_files: every file read, for the report's manifest.
+
+    Each optional table is present (empty, with its stable columns) even when its file
+    is absent.
+    """
+
+    def __init__(
+        self,
+        *,
+        root: Path,
+        settings: CaseSettings,
+        tables: Mapping[str, pd.DataFrame],
+        snapshots: tuple[Snapshot, ...],
+        asbuilt_snapshot: Snapshot | None,
+        corrections: tuple[Correction, ...],
+        input_files: tuple[Path, ...],
+    ):
+        missing = set(_TABLE_DOCS) - set(tables)
+        if missing:
+            raise ValueError(f"tables missing: {sorted(missing)}")
+        self.root = Path(root)
+        self.settings = settings
+        self._tables = dict(tables)
+        self.snapshots = tuple(snapshots)
+        self.asbuilt_snapshot = asbuilt_snapshot
+        self.corrections = tuple(corrections)
+        self.input_files = tuple(input_files)
+
+    def table(self, name: str) -> pd.DataFrame:
+        """The table ``name`` (a key of ``COLUMNS`` other than activities and links)."""
+        return _read_only(self._tables[name])
+
+    def snapshot(self, name: str = "baseline") -> Snapshot:
+        """A snapshot by folder name, then by label; ``"asbuilt"`` gives the as-built one.
+
+        Raises ``KeyError`` with the known names when there is none of that name.
+        """
+        candidates = list(self.snapshots)
+        if self.asbuilt_snapshot is not None:
+            candidates.append(self.asbuilt_snapshot)
+        for attribute in ("folder", "label"):
+            for snap in candidates:
+                if getattr(snap, attribute) == name:
+                    return snap
+        if name == "baseline" and self.snapshots and self.snapshots[0].kind == "baseline":
+            return self.snapshots[0]
+        known = ", ".join(s.folder for s in candidates)
+        raise KeyError(f"no snapshot '{name}' in the case (known: {known})")
+
+    @property
+    def baseline(self) -> Snapshot:
+        return self.snapshots[0]
+
+    @property
+    def updates(self) -> tuple[Snapshot, ...]:
+        return self.snapshots[1:]
+
+    def __repr__(self) -> str:
+        return (
+            f"Case({self.settings.project.name!r}, snapshots={len(self.snapshots)}, "
+            f"events={len(self._tables['events'])}, elements={len(self._tables['elements'])})"
+        )
+
+
+for _name, _doc in _TABLE_DOCS.items():
+    setattr(
+        Case,
+        _name,
+        property(lambda self, _n=_name: _read_only(self._tables[_n]), doc=f"{_doc.capitalize()}."),
+    )
