@@ -1,0 +1,354 @@
+"""Work calendars as numpy arrays.
+
+A work calendar says which dates are work days: working weekdays, less holidays, plus extra
+working days. Time in the engine is counted in *work-day indices*: index ``k`` is the k-th work
+day counted from the calendar's anchor date (index 0 is the first work day on or after the
+anchor; earlier work days have negative indices). Indices stay the same when the covered
+horizon grows, so arrays of indices computed earlier remain valid.
+
+All conversions take and return whole numpy arrays:
+
+- :meth:`WorkCalendar.start_index` — the first work day on or after a date (a start rolls
+  forward);
+- :meth:`WorkCalendar.finish_index` — the last work day on or before a date (a finish rolls
+  back);
+- :meth:`WorkCalendar.date_of` — the date of a work-day index;
+- :meth:`WorkCalendar.count` — work days in ``[start, end)``, as ``numpy.busday_count``.
+
+The horizon grows on demand (it doubles), never silently clips.
+
+Dates are given as ``datetime64[D]`` arrays, ``datetime.date`` objects or ISO strings; inside,
+a date is its day number since 1970-01-01 (``int64``).
+"""
+
+from __future__ import annotations
+
+from typing import Iterable, Mapping
+
+import numpy as np
+
+from .model import WEEKDAYS
+
+__all__ = ["WorkCalendar", "CalendarSet", "build_calendars", "to_days", "to_dates", "parse_workdays"]
+
+_EPOCH = np.datetime64("1970-01-01", "D")
+
+
+def to_days(dates) -> np.ndarray:
+    """Day numbers (``int64`` days since 1970-01-01) of dates or arrays of dates."""
+    array = np.asarray(dates)
+    if array.dtype.kind == "M":
+        return array.astype("datetime64[D]").astype(np.int64)
+    if array.dtype.kind in "iu":
+        return array.astype(np.int64)
+    if array.dtype == object or array.dtype.kind in "US":
+        return np.asarray(array, dtype="datetime64[D]").astype(np.int64)
+    raise TypeError(f"cannot read dates of dtype {array.dtype}")
+
+
+def to_dates(days) -> np.ndarray:
+    """``datetime64[D]`` dates of day numbers."""
+    return np.asarray(days, dtype=np.int64).astype("datetime64[D]")
+
+
+def parse_workdays(text: str) -> tuple[bool, ...]:
+    """Weekday mask Mon..Sun from ``"Mon Tue Wed Thu Fri"``.
+
+    Raises ``ValueError`` naming an unknown token.
+    """
+    mask = [False] * 7
+    for token in str(text).replace(",", " ").split():
+        key = token.capitalize()
+        if key not in WEEKDAYS:
+            raise ValueError(f"unknown weekday '{token}' (use {' '.join(WEEKDAYS)})")
+        mask[WEEKDAYS.index(key)] = True
+    return tuple(mask)
+
+
+class WorkCalendar:
+    """One work calendar over a horizon that grows on demand.
+
+    Parameters
+    ----------
+    name:
+        The calendar's name.
+    weekmask:
+        Seven booleans, Monday first: which weekdays are worked.
+    holidays:
+        Dates that are not worked although their weekday is.
+    extra_workdays:
+        Dates that are worked although their weekday is not.
+    anchor:
+        The date from which indices count (index 0 is the first work day on or after it).
+    start, end:
+        The initial horizon (inclusive). It grows by itself when needed.
+
+    Raises
+    ------
+    ValueError
+        When the calendar has no work day at all.
+
+    Examples
+    --------
+    >>> cal = WorkCalendar.from_weekdays("5d", "Mon Tue Wed Thu Fri", anchor="2025-01-06")
+    >>> str(cal.date_of(cal.start_index(np.datetime64("2025-01-11")))[()])  # Saturday
+    '2025-01-13'
+    """
+
+    def __init__(
+        self,
+        name: str,
+        weekmask: Iterable[bool],
+        holidays: Iterable = (),
+        extra_workdays: Iterable = (),
+        anchor=None,
+        start=None,
+        end=None,
+    ):
+        self.name = name
+        self.weekmask = tuple(bool(x) for x in weekmask)
+        if len(self.weekmask) != 7:
+            raise ValueError("a weekmask has seven days, Monday first")
+        holidays, extra_workdays = list(holidays), list(extra_workdays)
+        self.holidays = np.unique(to_days(holidays)) if holidays else np.empty(0, np.int64)
+        self.extra_workdays = np.unique(to_days(extra_workdays)) if extra_workdays else np.empty(0, np.int64)
+        if not any(self.weekmask) and self.extra_workdays.size == 0:
+            raise ValueError(f"calendar '{name}' has no work day")
+        anchor_day = int(to_days(anchor if anchor is not None else (start or "2000-01-03")))
+        self.anchor = anchor_day
+        first = int(to_days(start)) if start is not None else anchor_day - 366
+        last = int(to_days(end)) if end is not None else anchor_day + 3 * 366
+        first = min(first, anchor_day)
+        last = max(last, anchor_day)
+        self._build(first, last)
+
+    @classmethod
+    def from_weekdays(cls, name, workdays="Mon Tue Wed Thu Fri", holidays=(), extra_workdays=(),
+                      start=None, end=None, anchor=None) -> "WorkCalendar":
+        """A calendar from a weekday list such as ``"Mon Tue Wed Thu Fri"``."""
+        return cls(name, parse_workdays(workdays), holidays, extra_workdays,
+                   anchor=anchor if anchor is not None else start, start=start, end=end)
+
+    # -- horizon -------------------------------------------------------------------------
+    def _build(self, first: int, last: int) -> None:
+        days = np.arange(first, last + 1, dtype=np.int64)
+        weekday = (days + 3) % 7  # 1970-01-01 was a Thursday (weekday 3, Monday = 0)
+        working = np.asarray(self.weekmask, dtype=bool)[weekday]
+        if self.holidays.size:
+            working[np.isin(days, self.holidays)] = False
+        if self.extra_workdays.size:
+            working[np.isin(days, self.extra_workdays)] = True
+        self.first_day = first
+        self.last_day = last
+        self._working = working
+        # _before[t] = work days in [first, first + t), t = 0 .. span
+        self._before = np.concatenate(([0], np.cumsum(working, dtype=np.int64)))
+        self._work_days = days[working]
+        self._anchor_before = int(self._before[self.anchor - first])
+
+    def _grow_days(self, low: int, high: int) -> None:
+        if low >= self.first_day and high <= self.last_day:
+            return
+        span = self.last_day - self.first_day + 1
+        first, last = self.first_day, self.last_day
+        while low < first:
+            first -= span
+            span *= 2
+        while high > last:
+            last += span
+            span *= 2
+        self._build(first, last)
+
+    def _grow_indices(self, low: int, high: int) -> None:
+        while True:
+            lo_pos = low + self._anchor_before
+            hi_pos = high + self._anchor_before
+            if lo_pos >= 0 and hi_pos < self._work_days.size:
+                return
+            span = self.last_day - self.first_day + 1
+            if lo_pos < 0 and not any(self.weekmask) and self.extra_workdays.size:
+                raise ValueError(f"calendar '{self.name}' has no work day that early")
+            if hi_pos >= self._work_days.size and not any(self.weekmask):
+                raise ValueError(f"calendar '{self.name}' has no work day that late")
+            self._grow_days(self.first_day - (span if lo_pos < 0 else 0),
+                            self.last_day + (span if hi_pos >= self._work_days.size else 0))
+
+    # -- conversions -----------------------------------------------------------------------
+    def start_index_days(self, days: np.ndarray) -> np.ndarray:
+        """Index of the first work day on or after each day number."""
+        days = np.asarray(days, dtype=np.int64)
+        if days.size:
+            self._grow_days(int(days.min()) - 7, int(days.max()) + 7)
+        return self._before[days - self.first_day] - self._anchor_before
+
+    def finish_index_days(self, days: np.ndarray) -> np.ndarray:
+        """Index of the last work day on or before each day number."""
+        days = np.asarray(days, dtype=np.int64)
+        if days.size:
+            self._grow_days(int(days.min()) - 7, int(days.max()) + 7)
+        return self._before[days - self.first_day + 1] - self._anchor_before - 1
+
+    def day_of(self, indices: np.ndarray) -> np.ndarray:
+        """Day number of each work-day index."""
+        indices = np.asarray(indices, dtype=np.int64)
+        if indices.size:
+            self._grow_indices(int(indices.min()), int(indices.max()))
+        return self._work_days[indices + self._anchor_before]
+
+    def start_index(self, dates) -> np.ndarray:
+        """Work-day index (``int32``) of the first work day on or after each date."""
+        return self.start_index_days(to_days(dates)).astype(np.int32)
+
+    def finish_index(self, dates) -> np.ndarray:
+        """Work-day index (``int32``) of the last work day on or before each date."""
+        return self.finish_index_days(to_days(dates)).astype(np.int32)
+
+    def date_of(self, indices) -> np.ndarray:
+        """``datetime64[D]`` date of each work-day index."""
+        return to_dates(self.day_of(indices))
+
+    def count(self, start_dates, end_dates) -> np.ndarray:
+        """Work days in ``[start, end)``; negative when end is before start (as busday_count)."""
+        return (self.start_index_days(to_days(end_dates)) - self.start_index_days(to_days(start_dates))).astype(np.int32)
+
+    def is_workday(self, dates) -> np.ndarray:
+        """Whether each date is a work day."""
+        days = to_days(dates)
+        if days.size:
+            self._grow_days(int(np.min(days)), int(np.max(days)))
+        return self._working[days - self.first_day]
+
+    def __repr__(self) -> str:
+        names = " ".join(d for d, on in zip(WEEKDAYS, self.weekmask) if on)
+        return f"WorkCalendar({self.name!r}, {names!r}, holidays={self.holidays.size})"
+
+
+class CalendarSet:
+    """Several calendars over one shared horizon, with vectorised lookups by calendar number.
+
+    ``names`` gives each calendar's number (its position). Every lookup takes an array of
+    calendar numbers beside the array of day numbers or indices (broadcast together), so one
+    call converts a whole array whose elements sit on different calendars. The tables are
+    flat: calendar ``c``'s entries follow calendar ``c - 1``'s.
+    """
+
+    def __init__(self, calendars: Mapping[str, WorkCalendar]):
+        self.names = tuple(calendars)
+        self.calendars = tuple(calendars[n] for n in self.names)
+        self.number = {name: i for i, name in enumerate(self.names)}
+        if not self.calendars:
+            raise ValueError("a calendar set needs at least one calendar")
+        first = min(c.first_day for c in self.calendars)
+        last = max(c.last_day for c in self.calendars)
+        self._cover(first, last)
+
+    def __getitem__(self, name: str) -> WorkCalendar:
+        return self.calendars[self.number[name]]
+
+    def __len__(self) -> int:
+        return len(self.calendars)
+
+    def _cover(self, first: int, last: int) -> None:
+        for calendar in self.calendars:
+            if calendar.first_day != first or calendar.last_day != last:
+                calendar._build(min(first, calendar.first_day), max(last, calendar.last_day))
+        self.first_day = first
+        self.last_day = last
+        self._stride = last - first + 2
+        self._before = np.concatenate([c._before for c in self.calendars])
+        counts = np.array([c._work_days.size for c in self.calendars], dtype=np.int64)
+        self._work_count = counts
+        self._work_offset = np.concatenate(([0], np.cumsum(counts)[:-1]))
+        self._work_days = np.concatenate([c._work_days for c in self.calendars])
+        self._anchor_before = np.array([c._anchor_before for c in self.calendars], dtype=np.int64)
+
+    def _grow(self, low_day: int, high_day: int) -> None:
+        first, last = self.first_day, self.last_day
+        span = last - first + 1
+        while low_day < first:
+            first -= span
+            span *= 2
+        while high_day > last:
+            last += span
+            span *= 2
+        self._cover(first, last)
+
+    def grow(self, earlier: bool) -> None:
+        """Widen the horizon fourfold on one side (the compiled passes ask for it when a
+        look-up falls outside the tables)."""
+        span = 3 * (self.last_day - self.first_day + 1)
+        if earlier:
+            self._cover(self.first_day - span, self.last_day)
+        else:
+            self._cover(self.first_day, self.last_day + span)
+
+    def tables(self) -> tuple:
+        """The flat tables as the compiled passes take them: ``(before, stride, first_day,
+        work_days, work_offset, work_count, anchor_before)``."""
+        return (self._before, self._stride, self.first_day, self._work_days, self._work_offset,
+                self._work_count, self._anchor_before)
+
+    def start_index_days(self, which, days) -> np.ndarray:
+        """Per element: index of the first work day on or after the day, on calendar ``which``."""
+        days = np.asarray(days, dtype=np.int64)
+        if days.size and (days.min() < self.first_day + 7 or days.max() > self.last_day - 7):
+            self._grow(int(days.min()) - 7, int(days.max()) + 7)
+        which = np.asarray(which, dtype=np.int64)
+        return self._before[which * self._stride + (days - self.first_day)] - self._anchor_before[which]
+
+    def finish_index_days(self, which, days) -> np.ndarray:
+        """Per element: index of the last work day on or before the day."""
+        return self.start_index_days(which, np.asarray(days, dtype=np.int64) + 1) - 1
+
+    def day_of(self, which, indices) -> np.ndarray:
+        """Per element: day number of work-day index on calendar ``which``."""
+        which = np.asarray(which, dtype=np.int64)
+        indices = np.asarray(indices, dtype=np.int64)
+        for _ in range(64):
+            position = indices + self._anchor_before[which]
+            if not position.size:
+                break
+            too_early = position < 0
+            too_late = position >= self._work_count[which]
+            if not (too_early.any() or too_late.any()):
+                break
+            span = self.last_day - self.first_day + 1
+            self._grow(self.first_day - (span if too_early.any() else 0),
+                       self.last_day + (span if too_late.any() else 0))
+        else:
+            raise ValueError("a work-day index lies beyond every calendar's work days")
+        return self._work_days[self._work_offset[which] + position]
+
+
+def build_calendars(case, anchor=None) -> dict[str, WorkCalendar]:
+    """Every calendar of a case, with its exceptions.
+
+    Parameters
+    ----------
+    case:
+        A :class:`delay.model.Case`.
+    anchor:
+        Index anchor date; default the contract start.
+
+    Returns
+    -------
+    dict
+        Calendar name to :class:`WorkCalendar`, in calendars.csv order.
+    """
+    anchor = anchor if anchor is not None else case.settings.project.contract_start
+    calendars = case.calendars
+    exceptions = case.calendar_exceptions
+    result: dict[str, WorkCalendar] = {}
+    for name, workdays in zip(calendars["calendar"], calendars["workdays"]):
+        own = exceptions[exceptions["calendar"] == name]
+        working = own["working"].to_numpy(dtype=bool)
+        dates = own["date"].to_numpy()
+        result[name] = WorkCalendar(
+            name,
+            parse_workdays(workdays),
+            holidays=list(dates[~working]),
+            extra_workdays=list(dates[working]),
+            anchor=anchor,
+        )
+    return result
+

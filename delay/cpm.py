@@ -1,0 +1,776 @@
+"""The critical path method on arrays.
+
+:func:`schedule` computes early and late dates, total and free float, critical and driving
+flags of one snapshot of a case, following the time convention and scheduling rules of the
+case format (shared/case-format.md) to the letter. :func:`prepare` compiles a snapshot once
+into a :class:`ScheduleModel`; the model re-schedules what-ifs (longer durations, later
+start bounds, added activities and links) without touching the case tables again, which is
+what the delay methods do hundreds of times.
+
+How time is held
+----------------
+Each activity's times are work-day *boundaries* on its own calendar: boundary ``k`` is the
+start of work day ``k`` and the end of work day ``k - 1``. A task of duration ``d`` that
+starts on day ``s`` has early start ``ES = s`` and early finish ``EF = s + d``; its finish
+date is the date of day ``EF - 1``. A milestone sits on one boundary: a start milestone is
+dated by the day it precedes (``date_of(b)``), a finish milestone by the day it follows
+(``date_of(b - 1)``). For every point of an activity we therefore know whether it is read
+as a *start* (the start of its date) or a *finish* (the end of its date); a link between
+different calendars goes through that date (rule 2 of the format).
+
+The two passes over the logic run as compiled loops over arrays in topological order
+(:mod:`delay._kernels`); everything else is whole-array numpy. No Python object is made per
+activity.
+
+References
+----------
+J. E. Kelley and M. R. Walker, "Critical-path planning and scheduling", Proceedings of the
+Eastern Joint Computer Conference, 1959 (the forward and backward passes). J. W. Fondahl,
+"A non-computer approach to the critical path method for the construction industry",
+Stanford University, 1961 (precedence relationships with lags).
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import datetime as dt
+import weakref
+from dataclasses import dataclass, field
+from functools import cached_property
+from typing import Mapping, Sequence
+
+import numpy as np
+import pandas as pd
+
+from .calendars import CalendarSet, build_calendars, to_days
+from .errors import CaseError, Problem
+from .model import Case, ScheduleSettings, Snapshot
+from .network import LINK_CODES, Network, compile_network
+
+__all__ = [
+    "schedule",
+    "prepare",
+    "calendars_of",
+    "ScheduleModel",
+    "ScheduleResult",
+    "NEAR_CRITICAL_DAYS",
+    "NOT_STARTED",
+    "IN_PROGRESS",
+    "COMPLETE",
+]
+
+#: Total float (work days) at or below which an activity is near-critical.
+NEAR_CRITICAL_DAYS = 10
+
+NOT_STARTED, IN_PROGRESS, COMPLETE = 0, 1, 2
+STATUS_NAMES = np.array(["not_started", "in_progress", "complete"], dtype=object)
+TASK, START_MILESTONE, FINISH_MILESTONE = 0, 1, 2
+NO_CONSTRAINT, EARLIEST_START, LATEST_FINISH, FIXED_START, FIXED_FINISH = 0, 1, 2, 3, 4
+CONSTRAINT_CODES = {"": 0, "earliest_start": 1, "latest_finish": 2, "fixed_start": 3, "fixed_finish": 4}
+KIND_CODES = {"task": TASK, "start_milestone": START_MILESTONE, "finish_milestone": FINISH_MILESTONE}
+
+_FAR = np.int64(1) << 40  # beyond any boundary; "no bound"
+NO_DAY = np.iinfo(np.int64).min  # "no date" in day-number arrays
+
+
+def _days_or_none(column: pd.Series) -> np.ndarray:
+    values = column.to_numpy(dtype="datetime64[D]", na_value=np.datetime64("NaT"))
+    days = values.astype(np.int64)
+    days[np.isnat(values)] = NO_DAY
+    return days
+
+
+@dataclass(frozen=True, eq=False)
+class ScheduleModel:
+    """One snapshot compiled for scheduling; immutable, cheap to vary.
+
+    Per-activity arrays have shape ``(n,)`` in the network's activity order. Day numbers are
+    ``int64`` days since 1970-01-01, :data:`NO_DAY` where there is no date.
+
+    Use :meth:`run` to schedule it, :meth:`what_if` for a variant.
+    """
+
+    network: Network
+    calendars: CalendarSet
+    names: np.ndarray
+    calendar: np.ndarray
+    duration: np.ndarray  # planned (original) duration, work days
+    remaining: np.ndarray  # float64, NaN when not given
+    actual_start: np.ndarray  # day numbers
+    actual_finish: np.ndarray
+    kind: np.ndarray  # int8: task, start milestone, finish milestone (as given)
+    constraint: np.ndarray  # int8 constraint code
+    constraint_day: np.ndarray
+    start_bound: np.ndarray  # extra "no earlier than" day (a what-if hold), NO_DAY when none
+    data_day: int
+    contract_completion_day: int
+    settings: ScheduleSettings
+    label: str = ""
+    link_order: np.ndarray | None = None  # input row of each link (for tie-breaks)
+
+    # -- variants ------------------------------------------------------------------------
+    def what_if(
+        self,
+        *,
+        extend: Mapping[str, int] | None = None,
+        start_no_earlier: Mapping[str, object] | None = None,
+        add_activities: pd.DataFrame | None = None,
+        add_links: pd.DataFrame | None = None,
+        settings: ScheduleSettings | None = None,
+    ) -> "ScheduleModel":
+        """A variant of this model.
+
+        Parameters
+        ----------
+        extend:
+            Work days added to activities' durations (to the remaining duration of a
+            started or re-estimated activity), by id.
+        start_no_earlier:
+            A date before which the activity may not start, by id (a hold).
+        add_activities:
+            New activities: columns ``id``, ``name``, ``duration`` and optionally
+            ``calendar`` (default calendar when absent or blank) and ``start_no_earlier``.
+        add_links:
+            New links: ``pred``, ``succ``, ``type`` (default FS), ``lag`` (default 0); ids
+            may name existing or added activities.
+        settings:
+            Other scheduling settings.
+
+        Returns
+        -------
+        ScheduleModel
+
+        Raises
+        ------
+        KeyError
+            For an id that is in neither the model nor ``add_activities``.
+        CaseError
+            When added links close a logic loop.
+        """
+        changes: dict[str, object] = {}
+        net = self.network
+        arrays = {
+            name: getattr(self, name)
+            for name in ("names", "calendar", "duration", "remaining", "actual_start", "actual_finish",
+                         "kind", "constraint", "constraint_day", "start_bound")
+        }
+        new_ids: list = []
+        if add_activities is not None and len(add_activities):
+            add = add_activities
+            new_ids = list(add["id"].astype(str))
+            cal_names = add["calendar"] if "calendar" in add else pd.Series([""] * len(add))
+            cal_numbers = [
+                self.calendars.number[c if isinstance(c, str) and c else self.settings.default_calendar]
+                for c in cal_names
+            ]
+            k = len(add)
+            bounds = np.full(k, NO_DAY, dtype=np.int64)
+            if "start_no_earlier" in add:
+                given = add["start_no_earlier"]
+                mask = given.notna().to_numpy()
+                if mask.any():
+                    bounds[mask] = to_days(given[mask].to_numpy(dtype="datetime64[D]"))
+            extra = {
+                "names": add["name"].astype(str).to_numpy(dtype=object) if "name" in add else np.asarray(new_ids, dtype=object),
+                "calendar": np.asarray(cal_numbers, dtype=np.int64),
+                "duration": add["duration"].to_numpy(dtype=np.int64),
+                "remaining": np.full(k, np.nan),
+                "actual_start": np.full(k, NO_DAY, dtype=np.int64),
+                "actual_finish": np.full(k, NO_DAY, dtype=np.int64),
+                "kind": np.zeros(k, dtype=np.int8),
+                "constraint": np.zeros(k, dtype=np.int8),
+                "constraint_day": np.full(k, NO_DAY, dtype=np.int64),
+                "start_bound": bounds,
+            }
+            arrays = {name: np.concatenate([arrays[name], extra[name]]) for name in arrays}
+        index = pd.Index(np.concatenate([net.ids, np.asarray(new_ids, dtype=object)]))
+
+        def numbers(ids) -> np.ndarray:
+            found = index.get_indexer(pd.Index([str(i) for i in ids]))
+            if (found < 0).any():
+                bad = [str(i) for i, f in zip(ids, found) if f < 0]
+                raise KeyError(f"unknown activity id(s): {', '.join(bad)}")
+            return found
+
+        if extend:
+            where = numbers(list(extend))
+            days = np.asarray(list(extend.values()), dtype=np.int64)
+            duration = arrays["duration"].copy()
+            remaining = arrays["remaining"].copy()
+            has_remaining = ~np.isnan(remaining[where])
+            np.add.at(duration, where, days)
+            np.add.at(remaining, where[has_remaining], days[has_remaining].astype(float))
+            arrays["duration"], arrays["remaining"] = duration, remaining
+        if start_no_earlier:
+            where = numbers(list(start_no_earlier))
+            days = to_days(np.asarray([np.datetime64(v, "D") for v in start_no_earlier.values()]))
+            bound = arrays["start_bound"].copy()
+            np.maximum.at(bound, where, days)
+            arrays["start_bound"] = bound
+        if new_ids or (add_links is not None and len(add_links)):
+            links = add_links if add_links is not None else pd.DataFrame(columns=["pred", "succ"])
+            pred = numbers(list(links["pred"])) if len(links) else np.empty(0, np.int64)
+            succ = numbers(list(links["succ"])) if len(links) else np.empty(0, np.int64)
+            types = links["type"].fillna("FS") if "type" in links else pd.Series(["FS"] * len(links))
+            type_codes = np.asarray([LINK_CODES[str(t).upper() or "FS"] for t in types], dtype=np.int8)
+            lags = links["lag"].fillna(0).to_numpy(dtype=np.int64) if "lag" in links else np.zeros(len(links), np.int64)
+            changes["network"] = net.extended(new_ids, pred, succ, type_codes, lags)
+            order = self.link_order if self.link_order is not None else np.arange(net.link_count)
+            changes["link_order"] = np.concatenate([order, order.size + np.arange(len(links))])
+        changes.update(arrays)
+        if settings is not None:
+            changes["settings"] = settings
+        return dataclasses.replace(self, **changes)
+
+    # -- scheduling ------------------------------------------------------------------------
+    def run(self) -> "ScheduleResult":
+        """Forward and backward passes, floats and driving links. See the module docstring."""
+        return _run(self)
+
+
+def _run(model: ScheduleModel) -> "ScheduleResult":
+    net = model.network
+    cals = model.calendars
+    settings = model.settings
+    n = net.size
+    cal = model.calendar
+    pred, succ, ltype, lag = net.pred, net.succ, net.link_type, net.lag
+    link_reads_finish = (ltype == 0) | (ltype == 2)
+    link_bounds_finish = ltype >= 2
+
+    # -- status and effective durations ---------------------------------------------------
+    has_start = model.actual_start != NO_DAY
+    has_finish = model.actual_finish != NO_DAY
+    given_milestone = model.kind != TASK
+    status = np.full(n, NOT_STARTED, dtype=np.int8)
+    status[has_start] = IN_PROGRESS
+    status[has_finish | (given_milestone & has_start)] = COMPLETE
+    complete = status == COMPLETE
+    in_progress = status == IN_PROGRESS
+    incomplete = ~complete
+
+    remaining_given = ~np.isnan(model.remaining)
+    effective = np.where(remaining_given & incomplete, np.nan_to_num(model.remaining).astype(np.int64), model.duration)
+    effective = np.where(given_milestone, 0, effective)
+    has_pred = np.bincount(succ, minlength=n) > 0
+    point = model.kind.astype(np.int8).copy()
+    zero_task = (point == TASK) & (effective == 0)
+    point[zero_task & has_pred] = FINISH_MILESTONE
+    point[zero_task & ~has_pred] = START_MILESTONE
+    start_ms = point == START_MILESTONE
+    finish_ms = point == FINISH_MILESTONE
+    milestone = start_ms | finish_ms
+    # A point is read as a finish (end of its date) when it is a task's finish or a finish
+    # milestone; as a start otherwise.
+
+    def lower_of(days: np.ndarray, where: np.ndarray) -> np.ndarray:
+        """Boundary of 'dated on or after day' for each activity's start point."""
+        bound = cals.start_index_days(cal[where], days[where])
+        return bound + finish_ms[where]
+
+    def upper_of(days: np.ndarray, where: np.ndarray) -> np.ndarray:
+        """Boundary of 'dated on or before day' for each activity's finish point."""
+        bound = cals.finish_index_days(cal[where], days[where])
+        return bound + (~start_ms[where])
+
+    # -- bounds on the start of remaining work (RS) -------------------------------------------
+    data_days = np.full(n, model.data_day, dtype=np.int64)
+    all_rows = np.arange(n)
+    lower = lower_of(data_days, all_rows)
+    upper = np.full(n, _FAR, dtype=np.int64)
+    duration = effective.astype(np.int64).copy()
+    start_read_fixed = np.zeros(n, dtype=np.int64)
+
+    # complete: actual dates as boundaries
+    rows = np.flatnonzero(complete)
+    if rows.size:
+        started = np.where(has_start[rows], model.actual_start[rows], model.actual_finish[rows])
+        finished = np.where(has_finish[rows], model.actual_finish[rows], model.actual_start[rows])
+        is_ms = milestone[rows] | given_milestone[rows]
+        ms_day = np.where(has_finish[rows], model.actual_finish[rows], model.actual_start[rows])
+        s_bound = cals.start_index_days(cal[rows], started)
+        f_bound = cals.finish_index_days(cal[rows], finished) + 1
+        ms_bound = np.where(
+            finish_ms[rows] | (model.kind[rows] == FINISH_MILESTONE),
+            cals.finish_index_days(cal[rows], ms_day) + 1,
+            cals.start_index_days(cal[rows], ms_day),
+        )
+        s_bound = np.where(is_ms, ms_bound, s_bound)
+        f_bound = np.where(is_ms, ms_bound, np.maximum(f_bound, s_bound))
+        lower[rows] = s_bound
+        upper[rows] = s_bound
+        duration[rows] = f_bound - s_bound
+    rows = np.flatnonzero(in_progress)
+    if rows.size:
+        start_read_fixed[rows] = cals.start_index_days(cal[rows], model.actual_start[rows])
+
+    not_started = status == NOT_STARTED
+    bound_rows = np.flatnonzero(not_started & (model.start_bound != NO_DAY))
+    if bound_rows.size:
+        lower[bound_rows] = np.maximum(lower[bound_rows], lower_of(model.start_bound, bound_rows))
+
+    late_upper_extra = np.full(n, _FAR, dtype=np.int64)
+    pin_late = np.full(n, -_FAR, dtype=np.int64)
+    code = model.constraint
+    rows = np.flatnonzero(not_started & (code == EARLIEST_START))
+    if rows.size:
+        lower[rows] = np.maximum(lower[rows], lower_of(model.constraint_day, rows))
+    rows = np.flatnonzero(incomplete & ((code == LATEST_FINISH) | (in_progress & (code == FIXED_FINISH))))
+    if rows.size:
+        late_upper_extra[rows] = upper_of(model.constraint_day, rows)
+    for pinned_code in (FIXED_START, FIXED_FINISH):
+        rows = np.flatnonzero(not_started & (code == pinned_code))
+        if not rows.size:
+            continue
+        if pinned_code == FIXED_START:
+            pin = lower_of(model.constraint_day, rows)
+        else:
+            pin = upper_of(model.constraint_day, rows) - duration[rows]
+        pin = np.maximum(pin, lower[rows])
+        lower[rows] = pin
+        upper[rows] = pin
+        pin_late[rows] = pin + duration[rows]
+    pinned = pin_late > -_FAR
+
+    # -- links --------------------------------------------------------------------------------
+    active = incomplete[succ]
+    if settings.progress == "progress_override":
+        active &= ~in_progress[succ]
+    cross = cal[pred] != cal[succ]
+    lag_on_pred = settings.lag_calendar == "predecessor"
+    # point type read from the predecessor: 1 finish, 0 start
+    read_as_finish = np.where(milestone[pred], finish_ms[pred], link_reads_finish).astype(np.int64)
+
+    from . import _kernels
+
+    finish_adjust = np.where(link_bounds_finish, duration[succ], 0)
+    start_read = np.empty(n, dtype=np.int64)
+    remaining_start = np.empty(n, dtype=np.int64)
+    early_finish = np.empty(n, dtype=np.int64)
+    read_as_finish = np.ascontiguousarray(read_as_finish, dtype=np.int64)
+    while True:
+        code = _kernels.forward_pass(
+            net.order, net.in_ptr, net.in_link, pred, lag, link_reads_finish, read_as_finish, cross,
+            lag_on_pred, active, finish_adjust, lower, upper, duration, in_progress, start_read_fixed,
+            cal, *cals.tables(), start_read, remaining_start, early_finish)
+        if code == _kernels.OK:
+            break
+        cals.grow(earlier=code == _kernels.TOO_EARLY)
+
+    # -- completion ---------------------------------------------------------------------------
+    finish_point = np.where(start_ms, early_finish, early_finish - 1)
+    finish_day = cals.day_of(cal, finish_point)
+    rows = np.flatnonzero(complete)
+    finish_day[rows] = np.where(has_finish[rows], model.actual_finish[rows], model.actual_start[rows])
+    completion_day = int(finish_day.max()) if n else model.data_day
+
+    # -- backward pass --------------------------------------------------------------------------
+    end_day = completion_day if settings.float_to == "project_finish" else model.contract_completion_day
+    late_upper = np.minimum(upper_of(np.full(n, end_day, dtype=np.int64), all_rows), late_upper_extra)
+    use_backward = active & ~(in_progress[pred] & ~link_reads_finish)
+    start_adjust = np.where(link_reads_finish, 0, duration[pred])
+    late_start = np.empty(n, dtype=np.int64)
+    late_finish = np.empty(n, dtype=np.int64)
+    while True:
+        code = _kernels.backward_pass(
+            net.order, net.out_ptr, net.out_link, succ, lag, link_bounds_finish, read_as_finish, cross,
+            lag_on_pred, use_backward, start_adjust, late_upper, pinned, pin_late, duration, cal,
+            *cals.tables(), late_start, late_finish)
+        if code == _kernels.OK:
+            break
+        cals.grow(earlier=code == _kernels.TOO_EARLY)
+
+    # -- floats and driving links -------------------------------------------------------------------
+    total_float = late_finish - early_finish
+    counts_for_free_float = active & ~complete[pred] & ~(in_progress[pred] & ~link_reads_finish)
+    free_float = upper_of(np.full(n, completion_day, dtype=np.int64), all_rows) - early_finish
+    relative_float = np.empty(net.link_count, dtype=np.int64)
+    while True:
+        code = _kernels.link_floats(
+            pred, succ, lag, link_reads_finish, link_bounds_finish, read_as_finish, cross, lag_on_pred,
+            active, counts_for_free_float, start_read, remaining_start, early_finish, cal, *cals.tables(),
+            relative_float, free_float)
+        if code == _kernels.OK:
+            break
+        cals.grow(earlier=code == _kernels.TOO_EARLY)
+    free_float = np.maximum(free_float, 0)
+    driving_link = active & (relative_float == 0)
+
+    return ScheduleResult(
+        model=model,
+        status=status,
+        point=point,
+        duration=duration,
+        early_start_read=start_read,
+        remaining_start=remaining_start,
+        early_finish=early_finish,
+        late_start=late_start,
+        late_finish=late_finish,
+        total_float=total_float,
+        free_float=free_float,
+        relative_float=relative_float,
+        driving_link=driving_link,
+        completion_day=completion_day,
+        finish_day=finish_day,
+    )
+
+
+@dataclass(frozen=True, eq=False)
+class ScheduleResult:
+    """Dates and floats of one scheduled snapshot.
+
+    The arrays are in the network's activity order; boundaries are per the module
+    docstring. Most users want :attr:`activities`, :attr:`links`, :attr:`completion`,
+    :meth:`driving_path` and :meth:`longest_path`.
+    """
+
+    model: ScheduleModel = field(repr=False)
+    status: np.ndarray = field(repr=False)
+    point: np.ndarray = field(repr=False)
+    duration: np.ndarray = field(repr=False)
+    early_start_read: np.ndarray = field(repr=False)
+    remaining_start: np.ndarray = field(repr=False)
+    early_finish: np.ndarray = field(repr=False)
+    late_start: np.ndarray = field(repr=False)
+    late_finish: np.ndarray = field(repr=False)
+    total_float: np.ndarray = field(repr=False)
+    free_float: np.ndarray = field(repr=False)
+    relative_float: np.ndarray = field(repr=False)
+    driving_link: np.ndarray = field(repr=False)
+    completion_day: int = 0
+    finish_day: np.ndarray = field(default=None, repr=False)
+    near_critical_days: int = NEAR_CRITICAL_DAYS
+
+    # -- headline --------------------------------------------------------------------------
+    @property
+    def completion(self) -> dt.date:
+        """The latest early finish date over all activities."""
+        return _date(self.completion_day)
+
+    @property
+    def data_date(self) -> dt.date:
+        return _date(self.model.data_day)
+
+    @property
+    def settings(self) -> ScheduleSettings:
+        return self.model.settings
+
+    @property
+    def snapshot(self) -> str:
+        return self.model.label
+
+    @property
+    def ids(self) -> np.ndarray:
+        return self.model.network.ids
+
+    @cached_property
+    def critical(self) -> np.ndarray:
+        """Incomplete activities with total float <= 0."""
+        return (self.status != COMPLETE) & (self.total_float <= 0)
+
+    # -- dates ------------------------------------------------------------------------------
+    @cached_property
+    def _days(self) -> dict[str, np.ndarray]:
+        model = self.model
+        cals = model.calendars
+        cal = model.calendar
+        start_ms = self.point == START_MILESTONE
+        finish_ms = self.point == FINISH_MILESTONE
+        complete = self.status == COMPLETE
+        in_progress = self.status == IN_PROGRESS
+
+        def start_days(start, finish):
+            day_start = cals.day_of(cal, start)
+            day_finish_ms = cals.day_of(cal, finish - 1)
+            return np.where(finish_ms, day_finish_ms, day_start)
+
+        def finish_days(start, finish):
+            return np.where(start_ms, cals.day_of(cal, start), cals.day_of(cal, finish - 1))
+
+        early_start = start_days(self.remaining_start, self.early_finish)
+        early_finish = finish_days(self.remaining_start, self.early_finish)
+        late_start = start_days(self.late_start, self.late_finish)
+        late_finish = finish_days(self.late_start, self.late_finish)
+        actual_start = model.actual_start
+        actual_finish = model.actual_finish
+        early_start = np.where(in_progress, actual_start, early_start)
+        late_start = np.where(in_progress, actual_start, late_start)
+        one_date = np.where(actual_finish != NO_DAY, actual_finish, actual_start)
+        milestone_done = complete & (start_ms | finish_ms | (model.kind != TASK))
+        early_start = np.where(complete, np.where(milestone_done, one_date, actual_start), early_start)
+        early_finish = np.where(complete, np.where(milestone_done, one_date, actual_finish), early_finish)
+        late_start = np.where(complete, NO_DAY, late_start)
+        late_finish = np.where(complete, NO_DAY, late_finish)
+        return {
+            "early_start": early_start,
+            "early_finish": early_finish,
+            "late_start": late_start,
+            "late_finish": late_finish,
+        }
+
+    def day_array(self, name: str) -> np.ndarray:
+        """Day numbers of one date column (``early_start`` ...); :data:`NO_DAY` for none."""
+        return self._days[name]
+
+    @cached_property
+    def activities(self) -> pd.DataFrame:
+        """One row per activity, network order.
+
+        Columns: ``id, name, calendar, status, duration, early_start, early_finish,
+        late_start, late_finish, total_float, free_float, critical, near_critical,
+        driving``. Dates are ``datetime64``; floats are nullable integers (``<NA>`` for a
+        complete activity); ``duration`` is the duration scheduled (remaining work for an
+        activity in progress).
+        """
+        complete = self.status == COMPLETE
+        on_path = np.zeros(self.ids.size, dtype=bool)
+        on_path[self._driving_numbers] = True
+        frame = pd.DataFrame(
+            {
+                "id": self.ids,
+                "name": self.model.names,
+                "calendar": np.asarray(self.model.calendars.names, dtype=object)[self.model.calendar],
+                "status": STATUS_NAMES[self.status],
+                "duration": self.duration,
+            }
+        )
+        for name, days in self._days.items():
+            frame[name] = _to_datetime(days)
+        frame["total_float"] = pd.array(np.where(complete, 0, self.total_float), dtype="Int64")
+        frame.loc[complete, "total_float"] = pd.NA
+        frame["free_float"] = pd.array(np.where(complete, 0, self.free_float), dtype="Int64")
+        frame.loc[complete, "free_float"] = pd.NA
+        frame["critical"] = self.critical
+        frame["near_critical"] = (~complete) & ~self.critical & (self.total_float <= self.near_critical_days)
+        frame["driving"] = on_path
+        return frame
+
+    @cached_property
+    def links(self) -> pd.DataFrame:
+        """One row per link: ``pred, succ, type, lag, relative_float, driving`` (relative
+        float in work days of the successor's calendar; ``<NA>`` for an ignored link)."""
+        net = self.model.network
+        ignored = self.relative_float >= _FAR
+        relative = pd.array(np.where(ignored, 0, self.relative_float), dtype="Int64")
+        relative[ignored] = pd.NA
+        return pd.DataFrame(
+            {
+                "pred": net.ids[net.pred],
+                "succ": net.ids[net.succ],
+                "type": np.asarray(["FS", "SS", "FF", "SF"], dtype=object)[net.link_type],
+                "lag": net.lag,
+                "relative_float": relative,
+                "driving": self.driving_link,
+            }
+        )
+
+    # -- paths --------------------------------------------------------------------------------
+    @cached_property
+    def _traceable_links(self) -> np.ndarray:
+        """Driving links a path from the data date can run through: the predecessor is not
+        complete, and the link does not read the actual (past) start of one in progress."""
+        net = self.model.network
+        reads_start = (net.link_type == 1) | (net.link_type == 3)
+        status = self.status[net.pred]
+        return self.driving_link & (status == NOT_STARTED) | self.driving_link & (status == IN_PROGRESS) & ~reads_start
+
+    @cached_property
+    def _driving_numbers(self) -> np.ndarray:
+        net = self.model.network
+        incomplete = self.status != COMPLETE
+        seeds = np.flatnonzero(incomplete & (self.finish_day == self.completion_day))
+        on = np.zeros(net.size, dtype=bool)
+        on[seeds] = True
+        from ._kernels import mark_upstream
+
+        usable = self._traceable_links
+        mark_upstream(net.order, net.in_ptr, net.in_link, net.pred, usable, on)
+        numbers = np.flatnonzero(on)
+        return numbers[np.argsort(net.rank[numbers])]
+
+    def driving_path(self) -> list[str]:
+        """Every activity on a chain of driving links (relative float 0) from the data date to
+        the completion, in logic order. Where several chains drive at once, all are listed."""
+        return [str(i) for i in self.ids[self._driving_numbers]]
+
+    def longest_path(self) -> list[str]:
+        """One chain of driving links from the data date to the completion.
+
+        Walking back from the activity that finishes at completion (the first in input order
+        where several do), each step takes the driving predecessor by least relative float,
+        then an FS link, then input order.
+        """
+        net = self.model.network
+        incomplete = self.status != COMPLETE
+        seeds = np.flatnonzero(incomplete & (self.finish_day == self.completion_day))
+        if not seeds.size:
+            return []
+        order = self.model.link_order if self.model.link_order is not None else np.arange(net.link_count)
+        candidates = np.flatnonzero(self._traceable_links)
+        by_succ: dict[int, list[int]] = {}
+        for link in candidates[np.lexsort((order[candidates], net.link_type[candidates] != 0))]:
+            by_succ.setdefault(int(net.succ[link]), []).append(int(link))
+        chain = [int(seeds[np.argmax(net.rank[seeds])])]
+        seen = {chain[0]}
+        while True:
+            options = by_succ.get(chain[-1], [])
+            if not options:
+                break
+            nxt = int(net.pred[options[0]])
+            if nxt in seen:
+                break
+            chain.append(nxt)
+            seen.add(nxt)
+        return [str(self.ids[i]) for i in reversed(chain)]
+
+    def to_json(self) -> dict:
+        """The JSON form of the ``delay schedule`` command."""
+        frame = self.activities
+        rows = []
+        for record in frame.itertuples(index=False):
+            rows.append(
+                {
+                    "id": record.id,
+                    "early_start": _iso(record.early_start),
+                    "early_finish": _iso(record.early_finish),
+                    "late_start": _iso(record.late_start),
+                    "late_finish": _iso(record.late_finish),
+                    "total_float": None if pd.isna(record.total_float) else int(record.total_float),
+                    "free_float": None if pd.isna(record.free_float) else int(record.free_float),
+                    "critical": bool(record.critical),
+                }
+            )
+        return {
+            "snapshot": self.snapshot,
+            "data_date": self.data_date.isoformat(),
+            "completion": self.completion.isoformat(),
+            "activities": rows,
+        }
+
+
+def _date(day: int) -> dt.date:
+    return dt.date(1970, 1, 1) + dt.timedelta(days=int(day))
+
+
+def _to_datetime(days: np.ndarray) -> np.ndarray:
+    values = np.asarray(days, dtype=np.int64).astype("datetime64[D]")
+    values[np.asarray(days) == NO_DAY] = np.datetime64("NaT")
+    return values.astype("datetime64[s]")
+
+
+def _iso(value) -> str | None:
+    return None if pd.isna(value) else pd.Timestamp(value).date().isoformat()
+
+
+# -- from the case ----------------------------------------------------------------------------
+def prepare(case: Case, snapshot: str | Snapshot = "baseline", settings: ScheduleSettings | None = None,
+            calendars: CalendarSet | None = None) -> ScheduleModel:
+    """Compile one snapshot of a case for scheduling.
+
+    Parameters
+    ----------
+    case: the loaded case.
+    snapshot: a folder name or label (``"asbuilt"`` for the as-built snapshot), or a Snapshot.
+    settings: scheduling settings overriding the case's (``dataclasses.replace`` them).
+    calendars: a calendar set to share between snapshots of the same case.
+
+    Returns
+    -------
+    ScheduleModel
+
+    Raises
+    ------
+    CaseError
+        For an unknown snapshot or a logic loop.
+    """
+    snap = snapshot if isinstance(snapshot, Snapshot) else _find(case, snapshot)
+    settings = settings or case.settings.schedule
+    calendars = calendars or calendars_of(case)
+    activities = snap.activities
+    links = snap.links
+    source = f"snapshots/{snap.folder}/links.csv" if snap.kind != "asbuilt" else "asbuilt.csv"
+    network = compile_network(activities, links, source=source, link_numbers=snap.link_numbers)
+    cal = pd.Index(calendars.names).get_indexer(activities["calendar"]).astype(np.int64)
+    if (cal < 0).any():
+        row = int(np.flatnonzero(cal < 0)[0])
+        raise CaseError(Problem(file=f"snapshots/{snap.folder}/activities.csv", row=row + 2, column="calendar",
+                                message=f"unknown calendar '{activities['calendar'].iloc[row]}'",
+                                fix="define it in calendars.csv"))
+    kind = np.maximum(pd.Index(list(KIND_CODES)).get_indexer(activities["kind"]), 0).astype(np.int8)
+    constraint = np.maximum(pd.Index(list(CONSTRAINT_CODES)).get_indexer(activities["constraint"].fillna("")), 0
+                            ).astype(np.int8)
+    return ScheduleModel(
+        network=network,
+        calendars=calendars,
+        names=activities["name"].to_numpy(dtype=object),
+        calendar=cal,
+        duration=activities["duration"].to_numpy(dtype=np.int64),
+        remaining=activities["remaining"].to_numpy(dtype=np.float64),
+        actual_start=_days_or_none(activities["actual_start"]),
+        actual_finish=_days_or_none(activities["actual_finish"]),
+        kind=kind,
+        constraint=constraint,
+        constraint_day=_days_or_none(activities["constraint_date"]),
+        start_bound=np.full(len(activities), NO_DAY, dtype=np.int64),
+        data_day=int(to_days(np.datetime64(snap.data_date, "D"))),
+        contract_completion_day=int(to_days(np.datetime64(case.settings.project.contract_completion, "D"))),
+        settings=settings,
+        label=snap.label,
+        link_order=np.arange(len(links)),
+    )
+
+
+_CALENDARS: "weakref.WeakKeyDictionary[Case, CalendarSet]" = weakref.WeakKeyDictionary()
+
+
+def calendars_of(case: Case) -> CalendarSet:
+    """The case's calendars as one :class:`CalendarSet`, built once per loaded case."""
+    found = _CALENDARS.get(case)
+    if found is None:
+        found = _CALENDARS[case] = CalendarSet(build_calendars(case))
+    return found
+
+
+def _find(case: Case, name: str) -> Snapshot:
+    try:
+        return case.snapshot(name)
+    except KeyError as error:
+        raise CaseError(Problem(file="snapshots/", message=str(error.args[0]),
+                                fix="name a folder under snapshots/ or a snapshot's label")) from None
+
+
+def schedule(case: Case, snapshot: str | Snapshot = "baseline", settings: ScheduleSettings | None = None) -> ScheduleResult:
+    """Schedule one snapshot of a case by the critical path method.
+
+    Parameters
+    ----------
+    case:
+        A loaded :class:`delay.model.Case`.
+    snapshot:
+        Folder name under ``snapshots/`` or label; ``"asbuilt"`` for the as-built record.
+    settings:
+        A :class:`delay.model.ScheduleSettings` overriding the case's, for example
+        ``dataclasses.replace(case.settings.schedule, progress="progress_override")``.
+
+    Returns
+    -------
+    ScheduleResult
+        ``.activities`` (DataFrame of dates and floats), ``.completion``, ``.data_date``,
+        ``.settings``, ``.driving_path()``, ``.longest_path()``.
+
+    Raises
+    ------
+    CaseError
+        Unknown snapshot, logic loop.
+
+    Examples
+    --------
+    >>> from delay.case import load_case                      # doctest: +SKIP
+    >>> result = schedule(load_case("case_demo"), "baseline")  # doctest: +SKIP
+    >>> result.completion                                      # doctest: +SKIP
+
+    References
+    ----------
+    Kelley and Walker (1959); Fondahl (1961); the scheduling rules of case-format v1.
+    """
+    return prepare(case, snapshot, settings).run()

@@ -1,0 +1,205 @@
+"""A programme's logic compiled to integer arrays.
+
+Activities are numbered ``0 .. n-1`` in input order; links keep their input order too.
+:class:`Network` holds the link arrays (``pred``, ``succ``, ``link_type``, ``lag``), the
+compressed in- and out-adjacency (CSR) and a topological order of the activities, which is
+what the CPM passes walk: every predecessor of an activity comes before it.
+
+Link types are coded ``FS = 0``, ``SS = 1``, ``FF = 2``, ``SF = 3``: bit 1 of the code says the
+link bounds the successor's finish (FF, SF), and ``code in (0, 2)`` says it reads the
+predecessor's finish (FS, FF).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+import pandas as pd
+
+from .errors import CaseError, Problem
+from .model import LINK_TYPES
+
+__all__ = [
+    "Network",
+    "compile_network",
+    "build_network",
+    "LINK_CODES",
+    "reads_finish",
+    "bounds_finish",
+]
+
+LINK_CODES = {name: code for code, name in enumerate(LINK_TYPES)}  # FS 0, SS 1, FF 2, SF 3
+
+
+def reads_finish(link_type: np.ndarray) -> np.ndarray:
+    """Whether each link reads its predecessor's finish (FS, FF)."""
+    return (np.asarray(link_type) == 0) | (np.asarray(link_type) == 2)
+
+
+def bounds_finish(link_type: np.ndarray) -> np.ndarray:
+    """Whether each link bounds its successor's finish (FF, SF)."""
+    return np.asarray(link_type) >= 2
+
+
+@dataclass(frozen=True, eq=False)
+class Network:
+    """Activities and links as arrays.
+
+    Attributes
+    ----------
+    ids: ``object`` array of activity ids, shape ``(n,)``.
+    pred, succ: ``int64`` arrays, shape ``(m,)``: activity numbers of each link's ends.
+    link_type: ``int8`` array, shape ``(m,)``: FS 0, SS 1, FF 2, SF 3.
+    lag: ``int64`` array, shape ``(m,)``: lag in work days (negative: a lead).
+    order: ``int64`` array, shape ``(n,)``: the activities in a topological order.
+    rank: ``int64`` array, shape ``(n,)``: each activity's position in ``order``.
+    in_ptr, in_link: CSR of links by successor: the links into activity ``v`` are
+        ``in_link[in_ptr[v]:in_ptr[v + 1]]``, in input order.
+    out_ptr, out_link: the same by predecessor.
+    """
+
+    ids: np.ndarray
+    pred: np.ndarray
+    succ: np.ndarray
+    link_type: np.ndarray
+    lag: np.ndarray
+    order: np.ndarray
+    rank: np.ndarray
+    in_ptr: np.ndarray
+    in_link: np.ndarray
+    out_ptr: np.ndarray
+    out_link: np.ndarray
+
+    @property
+    def size(self) -> int:
+        return int(self.ids.size)
+
+    @property
+    def link_count(self) -> int:
+        return int(self.pred.size)
+
+    def index_of(self, ids) -> np.ndarray:
+        """Activity numbers of ids; ``-1`` for an unknown id."""
+        return pd.Index(self.ids).get_indexer(pd.Index(list(ids) if not isinstance(ids, str) else [ids]))
+
+    def predecessor_count(self) -> np.ndarray:
+        return np.bincount(self.succ, minlength=self.size)
+
+    def successor_count(self) -> np.ndarray:
+        return np.bincount(self.pred, minlength=self.size)
+
+    def extended(self, new_ids=(), pred=(), succ=(), link_type=(), lag=(), source="fragnet"):
+        """A new network with activities and links added (a fragnet, an added link).
+
+        ``pred`` and ``succ`` are activity numbers in the extended numbering (existing
+        activities keep theirs; new ones follow in ``new_ids`` order).
+
+        Raises
+        ------
+        CaseError
+            When the additions close a logic loop; the message names the activities in it.
+        """
+        ids = np.concatenate([self.ids, np.asarray(list(new_ids), dtype=object)])
+        all_pred = np.concatenate([self.pred, np.asarray(pred, dtype=np.int64)])
+        all_succ = np.concatenate([self.succ, np.asarray(succ, dtype=np.int64)])
+        all_type = np.concatenate([self.link_type, np.asarray(link_type, dtype=np.int8)])
+        all_lag = np.concatenate([self.lag, np.asarray(lag, dtype=np.int64)])
+        return build_network(ids, all_pred, all_succ, all_type, all_lag, source)
+
+
+def _loop_problem(ids, pred, succ, source) -> Problem:
+    from .graph import find_loop
+
+    loop = find_loop(len(ids), pred, succ) or []
+    names = [str(ids[i]) for i in loop]
+    chain = " -> ".join(names + names[:1])
+    return Problem(
+        file=source,
+        message=f"logic loop: {chain}",
+        fix="remove or reverse one of the links in the loop",
+    )
+
+
+def build_network(ids, pred, succ, link_type, lag, source="links.csv") -> Network:
+    """A Network from arrays (activity numbers, link type codes, lags).
+
+    Raises
+    ------
+    CaseError
+        When the links form a loop; the message names every activity in it, in order.
+    """
+    from ._kernels import compressed_rows, topological_order
+
+    n = len(ids)
+    pred = np.ascontiguousarray(pred, dtype=np.int64)
+    succ = np.ascontiguousarray(succ, dtype=np.int64)
+    in_ptr, in_link = compressed_rows(n, succ)
+    out_ptr, out_link = compressed_rows(n, pred)
+    order, placed = topological_order(n, out_ptr, out_link, succ)
+    if placed < n:
+        raise CaseError(_loop_problem(ids, pred, succ, source))
+    rank = np.empty(n, dtype=np.int64)
+    rank[order] = np.arange(n)
+    return Network(ids=ids, pred=pred, succ=succ, link_type=np.asarray(link_type, dtype=np.int8),
+                   lag=np.ascontiguousarray(lag, dtype=np.int64), order=order, rank=rank,
+                   in_ptr=in_ptr, in_link=in_link, out_ptr=out_ptr, out_link=out_link)
+
+
+def compile_network(activities: pd.DataFrame, links: pd.DataFrame, source: str = "links.csv",
+                    link_numbers: tuple[np.ndarray, np.ndarray] | None = None) -> Network:
+    """Compile an activities table and a links table (case-format columns) to a Network.
+
+    Parameters
+    ----------
+    activities: DataFrame with column ``id``.
+    links: DataFrame with columns ``pred``, ``succ``, ``type``, ``lag``; ids must be known
+        (the case loader has checked them).
+    source: file named in the message when the logic has a loop.
+    link_numbers: the activity numbers of each link's ends when already known
+        (:attr:`delay.model.Snapshot.link_numbers`).
+
+    Returns
+    -------
+    Network
+
+    Raises
+    ------
+    CaseError
+        When the links form a loop (the message names every activity in it, in order), or
+        name an activity that is not in ``activities``.
+
+    Examples
+    --------
+    >>> acts = pd.DataFrame({"id": ["A", "B"]})
+    >>> net = compile_network(acts, pd.DataFrame({"pred": ["A"], "succ": ["B"], "type": ["FS"], "lag": [0]}))
+    >>> net.order.tolist()
+    [0, 1]
+    """
+    ids = activities["id"].to_numpy(dtype=object)
+    if link_numbers is None:
+        index = pd.Index(ids)
+        link_numbers = (index.get_indexer(links["pred"]), index.get_indexer(links["succ"]))
+    pred = np.asarray(link_numbers[0], dtype=np.int64)
+    succ = np.asarray(link_numbers[1], dtype=np.int64)
+    unknown = np.flatnonzero((pred < 0) | (succ < 0))
+    if unknown.size:
+        row = int(unknown[0])
+        raise CaseError(
+            Problem(
+                file=source,
+                row=row + 2,
+                column="pred" if pred[row] < 0 else "succ",
+                message="link names an activity that is not in the programme",
+                fix="correct the activity id or add the activity",
+            )
+        )
+    codes = pd.Index(LINK_TYPES).get_indexer(links["type"])
+    if (codes < 0).any():
+        row = int(np.flatnonzero(codes < 0)[0])
+        raise CaseError(Problem(file=source, row=row + 2, column="type",
+                                message=f"unknown link type '{links['type'].iloc[row]}'",
+                                fix="use FS, SS, FF or SF"))
+    link_type = codes.astype(np.int8)
+    lag = links["lag"].to_numpy(dtype=np.int64)
+    return build_network(ids, pred, succ, link_type, lag, source)
