@@ -1,0 +1,284 @@
+"""The ``delay`` command: thin commands over the public API.
+
+Every command that prints a table takes ``--format``; ``json`` gives the machine form.
+Input problems print one plain line each (file, row, column, what is wrong, what to do) and
+exit with status 2, never with a traceback; outputs are written under a temporary name and
+moved into place, so a failed run leaves nothing half-written.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import functools
+import io
+import json
+import sys
+from pathlib import Path
+
+import click
+
+from . import __version__
+from .errors import CaseError
+
+EXIT_INPUT = 2
+
+FORMAT = click.Choice(["table", "csv", "json"])
+
+
+def _fail(lines: list[str]) -> None:
+    for line in lines:
+        click.echo(line, err=True)
+    sys.exit(EXIT_INPUT)
+
+
+def reports_input_errors(command):
+    """Turn input problems into plain lines on stderr and exit status 2."""
+
+    @functools.wraps(command)
+    def wrapper(*args, **kwargs):
+        try:
+            return command(*args, **kwargs)
+        except CaseError as error:
+            lines = [f"error: {problem}" for problem in error.problems]
+            lines.append(f"{len(error.problems)} problem(s) found; nothing was written.")
+            _fail(lines)
+        except FileExistsError as error:
+            _fail([f"error: {error.args[0] if error.args else error} - choose an empty or new folder"])
+
+    return wrapper
+
+
+def _console():
+    from rich.console import Console
+
+    console = Console(soft_wrap=False)
+    if not console.is_terminal:
+        console = Console(soft_wrap=False, width=200)
+    return console
+
+
+def _print_table(title: str, columns: list[str], rows: list[list], out=None) -> None:
+    """A table that fits the terminal (rich); plain text beyond a few thousand rows."""
+    if len(rows) > 3000:
+        widths = [max(len(c), *(len(str(r[i])) for r in rows)) for i, c in enumerate(columns)]
+        click.echo(title)
+        click.echo("  ".join(c.ljust(w) for c, w in zip(columns, widths)))
+        for row in rows:
+            click.echo("  ".join(str(v).ljust(w) for v, w in zip(row, widths)))
+        return
+    from rich.table import Table
+
+    table = Table(title=title, title_justify="left", header_style="bold")
+    for column in columns:
+        wide = column in ("name", "title", "label")
+        table.add_column(column, overflow="ellipsis" if wide else "fold", max_width=40 if wide else None,
+                         no_wrap=not wide)
+    for row in rows:
+        table.add_row(*("" if v is None else str(v) for v in row))
+    (out or _console()).print(table)
+
+
+def _load(case_path: str):
+    from .case import load_case
+
+    return load_case(Path(case_path))
+
+
+@click.group(context_settings={"help_option_names": ["-h", "--help"], "max_content_width": 100})
+@click.version_option(__version__, prog_name="delay")
+def cli():
+    """Forensic delay analysis of construction programmes.
+
+    Point the toolkit at a case folder (or a case.xlsx workbook) holding the baseline
+    programme, its progress updates, the as-built record, the delay event register and,
+    optionally, model elements. It checks the records, schedules every programme with its own
+    critical path method engine and applies recognised delay-analysis methods.
+
+    \b
+    Start here:
+      delay new my_case          write an empty case to fill in
+      delay validate my_case     check it and summarise what it holds
+      delay schedule my_case     early and late dates, floats, driving path
+      delay demo                 run everything on the bundled invented project
+
+    Results depend on the records and on the method chosen; they are not legal advice. The
+    contract, the applicable law and the analyst's professional judgement govern.
+    """
+
+
+@cli.command()
+@click.argument("case", type=click.Path(exists=True, file_okay=True, dir_okay=True))
+@click.option("--format", "output_format", type=click.Choice(["table", "json"]), default="table",
+              show_default=True, help="How to print the summary.")
+@reports_input_errors
+def validate(case, output_format):
+    """Check a case and summarise it.
+
+    Reads every file of the case folder (or the case.xlsx workbook), checks it against the
+    case format and prints what it holds: snapshots with their data dates and activity
+    counts, events, elements. Exit status 0 when the case is valid; 2 with one line per
+    problem when it is not.
+    """
+    from .case import summarise
+
+    summary = summarise(_load(case))
+    if output_format == "json":
+        click.echo(json.dumps(summary, indent=2))
+        return
+    _print_summary(summary)
+    click.echo("The case is valid.")
+
+
+def _print_summary(summary: dict) -> None:
+    click.echo(f"Project: {summary.get('project', '')}")
+    click.echo(f"Contract: {summary.get('contract_start', '')} to {summary.get('contract_completion', '')}")
+    snapshots = list(summary.get("snapshots", []))
+    if summary.get("asbuilt_snapshot"):
+        snapshots.append(summary["asbuilt_snapshot"])
+    rows = [[s.get("folder"), s.get("label"), s.get("kind"), s.get("data_date"), s.get("activities"), s.get("links")]
+            for s in snapshots]
+    _print_table("Snapshots", ["folder", "label", "kind", "data date", "activities", "links"], rows)
+    counts = [[key.replace("_", " "), value] for key, value in summary.items()
+              if isinstance(value, int) and not isinstance(value, bool)]
+    if counts:
+        _print_table("Records", ["record", "count"], counts)
+
+
+@cli.command()
+@click.argument("directory", type=click.Path(file_okay=False))
+@reports_input_errors
+def new(directory):
+    """Write an empty, valid case skeleton into DIRECTORY.
+
+    Every file of the case format is written with its header row, a baseline snapshot with
+    one start milestone, a case.toml with every setting explained, and a text file that
+    explains each column. DIRECTORY must be new or empty.
+    """
+    from .skeleton import write_skeleton
+
+    path = write_skeleton(Path(directory))
+    click.echo(f"Wrote an empty case to {path}. Fill in the CSV files, then run: delay validate {path}")
+
+
+def _schedule_settings(case, progress, float_to, lag_calendar):
+    settings = case.settings.schedule
+    changes = {k: v for k, v in {"progress": progress, "float_to": float_to, "lag_calendar": lag_calendar}.items() if v}
+    return dataclasses.replace(settings, **changes) if changes else settings
+
+
+@cli.command()
+@click.argument("case", type=click.Path(exists=True))
+@click.option("--snapshot", default="baseline", show_default=True,
+              help="Folder name under snapshots/ or label; 'asbuilt' for the as-built record.")
+@click.option("--format", "output_format", type=FORMAT, default="table", show_default=True)
+@click.option("--progress", type=click.Choice(["retained_logic", "progress_override"]),
+              help="Override how out-of-sequence progress is scheduled.")
+@click.option("--float-to", type=click.Choice(["project_finish", "contract_completion"]),
+              help="Override where the backward pass starts.")
+@click.option("--lag-calendar", type=click.Choice(["successor", "predecessor"]),
+              help="Override whose calendar counts a lag.")
+@reports_input_errors
+def schedule(case, snapshot, output_format, progress, float_to, lag_calendar):
+    """Schedule one snapshot by the critical path method.
+
+    Prints early and late start and finish, total and free float and the critical flag of
+    every activity, the driving path first, then the completion date. Floats are in work
+    days of the activity's own calendar; complete activities have no float.
+    """
+    from .cpm import schedule as run_schedule
+
+    loaded = _load(case)
+    result = run_schedule(loaded, snapshot, _schedule_settings(loaded, progress, float_to, lag_calendar))
+    if output_format == "json":
+        click.echo(json.dumps(result.to_json(), indent=2))
+        return
+    frame = _schedule_rows(result)
+    if output_format == "csv":
+        buffer = io.StringIO()
+        frame.to_csv(buffer, index=False, date_format="%Y-%m-%d")
+        click.echo(buffer.getvalue(), nl=False)
+        return
+    columns = ["id", "name", "status", "early_start", "early_finish", "late_start", "late_finish",
+               "total_float", "free_float", "critical", "driving"]
+    rows = [[_cell(v) for v in row] for row in frame[columns].itertuples(index=False)]
+    _print_table(f"{result.snapshot}: data date {result.data_date}, completion {result.completion}",
+                 [c.replace("_", " ") for c in columns], rows)
+    click.echo(f"Completion: {result.completion}  (driving path of {len(result.driving_path())} activities)")
+
+
+def _schedule_rows(result):
+    """The schedule table, driving path first (in logic order), then by early start."""
+    import pandas as pd
+
+    frame = result.activities
+    path = result.driving_path()
+    position = pd.Series(range(len(path)), index=path)
+    frame = frame.assign(_path=frame["id"].map(position))
+    frame = frame.sort_values(["_path", "early_start", "id"], na_position="last", kind="stable")
+    return frame.drop(columns="_path").reset_index(drop=True)
+
+
+def _cell(value):
+    import pandas as pd
+
+    if value is None or (not isinstance(value, (str, bool)) and pd.isna(value)):
+        return ""
+    if isinstance(value, pd.Timestamp):
+        return value.date().isoformat()
+    if isinstance(value, bool):
+        return "yes" if value else ""
+    return value
+
+
+@cli.command()
+@click.argument("out", type=click.Path(file_okay=False))
+@click.option("--activities", type=click.IntRange(2, 5_000_000), required=True, help="Number of activities.")
+@click.option("--links-per-activity", type=click.FloatRange(1.0, 20.0), default=2.5, show_default=True)
+@click.option("--updates", type=click.IntRange(0, 240), default=0, show_default=True,
+              help="Monthly progress updates to write (with an as-built record when > 0).")
+@click.option("--elements", type=click.IntRange(0, 5_000_000), default=0, show_default=True,
+              help="Model elements to write, linked to the activities by wbs.")
+@click.option("--seed", type=int, default=0, show_default=True, help="Random seed; same seed, same case.")
+@reports_input_errors
+def synth(out, activities, links_per_activity, updates, elements, seed):
+    """Write a valid random case of any size into OUT (for benchmarks and trying scale)."""
+    from .synth import synthesise
+
+    path = synthesise(Path(out), activities, links_per_activity, updates, seed, elements)
+    click.echo(f"Wrote a synthetic case of {activities} activities to {path}")
+
+
+def _demo_case() -> Path:
+    here = Path(__file__).resolve().parent.parent / "case_demo"
+    for candidate in (here, Path.cwd() / "case_demo"):
+        if (candidate / "case.toml").exists():
+            return candidate
+    raise click.ClickException("the demo case was not found: run from the project folder or pass --case")
+
+
+@cli.command()
+@click.option("--out", "out_dir", type=click.Path(file_okay=False), default="out/demo", show_default=True,
+              help="Folder for the outputs (replaced whole when the run succeeds).")
+@click.option("--case", "case_path", type=click.Path(exists=True), default=None,
+              help="Another case to run instead of the bundled demo.")
+@reports_input_errors
+def demo(out_dir, case_path):
+    """Run everything the toolkit can do on the bundled invented demo project.
+
+    Validates the demo case, schedules every snapshot and writes the results under
+    out/demo/ (or --out): the case summary, each snapshot's schedule as CSV and JSON, and
+    the completion date of every snapshot.
+    """
+    from .demo import run_demo
+
+    case = Path(case_path) if case_path else _demo_case()
+    written = run_demo(case, Path(out_dir), echo=click.echo)
+    click.echo(f"Wrote {len(written)} files to {out_dir}")
+
+
+def main() -> None:
+    cli(prog_name="delay")
+
+
+if __name__ == "__main__":
+    main()

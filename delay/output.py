@@ -1,0 +1,63 @@
+"""Writing outputs safely: to a temporary name first, then moved into place.
+
+A reader never sees half a file or half a folder of results, and a failure leaves what was
+there before untouched.
+"""
+
+from __future__ import annotations
+
+import contextlib
+import os
+import shutil
+import tempfile
+from pathlib import Path
+from typing import Iterator
+
+__all__ = ["write_text", "write_bytes", "replace_directory"]
+
+
+def write_bytes(path: str | Path, data: bytes) -> Path:
+    """Write ``data`` to ``path`` through a temporary file in the same folder."""
+    path = Path(path)
+    path.parent.mkdir(parents=True, exist_ok=True)
+    handle, temporary = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".part", dir=path.parent)
+    try:
+        with os.fdopen(handle, "wb") as stream:
+            stream.write(data)
+        os.replace(temporary, path)
+    except BaseException:
+        with contextlib.suppress(FileNotFoundError):
+            os.unlink(temporary)
+        raise
+    return path
+
+
+def write_text(path: str | Path, text: str) -> Path:
+    """Write UTF-8 ``text`` to ``path`` through a temporary file."""
+    return write_bytes(path, text.encode("utf-8"))
+
+
+@contextlib.contextmanager
+def replace_directory(target: str | Path) -> Iterator[Path]:
+    """Build a folder under a temporary name; on success it replaces ``target`` whole.
+
+    >>> with replace_directory("out/demo") as folder:   # doctest: +SKIP
+    ...     (folder / "summary.json").write_text("{}")
+
+    On an exception the temporary folder is removed and ``target`` is left as it was.
+    """
+    target = Path(target)
+    target.parent.mkdir(parents=True, exist_ok=True)
+    building = Path(tempfile.mkdtemp(prefix=f".{target.name}.", suffix=".part", dir=target.parent))
+    try:
+        yield building
+    except BaseException:
+        shutil.rmtree(building, ignore_errors=True)
+        raise
+    old = None
+    if target.exists():
+        old = target.parent / f".{target.name}.old-{os.getpid()}"
+        os.replace(target, old)
+    os.replace(building, target)
+    if old is not None:
+        shutil.rmtree(old, ignore_errors=True)
