@@ -1,0 +1,19 @@
+"""Commands of the ``delay`` command line, one module per capability.
+
+Each module defines click commands with the helpers of :mod:`delay.commands.common` and lists
+them in ``COMMANDS``; :mod:`delay.cli` adds every listed command to the ``delay`` group.
+"""
+
+from __future__ import annotations
+
+import importlib
+
+#: Modules under delay.commands whose COMMANDS are added to the ``delay`` group, in order.
+MODULES: tuple[str, ...] = ()
+
+
+def all_commands():
+    """Every command of every module in MODULES."""
+    for name in MODULES:
+        module = importlib.import_module(f"{__name__}.{name}")
+        yield from module.COMMANDS

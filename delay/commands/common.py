@@ -1,0 +1,79 @@
+"""What every command shares: input errors as plain lines, tables that fit, case loading."""
+
+from __future__ import annotations
+
+import functools
+import sys
+from pathlib import Path
+
+import click
+
+from ..errors import CaseError
+
+__all__ = ["EXIT_INPUT", "FORMAT", "reports_input_errors", "print_table", "load_case_argument"]
+
+EXIT_INPUT = 2
+
+FORMAT = click.Choice(["table", "csv", "json"])
+
+
+def _fail(lines: list[str]) -> None:
+    for line in lines:
+        click.echo(line, err=True)
+    sys.exit(EXIT_INPUT)
+
+
+def reports_input_errors(command):
+    """Turn input problems into plain lines on stderr and exit status 2."""
+
+    @functools.wraps(command)
+    def wrapper(*args, **kwargs):
+        try:
+            return command(*args, **kwargs)
+        except CaseError as error:
+            lines = [f"error: {problem}" for problem in error.problems]
+            lines.append(f"{len(error.problems)} problem(s) found; nothing was written.")
+            _fail(lines)
+        except FileExistsError as error:
+            _fail([f"error: {error.args[0] if error.args else error} - choose an empty or new folder"])
+
+    return wrapper
+
+
+def _console():
+    from rich.console import Console
+
+    console = Console(soft_wrap=False)
+    if not console.is_terminal:
+        console = Console(soft_wrap=False, width=200)
+    return console
+
+
+def print_table(title: str, columns: list[str], rows: list[list], out=None) -> None:
+    """A table that fits the terminal (rich); plain text beyond a few thousand rows."""
+    if len(rows) > 3000:
+        widths = [max(len(c), *(len(str(r[i])) for r in rows)) for i, c in enumerate(columns)]
+        click.echo(title)
+        click.echo("  ".join(c.ljust(w) for c, w in zip(columns, widths)))
+        for row in rows:
+            click.echo("  ".join(str(v).ljust(w) for v, w in zip(row, widths)))
+        return
+    from rich.table import Table
+
+    table = Table(title=title, title_justify="left", header_style="bold")
+    for column in columns:
+        wide = column in ("name", "title", "label")
+        table.add_column(column, overflow="ellipsis" if wide else "fold", max_width=40 if wide else None,
+                         no_wrap=not wide)
+    for row in rows:
+        table.add_row(*("" if v is None else str(v) for v in row))
+    (out or _console()).print(table)
+
+
+def load_case_argument(case_path: str):
+    """Load the case named on the command line (a CaseError becomes plain lines, exit 2)."""
+    from ..case import load_case
+
+    return load_case(Path(case_path))
+
+

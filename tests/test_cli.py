@@ -1,0 +1,200 @@
+"""The ``delay`` command line: exit codes, plain error lines, nothing written on bad input.
+
+The expectations here are the project's own contract (shared/case-format.md, issue text):
+input problems exit with status 2 and print one line per problem naming file, row and
+column; a traceback never reaches the user; outputs appear whole or not at all; input files
+are never changed.
+"""
+
+from __future__ import annotations
+
+import hashlib
+import json
+from pathlib import Path
+
+import pytest
+from click.testing import CliRunner
+
+from casewriter import write_case, write_csv
+from delay.cli import cli
+
+ACTIVITIES = [
+    {"id": "START", "name": "Start", "duration": 0, "kind": "start_milestone"},
+    {"id": "A", "name": "Dig", "duration": 3},
+    {"id": "B", "name": "Pour", "duration": 2},
+    {"id": "END", "name": "Finish", "duration": 0, "kind": "finish_milestone"},
+]
+LINKS = [
+    {"pred": "START", "succ": "A", "type": "FS", "lag": 0},
+    {"pred": "A", "succ": "B", "type": "FS", "lag": 0},
+    {"pred": "B", "succ": "END", "type": "FS", "lag": 0},
+]
+
+
+def run(*args):
+    return CliRunner().invoke(cli, [str(a) for a in args], catch_exceptions=False)
+
+
+def digest(folder: Path) -> dict[str, str]:
+    return {str(p.relative_to(folder)): hashlib.sha256(p.read_bytes()).hexdigest()
+            for p in sorted(folder.rglob("*")) if p.is_file()}
+
+
+def test_help_reads_like_a_manual():
+    result = run("--help")
+    assert result.exit_code == 0
+    for command in ("validate", "new", "schedule", "synth", "demo"):
+        assert command in result.output
+    assert "not legal" in result.output  # the caution is part of the manual
+
+
+def test_validate_a_valid_case(tmp_path):
+    root = write_case(tmp_path / "case", activities=ACTIVITIES, links=LINKS)
+    result = run("validate", root)
+    assert result.exit_code == 0, result.output
+    assert "baseline" in result.output and "valid" in result.output
+    summary = json.loads(run("validate", root, "--format", "json").output)
+    assert summary["snapshots"][0]["activities"] == 4
+
+
+BROKEN = {
+    # name: (change to the rows, file, row, column) - rows counted as in a spreadsheet
+    "unknown link type": (
+        lambda rows, links: links.__setitem__(1, {**links[1], "type": "XX"}),
+        "snapshots/baseline/links.csv", 3, "type"),
+    "negative duration": (
+        lambda rows, links: rows.__setitem__(2, {**rows[2], "duration": -1}),
+        "snapshots/baseline/activities.csv", 4, "duration"),
+    "link to unknown activity": (
+        lambda rows, links: links.__setitem__(2, {**links[2], "succ": "NOPE"}),
+        "snapshots/baseline/links.csv", 4, "succ"),
+    "logic loop": (
+        lambda rows, links: links.append({"pred": "B", "succ": "A", "type": "FS", "lag": 0}),
+        "snapshots/baseline/links.csv", None, None),
+}
+
+
+@pytest.mark.parametrize("name", sorted(BROKEN))
+@pytest.mark.parametrize("command", ["validate", "schedule", "demo"])
+def test_bad_input_exits_2_with_plain_lines_and_writes_nothing(tmp_path, name, command):
+    change, file, row, column = BROKEN[name]
+    rows = [dict(r) for r in ACTIVITIES]
+    links = [dict(r) for r in LINKS]
+    change(rows, links)
+    root = write_case(tmp_path / "case", activities=rows, links=links)
+    before = digest(root)
+    out = tmp_path / "out"
+    args = {"validate": ("validate", root), "schedule": ("schedule", root),
+            "demo": ("demo", "--case", root, "--out", out)}[command]
+    result = CliRunner().invoke(cli, [str(a) for a in args])
+    assert result.exit_code == 2, result.output
+    assert "Traceback" not in result.output
+    assert result.exception is None or isinstance(result.exception, SystemExit)
+    errors = [line for line in result.output.splitlines() if line.startswith("error:")]
+    assert errors, result.output
+    assert any(file in line for line in errors)
+    if row is not None:
+        assert any(f"row {row}" in line and f"'{column}'" in line for line in errors), errors
+    assert not out.exists()
+    assert digest(root) == before, "input files must not change"
+
+
+def test_every_problem_of_a_file_is_reported_in_one_run(tmp_path):
+    rows = [dict(r) for r in ACTIVITIES]
+    rows[1]["duration"] = -1
+    rows[2]["duration"] = "two"
+    root = write_case(tmp_path / "case", activities=rows, links=LINKS)
+    result = CliRunner().invoke(cli, ["validate", str(root)])
+    assert result.exit_code == 2
+    errors = [line for line in result.output.splitlines() if line.startswith("error:")]
+    assert any("row 3" in line for line in errors) and any("row 4" in line for line in errors)
+
+
+def test_missing_case_folder_is_a_usage_error(tmp_path):
+    result = CliRunner().invoke(cli, ["validate", str(tmp_path / "nowhere")])
+    assert result.exit_code == 2
+    assert "Traceback" not in result.output
+
+
+def test_new_writes_a_skeleton_that_validates(tmp_path):
+    target = tmp_path / "fresh"
+    assert run("new", target).exit_code == 0
+    assert run("validate", target).exit_code == 0
+    # a second time into the now non-empty folder is refused, and changes nothing
+    before = digest(target)
+    result = CliRunner().invoke(cli, ["new", str(target)])
+    assert result.exit_code == 2 and "Traceback" not in result.output
+    assert digest(target) == before
+
+
+def test_schedule_json_contract(tmp_path):
+    root = write_case(tmp_path / "case", activities=ACTIVITIES, links=LINKS)
+    payload = json.loads(run("schedule", root, "--format", "json").output)
+    assert set(payload) == {"snapshot", "data_date", "completion", "activities"}
+    assert set(payload["activities"][0]) == {
+        "id", "early_start", "early_finish", "late_start", "late_finish", "total_float", "free_float", "critical"}
+    by_id = {a["id"]: a for a in payload["activities"]}
+    # Hand-worked (case-format time convention, 5-day calendar from Monday 2025-01-06):
+    # A occupies Mon 6 .. Wed 8, B Thu 9 .. Fri 10, the finish milestone is dated Fri 10.
+    assert by_id["A"]["early_start"] == "2025-01-06" and by_id["A"]["early_finish"] == "2025-01-08"
+    assert by_id["B"]["early_start"] == "2025-01-09" and by_id["B"]["early_finish"] == "2025-01-10"
+    assert payload["completion"] == "2025-01-10"
+    assert all(a["total_float"] == 0 and a["critical"] for a in payload["activities"])
+
+
+def test_schedule_table_lists_the_driving_path_first(tmp_path):
+    rows = ACTIVITIES + [{"id": "SIDE", "name": "Side work", "duration": 1}]
+    links = LINKS + [{"pred": "START", "succ": "SIDE", "type": "FS", "lag": 0}]
+    root = write_case(tmp_path / "case", activities=rows, links=links)
+    result = run("schedule", root, "--format", "csv")
+    assert result.exit_code == 0
+    ids = [line.split(",")[0] for line in result.output.splitlines()[1:]]
+    assert ids[:4] == ["START", "A", "B", "END"] and ids[-1] == "SIDE"
+
+
+def test_synth_then_validate_and_schedule(tmp_path):
+    out = tmp_path / "synthetic"
+    assert run("synth", out, "--activities", 120, "--updates", 2, "--elements", 30, "--seed", 3).exit_code == 0
+    assert run("validate", out).exit_code == 0
+    for snapshot in ("baseline", "u01", "u02", "asbuilt"):
+        result = run("schedule", out, "--snapshot", snapshot, "--format", "json")
+        assert result.exit_code == 0, result.output
+    # the same seed writes the same case
+    again = tmp_path / "again"
+    run("synth", again, "--activities", 120, "--updates", 2, "--elements", 30, "--seed", 3)
+    assert digest(out) == digest(again)
+
+
+def test_unknown_snapshot_is_an_input_error(tmp_path):
+    root = write_case(tmp_path / "case", activities=ACTIVITIES, links=LINKS)
+    result = CliRunner().invoke(cli, ["schedule", str(root), "--snapshot", "u99"])
+    assert result.exit_code == 2 and "u99" in result.output and "Traceback" not in result.output
+
+
+def test_demo_on_a_small_case_writes_its_outputs_whole(tmp_path):
+    root = write_case(tmp_path / "case", activities=ACTIVITIES, links=LINKS)
+    out = tmp_path / "out"
+    out.mkdir()
+    (out / "stale.txt").write_text("from an earlier run")
+    result = run("demo", "--case", root, "--out", out)
+    assert result.exit_code == 0, result.output
+    assert (out / "schedules" / "baseline.csv").exists()
+    assert not (out / "stale.txt").exists(), "the output folder is replaced whole"
+    assert not [p for p in tmp_path.iterdir() if p.name.startswith(".")], "no temporary folder is left"
+
+
+def test_case_rows_with_a_bom_are_read(tmp_path):
+    root = write_case(tmp_path / "case", activities=ACTIVITIES, links=LINKS)
+    path = root / "snapshots" / "baseline" / "links.csv"
+    path.write_bytes(b"\xef\xbb\xbf" + path.read_bytes())
+    assert run("validate", root).exit_code == 0
+
+
+def test_unknown_columns_are_kept(tmp_path):
+    rows = [{**r, "area": "North"} for r in ACTIVITIES]
+    root = write_case(tmp_path / "case", activities=rows, links=LINKS)
+    write_csv(root / "snapshots" / "baseline" / "activities.csv", rows)
+    assert run("validate", root).exit_code == 0
+    from delay.case import load_case
+
+    assert list(load_case(root).baseline.activities["area"]) == ["North"] * 4
