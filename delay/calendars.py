@@ -208,7 +208,12 @@ class WorkCalendar:
         return to_dates(self.day_of(indices))
 
     def count(self, start_dates, end_dates) -> np.ndarray:
-        """Work days in ``[start, end)``; negative when end is before start (as busday_count)."""
+        """Work days in ``[start, end)``: the difference of the two dates' start indices.
+
+        For ``end < start`` the result is ``-count(end, start)``. (numpy's ``busday_count``
+        counts ``(end, start]`` for reversed arguments since numpy 1.25, which can differ by
+        one day; the difference of indices is what the engine's arithmetic needs.)
+        """
         return (self.start_index_days(to_days(end_dates)) - self.start_index_days(to_days(start_dates))).astype(np.int32)
 
     def is_workday(self, dates) -> np.ndarray:

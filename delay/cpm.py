@@ -412,6 +412,7 @@ def _run(model: ScheduleModel) -> "ScheduleResult":
         driving_link=driving_link,
         completion_day=completion_day,
         finish_day=finish_day,
+        read_as_finish=read_as_finish,
     )
 
 
@@ -439,6 +440,7 @@ class ScheduleResult:
     driving_link: np.ndarray = field(repr=False)
     completion_day: int = 0
     finish_day: np.ndarray = field(default=None, repr=False)
+    read_as_finish: np.ndarray = field(default=None, repr=False)
     near_critical_days: int = NEAR_CRITICAL_DAYS
 
     # -- headline --------------------------------------------------------------------------
@@ -563,6 +565,32 @@ class ScheduleResult:
                 "driving": self.driving_link,
             }
         )
+
+    @cached_property
+    def link_gaps(self) -> np.ndarray:
+        """Per link, how far the successor's point lies after the bound the link sets, in
+        work days of the successor's calendar, on the dates as recorded: actual dates where
+        there are some, early dates elsewhere. Unlike the relative float, every link counts
+        (links into complete activities too); a negative gap is progress out of sequence.
+        """
+        from . import _kernels
+
+        net = self.model.network
+        cals = self.model.calendars
+        link_type = net.link_type
+        gaps = np.empty(net.link_count, dtype=np.int64)
+        unused = np.zeros(net.size, dtype=np.int64)
+        everything = np.ones(net.link_count, dtype=bool)
+        while True:
+            code = _kernels.link_floats(
+                net.pred, net.succ, net.lag, (link_type == 0) | (link_type == 2), link_type >= 2,
+                self.read_as_finish, self.model.calendar[net.pred] != self.model.calendar[net.succ],
+                self.settings.lag_calendar == "predecessor", everything, ~everything,
+                self.early_start_read, self.early_start_read, self.early_finish, self.model.calendar,
+                *cals.tables(), gaps, unused)
+            if code == _kernels.OK:
+                return gaps
+            cals.grow(earlier=code == _kernels.TOO_EARLY)
 
     # -- paths --------------------------------------------------------------------------------
     @cached_property

@@ -10,7 +10,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-__all__ = ["Problem", "CaseError", "MAX_PROBLEMS_PER_FILE"]
+__all__ = ["Problem", "CaseError", "ReconciliationError", "MAX_PROBLEMS_PER_FILE"]
 
 #: At most this many problems are collected from one file before checking moves on.
 MAX_PROBLEMS_PER_FILE = 50
@@ -63,3 +63,18 @@ class CaseError(Exception):
         if not self.problems:
             raise ValueError("CaseError needs at least one problem")
         super().__init__("\n".join(str(p) for p in self.problems))
+
+
+class ReconciliationError(Exception):
+    """A delay figure does not add up to the movement of completion it explains.
+
+    Raised (never asserted, so ``python -O`` keeps the check) when, for example, the charges
+    of a window do not sum to the window's movement of completion. ``where`` names the
+    window or step and ``figures`` holds the numbers that disagree.
+    """
+
+    def __init__(self, where: str, figures: dict):
+        self.where = where
+        self.figures = dict(figures)
+        detail = ", ".join(f"{key} = {value}" for key, value in self.figures.items())
+        super().__init__(f"{where}: the figures do not reconcile ({detail})")

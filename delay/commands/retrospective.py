@@ -1,0 +1,93 @@
+"""``delay windows`` and ``delay asbuilt``: the methods that rest on the contemporaneous records."""
+
+from __future__ import annotations
+
+import json
+
+import click
+
+from .common import load_case_argument, print_table, reports_input_errors
+
+CAUTION = ("Results depend on the records and on the method chosen; they are not legal advice. "
+           "The contract, the applicable law and the analyst's professional judgement govern.")
+
+
+@click.command()
+@click.argument("case", type=click.Path(exists=True))
+@click.option("--windows", "boundaries", default=None, metavar="L1,L2,...",
+              help="Boundary snapshots (folder names or labels), earliest first; default every snapshot "
+                   "and the as-built record.")
+@click.option("--no-half-step", is_flag=True, help="Do not split windows into progress and revision effects.")
+@click.option("--format", "output_format", type=click.Choice(["table", "json"]), default="table", show_default=True)
+@reports_input_errors
+def windows(case, boundaries, no_half_step, output_format):
+    """Windows analysis: how far completion moved in each window, and why.
+
+    Each window runs from one snapshot to the next. With half-steps (the default, or the
+    case's [analysis] half_step), the movement is split into the effect of progress (the
+    earlier programme brought to the later data date with the later progress) and the effect
+    of revisions (deletions, additions, durations, logic, calendars, constraints, in that
+    order). Progress is charged along the driving path, traced back through actual dates;
+    charges are matched to the delay events that name the activity. Days are calendar days;
+    positive is delay, negative is gain. Every window reconciles to the day.
+    """
+    from ..methods.windows import analyse
+
+    loaded = load_case_argument(case)
+    names = [n.strip() for n in boundaries.split(",") if n.strip()] if boundaries else None
+    result = analyse(loaded, names, half_step=False if no_half_step else None)
+    if output_format == "json":
+        click.echo(json.dumps(result.to_json(), indent=2))
+        return
+    rows = [[w.number, w.start, w.end, w.completion_start, w.completion_end, w.movement_days,
+             w.movement_work_days, w.progress_days, w.revision_days] for w in result.windows]
+    print_table("Windows (calendar days; positive is delay)",
+                ["window", "from", "to", "completion before", "completion after", "movement",
+                 "movement (work days)", "progress", "revisions"], rows)
+    for w in result.windows:
+        charged = w.charges[(w.charges["days"] != 0)]
+        lines = [[r.activity, r.name, r.days, "yes" if r.counted else "no (concurrent)",
+                  ", ".join(r.concurrent_with), ", ".join(r.events), r.party] for r in charged.itertuples()]
+        lines += [[f"({r.kind})", ", ".join(r.activities[:6]) + (" ..." if len(r.activities) > 6 else ""), r.days,
+                   "yes", "", "", "revision"] for r in w.revisions.itertuples() if r.days]
+        if lines:
+            print_table(f"Window {w.number}: {w.start} to {w.end}",
+                        ["activity", "name", "days", "counted", "concurrent with", "events", "party"], lines)
+    click.echo(f"Total movement: {result.total_movement_days} calendar days. {CAUTION}")
+
+
+@click.command()
+@click.argument("case", type=click.Path(exists=True))
+@click.option("--period", type=click.Choice(["W", "M", "Q"]), default="M", show_default=True,
+              help="Period for the delay along the as-built critical path: week, month or quarter.")
+@click.option("--format", "output_format", type=click.Choice(["table", "json"]), default="table", show_default=True)
+@reports_input_errors
+def asbuilt(case, period, output_format):
+    """As-planned versus as-built: variances, the as-built critical path, delay per period.
+
+    Planned dates are the baseline's early dates, actual dates those of the as-built record.
+    The as-built critical path is traced back from actual completion through the last
+    update's logic: each activity's driving predecessor is the one whose actual date, plus
+    the link, lies closest to its actual start.
+    """
+    from ..methods.as_built import compare
+
+    result = compare(load_case_argument(case), period=period)
+    if output_format == "json":
+        click.echo(json.dumps(result.to_json(), indent=2))
+        return
+    path = result.critical_path
+    rows = [[r.activity, r.name, r.actual_start.date(), r.actual_finish.date(),
+             "" if r.planned_finish is None or str(r.planned_finish) == "NaT" else r.planned_finish.date(),
+             r.driving_predecessor, r.link, "" if str(r.gap_work_days) == "<NA>" else r.gap_work_days,
+             r.accrued_days] for r in path.itertuples()]
+    print_table("As-built critical path", ["activity", "name", "actual start", "actual finish", "planned finish",
+                                           "driven by", "link", "gap (work days)", "accrued days"], rows)
+    print_table("Delay along the as-built critical path by period",
+                ["period", "delay days", "cumulative"],
+                [[r.period, r.delay_days, r.cumulative_days] for r in result.periods.itertuples()])
+    click.echo(f"Planned completion {result.planned_completion}, actual {result.actual_completion}: "
+               f"{result.completion_variance_days} calendar days late. {CAUTION}")
+
+
+COMMANDS = (windows, asbuilt)

@@ -1,0 +1,12 @@
+"""The published delay-analysis methods, one module each.
+
+- :mod:`delay.methods.windows` — windows (time slice) analysis with half-steps;
+  AACE RP 29R-03 MIP 3.3 / 3.4, SCL Protocol (2017) time slice windows analysis.
+- :mod:`delay.methods.as_built` — as-planned versus as-built; AACE RP 29R-03 MIP 3.1 / 3.2,
+  SCL Protocol (2017) as-planned versus as-built windows analysis.
+
+Each entry function takes a loaded :class:`delay.model.Case` and returns a frozen
+dataclass of DataFrames; none reads a file.
+"""
+
+__all__ = ["windows", "as_built"]
