@@ -204,9 +204,10 @@ def _demo_case() -> Path:
 def demo(out_dir, case_path):
     """Run everything the toolkit can do on the bundled invented demo project.
 
-    Validates the demo case, schedules every snapshot and writes the results under
-    out/demo/ (or --out): the case summary, each snapshot's schedule as CSV and JSON, and
-    the completion date of every snapshot.
+    Validates the demo case, schedules every snapshot, runs the windows analysis and the
+    as-planned versus as-built comparison, and writes the results under out/demo/ (or
+    --out): the case summary, each snapshot's schedule as CSV and JSON, the completion date
+    of every snapshot, the windows and their charges, and the as-built critical path.
     """
     from .demo import run_demo
 

@@ -56,4 +56,31 @@ def run_demo(case_path: Path, out_dir: Path, echo: Callable[[str], None] = print
             echo(f"  {snap.label:<24} data date {snap.data_date}  completion {result.completion}")
         pd.DataFrame(trend).to_csv(folder / "completion_by_snapshot.csv", index=False)
         written.append(out_dir / "completion_by_snapshot.csv")
+        written += _retrospective(case, folder, out_dir, echo)
+    return written
+
+
+def _retrospective(case, folder: Path, out_dir: Path, echo) -> list[Path]:
+    """Windows analysis and, where there is an as-built record, as-planned versus as-built."""
+    from .methods import as_built, windows
+
+    written = []
+    if len(case.snapshots) + (case.asbuilt_snapshot is not None) >= 2:
+        result = windows.analyse(case)
+        (folder / "windows.json").write_text(json.dumps(result.to_json(), indent=2), encoding="utf-8")
+        result.table.to_csv(folder / "windows.csv", index=False, date_format="%Y-%m-%d")
+        charges = result.charges
+        for column in ("concurrent_with", "events", "parties"):
+            if column in charges:
+                charges[column] = charges[column].map(lambda v: "; ".join(v) if isinstance(v, list) else v)
+        charges.to_csv(folder / "windows_charges.csv", index=False)
+        written += [out_dir / "windows.json", out_dir / "windows.csv", out_dir / "windows_charges.csv"]
+        echo(f"Windows analysis: {len(result.windows)} windows, total movement {result.total_movement_days} days")
+    if case.asbuilt_snapshot is not None:
+        compared = as_built.compare(case)
+        (folder / "asbuilt.json").write_text(json.dumps(compared.to_json(), indent=2), encoding="utf-8")
+        compared.activities.to_csv(folder / "asbuilt_activities.csv", index=False, date_format="%Y-%m-%d")
+        compared.critical_path.to_csv(folder / "asbuilt_critical_path.csv", index=False, date_format="%Y-%m-%d")
+        written += [out_dir / "asbuilt.json", out_dir / "asbuilt_activities.csv", out_dir / "asbuilt_critical_path.csv"]
+        echo(f"As-built: planned completion {compared.planned_completion}, actual {compared.actual_completion}")
     return written
