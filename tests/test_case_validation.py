@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import copy
 
+import pandas as pd
 import pytest
 
 from casewriter import write_csv, write_text, write_toml
@@ -179,6 +180,20 @@ def test_snapshot_without_activities(tmp_path):
 def test_actual_finish_before_actual_start(tmp_path):
     root = make_case(tmp_path, snapshots=update_with(0, actual_finish="2025-01-03"))
     problem_at(root, U1, 2, "actual_finish", "before the actual start")
+
+
+def test_actual_finish_one_day_before_start(tmp_path):
+    # The boundary: B started 2025-01-09; a finish on 2025-01-08 is a day too early.
+    update = update_with(1, actual_finish="2025-01-08", remaining=0)
+    problem_at(make_case(tmp_path, snapshots=update), U1, 3, "actual_finish",
+               "before the actual start")
+
+
+def test_one_day_task_starts_and_finishes_on_the_same_date(tmp_path):
+    # Time convention of the format: "a one-day task starts and finishes on the same date".
+    update = update_with(1, actual_finish="2025-01-09", remaining=0)
+    case = load_case(make_case(tmp_path, snapshots=update))
+    assert case.snapshot("u1").activities["actual_finish"].iat[1] == pd.Timestamp("2025-01-09")
 
 
 def test_actual_finish_without_actual_start(tmp_path):
@@ -682,3 +697,31 @@ def test_problems_per_file_are_capped(tmp_path):
     assert len(found) == MAX_PROBLEMS_PER_FILE == 50
     assert [p.row for p in found[:3]] == [2, 3, 4]
     assert found[-1].message == "11 more problems in this file are not listed"
+
+
+# ----------------------------------------------------------------- unreadable input
+
+
+def test_no_case_at_the_path(tmp_path):
+    problem_at(tmp_path / "nowhere", str(tmp_path / "nowhere"), None, None, "no case folder")
+
+
+def test_file_that_is_not_utf8(tmp_path):
+    root = make_case(tmp_path)
+    (root / "events.csv").write_bytes("id,title\nE1,Verz\xf6gerung\n".encode("latin-1"))
+    problem_at(root, "events.csv", None, None, "not utf-8")
+
+
+def test_empty_file(tmp_path):
+    root = make_case(tmp_path)
+    write_text(root, "elements.csv", "")
+    problem_at(root, "elements.csv", 1, None, "empty")
+
+
+def test_empty_snapshots_folder_has_no_baseline(tmp_path):
+    import shutil
+
+    root = make_case(tmp_path)
+    shutil.rmtree(root / "snapshots")
+    (root / "snapshots").mkdir()
+    problem_at(root, "snapshots", None, None, "no baseline")

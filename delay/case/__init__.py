@@ -88,7 +88,10 @@ def summarise(case: Case) -> dict[str, Any]:
         ``extensions`` and ``corrections``.
     """
     project = case.settings.project
-    tables = case._tables  # counting rows needs no copy of the tables
+
+    def rows(name: str) -> int:
+        return int(len(case.table(name)))
+
     return {
         "project": project.name,
         "root": str(case.root),
@@ -98,13 +101,13 @@ def summarise(case: Case) -> dict[str, Any]:
         "asbuilt": case.asbuilt_snapshot is not None,
         "asbuilt_snapshot": (_snapshot_summary(case.asbuilt_snapshot)
                              if case.asbuilt_snapshot is not None else None),
-        "calendars": int(len(tables["calendars"])),
-        "events": int(len(tables["events"])),
-        "fragnets": int(len(tables["fragnets"])),
-        "fragnet_links": int(len(tables["fragnet_links"])),
-        "elements": int(len(tables["elements"])),
-        "sections": int(len(tables["sections"])),
-        "extensions": int(len(tables["extensions_granted"])),
+        "calendars": rows("calendars"),
+        "events": rows("events"),
+        "fragnets": rows("fragnets"),
+        "fragnet_links": rows("fragnet_links"),
+        "elements": rows("elements"),
+        "sections": rows("sections"),
+        "extensions": rows("extensions_granted"),
         "corrections": len(case.corrections),
     }
 

@@ -36,6 +36,9 @@ __all__ = [
     "assemble",
 ]
 
+#: The largest whole number of days accepted (about 270 years of calendar days).
+LARGEST_WHOLE_NUMBER = 100_000
+
 #: The dtype of every date column (pandas' own unit for parsed dates).
 DATE_DTYPE = "datetime64[us]"
 
@@ -132,8 +135,12 @@ def dates(problems: Problems, table: RawTable, column: str, *, required: Text | 
     """
     text = table.frame[column]
     empty = empty_cells(text)
-    parsed = pd.to_datetime(text.where(~empty), format="%Y-%m-%d", errors="coerce")
-    parsed = parsed.astype(DATE_DTYPE)
+    if empty.all():
+        parsed = pd.Series(np.full(len(text), np.datetime64("NaT"), dtype=DATE_DTYPE),
+                           index=text.index, name=column)
+    else:
+        parsed = pd.to_datetime(text.where(~empty), format="%Y-%m-%d", errors="coerce")
+        parsed = parsed.astype(DATE_DTYPE)
     problems.flag(table, ~empty & parsed.isna().to_numpy(), column,
                   "'{value}' is not a date",
                   "write the date as YYYY-MM-DD, for example 2025-03-31")
@@ -145,6 +152,9 @@ def dates(problems: Problems, table: RawTable, column: str, *, required: Text | 
 def _numbers(text: pd.Series) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     """(values, blank mask, not-a-number mask) of a text column."""
     empty = empty_cells(text)
+    if empty.all():
+        nothing = np.zeros(len(text), dtype=bool)
+        return np.full(len(text), np.nan), empty, nothing
     values = pd.to_numeric(text.where(~empty), errors="coerce").to_numpy(dtype=np.float64)
     not_number = ~empty & ~np.isfinite(values)
     values = np.where(not_number, np.nan, values)
@@ -167,6 +177,10 @@ def integers(problems: Problems, table: RawTable, column: str, *, unit: str,
     problems.flag(table, fraction, column, "'{value}' is not a whole number",
                   f"give a whole number of {unit}")
     bad = not_number | fraction
+    huge = ~empty & ~bad & (np.abs(np.nan_to_num(values)) > LARGEST_WHOLE_NUMBER)
+    problems.flag(table, huge, column, "'{value}' is too large",
+                  f"give at most {LARGEST_WHOLE_NUMBER:,} {unit}")
+    bad |= huge
     if minimum is not None:
         low = ~empty & ~bad & (values < minimum)
         problems.flag(table, low, column, f"{column} {{value}} is below {minimum}",

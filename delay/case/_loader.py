@@ -274,7 +274,7 @@ class _Loader:
                 if data_date is None:
                     report("data_date", f"the data date {facts['data_date']!r} is not a date",
                            "write it as data_date = YYYY-MM-DD")
-            kind = facts.get("kind", "baseline" if snap.folder == "baseline" else "update")
+            kind = facts.get("kind", "baseline" if snap.folder.lower() == "baseline" else "update")
             if kind not in _SNAPSHOT_KINDS:
                 report("kind", f"the kind {kind!r} is not baseline or update",
                        'write kind = "baseline" for the baseline, kind = "update" otherwise')
@@ -284,9 +284,12 @@ class _Loader:
         baselines = [f for f in facts_list if f.kind == "baseline"]
         if not baselines and self.source.snapshots_found and all(
                 f.kind is not None for f in facts_list):
-            file = f"{self.source.root.name}:snapshots" if self.source.workbook else "snapshots"
-            p.add(file, "the case has no baseline snapshot",
-                  "add snapshots/baseline/ with a snapshot.toml saying kind = \"baseline\"")
+            if self.source.workbook:
+                p.add(f"{self.source.root.name}:snapshots", "the case has no baseline snapshot",
+                      "add a row for the baseline with kind baseline")
+            else:
+                p.add("snapshots", "the case has no baseline snapshot",
+                      "add snapshots/baseline/ with a snapshot.toml saying kind = \"baseline\"")
         for extra in baselines[1:]:
             row, column = extra.source.locate("kind")
             p.add(extra.source.file,
@@ -391,8 +394,8 @@ class _Loader:
                "give the milestone duration 0, or make it a task")
         constraint = columns.choices(p, table, "constraint", CONSTRAINTS, what="constraint")
         constraint_date = columns.dates(p, table, "constraint_date")
-        has_constraint = (frame["constraint"] != "").to_numpy()
-        has_date = (frame["constraint_date"] != "").to_numpy()
+        has_constraint = ~columns.empty_cells(frame["constraint"])
+        has_date = ~columns.empty_cells(frame["constraint_date"])
         p.flag(table, has_constraint & ~has_date, "constraint_date",
                lambda i: f"the constraint {constraint.iat[i]} has no date",
                "give the constraint's date as YYYY-MM-DD")
@@ -708,7 +711,7 @@ class _Loader:
                                          "give the predecessor's id")
         no_succ = columns.required_cells(p, table, "succ", "the link has no successor",
                                          "give the successor's id")
-        programme = set(self.all_activity_ids) if self.all_activity_ids is not None else None
+        programme = self.all_activity_ids
         if programme is not None:
             for column, role in (("pred", "predecessor"), ("succ", "successor")):
                 own = [activity in self.fragnet_ids.get(event, ()) for event, activity

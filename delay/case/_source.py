@@ -11,6 +11,7 @@ from __future__ import annotations
 import datetime as dt
 import re
 import tomllib
+import warnings
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any, Callable
@@ -91,9 +92,29 @@ class CaseSource:
 # --------------------------------------------------------------------------- tables
 
 
-#: Whitespace (other than a line break) next to a separator, a quote or a line end: when a
-#: file has none, no cell needs stripping and the costly strip is skipped.
-_PADDING = re.compile(r'(?:^|[,"\n])[^\S\r\n]|[^\S\r\n](?:[,"\r\n]|$)')
+_SPACES = np.zeros(256, dtype=bool)
+_SPACES[[ord(" "), ord("\t")]] = True
+_EDGES = np.zeros(256, dtype=bool)
+_EDGES[[ord(","), ord('"'), ord("\n"), ord("\r")]] = True
+
+
+def _needs_strip(data: bytes) -> bool:
+    """Whether any cell of a CSV file may start or end with a space.
+
+    Looks for a space or tab beside a separator, a quote or a line end (or at either end
+    of the file), with whole-array operations over the file's bytes; a file without one
+    has no cell that needs stripping, and the costly strip of every column is skipped.
+    """
+    if b"\xc2\xa0" in data:  # a no-break space anywhere: strip to be safe
+        return True
+    octets = np.frombuffer(data, dtype=np.uint8)
+    if not octets.size:
+        return False
+    space = _SPACES[octets]
+    if space[0] or space[-1]:
+        return True
+    edge = _EDGES[octets]
+    return bool((space[:-1] & edge[1:]).any() or (edge[:-1] & space[1:]).any())
 
 
 def _make_table(name: str, file: str, header: list[str], body: pd.DataFrame, rows: np.ndarray,
@@ -177,8 +198,8 @@ def read_csv_table(path: Path, name: str, file: str, problems: Problems) -> RawT
     body = cells.iloc[1:]
     rows = np.arange(2, len(cells) + 1, dtype=np.int64)
     try:
-        padded = bool(_PADDING.search(path.read_text(encoding="utf-8-sig")))
-    except (OSError, UnicodeDecodeError):
+        padded = _needs_strip(path.read_bytes())
+    except OSError:
         padded = True
     return _make_table(name, file, header, body, rows, problems, path, strip=padded)
 
@@ -328,6 +349,14 @@ def _sheet_table(workbook, name: str, label: str, problems: Problems) -> RawTabl
 
 
 def _read_workbook(path: Path, problems: Problems) -> CaseSource:
+    # openpyxl warns about styles and odd cells it cannot read; the checks that follow
+    # report what matters in the case's own words.
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        return _read_workbook_quietly(path, problems)
+
+
+def _read_workbook_quietly(path: Path, problems: Problems) -> CaseSource:
     import openpyxl  # imported here: only the workbook form needs it
 
     name = path.name
