@@ -7,8 +7,9 @@ Rules (the project's, stated once here)
 ---------------------------------------
 - A charge on an activity matches every event of the register that names the activity
   (its ``activities`` column, or as a programme activity its fragnet ties into) and that
-  starts on or before the end of the period charged (for a window, the data date of the
-  snapshot that ends it).
+  starts on or before the last day of the period charged. A window's last day is the day
+  before the data date of the snapshot that ends it (the data date is the first day not
+  yet reported), so an event must start before that data date.
 - Matching events of one party give that party. Events of several parties matching one
   charge make it concurrent between them.
 - A charge that no event explains is "unexplained" and, by default, contractor risk (the

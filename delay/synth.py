@@ -9,8 +9,10 @@ activity number, so the logic never loops.
 Updates are produced from one simulated "actual" run of the programme: the baseline
 durations scaled by random factors, scheduled once by our engine; at each data date the
 activities finished before it are complete, the ones started before it are in progress with
-the remaining work days still to go, and the rest are not started. An as-built record
-closes the case.
+the remaining work days still to go, and the rest are not started. From the second update
+on, each update also re-plans some work not yet started: a few remaining-duration
+re-estimates, a few longer lags and one deleted activity. An as-built record closes the
+case.
 """
 
 from __future__ import annotations
@@ -198,6 +200,9 @@ def synthesise(out: str | Path, activities: int, links_per_activity: float = 2.5
             data_dates.append(month)
         dd_days = [int(np.datetime64(d, "D").astype(np.int64)) for d in data_dates]
         cal_number = acts["calendar"].map(calendars.number).to_numpy(dtype=np.int64)
+        revised_remaining = pd.Series(np.nan, index=acts.index)
+        current_links = links.copy()
+        deleted = np.zeros(len(acts), dtype=bool)
         for k, (data_date, day) in enumerate(zip(data_dates, dd_days), start=1):
             table = acts.copy()
             done = finish_day < day
@@ -216,12 +221,36 @@ def synthesise(out: str | Path, activities: int, links_per_activity: float = 2.5
                 first = calendars.start_index_days(cal_number[rows], np.full(rows.size, day))
                 last = calendars.finish_index_days(cal_number[rows], finish_day[rows])
                 remaining[rows] = np.maximum(1, last - first + 1)
+            if k > 1:
+                # re-planning in this update: re-estimates, lag changes and a deletion, all
+                # among work not yet started (later updates keep them)
+                waiting = np.flatnonzero(~(done | started) & ~milestone & ~deleted)
+                if waiting.size:
+                    picks = rng.choice(waiting, size=max(1, waiting.size // 200), replace=False)
+                    durations = acts["duration"].to_numpy()[picks]
+                    revised_remaining.iloc[picks] = np.maximum(1, durations + rng.integers(-3, 6, picks.size))
+                    gone = int(rng.choice(waiting))
+                    deleted[gone] = True
+                waiting_ids = set(acts["id"].to_numpy()[~(done | started)])
+                movable = np.flatnonzero(current_links["succ"].isin(waiting_ids).to_numpy()
+                                         & (current_links["type"] != "SF").to_numpy())
+                if movable.size:
+                    change = rng.choice(movable, size=max(1, movable.size // 500), replace=False)
+                    current_links.loc[current_links.index[change], "lag"] += 1
+            waiting_now = ~(done | started)
             table["remaining"] = np.where(started, remaining.astype(str), np.where(done, "0", "")).astype(object)
-            _write_snapshot(tmp / "snapshots" / f"u{k:02d}", f"Update {k:02d}", data_date, "update", table, links)
+            revised = waiting_now & revised_remaining.notna().to_numpy()
+            table.loc[revised, "remaining"] = revised_remaining[revised].astype(int).astype(str).to_numpy()
+            kept_ids = set(acts["id"].to_numpy()[~deleted])
+            kept_links = current_links[current_links["pred"].isin(kept_ids) & current_links["succ"].isin(kept_ids)]
+            _write_snapshot(tmp / "snapshots" / f"u{k:02d}", f"Update {k:02d}", data_date, "update",
+                            table[~deleted], kept_links)
         if updates:
+            kept = ~deleted
             pd.DataFrame({
-                "id": acts["id"], "actual_start": np.where(acts["duration"] > 0, _iso(start_day), _iso(finish_day)),
-                "actual_finish": _iso(finish_day), "source": "simulated record",
+                "id": acts["id"][kept],
+                "actual_start": np.where(acts["duration"] > 0, _iso(start_day), _iso(finish_day))[kept],
+                "actual_finish": _iso(finish_day)[kept], "source": "simulated record",
             }).to_csv(tmp / "asbuilt.csv", index=False)
         if elements:
             _write_elements(tmp / "elements.csv", acts, elements, rng)

@@ -8,7 +8,8 @@ through the as-built logic, and spreads the delay along that path over periods.
   in work days. Actual duration is the number of work days of the activity's calendar from
   its actual start to its actual finish, both included (a one-day task has duration 1).
 - The as-built logic is that of the last update, with the as-built record's dates. Walking
-  back from the activity that finished last, each activity's driving predecessor is the
+  back from the activity that finished last (where several finished that day, the last of
+  them in logic order, such as the completion milestone), each activity's driving predecessor is the
   one whose actual date, plus the link, lies closest to the activity's actual start (or
   finish, for FF and SF links); ties go to an FS link, then to input order. The gap is that
   distance in work days (negative where work started out of sequence).

@@ -18,8 +18,11 @@ actual dates to the first activity already complete at S (or the project start).
 charged its lateness (its finish in H less its late finish in S, calendar days) less the
 lateness of its driving predecessor; lateness below ``min(0, progress effect)`` counts as
 that minimum and the path's origin counts as zero, so the charges telescope exactly to the
-progress effect: float absorbed off the critical path is not charged, successors that only
-inherit a delay are charged nothing, and a gain is a negative charge. Late finishes in S are
+progress effect: float absorbed off the critical path is not charged, a gain is a negative
+charge, and successors that only inherit a delay are charged nothing - except that, the
+charges being in calendar days, a shift that carries a successor across a different number
+of non-working days shows as a small charge or credit on it (a five-day calendar's weekends;
+the charges along the path still add up exactly). Late finishes in S are
 taken from a backward pass from S's own completion, whatever ``float_to`` says, and the
 activity that finishes at completion in H is taken as late by exactly the progress effect
 (its late finish in S is S's completion whenever it has no successor).
