@@ -46,9 +46,9 @@ def event_activities(case: Case) -> dict[str, set[str]]:
     fragnet_links = case.fragnet_links
     fragnet_ids = set(case.fragnets["id"])
     named: dict[str, set[str]] = {}
-    for event_id, activities in zip(events["id"], events["activities"]):
+    for event_id, activities in zip(events["id"].to_numpy(object), events["activities"].to_numpy(object)):
         named[event_id] = {a.strip() for a in str(activities or "").split(";") if a.strip()}
-    for event_id, pred, succ in zip(fragnet_links["event"], fragnet_links["pred"], fragnet_links["succ"]):
+    for event_id, pred, succ in zip(*(fragnet_links[c].to_numpy(object) for c in ("event", "pred", "succ"))):
         for activity in (pred, succ):
             if activity not in fragnet_ids:
                 named.setdefault(event_id, set()).add(activity)
@@ -76,16 +76,17 @@ def match_events(case: Case, activities: Iterable[str], period_end: dt.date | No
     events = case.events
     named = event_activities(case)
     limit = pd.Timestamp(period_end) if period_end is not None else None
+    by_activity: dict[str, list[tuple[str, str]]] = {}
+    for event_id, party, start in zip(events["id"], events["party"], events["start"]):
+        if limit is not None and pd.notna(start) and pd.Timestamp(start) > limit:
+            continue
+        for activity in named.get(event_id, ()):
+            by_activity.setdefault(activity, []).append((event_id, party))
     rows = []
     for activity in activities:
-        matched, parties = [], set()
-        for event_id, party, start in zip(events["id"], events["party"], events["start"]):
-            if activity not in named.get(event_id, ()):
-                continue
-            if limit is not None and pd.notna(start) and pd.Timestamp(start) > limit:
-                continue
-            matched.append(event_id)
-            parties.add(party)
+        found = by_activity.get(activity, [])
+        matched = [event_id for event_id, _ in found]
+        parties = {party for _, party in found}
         if not matched:
             party, risk = UNEXPLAINED, DEFAULT_RISK
         elif len(parties) == 1:

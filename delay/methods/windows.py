@@ -329,15 +329,23 @@ def progress_charges(result: ScheduleResult, lateness: np.ndarray, stop: np.ndar
         groups.append(members)
     concurrent: dict[int, set[int]] = {v: set() for v in nodes}
     group_number: dict[int, int] = {}
+    diverge: list[list[int]] = [[] for _ in groups]
+    merge: list[list[int]] = [[] for _ in groups]
+    for v in off:
+        for p, _, _ in graph.parents.get(v, []):
+            if p in position:
+                diverge[group_of[v]].append(position[p])
+    for v in chain:
+        for p, _, _ in graph.parents.get(v, []):
+            if p in group_of:
+                merge[group_of[p]].append(position[v])
+    seed_set = set(int(x) for x in seeds)
     reported = 0
-    for members in groups:
-        member_set = set(members)
-        diverge = [position[p] for v in members for p, _, _ in graph.parents.get(v, []) if p in position]
-        merge = [position[v] for v in chain if any(p in member_set for p, _, _ in graph.parents.get(v, []))]
-        if any(v in seeds for v in members):
-            merge.append(len(chain))
-        low = max(diverge) + 1 if diverge else 0
-        high = min(merge) if merge else len(chain)
+    for number, members in enumerate(groups):
+        if any(v in seed_set for v in members):
+            merge[number].append(len(chain))
+        low = max(diverge[number]) + 1 if diverge[number] else 0
+        high = min(merge[number]) if merge[number] else len(chain)
         stretch = chain[low:high] if high > low else []
         everyone = members + stretch
         if all(charge[v] == 0 for v in everyone):
@@ -430,7 +438,7 @@ def _apply_revisions(scheduler: _Scheduler, half: Snapshot, end: Snapshot, half_
     reassign(_DURATION_COLUMNS, "durations")
 
     def link_keys(frame):
-        return set(zip(frame["pred"], frame["succ"], frame["type"], frame["lag"]))
+        return set(zip(*(frame[c].to_numpy(dtype=object) for c in ("pred", "succ", "type", "lag"))))
 
     before, after = link_keys(links), link_keys(end_links)
     changed_links = sorted({f"{p}>{s}" for p, s, _, _ in before ^ after})
