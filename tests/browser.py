@@ -1,0 +1,112 @@
+"""Driving Debian's Chromium from the tests: headless, offline, through playwright.
+
+The browser is the system's ``/usr/bin/chromium`` (``apt-get install chromium``); playwright
+never downloads one here. On continuous integration (``CI=true``) a missing browser or a
+missing playwright is a failure, elsewhere a skip with the reason.
+"""
+
+from __future__ import annotations
+
+import base64
+import contextlib
+import os
+import shutil
+from pathlib import Path
+from typing import Iterator
+
+import pytest
+
+CHROMIUM = os.environ.get("CHROMIUM", "/usr/bin/chromium")
+ARGUMENTS = [
+    "--no-sandbox", "--disable-gpu", "--disable-background-networking",
+    "--disable-component-update", "--disable-sync", "--no-first-run",
+    # WebGL without a graphics card: Chromium's software renderer
+    "--use-angle=swiftshader", "--enable-unsafe-swiftshader",
+]
+
+
+def require_browser() -> None:
+    """Fail on CI, skip elsewhere, when playwright or Chromium is missing."""
+    reason = None
+    try:
+        import playwright.sync_api  # noqa: F401
+    except ImportError:
+        reason = "the Python package playwright is not installed (pip install playwright)"
+    if reason is None and not (Path(CHROMIUM).exists() or shutil.which(CHROMIUM)):
+        reason = f"Chromium is not installed at {CHROMIUM} (apt-get install chromium)"
+    if reason is None:
+        return
+    if os.environ.get("CI", "").lower() == "true":
+        pytest.fail(f"browser test cannot run on CI: {reason}")
+    pytest.skip(reason)
+
+
+@contextlib.contextmanager
+def chromium() -> Iterator[object]:
+    """A headless Chromium (playwright ``Browser``), closed afterwards."""
+    from playwright.sync_api import sync_playwright
+
+    with sync_playwright() as driver:
+        browser = driver.chromium.launch(executable_path=CHROMIUM, headless=True, args=ARGUMENTS)
+        try:
+            yield browser
+        finally:
+            browser.close()
+
+
+class Page:
+    """A page opened from a file, recording console errors and uncaught exceptions."""
+
+    def __init__(self, browser, path: Path, *, width: int = 1300, height: int = 1400):
+        self.errors: list[str] = []
+        self.page = browser.new_page(viewport={"width": width, "height": height})
+        self.page.on("console", lambda m: self.errors.append(m.text) if m.type == "error" else None)
+        self.page.on("pageerror", lambda e: self.errors.append(f"uncaught: {e}"))
+        # offline: any request that is not for a local file is an error
+        self.page.route("**/*", lambda route: route.continue_() if route.request.url.startswith("file:")
+                        else (self.errors.append(f"network request: {route.request.url}"), route.abort()))
+        self.page.goto(Path(path).resolve().as_uri())
+
+    def close(self) -> None:
+        self.page.close()
+
+
+def save_screenshot(page, name: str, folder: Path) -> list[Path]:
+    """Save a full-page screenshot under ``folder`` and, if set, ``REPORT_SCREENSHOT_DIR``."""
+    folder = Path(folder)
+    folder.mkdir(parents=True, exist_ok=True)
+    data = page.screenshot(full_page=True)
+    paths = [folder / name]
+    extra = os.environ.get("REPORT_SCREENSHOT_DIR")
+    if extra:
+        Path(extra).mkdir(parents=True, exist_ok=True)
+        paths.append(Path(extra) / name)
+    for path in paths:
+        path.write_bytes(data)
+    return paths
+
+
+def pixel_share(page, png: bytes, test_js: str) -> float:
+    """Share of the pixels of a PNG for which ``test_js`` (a JS expression in r, g, b) holds.
+
+    The PNG is decoded by the browser itself (an image drawn on a canvas), so no imaging
+    library is needed.
+    """
+    source = "data:image/png;base64," + base64.b64encode(png).decode("ascii")
+    return page.evaluate(
+        """async ([source, test]) => {
+            const image = new Image();
+            image.src = source;
+            await image.decode();
+            const canvas = document.createElement("canvas");
+            canvas.width = image.width; canvas.height = image.height;
+            const context = canvas.getContext("2d", {willReadFrequently: true});
+            context.drawImage(image, 0, 0);
+            const pixels = context.getImageData(0, 0, image.width, image.height).data;
+            const check = new Function("r", "g", "b", "return " + test + ";");
+            let hits = 0;
+            for (let k = 0; k < pixels.length; k += 4) if (check(pixels[k], pixels[k + 1], pixels[k + 2])) hits++;
+            return hits / (pixels.length / 4);
+        }""",
+        [source, test_js],
+    )
