@@ -49,7 +49,7 @@ def synthetic_network(activities: int, links_per_activity: float = 2.5, seed: in
     if n < 2:
         raise ValueError("a synthetic programme needs at least two activities")
     package = np.arange(n) // 40
-    duration = rng.integers(1, 21, n)
+    duration = rng.integers(1, 11, n)
     milestone = rng.random(n) < 0.04
     milestone[0] = milestone[-1] = True
     duration[milestone] = 0
@@ -57,12 +57,12 @@ def synthetic_network(activities: int, links_per_activity: float = 2.5, seed: in
     kind = np.full(n, "task", dtype=object)
     kind[0] = "start_milestone"
     kind[-1] = "finish_milestone"
-    # links: a chain with parallel branches inside each work package of forty; the first
+    # links: a few parallel lanes inside each work package of forty; the first
     # activity of a package follows an activity of an earlier package chosen at random, and
     # further links reach either close by or into an earlier package.
     position = np.arange(n) % 40
     first_of_package = position == 0
-    step_back = np.where(rng.random(n) < 0.7, 1, 2)
+    step_back = rng.choice([1, 2, 3, 4], size=n, p=[0.4, 0.3, 0.2, 0.1])  # parallel lanes
     step_back = np.minimum(step_back, position)
     chain_succ = np.flatnonzero(~first_of_package)
     chain_pred = chain_succ - step_back[chain_succ]
@@ -71,8 +71,8 @@ def synthetic_network(activities: int, links_per_activity: float = 2.5, seed: in
     head_pred = np.minimum(earlier * 40 + rng.integers(0, 40, heads.size), heads - 1)
     extra = max(0, int(round(n * links_per_activity)) - chain_succ.size - heads.size)
     extra_succ = rng.integers(1, n, extra)
-    near = rng.random(extra) < 0.8
-    near_pred = extra_succ - np.minimum(extra_succ, rng.integers(1, 12, extra))
+    near = rng.random(extra) < 0.95
+    near_pred = np.maximum(extra_succ - rng.integers(1, 12, extra), package[extra_succ] * 40)  # same package
     far_package = (rng.random(extra) * package[extra_succ]).astype(np.int64)
     far_pred = np.minimum(far_package * 40 + rng.integers(0, 40, extra), extra_succ - 1)
     extra_pred = np.where(near, near_pred, far_pred)
