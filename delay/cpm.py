@@ -183,7 +183,7 @@ class ScheduleModel:
                 "start_bound": bounds,
             }
             arrays = {name: np.concatenate([arrays[name], extra[name]]) for name in arrays}
-        index = pd.Index(np.concatenate([net.ids, np.asarray(new_ids, dtype=object)]))
+        index = pd.Index(np.concatenate([net.ids, np.asarray(new_ids, dtype=object)])) if new_ids else net.index
 
         def numbers(ids) -> np.ndarray:
             found = index.get_indexer(pd.Index([str(i) for i in ids]))
@@ -227,8 +227,17 @@ class ScheduleModel:
         """Forward and backward passes, floats and driving links. See the module docstring."""
         return _run(self)
 
+    def completion_day(self) -> int:
+        """Completion (day number) from the forward pass alone: what a what-if that only
+        asks "when would the works finish?" needs, without late dates or floats."""
+        return _run(self, forward_only=True)
 
-def _run(model: ScheduleModel) -> "ScheduleResult":
+    def completion(self) -> dt.date:
+        """Completion date from the forward pass alone (see :meth:`completion_day`)."""
+        return _date(self.completion_day())
+
+
+def _run(model: ScheduleModel, forward_only: bool = False):
     net = model.network
     cals = model.calendars
     settings = model.settings
@@ -363,6 +372,8 @@ def _run(model: ScheduleModel) -> "ScheduleResult":
     rows = np.flatnonzero(complete)
     finish_day[rows] = np.where(has_finish[rows], model.actual_finish[rows], model.actual_start[rows])
     completion_day = int(finish_day.max()) if n else model.data_day
+    if forward_only:
+        return completion_day
 
     # -- backward pass --------------------------------------------------------------------------
     end_day = completion_day if settings.float_to == "project_finish" else model.contract_completion_day

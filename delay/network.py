@@ -13,6 +13,7 @@ predecessor's finish (FS, FF).
 from __future__ import annotations
 
 from dataclasses import dataclass
+from functools import cached_property
 
 import numpy as np
 import pandas as pd
@@ -79,9 +80,14 @@ class Network:
     def link_count(self) -> int:
         return int(self.pred.size)
 
+    @cached_property
+    def index(self) -> pd.Index:
+        """The activity ids as an index (built once per network)."""
+        return pd.Index(self.ids)
+
     def index_of(self, ids) -> np.ndarray:
         """Activity numbers of ids; ``-1`` for an unknown id."""
-        return pd.Index(self.ids).get_indexer(pd.Index(list(ids) if not isinstance(ids, str) else [ids]))
+        return self.index.get_indexer(pd.Index(list(ids) if not isinstance(ids, str) else [ids]))
 
     def predecessor_count(self) -> np.ndarray:
         return np.bincount(self.succ, minlength=self.size)

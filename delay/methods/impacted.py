@@ -172,16 +172,16 @@ def _date(day: int) -> dt.date:
 def run_events(case: Case, base: Snapshot, model: ScheduleModel, register: pd.DataFrame, label: str):
     """Impacts alone and the cumulative run of ``register`` on ``model``: a DataFrame with
     EVENT_COLUMNS and the completion day of the cumulative run."""
-    base_day = model.run().completion_day
+    base_day = model.completion_day()
     present = set(base.activities["id"])
     rows = []
     cumulative = model
     previous = base_day
     for _, event in register.iterrows():
         alone_model, missing = apply_event(model, case, event, present)
-        alone_day = alone_model.run().completion_day
+        alone_day = alone_model.completion_day()
         cumulative, _ = apply_event(cumulative, case, event, present | set(_added_so_far(cumulative, model)))
-        after = cumulative.run().completion_day
+        after = cumulative.completion_day()
         rows.append({
             "id": event["id"], "title": event["title"], "party": event["party"], "impact": event["impact"],
             "start": event["start"], "finish": event["finish"], "activities": _split(event["activities"]),
@@ -239,7 +239,7 @@ def analyse(case: Case, base: str = "baseline", events: Sequence[str] | None = N
                                 fix="name a folder under snapshots/ or a label")) from None
     register = order_events(case, events, order)
     model = prepare(case, snapshot, calendars=calendars_of(case))
-    base_day = model.run().completion_day
+    base_day = model.completion_day()
     frame, final_day, _ = run_events(case, snapshot, model, register, snapshot.folder)
     present = set(snapshot.activities["id"])
     parties = []
@@ -250,7 +250,7 @@ def analyse(case: Case, base: str = "baseline", events: Sequence[str] | None = N
         together = model
         for _, event in own.iterrows():
             together, _ = apply_event(together, case, event, present | set(_added_so_far(together, model)))
-        day = together.run().completion_day
+        day = together.completion_day()
         parties.append({"party": party, "events": list(own["id"]), "alone_days": int(day - base_day),
                         "cumulative_days": int(frame.loc[frame["party"] == party, "cumulative_days"].sum())})
     by_party = pd.DataFrame(parties, columns=["party", "events", "alone_days", "cumulative_days"])

@@ -95,7 +95,7 @@ def analyse(case: Case) -> TimeImpactResult:
         if not len(group):
             continue
         model = prepare(case, snap, calendars=calendars)
-        before = model.run().completion
+        before = model.completion()
         frame, final_day, _ = run_events(case, snap, model, group.reset_index(drop=True), snap.folder)
         frames.append(frame.assign(snapshot=snap.folder, completion_before=before))
         after = dt.date(1970, 1, 1) + dt.timedelta(days=int(final_day))
