@@ -57,6 +57,12 @@ __all__ = [
     "NOT_STARTED",
     "IN_PROGRESS",
     "COMPLETE",
+    "TASK",
+    "START_MILESTONE",
+    "FINISH_MILESTONE",
+    "STATUS_NAMES",
+    "NO_DAY",
+    "day_to_date",
 ]
 
 #: Total float (work days) at or below which an activity is near-critical.
@@ -687,8 +693,12 @@ class ScheduleResult:
         }
 
 
-def _date(day: int) -> dt.date:
+def day_to_date(day: int) -> dt.date:
+    """The date of a day number (days since 1970-01-01)."""
     return dt.date(1970, 1, 1) + dt.timedelta(days=int(day))
+
+
+_date = day_to_date
 
 
 def _to_datetime(days: np.ndarray) -> np.ndarray:

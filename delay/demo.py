@@ -35,6 +35,11 @@ def run_demo(case_path: Path, out_dir: Path, echo: Callable[[str], None] = print
         summary = summarise(case)
         (folder / "case_summary.json").write_text(json.dumps(summary, indent=2), encoding="utf-8")
         written.append(out_dir / "case_summary.json")
+        from .checks import run_all
+
+        (folder / "checks.json").write_text(json.dumps(run_all(case), indent=2), encoding="utf-8")
+        written.append(out_dir / "checks.json")
+        echo("Checked the programmes' quality, the records and the model links (checks.json)")
 
         schedules = folder / "schedules"
         schedules.mkdir()

@@ -1,0 +1,129 @@
+"""Is each programme fit to use, and what changed between them?
+
+Four families of checks, run before any delay method is trusted:
+
+- :func:`quality_metrics` - the fourteen-point schedule assessment of one snapshot
+  (DCMA-EA PAM 200.1, October 2012, section 4, thresholds as recalled), each metric with
+  its count, denominator, percentage, threshold, verdict and offending activities;
+- :func:`data_checks` - forensic checks of the records: open ends, dangling starts and
+  finishes, actual dates that change between updates or are entered after their period,
+  out-of-sequence progress, redundant links, and the analyst's disclosed corrections;
+- :func:`compare` - every change from one snapshot to another, with the order in which a
+  windows analysis applies the revisions (:data:`REVISION_ORDER`);
+- :func:`element_checks` - model elements against the programme: unlinked elements,
+  unmodelled activities, suspected duplicate elements.
+
+:func:`check_snapshot` gathers the first, second and fourth for one snapshot in the JSON form
+of ``delay check``; :func:`run_all` does it for every snapshot and compares each snapshot
+with the one before.
+
+Example
+-------
+>>> from delay.case import load_case                          # doctest: +SKIP
+>>> from delay.checks import quality_metrics, compare         # doctest: +SKIP
+>>> case = load_case("case_demo")                             # doctest: +SKIP
+>>> quality_metrics(case, "2025-06-30")[["key", "passed"]]    # doctest: +SKIP
+>>> compare(case, "2025-05-31", "2025-06-30").counts()        # doctest: +SKIP
+"""
+
+from __future__ import annotations
+
+from typing import Any
+
+from ..model import Case, Snapshot
+from ._common import contract_completion_in_force, ordered_snapshots, resolve, scheduled
+from .changes import CHANGE_COLUMNS, CHANGE_KINDS, REVISION_KINDS, REVISION_ORDER, Comparison, compare
+from .forensic import DATA_CHECK_KEYS, DataCheck, data_checks
+from .elements import ElementChecks, element_checks
+from .quality import METRIC_COLUMNS, METRIC_KEYS, Metric, metric_list, quality_metrics
+from .redundancy import Redundancy, redundant_links
+
+__all__ = [
+    "quality_metrics",
+    "metric_list",
+    "data_checks",
+    "compare",
+    "element_checks",
+    "check_snapshot",
+    "run_all",
+    "contract_completion_in_force",
+    "Metric",
+    "DataCheck",
+    "Comparison",
+    "ElementChecks",
+    "Redundancy",
+    "redundant_links",
+    "METRIC_KEYS",
+    "METRIC_COLUMNS",
+    "DATA_CHECK_KEYS",
+    "CHANGE_KINDS",
+    "CHANGE_COLUMNS",
+    "REVISION_ORDER",
+    "REVISION_KINDS",
+]
+
+
+def check_snapshot(case: Case, snapshot: str | Snapshot = "baseline") -> dict[str, Any]:
+    """Every check of one snapshot, ready for ``json.dumps`` (the form ``delay check`` prints).
+
+    Parameters
+    ----------
+    case:
+        A loaded case.
+    snapshot:
+        Folder name, label, ``"asbuilt"``, or a Snapshot.
+
+    Returns
+    -------
+    dict
+        ``snapshot`` (label), ``folder``, ``kind``, ``data_date``, ``completion`` (forecast),
+        ``contract_completion_in_force``, ``metrics`` (one object per metric of
+        :data:`METRIC_KEYS`: ``key, title, count, denominator, percent, threshold, passed,
+        activities, unit, note``), ``data_checks`` (one object per check of
+        :data:`DATA_CHECK_KEYS`: ``key, title, status, count, note, items``) and
+        ``elements`` (``unlinked_elements``, ``unmodelled_activities``, ``duplicates``).
+
+    Raises
+    ------
+    CaseError
+        For an unknown snapshot.
+    """
+    snap = resolve(case, snapshot)
+    result = scheduled(case, snap)
+    return {
+        "snapshot": snap.label,
+        "folder": snap.folder,
+        "kind": snap.kind,
+        "data_date": snap.data_date.isoformat(),
+        "completion": result.completion.isoformat(),
+        "contract_completion_in_force": contract_completion_in_force(case).isoformat(),
+        "metrics": [m.to_json() for m in metric_list(case, snap)],
+        "data_checks": [c.to_json() for c in data_checks(case, snap)],
+        "elements": element_checks(case, snap).to_json(),
+    }
+
+
+def run_all(case: Case) -> dict[str, Any]:
+    """Every check of every snapshot, and each snapshot compared with the one before.
+
+    Parameters
+    ----------
+    case:
+        A loaded case.
+
+    Returns
+    -------
+    dict
+        Ready for ``json.dumps``: ``project``, ``contract_completion_in_force``,
+        ``snapshots`` (a :func:`check_snapshot` object per snapshot: baseline, updates by
+        data date, then the as-built snapshot when there is one) and ``comparisons`` (the
+        :meth:`Comparison.to_json` of each snapshot against the one before it).
+    """
+    snapshots = ordered_snapshots(case)
+    return {
+        "project": case.settings.project.name,
+        "contract_completion_in_force": contract_completion_in_force(case).isoformat(),
+        "snapshots": [check_snapshot(case, snap) for snap in snapshots],
+        "comparisons": [compare(case, earlier, later).to_json()
+                        for earlier, later in zip(snapshots, snapshots[1:])],
+    }

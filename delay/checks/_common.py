@@ -1,0 +1,152 @@
+"""What the check families share: finding snapshots, scheduling each once, JSON-ready values.
+
+A check never reloads the case or rebuilds a snapshot's network twice: :func:`scheduled`
+keeps, per loaded case, the compiled model and the schedule of every snapshot it has been
+asked for. A loaded :class:`~delay.model.Case` never changes, so what is kept stays right
+for as long as the case lives (the store is a weak mapping: it goes with the case).
+"""
+
+from __future__ import annotations
+
+import datetime as dt
+import math
+import weakref
+from typing import Any
+
+import numpy as np
+import pandas as pd
+
+from ..cpm import ScheduleModel, ScheduleResult, calendars_of, prepare
+from ..errors import CaseError, Problem
+from ..model import Case, Snapshot
+
+__all__ = [
+    "resolve",
+    "ordered_snapshots",
+    "previous_snapshot",
+    "scheduled",
+    "model_of",
+    "contract_completion_in_force",
+    "jsonable",
+    "frame_records",
+    "link_keys",
+]
+
+_MODELS: "weakref.WeakKeyDictionary[Case, dict[str, ScheduleModel]]" = weakref.WeakKeyDictionary()
+_RESULTS: "weakref.WeakKeyDictionary[Case, dict[str, ScheduleResult]]" = weakref.WeakKeyDictionary()
+
+
+def resolve(case: Case, snapshot: str | Snapshot) -> Snapshot:
+    """The snapshot named by folder or label (``"asbuilt"`` for the as-built record).
+
+    Raises
+    ------
+    CaseError
+        When the case has no snapshot of that name; the message lists the known folders.
+    """
+    if isinstance(snapshot, Snapshot):
+        return snapshot
+    try:
+        return case.snapshot(str(snapshot))
+    except KeyError as error:
+        raise CaseError(Problem(file="snapshots/", message=str(error.args[0]),
+                                fix="name a folder under snapshots/, a snapshot's label, "
+                                    "or asbuilt")) from None
+
+
+def ordered_snapshots(case: Case) -> list[Snapshot]:
+    """Baseline, updates by data date, then the as-built snapshot when the case has one."""
+    snapshots = list(case.snapshots)
+    if case.asbuilt_snapshot is not None:
+        snapshots.append(case.asbuilt_snapshot)
+    return snapshots
+
+
+def previous_snapshot(case: Case, snap: Snapshot) -> Snapshot | None:
+    """The snapshot just before ``snap`` in :func:`ordered_snapshots` order, or ``None``."""
+    snapshots = ordered_snapshots(case)
+    for position, other in enumerate(snapshots):
+        if other.folder == snap.folder and other.kind == snap.kind:
+            return snapshots[position - 1] if position else None
+    return None
+
+
+def model_of(case: Case, snap: Snapshot) -> ScheduleModel:
+    """The snapshot compiled once for scheduling (case settings, the case's calendars)."""
+    models = _MODELS.setdefault(case, {})
+    key = _key(snap)
+    if key not in models:
+        models[key] = prepare(case, snap, calendars=calendars_of(case))
+    return models[key]
+
+
+def scheduled(case: Case, snap: Snapshot) -> ScheduleResult:
+    """The schedule of a snapshot under the case's own settings, computed once per case."""
+    results = _RESULTS.setdefault(case, {})
+    key = _key(snap)
+    if key not in results:
+        results[key] = model_of(case, snap).run()
+    return results[key]
+
+
+def _key(snap: Snapshot) -> str:
+    return f"{snap.kind}:{snap.folder}"
+
+
+def contract_completion_in_force(case: Case) -> dt.date:
+    """The contract completion date in force for the whole of the works.
+
+    case.toml's ``contract_completion`` plus the calendar days of every row of
+    extensions_granted.csv that names no section (an extension for a section moves that
+    section's date, not the whole works').
+    """
+    granted = case.extensions_granted
+    whole_works = granted[granted["section"].fillna("").astype(str).str.strip() == ""]
+    days = float(whole_works["days"].fillna(0).sum())
+    return case.settings.project.contract_completion + dt.timedelta(days=int(round(days)))
+
+
+def link_keys(pred: np.ndarray, succ: np.ndarray) -> list[str]:
+    """Links written ``pred>succ``, the case format's key of a link (corrections.csv)."""
+    return [f"{p}>{s}" for p, s in zip(pred, succ)]
+
+
+def jsonable(value: Any) -> Any:
+    """A value ready for ``json.dumps``: numpy scalars to Python, dates to ISO text,
+    missing values (NaN, NaT, NA) to ``None``."""
+    if value is None:
+        return None
+    if isinstance(value, (str, bool)):
+        return value
+    if isinstance(value, (np.bool_,)):
+        return bool(value)
+    if isinstance(value, (int, np.integer)):
+        return int(value)
+    if isinstance(value, (float, np.floating)):
+        return None if math.isnan(value) else float(value)
+    if isinstance(value, pd.Timestamp):
+        return None if pd.isna(value) else value.date().isoformat()
+    if isinstance(value, np.datetime64):
+        return None if np.isnat(value) else str(value.astype("datetime64[D]"))
+    if isinstance(value, dt.datetime):
+        return value.date().isoformat()
+    if isinstance(value, dt.date):
+        return value.isoformat()
+    if isinstance(value, dict):
+        return {str(k): jsonable(v) for k, v in value.items()}
+    if isinstance(value, (list, tuple, np.ndarray)):
+        return [jsonable(v) for v in value]
+    if value is pd.NA or value is pd.NaT:
+        return None
+    try:
+        if pd.isna(value):
+            return None
+    except (TypeError, ValueError):
+        pass
+    return str(value)
+
+
+def frame_records(frame: pd.DataFrame) -> list[dict[str, Any]]:
+    """A DataFrame's rows as JSON-ready dictionaries (column order kept)."""
+    columns = list(frame.columns)
+    return [{c: jsonable(v) for c, v in zip(columns, row)} for row in frame.itertuples(index=False)]
