@@ -95,8 +95,8 @@ def analyse(case: Case) -> TimeImpactResult:
         if not len(group):
             continue
         model = prepare(case, snap, calendars=calendars)
-        before = model.completion()
-        frame, final_day, _ = run_events(case, snap, model, group.reset_index(drop=True), snap.folder)
+        frame, base_day, final_day, _ = run_events(case, snap, model, group.reset_index(drop=True), snap.folder)
+        before = dt.date(1970, 1, 1) + dt.timedelta(days=int(base_day))
         frames.append(frame.assign(snapshot=snap.folder, completion_before=before))
         after = dt.date(1970, 1, 1) + dt.timedelta(days=int(final_day))
         updates.append({"snapshot": snap.folder, "data_date": snap.data_date, "completion_before": before,

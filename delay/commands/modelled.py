@@ -1,0 +1,130 @@
+"""``delay impact`` and ``delay tia``: the modelled methods, events inserted into a programme.
+
+``impact`` is the impacted as-planned analysis (:mod:`delay.methods.impacted`): the events of
+the register inserted into one programme, each alone and then one after another. ``tia`` is
+the time impact analysis (:mod:`delay.methods.time_impact`): each event inserted into the
+update current when it began and measured against that update's completion.
+"""
+
+from __future__ import annotations
+
+import json
+
+import click
+
+from .common import load_case_argument, print_table, reports_input_errors
+
+__all__ = ["impact", "tia", "COMMANDS"]
+
+CAUTION = ("Results depend on the records and on the method chosen; they are not legal advice. "
+           "The contract, the applicable law and the analyst's professional judgement govern.")
+
+ALONE_NOTE = ("Impacts alone need not add up: events on parallel paths overlap and one event can hide "
+              "behind another. Increments add up to the cumulative impact.")
+
+
+def _event_ids(text: str | None) -> list[str] | None:
+    if not text:
+        return None
+    ids = [part.strip() for part in text.split(",") if part.strip()]
+    return ids or None
+
+
+def _listed(values) -> str:
+    if isinstance(values, str):
+        return values
+    return ", ".join(str(v) for v in values)
+
+
+def _day(value) -> str:
+    """An ISO date, blank for none."""
+    import pandas as pd
+
+    return "" if value is None or pd.isna(value) else pd.Timestamp(value).date().isoformat()
+
+
+@click.command()
+@click.argument("case", type=click.Path(exists=True))
+@click.option("--events", "event_ids", default=None, metavar="E1,E2,...",
+              help="Event ids to insert, comma separated; default every event of the register.")
+@click.option("--order", type=click.Choice(["chronological", "as-listed"]), default="chronological",
+              show_default=True,
+              help="Order of insertion in the cumulative run: by start, finish and register row, or "
+                   "as listed in --events (else as in the register).")
+@click.option("--base", default="baseline", show_default=True, metavar="LABEL",
+              help="The programme to impact: a folder under snapshots/ or a snapshot's label.")
+@click.option("--format", "output_format", type=click.Choice(["table", "json"]), default="table",
+              show_default=True)
+@reports_input_errors
+def impact(case, event_ids, order, base, output_format):
+    """Impacted as-planned: the delay events inserted into one programme.
+
+    Each event is modelled in the base programme (extend: work days added to the affected
+    activities; hold: they start no earlier than the day after the event's finish; fragnet:
+    the event's activities and links inserted) and the programme is re-scheduled. Its impact
+    alone is the movement of completion with that event only; its increment is what it adds
+    when the events are inserted one after another. Days are calendar days; positive is
+    delay.
+    """
+    from ..methods.impacted import analyse
+
+    result = analyse(load_case_argument(case), base=base, events=_event_ids(event_ids), order=order)
+    if output_format == "json":
+        click.echo(json.dumps(result.to_json(), indent=2))
+        return
+    rows = [[r.id, r.title, r.party, r.impact, _day(r.start), _day(r.finish), r.alone_days, r.alone_work_days,
+             r.completion_alone, r.cumulative_days, r.cumulative_work_days, r.completion_after, r.applied]
+            for r in result.events.itertuples(index=False)]
+    print_table(f"Impacted as-planned on {result.base} (calendar days; positive is delay; order {result.order})",
+                ["event", "title", "party", "impact", "start", "finish", "alone", "alone (work days)",
+                 "completion alone", "increment", "increment (work days)", "completion after", "applied"], rows)
+    print_table("By party (alone: the party's events together, without the others)",
+                ["party", "events", "alone", "increments"],
+                [[r.party, _listed(r.events), r.alone_days, r.cumulative_days]
+                 for r in result.by_party.itertuples(index=False)])
+    if not len(result.events):
+        click.echo("No events to insert: the register is empty.")
+    click.echo(ALONE_NOTE)
+    click.echo(f"Completion of {result.base} {result.completion_base}, with the events "
+               f"{result.completion_cumulative}: {result.total_days} calendar days. {CAUTION}")
+
+
+@click.command()
+@click.argument("case", type=click.Path(exists=True))
+@click.option("--format", "output_format", type=click.Choice(["table", "json"]), default="table",
+              show_default=True)
+@reports_input_errors
+def tia(case, output_format):
+    """Time impact analysis: each event inserted into the update current when it began.
+
+    The current update of an event is the last programme (baseline or progress update) whose
+    data date is on or before the event's start. Each event is modelled there as `delay
+    impact` models it and measured against that update's own completion; events sharing an
+    update are inserted one after another in chronological order. Days are calendar days;
+    positive is delay.
+    """
+    from ..methods.time_impact import analyse
+
+    result = analyse(load_case_argument(case))
+    if output_format == "json":
+        click.echo(json.dumps(result.to_json(), indent=2))
+        return
+    print_table("Updates used (calendar days; positive is delay)",
+                ["update", "data date", "completion before", "completion after", "events", "cumulative impact"],
+                [[r.snapshot, r.data_date, r.completion_before, r.completion_after, _listed(r.events),
+                  r.cumulative_days] for r in result.updates.itertuples(index=False)])
+    rows = [[r.id, r.title, r.party, r.impact, _day(r.start), r.snapshot, r.completion_before, r.alone_days,
+             r.cumulative_days, r.cumulative_work_days, r.completion_after, r.applied]
+            for r in result.events.itertuples(index=False)]
+    print_table("Events, each in the update current when it began",
+                ["event", "title", "party", "impact", "start", "update", "completion before", "alone",
+                 "increment", "increment (work days)", "completion after", "applied"], rows)
+    print_table("By party (increments summed)", ["party", "increments"],
+                [[r.party, r.cumulative_days] for r in result.by_party.itertuples(index=False)])
+    if not len(result.events):
+        click.echo("No events to insert: the register is empty.")
+    click.echo(ALONE_NOTE)
+    click.echo(f"Total of the cumulative impacts over the updates: {result.total_days} calendar days. {CAUTION}")
+
+
+COMMANDS = (impact, tia)
