@@ -16,6 +16,10 @@ EXIT_INPUT = 2
 
 FORMAT = click.Choice(["table", "csv", "json"])
 
+#: Columns of free text: they wrap at a width of their own so the others keep theirs.
+WIDE_COLUMNS = {"name", "title", "label", "reason", "note", "notes", "removed", "events", "activities",
+                "concurrent with", "offending", "applied", "not_scored"}
+
 
 def _fail(lines: list[str]) -> None:
     for line in lines:
@@ -62,9 +66,8 @@ def print_table(title: str, columns: list[str], rows: list[list], out=None) -> N
 
     table = Table(title=title, title_justify="left", header_style="bold")
     for column in columns:
-        wide = column in ("name", "title", "label")
-        table.add_column(column, overflow="ellipsis" if wide else "fold", max_width=40 if wide else None,
-                         no_wrap=not wide)
+        wide = column in WIDE_COLUMNS
+        table.add_column(column, overflow="fold", max_width=48 if wide else None, no_wrap=not wide)
     for row in rows:
         table.add_row(*("" if v is None else str(v) for v in row))
     (out or _console()).print(table)

@@ -90,4 +90,49 @@ def asbuilt(case, period, output_format):
                f"{result.completion_variance_days} calendar days late. {CAUTION}")
 
 
-COMMANDS = (windows, asbuilt)
+@click.command()
+@click.argument("case", type=click.Path(exists=True))
+@click.option("--format", "output_format", type=click.Choice(["table", "json"]), default="table", show_default=True)
+@reports_input_errors
+def butfor(case, output_format):
+    """Collapsed as-built: when would the works have finished but for each party's events?
+
+    Builds an as-built model from actual durations and the last update's logic (the gaps
+    before each activity's actual start kept as lags), checks that it reproduces the actual
+    dates (and lists the activities it cannot, with the reason), then removes each party's
+    delay events, and each event alone, and schedules again. But-for figures need not add
+    up: removing one party's delay can leave another's in its place.
+    """
+    from ..methods.collapsed import analyse
+
+    result = analyse(load_case_argument(case))
+    if output_format == "json":
+        click.echo(json.dumps(result.to_json(), indent=2))
+        return
+    click.echo(f"Actual completion {result.actual_completion}; the as-built model "
+               f"{'reproduces every actual date' if result.reproduced else 'does not reproduce every actual date'}.")
+    if len(result.mismatches):
+        print_table("Activities the as-built model does not place on their actual dates",
+                    list(result.mismatches.columns), [[_plain(v) for v in row] for row in result.mismatches.itertuples(index=False)])
+    print_table("But for each party's events", list(result.by_party.columns),
+                [[_plain(v) for v in row] for row in result.by_party.itertuples(index=False)])
+    print_table("But for each event alone", list(result.by_event.columns),
+                [[_plain(v) for v in row] for row in result.by_event.itertuples(index=False)])
+    for note in result.notes:
+        click.echo(note)
+    click.echo(CAUTION)
+
+
+def _plain(value):
+    import pandas as pd
+
+    if isinstance(value, (list, tuple)):
+        return ", ".join(map(str, value))
+    if value is None or (not isinstance(value, str) and pd.isna(value)):
+        return ""
+    if isinstance(value, pd.Timestamp):
+        return value.date().isoformat()
+    return value
+
+
+COMMANDS = (windows, asbuilt, butfor)
