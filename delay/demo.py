@@ -62,6 +62,15 @@ def run_demo(case_path: Path, out_dir: Path, echo: Callable[[str], None] = print
         pd.DataFrame(trend).to_csv(folder / "completion_by_snapshot.csv", index=False)
         written.append(out_dir / "completion_by_snapshot.csv")
         written += _retrospective(case, folder, out_dir, echo)
+        from .ifc import available
+
+        if available():
+            from .ifc import demo_outputs
+
+            ifc_files = demo_outputs(case, folder)
+            written += [out_dir / p.relative_to(folder) for p in ifc_files]
+            if ifc_files:
+                echo(f"IFC: the demo model imported and the baseline exported as a work schedule ({len(ifc_files)} files)")
     return written
 
 

@@ -24,12 +24,19 @@ def write_bytes(path: str | Path, data: bytes) -> Path:
     try:
         with os.fdopen(handle, "wb") as stream:
             stream.write(data)
+        os.chmod(temporary, 0o666 & ~_umask())  # mkstemp makes 0600; give the usual mode
         os.replace(temporary, path)
     except BaseException:
         with contextlib.suppress(FileNotFoundError):
             os.unlink(temporary)
         raise
     return path
+
+
+def _umask() -> int:
+    current = os.umask(0)
+    os.umask(current)
+    return current
 
 
 def write_text(path: str | Path, text: str) -> Path:

@@ -1,0 +1,213 @@
+"""What the IFC readers and writers share: findings, ISO 8601 times, checks in a copy.
+
+Nothing here imports ifcopenshell.
+"""
+
+from __future__ import annotations
+
+import datetime as dt
+import hashlib
+import re
+import shutil
+import tempfile
+from dataclasses import dataclass
+from pathlib import Path
+from typing import Iterable, Mapping
+
+import pandas as pd
+
+from ..errors import CaseError, Problem
+
+__all__ = [
+    "FINDING_COLUMNS",
+    "Findings",
+    "IsoDuration",
+    "parse_duration",
+    "work_days_duration",
+    "parse_date",
+    "date_time_text",
+    "open_model",
+    "case_folder",
+    "sha256_of",
+    "validate_in_copy",
+    "SCHEDULING_PSET",
+    "ELEMENT_PSET",
+]
+
+#: Our own property sets: what IfcTaskTime and IfcTask cannot hold, and placeholder facts.
+SCHEDULING_PSET = "DelayToolkit_Scheduling"
+ELEMENT_PSET = "DelayToolkit_Element"
+
+#: Columns of every findings table (a finding is a fact worth a look, not an error).
+FINDING_COLUMNS = ("kind", "entity", "global_id", "subject", "message")
+
+
+class Findings:
+    """Findings collected while reading or writing a file, in the order they were found."""
+
+    def __init__(self) -> None:
+        self.rows: list[dict[str, str]] = []
+
+    def add(self, kind: str, message: str, entity=None, subject: str = "") -> None:
+        """One finding; ``entity`` is an ifcopenshell entity (named ``#id IfcClass``) or None."""
+        label, global_id = "", ""
+        if entity is not None:
+            label = f"#{entity.id()} {entity.is_a()}"
+            global_id = str(getattr(entity, "GlobalId", "") or "")
+        self.rows.append({"kind": kind, "entity": label, "global_id": global_id,
+                          "subject": str(subject or ""), "message": message})
+
+    def frame(self) -> pd.DataFrame:
+        return pd.DataFrame(self.rows, columns=list(FINDING_COLUMNS)).astype(str)
+
+    def __len__(self) -> int:
+        return len(self.rows)
+
+
+# -- ISO 8601 durations and dates ---------------------------------------------------------------
+_DURATION = re.compile(
+    r"^(?P<sign>[-+])?P(?!$)(?:(?P<years>\d+(?:[.,]\d+)?)Y)?(?:(?P<months>\d+(?:[.,]\d+)?)M)?"
+    r"(?:(?P<weeks>\d+(?:[.,]\d+)?)W)?(?:(?P<days>\d+(?:[.,]\d+)?)D)?"
+    r"(?:T(?=\d)(?:(?P<hours>\d+(?:[.,]\d+)?)H)?(?:(?P<minutes>\d+(?:[.,]\d+)?)M)?"
+    r"(?:(?P<seconds>\d+(?:[.,]\d+)?)S)?)?$"
+)
+
+
+@dataclass(frozen=True)
+class IsoDuration:
+    """An ISO 8601 duration (``IfcDuration``) split into its parts; ``sign`` is +1 or -1.
+
+    ISO 8601 itself has no negative durations; IFC files carry a lead as ``-P2D``
+    (common practice), which is read here with ``sign = -1``.
+    """
+
+    sign: int = 1
+    years: float = 0.0
+    months: float = 0.0
+    weeks: float = 0.0
+    days: float = 0.0
+    hours: float = 0.0
+    minutes: float = 0.0
+    seconds: float = 0.0
+
+    @property
+    def has_calendar_parts(self) -> bool:
+        """Years or months, which have no fixed length in days."""
+        return bool(self.years or self.months)
+
+    @property
+    def has_time_parts(self) -> bool:
+        return bool(self.hours or self.minutes or self.seconds)
+
+
+def parse_duration(text: str) -> IsoDuration | None:
+    """``"P5D"`` -> ``IsoDuration(days=5)``; ``None`` when ``text`` is not an ISO 8601 duration.
+
+    >>> parse_duration("-P1W2DT4H").weeks, parse_duration("-P1W2DT4H").sign
+    (1.0, -1)
+    """
+    found = _DURATION.match(str(text).strip().upper())
+    if not found:
+        return None
+    parts = {k: float(v.replace(",", ".")) for k, v in found.groupdict().items() if k != "sign" and v}
+    return IsoDuration(sign=-1 if found.group("sign") == "-" else 1, **parts)
+
+
+def work_days_duration(days: int) -> str:
+    """Whole work days as an ``IfcDuration``: ``3 -> "P3D"``, ``-2 -> "-P2D"``, ``0 -> "P0D"``."""
+    days = int(days)
+    return f"-P{-days}D" if days < 0 else f"P{days}D"
+
+
+def parse_date(text) -> dt.date | None:
+    """The date of an ``IfcDateTime`` or ``IfcDate`` (``2025-03-03T08:00:00`` -> 2025-03-03).
+
+    Returns None for a blank or unreadable value.
+    """
+    if text is None:
+        return None
+    value = str(text).strip()
+    if not value:
+        return None
+    try:
+        return dt.date.fromisoformat(value[:10])
+    except ValueError:
+        return None
+
+
+def date_time_text(day: dt.date, time: str) -> str:
+    """An ``IfcDateTime``: the date with the time of day ``time`` (``"08:00:00"``)."""
+    return f"{day.isoformat()}T{time}"
+
+
+# -- files --------------------------------------------------------------------------------------
+def open_model(path: str | Path):
+    """Open an IFC file with ifcopenshell; a file that cannot be read is a CaseError."""
+    from . import require_ifcopenshell
+
+    ifcopenshell = require_ifcopenshell()
+    path = Path(path)
+    if not path.is_file():
+        raise CaseError(Problem(file=str(path), message="the IFC file does not exist",
+                                fix="give the path of the .ifc file"))
+    try:
+        return ifcopenshell.open(str(path))
+    except Exception as error:  # ifcopenshell raises several kinds for a broken file
+        detail = str(error).strip().splitlines()[0] if str(error).strip() else type(error).__name__
+        raise CaseError(Problem(file=str(path), message=f"cannot be read as an IFC file ({detail})",
+                                fix="export the model again as an IFC file (STEP physical file, .ifc)")) from None
+
+
+def case_folder(case) -> Path:
+    """The folder of a loaded case; a workbook case cannot take files written beside it."""
+    root = Path(case.root)
+    if root.is_file() or not (root / "case.toml").is_file():
+        raise CaseError(Problem(
+            file=str(root), message="the IFC commands write into a case folder, and this case is a workbook",
+            fix="use the case in folder form (case.toml, calendars.csv, snapshots/...)"))
+    return root
+
+
+def sha256_of(path: str | Path) -> str:
+    digest = hashlib.sha256()
+    with open(path, "rb") as stream:
+        for block in iter(lambda: stream.read(1 << 20), b""):
+            digest.update(block)
+    return digest.hexdigest()
+
+
+def validate_in_copy(case_root: Path, files: Mapping[str, bytes], snapshots: Iterable[str] = ("baseline",)):
+    """Load a copy of the case's settings, calendars and ``snapshots`` with ``files`` laid over.
+
+    Checks what a command is about to write before anything is written: the copy holds
+    case.toml, calendars.csv, calendar_exceptions.csv and the named snapshot folders; then
+    each entry of ``files`` (path relative to the case -> content) is written into it.
+    Problems name the files relative to the case, so they read as they would after writing.
+
+    Returns
+    -------
+    Case
+        The loaded copy (its root is a temporary folder that no longer exists).
+
+    Raises
+    ------
+    CaseError
+        When the copy does not load.
+    """
+    from ..case import load_case
+
+    with tempfile.TemporaryDirectory(prefix="delay-ifc-check-") as folder:
+        copy = Path(folder) / "case"
+        copy.mkdir()
+        for name in ("case.toml", "calendars.csv", "calendar_exceptions.csv"):
+            if (case_root / name).is_file():
+                shutil.copy2(case_root / name, copy / name)
+        for snapshot in snapshots:
+            source = case_root / "snapshots" / snapshot
+            if source.is_dir():
+                shutil.copytree(source, copy / "snapshots" / snapshot)
+        for relative, content in files.items():
+            target = copy / relative
+            target.parent.mkdir(parents=True, exist_ok=True)
+            target.write_bytes(content)
+        return load_case(copy)

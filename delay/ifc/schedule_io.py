@@ -1,0 +1,948 @@
+"""An IFC work schedule read into a snapshot folder of a case.
+
+A programme exchanged in the open standard is an ``IfcWorkSchedule`` whose tasks are
+assigned to it (``IfcRelAssignsToControl``), nested into summary tasks (``IfcRelNests``),
+timed (``IfcTaskTime``), linked (``IfcRelSequence`` with an ``IfcLagTime``) and worked on
+calendars (``IfcWorkCalendar`` assigned to the tasks). What the standard holds is mapped
+onto case-format v1 like this:
+
+==============================================  =============================================
+IFC                                             snapshot
+==============================================  =============================================
+``IfcTask.Identification``                      ``id`` (the GlobalId when there is none)
+``IfcTask.Name``                                ``name``
+``IfcTaskTime.ScheduleDuration``                ``duration``, work days (``P5D``; weeks count
+                                                the calendar's working weekdays, hours the
+                                                calendar's working hours a day, else 8)
+``IfcTaskTime.ActualStart / ActualFinish``      ``actual_start`` / ``actual_finish`` (dates)
+``IfcTaskTime.RemainingTime``                   ``remaining``, work days
+``IfcTask.IsMilestone``                         ``kind`` (start milestone without a
+                                                predecessor, else finish milestone)
+``IfcRelSequence.SequenceType``                 ``type``: START_START SS, FINISH_START FS,
+                                                FINISH_FINISH FF, START_FINISH SF
+``IfcRelSequence.TimeLag`` (``IfcLagTime``)     ``lag``, work days (negative: a lead)
+``IfcWorkCalendar``                             a calendar of calendars.csv: weekly working
+                                                times -> ``workdays``; dated working times ->
+                                                extra working days, exception times ->
+                                                holidays in calendar_exceptions.csv
+property set ``DelayToolkit_Scheduling``        ``kind``, ``constraint``, ``constraint_date``,
+(our own, written by ``delay export-ifc``)      ``party``, ``wbs``; on the work schedule the
+                                                data date, label and kind of the snapshot
+==============================================  =============================================
+
+Everything else, and everything that had to be approximated (durations in months, elapsed
+time, ratio lags, links to summary tasks, ...), is a *finding*: listed, and written into
+the snapshot folder as ``ifc_findings.csv``. The ``wbs`` of a task without our property
+set is the Identification of the summary task it is nested in.
+
+References
+----------
+ISO 16739-1:2018 (IFC 4): IfcWorkSchedule, IfcTask, IfcTaskTime, IfcRelSequence,
+IfcSequenceEnum, IfcLagTime, IfcTaskDurationEnum, IfcWorkCalendar, IfcWorkTime,
+IfcRecurrencePattern. ISO 8601-1:2019 for durations (``P5D``) and dates.
+"""
+
+from __future__ import annotations
+
+import datetime as dt
+import io
+import json
+import re
+from collections import defaultdict
+from dataclasses import dataclass, field
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+
+from ..errors import CaseError, Problem
+from ..model import ACTIVITY_KINDS, COLUMNS, CONSTRAINTS, WEEKDAYS
+from ..output import replace_directory, write_bytes
+from ._common import (
+    SCHEDULING_PSET,
+    Findings,
+    IsoDuration,
+    case_folder,
+    open_model,
+    parse_date,
+    parse_duration,
+    validate_in_copy,
+)
+
+__all__ = [
+    "CalendarRead",
+    "WorkScheduleRead",
+    "ScheduleImport",
+    "read_work_schedule",
+    "import_work_schedule",
+    "SEQUENCE_TYPES",
+    "FINDINGS_FILE",
+    "HOURS_PER_WORK_DAY",
+]
+
+#: IfcSequenceEnum -> link type of the case format.
+SEQUENCE_TYPES = {"START_START": "SS", "FINISH_START": "FS", "FINISH_FINISH": "FF", "START_FINISH": "SF"}
+#: Written into the snapshot folder.
+FINDINGS_FILE = "ifc_findings.csv"
+#: Working hours of a day when the calendar gives none (common practice).
+HOURS_PER_WORK_DAY = 8.0
+_RECURRING_YEARS_AFTER = 5  # a yearly exception is written out to this many years after the last task date
+
+
+@dataclass
+class CalendarRead:
+    """One ``IfcWorkCalendar`` as the case format holds calendars.
+
+    ``weekmask`` is Monday first; ``holidays`` and ``extra_workdays`` map a date to its
+    reason (the ``IfcWorkTime`` Name). ``hours_per_day`` comes from the time periods of the
+    weekly working time, else :data:`HOURS_PER_WORK_DAY`.
+    """
+
+    name: str
+    weekmask: tuple[bool, ...]
+    holidays: dict[dt.date, str] = field(default_factory=dict)
+    extra_workdays: dict[dt.date, str] = field(default_factory=dict)
+    hours_per_day: float = HOURS_PER_WORK_DAY
+    global_id: str = ""
+
+    @property
+    def workdays(self) -> str:
+        return " ".join(day for day, on in zip(WEEKDAYS, self.weekmask) if on)
+
+    @property
+    def workdays_per_week(self) -> int:
+        return int(sum(self.weekmask))
+
+    def effective(self) -> tuple[tuple[bool, ...], frozenset, frozenset]:
+        """The calendar as the work days it gives: weekmask, holidays that fall on working
+        weekdays, extra working days that fall on other weekdays (for comparing calendars)."""
+        holidays = frozenset(d for d in self.holidays if self.weekmask[d.weekday()] and d not in self.extra_workdays)
+        extra = frozenset(d for d in self.extra_workdays if not self.weekmask[d.weekday()] and d not in self.holidays)
+        return self.weekmask, holidays, extra
+
+    def is_workday(self, day: dt.date) -> bool:
+        if day in self.holidays:
+            return False
+        return day in self.extra_workdays or self.weekmask[day.weekday()]
+
+    def count(self, first: dt.date, last: dt.date) -> int:
+        """Work days from ``first`` to ``last``, both included."""
+        if last < first:
+            return 0
+        end = np.datetime64(last, "D") + 1
+        weekly = 0
+        if any(self.weekmask):
+            weekly = int(np.busday_count(np.datetime64(first, "D"), end, weekmask=list(self.weekmask),
+                                         holidays=[np.datetime64(d, "D") for d in self.holidays]))
+        extra = sum(1 for d in self.extra_workdays if first <= d <= last and not self.weekmask[d.weekday()]
+                    and d not in self.holidays)
+        return weekly + extra
+
+
+@dataclass(frozen=True)
+class WorkScheduleRead:
+    """What :func:`read_work_schedule` found.
+
+    Attributes
+    ----------
+    name: the work schedule's Name.
+    activities: columns ``COLUMNS["activities"]``, every cell text as it will be written.
+    links: ``pred, succ, type, lag`` as text.
+    calendars: the calendars the tasks use, by name (:class:`CalendarRead`).
+    data_date: the data date the file gives (our property set, else the tasks' common
+        StatusTime), or None.
+    facts: the values of our property set on the work schedule (``DataDate``,
+        ``SnapshotLabel``, ``SnapshotKind``, ...).
+    start_time: the date of the work schedule's StartTime.
+    file_dates: ``id, start, finish`` as the file schedules them (EarlyStart/EarlyFinish,
+        else ScheduleStart/ScheduleFinish), ``datetime64``.
+    findings: ``kind, entity, global_id, subject, message``.
+    """
+
+    name: str
+    activities: pd.DataFrame
+    links: pd.DataFrame
+    calendars: dict[str, CalendarRead]
+    data_date: dt.date | None
+    facts: dict
+    file_dates: pd.DataFrame
+    findings: pd.DataFrame
+    start_time: dt.date | None = None
+
+
+@dataclass(frozen=True)
+class ScheduleImport:
+    """What :func:`import_work_schedule` did: ``read``, the snapshot ``folder`` written,
+    its ``data_date``, ``label`` and ``kind``, ``calendars_added`` (names), ``findings``
+    (the read's findings and the comparison of the file's dates with the toolkit's
+    schedule), and ``written`` paths."""
+
+    read: WorkScheduleRead
+    folder: Path
+    data_date: dt.date
+    label: str
+    kind: str
+    calendars_added: tuple[str, ...]
+    findings: pd.DataFrame
+    written: tuple[Path, ...]
+
+
+# -- small readers ---------------------------------------------------------------------------------
+def _value(value):
+    if value is None:
+        return None
+    return value.wrappedValue if hasattr(value, "wrappedValue") else value
+
+
+def _text(value) -> str:
+    value = _value(value)
+    if value is None:
+        return ""
+    if isinstance(value, float) and value.is_integer():
+        return str(int(value))
+    return str(value).strip()
+
+
+def _psets_named(model, name: str) -> dict[int, dict[str, object]]:
+    """Values of the property set ``name`` by entity id of the object it defines."""
+    found: dict[int, dict[str, object]] = {}
+    for rel in model.by_type("IfcRelDefinesByProperties"):
+        definition = rel.RelatingPropertyDefinition
+        sets = list(definition) if isinstance(definition, (list, tuple)) else [definition]
+        for pset in sets:
+            if pset is None or not pset.is_a("IfcPropertySet") or pset.Name != name:
+                continue
+            values = {}
+            for prop in pset.HasProperties or ():
+                if prop.is_a("IfcPropertySingleValue"):
+                    values[prop.Name] = _value(prop.NominalValue)
+            for obj in rel.RelatedObjects or ():
+                found.setdefault(obj.id(), {}).update(values)
+    return found
+
+
+def _assigned_controls(model) -> dict[int, list]:
+    """Controls (work schedules, calendars) each object is assigned to, by entity id."""
+    controls: dict[int, list] = defaultdict(list)
+    for rel in model.by_type("IfcRelAssignsToControl"):
+        for obj in rel.RelatedObjects or ():
+            controls[obj.id()].append(rel.RelatingControl)
+    return controls
+
+
+def _nested(model) -> tuple[dict[int, list], dict[int, object]]:
+    children: dict[int, list] = defaultdict(list)
+    parent: dict[int, object] = {}
+    for rel in model.by_type("IfcRelNests"):
+        whole = rel.RelatingObject
+        if whole is None or not whole.is_a("IfcTask"):
+            continue
+        for part in rel.RelatedObjects or ():
+            if part.is_a("IfcTask"):
+                children[whole.id()].append(part)
+                parent[part.id()] = whole
+    return children, parent
+
+
+def _time_of(text) -> float | None:
+    """Hours of an IfcTime ``08:30:00``."""
+    match = re.match(r"^(\d{1,2}):(\d{2})(?::(\d{2}(?:\.\d+)?))?", str(text or ""))
+    if not match:
+        return None
+    return int(match.group(1)) + int(match.group(2)) / 60 + float(match.group(3) or 0) / 3600
+
+
+def _work_time_dates(work_time) -> tuple[dt.date | None, dt.date | None]:
+    """Start and finish of an IfcWorkTime (IFC 4: Start, Finish; IFC 4.3: StartDate, FinishDate)."""
+    start = getattr(work_time, "Start", None) if hasattr(work_time, "Start") else getattr(work_time, "StartDate", None)
+    finish = getattr(work_time, "Finish", None) if hasattr(work_time, "Finish") else getattr(work_time, "FinishDate", None)
+    return parse_date(start), parse_date(finish)
+
+
+def _dates_of(work_time, pattern, limit_first: dt.date, limit_last: dt.date,
+              findings: Findings, what: str, calendar) -> list[dt.date]:
+    """The dates a dated or recurring IfcWorkTime covers (both ends included)."""
+    start, finish = _work_time_dates(work_time)
+    recurrence = pattern.RecurrenceType if pattern is not None else None
+    if start is None and finish is None:
+        if recurrence == "YEARLY_BY_DAY_OF_MONTH" and pattern.MonthComponent and pattern.DayComponent:
+            days = []
+            for year in range(limit_first.year, limit_last.year + 1):
+                for month in pattern.MonthComponent:
+                    for day in pattern.DayComponent:
+                        try:
+                            days.append(dt.date(year, int(month), int(day)))
+                        except ValueError:
+                            continue
+            findings.add("calendar", f"the recurring {what} '{_text(work_time.Name)}' is written out for the years "
+                                     f"{limit_first.year} to {limit_last.year}", calendar, _text(calendar.Name))
+            return sorted(days)
+        findings.add("calendar", f"the undated {what} '{_text(work_time.Name)}' ({recurrence or 'no pattern'}) "
+                                 "cannot be mapped to dates; it is left out", calendar, _text(calendar.Name))
+        return []
+    if start is None or finish is None:
+        findings.add("calendar", f"the {what} '{_text(work_time.Name)}' has only one end date; it is taken as a "
+                                 "single day", calendar, _text(calendar.Name))
+        start = finish = start or finish
+    if finish < start:
+        findings.add("calendar", f"the {what} '{_text(work_time.Name)}' ends before it starts; it is left out",
+                     calendar, _text(calendar.Name))
+        return []
+    if (finish - start).days > 3660:
+        findings.add("calendar", f"the {what} '{_text(work_time.Name)}' spans more than ten years; it is cut "
+                                 "to ten years", calendar, _text(calendar.Name))
+        finish = start + dt.timedelta(days=3660)
+    days = [start + dt.timedelta(days=k) for k in range((finish - start).days + 1)]
+    if recurrence in (None, "DAILY"):
+        return days
+    if recurrence == "WEEKLY" and pattern.WeekdayComponent:
+        weekdays = {int(d) - 1 for d in pattern.WeekdayComponent}
+        return [d for d in days if d.weekday() in weekdays]
+    findings.add("calendar", f"the {what} '{_text(work_time.Name)}' recurs {recurrence}, which is not mapped; "
+                             "every day of its dates is taken", calendar, _text(calendar.Name))
+    return days
+
+
+def read_calendar(calendar, findings: Findings, first: dt.date, last: dt.date) -> CalendarRead:
+    """One ``IfcWorkCalendar`` as a :class:`CalendarRead`.
+
+    ``first`` and ``last`` bound the years over which a yearly exception is written out.
+    """
+    name = _text(calendar.Name) or _text(calendar.Identification) or f"ifc-{calendar.id()}"
+    mask = [False] * 7
+    dated_working = []
+    hours = None
+    for work_time in calendar.WorkingTimes or ():
+        pattern = work_time.RecurrencePattern
+        if any(_work_time_dates(work_time)):
+            dated_working.append(work_time)
+            continue
+        recurrence = pattern.RecurrenceType if pattern is not None else None
+        if recurrence in (None, "DAILY"):
+            mask = [True] * 7
+        elif recurrence == "WEEKLY" and pattern.WeekdayComponent:
+            for day in pattern.WeekdayComponent:
+                if 1 <= int(day) <= 7:
+                    mask[int(day) - 1] = True
+        else:
+            findings.add("calendar", f"the working time '{_text(work_time.Name)}' recurs {recurrence}, which "
+                                     "is not mapped; it is left out", calendar, name)
+            continue
+        if pattern is not None and pattern.TimePeriods:
+            total = 0.0
+            for period in pattern.TimePeriods:
+                begin, end = _time_of(period.StartTime), _time_of(period.EndTime)
+                if begin is not None and end is not None and end > begin:
+                    total += end - begin
+            if total > 0:
+                hours = total
+    if not calendar.WorkingTimes:
+        findings.add("calendar", "the calendar has no working times; every weekday Monday to Friday is taken "
+                                 "as a work day (common practice)", calendar, name)
+        mask = [True] * 5 + [False] * 2
+    result = CalendarRead(name=name, weekmask=tuple(mask), hours_per_day=hours or HOURS_PER_WORK_DAY,
+                          global_id=str(calendar.GlobalId))
+    for work_time in dated_working:
+        for day in _dates_of(work_time, work_time.RecurrencePattern, first, last, findings,
+                             "working time", calendar):
+            if not mask[day.weekday()]:
+                result.extra_workdays[day] = _text(work_time.Name)
+    for work_time in calendar.ExceptionTimes or ():
+        for day in _dates_of(work_time, work_time.RecurrencePattern, first, last, findings,
+                             "exception time", calendar):
+            result.holidays[day] = _text(work_time.Name)
+            result.extra_workdays.pop(day, None)
+    if not any(result.weekmask) and not result.extra_workdays:
+        findings.add("calendar", "the calendar has no work day; Monday to Friday is taken", calendar, name)
+        result.weekmask = (True,) * 5 + (False,) * 2
+    return result
+
+
+def _pick_schedule(model, wanted: str | None, path: Path):
+    schedules = list(model.by_type("IfcWorkSchedule"))
+    if not schedules:
+        raise CaseError(Problem(file=str(path), message="the file holds no work schedule (IfcWorkSchedule)",
+                                fix="export the programme as an IFC work schedule"))
+    if wanted is not None:
+        for schedule in schedules:
+            if wanted in (_text(schedule.Name), _text(schedule.Identification), str(schedule.GlobalId)):
+                return schedule
+        names = ", ".join(f"'{_text(s.Name) or s.GlobalId}'" for s in schedules)
+        raise CaseError(Problem(file=str(path), message=f"no work schedule '{wanted}' in the file (it holds {names})",
+                                fix="name one of them with --work-schedule"))
+    if len(schedules) > 1:
+        names = ", ".join(f"'{_text(s.Name) or s.GlobalId}'" for s in schedules)
+        raise CaseError(Problem(file=str(path), message=f"the file holds {len(schedules)} work schedules ({names})",
+                                fix="choose one with --work-schedule NAME"))
+    return schedules[0]
+
+
+def _work_days(duration: IsoDuration, calendar: CalendarRead | None, findings: Findings, entity, subject: str,
+               what: str) -> float | None:
+    """Work days of a work-time duration; None for years or months (no fixed length)."""
+    if duration.has_calendar_parts:
+        findings.add("duration", f"the {what} is given in years or months, which have no length in work days",
+                     entity, subject)
+        return None
+    per_week = calendar.workdays_per_week if calendar is not None else 5
+    per_day = calendar.hours_per_day if calendar is not None else HOURS_PER_WORK_DAY
+    days = duration.weeks * per_week + duration.days
+    if duration.has_time_parts:
+        days += (duration.hours + duration.minutes / 60 + duration.seconds / 3600) / per_day
+    return duration.sign * days
+
+
+def _whole(value: float, findings: Findings, entity, subject: str, what: str) -> int:
+    whole = int(np.floor(abs(value) + 0.5)) * (1 if value >= 0 else -1)
+    if abs(whole - value) > 1e-9:
+        findings.add("rounded", f"the {what} of {value:g} work days is rounded to {whole}", entity, subject)
+    return whole
+
+
+# -- the reader --------------------------------------------------------------------------------------
+def read_work_schedule(path: str | Path, *, work_schedule: str | None = None) -> WorkScheduleRead:
+    """Read one IFC work schedule into case-format tables.
+
+    Parameters
+    ----------
+    path:
+        The .ifc file.
+    work_schedule:
+        Name, Identification or GlobalId of the work schedule when the file holds several.
+
+    Returns
+    -------
+    WorkScheduleRead
+
+    Raises
+    ------
+    CaseError
+        When the file is not IFC, holds no (or no such) work schedule, a task's
+        Identification repeats, or the schedule has no task.
+    IfcExtraMissing
+        When ifcopenshell is not installed.
+    """
+    path = Path(path)
+    model = open_model(path)
+    if model.schema == "IFC2X3":
+        raise CaseError(Problem(file=str(path), message="the file is IFC 2x3, whose work schedules are not read here",
+                                fix="export the programme as an IFC 4 work schedule"))
+    findings = Findings()
+    schedule = _pick_schedule(model, work_schedule, path)
+    controls = _assigned_controls(model)
+    children, parent = _nested(model)
+    ours = _psets_named(model, SCHEDULING_PSET)
+
+    roots = [o for rel in (schedule.Controls or ()) for o in (rel.RelatedObjects or ()) if o.is_a("IfcTask")]
+    tasks, stack, seen = [], list(reversed(roots)), set()
+    while stack:
+        task = stack.pop()
+        if task.id() in seen:
+            continue
+        seen.add(task.id())
+        tasks.append(task)
+        stack.extend(reversed(children.get(task.id(), [])))
+    if not tasks:
+        raise CaseError(Problem(file=str(path), message=f"the work schedule '{_text(schedule.Name)}' has no task",
+                                fix="assign its tasks to it (IfcRelAssignsToControl)"))
+    leaves = [t for t in tasks if not children.get(t.id())]
+    for summary in (t for t in tasks if children.get(t.id())):
+        findings.add("summary_task", f"a summary task of {len(children[summary.id()])} tasks: its tasks are read, "
+                                     "it is not an activity", summary, _text(summary.Identification))
+
+    # calendars
+    dates = []
+    for task in leaves:
+        time = task.TaskTime
+        if time is not None:
+            for attribute in ("ScheduleStart", "ScheduleFinish", "ActualStart", "ActualFinish"):
+                day = parse_date(getattr(time, attribute))
+                if day is not None:
+                    dates.append(day)
+    first = min(dates) if dates else dt.date.today()
+    last = (max(dates) if dates else first) + dt.timedelta(days=366 * _RECURRING_YEARS_AFTER)
+
+    def calendar_entity(obj):
+        current, steps = obj, 0
+        while current is not None and steps < 1000:
+            for control in controls.get(current.id(), ()):
+                if control.is_a("IfcWorkCalendar"):
+                    return control
+            current = parent.get(current.id())
+            steps += 1
+        for control in controls.get(schedule.id(), ()):
+            if control.is_a("IfcWorkCalendar"):
+                return control
+        return None
+
+    calendars: dict[str, CalendarRead] = {}
+    by_entity: dict[int, CalendarRead] = {}
+    task_calendar: dict[int, CalendarRead | None] = {}
+    for task in leaves:
+        entity = calendar_entity(task)
+        if entity is None:
+            task_calendar[task.id()] = None
+            continue
+        if entity.id() not in by_entity:
+            read = read_calendar(entity, findings, first, last)
+            if read.name in calendars:
+                read.name = f"{read.name}-{entity.id()}"
+                findings.add("calendar", f"two calendars share a name; this one is read as '{read.name}'",
+                             entity, read.name)
+            by_entity[entity.id()] = read
+            calendars[read.name] = read
+        task_calendar[task.id()] = by_entity[entity.id()]
+    if any(c is None for c in task_calendar.values()):
+        count = sum(1 for c in task_calendar.values() if c is None)
+        findings.add("calendar", f"{count} task(s) have no work calendar; they take the case's default calendar")
+
+    # ids
+    ids: dict[int, str] = {}
+    used: dict[str, object] = {}
+    problems = []
+    for task in leaves:
+        identification = _text(task.Identification)
+        if not identification:
+            identification = str(task.GlobalId)
+            findings.add("no_identification", "the task has no Identification; its GlobalId is its id", task,
+                         _text(task.Name))
+        if identification in used:
+            problems.append(Problem(file=str(path), message=f"the task Identification '{identification}' is used by "
+                                                            f"#{used[identification].id()} and #{task.id()}",
+                                    fix="give every task of the work schedule its own Identification"))
+        used.setdefault(identification, task)
+        ids[task.id()] = identification
+    if problems:
+        raise CaseError(problems)
+    leaf_ids = set(ids)
+
+    # links
+    link_rows, has_predecessor, link_seen = [], set(), set()
+    durations: dict[int, int] = {}
+    raw_lags = []
+    for rel in model.by_type("IfcRelSequence"):
+        pred, succ = rel.RelatingProcess, rel.RelatedProcess
+        if pred is None or succ is None:
+            continue
+        in_pred, in_succ = pred.id() in leaf_ids, succ.id() in leaf_ids
+        if not (in_pred or in_succ) and pred.id() not in seen and succ.id() not in seen:
+            continue  # another work schedule's link
+        if not (in_pred and in_succ):
+            findings.add("link", "a link to or from a summary task or a task outside the work schedule is "
+                                 "left out", rel, f"{_text(pred.Identification)}>{_text(succ.Identification)}")
+            continue
+        kind = rel.SequenceType
+        link_type = SEQUENCE_TYPES.get(kind or "")
+        if link_type is None:
+            link_type = "FS"
+            findings.add("link", f"the sequence type {kind or 'not given'} "
+                                 f"({_text(rel.UserDefinedSequenceType) or 'no user-defined type'}) is read as FS",
+                         rel, f"{ids[pred.id()]}>{ids[succ.id()]}")
+        key = (ids[pred.id()], ids[succ.id()])
+        if key[0] == key[1]:
+            findings.add("link", "a link from a task to itself is left out", rel, f"{key[0]}>{key[1]}")
+            continue
+        if key in link_seen:
+            findings.add("link", "a second link between the same two tasks is left out", rel, f"{key[0]}>{key[1]}")
+            continue
+        link_seen.add(key)
+        has_predecessor.add(succ.id())
+        raw_lags.append((rel, pred, succ))
+        link_rows.append({"pred": key[0], "succ": key[1], "type": link_type, "lag": 0})
+
+    # activities
+    rows, file_dates = [], []
+    dated_statuses = set()
+    for task in leaves:
+        identification = ids[task.id()]
+        calendar = task_calendar[task.id()]
+        time = task.TaskTime
+        facts = ours.get(task.id(), {})
+        duration_days: float | None = None
+        start = finish = actual_start = actual_finish = None
+        remaining = None
+        duration_type = None
+        if time is None:
+            findings.add("duration", "the task has no task time (IfcTaskTime); its duration is taken as 0",
+                         task, identification)
+        else:
+            duration_type = time.DurationType
+            start, finish = parse_date(time.ScheduleStart), parse_date(time.ScheduleFinish)
+            actual_start, actual_finish = parse_date(time.ActualStart), parse_date(time.ActualFinish)
+            status = parse_date(time.StatusTime)
+            if status is not None:
+                dated_statuses.add(status)
+            early_start = parse_date(time.EarlyStart) or start
+            early_finish = parse_date(time.EarlyFinish) or finish
+            file_dates.append({"id": identification, "start": early_start, "finish": early_finish})
+            if time.ScheduleDuration:
+                parsed = parse_duration(time.ScheduleDuration)
+                if parsed is None:
+                    findings.add("duration", f"the duration '{time.ScheduleDuration}' is not an ISO 8601 duration",
+                                 task, identification)
+                elif duration_type == "ELAPSEDTIME":
+                    elapsed = parsed.sign * (parsed.weeks * 7 + parsed.days + (parsed.hours + parsed.minutes / 60
+                                                                              + parsed.seconds / 3600) / 24)
+                    if start is not None and calendar is not None:
+                        duration_days = calendar.count(start, start + dt.timedelta(days=max(0, int(np.ceil(elapsed)) - 1)))
+                    else:
+                        duration_days = elapsed * (calendar.workdays_per_week if calendar else 5) / 7
+                    findings.add("duration", f"the duration '{time.ScheduleDuration}' is elapsed time; it is taken "
+                                             f"as the {duration_days:g} work days it covers", task, identification)
+                else:
+                    if duration_type not in ("WORKTIME",):
+                        findings.add("duration", "the duration type is not given; the duration is read as work time",
+                                     task, identification)
+                    duration_days = _work_days(parsed, calendar, findings, task, identification, "duration")
+            if duration_days is None and start is not None and finish is not None:
+                if calendar is not None:
+                    duration_days = calendar.count(start, finish)
+                else:
+                    duration_days = int(np.busday_count(start, finish + dt.timedelta(days=1)))
+                findings.add("duration", f"the duration is taken from the scheduled dates {start} to {finish}: "
+                                         f"{duration_days:g} work days", task, identification)
+            if time.RemainingTime:
+                parsed = parse_duration(time.RemainingTime)
+                if parsed is not None:
+                    remaining = _work_days(parsed, calendar, findings, task, identification, "remaining time")
+        if duration_days is None:
+            if time is not None:
+                findings.add("duration", "the task has neither a duration nor scheduled dates; its duration is "
+                                         "taken as 0", task, identification)
+            duration_days = 0
+        duration = _whole(duration_days, findings, task, identification, "duration")
+        if duration < 0:
+            findings.add("duration", "a negative duration is taken as 0", task, identification)
+            duration = 0
+        if task.IsMilestone and duration > 0:
+            findings.add("milestone", f"a milestone with a duration of {duration} work days: taken as 0",
+                         task, identification)
+            duration = 0
+        kind = _text(facts.get("Kind"))
+        if kind not in ACTIVITY_KINDS:
+            if kind:
+                findings.add("kind", f"the kind '{kind}' is not one of {', '.join(ACTIVITY_KINDS)}", task,
+                             identification)
+            kind = "task"
+            if task.IsMilestone:
+                kind = "finish_milestone" if task.id() in has_predecessor else "start_milestone"
+        if kind != "task" and duration > 0:
+            kind = "task"
+        constraint = _text(facts.get("Constraint"))
+        constraint_date = parse_date(facts.get("ConstraintDate"))
+        if constraint and constraint not in CONSTRAINTS:
+            findings.add("constraint", f"the constraint '{constraint}' is not one of {', '.join(CONSTRAINTS)}; "
+                                       "it is left out", task, identification)
+            constraint = ""
+        if constraint and constraint_date is None:
+            findings.add("constraint", "a constraint without its date is left out", task, identification)
+            constraint = ""
+        wbs = _text(facts.get("WorkBreakdownCode"))
+        if not wbs and task.id() in parent:
+            wbs = _text(parent[task.id()].Identification)
+        remaining_text = ""
+        if actual_finish is not None:
+            remaining_text = "0"
+            if actual_start is None and kind == "task" and duration > 0:
+                findings.add("progress", "an actual finish without an actual start: the start is taken as the "
+                                         "finish", task, identification)
+                actual_start = actual_finish
+        elif remaining is not None:
+            remaining_text = str(max(0, _whole(remaining, findings, task, identification, "remaining time")))
+        if actual_start is not None and actual_finish is None and not remaining_text:
+            if duration > 0:
+                findings.add("progress", "a started task without a remaining time: its remaining duration is "
+                                         "taken as its duration", task, identification)
+                remaining_text = str(duration)
+        rows.append({
+            "id": identification, "name": _text(task.Name), "duration": str(duration),
+            "calendar": calendar.name if calendar is not None else "", "wbs": wbs, "kind": kind,
+            "constraint": constraint, "constraint_date": constraint_date.isoformat() if constraint else "",
+            "party": _text(facts.get("Party")),
+            "actual_start": actual_start.isoformat() if actual_start else "",
+            "actual_finish": actual_finish.isoformat() if actual_finish else "",
+            "remaining": remaining_text,
+        })
+        durations[task.id()] = duration
+
+    # lags (need the predecessors' durations for ratio lags)
+    for row, (rel, pred, succ) in zip(link_rows, raw_lags):
+        lag_time = rel.TimeLag
+        if lag_time is None:
+            continue
+        value = lag_time.LagValue
+        subject = f"{row['pred']}>{row['succ']}"
+        calendar = task_calendar.get(succ.id())
+        if value is None:
+            continue
+        if value.is_a("IfcRatioMeasure") or value.is_a("IfcNormalisedRatioMeasure") or value.is_a("IfcPositiveRatioMeasure"):
+            lag = float(value.wrappedValue) * durations.get(pred.id(), 0)
+            findings.add("lag", f"a lag of {float(value.wrappedValue):g} of the predecessor's duration is taken as "
+                                f"{lag:g} work days", rel, subject)
+        else:
+            parsed = parse_duration(_text(value))
+            if parsed is None:
+                findings.add("lag", f"the lag '{_text(value)}' is not an ISO 8601 duration; it is taken as 0", rel, subject)
+                continue
+            if lag_time.DurationType == "ELAPSEDTIME":
+                elapsed = parsed.sign * (parsed.weeks * 7 + parsed.days)
+                lag = elapsed * (calendar.workdays_per_week if calendar is not None else 5) / 7
+                findings.add("lag", f"the lag '{_text(value)}' is elapsed time; it is taken as {lag:g} work days", rel,
+                             subject)
+            else:
+                lag = _work_days(parsed, calendar, findings, rel, subject, "lag")
+                if lag is None:
+                    continue
+        row["lag"] = _whole(lag, findings, rel, subject, "lag")
+    for row in link_rows:
+        row["lag"] = str(row["lag"])
+
+    schedule_facts = {k: (v.isoformat() if isinstance(v, dt.date) else v)
+                      for k, v in ours.get(schedule.id(), {}).items()}
+    data_date = parse_date(schedule_facts.get("DataDate"))
+    if data_date is None and len(dated_statuses) == 1:
+        data_date = next(iter(dated_statuses))
+    activities = pd.DataFrame(rows, columns=list(COLUMNS["activities"])).astype(str)
+    links = pd.DataFrame(link_rows, columns=list(COLUMNS["links"])).astype(str)
+    dates_frame = pd.DataFrame(file_dates, columns=["id", "start", "finish"])
+    for column in ("start", "finish"):
+        dates_frame[column] = pd.to_datetime(dates_frame[column])
+    return WorkScheduleRead(_text(schedule.Name), activities, links, calendars, data_date, schedule_facts,
+                            dates_frame, findings.frame(), parse_date(schedule.StartTime))
+
+
+# -- into the case -------------------------------------------------------------------------------------
+def _csv_bytes(frame: pd.DataFrame) -> bytes:
+    import csv
+
+    buffer = io.StringIO()
+    writer = csv.writer(buffer, lineterminator="\n")
+    writer.writerow(list(frame.columns))
+    writer.writerows(frame.astype(str).itertuples(index=False, name=None))
+    return buffer.getvalue().encode("utf-8")
+
+
+def _case_calendar(case, name: str) -> CalendarRead | None:
+    table = case.calendars
+    found = table[table["calendar"] == name]
+    if not len(found):
+        return None
+    from ..calendars import parse_workdays
+
+    read = CalendarRead(name=name, weekmask=parse_workdays(found["workdays"].iloc[0]))
+    exceptions = case.calendar_exceptions
+    own = exceptions[exceptions["calendar"] == name]
+    for day, working, reason in zip(own["date"], own["working"], own["reason"]):
+        date = pd.Timestamp(day).date()
+        (read.extra_workdays if bool(working) else read.holidays)[date] = str(reason)
+    return read
+
+
+def _place_calendars(case, calendars: dict[str, CalendarRead], findings: Findings
+                     ) -> tuple[dict[str, str], list[CalendarRead]]:
+    """The case calendar each read calendar becomes: an equal one of the same name, or a new
+    one (renamed ``NAME-ifc`` when the case has a different calendar of that name)."""
+    names: dict[str, str] = {}
+    added: list[CalendarRead] = []
+    taken = set(case.calendars["calendar"])
+    for name, read in calendars.items():
+        candidate, number = name, 1
+        while True:
+            existing = _case_calendar(case, candidate)
+            if existing is None:
+                if candidate in taken:
+                    candidate = f"{name}-ifc{number}"
+                    number += 1
+                    continue
+                read.name = candidate
+                added.append(read)
+                taken.add(candidate)
+                break
+            if existing.effective() == read.effective():
+                break
+            findings.add("calendar", f"the case has a different calendar named '{candidate}'; the file's calendar "
+                                     f"is read under another name", subject=name)
+            candidate = f"{name}-ifc" if number == 1 else f"{name}-ifc{number}"
+            number += 1
+        names[name] = candidate
+    return names, added
+
+
+def _append_rows(path: Path, columns: list[str], rows: list[dict]) -> bytes:
+    if path.is_file():
+        existing = pd.read_csv(path, dtype=str, keep_default_na=False, encoding="utf-8-sig")
+    else:
+        existing = pd.DataFrame(columns=columns)
+    for column in columns:
+        if column not in existing.columns:
+            existing[column] = ""
+    added = pd.DataFrame(rows, columns=columns).reindex(columns=list(existing.columns), fill_value="")
+    return _csv_bytes(pd.concat([existing, added], ignore_index=True).fillna(""))
+
+
+def _toml_text(value: str) -> str:
+    return json.dumps(value, ensure_ascii=False)
+
+
+_FOLDER_NAME = re.compile(r"^[^./\\][^/\\]*$")
+
+
+def import_work_schedule(
+    model_path: str | Path,
+    case_path: str | Path,
+    folder: str,
+    *,
+    data_date: dt.date | str | None = None,
+    label: str | None = None,
+    kind: str | None = None,
+    work_schedule: str | None = None,
+    replace: bool = False,
+) -> ScheduleImport:
+    """Read an IFC work schedule into the snapshot folder ``snapshots/FOLDER`` of a case.
+
+    Parameters
+    ----------
+    model_path:
+        The .ifc file holding the work schedule.
+    case_path:
+        The case folder.
+    folder:
+        The snapshot folder to write (``2025-06-30``, ``baseline``).
+    data_date:
+        The snapshot's data date; default the one the file gives (our property set on the
+        work schedule, else the tasks' common StatusTime), else for a baseline the work
+        schedule's StartTime.
+    label:
+        The snapshot's label; default the label the file gives (our property set), else
+        the folder name.
+    kind:
+        ``baseline`` or ``update``; default ``baseline`` for the folder ``baseline``.
+    work_schedule:
+        Which work schedule, when the file holds several.
+    replace:
+        Replace the folder when it exists.
+
+    Writes snapshot.toml, activities.csv, links.csv and ifc_findings.csv into the folder
+    (built under a temporary name and moved into place whole), and adds the file's
+    calendars that the case does not have to calendars.csv and calendar_exceptions.csv.
+    The new snapshot is loaded with the case's settings and calendars before anything is
+    written.
+
+    Returns
+    -------
+    ScheduleImport
+
+    Raises
+    ------
+    CaseError
+        Any problem with the file, the options or the snapshot it gives; nothing is
+        written then.
+    IfcExtraMissing
+        When ifcopenshell is not installed.
+    """
+    from ..case import load_case
+    from ..cpm import schedule
+
+    case = load_case(Path(case_path))
+    root = case_folder(case)
+    model_path = Path(model_path)
+    if not _FOLDER_NAME.match(folder or ""):
+        raise CaseError(Problem(file="snapshots/", message=f"'{folder}' is not a folder name",
+                                fix="give --snapshot a plain name such as 2025-06-30"))
+    target = root / "snapshots" / folder
+    if target.exists() and not replace:
+        raise CaseError(Problem(file=f"snapshots/{folder}", message="the snapshot folder exists",
+                                fix="choose another --snapshot, or give --replace to replace it"))
+    kind = kind or ("baseline" if folder == "baseline" else "update")
+    if kind not in ("baseline", "update"):
+        raise CaseError(Problem(file=f"snapshots/{folder}", message=f"the kind '{kind}' is not baseline or update",
+                                fix="give --kind baseline or --kind update"))
+    read = read_work_schedule(model_path, work_schedule=work_schedule)
+    findings = Findings()
+    findings.rows.extend(read.findings.to_dict("records"))
+    if isinstance(data_date, str):
+        try:
+            data_date = dt.date.fromisoformat(data_date)
+        except ValueError:
+            raise CaseError(Problem(file=str(model_path), message=f"the data date '{data_date}' is not a date",
+                                    fix="write it as YYYY-MM-DD")) from None
+    if data_date is None:
+        data_date = read.data_date
+    if data_date is None and kind == "baseline":
+        data_date = read.start_time
+    if data_date is None:
+        raise CaseError(Problem(file=str(model_path), message="the file does not say the data date of the programme",
+                                fix="give it with --data-date YYYY-MM-DD"))
+    label = label or str(read.facts.get("SnapshotLabel") or "") or folder
+    for snap in case.snapshots:
+        if snap.folder == folder:
+            continue
+        if snap.data_date == data_date:
+            raise CaseError(Problem(file=f"snapshots/{folder}", message=f"the data date {data_date} is also the data "
+                                                                       f"date of '{snap.folder}'",
+                                    fix="give another --data-date, or --replace that snapshot"))
+        if label in (snap.label, snap.folder):
+            raise CaseError(Problem(file=f"snapshots/{folder}", message=f"the label '{label}' is also used by "
+                                                                       f"'{snap.folder}'",
+                                    fix="give another --label"))
+    activities = read.activities.copy()
+    problems = []
+    for row, (identification, start, finish) in enumerate(zip(activities["id"], activities["actual_start"],
+                                                              activities["actual_finish"])):
+        for what, value in (("actual start", start), ("actual finish", finish)):
+            if value and dt.date.fromisoformat(value) >= data_date:
+                problems.append(Problem(file=str(model_path), message=f"the task '{identification}' has an {what} "
+                                                                      f"{value} on or after the data date {data_date}",
+                                        fix="give the data date with --data-date, or correct the task's task time"))
+    if problems:
+        raise CaseError(problems[:50])
+    names, added = _place_calendars(case, read.calendars, findings)
+    activities["calendar"] = activities["calendar"].map(lambda c: names.get(c, c) if c else "")
+    files: dict[str, bytes] = {}
+    if added:
+        files["calendars.csv"] = _append_rows(root / "calendars.csv", ["calendar", "workdays"],
+                                              [{"calendar": c.name, "workdays": c.workdays} for c in added])
+        rows = []
+        for calendar in added:
+            for day, reason in sorted(calendar.holidays.items()):
+                rows.append({"calendar": calendar.name, "date": day.isoformat(), "working": "no", "reason": reason})
+            for day, reason in sorted(calendar.extra_workdays.items()):
+                rows.append({"calendar": calendar.name, "date": day.isoformat(), "working": "yes", "reason": reason})
+        if rows:
+            files["calendar_exceptions.csv"] = _append_rows(root / "calendar_exceptions.csv",
+                                                            ["calendar", "date", "working", "reason"], rows)
+    snapshot_toml = (f"label = {_toml_text(label)}\ndata_date = {data_date.isoformat()}\n"
+                     f"kind = {_toml_text(kind)}\n").encode("utf-8")
+    base = f"snapshots/{folder}"
+    snapshot_files = {
+        "snapshot.toml": snapshot_toml,
+        "activities.csv": _csv_bytes(activities),
+        "links.csv": _csv_bytes(read.links),
+    }
+    copies = ["baseline"] if folder != "baseline" else []
+    checked = validate_in_copy(root, {**files, **{f"{base}/{k}": v for k, v in snapshot_files.items()}}, copies)
+    result = schedule(checked, folder)
+    compared = read.file_dates.dropna(subset=["start", "finish"], how="all").set_index("id")
+    if len(compared):
+        ours = result.activities.set_index("id")[["early_start", "early_finish"]]
+        joined = compared.join(ours, how="inner")
+        differ = joined[(joined["start"] != joined["early_start"]) | (joined["finish"] != joined["early_finish"])]
+        for identification, row in differ.head(50).iterrows():
+            findings.add("dates_differ", f"the file schedules it {_day(row['start'])} to {_day(row['finish'])}; the "
+                                         f"toolkit's critical path method gives {_day(row['early_start'])} to "
+                                         f"{_day(row['early_finish'])}", subject=str(identification))
+        if len(differ) > 50:
+            findings.add("dates_differ", f"{len(differ) - 50} more activities whose dates differ")
+    findings_frame = findings.frame()
+    snapshot_files[FINDINGS_FILE] = _csv_bytes(findings_frame)
+    written = [write_bytes(root / name, content) for name, content in files.items()]
+    with replace_directory(target) as building:
+        for name, content in snapshot_files.items():
+            (building / name).write_bytes(content)
+    written += [target / name for name in snapshot_files]
+    return ScheduleImport(read, target, data_date, label, kind, tuple(c.name for c in added), findings_frame,
+                          tuple(written))
+
+
+def _day(value) -> str:
+    return "no date" if pd.isna(value) else pd.Timestamp(value).date().isoformat()
