@@ -62,6 +62,7 @@ def run_demo(case_path: Path, out_dir: Path, echo: Callable[[str], None] = print
         pd.DataFrame(trend).to_csv(folder / "completion_by_snapshot.csv", index=False)
         written.append(out_dir / "completion_by_snapshot.csv")
         written += _retrospective(case, folder, out_dir, echo)
+        written += _modelled(case, folder, out_dir, echo)
         from .ifc import available
 
         if available():
@@ -97,4 +98,27 @@ def _retrospective(case, folder: Path, out_dir: Path, echo) -> list[Path]:
         compared.critical_path.to_csv(folder / "asbuilt_critical_path.csv", index=False, date_format="%Y-%m-%d")
         written += [out_dir / "asbuilt.json", out_dir / "asbuilt_activities.csv", out_dir / "asbuilt_critical_path.csv"]
         echo(f"As-built: planned completion {compared.planned_completion}, actual {compared.actual_completion}")
+    return written
+
+
+def _modelled(case, folder: Path, out_dir: Path, echo) -> list[Path]:
+    """Impacted as-planned, time impact and collapsed as-built, where the case allows them."""
+    from .methods import collapsed, impacted, time_impact
+
+    written = []
+    if len(case.events):
+        impact = impacted.analyse(case)
+        (folder / "impacted.json").write_text(json.dumps(impact.to_json(), indent=2), encoding="utf-8")
+        impact.events.to_csv(folder / "impacted_events.csv", index=False, date_format="%Y-%m-%d")
+        tia = time_impact.analyse(case)
+        (folder / "time_impact.json").write_text(json.dumps(tia.to_json(), indent=2), encoding="utf-8")
+        written += [out_dir / "impacted.json", out_dir / "impacted_events.csv", out_dir / "time_impact.json"]
+        echo(f"Impacted as-planned: {impact.total_days} days cumulative; time impact: {tia.total_days} days "
+             "summed over the updates")
+        if case.asbuilt_snapshot is not None:
+            butfor = collapsed.analyse(case)
+            (folder / "collapsed.json").write_text(json.dumps(butfor.to_json(), indent=2), encoding="utf-8")
+            written.append(out_dir / "collapsed.json")
+            echo(f"Collapsed as-built: the model {'reproduces' if butfor.reproduced else 'does not fully reproduce'} "
+                 "the actual dates; but-for completions written")
     return written
