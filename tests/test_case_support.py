@@ -8,6 +8,8 @@ u1 has data date Monday 2025-02-03: A finished, B in progress with 1 day to go.
 
 from __future__ import annotations
 
+import hashlib
+
 import copy
 from pathlib import Path
 
@@ -98,10 +100,42 @@ def problems_of(root) -> list[Problem]:
 
 
 def problem_at(root, file: str, row: int | None, column: str | None, words: str) -> Problem:
-    """The one problem at ``file``/``row``/``column``; its message must contain ``words``."""
+    """The one problem at ``file``/``row``/``column``; its message must contain ``words``.
+
+    The same broken case is also run through the command line (``delay demo --case``),
+    which must exit with status 2, print the problem as a plain line naming the file, row
+    and column, show no traceback, write no output and leave the input files unchanged.
+    """
     found = problems_of(root)
     here = [p for p in found if p.file == file and p.row == row and p.column == column]
     listing = "\n".join(str(p) for p in found)
     assert here, f"no problem at {file}, row {row}, column {column}; found:\n{listing}"
     assert any(words.lower() in p.message.lower() for p in here), listing
-    return next(p for p in here if words.lower() in p.message.lower())
+    problem = next(p for p in here if words.lower() in p.message.lower())
+    _command_line_refuses(Path(root), problem)
+    return problem
+
+
+def _digest(root: Path) -> dict:
+    if not root.exists():
+        return {}
+    if root.is_file():
+        return {root.name: hashlib.sha256(root.read_bytes()).hexdigest()}
+    return {str(p.relative_to(root)): hashlib.sha256(p.read_bytes()).hexdigest()
+            for p in sorted(root.rglob("*")) if p.is_file()}
+
+
+def _command_line_refuses(root: Path, problem: Problem) -> None:
+    from click.testing import CliRunner
+
+    from delay.cli import cli
+
+    before = _digest(root)
+    out = root.parent / f"{root.name}-demo-output"
+    result = CliRunner().invoke(cli, ["demo", "--case", str(root), "--out", str(out)])
+    assert result.exit_code == 2, result.output
+    assert "Traceback" not in result.output
+    if root.exists():  # a path that does not exist is refused by the argument parser itself
+        assert str(problem) in result.output, result.output
+    assert not out.exists(), "nothing may be written for a case with problems"
+    assert _digest(root) == before, "input files must not change"
