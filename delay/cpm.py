@@ -735,8 +735,38 @@ def prepare(case: Case, snapshot: str | Snapshot = "baseline", settings: Schedul
     snap = snapshot if isinstance(snapshot, Snapshot) else _find(case, snapshot)
     settings = settings or case.settings.schedule
     calendars = calendars or calendars_of(case)
-    activities = snap.activities
-    links = snap.links
+    arrays = snap.derived.get("schedule_arrays")
+    if arrays is None or arrays["calendar_names"] != calendars.names:
+        arrays = snap.derived["schedule_arrays"] = _compile_snapshot(snap, calendars)
+    return ScheduleModel(
+        network=arrays["network"],
+        calendars=calendars,
+        names=arrays["names"],
+        calendar=arrays["calendar"],
+        duration=arrays["duration"],
+        remaining=arrays["remaining"],
+        actual_start=arrays["actual_start"],
+        actual_finish=arrays["actual_finish"],
+        kind=arrays["kind"],
+        constraint=arrays["constraint"],
+        constraint_day=arrays["constraint_day"],
+        start_bound=np.full(arrays["network"].size, NO_DAY, dtype=np.int64),
+        data_day=int(to_days(np.datetime64(snap.data_date, "D"))),
+        contract_completion_day=int(to_days(np.datetime64(case.settings.project.contract_completion, "D"))),
+        settings=settings,
+        label=snap.label,
+        link_order=arrays["link_order"],
+    )
+
+
+def _compile_snapshot(snap: Snapshot, calendars: CalendarSet) -> dict:
+    """The engine's arrays of one snapshot: computed once, kept in ``snap.derived``.
+
+    The arrays are made read-only, so that no variant (``what_if`` copies what it changes)
+    can alter them for the next use.
+    """
+    activities = snap.activities_table
+    links = snap.links_table
     source = f"snapshots/{snap.folder}/links.csv" if snap.kind != "asbuilt" else "asbuilt.csv"
     network = compile_network(activities, links, source=source, link_numbers=snap.link_numbers)
     cal = pd.Index(calendars.names).get_indexer(activities["calendar"]).astype(np.int64)
@@ -748,25 +778,24 @@ def prepare(case: Case, snapshot: str | Snapshot = "baseline", settings: Schedul
     kind = np.maximum(pd.Index(list(KIND_CODES)).get_indexer(activities["kind"]), 0).astype(np.int8)
     constraint = np.maximum(pd.Index(list(CONSTRAINT_CODES)).get_indexer(activities["constraint"].fillna("")), 0
                             ).astype(np.int8)
-    return ScheduleModel(
-        network=network,
-        calendars=calendars,
-        names=activities["name"].to_numpy(dtype=object),
-        calendar=cal,
-        duration=activities["duration"].to_numpy(dtype=np.int64),
-        remaining=activities["remaining"].to_numpy(dtype=np.float64),
-        actual_start=_days_or_none(activities["actual_start"]),
-        actual_finish=_days_or_none(activities["actual_finish"]),
-        kind=kind,
-        constraint=constraint,
-        constraint_day=_days_or_none(activities["constraint_date"]),
-        start_bound=np.full(len(activities), NO_DAY, dtype=np.int64),
-        data_day=int(to_days(np.datetime64(snap.data_date, "D"))),
-        contract_completion_day=int(to_days(np.datetime64(case.settings.project.contract_completion, "D"))),
-        settings=settings,
-        label=snap.label,
-        link_order=np.arange(len(links)),
-    )
+    arrays = {
+        "network": network,
+        "calendar_names": calendars.names,
+        "names": activities["name"].to_numpy(dtype=object),
+        "calendar": cal,
+        "duration": activities["duration"].to_numpy(dtype=np.int64),
+        "remaining": activities["remaining"].to_numpy(dtype=np.float64),
+        "actual_start": _days_or_none(activities["actual_start"]),
+        "actual_finish": _days_or_none(activities["actual_finish"]),
+        "kind": kind,
+        "constraint": constraint,
+        "constraint_day": _days_or_none(activities["constraint_date"]),
+        "link_order": np.arange(len(links)),
+    }
+    for value in arrays.values():
+        if isinstance(value, np.ndarray):
+            value.flags.writeable = False
+    return arrays
 
 
 _CALENDARS: "weakref.WeakKeyDictionary[Case, CalendarSet]" = weakref.WeakKeyDictionary()

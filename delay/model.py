@@ -153,6 +153,9 @@ class Snapshot:
     kind: Literal["baseline", "update", "asbuilt"]
     activities_table: pd.DataFrame = field(repr=False)
     links_table: pd.DataFrame = field(repr=False)
+    #: Data derived from the tables once per snapshot (for example the engine's compiled
+    #: arrays), shared by every later use; never part of the snapshot's identity.
+    derived: dict = field(default_factory=dict, repr=False, compare=False)
 
     @property
     def activities(self) -> pd.DataFrame:
