@@ -85,6 +85,17 @@ class Network:
         """The activity ids as an index (built once per network)."""
         return pd.Index(self.ids)
 
+    def upstream(self, activities, links: np.ndarray | None = None) -> np.ndarray:
+        """Boolean mask of the activities from which a chain of links (all links, or those
+        where ``links`` is true) leads to any of ``activities`` (numbers), them included."""
+        from ._kernels import mark_upstream
+
+        on = np.zeros(self.size, dtype=bool)
+        on[np.asarray(activities, dtype=np.int64)] = True
+        usable = np.ones(self.link_count, dtype=bool) if links is None else np.asarray(links, dtype=bool)
+        mark_upstream(self.order, self.in_ptr, self.in_link, self.pred, usable, on)
+        return on
+
     def index_of(self, ids) -> np.ndarray:
         """Activity numbers of ids; ``-1`` for an unknown id."""
         return self.index.get_indexer(pd.Index(list(ids) if not isinstance(ids, str) else [ids]))

@@ -94,16 +94,13 @@ def _key(snap: Snapshot) -> str:
 
 
 def contract_completion_in_force(case: Case) -> dt.date:
-    """The contract completion date in force for the whole of the works.
+    """The contract completion date in force for the whole of the works: case.toml's
+    ``contract_completion`` plus the calendar days of every row of extensions_granted.csv
+    that names no section (an extension for a section moves that section's date, not the
+    whole works'); the same rule as :func:`delay.entitlement.completion_in_force`."""
+    from ..entitlement import completion_in_force
 
-    case.toml's ``contract_completion`` plus the calendar days of every row of
-    extensions_granted.csv that names no section (an extension for a section moves that
-    section's date, not the whole works').
-    """
-    granted = case.extensions_granted
-    whole_works = granted[granted["section"].fillna("").astype(str).str.strip() == ""]
-    days = float(whole_works["days"].fillna(0).sum())
-    return case.settings.project.contract_completion + dt.timedelta(days=int(round(days)))
+    return completion_in_force(case)[2]
 
 
 def link_keys(pred: np.ndarray, succ: np.ndarray) -> list[str]:

@@ -8,7 +8,7 @@ from pathlib import Path
 
 import click
 
-from ..errors import CaseError
+from ..errors import CaseError, ReconciliationError
 
 __all__ = ["EXIT_INPUT", "FORMAT", "reports_input_errors", "print_table", "load_case_argument"]
 
@@ -38,6 +38,10 @@ def reports_input_errors(command):
             lines = [f"error: {problem}" for problem in error.problems]
             lines.append(f"{len(error.problems)} problem(s) found; nothing was written.")
             _fail(lines)
+        except ReconciliationError as error:
+            click.echo(f"error: {error} - the analysis was stopped; nothing was written. Please report this "
+                       "with the case, it is a fault of the toolkit or a record it cannot reconcile", err=True)
+            sys.exit(1)
         except FileExistsError as error:
             _fail([f"error: {error.args[0] if error.args else error} - choose an empty or new folder"])
 

@@ -517,9 +517,11 @@ def analyse(case: Case) -> CollapsedResult:
     Raises
     ------
     CaseError: the case has no as-built record, or its logic has a loop.
-    ReconciliationError: a but-for completion is later than the modelled completion, or
-        taking out every event finishes later than taking out one party's (taking out
-        delay can never make the works later; either would be a fault in the toolkit).
+
+    A but-for completion later than the modelled one (or taking out every event finishing
+    later than taking out one party's) is possible with start-to-start and finish-to-finish
+    logic, where a shorter activity can hold its successors later; it is reported in
+    ``notes`` and shows as negative days earlier, never hidden.
 
     Examples
     --------
@@ -543,13 +545,18 @@ def analyse(case: Case) -> CollapsedResult:
     default = built.calendars[case.settings.schedule.default_calendar]
     modelled_index = int(default.finish_index_days(np.array([modelled_day]))[0])
 
+    later: list[str] = []
+
     def figures(removal: _Removal | None, where: str):
         if removal is None:
             return pd.NaT, pd.NA, pd.NA
         day = int(built.run(removal).completion_day) if not removal.empty else modelled_day
         if day > modelled_day:
-            raise ReconciliationError(where, {"but-for completion": _date(day).isoformat(),
-                                              "modelled completion": _date(modelled_day).isoformat()})
+            # possible with start-to-start and finish-to-finish logic: a shorter activity can
+            # hold its successors later (the reverse effect); reported, not hidden
+            later.append(f"but for {where}: completion {_date(day).isoformat()}, later than the modelled "
+                         f"{_date(modelled_day).isoformat()} (start-to-start / finish-to-finish logic "
+                         "lets a shorter activity hold its successors later)")
         work = modelled_index - int(default.finish_index_days(np.array([day]))[0])
         return pd.Timestamp(_date(day)), modelled_day - day, work
 
@@ -604,9 +611,10 @@ def analyse(case: Case) -> CollapsedResult:
         overall = by_party["but_for_completion"].iloc[-1]
         for row in by_party.iloc[:-1].itertuples(index=False):
             if pd.notna(row.but_for_completion) and overall > row.but_for_completion:
-                raise ReconciliationError("but for every event", {
-                    "every event": pd.Timestamp(overall).date().isoformat(),
-                    f"the {row.party}'s events": pd.Timestamp(row.but_for_completion).date().isoformat()})
+                later.append(f"but for every event the works finish {pd.Timestamp(overall).date().isoformat()}, "
+                             f"later than but for the {row.party}'s events alone "
+                             f"({pd.Timestamp(row.but_for_completion).date().isoformat()}): the reverse effect of "
+                             "start-to-start / finish-to-finish logic")
 
     # the model, for the reader
     held_by = np.full(net.size, "", dtype=object)
@@ -643,6 +651,7 @@ def analyse(case: Case) -> CollapsedResult:
     if not_found := by_event.loc[~by_event["found_in_as_built"], "event"].tolist():
         notes.append("Events reported but not scored (nothing of theirs in the as-built record to take out): "
                      + ", ".join(not_found) + ".")
+    notes += later
     return CollapsedResult(
         reproduced=not len(mismatches), mismatches=mismatches, actual_completion=_date(actual_day),
         modelled_completion=_date(modelled_day), by_party=by_party, by_event=by_event,

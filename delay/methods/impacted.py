@@ -43,7 +43,7 @@ from ..cpm import ScheduleModel, calendars_of, prepare
 from ..errors import CaseError, Problem, ReconciliationError
 from ..model import Case, Snapshot
 
-__all__ = ["analyse", "ImpactedResult", "event_changes", "order_events", "EVENT_COLUMNS"]
+__all__ = ["analyse", "ImpactedResult", "event_changes", "order_events", "apply_event", "run_events", "EVENT_COLUMNS"]
 
 EVENT_COLUMNS = ["id", "title", "party", "impact", "start", "finish", "activities", "alone_days",
                  "alone_work_days", "completion_alone", "cumulative_days", "cumulative_work_days",

@@ -1,0 +1,129 @@
+"""``delay entitlement``: extension of time, compensable days and damages per method."""
+
+from __future__ import annotations
+
+import json
+
+import click
+
+from .common import load_case_argument, print_table, reports_input_errors
+
+__all__ = ["entitlement", "COMMANDS", "applicable_methods"]
+
+CAUTION = ("Results depend on the records and on the method chosen; they are not legal advice. "
+           "The contract, the applicable law and the analyst's professional judgement govern.")
+
+METHOD_CHOICES = ["windows", "impacted", "tia", "collapsed", "all"]
+
+
+def applicable_methods(case) -> tuple[list[str], list[str]]:
+    """``(methods, reasons)``: the methods ``all`` runs on this case, and why any is left out
+    (a windows analysis needs two snapshots, a collapsed as-built an as-built record)."""
+    methods, reasons = [], []
+    if len(case.snapshots) + (case.asbuilt_snapshot is not None) >= 2:
+        methods.append("windows")
+    else:
+        reasons.append("windows analysis left out: the case has one programme only")
+    methods += ["impacted", "tia"]
+    if case.asbuilt_snapshot is not None:
+        methods.append("collapsed")
+    else:
+        reasons.append("collapsed as-built left out: the case has no as-built record")
+    return methods, reasons
+
+
+def _text(value) -> str:
+    import pandas as pd
+
+    if value is None or (not isinstance(value, str) and pd.isna(value)):
+        return ""
+    if isinstance(value, pd.Timestamp):
+        return value.date().isoformat()
+    if isinstance(value, float):
+        return f"{value:,.2f}"
+    if isinstance(value, bool):
+        return "yes" if value else "no"
+    return str(value)
+
+
+@click.command()
+@click.argument("case", type=click.Path(exists=True))
+@click.option("--method", type=click.Choice(METHOD_CHOICES), default="all", show_default=True,
+              help="The method whose causation table the entitlement rests on; all: every method the case "
+                   "supports (windows needs two programmes, collapsed an as-built record).")
+@click.option("--format", "output_format", type=click.Choice(["table", "json"]), default="table", show_default=True)
+@reports_input_errors
+def entitlement(case, method, output_format):
+    """Extension of time, compensable days, prolongation cost and liquidated damages.
+
+    Each method's results become a causation table: every day of critical delay is
+    excusable when any of its causes is employer or neutral risk, compensable only when
+    every cause is employer risk, culpable otherwise. Concurrent days follow the case's
+    [analysis] concurrency: time_not_money (time, no money) or apportion (split pro rata to
+    the causes' impacts alone, whole days by largest remainder). Float is shared: a delay
+    that only uses float gives no extension.
+
+    \b
+    For the whole works and for each section of sections.csv:
+      completion in force   contract completion plus the extensions already granted
+      extension of time     max(0, planned completion + excusable days - completion in force),
+                            never more than the excusable days
+      revised completion    completion in force + extension of time
+      culpable days         max(0, actual or forecast completion - revised completion)
+      damages               culpable days x the rate, limited to the cap when one is set
+      prolongation cost     compensable days x the rate of the period the delay arose in
+
+    Days are calendar days. Beside each event: its notification date and the days claimed,
+    where the register gives them, and the days assessed.
+    """
+    from ..entitlement import assess
+
+    loaded = load_case_argument(case)
+    reasons: list[str] = []
+    if method == "all":
+        methods, reasons = applicable_methods(loaded)
+    else:
+        methods = [method]
+    result = assess(loaded, methods)
+    if output_format == "json":
+        click.echo(json.dumps(result.to_json(), indent=2))
+        return
+    currency = result.currency
+    print_table(f"Entitlement per method (calendar days; money in {currency}; concurrency {result.concurrency})",
+                ["method", "completion in force", "planned", "excusable", "extension of time", "revised completion",
+                 "actual or forecast", "compensable", "prolongation cost", "culpable", "damages", "concurrent"],
+                [[m.method, m.completion_in_force, m.planned_completion, m.excusable_days, m.eot_days,
+                  m.revised_completion, m.actual_completion, m.compensable_days, _text(m.prolongation_cost),
+                  m.culpable_days, _text(m.ld_exposure) + (" (capped)" if m.ld_capped else ""), m.concurrent_days]
+                 for m in result.methods])
+    for m in result.methods:
+        if len(m.sections):
+            print_table(f"{m.method}: sections (never add them to each other or to the whole works)",
+                        ["section", "milestone", "in force", "planned", "excusable", "extension", "revised",
+                         "actual or forecast", "compensable", "prolongation cost", "culpable", "damages", "note"],
+                        [[s["section"], s["completion_activity"], _text(s["completion_in_force"]),
+                          _text(s["planned_completion"]), _text(s["excusable_days"]), _text(s["eot_days"]),
+                          _text(s["revised_completion"]), _text(s["actual_completion"]),
+                          _text(s["compensable_days"]), _text(s["prolongation_cost"]), _text(s["culpable_days"]),
+                          _text(s["ld_exposure"]) + (" (capped)" if s["ld_capped"] else ""), _text(s["note"])]
+                         for s in m.sections.to_dict("records")])
+        table = m.causation.table
+        shown = table[(table["days"] != 0) | (table["concurrent_with"] != "")]
+        print_table(f"{m.method}: causation ({m.causation.explained_days} days: {m.causation.explains})",
+                    ["step", "event", "party", "activities", "days", "alone (need not add up)", "concurrent with", "excusable",
+                     "compensable", "culpable", "classification"],
+                    [[r.step, r.event, r.party, r.activities, r.days, _text(r.alone_days), r.concurrent_with,
+                      r.excusable_days, r.compensable_days, r.culpable_days, r.classification]
+                     for r in shown.itertuples(index=False)])
+        if len(m.events):
+            print_table(f"{m.method}: events, claimed beside assessed",
+                        ["event", "party", "notified", "claimed", "assessed", "excusable", "compensable", "note"],
+                        [[e["event"], e["party"], _text(e["notified"]), _text(e["claimed_days"]),
+                          _text(e["assessed_days"]), _text(e["excusable_days"]), _text(e["compensable_days"]),
+                          e["note"]] for e in m.events.to_dict("records")])
+    for line in reasons:
+        click.echo(line)
+    click.echo(f"Impacts alone and but-for days need not add up; the classified days do. {CAUTION}")
+
+
+COMMANDS = (entitlement,)
