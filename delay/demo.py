@@ -121,4 +121,23 @@ def _modelled(case, folder: Path, out_dir: Path, echo) -> list[Path]:
             written.append(out_dir / "collapsed.json")
             echo(f"Collapsed as-built: the model {'reproduces' if butfor.reproduced else 'does not fully reproduce'} "
                  "the actual dates; but-for completions written")
+        written += _entitlement(case, folder, out_dir, echo)
     return written
+
+
+def _entitlement(case, folder: Path, out_dir: Path, echo) -> list[Path]:
+    """Entitlement per method, the methods compared and the sensitivity table."""
+    from .comparison import available_methods, compare_methods, sensitivity
+    from .entitlement import assess
+
+    methods = available_methods(case)
+    assessed = assess(case, methods)
+    (folder / "entitlement.json").write_text(json.dumps(assessed.to_json(), indent=2), encoding="utf-8")
+    compared = compare_methods(case, {m: assessed.method(m) for m in methods})
+    (folder / "comparison.json").write_text(json.dumps(compared.to_json(), indent=2), encoding="utf-8")
+    sensitivity(case, methods).to_csv(folder / "sensitivity.csv", index=False)
+    for m in methods:
+        e = assessed.method(m)
+        echo(f"  {m:<10} extension of time {e.eot_days} days, compensable {e.compensable_days}, "
+             f"culpable {e.culpable_days}")
+    return [out_dir / "entitlement.json", out_dir / "comparison.json", out_dir / "sensitivity.csv"]

@@ -126,4 +126,42 @@ def entitlement(case, method, output_format):
     click.echo(f"Impacts alone and but-for days need not add up; the classified days do. {CAUTION}")
 
 
-COMMANDS = (entitlement,)
+
+
+@click.command()
+@click.argument("case", type=click.Path(exists=True))
+@click.option("--format", "output_format", type=click.Choice(["table", "json"]), default="table", show_default=True)
+@reports_input_errors
+def compare(case, output_format):
+    """The methods side by side, why they differ, and the sensitivity to two settings.
+
+    Puts every method the records allow (windows, impacted as-planned, time impact,
+    collapsed as-built) side by side per party and per event, explains in plain words where
+    and why they differ, and re-runs the headline figures under the other progress mode and
+    the other concurrency rule.
+    """
+    from ..comparison import compare_methods, sensitivity
+
+    loaded = load_case_argument(case)
+    result = compare_methods(loaded)
+    table = sensitivity(loaded, result.methods)
+    if output_format == "json":
+        payload = result.to_json()
+        payload["sensitivity"] = json.loads(table.to_json(orient="records"))
+        click.echo(json.dumps(payload, indent=2))
+        return
+    methods = list(result.methods)
+    print_table("Days of delay to completion per party (each method's column adds up to what it explains)",
+                ["party", *methods], result.by_party.values.tolist())
+    print_table("Days per event (a day explained by several events counts against each)",
+                ["event", "party", *methods], result.by_event.drop(columns="title").values.tolist())
+    print_table("Sensitivity of the headline figures",
+                ["method", "variant", "progress", "concurrency", "extension of time", "compensable", "culpable",
+                 "damages", "changed"],
+                [[r.method, r.variant, r.progress, r.concurrency, r.eot_days, r.compensable_days, r.culpable_days,
+                  f"{r.ld_exposure:,.2f}", "yes" if r.changed else ""] for r in table.itertuples()])
+    for line in result.explanation:
+        click.echo(line)
+
+
+COMMANDS = (entitlement, compare)

@@ -1,0 +1,218 @@
+"""The methods side by side, why they differ, and how far the answer rests on two settings.
+
+:func:`compare_methods` puts the causation of every method that the case allows (windows,
+impacted as-planned, time impact, collapsed as-built) side by side, per party and per event,
+and writes a plain-words explanation generated from those numbers: which method gives each
+party the most and the least, and the known reasons such methods differ (what each one
+measures). :func:`sensitivity` re-runs the headline figures (extension of time, compensable
+and culpable days, damages exposure) under the other progress mode (retained logic or
+progress override) and the other concurrency rule (time but not money, or apportionment), so
+the reader sees which conclusions depend on them.
+
+The explanation is a reading aid, not a finding: which method suits a dispute is for the
+analyst, under the contract and the applicable law (SCL Delay and Disruption Protocol, 2nd
+edition (2017), Part B on choosing a method of analysis; AACE RP 29R-03 (2011), section 5 on
+choosing a method, both as recalled).
+"""
+
+from __future__ import annotations
+
+import dataclasses
+from dataclasses import dataclass
+from typing import Mapping, Sequence
+
+import pandas as pd
+
+from .entitlement import Entitlement, assess
+from .model import Case
+
+__all__ = ["compare_methods", "sensitivity", "available_methods", "MethodComparison", "METHOD_TITLES"]
+
+METHOD_TITLES = {
+    "windows": "windows analysis",
+    "impacted": "impacted as-planned",
+    "tia": "time impact analysis",
+    "collapsed": "collapsed as-built",
+}
+
+#: What each method measures: the sentence the explanation uses for it.
+MEASURES = {
+    "windows": "follows the contemporaneous updates, so it charges what actually moved the forecast "
+               "completion, progress and re-planning included",
+    "impacted": "adds the register's events to the plan alone, ignoring progress and delays no event "
+                "describes",
+    "tia": "adds each event to the update current when it began, so each event is measured against the "
+           "programme of its own time and the updates' figures can add up to more than the actual delay",
+    "collapsed": "takes the events out of the as-built record, so it depends on the as-built logic "
+                 "reproducing the actual dates",
+}
+PARTY_ORDER = ("employer", "contractor", "neutral", "concurrent", "unexplained")
+
+
+def available_methods(case: Case) -> list[str]:
+    """The methods the case's records allow: windows needs two snapshots, the modelled ones
+    an event register, the collapsed as-built an as-built record too."""
+    methods = []
+    if len(case.snapshots) + (case.asbuilt_snapshot is not None) >= 2:
+        methods.append("windows")
+    if len(case.events):
+        methods += ["impacted", "tia"]
+        if case.asbuilt_snapshot is not None:
+            methods.append("collapsed")
+    return methods
+
+
+@dataclass(frozen=True)
+class MethodComparison:
+    """Per party and per event, one column of days per method, and the explanation."""
+
+    methods: tuple[str, ...]
+    by_party: pd.DataFrame
+    by_event: pd.DataFrame
+    headline: pd.DataFrame
+    explanation: tuple[str, ...]
+
+    def to_json(self) -> dict:
+        def records(frame):
+            return [{k: (None if pd.isna(v) else (int(v) if isinstance(v, (int,)) or hasattr(v, "item") else v))
+                     for k, v in row.items()} for row in frame.to_dict(orient="records")]
+
+        return {"methods": list(self.methods), "by_party": records(self.by_party),
+                "by_event": records(self.by_event), "headline": records(self.headline),
+                "explanation": list(self.explanation)}
+
+
+def _party_days(result: Entitlement) -> dict[str, int]:
+    table = result.causation.table
+    days = table.groupby("party")["days"].sum().to_dict() if len(table) else {}
+    return {party: int(value) for party, value in days.items()}
+
+
+def _event_days(result: Entitlement) -> dict[str, int]:
+    table = result.causation.table
+    out: dict[str, int] = {}
+    for events, days in zip(table["event"], table["days"]):
+        ids = [e for e in str(events or "").split(";") if e]
+        for event_id in ids:  # a row explained by several events is shown against each
+            out[event_id] = out.get(event_id, 0) + int(days)
+    return out
+
+
+def compare_methods(case: Case, results: Mapping[str, Entitlement] | None = None) -> MethodComparison:
+    """Every available method side by side, with a plain-words explanation of the differences.
+
+    Parameters
+    ----------
+    case: the loaded case.
+    results: entitlements already assessed, by method (default: assessed here).
+
+    Returns
+    -------
+    MethodComparison
+        ``by_party``: rows employer, contractor, neutral, concurrent, unexplained; one column
+        of days of delay to completion per method (each method's rows add up to the delay
+        it explains). ``by_event``: one row per event of the register, the days each method
+        gives it (a row explained by several events counts against each, so these columns
+        need not add up). ``headline``: per method the extension of time, compensable and
+        culpable days, damages exposure and concurrent days. ``explanation``: sentences.
+    """
+    methods = tuple(results) if results else tuple(available_methods(case))
+    if results is None:
+        assessed = assess(case, list(methods))
+        results = {m: assessed.method(m) for m in methods}
+    party = {m: _party_days(results[m]) for m in methods}
+    rows = [{"party": p, **{m: party[m].get(p, 0) for m in methods}} for p in PARTY_ORDER
+            if any(party[m].get(p, 0) for m in methods)]
+    by_party = pd.DataFrame(rows, columns=["party", *methods])
+    events = case.events
+    event_days = {m: _event_days(results[m]) for m in methods}
+    by_event = pd.DataFrame(
+        [{"event": e, "party": p, "title": t, **{m: event_days[m].get(e, 0) for m in methods}}
+         for e, p, t in zip(events["id"], events["party"], events["title"])],
+        columns=["event", "party", "title", *methods])
+    headline = pd.DataFrame([{
+        "method": m, "eot_days": results[m].eot_days, "compensable_days": results[m].compensable_days,
+        "culpable_days": results[m].culpable_days, "ld_exposure": results[m].ld_exposure,
+        "concurrent_days": results[m].concurrent_days, "explained_days": results[m].causation.explained_days,
+    } for m in methods])
+    return MethodComparison(methods, by_party, by_event, headline, tuple(_explain(methods, by_party, headline, results)))
+
+
+def _explain(methods, by_party: pd.DataFrame, headline: pd.DataFrame, results) -> list[str]:
+    if not methods:
+        return ["No method can be run on this case's records."]
+    lines = []
+    eot = headline.set_index("method")["eot_days"]
+    if len(methods) > 1:
+        high, low = eot.idxmax(), eot.idxmin()
+        if eot[high] == eot[low]:
+            lines.append(f"All {len(methods)} methods give the same extension of time, {int(eot[high])} days.")
+        else:
+            lines.append(f"The extension of time ranges from {int(eot[low])} days ({METHOD_TITLES[low]}) to "
+                         f"{int(eot[high])} days ({METHOD_TITLES[high]}).")
+    for row in by_party.itertuples(index=False):
+        values = {m: int(getattr(row, m)) for m in methods}
+        if len(methods) > 1 and max(values.values()) != min(values.values()):
+            most = max(values, key=values.get)
+            least = min(values, key=values.get)
+            lines.append(f"Delay carried by {row.party}: {values[most]} days by {METHOD_TITLES[most]}, "
+                         f"{values[least]} by {METHOD_TITLES[least]}.")
+    for m in methods:
+        explained = results[m].causation
+        lines.append(f"{METHOD_TITLES[m].capitalize()} {MEASURES[m]}; it explains {explained.explained_days} days "
+                     f"({explained.explains}).")
+    collapsed = results.get("collapsed")
+    if collapsed is not None:
+        for note in collapsed.causation.notes:
+            if "does not reproduce" in note:
+                lines.append("The collapsed as-built figures carry the error of an as-built model that does not "
+                             "reproduce every actual date; see its mismatches.")
+                break
+    lines.append("Which method suits the dispute, and whether its assumptions hold on these records, is for the "
+                 "analyst's professional judgement under the contract and the applicable law.")
+    return lines
+
+
+def _with_progress(case: Case, progress: str) -> Case:
+    settings = dataclasses.replace(case.settings, schedule=dataclasses.replace(case.settings.schedule,
+                                                                                   progress=progress))
+    return Case(root=case.root, settings=settings, tables={n: case.table(n) for n in case._tables},
+                snapshots=case.snapshots, asbuilt_snapshot=case.asbuilt_snapshot, corrections=case.corrections,
+                input_files=case.input_files)
+
+
+def sensitivity(case: Case, methods: Sequence[str] | None = None) -> pd.DataFrame:
+    """The headline figures of each method under the case's settings and the alternatives.
+
+    Returns
+    -------
+    DataFrame
+        One row per method and variant (``as set``, ``other progress mode``, ``other
+        concurrency rule``): ``progress``, ``concurrency``, ``eot_days``,
+        ``compensable_days``, ``culpable_days``, ``ld_exposure``, ``concurrent_days``, and
+        ``changed`` (whether any figure differs from the case's own settings).
+    """
+    methods = list(methods) if methods else available_methods(case)
+    progress = case.settings.schedule.progress
+    concurrency = case.settings.analysis.concurrency
+    other_progress = "progress_override" if progress == "retained_logic" else "retained_logic"
+    other_concurrency = "apportion" if concurrency == "time_not_money" else "time_not_money"
+    variants = [
+        ("as set", case, progress, concurrency),
+        ("other progress mode", _with_progress(case, other_progress), other_progress, concurrency),
+        ("other concurrency rule", case, progress, other_concurrency),
+    ]
+    rows = []
+    base: dict[str, tuple] = {}
+    for name, variant_case, mode, rule in variants:
+        assessed = assess(variant_case, methods, concurrency=rule)
+        for m in methods:
+            e = assessed.method(m)
+            figures = (e.eot_days, e.compensable_days, e.culpable_days, e.ld_exposure, e.concurrent_days)
+            if name == "as set":
+                base[m] = figures
+            rows.append({"method": m, "variant": name, "progress": mode, "concurrency": rule,
+                         "eot_days": e.eot_days, "compensable_days": e.compensable_days,
+                         "culpable_days": e.culpable_days, "ld_exposure": e.ld_exposure,
+                         "concurrent_days": e.concurrent_days, "changed": figures != base[m]})
+    return pd.DataFrame(rows)
