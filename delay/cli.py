@@ -207,13 +207,18 @@ def demo(out_dir, case_path):
     Validates the demo case, schedules every snapshot, runs the windows analysis and the
     as-planned versus as-built comparison, and writes the results under out/demo/ (or
     --out): the case summary, each snapshot's schedule as CSV and JSON, the completion date
-    of every snapshot, the windows and their charges, and the as-built critical path.
+    of every snapshot, the windows and their charges, the as-built critical path, the
+    modelled methods, entitlement and the method comparison, and the full report in
+    out/demo/report/ (report.html, tables.xlsx, tables/*.csv, manifest.json).
     """
     from .demo import run_demo
 
     case = Path(case_path) if case_path else _demo_case()
     written = run_demo(case, Path(out_dir), echo=click.echo)
-    click.echo(f"Wrote {len(written)} files to {out_dir}")
+    from reports.writer import demo_report  # the report builder sits downstream of delay
+
+    demo_report(case, Path(out_dir) / "report", echo=click.echo)
+    click.echo(f"Wrote {len(written)} files to {out_dir} and the report to {Path(out_dir) / 'report' / 'report.html'}")
 
 
 for _command in all_commands():

@@ -9,7 +9,7 @@ from __future__ import annotations
 import importlib
 
 #: Modules under delay.commands whose COMMANDS are added to the ``delay`` group, in order.
-MODULES: tuple[str, ...] = ("retrospective", "check", "modelled", "ifc", "entitlement")
+MODULES: tuple[str, ...] = ("retrospective", "check", "modelled", "ifc", "entitlement", "report")
 
 
 def all_commands():

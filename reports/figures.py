@@ -1,0 +1,321 @@
+"""The report's charts: one function per figure, each returning a plotly figure.
+
+Every chart of the report is made here and nowhere else, so each is tested once and looks
+the same wherever it appears. Colours are the colour-blind-safe hues of
+:mod:`reports.palette`; the roles are our own:
+
+- planned dates and "time only" days: sky blue; actual dates and "time and money" days:
+  deep blue; culpable days and lateness: vermillion; reference lines: black and grey.
+
+Text that comes from the case (activity names, event titles, labels) is escaped before it
+reaches plotly, whose labels read a small subset of HTML: a name such as ``<b>`` shows as
+typed and never becomes markup.
+"""
+
+from __future__ import annotations
+
+import datetime as dt
+import html
+
+import numpy as np
+import pandas as pd
+
+from .palette import BACKGROUND_COLOUR, HIGHLIGHT_COLOUR, STATE_COLOURS
+
+__all__ = [
+    "completion_trend",
+    "window_movements",
+    "completion_steps",
+    "planned_against_built",
+    "days_by_method",
+    "but_for_days",
+    "PLANNED_COLOUR",
+    "BUILT_COLOUR",
+    "LATE_COLOUR",
+    "REFERENCE_COLOUR",
+    "MILLISECONDS_PER_DAY",
+    "figure_html",
+]
+
+PLANNED_COLOUR = STATE_COLOURS[1]  # sky blue
+BUILT_COLOUR = STATE_COLOURS[2]  # deep blue
+LATE_COLOUR = STATE_COLOURS[3]  # vermillion
+REFERENCE_COLOUR = STATE_COLOURS[4]  # grey
+LINE_COLOUR = HIGHLIGHT_COLOUR  # black
+
+MILLISECONDS_PER_DAY = 86_400_000
+_FONT = dict(family='system-ui, -apple-system, "Segoe UI", sans-serif', size=12, color="#222222")
+
+
+def _text(value) -> str:
+    """Case text made safe for plotly's labels."""
+    if value is None or (not isinstance(value, str) and pd.isna(value)):
+        return ""
+    return html.escape(str(value), quote=False)
+
+
+def _iso(value) -> str | None:
+    if value is None or (not isinstance(value, (dt.date, str)) and pd.isna(value)):
+        return None
+    if isinstance(value, str):
+        return value
+    return pd.Timestamp(value).date().isoformat()
+
+
+def _layout(title: str, **extra) -> dict:
+    layout = dict(
+        title=dict(text=_text(title), x=0.0, xanchor="left", font=dict(size=15)),
+        template="none", font=_FONT, paper_bgcolor=BACKGROUND_COLOUR, plot_bgcolor=BACKGROUND_COLOUR,
+        margin=dict(l=70, r=30, t=60, b=60), hoverlabel=dict(align="left"),
+        legend=dict(orientation="h", x=0.0, y=-0.15, xanchor="left", yanchor="top"),
+    )
+    layout.update(extra)
+    return layout
+
+
+def _reference_line(figure, *, y=None, x=None, text: str, colour: str, dash: str) -> None:
+    if y is not None:
+        figure.add_shape(type="line", xref="paper", x0=0, x1=1, yref="y", y0=y, y1=y,
+                         line=dict(color=colour, width=1.5, dash=dash))
+        figure.add_annotation(xref="paper", x=1.0, yref="y", y=y, text=_text(text), showarrow=False,
+                              xanchor="right", yanchor="bottom", font=dict(size=11, color=colour))
+    else:
+        figure.add_shape(type="line", yref="paper", y0=0, y1=1, xref="x", x0=x, x1=x,
+                         line=dict(color=colour, width=1, dash=dash))
+        figure.add_annotation(yref="paper", y=1.0, xref="x", x=x, text=_text(text), showarrow=False,
+                              textangle=-90, xanchor="right", yanchor="top", font=dict(size=10, color=colour))
+
+
+def completion_trend(trend: pd.DataFrame, *, contract_in_force=None, planned=None,
+                     title: str = "Forecast completion at each programme"):
+    """Forecast completion of each programme against its data date.
+
+    Parameters
+    ----------
+    trend: one row per programme, in data-date order: ``label``, ``data_date``,
+        ``completion`` (dates), optionally ``kind`` (``baseline``, ``update``, ``asbuilt``).
+    contract_in_force, planned: dates drawn as horizontal reference lines (the contract
+        completion in force, black dashes; the planned completion, grey dots).
+
+    Returns
+    -------
+    plotly.graph_objects.Figure
+        One line trace ``forecast completion`` (x: data dates, y: completions, ISO text).
+    """
+    import plotly.graph_objects as go
+
+    labels = [_text(v) for v in trend["label"]]
+    x = [_iso(v) for v in trend["data_date"]]
+    y = [_iso(v) for v in trend["completion"]]
+    figure = go.Figure(layout=_layout(
+        title, xaxis=dict(title=dict(text="data date of the programme"), type="date"),
+        yaxis=dict(title=dict(text="forecast completion"), type="date"), height=420, showlegend=False))
+    figure.add_trace(go.Scatter(
+        x=x, y=y, mode="lines+markers", name="forecast completion", text=labels,
+        line=dict(color=BUILT_COLOUR, width=2), marker=dict(size=7, color=BUILT_COLOUR),
+        hovertemplate="%{text}<br>data date %{x|%Y-%m-%d}<br>completion %{y|%Y-%m-%d}<extra></extra>"))
+    if contract_in_force is not None:
+        _reference_line(figure, y=_iso(contract_in_force), text="contract completion in force",
+                        colour=LINE_COLOUR, dash="dash")
+    if planned is not None:
+        _reference_line(figure, y=_iso(planned), text="planned completion", colour=REFERENCE_COLOUR, dash="dot")
+    return figure
+
+
+def window_movements(windows: pd.DataFrame, *, title: str = "Movement of completion in each window"):
+    """Each window's movement of completion split into progress and revisions.
+
+    Parameters
+    ----------
+    windows: one row per window: ``window``, ``start``, ``end`` (programme names),
+        ``progress_days``, ``revision_days`` (calendar days; positive is delay).
+
+    Returns
+    -------
+    plotly.graph_objects.Figure
+        Two bar traces stacked (``progress``, ``revisions``), one bar per window (x: the
+        window numbers as text).
+    """
+    import plotly.graph_objects as go
+
+    names = [str(int(w)) for w in windows["window"]]
+    spans = [f"window {int(w)}: {_text(s)} to {_text(e)}" for w, s, e in
+             zip(windows["window"], windows["start"], windows["end"])]
+    figure = go.Figure(layout=_layout(
+        title, barmode="relative", height=420,
+        xaxis=dict(title=dict(text="window"), type="category"),
+        yaxis=dict(title=dict(text="calendar days (positive is delay)"), zeroline=True)))
+    figure.add_trace(go.Bar(x=names, y=[int(v) for v in windows["progress_days"]], name="effect of progress",
+                            marker_color=BUILT_COLOUR, text=spans, textposition="none",
+                            hovertemplate="%{text}<br>progress %{y} days<extra></extra>"))
+    figure.add_trace(go.Bar(x=names, y=[int(v) for v in windows["revision_days"]], name="effect of revisions",
+                            marker_color=PLANNED_COLOUR, text=spans, textposition="none",
+                            hovertemplate="%{text}<br>revisions %{y} days<extra></extra>"))
+    return figure
+
+
+def completion_steps(steps: pd.DataFrame, *, title: str = "Completion after each event"):
+    """Completion after each event of a cumulative run, as a staircase.
+
+    Parameters
+    ----------
+    steps: one row per point, in run order: ``run`` (the programme the events are inserted
+        into; one staircase per run), ``step`` (``"before any event"`` or the event id),
+        ``completion`` (date after the step), optionally ``alone`` (completion with that
+        event alone, drawn as a hollow marker) and ``title`` (hover text).
+
+    Returns
+    -------
+    plotly.graph_objects.Figure
+        Per run one ``lines`` trace with ``line.shape = "hv"`` (x: step labels, y: ISO
+        dates), and, where ``alone`` is given, one ``markers`` trace of impacts alone.
+    """
+    import plotly.graph_objects as go
+
+    figure = go.Figure(layout=_layout(
+        title, height=460, xaxis=dict(title=dict(text="events inserted, in order"), type="category",
+                                      tickangle=-35, automargin=True),
+        yaxis=dict(title=dict(text="completion"), type="date"), margin=dict(l=70, r=30, t=90, b=110),
+        legend=dict(orientation="h", x=0.0, y=1.0, xanchor="left", yanchor="bottom")))
+    runs = list(dict.fromkeys(steps["run"]))
+    for number, run in enumerate(runs):
+        rows = steps[steps["run"] == run]
+        x = [f"{_text(run)}: {_text(s)}" if len(runs) > 1 else _text(s) for s in rows["step"]]
+        hover = [_text(t) for t in rows["title"]] if "title" in rows else [""] * len(rows)
+        figure.add_trace(go.Scatter(
+            x=x, y=[_iso(v) for v in rows["completion"]], mode="lines+markers", line_shape="hv",
+            name=f"cumulative: {_text(run)}" if len(runs) > 1 else "completion, events inserted one after another",
+            line=dict(color=BUILT_COLOUR if number % 2 == 0 else LATE_COLOUR, width=2),
+            marker=dict(size=7), text=hover,
+            hovertemplate="%{x}<br>%{text}<br>completion %{y|%Y-%m-%d}<extra></extra>"))
+        if "alone" in rows and rows["alone"].notna().any():
+            figure.add_trace(go.Scatter(
+                x=x, y=[_iso(v) for v in rows["alone"]], mode="markers",
+                name="completion with that event alone" if number == 0 else f"alone: {_text(run)}",
+                showlegend=number == 0,
+                marker=dict(size=9, symbol="circle-open", color=PLANNED_COLOUR, line=dict(width=2)),
+                hovertemplate="%{x}<br>with this event alone: %{y|%Y-%m-%d}<extra></extra>"))
+    return figure
+
+
+def planned_against_built(activities: pd.DataFrame, *, data_dates: pd.DataFrame | None = None,
+                          title: str = "As planned against as built, activities on the driving paths"):
+    """Planned and actual bars per activity, grouped by work breakdown code.
+
+    Parameters
+    ----------
+    activities: one row per activity, in the order shown (top first): ``wbs``, ``id``,
+        ``name``, ``planned_start``, ``planned_finish``, ``actual_start``,
+        ``actual_finish`` (dates; a missing pair draws no bar) and ``milestone`` (bool).
+        A bar runs from the start of its start date to the end of its finish date (work
+        happens on both), so its length is ``finish - start + 1`` days.
+    data_dates: ``label`` and ``data_date`` of each progress update, drawn as dotted
+        vertical lines.
+
+    Returns
+    -------
+    plotly.graph_objects.Figure
+        Two horizontal bar traces (``as planned``, ``as built``) on a two-level category
+        axis (work breakdown code, activity id), ``base`` the start date and ``x`` the
+        length in milliseconds; milestones as diamond markers in two further traces. A first,
+        invisible trace ``rows`` holds every row so the axis keeps the order given.
+    """
+    import plotly.graph_objects as go
+
+    wbs = [_text(w) or "(no code)" for w in activities["wbs"]]
+    ids = [_text(i) for i in activities["id"]]
+    names = [_text(n) for n in activities["name"]]
+    rows = len(ids)
+    figure = go.Figure(layout=_layout(
+        title, barmode="group", bargap=0.25, bargroupgap=0.05, height=max(360, 140 + 24 * rows),
+        xaxis=dict(title=dict(text="date"), type="date", side="top"),
+        yaxis=dict(type="multicategory", autorange="reversed", tickfont=dict(size=10)),
+        margin=dict(l=230, r=30, t=120, b=60),
+        legend=dict(orientation="h", x=0.0, y=1.0, xanchor="left", yanchor="bottom")))
+    milestone = activities["milestone"].to_numpy(dtype=bool) if "milestone" in activities else np.zeros(rows, bool)
+    # an invisible first trace holds every row, so the axis lists the rows in the order given
+    first_date = pd.to_datetime(activities["planned_start"]).fillna(pd.to_datetime(activities["actual_start"]))
+    figure.add_trace(go.Scatter(mode="markers", y=[wbs, ids], x=[_iso(v) for v in first_date], showlegend=False,
+                                marker=dict(opacity=0, size=1), hoverinfo="skip", name="rows"))
+    for which, colour, name in (("planned", PLANNED_COLOUR, "as planned"), ("actual", BUILT_COLOUR, "as built")):
+        start = pd.to_datetime(activities[f"{which}_start"])
+        finish = pd.to_datetime(activities[f"{which}_finish"])
+        dated = (start.notna() & finish.notna()).to_numpy()
+        bar = dated & ~milestone
+        length = ((finish - start).dt.days + 1).to_numpy(dtype=float, na_value=np.nan) * MILLISECONDS_PER_DAY
+        hover = [f"{i} {n}<br>{name}: {_iso(s)} to {_iso(f)}" for i, n, s, f in zip(ids, names, start, finish)]
+        figure.add_trace(go.Bar(
+            orientation="h", name=name, marker_color=colour,
+            y=[[w for w, b in zip(wbs, bar) if b], [i for i, b in zip(ids, bar) if b]],
+            base=[_iso(s) for s, b in zip(start, bar) if b], x=[float(v) for v, b in zip(length, bar) if b],
+            hovertext=[h for h, b in zip(hover, bar) if b], hoverinfo="text"))
+        point = dated & milestone
+        figure.add_trace(go.Scatter(
+            mode="markers", name=f"{name} (milestone)", showlegend=False,
+            marker=dict(symbol="diamond", size=10, color=colour, line=dict(color=LINE_COLOUR, width=1)),
+            y=[[w for w, b in zip(wbs, point) if b], [i for i, b in zip(ids, point) if b]],
+            x=[_iso(f) for f, b in zip(finish, point) if b],
+            hovertext=[h for h, b in zip(hover, point) if b], hoverinfo="text"))
+    if data_dates is not None:
+        for label, day in zip(data_dates["label"], data_dates["data_date"]):
+            _reference_line(figure, x=_iso(day), text=f"data date {label}", colour=REFERENCE_COLOUR, dash="dot")
+    return figure
+
+
+def days_by_method(summary: pd.DataFrame, *, title: str = "Days by method"):
+    """Extension of time, compensable and culpable days of each method, side by side.
+
+    Parameters
+    ----------
+    summary: one row per method: ``method`` (its name in words), ``eot_days``,
+        ``compensable_days``, ``culpable_days`` (calendar days).
+
+    Returns
+    -------
+    plotly.graph_objects.Figure
+        Three bar traces grouped by method, in the order above.
+    """
+    import plotly.graph_objects as go
+
+    methods = [_text(m) for m in summary["method"]]
+    figure = go.Figure(layout=_layout(title, barmode="group", height=400,
+                                      xaxis=dict(type="category"),
+                                      yaxis=dict(title=dict(text="calendar days"))))
+    for column, colour, name in (("eot_days", BUILT_COLOUR, "extension of time"),
+                                 ("compensable_days", PLANNED_COLOUR, "compensable days (time and money)"),
+                                 ("culpable_days", LATE_COLOUR, "culpable days (damages may apply)")):
+        figure.add_trace(go.Bar(x=methods, y=[int(v) for v in summary[column]], name=name, marker_color=colour,
+                                hovertemplate="%{x}<br>" + name + ": %{y}<extra></extra>"))
+    return figure
+
+
+def but_for_days(by_party: pd.DataFrame, *, title: str = "How much earlier the works would have finished"):
+    """The collapsed as-built's but-for days per party (need not add up).
+
+    Parameters
+    ----------
+    by_party: ``party`` and ``days_earlier`` (missing where nothing could be taken out;
+        such a party is left out of the chart).
+
+    Returns
+    -------
+    plotly.graph_objects.Figure
+        One bar trace: a bar per party scored, the ``all`` row in grey.
+    """
+    import plotly.graph_objects as go
+
+    rows = by_party[by_party["days_earlier"].notna()]
+    names = ["all events" if p == "all" else f"{_text(p)} events" for p in rows["party"]]
+    colours = [REFERENCE_COLOUR if p == "all" else BUILT_COLOUR for p in rows["party"]]
+    figure = go.Figure(layout=_layout(title, height=360, showlegend=False,
+                                      xaxis=dict(type="category"),
+                                      yaxis=dict(title=dict(text="calendar days earlier"))))
+    figure.add_trace(go.Bar(x=names, y=[int(v) for v in rows["days_earlier"]], marker_color=colours,
+                            name="days earlier", hovertemplate="but for %{x}: %{y} days earlier<extra></extra>"))
+    return figure
+
+
+def figure_html(figure, element_id: str) -> str:
+    """The figure as an HTML fragment for a page that already holds plotly.js."""
+    return figure.to_html(full_html=False, include_plotlyjs=False, div_id=element_id,
+                          config={"displaylogo": False, "responsive": True})

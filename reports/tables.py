@@ -1,0 +1,441 @@
+"""The report's tables: one object per table, its canonical CSV and fingerprint, and the
+xlsx and CSV appendices.
+
+Every table the report shows is a :class:`ReportTable`. The same frame is rendered in the
+HTML page, written as a sheet of ``tables.xlsx`` and as ``tables/<key>.csv``, and
+fingerprinted in ``manifest.json``, so a figure in the page can always be found again in
+the appendix and checked against the inputs (``delay verify``).
+
+Canonical CSV (the text that is fingerprinted and written to ``tables/<key>.csv``)
+----------------------------------------------------------------------------------
+- UTF-8, no byte-order mark, comma separated, ``\\n`` line ends, fields quoted only when
+  they must be (the rules of Python's :mod:`csv` module, ``QUOTE_MINIMAL``);
+- a header row with the column names in the order the table gives them, then the rows in
+  the table's order (an order can itself be a finding, such as a driving path);
+- dates as ISO ``YYYY-MM-DD`` (a time of day only where one is not midnight);
+- floats as Python's ``repr`` (the shortest text that reads back to the same float);
+- whole numbers as digits, booleans as ``true`` / ``false``;
+- a missing value (``None``, ``NaN``, ``NaT``, ``<NA>``) as an empty field;
+- a list or tuple as its items joined by ``;``.
+
+The fingerprint of a table is the SHA-256 of its canonical CSV.
+"""
+
+from __future__ import annotations
+
+import csv
+import datetime as dt
+import hashlib
+import io
+import math
+import re
+from dataclasses import dataclass, field
+from functools import cached_property
+from pathlib import Path
+from typing import Iterable, Mapping, Sequence
+
+import numpy as np
+import pandas as pd
+
+__all__ = [
+    "ReportTable",
+    "canonical_value",
+    "canonical_csv",
+    "fingerprint",
+    "display_value",
+    "write_csv_files",
+    "write_workbook",
+    "EXCEL_CELL_LIMIT",
+    "LABELS",
+    "label_of",
+]
+
+#: The most characters one cell of an xlsx workbook may hold.
+EXCEL_CELL_LIMIT = 32_767
+
+#: Column headings in plain words, for the page and the workbook (the CSV keeps the names).
+LABELS: dict[str, str] = {
+    "id": "id",
+    "activity": "activity",
+    "name": "name",
+    "wbs": "work breakdown code",
+    "window": "window",
+    "start": "from",
+    "end": "to",
+    "start_data_date": "data date at the start",
+    "end_data_date": "data date at the end",
+    "completion_start": "completion at the start",
+    "completion_half": "completion at the half-step",
+    "completion_end": "completion at the end",
+    "movement_days": "movement of completion (calendar days)",
+    "movement_work_days": "movement of completion (work days)",
+    "progress_days": "of which progress (calendar days)",
+    "revision_days": "of which revisions (calendar days)",
+    "step": "step",
+    "event": "event",
+    "events": "events",
+    "title": "title",
+    "party": "party",
+    "impact": "how it is modelled",
+    "activities": "activities",
+    "days": "days of delay to completion",
+    "alone_days": "impact alone (need not add up)",
+    "alone_work_days": "impact alone (work days)",
+    "completion_alone": "completion with this event alone",
+    "cumulative_days": "increment in the cumulative run (calendar days)",
+    "cumulative_work_days": "increment (work days)",
+    "completion_after": "completion after this event",
+    "completion_before": "completion before",
+    "applied": "not applied",
+    "causes": "caused by",
+    "concurrent_with": "concurrent with",
+    "concurrent_days": "concurrent days",
+    "excusable_days": "excusable days (time)",
+    "compensable_days": "compensable days (time and money)",
+    "culpable_days": "culpable days",
+    "classification": "classification",
+    "arose_on": "delay arose on",
+    "method": "method",
+    "explains": "the delay explained",
+    "explained_days": "days explained",
+    "completion_in_force": "contract completion in force",
+    "planned_completion": "planned completion",
+    "completion_with_excusable_delays": "completion with only the excusable delays",
+    "eot_days": "extension of time (calendar days)",
+    "revised_completion": "revised completion date",
+    "actual_completion": "actual or forecast completion",
+    "prolongation_cost": "prolongation cost",
+    "culpable_delay_days": "culpable delay in the table",
+    "liquidated_damages_per_day": "damages per day",
+    "ld_exposure": "liquidated damages exposure",
+    "ld_capped": "limited by the cap",
+    "contract_completion": "contract completion",
+    "granted_days": "extensions already granted (days)",
+    "section": "section",
+    "completion_activity": "completion milestone",
+    "note": "note",
+    "notified": "notified on",
+    "claimed_days": "days claimed",
+    "assessed_days": "days assessed",
+    "snapshot": "programme",
+    "label": "label",
+    "data_date": "data date",
+    "completion": "forecast completion",
+    "kind": "kind",
+    "metric": "metric",
+    "count": "count",
+    "denominator": "out of",
+    "percent": "per cent",
+    "threshold": "threshold",
+    "verdict": "verdict",
+    "check": "check",
+    "status": "status",
+    "items": "items found",
+    "finding": "finding",
+    "classification_code": "classification",
+    "joined": "joined the driving path",
+    "left": "left the driving path",
+    "driving_start": "driving path at the start (activities)",
+    "driving_end": "driving path at the end (activities)",
+    "but_for_completion": "but-for completion",
+    "days_earlier": "days earlier (need not add up)",
+    "work_days_earlier": "work days earlier",
+    "not_scored": "events not taken out",
+    "found_in_as_built": "found in the as-built record",
+    "removed": "what was taken out",
+    "actual_start": "actual start",
+    "actual_finish": "actual finish",
+    "modelled_start": "modelled start",
+    "modelled_finish": "modelled finish",
+    "reason": "reason",
+    "planned_start": "planned start",
+    "planned_finish": "planned finish",
+    "planned_duration": "planned duration (work days)",
+    "actual_duration": "actual duration (work days)",
+    "start_variance_days": "start variance (calendar days)",
+    "finish_variance_days": "finish variance (calendar days)",
+    "duration_variance_work_days": "duration variance (work days)",
+    "driving_predecessor": "driven by",
+    "link": "link",
+    "gap_work_days": "gap (work days)",
+    "accrued_days": "delay accrued (calendar days)",
+    "period": "period",
+    "delay_days": "delay in the period (calendar days)",
+    "on_paths": "on the driving path of",
+    "level": "level",
+    "zone": "zone",
+    "highlighted": "affected by a delay event",
+    "linked_as_planned": "linked as planned",
+    "linked_as_built": "linked as built",
+    "missing_from": "no activity in",
+    "setting": "setting",
+    "value": "value",
+    "original": "original value",
+    "corrected": "corrected value",
+    "record": "record corrected",
+    "row": "row of corrections.csv",
+    "earlier": "earlier programme",
+    "later": "later programme",
+    "what": "what",
+    "date": "date",
+}
+
+
+def label_of(column: str, labels: Mapping[str, str] | None = None) -> str:
+    """The heading of ``column`` in plain words."""
+    if labels and column in labels:
+        return labels[column]
+    return LABELS.get(column, column.replace("_", " "))
+
+
+@dataclass(frozen=True, eq=False)
+class ReportTable:
+    """One table of the report.
+
+    Attributes
+    ----------
+    key: the file stem (``tables/<key>.csv``), the sheet name and the fingerprint's name;
+        at most 31 characters, letters, digits and underscores.
+    title: the caption, in plain words.
+    section: the key of the report section that shows it.
+    frame: the rows; its column names are the CSV header.
+    labels: headings in plain words for columns :data:`LABELS` does not name well here.
+    note: a sentence shown under the caption (what the figures mean, what need not add up).
+    shown_rows: at most this many rows appear in the page (all appear in the appendix).
+    """
+
+    key: str
+    title: str
+    section: str
+    frame: pd.DataFrame
+    labels: Mapping[str, str] = field(default_factory=dict)
+    note: str = ""
+    shown_rows: int = 1000
+
+    def __post_init__(self):
+        if not (0 < len(self.key) <= 31) or not self.key.replace("_", "").isalnum():
+            raise ValueError(f"table key {self.key!r}: use 1 to 31 letters, digits and underscores")
+
+    @property
+    def columns(self) -> list[str]:
+        return [str(c) for c in self.frame.columns]
+
+    @property
+    def headings(self) -> list[str]:
+        return [label_of(c, self.labels) for c in self.columns]
+
+    @cached_property
+    def _canonical(self) -> str:
+        return canonical_csv(self.frame)
+
+    def canonical_csv(self) -> str:
+        """The canonical CSV text (computed once; the frame must not change afterwards)."""
+        return self._canonical
+
+    def fingerprint(self) -> str:
+        """SHA-256 (hex) of :meth:`canonical_csv`."""
+        return hashlib.sha256(self._canonical.encode("utf-8")).hexdigest()
+
+
+# -- canonical form -----------------------------------------------------------------------------
+def _missing(value) -> bool:
+    if value is None or value is pd.NA or value is pd.NaT:
+        return True
+    if isinstance(value, (float, np.floating)):
+        return math.isnan(float(value))
+    if isinstance(value, np.datetime64):
+        return bool(np.isnat(value))
+    return False
+
+
+def canonical_value(value) -> str:
+    """One cell as it appears in the canonical CSV (see the module docstring).
+
+    >>> [canonical_value(v) for v in (None, True, 3, 0.1, dt.date(2025, 1, 6), ["A", "B"])]
+    ['', 'true', '3', '0.1', '2025-01-06', 'A;B']
+    """
+    if isinstance(value, (list, tuple, np.ndarray)):
+        return ";".join(canonical_value(v) for v in value)
+    if _missing(value):
+        return ""
+    if isinstance(value, (bool, np.bool_)):
+        return "true" if value else "false"
+    if isinstance(value, (int, np.integer)):
+        return str(int(value))
+    if isinstance(value, (float, np.floating)):
+        return repr(float(value))
+    if isinstance(value, np.datetime64):
+        value = pd.Timestamp(value)
+    if isinstance(value, pd.Timestamp):
+        value = value.to_pydatetime()
+    if isinstance(value, dt.datetime):
+        if value.time() == dt.time(0, 0) and value.tzinfo is None:
+            return value.date().isoformat()
+        return value.isoformat()
+    if isinstance(value, dt.date):
+        return value.isoformat()
+    return str(value)
+
+
+def canonical_csv(frame: pd.DataFrame) -> str:
+    """The canonical CSV text of ``frame`` (see the module docstring)."""
+    buffer = io.StringIO()
+    writer = csv.writer(buffer, lineterminator="\n", quoting=csv.QUOTE_MINIMAL)
+    writer.writerow([str(c) for c in frame.columns])
+    columns = [frame[c].tolist() for c in frame.columns]
+    for row in zip(*columns):
+        writer.writerow([canonical_value(v) for v in row])
+    return buffer.getvalue()
+
+
+def fingerprint(frame: pd.DataFrame) -> str:
+    """SHA-256 (hex) of the canonical CSV of ``frame``."""
+    return hashlib.sha256(canonical_csv(frame).encode("utf-8")).hexdigest()
+
+
+# -- the page's view of a cell -------------------------------------------------------------------
+_LIST_SHOWN = 12
+
+
+def display_value(value, *, money: bool = False) -> str:
+    """A cell as the page shows it: dates ISO, lists joined by commas (the first dozen),
+    floats of 1,000 or more (sums of money) with two decimals and thousands separators,
+    yes/no for booleans, blank for
+    missing. The page escapes the text; nothing here is markup."""
+    if isinstance(value, (list, tuple, np.ndarray)):
+        items = [display_value(v) for v in value]
+        if len(items) > _LIST_SHOWN:
+            return ", ".join(items[:_LIST_SHOWN]) + f" and {len(items) - _LIST_SHOWN} more"
+        return ", ".join(items)
+    if _missing(value):
+        return ""
+    if isinstance(value, str):
+        # ";"-joined lists of ids read better with a space, and can then wrap
+        return re.sub(r";(?=\S)", "; ", value)
+    if isinstance(value, (bool, np.bool_)):
+        return "yes" if value else "no"
+    if isinstance(value, (int, np.integer)):
+        return f"{int(value):,}" if money else str(int(value))
+    if isinstance(value, (float, np.floating)):
+        number = float(value)
+        if money or abs(number) >= 1000:
+            return f"{number:,.2f}"
+        return str(int(number)) if number.is_integer() else f"{number:g}"
+    return canonical_value(value)
+
+
+# -- appendices ----------------------------------------------------------------------------------
+def write_csv_files(tables: Iterable[ReportTable], folder: Path) -> list[Path]:
+    """Write each table's canonical CSV to ``folder/<key>.csv``."""
+    folder = Path(folder)
+    folder.mkdir(parents=True, exist_ok=True)
+    written = []
+    for table in tables:
+        path = folder / f"{table.key}.csv"
+        path.write_bytes(table.canonical_csv().encode("utf-8"))
+        written.append(path)
+    return written
+
+
+def _excel_value(value):
+    if isinstance(value, (list, tuple, np.ndarray)):
+        value = "; ".join(canonical_value(v) for v in value)
+    if _missing(value):
+        return None
+    if isinstance(value, (bool, np.bool_)):
+        return bool(value)
+    if isinstance(value, (int, np.integer)):
+        return int(value)
+    if isinstance(value, (float, np.floating)):
+        return float(value)
+    if isinstance(value, np.datetime64):
+        value = pd.Timestamp(value)
+    if isinstance(value, pd.Timestamp):
+        value = value.to_pydatetime()
+    if isinstance(value, dt.datetime):
+        return value.date() if value.time() == dt.time(0, 0) else value.replace(tzinfo=None)
+    if isinstance(value, dt.date):
+        return value
+    text = str(value)
+    if len(text) > EXCEL_CELL_LIMIT:
+        cut = " ... (cut at the workbook's cell limit: see the CSV file)"
+        text = text[:EXCEL_CELL_LIMIT - len(cut)] + cut
+    return text
+
+
+def _width(values: Sequence, heading: str) -> float:
+    longest = len(heading)
+    for value in values[:2000]:
+        if value is None:
+            continue
+        if isinstance(value, dt.date):
+            size = 10
+        elif isinstance(value, float):
+            size = len(f"{value:,.2f}")
+        else:
+            size = max((len(part) for part in str(value).split("\n")), default=0)
+        longest = max(longest, size)
+    return float(min(max(longest + 2, 8), 60))
+
+
+def write_workbook(tables: Sequence[ReportTable], path: Path, *, title: str = "",
+                   caution: str = "") -> Path:
+    """Write every table as a sheet of one xlsx workbook at ``path``.
+
+    A first sheet ``contents`` lists the sheets with their titles and sections. Each table's
+    sheet has the headings in plain words in row 1 (frozen, with a filter), dates as date
+    cells (``yyyy-mm-dd``), numbers as numbers, and column widths set to fit the values.
+    The workbook is written row by row (openpyxl's write-only mode).
+    """
+    from openpyxl import Workbook
+    from openpyxl.cell import WriteOnlyCell
+    from openpyxl.styles import Alignment, Font
+    from openpyxl.utils import get_column_letter
+
+    book = Workbook(write_only=True)
+    bold = Font(bold=True)
+    wrapped = Alignment(wrap_text=True, vertical="top")
+
+    def cell(sheet, value, *, font=None, number_format=None, alignment=None):
+        item = WriteOnlyCell(sheet, value=value)
+        if font is not None:
+            item.font = font
+        if number_format is not None:
+            item.number_format = number_format
+        if alignment is not None:
+            item.alignment = alignment
+        if isinstance(value, str) and value.startswith("="):
+            item.data_type = "s"  # text that looks like a formula stays text
+        return item
+
+    contents = book.create_sheet("contents")
+    for letter, width in zip("ABCDE", (32, 60, 16, 8, 80)):
+        contents.column_dimensions[letter].width = width
+    contents.append([cell(contents, title or "Report tables", font=Font(bold=True, size=13))])
+    if caution:
+        contents.append([caution])
+    contents.append([])
+    contents.append([cell(contents, h, font=bold) for h in ("sheet", "table", "section", "rows", "note")])
+    for table in tables:
+        contents.append([table.key, table.title, table.section, len(table.frame), table.note or None])
+
+    for table in tables:
+        sheet = book.create_sheet(table.key)
+        headings = table.headings
+        columns = [[_excel_value(v) for v in table.frame[c].tolist()] for c in table.frame.columns]
+        for number, (heading, values) in enumerate(zip(headings, columns), start=1):
+            sheet.column_dimensions[get_column_letter(number)].width = _width(values, heading)
+        sheet.freeze_panes = "A2"
+        if headings:
+            sheet.auto_filter.ref = f"A1:{get_column_letter(len(headings))}{max(1, len(table.frame) + 1)}"
+        sheet.append([cell(sheet, h, font=bold, alignment=wrapped) for h in headings])
+        # a date cell takes openpyxl's date format (yyyy-mm-dd) from its value's type; only
+        # text that would be read as a formula needs a cell of its own
+        for row in zip(*columns):
+            if any(isinstance(v, str) and v.startswith("=") for v in row):
+                row = [cell(sheet, v) if isinstance(v, str) and v.startswith("=") else v for v in row]
+            sheet.append(row)
+    buffer = io.BytesIO()
+    book.save(buffer)
+    Path(path).write_bytes(buffer.getvalue())
+    return Path(path)

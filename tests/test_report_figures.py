@@ -1,0 +1,111 @@
+"""Each chart of the report, tested once on data worked by hand (reports.figures).
+
+Checks read the plotly figure's own data (``figure.data``, ``figure.layout``): what plotly
+draws is what these arrays say. Expected values are restated from the inputs given here.
+"""
+
+from __future__ import annotations
+
+import datetime as dt
+
+import pandas as pd
+
+from reports import figures
+from reports.palette import STATE_COLOURS
+
+
+def test_completion_trend_draws_each_programme_and_the_reference_lines():
+    trend = pd.DataFrame({"label": ["Baseline", "Update <1>"],
+                          "data_date": [dt.date(2025, 1, 6), dt.date(2025, 2, 3)],
+                          "completion": [dt.date(2025, 6, 30), dt.date(2025, 7, 14)]})
+    figure = figures.completion_trend(trend, contract_in_force=dt.date(2025, 7, 1), planned=dt.date(2025, 6, 30))
+    (line,) = figure.data
+    assert list(line.x) == ["2025-01-06", "2025-02-03"] and list(line.y) == ["2025-06-30", "2025-07-14"]
+    assert list(line.text) == ["Baseline", "Update &lt;1&gt;"]  # case text escaped for plotly's labels
+    levels = sorted(shape.y0 for shape in figure.layout.shapes)
+    assert levels == ["2025-06-30", "2025-07-01"]
+    assert figure.layout.yaxis.type == "date" and line.line.color == STATE_COLOURS[2]
+
+
+def test_window_movements_stack_progress_and_revisions():
+    windows = pd.DataFrame({"window": [1, 2], "start": ["baseline", "u01"], "end": ["u01", "u02"],
+                            "progress_days": [3, 6], "revision_days": [0, -2]})
+    figure = figures.window_movements(windows)
+    progress, revisions = figure.data
+    assert list(progress.x) == ["1", "2"] and list(progress.y) == [3, 6] and list(revisions.y) == [0, -2]
+    assert figure.layout.barmode == "relative"  # stacked, a gain below the axis
+    assert list(progress.text) == ["window 1: baseline to u01", "window 2: u01 to u02"]
+
+
+def test_completion_steps_are_a_staircase_with_impacts_alone_beside_it():
+    steps = pd.DataFrame({
+        "run": ["baseline"] * 3,
+        "step": ["before any event", "EV1", "EV2"],
+        "completion": [dt.date(2025, 6, 30), dt.date(2025, 7, 7), dt.date(2025, 7, 7)],
+        "alone": [None, dt.date(2025, 7, 7), dt.date(2025, 7, 2)],
+        "title": ["base", "Rain", "Late <drawings>"],
+    })
+    figure = figures.completion_steps(steps)
+    stairs, alone = figure.data
+    assert stairs.line.shape == "hv"  # each step holds until the next event
+    assert list(stairs.x) == ["before any event", "EV1", "EV2"]
+    assert list(stairs.y) == ["2025-06-30", "2025-07-07", "2025-07-07"]
+    assert list(alone.y) == [None, "2025-07-07", "2025-07-02"] and alone.mode == "markers"
+    assert list(stairs.text)[2] == "Late &lt;drawings&gt;"
+    # two runs (a time impact analysis): one staircase each, the run named on each step
+    two = pd.concat([steps, steps.assign(run="u01")], ignore_index=True)
+    lines = [t for t in figures.completion_steps(two).data if t.mode == "lines+markers"]
+    assert len(lines) == 2 and list(lines[1].x)[0] == "u01: before any event"
+
+
+def test_planned_against_built_bars_run_from_start_to_the_end_of_the_finish_date():
+    activities = pd.DataFrame({
+        "wbs": ["1", "1", "2"], "id": ["A", "M", "B"], "name": ["Dig", "Handover", "<b>Pour</b>"],
+        "planned_start": pd.to_datetime(["2025-01-06", "2025-01-17", "2025-01-13"]),
+        "planned_finish": pd.to_datetime(["2025-01-10", "2025-01-17", "2025-01-17"]),
+        "actual_start": pd.to_datetime(["2025-01-06", "2025-01-22", "2025-01-13"]),
+        "actual_finish": pd.to_datetime(["2025-01-14", "2025-01-22", None]),
+        "milestone": [False, True, False],
+    })
+    data_dates = pd.DataFrame({"label": ["Update 01"], "data_date": [dt.date(2025, 1, 13)]})
+    figure = figures.planned_against_built(activities, data_dates=data_dates)
+    rows, planned, planned_points, built, built_points = figure.data
+    day = 86_400_000  # milliseconds in a day
+    # A planned Mon 01-06 to Fri 01-10: 5 days (work on both ends); built to Tue 01-14: 9 days
+    assert list(planned.base) == ["2025-01-06", "2025-01-13"] and list(planned.x) == [5 * day, 5 * day]
+    assert list(built.base) == ["2025-01-06"] and list(built.x) == [9 * day]  # B has no actual finish
+    assert [list(level) for level in rows.y] == [["1", "1", "2"], ["A", "M", "B"]]  # the order given
+    assert [list(level) for level in planned.y] == [["1", "2"], ["A", "B"]]
+    assert list(planned_points.x) == ["2025-01-17"] and list(built_points.x) == ["2025-01-22"]
+    assert planned_points.marker.symbol == "diamond"
+    assert figure.layout.yaxis.type == "multicategory" and figure.layout.yaxis.autorange == "reversed"
+    assert "&lt;b&gt;Pour&lt;/b&gt;" in planned.hovertext[1]
+    (line,) = figure.layout.shapes
+    assert line.x0 == line.x1 == "2025-01-13" and line.line.dash == "dot"
+    assert planned.marker.color == STATE_COLOURS[1] and built.marker.color == STATE_COLOURS[2]
+
+
+def test_days_by_method_groups_three_figures_per_method():
+    summary = pd.DataFrame({"method": ["windows analysis", "impacted as-planned"], "eot_days": [10, 7],
+                            "compensable_days": [4, 7], "culpable_days": [3, 0]})
+    figure = figures.days_by_method(summary)
+    assert [t.name for t in figure.data] == ["extension of time", "compensable days (time and money)",
+                                             "culpable days (damages may apply)"]
+    assert [list(t.y) for t in figure.data] == [[10, 7], [4, 7], [3, 0]]
+    assert figure.layout.barmode == "group" and figure.data[2].marker.color == STATE_COLOURS[3]
+
+
+def test_but_for_days_leave_out_a_party_not_scored():
+    by_party = pd.DataFrame({"party": ["employer", "contractor", "all"],
+                             "days_earlier": pd.array([5, None, 8], dtype="Int64")})
+    (bars,) = figures.but_for_days(by_party).data
+    assert list(bars.x) == ["employer events", "all events"] and list(bars.y) == [5, 8]
+    assert list(bars.marker.color) == [STATE_COLOURS[2], STATE_COLOURS[4]]
+
+
+def test_a_figure_fragment_carries_no_plotly_js_and_no_raw_case_text():
+    trend = pd.DataFrame({"label": ["</script><script>alert(1)</script>"], "data_date": [dt.date(2025, 1, 6)],
+                          "completion": [dt.date(2025, 6, 30)]})
+    fragment = figures.figure_html(figures.completion_trend(trend), "figure-test")
+    assert 'id="figure-test"' in fragment and "Plotly.newPlot" in fragment
+    assert "<script>alert" not in fragment and len(fragment) < 20_000
