@@ -24,7 +24,6 @@ from __future__ import annotations
 import argparse
 import dataclasses
 import resource
-import statistics
 import sys
 import tempfile
 import time
@@ -33,19 +32,12 @@ from pathlib import Path
 import networkx as nx
 
 sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
+sys.path.insert(0, str(Path(__file__).resolve().parent))
 
 from delay.case import load_case  # noqa: E402
 from delay.cpm import prepare, schedule  # noqa: E402
 from delay.synth import synthesise  # noqa: E402
-
-
-def median_time(function, repeat: int) -> float:
-    times = []
-    for _ in range(repeat):
-        start = time.perf_counter()
-        function()
-        times.append(time.perf_counter() - start)
-    return statistics.median(times)
+from timing import median_time  # noqa: E402
 
 
 def per_node_cpm(graph: nx.DiGraph, duration: dict) -> dict:

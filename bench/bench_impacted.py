@@ -18,30 +18,21 @@ from __future__ import annotations
 
 import argparse
 import datetime as dt
-import statistics
 import sys
 import tempfile
-import time
 from pathlib import Path
 
 import numpy as np
 import pandas as pd
 
 sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
+sys.path.insert(0, str(Path(__file__).resolve().parent))
 
 from delay.case import load_case  # noqa: E402
 from delay.cpm import prepare, schedule  # noqa: E402
 from delay.methods.impacted import analyse  # noqa: E402
 from delay.synth import synthesise  # noqa: E402
-
-
-def median_time(function, repeat: int) -> float:
-    times = []
-    for _ in range(repeat):
-        start = time.perf_counter()
-        function()
-        times.append(time.perf_counter() - start)
-    return statistics.median(times)
+from timing import median_time  # noqa: E402
 
 
 def write_register(folder: Path, count: int, seed: int) -> dict[str, int]:

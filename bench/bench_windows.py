@@ -11,27 +11,18 @@ ratio says how many plain schedules' worth of work the whole analysis costs. No 
 from __future__ import annotations
 
 import argparse
-import statistics
 import sys
 import tempfile
-import time
 from pathlib import Path
 
 sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
+sys.path.insert(0, str(Path(__file__).resolve().parent))
 
 from delay.case import load_case  # noqa: E402
 from delay.cpm import schedule  # noqa: E402
 from delay.methods.windows import analyse  # noqa: E402
 from delay.synth import synthesise  # noqa: E402
-
-
-def median_time(function, repeat: int) -> float:
-    times = []
-    for _ in range(repeat):
-        start = time.perf_counter()
-        function()
-        times.append(time.perf_counter() - start)
-    return statistics.median(times)
+from timing import median_time  # noqa: E402
 
 
 def main() -> None:

@@ -37,7 +37,7 @@ import datetime as dt
 import weakref
 from dataclasses import dataclass, field
 from functools import cached_property
-from typing import Mapping, Sequence
+from typing import Mapping
 
 import numpy as np
 import pandas as pd

@@ -91,7 +91,7 @@ import pandas as pd
 
 from ..causation import event_activities
 from ..cpm import FINISH_MILESTONE, NO_DAY, ScheduleResult, calendars_of, prepare
-from ..errors import CaseError, Problem, ReconciliationError
+from ..errors import CaseError, Problem
 from ..model import PARTIES, Case
 
 __all__ = ["analyse", "CollapsedResult", "BUT_FOR_NOTE", "ALL_PARTIES"]
