@@ -49,7 +49,7 @@ def topological_order(n, out_ptr, out_link, succ):  # pragma: no cover - compile
     return order, tail
 
 
-@njit(cache=True)
+@njit(cache=True, inline="always")
 def _day_of(c, k, work_days, work_offset, work_count, anchor_before):  # pragma: no cover
     position = k + anchor_before[c]
     if position < 0:
@@ -59,7 +59,7 @@ def _day_of(c, k, work_days, work_offset, work_count, anchor_before):  # pragma:
     return work_days[work_offset[c] + position]
 
 
-@njit(cache=True)
+@njit(cache=True, inline="always")
 def _start_index(c, day, before, stride, first_day, anchor_before):  # pragma: no cover
     t = day - first_day
     if t < 0:
@@ -67,6 +67,38 @@ def _start_index(c, day, before, stride, first_day, anchor_before):  # pragma: n
     if t >= stride - 1:
         return _HIGH
     return before[c * stride + t] - anchor_before[c]
+
+
+@njit(cache=True, inline="always")
+def _bound_across(point, f, lag, lag_on_pred, from_calendar, to_calendar, before, stride, first_day,
+                  work_days, work_offset, work_count, anchor_before):  # pragma: no cover
+    """The boundary, on the successor's calendar, that a link sets from the predecessor's
+    ``point`` (read as a finish when ``f`` is 1), lag included; ``_LOW``/``_HIGH`` when a
+    look-up falls outside the tables."""
+    shift = lag if lag_on_pred else 0
+    day = _day_of(from_calendar, point + shift - f, work_days, work_offset, work_count, anchor_before)
+    if day == _LOW or day == _HIGH:
+        return day
+    value = _start_index(to_calendar, day + f, before, stride, first_day, anchor_before)
+    if value == _LOW or value == _HIGH or lag_on_pred:
+        return value
+    return value + lag
+
+
+@njit(cache=True, inline="always")
+def _latest_across(target, f, lag, lag_on_pred, successor_calendar, predecessor_calendar, before, stride,
+                   first_day, work_days, work_offset, work_count, anchor_before):  # pragma: no cover
+    """The latest predecessor point (its calendar, read as a finish when ``f`` is 1) for
+    which the link still allows the successor's ``target``; ``_LOW``/``_HIGH`` as above."""
+    g = 1 - f
+    q = target if lag_on_pred else target - lag
+    day = _day_of(successor_calendar, q, work_days, work_offset, work_count, anchor_before)
+    if day == _LOW or day == _HIGH:
+        return day
+    value = _start_index(predecessor_calendar, day + g, before, stride, first_day, anchor_before)
+    if value == _LOW or value == _HIGH:
+        return value
+    return value - g - lag if lag_on_pred else value - g
 
 
 @njit(cache=True)
@@ -85,20 +117,12 @@ def forward_pass(order, in_ptr, in_link, pred, lag, link_reads_finish, read_as_f
             p = pred[e]
             point = early_finish[p] if link_reads_finish[e] else start_read[p]
             if cross[e]:
-                f = read_as_finish[e]
-                shift = lag[e] if lag_on_pred else 0
-                day = _day_of(calendar[p], point + shift - f, work_days, work_offset, work_count, anchor_before)
-                if day == _LOW:
-                    return TOO_EARLY
-                if day == _HIGH:
-                    return TOO_LATE
-                value = _start_index(calendar[v], day + f, before, stride, first_day, anchor_before)
+                value = _bound_across(point, read_as_finish[e], lag[e], lag_on_pred, calendar[p], calendar[v],
+                                      before, stride, first_day, work_days, work_offset, work_count, anchor_before)
                 if value == _LOW:
                     return TOO_EARLY
                 if value == _HIGH:
                     return TOO_LATE
-                if not lag_on_pred:
-                    value += lag[e]
             else:
                 value = point + lag[e]
             value -= finish_adjust[e]
@@ -128,22 +152,12 @@ def backward_pass(order, out_ptr, out_link, succ, lag, link_bounds_finish, read_
             s = succ[e]
             q = late_finish[s] if link_bounds_finish[e] else late_start[s]
             if cross[e]:
-                g = 1 - read_as_finish[e]
-                if not lag_on_pred:
-                    q -= lag[e]
-                day = _day_of(calendar[s], q, work_days, work_offset, work_count, anchor_before)
-                if day == _LOW:
-                    return TOO_EARLY
-                if day == _HIGH:
-                    return TOO_LATE
-                value = _start_index(calendar[v], day + g, before, stride, first_day, anchor_before)
+                value = _latest_across(q, read_as_finish[e], lag[e], lag_on_pred, calendar[s], calendar[v],
+                                       before, stride, first_day, work_days, work_offset, work_count, anchor_before)
                 if value == _LOW:
                     return TOO_EARLY
                 if value == _HIGH:
                     return TOO_LATE
-                value -= g
-                if lag_on_pred:
-                    value -= lag[e]
             else:
                 value = q - lag[e]
             value += start_adjust[e]
@@ -205,35 +219,14 @@ def link_floats(pred, succ, lag, link_reads_finish, link_bounds_finish, read_as_
         point = early_finish[p] if link_reads_finish[e] else start_read[p]
         target = early_finish[s] if link_bounds_finish[e] else remaining_start[s]
         if cross[e]:
-            f = read_as_finish[e]
-            shift = lag[e] if lag_on_pred else 0
-            day = _day_of(calendar[p], point + shift - f, work_days, work_offset, work_count, anchor_before)
-            if day == _LOW:
+            bound = _bound_across(point, read_as_finish[e], lag[e], lag_on_pred, calendar[p], calendar[s],
+                                  before, stride, first_day, work_days, work_offset, work_count, anchor_before)
+            latest = _latest_across(target, read_as_finish[e], lag[e], lag_on_pred, calendar[s], calendar[p],
+                                    before, stride, first_day, work_days, work_offset, work_count, anchor_before)
+            if bound == _LOW or latest == _LOW:
                 return TOO_EARLY
-            if day == _HIGH:
+            if bound == _HIGH or latest == _HIGH:
                 return TOO_LATE
-            bound = _start_index(calendar[s], day + f, before, stride, first_day, anchor_before)
-            if bound == _LOW:
-                return TOO_EARLY
-            if bound == _HIGH:
-                return TOO_LATE
-            if not lag_on_pred:
-                bound += lag[e]
-            g = 1 - f
-            q = target if lag_on_pred else target - lag[e]
-            day = _day_of(calendar[s], q, work_days, work_offset, work_count, anchor_before)
-            if day == _LOW:
-                return TOO_EARLY
-            if day == _HIGH:
-                return TOO_LATE
-            latest = _start_index(calendar[p], day + g, before, stride, first_day, anchor_before)
-            if latest == _LOW:
-                return TOO_EARLY
-            if latest == _HIGH:
-                return TOO_LATE
-            latest -= g
-            if lag_on_pred:
-                latest -= lag[e]
             slack = latest - point
         else:
             bound = point + lag[e]
