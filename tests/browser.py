@@ -110,3 +110,46 @@ def pixel_share(page, png: bytes, test_js: str) -> float:
         }""",
         [source, test_js],
     )
+
+
+def set_slider(page, frame: int) -> None:
+    """Move the element timeline's slider to ``frame`` and wait until it is drawn."""
+    page.evaluate("""frame => {
+        const slider = document.querySelector('.element-timeline [data-role="slider"]');
+        slider.value = String(frame);
+        slider.dispatchEvent(new Event("input", {bubbles: true}));
+    }""", frame)
+    page.wait_for_function("frame => document.querySelector('.element-timeline').dataset.frame === String(frame)",
+                           arg=frame)
+    page.wait_for_timeout(150)
+
+
+def state_mismatches(page, rows, checks, drawn) -> list[str]:
+    """For each ``(element id, frame) -> (planned state, built state)`` in ``checks``, what
+    the page's 2D view (and, for elements in ``drawn``, its 3D view) shows when it differs.
+
+    ``rows`` are the elements in the page's order; ``drawn`` maps an element id to its box
+    position in the 3D mesh (8 vertices a box).
+    """
+    position = {row["id"]: n for n, row in enumerate(rows)}
+    problems = []
+    for frame in sorted({f for _, f in checks}):
+        set_slider(page, frame)
+        seen = page.evaluate("""() => {
+            const three = document.querySelector('.element-timeline [data-role="plot3d"]');
+            const flat = document.querySelector('.element-timeline [data-role="plot2d"]');
+            return {three: [Array.from(three.data[0].intensity), Array.from(three.data[1].intensity)],
+                    flat: [Array.from(flat.data[0].marker.color), Array.from(flat.data[1].marker.color)]};
+        }""")
+        for (ident, f), expected in checks.items():
+            if f != frame:
+                continue
+            got = (seen["flat"][0][position[ident]], seen["flat"][1][position[ident]])
+            if got != expected:
+                problems.append(f"{ident} week {frame}: 2D {got}, expected {expected}")
+            if ident in drawn:
+                vertex = 8 * drawn[ident]
+                got = (seen["three"][0][vertex], seen["three"][1][vertex])
+                if got != expected:
+                    problems.append(f"{ident} week {frame}: 3D {got}, expected {expected}")
+    return problems

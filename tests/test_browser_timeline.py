@@ -24,7 +24,8 @@ from types import SimpleNamespace
 import pytest
 
 import browser as browser_support
-from browser import Page, chromium, pixel_share, require_browser, save_screenshot
+from browser import (Page, chromium, pixel_share, require_browser, save_screenshot, set_slider,
+                     state_mismatches)
 from delay.case import load_case
 from delay.cpm import schedule
 from delay.errors import CaseError
@@ -170,17 +171,6 @@ def opened(request, browser, tmp_path_factory):
     page.close()
 
 
-def _set_slider(page, frame: int) -> None:
-    page.evaluate("""frame => {
-        const slider = document.querySelector('.element-timeline [data-role="slider"]');
-        slider.value = String(frame);
-        slider.dispatchEvent(new Event("input", {bubbles: true}));
-    }""", frame)
-    page.wait_for_function("frame => document.querySelector('.element-timeline').dataset.frame === String(frame)",
-                           arg=frame)
-    page.wait_for_timeout(150)
-
-
 def _no_errors(opened) -> None:
     assert opened.errors == [], f"console errors on the {opened.name} page: {opened.errors}"
 
@@ -211,7 +201,7 @@ def test_one_slider_step_per_week(opened):
 
 def test_play_advances_the_slider_and_pause_stops_it(opened):
     page = opened.page
-    _set_slider(page, 0)
+    set_slider(page, 0)
     page.click('.element-timeline [data-role="play"]')
     # software WebGL (SwiftShader) takes about a second to draw a week of the demo model
     page.wait_for_function("() => +document.querySelector('.element-timeline [data-role=\"slider\"]').value >= 1",
@@ -229,28 +219,7 @@ def test_play_advances_the_slider_and_pause_stops_it(opened):
 
 
 def test_states_of_chosen_elements_match_the_input_dates(opened):
-    page = opened.page
-    position = {row["id"]: n for n, row in enumerate(opened.rows)}
-    problems = []
-    for frame in sorted({f for _, f in opened.checks}):
-        _set_slider(page, frame)
-        seen = page.evaluate("""() => {
-            const three = document.querySelector('.element-timeline [data-role="plot3d"]');
-            const flat = document.querySelector('.element-timeline [data-role="plot2d"]');
-            return {three: [Array.from(three.data[0].intensity), Array.from(three.data[1].intensity)],
-                    flat: [Array.from(flat.data[0].marker.color), Array.from(flat.data[1].marker.color)]};
-        }""")
-        for (ident, f), expected in opened.checks.items():
-            if f != frame:
-                continue
-            got_flat = (seen["flat"][0][position[ident]], seen["flat"][1][position[ident]])
-            if got_flat != expected:
-                problems.append(f"{ident} week {frame}: 2D {got_flat}, expected {expected}")
-            if ident in opened.drawn:
-                vertex = 8 * opened.drawn[ident]
-                got = (seen["three"][0][vertex], seen["three"][1][vertex])
-                if got != expected:
-                    problems.append(f"{ident} week {frame}: 3D {got}, expected {expected}")
+    problems = state_mismatches(opened.page, opened.rows, opened.checks, opened.drawn)
     assert not problems, "\n".join(problems)
     _no_errors(opened)
 
@@ -311,14 +280,14 @@ def test_webgl_draws_the_colours_and_a_screenshot_is_saved(opened):
     # complete deep blue (palette #0072B2 and its shades: red near 0, green about 0.64 of
     # blue); the sky blue of "in progress" (#56B4E9) has red 0.37 and green 0.77 of blue
     blue = "b > 80 && r < 0.2 * b && g < 0.72 * b"
-    _set_slider(page, 0)
+    set_slider(page, 0)
     page.wait_for_timeout(400)
     at_start = pixel_share(page, plot.screenshot(), blue)
-    _set_slider(page, opened.weeks - 1)
+    set_slider(page, opened.weeks - 1)
     page.wait_for_timeout(400)
     at_end = pixel_share(page, plot.screenshot(), blue)
     assert at_end > 0.01 and at_start < at_end / 5, (at_start, at_end)
-    _set_slider(page, opened.weeks // 2)
+    set_slider(page, opened.weeks // 2)
     page.wait_for_timeout(400)
     paths = save_screenshot(page, f"element_timeline_{opened.name}.png", opened.folder)
     assert all(p.stat().st_size > 10_000 for p in paths)

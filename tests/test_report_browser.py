@@ -15,10 +15,10 @@ from types import SimpleNamespace
 
 import pytest
 
-from browser import Page, chromium, require_browser, save_screenshot
+from browser import Page, chromium, require_browser, save_screenshot, set_slider, state_mismatches
 from reports.builder import SECTIONS
 from reports.writer import demo_report
-from test_browser_timeline import _computed_expectations, _demo_or_synthetic, _drawn_positions, _set_slider
+from test_browser_timeline import _computed_expectations, _demo_or_synthetic, _drawn_positions
 from test_report import SCRIPT, write_small_case
 
 #: A4 landscape is 297 mm wide; the report prints with 10 mm margins: 277 mm at 96 px per inch
@@ -88,7 +88,7 @@ def test_the_timeline_has_one_frame_per_week_and_both_views(demo):
 
 def test_the_play_button_advances_the_slider(demo):
     page = demo.page
-    _set_slider(page, 0)
+    set_slider(page, 0)
     page.click('.element-timeline [data-role="play"]')
     page.wait_for_function("() => +document.querySelector('.element-timeline [data-role=\"slider\"]').value >= 1",
                            timeout=30_000, polling=100)
@@ -99,29 +99,8 @@ def test_the_play_button_advances_the_slider(demo):
 
 
 def test_three_elements_at_three_dates_match_the_planned_and_built_dates(demo):
-    page = demo.page
-    position = {row["id"]: n for n, row in enumerate(demo.rows)}
     assert len({ident for ident, _ in demo.checks}) == 3 and len({f for _, f in demo.checks}) == 3
-    problems = []
-    for frame in sorted({f for _, f in demo.checks}):
-        _set_slider(page, frame)
-        seen = page.evaluate("""() => {
-            const three = document.querySelector('.element-timeline [data-role="plot3d"]');
-            const flat = document.querySelector('.element-timeline [data-role="plot2d"]');
-            return {three: [Array.from(three.data[0].intensity), Array.from(three.data[1].intensity)],
-                    flat: [Array.from(flat.data[0].marker.color), Array.from(flat.data[1].marker.color)]};
-        }""")
-        for (ident, f), expected in demo.checks.items():
-            if f != frame:
-                continue
-            got = (seen["flat"][0][position[ident]], seen["flat"][1][position[ident]])
-            if got != expected:
-                problems.append(f"{ident} week {frame}: 2D {got}, expected {expected}")
-            if ident in demo.drawn:
-                vertex = 8 * demo.drawn[ident]
-                got = (seen["three"][0][vertex], seen["three"][1][vertex])
-                if got != expected:
-                    problems.append(f"{ident} week {frame}: 3D {got}, expected {expected}")
+    problems = state_mismatches(demo.page, demo.rows, demo.checks, demo.drawn)
     assert not problems, "\n".join(problems)
     _no_errors(demo)
 
@@ -153,7 +132,7 @@ def test_the_tables_fit_a4_landscape_when_printed(demo):
 
 def test_a_screenshot_of_the_report_is_saved(demo):
     page = demo.page
-    _set_slider(page, demo.weeks // 2)
+    set_slider(page, demo.weeks // 2)
     page.locator("#timeline").scroll_into_view_if_needed()
     paths = save_screenshot(page, "report_demo.png", demo.folder)
     assert all(p.stat().st_size > 50_000 for p in paths)
