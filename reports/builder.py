@@ -707,6 +707,12 @@ def _steps(rows: list[dict]) -> pd.DataFrame:
     return pd.DataFrame(rows, columns=["run", "step", "completion", "alone", "title"])
 
 
+#: Causation columns shown for the modelled methods (time impact adds ``snapshot``).
+_MODELLED_CAUSATION_COLUMNS = ["step", "event", "party", "days", "alone_days", "causes", "concurrent_with",
+                               "concurrent_days", "excusable_days", "compensable_days", "culpable_days",
+                               "classification"]
+
+
 def _impacted(ctx: _Context) -> Section:
     section = Section("impacted", "Impacted as-planned")
     if not _method_missing(ctx, section, "impacted"):
@@ -734,8 +740,7 @@ def _impacted(ctx: _Context) -> Section:
                             labels={"alone_days": "the party's events together, without the others"}))
     blocks.append(_causation_block(
         ctx, "impacted", "impacted_causation", "Causation of the impacted as-planned", "impacted",
-        ["step", "event", "party", "days", "alone_days", "causes", "concurrent_with", "concurrent_days",
-         "excusable_days", "compensable_days", "culpable_days", "classification"]))
+        _MODELLED_CAUSATION_COLUMNS))
     return section
 
 
@@ -770,8 +775,7 @@ def _tia(ctx: _Context) -> Section:
                                     "cumulative_days": "increments of its events (calendar days)"}))
     blocks.append(_causation_block(
         ctx, "tia", "tia_causation", "Causation of the time impact analysis", "tia",
-        ["step", "snapshot", "event", "party", "days", "alone_days", "causes", "concurrent_with", "concurrent_days",
-         "excusable_days", "compensable_days", "culpable_days", "classification"]))
+        ["step", "snapshot", *_MODELLED_CAUSATION_COLUMNS[1:]]))
     return section
 
 
@@ -803,8 +807,7 @@ def _collapsed(ctx: _Context) -> Section:
         blocks.append(Paragraph(note, style="small"))
     blocks.append(_causation_block(
         ctx, "collapsed", "collapsed_causation", "Causation of the collapsed as-built", "collapsed",
-        ["step", "event", "party", "days", "alone_days", "causes", "concurrent_with", "concurrent_days",
-         "excusable_days", "compensable_days", "culpable_days", "classification"]))
+        _MODELLED_CAUSATION_COLUMNS))
     return section
 
 

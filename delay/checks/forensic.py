@@ -157,8 +157,8 @@ def _project_ends(result) -> tuple[int, int]:
     n = net.size
     if not n:
         return -1, -1
-    no_pred = np.bincount(net.succ, minlength=n) == 0
-    no_succ = np.bincount(net.pred, minlength=n) == 0
+    no_pred = net.predecessor_count() == 0
+    no_succ = net.successor_count() == 0
     start = result.day_array("early_start")
     finish = result.day_array("early_finish")
     kind = result.model.kind
@@ -179,9 +179,8 @@ def _project_ends(result) -> tuple[int, int]:
 
 def _open_ends(snap: Snapshot, result, start_number: int, finish_number: int) -> DataCheck:
     net = result.model.network
-    n = net.size
-    no_pred = np.bincount(net.succ, minlength=n) == 0
-    no_succ = np.bincount(net.pred, minlength=n) == 0
+    no_pred = net.predecessor_count() == 0
+    no_succ = net.successor_count() == 0
     if start_number >= 0:
         no_pred[start_number] = False
     if finish_number >= 0:
@@ -205,8 +204,8 @@ def _dangling(snap: Snapshot, result, start_number: int, finish_number: int) -> 
     net = result.model.network
     n = net.size
     kind = net.link_type
-    has_pred = np.bincount(net.succ, minlength=n) > 0
-    has_succ = np.bincount(net.pred, minlength=n) > 0
+    has_pred = net.predecessor_count() > 0
+    has_succ = net.successor_count() > 0
     start_driven = np.bincount(net.succ[(kind == 0) | (kind == 1)], minlength=n) > 0
     finish_followed = np.bincount(net.pred[(kind == 0) | (kind == 2)], minlength=n) > 0
     task = result.point == TASK
