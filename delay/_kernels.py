@@ -49,124 +49,205 @@ def topological_order(n, out_ptr, out_link, succ):  # pragma: no cover - compile
     return order, tail
 
 
+# The calendar look-ups read one packed table (CalendarSet.table): table[1] is the stride
+# of the ``before`` tables, table[2] their first day; calendar c's row at 3 + 4c holds its
+# anchor, where its ``before`` table and its work days start, and how many work days it has.
+# One array, not several: numba counts references on every array handed to a helper, and
+# on the cross-calendar links that cost more than the look-ups themselves.
+
+
 @njit(cache=True, inline="always")
-def _day_of(c, k, work_days, work_offset, work_count, anchor_before):  # pragma: no cover
-    position = k + anchor_before[c]
+def _day_of(c, k, table):  # pragma: no cover - compiled
+    """Day number of work-day index ``k`` on calendar ``c``."""
+    row = 3 + 4 * c
+    position = k + table[row]
     if position < 0:
         return _LOW
-    if position >= work_count[c]:
+    if position >= table[row + 3]:
         return _HIGH
-    return work_days[work_offset[c] + position]
+    return table[table[row + 2] + position]
 
 
 @njit(cache=True, inline="always")
-def _start_index(c, day, before, stride, first_day, anchor_before):  # pragma: no cover
-    t = day - first_day
+def _start_index(c, day, table):  # pragma: no cover - compiled
+    """Index of the first work day on or after ``day`` on calendar ``c``."""
+    t = day - table[2]
     if t < 0:
         return _LOW
-    if t >= stride - 1:
+    if t >= table[1] - 1:
         return _HIGH
-    return before[c * stride + t] - anchor_before[c]
+    row = 3 + 4 * c
+    return table[table[row + 1] + t] - table[row]
 
 
 @njit(cache=True, inline="always")
-def _bound_across(point, f, lag, lag_on_pred, from_calendar, to_calendar, before, stride, first_day,
-                  work_days, work_offset, work_count, anchor_before):  # pragma: no cover
+def _bound_across(point, f, lag, lag_on_pred, from_calendar, to_calendar, table):  # pragma: no cover
     """The boundary, on the successor's calendar, that a link sets from the predecessor's
     ``point`` (read as a finish when ``f`` is 1), lag included; ``_LOW``/``_HIGH`` when a
     look-up falls outside the tables."""
     shift = lag if lag_on_pred else 0
-    day = _day_of(from_calendar, point + shift - f, work_days, work_offset, work_count, anchor_before)
+    day = _day_of(from_calendar, point + shift - f, table)
     if day == _LOW or day == _HIGH:
         return day
-    value = _start_index(to_calendar, day + f, before, stride, first_day, anchor_before)
+    value = _start_index(to_calendar, day + f, table)
     if value == _LOW or value == _HIGH or lag_on_pred:
         return value
     return value + lag
 
 
 @njit(cache=True, inline="always")
-def _latest_across(target, f, lag, lag_on_pred, successor_calendar, predecessor_calendar, before, stride,
-                   first_day, work_days, work_offset, work_count, anchor_before):  # pragma: no cover
+def _latest_across(target, f, lag, lag_on_pred, successor_calendar, predecessor_calendar, table):  # pragma: no cover
     """The latest predecessor point (its calendar, read as a finish when ``f`` is 1) for
     which the link still allows the successor's ``target``; ``_LOW``/``_HIGH`` as above."""
     g = 1 - f
     q = target if lag_on_pred else target - lag
-    day = _day_of(successor_calendar, q, work_days, work_offset, work_count, anchor_before)
+    day = _day_of(successor_calendar, q, table)
     if day == _LOW or day == _HIGH:
         return day
-    value = _start_index(predecessor_calendar, day + g, before, stride, first_day, anchor_before)
+    value = _start_index(predecessor_calendar, day + g, table)
     if value == _LOW or value == _HIGH:
         return value
     return value - g - lag if lag_on_pred else value - g
 
 
 @njit(cache=True)
-def forward_pass(order, in_ptr, in_link, pred, lag, link_reads_finish, read_as_finish, cross,
-                 lag_on_pred, active, finish_adjust, lower, upper, duration, in_progress,
-                 start_read_fixed, calendar, before, stride, first_day, work_days, work_offset,
-                 work_count, anchor_before, start_read, remaining_start, early_finish):  # pragma: no cover
-    """Early dates. Writes start_read, remaining_start, early_finish; returns a status code."""
-    for i in range(order.size):
+def pass_layout(order, rank, in_ptr, in_link, out_ptr, out_link, pred, succ, link_type, lag):  # pragma: no cover
+    """The links laid out for the passes, activities numbered by topological position.
+
+    Position ``i`` stands for activity ``order[i]``. The forward stream lists, for each
+    position in turn, the links into it (``f_ptr[i]:f_ptr[i + 1]``) with the position of
+    their predecessor, type, lag and link number; the backward stream lists the links out
+    of each position with the position of their successor. A pass then reads its links
+    front to back and its activities' arrays in order, instead of jumping through them.
+    """
+    n = order.size
+    m = pred.size
+    f_ptr = np.empty(n + 1, dtype=np.int64)
+    f_pred = np.empty(m, dtype=np.int64)
+    f_type = np.empty(m, dtype=np.int8)
+    f_lag = np.empty(m, dtype=np.int64)
+    f_link = np.empty(m, dtype=np.int64)
+    b_ptr = np.empty(n + 1, dtype=np.int64)
+    b_succ = np.empty(m, dtype=np.int64)
+    b_type = np.empty(m, dtype=np.int8)
+    b_lag = np.empty(m, dtype=np.int64)
+    k = 0
+    h = 0
+    for i in range(n):
         v = order[i]
-        bound = lower[v]
+        f_ptr[i] = k
         for j in range(in_ptr[v], in_ptr[v + 1]):
             e = in_link[j]
-            if not active[e]:
-                continue
-            p = pred[e]
-            point = early_finish[p] if link_reads_finish[e] else start_read[p]
-            if cross[e]:
-                value = _bound_across(point, read_as_finish[e], lag[e], lag_on_pred, calendar[p], calendar[v],
-                                      before, stride, first_day, work_days, work_offset, work_count, anchor_before)
-                if value == _LOW:
-                    return TOO_EARLY
-                if value == _HIGH:
-                    return TOO_LATE
-            else:
-                value = point + lag[e]
-            value -= finish_adjust[e]
-            if value > bound:
-                bound = value
-        if bound > upper[v]:
-            bound = upper[v]
-        remaining_start[v] = bound
-        start_read[v] = start_read_fixed[v] if in_progress[v] else bound
-        early_finish[v] = bound + duration[v]
+            f_pred[k] = rank[pred[e]]
+            f_type[k] = link_type[e]
+            f_lag[k] = lag[e]
+            f_link[k] = e
+            k += 1
+        b_ptr[i] = h
+        for j in range(out_ptr[v], out_ptr[v + 1]):
+            e = out_link[j]
+            b_succ[h] = rank[succ[e]]
+            b_type[h] = link_type[e]
+            b_lag[h] = lag[e]
+            h += 1
+    f_ptr[n] = k
+    b_ptr[n] = h
+    return f_ptr, f_pred, f_type, f_lag, f_link, b_ptr, b_succ, b_type, b_lag
+
+
+@njit(cache=True, inline="always")
+def _reads_as_finish(point_kind, reads_finish):  # pragma: no cover - compiled
+    """Whether a link reads its predecessor's point as a finish (the end of its date): a
+    milestone's own kind decides; a task's point is its finish for FS and FF links."""
+    if point_kind == 0:
+        return 1 if reads_finish else 0
+    return 1 if point_kind == 2 else 0
+
+
+@njit(cache=True, inline="always")
+def _links_ignored(status, progress_override):  # pragma: no cover - compiled
+    """Whether the links into an activity of this status are ignored: it is complete, or
+    in progress when progress overrides logic."""
+    return status == 2 or (progress_override and status == 1)
+
+
+@njit(cache=True)
+def forward_pass(f_ptr, f_pred, f_type, f_lag, progress_override, lag_on_pred, status, point_kind,
+                 lower, upper, duration, start_read_fixed, calendar, table, start_read, remaining_start,
+                 early_finish):  # pragma: no cover - compiled
+    """Early dates, activities by topological position (see :func:`pass_layout`).
+
+    Writes start_read (the point successors read as the start: the actual start of one in
+    progress), remaining_start and early_finish; returns a status code.
+    """
+    n = f_ptr.size - 1
+    for i in range(n):
+        bound = lower[i]
+        if not _links_ignored(status[i], progress_override):
+            c = calendar[i]
+            for j in range(f_ptr[i], f_ptr[i + 1]):
+                p = f_pred[j]
+                t = f_type[j]
+                reads_finish = t == 0 or t == 2
+                point = early_finish[p] if reads_finish else start_read[p]
+                if calendar[p] != c:
+                    value = _bound_across(point, _reads_as_finish(point_kind[p], reads_finish), f_lag[j],
+                                          lag_on_pred, calendar[p], c, table)
+                    if value == _LOW:
+                        return TOO_EARLY
+                    if value == _HIGH:
+                        return TOO_LATE
+                else:
+                    value = point + f_lag[j]
+                if t >= 2:
+                    value -= duration[i]
+                if value > bound:
+                    bound = value
+        if bound > upper[i]:
+            bound = upper[i]
+        remaining_start[i] = bound
+        start_read[i] = start_read_fixed[i] if status[i] == 1 else bound
+        early_finish[i] = bound + duration[i]
     return OK
 
 
 @njit(cache=True)
-def backward_pass(order, out_ptr, out_link, succ, lag, link_bounds_finish, read_as_finish, cross,
-                  lag_on_pred, use, start_adjust, late_upper, pinned, pin_late, duration, calendar,
-                  before, stride, first_day, work_days, work_offset, work_count, anchor_before,
-                  late_start, late_finish):  # pragma: no cover
-    """Late dates. Writes late_start (of remaining work) and late_finish."""
-    for i in range(order.size - 1, -1, -1):
-        v = order[i]
-        bound = late_upper[v]
-        for j in range(out_ptr[v], out_ptr[v + 1]):
-            e = out_link[j]
-            if not use[e]:
+def backward_pass(b_ptr, b_succ, b_type, b_lag, progress_override, lag_on_pred, status, point_kind,
+                  late_upper, pin_late, duration, calendar, table, late_start, late_finish):  # pragma: no cover
+    """Late dates, activities by topological position. Writes late_start (of remaining
+    work) and late_finish; ``pin_late`` above ``-2**40`` pins an activity's late finish."""
+    n = b_ptr.size - 1
+    unpinned = -(np.int64(1) << 40)
+    for i in range(n - 1, -1, -1):
+        bound = late_upper[i]
+        c = calendar[i]
+        started = status[i] == 1
+        for j in range(b_ptr[i], b_ptr[i + 1]):
+            s = b_succ[j]
+            if _links_ignored(status[s], progress_override):
                 continue
-            s = succ[e]
-            q = late_finish[s] if link_bounds_finish[e] else late_start[s]
-            if cross[e]:
-                value = _latest_across(q, read_as_finish[e], lag[e], lag_on_pred, calendar[s], calendar[v],
-                                       before, stride, first_day, work_days, work_offset, work_count, anchor_before)
+            t = b_type[j]
+            reads_finish = t == 0 or t == 2
+            if started and not reads_finish:
+                continue  # the link reads the actual start, which is past
+            q = late_finish[s] if t >= 2 else late_start[s]
+            if calendar[s] != c:
+                value = _latest_across(q, _reads_as_finish(point_kind[i], reads_finish), b_lag[j], lag_on_pred,
+                                       calendar[s], c, table)
                 if value == _LOW:
                     return TOO_EARLY
                 if value == _HIGH:
                     return TOO_LATE
             else:
-                value = q - lag[e]
-            value += start_adjust[e]
+                value = q - b_lag[j]
+            if not reads_finish:
+                value += duration[i]
             if value < bound:
                 bound = value
-        if pinned[v]:
-            bound = pin_late[v]
-        late_finish[v] = bound
-        late_start[v] = bound - duration[v]
+        if pin_late[i] > unpinned:
+            bound = pin_late[i]
+        late_finish[i] = bound
+        late_start[i] = bound - duration[i]
     return OK
 
 
@@ -202,36 +283,45 @@ def compressed_rows(n, keys):  # pragma: no cover - compiled
 
 
 @njit(cache=True)
-def link_floats(pred, succ, lag, link_reads_finish, link_bounds_finish, read_as_finish, cross,
-                lag_on_pred, active, counts_for_free_float, start_read, remaining_start,
-                early_finish, calendar, before, stride, first_day, work_days, work_offset,
-                work_count, anchor_before, relative_float, free_float):  # pragma: no cover
-    """Relative float of every link (successor's work days; ``far`` for an ignored link)
-    and each predecessor's free float over its links (``free_float`` holds the completion
-    bound on entry and is lowered in place)."""
+def link_floats(f_ptr, f_pred, f_type, f_lag, f_link, every_link, progress_override, lag_on_pred, status,
+                point_kind, start_read, remaining_start, early_finish, calendar, table, relative_float, free_float):  # pragma: no cover
+    """Relative float of every link (successor's work days), written by link number, and
+    each predecessor's free float over its links, by position.
+
+    Without ``every_link``, links the passes ignore get ``2**40`` and ``free_float`` (the
+    completion bound on entry) is lowered in place; with it, every link is measured and
+    ``free_float`` is left alone.
+    """
     far = np.int64(1) << 40
-    for e in range(pred.size):
-        if not active[e]:
-            relative_float[e] = far
-            continue
-        p = pred[e]
-        s = succ[e]
-        point = early_finish[p] if link_reads_finish[e] else start_read[p]
-        target = early_finish[s] if link_bounds_finish[e] else remaining_start[s]
-        if cross[e]:
-            bound = _bound_across(point, read_as_finish[e], lag[e], lag_on_pred, calendar[p], calendar[s],
-                                  before, stride, first_day, work_days, work_offset, work_count, anchor_before)
-            latest = _latest_across(target, read_as_finish[e], lag[e], lag_on_pred, calendar[s], calendar[p],
-                                    before, stride, first_day, work_days, work_offset, work_count, anchor_before)
-            if bound == _LOW or latest == _LOW:
-                return TOO_EARLY
-            if bound == _HIGH or latest == _HIGH:
-                return TOO_LATE
-            slack = latest - point
-        else:
-            bound = point + lag[e]
-            slack = target - bound
-        relative_float[e] = target - bound
-        if counts_for_free_float[e] and slack < free_float[p]:
-            free_float[p] = slack
+    n = f_ptr.size - 1
+    for i in range(n):
+        ignored = not every_link and _links_ignored(status[i], progress_override)
+        c = calendar[i]
+        for j in range(f_ptr[i], f_ptr[i + 1]):
+            e = f_link[j]
+            if ignored:
+                relative_float[e] = far
+                continue
+            p = f_pred[j]
+            t = f_type[j]
+            reads_finish = t == 0 or t == 2
+            point = early_finish[p] if reads_finish else start_read[p]
+            target = early_finish[i] if t >= 2 else remaining_start[i]
+            if calendar[p] != c:
+                as_finish = _reads_as_finish(point_kind[p], reads_finish)
+                bound = _bound_across(point, as_finish, f_lag[j], lag_on_pred, calendar[p], c, table)
+                latest = _latest_across(target, as_finish, f_lag[j], lag_on_pred, c, calendar[p], table)
+                if bound == _LOW or latest == _LOW:
+                    return TOO_EARLY
+                if bound == _HIGH or latest == _HIGH:
+                    return TOO_LATE
+                slack = latest - point
+            else:
+                bound = point + f_lag[j]
+                slack = target - bound
+            relative_float[e] = target - bound
+            if every_link or status[p] == 2 or (status[p] == 1 and not reads_finish):
+                continue
+            if slack < free_float[p]:
+                free_float[p] = slack
     return OK

@@ -266,6 +266,7 @@ class CalendarSet:
         self._work_offset = np.concatenate(([0], np.cumsum(counts)[:-1]))
         self._work_days = np.concatenate([c._work_days for c in self.calendars])
         self._anchor_before = np.array([c._anchor_before for c in self.calendars], dtype=np.int64)
+        self._table = None
 
     def _grow(self, low_day: int, high_day: int) -> None:
         first, last = self.first_day, self.last_day
@@ -287,11 +288,23 @@ class CalendarSet:
         else:
             self._cover(self.first_day, self.last_day + span)
 
-    def tables(self) -> tuple:
-        """The flat tables as the compiled passes take them: ``(before, stride, first_day,
-        work_days, work_offset, work_count, anchor_before)``."""
-        return (self._before, self._stride, self.first_day, self._work_days, self._work_offset,
-                self._work_count, self._anchor_before)
+    def table(self) -> np.ndarray:
+        """The lookup tables as the compiled passes take them: one ``int64`` array (a kernel
+        handed several arrays pays reference counting on each look-up). Layout: ``[count,
+        stride, first_day]``, then per calendar ``[anchor_before, before_at, work_at,
+        work_count]``, then every calendar's ``before`` table (``stride`` entries each), then
+        every calendar's work days. See :mod:`delay._kernels` for the look-ups."""
+        if self._table is None:
+            count = len(self.calendars)
+            head = 3 + 4 * count
+            before_at = head + self._stride * np.arange(count, dtype=np.int64)
+            work_at = head + self._before.size + self._work_offset
+            rows = np.stack([self._anchor_before, before_at, work_at, self._work_count], axis=1)
+            self._table = np.concatenate([
+                np.array([count, self._stride, self.first_day], dtype=np.int64), rows.ravel(),
+                self._before.astype(np.int64), self._work_days.astype(np.int64)])
+            self._table.flags.writeable = False
+        return self._table
 
     def start_index_days(self, which, days) -> np.ndarray:
         """Per element: index of the first work day on or after the day, on calendar ``which``."""

@@ -249,9 +249,6 @@ def _run(model: ScheduleModel, forward_only: bool = False):
     settings = model.settings
     n = net.size
     cal = model.calendar
-    pred, succ, ltype, lag = net.pred, net.succ, net.link_type, net.lag
-    link_reads_finish = (ltype == 0) | (ltype == 2)
-    link_bounds_finish = ltype >= 2
 
     # -- status and effective durations ---------------------------------------------------
     has_start = model.actual_start != NO_DAY
@@ -267,7 +264,7 @@ def _run(model: ScheduleModel, forward_only: bool = False):
     remaining_given = ~np.isnan(model.remaining)
     effective = np.where(remaining_given & incomplete, np.nan_to_num(model.remaining).astype(np.int64), model.duration)
     effective = np.where(given_milestone, 0, effective)
-    has_pred = np.bincount(succ, minlength=n) > 0
+    has_pred = net.has_predecessor
     point = model.kind.astype(np.int8).copy()
     zero_task = (point == TASK) & (effective == 0)
     point[zero_task & has_pred] = FINISH_MILESTONE
@@ -347,30 +344,32 @@ def _run(model: ScheduleModel, forward_only: bool = False):
         pin_late[rows] = pin + duration[rows]
     pinned = pin_late > -_FAR
 
-    # -- links --------------------------------------------------------------------------------
-    active = incomplete[succ]
-    if settings.progress == "progress_override":
-        active &= ~in_progress[succ]
-    cross = cal[pred] != cal[succ]
-    lag_on_pred = settings.lag_calendar == "predecessor"
-    # point type read from the predecessor: 1 finish, 0 start
-    read_as_finish = np.where(milestone[pred], finish_ms[pred], link_reads_finish).astype(np.int64)
-
+    # -- the passes, activities by topological position ------------------------------------------
+    # Each pass walks the activities in topological order and reads its links front to back
+    # (Network.passes); the inputs are gathered into that order and the results put back.
     from . import _kernels
 
-    finish_adjust = np.where(link_bounds_finish, duration[succ], 0)
-    start_read = np.empty(n, dtype=np.int64)
-    remaining_start = np.empty(n, dtype=np.int64)
-    early_finish = np.empty(n, dtype=np.int64)
-    read_as_finish = np.ascontiguousarray(read_as_finish, dtype=np.int64)
+    layout = net.passes
+    order = net.order
+    override = settings.progress == "progress_override"
+    lag_on_pred = settings.lag_calendar == "predecessor"
+    status_t = status[order]
+    point_t = point[order]
+    cal_t = cal[order]
+    duration_t = duration[order]
+    start_read_t = np.empty(n, dtype=np.int64)
+    remaining_start_t = np.empty(n, dtype=np.int64)
+    early_finish_t = np.empty(n, dtype=np.int64)
+    lower_t, upper_t, fixed_t = lower[order], upper[order], start_read_fixed[order]
     while True:
         code = _kernels.forward_pass(
-            net.order, net.in_ptr, net.in_link, pred, lag, link_reads_finish, read_as_finish, cross,
-            lag_on_pred, active, finish_adjust, lower, upper, duration, in_progress, start_read_fixed,
-            cal, *cals.tables(), start_read, remaining_start, early_finish)
+            *layout.forward, override, lag_on_pred, status_t, point_t, lower_t, upper_t, duration_t, fixed_t,
+            cal_t, cals.table(), start_read_t, remaining_start_t, early_finish_t)
         if code == _kernels.OK:
             break
         cals.grow(earlier=code == _kernels.TOO_EARLY)
+    early_finish = np.empty(n, dtype=np.int64)
+    early_finish[order] = early_finish_t
 
     # -- completion ---------------------------------------------------------------------------
     finish_point = np.where(start_ms, early_finish, early_finish - 1)
@@ -384,34 +383,36 @@ def _run(model: ScheduleModel, forward_only: bool = False):
     # -- backward pass --------------------------------------------------------------------------
     end_day = completion_day if settings.float_to == "project_finish" else model.contract_completion_day
     late_upper = np.minimum(upper_of(np.full(n, end_day, dtype=np.int64), all_rows), late_upper_extra)
-    use_backward = active & ~(in_progress[pred] & ~link_reads_finish)
-    start_adjust = np.where(link_reads_finish, 0, duration[pred])
-    late_start = np.empty(n, dtype=np.int64)
-    late_finish = np.empty(n, dtype=np.int64)
+    late_start_t = np.empty(n, dtype=np.int64)
+    late_finish_t = np.empty(n, dtype=np.int64)
+    late_upper_t, pin_t = late_upper[order], pin_late[order]
     while True:
         code = _kernels.backward_pass(
-            net.order, net.out_ptr, net.out_link, succ, lag, link_bounds_finish, read_as_finish, cross,
-            lag_on_pred, use_backward, start_adjust, late_upper, pinned, pin_late, duration, cal,
-            *cals.tables(), late_start, late_finish)
+            *layout.backward, override, lag_on_pred, status_t, point_t, late_upper_t, pin_t, duration_t, cal_t,
+            cals.table(), late_start_t, late_finish_t)
         if code == _kernels.OK:
             break
         cals.grow(earlier=code == _kernels.TOO_EARLY)
 
     # -- floats and driving links -------------------------------------------------------------------
-    total_float = late_finish - early_finish
-    counts_for_free_float = active & ~complete[pred] & ~(in_progress[pred] & ~link_reads_finish)
-    free_float = upper_of(np.full(n, completion_day, dtype=np.int64), all_rows) - early_finish
+    free_float_t = (upper_of(np.full(n, completion_day, dtype=np.int64), all_rows) - early_finish)[order]
     relative_float = np.empty(net.link_count, dtype=np.int64)
     while True:
         code = _kernels.link_floats(
-            pred, succ, lag, link_reads_finish, link_bounds_finish, read_as_finish, cross, lag_on_pred,
-            active, counts_for_free_float, start_read, remaining_start, early_finish, cal, *cals.tables(),
-            relative_float, free_float)
+            *layout.forward, layout.f_link, False, override, lag_on_pred, status_t, point_t, start_read_t,
+            remaining_start_t, early_finish_t, cal_t, cals.table(), relative_float, free_float_t)
         if code == _kernels.OK:
             break
         cals.grow(earlier=code == _kernels.TOO_EARLY)
-    free_float = np.maximum(free_float, 0)
-    driving_link = active & (relative_float == 0)
+    start_read, remaining_start, late_start, late_finish, free_float = (
+        np.empty(n, dtype=np.int64) for _ in range(5))
+    start_read[order] = start_read_t
+    remaining_start[order] = remaining_start_t
+    late_start[order] = late_start_t
+    late_finish[order] = late_finish_t
+    free_float[order] = np.maximum(free_float_t, 0)
+    total_float = late_finish - early_finish
+    driving_link = relative_float == 0  # an ignored link's relative float is 2**40
 
     return ScheduleResult(
         model=model,
@@ -429,7 +430,6 @@ def _run(model: ScheduleModel, forward_only: bool = False):
         driving_link=driving_link,
         completion_day=completion_day,
         finish_day=finish_day,
-        read_as_finish=read_as_finish,
     )
 
 
@@ -457,7 +457,6 @@ class ScheduleResult:
     driving_link: np.ndarray = field(repr=False)
     completion_day: int = 0
     finish_day: np.ndarray = field(default=None, repr=False)
-    read_as_finish: np.ndarray = field(default=None, repr=False)
     near_critical_days: int = NEAR_CRITICAL_DAYS
 
     # -- headline --------------------------------------------------------------------------
@@ -592,19 +591,18 @@ class ScheduleResult:
         """
         from . import _kernels
 
-        net = self.model.network
-        cals = self.model.calendars
-        link_type = net.link_type
+        model = self.model
+        net = model.network
+        cals = model.calendars
+        order = net.order
+        layout = net.passes
         gaps = np.empty(net.link_count, dtype=np.int64)
-        unused = np.zeros(net.size, dtype=np.int64)
-        everything = np.ones(net.link_count, dtype=bool)
+        start_read_t = self.early_start_read[order]
         while True:
             code = _kernels.link_floats(
-                net.pred, net.succ, net.lag, (link_type == 0) | (link_type == 2), link_type >= 2,
-                self.read_as_finish, self.model.calendar[net.pred] != self.model.calendar[net.succ],
-                self.settings.lag_calendar == "predecessor", everything, ~everything,
-                self.early_start_read, self.early_start_read, self.early_finish, self.model.calendar,
-                *cals.tables(), gaps, unused)
+                *layout.forward, layout.f_link, True, False, self.settings.lag_calendar == "predecessor",
+                self.status[order], self.point[order], start_read_t, start_read_t, self.early_finish[order],
+                model.calendar[order], cals.table(), gaps, np.zeros(net.size, dtype=np.int64))
             if code == _kernels.OK:
                 return gaps
             cals.grow(earlier=code == _kernels.TOO_EARLY)

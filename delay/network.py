@@ -23,6 +23,7 @@ from .model import LINK_TYPES
 
 __all__ = [
     "Network",
+    "PassLayout",
     "compile_network",
     "build_network",
     "LINK_CODES",
@@ -85,6 +86,19 @@ class Network:
         """The activity ids as an index (built once per network)."""
         return pd.Index(self.ids)
 
+    @cached_property
+    def passes(self) -> "PassLayout":
+        """The links laid out for the CPM passes (built once per network)."""
+        from ._kernels import pass_layout
+
+        return PassLayout(*pass_layout(self.order, self.rank, self.in_ptr, self.in_link, self.out_ptr,
+                                       self.out_link, self.pred, self.succ, self.link_type, self.lag))
+
+    @cached_property
+    def has_predecessor(self) -> np.ndarray:
+        """Whether each activity has at least one link into it."""
+        return np.diff(self.in_ptr) > 0
+
     def upstream(self, activities, links: np.ndarray | None = None) -> np.ndarray:
         """Boolean mask of the activities from which a chain of links (all links, or those
         where ``links`` is true) leads to any of ``activities`` (numbers), them included."""
@@ -123,6 +137,31 @@ class Network:
         all_type = np.concatenate([self.link_type, np.asarray(link_type, dtype=np.int8)])
         all_lag = np.concatenate([self.lag, np.asarray(lag, dtype=np.int64)])
         return build_network(ids, all_pred, all_succ, all_type, all_lag, source)
+
+
+@dataclass(frozen=True, eq=False)
+class PassLayout:
+    """A network's links in the order the CPM passes read them (see
+    :func:`delay._kernels.pass_layout`): activities by topological position ``i`` (activity
+    ``order[i]``), the links into each position in ``f_*`` and out of it in ``b_*``."""
+
+    f_ptr: np.ndarray
+    f_pred: np.ndarray
+    f_type: np.ndarray
+    f_lag: np.ndarray
+    f_link: np.ndarray
+    b_ptr: np.ndarray
+    b_succ: np.ndarray
+    b_type: np.ndarray
+    b_lag: np.ndarray
+
+    @property
+    def forward(self) -> tuple:
+        return self.f_ptr, self.f_pred, self.f_type, self.f_lag
+
+    @property
+    def backward(self) -> tuple:
+        return self.b_ptr, self.b_succ, self.b_type, self.b_lag
 
 
 def _loop_problem(ids, pred, succ, source) -> Problem:
