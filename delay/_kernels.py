@@ -111,8 +111,9 @@ def _latest_across(target, f, lag, lag_on_pred, successor_calendar, predecessor_
 
 
 @njit(cache=True)
-def pass_layout(order, rank, in_ptr, in_link, out_ptr, out_link, pred, succ, link_type, lag):  # pragma: no cover
-    """The links laid out for the passes, activities numbered by topological position.
+def pass_layout(order, rank, in_ptr, in_link, out_ptr, out_link, pred, succ, link_type, lag, f_ptr, f_pred,
+                f_type, f_lag, f_link, b_ptr, b_succ, b_type, b_lag):  # pragma: no cover - compiled
+    """Fills the links' layout for the passes, activities numbered by topological position.
 
     Position ``i`` stands for activity ``order[i]``. The forward stream lists, for each
     position in turn, the links into it (``f_ptr[i]:f_ptr[i + 1]``) with the position of
@@ -121,16 +122,6 @@ def pass_layout(order, rank, in_ptr, in_link, out_ptr, out_link, pred, succ, lin
     front to back and its activities' arrays in order, instead of jumping through them.
     """
     n = order.size
-    m = pred.size
-    f_ptr = np.empty(n + 1, dtype=np.int64)
-    f_pred = np.empty(m, dtype=np.int64)
-    f_type = np.empty(m, dtype=np.int8)
-    f_lag = np.empty(m, dtype=np.int64)
-    f_link = np.empty(m, dtype=np.int64)
-    b_ptr = np.empty(n + 1, dtype=np.int64)
-    b_succ = np.empty(m, dtype=np.int64)
-    b_type = np.empty(m, dtype=np.int8)
-    b_lag = np.empty(m, dtype=np.int64)
     k = 0
     h = 0
     for i in range(n):
@@ -152,7 +143,6 @@ def pass_layout(order, rank, in_ptr, in_link, out_ptr, out_link, pred, succ, lin
             h += 1
     f_ptr[n] = k
     b_ptr[n] = h
-    return f_ptr, f_pred, f_type, f_lag, f_link, b_ptr, b_succ, b_type, b_lag
 
 
 @njit(cache=True, inline="always")
@@ -172,20 +162,34 @@ def _links_ignored(status, progress_override):  # pragma: no cover - compiled
 
 
 @njit(cache=True)
-def forward_pass(f_ptr, f_pred, f_type, f_lag, progress_override, lag_on_pred, status, point_kind,
-                 lower, upper, duration, start_read_fixed, calendar, table, start_read, remaining_start,
-                 early_finish):  # pragma: no cover - compiled
+def forward_pass(f_ptr, f_pred, f_type, f_lag, f_link, progress_override, lag_on_pred, with_floats, status,
+                 point_kind, lower, upper, duration, start_read_fixed, calendar, table, start_read,
+                 remaining_start, early_finish, relative_float, link_free_float):  # pragma: no cover
     """Early dates, activities by topological position (see :func:`pass_layout`).
 
     Writes start_read (the point successors read as the start: the actual start of one in
     progress), remaining_start and early_finish; returns a status code.
+
+    With ``with_floats`` it also writes each link's relative float (successor's work days,
+    by link number; ``2**40`` for a link the pass ignores) and lowers each predecessor's
+    ``link_free_float`` to the least slack over its links (predecessor's work days); the
+    link's bound is at hand then, so this costs little more than the pass.
     """
     n = f_ptr.size - 1
+    far = np.int64(1) << 40
+    widest = 0
+    for i in range(n):
+        if f_ptr[i + 1] - f_ptr[i] > widest:
+            widest = f_ptr[i + 1] - f_ptr[i]
+    bounds = np.empty(widest, dtype=np.int64)  # each link's bound on the activity in hand
     for i in range(n):
         bound = lower[i]
-        if not _links_ignored(status[i], progress_override):
-            c = calendar[i]
-            for j in range(f_ptr[i], f_ptr[i + 1]):
+        ignored = _links_ignored(status[i], progress_override)
+        first = f_ptr[i]
+        last = f_ptr[i + 1]
+        c = calendar[i]
+        if not ignored:
+            for j in range(first, last):
                 p = f_pred[j]
                 t = f_type[j]
                 reads_finish = t == 0 or t == 2
@@ -201,6 +205,7 @@ def forward_pass(f_ptr, f_pred, f_type, f_lag, progress_override, lag_on_pred, s
                     value = point + f_lag[j]
                 if t >= 2:
                     value -= duration[i]
+                bounds[j - first] = value
                 if value > bound:
                     bound = value
         if bound > upper[i]:
@@ -208,6 +213,31 @@ def forward_pass(f_ptr, f_pred, f_type, f_lag, progress_override, lag_on_pred, s
         remaining_start[i] = bound
         start_read[i] = start_read_fixed[i] if status[i] == 1 else bound
         early_finish[i] = bound + duration[i]
+        if not with_floats:
+            continue
+        for j in range(first, last):
+            if ignored:
+                relative_float[f_link[j]] = far
+                continue
+            # target - bound, on the finish for FF and SF: both sides carry the duration
+            slack = bound - bounds[j - first]
+            relative_float[f_link[j]] = slack
+            p = f_pred[j]
+            t = f_type[j]
+            reads_finish = t == 0 or t == 2
+            if status[p] == 2 or (status[p] == 1 and not reads_finish):
+                continue  # the link reads an actual date: no float of the predecessor's
+            if calendar[p] != c:
+                as_finish = _reads_as_finish(point_kind[p], reads_finish)
+                target = bound + duration[i] if t >= 2 else bound
+                latest = _latest_across(target, as_finish, f_lag[j], lag_on_pred, c, calendar[p], table)
+                if latest == _LOW:
+                    return TOO_EARLY
+                if latest == _HIGH:
+                    return TOO_LATE
+                slack = latest - (early_finish[p] if reads_finish else start_read[p])
+            if slack < link_free_float[p]:
+                link_free_float[p] = slack
     return OK
 
 
@@ -283,45 +313,28 @@ def compressed_rows(n, keys):  # pragma: no cover - compiled
 
 
 @njit(cache=True)
-def link_floats(f_ptr, f_pred, f_type, f_lag, f_link, every_link, progress_override, lag_on_pred, status,
-                point_kind, start_read, remaining_start, early_finish, calendar, table, relative_float, free_float):  # pragma: no cover
-    """Relative float of every link (successor's work days), written by link number, and
-    each predecessor's free float over its links, by position.
-
-    Without ``every_link``, links the passes ignore get ``2**40`` and ``free_float`` (the
-    completion bound on entry) is lowered in place; with it, every link is measured and
-    ``free_float`` is left alone.
-    """
-    far = np.int64(1) << 40
+def link_gaps(f_ptr, f_pred, f_type, f_lag, f_link, lag_on_pred, point_kind, start_read, early_finish,
+              calendar, table, gaps):  # pragma: no cover - compiled
+    """Per link (by link number), how far the successor's point (``start_read`` or
+    ``early_finish``) lies after the bound the link sets, in the successor's work days;
+    every link counts, whatever the activities' status."""
     n = f_ptr.size - 1
     for i in range(n):
-        ignored = not every_link and _links_ignored(status[i], progress_override)
         c = calendar[i]
         for j in range(f_ptr[i], f_ptr[i + 1]):
-            e = f_link[j]
-            if ignored:
-                relative_float[e] = far
-                continue
             p = f_pred[j]
             t = f_type[j]
             reads_finish = t == 0 or t == 2
             point = early_finish[p] if reads_finish else start_read[p]
-            target = early_finish[i] if t >= 2 else remaining_start[i]
+            target = early_finish[i] if t >= 2 else start_read[i]
             if calendar[p] != c:
-                as_finish = _reads_as_finish(point_kind[p], reads_finish)
-                bound = _bound_across(point, as_finish, f_lag[j], lag_on_pred, calendar[p], c, table)
-                latest = _latest_across(target, as_finish, f_lag[j], lag_on_pred, c, calendar[p], table)
-                if bound == _LOW or latest == _LOW:
+                bound = _bound_across(point, _reads_as_finish(point_kind[p], reads_finish), f_lag[j], lag_on_pred,
+                                      calendar[p], c, table)
+                if bound == _LOW:
                     return TOO_EARLY
-                if bound == _HIGH or latest == _HIGH:
+                if bound == _HIGH:
                     return TOO_LATE
-                slack = latest - point
             else:
                 bound = point + f_lag[j]
-                slack = target - bound
-            relative_float[e] = target - bound
-            if every_link or status[p] == 2 or (status[p] == 1 and not reads_finish):
-                continue
-            if slack < free_float[p]:
-                free_float[p] = slack
+            gaps[f_link[j]] = target - bound
     return OK

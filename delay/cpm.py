@@ -44,7 +44,7 @@ import pandas as pd
 
 from .calendars import CalendarSet, build_calendars, to_days
 from .errors import CaseError, Problem
-from .model import Case, ScheduleSettings, Snapshot
+from .model import ACTIVITY_KINDS, CONSTRAINTS, Case, ScheduleSettings, Snapshot
 from .network import LINK_CODES, Network, compile_network
 
 __all__ = [
@@ -74,6 +74,11 @@ TASK, START_MILESTONE, FINISH_MILESTONE = 0, 1, 2
 NO_CONSTRAINT, EARLIEST_START, LATEST_FINISH, FIXED_START, FIXED_FINISH = 0, 1, 2, 3, 4
 CONSTRAINT_CODES = {"": 0, "earliest_start": 1, "latest_finish": 2, "fixed_start": 3, "fixed_finish": 4}
 KIND_CODES = {"task": TASK, "start_milestone": START_MILESTONE, "finish_milestone": FINISH_MILESTONE}
+
+# Engine codes by position in the case format's lists (model.ACTIVITY_KINDS and
+# model.CONSTRAINTS; position -1, no constraint, maps through the first entry).
+_KIND_BY_POSITION = np.array([KIND_CODES[k] for k in ACTIVITY_KINDS], dtype=np.int8)
+_CONSTRAINT_BY_POSITION = np.array([0] + [CONSTRAINT_CODES[c] for c in CONSTRAINTS], dtype=np.int8)
 
 _FAR = np.int64(1) << 40  # beyond any boundary; "no bound"
 NO_DAY = np.iinfo(np.int64).min  # "no date" in day-number arrays
@@ -285,10 +290,18 @@ def _run(model: ScheduleModel, forward_only: bool = False):
         bound = cals.finish_index_days(cal[where], days[where])
         return bound + (~start_ms[where])
 
+    every_calendar = np.arange(len(cals))
+
+    def lower_on(day: int) -> np.ndarray:
+        """:func:`lower_of` one day for every activity (looked up once per calendar)."""
+        return cals.start_index_days(every_calendar, np.full(every_calendar.size, day))[cal] + finish_ms
+
+    def upper_on(day: int) -> np.ndarray:
+        """:func:`upper_of` one day for every activity."""
+        return cals.finish_index_days(every_calendar, np.full(every_calendar.size, day))[cal] + ~start_ms
+
     # -- bounds on the start of remaining work (RS) -------------------------------------------
-    data_days = np.full(n, model.data_day, dtype=np.int64)
-    all_rows = np.arange(n)
-    lower = lower_of(data_days, all_rows)
+    lower = lower_on(model.data_day)
     upper = np.full(n, _FAR, dtype=np.int64)
     duration = effective.astype(np.int64).copy()
     start_read_fixed = np.zeros(n, dtype=np.int64)
@@ -361,10 +374,14 @@ def _run(model: ScheduleModel, forward_only: bool = False):
     remaining_start_t = np.empty(n, dtype=np.int64)
     early_finish_t = np.empty(n, dtype=np.int64)
     lower_t, upper_t, fixed_t = lower[order], upper[order], start_read_fixed[order]
+    with_floats = not forward_only
+    relative_float = np.empty(net.link_count if with_floats else 0, dtype=np.int64)
+    link_free_float_t = np.full(n if with_floats else 0, _FAR, dtype=np.int64)
     while True:
         code = _kernels.forward_pass(
-            *layout.forward, override, lag_on_pred, status_t, point_t, lower_t, upper_t, duration_t, fixed_t,
-            cal_t, cals.table(), start_read_t, remaining_start_t, early_finish_t)
+            *layout.forward, layout.f_link, override, lag_on_pred, with_floats, status_t, point_t, lower_t,
+            upper_t, duration_t, fixed_t, cal_t, cals.table(), start_read_t, remaining_start_t, early_finish_t,
+            relative_float, link_free_float_t)
         if code == _kernels.OK:
             break
         cals.grow(earlier=code == _kernels.TOO_EARLY)
@@ -382,7 +399,7 @@ def _run(model: ScheduleModel, forward_only: bool = False):
 
     # -- backward pass --------------------------------------------------------------------------
     end_day = completion_day if settings.float_to == "project_finish" else model.contract_completion_day
-    late_upper = np.minimum(upper_of(np.full(n, end_day, dtype=np.int64), all_rows), late_upper_extra)
+    late_upper = np.minimum(upper_on(end_day), late_upper_extra)
     late_start_t = np.empty(n, dtype=np.int64)
     late_finish_t = np.empty(n, dtype=np.int64)
     late_upper_t, pin_t = late_upper[order], pin_late[order]
@@ -395,22 +412,15 @@ def _run(model: ScheduleModel, forward_only: bool = False):
         cals.grow(earlier=code == _kernels.TOO_EARLY)
 
     # -- floats and driving links -------------------------------------------------------------------
-    free_float_t = (upper_of(np.full(n, completion_day, dtype=np.int64), all_rows) - early_finish)[order]
-    relative_float = np.empty(net.link_count, dtype=np.int64)
-    while True:
-        code = _kernels.link_floats(
-            *layout.forward, layout.f_link, False, override, lag_on_pred, status_t, point_t, start_read_t,
-            remaining_start_t, early_finish_t, cal_t, cals.table(), relative_float, free_float_t)
-        if code == _kernels.OK:
-            break
-        cals.grow(earlier=code == _kernels.TOO_EARLY)
-    start_read, remaining_start, late_start, late_finish, free_float = (
+    # free float: to the completion, or less where a link leaves less (forward pass)
+    start_read, remaining_start, late_start, late_finish, link_free_float = (
         np.empty(n, dtype=np.int64) for _ in range(5))
     start_read[order] = start_read_t
     remaining_start[order] = remaining_start_t
     late_start[order] = late_start_t
     late_finish[order] = late_finish_t
-    free_float[order] = np.maximum(free_float_t, 0)
+    link_free_float[order] = link_free_float_t
+    free_float = np.maximum(np.minimum(upper_on(completion_day) - early_finish, link_free_float), 0)
     total_float = late_finish - early_finish
     driving_link = relative_float == 0  # an ignored link's relative float is 2**40
 
@@ -597,12 +607,10 @@ class ScheduleResult:
         order = net.order
         layout = net.passes
         gaps = np.empty(net.link_count, dtype=np.int64)
-        start_read_t = self.early_start_read[order]
         while True:
-            code = _kernels.link_floats(
-                *layout.forward, layout.f_link, True, False, self.settings.lag_calendar == "predecessor",
-                self.status[order], self.point[order], start_read_t, start_read_t, self.early_finish[order],
-                model.calendar[order], cals.table(), gaps, np.zeros(net.size, dtype=np.int64))
+            code = _kernels.link_gaps(
+                *layout.forward, layout.f_link, self.settings.lag_calendar == "predecessor", self.point[order],
+                self.early_start_read[order], self.early_finish[order], model.calendar[order], cals.table(), gaps)
             if code == _kernels.OK:
                 return gaps
             cals.grow(earlier=code == _kernels.TOO_EARLY)
@@ -765,17 +773,29 @@ def _compile_snapshot(snap: Snapshot, calendars: CalendarSet) -> dict:
     """
     activities = snap.activities_table
     links = snap.links_table
+    given = snap.derived  # codes the case loader found while checking the tables, if any
     source = f"snapshots/{snap.folder}/links.csv" if snap.kind != "asbuilt" else "asbuilt.csv"
-    network = compile_network(activities, links, source=source, link_numbers=snap.link_numbers)
-    cal = pd.Index(calendars.names).get_indexer(activities["calendar"]).astype(np.int64)
+    network = compile_network(activities, links, source=source, link_numbers=snap.link_numbers,
+                              type_codes=given.get("type_codes"))
+    names, cal = given.get("calendar_codes", (None, None))
+    if names == calendars.names:
+        cal = np.asarray(cal, dtype=np.int64)
+    else:
+        cal = pd.Index(calendars.names).get_indexer(activities["calendar"]).astype(np.int64)
     if (cal < 0).any():
         row = int(np.flatnonzero(cal < 0)[0])
         raise CaseError(Problem(file=f"snapshots/{snap.folder}/activities.csv", row=row + 2, column="calendar",
                                 message=f"unknown calendar '{activities['calendar'].iloc[row]}'",
                                 fix="define it in calendars.csv"))
-    kind = np.maximum(pd.Index(list(KIND_CODES)).get_indexer(activities["kind"]), 0).astype(np.int8)
-    constraint = np.maximum(pd.Index(list(CONSTRAINT_CODES)).get_indexer(activities["constraint"].fillna("")), 0
-                            ).astype(np.int8)
+    if "kind_codes" in given:
+        kind = _KIND_BY_POSITION[np.maximum(given["kind_codes"], 0)]
+    else:
+        kind = np.maximum(pd.Index(list(KIND_CODES)).get_indexer(activities["kind"]), 0).astype(np.int8)
+    if "constraint_codes" in given:
+        constraint = _CONSTRAINT_BY_POSITION[given["constraint_codes"] + 1]
+    else:
+        constraint = np.maximum(pd.Index(list(CONSTRAINT_CODES)).get_indexer(activities["constraint"].fillna("")),
+                                0).astype(np.int8)
     arrays = {
         "network": network,
         "calendar_names": calendars.names,

@@ -153,8 +153,9 @@ class Snapshot:
     kind: Literal["baseline", "update", "asbuilt"]
     activities_table: pd.DataFrame = field(repr=False)
     links_table: pd.DataFrame = field(repr=False)
-    #: Data derived from the tables once per snapshot (for example the engine's compiled
-    #: arrays), shared by every later use; never part of the snapshot's identity.
+    #: Data derived from the tables once per snapshot (the codes the case loader found
+    #: while checking them, the engine's compiled arrays), shared by every later use; never
+    #: part of the snapshot's identity.
     derived: dict = field(default_factory=dict, repr=False, compare=False)
 
     @property
@@ -170,10 +171,15 @@ class Snapshot:
     @cached_property
     def link_numbers(self) -> tuple[np.ndarray, np.ndarray]:
         """Activity numbers (rows of ``activities``) of each link's predecessor and successor,
-        ``-1`` for an unknown id; computed once per snapshot and shared by every use."""
-        index = pd.Index(self.activities_table["id"])
-        pred = index.get_indexer(self.links_table["pred"]).astype(np.int64)
-        succ = index.get_indexer(self.links_table["succ"]).astype(np.int64)
+        ``-1`` for an unknown id; computed once per snapshot (the case loader hands over the
+        numbers it found while checking the links) and shared by every use."""
+        given = self.derived.get("link_numbers")
+        if given is not None:
+            pred, succ = (np.array(numbers, dtype=np.int64) for numbers in given)
+        else:
+            index = pd.Index(self.activities_table["id"])
+            pred = index.get_indexer(self.links_table["pred"]).astype(np.int64)
+            succ = index.get_indexer(self.links_table["succ"]).astype(np.int64)
         pred.flags.writeable = False
         succ.flags.writeable = False
         return pred, succ

@@ -91,8 +91,17 @@ class Network:
         """The links laid out for the CPM passes (built once per network)."""
         from ._kernels import pass_layout
 
-        return PassLayout(*pass_layout(self.order, self.rank, self.in_ptr, self.in_link, self.out_ptr,
-                                       self.out_link, self.pred, self.succ, self.link_type, self.lag))
+        n, m = self.size, self.link_count
+        # 32-bit numbers where they fit (always, in practice): half the memory to read
+        small = max(n, m) < 2**31 and (not m or -(2**31) < int(self.lag.min()) and int(self.lag.max()) < 2**31)
+        number = np.int32 if small else np.int64
+        arrays = dict(
+            f_ptr=np.empty(n + 1, dtype=np.int64), f_pred=np.empty(m, dtype=number), f_type=np.empty(m, dtype=np.int8),
+            f_lag=np.empty(m, dtype=number), f_link=np.empty(m, dtype=number), b_ptr=np.empty(n + 1, dtype=np.int64),
+            b_succ=np.empty(m, dtype=number), b_type=np.empty(m, dtype=np.int8), b_lag=np.empty(m, dtype=number))
+        pass_layout(self.order, self.rank, self.in_ptr, self.in_link, self.out_ptr, self.out_link, self.pred,
+                    self.succ, self.link_type, self.lag, *arrays.values())
+        return PassLayout(**arrays)
 
     @cached_property
     def has_predecessor(self) -> np.ndarray:
@@ -203,7 +212,8 @@ def build_network(ids, pred, succ, link_type, lag, source="links.csv") -> Networ
 
 
 def compile_network(activities: pd.DataFrame, links: pd.DataFrame, source: str = "links.csv",
-                    link_numbers: tuple[np.ndarray, np.ndarray] | None = None) -> Network:
+                    link_numbers: tuple[np.ndarray, np.ndarray] | None = None,
+                    type_codes: np.ndarray | None = None) -> Network:
     """Compile an activities table and a links table (case-format columns) to a Network.
 
     Parameters
@@ -214,6 +224,8 @@ def compile_network(activities: pd.DataFrame, links: pd.DataFrame, source: str =
     source: file named in the message when the logic has a loop.
     link_numbers: the activity numbers of each link's ends when already known
         (:attr:`delay.model.Snapshot.link_numbers`).
+    type_codes: each link's position in ``LINK_TYPES`` when already known (the case loader
+        finds them while checking the links).
 
     Returns
     -------
@@ -250,7 +262,7 @@ def compile_network(activities: pd.DataFrame, links: pd.DataFrame, source: str =
                 fix="correct the activity id or add the activity",
             )
         )
-    codes = pd.Index(LINK_TYPES).get_indexer(links["type"])
+    codes = pd.Index(LINK_TYPES).get_indexer(links["type"]) if type_codes is None else np.asarray(type_codes)
     if (codes < 0).any():
         row = int(np.flatnonzero(codes < 0)[0])
         raise CaseError(Problem(file=source, row=row + 2, column="type",

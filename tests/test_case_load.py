@@ -8,9 +8,12 @@ of test_case_support.
 from __future__ import annotations
 
 import copy
+import dataclasses
 import datetime as dt
 import json
+from pathlib import Path
 
+import numpy as np
 import pandas as pd
 from pandas.api import types
 
@@ -261,3 +264,56 @@ def test_links_default_case(tmp_path):
     assert list(case.events.columns) == list(COLUMNS["events"]) and case.events.empty
     assert types.is_datetime64_dtype(case.events["start"])
     assert case.baseline.links["pred"].tolist() == [row["pred"] for row in LINKS]
+
+
+def _engine_arrays(snapshot, calendars):
+    from delay.cpm import _compile_snapshot
+
+    arrays = _compile_snapshot(snapshot, calendars)
+    net = arrays.pop("network")
+    arrays.update({name: getattr(net, name) for name in ("pred", "succ", "link_type", "lag", "order")})
+    return arrays
+
+
+def _same_arrays(first: dict, second: dict) -> None:
+    assert first.keys() == second.keys()
+    for name, value in first.items():
+        if isinstance(value, np.ndarray):
+            assert value.dtype == second[name].dtype, name
+            assert np.array_equal(value, second[name], equal_nan=value.dtype.kind == "f"), name
+        else:
+            assert value == second[name], name
+
+
+def test_codes_found_while_loading_equal_the_tables_text(tmp_path):
+    # The loader hands the engine the codes it found while checking (calendar, kind,
+    # constraint, link type, link ends); the engine's arrays must be the same as when it
+    # reads the text itself. Blank cells and lower-case types follow case-format's defaults.
+    activities = copy.deepcopy(ACTIVITIES)
+    activities[1]["calendar"] = ""
+    activities[1]["constraint"] = "latest_finish"
+    activities[1]["constraint_date"] = "2026-03-31"
+    links = [{"pred": "A", "succ": "B", "type": "", "lag": ""},
+             {"pred": "B", "succ": "M", "type": "ff", "lag": "2"}]
+    root = make_case(tmp_path, activities=activities, links=links, snapshots={}, drop=("asbuilt.csv",))
+    case = load_case(root)
+    from delay.cpm import calendars_of
+
+    calendars = calendars_of(case)
+    for snapshot in case.snapshots:
+        assert {"calendar_codes", "kind_codes", "constraint_codes", "type_codes", "link_numbers"} <= set(
+            snapshot.derived)
+        bare = dataclasses.replace(snapshot, derived={})
+        _same_arrays(_engine_arrays(snapshot, calendars), _engine_arrays(bare, calendars))
+    assert case.baseline.derived["type_codes"].tolist() == [0, 2]  # FS, FF by LINK_TYPES
+
+
+def test_demo_codes_found_while_loading_equal_the_tables_text():
+    from delay.cpm import calendars_of
+
+    case = load_case(Path(__file__).resolve().parent.parent / "case_demo")
+    calendars = calendars_of(case)
+    assert case.asbuilt_snapshot is not None
+    for snapshot in (*case.snapshots, case.asbuilt_snapshot):
+        bare = dataclasses.replace(snapshot, derived={})
+        _same_arrays(_engine_arrays(snapshot, calendars), _engine_arrays(bare, calendars))

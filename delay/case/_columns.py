@@ -227,23 +227,42 @@ def choices(problems: Problems, table: RawTable, column: str, allowed: Iterable[
     """``column`` as one of ``allowed`` (compared without regard to case).
 
     Blank cells take ``default`` (or stay blank, or are a problem when ``required``).
-    Values are stored in the case of ``allowed``.
+    Values are stored in the case of ``allowed``. See :func:`coded_choices`.
+    """
+    return coded_choices(problems, table, column, allowed, default=default, upper=upper, what=what,
+                         required=required)[0]
+
+
+def coded_choices(problems: Problems, table: RawTable, column: str, allowed: Iterable[str], *,
+                  default: str | None = None, upper: bool = False, what: str = "value",
+                  required: Text | None = None) -> tuple[pd.Series, np.ndarray]:
+    """:func:`choices`, and each cell's position in ``allowed`` (``-1`` for a blank without
+    default or an unknown value), found in the same look-up.
+
+    Cells already in the case of ``allowed`` are looked up as they are; only the others are
+    changed to upper (or lower) case and looked up again.
     """
     allowed = tuple(allowed)
+    index = pd.Index(allowed)
     text = table.frame[column]
     empty = empty_cells(text)
-    if empty.all():
-        normal = text
-    else:
-        normal = text.str.upper() if upper else text.str.lower()
-    unknown = ~empty & ~normal.isin(allowed).to_numpy()
+    codes = index.get_indexer(text)
+    other = ~empty & (codes < 0)
+    normal = text
+    if other.any():
+        changed = text[other].str.upper() if upper else text[other].str.lower()
+        codes[other] = index.get_indexer(changed)
+        normal = text.copy()
+        normal[other] = changed
+    unknown = other & (codes < 0)
     problems.flag(table, unknown, column, f"'{{value}}' is not a known {what}",
                   "use one of: " + ", ".join(allowed))
     if required is not None:
         problems.flag(table, empty, column, required, "use one of: " + ", ".join(allowed))
     if default is not None:
         normal = normal.where(~empty, default)
-    return normal.astype("str")
+        codes[empty] = allowed.index(default)
+    return normal.astype("str"), codes
 
 
 def _combined(table: RawTable, columns: list[str]) -> pd.Series:
@@ -283,6 +302,17 @@ def references(problems: Problems, table: RawTable, column: str, known, message:
     unknown = ~empty_cells(text) & ~text.isin(known).to_numpy()
     problems.flag(table, unknown, column, message, fix)
     return unknown
+
+
+def coded_references(problems: Problems, table: RawTable, column: str, known: pd.Index, message: Text,
+                     fix: Text) -> tuple[np.ndarray, np.ndarray]:
+    """:func:`references` against an index of unique ``known`` values, and each cell's
+    position in it (``-1`` for a blank or unknown cell), found in the same look-up."""
+    text = table.frame[column]
+    codes = known.get_indexer(text)
+    unknown = (codes < 0) & ~empty_cells(text)
+    problems.flag(table, unknown, column, message, fix)
+    return unknown, codes
 
 
 def split_ids(text: pd.Series) -> pd.Series:

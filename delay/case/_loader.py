@@ -62,6 +62,9 @@ class _SnapshotFacts:
     kind: str | None
     activities: pd.DataFrame | None = None
     links: pd.DataFrame | None = None
+    #: Codes found while checking the tables, handed to the Snapshot (``Snapshot.derived``)
+    #: so that the engine need not look the same text up again.
+    derived: dict = field(default_factory=dict)
 
 
 def load(path: Path, *, keep_uncorrected: bool = False) -> Loaded:
@@ -128,7 +131,7 @@ class _Loader:
             return None
         snapshots = tuple(
             Snapshot(folder=f.folder, label=f.label, data_date=f.data_date, kind=f.kind,
-                     activities_table=f.activities, links_table=f.links)
+                     activities_table=f.activities, links_table=f.links, derived=dict(f.derived))
             for f in self.snapshots
         )
         return Case(
@@ -201,14 +204,23 @@ class _Loader:
                   "add it to calendars.csv or set schedule.default_calendar to one of: "
                   + ", ".join(self.calendar_names), row=row, column=column)
 
-    def calendar_check(self, table: RawTable, column: str = "calendar") -> pd.Series:
-        """The calendar column with blanks set to the default, unknown names flagged."""
+    def calendar_check(self, table: RawTable, column: str = "calendar",
+                       derived: dict | None = None) -> pd.Series:
+        """The calendar column with blanks set to the default, unknown names flagged.
+
+        With ``derived``, its ``"calendar_codes"`` is set to the calendar names and each
+        row's position among them (when the default calendar is one of them).
+        """
         text = table.frame[column]
         if self.calendar_names is not None:
             known = ", ".join(self.calendar_names) or "(none defined)"
-            columns.references(self.problems, table, column, self.calendar_names,
-                               "the calendar '{value}' is not in calendars.csv",
-                               f"add it to calendars.csv or use one of: {known}")
+            names = pd.Index(list(dict.fromkeys(self.calendar_names)))
+            _, codes = columns.coded_references(self.problems, table, column, names,
+                                                "the calendar '{value}' is not in calendars.csv",
+                                                f"add it to calendars.csv or use one of: {known}")
+            if derived is not None and self.default_calendar in names:
+                codes[columns.empty_cells(text)] = names.get_loc(self.default_calendar)
+                derived["calendar_codes"] = (tuple(names), codes)
         return text.where(text != "", self.default_calendar).astype("str")
 
     def check_calendar_exceptions(self) -> None:
@@ -364,14 +376,17 @@ class _Loader:
     def check_snapshot(self, facts: _SnapshotFacts) -> None:
         activities = facts.source.activities
         if columns.require_columns(self.problems, activities):
-            facts.activities = self.check_activities(activities, facts.data_date)
+            facts.activities = self.check_activities(activities, facts.data_date, facts.derived)
         links = facts.source.links
         if columns.require_columns(self.problems, links):
             ids = facts.activities["id"] if facts.activities is not None else None
-            facts.links = self.check_links(links, ids)
+            facts.links = self.check_links(links, ids, facts.derived)
 
-    def check_activities(self, table: RawTable, data_date: dt.date | None) -> pd.DataFrame:
-        """Type and check one snapshot's activities."""
+    def check_activities(self, table: RawTable, data_date: dt.date | None,
+                         derived: dict | None = None) -> pd.DataFrame:
+        """Type and check one snapshot's activities; codes found go into ``derived``
+        (``calendar_codes``, ``kind_codes`` by ACTIVITY_KINDS, ``constraint_codes`` by
+        CONSTRAINTS, ``-1`` for none)."""
         p = self.problems
         frame = table.frame
         ids = frame["id"]
@@ -384,15 +399,19 @@ class _Loader:
                            "give every activity of the snapshot a different id", skip=no_id)
         duration = columns.integers(p, table, "duration", unit="work days", minimum=0,
                                     required="the duration is missing")
-        calendar = self.calendar_check(table)
-        kind = columns.choices(p, table, "kind", ACTIVITY_KINDS, default="task",
-                               what="activity kind")
+        calendar = self.calendar_check(table, derived=derived)
+        kind, kind_codes = columns.coded_choices(p, table, "kind", ACTIVITY_KINDS, default="task",
+                                                 what="activity kind")
         milestone_kind = kind.isin(_MILESTONE_KINDS).to_numpy()
         p.flag(table, milestone_kind & (duration.to_numpy() > 0), "duration",
                lambda i: f"a {kind.iat[i].replace('_', ' ')} cannot have a duration "
                          f"({duration.iat[i]} work days)",
                "give the milestone duration 0, or make it a task")
-        constraint = columns.choices(p, table, "constraint", CONSTRAINTS, what="constraint")
+        constraint, constraint_codes = columns.coded_choices(p, table, "constraint", CONSTRAINTS,
+                                                             what="constraint")
+        if derived is not None:
+            derived["kind_codes"] = kind_codes
+            derived["constraint_codes"] = constraint_codes
         constraint_date = columns.dates(p, table, "constraint_date")
         has_constraint = ~columns.empty_cells(frame["constraint"])
         has_date = ~columns.empty_cells(frame["constraint_date"])
@@ -470,7 +489,10 @@ class _Loader:
         remaining = remaining.where(~complete, 0.0)
         return start, finish, remaining
 
-    def check_links(self, table: RawTable, ids: pd.Series | None) -> pd.DataFrame:
+    def check_links(self, table: RawTable, ids: pd.Series | None, derived: dict | None = None) -> pd.DataFrame:
+        """Type and check one snapshot's links; codes found go into ``derived``
+        (``type_codes`` by LINK_TYPES and, when every link is sound, ``link_numbers``: the
+        activity rows of each link's ends)."""
         p = self.problems
         frame = table.frame
         pred, succ = frame["pred"], frame["succ"]
@@ -481,30 +503,35 @@ class _Loader:
         bad = no_pred | no_succ
         if ids is not None:
             fix = "add the activity to this snapshot's activities or correct the id"
-            bad |= columns.references(p, table, "pred", ids,
-                                      "the predecessor '{value}' is not an activity of this snapshot",
-                                      fix)
-            bad |= columns.references(p, table, "succ", ids,
-                                      "the successor '{value}' is not an activity of this snapshot",
-                                      fix)
+            nodes = pd.Index(ids.drop_duplicates())
+            unknown, pred_at = columns.coded_references(
+                p, table, "pred", nodes, "the predecessor '{value}' is not an activity of this snapshot", fix)
+            bad |= unknown
+            unknown, succ_at = columns.coded_references(
+                p, table, "succ", nodes, "the successor '{value}' is not an activity of this snapshot", fix)
+            bad |= unknown
         itself = ~bad & (pred == succ).to_numpy()
         p.flag(table, itself, "succ", "the link runs from an activity to itself",
                "remove the link or correct one of its ids")
         bad |= itself
-        kind = columns.choices(p, table, "type", LINK_TYPES, default="FS", upper=True,
-                               what="link type")
+        kind, type_codes = columns.coded_choices(p, table, "type", LINK_TYPES, default="FS", upper=True,
+                                                 what="link type")
         lag = columns.integers(p, table, "lag", unit="work days (negative for a lead)", default=0)
         columns.duplicates(p, table, ["pred", "succ"], "pred",
                            lambda i: f"the link {pred.iat[i]}>{succ.iat[i]}",
                            "keep one link from a predecessor to a successor", skip=no_pred | no_succ)
         if ids is not None and not bad.all():
-            self.check_loop(table, ids, ~bad)
+            self.check_loop(table, nodes, pred_at[~bad], succ_at[~bad], ~bad)
+        if derived is not None:
+            derived["type_codes"] = type_codes
+            if ids is not None and not bad.any() and len(nodes) == len(ids):
+                derived["link_numbers"] = (pred_at.astype(np.int64), succ_at.astype(np.int64))
         return columns.assemble(table, {"type": kind, "lag": lag})
 
-    def check_loop(self, table: RawTable, ids: pd.Series, valid: np.ndarray) -> None:
-        nodes = pd.Index(ids.drop_duplicates())
-        pred = nodes.get_indexer(table.frame["pred"][valid])
-        succ = nodes.get_indexer(table.frame["succ"][valid])
+    def check_loop(self, table: RawTable, nodes: pd.Index, pred: np.ndarray, succ: np.ndarray,
+                   valid: np.ndarray) -> None:
+        """Flag a logic loop among the sound links (``pred``, ``succ``: their ends' positions
+        in ``nodes``; ``valid``: which rows of the table they are)."""
         loop = find_loop(len(nodes), pred, succ)
         if loop is None:
             return
@@ -604,7 +631,7 @@ class _Loader:
         activities["remaining"] = 0.0
         self.asbuilt_snapshot = Snapshot(
             folder="asbuilt", label="As-built", data_date=data_date, kind="asbuilt",
-            activities_table=activities, links_table=last.links,
+            activities_table=activities, links_table=last.links, derived=dict(last.derived),
         )
 
     # ------------------------------------------------------------------ registers
