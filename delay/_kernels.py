@@ -24,31 +24,6 @@ _LOW = np.iinfo(np.int64).min
 _HIGH = np.iinfo(np.int64).max
 
 
-@njit(cache=True)
-def topological_order(n, out_ptr, out_link, succ):  # pragma: no cover - compiled
-    """Kahn's algorithm with a first-in first-out queue; returns (order, count placed)."""
-    indegree = np.zeros(n, dtype=np.int64)
-    for e in range(succ.size):
-        indegree[succ[e]] += 1
-    order = np.empty(n, dtype=np.int64)
-    head = 0
-    tail = 0
-    for v in range(n):
-        if indegree[v] == 0:
-            order[tail] = v
-            tail += 1
-    while head < tail:
-        v = order[head]
-        head += 1
-        for j in range(out_ptr[v], out_ptr[v + 1]):
-            w = succ[out_link[j]]
-            indegree[w] -= 1
-            if indegree[w] == 0:
-                order[tail] = w
-                tail += 1
-    return order, tail
-
-
 # The calendar look-ups read one packed table (CalendarSet.table): table[1] is the stride
 # of the ``before`` tables, table[2] their first day; calendar c's row at 3 + 4c holds its
 # anchor, where its ``before`` table and its work days start, and how many work days it has.
@@ -111,38 +86,76 @@ def _latest_across(target, f, lag, lag_on_pred, successor_calendar, predecessor_
 
 
 @njit(cache=True)
-def pass_layout(order, rank, in_ptr, in_link, out_ptr, out_link, pred, succ, link_type, lag, f_ptr, f_pred,
-                f_type, f_lag, f_link, b_ptr, b_succ, b_type, b_lag):  # pragma: no cover - compiled
-    """Fills the links' layout for the passes, activities numbered by topological position.
+def order_and_layout(n, pred, succ, link_type, lag, out_ptr, out_link, order, rank, f_ptr, f_pred, f_type, f_lag,
+                     f_link, b_ptr, b_succ, b_type, b_lag, b_link):  # pragma: no cover - compiled
+    """A topological order and the links laid out for the passes, in one sweep; fills the
+    arrays given and returns how many activities were placed (fewer than ``n``: a loop).
 
-    Position ``i`` stands for activity ``order[i]``. The forward stream lists, for each
-    position in turn, the links into it (``f_ptr[i]:f_ptr[i + 1]``) with the position of
-    their predecessor, type, lag and link number; the backward stream lists the links out
-    of each position with the position of their successor. A pass then reads its links
-    front to back and its activities' arrays in order, instead of jumping through them.
+    The order is Kahn's with a first-in first-out queue, taking the activities without
+    predecessors in input order and each activity's links in input order (``out_ptr``,
+    ``out_link``: links by predecessor). Position ``i`` stands for activity ``order[i]``.
+    The backward stream lists the links out of each position in turn (``b_ptr[i]:b_ptr[i +
+    1]``) with their successor's position, type, lag and link number; the forward stream the links into
+    each position (``f_ptr``) with their predecessor's position, type, lag and link number.
+    A pass then reads its links front to back and its activities' arrays in order.
     """
-    n = order.size
-    k = 0
+    m = pred.size
+    indegree = np.zeros(n, dtype=np.int64)
+    for e in range(m):
+        out_ptr[pred[e] + 1] += 1
+        indegree[succ[e]] += 1
+    for v in range(n):
+        out_ptr[v + 1] += out_ptr[v]
+    fill = out_ptr[:-1].copy()
+    for e in range(m):
+        v = pred[e]
+        out_link[fill[v]] = e
+        fill[v] += 1
+    # forward stream extents: each position's in-degree, known once the order is
+    remaining = indegree.copy()
+    head = 0
+    tail = 0
+    for v in range(n):
+        if remaining[v] == 0:
+            order[tail] = v
+            tail += 1
     h = 0
-    for i in range(n):
-        v = order[i]
-        f_ptr[i] = k
-        for j in range(in_ptr[v], in_ptr[v + 1]):
-            e = in_link[j]
-            f_pred[k] = rank[pred[e]]
-            f_type[k] = link_type[e]
-            f_lag[k] = lag[e]
-            f_link[k] = e
-            k += 1
-        b_ptr[i] = h
+    while head < tail:
+        v = order[head]
+        b_ptr[head] = h
+        head += 1
         for j in range(out_ptr[v], out_ptr[v + 1]):
             e = out_link[j]
-            b_succ[h] = rank[succ[e]]
-            b_type[h] = link_type[e]
-            b_lag[h] = lag[e]
+            b_link[h] = e
             h += 1
-    f_ptr[n] = k
+            w = succ[e]
+            remaining[w] -= 1
+            if remaining[w] == 0:
+                order[tail] = w
+                tail += 1
+    if tail < n:
+        return tail
     b_ptr[n] = h
+    for i in range(n):
+        rank[order[i]] = i
+    f_ptr[0] = 0
+    for i in range(n):
+        f_ptr[i + 1] = f_ptr[i] + indegree[order[i]]
+    slot = f_ptr[:-1].copy()
+    for i in range(n):
+        for k in range(b_ptr[i], b_ptr[i + 1]):
+            e = b_link[k]
+            w = rank[succ[e]]
+            b_succ[k] = w
+            b_type[k] = link_type[e]
+            b_lag[k] = lag[e]
+            s = slot[w]
+            slot[w] = s + 1
+            f_pred[s] = i
+            f_type[s] = link_type[e]
+            f_lag[s] = lag[e]
+            f_link[s] = e
+    return n
 
 
 @njit(cache=True, inline="always")
@@ -162,18 +175,24 @@ def _links_ignored(status, progress_override):  # pragma: no cover - compiled
 
 
 @njit(cache=True)
-def forward_pass(f_ptr, f_pred, f_type, f_lag, f_link, progress_override, lag_on_pred, with_floats, status,
-                 point_kind, lower, upper, duration, start_read_fixed, calendar, table, start_read,
-                 remaining_start, early_finish, relative_float, link_free_float):  # pragma: no cover
-    """Early dates, activities by topological position (see :func:`pass_layout`).
+def forward_pass(f_ptr, f_pred, f_type, f_lag, f_link, order, progress_override, lag_on_pred, with_floats,
+                 status, point_kind, calendar, lower, upper, duration, start_read_fixed, known_finish, table,
+                 early_finish_t, start_read_t, early_finish, start_read, remaining_start, finish_day,
+                 relative_float, link_free_float):  # pragma: no cover - compiled
+    """Early dates, activities by topological position (see :func:`order_and_layout`).
 
-    Writes start_read (the point successors read as the start: the actual start of one in
-    progress), remaining_start and early_finish; returns a status code.
+    By position ``i`` (activity ``order[i]``): ``status``, ``point_kind`` and ``calendar``
+    in, ``early_finish_t`` and ``start_read_t`` out (what successors read). By activity
+    number: ``lower``, ``upper``, ``duration``, ``start_read_fixed`` and ``known_finish``
+    (the finish date of a complete activity, else ``_LOW``) in; ``early_finish``,
+    ``start_read`` (the point successors read as the start: the actual start of one in
+    progress), ``remaining_start`` and ``finish_day`` (the date of the finish) out.
 
     With ``with_floats`` it also writes each link's relative float (successor's work days,
     by link number; ``2**40`` for a link the pass ignores) and lowers each predecessor's
-    ``link_free_float`` to the least slack over its links (predecessor's work days); the
-    link's bound is at hand then, so this costs little more than the pass.
+    ``link_free_float`` (by position) to the least slack over its links (predecessor's work
+    days); the link's bound is at hand then, so this costs little more than the pass.
+    Returns a status code.
     """
     n = f_ptr.size - 1
     far = np.int64(1) << 40
@@ -183,8 +202,11 @@ def forward_pass(f_ptr, f_pred, f_type, f_lag, f_link, progress_override, lag_on
             widest = f_ptr[i + 1] - f_ptr[i]
     bounds = np.empty(widest, dtype=np.int64)  # each link's bound on the activity in hand
     for i in range(n):
-        bound = lower[i]
-        ignored = _links_ignored(status[i], progress_override)
+        v = order[i]
+        bound = lower[v]
+        length = duration[v]
+        st = status[i]
+        ignored = _links_ignored(st, progress_override)
         first = f_ptr[i]
         last = f_ptr[i + 1]
         c = calendar[i]
@@ -193,7 +215,7 @@ def forward_pass(f_ptr, f_pred, f_type, f_lag, f_link, progress_override, lag_on
                 p = f_pred[j]
                 t = f_type[j]
                 reads_finish = t == 0 or t == 2
-                point = early_finish[p] if reads_finish else start_read[p]
+                point = early_finish_t[p] if reads_finish else start_read_t[p]
                 if calendar[p] != c:
                     value = _bound_across(point, _reads_as_finish(point_kind[p], reads_finish), f_lag[j],
                                           lag_on_pred, calendar[p], c, table)
@@ -204,15 +226,27 @@ def forward_pass(f_ptr, f_pred, f_type, f_lag, f_link, progress_override, lag_on
                 else:
                     value = point + f_lag[j]
                 if t >= 2:
-                    value -= duration[i]
+                    value -= length
                 bounds[j - first] = value
                 if value > bound:
                     bound = value
-        if bound > upper[i]:
-            bound = upper[i]
-        remaining_start[i] = bound
-        start_read[i] = start_read_fixed[i] if status[i] == 1 else bound
-        early_finish[i] = bound + duration[i]
+        if bound > upper[v]:
+            bound = upper[v]
+        remaining_start[v] = bound
+        read = start_read_fixed[v] if st == 1 else bound
+        start_read_t[i] = read
+        start_read[v] = read
+        finish = bound + length
+        early_finish_t[i] = finish
+        early_finish[v] = finish
+        day = known_finish[v]
+        if day == _LOW:
+            day = _day_of(c, finish if point_kind[i] == 1 else finish - 1, table)
+            if day == _LOW:
+                return TOO_EARLY
+            if day == _HIGH:
+                return TOO_LATE
+        finish_day[v] = day
         if not with_floats:
             continue
         for j in range(first, last):
@@ -229,28 +263,44 @@ def forward_pass(f_ptr, f_pred, f_type, f_lag, f_link, progress_override, lag_on
                 continue  # the link reads an actual date: no float of the predecessor's
             if calendar[p] != c:
                 as_finish = _reads_as_finish(point_kind[p], reads_finish)
-                target = bound + duration[i] if t >= 2 else bound
+                target = finish if t >= 2 else bound
                 latest = _latest_across(target, as_finish, f_lag[j], lag_on_pred, c, calendar[p], table)
                 if latest == _LOW:
                     return TOO_EARLY
                 if latest == _HIGH:
                     return TOO_LATE
-                slack = latest - (early_finish[p] if reads_finish else start_read[p])
+                slack = latest - (early_finish_t[p] if reads_finish else start_read_t[p])
             if slack < link_free_float[p]:
                 link_free_float[p] = slack
     return OK
 
 
 @njit(cache=True)
-def backward_pass(b_ptr, b_succ, b_type, b_lag, progress_override, lag_on_pred, status, point_kind,
-                  late_upper, pin_late, duration, calendar, table, late_start, late_finish):  # pragma: no cover
-    """Late dates, activities by topological position. Writes late_start (of remaining
-    work) and late_finish; ``pin_late`` above ``-2**40`` pins an activity's late finish."""
+def backward_pass(b_ptr, b_succ, b_type, b_lag, order, progress_override, lag_on_pred, status, point_kind,
+                  calendar, late_upper, pin_late, duration, early_finish_t, link_free_float, end_bound,
+                  completion_bound, table, late_start_t, late_finish_t, late_start, late_finish, total_float,
+                  free_float):  # pragma: no cover - compiled
+    """Late dates, total and free float, activities by topological position.
+
+    By position: ``status``, ``point_kind``, ``calendar``, ``early_finish_t`` and
+    ``link_free_float`` (from :func:`forward_pass`) in, ``late_start_t`` and
+    ``late_finish_t`` out. By activity number: ``late_upper`` (a latest-finish bound),
+    ``pin_late`` (above ``-2**40``: a pinned late finish) and ``duration`` in;
+    ``late_start`` (of remaining work), ``late_finish``, ``total_float`` and ``free_float``
+    out. Per calendar: ``end_bound``, the last work day on or before the date the late
+    dates run back from, and ``completion_bound``, that of the completion (free float).
+    Returns a status code.
+    """
     n = b_ptr.size - 1
     unpinned = -(np.int64(1) << 40)
     for i in range(n - 1, -1, -1):
-        bound = late_upper[i]
+        v = order[i]
         c = calendar[i]
+        past_finish = 0 if point_kind[i] == 1 else 1  # a finish is the end of its day
+        bound = end_bound[c] + past_finish
+        if late_upper[v] < bound:
+            bound = late_upper[v]
+        length = duration[v]
         started = status[i] == 1
         for j in range(b_ptr[i], b_ptr[i + 1]):
             s = b_succ[j]
@@ -260,7 +310,7 @@ def backward_pass(b_ptr, b_succ, b_type, b_lag, progress_override, lag_on_pred, 
             reads_finish = t == 0 or t == 2
             if started and not reads_finish:
                 continue  # the link reads the actual start, which is past
-            q = late_finish[s] if t >= 2 else late_start[s]
+            q = late_finish_t[s] if t >= 2 else late_start_t[s]
             if calendar[s] != c:
                 value = _latest_across(q, _reads_as_finish(point_kind[i], reads_finish), b_lag[j], lag_on_pred,
                                        calendar[s], c, table)
@@ -271,13 +321,20 @@ def backward_pass(b_ptr, b_succ, b_type, b_lag, progress_override, lag_on_pred, 
             else:
                 value = q - b_lag[j]
             if not reads_finish:
-                value += duration[i]
+                value += length
             if value < bound:
                 bound = value
-        if pin_late[i] > unpinned:
-            bound = pin_late[i]
-        late_finish[i] = bound
-        late_start[i] = bound - duration[i]
+        if pin_late[v] > unpinned:
+            bound = pin_late[v]
+        late_finish_t[i] = bound
+        late_start_t[i] = bound - length
+        late_finish[v] = bound
+        late_start[v] = bound - length
+        total_float[v] = bound - early_finish_t[i]
+        free = completion_bound[c] + past_finish - early_finish_t[i]
+        if link_free_float[i] < free:
+            free = link_free_float[i]
+        free_float[v] = free if free > 0 else 0
     return OK
 
 

@@ -85,6 +85,13 @@ NO_DAY = np.iinfo(np.int64).min  # "no date" in day-number arrays
 
 
 def _days_or_none(column: pd.Series) -> np.ndarray:
+    """Day numbers of a date column, :data:`NO_DAY` for a blank."""
+    values = column.to_numpy()
+    if values.dtype.kind == "M":  # the loader's date columns: integer arithmetic, no copy to days
+        unit, count = np.datetime_data(values.dtype)
+        per_day = int(np.timedelta64(1, "D") / np.timedelta64(count, unit))
+        ticks = values.view(np.int64)  # NaT is the least int64, which is NO_DAY
+        return np.where(ticks == NO_DAY, NO_DAY, np.floor_divide(ticks, per_day))
     values = column.to_numpy(dtype="datetime64[D]", na_value=np.datetime64("NaT"))
     days = values.astype(np.int64)
     days[np.isnat(values)] = NO_DAY
@@ -296,9 +303,9 @@ def _run(model: ScheduleModel, forward_only: bool = False):
         """:func:`lower_of` one day for every activity (looked up once per calendar)."""
         return cals.start_index_days(every_calendar, np.full(every_calendar.size, day))[cal] + finish_ms
 
-    def upper_on(day: int) -> np.ndarray:
-        """:func:`upper_of` one day for every activity."""
-        return cals.finish_index_days(every_calendar, np.full(every_calendar.size, day))[cal] + ~start_ms
+    def finish_index_on(day: int) -> np.ndarray:
+        """Per calendar: index of the last work day on or before the day."""
+        return cals.finish_index_days(every_calendar, np.full(every_calendar.size, day))
 
     # -- bounds on the start of remaining work (RS) -------------------------------------------
     lower = lower_on(model.data_day)
@@ -355,73 +362,57 @@ def _run(model: ScheduleModel, forward_only: bool = False):
         lower[rows] = pin
         upper[rows] = pin
         pin_late[rows] = pin + duration[rows]
-    pinned = pin_late > -_FAR
 
     # -- the passes, activities by topological position ------------------------------------------
     # Each pass walks the activities in topological order and reads its links front to back
-    # (Network.passes); the inputs are gathered into that order and the results put back.
+    # (Network.passes). What a pass reads of a link's other end is held by position; what
+    # it reads and writes of the activity in hand, by activity number.
     from . import _kernels
 
     layout = net.passes
     order = net.order
+    table = cals.table
     override = settings.progress == "progress_override"
     lag_on_pred = settings.lag_calendar == "predecessor"
     status_t = status[order]
     point_t = point[order]
     cal_t = cal[order]
-    duration_t = duration[order]
-    start_read_t = np.empty(n, dtype=np.int64)
-    remaining_start_t = np.empty(n, dtype=np.int64)
-    early_finish_t = np.empty(n, dtype=np.int64)
-    lower_t, upper_t, fixed_t = lower[order], upper[order], start_read_fixed[order]
+    known_finish = np.full(n, NO_DAY, dtype=np.int64)  # complete: the actual finish (milestone: its date)
+    rows = np.flatnonzero(complete)
+    known_finish[rows] = np.where(has_finish[rows], model.actual_finish[rows], model.actual_start[rows])
     with_floats = not forward_only
+    early_finish_t, start_read_t, early_finish, start_read, remaining_start, finish_day = (
+        np.empty(n, dtype=np.int64) for _ in range(6))
     relative_float = np.empty(net.link_count if with_floats else 0, dtype=np.int64)
-    link_free_float_t = np.full(n if with_floats else 0, _FAR, dtype=np.int64)
+    link_free_float_t = np.empty(n if with_floats else 0, dtype=np.int64)
     while True:
+        link_free_float_t.fill(_FAR)
         code = _kernels.forward_pass(
-            *layout.forward, layout.f_link, override, lag_on_pred, with_floats, status_t, point_t, lower_t,
-            upper_t, duration_t, fixed_t, cal_t, cals.table(), start_read_t, remaining_start_t, early_finish_t,
-            relative_float, link_free_float_t)
+            *layout.forward, layout.f_link, order, override, lag_on_pred, with_floats, status_t, point_t, cal_t,
+            lower, upper, duration, start_read_fixed, known_finish, table(), early_finish_t, start_read_t,
+            early_finish, start_read, remaining_start, finish_day, relative_float, link_free_float_t)
         if code == _kernels.OK:
             break
         cals.grow(earlier=code == _kernels.TOO_EARLY)
-    early_finish = np.empty(n, dtype=np.int64)
-    early_finish[order] = early_finish_t
 
     # -- completion ---------------------------------------------------------------------------
-    finish_point = np.where(start_ms, early_finish, early_finish - 1)
-    finish_day = cals.day_of(cal, finish_point)
-    rows = np.flatnonzero(complete)
-    finish_day[rows] = np.where(has_finish[rows], model.actual_finish[rows], model.actual_start[rows])
     completion_day = int(finish_day.max()) if n else model.data_day
     if forward_only:
         return completion_day
 
-    # -- backward pass --------------------------------------------------------------------------
+    # -- backward pass, total and free float ----------------------------------------------------
     end_day = completion_day if settings.float_to == "project_finish" else model.contract_completion_day
-    late_upper = np.minimum(upper_on(end_day), late_upper_extra)
-    late_start_t = np.empty(n, dtype=np.int64)
-    late_finish_t = np.empty(n, dtype=np.int64)
-    late_upper_t, pin_t = late_upper[order], pin_late[order]
+    late_start, late_finish, total_float, free_float = (np.empty(n, dtype=np.int64) for _ in range(4))
+    late_start_t, late_finish_t = np.empty(n, dtype=np.int64), np.empty(n, dtype=np.int64)
+    end_bound, completion_bound = finish_index_on(end_day), finish_index_on(completion_day)
     while True:
         code = _kernels.backward_pass(
-            *layout.backward, override, lag_on_pred, status_t, point_t, late_upper_t, pin_t, duration_t, cal_t,
-            cals.table(), late_start_t, late_finish_t)
+            *layout.backward, order, override, lag_on_pred, status_t, point_t, cal_t, late_upper_extra, pin_late,
+            duration, early_finish_t, link_free_float_t, end_bound, completion_bound, table(), late_start_t,
+            late_finish_t, late_start, late_finish, total_float, free_float)
         if code == _kernels.OK:
             break
         cals.grow(earlier=code == _kernels.TOO_EARLY)
-
-    # -- floats and driving links -------------------------------------------------------------------
-    # free float: to the completion, or less where a link leaves less (forward pass)
-    start_read, remaining_start, late_start, late_finish, link_free_float = (
-        np.empty(n, dtype=np.int64) for _ in range(5))
-    start_read[order] = start_read_t
-    remaining_start[order] = remaining_start_t
-    late_start[order] = late_start_t
-    late_finish[order] = late_finish_t
-    link_free_float[order] = link_free_float_t
-    free_float = np.maximum(np.minimum(upper_on(completion_day) - early_finish, link_free_float), 0)
-    total_float = late_finish - early_finish
     driving_link = relative_float == 0  # an ignored link's relative float is 2**40
 
     return ScheduleResult(

@@ -12,6 +12,7 @@ predecessor's finish (FS, FF).
 
 from __future__ import annotations
 
+import dataclasses
 from dataclasses import dataclass
 from functools import cached_property
 
@@ -56,9 +57,13 @@ class Network:
     lag: ``int64`` array, shape ``(m,)``: lag in work days (negative: a lead).
     order: ``int64`` array, shape ``(n,)``: the activities in a topological order.
     rank: ``int64`` array, shape ``(n,)``: each activity's position in ``order``.
-    in_ptr, in_link: CSR of links by successor: the links into activity ``v`` are
-        ``in_link[in_ptr[v]:in_ptr[v + 1]]``, in input order.
-    out_ptr, out_link: the same by predecessor.
+    out_ptr, out_link: CSR of links by predecessor: the links out of activity ``v`` are
+        ``out_link[out_ptr[v]:out_ptr[v + 1]]``, in input order.
+    passes: the links laid out for the CPM passes (:class:`PassLayout`).
+    in_ptr, in_link: the same as ``out_*`` by successor (built on first use).
+
+    The layout copies link types and lags: vary a network through :meth:`with_lags` and
+    :meth:`extended`, not ``dataclasses.replace``.
     """
 
     ids: np.ndarray
@@ -68,10 +73,9 @@ class Network:
     lag: np.ndarray
     order: np.ndarray
     rank: np.ndarray
-    in_ptr: np.ndarray
-    in_link: np.ndarray
     out_ptr: np.ndarray
     out_link: np.ndarray
+    passes: "PassLayout"
 
     @property
     def size(self) -> int:
@@ -87,26 +91,25 @@ class Network:
         return pd.Index(self.ids)
 
     @cached_property
-    def passes(self) -> "PassLayout":
-        """The links laid out for the CPM passes (built once per network)."""
-        from ._kernels import pass_layout
+    def _in_rows(self) -> tuple[np.ndarray, np.ndarray]:
+        from ._kernels import compressed_rows
 
-        n, m = self.size, self.link_count
-        # 32-bit numbers where they fit (always, in practice): half the memory to read
-        small = max(n, m) < 2**31 and (not m or -(2**31) < int(self.lag.min()) and int(self.lag.max()) < 2**31)
-        number = np.int32 if small else np.int64
-        arrays = dict(
-            f_ptr=np.empty(n + 1, dtype=np.int64), f_pred=np.empty(m, dtype=number), f_type=np.empty(m, dtype=np.int8),
-            f_lag=np.empty(m, dtype=number), f_link=np.empty(m, dtype=number), b_ptr=np.empty(n + 1, dtype=np.int64),
-            b_succ=np.empty(m, dtype=number), b_type=np.empty(m, dtype=np.int8), b_lag=np.empty(m, dtype=number))
-        pass_layout(self.order, self.rank, self.in_ptr, self.in_link, self.out_ptr, self.out_link, self.pred,
-                    self.succ, self.link_type, self.lag, *arrays.values())
-        return PassLayout(**arrays)
+        return compressed_rows(self.size, self.succ)
+
+    @property
+    def in_ptr(self) -> np.ndarray:
+        return self._in_rows[0]
+
+    @property
+    def in_link(self) -> np.ndarray:
+        return self._in_rows[1]
 
     @cached_property
     def has_predecessor(self) -> np.ndarray:
         """Whether each activity has at least one link into it."""
-        return np.diff(self.in_ptr) > 0
+        has = np.zeros(self.size, dtype=bool)
+        has[self.order] = np.diff(self.passes.f_ptr) > 0
+        return has
 
     def upstream(self, activities, links: np.ndarray | None = None) -> np.ndarray:
         """Boolean mask of the activities from which a chain of links (all links, or those
@@ -128,6 +131,17 @@ class Network:
 
     def successor_count(self) -> np.ndarray:
         return np.bincount(self.pred, minlength=self.size)
+
+    def with_lags(self, lag) -> "Network":
+        """The same network with other lags (one per link, in link order)."""
+        lag = np.ascontiguousarray(lag, dtype=np.int64)
+        layout = self.passes
+        number = _layout_number(self.size, lag)
+        if number != layout.f_lag.dtype:
+            return build_network(self.ids, self.pred, self.succ, self.link_type, lag)
+        passes = dataclasses.replace(layout, f_lag=lag[layout.f_link].astype(number),
+                                     b_lag=lag[layout.b_link].astype(number))
+        return dataclasses.replace(self, lag=lag, passes=passes)
 
     def extended(self, new_ids=(), pred=(), succ=(), link_type=(), lag=(), source="fragnet"):
         """A new network with activities and links added (a fragnet, an added link).
@@ -151,7 +165,7 @@ class Network:
 @dataclass(frozen=True, eq=False)
 class PassLayout:
     """A network's links in the order the CPM passes read them (see
-    :func:`delay._kernels.pass_layout`): activities by topological position ``i`` (activity
+    :func:`delay._kernels.order_and_layout`): activities by topological position ``i`` (activity
     ``order[i]``), the links into each position in ``f_*`` and out of it in ``b_*``."""
 
     f_ptr: np.ndarray
@@ -163,6 +177,7 @@ class PassLayout:
     b_succ: np.ndarray
     b_type: np.ndarray
     b_lag: np.ndarray
+    b_link: np.ndarray
 
     @property
     def forward(self) -> tuple:
@@ -186,6 +201,13 @@ def _loop_problem(ids, pred, succ, source) -> Problem:
     )
 
 
+def _layout_number(n: int, lag: np.ndarray):
+    """32-bit numbers in the pass layout where they fit (always, in practice): less memory
+    for the passes to read."""
+    fits = max(n, lag.size) < 2**31 and (not lag.size or -(2**31) < int(lag.min()) and int(lag.max()) < 2**31)
+    return np.int32 if fits else np.int64
+
+
 def build_network(ids, pred, succ, link_type, lag, source="links.csv") -> Network:
     """A Network from arrays (activity numbers, link type codes, lags).
 
@@ -194,21 +216,29 @@ def build_network(ids, pred, succ, link_type, lag, source="links.csv") -> Networ
     CaseError
         When the links form a loop; the message names every activity in it, in order.
     """
-    from ._kernels import compressed_rows, topological_order
+    from ._kernels import order_and_layout
 
     n = len(ids)
     pred = np.ascontiguousarray(pred, dtype=np.int64)
     succ = np.ascontiguousarray(succ, dtype=np.int64)
-    in_ptr, in_link = compressed_rows(n, succ)
-    out_ptr, out_link = compressed_rows(n, pred)
-    order, placed = topological_order(n, out_ptr, out_link, succ)
+    lag = np.ascontiguousarray(lag, dtype=np.int64)
+    m = pred.size
+    number = _layout_number(n, lag)
+    out_ptr = np.zeros(n + 1, dtype=np.int64)
+    out_link = np.empty(m, dtype=np.int64)
+    order = np.empty(n, dtype=np.int64)
+    rank = np.empty(n, dtype=np.int64)
+    layout = dict(
+        f_ptr=np.empty(n + 1, dtype=np.int64), f_pred=np.empty(m, dtype=number), f_type=np.empty(m, dtype=np.int8),
+        f_lag=np.empty(m, dtype=number), f_link=np.empty(m, dtype=number), b_ptr=np.empty(n + 1, dtype=np.int64),
+        b_succ=np.empty(m, dtype=number), b_type=np.empty(m, dtype=np.int8), b_lag=np.empty(m, dtype=number),
+        b_link=np.empty(m, dtype=number))
+    link_type = np.ascontiguousarray(link_type, dtype=np.int8)
+    placed = order_and_layout(n, pred, succ, link_type, lag, out_ptr, out_link, order, rank, *layout.values())
     if placed < n:
         raise CaseError(_loop_problem(ids, pred, succ, source))
-    rank = np.empty(n, dtype=np.int64)
-    rank[order] = np.arange(n)
-    return Network(ids=ids, pred=pred, succ=succ, link_type=np.asarray(link_type, dtype=np.int8),
-                   lag=np.ascontiguousarray(lag, dtype=np.int64), order=order, rank=rank,
-                   in_ptr=in_ptr, in_link=in_link, out_ptr=out_ptr, out_link=out_link)
+    return Network(ids=ids, pred=pred, succ=succ, link_type=link_type, lag=lag, order=order, rank=rank,
+                   out_ptr=out_ptr, out_link=out_link, passes=PassLayout(**layout))
 
 
 def compile_network(activities: pd.DataFrame, links: pd.DataFrame, source: str = "links.csv",

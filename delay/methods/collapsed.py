@@ -272,20 +272,20 @@ class _AsBuiltModel:
         cross = self.cal[net.pred] != self.cal[net.succ] if m else np.zeros(0, bool)
         if base.settings.lag_calendar == "predecessor" and (driving & cross).any():
             for _ in range(6):
-                check = dataclasses.replace(base, network=dataclasses.replace(net, lag=lag)).run()
+                check = dataclasses.replace(base, network=net.with_lags(lag)).run()
                 residual = check.link_gaps
                 wrong = driving & (residual != 0)
                 if not wrong.any():
                     break
                 lag[wrong] += residual[wrong]
             else:
-                check = dataclasses.replace(base, network=dataclasses.replace(net, lag=lag)).run()
+                check = dataclasses.replace(base, network=net.with_lags(lag)).run()
                 self.unfitted = driving & (check.link_gaps != 0)
         self.fitted_lag = lag
 
         model = dataclasses.replace(
             base,
-            network=dataclasses.replace(net, lag=lag),
+            network=net.with_lags(lag),
             duration=self.actual_duration,
             remaining=np.full(n, np.nan),
             actual_start=np.full(n, NO_DAY, dtype=np.int64),
@@ -363,7 +363,7 @@ class _AsBuiltModel:
             lag[into] = 0
             lag[out_of] -= self.original_lag[out_of]
         model = dataclasses.replace(self.model, duration=duration, start_bound=bound,
-                                    network=dataclasses.replace(net, lag=lag))
+                                    network=net.with_lags(lag))
         return model.run()
 
 
