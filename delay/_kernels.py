@@ -189,7 +189,7 @@ def forward_pass(f_ptr, f_pred, f_type, f_lag, f_link, order, progress_override,
     progress), ``remaining_start`` and ``finish_day`` (the date of the finish) out.
 
     With ``with_floats`` it also writes each link's relative float (successor's work days,
-    by link number; ``2**40`` for a link the pass ignores) and lowers each predecessor's
+    in the forward stream's order; ``2**40`` for a link the pass ignores) and lowers each predecessor's
     ``link_free_float`` (by position) to the least slack over its links (predecessor's work
     days); the link's bound is at hand then, so this costs little more than the pass.
     Returns a status code.
@@ -251,11 +251,11 @@ def forward_pass(f_ptr, f_pred, f_type, f_lag, f_link, order, progress_override,
             continue
         for j in range(first, last):
             if ignored:
-                relative_float[f_link[j]] = far
+                relative_float[j] = far
                 continue
             # target - bound, on the finish for FF and SF: both sides carry the duration
             slack = bound - bounds[j - first]
-            relative_float[f_link[j]] = slack
+            relative_float[j] = slack
             p = f_pred[j]
             t = f_type[j]
             reads_finish = t == 0 or t == 2
@@ -339,16 +339,24 @@ def backward_pass(b_ptr, b_succ, b_type, b_lag, order, progress_override, lag_on
 
 
 @njit(cache=True)
-def mark_upstream(order, in_ptr, in_link, pred, usable, on):  # pragma: no cover - compiled
-    """Marks every activity from which a chain of usable links reaches a marked one."""
-    for i in range(order.size - 1, -1, -1):
-        v = order[i]
-        if not on[v]:
+def mark_upstream(f_ptr, f_pred, f_type, f_link, usable, driving_only, status, relative_float, on):  # pragma: no cover
+    """Marks (``on``, by position) every activity from which a chain of links reaches a
+    marked one: links where ``usable`` (by link number) is true or, with ``driving_only``,
+    driving links a path from the data date can run through (relative float 0, in the
+    forward stream's order; the predecessor not complete, and not reading the actual, past,
+    start of one in progress; ``status`` by position)."""
+    for i in range(f_ptr.size - 2, -1, -1):
+        if not on[i]:
             continue
-        for j in range(in_ptr[v], in_ptr[v + 1]):
-            e = in_link[j]
-            if usable[e]:
-                on[pred[e]] = True
+        for j in range(f_ptr[i], f_ptr[i + 1]):
+            e = f_link[j]
+            p = f_pred[j]
+            if driving_only:
+                if relative_float[j] != 0 or status[p] == 2 or (status[p] == 1 and (f_type[j] == 1 or f_type[j] == 3)):
+                    continue
+            elif not usable[e]:
+                continue
+            on[p] = True
 
 
 @njit(cache=True)

@@ -413,8 +413,6 @@ def _run(model: ScheduleModel, forward_only: bool = False):
         if code == _kernels.OK:
             break
         cals.grow(earlier=code == _kernels.TOO_EARLY)
-    driving_link = relative_float == 0  # an ignored link's relative float is 2**40
-
     return ScheduleResult(
         model=model,
         status=status,
@@ -427,8 +425,7 @@ def _run(model: ScheduleModel, forward_only: bool = False):
         late_finish=late_finish,
         total_float=total_float,
         free_float=free_float,
-        relative_float=relative_float,
-        driving_link=driving_link,
+        stream_float=relative_float,
         completion_day=completion_day,
         finish_day=finish_day,
     )
@@ -454,8 +451,7 @@ class ScheduleResult:
     late_finish: np.ndarray = field(repr=False)
     total_float: np.ndarray = field(repr=False)
     free_float: np.ndarray = field(repr=False)
-    relative_float: np.ndarray = field(repr=False)
-    driving_link: np.ndarray = field(repr=False)
+    stream_float: np.ndarray = field(repr=False)  # relative float by the passes' link order
     completion_day: int = 0
     finish_day: np.ndarray = field(default=None, repr=False)
     near_critical_days: int = NEAR_CRITICAL_DAYS
@@ -481,6 +477,21 @@ class ScheduleResult:
     @property
     def ids(self) -> np.ndarray:
         return self.model.network.ids
+
+    @cached_property
+    def relative_float(self) -> np.ndarray:
+        """Relative float of each link (link order), in work days of the successor's
+        calendar; ``2**40`` for a link the passes ignore (into a complete activity, or into
+        one in progress when progress overrides logic)."""
+        layout = self.model.network.passes
+        found = np.empty(self.stream_float.size, dtype=np.int64)
+        found[layout.f_link] = self.stream_float
+        return found
+
+    @cached_property
+    def driving_link(self) -> np.ndarray:
+        """Whether each link drives its successor (relative float 0)."""
+        return self.relative_float == 0  # an ignored link's relative float is 2**40
 
     @cached_property
     def critical(self) -> np.ndarray:
@@ -622,13 +633,13 @@ class ScheduleResult:
         incomplete = self.status != COMPLETE
         seeds = np.flatnonzero(incomplete & (self.finish_day == self.completion_day))
         on = np.zeros(net.size, dtype=bool)
-        on[seeds] = True
+        on[net.rank[seeds]] = True
         from ._kernels import mark_upstream
 
-        usable = self._traceable_links
-        mark_upstream(net.order, net.in_ptr, net.in_link, net.pred, usable, on)
-        numbers = np.flatnonzero(on)
-        return numbers[np.argsort(net.rank[numbers])]
+        layout = net.passes
+        mark_upstream(layout.f_ptr, layout.f_pred, layout.f_type, layout.f_link, on, True, self.status[net.order],
+                      self.stream_float, on)
+        return net.order[np.flatnonzero(on)]  # by position: in logic order
 
     def driving_path(self) -> list[str]:
         """Every activity on a chain of driving links (relative float 0) from the data date to

@@ -117,10 +117,14 @@ class Network:
         from ._kernels import mark_upstream
 
         on = np.zeros(self.size, dtype=bool)
-        on[np.asarray(activities, dtype=np.int64)] = True
+        on[self.rank[np.asarray(activities, dtype=np.int64)]] = True
         usable = np.ones(self.link_count, dtype=bool) if links is None else np.asarray(links, dtype=bool)
-        mark_upstream(self.order, self.in_ptr, self.in_link, self.pred, usable, on)
-        return on
+        layout = self.passes
+        mark_upstream(layout.f_ptr, layout.f_pred, layout.f_type, layout.f_link, usable, False,
+                      np.empty(0, dtype=np.int8), np.empty(0, dtype=np.int64), on)
+        found = np.zeros(self.size, dtype=bool)
+        found[self.order] = on
+        return found
 
     def index_of(self, ids) -> np.ndarray:
         """Activity numbers of ids; ``-1`` for an unknown id."""
