@@ -15,14 +15,3 @@ def median_time(function, repeat: int) -> float:
         times.append(time.perf_counter() - start)
     return statistics.median(times)
 
-
-def median_time_after(setup, function, repeat: int) -> float:
-    """Median seconds of ``repeat`` calls of ``function(setup())``; ``setup`` is not timed
-    (for example: load a case afresh, then time the first use of it)."""
-    times = []
-    for _ in range(repeat):
-        argument = setup()
-        start = time.perf_counter()
-        function(argument)
-        times.append(time.perf_counter() - start)
-    return statistics.median(times)

@@ -777,8 +777,10 @@ def _compile_snapshot(snap: Snapshot, calendars: CalendarSet) -> dict:
     links = snap.links_table
     given = snap.derived  # codes the case loader found while checking the tables, if any
     source = f"snapshots/{snap.folder}/links.csv" if snap.kind != "asbuilt" else "asbuilt.csv"
-    network = compile_network(activities, links, source=source, link_numbers=snap.link_numbers,
-                              type_codes=given.get("type_codes"))
+    network = given.get("network")  # compiled by the loader's loop check
+    if network is None:
+        network = compile_network(activities, links, source=source, link_numbers=snap.link_numbers,
+                                  type_codes=given.get("type_codes"))
     names, cal = given.get("calendar_codes", (None, None))
     if names == calendars.names:
         cal = np.asarray(cal, dtype=np.int64)

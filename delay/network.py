@@ -27,6 +27,7 @@ __all__ = [
     "PassLayout",
     "compile_network",
     "build_network",
+    "sorted_network",
     "LINK_CODES",
     "reads_finish",
     "bounds_finish",
@@ -220,6 +221,15 @@ def build_network(ids, pred, succ, link_type, lag, source="links.csv") -> Networ
     CaseError
         When the links form a loop; the message names every activity in it, in order.
     """
+    network = sorted_network(ids, pred, succ, link_type, lag)
+    if network is None:
+        raise CaseError(_loop_problem(ids, pred, succ, source))
+    return network
+
+
+def sorted_network(ids, pred, succ, link_type, lag) -> Network | None:
+    """:func:`build_network`, or ``None`` when the links form a loop (the case loader's
+    loop check: it names the loop itself, at the row of the file)."""
     from ._kernels import order_and_layout
 
     n = len(ids)
@@ -240,7 +250,7 @@ def build_network(ids, pred, succ, link_type, lag, source="links.csv") -> Networ
     link_type = np.ascontiguousarray(link_type, dtype=np.int8)
     placed = order_and_layout(n, pred, succ, link_type, lag, out_ptr, out_link, order, rank, *layout.values())
     if placed < n:
-        raise CaseError(_loop_problem(ids, pred, succ, source))
+        return None
     return Network(ids=ids, pred=pred, succ=succ, link_type=link_type, lag=lag, order=order, rank=rank,
                    out_ptr=out_ptr, out_link=out_link, passes=PassLayout(**layout))
 

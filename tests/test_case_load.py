@@ -301,8 +301,8 @@ def test_codes_found_while_loading_equal_the_tables_text(tmp_path):
 
     calendars = calendars_of(case)
     for snapshot in case.snapshots:
-        assert {"calendar_codes", "kind_codes", "constraint_codes", "type_codes", "link_numbers"} <= set(
-            snapshot.derived)
+        assert {"calendar_codes", "kind_codes", "constraint_codes", "type_codes", "link_numbers",
+                "network"} <= set(snapshot.derived)
         bare = dataclasses.replace(snapshot, derived={})
         _same_arrays(_engine_arrays(snapshot, calendars), _engine_arrays(bare, calendars))
     assert case.baseline.derived["type_codes"].tolist() == [0, 2]  # FS, FF by LINK_TYPES

@@ -24,6 +24,7 @@ from delay.case._problems import Problems, RawTable
 from delay.case._settings import parse_date_value, parse_settings
 from delay.case._source import CaseSource, SnapshotSource, open_source
 from delay.graph import find_loop
+from delay.network import sorted_network
 from delay.model import (
     ACTIVITY_KINDS,
     COLUMNS,
@@ -492,7 +493,8 @@ class _Loader:
     def check_links(self, table: RawTable, ids: pd.Series | None, derived: dict | None = None) -> pd.DataFrame:
         """Type and check one snapshot's links; codes found go into ``derived``
         (``type_codes`` by LINK_TYPES and, when every link is sound, ``link_numbers``: the
-        activity rows of each link's ends)."""
+        activity rows of each link's ends, and, when there is no loop, ``network``: the
+        compiled :class:`delay.network.Network` the loop check sorted)."""
         p = self.problems
         frame = table.frame
         pred, succ = frame["pred"], frame["succ"]
@@ -520,12 +522,22 @@ class _Loader:
         columns.duplicates(p, table, ["pred", "succ"], "pred",
                            lambda i: f"the link {pred.iat[i]}>{succ.iat[i]}",
                            "keep one link from a predecessor to a successor", skip=no_pred | no_succ)
-        if ids is not None and not bad.all():
+        sound = ids is not None and not bad.any() and len(nodes) == len(ids) and bool((type_codes >= 0).all())
+        network = None
+        if sound:
+            # The loop check is the engine's topological sort; the network it compiles is
+            # kept for the engine, as the link numbers are.
+            pred_at, succ_at = pred_at.astype(np.int64), succ_at.astype(np.int64)
+            network = sorted_network(ids.to_numpy(dtype=object), pred_at, succ_at, type_codes,
+                                     lag.to_numpy(dtype=np.int64))
+        if ids is not None and not bad.all() and network is None:
             self.check_loop(table, nodes, pred_at[~bad], succ_at[~bad], ~bad)
         if derived is not None:
             derived["type_codes"] = type_codes
-            if ids is not None and not bad.any() and len(nodes) == len(ids):
-                derived["link_numbers"] = (pred_at.astype(np.int64), succ_at.astype(np.int64))
+            if sound:
+                derived["link_numbers"] = (pred_at, succ_at)
+            if network is not None:
+                derived["network"] = network
         return columns.assemble(table, {"type": kind, "lag": lag})
 
     def check_loop(self, table: RawTable, nodes: pd.Index, pred: np.ndarray, succ: np.ndarray,
