@@ -28,7 +28,10 @@ _HIGH = np.iinfo(np.int64).max
 # of the ``before`` tables, table[2] their first day; calendar c's row at 3 + 4c holds its
 # anchor, where its ``before`` table and its work days start, and how many work days it has.
 # One array, not several: numba counts references on every array handed to a helper, and
-# on the cross-calendar links that cost more than the look-ups themselves.
+# on the cross-calendar links that cost more than the look-ups themselves. The passes test
+# ``calendar[p] != c`` themselves before calling a helper: on one calendar a link needs no
+# look-up, and evaluating the helper's arguments (the predecessor's point kind, read out of
+# order) on every link was measured 5-8 % slower.
 
 
 @njit(cache=True, inline="always")
