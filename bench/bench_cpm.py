@@ -208,7 +208,7 @@ def main() -> None:
         print(f"{name}: {peer * 1000:9.1f} ms   ratio peer/ours = {ratio:6.1f}x after loading, "
               f"{peer / compile_time:5.1f}x network compiled anew, {peer / ours_time:5.1f}x arrays kept, "
               f"{peer / tables_time:5.1f}x from bare tables")
-    print(f"peer (b) / ours after loading, each repetition   : "
+    print("peer (b) / ours after loading, each repetition   : "
           + " ".join(f"{r:.1f}" for r in ratio_b) + f"  (lowest {min(ratio_b):.1f}x)")
     # the what-if's peer: a full schedule from the case tables (bare: everything read from
     # the tables' text); beside it, the first schedule after loading
