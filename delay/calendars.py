@@ -65,6 +65,19 @@ def parse_workdays(text: str) -> tuple[bool, ...]:
     return tuple(mask)
 
 
+
+def _widened(first: int, last: int, low: int, high: int) -> tuple[int, int]:
+    """The horizon ``[first, last]`` widened until it covers ``[low, high]``, doubling the
+    step each time (so growing on demand costs a constant number of rebuilds per doubling)."""
+    span = last - first + 1
+    while low < first:
+        first -= span
+        span *= 2
+    while high > last:
+        last += span
+        span *= 2
+    return first, last
+
 class WorkCalendar:
     """One work calendar over a horizon that grows on demand.
 
@@ -149,15 +162,7 @@ class WorkCalendar:
     def _grow_days(self, low: int, high: int) -> None:
         if low >= self.first_day and high <= self.last_day:
             return
-        span = self.last_day - self.first_day + 1
-        first, last = self.first_day, self.last_day
-        while low < first:
-            first -= span
-            span *= 2
-        while high > last:
-            last += span
-            span *= 2
-        self._build(first, last)
+        self._build(*_widened(self.first_day, self.last_day, low, high))
 
     def _grow_indices(self, low: int, high: int) -> None:
         while True:
@@ -269,15 +274,7 @@ class CalendarSet:
         self._table = None
 
     def _grow(self, low_day: int, high_day: int) -> None:
-        first, last = self.first_day, self.last_day
-        span = last - first + 1
-        while low_day < first:
-            first -= span
-            span *= 2
-        while high_day > last:
-            last += span
-            span *= 2
-        self._cover(first, last)
+        self._cover(*_widened(self.first_day, self.last_day, low_day, high_day))
 
     def grow(self, earlier: bool) -> None:
         """Widen the horizon fourfold on one side (the compiled passes ask for it when a
