@@ -5,8 +5,10 @@ Nothing here imports ifcopenshell.
 
 from __future__ import annotations
 
+import csv
 import datetime as dt
 import hashlib
+import io
 import re
 import shutil
 import tempfile
@@ -19,6 +21,7 @@ import pandas as pd
 from ..errors import CaseError, Problem
 
 __all__ = [
+    "csv_bytes",
     "FINDING_COLUMNS",
     "Findings",
     "IsoDuration",
@@ -211,3 +214,12 @@ def validate_in_copy(case_root: Path, files: Mapping[str, bytes], snapshots: Ite
             target.parent.mkdir(parents=True, exist_ok=True)
             target.write_bytes(content)
         return load_case(copy)
+
+
+def csv_bytes(frame: pd.DataFrame) -> bytes:
+    """A table as the case's CSV files hold it: a header row, every cell as text, UTF-8."""
+    buffer = io.StringIO()
+    writer = csv.writer(buffer, lineterminator="\n")
+    writer.writerow(list(frame.columns))
+    writer.writerows(frame.astype(str).itertuples(index=False, name=None))
+    return buffer.getvalue().encode("utf-8")

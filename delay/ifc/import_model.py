@@ -50,9 +50,7 @@ IfcRelAssignsToProcess, IfcSIUnit and IfcConversionBasedUnit (length units).
 
 from __future__ import annotations
 
-import csv
 import datetime as dt
-import io
 import json
 import os
 from collections import defaultdict
@@ -65,7 +63,7 @@ import pandas as pd
 
 from ..model import COLUMNS
 from ..output import write_bytes
-from ._common import Findings, case_folder, open_model, sha256_of, validate_in_copy
+from ._common import Findings, case_folder, csv_bytes, open_model, sha256_of, validate_in_copy
 
 __all__ = [
     "ModelRead",
@@ -547,14 +545,6 @@ def merge_elements(existing: pd.DataFrame | None, imported: pd.DataFrame) -> tup
     return merged, int(replaced_rows.sum()), int(added.sum())
 
 
-def _csv_bytes(frame: pd.DataFrame) -> bytes:
-    buffer = io.StringIO()
-    writer = csv.writer(buffer, lineterminator="\n")
-    writer.writerow(list(frame.columns))
-    writer.writerows(frame.astype(str).itertuples(index=False, name=None))
-    return buffer.getvalue().encode("utf-8")
-
-
 def import_model(
     model_path: str | Path,
     case_path: str | Path,
@@ -599,9 +589,9 @@ def import_model(
                       progress=progress, on_total=on_total)
     existing = _read_existing(root / "elements.csv")
     merged, replaced, added = merge_elements(existing, read.elements)
-    elements_bytes = _csv_bytes(merged)
+    elements_bytes = csv_bytes(merged)
     validate_in_copy(root, {"elements.csv": elements_bytes})
-    findings_bytes = _csv_bytes(read.findings)
+    findings_bytes = csv_bytes(read.findings)
     try:
         shown = os.path.relpath(model_path.resolve(), root.resolve())
     except ValueError:  # another drive

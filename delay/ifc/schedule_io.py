@@ -45,7 +45,6 @@ IfcRecurrencePattern. ISO 8601-1:2019 for durations (``P5D``) and dates.
 from __future__ import annotations
 
 import datetime as dt
-import io
 import json
 import re
 from collections import defaultdict
@@ -63,6 +62,7 @@ from ._common import (
     Findings,
     IsoDuration,
     case_folder,
+    csv_bytes,
     open_model,
     parse_date,
     parse_duration,
@@ -712,16 +712,6 @@ def read_work_schedule(path: str | Path, *, work_schedule: str | None = None) ->
 
 
 # -- into the case -------------------------------------------------------------------------------------
-def _csv_bytes(frame: pd.DataFrame) -> bytes:
-    import csv
-
-    buffer = io.StringIO()
-    writer = csv.writer(buffer, lineterminator="\n")
-    writer.writerow(list(frame.columns))
-    writer.writerows(frame.astype(str).itertuples(index=False, name=None))
-    return buffer.getvalue().encode("utf-8")
-
-
 def _case_calendar(case, name: str) -> CalendarRead | None:
     table = case.calendars
     found = table[table["calendar"] == name]
@@ -777,7 +767,7 @@ def _append_rows(path: Path, columns: list[str], rows: list[dict]) -> bytes:
         if column not in existing.columns:
             existing[column] = ""
     added = pd.DataFrame(rows, columns=columns).reindex(columns=list(existing.columns), fill_value="")
-    return _csv_bytes(pd.concat([existing, added], ignore_index=True).fillna(""))
+    return csv_bytes(pd.concat([existing, added], ignore_index=True).fillna(""))
 
 
 def _toml_text(value: str) -> str:
@@ -916,8 +906,8 @@ def import_work_schedule(
     base = f"snapshots/{folder}"
     snapshot_files = {
         "snapshot.toml": snapshot_toml,
-        "activities.csv": _csv_bytes(activities),
-        "links.csv": _csv_bytes(read.links),
+        "activities.csv": csv_bytes(activities),
+        "links.csv": csv_bytes(read.links),
     }
     copies = ["baseline"] if folder != "baseline" else []
     checked = validate_in_copy(root, {**files, **{f"{base}/{k}": v for k, v in snapshot_files.items()}}, copies)
@@ -934,7 +924,7 @@ def import_work_schedule(
         if len(differ) > 50:
             findings.add("dates_differ", f"{len(differ) - 50} more activities whose dates differ")
     findings_frame = findings.frame()
-    snapshot_files[FINDINGS_FILE] = _csv_bytes(findings_frame)
+    snapshot_files[FINDINGS_FILE] = csv_bytes(findings_frame)
     written = [write_bytes(root / name, content) for name, content in files.items()]
     with replace_directory(target) as building:
         for name, content in snapshot_files.items():
