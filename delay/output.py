@@ -11,19 +11,24 @@ import os
 import shutil
 import tempfile
 from pathlib import Path
-from typing import Iterator
+from typing import Callable, Iterator
 
-__all__ = ["write_text", "write_bytes", "replace_directory"]
+import pandas as pd
+
+__all__ = ["write_text", "write_bytes", "write_through", "replace_directory", "json_date", "json_int"]
 
 
-def write_bytes(path: str | Path, data: bytes) -> Path:
-    """Write ``data`` to ``path`` through a temporary file in the same folder."""
+def write_through(path: str | Path, write: Callable[[str], object], suffix: str = ".part") -> Path:
+    """Have ``write(temporary)`` write a file under a temporary name in ``path``'s folder,
+    then move it to ``path``; on an exception the temporary file is removed and ``path`` is
+    left as it was. ``suffix`` ends the temporary name (a writer may choose its format by
+    it)."""
     path = Path(path)
     path.parent.mkdir(parents=True, exist_ok=True)
-    handle, temporary = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".part", dir=path.parent)
+    handle, temporary = tempfile.mkstemp(prefix=f".{path.name}.", suffix=suffix, dir=path.parent)
+    os.close(handle)
     try:
-        with os.fdopen(handle, "wb") as stream:
-            stream.write(data)
+        write(temporary)
         os.chmod(temporary, 0o666 & ~_umask())  # mkstemp makes 0600; give the usual mode
         os.replace(temporary, path)
     except BaseException:
@@ -31,6 +36,11 @@ def write_bytes(path: str | Path, data: bytes) -> Path:
             os.unlink(temporary)
         raise
     return path
+
+
+def write_bytes(path: str | Path, data: bytes) -> Path:
+    """Write ``data`` to ``path`` through a temporary file in the same folder."""
+    return write_through(path, lambda temporary: Path(temporary).write_bytes(data))
 
 
 def _umask() -> int:
@@ -68,3 +78,13 @@ def replace_directory(target: str | Path) -> Iterator[Path]:
     os.replace(building, target)
     if old is not None:
         shutil.rmtree(old, ignore_errors=True)
+
+
+def json_date(value) -> str | None:
+    """A date cell of a result table for JSON: ISO ``YYYY-MM-DD``, ``None`` when blank."""
+    return None if pd.isna(value) else pd.Timestamp(value).date().isoformat()
+
+
+def json_int(value) -> int | None:
+    """A whole-number cell of a result table for JSON, ``None`` when blank."""
+    return None if pd.isna(value) else int(value)

@@ -46,10 +46,8 @@ IfcRelAssignsToControl, IfcRelAssignsToProduct, IfcBuildingElementProxy.
 
 from __future__ import annotations
 
-import contextlib
 import datetime as dt
 import json
-import os
 import re
 import shutil
 import tempfile
@@ -63,6 +61,7 @@ import pandas as pd
 from ..cpm import FINISH_MILESTONE
 from ..errors import CaseError, Problem
 from ..model import Case, Snapshot
+from ..output import json_date, write_through
 from ._common import (
     ELEMENT_PSET,
     SCHEDULING_PSET,
@@ -459,7 +458,7 @@ def _write_schedule(writer: _Writer, case: Case, snap: Snapshot, result, finding
                              Status=str(columns["status"][k]))
         tasks[identification] = task
         calendar_of.setdefault(str(row.calendar), []).append(task)
-        constraint_date = None if pd.isna(row.constraint_date) else pd.Timestamp(row.constraint_date).date().isoformat()
+        constraint_date = json_date(row.constraint_date)
         writer.pset(SCHEDULING_PSET, {
             "Kind": ("IfcLabel", str(row.kind)),
             "Constraint": ("IfcLabel", str(row.constraint or "")),
@@ -488,18 +487,8 @@ def _write_schedule(writer: _Writer, case: Case, snap: Snapshot, result, finding
 
 
 def _write_file(model, path: Path) -> Path:
-    path = Path(path)
-    path.parent.mkdir(parents=True, exist_ok=True)
-    handle, temporary = tempfile.mkstemp(prefix=f".{path.stem}.", suffix=".part.ifc", dir=path.parent)
-    os.close(handle)
-    try:
-        model.write(temporary)
-        os.replace(temporary, path)
-    except BaseException:
-        with contextlib.suppress(FileNotFoundError):
-            os.unlink(temporary)
-        raise
-    return path
+    # the writer takes the format from the name's ending, hence ".part.ifc"
+    return write_through(path, model.write, suffix=".part.ifc")
 
 
 def export_schedule(
