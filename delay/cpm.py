@@ -46,6 +46,7 @@ from .calendars import CalendarSet, build_calendars, to_days
 from .errors import CaseError, Problem
 from .model import ACTIVITY_KINDS, CONSTRAINTS, Case, ScheduleSettings, Snapshot
 from .network import LINK_CODES, Network, compile_network
+from .output import json_date, json_int
 
 __all__ = [
     "schedule",
@@ -684,12 +685,12 @@ class ScheduleResult:
             rows.append(
                 {
                     "id": record.id,
-                    "early_start": _iso(record.early_start),
-                    "early_finish": _iso(record.early_finish),
-                    "late_start": _iso(record.late_start),
-                    "late_finish": _iso(record.late_finish),
-                    "total_float": None if pd.isna(record.total_float) else int(record.total_float),
-                    "free_float": None if pd.isna(record.free_float) else int(record.free_float),
+                    "early_start": json_date(record.early_start),
+                    "early_finish": json_date(record.early_finish),
+                    "late_start": json_date(record.late_start),
+                    "late_finish": json_date(record.late_finish),
+                    "total_float": json_int(record.total_float),
+                    "free_float": json_int(record.free_float),
                     "critical": bool(record.critical),
                 }
             )
@@ -713,10 +714,6 @@ def _to_datetime(days: np.ndarray) -> np.ndarray:
     values = np.asarray(days, dtype=np.int64).astype("datetime64[D]")
     values[np.asarray(days) == NO_DAY] = np.datetime64("NaT")
     return values.astype("datetime64[s]")
-
-
-def _iso(value) -> str | None:
-    return None if pd.isna(value) else pd.Timestamp(value).date().isoformat()
 
 
 # -- from the case ----------------------------------------------------------------------------

@@ -45,6 +45,7 @@ import pandas as pd
 from ..cpm import NO_DAY, calendars_of, prepare
 from ..errors import CaseError, Problem, ReconciliationError
 from ..model import Case
+from ..output import json_date, json_int
 from ..tracing import driving_predecessors
 
 __all__ = ["compare", "AsBuiltResult"]
@@ -66,20 +67,14 @@ class AsBuiltResult:
         return (self.actual_completion - self.planned_completion).days
 
     def to_json(self) -> dict:
-        def iso(value):
-            return None if pd.isna(value) else pd.Timestamp(value).date().isoformat()
-
-        def number(value):
-            return None if pd.isna(value) else int(value)
-
         return {
             "planned_completion": self.planned_completion.isoformat(),
             "actual_completion": self.actual_completion.isoformat(),
             "completion_variance_days": self.completion_variance_days,
             "critical_path": [
-                {"activity": r.activity, "actual_start": iso(r.actual_start), "actual_finish": iso(r.actual_finish),
-                 "planned_finish": iso(r.planned_finish), "driving_predecessor": r.driving_predecessor or None,
-                 "gap_work_days": number(r.gap_work_days), "accrued_days": int(r.accrued_days), "period": r.period}
+                {"activity": r.activity, "actual_start": json_date(r.actual_start), "actual_finish": json_date(r.actual_finish),
+                 "planned_finish": json_date(r.planned_finish), "driving_predecessor": r.driving_predecessor or None,
+                 "gap_work_days": json_int(r.gap_work_days), "accrued_days": int(r.accrued_days), "period": r.period}
                 for r in self.critical_path.itertuples(index=False)
             ],
             "periods": [
@@ -87,11 +82,11 @@ class AsBuiltResult:
                 for r in self.periods.itertuples(index=False)
             ],
             "activities": [
-                {"activity": r.id, "planned_start": iso(r.planned_start), "planned_finish": iso(r.planned_finish),
-                 "actual_start": iso(r.actual_start), "actual_finish": iso(r.actual_finish),
-                 "start_variance_days": number(r.start_variance_days),
-                 "finish_variance_days": number(r.finish_variance_days),
-                 "duration_variance_work_days": number(r.duration_variance_work_days)}
+                {"activity": r.id, "planned_start": json_date(r.planned_start), "planned_finish": json_date(r.planned_finish),
+                 "actual_start": json_date(r.actual_start), "actual_finish": json_date(r.actual_finish),
+                 "start_variance_days": json_int(r.start_variance_days),
+                 "finish_variance_days": json_int(r.finish_variance_days),
+                 "duration_variance_work_days": json_int(r.duration_variance_work_days)}
                 for r in self.activities.itertuples(index=False)
             ],
         }

@@ -93,6 +93,7 @@ from ..causation import event_activities
 from ..cpm import FINISH_MILESTONE, NO_DAY, ScheduleResult, calendars_of, prepare
 from ..errors import CaseError, Problem
 from ..model import PARTIES, Case
+from ..output import json_date, json_int
 
 __all__ = ["analyse", "CollapsedResult", "BUT_FOR_NOTE", "ALL_PARTIES"]
 
@@ -163,32 +164,26 @@ class CollapsedResult:
         return pd.Timestamp(rows["but_for_completion"].iloc[0]).date()
 
     def to_json(self) -> dict:
-        def iso(value):
-            return None if pd.isna(value) else pd.Timestamp(value).date().isoformat()
-
-        def number(value):
-            return None if pd.isna(value) else int(value)
-
         return {
             "reproduced": bool(self.reproduced),
             "actual_completion": self.actual_completion.isoformat(),
             "modelled_completion": self.modelled_completion.isoformat(),
             "mismatches": [
-                {"activity": r.activity, "actual_start": iso(r.actual_start), "actual_finish": iso(r.actual_finish),
-                 "modelled_start": iso(r.modelled_start), "modelled_finish": iso(r.modelled_finish),
+                {"activity": r.activity, "actual_start": json_date(r.actual_start), "actual_finish": json_date(r.actual_finish),
+                 "modelled_start": json_date(r.modelled_start), "modelled_finish": json_date(r.modelled_finish),
                  "reason": r.reason}
                 for r in self.mismatches.itertuples(index=False)
             ],
             "by_party": [
-                {"party": r.party, "but_for_completion": iso(r.but_for_completion),
-                 "days_earlier": number(r.days_earlier), "work_days_earlier": number(r.work_days_earlier),
+                {"party": r.party, "but_for_completion": json_date(r.but_for_completion),
+                 "days_earlier": json_int(r.days_earlier), "work_days_earlier": json_int(r.work_days_earlier),
                  "events": list(r.events), "not_scored": list(r.not_scored)}
                 for r in self.by_party.itertuples(index=False)
             ],
             "by_event": [
                 {"event": r.event, "title": r.title, "party": r.party, "impact": r.impact,
-                 "but_for_completion": iso(r.but_for_completion), "days_earlier": number(r.days_earlier),
-                 "work_days_earlier": number(r.work_days_earlier), "found_in_as_built": bool(r.found_in_as_built),
+                 "but_for_completion": json_date(r.but_for_completion), "days_earlier": json_int(r.days_earlier),
+                 "work_days_earlier": json_int(r.work_days_earlier), "found_in_as_built": bool(r.found_in_as_built),
                  "removed": r.removed, "note": r.note}
                 for r in self.by_event.itertuples(index=False)
             ],
