@@ -124,6 +124,18 @@ def set_slider(page, frame: int) -> None:
     page.wait_for_timeout(150)
 
 
+def play_then_pause(page) -> None:
+    """From the first week, press play, wait until the slider has moved on, press pause;
+    the button must read "Play" again."""
+    set_slider(page, 0)
+    page.click('.element-timeline [data-role="play"]')
+    # software WebGL (SwiftShader) takes about a second to draw a week of the demo model
+    page.wait_for_function("() => +document.querySelector('.element-timeline [data-role=\"slider\"]').value >= 1",
+                           timeout=30_000, polling=100)
+    page.click('.element-timeline [data-role="play"]')
+    assert page.inner_text('.element-timeline [data-role="play"]') == "Play"
+
+
 def state_mismatches(page, rows, checks, drawn) -> list[str]:
     """For each ``(element id, frame) -> (planned state, built state)`` in ``checks``, what
     the page's 2D view (and, for elements in ``drawn``, its 3D view) shows when it differs.

@@ -24,7 +24,7 @@ from types import SimpleNamespace
 import pytest
 
 import browser as browser_support
-from browser import (Page, chromium, pixel_share, require_browser, save_screenshot, set_slider,
+from browser import (Page, chromium, pixel_share, play_then_pause, require_browser, save_screenshot, set_slider,
                      state_mismatches)
 from delay.case import load_case
 from delay.cpm import schedule
@@ -201,13 +201,7 @@ def test_one_slider_step_per_week(opened):
 
 def test_play_advances_the_slider_and_pause_stops_it(opened):
     page = opened.page
-    set_slider(page, 0)
-    page.click('.element-timeline [data-role="play"]')
-    # software WebGL (SwiftShader) takes about a second to draw a week of the demo model
-    page.wait_for_function("() => +document.querySelector('.element-timeline [data-role=\"slider\"]').value >= 1",
-                           timeout=30_000, polling=100)
-    page.click('.element-timeline [data-role="play"]')
-    assert page.inner_text('.element-timeline [data-role="play"]') == "Play"
+    play_then_pause(page)
     # a step already being drawn when pause was pressed may still land: let it settle
     # (software WebGL on a loaded machine takes a few seconds for one week of the demo)
     page.wait_for_timeout(4000)

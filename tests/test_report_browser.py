@@ -15,7 +15,7 @@ from types import SimpleNamespace
 
 import pytest
 
-from browser import Page, chromium, require_browser, save_screenshot, set_slider, state_mismatches
+from browser import Page, chromium, play_then_pause, require_browser, save_screenshot, set_slider, state_mismatches
 from reports.builder import SECTIONS
 from reports.writer import demo_report
 from test_browser_timeline import _computed_expectations, _demo_or_synthetic, _drawn_positions
@@ -88,12 +88,7 @@ def test_the_timeline_has_one_frame_per_week_and_both_views(demo):
 
 def test_the_play_button_advances_the_slider(demo):
     page = demo.page
-    set_slider(page, 0)
-    page.click('.element-timeline [data-role="play"]')
-    page.wait_for_function("() => +document.querySelector('.element-timeline [data-role=\"slider\"]').value >= 1",
-                           timeout=30_000, polling=100)
-    page.click('.element-timeline [data-role="play"]')
-    assert page.inner_text('.element-timeline [data-role="play"]') == "Play"
+    play_then_pause(page)
     assert page.eval_on_selector('.element-timeline [data-role="slider"]', "s => +s.value") >= 1
     _no_errors(demo)
 
