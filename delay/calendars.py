@@ -23,7 +23,7 @@ a date is its day number since 1970-01-01 (``int64``).
 
 from __future__ import annotations
 
-from typing import Iterable, Mapping
+from typing import Iterable, Mapping, Sequence
 
 import numpy as np
 
@@ -242,12 +242,16 @@ class CalendarSet:
     flat: calendar ``c``'s entries follow calendar ``c - 1``'s.
     """
 
-    def __init__(self, calendars: Mapping[str, WorkCalendar]):
+    def __init__(self, calendars: Mapping[str, WorkCalendar], held: Mapping[int, tuple[int, tuple[int, ...]]] | None = None):
         self.names = tuple(calendars)
         self.calendars = tuple(calendars[n] for n in self.names)
         self.number = {name: i for i, name in enumerate(self.names)}
         if not self.calendars:
             raise ValueError("a calendar set needs at least one calendar")
+        #: Calendars derived by holding work (see :meth:`with_held_days`): number to
+        #: ``(base calendar number, held day numbers)``.
+        self.held = dict(held or {})
+        self._derived: dict[tuple, "CalendarSet"] = {}
         first = min(c.first_day for c in self.calendars)
         last = max(c.last_day for c in self.calendars)
         self._cover(first, last)
@@ -303,6 +307,69 @@ class CalendarSet:
             self._table.flags.writeable = False
         return self._table
 
+    def base_of(self, number: int) -> tuple[int, tuple[int, ...]]:
+        """``(base calendar number, held day numbers)`` of calendar ``number``: the calendar
+        itself and no held days unless it was derived by :meth:`with_held_days`."""
+        return self.held.get(int(number), (int(number), ()))
+
+    def with_held_days(self, requests: Sequence[tuple[int, Iterable[int]]]) -> tuple["CalendarSet", list[int]]:
+        """A set with a derived calendar for each request: calendar ``c`` less the held days.
+
+        A hold stops an activity's work for a period whatever its calendar says (a
+        suspension, a stop by a third party): its work days in that period become
+        non-working for that activity alone. Each request names a calendar of this set and
+        the day numbers to hold; a request on a calendar that is itself derived holds its
+        base calendar's days together with the days held already. Indices of the derived
+        calendar count from the same anchor as its base.
+
+        Parameters
+        ----------
+        requests:
+            ``(calendar number, day numbers to take out of it)`` pairs, one per activity
+            held.
+
+        Returns
+        -------
+        (CalendarSet, list of int)
+            The set (this one when nothing new is held; sets are cached, so the same
+            requests give the same set) and, per request, the number of the calendar to use
+            instead. Every calendar of this set keeps its number in the new one.
+
+        Examples
+        --------
+        >>> week = WorkCalendar.from_weekdays("5d", anchor="2025-01-06")
+        >>> held, numbers = CalendarSet({"5d": week}).with_held_days(
+        ...     [(0, to_days(["2025-01-08", "2025-01-09"]))])
+        >>> str(held.calendars[numbers[0]].date_of(2)[()])  # the third work day from Monday
+        '2025-01-10'
+        """
+        specs = []
+        for number, days in requests:
+            base, before = self.base_of(number)
+            specs.append((base, tuple(sorted(set(before) | {int(d) for d in days}))))
+        wanted = sorted({spec for spec in specs if spec[1]} - {(b, d) for b, d in self.held.values()})
+        if not wanted:
+            known = {value: number for number, value in self.held.items()}
+            return self, [known.get(spec, spec[0]) if spec[1] else spec[0] for spec in specs]
+        key = tuple(wanted)
+        found = self._derived.get(key)
+        if found is None:
+            calendars = dict(zip(self.names, self.calendars))
+            held = dict(self.held)
+            for base, days in wanted:
+                calendar = self.calendars[base]
+                name = f"{calendar.name} held {_ranges(days)}"
+                held_days = np.asarray(days, dtype=np.int64)
+                calendars[name] = WorkCalendar(
+                    name, calendar.weekmask, holidays=np.union1d(calendar.holidays, held_days),
+                    extra_workdays=np.setdiff1d(calendar.extra_workdays, held_days), anchor=calendar.anchor,
+                    start=min(calendar.first_day, int(held_days.min())),
+                    end=max(calendar.last_day, int(held_days.max())))
+                held[len(calendars) - 1] = (base, days)
+            found = self._derived[key] = CalendarSet(calendars, held)
+        known = {value: number for number, value in found.held.items()}
+        return found, [known.get(spec, spec[0]) if spec[1] else spec[0] for spec in specs]
+
     def start_index_days(self, which, days) -> np.ndarray:
         """Per element: index of the first work day on or after the day, on calendar ``which``."""
         days = np.asarray(days, dtype=np.int64)
@@ -333,6 +400,19 @@ class CalendarSet:
         else:
             raise ValueError("a work-day index lies beyond every calendar's work days")
         return self._work_days[self._work_offset[which] + position]
+
+
+def _ranges(days: tuple[int, ...]) -> str:
+    """Held day numbers in words: ``2025-01-08..2025-01-09, 2025-02-03``."""
+    parts, start = [], None
+    for position, day in enumerate(days):
+        if start is None:
+            start = day
+        if position + 1 == len(days) or days[position + 1] != day + 1:
+            first, last = (str(np.datetime64(int(d), "D")) for d in (start, day))
+            parts.append(first if start == day else f"{first}..{last}")
+            start = None
+    return ", ".join(parts)
 
 
 def build_calendars(case, anchor=None) -> dict[str, WorkCalendar]:

@@ -7,18 +7,14 @@ into a *causation table*: one row per charge (windows), per event (impacted as-p
 time impact analysis) or per party (collapsed as-built), with the days of delay to
 completion it explains, what it was concurrent with and how its days are classified.
 
-Matching charges to events (the project's rules, stated once here)
--------------------------------------------------------------------
-- A charge on an activity matches every event of the register that names the activity
-  (its ``activities`` column, or as a programme activity its fragnet ties into) and that
-  starts on or before the last day of the period charged. A window's last day is the day
-  before the data date of the snapshot that ends it (the data date is the first day not
-  yet reported), so an event must start before that data date.
-- Matching events of one party give that party. Events of several parties matching one
-  charge make it concurrent between them.
-- A charge that no event explains is "unexplained" and, by default, contractor risk (the
-  contractor carries the risk of its own programme unless an event shifts it - common
-  practice under most standard forms; the contract governs).
+Matching charges to events
+--------------------------
+The rules live in :mod:`delay.events` (the methods apply them; this module only consumes
+their results): an event matches a charge when it names the activity and its period overlaps
+the charged period; with no match the activity's ``risk`` column decides, else
+``[analysis] unexplained_risk`` (default contractor: the contractor carries the risk of its
+own programme unless an event shifts it - common practice under most standard forms; the
+contract governs).
 
 Classifying a day of critical delay
 -----------------------------------
@@ -67,39 +63,33 @@ float first and a later one is charged only the delay left when the float is gon
 How each method's result becomes causation rows
 -----------------------------------------------
 Windows (:mod:`delay.methods.windows`):
-  one row per *counted* progress charge with days other than zero, and one per revision
-  charge with days other than zero. A progress charge carries its matched events and their
-  parties (none: unexplained, contractor risk). A counted charge in a concurrency group
-  whose other (parallel, not counted) members carry charges of the same sign is concurrent
-  with them: their parties (unexplained: contractor) join its causes. For ``apportion`` its
-  own parties weigh its days (shared equally when several), and each parallel party weighs
-  the charges of its parallel members, scaled by this charge's part of the group's counted
-  charges. A revision charge's causes are the parties of the events naming its activities
-  (both ends of a changed link) that started by the window's last day, else contractor
-  (unexplained); several parties share it equally under ``apportion``. A gain (negative
-  charge) is classified like a delay and reduces the class it falls in.
+  one row per *counted* progress charge and per revision charge that moves completion
+  (calendar days from the method's work-day ledger). A charge's causes are the parties of
+  its matching events, else its basis's party (the activity's risk, the unexplained risk or
+  the analyst's attribution). A counted charge in a concurrency group whose other (parallel,
+  not counted) members carry charges of the same sign is concurrent with them: their parties
+  join its causes. For ``apportion`` its own parties weigh its days (shared equally when
+  several), and each parallel party weighs the charges of its parallel members, scaled by
+  this charge's part of the group's counted charges. A gain (negative charge) belongs to its
+  own cause like any other and reduces the class it falls in.
 
 Impacted as-planned and time impact analysis (:mod:`delay.methods.impacted`,
 :mod:`delay.methods.time_impact`):
   one row per event, with its increment as its days. The increments of one cumulative run
-  fill the days of delay in order: the first event's increment takes days 1 .. i1, the
-  next the following days, and so on. Concurrency is found from the impacts alone: an
-  event whose impact alone ``a`` exceeds its increment ``i`` had ``a - i`` days of its own
-  delay hidden behind delay that other events had already taken (for example an employer
-  event and a later contractor event on parallel paths: the later one's increment is 0,
-  its impact alone is not). Those days are the first days, up to day ``a``, that the event
-  does not take itself; each is concurrent between the event that took it and every event
-  hidden behind it. Each event's row lists who it was concurrent with; an event whose
-  delay is wholly hidden has a row of 0 days naming the events it was concurrent with.
-  In the time impact analysis each update's run is taken on its own: events are concurrent
-  only with events inserted into the same update. The rule compares effects on completion
-  (the days each event alone would have caused), not the dates the events happened: in an
-  impacted as-planned run, events months apart can be concurrent by it. The SCL Protocol
-  (2017) and AACE RP 29R-03 section 4 (as recalled) look for delays whose effects are felt
-  at the same time; the time impact analysis, inserting each event into the update current
-  when it began, comes closer to that, and the analyst should check the timing of every
-  concurrency shown. The ``causes`` of a row are those of its own days; ``concurrent_with``
-  also names the events whose days its own delay was hidden behind.
+  fill the days of delay in order: the first event's increment takes positions 1 .. i1,
+  the next the following ones, and so on. Concurrency needs time (AACE RP 29R-03 section
+  4.2 and the SCL Protocol's guidance on concurrent delay, as recalled: delays are
+  concurrent when they are felt in the same period and each alone would have delayed
+  completion): the day at position ``p`` has as causes the event whose increment covers
+  it, and every other event of the run whose period overlaps that event's and whose impact
+  alone is at least ``p``. Events months apart are never concurrent, however their impacts
+  compare. Each event's row lists who its days were concurrent with. Then one row per
+  programme for its *residual*: the next programme's completion (the as-built record's for
+  the last) less the programme's impacted completion (for the impacted as-planned: the
+  actual completion less the base impacted with every event). A positive residual is delay
+  no event explains (``unexplained_risk``); a negative one is recovery, the contractor's,
+  which offsets its culpable delay first and beyond that is acceleration. With the
+  residuals the rows add up to the actual less the planned completion.
 
 Collapsed as-built (:mod:`delay.methods.collapsed`):
   one row per party with events, plus at most two more. ``D`` = actual completion less the
@@ -121,14 +111,23 @@ Collapsed as-built (:mod:`delay.methods.collapsed`):
   start of their events. The per-party but-for days (``alone_days``) need
   not add up; the rows do, by this construction, to ``D``.
 
+Classes over a table, and acceleration
+--------------------------------------
+Over a table: *excusable days* are the sum of its rows' excusable days (employer and
+neutral: an employer omission, a negative charge, reduces them); the contractor's net days
+are the sum of its culpable days: *culpable delay days* are those when positive, and a net
+gain is *acceleration days*, shown and never cutting the extension of time. Identity:
+``excusable_days + culpable_delay_days - acceleration_days`` = the delay the table explains.
+
 Reconciliation
 --------------
 The classified days of a table (excusable + culpable, each day counted once: a concurrent
-day sits in one row only) must equal the delay the method explains: for the windows
-analysis the total movement of completion over the windows; for the impacted as-planned its
-total (cumulative) impact; for the time impact analysis the sum over the updates of each
-update's cumulative impact; for the collapsed as-built the actual less the planned
-completion. A table that does not add up raises :class:`delay.errors.ReconciliationError`.
+day sits in one row only) must equal the delay the method explains, and so must the
+identity above: for the windows analysis the total movement of completion over the
+windows; for the impacted as-planned and the time impact analysis, with their residual
+rows, the actual less the planned completion; for the collapsed as-built the actual less
+the planned completion. A table that does not add up raises
+:class:`delay.errors.ReconciliationError`.
 
 References
 ----------
@@ -157,14 +156,13 @@ import numpy as np
 import pandas as pd
 
 from .errors import CaseError, Problem, ReconciliationError
+from .events import CONCURRENT, unexplained_risk
 from .model import PARTIES, Case
 
 __all__ = [
-    "event_activities",
-    "match_events",
     "UNEXPLAINED",
+    "RECOVERY",
     "CONCURRENT",
-    "DEFAULT_RISK",
     "METHODS",
     "CAUSATION_COLUMNS",
     "CONCURRENCY_RULES",
@@ -177,14 +175,15 @@ __all__ = [
     "time_impact_causation",
     "collapsed_causation",
     "reconcile",
+    "class_totals",
     "causation_frame",
     "causation",
 ]
 
 UNEXPLAINED = "unexplained"
-CONCURRENT = "concurrent"
-#: Who carries an unexplained delay.
-DEFAULT_RISK = "contractor"
+#: The ``party`` of a negative residual: recovery against what a modelled method predicted
+#: (the contractor's: it counts against culpable delay, then as acceleration).
+RECOVERY = "recovery"
 
 #: The methods a causation table can be built from, by their command-line names.
 METHODS = ("windows", "impacted", "tia", "collapsed")
@@ -194,71 +193,12 @@ CONCURRENCY_RULES = ("time_not_money", "apportion")
 
 #: Columns of every causation table, in order.
 CAUSATION_COLUMNS = [
-    "method", "step", "window", "snapshot", "event", "party", "activities", "days", "alone_days", "causes",
-    "concurrent_with", "concurrent_days", "excusable_days", "compensable_days", "culpable_days",
-    "classification", "arose_on",
+    "method", "step", "window", "snapshot", "event", "party", "basis", "activities", "work_days", "days",
+    "alone_days", "causes", "concurrent_with", "concurrent_days", "excusable_days", "compensable_days",
+    "culpable_days", "classification", "arose_on",
 ]
 
 _EXCUSING = {"employer", "neutral"}
-
-
-def event_activities(case: Case) -> dict[str, set[str]]:
-    """Activity ids each event names: its ``activities`` and the programme activities its
-    fragnet links tie into."""
-    events = case.events
-    fragnet_links = case.fragnet_links
-    fragnet_ids = set(case.fragnets["id"])
-    named: dict[str, set[str]] = {}
-    for event_id, activities in zip(events["id"].to_numpy(object), events["activities"].to_numpy(object)):
-        named[event_id] = {a.strip() for a in str(activities or "").split(";") if a.strip()}
-    for event_id, pred, succ in zip(*(fragnet_links[c].to_numpy(object) for c in ("event", "pred", "succ"))):
-        for activity in (pred, succ):
-            if activity not in fragnet_ids:
-                named.setdefault(event_id, set()).add(activity)
-    return named
-
-
-def match_events(case: Case, activities: Iterable[str], period_end: dt.date | None) -> pd.DataFrame:
-    """The events that explain a charge on each activity.
-
-    Parameters
-    ----------
-    case: the case with its event register.
-    activities: activity ids charged.
-    period_end: the last date of the period charged; events starting after it do not match
-        (``None``: no limit).
-
-    Returns
-    -------
-    DataFrame
-        One row per activity given, in order: ``activity``, ``events`` (list of event ids,
-        register order), ``parties`` (sorted list), ``party`` (the one party, ``"concurrent"``
-        for several, ``"unexplained"`` for none), ``risk`` (the party, ``"shared"`` when
-        concurrent, :data:`DEFAULT_RISK` when unexplained).
-    """
-    events = case.events
-    named = event_activities(case)
-    limit = pd.Timestamp(period_end) if period_end is not None else None
-    by_activity: dict[str, list[tuple[str, str]]] = {}
-    for event_id, party, start in zip(events["id"], events["party"], events["start"]):
-        if limit is not None and pd.notna(start) and pd.Timestamp(start) > limit:
-            continue
-        for activity in named.get(event_id, ()):
-            by_activity.setdefault(activity, []).append((event_id, party))
-    rows = []
-    for activity in activities:
-        found = by_activity.get(activity, [])
-        matched = [event_id for event_id, _ in found]
-        parties = {party for _, party in found}
-        if not matched:
-            party, risk = UNEXPLAINED, DEFAULT_RISK
-        elif len(parties) == 1:
-            party = risk = next(iter(parties))
-        else:
-            party, risk = CONCURRENT, "shared"
-        rows.append({"activity": activity, "events": matched, "parties": sorted(parties),
-                     "party": party, "risk": risk})
-    return pd.DataFrame(rows, columns=["activity", "events", "parties", "party", "risk"])
 
 
 # -- the result ---------------------------------------------------------------------------------
@@ -269,21 +209,24 @@ class Causation:
     Attributes
     ----------
     method: ``windows``, ``impacted``, ``tia`` or ``collapsed``.
-    table: one row per charge, event or party, columns :data:`CAUSATION_COLUMNS`:
+    table: one row per charge, event, residual or party, columns :data:`CAUSATION_COLUMNS`:
         ``step`` (the window and source, or the insertion), ``window`` (windows only),
-        ``snapshot`` (the programme the event was inserted into), ``event`` (event ids,
-        ``;`` separated; blank when none), ``party`` (the row's own party, ``concurrent``
-        or ``unexplained``), ``activities`` (``;`` separated), ``days`` (days of delay to
-        completion, calendar days; they add up), ``alone_days`` (impact alone or but-for
-        days: need not add up; blank for windows), ``causes`` (the parties its days are
-        caused by, ``;`` separated), ``concurrent_with`` (the other events or activities
-        its days were concurrent with, ``;`` separated), ``concurrent_days`` (its days with
-        causes of more than one party), ``excusable_days``, ``compensable_days`` (a part of
-        the excusable days), ``culpable_days`` (excusable + culpable = days),
-        ``classification`` (``compensable``, ``excusable``, ``culpable``, ``apportioned``
-        when concurrent days were split, ``mixed`` when its days fall in several classes,
-        ``no delay``), ``arose_on`` (the date the delay arose: a window's last day, an
-        event's start; it prices prolongation).
+        ``snapshot`` (the programme), ``event`` (event ids, ``;`` separated; blank when
+        none), ``party`` (the row's own party, ``concurrent``, ``unexplained``, or
+        ``recovery`` for a negative residual), ``basis``
+        (how the party was found: ``event``, ``risk``, ``unexplained``, ``analyst``,
+        ``residual``, ``recovery``), ``activities`` (``;`` separated), ``work_days`` (ledger
+        work days, windows only), ``days`` (days of delay to completion, calendar days; they
+        add up), ``alone_days`` (impact alone or but-for days: need not add up),
+        ``causes`` (the parties its days are caused by, ``;`` separated),
+        ``concurrent_with`` (the other events or activities its days were concurrent with),
+        ``concurrent_days`` (its days with causes of more than one party),
+        ``excusable_days``, ``compensable_days`` (a part of the excusable days),
+        ``culpable_days`` (excusable + culpable = days), ``classification``
+        (``compensable``, ``excusable``, ``culpable``, ``apportioned`` when concurrent days
+        were split, ``mixed`` when its days fall in several classes, ``no delay``),
+        ``arose_on`` (the date the delay arose: a window's last day, an event's start; it
+        prices prolongation).
     explained_days: the delay the table explains (see Reconciliation above).
     explains: what that delay is, in words.
     planned_completion: the planned (baseline) completion the method measures from.
@@ -302,6 +245,40 @@ class Causation:
     def total(self, column: str) -> int:
         """The sum of one day column of the table."""
         return int(self.table[column].sum()) if len(self.table) else 0
+
+    @property
+    def excusable_days(self) -> int:
+        """Employer and neutral days, net of their gains."""
+        return class_totals(self.table)["excusable_days"]
+
+    @property
+    def culpable_delay_days(self) -> int:
+        """The contractor's net delay, when positive."""
+        return class_totals(self.table)["culpable_delay_days"]
+
+    @property
+    def acceleration_days(self) -> int:
+        """The contractor's net gain, when positive: recovery it made."""
+        return class_totals(self.table)["acceleration_days"]
+
+
+def class_totals(table: pd.DataFrame) -> dict[str, int]:
+    """``excusable_days``, ``compensable_days``, ``culpable_delay_days`` and
+    ``acceleration_days`` of a causation table (see "Classes over a table").
+
+    Examples
+    --------
+    >>> frame = pd.DataFrame({"excusable_days": [10, 0], "compensable_days": [10, 0],
+    ...                       "culpable_days": [0, -4]})
+    >>> class_totals(frame)["acceleration_days"]
+    4
+    """
+    if not len(table):
+        return {"excusable_days": 0, "compensable_days": 0, "culpable_delay_days": 0, "acceleration_days": 0}
+    contractor = int(table["culpable_days"].sum())
+    return {"excusable_days": int(table["excusable_days"].sum()),
+            "compensable_days": max(0, int(table["compensable_days"].sum())),
+            "culpable_delay_days": max(0, contractor), "acceleration_days": max(0, -contractor)}
 
 
 # -- classification ---------------------------------------------------------------------------
@@ -366,7 +343,7 @@ def classify_days(causes: Sequence[tuple[str, object]], days: int, concurrency: 
     Parameters
     ----------
     causes: ``(party, weight)`` pairs, earliest cause first; the weight (an impact alone)
-        is used only to apportion. No causes: unexplained, :data:`DEFAULT_RISK`.
+        is used only to apportion. At least one.
     days: whole days (negative for a gain).
     concurrency: ``time_not_money`` or ``apportion``.
 
@@ -378,11 +355,13 @@ def classify_days(causes: Sequence[tuple[str, object]], days: int, concurrency: 
 
     Raises
     ------
-    ValueError: an unknown concurrency rule or party.
+    ValueError: an unknown concurrency rule or party, or no causes.
     """
     if concurrency not in CONCURRENCY_RULES:
         raise ValueError(f"unknown concurrency rule '{concurrency}'")
-    causes = list(causes) or [(DEFAULT_RISK, 1)]
+    causes = list(causes)
+    if not causes:
+        raise ValueError("days of delay need at least one cause")
     for party, _ in causes:
         if party not in PARTIES:
             raise ValueError(f"unknown party '{party}'")
@@ -438,10 +417,10 @@ def causation_frame(rows: list[dict]) -> pd.DataFrame:
     frame = pd.DataFrame(rows, columns=CAUSATION_COLUMNS)
     for column in ("days", "concurrent_days", "excusable_days", "compensable_days", "culpable_days"):
         frame[column] = frame[column].astype(np.int64) if len(frame) else pd.Series([], dtype=np.int64)
-    for column in ("window", "alone_days"):
+    for column in ("window", "alone_days", "work_days"):
         frame[column] = frame[column].astype("Int64")
     frame["arose_on"] = pd.to_datetime(frame["arose_on"]).astype("datetime64[s]")
-    for column in ("step", "snapshot", "event", "party", "activities", "causes", "concurrent_with",
+    for column in ("step", "snapshot", "event", "party", "basis", "activities", "causes", "concurrent_with",
                    "classification"):
         frame[column] = frame[column].fillna("").astype(object)
     return frame
@@ -461,8 +440,9 @@ def reconcile(table: pd.DataFrame, explained_days: int, where: str) -> None:
     """Check a causation table against the delay it explains.
 
     Every row must split exactly (excusable + culpable = days, compensable a part of the
-    excusable days) and the classified days, each counted once, must sum to
-    ``explained_days``.
+    excusable days), the classified days, each counted once, must sum to
+    ``explained_days``, and so must excusable + culpable delay - acceleration days
+    (:func:`class_totals`).
 
     Raises
     ------
@@ -489,125 +469,129 @@ def reconcile(table: pd.DataFrame, explained_days: int, where: str) -> None:
     if classified != int(explained_days) or int(table["days"].sum()) != int(explained_days):
         raise ReconciliationError(where, {"classified days": classified, "days charged": int(table["days"].sum()),
                                           "delay explained": int(explained_days)})
+    totals = class_totals(table)
+    identity = totals["excusable_days"] + totals["culpable_delay_days"] - totals["acceleration_days"]
+    if identity != int(explained_days):
+        raise ReconciliationError(where, {"excusable + culpable delay - acceleration": identity,
+                                          "delay explained": int(explained_days)})
 
 
 # -- windows ------------------------------------------------------------------------------------
-def _party_of_event(case: Case) -> dict[str, str]:
-    return dict(zip(case.events["id"], case.events["party"]))
+def _charge_causes(parties: Sequence[str], size: int) -> list[tuple[str, Fraction]]:
+    """A charge's own causes, sharing its size equally."""
+    parties = list(parties) or [UNEXPLAINED]
+    return [(party, Fraction(size, len(parties))) for party in parties]
 
 
-def _charge_causes(events: Sequence[str], party_of: dict[str, str]) -> list[str]:
-    parties = _ordered_parties(party_of[e] for e in events if e in party_of)
-    return parties or [DEFAULT_RISK]
+def _parallel_causes(charges: pd.DataFrame, i: int, size: int) -> tuple[list[tuple[str, Fraction]], list[str]]:
+    """The causes a counted charge gains from the parallel members of its concurrency group
+    (charges of the same sign), each weighted by its days, scaled by this charge's part of
+    the group's counted charges; and the members in words."""
+    groups = charges["group"].astype("Int64")
+    group = groups.iloc[i]
+    if pd.isna(group):
+        return [], []
+    days = charges["days"].astype(np.int64).to_numpy()
+    counted = charges["counted"].astype(bool).to_numpy()
+    same = (groups == group).fillna(False).to_numpy()
+    sign = np.sign(days[i])
+    stretch = int(np.abs(days[same & counted & (np.sign(days) == sign)]).sum())
+    causes, names = [], []
+    for k in np.flatnonzero(same & ~counted & (np.sign(days) == sign) & (days != 0)):
+        member = charges.iloc[int(k)]
+        parties = list(member["parties"]) or [UNEXPLAINED]
+        weight = Fraction(abs(int(member["days"])), len(parties)) * Fraction(size, max(stretch, 1))
+        causes += [(party, weight) for party in parties]
+        label = ", ".join(member["events"]) if len(member["events"]) else member["basis"]
+        names.append(f"{member['activity']} ({label})")
+    return causes, names
 
 
-def _revision_activities(activities: Sequence[str]) -> list[str]:
-    ids: list[str] = []
-    for item in activities:
-        for part in str(item).split(">"):
-            part = part.strip()
-            if part and part not in ids:
-                ids.append(part)
-    return ids
+def _windows_rows(windows, rule: str) -> list[dict]:
+    rows = []
+    for w in windows:
+        last_day = w.end_data_date - dt.timedelta(days=1)
+        where = f"window {w.number} ({w.start} to {w.end})"
+        charges = w.charges.reset_index(drop=True)
+        days = charges["days"].astype(np.int64).to_numpy() if len(charges) else np.zeros(0, np.int64)
+        counted = charges["counted"].astype(bool).to_numpy() if len(charges) else np.zeros(0, bool)
+        for i in np.flatnonzero(counted & (days != 0)):
+            charge = charges.iloc[int(i)]
+            size = abs(int(charge["days"]))
+            causes = _charge_causes(charge["parties"], size)
+            parallel, names = _parallel_causes(charges, int(i), size)
+            merged: dict[str, Fraction] = {}
+            for party, weight in causes + parallel:
+                merged[party] = merged.get(party, Fraction(0)) + weight
+            split = classify_days(list(merged.items()), int(charge["days"]), rule)
+            rows.append(_row("windows", f"{where}: progress", int(charge["days"]), split, window=w.number,
+                             snapshot=w.end, event=_joined(charge["events"]), party=charge["party"],
+                             basis=charge["basis"], activities=str(charge["activity"]),
+                             work_days=int(charge["work_days"]), causes=_joined(merged),
+                             concurrent_with=_joined(names), arose_on=last_day))
+        for revision in w.revisions.itertuples(index=False):
+            if int(revision.days) == 0:
+                continue
+            causes = [(p, 1) for p in revision.parties]
+            split = classify_days(causes, int(revision.days), rule)
+            rows.append(_row("windows", f"{where}: revision ({revision.kind})", int(revision.days), split,
+                             window=w.number, snapshot=w.end, event=_joined(revision.events), party=revision.party,
+                             basis=revision.basis, activities=_joined(revision.activities),
+                             work_days=int(revision.work_days), causes=_joined(revision.parties),
+                             concurrent_with="", arose_on=last_day))
+    return rows
 
 
-def windows_causation(case: Case, result, concurrency: str | None = None) -> Causation:
+def windows_causation(case: Case, result, concurrency: str | None = None, section: str | None = None) -> Causation:
     """The causation table of a windows analysis (:class:`delay.methods.windows.WindowsResult`).
 
     See the module docstring, "How each method's result becomes causation rows". Rows are
-    in window order; in each window the counted progress charges in chain order, then the
-    revisions in the order they were applied. The planned completion is the first
-    boundary's completion (the baseline's, by default); a row's ``arose_on`` is its window's
+    in window order; in each window the counted progress charges in path order, then the
+    revisions in the order they were applied. The planned completion is the target's finish
+    at the first boundary (the baseline's, by default); a row's ``arose_on`` is its window's
     last day.
+
+    Parameters
+    ----------
+    section: a section of sections.csv: the table of its own trace to its completion
+        milestone (default: the whole works).
 
     Raises
     ------
     ReconciliationError: when the classified days do not sum to the total movement.
+    KeyError: a section the result has no trace for.
     """
     rule = _concurrency_of(case, concurrency)
-    party_of = _party_of_event(case)
-    rows = []
-    for w in result.windows:
-        last_day = w.end_data_date - dt.timedelta(days=1)
-        where = f"window {w.number} ({w.start} to {w.end})"
-        charges = w.charges.reset_index(drop=True)
-        if len(charges):
-            counted = charges["counted"].astype(bool).to_numpy()
-            days = charges["days"].astype(np.int64).to_numpy()
-            groups = charges["group"].astype("Int64")
-            for i in np.flatnonzero(counted & (days != 0)):
-                charge = charges.iloc[int(i)]
-                own_events = list(charge["events"])
-                own = _charge_causes(own_events, party_of)
-                size = abs(int(charge["days"]))
-                causes = [(party, Fraction(size, len(own))) for party in own]
-                parallel_names: list[str] = []
-                group = groups.iloc[int(i)]
-                if pd.notna(group):
-                    same = (groups == group).fillna(False).to_numpy()
-                    sign = np.sign(days[i])
-                    stretch = int(np.abs(days[same & counted & (np.sign(days) == sign)]).sum())
-                    members = np.flatnonzero(same & ~counted & (np.sign(days) == sign) & (days != 0))
-                    for k in members:
-                        member = charges.iloc[int(k)]
-                        member_parties = _charge_causes(list(member["events"]), party_of)
-                        weight = Fraction(abs(int(member["days"])), len(member_parties)) * Fraction(size, stretch)
-                        for party in member_parties:
-                            causes.append((party, weight))
-                        label = ", ".join(member["events"]) if len(member["events"]) else UNEXPLAINED
-                        parallel_names.append(f"{member['activity']} ({label})")
-                merged: dict[str, Fraction] = {}
-                for party, weight in causes:
-                    merged[party] = merged.get(party, Fraction(0)) + weight
-                causes = list(merged.items())
-                split = classify_days(causes, int(charge["days"]), rule)
-                rows.append(_row("windows", f"{where}: progress", int(charge["days"]), split,
-                                 window=w.number, snapshot=w.end, event=_joined(own_events),
-                                 party=charge["party"], activities=str(charge["activity"]),
-                                 causes=_joined(p for p, _ in causes), concurrent_with=_joined(parallel_names),
-                                 arose_on=last_day))
-        for revision in w.revisions.itertuples(index=False):
-            if int(revision.days) == 0:
-                continue
-            ids = _revision_activities(revision.activities)
-            matched = match_events(case, ids, last_day) if ids else None
-            events: list[str] = []
-            if matched is not None:
-                for listed in matched["events"]:
-                    events += [e for e in listed if e not in events]
-            parties = _ordered_parties(party_of[e] for e in events)
-            if not parties:
-                party = UNEXPLAINED
-            elif len(parties) == 1:
-                party = parties[0]
-            else:
-                party = CONCURRENT
-            causes = [(p, 1) for p in (parties or [DEFAULT_RISK])]
-            split = classify_days(causes, int(revision.days), rule)
-            rows.append(_row("windows", f"{where}: revision ({revision.kind})", int(revision.days), split,
-                             window=w.number, snapshot=w.end, event=_joined(events), party=party,
-                             activities=_joined(revision.activities), causes=_joined(p for p, _ in causes),
-                             concurrent_with="", arose_on=last_day))
-    table = causation_frame(rows)
-    explained = int(result.total_movement_days)
-    reconcile(table, explained, "causation of the windows analysis")
-    notes = ("Charges on the driving path only: float absorbed off it is charged nothing (float is shared, "
-             "first come, first served).",
-             "A counted charge beside a parallel path of another party in a concurrency group is concurrent with "
-             "it; unexplained charges are contractor risk.")
-    return Causation("windows", table, explained, "the total movement of completion over the windows",
-                     result.first_completion, rule, notes)
+    windows = result.windows if section is None else result.sections[section]
+    table = causation_frame(_windows_rows(windows, rule))
+    explained = (windows[-1].completion_end - windows[0].completion_start).days if windows else 0
+    what = "the total movement of completion over the windows" if section is None else (
+        f"the total movement of section {section}'s completion over the windows")
+    reconcile(table, explained, "causation of the windows analysis" + (f", section {section}" if section else ""))
+    notes = ("Charges on the driving chain only, in work days of the ledger calendar: float absorbed off it is "
+             "charged nothing (float is shared, first come, first served), and an activity that only carried an "
+             "earlier delay is charged nothing.",
+             "Lateness is measured against late dates by logic alone: milestone constraints change no figure.",
+             "A counted charge beside a parallel path of another party in a concurrency group is concurrent with it; "
+             "charges no event explains go to the activity's risk, else the unexplained-risk setting.")
+    planned = windows[0].completion_start if windows else result.first_completion
+    return Causation("windows", table, explained, what, planned, rule, notes)
 
 
 # -- impacted as-planned and time impact analysis ---------------------------------------------
+def _overlaps(starts: np.ndarray, finishes: np.ndarray) -> np.ndarray:
+    """``overlap[i, j]``: the periods of events i and j overlap (both ends included)."""
+    return (starts[:, None] <= finishes[None, :]) & (starts[None, :] <= finishes[:, None])
+
+
 def sequence_rows(events: pd.DataFrame, concurrency: str, method: str) -> list[dict]:
     """Causation rows of one cumulative run of events (see the module docstring).
 
     Parameters
     ----------
     events: the run's events in insertion order, with ``event``, ``party``, ``activities``
-        (``;`` separated), ``alone_days``, ``days`` (the increment), ``arose_on``, ``step``
-        and ``snapshot``.
+        (``;`` separated), ``alone_days``, ``days`` (the increment), ``arose_on`` (the
+        event's start), ``until`` (its finish), ``step`` and ``snapshot``.
     concurrency: ``time_not_money`` or ``apportion``.
     method: the method's name for the rows.
 
@@ -618,64 +602,59 @@ def sequence_rows(events: pd.DataFrame, concurrency: str, method: str) -> list[d
     Notes
     -----
     The days of delay are numbered 1, 2, ... in the order the increments take them (only
-    positive increments take days; a negative one, which cannot arise when events only add
-    delay, is classified by its own party). ``owner[j]`` is the event that took day j;
-    ``hidden[m, j]`` marks the days hidden behind other events' delay for event m: the first
-    ``alone - increment`` days up to its impact alone that it did not take itself. The days
-    of one event with the same hidden events form one segment, classified at once.
+    positive increments take days; a negative one is classified by its own party). The day
+    at position ``p``, taken by event ``i``, has as causes ``i`` and every other event ``m``
+    whose period overlaps ``i``'s and whose impact alone is at least ``p``. The days of one
+    event with the same causes form one segment, classified at once.
     """
     count = len(events)
     parties = events["party"].to_numpy(dtype=object)
     names = events["event"].to_numpy(dtype=object)
     alone = events["alone_days"].astype(np.int64).to_numpy()
     increment = events["days"].astype(np.int64).to_numpy()
+    starts = pd.to_datetime(events["arose_on"]).to_numpy(dtype="datetime64[D]")
+    until = events["until"] if "until" in events else events["arose_on"]
+    finishes = pd.to_datetime(until).to_numpy(dtype="datetime64[D]")
+    finishes = np.where(np.isnat(finishes), starts, finishes)
+    overlap = _overlaps(starts, finishes) if count else np.zeros((0, 0), bool)
     taken = np.maximum(increment, 0)
-    total = int(taken.sum())
-    owner = np.repeat(np.arange(count), taken)
     first_day = np.concatenate([[0], np.cumsum(taken)])[:-1] if count else np.empty(0, np.int64)
-    hidden = np.zeros((count, total), dtype=bool)
-    position = np.arange(total)
-    for m in range(count):
-        excess = int(alone[m]) - int(taken[m])
-        if excess <= 0 or alone[m] <= 0:
-            continue
-        candidates = np.flatnonzero((position < alone[m]) & (owner != m))[:excess]
-        hidden[m, candidates] = True
     rows = []
     for i in range(count):
         days = int(increment[i])
-        start, stop = int(first_day[i]), int(first_day[i] + taken[i])
         partners: list[int] = []
-        own_causes: list[int] = [i]
         if days <= 0:
             split = classify_days([(parties[i], max(int(alone[i]), 0))], days, concurrency)
+            causes_seen = [i]
         else:
-            block = hidden[:, start:stop]
             split = {"excusable": 0, "compensable": 0, "culpable": 0, "concurrent": 0, "apportioned": False}
-            j = 0
-            while j < block.shape[1]:
-                column = block[:, j]
-                k = j + 1
-                while k < block.shape[1] and np.array_equal(block[:, k], column):
-                    k += 1
-                causes_here = sorted({i, *np.flatnonzero(column).tolist()})
-                partners += [c for c in causes_here if c != i and c not in partners]
-                own_causes += [c for c in causes_here if c not in own_causes]
-                causes = [(parties[c], max(int(alone[c]), 0)) for c in causes_here]
-                part = classify_days(causes, k - j, concurrency)
+            causes_seen = [i]
+            others = [m for m in range(count) if m != i and overlap[i, m]]
+            position = int(first_day[i]) + 1
+            stop = int(first_day[i]) + days + 1
+            while position < stop:
+                here = [m for m in others if alone[m] >= position]
+                # the segment runs while the set of causes stays the same: it only loses
+                # events, each once the position passes its impact alone
+                reach = min([int(alone[m]) + 1 for m in here] + [stop])
+                causes_here = [i] + here
+                partners += [c for c in here if c not in partners]
+                causes_seen += [c for c in here if c not in causes_seen]
+                part = classify_days([(parties[c], max(int(alone[c]), 0)) for c in causes_here], reach - position,
+                                     concurrency)
                 for key in ("excusable", "compensable", "culpable", "concurrent"):
                     split[key] += part[key]
                 split["apportioned"] |= part["apportioned"]
-                j = k
-        # the events whose days this event's delay was hidden behind
-        for c in _ordered_parties(owner[hidden[i]].tolist()):
-            if c not in partners and c != i:
-                partners.append(c)
+                position = reach
+        # events whose own days this event's period and impact alone made concurrent
+        for m in range(count):
+            if m != i and m not in partners and overlap[i, m] and increment[m] > 0 and alone[i] > first_day[m]:
+                partners.append(m)
         partners.sort()
-        cause_parties = _ordered_parties(parties[c] for c in sorted(own_causes, key=lambda c: (c != i, c)))
         row = events.iloc[i]
+        cause_parties = _ordered_parties(parties[c] for c in causes_seen)
         rows.append(_row(method, row["step"], days, split, snapshot=row["snapshot"], event=names[i],
-                         party=parties[i], activities=row["activities"], alone_days=int(alone[i]),
+                         party=parties[i], basis="event", activities=row["activities"], alone_days=int(alone[i]),
                          causes=_joined(cause_parties), concurrent_with=_joined(names[c] for c in partners),
                          arose_on=row["arose_on"]))
     return rows
@@ -686,62 +665,103 @@ def _run_frame(frame: pd.DataFrame, snapshot: str, label: str) -> pd.DataFrame:
     return pd.DataFrame({
         "event": frame["id"].to_numpy(dtype=object), "party": frame["party"].to_numpy(dtype=object),
         "activities": activities, "alone_days": frame["alone_days"].to_numpy(dtype=np.int64),
-        "days": frame["cumulative_days"].to_numpy(dtype=np.int64), "arose_on": pd.to_datetime(frame["start"]),
+        "days": frame["increment_days"].to_numpy(dtype=np.int64), "arose_on": pd.to_datetime(frame["start"]),
+        "until": pd.to_datetime(frame["finish"]),
         "step": [f"insertion {k} into {label}" for k in range(1, len(frame) + 1)], "snapshot": snapshot,
     })
 
 
-def _baseline_completion(case: Case) -> dt.date:
-    from .cpm import calendars_of, prepare
+def _residual_row(case: Case, method: str, snapshot: str, step: str, days: int, rule: str, arose_on) -> dict:
+    """The row of a programme's residual: delay no event explains, or the contractor's
+    recovery (see the module docstring)."""
+    if days >= 0:
+        party = unexplained_risk(case)
+        split = classify_days([(party, 1)], days, rule)
+        return _row(method, step, days, split, snapshot=snapshot, party=UNEXPLAINED, basis="residual",
+                    causes=party, arose_on=arose_on)
+    split = classify_days([("contractor", 1)], days, rule)
+    return _row(method, step, days, split, snapshot=snapshot, party=RECOVERY, basis="recovery",
+                causes="contractor", arose_on=arose_on)
 
-    return prepare(case, case.baseline, calendars=calendars_of(case)).run().completion
 
-
-def impacted_causation(case: Case, result, concurrency: str | None = None) -> Causation:
+def impacted_causation(case: Case, result, concurrency: str | None = None, section: str | None = None) -> Causation:
     """The causation table of an impacted as-planned analysis
     (:class:`delay.methods.impacted.ImpactedResult`): one row per event, its increment as its
-    days, concurrency from the impacts alone.
+    days, concurrency in time (see the module docstring), and one row for the residual: the
+    actual completion less the base impacted with every event.
 
     Raises
     ------
-    ReconciliationError: when the classified days do not sum to the total impact.
+    ReconciliationError: when the classified days do not sum to the actual less the planned
+        completion.
     """
     rule = _concurrency_of(case, concurrency)
-    table = causation_frame(sequence_rows(_run_frame(result.events, result.base, result.base), rule, "impacted"))
-    explained = int(result.total_days)
-    reconcile(table, explained, f"causation of the impacted as-planned analysis on {result.base}")
+    run = result.run if section is None else result.sections[section]
+    rows = sequence_rows(_run_frame(run.events, result.base, result.base), rule, "impacted")
+    if run.residual_days:
+        rows.append(_residual_row(case, "impacted", result.base,
+                                  f"residual: {run.target} finished {run.actual_completion.isoformat()}, against "
+                                  f"{run.completion_cumulative.isoformat()} with every event inserted",
+                                  run.residual_days, rule, run.completion_cumulative))
+    table = causation_frame(rows)
+    explained = int(run.explained_days)
+    reconcile(table, explained, f"causation of the impacted as-planned analysis on {result.base}, at {run.target}")
     notes = ("Each event's days are its increment in the chronological cumulative run: an earlier event "
              "consumes float first (float is shared, first come, first served).",
-             "Impacts alone need not add up; they decide only which events were concurrent.")
-    return Causation("impacted", table, explained, f"the cumulative impact of the events on {result.base}",
-                     result.completion_base, rule, notes)
+             "Events are concurrent only when their periods overlap and each alone would have delayed completion "
+             "that far; impacts alone need not add up.",
+             "The method measures the plan's response to the events, not what happened; the residual row is the "
+             "difference from the actual completion.")
+    return Causation("impacted", table, explained, "the actual less the planned completion (the events' "
+                     f"increments on {result.base} and the residual)", run.completion_base, rule, notes)
 
 
-def time_impact_causation(case: Case, result, concurrency: str | None = None) -> Causation:
+def time_impact_causation(case: Case, result, concurrency: str | None = None,
+                          section: str | None = None) -> Causation:
     """The causation table of a time impact analysis
-    (:class:`delay.methods.time_impact.TimeImpactResult`): one row per event, its increment in
-    the update it was inserted into as its days; concurrency within each update's run.
+    (:class:`delay.methods.time_impact.TimeImpactResult`): per programme, one row per event
+    inserted into it (its increment), concurrency in time within the programme's run, and
+    one row for its residual.
 
     Raises
     ------
-    ReconciliationError: when the classified days do not sum to the updates' cumulative
-        impacts.
+    ReconciliationError: when the classified days do not sum to the actual less the planned
+        completion.
     """
     rule = _concurrency_of(case, concurrency)
     rows: list[dict] = []
-    events = result.events
-    if len(events):
-        for snapshot in pd.unique(events["snapshot"]):
-            run = events[events["snapshot"] == snapshot].reset_index(drop=True)
-            rows += sequence_rows(_run_frame(run, snapshot, snapshot), rule, "tia")
+    trace = result.trace if section is None else result.sections[section]
+    events = trace.events
+    for update in trace.updates.itertuples(index=False):
+        run = events[events["update"] == update.snapshot].reset_index(drop=True) if len(events) else events
+        if len(run):
+            rows += sequence_rows(_run_frame(run, update.snapshot, update.snapshot), rule, "tia")
+        if int(update.residual_days):
+            rows.append(_residual_row(
+                case, "tia", update.snapshot,
+                f"residual of {update.snapshot}: {update.next_snapshot} finishes "
+                f"{update.next_completion.isoformat()}, against {update.completion_after.isoformat()} impacted",
+                int(update.residual_days), rule, update.next_data_date))
     table = causation_frame(rows)
-    explained = int(result.updates["cumulative_days"].sum()) if len(result.updates) else 0
-    reconcile(table, explained, "causation of the time impact analysis")
-    notes = ("Each event's days are its increment in the update current when it began; events are concurrent "
-             "only with events inserted into the same update.",
-             "Impacts alone need not add up; they decide only which events were concurrent.")
-    return Causation("tia", table, explained, "the sum over the updates of each update's cumulative impact",
-                     _baseline_completion(case), rule, notes)
+    explained = int(trace.explained_days)
+    reconcile(table, explained, f"causation of the time impact analysis, at {trace.target}")
+    notes = ("Each event's days are its increment in the programme it was inserted into (the last before it "
+             "began); events are concurrent only when their periods overlap and each alone would have delayed "
+             "completion that far.",
+             "Each programme's residual (the next programme's completion less its impacted one) is delay no event "
+             "explains, or the contractor's recovery; with the residuals the rows add up to the actual delay.")
+    return Causation("tia", table, explained, "the actual less the planned completion (increments and residuals)",
+                     trace.planned_completion, rule, notes)
+
+
+def _baseline_completion(case: Case) -> dt.date:
+    """The planned finish of the project's completion activity (the baseline's)."""
+    from .cpm import calendars_of, day_to_date, prepare
+    from .events import completion_activity
+
+    result = prepare(case, case.baseline, calendars=calendars_of(case)).run()
+    k = int(result.model.network.index_of([completion_activity(case)])[0])
+    return day_to_date(int(result.finish_day[k])) if k >= 0 else result.completion
 
 
 # -- collapsed as-built -------------------------------------------------------------------------
@@ -797,7 +817,7 @@ def collapsed_causation(case: Case, result, concurrency: str | None = None,
     if concurrent_days:
         involved.sort(key=lambda p: (earliest(events_of[p]) is None, earliest(events_of[p]) or pd.Timestamp.max,
                                      PARTIES.index(p)))
-        causes = [(p, 1) for p in involved] or [(DEFAULT_RISK, 1)]
+        causes = [(p, 1) for p in involved] or [(unexplained_risk(case), 1)]
         split = classify_days(causes, concurrent_days, rule)
         events = [e for p in involved for e in events_of[p]]
         rows.append(_row("collapsed", "but for every event, not for any one party's", concurrent_days, split,
@@ -805,9 +825,9 @@ def collapsed_causation(case: Case, result, concurrency: str | None = None,
                          causes=_joined(p for p, _ in causes), concurrent_with=_joined(involved),
                          arose_on=earliest(events)))
     if unexplained:
-        split = classify_days([(DEFAULT_RISK, 1)], unexplained, rule)
+        split = classify_days([(unexplained_risk(case), 1)], unexplained, rule)
         rows.append(_row("collapsed", "not taken out by any event", unexplained, split, party=UNEXPLAINED,
-                         causes=DEFAULT_RISK))
+                         basis="unexplained", causes=unexplained_risk(case)))
     table = causation_frame(rows)
     reconcile(table, delay, "causation of the collapsed as-built analysis")
     notes = ("But-for days (alone_days) need not add up; the rows add up to the actual less the planned completion "
@@ -820,7 +840,8 @@ def collapsed_causation(case: Case, result, concurrency: str | None = None,
 
 
 # -- any method -----------------------------------------------------------------------------------
-def causation(case: Case, method: str, result=None, concurrency: str | None = None) -> Causation:
+def causation(case: Case, method: str, result=None, concurrency: str | None = None,
+              section: str | None = None) -> Causation:
     """The causation table of one method, running the method when ``result`` is not given.
 
     Parameters
@@ -829,6 +850,8 @@ def causation(case: Case, method: str, result=None, concurrency: str | None = No
     method: one of :data:`METHODS`.
     result: the method's result (``analyse(case)`` of its module), if already computed.
     concurrency: overrides the case's ``[analysis] concurrency``.
+    section: a section of sections.csv: the table of the method's own trace of its
+        completion milestone (windows, impacted, tia); default the whole works.
 
     Raises
     ------
@@ -839,25 +862,18 @@ def causation(case: Case, method: str, result=None, concurrency: str | None = No
     -------
     >>> table = causation(load_case("case_demo"), "impacted").table   # doctest: +SKIP
     """
+    if method not in METHODS:
+        raise CaseError(Problem(file="--method", message=f"unknown method '{method}'",
+                                fix=f"choose among: {', '.join(METHODS)}"))
+    if result is None:
+        from importlib import import_module
+
+        module = {"windows": "windows", "impacted": "impacted", "tia": "time_impact", "collapsed": "collapsed"}
+        result = import_module(f"delay.methods.{module[method]}").analyse(case)
     if method == "windows":
-        if result is None:
-            from .methods.windows import analyse
-            result = analyse(case)
-        return windows_causation(case, result, concurrency)
+        return windows_causation(case, result, concurrency, section)
     if method == "impacted":
-        if result is None:
-            from .methods.impacted import analyse
-            result = analyse(case)
-        return impacted_causation(case, result, concurrency)
+        return impacted_causation(case, result, concurrency, section)
     if method == "tia":
-        if result is None:
-            from .methods.time_impact import analyse
-            result = analyse(case)
-        return time_impact_causation(case, result, concurrency)
-    if method == "collapsed":
-        if result is None:
-            from .methods.collapsed import analyse
-            result = analyse(case)
-        return collapsed_causation(case, result, concurrency)
-    raise CaseError(Problem(file="--method", message=f"unknown method '{method}'",
-                            fix=f"choose among: {', '.join(METHODS)}"))
+        return time_impact_causation(case, result, concurrency, section)
+    return collapsed_causation(case, result, concurrency)

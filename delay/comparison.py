@@ -23,7 +23,7 @@ from typing import Mapping, Sequence
 
 import pandas as pd
 
-from .entitlement import Entitlement, assess
+from .entitlement import Entitlement, assess, json_records
 from .model import Case
 
 __all__ = ["compare_methods", "sensitivity", "available_methods", "MethodComparison", "METHOD_TITLES"]
@@ -39,14 +39,14 @@ METHOD_TITLES = {
 MEASURES = {
     "windows": "follows the contemporaneous updates, so it charges what actually moved the forecast "
                "completion, progress and re-planning included",
-    "impacted": "adds the register's events to the plan alone, ignoring progress and delays no event "
-                "describes",
-    "tia": "adds each event to the update current when it began, so each event is measured against the "
-           "programme of its own time and the updates' figures can add up to more than the actual delay",
+    "impacted": "adds the register's events to the plan alone, at their real dates, ignoring progress and "
+                "delays no event describes (the residual is the difference from what happened)",
+    "tia": "adds each event to the programme current before it began, so each event is measured against the "
+           "programme of its own time, and reconciles each programme with the next through its residual",
     "collapsed": "takes the events out of the as-built record, so it depends on the as-built logic "
                  "reproducing the actual dates",
 }
-PARTY_ORDER = ("employer", "contractor", "neutral", "concurrent", "unexplained")
+PARTY_ORDER = ("employer", "contractor", "neutral", "concurrent", "unexplained", "recovery")
 
 
 def available_methods(case: Case) -> list[str]:
@@ -73,10 +73,7 @@ class MethodComparison:
     explanation: tuple[str, ...]
 
     def to_json(self) -> dict:
-        def records(frame):
-            return [{k: (None if pd.isna(v) else (int(v) if isinstance(v, (int,)) or hasattr(v, "item") else v))
-                     for k, v in row.items()} for row in frame.to_dict(orient="records")]
-
+        records = json_records
         return {"methods": list(self.methods), "by_party": records(self.by_party),
                 "by_event": records(self.by_event), "headline": records(self.headline),
                 "explanation": list(self.explanation)}
@@ -89,6 +86,12 @@ def _party_days(result: Entitlement) -> dict[str, int]:
 
 
 def _event_days(result: Entitlement) -> dict[str, int]:
+    """Days per event: for the collapsed as-built each event's own but-for days (the days
+    concurrent between parties belong to the group, not to each of its events); for the
+    other methods the days of the rows that name the event."""
+    if result.method == "collapsed":
+        events = result.events
+        return {e: int(d) for e, d in zip(events["event"], events["assessed_days"]) if d is not None and not pd.isna(d)}
     table = result.causation.table
     out: dict[str, int] = {}
     for events, days in zip(table["event"], table["days"]):
@@ -96,6 +99,21 @@ def _event_days(result: Entitlement) -> dict[str, int]:
         for event_id in ids:  # a row explained by several events is shown against each
             out[event_id] = out.get(event_id, 0) + int(days)
     return out
+
+
+def _group_rows(results: Mapping[str, Entitlement], methods: Sequence[str]) -> list[dict]:
+    """One row for the collapsed as-built's days concurrent between parties: shown once, on
+    the group's row, not against each of its events."""
+    found = results.get("collapsed")
+    if found is None:
+        return []
+    table = found.causation.table
+    group = table[table["step"].str.startswith("but for every event")]
+    if not len(group) or not int(group["days"].sum()):
+        return []
+    events = str(group["event"].iloc[0]).replace(";", ", ")
+    return [{"event": "concurrent group", "party": "concurrent", "title": f"days concurrent between parties ({events})",
+             **{m: (int(group["days"].sum()) if m == "collapsed" else 0) for m in methods}}]
 
 
 def compare_methods(case: Case, results: Mapping[str, Entitlement] | None = None) -> MethodComparison:
@@ -112,9 +130,12 @@ def compare_methods(case: Case, results: Mapping[str, Entitlement] | None = None
         ``by_party``: rows employer, contractor, neutral, concurrent, unexplained; one column
         of days of delay to completion per method (each method's rows add up to the delay
         it explains). ``by_event``: one row per event of the register, the days each method
-        gives it (a row explained by several events counts against each, so these columns
-        need not add up). ``headline``: per method the extension of time, compensable and
-        culpable days, damages exposure and concurrent days. ``explanation``: sentences.
+        gives it (a row explained by several events counts against each, and the collapsed
+        as-built gives each event's own but-for days, so these columns need not add up),
+        and for the collapsed as-built one row of the days concurrent between parties.
+        ``headline``: per method the extension of time, the revised completion, compensable
+        days and prolongation cost, culpable delay and acceleration days, culpable days,
+        damages exposure and concurrent days. ``explanation``: sentences.
     """
     methods = tuple(results) if results else tuple(available_methods(case))
     if results is None:
@@ -128,10 +149,12 @@ def compare_methods(case: Case, results: Mapping[str, Entitlement] | None = None
     event_days = {m: _event_days(results[m]) for m in methods}
     by_event = pd.DataFrame(
         [{"event": e, "party": p, "title": t, **{m: event_days[m].get(e, 0) for m in methods}}
-         for e, p, t in zip(events["id"], events["party"], events["title"])],
+         for e, p, t in zip(events["id"], events["party"], events["title"])] + _group_rows(results, methods),
         columns=["event", "party", "title", *methods])
     headline = pd.DataFrame([{
-        "method": m, "eot_days": results[m].eot_days, "compensable_days": results[m].compensable_days,
+        "method": m, "eot_days": results[m].eot_days, "revised_completion": results[m].revised_completion,
+        "compensable_days": results[m].compensable_days, "prolongation_cost": results[m].prolongation_cost,
+        "culpable_delay_days": results[m].culpable_delay_days, "acceleration_days": results[m].acceleration_days,
         "culpable_days": results[m].culpable_days, "ld_exposure": results[m].ld_exposure,
         "concurrent_days": results[m].concurrent_days, "explained_days": results[m].causation.explained_days,
     } for m in methods])
@@ -161,6 +184,18 @@ def _explain(methods, by_party: pd.DataFrame, headline: pd.DataFrame, results) -
         explained = results[m].causation
         lines.append(f"{METHOD_TITLES[m].capitalize()} {MEASURES[m]}; it explains {explained.explained_days} days "
                      f"({explained.explains}).")
+        for row in by_party.itertuples(index=False):
+            days = int(getattr(row, m))
+            if row.party == "unexplained" and days:
+                lines.append(f"By {METHOD_TITLES[m]}, {days} days are delay no event explains (carried by the "
+                             "unexplained-risk setting).")
+            if row.party == "recovery" and days:
+                lines.append(f"By {METHOD_TITLES[m]}, the works finished {-days} days earlier than the method's "
+                             "model of the events predicted: the contractor's recovery, counted against its "
+                             "culpable delay first (or events modelled larger than they were).")
+        if results[m].acceleration_days:
+            lines.append(f"By {METHOD_TITLES[m]}, the contractor's net recovery is {results[m].acceleration_days} days "
+                         "of acceleration: shown, and not taken off the extension of time.")
     collapsed = results.get("collapsed")
     if collapsed is not None:
         for note in collapsed.causation.notes:

@@ -37,7 +37,7 @@ import datetime as dt
 import weakref
 from dataclasses import dataclass, field
 from functools import cached_property
-from typing import Mapping
+from typing import Mapping, Sequence
 
 import numpy as np
 import pandas as pd
@@ -45,7 +45,7 @@ import pandas as pd
 from .calendars import CalendarSet, build_calendars, to_days
 from .errors import CaseError, Problem
 from .model import ACTIVITY_KINDS, CONSTRAINTS, Case, ScheduleSettings, Snapshot
-from .network import LINK_CODES, Network, compile_network
+from .network import LINK_CODES, Network, build_network, compile_network
 from .output import json_date, json_int
 
 __all__ = [
@@ -133,6 +133,7 @@ class ScheduleModel:
         *,
         extend: Mapping[str, int] | None = None,
         start_no_earlier: Mapping[str, object] | None = None,
+        hold: Mapping[str, Sequence[tuple[object, object]]] | None = None,
         add_activities: pd.DataFrame | None = None,
         add_links: pd.DataFrame | None = None,
         settings: ScheduleSettings | None = None,
@@ -145,7 +146,13 @@ class ScheduleModel:
             Work days added to activities' durations (to the remaining duration of a
             started or re-estimated activity), by id.
         start_no_earlier:
-            A date before which the activity may not start, by id (a hold).
+            A date before which the activity may not start, by id.
+        hold:
+            Periods in which an activity does no work, by id: ``(first, last)`` dates, both
+            included. The activity's work days in them become non-working for it alone (a
+            calendar derived from its own, :meth:`delay.calendars.CalendarSet.with_held_days`),
+            whatever its status: work before a period stands and the rest resumes after it.
+            A lag counted on the activity's calendar skips the held days too.
         add_activities:
             New activities: columns ``id``, ``name``, ``duration`` and optionally
             ``calendar`` (default calendar when absent or blank) and ``start_no_earlier``.
@@ -226,6 +233,19 @@ class ScheduleModel:
             bound = arrays["start_bound"].copy()
             np.maximum.at(bound, where, days)
             arrays["start_bound"] = bound
+        if hold:
+            where = numbers(list(hold))
+            requests = []
+            for v, periods in zip(where, hold.values()):
+                days = [np.arange(int(to_days(np.datetime64(first, "D"))), int(to_days(np.datetime64(last, "D"))) + 1)
+                        for first, last in periods]
+                requests.append((int(arrays["calendar"][v]), np.concatenate(days) if days else np.empty(0, np.int64)))
+            calendars, held = self.calendars.with_held_days(requests)
+            if calendars is not self.calendars:
+                changes["calendars"] = calendars
+            calendar = np.array(arrays["calendar"], dtype=np.int64)
+            calendar[where] = held
+            arrays["calendar"] = calendar
         if new_ids or (add_links is not None and len(add_links)):
             links = add_links if add_links is not None else pd.DataFrame(columns=["pred", "succ"])
             pred = numbers(list(links["pred"])) if len(links) else np.empty(0, np.int64)
@@ -241,6 +261,57 @@ class ScheduleModel:
             changes["settings"] = settings
         return dataclasses.replace(self, **changes)
 
+    def restricted(self, keep: np.ndarray) -> "ScheduleModel":
+        """The model of some of its activities and the links between them.
+
+        Parameters
+        ----------
+        keep:
+            Boolean mask, shape ``(n,)``: the activities to keep (their order is kept).
+
+        Returns
+        -------
+        ScheduleModel
+            This model when every activity is kept.
+        """
+        keep = np.asarray(keep, dtype=bool)
+        if keep.all():
+            return self
+        net = self.network
+        number = np.cumsum(keep) - 1
+        links = keep[net.pred] & keep[net.succ]
+        network = build_network(net.ids[keep], number[net.pred[links]], number[net.succ[links]],
+                                net.link_type[links], net.lag[links])
+        arrays = {name: getattr(self, name)[keep] for name in (
+            "names", "calendar", "duration", "remaining", "actual_start", "actual_finish", "kind", "constraint",
+            "constraint_day", "start_bound")}
+        order = self.link_order if self.link_order is not None else np.arange(net.link_count)
+        return dataclasses.replace(self, network=network, link_order=order[links], **arrays)
+
+    def logic_only(self, end_day: int) -> "ScheduleModel":
+        """The model for late dates by logic alone, its backward pass starting from ``end_day``.
+
+        The ``latest_finish``, ``fixed_start`` and ``fixed_finish`` constraints are taken out
+        (``earliest_start``, which bounds early dates only, stays) and ``float_to`` no longer
+        applies: every incomplete activity's late finish is the latest its logic allows for
+        the works to finish by ``end_day``. The windows and as-built methods measure
+        lateness against these dates, so that a milestone constraint, which changes no
+        forward date, changes no figure.
+
+        Parameters
+        ----------
+        end_day:
+            Day number (days since 1970-01-01) the backward pass starts from.
+
+        Returns
+        -------
+        ScheduleModel
+        """
+        code = self.constraint.copy()
+        code[(code == LATEST_FINISH) | (code == FIXED_START) | (code == FIXED_FINISH)] = NO_CONSTRAINT
+        settings = dataclasses.replace(self.settings, float_to="contract_completion")
+        return dataclasses.replace(self, constraint=code, contract_completion_day=int(end_day), settings=settings)
+
     # -- scheduling ------------------------------------------------------------------------
     def run(self) -> "ScheduleResult":
         """Forward and backward passes, floats and driving links. See the module docstring."""
@@ -254,6 +325,12 @@ class ScheduleModel:
     def completion(self) -> dt.date:
         """Completion date from the forward pass alone (see :meth:`completion_day`)."""
         return _date(self.completion_day())
+
+    def finish_days(self) -> np.ndarray:
+        """Every activity's finish date (day numbers, network order) from the forward pass
+        alone: what a what-if that asks when some activities (a section's milestone, the
+        project's completion activity) would finish needs."""
+        return _run(self, forward_only="finish")
 
 
 def _run(model: ScheduleModel, forward_only: bool = False):
@@ -398,6 +475,8 @@ def _run(model: ScheduleModel, forward_only: bool = False):
 
     # -- completion ---------------------------------------------------------------------------
     completion_day = int(finish_day.max()) if n else model.data_day
+    if forward_only == "finish":
+        return finish_day
     if forward_only:
         return completion_day
 

@@ -113,8 +113,9 @@ def _modelled(case, folder: Path, out_dir: Path, echo) -> list[Path]:
         tia = time_impact.analyse(case)
         (folder / "time_impact.json").write_text(json.dumps(tia.to_json(), indent=2), encoding="utf-8")
         written += [out_dir / "impacted.json", out_dir / "impacted_events.csv", out_dir / "time_impact.json"]
-        echo(f"Impacted as-planned: {impact.total_days} days cumulative; time impact: {tia.total_days} days "
-             "summed over the updates")
+        echo(f"Impacted as-planned: the events add {impact.total_days} days to the plan (residual "
+             f"{impact.residual_days:+d}); time impact: increments {tia.total_days} days, residuals "
+             f"{tia.trace.residual_days:+d}, {tia.explained_days} days in all")
         if case.asbuilt_snapshot is not None:
             butfor = collapsed.analyse(case)
             (folder / "collapsed.json").write_text(json.dumps(butfor.to_json(), indent=2), encoding="utf-8")
@@ -138,6 +139,6 @@ def _entitlement(case, folder: Path, out_dir: Path, echo) -> list[Path]:
     sensitivity(case, methods).to_csv(folder / "sensitivity.csv", index=False)
     for m in methods:
         e = assessed.method(m)
-        echo(f"  {m:<10} extension of time {e.eot_days} days, compensable {e.compensable_days}, "
-             f"culpable {e.culpable_days}")
+        echo(f"  {m:<10} extension of time {e.eot_days} days (revised completion {e.revised_completion}), "
+             f"compensable {e.compensable_days}, culpable {e.culpable_days}, acceleration {e.acceleration_days}")
     return [out_dir / "entitlement.json", out_dir / "comparison.json", out_dir / "sensitivity.csv"]

@@ -9,9 +9,10 @@ The figures (dates are calendar dates, days calendar days)
 ----------------------------------------------------------
 - *Contract completion in force*: the contract completion date (``[project]
   contract_completion``; a section's own date from sections.csv) plus the extensions
-  already granted (extensions_granted.csv). A row with a ``section`` applies to that section
-  only, a row without one to the whole works only: under sectional completion each section
-  has its own date and its own extensions (common practice; the contract governs).
+  already granted (extensions_granted.csv), each in force from its ``granted_on`` date
+  (:mod:`delay.contract`). A row with a ``section`` applies to that section only, a row
+  without one to the whole works only; the section whose completion activity is the
+  project's completion activity is the whole works, and its figures are the whole works'.
 - *Completion with only excusable delays*: the planned completion (the baseline's
   completion, or the section milestone's finish in the baseline) plus the excusable days of
   the causation table.
@@ -27,10 +28,13 @@ The figures (dates are calendar dates, days calendar days)
   *revised completion* is the completion in force plus the extension of time.
 - *Culpable days* = max(0, actual or forecast completion - revised completion): the days
   liquidated damages may be levied for. The actual completion is the as-built record's;
-  without one, the last update's forecast (the windows analysis uses its own last
-  boundary, the collapsed as-built its actual completion). ``culpable_delay_days`` beside
-  it is the table's sum of culpable days, which the impacted methods (modelling only the
-  register's events) need not reach.
+  without one, the last update's forecast. Beside it, from the causation table
+  (:func:`delay.causation.class_totals`): ``excusable_days`` (employer and neutral, net),
+  ``culpable_delay_days`` (the contractor's net delay, when positive) and
+  ``acceleration_days`` (the contractor's net gain: recovery it made, shown and never
+  cutting the extension), with ``excusable + culpable delay - acceleration`` = the delay
+  the method explains (the actual less the planned completion). An extension beyond the
+  actual overrun past the completion in force is explained by that acceleration.
 - *Liquidated damages* = culpable days x the rate (a section's own rate from sections.csv,
   else ``[commercial] liquidated_damages_per_day``), limited to ``liquidated_damages_cap``
   when that is above 0. The cap is applied to each figure (the whole works, each section)
@@ -52,27 +56,12 @@ The figures (dates are calendar dates, days calendar days)
 Sections
 --------
 Each section's figures follow the same rules, measured at its completion milestone
-(``completion_activity``):
-
-- impacted as-planned and time impact analysis: the events are inserted again exactly as
-  the method inserts them (:func:`delay.methods.impacted.apply_event`), and each run's
-  finish of the milestone is read (``delay.cpm.prepare(...).run().finish_day``); the
-  milestone's increments and impacts alone give a causation table of their own, by the
-  rules of :mod:`delay.causation`. The runs' completions are checked against the method's
-  own figures.
-- windows: the windows analysis traces the driving path to project completion only, so no
-  per-milestone charges exist. In each window the milestone's movement (its finish at the
-  window's end less at its start) is split, by the largest remainder method, in proportion
-  to the window's classified charges (compensable, excusable only, culpable; those of the
-  same sign as the movement) on the milestone and the activities that lead to it (in the
-  logic of either boundary programme). Where no charge lies on them, the movement is
-  classified by the events under way in the window (started on or before its last day,
-  finished on or after its first) that name one of those activities, else it is
-  unexplained (contractor risk). Tied remainders go culpable first, then excusable, then
-  compensable (a tied day is not given time or money). Concurrent days are not measured
-  for a section by this method.
-- collapsed as-built: the method measures project completion only; a section's dates in
-  force, planned and actual are given, its entitlement is not.
+(``completion_activity``), from the method's own trace of that milestone: the windows
+analysis traces each milestone by the same ledger rules; the impacted as-planned and the
+time impact analysis read each milestone's finish in every run of their events
+(increments, impacts alone, residuals). The whole-works section's figures are the whole
+works'. The collapsed as-built measures the whole works only: for another section its dates
+in force, planned and actual are given, its entitlement is not.
 
 The sections' figures overlap each other and the whole works' (a section's delay is
 usually part of the works' delay): never add them.
@@ -93,6 +82,7 @@ Example
 
 from __future__ import annotations
 
+import dataclasses
 import datetime as dt
 from dataclasses import dataclass, field
 from typing import Mapping, Sequence
@@ -100,10 +90,11 @@ from typing import Mapping, Sequence
 import numpy as np
 import pandas as pd
 
-from .causation import (DEFAULT_RISK, METHODS, Causation, causation, causation_frame, classify_days,
-                        event_activities, largest_remainder, reconcile, sequence_rows)
-from .cpm import NO_DAY, ScheduleResult, calendars_of, prepare
-from .errors import CaseError, Problem, ReconciliationError
+from .causation import METHODS, Causation, class_totals, causation
+from .contract import completion_in_force, grants, whole_works_section
+from .cpm import NO_DAY, ScheduleResult, calendars_of, day_to_date, prepare
+from .errors import CaseError, Problem
+from .events import completion_activity
 from .model import Case
 
 __all__ = [
@@ -113,6 +104,8 @@ __all__ = [
     "EntitlementResult",
     "completion_in_force",
     "prolongation_rate",
+    "prolongation_build_up",
+    "json_records",
     "prolongation_cost",
     "liquidated_damages",
     "SECTION_COLUMNS",
@@ -120,10 +113,11 @@ __all__ = [
 ]
 
 SECTION_COLUMNS = [
-    "section", "name", "completion_activity", "contract_completion", "granted_days", "completion_in_force",
-    "planned_completion", "excusable_days", "completion_with_excusable_delays", "eot_days", "revised_completion",
-    "actual_completion", "compensable_days", "prolongation_cost", "culpable_delay_days", "culpable_days",
-    "liquidated_damages_per_day", "ld_exposure", "ld_capped", "concurrent_days", "note",
+    "section", "name", "completion_activity", "whole_works", "contract_completion", "granted_days",
+    "completion_in_force", "planned_completion", "excusable_days", "completion_with_excusable_delays", "eot_days",
+    "revised_completion", "actual_completion", "compensable_days", "prolongation_cost", "culpable_delay_days",
+    "acceleration_days", "culpable_days", "liquidated_damages_per_day", "ld_exposure", "ld_capped",
+    "concurrent_days", "note",
 ]
 EVENT_COLUMNS = ["event", "title", "party", "notified", "claimed_days", "assessed_days", "excusable_days",
                  "compensable_days", "note"]
@@ -133,29 +127,6 @@ _METHOD_NAMES = {"windows": "windows analysis", "impacted": "impacted as-planned
 
 
 # -- the contract's figures -------------------------------------------------------------------
-def completion_in_force(case: Case, section: str | None = None) -> tuple[dt.date, int, dt.date]:
-    """``(contract completion, days granted, completion in force)`` for the whole works
-    (``section=None``: extensions without a section) or one section.
-
-    Raises
-    ------
-    KeyError: a section not in sections.csv.
-    """
-    granted = case.extensions_granted
-    if section is None:
-        contract = case.settings.project.contract_completion
-        rows = granted[granted["section"].fillna("") == ""]
-    else:
-        sections = case.sections
-        match = sections[sections["section"] == section]
-        if not len(match):
-            raise KeyError(f"no section '{section}' in sections.csv")
-        contract = pd.Timestamp(match["contract_completion"].iloc[0]).date()
-        rows = granted[granted["section"].fillna("") == section]
-    days = int(rows["days"].sum()) if len(rows) else 0
-    return contract, days, contract + dt.timedelta(days=days)
-
-
 def prolongation_rate(case: Case, day) -> float:
     """Time-related cost of a day of prolongation arising on ``day``: the rate of the
     period of prolongation_rates.csv that holds it, else the flat
@@ -169,13 +140,48 @@ def prolongation_rate(case: Case, day) -> float:
     return float(inside["cost_per_day"].iloc[0]) if len(inside) else flat
 
 
+def prolongation_build_up(case: Case, rows: pd.DataFrame) -> pd.DataFrame:
+    """The prolongation cost built up: one row per rate applied, with where the rate comes
+    from, the compensable days priced at it and their cost (the rows add up to
+    :func:`prolongation_cost`).
+
+    Returns
+    -------
+    DataFrame
+        ``from``, ``to`` (the rate's period, blank for the flat rate), ``source``
+        (``prolongation_rates.csv row N`` or ``case.toml [commercial]
+        prolongation_cost_per_day``), ``cost_per_day``, ``days``, ``cost``.
+    """
+    columns = ["from", "to", "source", "cost_per_day", "days", "cost"]
+    rates = case.prolongation_rates.reset_index(drop=True)
+    flat = float(case.settings.commercial.prolongation_cost_per_day)
+    found: dict[int, int] = {}
+    for days, day in zip(rows["compensable_days"], rows["arose_on"]) if len(rows) else ():
+        if not int(days):
+            continue
+        key = -1
+        if day is not None and not pd.isna(day):
+            inside = np.flatnonzero(((rates["from"] <= pd.Timestamp(day)) & (rates["to"] >= pd.Timestamp(day))).to_numpy())
+            key = int(inside[0]) if inside.size else -1
+        found[key] = found.get(key, 0) + int(days)
+    out = []
+    for key in sorted(found, key=lambda k: (k < 0, k)):
+        if key < 0:
+            out.append({"from": None, "to": None, "source": "case.toml [commercial] prolongation_cost_per_day",
+                        "cost_per_day": flat, "days": found[key], "cost": round(found[key] * flat, 2)})
+        else:
+            rate = float(rates["cost_per_day"].iloc[key])
+            out.append({"from": pd.Timestamp(rates["from"].iloc[key]).date(),
+                        "to": pd.Timestamp(rates["to"].iloc[key]).date(),
+                        "source": f"prolongation_rates.csv row {key + 2}", "cost_per_day": rate,
+                        "days": found[key], "cost": round(found[key] * rate, 2)})
+    return pd.DataFrame(out, columns=columns)
+
+
 def prolongation_cost(case: Case, rows: pd.DataFrame) -> float:
     """Sum of each row's ``compensable_days`` times the rate on its ``arose_on`` date."""
-    total = 0.0
-    for days, day in zip(rows["compensable_days"], rows["arose_on"]):
-        if days:
-            total += int(days) * prolongation_rate(case, day)
-    return round(total, 2)
+    build_up = prolongation_build_up(case, rows)
+    return round(float(build_up["cost"].sum()), 2) if len(build_up) else 0.0
 
 
 def liquidated_damages(case: Case, culpable_days: int, rate: float) -> tuple[float, bool]:
@@ -188,22 +194,24 @@ def liquidated_damages(case: Case, culpable_days: int, rate: float) -> tuple[flo
     return round(amount, 2), False
 
 
-def _figures(case: Case, *, planned: dt.date, in_force: dt.date, excusable: int, actual: dt.date,
-             rate: float, rows: pd.DataFrame) -> dict:
+def _figures(case: Case, *, planned: dt.date, in_force: dt.date, actual: dt.date, rate: float,
+             rows: pd.DataFrame) -> dict:
+    totals = class_totals(rows)
+    excusable = totals["excusable_days"]
     with_excusable = planned + dt.timedelta(days=int(excusable))
     eot = max(0, min(int(excusable), (with_excusable - in_force).days))
     revised = in_force + dt.timedelta(days=eot)
     culpable = max(0, (actual - revised).days)
     amount, capped = liquidated_damages(case, culpable, rate)
-    compensable = int(rows["compensable_days"].sum()) if len(rows) else 0
     return {
         "planned_completion": planned, "excusable_days": int(excusable),
         "completion_with_excusable_delays": with_excusable, "eot_days": eot, "revised_completion": revised,
-        "actual_completion": actual, "compensable_days": compensable,
+        "actual_completion": actual, "compensable_days": totals["compensable_days"],
         "prolongation_cost": prolongation_cost(case, rows) if len(rows) else 0.0,
-        "culpable_delay_days": int(rows["culpable_days"].sum()) if len(rows) else 0,
+        "culpable_delay_days": totals["culpable_delay_days"], "acceleration_days": totals["acceleration_days"],
         "culpable_days": culpable, "liquidated_damages_per_day": float(rate), "ld_exposure": amount,
         "ld_capped": capped,
+        "concurrent_days": int(rows["concurrent_days"].sum()) if len(rows) else 0,
     }
 
 
@@ -232,10 +240,13 @@ def _plain(value):
         return None if np.isnan(value) else float(value)
     if value is None or value is pd.NA or value is pd.NaT:
         return None
+    if isinstance(value, (list, tuple)):
+        return [_plain(v) for v in value]
     return value
 
 
-def _records(frame: pd.DataFrame) -> list[dict]:
+def json_records(frame: pd.DataFrame) -> list[dict]:
+    """The rows of a result table as JSON-ready dicts (dates as ISO text, NA as null)."""
     return [{k: _plain(v) for k, v in row.items()} for row in frame.to_dict("records")]
 
 
@@ -246,7 +257,9 @@ class Entitlement:
     Days are calendar days; money is in ``currency``. See the module docstring for every
     figure. ``causation`` is the method's :class:`delay.causation.Causation`; ``sections``
     has :data:`SECTION_COLUMNS` (figures ``None`` where the method cannot give them, with
-    the reason in ``note``); ``events`` has :data:`EVENT_COLUMNS`.
+    the reason in ``note``); ``events`` has :data:`EVENT_COLUMNS`; ``grants`` the
+    extensions already granted that apply to the whole works; ``prolongation`` the build-up
+    of the prolongation cost (:func:`prolongation_build_up`).
     """
 
     method: str
@@ -264,6 +277,7 @@ class Entitlement:
     compensable_days: int
     prolongation_cost: float
     culpable_delay_days: int
+    acceleration_days: int
     culpable_days: int
     liquidated_damages_per_day: float
     ld_exposure: float
@@ -272,7 +286,14 @@ class Entitlement:
     causation: Causation = field(repr=False)
     sections: pd.DataFrame = field(repr=False)
     events: pd.DataFrame = field(repr=False)
+    grants: pd.DataFrame = field(default=None, repr=False)
+    prolongation: pd.DataFrame = field(default=None, repr=False)
     notes: tuple[str, ...] = ()
+
+    @property
+    def overrun_days(self) -> int:
+        """The actual (or forecast) completion less the completion in force."""
+        return (self.actual_completion - self.completion_in_force).days
 
     def to_json(self) -> dict:
         return {
@@ -284,21 +305,25 @@ class Entitlement:
             "culpable_days": self.culpable_days,
             "ld_exposure": self.ld_exposure,
             "concurrent_days": self.concurrent_days,
-            "sections": _records(self.sections),
+            "excusable_days": self.excusable_days,
+            "culpable_delay_days": self.culpable_delay_days,
+            "acceleration_days": self.acceleration_days,
+            "sections": json_records(self.sections),
             "contract_completion": _iso(self.contract_completion),
             "granted_days": self.granted_days,
             "completion_in_force": _iso(self.completion_in_force),
             "planned_completion": _iso(self.planned_completion),
-            "excusable_days": self.excusable_days,
             "completion_with_excusable_delays": _iso(self.completion_with_excusable_delays),
             "actual_completion": _iso(self.actual_completion),
-            "culpable_delay_days": self.culpable_delay_days,
+            "overrun_days": self.overrun_days,
             "liquidated_damages_per_day": self.liquidated_damages_per_day,
             "ld_capped": self.ld_capped,
             "explained_days": self.causation.explained_days,
             "explains": self.causation.explains,
-            "causation": _records(self.causation.table),
-            "events": _records(self.events),
+            "causation": json_records(self.causation.table),
+            "events": json_records(self.events),
+            "grants": [] if self.grants is None else json_records(self.grants),
+            "prolongation": [] if self.prolongation is None else json_records(self.prolongation),
             "notes": list(self.notes),
         }
 
@@ -322,7 +347,8 @@ class EntitlementResult:
         """One row per method: the whole works' figures."""
         columns = ["method", "completion_in_force", "planned_completion", "excusable_days", "eot_days",
                    "revised_completion", "actual_completion", "compensable_days", "prolongation_cost",
-                   "culpable_days", "ld_exposure", "ld_capped", "concurrent_days"]
+                   "culpable_delay_days", "acceleration_days", "culpable_days", "ld_exposure", "ld_capped",
+                   "concurrent_days"]
         return pd.DataFrame([{c: getattr(m, c) for c in columns} for m in self.methods], columns=columns)
 
     def to_json(self) -> dict:
@@ -340,16 +366,7 @@ def _finish_of(result: ScheduleResult, activity: str) -> dt.date | None:
     k = int(result.model.network.index_of([activity])[0])
     if k < 0 or result.finish_day[k] == NO_DAY:
         return None
-    return dt.date(1970, 1, 1) + dt.timedelta(days=int(result.finish_day[k]))
-
-
-def _upstream(result: ScheduleResult, activity: str) -> set[str]:
-    """The activity and every activity a chain of links leads from to it."""
-    net = result.model.network
-    k = int(net.index_of([activity])[0])
-    if k < 0:
-        return set()
-    return {str(i) for i in net.ids[net.upstream([k])]}
+    return day_to_date(int(result.finish_day[k]))
 
 
 class _Schedules:
@@ -368,12 +385,14 @@ class _Schedules:
 
 # -- sections -------------------------------------------------------------------------------------
 def _section_base(case: Case, section) -> dict:
-    contract, granted, in_force = completion_in_force(case, section["section"])
+    contract, granted, in_force = completion_in_force(case, str(section["section"]))
     rate = section["liquidated_damages_per_day"]
     rate = float(rate) if pd.notna(rate) else float(case.settings.commercial.liquidated_damages_per_day)
+    whole = whole_works_section(case) == str(section["section"])
     return {"section": section["section"], "name": section["name"],
-            "completion_activity": section["completion_activity"], "contract_completion": contract,
-            "granted_days": granted, "completion_in_force": in_force, "liquidated_damages_per_day": rate}
+            "completion_activity": section["completion_activity"], "whole_works": whole,
+            "contract_completion": contract, "granted_days": granted, "completion_in_force": in_force,
+            "liquidated_damages_per_day": rate}
 
 
 def _section_row(base: dict, **values) -> dict:
@@ -383,192 +402,34 @@ def _section_row(base: dict, **values) -> dict:
     return row
 
 
-def _section_frame(rows: list[dict]) -> pd.DataFrame:
-    return pd.DataFrame(rows, columns=SECTION_COLUMNS, dtype=object)
-
-
-def _section_entitlement(case: Case, base: dict, planned, actual, rows: pd.DataFrame, explained: int,
-                         where: str, concurrent: int | None, note: str = "") -> dict:
-    reconcile(rows, explained, where)
-    excusable = int(rows["excusable_days"].sum()) if len(rows) else 0
-    figures = _figures(case, planned=planned, in_force=base["completion_in_force"], excusable=excusable,
-                       actual=actual, rate=base["liquidated_damages_per_day"], rows=rows)
-    return _section_row(base, **figures, concurrent_days=concurrent, note=note)
-
-
-def _milestone_runs(case: Case, folder: str, event_ids: Sequence[str], targets: Sequence[str]):
-    """Insert ``event_ids`` into snapshot ``folder`` as the impacted method does, alone and
-    cumulatively, reading each run's completion and the finish of each target.
-
-    Returns ``(base completion, base finishes, alone finishes, cumulative finishes,
-    cumulative completions)``: finishes are day numbers, shape ``(targets,)`` and
-    ``(events, targets)``, :data:`NO_DAY` for a target not in the snapshot.
-    """
-    from .methods.impacted import apply_event
-
-    snapshot = case.snapshot(folder)
-    model = prepare(case, snapshot, calendars=calendars_of(case))
-    where = model.network.index_of(list(targets))
-    missing = where < 0
-    safe = np.maximum(where, 0)
-
-    def read(result: ScheduleResult) -> np.ndarray:
-        return np.where(missing, NO_DAY, result.finish_day[safe])
-
-    base = model.run()
-    register = case.events.set_index("id", drop=False)
-    present = set(snapshot.activities["id"])
-    alone, cumulative_finish, completions = [], [], []
-    cumulative = model
-    for event_id in event_ids:
-        event = register.loc[event_id]
-        alone_model, _ = apply_event(model, case, event, present)
-        alone.append(read(alone_model.run()))
-        added = {str(i) for i in cumulative.network.ids[model.network.size:]}
-        cumulative, _ = apply_event(cumulative, case, event, present | added)
-        after = cumulative.run()
-        cumulative_finish.append(read(after))
-        completions.append(int(after.completion_day))
-    shape = (len(event_ids), len(targets))
-    return (int(base.completion_day), read(base), np.asarray(alone, dtype=np.int64).reshape(shape),
-            np.asarray(cumulative_finish, dtype=np.int64).reshape(shape), np.asarray(completions, dtype=np.int64))
-
-
-def _sequence_sections(case: Case, method: str, runs: list[tuple[str, pd.DataFrame]], concurrency: str,
-                       expected_days: Mapping[str, Sequence[int]]) -> pd.DataFrame:
-    """Sections of the impacted or time impact analysis: the events of each run inserted
-    again, the section milestones' finishes read, and classified by the sequence rules."""
-    sections = case.sections
-    if not len(sections):
-        return _section_frame([])
-    targets = list(sections["completion_activity"])
-    schedules = _Schedules(case)
-    baseline = schedules.of(case.baseline)
-    record = schedules.of(_record_snapshot(case))
-    per_target: list[list[dict]] = [[] for _ in targets]
-    absent: list[set[str]] = [set() for _ in targets]
-    for folder, events in runs:
-        ids = list(events["id"])
-        base_completion, base_finish, alone, cumulative, completions = _milestone_runs(case, folder, ids, targets)
-        increments = np.diff(np.concatenate([[base_completion], completions]))
-        if list(increments) != list(expected_days[folder]):
-            raise ReconciliationError(f"section runs of the {_METHOD_NAMES[method]} on {folder}", {
-                "increments here": [int(x) for x in increments],
-                "increments of the method": [int(x) for x in expected_days[folder]]})
-        for t in range(len(targets)):
-            if base_finish[t] == NO_DAY:
-                absent[t].add(folder)
-                continue
-            finish = np.concatenate([[base_finish[t]], cumulative[:, t]])
-            frame = pd.DataFrame({
-                "event": ids, "party": list(events["party"]),
-                "activities": [a if isinstance(a, str) else ";".join(a) for a in events["activities"]],
-                "alone_days": (alone[:, t] - base_finish[t]).astype(np.int64),
-                "days": np.diff(finish).astype(np.int64), "arose_on": pd.to_datetime(events["start"]).to_numpy(),
-                "step": [f"insertion {k} into {folder}" for k in range(1, len(ids) + 1)], "snapshot": folder,
-            })
-            per_target[t] += sequence_rows(frame, concurrency, method)
-    out = []
-    for t, (_, section) in enumerate(sections.iterrows()):
-        base = _section_base(case, section)
-        planned = _finish_of(baseline, section["completion_activity"])
-        actual = _finish_of(record, section["completion_activity"])
-        if planned is None or actual is None or absent[t]:
-            where = sorted(absent[t]) or ["the baseline or the record"]
-            out.append(_section_row(base, planned_completion=planned, actual_completion=actual,
-                                    note=f"the section milestone is not in {', '.join(where)}: not assessed"))
-            continue
-        rows = causation_frame(per_target[t])
-        explained = int(rows["days"].sum()) if len(rows) else 0
-        out.append(_section_entitlement(case, base, planned, actual, rows, explained,
-                                        f"section {base['section']} ({_METHOD_NAMES[method]})",
-                                        int(rows["concurrent_days"].sum()) if len(rows) else 0))
-    return _section_frame(out)
-
-
-def _windows_sections(case: Case, result, table: pd.DataFrame, concurrency: str) -> pd.DataFrame:
-    """Sections of the windows analysis: each window's movement of the section milestone
-    split in proportion to the window's classified charges on the activities leading to it
-    (see the module docstring)."""
-    sections = case.sections
-    if not len(sections):
-        return _section_frame([])
-    schedules = _Schedules(case)
-    named = event_activities(case)
-    events = case.events
-    out = []
-    for _, section in sections.iterrows():
-        base = _section_base(case, section)
-        milestone = section["completion_activity"]
-        snapshots = [case.snapshot(result.windows[0].start)] + [case.snapshot(w.end) for w in result.windows]
-        finishes = [_finish_of(schedules.of(s), milestone) for s in snapshots]
-        if any(f is None for f in finishes):
-            lacking = [s.folder for s, f in zip(snapshots, finishes) if f is None]
-            out.append(_section_row(base, planned_completion=finishes[0], actual_completion=finishes[-1],
-                                    note=f"the section milestone is not in {', '.join(lacking)}: not assessed"))
-            continue
-        rows = []
-        fallback = []
-        for w, before, after in zip(result.windows, finishes[:-1], finishes[1:]):
-            movement = (after - before).days
-            if movement == 0:
-                continue
-            leading = (_upstream(schedules.of(case.snapshot(w.start)), milestone)
-                       | _upstream(schedules.of(case.snapshot(w.end)), milestone))
-            charged = table[table["window"] == w.number]
-            on_path = [bool({p for a in str(acts).split(";") for p in a.split(">")} & leading)
-                       for acts in charged["activities"]]
-            charged = charged.loc[np.asarray(on_path, dtype=bool)]
-            sign = 1 if movement > 0 else -1
-            classes = {
-                "culpable": max(0, sign * int(charged["culpable_days"].sum())),
-                "excusable": max(0, sign * int((charged["excusable_days"] - charged["compensable_days"]).sum())),
-                "compensable": max(0, sign * int(charged["compensable_days"].sum())),
-            }
-            last_day = w.end_data_date - dt.timedelta(days=1)
-            if sum(classes.values()):
-                shares = dict(zip(classes, largest_remainder(movement, list(classes.values()))))
-                split = {"excusable": shares["excusable"] + shares["compensable"],
-                         "compensable": shares["compensable"], "culpable": shares["culpable"]}
-            else:
-                under_way = [
-                    party for event_id, party, start, finish in
-                    zip(events["id"], events["party"], events["start"], events["finish"])
-                    if pd.notna(start) and pd.Timestamp(start) <= pd.Timestamp(last_day)
-                    and (pd.isna(finish) or pd.Timestamp(finish) >= pd.Timestamp(w.start_data_date))
-                    and named.get(event_id, set()) & leading
-                ]
-                causes = [(p, 1) for p in dict.fromkeys(under_way)] or [(DEFAULT_RISK, 1)]
-                split = classify_days(causes, movement, concurrency)
-                fallback.append(str(w.number))
-            rows.append({"days": movement, "excusable_days": split["excusable"],
-                         "compensable_days": split["compensable"], "culpable_days": split["culpable"],
-                         "arose_on": pd.Timestamp(last_day), "step": f"window {w.number}"})
-        frame = pd.DataFrame(rows, columns=["days", "excusable_days", "compensable_days", "culpable_days",
-                                            "arose_on", "step"])
-        note = ("the milestone's movement in each window split in proportion to the window's classified charges "
-                "on the activities leading to it")
-        if fallback:
-            note += (f"; in window(s) {', '.join(fallback)} no charge lay on them: classified by the events under "
-                     "way that name them, else unexplained")
-        explained = (finishes[-1] - finishes[0]).days
-        out.append(_section_entitlement(case, base, finishes[0], finishes[-1], frame, explained,
-                                        f"section {base['section']} (windows analysis)", None, note))
-    return _section_frame(out)
-
-
-def _collapsed_sections(case: Case) -> pd.DataFrame:
+def _sections(case: Case, method: str, result, rule: str, whole: "Entitlement") -> pd.DataFrame:
+    """Every section's figures: the whole-works section's are the whole works'; the others'
+    come from the method's own trace of the section's milestone (see the module docstring)."""
     schedules = _Schedules(case)
     baseline = schedules.of(case.baseline)
     record = schedules.of(_record_snapshot(case))
     out = []
     for _, section in case.sections.iterrows():
         base = _section_base(case, section)
-        out.append(_section_row(
-            base, planned_completion=_finish_of(baseline, section["completion_activity"]),
-            actual_completion=_finish_of(record, section["completion_activity"]),
-            note="the collapsed as-built measures project completion only: no entitlement for the section"))
-    return _section_frame(out)
+        name = str(section["section"])
+        planned = _finish_of(baseline, section["completion_activity"])
+        actual = _finish_of(record, section["completion_activity"])
+        if base["whole_works"]:
+            figures = {c: getattr(whole, c) for c in SECTION_COLUMNS if hasattr(whole, c) and c not in base}
+            out.append(_section_row(base, **figures, note="the whole of the works: the whole works' figures"))
+            continue
+        traced = getattr(result, "sections", {}) or {}
+        if method == "collapsed" or name not in traced:
+            why = ("the collapsed as-built measures the whole works only: no entitlement for the section"
+                   if method == "collapsed" else "the section milestone is not in every programme: not assessed")
+            out.append(_section_row(base, planned_completion=planned, actual_completion=actual, note=why))
+            continue
+        table_of = causation(case, method, result, rule, section=name)
+        figures = _figures(case, planned=table_of.planned_completion, in_force=base["completion_in_force"],
+                           actual=actual or table_of.planned_completion, rate=base["liquidated_damages_per_day"],
+                           rows=table_of.table)
+        out.append(_section_row(base, **figures, note=f"traced to {section['completion_activity']}"))
+    return pd.DataFrame(out, columns=SECTION_COLUMNS, dtype=object)
 
 
 # -- events ------------------------------------------------------------------------------------
@@ -616,6 +477,17 @@ def _run_method(case: Case, method: str):
     return analyse(case)
 
 
+def _actual_completion(case: Case, method: str, result) -> dt.date:
+    """The completion the method compares with the revised one: the completion activity's
+    actual finish (the as-built record's, else the last update's forecast)."""
+    if method == "windows":
+        return result.last_completion
+    if method == "collapsed":
+        return result.actual_completion
+    found = _finish_of(_Schedules(case).of(_record_snapshot(case)), completion_activity(case))
+    return found if found is not None else result.actual_completion
+
+
 def entitlement(case: Case, method: str, result=None, concurrency: str | None = None) -> Entitlement:
     """The entitlement of one method for the whole works, each section and each event.
 
@@ -643,38 +515,24 @@ def entitlement(case: Case, method: str, result=None, concurrency: str | None = 
     table = table_of.table
     contract, granted, in_force = completion_in_force(case)
     commercial = case.settings.commercial
-    if method == "windows":
-        actual = result.last_completion
-        sections = _windows_sections(case, result, table, rule)
-    elif method == "collapsed":
-        actual = result.actual_completion
-        sections = _collapsed_sections(case)
-    else:
-        actual = _Schedules(case).of(_record_snapshot(case)).completion
-        if method == "impacted":
-            runs = [(result.base, result.events)]
-            expected = {result.base: list(result.events["cumulative_days"])}
-        else:
-            runs, expected = [], {}
-            if len(result.events):
-                for folder in pd.unique(result.events["snapshot"]):
-                    group = result.events[result.events["snapshot"] == folder].reset_index(drop=True)
-                    runs.append((folder, group))
-                    expected[folder] = list(group["cumulative_days"])
-        sections = _sequence_sections(case, method, runs, rule, expected)
-    figures = _figures(case, planned=table_of.planned_completion, in_force=in_force,
-                       excusable=table_of.total("excusable_days"), actual=actual,
+    actual = _actual_completion(case, method, result)
+    figures = _figures(case, planned=table_of.planned_completion, in_force=in_force, actual=actual,
                        rate=float(commercial.liquidated_damages_per_day), rows=table)
     notes = list(table_of.notes)
     notes.append("Sections' figures overlap each other and the whole works': never add them.")
+    if figures["acceleration_days"]:
+        notes.append(f"The contractor's net recovery of {figures['acceleration_days']} days is acceleration: it "
+                     "is shown, and it does not cut the extension of time.")
     if method in ("impacted", "tia"):
         notes.append("The actual completion is the as-built record's" if case.asbuilt_snapshot is not None
                      else "The completion compared is the last update's forecast (no as-built record)")
-    return Entitlement(method=method, currency=commercial.currency, concurrency=rule, contract_completion=contract,
-                       granted_days=granted, completion_in_force=in_force, **figures,
-                       concurrent_days=table_of.total("concurrent_days"), causation=table_of, sections=sections,
-                       events=_event_table(case, method, table, result if method == "collapsed" else None),
-                       notes=tuple(notes))
+    prolongation = prolongation_build_up(case, table)
+    whole = Entitlement(method=method, currency=commercial.currency, concurrency=rule, contract_completion=contract,
+                        granted_days=granted, completion_in_force=in_force, **figures, causation=table_of,
+                        sections=pd.DataFrame(columns=SECTION_COLUMNS),
+                        events=_event_table(case, method, table, result if method == "collapsed" else None),
+                        grants=grants(case), prolongation=prolongation, notes=tuple(notes))
+    return dataclasses.replace(whole, sections=_sections(case, method, result, rule, whole))
 
 
 def assess(case: Case, methods: Sequence[str] = METHODS, results: Mapping[str, object] | None = None,

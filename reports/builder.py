@@ -382,18 +382,27 @@ _EXPLAIN = {
         "the end is compared with the one at the start. A half-step brings the earlier programme to the "
         "later data date with the later progress alone, so each window's movement splits into what "
         "progress did and what the revisions to the programme did. Progress is charged to the "
-        "activities on the driving path; revisions to each kind of change in turn. In every window the "
-        "charges add up to the movement, to the day, and the windows add up to the whole movement."),
+        "activities on the chain that drives the completion activity, by how late each finished against "
+        "the late dates its logic alone allowed (milestone constraints change nothing), in work days of "
+        "the completion activity's calendar: float used and weekends or shutdowns crossed are not delay, "
+        "and an activity that only carried an earlier delay is charged nothing. Revisions are charged to "
+        "each kind of change in turn. In every window the charges add up to the movement, to the day, "
+        "and the windows add up to the whole movement."),
     "impacted": (
         "Each delay event of the register is put into the baseline programme, first on its own (its "
         "impact alone) and then one after another in the order they happened (the cumulative run). "
         "Impacts alone need not add up: events on parallel paths overlap and one can hide another. "
-        "The increments of the cumulative run do add up, to the total impact. The method shows what "
-        "the events would have done to the plan, not what happened on site."),
+        "The increments of the cumulative run do add up, to the total impact. Each event is put in at "
+        "its real dates; a hold stops the work it names for its period, and leaves alone work the plan "
+        "has no work on then. The method measures the plan's response to the events, not what happened "
+        "on site: the residual, the actual completion less the impacted one, shows the difference."),
     "tia": (
-        "Each delay event is put into the progress update current when it began, and its effect on "
-        "that update's forecast completion is measured. Events that share an update are inserted one "
-        "after another; their increments add up within the update."),
+        "Each delay event is put into the last programme before it began (or the one the analyst names "
+        "in tia_update), and its effect on that programme's forecast completion is measured. Events "
+        "that share a programme are inserted one after another; their increments add up within it. "
+        "Each programme's residual, the next programme's completion less its impacted completion, "
+        "reconciles the increments with what happened: a positive residual is delay no event explains, "
+        "a negative one recovery."),
     "collapsed": (
         "The as-built record is turned into a programme that reproduces the actual dates. The delay of "
         "one party's events (or of one event) is then taken out and the works are scheduled again: "
@@ -405,9 +414,11 @@ _EXPLAIN = {
         "the methods' figures side by side and explains in plain words why they differ."),
     "asbuilt": (
         "The planned dates of the baseline are set beside the actual dates of the as-built record, "
-        "activity by activity. The as-built critical path is traced back from the actual completion, "
-        "each activity to the predecessor that held it back; the delay accrued along it falls in the "
-        "period of each activity's actual finish."),
+        "activity by activity, in calendar and in work days. The as-built critical path is traced back "
+        "from the completion activity, each activity to the predecessor that held it back. Each activity "
+        "on it contributes how much later it finished, past its own float, than its driving predecessor "
+        "had (by the windows rules), and that delay falls in the period of its actual finish: an "
+        "activity carried across a shutdown, or slipping into its own float, contributes nothing."),
     "timeline": (
         "The building model's elements take the colour of their work's state week by week, as planned "
         "(the baseline's early dates) and as built (the as-built record). Press Play, or move the "
@@ -725,7 +736,9 @@ def _impacted(ctx: _Context) -> Section:
     blocks.append(Facts((("Programme impacted", result.base), ("Completion before any event",
                                                                  result.completion_base.isoformat()),
                          ("Completion after every event", result.completion_cumulative.isoformat()),
-                         ("Total impact", _days(result.total_days)))))
+                         ("Total impact", _days(result.total_days)),
+                         ("Actual completion", result.actual_completion.isoformat()),
+                         ("Residual (actual less impacted)", _days(result.residual_days)))))
     rows = [{"run": result.base, "step": "before any event", "completion": result.completion_base, "alone": None,
              "title": "the programme before any event"}]
     rows += [{"run": result.base, "step": r.id, "completion": r.completion_after, "alone": r.completion_alone,
@@ -757,7 +770,7 @@ def _tia(ctx: _Context) -> Section:
     for update in result.updates.itertuples(index=False):
         rows.append({"run": update.snapshot, "step": "before", "completion": update.completion_before, "alone": None,
                      "title": f"the update of {update.data_date.isoformat()} before its events"})
-        events = result.events[result.events["snapshot"] == update.snapshot]
+        events = result.events[result.events["update"] == update.snapshot]
         rows += [{"run": update.snapshot, "step": r.id, "completion": r.completion_after, "alone": r.completion_alone,
                   "title": r.title} for r in events.itertuples(index=False)]
     from .figures import completion_steps
@@ -766,13 +779,13 @@ def _tia(ctx: _Context) -> Section:
         blocks.append(FigureBlock("tia_steps", completion_steps(_steps(rows), title="Completion of each update "
                                                                                    "after its events"),
                                   "One staircase per update; hollow markers show each event alone."))
-    blocks.append(ctx.table("tia_updates", "The updates the events were inserted into", "tia", result.updates,
-                            labels={"cumulative_days": "impact of its events on the update (calendar days)",
-                                    "events": "events inserted"}))
+    blocks.append(ctx.table("tia_updates", "Each programme: its events, impacted completion and residual", "tia",
+                            result.updates, labels={"increment_days": "increments of its events (calendar days)",
+                                                    "events": "events inserted"}))
     blocks.append(ctx.table("tia_events", "Each event in its update", "tia", result.events, note=" ".join(result.notes)))
     blocks.append(ctx.table("tia_by_party", "Per party", "tia", result.by_party,
                             labels={"alone_days": "impacts alone of its events, summed (need not add up)",
-                                    "cumulative_days": "increments of its events (calendar days)"}))
+                                    "increment_days": "increments of its events (calendar days)"}))
     blocks.append(_causation_block(
         ctx, "tia", "tia_causation", "Causation of the time impact analysis", "tia",
         ["step", "snapshot", *_MODELLED_CAUSATION_COLUMNS[1:]]))
@@ -907,7 +920,7 @@ def _asbuilt(ctx: _Context) -> Section:
     blocks.append(ctx.table("driving_path_activities", "Activities on the driving paths, planned and actual",
                             "asbuilt", frame))
     blocks.append(ctx.table("asbuilt_critical_path", "The as-built critical path", "asbuilt", result.critical_path,
-                            note="The delay accrued along the path adds up to the completion variance."))
+                            note="The contributions along the path add up to the completion variance."))
     blocks.append(ctx.table("asbuilt_periods", "Delay along the as-built critical path by period", "asbuilt",
                             result.periods, labels={"cumulative_days": "running total (calendar days)"}))
     blocks.append(ctx.table("asbuilt_activities", "Every activity, planned against actual", "asbuilt",

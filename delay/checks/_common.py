@@ -16,6 +16,7 @@ from typing import Any
 import numpy as np
 import pandas as pd
 
+from ..contract import completion_in_force
 from ..cpm import ScheduleModel, ScheduleResult, calendars_of, prepare
 from ..errors import CaseError, Problem
 from ..model import Case, Snapshot
@@ -93,14 +94,11 @@ def _key(snap: Snapshot) -> str:
     return f"{snap.kind}:{snap.folder}"
 
 
-def contract_completion_in_force(case: Case) -> dt.date:
-    """The contract completion date in force for the whole of the works: case.toml's
-    ``contract_completion`` plus the calendar days of every row of extensions_granted.csv
-    that names no section (an extension for a section moves that section's date, not the
-    whole works'); the same rule as :func:`delay.entitlement.completion_in_force`."""
-    from ..entitlement import completion_in_force
-
-    return completion_in_force(case)[2]
+def contract_completion_in_force(case: Case, at: dt.date | None = None) -> dt.date:
+    """The contract completion date in force for the whole of the works at ``at`` (every
+    grant when ``None``): case.toml's ``contract_completion`` plus the calendar days of the
+    extensions granted by then for the whole works (:func:`delay.contract.completion_in_force`)."""
+    return completion_in_force(case, at=at)[2]
 
 
 def link_keys(pred: np.ndarray, succ: np.ndarray) -> list[str]:

@@ -371,7 +371,7 @@ def _critical_path_length_index(case: Case, result: ScheduleResult) -> Metric:
     model = result.model
     cals = model.calendars
     calendar = np.asarray([cals.number[case.settings.schedule.default_calendar]])
-    in_force = contract_completion_in_force(case)
+    in_force = contract_completion_in_force(case, at=result.data_date)
     data_day = model.data_day
     forecast = result.completion_day
     contract_day = int(to_days(np.datetime64(in_force, "D")))

@@ -70,6 +70,8 @@ def entitlement(case, method, output_format):
                             never more than the excusable days
       revised completion    completion in force + extension of time
       culpable days         max(0, actual or forecast completion - revised completion)
+      acceleration          the contractor's net gain in the causation table: shown, never
+                            cutting the extension of time
       damages               culpable days x the rate, limited to the cap when one is set
       prolongation cost     compensable days x the rate of the period the delay arose in
 
@@ -91,10 +93,12 @@ def entitlement(case, method, output_format):
     currency = result.currency
     print_table(f"Entitlement per method (calendar days; money in {currency}; concurrency {result.concurrency})",
                 ["method", "completion in force", "planned", "excusable", "extension of time", "revised completion",
-                 "actual or forecast", "compensable", "prolongation cost", "culpable", "damages", "concurrent"],
+                 "actual or forecast", "compensable", "prolongation cost", "culpable delay", "acceleration",
+                 "culpable", "damages", "concurrent"],
                 [[m.method, m.completion_in_force, m.planned_completion, m.excusable_days, m.eot_days,
                   m.revised_completion, m.actual_completion, m.compensable_days, _text(m.prolongation_cost),
-                  m.culpable_days, _text(m.ld_exposure) + (" (capped)" if m.ld_capped else ""), m.concurrent_days]
+                  m.culpable_delay_days, m.acceleration_days, m.culpable_days,
+                  _text(m.ld_exposure) + (" (capped)" if m.ld_capped else ""), m.concurrent_days]
                  for m in result.methods])
     for m in result.methods:
         if len(m.sections):

@@ -59,12 +59,14 @@ def _day(value) -> str:
 def impact(case, event_ids, order, base, output_format):
     """Impacted as-planned: the delay events inserted into one programme.
 
-    Each event is modelled in the base programme (extend: work days added to the affected
-    activities; hold: they start no earlier than the day after the event's finish; fragnet:
-    the event's activities and links inserted) and the programme is re-scheduled. Its impact
-    alone is the movement of completion with that event only; its increment is what it adds
-    when the events are inserted one after another. Days are calendar days; positive is
-    delay.
+    Each event is modelled in the base programme at its real dates (extend: work days added
+    to the affected activities; hold: no work on them from the event's start to its finish,
+    both included, whatever their status; fragnet: the event's activities and links
+    inserted) and the programme is re-scheduled. Its impact alone is the movement of the
+    completion activity with that event only; its increment is what it adds when the events
+    are inserted one after another. The residual is the actual completion less the impacted
+    one: the method measures the plan's response, not what happened. Days are calendar
+    days; positive is delay.
     """
     from ..methods.impacted import analyse
 
@@ -73,20 +75,22 @@ def impact(case, event_ids, order, base, output_format):
         click.echo(json.dumps(result.to_json(), indent=2))
         return
     rows = [[r.id, r.title, r.party, r.impact, _day(r.start), _day(r.finish), r.alone_days, r.alone_work_days,
-             r.completion_alone, r.cumulative_days, r.cumulative_work_days, r.completion_after, r.applied]
+             r.completion_alone, r.increment_days, r.increment_work_days, r.completion_after,
+             "; ".join(x for x in (r.applied, r.effect) if x)]
             for r in result.events.itertuples(index=False)]
     print_table(f"Impacted as-planned on {result.base} (calendar days; positive is delay; order {result.order})",
                 ["event", "title", "party", "impact", "start", "finish", "alone", "alone (work days)",
                  "completion alone", "increment", "increment (work days)", "completion after", "applied"], rows)
     print_table("By party (alone: the party's events together, without the others)",
                 ["party", "events", "alone", "increments"],
-                [[r.party, _listed(r.events), r.alone_days, r.cumulative_days]
+                [[r.party, _listed(r.events), r.alone_days, r.increment_days]
                  for r in result.by_party.itertuples(index=False)])
     if not len(result.events):
         click.echo("No events to insert: the register is empty.")
     click.echo(ALONE_NOTE)
     click.echo(f"Completion of {result.base} {result.completion_base}, with the events "
-               f"{result.completion_cumulative}: {result.total_days} calendar days. {CAUTION}")
+               f"{result.completion_cumulative} ({result.total_days:+d} days); actual {result.actual_completion} "
+               f"(residual {result.residual_days:+d} days). {CAUTION}")
 
 
 @click.command()
@@ -95,12 +99,15 @@ def impact(case, event_ids, order, base, output_format):
               show_default=True)
 @reports_input_errors
 def tia(case, output_format):
-    """Time impact analysis: each event inserted into the update current when it began.
+    """Time impact analysis: each event inserted into the programme current before it began.
 
-    The current update of an event is the last programme (baseline or progress update) whose
-    data date is on or before the event's start. Each event is modelled there as `delay
-    impact` models it and measured against that update's own completion; events sharing an
-    update are inserted one after another in chronological order. Days are calendar days;
+    An event's programme is the last one (baseline or progress update) whose data date is
+    strictly before the event's start, unless the register's tia_update names another. Each
+    event is modelled there as `delay impact` models it and measured at that programme's
+    completion activity; events sharing a programme are inserted one after another in
+    chronological order. Each programme's residual (the next programme's completion less
+    its impacted one) reconciles the increments with what happened: increments plus
+    residuals equal the actual less the planned completion. Days are calendar days;
     positive is delay.
     """
     from ..methods.time_impact import analyse
@@ -109,22 +116,27 @@ def tia(case, output_format):
     if output_format == "json":
         click.echo(json.dumps(result.to_json(), indent=2))
         return
-    print_table("Updates used (calendar days; positive is delay)",
-                ["update", "data date", "completion before", "completion after", "events", "cumulative impact"],
-                [[r.snapshot, r.data_date, r.completion_before, r.completion_after, _listed(r.events),
-                  r.cumulative_days] for r in result.updates.itertuples(index=False)])
-    rows = [[r.id, r.title, r.party, r.impact, _day(r.start), r.snapshot, r.completion_before, r.alone_days,
-             r.cumulative_days, r.cumulative_work_days, r.completion_after, r.applied]
+    print_table("Programmes (calendar days; positive is delay)",
+                ["programme", "data date", "completion", "events", "increments", "impacted completion",
+                 "next programme", "its completion", "residual"],
+                [[r.snapshot, r.data_date, r.completion_before, _listed(r.events), r.increment_days,
+                  r.completion_after, r.next_snapshot, r.next_completion, r.residual_days]
+                 for r in result.updates.itertuples(index=False)])
+    rows = [[r.id, r.title, r.party, r.impact, _day(r.start), r.update, r.completion_before, r.alone_days,
+             r.increment_days, r.increment_work_days, r.completion_after,
+             "; ".join(x for x in (r.applied, r.effect, *r.warnings) if x)]
             for r in result.events.itertuples(index=False)]
-    print_table("Events, each in the update current when it began",
-                ["event", "title", "party", "impact", "start", "update", "completion before", "alone",
-                 "increment", "increment (work days)", "completion after", "applied"], rows)
+    print_table("Events, each in the programme current before it began",
+                ["event", "title", "party", "impact", "start", "programme", "completion before", "alone",
+                 "increment", "increment (work days)", "completion after", "notes"], rows)
     print_table("By party (increments summed)", ["party", "increments"],
-                [[r.party, r.cumulative_days] for r in result.by_party.itertuples(index=False)])
+                [[r.party, r.increment_days] for r in result.by_party.itertuples(index=False)])
     if not len(result.events):
         click.echo("No events to insert: the register is empty.")
     click.echo(ALONE_NOTE)
-    click.echo(f"Total of the cumulative impacts over the updates: {result.total_days} calendar days. {CAUTION}")
+    click.echo(f"Increments {result.total_days:+d} days and residuals {result.trace.residual_days:+d} days: "
+               f"{result.explained_days} calendar days from the planned {result.planned_completion} to "
+               f"{result.actual_completion}. {CAUTION}")
 
 
 COMMANDS = (impact, tia)

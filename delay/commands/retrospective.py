@@ -27,9 +27,13 @@ def windows(case, boundaries, no_half_step, output_format):
     case's [analysis] half_step), the movement is split into the effect of progress (the
     earlier programme brought to the later data date with the later progress) and the effect
     of revisions (deletions, additions, durations, logic, calendars, constraints, in that
-    order). Progress is charged along the driving path, traced back through actual dates;
-    charges are matched to the delay events that name the activity. Days are calendar days;
-    positive is delay, negative is gain. Every window reconciles to the day.
+    order). Progress is charged along the driving chain to the project's completion
+    activity, traced back through actual dates, by lateness against late dates by logic
+    alone (milestone constraints change nothing), counted in work days of the completion
+    activity's calendar and split into calendar days at completion. Charges go to the
+    delay events that name the activity in the window, else to the activity's risk column,
+    else to the unexplained-risk setting. Positive is delay, negative is gain. Every window
+    reconciles to the day; each section's milestone is traced the same way (--format json).
     """
     from ..methods.windows import analyse
 
@@ -40,19 +44,23 @@ def windows(case, boundaries, no_half_step, output_format):
         click.echo(json.dumps(result.to_json(), indent=2))
         return
     rows = [[w.number, w.start, w.end, w.completion_start, w.completion_end, w.movement_days,
-             w.movement_work_days, w.progress_days, w.revision_days] for w in result.windows]
-    print_table("Windows (calendar days; positive is delay)",
+             w.movement_work_days, w.progress_days, w.revision_days,
+             ", ".join(f"{p} {d:+d}" for p, d in w.by_party_days.items())] for w in result.windows]
+    print_table(f"Windows, traced to {result.target} (calendar days; work days of calendar "
+                f"'{result.ledger_calendar}'; positive is delay)",
                 ["window", "from", "to", "completion before", "completion after", "movement",
-                 "movement (work days)", "progress", "revisions"], rows)
+                 "movement (work days)", "progress", "revisions", "by party"], rows)
     for w in result.windows:
-        charged = w.charges[(w.charges["days"] != 0)]
-        lines = [[r.activity, r.name, r.days, "yes" if r.counted else "no (concurrent)",
-                  ", ".join(r.concurrent_with), ", ".join(r.events), r.party] for r in charged.itertuples()]
-        lines += [[f"({r.kind})", ", ".join(r.activities[:6]) + (" ..." if len(r.activities) > 6 else ""), r.days,
-                   "yes", "", "", "revision"] for r in w.revisions.itertuples() if r.days]
+        counted = w.counted
+        lines = [[r.activity, r.name, r.work_days, r.days, ", ".join(r.events), r.party, r.basis,
+                  ", ".join(r.concurrent_with)] for r in counted.itertuples()]
+        lines += [[f"({r.kind})", ", ".join(r.activities[:6]) + (" ..." if len(r.activities) > 6 else ""),
+                   r.work_days, r.days, ", ".join(r.events), r.party, r.basis, ""] for r in w.revisions.itertuples()]
         if lines:
             print_table(f"Window {w.number}: {w.start} to {w.end}",
-                        ["activity", "name", "days", "counted", "concurrent with", "events", "party"], lines)
+                        ["activity", "name", "work days", "days", "events", "party", "basis", "concurrent with"],
+                        lines)
+        click.echo(w.sentence)
     click.echo(f"Total movement: {result.total_movement_days} calendar days. {CAUTION}")
 
 
@@ -65,10 +73,14 @@ def windows(case, boundaries, no_half_step, output_format):
 def asbuilt(case, period, output_format):
     """As-planned versus as-built: variances, the as-built critical path, delay per period.
 
-    Planned dates are the baseline's early dates, actual dates those of the as-built record.
-    The as-built critical path is traced back from actual completion through the last
-    update's logic: each activity's driving predecessor is the one whose actual date, plus
-    the link, lies closest to its actual start.
+    Planned dates are the baseline's early dates, actual dates those of the as-built record;
+    variances are given in work days of each activity's calendar beside calendar days. The
+    as-built critical path is traced back from the project's completion activity through
+    the last update's logic: each activity's driving predecessor is the one whose actual
+    date, plus the link, lies closest to its actual start. Each activity on it contributes
+    its lateness against the baseline's late finish by logic alone, less its driving
+    predecessor's, in work days of the completion activity's calendar: float and
+    non-working days are not delay. The periods add up to the completion variance.
     """
     from ..methods.as_built import compare
 
@@ -80,12 +92,13 @@ def asbuilt(case, period, output_format):
     rows = [[r.activity, r.name, r.actual_start.date(), r.actual_finish.date(),
              "" if r.planned_finish is None or str(r.planned_finish) == "NaT" else r.planned_finish.date(),
              r.driving_predecessor, r.link, "" if str(r.gap_work_days) == "<NA>" else r.gap_work_days,
-             r.accrued_days] for r in path.itertuples()]
-    print_table("As-built critical path", ["activity", "name", "actual start", "actual finish", "planned finish",
-                                           "driven by", "link", "gap (work days)", "accrued days"], rows)
+             r.lateness_work_days, r.work_days, r.delay_days] for r in path.itertuples()]
+    print_table(f"As-built critical path to {result.target}",
+                ["activity", "name", "actual start", "actual finish", "planned finish", "driven by", "link",
+                 "gap (work days)", "late (work days)", "delay (work days)", "delay (days)"], rows)
     print_table("Delay along the as-built critical path by period",
-                ["period", "delay days", "cumulative"],
-                [[r.period, r.delay_days, r.cumulative_days] for r in result.periods.itertuples()])
+                ["period", "delay days", "work days", "cumulative"],
+                [[r.period, r.delay_days, r.work_days, r.cumulative_days] for r in result.periods.itertuples()])
     click.echo(f"Planned completion {result.planned_completion}, actual {result.actual_completion}: "
                f"{result.completion_variance_days} calendar days late. {CAUTION}")
 
@@ -100,8 +113,10 @@ def butfor(case, output_format):
     Builds an as-built model from actual durations and the last update's logic (the gaps
     before each activity's actual start kept as lags), checks that it reproduces the actual
     dates (and lists the activities it cannot, with the reason), then removes each party's
-    delay events, and each event alone, and schedules again. But-for figures need not add
-    up: removing one party's delay can leave another's in its place.
+    delay events, and each event alone, and schedules again (an event is taken out where
+    the register's asbuilt_activities says it shows, else where its activities or its
+    fragnet are). But-for figures need not add up: removing one party's delay can leave
+    another's in its place.
     """
     from ..methods.collapsed import analyse
 

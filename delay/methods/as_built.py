@@ -1,37 +1,47 @@
 """As-planned versus as-built.
 
 Compares every activity's planned dates (the baseline's early dates) with its actual dates
-(the as-built record), traces the as-built critical path backward from actual completion
-through the as-built logic, and spreads the delay along that path over periods.
+(the as-built record), traces the as-built critical path backward from the project's
+completion activity through the as-built logic, and spreads the delay along that path over
+periods by the work-day ledger of :mod:`delay.ledger` (the rules of the windows analysis,
+applied to one window from the baseline to the as-built record).
 
 - Planned dates are the baseline's early dates; planned duration is the baseline duration
   in work days. Actual duration is the number of work days of the activity's calendar from
   its actual start to its actual finish, both included (a one-day task has duration 1).
+  Start, finish and duration variances are given in work days of the activity's own
+  calendar, with the calendar-day start and finish variances beside them, so that a
+  five-day task run over a weekend does not read as late.
 - The as-built logic is that of the last update, with the as-built record's dates. Walking
-  back from the activity that finished last (where several finished that day, the last of
-  them in logic order, such as the completion milestone), each activity's driving predecessor is the
-  one whose actual date, plus the link, lies closest to the activity's actual start (or
-  finish, for FF and SF links); ties go to an FS link, then to input order. The gap is that
-  distance in work days (negative where work started out of sequence).
-- Along the path, each activity accrues its finish variance (actual less planned finish,
-  calendar days) less its driving predecessor's; the first activity of the path accrues
-  its whole variance and the last is taken as late by the completion variance, so the
-  accrued days add up exactly to the completion variance. Each activity's accrual falls in
-  the period of its actual finish.
+  back from the completion activity, each activity's driving predecessor is the one whose
+  actual date, plus the link, lies closest to the activity's actual start (or finish, for
+  FF and SF links); ties go to an FS link, then to input order. The gap is that distance
+  in work days (negative where work started out of sequence).
+- Along the path, each activity's *contribution* is its lateness against the baseline's
+  late finish by logic alone (a backward pass from the baseline's completion that ignores
+  milestone constraints), counted in work days of the ledger calendar (the completion
+  activity's) and floored by its own float (an activity that only slipped into its float is
+  not late), less its driving predecessor's. An activity that only carried an earlier delay
+  across non-working days (same gap behind its driving predecessor, same duration)
+  contributes nothing. The contributions add up to the completion's movement in work days;
+  they are split into calendar days at completion in path order, so they add up exactly to
+  the completion variance. Each contribution is dated at the activity's actual finish and
+  falls in that period.
 
 References
 ----------
 AACE International Recommended Practice 29R-03, Forensic Schedule Analysis (2011), MIP 3.1
-(observational / static / gross) and MIP 3.2 (observational / static / periodic). Society of
-Construction Law Delay and Disruption Protocol, 2nd edition (2017), Part B, as-planned versus
-as-built windows analysis.
+(observational / static / gross) and MIP 3.2 (observational / static / periodic), as
+recalled. Society of Construction Law Delay and Disruption Protocol, 2nd edition (2017),
+Part B, as-planned versus as-built windows analysis. Measuring delay on the critical path
+in work days is common practice.
 
 Assumptions
 -----------
 The as-built record is complete and accurate (after disclosed corrections), and the last
 update's logic reflects how the work was actually sequenced. Activities added after the
-baseline have no planned dates and accrue no variance of their own (they pass on their
-predecessor's).
+baseline have no planned dates and contribute nothing of their own (they pass on their
+predecessor's lateness).
 """
 
 from __future__ import annotations
@@ -42,13 +52,18 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
-from ..cpm import NO_DAY, calendars_of, prepare
+from ..cpm import NO_DAY, calendars_of, day_to_date, prepare
 from ..errors import CaseError, Problem, ReconciliationError
-from ..model import Case
+from ..events import completion_activity
+from ..ledger import ledger_number, logic_late_finish, split_days, trace_charges
 from ..output import json_date, json_int
-from ..tracing import driving_predecessors
 
-__all__ = ["compare", "AsBuiltResult"]
+__all__ = ["compare", "AsBuiltResult", "PERIODS"]
+
+#: The period lengths ``--period`` takes (pandas period aliases).
+PERIODS = ("W", "M", "Q")
+
+_TYPE_NAMES = ("FS", "SS", "FF", "SF")
 
 
 @dataclass(frozen=True)
@@ -61,6 +76,8 @@ class AsBuiltResult:
     planned_completion: dt.date
     actual_completion: dt.date
     period: str
+    target: str = ""
+    ledger_calendar: str = ""
 
     @property
     def completion_variance_days(self) -> int:
@@ -68,24 +85,33 @@ class AsBuiltResult:
 
     def to_json(self) -> dict:
         return {
+            "method": "asbuilt",
+            "target": self.target,
+            "ledger_calendar": self.ledger_calendar,
             "planned_completion": self.planned_completion.isoformat(),
             "actual_completion": self.actual_completion.isoformat(),
             "completion_variance_days": self.completion_variance_days,
             "critical_path": [
-                {"activity": r.activity, "actual_start": json_date(r.actual_start), "actual_finish": json_date(r.actual_finish),
-                 "planned_finish": json_date(r.planned_finish), "driving_predecessor": r.driving_predecessor or None,
-                 "gap_work_days": json_int(r.gap_work_days), "accrued_days": int(r.accrued_days), "period": r.period}
+                {"activity": r.activity, "actual_start": json_date(r.actual_start),
+                 "actual_finish": json_date(r.actual_finish), "planned_finish": json_date(r.planned_finish),
+                 "driving_predecessor": r.driving_predecessor or None, "link": r.link or None,
+                 "gap_work_days": json_int(r.gap_work_days), "lateness_work_days": json_int(r.lateness_work_days),
+                 "inherited": bool(r.inherited), "work_days": int(r.work_days), "delay_days": int(r.delay_days),
+                 "period": r.period}
                 for r in self.critical_path.itertuples(index=False)
             ],
             "periods": [
-                {"period": r.period, "delay_days": int(r.delay_days), "cumulative_days": int(r.cumulative_days)}
+                {"period": r.period, "delay_days": int(r.delay_days), "work_days": int(r.work_days),
+                 "cumulative_days": int(r.cumulative_days)}
                 for r in self.periods.itertuples(index=False)
             ],
             "activities": [
                 {"activity": r.id, "planned_start": json_date(r.planned_start), "planned_finish": json_date(r.planned_finish),
                  "actual_start": json_date(r.actual_start), "actual_finish": json_date(r.actual_finish),
                  "start_variance_days": json_int(r.start_variance_days),
+                 "start_variance_work_days": json_int(r.start_variance_work_days),
                  "finish_variance_days": json_int(r.finish_variance_days),
+                 "finish_variance_work_days": json_int(r.finish_variance_work_days),
                  "duration_variance_work_days": json_int(r.duration_variance_work_days)}
                 for r in self.activities.itertuples(index=False)
             ],
@@ -98,7 +124,61 @@ def _dates(days: np.ndarray) -> np.ndarray:
     return values.astype("datetime64[s]")
 
 
-def compare(case: Case, period: str = "M") -> AsBuiltResult:
+def _work_index(calendars, cal: np.ndarray, days: np.ndarray, finish: bool) -> pd.array:
+    """Work-day indices of day numbers on each activity's calendar (``<NA>`` for none)."""
+    days = np.asarray(days, dtype=np.int64)
+    known = days != NO_DAY
+    out = np.zeros(days.size, dtype=np.int64)
+    if known.any():
+        convert = calendars.finish_index_days if finish else calendars.start_index_days
+        out[known] = convert(cal[known], days[known])
+    values = pd.array(out, dtype="Int64")
+    values[~known] = pd.NA
+    return values
+
+
+def _activity_table(planned, built) -> pd.DataFrame:
+    """Every activity, planned against actual, with variances in calendar and work days."""
+    calendars = built.model.calendars
+    planned_start_day = planned.day_array("early_start")
+    planned_finish_day = planned.day_array("early_finish")
+    actual_start_day = built.day_array("early_start")
+    actual_finish_day = built.day_array("early_finish")
+    cal = built.model.calendar
+    work_days = (calendars.finish_index_days(cal, actual_finish_day) + 1 - calendars.start_index_days(cal, actual_start_day))
+    milestone = (built.point != 0) | (built.model.kind != 0)
+    actual = pd.DataFrame({
+        "id": built.ids, "name": built.model.names, "actual_start": _dates(actual_start_day),
+        "actual_finish": _dates(actual_finish_day),
+        "actual_duration": np.where(milestone, 0, np.maximum(work_days, 0)),
+        "_actual_start_index": _work_index(calendars, cal, actual_start_day, False),
+        "_actual_finish_index": _work_index(calendars, cal, actual_finish_day, True),
+    })
+    # the planned dates counted on the as-built calendar of each activity
+    where = built.model.network.index_of(planned.ids)
+    plan_cal = np.where(where >= 0, cal[np.maximum(where, 0)], planned.model.calendar)
+    plan = pd.DataFrame({
+        "id": planned.ids, "planned_start": _dates(planned_start_day), "planned_finish": _dates(planned_finish_day),
+        "planned_duration": planned.model.duration,
+        "_planned_start_index": _work_index(calendars, plan_cal, planned_start_day, False),
+        "_planned_finish_index": _work_index(calendars, plan_cal, planned_finish_day, True),
+    })
+    table = actual.merge(plan, on="id", how="outer", sort=False)
+    order = pd.Index(list(built.ids) + list(pd.Index(planned.ids).difference(pd.Index(built.ids), sort=False)))
+    table = table.set_index("id").reindex(order).rename_axis("id").reset_index()
+    table["start_variance_days"] = (table["actual_start"] - table["planned_start"]).dt.days.astype("Int64")
+    table["start_variance_work_days"] = (table["_actual_start_index"] - table["_planned_start_index"]).astype("Int64")
+    table["finish_variance_days"] = (table["actual_finish"] - table["planned_finish"]).dt.days.astype("Int64")
+    table["finish_variance_work_days"] = (table["_actual_finish_index"]
+                                          - table["_planned_finish_index"]).astype("Int64")
+    table["duration_variance_work_days"] = (table["actual_duration"] - table["planned_duration"]).astype("Int64")
+    return table[["id", "name", "planned_start", "planned_finish", "planned_duration", "actual_start",
+                  "actual_finish", "actual_duration", "start_variance_days", "start_variance_work_days",
+                  "finish_variance_days", "finish_variance_work_days", "duration_variance_work_days"]
+                 ].reset_index(drop=True)
+
+
+def compare(case, period: str = "M") -> AsBuiltResult:
     """As-planned versus as-built comparison of a case.
 
     Parameters
@@ -110,14 +190,22 @@ def compare(case: Case, period: str = "M") -> AsBuiltResult:
     Returns
     -------
     AsBuiltResult
-        ``activities`` (planned and actual dates, durations, variances), ``critical_path``
-        (in time order, with each driving predecessor, link gap and accrued days),
-        ``periods`` (delay per period along the path, with the running total).
+        ``activities`` (planned and actual dates, durations, variances in calendar and work
+        days), ``critical_path`` (in path order, with each driving predecessor, link gap,
+        lateness, contribution in work days and calendar days, and period), ``periods``
+        (delay per period along the path: calendar days, ledger work days and the running
+        total).
 
     Raises
     ------
-    CaseError: the case has no as-built record.
-    ReconciliationError: the accrued days do not add up to the completion variance.
+    CaseError: the case has no as-built record, or the completion activity is not in both
+        the baseline and the record.
+    ReconciliationError: the contributions do not add up to the completion variance.
+
+    References
+    ----------
+    AACE RP 29R-03 (2011), MIP 3.1 and 3.2; SCL Delay and Disruption Protocol, 2nd edition
+    (2017), Part B, as-planned versus as-built windows analysis.
     """
     if case.asbuilt_snapshot is None:
         raise CaseError(Problem(file="asbuilt.csv", message="the case has no as-built record",
@@ -125,85 +213,63 @@ def compare(case: Case, period: str = "M") -> AsBuiltResult:
     calendars = calendars_of(case)
     planned = prepare(case, case.baseline, calendars=calendars).run()
     built = prepare(case, case.asbuilt_snapshot, calendars=calendars).run()
+    target = completion_activity(case)
+    k_plan = int(planned.model.network.index_of([target])[0])
+    k_built = int(built.model.network.index_of([target])[0])
+    if k_plan < 0 or k_built < 0:
+        raise CaseError(Problem(file="case.toml", column="completion_activity",
+                                message=f"the completion activity '{target}' is not in the baseline and the as-built record",
+                                fix="name an activity both have in [project] completion_activity"))
+    table = _activity_table(planned, built)
+    planned_day, actual_day = int(planned.finish_day[k_plan]), int(built.finish_day[k_built])
+    ledger = ledger_number(planned, target)
+    late = logic_late_finish(planned, k_plan)
+    stop = np.zeros(built.ids.size, dtype=bool)
+    charges = trace_charges(built, planned, late, target, stop, ledger)
+    chain = charges[charges["counted"].astype(bool)].reset_index(drop=True)
+    days = split_days(planned_day, actual_day, chain["work_days"], built, ledger)
+    path = _path_table(built, table, chain, days, period)
+    variance_total = actual_day - planned_day
+    if int(path["delay_days"].sum()) != variance_total:
+        raise ReconciliationError("as-built critical path", {"contributions": int(path["delay_days"].sum()),
+                                                             "completion variance": variance_total})
+    periods = path.groupby("period", sort=True)[["delay_days", "work_days"]].sum().reset_index()
+    periods["cumulative_days"] = periods["delay_days"].cumsum()
+    return AsBuiltResult(table, path, periods, day_to_date(planned_day), day_to_date(actual_day), period,
+                         target=target, ledger_calendar=calendars.names[ledger])
 
-    plan = pd.DataFrame({
-        "id": planned.ids,
-        "planned_start": _dates(planned.day_array("early_start")),
-        "planned_finish": _dates(planned.day_array("early_finish")),
-        "planned_duration": case.baseline.activities["duration"].to_numpy(),
-    })
-    actual_start_day = built.day_array("early_start")
-    actual_finish_day = built.day_array("early_finish")
-    cal = built.model.calendar
-    work_days = (calendars.finish_index_days(cal, actual_finish_day) + 1
-                 - calendars.start_index_days(cal, actual_start_day))
-    milestone = (built.point != 0) | (built.model.kind != 0)
-    actual = pd.DataFrame({
-        "id": built.ids,
-        "name": built.model.names,
-        "actual_start": _dates(actual_start_day),
-        "actual_finish": _dates(actual_finish_day),
-        "actual_duration": np.where(milestone, 0, np.maximum(work_days, 0)),
-    })
-    table = plan.merge(actual, on="id", how="outer", sort=False)
-    order = {a: i for i, a in enumerate(list(built.ids) + [a for a in planned.ids if a not in set(built.ids)])}
-    table = table.assign(_order=table["id"].map(order)).sort_values("_order").drop(columns="_order")
-    table["start_variance_days"] = (table["actual_start"] - table["planned_start"]).dt.days.astype("Int64")
-    table["finish_variance_days"] = (table["actual_finish"] - table["planned_finish"]).dt.days.astype("Int64")
-    table["duration_variance_work_days"] = (table["actual_duration"] - table["planned_duration"]).astype("Int64")
-    table = table[["id", "name", "planned_start", "planned_finish", "planned_duration", "actual_start",
-                   "actual_finish", "actual_duration", "start_variance_days", "finish_variance_days",
-                   "duration_variance_work_days"]].reset_index(drop=True)
 
-    planned_completion = planned.completion
-    actual_completion = built.completion
-    variance_total = (actual_completion - planned_completion).days
-
-    # the as-built critical path, walking back from the last finish
+def _path_table(built, table: pd.DataFrame, chain: pd.DataFrame, days: np.ndarray, period: str) -> pd.DataFrame:
+    """The as-built critical path in path order, with each activity's contribution."""
     net = built.model.network
-    last = np.flatnonzero(built.finish_day == built.completion_day)
-    current = int(max(last, key=lambda v: (net.rank[v], -v)))
-    chain: list[tuple[int, int | None, int | None, int | None]] = []
-    seen = set()
-    while current not in seen:
-        seen.add(current)
-        found = driving_predecessors(built, current)
-        if not found:
-            chain.append((current, None, None, None))
-            break
-        pred, link, gap = found[0]
-        chain.append((current, pred, link, gap))
-        current = pred
-    chain.reverse()
-    finish_variance = dict(zip(table["id"], table["finish_variance_days"]))
+    numbers = net.index_of(list(chain["activity"]))
+    predecessors = net.index_of([p or "" for p in chain["driving_predecessor"]])
+    planned_finish = table.set_index("id")["planned_finish"]
+    actual_start = built.day_array("early_start")
+    actual_finish = built.day_array("early_finish")
     rows = []
-    previous = 0
-    for position, (v, pred, link, gap) in enumerate(chain):
-        activity = str(net.ids[v])
-        variance = finish_variance.get(activity)
-        if position == len(chain) - 1:
-            variance = variance_total
-        elif variance is None or pd.isna(variance):
-            variance = previous
-        accrued = int(variance) - previous
-        previous = int(variance)
-        finish = pd.Timestamp(_dates(np.array([actual_finish_day[v]]))[0])
+    for i, (v, p) in enumerate(zip(numbers, predecessors)):
+        link, gap = "", pd.NA
+        if p >= 0:
+            links = net.in_link[net.in_ptr[v]:net.in_ptr[v + 1]]
+            links = links[net.pred[links] == p]
+            if links.size:
+                e = int(links[np.argmin(np.abs(built.link_gaps[links]))])
+                lag = int(net.lag[e])
+                link = _TYPE_NAMES[int(net.link_type[e])] + (f"{lag:+d}" if lag else "")
+                gap = int(built.link_gaps[e])
+        finish = pd.Timestamp(_dates(np.array([actual_finish[v]]))[0])
         rows.append({
-            "activity": activity, "name": built.model.names[v],
-            "actual_start": pd.Timestamp(_dates(np.array([actual_start_day[v]]))[0]), "actual_finish": finish,
-            "planned_finish": plan.set_index("id")["planned_finish"].get(activity, pd.NaT),
-            "driving_predecessor": str(net.ids[pred]) if pred is not None else "",
-            "link": "" if link is None else ["FS", "SS", "FF", "SF"][int(net.link_type[link])] + (
-                f"{int(net.lag[link]):+d}" if net.lag[link] else ""),
-            "gap_work_days": pd.NA if gap is None else int(gap),
-            "finish_variance_days": int(variance), "accrued_days": accrued,
+            "activity": str(net.ids[v]), "name": built.model.names[v],
+            "actual_start": pd.Timestamp(_dates(np.array([actual_start[v]]))[0]), "actual_finish": finish,
+            "planned_finish": planned_finish.get(str(net.ids[v]), pd.NaT),
+            "driving_predecessor": str(net.ids[p]) if p >= 0 else "", "link": link, "gap_work_days": gap,
+            "lateness_work_days": int(chain["level"].iloc[i]), "inherited": bool(chain["inherited"].iloc[i]),
+            "work_days": int(chain["work_days"].iloc[i]), "delay_days": int(days[i]),
             "period": str(finish.to_period(period)),
         })
-    path = pd.DataFrame(rows)
+    columns = ["activity", "name", "actual_start", "actual_finish", "planned_finish", "driving_predecessor", "link",
+               "gap_work_days", "lateness_work_days", "inherited", "work_days", "delay_days", "period"]
+    path = pd.DataFrame(rows, columns=columns)
     path["gap_work_days"] = path["gap_work_days"].astype("Int64")
-    if int(path["accrued_days"].sum()) != variance_total:
-        raise ReconciliationError("as-built critical path", {"accrued days": int(path["accrued_days"].sum()),
-                                                             "completion variance": variance_total})
-    periods = path.groupby("period", sort=True)["accrued_days"].sum().reset_index(name="delay_days")
-    periods["cumulative_days"] = periods["delay_days"].cumsum()
-    return AsBuiltResult(table, path, periods, planned_completion, actual_completion, period)
+    return path

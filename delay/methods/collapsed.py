@@ -33,14 +33,20 @@ Taking out the delay of an event
 --------------------------------
 - ``extend``: each named activity's actual duration is shortened by the event's days (not
   below zero).
-- ``hold``: the event explains the part of the named activity's gap (the work days before
-  its actual start that its driving links kept as lag, or its start-no-earlier bound
-  kept) that falls between the event's start and finish, both included; that many work
-  days come off the gap. Days of the gap after the event's finish (remobilisation, say) or
-  before its start are not the hold's and stay. Several holds on one activity take out the
-  work days they cover together, each day once. (Where a driving link crosses calendars and
-  its lag counts in the predecessor's work days, that many of those days come off it.)
-- ``fragnet``: the event's fragnet activities that are in the as-built record are removed:
+- ``hold``: a hold stops work on the activity from the event's start to its finish, both
+  included. The work days of that period that fall within the activity's actual dates (a
+  suspension of work in progress) come off its actual duration; those that fall in its gap
+  (the work days before its actual start that its driving links kept as lag, or its
+  start-no-earlier bound kept) come off the gap. Days of the gap after the event's finish
+  (remobilisation, say) or before its start are not the hold's and stay. Several holds on
+  one activity take out the work days they cover together, each day once. (Where a driving
+  link crosses calendars and its lag counts in the predecessor's work days, that many of
+  those days come off it.)
+- The activities an event shows in are its ``asbuilt_activities`` when the register gives
+  them (case format v2: for example a fragnet that the as-built record shows as one
+  recorded activity of its own), else its ``activities`` (for a fragnet, its fragnet's
+  activities).
+- ``fragnet``: the activities it shows in that are in the as-built record are removed:
   their duration becomes zero, the links into them (and between them) lose their lags,
   including any gap kept on them, and the links from them to the programme's activities
   lose their own lags; the gap a successor kept after the fragnet stays with the
@@ -54,7 +60,8 @@ Taking out the delay of an event
   completion.
 
 Figures are given for each party (all its events taken out together), for all events
-together (``party = "all"``), and for each event alone.
+together (``party = "all"``), and for each event alone, measured at the project's completion
+activity.
 **But-for figures need not add up**: where two delays run on parallel paths, taking out
 either alone may move completion little or not at all, while taking out both moves it a
 lot; and float on another path can absorb part of any of them. A party's but-for figure is therefore not the sum of its
@@ -89,7 +96,7 @@ from dataclasses import dataclass, field
 import numpy as np
 import pandas as pd
 
-from ..causation import event_activities
+from ..events import asbuilt_activities, completion_activity
 from ..cpm import FINISH_MILESTONE, NO_DAY, ScheduleResult, calendars_of, prepare
 from ..errors import CaseError, Problem
 from ..model import PARTIES, Case
@@ -198,6 +205,7 @@ class _Removal:
 
     shorten: dict[int, int] = field(default_factory=dict)  # activity -> work days off its duration
     holds: dict[int, list[tuple[int, int]]] = field(default_factory=dict)  # activity -> gap days covered
+    suspended: dict[int, list[tuple[int, int]]] = field(default_factory=dict)  # activity -> held work days
     fragnet: set[int] = field(default_factory=set)  # fragnet activities to remove
 
     def add(self, other: "_Removal") -> None:
@@ -205,11 +213,13 @@ class _Removal:
             self.shorten[v] = self.shorten.get(v, 0) + days
         for v, spans in other.holds.items():
             self.holds.setdefault(v, []).extend(spans)
+        for v, spans in other.suspended.items():
+            self.suspended.setdefault(v, []).extend(spans)
         self.fragnet |= other.fragnet
 
     @property
     def empty(self) -> bool:
-        return not (self.shorten or self.holds or self.fragnet)
+        return not (self.shorten or self.holds or self.suspended or self.fragnet)
 
 
 def _covered(spans: list[tuple[int, int]]) -> int:
@@ -328,6 +338,18 @@ class _AsBuiltModel:
         low, high = max(boundary - gap, first), min(boundary - 1, last)
         return (low, high) if low <= high else None
 
+    def work_days_held(self, v: int, start_day: int, finish_day: int) -> tuple[int, int] | None:
+        """The work-day indices of ``v``'s own work (actual start to actual finish) between
+        two dates (inclusive), or None (a milestone has no work to hold)."""
+        if self.actual_duration[v] <= 0:
+            return None
+        cal = self.cal[v:v + 1]
+        first = int(self.calendars.start_index_days(cal, np.array([start_day]))[0])
+        last = int(self.calendars.finish_index_days(cal, np.array([finish_day]))[0])
+        low = max(int(self.calendars.start_index_days(cal, np.array([self.actual_start[v]]))[0]), first)
+        high = min(int(self.calendars.finish_index_days(cal, np.array([self.actual_finish[v]]))[0]), last)
+        return (low, high) if low <= high else None
+
     # -- but-for runs ---------------------------------------------------------------------------
     def run(self, removal: _Removal) -> ScheduleResult:
         net = self.network
@@ -337,6 +359,10 @@ class _AsBuiltModel:
         if removal.shorten:
             where = np.fromiter(removal.shorten.keys(), dtype=np.int64)
             days = np.fromiter(removal.shorten.values(), dtype=np.int64)
+            duration[where] = np.maximum(duration[where] - days, 0)
+        if removal.suspended:
+            where = np.fromiter(removal.suspended.keys(), dtype=np.int64)
+            days = np.asarray([_covered(spans) for spans in removal.suspended.values()], dtype=np.int64)
             duration[where] = np.maximum(duration[where] - days, 0)
         if removal.holds:
             where = np.fromiter(removal.holds.keys(), dtype=np.int64)
@@ -433,30 +459,30 @@ def _mismatches(built: _AsBuiltModel) -> tuple[pd.DataFrame, np.ndarray]:
     return frame, wrong
 
 
-def _event_removal(built: _AsBuiltModel, named: dict[str, set[str]], fragnets: dict[str, list[str]],
-                   event) -> tuple[_Removal | None, bool, str, str]:
+def _event_removal(built: _AsBuiltModel, shows: dict[str, list[str]], event) -> tuple[_Removal | None, bool, str, str]:
     """(removal or None when not scored, found in the as-built, removed in words, note)."""
     net = built.network
     index = pd.Index(net.ids)
     impact = event.impact
     removal = _Removal()
+    activities = list(shows.get(event.id, []))
+    given = "asbuilt_activities" in event._fields and bool(str(getattr(event, "asbuilt_activities") or "").strip())
     if impact == "fragnet":
-        ids = fragnets.get(event.id, [])
-        if not ids:
+        if not activities:
             return None, False, "", "the event has no activities in fragnets.csv, so there is nothing to take out"
-        numbers = index.get_indexer(pd.Index(ids))
-        present = [a for a, k in zip(ids, numbers) if k >= 0]
-        absent = [a for a, k in zip(ids, numbers) if k < 0]
+        numbers = index.get_indexer(pd.Index(activities))
+        present = [a for a, k in zip(activities, numbers) if k >= 0]
+        absent = [a for a, k in zip(activities, numbers) if k < 0]
+        what = "the activities it shows in (asbuilt_activities)" if given else "its fragnet activities"
         if not present:
             return None, False, "", (
-                f"its fragnet activities ({', '.join(ids)}) are not in the as-built record: the collapsed "
-                "as-built can take out only work that was recorded, so the event is reported, not scored")
+                f"{what} ({', '.join(activities)}) are not in the as-built record: the collapsed as-built can take "
+                "out only work that was recorded, so the event is reported, not scored (asbuilt_activities in "
+                "events.csv can name the recorded activities where it shows)")
         removal.fragnet = {int(k) for k in numbers if k >= 0}
-        note = ""
-        if absent:
-            note = f"fragnet activities not in the as-built record, not taken out: {', '.join(absent)}"
-        return removal, True, f"fragnet activities removed: {', '.join(present)}", note
-    activities = sorted(named.get(event.id, set()))
+        note = f"not in the as-built record, not taken out: {', '.join(absent)}" if absent else ""
+        removed = ("recorded activities removed (asbuilt_activities): " if given else "fragnet activities removed: ")
+        return removal, True, removed + ", ".join(present), note
     if impact not in ("extend", "hold"):
         return None, False, "", "the event gives no impact (extend, hold or fragnet), so there is nothing to take out"
     numbers = index.get_indexer(pd.Index(activities)) if activities else np.empty(0, np.int64)
@@ -479,17 +505,22 @@ def _event_removal(built: _AsBuiltModel, named: dict[str, set[str]], fragnets: d
     start_day = int(np.datetime64(event.start, "D").astype(np.int64))
     finish_day = int(np.datetime64(event.finish, "D").astype(np.int64))
     for activity, v in present:
+        inside = built.work_days_held(v, start_day, finish_day)
         span = built.gap_days(v, start_day, finish_day)
-        if span is None:
-            if built.gap_of(v) <= 0:
-                notes.append(f"{activity} has no gap before its actual start for the hold to explain")
-            else:
-                notes.append(f"the hold does not overlap the gap before {activity}'s actual start")
+        if inside is None and span is None:
+            notes.append(f"{activity}: the hold overlaps neither its actual work nor the gap before its actual start")
             continue
-        removal.holds[v] = [span]
-        held = "start-no-earlier bound" if built.open_start[v] else "gap"
-        words.append(f"{activity} {held} {built.gap_of(v)} to {built.gap_of(v) - (span[1] - span[0] + 1)} work days")
-    return removal, True, ("gaps shortened: " + ", ".join(words)) if words else "", "; ".join(notes)
+        if inside is not None:
+            removal.suspended[v] = [inside]
+            held = inside[1] - inside[0] + 1
+            words.append(f"{activity} {int(built.actual_duration[v])} to {int(built.actual_duration[v]) - held} work "
+                         "days (work suspended)")
+        if span is not None:
+            removal.holds[v] = [span]
+            held = "start-no-earlier bound" if built.open_start[v] else "gap"
+            words.append(f"{activity} {held} {built.gap_of(v)} to {built.gap_of(v) - (span[1] - span[0] + 1)} "
+                         "work days")
+    return removal, True, ("shortened: " + ", ".join(words)) if words else "", "; ".join(notes)
 
 
 # -- the method -----------------------------------------------------------------------------------
@@ -534,8 +565,13 @@ def analyse(case: Case) -> CollapsedResult:
     built = _AsBuiltModel(case)
     net = built.network
     result = built.result
-    modelled_day = int(result.completion_day)
-    actual_day = int(built.recorded.completion_day)
+    target = completion_activity(case)
+    k = int(net.index_of([target])[0])
+    if k < 0:
+        raise CaseError(Problem(file="asbuilt.csv", message=f"the completion activity '{target}' is not in the as-built "
+                                "record", fix="name an activity of the as-built record in [project] completion_activity"))
+    modelled_day = int(result.finish_day[k])
+    actual_day = int(built.recorded.finish_day[k])
     mismatches, wrong = _mismatches(built)
     default = built.calendars[case.settings.schedule.default_calendar]
     modelled_index = int(default.finish_index_days(np.array([modelled_day]))[0])
@@ -545,7 +581,7 @@ def analyse(case: Case) -> CollapsedResult:
     def figures(removal: _Removal | None, where: str):
         if removal is None:
             return pd.NaT, pd.NA, pd.NA
-        day = int(built.run(removal).completion_day) if not removal.empty else modelled_day
+        day = int(built.run(removal).finish_day[k]) if not removal.empty else modelled_day
         if day > modelled_day:
             # possible with start-to-start and finish-to-finish logic: a shorter activity can
             # hold its successors later (the reverse effect); reported, not hidden
@@ -556,11 +592,7 @@ def analyse(case: Case) -> CollapsedResult:
         return pd.Timestamp(_date(day)), modelled_day - day, work
 
     events = case.events
-    named = event_activities(case)
-    fragnet_table = case.fragnets
-    fragnets: dict[str, list[str]] = {}
-    for event_id, activity in zip(fragnet_table["event"].to_numpy(object), fragnet_table["id"].to_numpy(object)):
-        fragnets.setdefault(event_id, []).append(activity)
+    shows = asbuilt_activities(case)
 
     event_rows = []
     by_party_removal: dict[str, _Removal] = {}
@@ -568,7 +600,7 @@ def analyse(case: Case) -> CollapsedResult:
     unscored: dict[str, list[str]] = {}
     everything = _Removal()
     for event in events.itertuples(index=False):
-        removal, found, removed, note = _event_removal(built, named, fragnets, event)
+        removal, found, removed, note = _event_removal(built, shows, event)
         but_for, earlier, work = figures(removal, f"but for event {event.id}")
         if removal is not None:
             by_party_removal.setdefault(event.party, _Removal()).add(removal)

@@ -1,21 +1,33 @@
 """Impacted as-planned: delay events inserted into a programme, one at a time.
 
-Each event of the register is modelled in the base programme and the programme is
-re-scheduled:
+Each event of the register is modelled in the base programme (by default the baseline) at
+its real dates, and the programme is re-scheduled:
 
 - ``extend`` lengthens each named activity by the event's ``days`` (work days; an activity
   already started gets them on its remaining duration);
-- ``hold`` keeps each named activity from starting before the day after the event's finish;
+- ``hold`` stops work on each named activity from the event's start to its finish, both
+  included, whatever its status: its work days in that period become non-working for it
+  alone (a calendar derived from its own), so work before the hold stands and the rest
+  resumes after it. An activity that the programme has no work on in that period (planned
+  to finish before the hold, to start after it, or complete) is not affected, and the
+  result says so;
 - ``fragnet`` inserts the event's activities (fragnets.csv) and links (fragnet_links.csv);
   a fragnet activity with no predecessor in its fragnet starts no earlier than the event's
   start.
 
-Two figures are reported for every event. Its impact *alone* is the movement of completion
+Two figures are reported for every event, measured at the project's completion activity
+(and, for each section, at its completion milestone). Its impact *alone* is the movement
 with that event only; these need not add up to anything, since events on parallel paths
 overlap and one event can hide behind another. Its *increment* is the movement it adds in a
 cumulative run, the events inserted one after another (by default in chronological order:
 by start, then finish, then register row); the increments add up exactly to the cumulative
 impact, and a failure to do so raises :class:`delay.errors.ReconciliationError`.
+
+The method measures the plan's response to the events, not what happened. The *residual*,
+the actual completion (the as-built record's, else the last update's forecast) less the
+completion with every event inserted, is what the events do not explain: positive, delay
+no event explains; negative, the works finished earlier than the impacted plan (the
+contractor's recovery, or events modelled larger than they were).
 
 References
 ----------
@@ -33,25 +45,23 @@ what the events would have done to the plan, not what happened).
 from __future__ import annotations
 
 import datetime as dt
-from dataclasses import dataclass
-from typing import Sequence
+from dataclasses import dataclass, field
+from typing import Callable, Sequence
 
 import numpy as np
 import pandas as pd
 
-from ..cpm import ScheduleModel, calendars_of, prepare
+from ..cpm import COMPLETE, NO_DAY, ScheduleModel, ScheduleResult, calendars_of, day_to_date, prepare
 from ..errors import CaseError, Problem, ReconciliationError
-from ..model import Case, Snapshot
+from ..events import completion_activity, split_ids
+from ..model import PARTIES, Case, Snapshot
 
-__all__ = ["analyse", "ImpactedResult", "event_changes", "order_events", "apply_event", "run_events", "EVENT_COLUMNS"]
+__all__ = ["analyse", "ImpactedResult", "ImpactedRun", "event_changes", "order_events", "apply_event",
+           "run_events", "EVENT_COLUMNS", "targets_of", "actual_finishes"]
 
 EVENT_COLUMNS = ["id", "title", "party", "impact", "start", "finish", "activities", "alone_days",
-                 "alone_work_days", "completion_alone", "cumulative_days", "cumulative_work_days",
-                 "completion_after", "applied"]
-
-
-def _split(text) -> list[str]:
-    return [a.strip() for a in str(text or "").split(";") if a.strip()]
+                 "alone_work_days", "completion_alone", "increment_days", "increment_work_days",
+                 "completion_after", "applied", "effect"]
 
 
 def order_events(case: Case, events: Sequence[str] | None = None, order: str = "chronological") -> pd.DataFrame:
@@ -86,20 +96,67 @@ def order_events(case: Case, events: Sequence[str] | None = None, order: str = "
     return register.drop(columns=["_row", "_listed"]).reset_index(drop=True)
 
 
-def event_changes(case: Case, event: pd.Series, present: set[str]) -> dict:
+def _hold_effects(event: pd.Series, named: list[str], schedule: ScheduleResult) -> tuple[list[str], list[str]]:
+    """Which named activities a hold stops (work planned in its period), and a sentence for
+    each one it leaves alone."""
+    first = np.datetime64(pd.Timestamp(event["start"]).date(), "D").astype(np.int64)
+    last = np.datetime64(pd.Timestamp(event["finish"]).date(), "D").astype(np.int64)
+    where = schedule.model.network.index_of(named)
+    start = schedule.day_array("early_start")
+    finish = schedule.day_array("early_finish")
+    data_day = schedule.model.data_day
+    held, notes = [], []
+    for activity, k in zip(named, where):
+        if schedule.status[k] == COMPLETE:
+            notes.append(f"{activity}: no effect on this programme: the work was complete before the hold")
+            continue
+        begins = max(int(start[k]), data_day) if schedule.status[k] != 0 else int(start[k])
+        if int(finish[k]) < first:
+            notes.append(f"{activity}: no effect on this programme: the work is planned to finish before the hold")
+        elif begins > last:
+            notes.append(f"{activity}: no effect on this programme: the work is planned to start after the hold")
+        else:
+            held.append(activity)
+    return held, notes
+
+
+def event_changes(case: Case, event: pd.Series, present: set[str],
+                  schedule: ScheduleResult | Callable[[], ScheduleResult] | None = None) -> dict:
     """The ``what_if`` arguments that model one event in a programme whose activity ids are
-    ``present``; names of affected activities missing from it are listed under ``missing``."""
+    ``present``.
+
+    Parameters
+    ----------
+    case, event:
+        The case and one row of its event register.
+    present:
+        The activity ids of the programme (fragnet activities already inserted included).
+    schedule:
+        The programme's schedule before the event (or a function giving it): a hold
+        needs it, to tell which named activities have work in its period.
+
+    Returns
+    -------
+    dict
+        ``what_if`` keyword arguments, and ``missing`` (named activities not in the
+        programme), ``notes`` (what the event leaves alone, in words) and, for a fragnet,
+        ``touches`` (the programme activities it names).
+    """
     impact = event["impact"]
-    named = _split(event["activities"])
+    named = split_ids(event["activities"])
     missing = [a for a in named if a not in present]
     named = [a for a in named if a in present]
-    changes: dict = {"missing": missing}
+    changes: dict = {"missing": missing, "notes": []}
     if impact == "extend":
         days = int(event["days"]) if pd.notna(event["days"]) else 0
         changes["extend"] = {a: days for a in named}
     elif impact == "hold":
-        release = (pd.Timestamp(event["finish"]) + pd.Timedelta(days=1)).date()
-        changes["start_no_earlier"] = {a: release for a in named}
+        if named and pd.notna(event["start"]) and pd.notna(event["finish"]):
+            found = schedule() if callable(schedule) else schedule
+            held, notes = _hold_effects(event, named, found) if found is not None else (named, [])
+            period = (pd.Timestamp(event["start"]).date(), pd.Timestamp(event["finish"]).date())
+            changes["hold"] = {a: [period] for a in held}
+            changes["notes"] = notes
     elif impact == "fragnet":
         fragnet = case.fragnets[case.fragnets["event"] == event["id"]]
         links = case.fragnet_links[case.fragnet_links["event"] == event["id"]]
@@ -119,44 +176,134 @@ def event_changes(case: Case, event: pd.Series, present: set[str]) -> dict:
     return changes
 
 
-def apply_event(model: ScheduleModel, case: Case, event: pd.Series, present: set[str]) -> tuple[ScheduleModel, list[str]]:
-    """``model`` with one event inserted, and the named activities it could not find."""
-    changes = event_changes(case, event, present)
+def apply_event(model: ScheduleModel, case: Case, event: pd.Series, present: set[str],
+                schedule: ScheduleResult | Callable[[], ScheduleResult] | None = None
+                ) -> tuple[ScheduleModel, list[str], list[str]]:
+    """``model`` with one event inserted, the named activities it could not find, and what
+    the event leaves alone, in words (see :func:`event_changes`)."""
+    if schedule is None and event["impact"] == "hold":
+        schedule = model.run
+    changes = event_changes(case, event, present, schedule)
     missing = changes.pop("missing")
+    notes = changes.pop("notes")
     changes.pop("touches", None)
     arguments = {k: v for k, v in changes.items() if v is not None and len(v)}
     if not arguments:
-        return model, missing
-    return model.what_if(**arguments), missing
+        return model, missing, notes
+    return model.what_if(**arguments), missing, notes
+
+
+def targets_of(case: Case) -> list[str]:
+    """The activities the modelled methods measure: the project's completion activity, then
+    each section's completion milestone (each once)."""
+    return list(dict.fromkeys([completion_activity(case), *case.sections["completion_activity"].astype(str)]))
+
+
+def actual_finishes(case: Case, targets: Sequence[str]) -> np.ndarray:
+    """Each target's actual finish (the as-built record's, else the last update's forecast),
+    as day numbers; :data:`delay.cpm.NO_DAY` where the record lacks it."""
+    record = case.asbuilt_snapshot if case.asbuilt_snapshot is not None else case.snapshots[-1]
+    result = prepare(case, record, calendars=calendars_of(case)).run()
+    return _finish_of(result.finish_day, result.model.network.index_of(list(targets)))
+
+
+def _finish_of(finish: np.ndarray, where: np.ndarray) -> np.ndarray:
+    return np.where(where >= 0, finish[np.maximum(where, 0)], NO_DAY)
+
+
+@dataclass(frozen=True)
+class ImpactedRun:
+    """One target's figures of a run of events: ``events`` (:data:`EVENT_COLUMNS`, days
+    measured at the target's finish), its completion before and after every event, and
+    its actual completion."""
+
+    target: str
+    completion_base: dt.date
+    completion_cumulative: dt.date
+    actual_completion: dt.date
+    events: pd.DataFrame
+
+    @property
+    def total_days(self) -> int:
+        """The cumulative impact: the increments' sum."""
+        return (self.completion_cumulative - self.completion_base).days
+
+    @property
+    def residual_days(self) -> int:
+        """The actual completion less the completion with every event inserted."""
+        return (self.actual_completion - self.completion_cumulative).days
+
+    @property
+    def explained_days(self) -> int:
+        """The actual less the planned completion: the increments plus the residual."""
+        return (self.actual_completion - self.completion_base).days
 
 
 @dataclass(frozen=True)
 class ImpactedResult:
-    """Per event: impact alone and increment in the cumulative run; per party likewise."""
+    """Per event: impact alone and increment in the cumulative run, for the whole works
+    (``run``, at the project's completion activity) and each section (``sections``:
+    section id to its :class:`ImpactedRun`); per party likewise."""
 
     base: str
-    completion_base: dt.date
-    completion_cumulative: dt.date
-    events: pd.DataFrame
+    run: ImpactedRun
     by_party: pd.DataFrame
     order: str
     notes: tuple[str, ...]
+    sections: dict = field(default_factory=dict, repr=False)
+
+    @property
+    def events(self) -> pd.DataFrame:
+        return self.run.events
+
+    @property
+    def completion_base(self) -> dt.date:
+        return self.run.completion_base
+
+    @property
+    def completion_cumulative(self) -> dt.date:
+        return self.run.completion_cumulative
+
+    @property
+    def actual_completion(self) -> dt.date:
+        return self.run.actual_completion
 
     @property
     def total_days(self) -> int:
-        return (self.completion_cumulative - self.completion_base).days
+        return self.run.total_days
+
+    @property
+    def residual_days(self) -> int:
+        return self.run.residual_days
+
+    @property
+    def explained_days(self) -> int:
+        return self.run.explained_days
 
     def to_json(self) -> dict:
         return {
+            "method": "impacted",
             "base": self.base,
+            "target": self.run.target,
             "completion_base": self.completion_base.isoformat(),
-            "events": [
-                {"id": r.id, "party": r.party, "alone_days": int(r.alone_days), "cumulative_days": int(r.cumulative_days),
-                 "completion_after": r.completion_after.isoformat()}
-                for r in self.events.itertuples(index=False)
-            ],
+            "completion_cumulative": self.completion_cumulative.isoformat(),
+            "actual_completion": self.actual_completion.isoformat(),
+            "events": _event_json(self.events),
             "total_days": self.total_days,
+            "residual_days": self.residual_days,
+            "explained_days": self.explained_days,
+            "sections": {section: {"target": run.target, "events": _event_json(run.events),
+                                   "total_days": run.total_days, "residual_days": run.residual_days,
+                                   "explained_days": run.explained_days}
+                         for section, run in self.sections.items()},
+            "notes": list(self.notes),
         }
+
+
+def _event_json(events: pd.DataFrame) -> list[dict]:
+    return [{"id": r.id, "party": r.party, "alone_days": int(r.alone_days), "increment_days": int(r.increment_days),
+             "completion_after": r.completion_after.isoformat(), "applied": r.applied, "effect": r.effect}
+            for r in events.itertuples(index=False)]
 
 
 def _work_days(model: ScheduleModel, a: int, b: int) -> int:
@@ -165,53 +312,101 @@ def _work_days(model: ScheduleModel, a: int, b: int) -> int:
     return int(days[1] - days[0])
 
 
-def _date(day: int) -> dt.date:
-    return dt.date(1970, 1, 1) + dt.timedelta(days=int(day))
+@dataclass(frozen=True)
+class _Runs:
+    """The finishes of every target in a run: before any event, each event alone, and after
+    each event in the cumulative run (day numbers; shapes ``(targets,)`` and
+    ``(events, targets)``)."""
+
+    base: np.ndarray
+    alone: np.ndarray
+    cumulative: np.ndarray
+    applied: list[str]
+    effect: list[str]
+    model: ScheduleModel
 
 
-def run_events(case: Case, base: Snapshot, model: ScheduleModel, register: pd.DataFrame, label: str):
-    """Impacts alone and the cumulative run of ``register`` on ``model``.
-
-    Returns ``(frame, base_day, final_day, cumulative_model)``: a DataFrame with
-    EVENT_COLUMNS, the completion days of the base and of the cumulative run (both measured
-    by full schedules), and the model with every event inserted.
-
-    Raises ReconciliationError when the increments do not add up to the cumulative impact.
-    """
-    base_day = model.completion_day()
+def _insert(case: Case, base: Snapshot, model: ScheduleModel, register: pd.DataFrame, label: str,
+            targets: Sequence[str]) -> _Runs:
+    """Insert ``register``'s events into ``model``, alone and cumulatively, reading the
+    targets' finishes from forward passes."""
+    where = model.network.index_of(list(targets))
+    base_finish = _finish_of(model.finish_days(), where)
     present = set(base.activities["id"])
-    rows = []
+    alone, cumulative_finish, applied, effect = [], [], [], []
     cumulative = model
-    previous = base_day
+    base_schedule: list[ScheduleResult] = []
+
+    def base_run() -> ScheduleResult:
+        if not base_schedule:
+            base_schedule.append(model.run())
+        return base_schedule[0]
+
     for _, event in register.iterrows():
-        alone_model, missing = apply_event(model, case, event, present)
-        alone_day = alone_model.completion_day()
-        cumulative, _ = apply_event(cumulative, case, event, present | set(_added_so_far(cumulative, model)))
-        after = cumulative.completion_day()
+        alone_model, missing, notes = apply_event(model, case, event, present, base_run)
+        alone.append(_finish_of(alone_model.finish_days(), where))
+        added = {str(i) for i in cumulative.network.ids[model.network.size:]}
+        cumulative, _, cumulative_notes = apply_event(cumulative, case, event, present | added)
+        cumulative_finish.append(_finish_of(cumulative.finish_days(), where))
+        applied.append("" if not missing else f"not in {label}: {', '.join(missing)}")
+        effect.append("; ".join(dict.fromkeys(notes + cumulative_notes)))
+    shape = (len(register), len(targets))
+    return _Runs(base_finish, np.asarray(alone, dtype=np.int64).reshape(shape),
+                 np.asarray(cumulative_finish, dtype=np.int64).reshape(shape), applied, effect, cumulative)
+
+
+def _frame(register: pd.DataFrame, runs: _Runs, t: int, model: ScheduleModel) -> pd.DataFrame:
+    """The event rows of one target of a run."""
+    base = int(runs.base[t])
+    after = np.concatenate([[base], runs.cumulative[:, t]]) if len(register) else np.array([base])
+    rows = []
+    for i, (_, event) in enumerate(register.iterrows()):
+        alone_day, before, now = int(runs.alone[i, t]), int(after[i]), int(after[i + 1])
         rows.append({
             "id": event["id"], "title": event["title"], "party": event["party"], "impact": event["impact"],
-            "start": event["start"], "finish": event["finish"], "activities": _split(event["activities"]),
-            "alone_days": int(alone_day - base_day), "alone_work_days": _work_days(model, base_day, alone_day),
-            "completion_alone": _date(alone_day), "cumulative_days": int(after - previous),
-            "cumulative_work_days": _work_days(model, previous, after), "completion_after": _date(after),
-            "applied": "" if not missing else f"not in {label}: {', '.join(missing)}",
+            "start": event["start"], "finish": event["finish"], "activities": split_ids(event["activities"]),
+            "alone_days": alone_day - base, "alone_work_days": _work_days(model, base, alone_day),
+            "completion_alone": day_to_date(alone_day), "increment_days": now - before,
+            "increment_work_days": _work_days(model, before, now), "completion_after": day_to_date(now),
+            "applied": runs.applied[i], "effect": runs.effect[i],
         })
-        previous = after
-    frame = pd.DataFrame(rows, columns=EVENT_COLUMNS)
+    return pd.DataFrame(rows, columns=EVENT_COLUMNS)
+
+
+def run_events(case: Case, base: Snapshot, model: ScheduleModel, register: pd.DataFrame, label: str,
+               targets: Sequence[str]) -> tuple[list[pd.DataFrame], np.ndarray, np.ndarray, ScheduleModel]:
+    """Impacts alone and the cumulative run of ``register`` on ``model``, at each target.
+
+    Returns
+    -------
+    (frames, base_finish, final_finish, cumulative_model)
+        Per target a DataFrame with :data:`EVENT_COLUMNS`; the targets' finishes before
+        and after every event (day numbers, :data:`delay.cpm.NO_DAY` for a target not in the
+        programme); the model with every event inserted.
+
+    Raises
+    ------
+    ReconciliationError
+        When the increments do not add up to the cumulative impact measured by full
+        schedules.
+    """
+    runs = _insert(case, base, model, register, label, targets)
+    frames = [_frame(register, runs, t, model) if runs.base[t] != NO_DAY else None for t in range(len(targets))]
     # The increments come from forward passes alone; the cumulative impact they must add up
     # to is measured again by full schedules (both passes) of the base and of the programme
     # with every event inserted.
-    base_full = model.run().completion_day
-    final_full = cumulative.run().completion_day
-    increments = int(frame["cumulative_days"].sum())
-    if increments != int(final_full - base_full):
-        raise ReconciliationError(f"impacted as-planned on {label}",
-                                  {"sum of increments": increments, "cumulative impact": int(final_full - base_full)})
-    return frame, base_full, final_full, cumulative
-
-
-def _added_so_far(model: ScheduleModel, base: ScheduleModel) -> list[str]:
-    return [str(i) for i in model.network.ids[base.network.size:]]
+    where = model.network.index_of(list(targets))
+    base_full = _finish_of(model.run().finish_day, where)
+    final_full = _finish_of(runs.model.run().finish_day, runs.model.network.index_of(list(targets)))
+    for t, frame in enumerate(frames):
+        if frame is None:
+            continue
+        increments = int(frame["increment_days"].sum())
+        if increments != int(final_full[t] - base_full[t]):
+            raise ReconciliationError(f"events inserted into {label}, at {targets[t]}",
+                                      {"sum of increments": increments,
+                                       "cumulative impact": int(final_full[t] - base_full[t])})
+    return frames, base_full, final_full, runs.model
 
 
 def analyse(case: Case, base: str = "baseline", events: Sequence[str] | None = None,
@@ -229,19 +424,25 @@ def analyse(case: Case, base: str = "baseline", events: Sequence[str] | None = N
     -------
     ImpactedResult
         ``events``: one row per event with ``alone_days`` (need not add up) and
-        ``cumulative_days`` (the increment; these add up to ``total_days``) and the
-        completion after each step; ``by_party``: the same per party (alone: the party's
-        events together, without the others).
+        ``increment_days`` (these add up to ``total_days``) and the completion after each
+        step; ``residual_days`` (actual less impacted completion); ``by_party``: the same
+        per party (alone: the party's events together, without the others); ``sections``:
+        the same at each section's completion milestone.
 
     Raises
     ------
-    CaseError: unknown base snapshot or event. ReconciliationError: increments that do not
-    add up.
+    CaseError: unknown base snapshot or event; a completion activity not in the base.
+    ReconciliationError: increments that do not add up.
 
     Examples
     --------
     >>> result = analyse(load_case("case_demo"))   # doctest: +SKIP
-    >>> result.events[["id", "alone_days", "cumulative_days"]]   # doctest: +SKIP
+    >>> result.events[["id", "alone_days", "increment_days"]]   # doctest: +SKIP
+
+    References
+    ----------
+    AACE RP 29R-03 (2011), MIP 3.6; SCL Delay and Disruption Protocol, 2nd edition (2017),
+    Part B, impacted as-planned analysis.
     """
     try:
         snapshot = case.snapshot(base)
@@ -250,22 +451,42 @@ def analyse(case: Case, base: str = "baseline", events: Sequence[str] | None = N
                                 fix="name a folder under snapshots/ or a label")) from None
     register = order_events(case, events, order)
     model = prepare(case, snapshot, calendars=calendars_of(case))
-    frame, base_day, final_day, _ = run_events(case, snapshot, model, register, snapshot.folder)
+    targets = targets_of(case)
+    frames, base_full, final_full, _ = run_events(case, snapshot, model, register, snapshot.folder, targets)
+    if frames[0] is None:
+        raise CaseError(Problem(file="case.toml", column="completion_activity",
+                                message=f"the completion activity '{targets[0]}' is not in snapshot '{snapshot.folder}'",
+                                fix="name an activity of the programme in [project] completion_activity"))
+    actual = actual_finishes(case, targets)
+    runs = [None if frame is None or actual[t] == NO_DAY else
+            ImpactedRun(targets[t], day_to_date(int(base_full[t])), day_to_date(int(final_full[t])),
+                        day_to_date(int(actual[t])), frame) for t, frame in enumerate(frames)]
+    whole = runs[0]
+    if whole is None:
+        raise CaseError(Problem(file="asbuilt.csv", message=f"the completion activity '{targets[0]}' has no actual finish",
+                                fix="give it actual dates in the as-built record"))
+    sections = {str(section): runs[targets.index(str(milestone))]
+                for section, milestone in zip(case.sections["section"], case.sections["completion_activity"])
+                if runs[targets.index(str(milestone))] is not None}
     present = set(snapshot.activities["id"])
+    k = int(model.network.index_of([targets[0]])[0])
     parties = []
-    for party in ("employer", "contractor", "neutral"):
+    for party in PARTIES:
         own = register[register["party"] == party]
         if not len(own):
             continue
         together = model
         for _, event in own.iterrows():
-            together, _ = apply_event(together, case, event, present | set(_added_so_far(together, model)))
-        day = together.completion_day()
-        parties.append({"party": party, "events": list(own["id"]), "alone_days": int(day - base_day),
-                        "cumulative_days": int(frame.loc[frame["party"] == party, "cumulative_days"].sum())})
-    by_party = pd.DataFrame(parties, columns=["party", "events", "alone_days", "cumulative_days"])
+            together, _, _ = apply_event(together, case, event, present | {
+                str(i) for i in together.network.ids[model.network.size:]})
+        day = int(together.finish_days()[k])
+        parties.append({"party": party, "events": list(own["id"]), "alone_days": day - int(base_full[0]),
+                        "increment_days": int(whole.events.loc[whole.events["party"] == party, "increment_days"].sum())})
+    by_party = pd.DataFrame(parties, columns=["party", "events", "alone_days", "increment_days"])
     notes = (
         "Impacts alone need not add up: events on parallel paths overlap and one event can hide another.",
         "Increments depend on the order of insertion; they add up exactly to the cumulative impact.",
+        "The method measures the plan's response to the events at their real dates, not what happened; the "
+        "residual is the actual completion less the impacted one.",
     )
-    return ImpactedResult(snapshot.folder, _date(base_day), _date(final_day), frame, by_party, order, notes)
+    return ImpactedResult(snapshot.folder, whole, by_party, order, notes, sections)

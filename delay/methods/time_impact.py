@@ -1,71 +1,213 @@
-"""Time impact analysis: each event inserted into the programme current when it began.
+"""Time impact analysis: each event inserted into the programme current before it began.
 
 For every event of the register, the *current* programme is the last snapshot (baseline or
-progress update, not the as-built record) whose data date is on or before the event's start.
-The event is modelled in that programme as impacted as-planned models it
-(:mod:`delay.methods.impacted`: ``extend``, ``hold``, ``fragnet``) and its effect is measured
-against that update's own completion. Events sharing a current update are inserted
-cumulatively in chronological order (start, finish, register row); their increments add up
-exactly to the cumulative impact on that update. Each event's impact alone is also given; it
-need not add up.
+progress update, not the as-built record) whose data date is strictly before the event's
+start: the contemporaneous plan the event interrupted, which cannot yet show the event's own
+effect. The event register's ``tia_update`` column (case format v2) may name another
+programme; that is the analyst's choice and is disclosed beside the figures. The event is
+modelled in that programme as the impacted as-planned models it
+(:mod:`delay.methods.impacted`: ``extend``, ``hold``, ``fragnet``) and measured at the
+project's completion activity (and each section's milestone). The events of one programme
+are inserted cumulatively in chronological order (start, finish, register row); each event's
+*increment* is the completion after its insertion less the completion before. Its impact
+alone is also given; it need not add up.
+
+Where the event's activities in the chosen programme already slipped against the previous
+programme by as much as the event, the programme may already show the event: a warning
+says so, because inserting it again would count its delay twice.
+
+Reconciliation: per programme, the *residual* is the next programme's completion (the
+as-built record's for the last, else the last update's own) less the programme's impacted
+completion. A positive residual is delay no event explains (``[analysis]
+unexplained_risk``); a negative one is recovery (the contractor's: it offsets culpable delay
+first, then shows as acceleration). The increments plus the residuals add up exactly to the
+actual less the planned completion (``explained_days``); a failure raises
+:class:`delay.errors.ReconciliationError`.
 
 References
 ----------
 AACE International Recommended Practice 29R-03, Forensic Schedule Analysis (2011), MIP 3.7
 (modelled / additive / multiple base). Society of Construction Law Delay and Disruption
-Protocol, 2nd edition (2017), Part B, time impact analysis.
+Protocol, 2nd edition (2017), Part B, time impact analysis, prospective and retrospective
+use (as recalled).
 
 Assumptions
 -----------
 Each update is a reasonable statement of the plan and progress at its data date; the
 fragnets and modelled changes represent the events fairly; the effect on the forecast
-completion of the update current at the time is the measure of each event's delay.
+completion of the programme current at the time is the measure of each event's delay.
 """
 
 from __future__ import annotations
 
 import datetime as dt
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
+import numpy as np
 import pandas as pd
 
-from ..cpm import calendars_of, prepare
-from ..model import Case
-from .impacted import EVENT_COLUMNS, order_events, run_events
+from ..cpm import NO_DAY, calendars_of, day_to_date, prepare
+from ..errors import ReconciliationError
+from ..events import split_ids
+from ..model import Case, Snapshot
+from .impacted import EVENT_COLUMNS, actual_finishes, event_changes, order_events, run_events, targets_of
 
-__all__ = ["analyse", "TimeImpactResult"]
+__all__ = ["analyse", "TimeImpactResult", "TimeImpactTrace", "current_programmes", "UPDATE_COLUMNS"]
+
+UPDATE_COLUMNS = ["snapshot", "label", "data_date", "events", "completion_before", "completion_after",
+                  "increment_days", "next_snapshot", "next_data_date", "next_completion", "residual_days"]
+
+
+@dataclass(frozen=True)
+class TimeImpactTrace:
+    """One target's time impact analysis: ``events`` (:data:`delay.methods.impacted.EVENT_COLUMNS`
+    plus ``update``, ``completion_before`` and ``warnings``), ``updates`` (one row per
+    programme, :data:`UPDATE_COLUMNS`), the planned and the actual completion."""
+
+    target: str
+    events: pd.DataFrame
+    updates: pd.DataFrame
+    planned_completion: dt.date
+    actual_completion: dt.date
+
+    @property
+    def explained_days(self) -> int:
+        """The actual less the planned completion: the increments plus the residuals."""
+        return (self.actual_completion - self.planned_completion).days
+
+    @property
+    def increment_days(self) -> int:
+        return int(self.events["increment_days"].sum()) if len(self.events) else 0
+
+    @property
+    def residual_days(self) -> int:
+        return int(self.updates["residual_days"].sum()) if len(self.updates) else 0
+
+    def to_json(self) -> dict:
+        return {
+            "target": self.target,
+            "updates": [
+                {"snapshot": r.snapshot, "label": r.label, "data_date": r.data_date.isoformat(),
+                 "events": list(r.events), "completion_before": r.completion_before.isoformat(),
+                 "completion_after": r.completion_after.isoformat(), "increment_days": int(r.increment_days),
+                 "next_snapshot": r.next_snapshot, "next_completion": r.next_completion.isoformat(),
+                 "residual_days": int(r.residual_days)}
+                for r in self.updates.itertuples(index=False)
+            ],
+            "events": [
+                {"id": r.id, "party": r.party, "update": r.update, "increment_days": int(r.increment_days),
+                 "alone_days": int(r.alone_days), "completion_after": r.completion_after.isoformat(),
+                 "applied": r.applied, "effect": r.effect, "warnings": list(r.warnings)}
+                for r in self.events.itertuples(index=False)
+            ],
+            "planned_completion": self.planned_completion.isoformat(),
+            "actual_completion": self.actual_completion.isoformat(),
+            "increment_days": self.increment_days,
+            "residual_days": self.residual_days,
+            "explained_days": self.explained_days,
+        }
 
 
 @dataclass(frozen=True)
 class TimeImpactResult:
-    """Per event: the update it was inserted into, impact alone and increment there."""
+    """The time impact analysis for the whole works (``trace``, at the project's completion
+    activity) and each section (``sections``: section id to its :class:`TimeImpactTrace`)."""
 
-    events: pd.DataFrame
-    updates: pd.DataFrame
+    trace: TimeImpactTrace
     by_party: pd.DataFrame
     notes: tuple[str, ...]
+    sections: dict = field(default_factory=dict, repr=False)
+
+    @property
+    def events(self) -> pd.DataFrame:
+        return self.trace.events
+
+    @property
+    def updates(self) -> pd.DataFrame:
+        return self.trace.updates
+
+    @property
+    def planned_completion(self) -> dt.date:
+        return self.trace.planned_completion
+
+    @property
+    def actual_completion(self) -> dt.date:
+        return self.trace.actual_completion
+
+    @property
+    def explained_days(self) -> int:
+        return self.trace.explained_days
 
     @property
     def total_days(self) -> int:
-        """Sum over the updates of the cumulative impact of the events inserted into each."""
-        return int(self.events["cumulative_days"].sum()) if len(self.events) else 0
+        """The increments' sum over the programmes (without the residuals)."""
+        return self.trace.increment_days
 
     def to_json(self) -> dict:
-        return {
-            "updates": [
-                {"snapshot": r.snapshot, "data_date": r.data_date.isoformat(),
-                 "completion_before": r.completion_before.isoformat(),
-                 "completion_after": r.completion_after.isoformat(), "events": list(r.events),
-                 "cumulative_days": int(r.cumulative_days)}
-                for r in self.updates.itertuples(index=False)
-            ],
-            "events": [
-                {"id": r.id, "party": r.party, "snapshot": r.snapshot, "alone_days": int(r.alone_days),
-                 "cumulative_days": int(r.cumulative_days), "completion_after": r.completion_after.isoformat()}
-                for r in self.events.itertuples(index=False)
-            ],
-            "total_days": self.total_days,
-        }
+        return {"method": "tia", **self.trace.to_json(),
+                "sections": {section: trace.to_json() for section, trace in self.sections.items()},
+                "notes": list(self.notes)}
+
+
+def current_programmes(case: Case, register: pd.DataFrame) -> list[str]:
+    """The folder of the programme each event is inserted into: the last snapshot whose
+    data date is strictly before the event's start (the baseline for an event before every
+    update), or the one its ``tia_update`` names."""
+    snapshots = list(case.snapshots)
+    chosen = []
+    named = register["tia_update"] if "tia_update" in register else pd.Series([""] * len(register))
+    for start, override in zip(register["start"], named):
+        if isinstance(override, str) and override.strip():
+            chosen.append(case.snapshot(override.strip()).folder)
+            continue
+        current = snapshots[0]
+        for snap in snapshots:
+            if pd.notna(start) and pd.Timestamp(snap.data_date) < pd.Timestamp(start):
+                current = snap
+        chosen.append(current.folder)
+    return chosen
+
+
+def _event_size(case: Case, event: pd.Series, activity: str, snapshot: Snapshot, model) -> int:
+    """The work days an event adds to one activity: its days (extend), its held work days
+    (hold), or its fragnet's longest duration (fragnet)."""
+    impact = event["impact"]
+    if impact == "extend":
+        return int(event["days"]) if pd.notna(event["days"]) else 0
+    if impact == "hold":
+        k = int(model.network.index_of([activity])[0])
+        calendar = model.calendars.calendars[int(model.calendar[k])]
+        days = pd.date_range(event["start"], event["finish"]).to_numpy(dtype="datetime64[D]")
+        return int(calendar.is_workday(days).sum()) if days.size else 0
+    fragnet = case.fragnets[case.fragnets["event"] == event["id"]]
+    return int(fragnet["duration"].max()) if len(fragnet) else 0
+
+
+def _warnings(case: Case, event: pd.Series, current: Snapshot, previous: Snapshot | None, schedules) -> list[str]:
+    """Warnings that ``current`` may already show the event (its activities slipped against
+    ``previous`` by as much as the event adds)."""
+    if previous is None:
+        return []
+    now, before = schedules(current), schedules(previous)
+    names = split_ids(event["activities"])
+    if event["impact"] == "fragnet":
+        names = sorted(event_changes(case, event, set(current.activities["id"])).get("touches", []))
+    found = []
+    for activity in names:
+        k_now = int(now.model.network.index_of([activity])[0])
+        k_before = int(before.model.network.index_of([activity])[0])
+        if k_now < 0 or k_before < 0:
+            continue
+        calendar = now.model.calendars
+        which = np.array([int(now.model.calendar[k_now])] * 2)
+        days = np.array([before.finish_day[k_before], now.finish_day[k_now]])
+        slip = int(np.diff(calendar.finish_index_days(which, days))[0])
+        size = _event_size(case, event, activity, current, now.model)
+        if size > 0 and slip >= size:
+            found.append(f"{current.label} already shows {activity} {slip} work days later than {previous.label} "
+                         f"(the event adds {size}): inserting the event there may count its delay twice; "
+                         "tia_update can name the programme to insert it into")
+    return found
 
 
 def analyse(case: Case) -> TimeImpactResult:
@@ -75,37 +217,93 @@ def analyse(case: Case) -> TimeImpactResult:
     -------
     TimeImpactResult
         ``events`` (impact columns of :data:`delay.methods.impacted.EVENT_COLUMNS` plus
-        ``snapshot`` and ``completion_before``), ``updates`` (one row per update used) and
-        ``by_party`` (increments summed per party).
+        ``update``, ``completion_before`` and ``warnings``), ``updates`` (one row per
+        programme: its completion before and after its events, the next programme's
+        completion and the residual), ``by_party`` (increments summed per party), and the
+        same per section.
+
+    Raises
+    ------
+    ReconciliationError
+        When the increments and residuals do not add up to the actual less the planned
+        completion.
+
+    References
+    ----------
+    AACE RP 29R-03 (2011), MIP 3.7; SCL Delay and Disruption Protocol, 2nd edition (2017),
+    Part B, time impact analysis.
     """
     register = order_events(case)
+    register = register.assign(_current=current_programmes(case, register))
     snapshots = list(case.snapshots)
     calendars = calendars_of(case)
-    current = []
-    for start in register["start"]:
-        chosen = snapshots[0]
-        for snap in snapshots:
-            if pd.notna(start) and pd.Timestamp(snap.data_date) <= pd.Timestamp(start):
-                chosen = snap
-        current.append(chosen.folder)
-    register = register.assign(_current=current)
-    frames, updates = [], []
-    for snap in snapshots:
-        group = register[register["_current"] == snap.folder].drop(columns="_current")
-        if not len(group):
-            continue
+    targets = targets_of(case)
+    done: dict[str, object] = {}
+
+    def schedules(snap: Snapshot):
+        if snap.folder not in done:
+            done[snap.folder] = prepare(case, snap, calendars=calendars).run()
+        return done[snap.folder]
+
+    per_target_events: list[list[pd.DataFrame]] = [[] for _ in targets]
+    per_target_updates: list[list[dict]] = [[] for _ in targets]
+    record = case.asbuilt_snapshot
+    following = snapshots[1:] + ([record] if record is not None else [None])
+    actual = actual_finishes(case, targets)
+    for position, (snap, after) in enumerate(zip(snapshots, following)):
+        group = register[register["_current"] == snap.folder].drop(columns="_current").reset_index(drop=True)
         model = prepare(case, snap, calendars=calendars)
-        frame, base_day, final_day, _ = run_events(case, snap, model, group.reset_index(drop=True), snap.folder)
-        before = dt.date(1970, 1, 1) + dt.timedelta(days=int(base_day))
-        frames.append(frame.assign(snapshot=snap.folder, completion_before=before))
-        after = dt.date(1970, 1, 1) + dt.timedelta(days=int(final_day))
-        updates.append({"snapshot": snap.folder, "data_date": snap.data_date, "completion_before": before,
-                        "completion_after": after, "events": list(group["id"]),
-                        "cumulative_days": (after - before).days})
-    columns = EVENT_COLUMNS + ["snapshot", "completion_before"]
-    events = pd.concat(frames, ignore_index=True) if frames else pd.DataFrame(columns=columns)
-    by_party = (events.groupby("party", sort=False)[["alone_days", "cumulative_days"]].sum().reset_index()
-                if len(events) else pd.DataFrame(columns=["party", "alone_days", "cumulative_days"]))
-    notes = ("Each event is measured against the update current when it began; increments add up within each "
-             "update, and impacts alone need not add up.",)
-    return TimeImpactResult(events, pd.DataFrame(updates), by_party, notes)
+        frames, base_full, final_full, _ = run_events(case, snap, model, group, snap.folder, targets)
+        previous = snapshots[position - 1] if position else None
+        warnings = [_warnings(case, event, snap, previous, schedules) for _, event in group.iterrows()]
+        nxt = schedules(after) if after is not None else None
+        next_finish = (nxt.finish_day[np.maximum(nxt.model.network.index_of(targets), 0)] if nxt is not None
+                       else final_full)
+        for t in range(len(targets)):
+            if frames[t] is None:
+                continue
+            before = day_to_date(int(base_full[t]))
+            per_target_events[t].append(frames[t].assign(update=snap.folder, completion_before=before,
+                                                         warnings=warnings))
+            next_day = int(next_finish[t]) if after is not None else int(final_full[t])
+            if after is None:  # no as-built record: the last update's own forecast is the end
+                next_day = int(base_full[t]) if not len(group) else int(final_full[t])
+            per_target_updates[t].append({
+                "snapshot": snap.folder, "label": snap.label, "data_date": snap.data_date,
+                "events": list(group["id"]), "completion_before": before,
+                "completion_after": day_to_date(int(final_full[t])),
+                "increment_days": int(final_full[t] - base_full[t]),
+                "next_snapshot": after.folder if after is not None else snap.folder,
+                "next_data_date": after.data_date if after is not None else snap.data_date,
+                "next_completion": day_to_date(next_day), "residual_days": next_day - int(final_full[t]),
+            })
+    traces = []
+    for t, target in enumerate(targets):
+        if not per_target_updates[t] or actual[t] == NO_DAY:
+            traces.append(None)
+            continue
+        columns = EVENT_COLUMNS + ["update", "completion_before", "warnings"]
+        events = pd.concat(per_target_events[t], ignore_index=True) if per_target_events[t] else pd.DataFrame(
+            columns=columns)
+        updates = pd.DataFrame(per_target_updates[t], columns=UPDATE_COLUMNS)
+        planned = updates["completion_before"].iloc[0]
+        ended = updates["next_completion"].iloc[-1]
+        trace = TimeImpactTrace(target, events, updates, planned, ended)
+        if trace.increment_days + trace.residual_days != trace.explained_days:
+            raise ReconciliationError(f"time impact analysis at {target}", {
+                "increments + residuals": trace.increment_days + trace.residual_days,
+                "actual less planned completion": trace.explained_days})
+        traces.append(trace)
+    whole = traces[0]
+    sections = {str(section): traces[targets.index(str(milestone))]
+                for section, milestone in zip(case.sections["section"], case.sections["completion_activity"])
+                if traces[targets.index(str(milestone))] is not None}
+    events = whole.events
+    by_party = (events.groupby("party", sort=False)[["alone_days", "increment_days"]].sum().reset_index()
+                if len(events) else pd.DataFrame(columns=["party", "alone_days", "increment_days"]))
+    notes = ("Each event is inserted into the last programme before it began (or the one tia_update names) and "
+             "measured against that programme's completion; increments add up within each programme, impacts "
+             "alone need not add up.",
+             "Each programme's residual, the next programme's completion less its impacted completion, reconciles "
+             "the increments with what happened.")
+    return TimeImpactResult(whole, by_party, notes, sections)

@@ -3,78 +3,85 @@
 The contemporaneous programmes cut the project into windows, one per pair of boundary
 snapshots (by default every consecutive pair: baseline, each update, and the as-built record
 where there is one). For each window from snapshot S to snapshot E the method measures how
-far the forecast completion moved and splits the movement in two with a *half-step* H:
+far the project's completion activity moved (the *target*; each section's completion
+milestone is traced the same way, on its own) and splits the movement in two with a
+*half-step* H:
 
 - H is S's programme (activities, durations, logic, constraints) brought to E's data date
   with E's progress (actual dates and remaining durations) for every activity of S that E
   shows as started. Not-started activities keep S's durations: a re-estimate is a revision,
   not progress. Activities deleted in E stay in H, unprogressed, and are flagged; activities
   added in E are not in H.
-- progress effect = completion(H) - completion(S); revision effect = completion(E) -
-  completion(H).
+- progress effect = the target's finish in H less in S; revision effect = in E less in H.
 
-The progress effect is charged to the activities on H's driving path, traced back through
-actual dates to the first activity already complete at S (or the project start). Each is
-charged its lateness (its finish in H less its late finish in S, calendar days) less the
-lateness of its driving predecessor; lateness below ``min(0, progress effect)`` counts as
-that minimum and the path's origin counts as zero, so the charges telescope exactly to the
-progress effect: float absorbed off the critical path is not charged, a gain is a negative
-charge, and successors that only inherit a delay are charged nothing - except that, the
-charges being in calendar days, a shift that carries a successor across a different number
-of non-working days shows as a small charge or credit on it (a five-day calendar's weekends;
-the charges along the path still add up exactly). Late finishes in S are
-taken from a backward pass from S's own completion, whatever ``float_to`` says, and the
-activity that finishes at completion in H is taken as late by exactly the progress effect
-(its late finish in S is S's completion whenever it has no successor).
-
-Where several paths drive at once (tied driving predecessors), the chain counted in the
-reconciliation takes, at each tie, the predecessor with the greatest lateness, then an FS
-link, then input order; the activities of the other tied paths are listed with their own
-charges as a concurrent group beside the stretch of the counted chain they run parallel to,
-and the group counts once, at its largest charge (the counted chain's).
+The progress effect is charged along H's driving chain to the target by the work-day ledger
+of :mod:`delay.ledger`: lateness against S's late finishes *by logic alone* (a backward pass
+from the target's own finish in S, ignoring ``latest_finish`` and ``fixed_*`` constraints and
+``float_to``), counted in work days of the ledger calendar (the target's own: for the whole
+works, the project's completion activity's), traced back through actual dates to the first
+activity already complete at S. Each activity on the chain is charged its lateness less its
+driving predecessor's; an activity whose start gap behind that predecessor and whose
+duration did not change only carried the delay and is charged nothing. Float absorbed off
+the chain is not charged; a gain is a negative charge.
 
 The revision effect is charged by applying E's changes to H one kind at a time, in the
 fixed order deletions, additions, durations (planned and remaining durations, activity kind),
-logic, calendars, constraints, and charging each kind the change in completion it makes. A
-final step "other" takes whatever else differs (for example progress S recorded that E no
-longer shows) so that the steps end exactly at E.
+logic, calendars, constraints, and charging each kind the change in the target's finish it
+makes, in ledger work days. A final step "other" takes whatever else differs (for example
+progress S recorded that E no longer shows) so that the steps end exactly at E.
+
+The window's movement in calendar days is then split among its counted charges in path
+order and its revision kinds in their order, walking the ledger calendar from S's
+completion date to E's (:func:`delay.ledger.split_days`), so that the calendar days add up
+exactly and a charge carried across a weekend or a shutdown takes no days it did not cause.
+
+Causes (:mod:`delay.events`): an event matches a charge when it names the activity (or a
+fragnet into it) and its period overlaps the window (S's data date to E's, both included);
+several matches are concurrent causes; with none, the activity's ``risk`` column decides,
+else ``[analysis] unexplained_risk``. attributions.csv overrides the rule for one charge,
+and the override is listed beside what the rule gave.
 
 Reconciliation: in every window the counted progress charges plus the revision charges equal
-the movement, to the day, and the windows add up to the movement from the first snapshot to
-the last. A failure raises :class:`delay.errors.ReconciliationError`.
+the movement, in work days and in calendar days, and the windows add up to the movement
+from the first snapshot to the last. A failure raises
+:class:`delay.errors.ReconciliationError`.
 
 References
 ----------
 AACE International Recommended Practice 29R-03, Forensic Schedule Analysis (2011), MIP 3.3
 (observational / dynamic / contemporaneous as-is) and MIP 3.4 (observational / dynamic /
 contemporaneous split, the half-step or bifurcated analysis). Society of Construction Law
-Delay and Disruption Protocol, 2nd edition (2017), Part B, time slice windows analysis.
+Delay and Disruption Protocol, 2nd edition (2017), Part B, time slice windows analysis, and
+its guidance on float and on acceleration (as recalled).
 
 Assumptions
 -----------
 The updates are the contemporaneous programmes as issued (after the analyst's disclosed
 corrections); their logic is taken as the contractor's plan at the time. The half-step
 isolates progress from revisions; it does not judge whether a revision was reasonable.
+Milestone constraints do not change what is charged: lateness is measured against logic.
 """
 
 from __future__ import annotations
 
 import dataclasses
 import datetime as dt
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from typing import Sequence
 
 import numpy as np
 import pandas as pd
 
 from ..calendars import CalendarSet
-from ..causation import match_events
-from ..cpm import COMPLETE, NO_DAY, ScheduleResult, calendars_of, prepare
+from ..cpm import COMPLETE, ScheduleResult, calendars_of, day_to_date, prepare
 from ..errors import CaseError, Problem, ReconciliationError
-from ..model import Case, Snapshot
-from ..tracing import explore
+from ..events import CONCURRENT, activity_risk, attributions, completion_activity, match_events, split_ids
+from ..ledger import CHARGE_COLUMNS as TRACE_COLUMNS
+from ..ledger import ledger_number, logic_late_finish, split_days, trace_charges
+from ..model import PARTIES, Case, Snapshot
 
-__all__ = ["analyse", "Window", "WindowsResult", "REVISION_KINDS", "progress_charges", "half_step_snapshot"]
+__all__ = ["analyse", "Window", "WindowsResult", "REVISION_KINDS", "half_step_snapshot", "CHARGE_COLUMNS",
+           "REVISION_COLUMNS"]
 
 #: The order in which a window's revisions are applied and charged.
 REVISION_KINDS = ("deletions", "additions", "durations", "logic", "calendars", "constraints")
@@ -83,14 +90,24 @@ _DURATION_COLUMNS = ("duration", "remaining", "kind")
 _CONSTRAINT_COLUMNS = ("constraint", "constraint_date")
 _PROGRESS_COLUMNS = ("actual_start", "actual_finish", "remaining")
 
-CHARGE_COLUMNS = ["activity", "name", "days", "lateness", "counted", "group", "concurrent_with",
-                  "events", "parties", "party", "risk"]
-REVISION_COLUMNS = ["kind", "activities", "days", "completion_after"]
+#: Columns of a window's progress charges.
+CHARGE_COLUMNS = TRACE_COLUMNS + ["days", "events", "parties", "party", "basis", "rule_party", "rule_basis",
+                                  "rule_events", "reason"]
+#: Columns of a window's revision charges.
+REVISION_COLUMNS = ["kind", "activities", "work_days", "days", "completion_after", "events", "parties", "party",
+                    "basis"]
 
 
 @dataclass(frozen=True)
 class Window:
-    """One window of the analysis. Days are calendar days; positive is delay."""
+    """One window of the analysis for one target (the project's completion activity, or a
+    section's completion milestone). Days are calendar days, work days those of the ledger
+    calendar; positive is delay.
+
+    ``charges`` has :data:`CHARGE_COLUMNS`: the counted chain first (``counted``), whose
+    ``work_days`` and ``days`` add up to the progress effect, then the activities of tied
+    paths beside it. ``revisions`` has :data:`REVISION_COLUMNS`, in the order applied.
+    """
 
     number: int
     start: str
@@ -99,19 +116,23 @@ class Window:
     end_label: str
     start_data_date: dt.date
     end_data_date: dt.date
+    target: str
     completion_start: dt.date
     completion_half: dt.date | None
     completion_end: dt.date
     movement_days: int
     movement_work_days: int
     progress_days: int
+    progress_work_days: int
     revision_days: int
+    revision_work_days: int
     charges: pd.DataFrame
     revisions: pd.DataFrame
-    driving_start: tuple[str, ...]
-    driving_half: tuple[str, ...]
-    driving_end: tuple[str, ...]
-    deleted_in_end: tuple[str, ...]
+    driving_start: tuple[str, ...] = ()
+    driving_half: tuple[str, ...] = ()
+    driving_end: tuple[str, ...] = ()
+    deleted_in_end: tuple[str, ...] = ()
+    titles: dict = field(default_factory=dict, repr=False)
 
     @property
     def joined_driving_path(self) -> tuple[str, ...]:
@@ -125,24 +146,56 @@ class Window:
         after = set(self.driving_end)
         return tuple(a for a in self.driving_start if a not in after)
 
+    @property
+    def counted(self) -> pd.DataFrame:
+        """The counted progress charges that move completion (days or work days other than 0)."""
+        charges = self.charges
+        return charges[charges["counted"].astype(bool) & ((charges["days"] != 0) | (charges["work_days"] != 0))]
+
+    @property
+    def by_party_days(self) -> dict[str, int]:
+        """Calendar days of the window's movement by the party of each counted charge and
+        revision (``concurrent`` where events of several parties share one)."""
+        out: dict[str, int] = {}
+        for party, days in zip(list(self.counted["party"]) + list(self.revisions["party"]),
+                               list(self.counted["days"]) + list(self.revisions["days"])):
+            if int(days):
+                out[party] = out.get(party, 0) + int(days)
+        order = list(PARTIES) + [CONCURRENT]
+        return {p: out[p] for p in sorted(out, key=lambda p: order.index(p) if p in order else len(order))}
+
+    @property
+    def sentence(self) -> str:
+        """The window in one generated sentence, from its numbers."""
+        return _sentence(self)
+
     def to_json(self) -> dict:
-        charged = self.charges[(self.charges["days"] != 0) | self.charges["group"].notna()]
+        charges = self.charges[(self.charges["work_days"] != 0) | (self.charges["days"] != 0)
+                               | self.charges["group"].notna()]
         return {
+            "window": self.number,
             "start": self.start,
             "end": self.end,
+            "target": self.target,
             "completion_start": self.completion_start.isoformat(),
             "completion_end": self.completion_end.isoformat(),
             "movement_days": self.movement_days,
             "movement_work_days": self.movement_work_days,
             "progress_days": self.progress_days,
+            "progress_work_days": self.progress_work_days,
             "revision_days": self.revision_days,
+            "revision_work_days": self.revision_work_days,
+            "by_party_days": self.by_party_days,
+            "sentence": self.sentence,
             "charged": [
-                {"activity": r.activity, "days": int(r.days), "concurrent_with": list(r.concurrent_with),
-                 "events": list(r.events), "party": r.party}
-                for r in charged.itertuples(index=False)
+                {"activity": r.activity, "work_days": int(r.work_days), "days": int(r.days), "counted": bool(r.counted),
+                 "inherited": bool(r.inherited), "events": list(r.events), "party": r.party, "basis": r.basis,
+                 "concurrent_with": list(r.concurrent_with)}
+                for r in charges.itertuples(index=False)
             ],
             "revisions": [
-                {"kind": r.kind, "activities": list(r.activities), "days": int(r.days)}
+                {"kind": r.kind, "activities": list(r.activities), "work_days": int(r.work_days), "days": int(r.days),
+                 "events": list(r.events), "party": r.party, "basis": r.basis}
                 for r in self.revisions.itertuples(index=False)
             ],
         }
@@ -150,12 +203,18 @@ class Window:
 
 @dataclass(frozen=True)
 class WindowsResult:
-    """All windows of one analysis."""
+    """All windows of one analysis: the whole works' (``windows``, traced to the project's
+    completion activity) and each section's (``sections``: section id to its windows,
+    traced to its completion milestone)."""
 
     windows: tuple[Window, ...]
     half_step: bool
     first_completion: dt.date
     last_completion: dt.date
+    target: str = ""
+    ledger_calendar: str = ""
+    sections: dict = field(default_factory=dict, repr=False)
+    attributions: pd.DataFrame = field(default=None, repr=False)
 
     @property
     def total_movement_days(self) -> int:
@@ -170,6 +229,8 @@ class WindowsResult:
             "completion_half": w.completion_half, "completion_end": w.completion_end,
             "movement_days": w.movement_days, "movement_work_days": w.movement_work_days,
             "progress_days": w.progress_days, "revision_days": w.revision_days,
+            **{f"{party}_days": w.by_party_days.get(party, 0) for party in (*PARTIES, CONCURRENT)},
+            "sentence": w.sentence,
         } for w in self.windows]
         return pd.DataFrame(rows)
 
@@ -179,21 +240,27 @@ class WindowsResult:
         and a ``source`` column (``progress`` or the revision kind)."""
         frames = []
         for w in self.windows:
-            progress = w.charges.assign(window=w.number, start=w.start, end=w.end, source="progress")
-            frames.append(progress)
+            frames.append(w.charges.assign(window=w.number, start=w.start, end=w.end, source="progress"))
             if len(w.revisions):
-                revisions = pd.DataFrame({
+                frames.append(pd.DataFrame({
                     "window": w.number, "start": w.start, "end": w.end, "source": w.revisions["kind"],
-                    "activity": [", ".join(a) for a in w.revisions["activities"]], "days": w.revisions["days"],
-                    "counted": True,
-                })
-                frames.append(revisions)
+                    "activity": [", ".join(a) for a in w.revisions["activities"]],
+                    "work_days": w.revisions["work_days"], "days": w.revisions["days"], "counted": True,
+                    "events": w.revisions["events"], "party": w.revisions["party"], "basis": w.revisions["basis"],
+                }))
         if not frames:
             return pd.DataFrame(columns=["window", "start", "end", "source", *CHARGE_COLUMNS])
         return pd.concat(frames, ignore_index=True)
 
     def to_json(self) -> dict:
-        return {"windows": [w.to_json() for w in self.windows], "total_movement_days": self.total_movement_days}
+        return {
+            "target": self.target, "ledger_calendar": self.ledger_calendar, "half_step": self.half_step,
+            "windows": [w.to_json() for w in self.windows], "total_movement_days": self.total_movement_days,
+            "sections": {section: [w.to_json() for w in windows] for section, windows in self.sections.items()},
+            "attributions": [] if self.attributions is None else [
+                {k: (list(v) if isinstance(v, list) else v) for k, v in row.items()}
+                for row in self.attributions.to_dict("records")],
+        }
 
 
 # -- helpers ----------------------------------------------------------------------------------
@@ -216,10 +283,6 @@ def _snapshots(case: Case, names: Sequence[str] | None) -> list[Snapshot]:
     return chosen
 
 
-def _date(day: int) -> dt.date:
-    return dt.date(1970, 1, 1) + dt.timedelta(days=int(day))
-
-
 def _started(activities: pd.DataFrame) -> np.ndarray:
     return (activities["actual_start"].notna() | activities["actual_finish"].notna()).to_numpy()
 
@@ -231,7 +294,18 @@ def _variant(base: Snapshot, tag: str, label: str, data_date: dt.date, activitie
 
 
 def half_step_snapshot(start: Snapshot, end: Snapshot) -> Snapshot:
-    """S's programme with E's data date and E's progress for the activities E shows started."""
+    """S's programme with E's data date and E's progress for the activities E shows started.
+
+    Parameters
+    ----------
+    start, end:
+        The snapshots S and E that bound the window.
+
+    Returns
+    -------
+    Snapshot
+        The half-step H (folder ``<S>~progress-to-<E>``).
+    """
     activities = start.activities
     progress = end.activities.set_index("id")
     started_in_end = set(progress.index[_started(progress.reset_index())])
@@ -245,177 +319,54 @@ def half_step_snapshot(start: Snapshot, end: Snapshot) -> Snapshot:
                     end.data_date, activities, start.links)
 
 
-def progress_charges(result: ScheduleResult, lateness: np.ndarray, stop: np.ndarray, effect: int) -> pd.DataFrame:
-    """Charges of a delay (or gain) of ``effect`` calendar days along the driving path.
-
-    Parameters
-    ----------
-    result: the schedule whose completion moved (the half-step, usually).
-    lateness: calendar days per activity (aligned with ``result``): finish in ``result`` less
-        the late finish before; ``NaN`` where unknown (the activity then passes on its driving
-        predecessor's lateness and is charged nothing).
-    stop: activities where the trace ends (complete before the window): they count as zero.
-    effect: the movement to explain.
-
-    Returns
-    -------
-    DataFrame with ``activity, name, days, lateness, counted, group, concurrent_with`` (one
-    row per activity explored; ``counted`` marks the chain whose charges sum to ``effect``).
-    """
-    net = result.model.network
-    finish = result.finish_day
-    seeds = np.flatnonzero(finish == result.completion_day)
-    empty = pd.DataFrame(columns=["activity", "name", "days", "lateness", "counted", "group", "concurrent_with"])
-    if not seeds.size:
-        return empty
-    graph = explore(result, seeds, stop)
-    floor = min(0, effect)
-    nodes = sorted(set(graph.parents) | set(graph.stopped), key=lambda v: net.rank[v])
-    level: dict[int, float] = {}
-    best_parent: dict[int, int | None] = {}
-    for v in nodes:
-        if v in graph.stopped:
-            level[v] = 0.0
-            best_parent[v] = None
-            continue
-        parents = [p for p, _, _ in graph.parents[v] if p in level]
-        chosen = None
-        if parents:  # the greatest lateness; among equals the first in tie order
-            top = max(level[p] for p in parents)
-            chosen = next(p for p in parents if level[p] == top)
-        best_parent[v] = chosen
-        if np.isnan(lateness[v]):
-            level[v] = level[chosen] if chosen is not None else 0.0
-        else:
-            level[v] = float(max(lateness[v], floor))
-    seed = int(max(seeds, key=lambda v: (net.rank[v], -v)))
-    level[seed] = float(effect)
-    chain = [seed]
-    while best_parent.get(chain[-1]) is not None:
-        chain.append(best_parent[chain[-1]])
-    chain.reverse()
-    counted = set(chain)
-    charge: dict[int, float] = {}
-    previous = 0.0
-    for v in chain:
-        charge[v] = level[v] - previous
-        previous = level[v]
-    for v in nodes:
-        if v not in counted:
-            parent = best_parent.get(v)
-            charge[v] = level[v] - (level[parent] if parent is not None else 0.0)
-    # concurrent groups: connected stretches of activities off the counted chain
-    position = {v: i for i, v in enumerate(chain)}
-    group_of: dict[int, int] = {}
-    groups: list[list[int]] = []
-    off = [v for v in nodes if v not in counted and v not in graph.stopped]
-    neighbours: dict[int, set[int]] = {v: set() for v in off}
-    for v in off:
-        for p, _, _ in graph.parents.get(v, []):
-            if p in neighbours:
-                neighbours[v].add(p)
-                neighbours[p].add(v)
-    for v in off:
-        if v in group_of:
-            continue
-        members, pending = [], [v]
-        while pending:
-            x = pending.pop()
-            if x in group_of:
-                continue
-            group_of[x] = len(groups)
-            members.append(x)
-            pending.extend(neighbours[x] - set(group_of))
-        groups.append(members)
-    concurrent: dict[int, set[int]] = {v: set() for v in nodes}
-    group_number: dict[int, int] = {}
-    diverge: list[list[int]] = [[] for _ in groups]
-    merge: list[list[int]] = [[] for _ in groups]
-    for v in off:
-        for p, _, _ in graph.parents.get(v, []):
-            if p in position:
-                diverge[group_of[v]].append(position[p])
-    for v in chain:
-        for p, _, _ in graph.parents.get(v, []):
-            if p in group_of:
-                merge[group_of[p]].append(position[v])
-    seed_set = set(int(x) for x in seeds)
-    reported = 0
-    for number, members in enumerate(groups):
-        if any(v in seed_set for v in members):
-            merge[number].append(len(chain))
-        low = max(diverge[number]) + 1 if diverge[number] else 0
-        high = min(merge[number]) if merge[number] else len(chain)
-        stretch = chain[low:high] if high > low else []
-        everyone = members + stretch
-        if all(charge[v] == 0 for v in everyone):
-            continue
-        reported += 1
-        for v in everyone:
-            group_number[v] = reported
-            concurrent[v] |= set(everyone) - {v}
-    ids = net.ids
-    rows = []
-    for v in chain + [v for v in nodes if v not in counted]:
-        rows.append({
-            "activity": str(ids[v]), "name": result.model.names[v], "days": int(round(charge[v])),
-            "lateness": int(round(level[v])), "counted": v in counted,
-            "group": group_number.get(v), "concurrent_with": sorted(str(ids[x]) for x in concurrent[v]),
-        })
-    frame = pd.DataFrame(rows, columns=empty.columns)
-    frame["group"] = frame["group"].astype("Int64")
-    return frame
-
-
 class _Scheduler:
-    """Schedules snapshots of one case with shared calendars."""
+    """Schedules snapshots of one case with shared calendars, each boundary once."""
 
     def __init__(self, case: Case):
         self.case = case
         self.calendars: CalendarSet = calendars_of(case)
         self.settings = case.settings.schedule
+        self._done: dict[str, ScheduleResult] = {}
 
-    def run(self, snapshot: Snapshot, **changes) -> ScheduleResult:
-        settings = dataclasses.replace(self.settings, **changes) if changes else self.settings
-        return prepare(self.case, snapshot, settings, calendars=self.calendars).run()
+    def run(self, snapshot: Snapshot) -> ScheduleResult:
+        return prepare(self.case, snapshot, self.settings, calendars=self.calendars).run()
 
-
-def _lateness(result: ScheduleResult, start_ids: np.ndarray, start_late_finish: np.ndarray) -> np.ndarray:
-    """Finish in ``result`` less the late finish in S (calendar days), by id; NaN if absent."""
-    late = pd.Series(start_late_finish, index=pd.Index(start_ids))
-    aligned = late.reindex(result.ids).to_numpy(dtype=np.float64)
-    aligned[aligned == float(NO_DAY)] = np.nan
-    return result.finish_day - aligned
+    def of(self, snapshot: Snapshot) -> ScheduleResult:
+        if snapshot.folder not in self._done:
+            self._done[snapshot.folder] = self.run(snapshot)
+        return self._done[snapshot.folder]
 
 
-def _apply_revisions(scheduler: _Scheduler, half: Snapshot, end: Snapshot, half_result: ScheduleResult,
-                     end_result: ScheduleResult) -> pd.DataFrame:
-    """Charge each kind of revision its change in completion, H -> ... -> E."""
+def _finishes(result: ScheduleResult, targets: Sequence[str]) -> np.ndarray:
+    """Finish day numbers of the targets in a schedule; ``-1`` marks a target not in it."""
+    where = result.model.network.index_of(list(targets))
+    return np.where(where >= 0, result.finish_day[np.maximum(where, 0)], -1)
+
+
+def _revision_steps(scheduler: _Scheduler, half: Snapshot, end: Snapshot, end_result: ScheduleResult,
+                    targets: Sequence[str]) -> list[tuple[str, list[str], np.ndarray]]:
+    """E's changes applied to H one kind at a time: ``(kind, changed, finishes of the
+    targets after it)`` per kind that changed something, then ``other`` when the steps do
+    not end exactly at E."""
     activities = half.activities
     links = half.links
     end_acts = end.activities
     end_links = end.links
     end_ids = set(end_acts["id"])
     half_ids = set(activities["id"])
-    rows = []
-    completion = half_result.completion_day
+    steps: list[tuple[str, list[str], np.ndarray]] = []
 
     def step(kind: str, changed: list[str], new_acts: pd.DataFrame, new_links: pd.DataFrame):
-        nonlocal completion, activities, links
+        nonlocal activities, links
         activities, links = new_acts.reset_index(drop=True), new_links.reset_index(drop=True)
-        if not changed:
-            return
-        snapshot = _variant(end, kind, f"{end.label}: {kind} applied", end.data_date, activities, links)
-        result = scheduler.run(snapshot)
-        rows.append({"kind": kind, "activities": sorted(changed), "days": int(result.completion_day - completion),
-                     "completion_after": _date(result.completion_day)})
-        completion = result.completion_day
+        if changed:
+            result = scheduler.run(_variant(end, kind, f"{end.label}: {kind} applied", end.data_date, activities,
+                                            links))
+            steps.append((kind, sorted(changed), _finishes(result, targets)))
 
     deleted = sorted(half_ids - end_ids)
     keep = activities["id"].isin(end_ids)
-    step("deletions", deleted, activities[keep],
-         links[links["pred"].isin(end_ids) & links["succ"].isin(end_ids)])
-
+    step("deletions", deleted, activities[keep], links[links["pred"].isin(end_ids) & links["succ"].isin(end_ids)])
     added = sorted(end_ids - half_ids)
     new_rows = end_acts[end_acts["id"].isin(added)]
     present = set(activities["id"]) | set(added)
@@ -440,28 +391,193 @@ def _apply_revisions(scheduler: _Scheduler, half: Snapshot, end: Snapshot, half_
     def link_keys(frame):
         return set(zip(*(frame[c].to_numpy(dtype=object) for c in ("pred", "succ", "type", "lag"))))
 
-    before, after = link_keys(links), link_keys(end_links)
-    changed_links = sorted({f"{p}>{s}" for p, s, _, _ in before ^ after})
+    changed_links = sorted({f"{p}>{s}" for p, s, _, _ in link_keys(links) ^ link_keys(end_links)})
     step("logic", changed_links, activities, end_links)
     reassign(("calendar",), "calendars")
     reassign(_CONSTRAINT_COLUMNS, "constraints")
-    if completion != end_result.completion_day:
-        rows.append({"kind": "other", "activities": [], "days": int(end_result.completion_day - completion),
-                     "completion_after": _date(end_result.completion_day)})
-    return pd.DataFrame(rows, columns=REVISION_COLUMNS)
+    final = _finishes(end_result, targets)
+    if not steps or not np.array_equal(steps[-1][2], final):
+        steps.append(("other", [], final))
+    return steps
+
+
+def _risk_lookup(snapshots: Sequence[Snapshot], ids: Sequence[str]) -> list[str]:
+    """Each activity's ``risk`` in the first of ``snapshots`` that gives one."""
+    found = ["" for _ in ids]
+    for snapshot in snapshots:
+        for i, risk in enumerate(activity_risk(snapshot, ids)):
+            found[i] = found[i] or risk
+    return found
+
+
+def _causes(case: Case, ids: Sequence[str], start: Snapshot, end: Snapshot) -> pd.DataFrame:
+    """The rule's causes of charges on ``ids`` in the window from ``start`` to ``end``."""
+    matched = match_events(case, ids, start.data_date, end.data_date)
+    risks = _risk_lookup([end, start], list(matched["activity"]))
+    default = matched["basis"] == "unexplained"
+    for i in np.flatnonzero(default.to_numpy() & (np.asarray(risks, dtype=object) != "")):
+        matched.at[int(i), "party"] = risks[i]
+        matched.at[int(i), "parties"] = [risks[i]]
+        matched.at[int(i), "basis"] = "risk"
+    return matched
+
+
+def _charge_frame(case: Case, traced: pd.DataFrame, days: np.ndarray, start: Snapshot, end: Snapshot,
+                  overrides: pd.DataFrame) -> pd.DataFrame:
+    """The traced charges with their calendar days, causes and any analyst's attribution."""
+    frame = traced.reset_index(drop=True).copy()
+    frame["days"] = days
+    causes = _causes(case, list(frame["activity"]), start, end)
+    frame["events"] = causes["events"].to_numpy()
+    frame["parties"] = causes["parties"].to_numpy()
+    frame["party"] = causes["party"].to_numpy()
+    frame["basis"] = causes["basis"].to_numpy()
+    frame["rule_party"], frame["rule_basis"] = frame["party"], frame["basis"]
+    frame["rule_events"] = frame["events"]
+    frame["reason"] = ""
+    mine = overrides[overrides["folder"] == end.folder] if len(overrides) else overrides
+    for record in mine.itertuples(index=False):
+        rows = np.flatnonzero((frame["activity"] == record.activity).to_numpy())
+        for i in rows:
+            frame.at[int(i), "events"] = [record.event] if record.event else []
+            frame.at[int(i), "parties"] = [record.party]
+            frame.at[int(i), "party"] = record.party
+            frame.at[int(i), "basis"] = "analyst"
+            frame.at[int(i), "reason"] = record.reason
+    return frame[CHARGE_COLUMNS]
+
+
+def _revision_frame(case: Case, steps, work_days: np.ndarray, days: np.ndarray, start: Snapshot, end: Snapshot,
+                    overrides: pd.DataFrame) -> pd.DataFrame:
+    rows = []
+    mine = overrides[overrides["folder"] == end.folder] if len(overrides) else overrides
+    for (kind, changed, finish), work, calendar_days in zip(steps, work_days, days):
+        ids = [part.strip() for item in changed for part in str(item).split(">") if part.strip()]
+        ids = list(dict.fromkeys(ids))
+        events: list[str] = []
+        if ids:
+            for listed in _causes(case, ids, start, end)["events"]:
+                events += [e for e in listed if e not in events]
+        party_of = dict(zip(case.events["id"], case.events["party"]))
+        parties = [p for p in PARTIES if p in {party_of[e] for e in events}]
+        basis = "event" if parties else "unexplained"
+        if not parties:
+            parties = [_default_risk(case)]
+        override = mine[mine["activity"].isin(ids)] if len(mine) else mine
+        if len(override):
+            record = override.iloc[0]
+            events, parties, basis = ([record["event"]] if record["event"] else []), [record["party"]], "analyst"
+        rows.append({"kind": kind, "activities": changed, "work_days": int(work), "days": int(calendar_days),
+                     "completion_after": day_to_date(int(finish)) if finish >= 0 else None, "events": events,
+                     "parties": parties, "party": parties[0] if len(parties) == 1 else CONCURRENT,
+                     "basis": basis})
+    frame = pd.DataFrame(rows, columns=REVISION_COLUMNS)
+    return frame[(frame["work_days"] != 0) | (frame["days"] != 0)].reset_index(drop=True)
+
+
+def _default_risk(case: Case) -> str:
+    from ..events import unexplained_risk
+
+    return unexplained_risk(case)
+
+
+def _ledger_position(result: ScheduleResult, ledger: int, day: int) -> int:
+    return int(result.model.calendars.finish_index_days(np.array([ledger]), np.array([day]))[0])
+
+
+@dataclass
+class _Boundary:
+    """One boundary snapshot scheduled, with the logic-only late finishes of each target."""
+
+    snapshot: Snapshot
+    result: ScheduleResult
+    late: dict = field(default_factory=dict)
+
+    def late_finish(self, target: str) -> np.ndarray | None:
+        if target not in self.late:
+            k = int(self.result.model.network.index_of([target])[0])
+            self.late[target] = None if k < 0 else logic_late_finish(self.result, k)
+        return self.late[target]
+
+
+def _window(case: Case, number: int, start: _Boundary, end: _Boundary, target: str, half_step: bool,
+            traced: ScheduleResult, steps, overrides: pd.DataFrame) -> Window | None:
+    """One window for one target, or ``None`` when the target is missing from a boundary."""
+    s_result, e_result = start.result, end.result
+    late = start.late_finish(target)
+    finish_s = _finishes(s_result, [target])[0]
+    finish_e = _finishes(e_result, [target])[0]
+    finish_h = _finishes(traced, [target])[0]
+    if late is None or min(finish_s, finish_e, finish_h) < 0:
+        return None
+    ledger = ledger_number(s_result, target)
+    position = {name: _ledger_position(s_result, ledger, day)
+                for name, day in (("s", finish_s), ("h", finish_h), ("e", finish_e))}
+    stop = np.isin(traced.ids, start.snapshot.activities["id"][s_result.status == COMPLETE].to_numpy())
+    traced_charges = trace_charges(traced, s_result, late, target, stop, ledger)
+    counted = traced_charges["counted"].astype(bool).to_numpy() if len(traced_charges) else np.zeros(0, bool)
+    progress_work = position["h"] - position["s"]
+    if int(traced_charges.loc[counted, "work_days"].sum()) != progress_work:
+        raise ReconciliationError(f"window {number} ({start.snapshot.folder} to {end.snapshot.folder}), {target}",
+                                  {"progress charges (work days)": int(traced_charges.loc[counted, "work_days"].sum()),
+                                   "progress effect (work days)": progress_work})
+    revision_finish = [finish for _, _, finish in steps]
+    revision_work = []
+    previous = position["h"]
+    for finish in revision_finish:
+        here = _ledger_position(s_result, ledger, int(finish)) if finish >= 0 else previous
+        revision_work.append(here - previous)
+        previous = here
+    work_steps = list(traced_charges.loc[counted, "work_days"]) + revision_work
+    days = split_days(int(finish_s), int(finish_e), work_steps, s_result, ledger)
+    charge_days = np.zeros(len(traced_charges), dtype=np.int64)
+    charge_days[counted] = days[:int(counted.sum())]
+    off = np.flatnonzero(~counted)
+    for i in off:  # a parallel path's work days, stepped alone from S's completion
+        work = int(traced_charges["work_days"].iloc[int(i)])
+        charge_days[i] = _alone_days(s_result, ledger, position["s"], int(finish_s), work)
+    charges = _charge_frame(case, traced_charges, charge_days, start.snapshot, end.snapshot, overrides)
+    revisions = _revision_frame(case, [(k, c, f) for k, c, f in steps], np.asarray(revision_work, dtype=np.int64),
+                                days[int(counted.sum()):], start.snapshot, end.snapshot, overrides)
+    movement = int(finish_e - finish_s)
+    progress = int(days[:int(counted.sum())].sum())
+    if int(days.sum()) != movement:
+        raise ReconciliationError(f"window {number}, {target}", {"calendar days charged": int(days.sum()),
+                                                                 "movement": movement})
+    deleted = tuple(sorted(set(start.snapshot.activities["id"]) - set(end.snapshot.activities["id"])))
+    return Window(
+        number=number, start=start.snapshot.folder, end=end.snapshot.folder, start_label=start.snapshot.label,
+        end_label=end.snapshot.label, start_data_date=start.snapshot.data_date,
+        end_data_date=end.snapshot.data_date, target=target, completion_start=day_to_date(int(finish_s)),
+        completion_half=day_to_date(int(finish_h)) if half_step else None, completion_end=day_to_date(int(finish_e)),
+        movement_days=movement, movement_work_days=position["e"] - position["s"], progress_days=progress,
+        progress_work_days=progress_work, revision_days=movement - progress,
+        revision_work_days=position["e"] - position["h"], charges=charges, revisions=revisions,
+        deleted_in_end=deleted, titles=dict(zip(case.events["id"], case.events["title"])),
+    )
+
+
+def _alone_days(result: ScheduleResult, ledger: int, position: int, first_day: int, work: int) -> int:
+    if not work:
+        return 0
+    day = int(result.model.calendars.day_of(np.array([ledger]), np.array([position + work]))[0])
+    return day - first_day
 
 
 def analyse(case: Case, windows: Sequence[str] | None = None, half_step: bool | None = None) -> WindowsResult:
-    """Windows analysis of a case.
+    """Windows analysis of a case, for the whole works and each section.
 
     Parameters
     ----------
-    case: the loaded case.
-    windows: boundary snapshots (folder names or labels), earliest first; default every
+    case:
+        The loaded case.
+    windows:
+        Boundary snapshots (folder names or labels), earliest first; default every
         snapshot, with the as-built record last when there is one.
-    half_step: split each window into progress and revision effects; ``None`` takes the
-        case's ``[analysis] half_step`` setting. Without it, each window's whole movement is
-        charged along E's driving path and no revisions are listed.
+    half_step:
+        Split each window into progress and revision effects; ``None`` takes the case's
+        ``[analysis] half_step`` setting. Without it, each window's whole movement is
+        charged along E's driving chain and no revisions are listed.
 
     Returns
     -------
@@ -469,13 +585,21 @@ def analyse(case: Case, windows: Sequence[str] | None = None, half_step: bool | 
 
     Raises
     ------
-    CaseError: unknown or misordered boundary snapshots.
-    ReconciliationError: when a window's charges do not sum to its movement.
+    CaseError
+        Unknown or misordered boundary snapshots; a completion activity missing from a
+        boundary.
+    ReconciliationError
+        When a window's charges do not sum to its movement.
 
     Examples
     --------
     >>> result = analyse(load_case("case_demo"))      # doctest: +SKIP
     >>> result.table[["start", "end", "movement_days"]]   # doctest: +SKIP
+
+    References
+    ----------
+    AACE RP 29R-03 (2011), MIP 3.3 and 3.4; SCL Delay and Disruption Protocol, 2nd edition
+    (2017), Part B, time slice windows analysis.
     """
     if half_step is None:
         half_step = case.settings.analysis.half_step
@@ -484,66 +608,112 @@ def analyse(case: Case, windows: Sequence[str] | None = None, half_step: bool | 
         raise CaseError(Problem(file="snapshots/", message="a windows analysis needs at least two snapshots",
                                 fix="add a progress update or an as-built record"))
     scheduler = _Scheduler(case)
-    default = scheduler.calendars[case.settings.schedule.default_calendar]
-    results = {s.folder: scheduler.run(s) for s in boundaries}
-    lateness_base = {}
-    for s in boundaries[:-1]:
-        own = results[s.folder]
-        if scheduler.settings.float_to != "project_finish":
-            own = scheduler.run(s, float_to="project_finish")
-        lateness_base[s.folder] = (own.ids, own.day_array("late_finish"))
-    out = []
-    for number, (start, end) in enumerate(zip(boundaries[:-1], boundaries[1:]), start=1):
-        s_result, e_result = results[start.folder], results[end.folder]
-        movement = int(e_result.completion_day - s_result.completion_day)
-        work_days = int(default.finish_index_days(np.array([e_result.completion_day]))[0]
-                        - default.finish_index_days(np.array([s_result.completion_day]))[0])
-        start_done = set(start.activities["id"][s_result.status == COMPLETE])
-        ids, late_finish = lateness_base[start.folder]
+    target = completion_activity(case)
+    sections = case.sections
+    section_targets = dict(zip(sections["section"].astype(str), sections["completion_activity"].astype(str)))
+    targets = list(dict.fromkeys([target, *section_targets.values()]))
+    marks = [_Boundary(s, scheduler.of(s)) for s in boundaries]
+    overrides = attributions(case)
+    per_target: dict[str, list[Window]] = {t: [] for t in targets}
+    for number, (start, end) in enumerate(zip(marks[:-1], marks[1:]), start=1):
         if half_step:
-            half = half_step_snapshot(start, end)
-            h_result = scheduler.run(half)
-            progress = int(h_result.completion_day - s_result.completion_day)
-            traced = h_result
+            half = half_step_snapshot(start.snapshot, end.snapshot)
+            traced = scheduler.run(half)
+            steps = _revision_steps(scheduler, half, end.snapshot, end.result, targets)
         else:
-            half = None
-            h_result = None
-            progress = movement
-            traced = e_result
-        stop = np.isin(traced.ids, list(start_done))
-        charges = progress_charges(traced, _lateness(traced, ids, late_finish), stop, progress)
-        if len(charges):
-            linked = match_events(case, charges["activity"], end.data_date - dt.timedelta(days=1))
-            charges = pd.concat([charges.reset_index(drop=True), linked.drop(columns="activity")], axis=1)
-        else:
-            charges = pd.DataFrame(columns=CHARGE_COLUMNS)
-        if half_step:
-            revisions = _apply_revisions(scheduler, half, end, h_result, e_result)
-        else:
-            revisions = pd.DataFrame(columns=REVISION_COLUMNS)
-        revision = movement - progress
-        counted = int(charges.loc[charges["counted"].astype(bool), "days"].sum()) if len(charges) else 0
-        revision_sum = int(revisions["days"].sum()) if len(revisions) else 0
-        where = f"window {number} ({start.folder} to {end.folder})"
-        if counted != progress:
-            raise ReconciliationError(where, {"progress charges": counted, "progress effect": progress})
-        if revision_sum != revision:
-            raise ReconciliationError(where, {"revision charges": revision_sum, "revision effect": revision})
-        deleted = tuple(sorted(set(start.activities["id"]) - set(end.activities["id"])))
-        out.append(Window(
-            number=number, start=start.folder, end=end.folder, start_label=start.label, end_label=end.label,
-            start_data_date=start.data_date, end_data_date=end.data_date,
-            completion_start=s_result.completion, completion_half=h_result.completion if h_result else None,
-            completion_end=e_result.completion, movement_days=movement, movement_work_days=work_days,
-            progress_days=progress, revision_days=revision, charges=charges[CHARGE_COLUMNS].reset_index(drop=True),
-            revisions=revisions, driving_start=tuple(s_result.driving_path()),
-            driving_half=tuple(h_result.driving_path()) if h_result else (),
-            driving_end=tuple(e_result.driving_path()), deleted_in_end=deleted,
-        ))
-    first, last = results[boundaries[0].folder], results[boundaries[-1].folder]
-    result = WindowsResult(tuple(out), bool(half_step), first.completion, last.completion)
+            traced = end.result
+            steps = []
+        for t, name in enumerate(targets):
+            own = [(kind, changed, finish[t]) for kind, changed, finish in steps]
+            found = _window(case, number, start, end, name, half_step, traced, own, overrides)
+            if found is None:
+                if name == target:
+                    raise CaseError(Problem(
+                        file="case.toml", column="completion_activity",
+                        message=f"the completion activity '{name}' is not in snapshot '{start.snapshot.folder}' "
+                                f"or '{end.snapshot.folder}'",
+                        fix="name an activity every programme has in [project] completion_activity"))
+                per_target[name] = None
+                continue
+            if per_target[name] is not None:
+                if t == 0:
+                    found = dataclasses.replace(found, driving_start=tuple(start.result.driving_path()),
+                                                driving_half=tuple(traced.driving_path()) if half_step else (),
+                                                driving_end=tuple(end.result.driving_path()))
+                per_target[name].append(found)
+    out = per_target[target]
+    first, last = out[0].completion_start, out[-1].completion_end
+    result = WindowsResult(tuple(out), bool(half_step), first, last, target=target,
+                           ledger_calendar=marks[0].result.model.calendars.names[ledger_number(marks[0].result, target)],
+                           sections={section: tuple(per_target[name]) for section, name in section_targets.items()
+                                     if per_target.get(name)},
+                           attributions=_attribution_table(out, overrides))
     if sum(w.movement_days for w in out) != result.total_movement_days:
         raise ReconciliationError("all windows", {"sum of windows": sum(w.movement_days for w in out),
                                                   "total movement": result.total_movement_days})
     return result
 
+
+def _attribution_table(windows: Sequence[Window], overrides: pd.DataFrame) -> pd.DataFrame:
+    """Each attribution applied, beside what the rule gave."""
+    columns = ["window", "end", "activity", "days", "rule_party", "rule_events", "party", "events", "reason"]
+    rows = []
+    for w in windows:
+        charged = w.charges[w.charges["basis"] == "analyst"]
+        for record in charged.itertuples(index=False):
+            rows.append({"window": w.number, "end": w.end, "activity": record.activity, "days": int(record.days),
+                         "rule_party": record.rule_party, "rule_events": list(record.rule_events),
+                         "party": record.party, "events": list(record.events), "reason": record.reason})
+    unused = []
+    if len(overrides):
+        used = {(r["end"], r["activity"]) for r in rows}
+        for record in overrides.itertuples(index=False):
+            if (record.folder, record.activity) not in used:
+                unused.append(record)
+    for record in unused:
+        rows.append({"window": None, "end": record.folder, "activity": record.activity, "days": 0,
+                     "rule_party": "", "rule_events": [], "party": record.party,
+                     "events": [record.event] if record.event else [],
+                     "reason": f"{record.reason} (no charge on this activity in that window: not applied)"})
+    return pd.DataFrame(rows, columns=columns)
+
+
+def _sentence(w: Window) -> str:
+    """Window 4 (Update 03 to Update 04): completion moved 12 days later; ... ."""
+    direction = "later" if w.movement_days > 0 else "earlier"
+    head = f"Window {w.number} ({w.start_label} to {w.end_label})"
+    if w.movement_days == 0 and not len(w.counted) and not (w.revisions["days"] != 0).any():
+        return f"{head}: completion did not move."
+    moved = (f"completion moved {_days(w.movement_days)} {direction}" if w.movement_days
+             else "completion did not move overall")
+    parts = []
+    counted = w.counted.assign(size=lambda f: f["days"].abs()).sort_values("size", ascending=False, kind="stable")
+    for record in counted.head(3).itertuples(index=False):
+        if not int(record.days) and not int(record.work_days):
+            continue
+        cause = _cause_words(record.events, record.party, record.basis, w.titles)
+        verb = "drove it" if record.days > 0 else "recovered"
+        parts.append(f"{record.activity} {verb} by {_days(int(record.days))} ({cause})")
+    if len(counted) > 3:
+        parts.append(f"{len(counted) - 3} more charges")
+    for record in w.revisions.itertuples(index=False):
+        if int(record.days):
+            cause = _cause_words(record.events, record.party, record.basis, w.titles)
+            parts.append(f"re-planning ({record.kind}) {'added' if record.days > 0 else 'saved'} "
+                         f"{_days(int(record.days))} ({cause})")
+    return f"{head}: {moved}" + (f"; {'; '.join(parts)}." if parts else ".")
+
+
+def _days(count: int) -> str:
+    count = abs(int(count))
+    return f"{count} day" if count == 1 else f"{count} days"
+
+
+def _cause_words(events, party, basis, titles) -> str:
+    if basis == "analyst":
+        return f"{', '.join(events) + ', ' if events else ''}{party}, the analyst's attribution"
+    if events:
+        return f"{', '.join(events)}, {party}"
+    if basis == "risk":
+        return f"no event; the activity is {party} risk"
+    return f"no event; unexplained, {party} risk"

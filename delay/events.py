@@ -1,0 +1,281 @@
+"""Delay events as the methods see them: which activities an event names, which events
+explain a charge on an activity, and who carries the risk of a charge no event explains.
+
+The methods (:mod:`delay.methods`) charge days of delay to activities; this module states,
+once, the rules that turn such a charge into causes. :mod:`delay.causation` then only
+consumes the methods' results, so no module imports one that imports it back.
+
+Matching a charge to events
+---------------------------
+- An event *names* an activity when its ``activities`` column lists it, or when one of its
+  fragnet's links (fragnet_links.csv) ties into it as a programme activity.
+- An event matches a charge on an activity in a period (a window: from the data date of
+  the snapshot that starts it to the data date of the one that ends it, both included)
+  when it names the activity and its own period (``start`` to ``finish``, both included)
+  overlaps the charged period. An event that starts on the data date that ends a window
+  matches that window: the update of that date may already show its effect.
+- Several matching events share the charge as concurrent causes (``basis = "event"``).
+- With no match, the charge goes to the activity's own ``risk`` column (``employer``,
+  ``contractor`` or ``neutral``: for example employer-supplied information or free-issue
+  items; ``basis = "risk"``), else to ``[analysis] unexplained_risk`` (default
+  ``contractor``; ``basis = "unexplained"``). The contractor carries the risk of its own
+  programme unless an event or the contract shifts it (common practice under most
+  standard forms; the contract governs).
+- The analyst may attribute one charge otherwise (attributions.csv: a window, an activity
+  and an event or a party, with a reason): the attribution replaces the rule's answer
+  (``basis = "analyst"``) and both are listed side by side, like a correction.
+
+The project's completion activity
+---------------------------------
+``[project] completion_activity`` in case.toml, else the finish milestone that finishes last
+in the baseline (else the activity that finishes last). Its calendar is the *ledger
+calendar*: lateness and charges of the windows and as-built methods are counted in its
+work days (:mod:`delay.ledger`).
+
+References
+----------
+Society of Construction Law, Delay and Disruption Protocol, 2nd edition (2017), core
+principle 3 (records) and Part B on identifying the causes of delay (as recalled). AACE
+International Recommended Practice 29R-03 (2011), section 4.1 on the responsibility for a
+delay (as recalled).
+"""
+
+from __future__ import annotations
+
+import datetime as dt
+import weakref
+from typing import Iterable, Sequence
+
+import numpy as np
+import pandas as pd
+
+from .model import PARTIES, Case, Snapshot
+
+__all__ = [
+    "BASES",
+    "CONCURRENT",
+    "split_ids",
+    "event_activities",
+    "asbuilt_activities",
+    "unexplained_risk",
+    "activity_risk",
+    "match_events",
+    "attributions",
+    "completion_activity",
+]
+
+#: How a charge's party was found: a matching event, the activity's risk column, the
+#: unexplained-risk setting, or the analyst's attribution.
+BASES = ("event", "risk", "unexplained", "analyst")
+#: The ``party`` of a charge shared by events of several parties.
+CONCURRENT = "concurrent"
+
+MATCH_COLUMNS = ["activity", "events", "parties", "party", "basis"]
+
+
+def split_ids(text) -> list[str]:
+    """The ids of a ``;``-separated cell, in order, blanks dropped, each once.
+
+    >>> split_ids(" A1; A2;;A1 ")
+    ['A1', 'A2']
+    """
+    if text is None or (not isinstance(text, str) and pd.isna(text)):
+        return []
+    ids: list[str] = []
+    for part in str(text).split(";"):
+        part = part.strip()
+        if part and part not in ids:
+            ids.append(part)
+    return ids
+
+
+def event_activities(case: Case) -> dict[str, set[str]]:
+    """Programme activity ids each event names: its ``activities`` and the programme
+    activities its fragnet links tie into.
+
+    Returns
+    -------
+    dict
+        Event id to a set of activity ids (every event of the register has an entry).
+    """
+    events = case.events
+    fragnet_links = case.fragnet_links
+    fragnet_ids = set(case.fragnets["id"])
+    named: dict[str, set[str]] = {}
+    for event_id, activities in zip(events["id"].to_numpy(object), events["activities"].to_numpy(object)):
+        named[event_id] = set(split_ids(activities))
+    for event_id, pred, succ in zip(*(fragnet_links[c].to_numpy(object) for c in ("event", "pred", "succ"))):
+        for activity in (pred, succ):
+            if activity not in fragnet_ids:
+                named.setdefault(event_id, set()).add(activity)
+    return named
+
+
+def asbuilt_activities(case: Case) -> dict[str, list[str]]:
+    """The as-built activities in which each event shows, for the collapsed as-built.
+
+    The event's ``asbuilt_activities`` column when given (case format v2: for example a
+    fragnet the as-built record shows as one recorded activity of its own); else, for a
+    fragnet event, its fragnet's activity ids; else its ``activities``.
+
+    Returns
+    -------
+    dict
+        Event id to the list of activity ids, in the order given.
+    """
+    events = case.events
+    given = events["asbuilt_activities"] if "asbuilt_activities" in events else pd.Series([""] * len(events))
+    fragnets: dict[str, list[str]] = {}
+    for event_id, activity in zip(case.fragnets["event"].to_numpy(object), case.fragnets["id"].to_numpy(object)):
+        fragnets.setdefault(event_id, []).append(activity)
+    found: dict[str, list[str]] = {}
+    for event_id, impact, activities, shows in zip(events["id"], events["impact"], events["activities"], given):
+        if split_ids(shows):
+            found[event_id] = split_ids(shows)
+        elif impact == "fragnet":
+            found[event_id] = list(fragnets.get(event_id, []))
+        else:
+            found[event_id] = split_ids(activities)
+    return found
+
+
+def unexplained_risk(case: Case) -> str:
+    """Who carries slippage that no event and no risk column explains
+    (``[analysis] unexplained_risk``, default ``contractor``)."""
+    return getattr(case.settings.analysis, "unexplained_risk", None) or "contractor"
+
+
+def activity_risk(snapshot: Snapshot, ids: Iterable[str]) -> list[str]:
+    """Each activity's ``risk`` column in a snapshot (``""`` when blank, absent or unknown)."""
+    activities = snapshot.activities
+    if "risk" not in activities:
+        return ["" for _ in ids]
+    risk = dict(zip(activities["id"], activities["risk"].fillna("").astype(str).str.strip()))
+    return [risk.get(a, "") if risk.get(a, "") in PARTIES else "" for a in ids]
+
+
+def _overlapping(case: Case, first: dt.date | None, last: dt.date | None) -> np.ndarray:
+    """Which events' periods overlap ``first .. last`` (both included; None: open)."""
+    events = case.events
+    start = pd.to_datetime(events["start"]).to_numpy()
+    finish = pd.to_datetime(events["finish"]).to_numpy()
+    finish = np.where(pd.isna(finish), start, finish)
+    keep = np.ones(len(events), dtype=bool)
+    if last is not None:
+        keep &= ~(start > np.datetime64(last, "D"))
+    if first is not None:
+        keep &= ~(finish < np.datetime64(first, "D"))
+    return keep
+
+
+def match_events(case: Case, activities: Sequence[str], first: dt.date | None, last: dt.date | None,
+                 snapshot: Snapshot | None = None) -> pd.DataFrame:
+    """The events that explain a charge on each activity in a period, and the charge's party.
+
+    Parameters
+    ----------
+    case:
+        The case with its event register.
+    activities:
+        Activity ids charged.
+    first, last:
+        The period charged, both included (``None``: open at that end).
+    snapshot:
+        The programme whose ``risk`` column decides a charge no event explains (default:
+        none: unexplained).
+
+    Returns
+    -------
+    DataFrame
+        One row per activity given, in order: ``activity``, ``events`` (list of event ids,
+        register order), ``parties`` (the matching events' parties, in the order of the
+        parties), ``party`` (the one party, :data:`CONCURRENT` for several), ``basis``
+        (``event``, ``risk`` or ``unexplained``).
+
+    Examples
+    --------
+    >>> match_events(load_case("case_demo"), ["ENV-DESIGN"], dt.date(2025, 5, 31),
+    ...              dt.date(2025, 6, 30))   # doctest: +SKIP
+    """
+    events = case.events
+    named = event_activities(case)
+    live = _overlapping(case, first, last)
+    by_activity: dict[str, list[tuple[str, str]]] = {}
+    for event_id, party, alive in zip(events["id"], events["party"], live):
+        if alive:
+            for activity in named.get(event_id, ()):
+                by_activity.setdefault(activity, []).append((event_id, party))
+    ids = [str(a) for a in activities]
+    risks = activity_risk(snapshot, ids) if snapshot is not None else ["" for _ in ids]
+    default = unexplained_risk(case)
+    rows = []
+    for activity, risk in zip(ids, risks):
+        found = by_activity.get(activity, [])
+        matched = [event_id for event_id, _ in found]
+        parties = [p for p in PARTIES if p in {party for _, party in found}]
+        if matched:
+            party, basis = (parties[0] if len(parties) == 1 else CONCURRENT), "event"
+        elif risk:
+            party, basis, parties = risk, "risk", [risk]
+        else:
+            party, basis, parties = default, "unexplained", [default]
+        rows.append({"activity": activity, "events": matched, "parties": parties, "party": party, "basis": basis})
+    return pd.DataFrame(rows, columns=MATCH_COLUMNS)
+
+
+def attributions(case: Case) -> pd.DataFrame:
+    """The analyst's attributions (attributions.csv, case format v2), with the snapshot
+    folder each names: columns ``window`` (as given), ``folder``, ``activity``, ``event``,
+    ``party`` (the event's party when an event is named) and ``reason``; empty when the
+    case has none."""
+    columns = ["window", "folder", "activity", "event", "party", "reason"]
+    table = getattr(case, "attributions", None)
+    if table is None or not len(table):
+        return pd.DataFrame(columns=columns)
+    party_of = dict(zip(case.events["id"], case.events["party"]))
+    rows = []
+    for record in table.itertuples(index=False):
+        window = str(record.window)
+        try:
+            folder = case.snapshot(window).folder
+        except KeyError:
+            folder = window
+        event = str(getattr(record, "event", "") or "")
+        party = party_of.get(event, "") if event else str(getattr(record, "party", "") or "")
+        rows.append({"window": window, "folder": folder, "activity": str(record.activity), "event": event,
+                     "party": party, "reason": str(getattr(record, "reason", "") or "")})
+    return pd.DataFrame(rows, columns=columns)
+
+
+_COMPLETION: "weakref.WeakKeyDictionary[Case, str]" = weakref.WeakKeyDictionary()
+
+
+def completion_activity(case: Case) -> str:
+    """The id of the project's completion activity.
+
+    ``[project] completion_activity`` when case.toml gives it; else the finish milestone
+    that finishes last in the baseline (the last in the baseline's order on a tie); else
+    the activity that finishes last.
+
+    Raises
+    ------
+    CaseError
+        When the baseline cannot be scheduled (a loop in its logic).
+    """
+    found = _COMPLETION.get(case)
+    if found is not None:
+        return found
+    given = getattr(case.settings.project, "completion_activity", None)
+    if given:
+        _COMPLETION[case] = str(given)
+        return str(given)
+    from .cpm import FINISH_MILESTONE, calendars_of, prepare
+
+    result = prepare(case, case.baseline, calendars=calendars_of(case)).run()
+    finish = result.finish_day
+    milestones = np.flatnonzero(result.point == FINISH_MILESTONE)
+    pool = milestones if milestones.size else np.arange(finish.size)
+    last = pool[finish[pool] == finish[pool].max()]
+    found = str(result.ids[int(last[-1])])
+    _COMPLETION[case] = found
+    return found

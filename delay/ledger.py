@@ -1,0 +1,485 @@
+"""The work-day ledger: delay charged along a driving chain in work days of one calendar,
+and the movement of completion split into calendar days.
+
+The windows analysis (:mod:`delay.methods.windows`) and the as-planned versus as-built
+comparison (:mod:`delay.methods.as_built`) both ask the same question of two schedules of
+the works, *before* and *after*: which activities on the chain that drives a target
+activity (the project's completion activity, or a section's completion milestone) in
+*after* made it move, and by how much. This module answers it once for both.
+
+Lateness
+--------
+Each activity's late finish in *before* comes from a backward pass over logic alone from the
+target's own finish in *before* (:func:`logic_late_finish`): ``latest_finish`` and ``fixed_*``
+constraints and the ``float_to`` setting are ignored, so a milestone constraint (which moves
+no forward date) moves no figure, and an activity that does not lead to the target has no
+late date for it. An activity's *level* in *after* is counted in work days of the *ledger
+calendar* (that of the project's completion activity):
+
+- its finish in *after* past its late finish in *before*: delay beyond its float;
+- less, where it finishes before its early finish in *before*, the work days it gained;
+- zero in between: slipping into its own float is neither delay nor gain.
+
+So the target's level is exactly its movement in ledger work days, and float that an
+activity off the driving chain absorbs is charged nothing (float is shared, first come, first
+served: SCL Delay and Disruption Protocol, 2nd edition (2017), core principle 7, as
+recalled).
+
+Charges
+-------
+The chain is traced back from the target through driving predecessors (on early dates, then
+on actual dates: :func:`delay.tracing.explore`) to an activity where the trace must stop (in
+a window: one complete before it started), whose level counts as zero. At a tie the
+predecessor with the greatest level is taken, then an FS link, then input order. Each
+activity of the chain is charged its level less its driving predecessor's, so the charges
+telescope exactly to the target's movement. An activity whose start gap behind its driving
+predecessor (the same link, in *before* and in *after*) and whose duration (work days of its
+own calendar from start to finish) did not change only carried an earlier delay: it is
+charged nothing, and what its level differs by (non-working days of another calendar, a
+weekend, a shutdown) goes to the nearest activity upstream on the chain that did change (or,
+failing one, the nearest downstream). Activities of tied driving paths beside the chain are
+listed with their own charges as concurrency groups; they are not counted.
+
+Calendar days
+-------------
+A movement in calendar days is split among ordered steps of work days (the counted charges
+in path order, then, in a window, its revision kinds) by walking the ledger calendar: from
+the first completion date, each step moves the position by its work days and takes the
+calendar days between the dates of its two positions; the first and last positions are the
+two completion dates themselves, so the split adds up exactly (:func:`split_days`).
+
+References
+----------
+AACE International Recommended Practice 29R-03, Forensic Schedule Analysis (2011), MIP 3.1 to
+3.4 (observational methods: as-planned versus as-built and contemporaneous windows) and
+section 4 on float and the critical path (as recalled); SCL Delay and Disruption Protocol,
+2nd edition (2017), Part B, time slice windows and as-planned versus as-built windows
+analysis (as recalled). Counting delay on the critical path in work days is common practice.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+import pandas as pd
+
+from .cpm import NO_DAY, TASK, ScheduleResult
+from .errors import ReconciliationError
+from .tracing import explore
+
+__all__ = [
+    "CHARGE_COLUMNS",
+    "Levels",
+    "logic_late_finish",
+    "levels",
+    "trace_charges",
+    "split_days",
+    "ledger_number",
+]
+
+#: Columns of a traced chain's charges (:func:`trace_charges`).
+CHARGE_COLUMNS = ["activity", "name", "work_days", "level", "counted", "inherited", "driving_predecessor",
+                  "group", "concurrent_with"]
+
+
+def ledger_number(result: ScheduleResult, activity: str) -> int:
+    """The number of the ledger calendar (the base calendar of ``activity``) in
+    ``result``'s calendar set, or of the default calendar when the activity is absent."""
+    model = result.model
+    k = int(model.network.index_of([activity])[0])
+    if k < 0:
+        return int(model.calendars.number[model.settings.default_calendar])
+    return int(model.calendars.base_of(int(model.calendar[k]))[0])
+
+
+def logic_late_finish(result: ScheduleResult, target: int) -> np.ndarray:
+    """Late finish and late start day numbers by logic alone, from the finish of activity
+    ``target``.
+
+    Parameters
+    ----------
+    result:
+        A scheduled snapshot.
+    target:
+        Activity number whose finish in ``result`` the backward pass starts from.
+
+    Returns
+    -------
+    numpy.ndarray
+        ``int64`` day numbers, shape ``(2, n)``: late finishes, then late starts;
+        :data:`delay.cpm.NO_DAY` for an activity that is complete or from which no chain of
+        links leads to ``target``.
+    """
+    model = result.model
+    net = model.network
+    late = np.full((2, net.size), NO_DAY, dtype=np.int64)
+    if result.status[target] == 2:  # complete: nothing is late for it any more
+        return late
+    keep = net.upstream([target])
+    sub = model.restricted(keep).logic_only(int(result.finish_day[target])).run()
+    late[0, np.flatnonzero(keep)] = sub.day_array("late_finish")
+    late[1, np.flatnonzero(keep)] = sub.day_array("late_start")
+    return late
+
+
+@dataclass(frozen=True)
+class Levels:
+    """Per activity of *after*: its level at its finish and at its start (ledger work
+    days, ``NaN`` where *before* gives no late date), its number in *before* (``-1`` when
+    absent) and whether its duration (work days of its own calendar) is the same as in
+    *before* (``span_change``: its duration's growth in work days of its own calendar). A link
+    that reads a predecessor's start (SS, SF) passes on its start level."""
+
+    level: np.ndarray
+    start_level: np.ndarray
+    before_number: np.ndarray
+    span_change: np.ndarray
+
+
+def _ledger_index(result: ScheduleResult, ledger: int, days: np.ndarray) -> np.ndarray:
+    days = np.asarray(days, dtype=np.int64)
+    out = np.zeros(days.size, dtype=np.int64)
+    known = days != NO_DAY
+    if known.any():
+        out[known] = result.model.calendars.finish_index_days(np.full(int(known.sum()), ledger), days[known])
+    return out
+
+
+def _ledger_start(result: ScheduleResult, ledger: int, days: np.ndarray) -> np.ndarray:
+    days = np.asarray(days, dtype=np.int64)
+    out = np.zeros(days.size, dtype=np.int64)
+    known = days != NO_DAY
+    if known.any():
+        out[known] = result.model.calendars.start_index_days(np.full(int(known.sum()), ledger), days[known])
+    return out
+
+
+def _spans(result: ScheduleResult) -> np.ndarray:
+    """Work days of each activity's own calendar from its start to its finish (0 for a
+    milestone)."""
+    model = result.model
+    start = result.day_array("early_start")
+    finish = result.day_array("early_finish")
+    known = (start != NO_DAY) & (finish != NO_DAY)
+    span = np.zeros(start.size, dtype=np.int64)
+    rows = np.flatnonzero(known)
+    if rows.size:
+        cals = model.calendars
+        span[rows] = (cals.finish_index_days(model.calendar[rows], finish[rows]) + 1
+                      - cals.start_index_days(model.calendar[rows], start[rows]))
+    return np.where((result.point == TASK) & (model.kind == TASK), np.maximum(span, 0), 0)
+
+
+def _level(after: ScheduleResult, ledger: int, now: np.ndarray, late: np.ndarray, early: np.ndarray,
+           start: bool) -> np.ndarray:
+    """``max(0, now - late) + min(0, now - early)`` in ledger work days; NaN without a late
+    date."""
+    known = late != NO_DAY
+    convert = _ledger_start if start else _ledger_index
+    here = convert(after, ledger, now)
+    past_late = here - convert(after, ledger, late)
+    past_early = here - convert(after, ledger, early)
+    return np.where(known, np.maximum(past_late, 0) + np.minimum(past_early, 0), np.nan).astype(np.float64)
+
+
+def levels(after: ScheduleResult, before: ScheduleResult, late_before: np.ndarray, ledger: int) -> Levels:
+    """Each activity's levels in ``after`` against ``before`` (see the module docstring).
+
+    Parameters
+    ----------
+    after, before:
+        Two schedules of the works (for example a window's half-step and its first
+        snapshot, or the as-built record and the baseline).
+    late_before:
+        Late finish and late start day numbers in ``before`` by logic alone
+        (:func:`logic_late_finish`), aligned with ``before``'s activities.
+    ledger:
+        Number of the ledger calendar in ``after``'s calendar set (the same number in
+        ``before``'s: derived sets keep every calendar's number).
+
+    Returns
+    -------
+    Levels
+    """
+    position = before.model.network.index_of(after.ids)
+    present = position >= 0
+    safe = np.maximum(position, 0)
+
+    def aligned(values: np.ndarray) -> np.ndarray:
+        return np.where(present, values[safe], NO_DAY)
+
+    finish = _level(after, ledger, after.finish_day, aligned(late_before[0]), aligned(before.finish_day), False)
+    start = _level(after, ledger, after.day_array("early_start"), aligned(late_before[1]),
+                   aligned(before.day_array("early_start")), True)
+    change = np.where(present, _spans(after) - _spans(before)[safe], 0)
+    return Levels(finish, start, position, change)
+
+
+def _gap_change(after: ScheduleResult, before: ScheduleResult, link: int, before_number: np.ndarray) -> int | None:
+    """How much the gap of link ``link`` of ``after`` grew against the same link (same ends
+    and type) in ``before``, in work days of the successor's calendar; ``None`` when
+    ``before`` has no such link."""
+    net = after.model.network
+    other = before.model.network
+    succ = int(before_number[net.succ[link]])
+    pred = int(before_number[net.pred[link]])
+    if succ < 0 or pred < 0:
+        return None
+    links = other.in_link[other.in_ptr[succ]:other.in_ptr[succ + 1]]
+    same = links[(other.pred[links] == pred) & (other.link_type[links] == net.link_type[link])]
+    if not same.size:
+        return None
+    return int(after.link_gaps[link]) - int(before.link_gaps[int(same[0])])
+
+
+def trace_charges(after: ScheduleResult, before: ScheduleResult, late_before: np.ndarray, target: str,
+                  stop: np.ndarray, ledger: int) -> pd.DataFrame:
+    """The charges of the movement of ``target`` along its driving chain in ``after``.
+
+    Parameters
+    ----------
+    after, before, late_before, ledger:
+        As for :func:`levels`.
+    target:
+        The id of the activity whose movement is explained (it must be in ``after``).
+    stop:
+        Boolean array over ``after``'s activities: the trace ends at these (their level
+        counts as zero).
+
+    Returns
+    -------
+    DataFrame
+        Columns :data:`CHARGE_COLUMNS`, one row per activity explored: the counted chain
+        first, in path order (its ``work_days`` add up to the target's level, its
+        movement), then the activities of tied paths beside it. ``inherited`` marks an
+        activity that only carried an earlier delay (charged nothing); ``group`` numbers a
+        concurrency group (``<NA>`` outside one), ``concurrent_with`` lists its other
+        members.
+
+    Raises
+    ------
+    ReconciliationError
+        When the counted charges do not add up to the target's level.
+    """
+    net = after.model.network
+    k = int(net.index_of([target])[0])
+    empty = pd.DataFrame(columns=CHARGE_COLUMNS)
+    if k < 0 or stop[k]:
+        return empty
+    found = levels(after, before, late_before, ledger)
+    graph = explore(after, [k], stop)
+    nodes = sorted(set(graph.parents) | set(graph.stopped), key=lambda v: net.rank[v])
+    level: dict[int, float] = {}  # at the finish
+    start_level: dict[int, float] = {}
+    parent: dict[int, tuple[int, int] | None] = {}
+
+    def passed(p: int, link: int) -> float:
+        """What ``p`` passes on through ``link``: its start level through a link that reads
+        its start (SS, SF), else its finish level."""
+        return start_level[p] if net.link_type[link] in (1, 3) else level[p]
+
+    for v in nodes:
+        if v in graph.stopped:
+            level[v] = start_level[v] = 0.0
+            parent[v] = None
+            continue
+        options = [(p, link) for p, link, _ in graph.parents[v] if p in level]
+        chosen = None
+        if options:  # the greatest level passed on; among equals the first in tie order
+            top = max(passed(p, link) for p, link in options)
+            chosen = next(option for option in options if passed(*option) == top)
+        parent[v] = chosen
+        carried_in = passed(*chosen) if chosen is not None else 0.0
+        own, own_start = found.level[v], found.start_level[v]
+        level[v] = carried_in if np.isnan(own) else float(own)
+        start_level[v] = carried_in if np.isnan(own_start) else float(own_start)
+    chain = [k]
+    while parent.get(chain[-1]) is not None:
+        chain.append(parent[chain[-1]][0])
+    chain.reverse()
+    chain = [v for v in chain if v not in graph.stopped]
+    out = {v: level[v] for v in nodes}  # what each passes on along the chain
+    for v, after_v in zip(chain[:-1], chain[1:]):
+        out[v] = passed(v, parent[after_v][1])
+
+    def own_change(v: int) -> int | None:
+        """The work days ``v`` itself added (its gap behind its driving predecessor and its
+        duration, against *before*); ``None`` when *before* cannot tell."""
+        chosen = parent.get(v)
+        if chosen is None or found.before_number[v] < 0:
+            return None
+        gap = _gap_change(after, before, chosen[1], found.before_number)
+        return None if gap is None else gap + int(found.span_change[v])
+
+    def inherited(v: int) -> bool:
+        return own_change(v) == 0
+
+    raw = {v: out[v] - (passed(*parent[v]) if parent.get(v) is not None else 0.0) for v in nodes}
+    carried = {v: inherited(v) for v in chain}
+    charge = _absorb(chain, _redistribute(chain, raw, carried), {v: own_change(v) for v in chain})
+    counted = set(chain)
+    total = sum(charge[v] for v in chain)
+    if chain and round(total) != round(level[k]):
+        raise ReconciliationError(f"the driving chain of {target}", {"charges": round(total),
+                                                                     "movement": round(level[k])})
+    off = [v for v in nodes if v not in counted and v not in graph.stopped]
+    for v in off:
+        charge[v] = 0.0 if inherited(v) else raw[v]
+    group_number, concurrent = _groups(chain, off, graph, charge, k)
+    ids = net.ids
+    rows = []
+    for v in chain + off:
+        chosen = parent.get(v)
+        rows.append({
+            "activity": str(ids[v]), "name": after.model.names[v], "work_days": int(round(charge[v])),
+            "level": int(round(out[v])), "counted": v in counted, "inherited": bool(carried.get(v, inherited(v))),
+            "driving_predecessor": str(ids[chosen[0]]) if chosen is not None else "",
+            "group": group_number.get(v), "concurrent_with": sorted(str(ids[x]) for x in concurrent.get(v, ())),
+        })
+    frame = pd.DataFrame(rows, columns=CHARGE_COLUMNS)
+    frame["group"] = frame["group"].astype("Int64")
+    return frame
+
+
+def _absorb(chain: list[int], charge: dict[int, float], own: dict[int, int | None]) -> dict[int, float]:
+    """Float taken up along the chain cancels the delays it absorbed.
+
+    A negative charge on an activity that did not itself gain (its gap and duration did not
+    shrink) is float it had that took up an earlier delay: it cancels the latest positive
+    charges upstream on the chain, and only what they cannot take stays. An activity's own
+    gain (its gap and duration shrank) stays a negative charge, up to what it gained."""
+    charge = dict(charge)
+    open_delays: list[int] = []
+    for v in chain:
+        value = charge[v]
+        if value > 0:
+            open_delays.append(v)
+            continue
+        if value >= 0:
+            continue
+        gained = min(0, own[v]) if own[v] is not None else 0
+        kept = max(value, gained)
+        absorbed = kept - value  # > 0: float, not a gain
+        while absorbed > 0 and open_delays:
+            u = open_delays[-1]
+            take = min(absorbed, charge[u])
+            charge[u] -= take
+            absorbed -= take
+            if charge[u] <= 0:
+                open_delays.pop()
+        charge[v] = kept - absorbed
+    return charge
+
+
+def _redistribute(chain: list[int], raw: dict[int, float], carried: dict[int, bool]) -> dict[int, float]:
+    """Charges along the chain: an activity that only carried a delay is charged nothing;
+    its difference goes to the nearest activity upstream that did change, else the nearest
+    downstream one, else (none changed) the first of the chain."""
+    charge = {v: (0.0 if carried[v] else raw[v]) for v in chain}
+    owners = [i for i, v in enumerate(chain) if not carried[v]]
+    for i, v in enumerate(chain):
+        if not carried[v] or not raw[v]:
+            continue
+        upstream = [j for j in owners if j < i]
+        downstream = [j for j in owners if j > i]
+        home = upstream[-1] if upstream else (downstream[0] if downstream else 0)
+        charge[chain[home]] += raw[v]
+    return charge
+
+
+def _groups(chain: list[int], off: list[int], graph, charge: dict[int, float], seed: int):
+    """Concurrency groups: connected stretches of activities off the counted chain, with the
+    stretch of the chain they run beside (from where they leave it to where they join)."""
+    position = {v: i for i, v in enumerate(chain)}
+    neighbours: dict[int, set[int]] = {v: set() for v in off}
+    for v in off:
+        for p, _, _ in graph.parents.get(v, []):
+            if p in neighbours:
+                neighbours[v].add(p)
+                neighbours[p].add(v)
+    group_of: dict[int, int] = {}
+    groups: list[list[int]] = []
+    for v in off:
+        if v in group_of:
+            continue
+        members, pending = [], [v]
+        while pending:
+            x = pending.pop()
+            if x in group_of:
+                continue
+            group_of[x] = len(groups)
+            members.append(x)
+            pending.extend(neighbours[x] - set(group_of))
+        groups.append(members)
+    diverge: list[list[int]] = [[] for _ in groups]
+    merge: list[list[int]] = [[] for _ in groups]
+    for v in off:
+        for p, _, _ in graph.parents.get(v, []):
+            if p in position:
+                diverge[group_of[v]].append(position[p])
+    for v in chain:
+        for p, _, _ in graph.parents.get(v, []):
+            if p in group_of:
+                merge[group_of[p]].append(position[v])
+    group_number: dict[int, int] = {}
+    concurrent: dict[int, set[int]] = {}
+    reported = 0
+    for number, members in enumerate(groups):
+        if seed in members:
+            merge[number].append(len(chain))
+        low = max(diverge[number]) + 1 if diverge[number] else 0
+        high = min(merge[number]) if merge[number] else len(chain)
+        stretch = chain[low:high] if high > low else []
+        everyone = members + stretch
+        if all(round(charge.get(v, 0.0)) == 0 for v in everyone):
+            continue
+        reported += 1
+        for v in everyone:
+            group_number[v] = reported
+            concurrent.setdefault(v, set()).update(set(everyone) - {v})
+    return group_number, concurrent
+
+
+def split_days(first_day: int, last_day: int, steps, result: ScheduleResult, ledger: int) -> np.ndarray:
+    """Calendar days of each step of work days, walking the ledger calendar.
+
+    Parameters
+    ----------
+    first_day, last_day:
+        The two completion dates (day numbers) the steps lead from and to.
+    steps:
+        Work days of each step, in order (positive: later).
+    result:
+        A schedule whose calendar set holds the ledger calendar.
+    ledger:
+        The ledger calendar's number.
+
+    Returns
+    -------
+    numpy.ndarray
+        ``int64`` calendar days per step, adding up to ``last_day - first_day``.
+
+    Raises
+    ------
+    ReconciliationError
+        When the steps do not add up to the work days between the two dates.
+
+    Examples
+    --------
+    Two steps of 1 and 2 work days from a Friday on a Monday-to-Friday calendar take 3 and
+    2 calendar days (to Monday, then to Wednesday).
+    """
+    steps = np.asarray(list(steps), dtype=np.int64)
+    cals = result.model.calendars
+    start, end = (int(x) for x in cals.finish_index_days(np.array([ledger, ledger]), np.array([first_day, last_day])))
+    if int(steps.sum()) != end - start:
+        raise ReconciliationError("the work-day ledger", {"work days of the steps": int(steps.sum()),
+                                                          "work days between the completions": end - start})
+    if not steps.size:
+        return steps
+    positions = start + np.cumsum(steps)
+    dates = cals.day_of(np.full(positions.size, ledger), positions).astype(np.int64)
+    dates = np.where(positions == start, first_day, np.where(positions == end, last_day, dates))
+    dates[-1] = last_day
+    return np.diff(np.concatenate([[first_day], dates]))
