@@ -30,6 +30,7 @@ __all__ = [
     "ScheduleSettings",
     "CommercialSettings",
     "AnalysisSettings",
+    "ReportSettings",
     "CaseSettings",
     "Snapshot",
     "Correction",
@@ -40,6 +41,7 @@ __all__ = [
     "CONSTRAINTS",
     "PARTIES",
     "IMPACTS",
+    "METHODS",
     "WEEKDAYS",
 ]
 
@@ -48,6 +50,8 @@ ACTIVITY_KINDS = ("task", "start_milestone", "finish_milestone")
 CONSTRAINTS = ("earliest_start", "latest_finish", "fixed_start", "fixed_finish")
 PARTIES = ("employer", "contractor", "neutral")
 IMPACTS = ("extend", "hold", "fragnet")
+#: The delay-analysis methods a report may name as the analyst's preferred one.
+METHODS = ("windows", "asbuilt", "impacted", "tia", "collapsed")
 WEEKDAYS = ("Mon", "Tue", "Wed", "Thu", "Fri", "Sat", "Sun")
 
 #: The stable columns of every table, in order. Unknown input columns follow these.
@@ -56,14 +60,15 @@ COLUMNS: dict[str, tuple[str, ...]] = {
     "calendar_exceptions": ("calendar", "date", "working", "reason"),
     "activities": (
         "id", "name", "duration", "calendar", "wbs", "kind", "constraint",
-        "constraint_date", "party", "actual_start", "actual_finish", "remaining",
+        "constraint_date", "party", "risk", "actual_start", "actual_finish", "remaining",
     ),
     "links": ("pred", "succ", "type", "lag"),
     "asbuilt": ("id", "actual_start", "actual_finish", "source"),
     "corrections": ("snapshot", "table", "key", "column", "value", "reason"),
+    "attributions": ("window", "activity", "event", "party", "reason"),
     "events": (
         "id", "title", "party", "start", "finish", "activities", "impact", "days",
-        "evidence", "notified", "claimed_days",
+        "evidence", "notified", "claimed_days", "tia_update", "asbuilt_activities",
     ),
     "fragnets": ("event", "id", "name", "duration", "calendar", "wbs"),
     "fragnet_links": ("event", "pred", "succ", "type", "lag"),
@@ -82,11 +87,17 @@ COLUMNS: dict[str, tuple[str, ...]] = {
 
 @dataclass(frozen=True)
 class ProjectSettings:
-    """``[project]`` of case.toml."""
+    """``[project]`` of case.toml.
+
+    ``completion_activity`` is the activity whose finish is the completion of the whole
+    works, as given; ``None`` when case.toml names none (the methods then take the finish
+    milestone that finishes last in the baseline).
+    """
 
     name: str
     contract_start: dt.date
     contract_completion: dt.date
+    completion_activity: str | None = None
 
 
 @dataclass(frozen=True)
@@ -118,6 +129,19 @@ class AnalysisSettings:
 
     half_step: bool = True
     concurrency: Literal["time_not_money", "apportion"] = "time_not_money"
+    #: Who carries slippage that no event and no activity's ``risk`` explains.
+    unexplained_risk: Literal["employer", "contractor", "neutral"] = "contractor"
+
+
+@dataclass(frozen=True)
+class ReportSettings:
+    """``[report]`` of case.toml (all optional).
+
+    ``preferred_method`` is the method the analyst relies on (one of :data:`METHODS`), or
+    ``None`` when case.toml names none.
+    """
+
+    preferred_method: Literal["windows", "asbuilt", "impacted", "tia", "collapsed"] | None = None
 
 
 @dataclass(frozen=True)
@@ -128,6 +152,7 @@ class CaseSettings:
     schedule: ScheduleSettings = field(default_factory=ScheduleSettings)
     commercial: CommercialSettings = field(default_factory=CommercialSettings)
     analysis: AnalysisSettings = field(default_factory=AnalysisSettings)
+    report: ReportSettings = field(default_factory=ReportSettings)
     extra: Mapping[str, object] = field(default_factory=dict)
 
 
@@ -213,6 +238,7 @@ _TABLE_DOCS = {
     "calendars": "work calendars",
     "calendar_exceptions": "holidays and extra working days",
     "asbuilt": "the as-built record (rows as given, corrections applied)",
+    "attributions": "the analyst's disclosed attributions of a window's charge on an activity",
     "events": "the delay event register",
     "fragnets": "activities inserted by events",
     "fragnet_links": "links of the fragnet activities",
@@ -221,6 +247,9 @@ _TABLE_DOCS = {
     "extensions_granted": "extensions of time already granted",
     "prolongation_rates": "time-related cost per day by period",
 }
+
+#: Tables of case-format version 2 that a hand-built Case may leave out (all text columns).
+_VERSION_2_TABLES = ("attributions",)
 
 
 class Case:
@@ -235,9 +264,11 @@ class Case:
     asbuilt_snapshot: :class:`Snapshot` built from the as-built record, or ``None``.
     corrections: the analyst's corrections, applied, in corrections.csv order.
     input_files: every file read, for the report's manifest.
+    opinion: the analyst's opinion (opinion.md) as text, ``""`` when there is none.
 
     Each optional table is present (empty, with its stable columns) even when its file
-    is absent.
+    is absent. A table added in case-format version 2 (``attributions``) may be left out
+    of ``tables`` when a case is built by hand: it is then empty.
     """
 
     def __init__(
@@ -250,13 +281,19 @@ class Case:
         asbuilt_snapshot: Snapshot | None,
         corrections: tuple[Correction, ...],
         input_files: tuple[Path, ...],
+        opinion: str = "",
     ):
+        tables = dict(tables)
+        for name in _VERSION_2_TABLES:
+            tables.setdefault(name, pd.DataFrame(
+                {column: pd.Series([], dtype="str") for column in COLUMNS[name]}))
         missing = set(_TABLE_DOCS) - set(tables)
         if missing:
             raise ValueError(f"tables missing: {sorted(missing)}")
         self.root = Path(root)
         self.settings = settings
-        self._tables = dict(tables)
+        self.opinion = str(opinion)
+        self._tables = tables
         self.snapshots = tuple(snapshots)
         self.asbuilt_snapshot = asbuilt_snapshot
         self.corrections = tuple(corrections)

@@ -1,4 +1,4 @@
-"""An empty case folder to start from: every file of case-format v1 with its header.
+"""An empty case folder to start from: every file of case-format version 2 with its header.
 
 :func:`write_skeleton` writes case.toml (every setting, each with a comment), the
 calendars, a baseline snapshot holding one start milestone (so the skeleton loads as a
@@ -17,6 +17,7 @@ import textwrap
 from pathlib import Path
 
 from delay.errors import CaseError, Problem
+from delay.case._source import OPTIONAL_FILES
 from delay.model import COLUMNS
 
 __all__ = ["write_skeleton", "FILE_GUIDE", "GUIDE_NAME"]
@@ -63,6 +64,9 @@ FILE_GUIDE: tuple[tuple[str, str, tuple[tuple[str, str], ...]], ...] = (
                        "fixed_start or fixed_finish"),
         ("constraint_date", "the date of that constraint, YYYY-MM-DD"),
         ("party", "who carries out the work, free text"),
+        ("risk", "who carries the risk of this activity's own slippage when no event "
+                 "explains it: employer (e.g. employer-supplied information or free-issue "
+                 "items), contractor or neutral; blank means unexplained_risk of case.toml"),
         ("actual_start", "updates only: the day the work started; blank if it has not"),
         ("actual_finish", "updates only: the day the work was finished; blank if it is not"),
         ("remaining", "updates only: working days still to go at the data date; needed "
@@ -98,6 +102,19 @@ FILE_GUIDE: tuple[tuple[str, str, tuple[tuple[str, str], ...]], ...] = (
                   "e.g. FS 0"),
         ("reason", "why the record is corrected, with the document that shows it"),
     )),
+    ("attributions.csv", "Optional. The analyst's own attribution of the delay charged to "
+     "an activity in a window, overriding the matching rule. Each one is applied in memory "
+     "and listed in every output beside what the rule would have given, like a "
+     "correction.", (
+        ("window", "the label or folder of the snapshot that ends the window (any update, "
+                   "or asbuilt for the last window)"),
+        ("activity", "the id of the activity, in that snapshot, whose charge is attributed"),
+        ("event", "the id of the event (events.csv) the charge is attributed to; leave it "
+                  "blank when a party is given"),
+        ("party", "employer, contractor or neutral, when no event explains the charge; "
+                  "leave it blank when an event is given"),
+        ("reason", "why, with the record that shows it (required)"),
+    )),
     ("events.csv", "Optional. The register of delay events.", (
         ("id", "the event's reference, unique"),
         ("title", "a short description"),
@@ -106,12 +123,19 @@ FILE_GUIDE: tuple[tuple[str, str, tuple[tuple[str, str], ...]], ...] = (
         ("finish", "the day it ended"),
         ("activities", "the ids of the activities it affected, separated by ;"),
         ("impact", "how to model it: extend (lengthen the activities by days), hold (the "
-                   "activities cannot start before the day after finish) or fragnet "
-                   "(insert its rows of fragnets.csv)"),
+                   "activities do no work from start to finish, both days included, "
+                   "whatever their status; the rest of their work resumes after it) or "
+                   "fragnet (insert its rows of fragnets.csv)"),
         ("days", "for extend: the working days added to each affected activity"),
         ("evidence", "the records that support the event"),
         ("notified", "the day it was notified under the contract"),
         ("claimed_days", "the extension of time claimed for it, in calendar days"),
+        ("tia_update", "optional: the label or folder of the update that time impact "
+                       "analysis inserts the event into, instead of the one current when "
+                       "it began (the analyst's choice, disclosed)"),
+        ("asbuilt_activities", "optional: the as-built activities in which the event "
+                               "shows, separated by ;, for collapsed as-built (blank: the "
+                               "activities column, or the event's fragnet activities)"),
     )),
     ("fragnets.csv", "Optional. Activities that an event adds to the programme.", (
         ("event", "the id of the event that adds it"),
@@ -169,11 +193,15 @@ FILE_GUIDE: tuple[tuple[str, str, tuple[tuple[str, str], ...]], ...] = (
 )
 
 #: case.toml of a new case: (section, key, value as TOML, comment). ``{start}``,
-#: ``{completion}`` and ``{name}`` are filled in when it is written.
+#: ``{completion}`` and ``{name}`` are filled in when it is written. A setting with no
+#: default (value ``None``) is written as a comment, to be filled in when it applies.
 _SETTINGS: tuple[tuple[str, str, str, str], ...] = (
     ("project", "name", '"{name}"', "the project's name, shown on every report"),
     ("project", "contract_start", "{start}", "the day the works may start under the contract"),
     ("project", "contract_completion", "{completion}", "the contractual completion date"),
+    ("project", "completion_activity", None,
+     "the milestone that marks completion of the whole works; left out: the finish "
+     "milestone that finishes last in the baseline"),
     ("schedule", "default_calendar", '"5d"',
      "the calendar of activities that name none (see calendars.csv)"),
     ("schedule", "progress", '"retained_logic"',
@@ -193,13 +221,20 @@ _SETTINGS: tuple[tuple[str, str, str, str], ...] = (
      "split every window into the effect of progress and the effect of revisions"),
     ("analysis", "concurrency", '"time_not_money"',
      'concurrent critical delay: "time_not_money" (time, no money) or "apportion"'),
+    ("analysis", "unexplained_risk", '"contractor"',
+     'who carries slippage no event or risk column explains: "employer", "contractor" or '
+     '"neutral"'),
+    ("report", "preferred_method", None,
+     'the method the analyst relies on: "windows", "asbuilt", "impacted", "tia" or '
+     '"collapsed"; left out: none is named'),
 )
 
 
 def _case_toml(name: str, start: dt.date, completion: dt.date) -> str:
     values = {"name": name.replace("\\", "/").replace('"', "'"), "start": start.isoformat(),
               "completion": completion.isoformat()}
-    settings = [(section, f"{key} = {value.format(**values)}", comment)
+    settings = [(section, f"{key} = {value.format(**values)}" if value is not None
+                 else f"# {key} = {_EXAMPLES[key]}", comment)
                 for section, key, value, comment in _SETTINGS]
     width = max(len(line) for _, line, _ in settings) + 2
     lines = ["# The facts of the project and the settings of the analysis.",
@@ -212,6 +247,9 @@ def _case_toml(name: str, start: dt.date, completion: dt.date) -> str:
         lines.append(f"{line.ljust(width)}# {comment}")
     return "\n".join(lines) + "\n"
 
+
+#: An example for each setting that has no default (written as a comment line).
+_EXAMPLES = {"completion_activity": '"FINISH"', "preferred_method": '"windows"'}
 
 _SNAPSHOT_TOML = """\
 label = "Baseline"        # the name shown in the report
@@ -230,6 +268,8 @@ def _guide_text() -> str:
         "optional may stay as they are (a header row only) when they do not apply.",
         "case.toml holds the project's facts and the analysis settings; each line there",
         "has a comment. `delay validate FOLDER` checks the case and names every problem.",
+        "The analyst's opinion may be written, in Markdown, in an optional opinion.md",
+        "beside case.toml (UTF-8 text, at most 256 KiB); the report shows it.",
         "",
     ]
     for path, purpose, columns in FILE_GUIDE:
@@ -308,9 +348,7 @@ def write_skeleton(directory: str | Path, *, project_name: str = "New project",
         _write_csv(baseline / "activities.csv", COLUMNS["activities"],
                    [[start_milestone.get(c, "") for c in COLUMNS["activities"]]])
         _write_csv(baseline / "links.csv", COLUMNS["links"])
-        for name in ("calendar_exceptions", "asbuilt", "corrections", "events", "fragnets",
-                     "fragnet_links", "elements", "sections", "extensions_granted",
-                     "prolongation_rates"):
+        for name in OPTIONAL_FILES:
             _write_csv(staging / f"{name}.csv", COLUMNS[name])
         (staging / GUIDE_NAME).write_text(_guide_text(), encoding="utf-8")
         os.chmod(staging, 0o777 & ~_umask())

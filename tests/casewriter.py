@@ -1,4 +1,4 @@
-"""Write small case folders for tests, in case-format v1.
+"""Write small case folders for tests, in case-format version 2.
 
 Every test that needs a case builds it here from plain rows, so the tests read as data:
 
@@ -77,6 +77,8 @@ def write_case(
     schedule: Mapping[str, Any] | None = None,
     commercial: Mapping[str, Any] | None = None,
     analysis: Mapping[str, Any] | None = None,
+    project: Mapping[str, Any] | None = None,
+    report: Mapping[str, Any] | None = None,
     calendars: list[Mapping[str, Any]] | None = None,
     exceptions: list[Mapping[str, Any]] | None = None,
     snapshots: Mapping[str, Mapping[str, Any]] | None = None,
@@ -85,17 +87,22 @@ def write_case(
 ) -> Path:
     """Write a case folder under ``root`` and return ``root``.
 
-    ``files`` maps an optional file name (``"events.csv"``) to its rows.
+    ``files`` maps an optional file name (``"events.csv"``) to its rows. ``project`` adds
+    keys to ``[project]`` (e.g. ``completion_activity``); ``analysis`` and ``report``
+    write those sections when given.
     """
     root = Path(root)
     sections: dict[str, Mapping[str, Any]] = {
-        "project": {"name": name, "contract_start": start, "contract_completion": completion},
+        "project": {"name": name, "contract_start": start, "contract_completion": completion,
+                    **(project or {})},
         "schedule": {"default_calendar": "5d", **(schedule or {})},
     }
     if commercial:
         sections["commercial"] = commercial
     if analysis:
         sections["analysis"] = analysis
+    if report:
+        sections["report"] = report
     write_toml(root / "case.toml", sections)
     write_csv(root / "calendars.csv", calendars or DEFAULT_CALENDARS, ["calendar", "workdays"])
     if exceptions is not None:

@@ -1,6 +1,6 @@
 """`delay new`: the empty case skeleton (delay.skeleton.write_skeleton).
 
-The skeleton must hold every file of case-format v1 with exactly the format's header,
+The skeleton must hold every file of case-format version 2 with exactly the format's header,
 load as a valid case, document every setting and every column, and never write into a
 folder that already holds something.
 """
@@ -27,6 +27,7 @@ FORMAT_FILES = {
     "snapshots/baseline/links.csv": "links",
     "asbuilt.csv": "asbuilt",
     "corrections.csv": "corrections",
+    "attributions.csv": "attributions",
     "events.csv": "events",
     "fragnets.csv": "fragnets",
     "fragnet_links.csv": "fragnet_links",
@@ -73,8 +74,17 @@ def test_case_toml_gives_every_setting_with_a_comment(tmp_path):
     for section in dataclasses.fields(CaseSettings):
         if section.name == "extra":
             continue
-        names = {f.name for f in dataclasses.fields(type(getattr(settings, section.name)))}
-        assert set(values[section.name]) == names, section.name
+        fields = dataclasses.fields(type(getattr(settings, section.name)))
+        # A setting whose default is "none given" cannot be written in TOML (which has no
+        # null): the skeleton gives it as a commented example line under its section.
+        given = {f.name for f in fields if f.default is not None}
+        assert set(values.get(section.name, {})) == given, section.name
+        block = text.split(f"[{section.name}]\n", 1)[1].split("\n[", 1)[0]
+        for field in fields:
+            if field.default is None:
+                line = next(l for l in block.splitlines() if l.startswith(f"# {field.name} = "))
+                example = tomllib.loads(line[2:].split("#", 1)[0])
+                assert set(example) == {field.name}, line
     setting_lines = [line for line in text.splitlines() if "=" in line and not line.startswith("#")]
     assert setting_lines and all("#" in line for line in setting_lines)
 

@@ -1,4 +1,4 @@
-"""Loading and checking a case (case-format v1), in folder or workbook form.
+"""Loading and checking a case (case-format version 2), in folder or workbook form.
 
 :func:`load_case` reads a case folder (case.toml, calendars.csv, snapshots/...) or a single
 ``case.xlsx`` workbook, applies the analyst's corrections, types every column as
@@ -83,9 +83,11 @@ def summarise(case: Case) -> dict[str, Any]:
         ``project``, ``contract_start`` and ``contract_completion`` (ISO dates), ``root``,
         ``snapshots`` (one dict each: folder, label, kind, data_date, activities, links),
         ``asbuilt`` (``True`` when the case has an as-built record), ``asbuilt_snapshot``
-        (its summary or ``None``), and the counts ``calendars``, ``events``, ``fragnets``
-        (inserted activities), ``fragnet_links``, ``elements``, ``sections``,
-        ``extensions`` and ``corrections``.
+        (its summary or ``None``), ``completion_activity`` (from case.toml, or ``None``),
+        ``unexplained_risk``, ``preferred_method`` (or ``None``), ``opinion`` (``True``
+        when the case has an opinion.md that is not blank), and the counts
+        ``calendars``, ``events``, ``fragnets`` (inserted activities), ``fragnet_links``,
+        ``elements``, ``sections``, ``extensions``, ``corrections`` and ``attributions``.
     """
     project = case.settings.project
 
@@ -101,6 +103,10 @@ def summarise(case: Case) -> dict[str, Any]:
         "asbuilt": case.asbuilt_snapshot is not None,
         "asbuilt_snapshot": (_snapshot_summary(case.asbuilt_snapshot)
                              if case.asbuilt_snapshot is not None else None),
+        "completion_activity": project.completion_activity,
+        "unexplained_risk": case.settings.analysis.unexplained_risk,
+        "preferred_method": case.settings.report.preferred_method,
+        "opinion": bool(case.opinion.strip()),
         "calendars": rows("calendars"),
         "events": rows("events"),
         "fragnets": rows("fragnets"),
@@ -109,6 +115,7 @@ def summarise(case: Case) -> dict[str, Any]:
         "sections": rows("sections"),
         "extensions": rows("extensions_granted"),
         "corrections": len(case.corrections),
+        "attributions": rows("attributions"),
     }
 
 

@@ -77,6 +77,7 @@ REQUIRED_COLUMNS: dict[str, tuple[str, ...]] = {
     "links": ("pred", "succ"),
     "asbuilt": ("id", "actual_start", "actual_finish"),
     "corrections": ("snapshot", "table", "key", "column", "value"),
+    "attributions": ("window", "activity", "reason"),
     "events": ("id", "title", "party", "start", "finish"),
     "fragnets": ("event", "id", "name", "duration"),
     "fragnet_links": ("event", "pred", "succ"),

@@ -120,8 +120,10 @@ class _Loader:
         for facts in self.snapshots:
             self.check_snapshot(facts)
         self.collect_activity_ids()
+        self.check_completion_activity()
         self.build_asbuilt()
         self.check_events()
+        self.check_attributions()
         self.check_fragnets()
         self.check_fragnet_links()
         self.check_elements()
@@ -143,6 +145,7 @@ class _Loader:
             asbuilt_snapshot=self.asbuilt_snapshot,
             corrections=tuple(self.corrections),
             input_files=tuple(self.source.input_files),
+            opinion=self.source.opinion,
         )
 
     def usable(self, name: str) -> RawTable | None:
@@ -414,6 +417,7 @@ class _Loader:
             derived["kind_codes"] = kind_codes
             derived["constraint_codes"] = constraint_codes
         constraint_date = columns.dates(p, table, "constraint_date")
+        risk = columns.choices(p, table, "risk", PARTIES, what="risk owner")
         has_constraint = ~columns.empty_cells(frame["constraint"])
         has_date = ~columns.empty_cells(frame["constraint_date"])
         p.flag(table, has_constraint & ~has_date, "constraint_date",
@@ -429,8 +433,8 @@ class _Loader:
             table, duration, kind, start, finish, remaining, data_date)
         return columns.assemble(table, {
             "duration": duration, "calendar": calendar, "kind": kind, "constraint": constraint,
-            "constraint_date": constraint_date, "actual_start": start, "actual_finish": finish,
-            "remaining": remaining,
+            "constraint_date": constraint_date, "risk": risk, "actual_start": start,
+            "actual_finish": finish, "remaining": remaining,
         })
 
     def check_progress(self, table: RawTable, duration: pd.Series, kind: pd.Series,
@@ -691,12 +695,143 @@ class _Loader:
                    "add its activities to fragnets.csv, or choose another impact")
         notified = columns.dates(p, table, "notified")
         claimed = columns.numbers(p, table, "claimed_days", unit="calendar days", minimum=0)
+        self.check_event_programmes(table)
         self.event_ids = [i for i in ids.tolist() if i]
         self.event_impacts = dict(zip(ids.tolist(), impact.tolist()))
         self.tables["events"] = columns.assemble(table, {
             "party": party, "start": start, "finish": finish, "impact": impact, "days": days,
             "notified": notified, "claimed_days": claimed,
         })
+
+    def snapshot_names(self, facts_list) -> dict[str, _SnapshotFacts]:
+        """Folder names and labels of ``facts_list``, each mapped to its snapshot."""
+        names: dict[str, _SnapshotFacts] = {}
+        for facts in facts_list:
+            names.setdefault(facts.folder, facts)
+        for facts in facts_list:
+            names.setdefault(facts.label, facts)
+        return names
+
+    def check_event_programmes(self, table: RawTable) -> None:
+        """The events columns ``tia_update`` and ``asbuilt_activities`` (case-format v2)."""
+        p = self.problems
+        tia = table.frame["tia_update"]
+        given = ~columns.empty_cells(tia)
+        as_built = given & _names_asbuilt(tia)
+        p.flag(table, as_built, "tia_update",
+               "the as-built record cannot be the programme an event is inserted into",
+               "name the progress update (folder or label) current when the event began, "
+               "or leave the cell blank")
+        if self.snapshots:
+            names = self.snapshot_names(self.snapshots)
+            known = ", ".join(f.folder for f in self.snapshots)
+            p.flag(table, given & ~as_built & ~tia.isin(list(names)).to_numpy(), "tia_update",
+                   "'{value}' is not a snapshot of the case",
+                   f"name a snapshot by its folder or label ({known}), or leave the cell blank")
+        last = self.snapshots[-1] if self.snapshots else None
+        if last is None or last.activities is None:
+            return
+        if self.asbuilt_snapshot is not None:
+            ids, where = self.asbuilt_snapshot.activities_table["id"], "the as-built record"
+        else:
+            ids, where = last.activities["id"], f"the last update ('{last.label}')"
+            if last.kind == "baseline":
+                where = f"the baseline ('{last.label}'), the case's only programme"
+        columns.id_lists(p, table, "asbuilt_activities", ids, where,
+                         "name activities of the as-built programme, separated by ;")
+
+    def check_attributions(self) -> None:
+        """attributions.csv (case-format v2): the analyst's attribution of a window's charge."""
+        table = self.usable("attributions")
+        if table is None:
+            self.tables["attributions"] = _empty("attributions")
+            return
+        p = self.problems
+        frame = table.frame
+        window, activity = frame["window"], frame["activity"]
+        no_window = columns.required_cells(p, table, "window", "the attribution names no window",
+                                           "give the label or folder of the snapshot that ends "
+                                           "the window, or asbuilt")
+        ends = self.snapshot_names(self.snapshots[1:])
+        first = self.snapshot_names(self.snapshots[:1])
+        asbuilt_named = ~no_window & _names_asbuilt(window)
+        has_record = len(self.tables.get("asbuilt", ())) > 0
+        p.flag(table, asbuilt_named & (not has_record), "window",
+               "the case has no as-built record, so no window ends with it",
+               "add asbuilt.csv, or name the update that ends the window")
+        starts = ~no_window & ~asbuilt_named & window.isin(list(first)).to_numpy() & \
+            ~window.isin(list(ends)).to_numpy()
+        p.flag(table, starts, "window",
+               "the first snapshot begins the first window and ends none",
+               "name the snapshot at the end of the window (an update, or asbuilt)")
+        known = ", ".join([f.folder for f in self.snapshots[1:]] + ["asbuilt"])
+        unknown = ~no_window & ~asbuilt_named & ~starts & ~window.isin(list(ends)).to_numpy()
+        p.flag(table, unknown, "window", "'{value}' is not a snapshot of the case",
+               f"name the snapshot that ends the window by its folder or label ({known})")
+        no_activity = columns.required_cells(p, table, "activity",
+                                             "the attribution names no activity",
+                                             "give the id of the activity whose charge it attributes")
+        # The snapshot each row's window ends with, and whether it holds the activity
+        # (a short loop over the snapshots).
+        folder = window.map(lambda w: ends[w].folder if w in ends else "").astype("str")
+        folder[asbuilt_named] = ASBUILT
+        missing = np.zeros(len(table), dtype=bool)
+        programmes = [(f.folder, f.activities) for f in self.snapshots[1:]]
+        if self.asbuilt_snapshot is not None:
+            programmes.append((ASBUILT, self.asbuilt_snapshot.activities_table))
+        for name, activities in programmes:
+            if activities is not None:
+                rows = (folder == name).to_numpy()
+                missing |= rows & ~no_activity & ~activity.isin(activities["id"]).to_numpy()
+        p.flag(table, missing, "activity",
+               lambda i: f"the activity '{activity.iat[i]}' is not in the snapshot "
+                         f"'{window.iat[i]}' that ends the window",
+               "name an activity of that snapshot, or correct the window")
+        event, party_text = frame["event"], frame["party"]
+        has_event = ~columns.empty_cells(event)
+        has_party = ~columns.empty_cells(party_text)
+        p.flag(table, ~has_event & ~has_party, "event",
+               "the attribution gives neither an event nor a party",
+               "give the event the charge is attributed to, or the party (employer, "
+               "contractor or neutral) in the party column")
+        p.flag(table, has_event & has_party, "party",
+               "the attribution gives both an event and a party",
+               "give one of them: the event, or the party when no event explains the charge")
+        if self.event_ids is not None:
+            columns.references(p, table, "event", self.event_ids,
+                               "the event '{value}' is not in events.csv",
+                               "add the event to events.csv or correct the id")
+        party = columns.choices(p, table, "party", PARTIES, what="party")
+        columns.required_cells(p, table, "reason", "the attribution gives no reason",
+                               "say why the charge is attributed so, with the record that shows it")
+        key = folder + "\x1f" + activity
+        repeated = key.duplicated(keep="first").to_numpy() & (folder != "").to_numpy() & ~no_activity
+        first_row = {k: table.where(int(at))[1] for at, k in
+                     reversed(list(enumerate(key.tolist())))}
+        p.flag(table, repeated, "activity",
+               lambda i: f"the activity '{activity.iat[i]}' is attributed twice in the window "
+                         f"ending '{window.iat[i]}' (first on row {first_row[key.iat[i]]})",
+               "keep one attribution per window and activity")
+        self.tables["attributions"] = columns.assemble(table, {"party": party})
+
+    def check_completion_activity(self) -> None:
+        """``[project] completion_activity``, when given, must be an activity of the baseline."""
+        source = self.source.settings
+        if self.settings is None or source is None:
+            return
+        name = self.settings.project.completion_activity
+        baseline = self.snapshots[0] if self.snapshots else None
+        if name is None or baseline is None or baseline.kind != "baseline" or \
+                baseline.activities is None:
+            return
+        if not (baseline.activities["id"] == name).any():
+            row, column = source.locate("project.completion_activity")
+            self.problems.add(
+                source.file, f"the completion activity '{name}' is not an activity of the "
+                f"baseline ('{baseline.label}')",
+                "name the baseline's milestone that marks completion of the whole works, or "
+                "leave project.completion_activity out (the finish milestone that finishes "
+                "last in the baseline is then taken)", row=row, column=column)
 
     def check_fragnets(self) -> None:
         table = self.usable("fragnets")
@@ -867,6 +1002,12 @@ class _Loader:
                    "make the periods follow one another without overlapping")
         self.tables["prolongation_rates"] = columns.assemble(
             table, {"from": start, "to": end, "cost_per_day": cost})
+
+
+def _names_asbuilt(text: pd.Series) -> np.ndarray:
+    """Mask of the cells naming the as-built record (``asbuilt`` or its label, any case)."""
+    lowered = text.str.lower().str.replace("-", "", regex=False)
+    return lowered.isin([ASBUILT]).to_numpy()
 
 
 def _empty(name: str) -> pd.DataFrame:

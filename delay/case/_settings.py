@@ -15,6 +15,7 @@ from delay.model import (
     CaseSettings,
     CommercialSettings,
     ProjectSettings,
+    ReportSettings,
     ScheduleSettings,
 )
 
@@ -26,6 +27,7 @@ SETTINGS_SECTIONS: dict[str, type] = {
     "schedule": ScheduleSettings,
     "commercial": CommercialSettings,
     "analysis": AnalysisSettings,
+    "report": ReportSettings,
 }
 
 _MONEY = {"liquidated_damages_per_day", "liquidated_damages_cap", "prolongation_cost_per_day"}
@@ -46,8 +48,18 @@ def parse_date_value(value: Any) -> dt.date | None:
     return None
 
 
-def _choices(cls: type, name: str) -> tuple[str, ...] | None:
+def _hint(cls: type, name: str) -> Any:
+    """The type of field ``name``, without the ``| None`` of an optional setting."""
     hint = typing.get_type_hints(cls)[name]
+    arguments = typing.get_args(hint)
+    if type(None) in arguments and typing.get_origin(hint) is not typing.Literal:
+        rest = tuple(a for a in arguments if a is not type(None))
+        return rest[0] if len(rest) == 1 else hint
+    return hint
+
+
+def _choices(cls: type, name: str) -> tuple[str, ...] | None:
+    hint = _hint(cls, name)
     if typing.get_origin(hint) is typing.Literal:
         return typing.get_args(hint)
     return None
@@ -60,7 +72,7 @@ def _convert(cls: type, name: str, value: Any) -> tuple[Any, str | None]:
         if isinstance(value, str) and value in choices:
             return value, None
         return None, "must be one of " + ", ".join(f'"{c}"' for c in choices)
-    hint = typing.get_type_hints(cls)[name]
+    hint = _hint(cls, name)
     if hint is dt.date:
         parsed = parse_date_value(value)
         if parsed is None:
@@ -85,8 +97,11 @@ def _convert(cls: type, name: str, value: Any) -> tuple[Any, str | None]:
         if value != value or value in (float("inf"), float("-inf")):
             return None, "must be a finite number"
         return float(value), None
+    if name == "completion_activity" and isinstance(value, int) and not isinstance(value, bool):
+        value = str(value)  # a workbook cell holding an activity id that is a number
     if not isinstance(value, str) or not value.strip():
         return None, "must be text in double quotes"
+    value = value.strip() if name == "completion_activity" else value
     if name == "currency" and not re.fullmatch(r"[A-Z]{3}", value):
         return None, "must be a three-letter ISO 4217 currency code such as \"EUR\""
     return value, None
@@ -96,7 +111,7 @@ def _example(cls: type, name: str) -> str:
     choices = _choices(cls, name)
     if choices:
         return f'{name} = "{choices[0]}"'
-    hint = typing.get_type_hints(cls)[name]
+    hint = _hint(cls, name)
     return {
         dt.date: f"{name} = 2025-01-06",
         bool: f"{name} = true",
@@ -175,5 +190,6 @@ def parse_settings(source: SettingsSource, problems: Problems) -> CaseSettings |
         schedule=built.get("schedule", ScheduleSettings()),
         commercial=built.get("commercial", CommercialSettings()),
         analysis=built.get("analysis", AnalysisSettings()),
+        report=built.get("report", ReportSettings()),
         extra=extra,
     )

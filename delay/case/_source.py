@@ -28,6 +28,8 @@ __all__ = [
     "SnapshotSource",
     "OPTIONAL_FILES",
     "WORKBOOK_NAME",
+    "OPINION_NAME",
+    "LARGEST_OPINION",
     "open_source",
     "read_csv_table",
     "cell_text",
@@ -35,11 +37,17 @@ __all__ = [
 
 WORKBOOK_NAME = "case.xlsx"
 
+#: The analyst's opinion, in the case folder (beside case.xlsx for the workbook form).
+OPINION_NAME = "opinion.md"
+#: The largest opinion.md read, in bytes (256 KiB: a long expert's opinion is far less).
+LARGEST_OPINION = 256 * 1024
+
 #: Optional files of the case folder, by table name, in the order they are checked.
 OPTIONAL_FILES = (
     "calendar_exceptions",
     "asbuilt",
     "corrections",
+    "attributions",
     "events",
     "fragnets",
     "fragnet_links",
@@ -87,6 +95,8 @@ class CaseSource:
     input_files: list[Path] = field(default_factory=list)
     #: False when the snapshots/ folder or the snapshots sheet is missing (already reported).
     snapshots_found: bool = True
+    #: The analyst's opinion (opinion.md), ``""`` when there is none.
+    opinion: str = ""
 
 
 # --------------------------------------------------------------------------- tables
@@ -298,6 +308,7 @@ def _read_folder(root: Path, problems: Problems) -> CaseSource:
             source.tables[name] = read_csv_table(path, name, f"{name}.csv", problems)
         else:
             source.tables[name] = _empty_table(name, f"{name}.csv")
+    _read_opinion(source, root, problems)
     return source
 
 
@@ -402,6 +413,7 @@ def _read_workbook_quietly(path: Path, problems: Problems) -> CaseSource:
                 source.tables[table_name] = _empty_table(table_name, label(table_name))
     finally:
         workbook.close()
+    _read_opinion(source, path.parent, problems)
     return source
 
 
@@ -519,6 +531,41 @@ def _split_snapshot_sheet(workbook, name: str, file: str, snapshots: list[Snapsh
         unused = [c for c in frame.columns if c not in stable and not (frame[c] != "").any()]
         frame = frame.drop(columns=unused)
         setattr(snap, name, RawTable(name=name, file=file, frame=frame, rows=table.rows[mask]))
+
+
+# --------------------------------------------------------------------------- opinion
+
+
+def _read_opinion(source: CaseSource, folder: Path, problems: Problems) -> None:
+    """Read ``opinion.md`` from ``folder`` into ``source.opinion`` when it is there."""
+    path = folder / OPINION_NAME
+    if not path.is_file():
+        return
+    source.input_files.append(path)
+    try:
+        size = path.stat().st_size
+        if size > LARGEST_OPINION:
+            problems.add(OPINION_NAME,
+                         f"the file is {size:,} bytes, more than the {LARGEST_OPINION:,} bytes "
+                         "(256 KiB) an opinion may hold",
+                         "shorten the opinion, or refer to a separate document from it")
+            return
+        data = path.read_bytes()
+    except OSError as error:
+        problems.add(OPINION_NAME, f"the file cannot be read ({error.strerror or error})",
+                     "check that the file may be read")
+        return
+    try:
+        text = data.decode("utf-8-sig")
+    except UnicodeDecodeError as error:
+        problems.add(OPINION_NAME, f"the file is not UTF-8 text (byte {error.start + 1})",
+                     "save it as plain text in UTF-8 encoding")
+        return
+    if "\x00" in text:
+        problems.add(OPINION_NAME, "the file holds a NUL character, so it is not text",
+                     "save the opinion as plain Markdown text")
+        return
+    source.opinion = text
 
 
 # --------------------------------------------------------------------------- entry point

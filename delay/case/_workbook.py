@@ -1,4 +1,4 @@
-"""Writing a case as one ``case.xlsx`` workbook (the workbook form of case-format v1)."""
+"""Writing a case as one ``case.xlsx`` workbook (the workbook form of case-format version 2)."""
 
 from __future__ import annotations
 

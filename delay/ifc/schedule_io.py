@@ -658,7 +658,7 @@ def read_work_schedule(path: str | Path, *, work_schedule: str | None = None) ->
             "id": identification, "name": _text(task.Name), "duration": str(duration),
             "calendar": calendar.name if calendar is not None else "", "wbs": wbs, "kind": kind,
             "constraint": constraint, "constraint_date": constraint_date.isoformat() if constraint else "",
-            "party": _text(facts.get("Party")),
+            "party": _text(facts.get("Party")), "risk": "",
             "actual_start": actual_start.isoformat() if actual_start else "",
             "actual_finish": actual_finish.isoformat() if actual_finish else "",
             "remaining": remaining_text,
