@@ -4,9 +4,10 @@ Sources
 -------
 - shared/case-format.md, "Time convention" and "Scheduling rules" (cited as "rule n"): the
   boundary arithmetic of every date below.
-- The method's definitions as stated in the docstring of ``delay.methods.windows`` (cited
-  as "windows doc"), the event-matching rules of ``delay.causation`` ("causation doc") and
-  the driving-predecessor rules of ``delay.tracing`` ("tracing doc"). The method is the
+- The method's definitions as stated in the docstrings of ``delay.methods.windows`` (cited
+  as "windows doc") and ``delay.ledger`` ("ledger doc"), the event-matching rules of
+  ``delay.events`` ("events doc") and the driving-predecessor rules of ``delay.tracing``
+  ("tracing doc"). The method is the
   half-step (bifurcated) windows analysis of AACE International RP 29R-03 (2011), MIP 3.4,
   and the time slice windows analysis of the SCL Delay and Disruption Protocol, 2nd edition
   (2017), Part B (both recalled from memory): each window's movement of completion is split
@@ -15,11 +16,13 @@ Sources
   no value below was read from the code's output.
 
 Notation: "LF(S)" is an activity's late finish in the window's start snapshot S (backward
-pass from S's own completion, windows doc); "finish(H)" its finish in the half-step H;
-lateness = finish(H) - LF(S) in calendar days; a charge is the lateness less the driving
-predecessor's lateness along H's driving path (windows doc), the origin of the path taken
-as zero when it was complete at S and the activity finishing at completion taken as late by
-exactly the progress effect.
+pass by logic alone from the completion activity's own finish in S, ledger doc);
+"finish(H)" its finish in the half-step H; its level = finish(H) - LF(S) in work days of the
+ledger calendar (the completion activity's) when positive, finish(H) - EF(S) when negative,
+else 0; a charge is the level less the driving predecessor's along H's driving chain, the
+origin of the chain counting zero when it was complete at S; an activity whose gap behind
+its driving predecessor and whose duration did not change is charged nothing (ledger doc).
+Charges are split into calendar days by walking the ledger calendar from S's completion.
 
 Seven-day calendar (most cases, so that work days = calendar days): work day k is
 2025-01-06 + k days; a task of duration d starting on date D finishes on D + d - 1 (time
@@ -96,8 +99,9 @@ def assert_no_revision_charges(window):
 # H = baseline programme with U1's progress on A: the same programme as U1, completion Jan 22.
 #   movement = Jan 22 - Jan 20 = 2; progress = 2; revisions = 0; work days = 2 (7-day).
 # H's driving path, traced back: F <- C <- B <- A (A has no predecessor: the project start).
-#   lateness: A 12-10 = 2, B 17-15 = 2, C 22-20 = 2, F = progress effect 2.
-#   charges:  A 2-0 = 2, B 2-2 = 0, C 0, F 0.  Counted sum 2 = progress.
+#   levels: A 12-10 = 2, B 17-15 = 2, C 22-20 = 2, F 22-20 = 2 (the progress effect).
+#   charges:  A 2-0 = 2; B, C and F kept their gaps (0) and durations: charged 0.
+#   Counted sum 2 = progress.
 SINGLE_CHAIN = [task("A", 5), task("B", 5), task("C", 5), finish_milestone()]
 SINGLE_CHAIN_LINKS = [link("A", "B"), link("B", "C"), link("C", "F")]
 
@@ -120,7 +124,8 @@ def test_single_chain_charge_lands_on_the_late_activity(tmp_path):
     assert (window.progress_days, window.revision_days) == (2, 0)
     charges = charges_by_activity(window)
     assert {a: int(charges.loc[a, "days"]) for a in "ABCF"} == {"A": 2, "B": 0, "C": 0, "F": 0}
-    assert {a: int(charges.loc[a, "lateness"]) for a in "ABC"} == {"A": 2, "B": 2, "C": 2}
+    assert {a: int(charges.loc[a, "level"]) for a in "ABC"} == {"A": 2, "B": 2, "C": 2}
+    assert {a: bool(charges.loc[a, "inherited"]) for a in "ABCF"} == {"A": False, "B": True, "C": True, "F": True}
     assert all(bool(charges.loc[a, "counted"]) for a in "ABCF")
     assert int(window.charges.loc[window.charges["counted"].astype(bool), "days"].sum()) == 2
     assert_no_revision_charges(window)
@@ -130,14 +135,16 @@ def test_single_chain_charge_lands_on_the_late_activity(tmp_path):
 # 2. The same on the 5-day calendar: a delay that crosses a weekend
 #
 # Baseline A3 -> B2 -> F.  A k0-2 = Jan 06-08, B k3-4 = Jan 09-10 (Fri), F Jan 10.
-#   LF A Jan 08, B Jan 10.  Completion S = 2025-01-10 (work day k4).
+#   LF A Jan 08 (k2), B Jan 10 (k4).  Completion S = 2025-01-10 (work day k4).
 # Update U1, data date 2025-01-10 (Fri): A took 4 work days, Jan 06-09 (complete).
 #   B starts k4 = Jan 10 and takes 2 work days: Jan 10 (Fri) and Jan 13 (Mon); F Jan 13.
 #   Completion E = 2025-01-13 (k5).  movement = 3 calendar days, k5 - k4 = 1 work day.
 # H = U1's programme (no revisions): progress 3, revisions 0.
-#   lateness (calendar days, windows doc): A Jan 09 - Jan 08 = 1; B Jan 13 - Jan 10 = 3; F 3.
-#   charges: A 1, B 3 - 1 = 2 (the weekend the delay pushed B across), F 0.  Sum 3.
-def test_five_day_calendar_charges_in_calendar_days(tmp_path):
+#   levels (work days of the 5-day ledger calendar): A k3 - k2 = 1; B k5 - k4 = 1; F 1.
+#   charges: A 1; B kept its gap (0) and its 2 days: it only carried A's delay across the
+#   weekend and is charged 0; F 0.
+#   Calendar days: from Jan 10 (k4), A's 1 work day reaches k5 = Jan 13: 3 calendar days.
+def test_five_day_calendar_charges_in_work_days(tmp_path):
     base = [task("A", 3), task("B", 2), finish_milestone()]
     a, b, f = base
     update = [progressed(a, "2025-01-06", "2025-01-09"), progressed(b), progressed(f)]
@@ -149,7 +156,8 @@ def test_five_day_calendar_charges_in_calendar_days(tmp_path):
     assert (window.movement_days, window.movement_work_days) == (3, 1)
     assert (window.progress_days, window.revision_days) == (3, 0)
     charges = charges_by_activity(window)
-    assert {x: int(charges.loc[x, "days"]) for x in "ABF"} == {"A": 1, "B": 2, "F": 0}
+    assert {x: int(charges.loc[x, "work_days"]) for x in "ABF"} == {"A": 1, "B": 0, "F": 0}
+    assert {x: int(charges.loc[x, "days"]) for x in "ABF"} == {"A": 3, "B": 0, "F": 0}
 
 
 # =======================================================================================
@@ -306,8 +314,7 @@ def test_window_delay_entirely_from_revisions(tmp_path):
     assert list(revisions.loc["logic", "activities"]) == ["C>B"]
     assert int(revisions.loc["logic", "days"]) == 3
     assert revisions.loc["logic", "completion_after"] == day("2025-01-21")
-    others = revisions.drop(index=["durations", "logic"])
-    assert all(int(d) == 0 for d in others["days"])
+    assert set(revisions.index) == {"durations", "logic"}  # kinds that moved nothing are not listed
     # the kinds are charged in the fixed order of the windows doc
     kinds = list(window.revisions["kind"])
     assert kinds.index("durations") < kinds.index("logic")
@@ -452,7 +459,7 @@ def test_deleted_and_added_activities(tmp_path):
     assert list(revisions.loc["additions", "activities"]) == ["D"]
     assert int(revisions.loc["additions", "days"]) == 6
     assert revisions.loc["additions", "completion_after"] == day("2025-01-21")
-    assert all(int(d) == 0 for d in revisions.drop(index=["deletions", "additions"])["days"])
+    assert set(revisions.index) == {"deletions", "additions"}
     kinds = list(window.revisions["kind"])
     assert kinds.index("deletions") < kinds.index("additions")
     assert "B" in window.driving_half  # H still runs through the deleted activity
@@ -477,13 +484,13 @@ def test_half_step_keeps_deleted_activity_unprogressed(tmp_path):
 #   D Jan 15-16, F Jan 16.  movement = 3 = progress.
 #   lateness: A 8-7 = 1, B 11-9 = 2, C 14-11 = 3, D 16-13 = 3, F 3.
 #   charges: A 1, B 1, C 1, D 0, F 0.
-# Events (causation doc: an event matches a charge when it names the activity and starts on or
-# before the end of the period charged, for a window the data date of the snapshot ending it):
-#   EV1 employer, starts Jan 06, names A            -> A: employer.
-#   EV2 employer (Jan 09) and EV3 contractor (Jan 10), both name B -> B: concurrent, shared.
+# Events (events doc: an event matches a charge when it names the activity and its period
+# overlaps the window, from S's data date to E's, both included):
+#   EV1 employer, Jan 06-08, names A            -> A: employer.
+#   EV2 employer (Jan 09-11) and EV3 contractor (Jan 10-11), both name B -> B: concurrent.
 #   EV4 employer names C but starts Jan 20, after the window's end -> no match:
-#       C unexplained, risk contractor (the default risk).
-#   EV5 neutral names D and starts on Jan 15, the data date that ends the window.
+#       C to the unexplained-risk setting (default contractor), basis "unexplained".
+#   EV5 neutral names D and starts on Jan 15, the data date that ends the window: it matches.
 EVENTS = [
     {"id": "EV1", "title": "Late access to the site", "party": "employer",
      "start": "2025-01-06", "finish": "2025-01-08", "activities": "A"},
@@ -517,23 +524,22 @@ def test_charges_are_linked_to_events(tmp_path):
     charges = charges_by_activity(window)
     assert {x: int(charges.loc[x, "days"]) for x in "ABCDF"} == {"A": 1, "B": 1, "C": 1, "D": 0, "F": 0}
     assert list(charges.loc["A", "events"]) == ["EV1"]
-    assert (charges.loc["A", "party"], charges.loc["A", "risk"]) == ("employer", "employer")
+    assert (charges.loc["A", "party"], charges.loc["A", "basis"]) == ("employer", "event")
     assert list(charges.loc["B", "events"]) == ["EV2", "EV3"]
-    assert list(charges.loc["B", "parties"]) == ["contractor", "employer"]
-    assert (charges.loc["B", "party"], charges.loc["B", "risk"]) == ("concurrent", "shared")
+    assert list(charges.loc["B", "parties"]) == ["employer", "contractor"]
+    assert (charges.loc["B", "party"], charges.loc["B", "basis"]) == ("concurrent", "event")
     assert list(charges.loc["C", "events"]) == []  # EV4 starts after the window's end
-    assert (charges.loc["C", "party"], charges.loc["C", "risk"]) == ("unexplained", "contractor")
+    assert (charges.loc["C", "party"], charges.loc["C", "basis"]) == ("contractor", "unexplained")
 
 
-def test_event_starting_on_the_closing_data_date_does_not_match(tmp_path):
-    # Issue #5, item 3: a charge matches the events "that start before the window ends". A
-    # window ends with the day before its closing data date (case-format: the data date is
-    # "the first day not yet reported"), so EV5, starting on Jan 15 = U1's data date, starts
-    # after the window and does not explain D's charge.
+def test_event_starting_on_the_closing_data_date_matches(tmp_path):
+    # events doc: the window's period runs to E's data date, both ends included, because the
+    # update of that date may already show the event's effect. EV5 starts on Jan 15, U1's
+    # data date, and names D: it matches D's charge.
     window = only_window(analyse(load_case(events_case(tmp_path / "case")), half_step=True))
     charges = charges_by_activity(window)
-    assert list(charges.loc["D", "events"]) == []
-    assert charges.loc["D", "party"] == "unexplained"
+    assert list(charges.loc["D", "events"]) == ["EV5"]
+    assert (charges.loc["D", "party"], charges.loc["D", "basis"]) == ("neutral", "event")
 
 
 # =======================================================================================
@@ -560,28 +566,29 @@ def test_windows_json(tmp_path):
     run = CliRunner().invoke(cli, ["windows", str(root), "--format", "json"])
     assert run.exit_code == 0, run.output
     data = json.loads(run.output)
-    assert set(data) == {"windows", "total_movement_days"}
-    assert data["total_movement_days"] == 3
+    assert {"windows", "total_movement_days", "target", "ledger_calendar", "sections"} <= set(data)
+    assert (data["total_movement_days"], data["target"], data["ledger_calendar"]) == (3, "F", "7d")
     (window,) = data["windows"]
     assert {"start", "end", "completion_start", "completion_end", "movement_days", "movement_work_days",
-            "progress_days", "revision_days", "charged", "revisions"} <= set(window)
+            "progress_days", "revision_days", "by_party_days", "charged", "revisions", "sentence"} <= set(window)
     assert (window["start"], window["end"]) == ("baseline", "U1")
     assert (window["completion_start"], window["completion_end"]) == ("2025-01-13", "2025-01-16")
     assert (window["movement_days"], window["movement_work_days"]) == (3, 3)
     assert (window["progress_days"], window["revision_days"]) == (3, 0)
     for entry in window["charged"]:
-        assert set(entry) == {"activity", "days", "concurrent_with", "events", "party"}
+        assert {"activity", "work_days", "days", "counted", "events", "party", "basis", "concurrent_with"} <= set(entry)
     charged = {e["activity"]: e for e in window["charged"] if e["days"] != 0}
     assert set(charged) == {"A", "B", "C"}
-    assert charged["A"] == {"activity": "A", "days": 1, "concurrent_with": [], "events": ["EV1"],
-                            "party": "employer"}
-    assert charged["B"] == {"activity": "B", "days": 1, "concurrent_with": [], "events": ["EV2", "EV3"],
-                            "party": "concurrent"}
-    assert charged["C"] == {"activity": "C", "days": 1, "concurrent_with": [], "events": [],
-                            "party": "unexplained"}
-    for entry in window["revisions"]:
-        assert set(entry) == {"kind", "activities", "days"}
-        assert entry["days"] == 0
+    assert {k: charged["A"][k] for k in ("work_days", "days", "counted", "events", "party", "basis")} == {
+        "work_days": 1, "days": 1, "counted": True, "events": ["EV1"], "party": "employer", "basis": "event"}
+    assert {k: charged["B"][k] for k in ("days", "events", "party", "basis")} == {
+        "days": 1, "events": ["EV2", "EV3"], "party": "concurrent", "basis": "event"}
+    assert {k: charged["C"][k] for k in ("days", "events", "party", "basis")} == {
+        "days": 1, "events": [], "party": "contractor", "basis": "unexplained"}
+    # the counted charges add up to the progress effect (the issue's `counted` flag)
+    assert sum(e["days"] for e in window["charged"] if e["counted"]) == window["progress_days"]
+    assert window["by_party_days"] == {"employer": 1, "contractor": 1, "concurrent": 1}
+    assert window["revisions"] == []
 
 
 def test_windows_json_revisions_and_boundaries(tmp_path):
@@ -591,8 +598,10 @@ def test_windows_json_revisions_and_boundaries(tmp_path):
     assert run.exit_code == 0, run.output
     (window,) = json.loads(run.output)["windows"]
     revisions = {e["kind"]: e for e in window["revisions"]}
-    assert revisions["deletions"] == {"kind": "deletions", "activities": ["B"], "days": -3}
-    assert revisions["additions"] == {"kind": "additions", "activities": ["D"], "days": 6}
+    assert {k: revisions["deletions"][k] for k in ("activities", "work_days", "days")} == {
+        "activities": ["B"], "work_days": -3, "days": -3}
+    assert {k: revisions["additions"][k] for k in ("activities", "work_days", "days")} == {
+        "activities": ["D"], "work_days": 6, "days": 6}
     assert sum(e["days"] for e in window["revisions"]) == 3
     # Case 8 through --windows baseline,U2: one window of 4 days.
     root = several_updates_case(tmp_path / "several")
