@@ -1,7 +1,7 @@
 """Generate the bundled demo case: Tessaly Wharf, a fictitious mixed-use building in Brennholm.
 
 Run ``python case_demo/generate.py`` (optionally ``--output DIR``). The output is a case folder
-in case-format v1 (shared/case-format.md) written beside this script. The generator is
+in case-format v2 (shared/case-format.md) written beside this script. The generator is
 deterministic: a fixed seed, no clock, the same files on every run.
 
 Everything in the case is invented: the project, the town, the companies, the documents. No
@@ -17,7 +17,9 @@ How the dates come about
 ------------------------
 1. The accepted baseline programme is ``scenario/activities.csv`` and ``links.csv``.
 2. "What actually happened" is the baseline network changed by the delay events
-   (``effects.csv``: longer durations, holds on work), by the contractor's re-planning
+   (``effects.csv``: longer durations; holds, which stop work on their activities from the
+   hold's first to its last day, whether the work has started or not, so that the work
+   before a hold stands and the rest resumes after it), by the contractor's re-planning
    (``revisions.csv``, with the activities it adds), by a little seeded variation of the
    contractor's own durations, and by the actual sequence of the works (one activity
    started before its predecessor finished). A forward pass over that actual network,
@@ -27,7 +29,8 @@ How the dates come about
    date; an activity in progress carries the work days still to do as its remaining
    duration. The as-built record is the actual dates of every activity.
 4. The event register is dated from what happened (``events.csv`` names the dates or the
-   activities whose actual dates date the event).
+   activities whose actual dates date the event); a fragnet event's ``asbuilt_activities``
+   are the activities the contractor added for it, which carry its work in the as-built.
 
 Deliberate record defects (``scenario/records.toml``; a checker must find each of them, and
 KNOWN_DEFECTS.json lists the same, machine-readable): duplicate model elements, elements whose
@@ -53,6 +56,7 @@ import shutil
 import string
 import sys
 import tempfile
+import textwrap
 import tomllib
 from collections import defaultdict
 from dataclasses import dataclass
@@ -128,7 +132,7 @@ class Scenario:
     @property
     def completion(self) -> str:
         """The milestone of the whole of the Works."""
-        return self.story["completion_activity"]
+        return self.project["project"]["completion_activity"]
 
     @property
     def section(self) -> dict:
@@ -281,6 +285,7 @@ class Activity:
     constraint: str = ""
     constraint_date: dt.date | None = None
     party: str = ""
+    risk: str = ""     # who carries its own unexplained slippage (case format v2); blank: default
 
 
 @dataclass(frozen=True)
@@ -295,7 +300,7 @@ def activity_of(row: dict) -> Activity:
     """An activity from a row of ``scenario/activities.csv``."""
     return Activity(row["id"], row["name"], int(row["duration"]), row["wbs"], row["calendar"],
                     row["kind"] or "task", row["constraint"], optional_date(row["constraint_date"]),
-                    row["party"])
+                    row["party"], row["risk"])
 
 
 def link_of(row: dict) -> Link:
@@ -445,6 +450,33 @@ def logic_bound(programme: Programme, calendars, timings, incoming, aid: str, mi
     return start
 
 
+def stopped_days(cal: WorkCalendar, hold: Hold) -> range:
+    """The work days of ``cal`` on which ``hold`` stops work, as day indices."""
+    return range(cal.on_or_after(hold.first), cal.after(hold.last))
+
+
+def work_around(cal: WorkCalendar, start: int, duration: int, holds: list[Hold]
+                ) -> tuple[int, int, list[Hold]]:
+    """Start and finish boundaries of ``duration`` work days from ``start`` that do no work
+    on the days of ``holds`` (both ends inclusive): a start inside a hold moves after it, work
+    in progress when a hold begins stops there and the rest resumes after it. Also returns
+    the holds that moved some of the work (a hold on work done before it, or on work that
+    starts after it, has no effect)."""
+    stopped = set()
+    for hold in holds:
+        stopped.update(stopped_days(cal, hold))
+    first = start
+    while start in stopped:
+        start += 1
+    day, left = start, duration
+    while left > 0:
+        left -= day not in stopped
+        day += 1
+    finish = day if duration else start
+    moved = [h for h in holds if any(first <= k < finish for k in stopped_days(cal, h))]
+    return start, finish, moved
+
+
 def forward_pass(
     programme: Programme,
     calendars: dict[str, WorkCalendar],
@@ -457,9 +489,10 @@ def forward_pass(
     """Early dates of every activity.
 
     ``progress`` gives actual dates and remaining durations (retained logic). For the
-    actual network, ``holds`` keep the listed activities from starting inside a hold;
-    ``held`` collects, per event, the activities a hold actually held; ``not_before`` keeps
-    an activity from starting before a date (materials not yet on site).
+    actual network, ``holds`` stop work on the listed activities from the first to the last
+    day of each hold (see ``work_around``); ``held`` collects, per event, the activities a
+    hold actually moved; ``not_before`` keeps an activity from starting before a date
+    (materials not yet on site).
     """
     progress = progress or {}
     not_before = not_before or {}
@@ -486,15 +519,16 @@ def forward_pass(
         if not in_progress and a.constraint == "earliest_start":
             start = max(start, cal.on_or_after(a.constraint_date))
         logic_start = start
-        if not in_progress:
-            if aid in not_before:
-                start = max(start, cal.on_or_after(not_before[aid]))
-            for hold in holds:
-                if aid in hold.activities and hold.first <= cal.date(start) <= hold.last:
-                    start = cal.after(hold.last)
-                    if held is not None:
-                        held.setdefault(hold.event, set()).add(aid)
+        if not in_progress and aid in not_before:
+            start = max(start, cal.on_or_after(not_before[aid]))
         finish_boundary = start + duration
+        mine = [h for h in holds if aid in h.activities] if not in_progress else []
+        if mine:
+            require(milestone is None, f"a hold on the milestone {aid}")
+            start, finish_boundary, moved = work_around(cal, start, duration, mine)
+            for hold in moved:
+                if held is not None:
+                    held.setdefault(hold.event, set()).add(aid)
         if milestone == "start_milestone":
             when = cal.date(start)
             timings[aid] = Timing(when, when, start, start, logic_start)
@@ -729,9 +763,10 @@ def progress_at(programme: Programme, works: ActualWorks, calendars, data_date: 
                 hidden: dict[str, tuple[dt.date, int]]) -> dict[str, Progress]:
     """What the update reports at ``data_date``: actual dates before it, remaining work.
 
-    The remaining duration of work in progress is the work days it actually still took,
-    less any extension ``hidden`` from the update because its cause had not yet arisen
-    (an extension of ``days`` that becomes known on ``date``).
+    The remaining duration of work in progress is the work days it actually still took
+    (days on which a hold stopped it are not work), less any extension ``hidden`` from the
+    update because its cause had not yet arisen (an extension of ``days`` that becomes known
+    on ``date``).
     """
     out: dict[str, Progress] = {}
     for aid, a in programme.activities.items():
@@ -745,7 +780,11 @@ def progress_at(programme: Programme, works: ActualWorks, calendars, data_date: 
         if t.finish < data_date:
             out[aid] = Progress(t.start, t.finish, 0)
         else:
-            remaining = calendars[a.calendar].count(data_date, t.finish)
+            cal = calendars[a.calendar]
+            remaining = cal.count(data_date, t.finish) - sum(
+                cal.count(max(h.first, data_date), min(h.last, t.finish))
+                for h in works.holds if aid in h.activities
+                and max(h.first, data_date) <= min(h.last, t.finish))
             known_from, days = hidden.get(aid, (data_date, 0))
             if data_date < known_from:
                 remaining = max(1, remaining - days)
@@ -795,6 +834,18 @@ def register_activities(scn: Scenario, event: dict, works: ActualWorks) -> tuple
     return split_ids(event["activities"]), ""
 
 
+def asbuilt_activities(scn: Scenario, event: dict) -> list[str]:
+    """Where the as-built record shows an event, when that is not the register's default:
+    a fragnet's activities are never built under their own ids, the activities the
+    contractor added for the event carry its work."""
+    if event["impact"] != "fragnet":
+        return []
+    added = [r["id"] for r in scn.added if r["event"] == event["id"]]
+    require(added, f"{event['id']}: its fragnet is not in the as-built and no added activity "
+                   f"carries its work")
+    return added
+
+
 def derive_events(scn: Scenario, works: ActualWorks):
     """The register dated from what happened. Returns (events rows, extensions hidden from
     the updates until their cause arose: id -> (date known, days))."""
@@ -811,7 +862,8 @@ def derive_events(scn: Scenario, works: ActualWorks):
                      "start": start, "finish": finish, "activities": ";".join(activities),
                      "impact": event["impact"], "days": days,
                      "evidence": event["evidence"].format(start=start, finish=finish),
-                     "notified": notified, "claimed_days": event["claimed_days"]})
+                     "notified": notified, "claimed_days": event["claimed_days"],
+                     "asbuilt_activities": ";".join(asbuilt_activities(scn, event))})
         for effect in scn.effects:
             if effect["event"] == event["id"] and effect["effect"] == "extend":
                 for aid in split_ids(effect["activities"]):
@@ -1069,7 +1121,7 @@ class Records:
 def activity_row(a: Activity) -> dict:
     return {"id": a.id, "name": a.name, "duration": a.duration, "calendar": a.calendar,
             "wbs": a.wbs, "kind": a.kind, "constraint": a.constraint,
-            "constraint_date": a.constraint_date, "party": a.party}
+            "constraint_date": a.constraint_date, "party": a.party, "risk": a.risk}
 
 
 def link_rows(p: Programme) -> list[dict]:
@@ -1128,8 +1180,9 @@ def omitted_link(scn: Scenario, records: Records, updates, works) -> None:
     records.update_links[u.folder] = [r for r in records.update_links[u.folder]
                                       if (r["pred"], r["succ"]) != pair]
     require(len(records.update_links[u.folder]) == before - 1, "the omitted link was not found")
-    records.corrections.append({"snapshot": u.label, "table": "links", "key": f"{pair[0]}>{pair[1]}",
-                                "column": "add", "value": rule["value"], "reason": rule["reason"]})
+    records.corrections.append({"snapshot": u.label, "table": "links",
+                                "key": f"{pair[0]}>{pair[1]}", "column": "add",
+                                "value": rule["value"], "reason": rule["reason"]})
 
 
 def asbuilt_record(scn: Scenario, records: Records, last: Update, works, site) -> None:
@@ -1353,11 +1406,11 @@ def check_case(scn: Scenario, baseline_rows, baseline_links, updates, records: R
 # ---------------------------------------------------------------------------------------
 
 ACTIVITY_COLUMNS = ["id", "name", "duration", "calendar", "wbs", "kind", "constraint",
-                    "constraint_date", "party"]
+                    "constraint_date", "party", "risk"]
 PROGRESS_COLUMNS = ["actual_start", "actual_finish", "remaining"]
 LINK_COLUMNS = ["pred", "succ", "type", "lag"]
 EVENT_COLUMNS = ["id", "title", "party", "start", "finish", "activities", "impact", "days",
-                 "evidence", "notified", "claimed_days"]
+                 "evidence", "notified", "claimed_days", "asbuilt_activities"]
 ELEMENT_COLUMNS = ["id", "name", "wbs", "classification", *BOX_COLUMNS, "level", "zone"]
 
 
@@ -1503,17 +1556,128 @@ def readme_tables(scn: Scenario, f: dict) -> dict:
         return f"{label} ({date})"
 
     causes = {e["id"]: e["cause"] for e in scn.events}
-    grants = " ".join(f"Extension {g['id']} ({g['days']} days, Section {g['section']}, for "
-                      f"{', '.join(split_ids(g['events']))}) was granted on {g['granted_on']}."
-                      for g in scn.extensions)
     return {
-        "events": events, "forecasts": forecasts, "grants": grants,
+        "events": events, "forecasts": forecasts,
         "revisions": "\n".join(f"- {r.kind}, from {first_update(r.first_data_date)} on: {r.text}"
                                for r in f["revisions"]),
         "but_for": "\n".join(f"| {e} | {causes[e]} | {pc} | {s1} |"
                              for e, (pc, s1) in f["but_for"].items()),
         "corrections": "\n".join(f"- {c['snapshot']}, {c['table']} `{c['key']}` {c['column']}: "
                                  f"{c['reason']}" for c in f["corrections"]),
+    }
+
+
+def joined(words: list[str]) -> str:
+    """``a``, ``a and b``, ``a, b and c``."""
+    return words[0] if len(words) == 1 else ", ".join(words[:-1]) + " and " + words[-1]
+
+
+def programme_before(day: dt.date, programmes: list[tuple[str, dt.date, dict]]):
+    """The last programme whose data date is strictly before ``day``."""
+    return [p for p in programmes if p[1] < day][-1]
+
+
+def hold_relation(t: Timing | None, progress: Progress | None, first: dt.date, last: dt.date
+                  ) -> str:
+    """How a hold from ``first`` to ``last`` falls on an activity's dates in a programme."""
+    if t is None:
+        return "not in this programme"
+    if progress is not None and progress.actual_finish is not None:
+        return f"complete ({t.finish}): no effect"
+    planned = f"for {t.start}" if t.start == t.finish else f"{t.start} to {t.finish}"
+    if t.finish < first:
+        return f"planned {planned}, before the hold: no effect"
+    if t.start > last:
+        return f"planned from {t.start}, after the hold: no effect"
+    if t.start < first:
+        return f"planned {planned}: stops for the hold, resumes after it"
+    return f"planned from {t.start}, in the hold: its start moves after it"
+
+
+def actual_hold_effect(works: ActualWorks, aid: str, first: dt.date, last: dt.date,
+                       calendars) -> str:
+    """What a hold did to an activity in the actual works."""
+    t = works.timings[aid]
+    cal = calendars[works.programme.activities[aid].calendar]
+    resumed = cal.date(cal.after(last))
+    if t.start < first:
+        done = cal.count(t.start, first - dt.timedelta(days=1))
+        return (f"started {t.start}, stopped after {counted(done, 'work day')}, resumed "
+                f"{resumed}, finished {t.finish}")
+    return f"due {cal.date(t.logic_start)}, started {t.start}"
+
+
+def hold_rows(f: dict, works: ActualWorks, programmes, calendars) -> str:
+    rows = []
+    for e in f["events"]:
+        if e["impact"] != "hold":
+            continue
+        label, data_date, timings, progress = programme_before(e["start"], programmes)
+        for aid in e["activities"].split(";"):
+            baseline = hold_relation(programmes[0][2].get(aid), None, e["start"], e["finish"])
+            before = hold_relation(timings.get(aid), progress.get(aid), e["start"], e["finish"])
+            actual = actual_hold_effect(works, aid, e["start"], e["finish"], calendars)
+            rows.append(f"| {e['id']} | {aid} | {baseline} | {label} ({data_date}): {before} | "
+                        f"{actual} |")
+    return "\n".join(rows)
+
+
+def grant_rows(scn: Scenario, programmes) -> tuple[str, str]:
+    """The grants table and the words on when each grant is in force."""
+    rows, words, granted = [], [], defaultdict(int)
+    whole_works = next(s for s in scn.sections if s["completion_activity"] == scn.completion)
+    for g in sorted(scn.extensions, key=lambda g: g["granted_on"]):
+        day = dt.date.fromisoformat(g["granted_on"])
+        section = next((s for s in scn.sections if s["section"] == g["section"]), whole_works)
+        granted[section["section"]] += int(g["days"])
+        in_force = (dt.date.fromisoformat(section["contract_completion"])
+                    + dt.timedelta(days=granted[section["section"]]))
+        before = programme_before(day, programmes)
+        after = next(p for p in programmes if p[1] > day)
+        require(not any(p[1] == day for p in programmes), f"{g['id']} is granted on a data date")
+        whole = " (the whole of the Works)" if section is whole_works else ""
+        rows.append(f"| {g['id']} | {section['section']}{whole} | {day} | {before[0]} "
+                    f"({before[1]}) and {after[0]} ({after[1]}) | {g['days']} | "
+                    f"{', '.join(split_ids(g['events']))} | {in_force} |")
+        words.append(f"{g['id']} from {after[0]} ({after[1]}) on, not in {before[0]}")
+    return "\n".join(rows), "; ".join(words)
+
+
+def v2_values(scn: Scenario, f: dict, works: ActualWorks, programmes, calendars) -> dict:
+    """The README's account of what the case exercises of case format v2."""
+    risks = defaultdict(list)
+    for row in scn.activities:
+        if row["risk"]:
+            risks[row["risk"]].append(row["id"])
+    shown = [e for e in f["events"] if e["asbuilt_activities"]]
+    tia = defaultdict(list)
+    for e in f["events"]:
+        label, data_date, _, _ = programme_before(e["start"], programmes)
+        tia[f"{label} ({data_date})"].append(e["id"])
+    on_data_date = [f"{e['id']} starts on the data date of {label} ({date}), so it goes into "
+                    f"the programme before, not into the update that already reports it"
+                    for e in f["events"] for label, date, _, _ in programmes[1:]
+                    if e["start"] == date]
+    claim = next(iter(scn.story["claims"]["in_progress"].items()))
+    event = next(e for e in f["events"] if e["id"] == claim[0])
+    grants, grant_words = grant_rows(scn, programmes)
+    return {
+        "in_progress_hold": f"{claim[1]} "
+                            + actual_hold_effect(works, claim[1], event["start"], event["finish"],
+                                                 calendars) + f" ({claim[0]}).",
+        "grants": grants, "grant_words": grant_words,
+        "completion_activity": f"`{scn.completion}`",
+        "unexplained_risk": f"`{scn.project['analysis']['unexplained_risk']}`",
+        "risk_words": "; ".join(f"`{risk}` for {joined(ids)}" for risk, ids in risks.items()),
+        "asbuilt_words": f"{joined([e['id'] for e in shown])} are fragnets whose activities are "
+                         f"never built under their own ids; the as-built record carries their "
+                         f"work as " + joined([f"{e['asbuilt_activities'].replace(';', ', ')} "
+                                               f"({e['id']})" for e in shown])
+                         + ", and the column names those for collapsed as-built. Every other "
+                           "event shows in its own activities (the default).",
+        "holds": hold_rows(f, works, programmes, calendars),
+        "tia_words": "; ".join(f"{joined(ids)} into {where}" for where, ids in tia.items())
+                     + "." + "".join(f" {text}." for text in on_data_date),
     }
 
 
@@ -1546,9 +1710,36 @@ def readme_text(scn: Scenario, f: dict) -> str:
         **{k: f[k] for k in ("activities", "links", "baseline_pc", "baseline_s1", "actual_pc",
                              "actual_s1", "power_float", "carpark_float", "updates", "elements",
                              "out_of_sequence_update")},
-        **readme_tables(scn, f),
+        **readme_tables(scn, f), **f["v2"],
     }
-    return string.Template(scn.readme).substitute(values)
+    return reflow(string.Template(scn.readme).substitute(values))
+
+
+def reflow(text: str, width: int = 92, longest: int = 100) -> str:
+    """Re-wrap each paragraph or list item that a filled-in figure made longer than
+    ``longest`` characters; tables, headings and every other paragraph stay as written."""
+    out, block = [], []
+
+    def flush():
+        if any(len(line) > longest for line in block):
+            item = block[0].startswith("- ")
+            out.extend(textwrap.wrap(" ".join(line.strip() for line in block), width,
+                                     subsequent_indent="  " if item else "",
+                                     break_on_hyphens=False, break_long_words=False))
+        else:
+            out.extend(block)
+        block.clear()
+
+    for line in text.split("\n"):
+        if not line.strip() or line.startswith(("|", "#")):
+            flush()
+            out.append(line)
+        else:
+            if line.startswith("- "):
+                flush()
+            block.append(line)
+    flush()
+    return "\n".join(out)
 
 
 # ---------------------------------------------------------------------------------------
@@ -1592,6 +1783,11 @@ def check_claims(scn: Scenario, baseline_timings, calendars, works: ActualWorks)
         chain = driving_chain(works.programme, t, calendars, end)
         for aid in drivers:
             require(aid in chain, f"{aid} no longer drives {end}")
+    for event, aid in claims["in_progress"].items():
+        row = event_row(scn, event)
+        first, last = dt.date.fromisoformat(row["start"]), dt.date.fromisoformat(row["finish"])
+        require(t[aid].start < first and t[aid].finish > last and aid in works.held[event],
+                f"{event} no longer stops {aid} in progress")
     first, second = claims["finish_together"]
     require(t[first].finish == t[second].finish,
             f"{first} ({t[first].finish}) and {second} ({t[second].finish}) no longer end together")
@@ -1666,6 +1862,8 @@ def build(output: Path, scn: Scenario | None = None) -> dict:
                exceptions)
     story = story_checks(scn, baseline, baseline_timings, calendars, works, updates)
     forecasts, schedules = schedule_all(scn, baseline_timings, updates, calendars)
+    programmes = [("Baseline", scn.start, baseline_timings, {})] + [
+        (u.label, u.data_date, schedules[u.folder], u.progress) for u in updates]
     facts = {
         "activities": len(baseline.activities), "links": len(baseline.links),
         "baseline_pc": baseline_timings[scn.completion].finish,
@@ -1679,6 +1877,7 @@ def build(output: Path, scn: Scenario | None = None) -> dict:
         "retrospective_activity": scn.records["retrospective_edit"]["activity"],
         **story,
     }
+    facts["v2"] = v2_values(scn, facts, works, programmes, calendars)
     output.mkdir(parents=True, exist_ok=True)
     built = Path(tempfile.mkdtemp(prefix=".generate-", dir=output))
     try:
