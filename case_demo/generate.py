@@ -1,46 +1,45 @@
 """Generate the bundled demo case: Tessaly Wharf, a fictitious mixed-use building in Brennholm.
 
 Run ``python case_demo/generate.py`` (optionally ``--output DIR``). The output is a case folder
-in case-format v1 (shared/case-format.md) written beside this script. The generator is
+in case-format v2 (shared/case-format.md) written beside this script. The generator is
 deterministic: a fixed seed, no clock, the same files on every run.
 
 Everything in the case is invented: the project, the town, the companies, the documents. No
 real person, firm or project is meant.
 
+The scenario's facts are data in ``scenario/`` beside this script (its README.md explains
+every file and column): the contract, the calendars and their holidays, the accepted
+baseline's activities and links, the delay events and what each did to the works, the
+contractor's re-planning, the record defects and disclosed corrections, the layout of the
+model elements and the README's text. This script computes from them.
+
 How the dates come about
 ------------------------
-1. The accepted baseline programme is defined below as activities and links (five-day site
-   calendar ``site5`` with public holidays and a winter shutdown; seven-day ``cure7`` for
-   concrete curing and screed drying).
-2. "What actually happened" is the baseline network changed by the delay events (longer
-   durations, later starts), by the contractor's re-planning, by a little seeded
-   variation of the contractor's own durations, and by the actual sequence of the works
-   (one activity started before its predecessor finished). A forward pass over that actual
-   network, following the time convention of the case format, gives every actual date.
+1. The accepted baseline programme is ``scenario/activities.csv`` and ``links.csv``.
+2. "What actually happened" is the baseline network changed by the delay events
+   (``effects.csv``: longer durations; holds, which stop work on their activities from the
+   hold's first to its last day, whether the work has started or not, so that the work
+   before a hold stands and the rest resumes after it), by the contractor's re-planning
+   (``revisions.csv``, with the activities it adds), by a little seeded variation of the
+   contractor's own durations, and by the actual sequence of the works (one activity
+   started before its predecessor finished). A forward pass over that actual network,
+   following the time convention of the case format, gives every actual date.
 3. Every month end is a data date. Each progress update is the programme then in force
    (baseline plus the revisions made so far) with the actual dates that lie before the data
    date; an activity in progress carries the work days still to do as its remaining
    duration. The as-built record is the actual dates of every activity.
+4. The event register is dated from what happened (``events.csv`` names the dates or the
+   activities whose actual dates date the event); a fragnet event's ``asbuilt_activities``
+   are the activities the contractor added for it, which carry its work in the as-built.
 
-Deliberate record defects (a checker must find each of them; KNOWN_DEFECTS.json lists the
-same, machine-readable)
------------------------------------------------------------------------------------------
-- duplicate_elements: door ``DOR-03-02`` appears three times in the same place (the original
-  and the copies ``DOR-03-02b`` and ``DOR-03-02c``: same classification, same box); column
-  ``COL-02-B3`` is duplicated in the same place as ``COL-02-B3b``.
-- unlinked_elements: ``WIN-W03-2`` (its wbs ``4.W.3.2`` is a typing slip for ``4.W.03.2``),
-  ``PLT-RF-09`` (wbs ``5.0.9``, no such work package) and ``LGT-EXT-07`` (wbs ``8.9``, no
-  such work package) match no activity.
-- retrospective_edits: the actual finish of ``SET-WELFARE`` (welfare and site offices) is
-  changed in the second and later updates to two work days earlier than first reported; the
-  site diary in the as-built record keeps the first date.
-
-Disclosed corrections (corrections.csv; these are not defects for the checker, the analyst
-has already corrected them): a mis-keyed remaining duration in one update, a link omitted
-from one update, and a wrong actual start in the as-built record.
+Deliberate record defects (``scenario/records.toml``; a checker must find each of them, and
+KNOWN_DEFECTS.json lists the same, machine-readable): duplicate model elements, elements whose
+work breakdown code matches no activity, and a retrospective edit of an actual finish.
+Disclosed corrections (corrections.csv; not defects, the analyst has already corrected them):
+a mis-keyed remaining duration, a link omitted from one update, a wrong as-built start.
 
 Nothing else is meant to be wrong: ids are unique, every link names known activities, no
-snapshot has a logic loop, every element other than the ones above is unique and linked.
+snapshot has a logic loop, every element other than the planted ones is unique and linked.
 """
 
 from __future__ import annotations
@@ -49,44 +48,24 @@ import argparse
 import copy
 import csv
 import datetime as dt
+import fnmatch
 import io
 import json
 import os
 import shutil
+import string
 import sys
 import tempfile
+import textwrap
+import tomllib
 from collections import defaultdict
 from dataclasses import dataclass
 from pathlib import Path
 
 import numpy as np
 
-SEED = 20250303
-
-PROJECT_NAME = "Tessaly Wharf, Brennholm: mixed-use building (fictitious demo case)"
-CONTRACT_START = dt.date(2025, 3, 3)
-CONTRACT_COMPLETION = dt.date(2026, 5, 29)
-SECTION_1_COMPLETION = dt.date(2026, 1, 30)
-LIFT_DELIVERY_PROMISED = dt.date(2026, 2, 9)
-POWER_CONNECTION_OFFERED = dt.date(2025, 12, 8)
-
-SITE = "site5"
-CURE = "cure7"
-HORIZON = (dt.date(2024, 12, 1), dt.date(2028, 12, 31))
-
-EMPLOYER = "Employer"
-CONTRACTOR = "Contractor"
-NETWORK_OPERATOR = "Network operator"
-
-# Storeys with vertical structure, and the slab that closes each of them.
-STOREYS = ["B1", "00", "01", "02", "03", "04", "05"]
-SLAB_ABOVE = {"B1": "00", "00": "01", "01": "02", "02": "03", "03": "04", "04": "05", "05": "RF"}
-SLABS = [SLAB_ABOVE[s] for s in STOREYS]
-FLOORS = ["00", "01", "02", "03", "04", "05"]  # floors above ground: facade, fit-out
-RESIDENTIAL = ["01", "02", "03", "04", "05"]
-ELEVATIONS = [("N", "north"), ("E", "east"), ("S", "south"), ("W", "west")]
-LEVEL_Z = {"B1": -3.6, "00": 0.0, "01": 4.5, "02": 7.7, "03": 10.9, "04": 14.1, "05": 17.3,
-           "RF": 20.5}
+HERE = Path(__file__).resolve().parent
+SCENARIO = HERE / "scenario"
 
 
 class CaseCheckError(Exception):
@@ -98,13 +77,95 @@ def require(condition: bool, message: str):
         raise CaseCheckError(message)
 
 
-def level_name(level: str) -> str:
-    return {"B1": "basement B1", "00": "ground floor 00", "RF": "roof"}.get(level, f"level {level}")
+# ---------------------------------------------------------------------------------------
+# The scenario tables
+# ---------------------------------------------------------------------------------------
+
+def read_csv(path: Path) -> list[dict[str, str]]:
+    with path.open(encoding="utf-8", newline="") as handle:
+        return list(csv.DictReader(handle))
+
+
+def read_toml(path: Path) -> dict:
+    return tomllib.loads(path.read_text(encoding="utf-8"))
+
+
+def split_ids(text: str) -> list[str]:
+    return [part for part in text.split(";") if part]
+
+
+def optional_date(text: str) -> dt.date | None:
+    return dt.date.fromisoformat(text) if text else None
+
+
+@dataclass
+class Scenario:
+    """Every file of ``scenario/``: TOML files as dicts, CSV files as lists of text rows."""
+    project: dict
+    calendars: dict
+    story: dict
+    records: dict
+    layout: dict
+    activities: list[dict]
+    links: list[dict]
+    events: list[dict]
+    effects: list[dict]
+    added: list[dict]
+    added_links: list[dict]
+    revisions: list[dict]
+    fragnets: list[dict]
+    fragnet_links: list[dict]
+    sections: list[dict]
+    extensions: list[dict]
+    prolongation: list[dict]
+    elements: list[dict]
+    readme: str
+
+    @property
+    def start(self) -> dt.date:
+        return self.project["project"]["contract_start"]
+
+    @property
+    def completion_date(self) -> dt.date:
+        return self.project["project"]["contract_completion"]
+
+    @property
+    def completion(self) -> str:
+        """The milestone of the whole of the Works."""
+        return self.project["project"]["completion_activity"]
+
+    @property
+    def section(self) -> dict:
+        """The section that is not the whole of the Works (Section 1)."""
+        return next(s for s in self.sections if s["completion_activity"] != self.completion)
+
+    @property
+    def site(self) -> str:
+        return self.project["schedule"]["default_calendar"]
+
+    def added_row(self, aid: str) -> dict:
+        return next(r for r in self.added if r["id"] == aid)
+
+
+def load_scenario(folder: Path = SCENARIO) -> Scenario:
+    tables = {name: read_csv(folder / f"{file}.csv") for name, file in (
+        ("activities", "activities"), ("links", "links"), ("events", "events"),
+        ("effects", "effects"), ("added", "added_activities"), ("added_links", "added_links"),
+        ("revisions", "revisions"), ("fragnets", "fragnets"), ("fragnet_links", "fragnet_links"),
+        ("sections", "sections"), ("extensions", "extensions_granted"),
+        ("prolongation", "prolongation_rates"), ("elements", "elements"))}
+    settings = {name: read_toml(folder / f"{name}.toml")
+                for name in ("project", "calendars", "story", "records", "layout")}
+    return Scenario(**settings, **tables,
+                    readme=(folder / "readme.md").read_text(encoding="utf-8"))
 
 
 # ---------------------------------------------------------------------------------------
 # Calendars
 # ---------------------------------------------------------------------------------------
+
+WEEKDAYS = ["Mon", "Tue", "Wed", "Thu", "Fri", "Sat", "Sun"]
+
 
 def easter_sunday(year: int) -> dt.date:
     """Gregorian Easter Sunday (the anonymous Gregorian algorithm, Meeus/Jones/Butcher)."""
@@ -127,37 +188,33 @@ def nth_weekday(year: int, month: int, weekday: int, n: int) -> dt.date:
     return first + dt.timedelta(days=offset + 7 * (n - 1))
 
 
-def site_exceptions() -> list[dict]:
-    """Public holidays of the (invented) region, Brennholm's own Harbour Day, winter shutdowns."""
+def holiday_date(rule: dict, year: int) -> dt.date:
+    if "easter" in rule:
+        return easter_sunday(year) + dt.timedelta(days=rule["easter"])
+    if "weekday" in rule:
+        return nth_weekday(year, rule["month"], WEEKDAYS.index(rule["weekday"]), rule["n"])
+    return dt.date(year, rule["month"], rule["day"])
+
+
+def calendar_exceptions(scn: Scenario) -> list[dict]:
+    """The non-working days of ``calendars.toml``: holidays of each year, then shutdowns."""
     rows: list[dict] = []
-    seen: set[dt.date] = set()
+    seen: set[tuple[str, dt.date]] = set()
 
-    def off(day: dt.date, reason: str):
-        if day.weekday() < 5 and day not in seen:  # weekends are not work days anyway
-            seen.add(day)
-            rows.append({"calendar": SITE, "date": day, "working": "no", "reason": reason})
+    def off(calendar: str, day: dt.date, reason: str):
+        if day.weekday() < 5 and (calendar, day) not in seen:  # weekends are not work days
+            seen.add((calendar, day))
+            rows.append({"calendar": calendar, "date": day, "working": "no", "reason": reason})
 
-    for year in (2025, 2026, 2027):
-        easter = easter_sunday(year)
-        holidays = [
-            (dt.date(year, 1, 1), "Public holiday: New Year's Day"),
-            (easter - dt.timedelta(days=2), "Public holiday: Good Friday"),
-            (easter + dt.timedelta(days=1), "Public holiday: Easter Monday"),
-            (dt.date(year, 5, 1), "Public holiday: Labour Day"),
-            (easter + dt.timedelta(days=39), "Public holiday: Ascension Day"),
-            (easter + dt.timedelta(days=50), "Public holiday: Whit Monday"),
-            (nth_weekday(year, 8, 0, 3), "Local holiday: Brennholm Harbour Day"),
-            (nth_weekday(year, 10, 0, 1), "Public holiday: Charter Day"),
-            (dt.date(year, 12, 25), "Public holiday: Christmas Day"),
-            (dt.date(year, 12, 26), "Public holiday: Second Christmas Day"),
-        ]
-        for day, reason in sorted(holidays):
-            off(day, reason)
-    for first, last in ((dt.date(2025, 12, 22), dt.date(2026, 1, 2)),
-                        (dt.date(2026, 12, 21), dt.date(2027, 1, 1))):
-        day = first
-        while day <= last:
-            off(day, "Winter shutdown of the site (contract particulars)")
+    rules = scn.calendars["holiday"]
+    for year in scn.calendars["years"]:
+        days = sorted((holiday_date(r, year), r["reason"], r["calendar"]) for r in rules)
+        for day, reason, calendar in days:
+            off(calendar, day, reason)
+    for shutdown in scn.calendars["shutdown"]:
+        day = shutdown["first"]
+        while day <= shutdown["last"]:
+            off(shutdown["calendar"], day, shutdown["reason"])
             day += dt.timedelta(days=1)
     rows.sort(key=lambda r: (r["calendar"], r["date"]))
     return rows
@@ -166,11 +223,12 @@ def site_exceptions() -> list[dict]:
 class WorkCalendar:
     """Work days of one calendar as a sorted numpy array of dates (numpy busday functions)."""
 
-    def __init__(self, name: str, weekmask: str, holidays: list[dt.date], extra: list[dt.date]):
+    def __init__(self, name: str, workdays: str, holidays: list[dt.date], extra: list[dt.date],
+                 horizon: tuple[dt.date, dt.date]):
         self.name = name
-        first, last = (np.datetime64(d, "D") for d in HORIZON)
+        first, last = (np.datetime64(d, "D") for d in horizon)
         every_day = np.arange(first, last + 1, dtype="datetime64[D]")
-        working = np.is_busday(every_day, weekmask=weekmask,
+        working = np.is_busday(every_day, weekmask=workdays,
                                holidays=np.array(holidays, dtype="datetime64[D]"))
         if extra:
             working |= np.isin(every_day, np.array(extra, dtype="datetime64[D]"))
@@ -187,10 +245,6 @@ class WorkCalendar:
     def date(self, index: int) -> dt.date:
         return self.days[index].astype(dt.date)
 
-    def is_workday(self, day: dt.date) -> bool:
-        k = self.on_or_after(day)
-        return k < len(self.days) and self.date(k) == day
-
     def add_workdays(self, day: dt.date, n: int) -> dt.date:
         """The work day ``n`` work days after the first work day on or after ``day``."""
         return self.date(self.on_or_after(day) + n)
@@ -200,20 +254,20 @@ class WorkCalendar:
         return self.after(last) - self.on_or_after(first)
 
 
-def build_calendars(exceptions: list[dict]) -> dict[str, WorkCalendar]:
-    site_holidays = [r["date"] for r in exceptions
-                     if r["calendar"] == SITE and r["working"] == "no"]
-    site_extra = [r["date"] for r in exceptions if r["calendar"] == SITE and r["working"] == "yes"]
-    return {
-        SITE: WorkCalendar(SITE, "1111100", site_holidays, site_extra),
-        CURE: WorkCalendar(CURE, "1111111", [], []),
-    }
+def build_calendars(scn: Scenario, exceptions: list[dict]) -> dict[str, WorkCalendar]:
+    horizon = tuple(scn.calendars["horizon"])
+    out = {}
+    for c in scn.calendars["calendar"]:
+        mine = [r for r in exceptions if r["calendar"] == c["name"]]
+        out[c["name"]] = WorkCalendar(c["name"], c["workdays"],
+                                      [r["date"] for r in mine if r["working"] == "no"],
+                                      [r["date"] for r in mine if r["working"] == "yes"],
+                                      horizon)
+    return out
 
 
-CALENDAR_ROWS = [
-    {"calendar": SITE, "workdays": "Mon Tue Wed Thu Fri"},
-    {"calendar": CURE, "workdays": "Mon Tue Wed Thu Fri Sat Sun"},
-]
+def calendar_rows(scn: Scenario) -> list[dict]:
+    return [{"calendar": c["name"], "workdays": c["workdays"]} for c in scn.calendars["calendar"]]
 
 
 # ---------------------------------------------------------------------------------------
@@ -226,11 +280,12 @@ class Activity:
     name: str
     duration: int
     wbs: str
-    calendar: str = SITE
+    calendar: str = ""
     kind: str = "task"
     constraint: str = ""
     constraint_date: dt.date | None = None
-    party: str = CONTRACTOR
+    party: str = ""
+    risk: str = ""     # who carries its own unexplained slippage (case format v2); blank: default
 
 
 @dataclass(frozen=True)
@@ -239,6 +294,17 @@ class Link:
     succ: str
     type: str = "FS"
     lag: int = 0
+
+
+def activity_of(row: dict) -> Activity:
+    """An activity from a row of ``scenario/activities.csv``."""
+    return Activity(row["id"], row["name"], int(row["duration"]), row["wbs"], row["calendar"],
+                    row["kind"] or "task", row["constraint"], optional_date(row["constraint_date"]),
+                    row["party"], row["risk"])
+
+
+def link_of(row: dict) -> Link:
+    return Link(row["pred"], row["succ"], row["type"] or "FS", int(row["lag"] or 0))
 
 
 class Programme:
@@ -254,16 +320,15 @@ class Programme:
         other.links = list(self.links)
         return other
 
-    def add(self, id: str, name: str, duration: int, wbs: str, **fields) -> Activity:
-        if id in self.activities:
-            raise ValueError(f"activity {id} defined twice")
-        self.activities[id] = Activity(id, name, duration, wbs, **fields)
-        return self.activities[id]
+    def add(self, activity: Activity):
+        if activity.id in self.activities:
+            raise ValueError(f"activity {activity.id} defined twice")
+        self.activities[activity.id] = activity
 
-    def link(self, pred: str, succ: str, type: str = "FS", lag: int = 0):
-        if any(l.pred == pred and l.succ == succ for l in self.links):
-            raise ValueError(f"link {pred}>{succ} defined twice")
-        self.links.append(Link(pred, succ, type, lag))
+    def link(self, link: Link):
+        if any(l.pred == link.pred and l.succ == link.succ for l in self.links):
+            raise ValueError(f"link {link.pred}>{link.succ} defined twice")
+        self.links.append(link)
 
     def remove_link(self, pred: str, succ: str):
         before = len(self.links)
@@ -283,387 +348,13 @@ class Programme:
         self.activities = dict(items)
 
 
-# Durations of the facade design path, tuned so that path runs close to the frame path.
-ENV_DESIGN_DAYS = 80
-ENV_FABRICATION_DAYS = 60
-
-
-def build_baseline() -> Programme:
-    """The accepted as-planned programme (revision B, accepted at contract start)."""
+def baseline_programme(scn: Scenario) -> Programme:
+    """The accepted as-planned programme of ``scenario/activities.csv`` and ``links.csv``."""
     p = Programme()
-    add, link = p.add, p.link
-
-    # 1.1 Key dates --------------------------------------------------------------------
-    add("MS-START", "Contract start: possession of the site", 0, "1.1", kind="start_milestone",
-        party=EMPLOYER)
-
-    # 1.2 Site establishment, 1.3 cranage and hoists -------------------------------------
-    add("SET-HOARDING", "Site hoarding, gates and traffic management", 5, "1.2")
-    add("SET-WELFARE", "Welfare facilities and site offices", 8, "1.2")
-    add("SET-TEMP-POWER", "Temporary site electrics and generator", 5, "1.2")
-    add("SET-CRANE-BASE", "Tower crane base: excavate, reinforce and pour", 4, "1.3")
-    add("SET-CRANE-CURE", "Tower crane base: concrete curing", 7, "1.3", calendar=CURE)
-    add("SET-CRANE-ERECT", "Erect tower crane", 3, "1.3")
-    add("SET-HOIST-ERECT", "Erect construction hoist on the north elevation", 3, "1.3")
-    add("SET-CRANE-DISMANTLE", "Dismantle tower crane", 3, "1.3")
-    add("SET-HOIST-REMOVE", "Remove construction hoist and make good", 4, "1.3")
-    add("SET-TEMP-POWER-OFF", "Decommission temporary supply and generator", 3, "1.2")
-    add("SET-DEMOBILISE", "Final site clearance and demobilisation", 5, "1.2")
-    link("MS-START", "SET-HOARDING")
-    link("SET-HOARDING", "SET-WELFARE", "SS", 2)
-    link("SET-HOARDING", "SET-TEMP-POWER")
-    link("SET-WELFARE", "SUB-PILING-MAT")
-    link("SET-TEMP-POWER", "SET-CRANE-ERECT")
-
-    # 2 Substructure ---------------------------------------------------------------------
-    add("SUB-CLEARANCE", "Site clearance and break-out of existing slabs", 10, "2.1.1")
-    add("SUB-DIVERSIONS", "Diversion of existing services", 12, "2.1.1")
-    add("SUB-PILING-MAT", "Piling platform and rig mobilisation", 5, "2.1.4")
-    add("SUB-PILED-WALL-NE", "Contiguous piled wall, north and east", 13, "2.2.1")
-    add("SUB-PILED-WALL-SW", "Contiguous piled wall, south and west", 13, "2.2.2")
-    add("SUB-CAPPING-BEAM-NE", "Capping beam, north and east", 6, "2.2.1")
-    add("SUB-CAPPING-BEAM-SW", "Capping beam, south and west", 6, "2.2.2")
-    add("SUB-CAPPING-BEAM-CURE", "Capping beam: concrete curing", 7, "2.2.2", calendar=CURE)
-    add("SUB-PROPS", "Temporary props to the piled wall", 5, "2.1.3")
-    add("SUB-EXCAVATION-A", "Bulk excavation to formation, zone A (west)", 12, "2.1.2")
-    add("SUB-EXCAVATION-B", "Bulk excavation to formation, zone B (east)", 12, "2.1.2")
-    add("SUB-PILES-A", "Bearing piles, zone A", 8, "2.2.3")
-    add("SUB-PILES-B", "Bearing piles, zone B", 8, "2.2.4")
-    add("SUB-PILE-TEST-A", "Pile integrity tests, zone A", 2, "2.2.5")
-    add("SUB-PILE-TEST-B", "Pile integrity tests, zone B", 2, "2.2.5")
-    add("SUB-CAPS-A", "Pile caps and ground beams, zone A", 8, "2.3.1")
-    add("SUB-CAPS-B", "Pile caps and ground beams, zone B", 8, "2.3.2")
-    add("SUB-LIFT-PIT", "Lift pit and core base", 6, "2.3.3")
-    add("SUB-DRAINAGE", "Below-slab drainage", 6, "2.5.3")
-    add("SUB-SLAB-A-REINFORCE", "Basement slab zone A: membrane and reinforcement", 6, "2.5.1")
-    add("SUB-SLAB-A-POUR", "Basement slab zone A: pour", 1, "2.5.1")
-    add("SUB-SLAB-A-CURE", "Basement slab zone A: curing", 7, "2.5.1", calendar=CURE)
-    add("SUB-SLAB-B-REINFORCE", "Basement slab zone B: membrane and reinforcement", 6, "2.5.2")
-    add("SUB-SLAB-B-POUR", "Basement slab zone B: pour", 1, "2.5.2")
-    add("SUB-SLAB-B-CURE", "Basement slab zone B: curing", 7, "2.5.2", calendar=CURE)
-    add("SUB-WALL-W", "Basement lining wall, west", 6, "2.4.4")
-    add("SUB-WALL-N", "Basement lining wall, north", 8, "2.4.1")
-    add("SUB-WALL-E", "Basement lining wall, east", 6, "2.4.2")
-    add("SUB-WALL-S", "Basement lining wall, south", 8, "2.4.3")
-    add("SUB-RAMP", "Car park access ramp", 8, "2.5.4")
-    add("SUB-PROPS-OUT", "Remove temporary props (podium slab in place)", 4, "2.1.3")
-    add("MS-SUBSTRUCTURE", "Substructure complete", 0, "1.1", kind="finish_milestone")
-    link("SET-HOARDING", "SUB-CLEARANCE")
-    link("SUB-CLEARANCE", "SUB-DIVERSIONS", "SS", 5)
-    link("SUB-DIVERSIONS", "SUB-EXCAVATION-A")
-    link("SUB-CLEARANCE", "SUB-PILING-MAT")
-    link("SUB-CLEARANCE", "SET-CRANE-BASE")
-    link("SET-CRANE-BASE", "SET-CRANE-CURE")
-    link("SET-CRANE-CURE", "SET-CRANE-ERECT")
-    link("SUB-PILING-MAT", "SUB-PILED-WALL-NE")
-    link("SUB-PILED-WALL-NE", "SUB-PILED-WALL-SW")
-    link("SUB-PILED-WALL-NE", "SUB-CAPPING-BEAM-NE")
-    link("SUB-PILED-WALL-SW", "SUB-CAPPING-BEAM-SW")
-    link("SUB-CAPPING-BEAM-NE", "SUB-CAPPING-BEAM-SW")
-    link("SUB-CAPPING-BEAM-SW", "SUB-CAPPING-BEAM-CURE")
-    link("SUB-CAPPING-BEAM-CURE", "SUB-PROPS")
-    link("SUB-PROPS", "SUB-EXCAVATION-A", "SS", 3)
-    link("SUB-CAPPING-BEAM-CURE", "SUB-EXCAVATION-A")
-    link("SUB-EXCAVATION-A", "SUB-EXCAVATION-B", "SS", 6)
-    link("SUB-PROPS", "SUB-EXCAVATION-B")
-    link("SUB-EXCAVATION-A", "SUB-PILES-A")
-    link("SUB-EXCAVATION-B", "SUB-PILES-B")
-    link("SUB-PILES-A", "SUB-PILES-B")
-    link("SUB-PILES-A", "SUB-PILE-TEST-A", "FS", 5)
-    link("SUB-PILES-B", "SUB-PILE-TEST-B", "FS", 5)
-    link("SUB-PILE-TEST-A", "SUB-CAPS-A")
-    link("SUB-PILE-TEST-B", "SUB-CAPS-B")
-    link("SUB-CAPS-A", "SUB-CAPS-B")
-    link("SUB-CAPS-B", "SUB-LIFT-PIT")
-    link("SUB-CAPS-A", "SUB-DRAINAGE", "SS", 3)
-    link("SUB-CAPS-A", "SUB-SLAB-A-REINFORCE")
-    link("SUB-DRAINAGE", "SUB-SLAB-A-REINFORCE")
-    link("SUB-SLAB-A-REINFORCE", "SUB-SLAB-A-POUR")
-    link("SUB-SLAB-A-POUR", "SUB-SLAB-A-CURE")
-    link("SUB-CAPS-B", "SUB-SLAB-B-REINFORCE")
-    link("SUB-LIFT-PIT", "SUB-SLAB-B-REINFORCE")
-    link("SUB-SLAB-A-REINFORCE", "SUB-SLAB-B-REINFORCE")
-    link("SUB-SLAB-B-REINFORCE", "SUB-SLAB-B-POUR")
-    link("SUB-SLAB-B-POUR", "SUB-SLAB-B-CURE")
-    link("SUB-SLAB-A-POUR", "SUB-WALL-W", "FS", 2)
-    link("SUB-WALL-W", "SUB-WALL-N")
-    link("SUB-WALL-N", "SUB-WALL-E")
-    link("SUB-SLAB-B-POUR", "SUB-WALL-E", "FS", 2)
-    link("SUB-WALL-E", "SUB-WALL-S")
-    link("SUB-WALL-S", "SUB-RAMP")
-    link("SUB-WALL-S", "MS-SUBSTRUCTURE")
-    link("SUB-RAMP", "MS-SUBSTRUCTURE")
-    link("MS-SUBSTRUCTURE", "SUB-PROPS-OUT")
-
-    # 3 Frame: per storey the columns and core walls, then the slab that closes it --------
-    previous_pour = None
-    for storey in STOREYS:
-        slab = SLAB_ABOVE[storey]
-        col, stair = f"FRM-{storey}-COLUMNS", f"FRM-{storey}-STAIR"
-        deck, pour, cure, strike = (f"FRM-{slab}-{x}" for x in ("DECK", "POUR", "CURE", "STRIKE"))
-        add(col, f"Columns and core walls, storey {storey}", 6 if storey == "B1" else 5,
-            f"3.{storey}.1")
-        add(stair, f"Precast stair flights, storey {storey}", 2, f"3.{storey}.3")
-        slab_text = "podium slab level 00" if slab == "00" else (
-            "roof slab" if slab == "RF" else f"slab level {slab}")
-        add(deck, f"Formwork and reinforcement, {slab_text}", 9 if slab == "00" else 7,
-            f"3.{slab}.2")
-        add(pour, f"Pour {slab_text}", 1, f"3.{slab}.2")
-        add(cure, f"Curing, {slab_text}", 7, f"3.{slab}.2", calendar=CURE)
-        add(strike, f"Strike formwork and back-prop, {slab_text}", 2, f"3.{slab}.2")
-        if previous_pour is None:
-            link("SUB-SLAB-A-CURE", col)
-            link("SUB-SLAB-B-CURE", col)
-            link("SET-CRANE-ERECT", col)
-        else:
-            link(previous_pour, col, "SS", 2)
-        link(col, deck)
-        if slab == "00":
-            link("SUB-WALL-S", deck)
-        link(deck, pour)
-        link(pour, cure)
-        link(cure, strike)
-        link(pour, stair)
-        previous_pour = pour
-    add("MS-TOPPED-OUT", "Frame topped out", 0, "1.1", kind="finish_milestone")
-    link("FRM-RF-POUR", "MS-TOPPED-OUT")
-    link("FRM-00-STRIKE", "SUB-PROPS-OUT")
-    link("SUB-WALL-S", "SUB-PROPS-OUT")
-    link("FRM-02-STRIKE", "SET-HOIST-ERECT")
-
-    # 4 Envelope ------------------------------------------------------------------------
-    add("ENV-DESIGN", "Facade design information: panel and fixing details (Employer's architect)",
-        ENV_DESIGN_DAYS, "4.0.1", party=EMPLOYER)
-    add("ENV-SHOP-DRAWINGS", "Facade shop drawings and approval", 12, "4.0.2")
-    add("ENV-FABRICATE", "Facade panel fabrication and first deliveries", ENV_FABRICATION_DAYS,
-        "4.0.3")
-    link("MS-START", "ENV-DESIGN")
-    link("ENV-DESIGN", "ENV-SHOP-DRAWINGS")
-    link("ENV-SHOP-DRAWINGS", "ENV-FABRICATE")
-    previous_panel = "ENV-FABRICATE"
-    for floor in FLOORS:
-        above = SLAB_ABOVE[floor]
-        for code, word in ELEVATIONS:
-            panel, window = f"ENV-{code}{floor}-PANELS", f"ENV-{code}{floor}-WINDOWS"
-            glazing = "Shopfront glazing" if floor == "00" else "Windows"
-            add(panel, f"Facade panels, {word} elevation, {level_name(floor)}", 3,
-                f"4.{code}.{floor}.1")
-            add(window, f"{glazing}, {word} elevation, {level_name(floor)}", 3,
-                f"4.{code}.{floor}.2")
-            link(previous_panel, panel)
-            if code == "N":
-                link(f"FRM-{above}-STRIKE", panel)
-            if code == "E":
-                # the glazing gang follows the panel gang round the corner: finish-to-finish
-                link(panel, window, "FF", 1)
-            else:
-                link(panel, window, "SS", 2)
-            previous_panel = panel
-    add("ENV-ROOF-UPSTAND", "Roof upstands and parapets", 5, "4.R.1")
-    add("ENV-ROOF-TEMP", "Temporary weather protection to the roof slab", 3, "4.R.3")
-    add("ENV-ROOF-MEMBRANE", "Roof insulation and waterproof membrane", 10, "4.R.2")
-    add("MS-WEATHERTIGHT", "Building weathertight", 0, "1.1", kind="finish_milestone")
-    link("FRM-RF-STRIKE", "ENV-ROOF-UPSTAND")
-    link("FRM-RF-STRIKE", "ENV-ROOF-TEMP")
-    link("ENV-ROOF-TEMP", "ENV-ROOF-MEMBRANE")
-    link("ENV-ROOF-UPSTAND", "ENV-ROOF-MEMBRANE", "FS", -2)  # a lead: membrane laps the upstands
-    link("ENV-ROOF-MEMBRANE", "MS-WEATHERTIGHT")
-    link("ENV-W05-WINDOWS", "MS-WEATHERTIGHT")
-
-    # 5 Services ------------------------------------------------------------------------
-    previous = None
-    for level in ["B1"] + FLOORS:
-        above = SLAB_ABOVE[level]
-        mech, elec, plumb, sprink, second = (
-            f"MEP-{level}-{x}"
-            for x in ("MECHANICAL", "ELECTRICAL", "PLUMBING", "SPRINKLER", "SECOND-FIX"))
-        add(mech, f"Mechanical first fix, {level_name(level)}", 7, f"5.{level}.1")
-        add(elec, f"Electrical first fix, {level_name(level)}", 7, f"5.{level}.1")
-        add(plumb, f"Plumbing and drainage first fix, {level_name(level)}", 5, f"5.{level}.1")
-        add(sprink, f"Sprinkler installation, {level_name(level)}", 4, f"5.{level}.1")
-        add(second, f"Services second fix, {level_name(level)}", 7, f"5.{level}.2")
-        link(f"FRM-{above}-STRIKE", mech)
-        link(mech, elec, "SS", 3)
-        link(mech, plumb, "SS", 2)
-        link(mech, sprink, "SS", 3)
-        if previous is not None:
-            link(f"MEP-{previous}-MECHANICAL", mech)
-            link(f"MEP-{previous}-ELECTRICAL", elec)
-            if previous != "B1":
-                link(f"MEP-{previous}-SECOND-FIX", second)
-        previous = level
-    link("MEP-B1-ELECTRICAL", "MEP-B1-SECOND-FIX")
-    link("MEP-B1-SPRINKLER", "MEP-B1-SECOND-FIX")
-    add("MEP-PLANTROOM", "Basement plant room: pumps, boilers and tanks", 12, "5.0.1")
-    add("MEP-SWITCHBOARD", "Main switchboard and low-voltage distribution", 7, "5.0.2")
-    add("MEP-POWER-ON", "Energise permanent power supply (network operator)", 1, "5.0.7",
-        party=NETWORK_OPERATOR, constraint="earliest_start",
-        constraint_date=POWER_CONNECTION_OFFERED)
-    add("MEP-RISERS", "Rising mains and service risers, all levels", 12, "5.0.3")
-    add("MEP-BMS", "Building management system: installation", 12, "5.0.4")
-    add("MEP-ROOF-PLANT", "Roof plant: air handling units and heat pumps", 5, "5.0.5")
-    add("MEP-FIRE-ALARM", "Fire alarm and detection installation", 10, "5.0.6")
-    link("MEP-B1-MECHANICAL", "MEP-PLANTROOM")
-    link("MEP-B1-ELECTRICAL", "MEP-SWITCHBOARD")
-    link("MEP-SWITCHBOARD", "MEP-POWER-ON")
-    link("MEP-00-MECHANICAL", "MEP-RISERS", "SS", 4)
-    link("MEP-05-MECHANICAL", "MEP-RISERS", "FF", 4)
-    link("MEP-PLANTROOM", "MEP-BMS")
-    link("MEP-RISERS", "MEP-BMS")
-    link("ENV-ROOF-MEMBRANE", "MEP-ROOF-PLANT")
-    link("MEP-05-ELECTRICAL", "MEP-FIRE-ALARM")
-    link("MEP-ROOF-PLANT", "SET-CRANE-DISMANTLE")
-    link("MS-TOPPED-OUT", "SET-CRANE-DISMANTLE")
-    # SF: the temporary supply cannot be switched off before the permanent one is energised.
-    link("MEP-POWER-ON", "SET-TEMP-POWER-OFF", "SF", 2)
-
-    # 6 Fit-out -------------------------------------------------------------------------
-    previous = None
-    for floor in FLOORS:
-        ids = {x: f"FIT-{floor}-{x}" for x in
-               ("SCREED", "DRYING", "PARTITIONS", "CEILINGS", "JOINERY", "KITCHEN", "DECORATION",
-                "FLOOR-FINISH", "SNAG")}
-        where = level_name(floor)
-        retail = floor == "00"
-        add(ids["SCREED"], f"Floor screed, {where}", 4, f"6.{floor}.1")
-        add(ids["DRYING"], f"Screed drying, {where}", 14, f"6.{floor}.1", calendar=CURE)
-        add(ids["PARTITIONS"], f"Partitions and drylining, {where}", 9 if retail else 12,
-            f"6.{floor}.1")
-        add(ids["CEILINGS"], f"Suspended ceilings, {where}", 6, f"6.{floor}.2")
-        add(ids["JOINERY"], f"Doors, frames and joinery, {where}", 6, f"6.{floor}.3")
-        if not retail:
-            add(ids["KITCHEN"], f"Kitchens and bathrooms, {where}", 10, f"6.{floor}.4")
-        add(ids["DECORATION"], f"Decoration, {where}", 7, f"6.{floor}.2")
-        add(ids["FLOOR-FINISH"], f"Floor finishes, {where}", 5, f"6.{floor}.2")
-        add(ids["SNAG"], f"Clean and snag, {where}", 4, f"6.{floor}.5")
-        second = f"MEP-{floor}-SECOND-FIX"
-        link(f"MEP-{floor}-PLUMBING", ids["SCREED"])
-        link(ids["SCREED"], ids["DRYING"])
-        for code, _ in ELEVATIONS:  # the floor is weathertight when its windows are in
-            link(f"ENV-{code}{floor}-WINDOWS", ids["PARTITIONS"])
-        link(f"FRM-{floor}-STAIR", ids["PARTITIONS"])
-        link(f"MEP-{floor}-ELECTRICAL", ids["PARTITIONS"])
-        link(ids["SCREED"], ids["PARTITIONS"], "FS", 2)
-        link(ids["PARTITIONS"], ids["CEILINGS"])
-        link(f"MEP-{floor}-SPRINKLER", ids["CEILINGS"])
-        link(ids["CEILINGS"], second, "SS", 2)
-        link(ids["CEILINGS"], ids["JOINERY"])
-        link(ids["JOINERY"], ids["DECORATION"])
-        if not retail:
-            link(ids["PARTITIONS"], ids["KITCHEN"])
-            link(ids["KITCHEN"], ids["DECORATION"])
-        link(second, ids["DECORATION"], "FF", 2)
-        link(ids["DECORATION"], ids["FLOOR-FINISH"])
-        link(ids["DRYING"], ids["FLOOR-FINISH"])
-        link(ids["FLOOR-FINISH"], ids["SNAG"])
-        link(second, ids["SNAG"])
-        if previous is not None:
-            for x in ("SCREED", "PARTITIONS", "DECORATION"):
-                link(f"FIT-{previous}-{x}", ids[x])
-            if not retail and previous != "00":
-                link(f"FIT-{previous}-KITCHEN", ids["KITCHEN"])
-        previous = floor
-    add("FIT-B1-DECK", "Car park deck coating", 8, "6.B1.1")
-    add("FIT-B1-MARK", "Car park line marking and signage", 3, "6.B1.2")
-    add("FIT-B1-DOORS", "Car park fire doors and barriers", 4, "6.B1.3")
-    link("MEP-B1-SECOND-FIX", "FIT-B1-DECK")
-    link("SUB-RAMP", "FIT-B1-DECK")
-    link("SUB-PROPS-OUT", "FIT-B1-DECK")
-    link("FIT-B1-DECK", "FIT-B1-MARK")
-    link("FIT-B1-DECK", "FIT-B1-DOORS", "SS", 3)
-    link("FRM-B1-STAIR", "FIT-B1-DOORS")
-    link("SET-HOIST-ERECT", "FIT-01-PARTITIONS")
-    link("MEP-B1-PLUMBING", "MEP-B1-SECOND-FIX")
-
-    # 7 Lifts (Employer-supplied equipment) ----------------------------------------------
-    add("LFT-DELIVERY", "Employer-supplied lift equipment delivered to site", 1, "7.1",
-        party=EMPLOYER, constraint="earliest_start", constraint_date=LIFT_DELIVERY_PROMISED)
-    add("LFT-SURVEY", "Lift shaft survey and bracket setting-out", 3, "7.1")
-    add("LFT-1-INSTALL", "Lift 1 installation: guides, car and drive", 20, "7.2")
-    add("LFT-2-INSTALL", "Lift 2 installation: guides, car and drive", 20, "7.3")
-    add("LFT-TEST", "Lift testing and certification", 5, "7.4")
-    link("MS-START", "LFT-DELIVERY")
-    link("FRM-RF-POUR", "LFT-SURVEY")
-    link("LFT-DELIVERY", "LFT-1-INSTALL")
-    link("LFT-SURVEY", "LFT-1-INSTALL")
-    link("LFT-1-INSTALL", "LFT-2-INSTALL")
-    link("LFT-2-INSTALL", "LFT-TEST")
-    link("MEP-POWER-ON", "LFT-TEST")
-    link("LFT-TEST", "SET-HOIST-REMOVE")
-
-    # 8 External works -------------------------------------------------------------------
-    add("EXT-DRAINAGE", "External drainage and connections", 12, "8.1")
-    add("EXT-HARD-N", "Hard landscaping, north frontage", 8, "8.2")
-    add("EXT-HARD-S", "Hard landscaping, south courtyard", 8, "8.3")
-    add("EXT-SOFT", "Soft landscaping and planting", 6, "8.4")
-    add("EXT-BOUNDARY", "Boundary walls and railings", 8, "8.5")
-    add("EXT-LIGHTING", "External lighting", 4, "8.6")
-    add("EXT-CROSSING", "Footway crossing and reinstatement", 4, "8.7")
-    link("SET-CRANE-DISMANTLE", "EXT-DRAINAGE")
-    link("SUB-RAMP", "EXT-DRAINAGE")
-    link("EXT-DRAINAGE", "EXT-HARD-N")
-    link("EXT-DRAINAGE", "EXT-HARD-S")
-    link("EXT-HARD-S", "EXT-SOFT")
-    link("EXT-DRAINAGE", "EXT-BOUNDARY")
-    link("EXT-BOUNDARY", "EXT-LIGHTING")
-    link("MEP-POWER-ON", "EXT-LIGHTING")
-    link("EXT-HARD-N", "EXT-CROSSING")
-    link("SET-HOIST-REMOVE", "EXT-HARD-N")
-
-    # 9 Commissioning and handover ---------------------------------------------------------
-    add("COM-MECHANICAL", "Commission mechanical services", 12, "9.1")
-    add("COM-ELECTRICAL", "Commission electrical services", 8, "9.1")
-    add("COM-FIRE", "Fire alarm and sprinkler cause-and-effect tests", 5, "9.1")
-    add("COM-BMS", "Building management system commissioning", 4, "9.1")
-    add("COM-CARPARK",
-        "Section 1: car park and retail units commissioning, fire officer's inspection", 3, "9.2")
-    add("COM-AUTHORITY", "Building control and fire authority inspection", 3, "9.3")
-    add("COM-CLEAN", "Final builder's clean", 5, "9.3")
-    add("COM-DOCS", "Operation and maintenance manuals, training", 10, "9.3")
-    add("COM-INSPECT", "Practical completion inspection", 3, "9.3")
-    add("MS-SECTION-1", "Section 1 complete: basement car park and ground-floor retail units", 0,
-        "1.1",
-        kind="finish_milestone", constraint="latest_finish", constraint_date=SECTION_1_COMPLETION)
-    add("MS-COMPLETION", "Practical completion of the whole of the Works (Section 2)", 0, "1.1",
-        kind="finish_milestone", constraint="latest_finish", constraint_date=CONTRACT_COMPLETION)
-    link("MEP-05-SECOND-FIX", "COM-MECHANICAL")
-    link("MEP-PLANTROOM", "COM-MECHANICAL")
-    link("MEP-ROOF-PLANT", "COM-MECHANICAL")
-    link("MEP-POWER-ON", "COM-MECHANICAL")
-    link("MS-WEATHERTIGHT", "COM-MECHANICAL")
-    link("MEP-SWITCHBOARD", "COM-ELECTRICAL")
-    link("MEP-05-SECOND-FIX", "COM-ELECTRICAL")
-    link("MEP-POWER-ON", "COM-ELECTRICAL")
-    link("COM-MECHANICAL", "COM-FIRE")
-    link("COM-ELECTRICAL", "COM-FIRE")
-    link("MEP-FIRE-ALARM", "COM-FIRE")
-    link("FIT-05-DECORATION", "COM-FIRE")
-    link("COM-MECHANICAL", "COM-BMS")
-    link("MEP-BMS", "COM-BMS")
-    link("FIT-B1-MARK", "COM-CARPARK")
-    link("FIT-00-SNAG", "COM-CARPARK")
-    link("FIT-B1-DOORS", "COM-CARPARK")
-    link("MEP-PLANTROOM", "COM-CARPARK")
-    link("MEP-POWER-ON", "COM-CARPARK")
-    link("COM-CARPARK", "MS-SECTION-1")
-    link("MS-SECTION-1", "COM-INSPECT")
-    link("SET-TEMP-POWER-OFF", "SET-DEMOBILISE")
-    link("COM-FIRE", "COM-AUTHORITY")
-    link("LFT-TEST", "COM-AUTHORITY")
-    for floor in FLOORS:
-        link(f"FIT-{floor}-SNAG", "COM-CLEAN")
-    link("EXT-SOFT", "COM-CLEAN")
-    link("COM-MECHANICAL", "COM-DOCS", "SS", 4)
-    link("COM-AUTHORITY", "COM-INSPECT")
-    link("COM-CLEAN", "COM-INSPECT")
-    link("COM-BMS", "COM-INSPECT")
-    link("COM-DOCS", "COM-INSPECT")
-    link("EXT-LIGHTING", "COM-INSPECT")
-    link("EXT-CROSSING", "COM-INSPECT")
-    link("SET-HOIST-REMOVE", "SET-DEMOBILISE")
-    link("EXT-SOFT", "SET-DEMOBILISE")
-    link("SET-DEMOBILISE", "COM-INSPECT", "FF", 0)
-    link("COM-INSPECT", "MS-COMPLETION")
+    for row in scn.activities:
+        p.add(activity_of(row))
+    for row in scn.links:
+        p.link(link_of(row))
     return p
 
 
@@ -677,7 +368,7 @@ class Timing:
     finish: dt.date
     early_start: int   # boundary on the activity's own calendar
     early_finish: int
-    logic_start: int   # where logic alone would have started it (before holds and delays)
+    logic_start: int   # where logic alone would have started it (before holds)
 
 
 @dataclass(frozen=True)
@@ -685,6 +376,15 @@ class Progress:
     actual_start: dt.date | None = None
     actual_finish: dt.date | None = None
     remaining: int | None = None
+
+
+@dataclass(frozen=True)
+class Hold:
+    """No work on ``activities`` from ``first`` to ``last`` (an event of the actual works)."""
+    event: str
+    first: dt.date
+    last: dt.date
+    activities: frozenset[str]
 
 
 def milestone_kind(activity: Activity, has_predecessor: bool) -> str | None:
@@ -716,28 +416,87 @@ def topological_order(programme: Programme) -> list[str]:
     return order
 
 
+def complete_timing(cal: WorkCalendar, milestone: str | None, prog: Progress) -> Timing:
+    """A complete activity: its actual dates stand."""
+    if milestone == "start_milestone":
+        b = cal.on_or_after(prog.actual_start or prog.actual_finish)
+        return Timing(prog.actual_finish, prog.actual_finish, b, b, b)
+    if milestone == "finish_milestone":
+        b = cal.after(prog.actual_finish)
+        return Timing(prog.actual_finish, prog.actual_finish, b, b, b)
+    es, ef = cal.on_or_after(prog.actual_start), cal.after(prog.actual_finish)
+    return Timing(prog.actual_start, prog.actual_finish, es, ef, es)
+
+
+def logic_bound(programme: Programme, calendars, timings, incoming, aid: str, milestone,
+                duration: int, start: int) -> int:
+    """The latest start that the links into ``aid`` allow, from ``start`` on."""
+    a = programme.activities[aid]
+    cal = calendars[a.calendar]
+    for l in incoming[aid]:
+        pred = timings[l.pred]
+        pa = programme.activities[l.pred]
+        from_finish = l.type in ("FS", "FF")
+        if pa.calendar == a.calendar:
+            point = pred.early_finish if from_finish else pred.early_start
+        else:
+            if milestone or milestone_kind(pa, bool(incoming[l.pred])):
+                raise ValueError(f"cross-calendar link {l} involves a milestone")
+            point = cal.after(pred.finish) if from_finish else cal.on_or_after(pred.start)
+        bound = point + l.lag
+        if l.type in ("FF", "SF"):
+            bound -= duration
+        start = max(start, bound)
+    return start
+
+
+def stopped_days(cal: WorkCalendar, hold: Hold) -> range:
+    """The work days of ``cal`` on which ``hold`` stops work, as day indices."""
+    return range(cal.on_or_after(hold.first), cal.after(hold.last))
+
+
+def work_around(cal: WorkCalendar, start: int, duration: int, holds: list[Hold]
+                ) -> tuple[int, int, list[Hold]]:
+    """Start and finish boundaries of ``duration`` work days from ``start`` that do no work
+    on the days of ``holds`` (both ends inclusive): a start inside a hold moves after it, work
+    in progress when a hold begins stops there and the rest resumes after it. Also returns
+    the holds that moved some of the work (a hold on work done before it, or on work that
+    starts after it, has no effect)."""
+    stopped = set()
+    for hold in holds:
+        stopped.update(stopped_days(cal, hold))
+    first = start
+    while start in stopped:
+        start += 1
+    day, left = start, duration
+    while left > 0:
+        left -= day not in stopped
+        day += 1
+    finish = day if duration else start
+    moved = [h for h in holds if any(first <= k < finish for k in stopped_days(cal, h))]
+    return start, finish, moved
+
+
 def forward_pass(
     programme: Programme,
     calendars: dict[str, WorkCalendar],
     data_date: dt.date,
     progress: dict[str, Progress] | None = None,
-    start_delays: dict[str, int] | None = None,
-    hold_windows: list[tuple[dt.date, dt.date, set[str]]] | None = None,
-    held: dict[str, tuple[dt.date, dt.date]] | None = None,
+    holds: list[Hold] | None = None,
+    held: dict[str, set[str]] | None = None,
     not_before: dict[str, dt.date] | None = None,
 ) -> dict[str, Timing]:
     """Early dates of every activity.
 
     ``progress`` gives actual dates and remaining durations (retained logic). For the
-    actual network, ``start_delays`` starts an activity that many work days after its logic
-    allows, and ``hold_windows`` keeps the listed activities from starting inside a window;
-    ``held`` collects the activities a window actually held; ``not_before`` keeps an
-    activity from starting before a date (materials not yet on site).
+    actual network, ``holds`` stop work on the listed activities from the first to the last
+    day of each hold (see ``work_around``); ``held`` collects, per event, the activities a
+    hold actually moved; ``not_before`` keeps an activity from starting before a date
+    (materials not yet on site).
     """
     progress = progress or {}
     not_before = not_before or {}
-    start_delays = start_delays or {}
-    hold_windows = hold_windows or []
+    holds = holds or []
     incoming = defaultdict(list)
     for l in programme.links:
         incoming[l.succ].append(l)
@@ -747,49 +506,29 @@ def forward_pass(
         cal = calendars[a.calendar]
         milestone = milestone_kind(a, bool(incoming[aid]))
         prog = progress.get(aid, Progress())
-        if prog.actual_finish is not None:  # complete: its actual dates stand
-            if milestone == "start_milestone":
-                b = cal.on_or_after(prog.actual_start or prog.actual_finish)
-                timings[aid] = Timing(prog.actual_finish, prog.actual_finish, b, b, b)
-            elif milestone == "finish_milestone":
-                b = cal.after(prog.actual_finish)
-                timings[aid] = Timing(prog.actual_finish, prog.actual_finish, b, b, b)
-            else:
-                es, ef = cal.on_or_after(prog.actual_start), cal.after(prog.actual_finish)
-                timings[aid] = Timing(prog.actual_start, prog.actual_finish, es, ef, es)
+        if prog.actual_finish is not None:
+            timings[aid] = complete_timing(cal, milestone, prog)
             continue
         in_progress = prog.actual_start is not None
         duration = prog.remaining if prog.remaining is not None else a.duration
         start = cal.on_or_after(data_date)
         if milestone == "finish_milestone":
             start += 1  # a not-started milestone is never dated before the data date
-        for l in incoming[aid]:
-            pred = timings[l.pred]
-            pa = programme.activities[l.pred]
-            from_finish = l.type in ("FS", "FF")
-            if pa.calendar == a.calendar:
-                point = pred.early_finish if from_finish else pred.early_start
-            else:
-                if milestone or milestone_kind(pa, bool(incoming[l.pred])):
-                    raise ValueError(f"cross-calendar link {l} involves a milestone")
-                point = cal.after(pred.finish) if from_finish else cal.on_or_after(pred.start)
-            bound = point + l.lag
-            if l.type in ("FF", "SF"):
-                bound -= duration
-            start = max(start, bound)
+        start = logic_bound(programme, calendars, timings, incoming, aid, milestone, duration,
+                            start)
         if not in_progress and a.constraint == "earliest_start":
             start = max(start, cal.on_or_after(a.constraint_date))
         logic_start = start
-        if not in_progress:
-            if aid in not_before:
-                start = max(start, cal.on_or_after(not_before[aid]))
-            start += start_delays.get(aid, 0)
-            for first, last, ids in hold_windows:
-                if aid in ids and first <= cal.date(start) <= last:
-                    start = cal.after(last)
-                    if held is not None:
-                        held[aid] = (first, last)
+        if not in_progress and aid in not_before:
+            start = max(start, cal.on_or_after(not_before[aid]))
         finish_boundary = start + duration
+        mine = [h for h in holds if aid in h.activities] if not in_progress else []
+        if mine:
+            require(milestone is None, f"a hold on the milestone {aid}")
+            start, finish_boundary, moved = work_around(cal, start, duration, mine)
+            for hold in moved:
+                if held is not None:
+                    held.setdefault(hold.event, set()).add(aid)
         if milestone == "start_milestone":
             when = cal.date(start)
             timings[aid] = Timing(when, when, start, start, logic_start)
@@ -812,172 +551,147 @@ def completion_of(timings: dict[str, Timing]) -> dt.date:
 # What actually happened
 # ---------------------------------------------------------------------------------------
 
-# Magnitudes of the delay events, in work days (the event register is derived from them).
-OBSTRUCTION_DAYS = 15          # EV02 obstruction removal and pile redesign, as it happened
-OBSTRUCTION_ESTIMATE = 12      # ... as the contractor first programmed it
-EXTRA_PILES_DAYS = 2           # EV02 additional piles in zone B
-RAIN_EXTRA_DAYS = 3            # EV01 exceptional rainfall, each excavation
-FRAME_SLOW_EXTRA_DAYS = 4      # EV04 contractor's formwork gang short, each of three slabs
-CRANE_OUTAGE_DAYS = 8          # EV08 tower crane out of service
-DESIGN_LATE_DAYS = 30          # EV03 facade design information late
-POWER_LATE_DAYS = 31           # EV07 network operator energises late
-LIFT_LATE_DAYS = 46            # EV10 Employer-supplied lift equipment late
-MEP_SLOW_EXTRA_DAYS = 6        # EV11 services subcontractor short of fitters, each of 3 floors
-V07_INSTRUCTION = dt.date(2025, 10, 15)   # EV05 variation V-07 instructed
-V07_PROCUREMENT_DAYS = 25                 # EV05 charging equipment lead time
-REMEDIAL_DAYS = 10             # EV06 resin injection of leaking basement wall joints
-COLD_SPELL = (dt.date(2026, 1, 26), dt.date(2026, 2, 6))  # EV09 pours and screeds stopped
-COLD_SENSITIVE_SUFFIXES = ("-POUR", "-SCREED", "-MEMBRANE")
-
-SLOW_FRAME = ["FRM-00-DECK", "FRM-01-DECK", "FRM-02-DECK"]
-SLOW_SERVICES = ["MEP-03-SECOND-FIX", "MEP-04-SECOND-FIX", "MEP-05-SECOND-FIX"]
-RAIN_HIT = ["SUB-EXCAVATION-A", "SUB-EXCAVATION-B"]
-
-# Re-planning by the contractor, shown in every update whose data date is on or after the date.
-ROOF_TEMP_DELETED_FROM = dt.date(2025, 10, 31)    # temporary roof protection dropped
-PARTITIONS_REVISED_FROM = dt.date(2025, 11, 30)   # second drylining gang: 12 -> 10 days
-PARTITIONS_REVISED = ["FIT-03-PARTITIONS", "FIT-04-PARTITIONS", "FIT-05-PARTITIONS"]
-PARTITIONS_NEW_DAYS = 10
-LIFT_SECOND_TEAM_LAG = 10                         # lift 2 starts 10 days after lift 1
-
-OUT_OF_SEQUENCE_LAG = 4  # ceilings actually started 4 days after partitions began
+def on_site(row: dict, calendars) -> dt.date | None:
+    """When the materials of an added activity are on site (``on_site_from`` plus the lead
+    time in work days); the contractor's programme shows it as an earliest start."""
+    if not row["on_site_from"]:
+        return None
+    return calendars[row["calendar"]].add_workdays(dt.date.fromisoformat(row["on_site_from"]),
+                                                   int(row["lead_days"]))
 
 
-def equipment_on_site(calendars) -> dt.date:
-    """When the charging equipment of variation V-07 is on site (the contractor's programme
-    shows it as an earliest start from the update that adds the work)."""
-    return calendars[SITE].add_workdays(V07_INSTRUCTION, V07_PROCUREMENT_DAYS)
+def add_to(scn: Scenario, programme: Programme, aid: str, planned: bool, calendars):
+    """Add an activity of ``added_activities.csv`` and its links, as programmed (``planned``)
+    or as it was carried out."""
+    row = scn.added_row(aid)
+    duration = int(row["duration"] if planned else row["actual_duration"])
+    activity = Activity(aid, row["name"], duration, row["wbs"], row["calendar"], "task", "",
+                        None, row["party"])
+    if planned and row["on_site_from"]:
+        activity.constraint, activity.constraint_date = "earliest_start", on_site(row, calendars)
+    programme.insert_after(row["after"], activity)
+    for l in scn.added_links:
+        if l["activity"] == aid:
+            programme.link(link_of(l))
 
 
-def added_activity(aid: str, planned: bool, calendars=None) -> Activity:
-    """Activities the contractor added to the programme during the works."""
-    if aid == "SUB-OBSTRUCTIONS":
-        return Activity(aid, "Break out buried obstructions and redesign piles, zone B",
-                        OBSTRUCTION_ESTIMATE if planned else OBSTRUCTION_DAYS, "2.2.4")
-    if aid == "SUB-REMEDIAL":
-        return Activity(aid, "Seal leaking basement wall joints by resin injection", REMEDIAL_DAYS,
-                        "2.4.1")
-    if aid == "MEP-EV-CHARGE":
-        activity = Activity(aid, "Electric vehicle charging points, basement (variation V-07)",
-                            8, "5.B1.2")
-        if planned:
-            activity.constraint = "earliest_start"
-            activity.constraint_date = equipment_on_site(calendars)
-        return activity
-    raise KeyError(aid)
-
-
-ADDED_AFTER = {"SUB-OBSTRUCTIONS": "SUB-EXCAVATION-B", "SUB-REMEDIAL": "SUB-WALL-S",
-               "MEP-EV-CHARGE": "MEP-B1-SECOND-FIX"}
-ADDED_LINKS = {
-    "SUB-OBSTRUCTIONS": [Link("SUB-EXCAVATION-B", "SUB-OBSTRUCTIONS", "SS", 6),
-                         Link("SUB-OBSTRUCTIONS", "SUB-PILES-B")],
-    "SUB-REMEDIAL": [Link("FRM-00-STRIKE", "SUB-REMEDIAL"), Link("SUB-REMEDIAL", "FIT-B1-DECK")],
-    "MEP-EV-CHARGE": [Link("MEP-B1-ELECTRICAL", "MEP-EV-CHARGE"),
-                      Link("MEP-EV-CHARGE", "FIT-B1-DECK"),
-                      Link("MEP-EV-CHARGE", "COM-CARPARK")],
-}
-
-
-def add_to(programme: Programme, aid: str, planned: bool, calendars=None):
-    programme.insert_after(ADDED_AFTER[aid], added_activity(aid, planned, calendars))
-    for l in ADDED_LINKS[aid]:
-        programme.link(l.pred, l.succ, l.type, l.lag)
-
-
-def lift_logic_change(programme: Programme):
-    programme.remove_link("LFT-1-INSTALL", "LFT-2-INSTALL")
-    programme.link("LFT-1-INSTALL", "LFT-2-INSTALL", "SS", LIFT_SECOND_TEAM_LAG)
+def revise(scn: Scenario, programme: Programme, revision: dict, planned: bool, calendars):
+    """Apply one row of ``revisions.csv`` to ``programme``."""
+    kind = revision["kind"]
+    if kind == "added activity":
+        add_to(scn, programme, revision["activity"], planned, calendars)
+    elif kind == "deleted activity":
+        programme.remove_activity(revision["activity"])
+    elif kind == "duration change":
+        for aid in split_ids(revision["activities"]):
+            programme.activities[aid].duration = int(revision["duration"])
+    elif kind == "logic change":
+        programme.remove_link(revision["pred"], revision["succ"])
+        programme.link(link_of(revision))
+    else:
+        raise CaseCheckError(f"revisions.csv: unknown kind {kind!r}")
 
 
 @dataclass
 class ActualWorks:
     programme: Programme
     timings: dict[str, Timing]
-    start_delays: dict[str, int]
+    holds: list[Hold]
+    held: dict[str, set[str]]
     not_before: dict[str, dt.date]
-    held: dict[str, tuple[dt.date, dt.date]]
     out_of_sequence: tuple[str, str] | None
     variation: dict[str, int]
 
 
-def contractor_variation(programme: Programme, touched: set[str]) -> dict[str, int]:
-    """Seeded -1/0/+1 day variation of the contractor's own task durations."""
+def named_activities(scn: Scenario) -> set[str]:
+    """Activities that an event or a re-planning names by id: their durations are the
+    story's, untouched by the contractor's own variation."""
+    named = {r["id"] for r in scn.added}
+    for effect in scn.effects:
+        named |= {aid for aid in split_ids(effect["activities"]) if "*" not in aid}
+    for revision in scn.revisions:
+        if revision["kind"] == "duration change":
+            named |= set(split_ids(revision["activities"]))
+    return named
+
+
+def contractor_variation(scn: Scenario, programme: Programme) -> dict[str, int]:
+    """Seeded variation of the contractor's own task durations (``story.toml``)."""
+    rule = scn.story["variation"]
+    touched = named_activities(scn)
     candidates = [a.id for a in programme.activities.values()
-                  if a.party == CONTRACTOR and a.calendar == SITE and a.duration >= 4
-                  and a.id not in touched]
-    rng = np.random.default_rng(SEED)
-    draws = rng.choice(np.array([-1, 0, 0, 0, 1]), size=len(candidates))
+                  if a.party == rule["party"] and a.calendar == rule["calendar"]
+                  and a.duration >= rule["min_duration"] and a.id not in touched]
+    rng = np.random.default_rng(rule["seed"])
+    draws = rng.choice(np.array(rule["draws"]), size=len(candidates))
     return {aid: int(d) for aid, d in zip(candidates, draws) if d != 0}
 
 
-#: The delay events as causes in the actual works, by the event id in events.csv.
-EVENT_CAUSES = {
-    "EV01": "exceptional rainfall", "EV02": "buried obstructions", "EV03": "late facade design",
-    "EV04": "slow frame", "EV05": "variation V-07", "EV06": "leaking basement walls",
-    "EV07": "late power connection", "EV08": "crane failure", "EV09": "cold spell",
-    "EV10": "late lift equipment", "EV11": "slow services second fix",
-}
+def event_row(scn: Scenario, event: str) -> dict:
+    return next(e for e in scn.events if e["id"] == event)
 
 
-def simulate_actual(baseline: Programme, calendars: dict[str, WorkCalendar],
+def actual_holds(scn: Scenario, programme: Programme, without: frozenset[str]) -> list[Hold]:
+    """The holds of ``effects.csv`` over their events' dates; ``*`` in an id is a wildcard."""
+    holds = []
+    for effect in scn.effects:
+        if effect["effect"] != "hold" or effect["event"] in without:
+            continue
+        event = event_row(scn, effect["event"])
+        patterns = split_ids(effect["activities"])
+        ids = frozenset(aid for aid in programme.activities
+                        if any(fnmatch.fnmatchcase(aid, p) for p in patterns))
+        require(all("*" in p or p in ids for p in patterns),
+                f"effects.csv: hold of {effect['event']} names an unknown activity")
+        holds.append(Hold(effect["event"], dt.date.fromisoformat(event["start"]),
+                          dt.date.fromisoformat(event["finish"]), ids))
+    return holds
+
+
+def simulate_actual(scn: Scenario, baseline: Programme, calendars: dict[str, WorkCalendar],
                     out_of_sequence: tuple[str, str] | None, without: frozenset[str] = frozenset(),
                     variation: dict[str, int] | None = None) -> ActualWorks:
     """The actual works: the baseline with every event, the re-planning, the contractor's
     own variation of durations and the actual sequence. ``without`` leaves events out (a
     but-for run for the README; ``variation`` then repeats the full run's variation)."""
     p = baseline.copy()
-    p.remove_activity("ENV-ROOF-TEMP")                       # never built (re-planning)
-    added = {"SUB-OBSTRUCTIONS": "EV02", "SUB-REMEDIAL": "EV06", "MEP-EV-CHARGE": "EV05"}
-    for aid, event in added.items():
-        if event not in without:
-            add_to(p, aid, planned=False)
-    extensions = [("EV02", ["SUB-PILES-B"], EXTRA_PILES_DAYS),
-                  ("EV01", RAIN_HIT, RAIN_EXTRA_DAYS),
-                  ("EV04", SLOW_FRAME, FRAME_SLOW_EXTRA_DAYS),
-                  ("EV03", ["ENV-DESIGN"], DESIGN_LATE_DAYS),
-                  ("EV11", SLOW_SERVICES, MEP_SLOW_EXTRA_DAYS)]
-    for event, ids, days in extensions:
-        if event not in without:
-            for aid in ids:
-                p.activities[aid].duration += days
-    for aid in PARTITIONS_REVISED:                               # re-planning
-        p.activities[aid].duration = PARTITIONS_NEW_DAYS
-    lift_logic_change(p)                                         # re-planning
-    delays = [("EV08", "FRM-03-COLUMNS", CRANE_OUTAGE_DAYS),
-              ("EV07", "MEP-POWER-ON", POWER_LATE_DAYS),
-              ("EV10", "LFT-DELIVERY", LIFT_LATE_DAYS)]
-    start_delays = {aid: days for event, aid, days in delays if event not in without}
     not_before = {}
-    if "EV05" not in without:
-        not_before["MEP-EV-CHARGE"] = equipment_on_site(calendars)
-    cold = {a for a in p.activities if a.endswith(COLD_SENSITIVE_SUFFIXES)}
-    windows = [] if "EV09" in without else [(COLD_SPELL[0], COLD_SPELL[1], cold)]
+    for revision in scn.revisions:
+        if revision["kind"] == "added activity":
+            row = scn.added_row(revision["activity"])
+            if row["event"] in without:
+                continue
+            if row["on_site_from"]:
+                not_before[row["id"]] = on_site(row, calendars)
+        revise(scn, p, revision, False, calendars)
+    for effect in scn.effects:
+        if effect["effect"] == "extend" and effect["event"] not in without:
+            for aid in split_ids(effect["activities"]):
+                p.activities[aid].duration += int(effect["days"])
+    holds = actual_holds(scn, p, without)
     if variation is None:
-        touched = set(RAIN_HIT + SLOW_FRAME + SLOW_SERVICES + PARTITIONS_REVISED
-                      + [aid for _, aid, _ in delays] + list(added)
-                      + ["SUB-PILES-B", "ENV-DESIGN"])
-        variation = contractor_variation(p, touched)
+        variation = contractor_variation(scn, p)
     for aid, delta in variation.items():
         if aid in p.activities:
             p.activities[aid].duration = max(1, p.activities[aid].duration + delta)
     if out_of_sequence is not None:                              # the actual sequence
         pred, succ = out_of_sequence
         p.remove_link(pred, succ)
-        p.link(pred, succ, "SS", OUT_OF_SEQUENCE_LAG)
-    held: dict[str, tuple[dt.date, dt.date]] = {}
-    timings = forward_pass(p, calendars, CONTRACT_START, start_delays=start_delays,
-                           hold_windows=windows, held=held, not_before=not_before)
-    return ActualWorks(p, timings, start_delays, not_before, held, out_of_sequence, variation)
+        p.link(Link(pred, succ, "SS", scn.story["out_of_sequence"]["lag"]))
+    held: dict[str, set[str]] = {}
+    timings = forward_pass(p, calendars, scn.start, holds=holds, held=held,
+                           not_before=not_before)
+    return ActualWorks(p, timings, holds, held, not_before, out_of_sequence, variation)
 
 
-def but_for(baseline, calendars, works: ActualWorks) -> dict[str, tuple[dt.date, dt.date]]:
+def but_for(scn: Scenario, baseline, calendars, works: ActualWorks
+            ) -> dict[str, tuple[dt.date, dt.date]]:
     """Completion and Section 1 of the actual works with each event taken out alone."""
     out = {}
-    for event in EVENT_CAUSES:
-        t = simulate_actual(baseline, calendars, works.out_of_sequence, frozenset([event]),
-                            works.variation).timings
-        out[event] = (t["MS-COMPLETION"].finish, t["MS-SECTION-1"].finish)
+    for event in scn.events:
+        t = simulate_actual(scn, baseline, calendars, works.out_of_sequence,
+                            frozenset([event["id"]]), works.variation).timings
+        out[event["id"]] = (t[scn.completion].finish, t[scn.section["completion_activity"]].finish)
     return out
 
 
@@ -994,72 +708,54 @@ def month_ends(first: dt.date, before: dt.date) -> list[dt.date]:
         year, month = nxt.year, nxt.month
 
 
-def choose_out_of_sequence(baseline, calendars) -> tuple[ActualWorks, list[dt.date]]:
-    """The actual works, with ceilings on the first floor whose start before the partitions
-    finished shows in a monthly update (an out-of-sequence record)."""
-    for floor in FLOORS:
-        pair = (f"FIT-{floor}-PARTITIONS", f"FIT-{floor}-CEILINGS")
-        works = simulate_actual(baseline, calendars, pair)
-        dates = month_ends(CONTRACT_START, completion_of(works.timings))
+def choose_out_of_sequence(scn: Scenario, baseline, calendars
+                           ) -> tuple[ActualWorks, list[dt.date]]:
+    """The actual works, with the first pair of ``story.toml`` whose successor's start before
+    its predecessor finished shows in a monthly update (an out-of-sequence record)."""
+    for pair in scn.story["out_of_sequence"]["pairs"]:
+        pair = tuple(pair)
+        works = simulate_actual(scn, baseline, calendars, pair)
+        dates = month_ends(scn.start, completion_of(works.timings))
         pred, succ = works.timings[pair[0]], works.timings[pair[1]]
         if any(succ.start < d <= pred.finish for d in dates):
             return works, dates
-    raise CaseCheckError("no floor shows the out-of-sequence ceilings in an update")
+    raise CaseCheckError("no pair shows the out-of-sequence progress in an update")
 
 
 # ---------------------------------------------------------------------------------------
 # The monthly updates
 # ---------------------------------------------------------------------------------------
 
+def resolve_date(text: str, timings: dict[str, Timing]) -> dt.date:
+    """A date of a scenario table: ``YYYY-MM-DD``, or ``start:ID`` / ``finish:ID``, the actual
+    start or finish of activity ID."""
+    if ":" in text:
+        which, aid = text.split(":", 1)
+        return {"start": timings[aid].start, "finish": timings[aid].finish}[which]
+    return dt.date.fromisoformat(text)
+
+
 @dataclass
 class Revision:
     first_data_date: dt.date   # first update that shows it: data dates on or after this
-    kind: str                  # added activity / deleted activity / duration / logic
+    kind: str                  # added activity / deleted activity / duration change / logic change
     text: str
-    activity: str = ""         # the activity added or deleted
+    row: dict                  # the row of revisions.csv
 
 
-def revisions(works: ActualWorks) -> list[Revision]:
-    """The contractor's re-planning between updates, in the order it was adopted."""
-    t = works.timings
-    day = dt.timedelta(days=1)
-    out = [
-        Revision(t["SUB-OBSTRUCTIONS"].start + day, "added activity",
-                 "SUB-OBSTRUCTIONS added after buried obstructions were found in zone B",
-                 "SUB-OBSTRUCTIONS"),
-        Revision(t["SUB-REMEDIAL"].start + day, "added activity",
-                 "SUB-REMEDIAL added after leaks through the basement walls were found",
-                 "SUB-REMEDIAL"),
-        Revision(V07_INSTRUCTION + day, "added activity",
-                 "MEP-EV-CHARGE added for variation V-07 (electric vehicle charging points)",
-                 "MEP-EV-CHARGE"),
-        Revision(ROOF_TEMP_DELETED_FROM, "deleted activity",
-                 "ENV-ROOF-TEMP deleted: the roof membrane follows the upstands directly",
-                 "ENV-ROOF-TEMP"),
-        Revision(PARTITIONS_REVISED_FROM, "duration change",
-                 "FIT-03/04/05-PARTITIONS revised from 12 to 10 days: a second drylining gang"),
-        Revision(LIFT_DELIVERY_PROMISED + day, "logic change",
-                 f"LFT-1-INSTALL > LFT-2-INSTALL changed from FS to SS {LIFT_SECOND_TEAM_LAG}: "
-                 "a second lift installation team once the lift delivery was late"),
-    ]
+def revisions(scn: Scenario, works: ActualWorks) -> list[Revision]:
+    """The contractor's re-planning, each shown in the updates after the day it was adopted."""
+    out = [Revision(resolve_date(r["adopted_on"], works.timings) + dt.timedelta(days=1),
+                    r["kind"], r["text"], r) for r in scn.revisions]
     return sorted(out, key=lambda r: r.first_data_date)
 
 
-def programme_at(baseline: Programme, data_date: dt.date, revs: list[Revision], calendars
-                 ) -> Programme:
+def programme_at(scn: Scenario, baseline: Programme, data_date: dt.date, revs: list[Revision],
+                 calendars) -> Programme:
     p = baseline.copy()
     for r in revs:
-        if data_date < r.first_data_date:
-            continue
-        if r.kind == "added activity":
-            add_to(p, r.activity, planned=True, calendars=calendars)
-        elif r.kind == "deleted activity":
-            p.remove_activity(r.activity)
-        elif r.kind == "duration change":
-            for a in PARTITIONS_REVISED:
-                p.activities[a].duration = PARTITIONS_NEW_DAYS
-        elif r.kind == "logic change":
-            lift_logic_change(p)
+        if data_date >= r.first_data_date:
+            revise(scn, p, r.row, True, calendars)
     return p
 
 
@@ -1067,9 +763,10 @@ def progress_at(programme: Programme, works: ActualWorks, calendars, data_date: 
                 hidden: dict[str, tuple[dt.date, int]]) -> dict[str, Progress]:
     """What the update reports at ``data_date``: actual dates before it, remaining work.
 
-    The remaining duration of work in progress is the work days it actually still took,
-    less any extension ``hidden`` from the update because its cause had not yet arisen
-    (an extension of ``days`` that becomes known on ``date``).
+    The remaining duration of work in progress is the work days it actually still took
+    (days on which a hold stopped it are not work), less any extension ``hidden`` from the
+    update because its cause had not yet arisen (an extension of ``days`` that becomes known
+    on ``date``).
     """
     out: dict[str, Progress] = {}
     for aid, a in programme.activities.items():
@@ -1083,7 +780,11 @@ def progress_at(programme: Programme, works: ActualWorks, calendars, data_date: 
         if t.finish < data_date:
             out[aid] = Progress(t.start, t.finish, 0)
         else:
-            remaining = calendars[a.calendar].count(data_date, t.finish)
+            cal = calendars[a.calendar]
+            remaining = cal.count(data_date, t.finish) - sum(
+                cal.count(max(h.first, data_date), min(h.last, t.finish))
+                for h in works.holds if aid in h.activities
+                and max(h.first, data_date) <= min(h.last, t.finish))
             known_from, days = hidden.get(aid, (data_date, 0))
             if data_date < known_from:
                 remaining = max(1, remaining - days)
@@ -1100,379 +801,292 @@ class Update:
     progress: dict[str, Progress]
 
 
-def build_updates(baseline, works, calendars, data_dates, hidden) -> list[Update]:
-    revs = revisions(works)
+def build_updates(scn, baseline, works, calendars, data_dates, hidden) -> list[Update]:
+    revs = revisions(scn, works)
     updates = []
     for number, data_date in enumerate(data_dates, start=1):
-        p = programme_at(baseline, data_date, revs, calendars)
+        p = programme_at(scn, baseline, data_date, revs, calendars)
         updates.append(Update(data_date.isoformat(), f"Update {number:02d}", data_date, p,
                               progress_at(p, works, calendars, data_date, hidden)))
     return updates
 
 
 # ---------------------------------------------------------------------------------------
-# The delay event register and the fragnets
+# The delay event register
 # ---------------------------------------------------------------------------------------
 
-def derive_events(baseline_timings, works: ActualWorks, calendars):
-    """Events dated from what happened. Returns (events rows, extensions hidden from the
-    updates until their cause arose: id -> (date known, days))."""
-    site = calendars[SITE]
+def register_activities(scn: Scenario, event: dict, works: ActualWorks) -> tuple[list[str], str]:
+    """The affected activities and days of an event as the register gives them: for an
+    extension its effect's, for a hold the activities it held, for a fragnet the table's."""
+    effects = [e for e in scn.effects if e["event"] == event["id"]]
+    if event["impact"] == "extend":
+        require(len(effects) == 1 and effects[0]["effect"] == "extend",
+                f"{event['id']}: an extension needs one extend row in effects.csv")
+        return split_ids(effects[0]["activities"]), effects[0]["days"]
+    if event["impact"] == "hold":
+        held = sorted(works.held.get(event["id"], ()))
+        require(held, f"{event['id']}: the hold holds no activity in the actual works")
+        for effect in effects:
+            for aid in split_ids(effect["activities"]):
+                require("*" in aid or aid in held,
+                        f"{event['id']}: the hold does not hold {aid} in the actual works")
+        return held, ""
+    return split_ids(event["activities"]), ""
+
+
+def asbuilt_activities(scn: Scenario, event: dict) -> list[str]:
+    """Where the as-built record shows an event, when that is not the register's default:
+    a fragnet's activities are never built under their own ids, the activities the
+    contractor added for the event carry its work."""
+    if event["impact"] != "fragnet":
+        return []
+    added = [r["id"] for r in scn.added if r["event"] == event["id"]]
+    require(added, f"{event['id']}: its fragnet is not in the as-built and no added activity "
+                   f"carries its work")
+    return added
+
+
+def derive_events(scn: Scenario, works: ActualWorks):
+    """The register dated from what happened. Returns (events rows, extensions hidden from
+    the updates until their cause arose: id -> (date known, days))."""
     t = works.timings
-    day = dt.timedelta(days=1)
-
-    def before(d: dt.date) -> dt.date:  # the work day before d
-        return site.date(site.on_or_after(d) - 1)
-
-    def logic_date(aid: str) -> dt.date:
-        return calendars[works.programme.activities[aid].calendar].date(t[aid].logic_start)
-
-    rain_start = site.add_workdays(t["SUB-EXCAVATION-B"].start, 2)
-    rain_finish = site.add_workdays(rain_start, 4)
-    for aid in RAIN_HIT:
-        require(t[aid].start <= rain_start and rain_finish <= t[aid].finish,
-                f"the rain window is outside {aid}")
-    design_due = site.date(site.after(baseline_timings["ENV-DESIGN"].finish))
-    require(t["ENV-DESIGN"].finish == site.add_workdays(design_due, DESIGN_LATE_DAYS - 1),
-            "the design delay does not match its event")
-    crane_start, crane_finish = logic_date("FRM-03-COLUMNS"), before(t["FRM-03-COLUMNS"].start)
-    power_start, power_finish = logic_date("MEP-POWER-ON"), before(t["MEP-POWER-ON"].start)
-    lift_start, lift_finish = logic_date("LFT-DELIVERY"), before(t["LFT-DELIVERY"].start)
-    require(lift_start == LIFT_DELIVERY_PROMISED,
-            "the lift hold does not start at the promised delivery")
-    cold = sorted(works.held)
-    require(cold, "the cold spell holds no activity")
-
-    def row(id, title, party, start, finish, activities, impact, days="", evidence="",
-           notified=None, claimed=""):
-        return {"id": id, "title": title, "party": party, "start": start, "finish": finish,
-                "activities": ";".join(activities), "impact": impact, "days": days,
-                "evidence": evidence, "notified": notified, "claimed_days": claimed}
-
-    obstruction = t["SUB-OBSTRUCTIONS"]
-    remedial = t["SUB-REMEDIAL"]
-    rows = [
-        row("EV02", "Unforeseen ground conditions: buried concrete obstructions in piling zone B "
-           "(Employer's risk: ground conditions not shown in the site investigation)",
-           "employer", obstruction.start, obstruction.finish, ["SUB-EXCAVATION-B", "SUB-PILES-B"],
-           "fragnet", evidence=f"Site diary {obstruction.start}; contractor's notice CN-03; "
-           "Employer's engineer's pile redesign memo SE-M-014",
-           notified=obstruction.start + 2 * day, claimed=28),
-        row("EV01", "Exceptionally adverse weather: rainfall far above the 10-year average floods "
-           "the basement excavation (neutral: time, no money)", "neutral", rain_start,
-           rain_finish, RAIN_HIT, "extend", RAIN_EXTRA_DAYS,
-           "Brennholm harbour weather station daily rainfall record; site diaries "
-           f"{rain_start} to {rain_finish}", notified=rain_finish + 3 * day, claimed=7),
-        row("EV04", "Contractor's slow progress of the frame: formwork gang below strength on "
-           "slabs 00 to 02", "contractor", t[SLOW_FRAME[0]].start, t[SLOW_FRAME[-1]].finish,
-           SLOW_FRAME, "extend", FRAME_SLOW_EXTRA_DAYS,
-           "Contractor's weekly labour returns; Employer's agent's progress reports PR-07 "
-           "to PR-09"),
-        row("EV08", "Tower crane out of service: slewing ring failure (contractor's plant)",
-           "contractor", crane_start, crane_finish, ["FRM-03-COLUMNS"], "hold",
-           evidence=f"Crane inspection report CI-22; crane hire breakdown log from {crane_start}"),
-        row("EV03", "Late issue of facade design information (panel and fixing details) by the "
-           "Employer's architect", "employer", design_due, t["ENV-DESIGN"].finish,
-           ["ENV-DESIGN"], "extend", DESIGN_LATE_DAYS,
-           "Architect's information release schedule rev F; contractor's request for "
-           "information RFI-041 and reminders", notified=design_due + 10 * day, claimed=45),
-        row("EV07", "Network operator energises the permanent power supply late (statutory "
-           "undertaker: neutral)", "neutral", power_start, power_finish, ["MEP-POWER-ON"], "hold",
-           evidence="Network operator's connection offer NO-2291 and revised energisation notice",
-           notified=power_start + 5 * day, claimed=21),
-        row("EV10", "Late delivery of the Employer-supplied lift equipment", "employer",
-           lift_start, lift_finish, ["LFT-DELIVERY"], "hold",
-           evidence="Employer's letter EL-027; lift supplier's delivery note LD-118",
-           notified=lift_start + 3 * day, claimed=60),
-        row("EV11", "Contractor's slow services second fix on floors 03 to 05: services "
-           "subcontractor short of fitters", "contractor", t[SLOW_SERVICES[0]].start,
-           t[SLOW_SERVICES[-1]].finish, SLOW_SERVICES, "extend", MEP_SLOW_EXTRA_DAYS,
-           "Services subcontractor's resource histogram; Employer's agent's progress report "
-           "PR-15"),
-        row("EV05", "Variation V-07: electric vehicle charging points in the basement car park",
-           "employer", V07_INSTRUCTION, t["MEP-EV-CHARGE"].finish,
-           ["FIT-B1-DECK", "COM-CARPARK"], "fragnet",
-           evidence="Variation instruction V-07; contractor's quotation Q-V07",
-           notified=V07_INSTRUCTION + 7 * day, claimed=14),
-        row("EV06", "Leaks through the basement walls: remedial resin injection (contractor's "
-           "defective work)", "contractor", remedial.start, remedial.finish, ["FIT-B1-DECK"],
-           "fragnet", evidence=f"Site diary {remedial.start}; non-conformance report NCR-09"),
-        row("EV09", "Exceptional cold spell: concrete pours and screeds suspended (neutral)",
-           "neutral", COLD_SPELL[0], COLD_SPELL[1], cold, "hold",
-           evidence="Brennholm harbour weather station temperature record; concrete pour "
-           "register", notified=COLD_SPELL[0] + 4 * day, claimed=7),
-    ]
+    rows, hidden = [], {}
+    for event in scn.events:
+        start, finish = resolve_date(event["start"], t), resolve_date(event["finish"], t)
+        activities, days = register_activities(scn, event, works)
+        notified = None
+        if event["notified_from"]:
+            notified = ({"start": start, "finish": finish}[event["notified_from"]]
+                        + dt.timedelta(days=int(event["notified_after_days"])))
+        rows.append({"id": event["id"], "title": event["title"], "party": event["party"],
+                     "start": start, "finish": finish, "activities": ";".join(activities),
+                     "impact": event["impact"], "days": days,
+                     "evidence": event["evidence"].format(start=start, finish=finish),
+                     "notified": notified, "claimed_days": event["claimed_days"],
+                     "asbuilt_activities": ";".join(asbuilt_activities(scn, event))})
+        for effect in scn.effects:
+            if effect["event"] == event["id"] and effect["effect"] == "extend":
+                for aid in split_ids(effect["activities"]):
+                    require(event["impact"] != "extend"
+                            or (t[aid].start <= finish and start <= t[aid].finish),
+                            f"{event['id']}: {aid} does not run during the event")
+                    if effect["known_from"] == "start":
+                        hidden[aid] = (start, int(effect["days"]))
     rows.sort(key=lambda r: r["id"])
     starts = [r["start"] for r in rows]
     require(starts == sorted(starts), "event ids are not in date order")
-    hidden = {"SUB-PILES-B": (obstruction.start, EXTRA_PILES_DAYS),
-              "ENV-DESIGN": (design_due, DESIGN_LATE_DAYS)}
-    for aid in RAIN_HIT:
-        hidden[aid] = (rain_start, RAIN_EXTRA_DAYS)
     return rows, hidden
 
 
-FRAGNETS = [
-    {"event": "EV02", "id": "EV02-F1", "name": "Break out buried obstructions, zone B",
-     "duration": 6, "calendar": SITE, "wbs": "2.2.4"},
-    {"event": "EV02", "id": "EV02-F2",
-     "name": "Redesign of zone B piles by the Employer's engineer",
-     "duration": 8, "calendar": SITE, "wbs": "2.2.4"},
-    {"event": "EV02", "id": "EV02-F3", "name": "Additional piles, zone B", "duration": 3,
-     "calendar": SITE, "wbs": "2.2.4"},
-    {"event": "EV05", "id": "EV05-F1",
-     "name": "Design and procure electric vehicle charging equipment (V-07)", "duration": 25,
-     "calendar": SITE, "wbs": "5.B1.2"},
-    {"event": "EV05", "id": "EV05-F2",
-     "name": "Install electric vehicle charging points and containment, basement",
-     "duration": 8, "calendar": SITE, "wbs": "5.B1.2"},
-    {"event": "EV06", "id": "EV06-F1", "name": "Investigate leaks through the basement walls",
-     "duration": 3, "calendar": SITE, "wbs": "2.4.1"},
-    {"event": "EV06", "id": "EV06-F2", "name": "Resin injection of leaking basement wall joints",
-     "duration": 8, "calendar": SITE, "wbs": "2.4.1"},
-]
-FRAGNET_LINKS = [
-    ("EV02", "SUB-EXCAVATION-B", "EV02-F1", "SS", 6),
-    ("EV02", "EV02-F1", "EV02-F2", "FS", 0),
-    ("EV02", "EV02-F2", "SUB-PILES-B", "FS", 0),
-    ("EV02", "SUB-PILES-B", "EV02-F3", "FS", 0),
-    ("EV02", "EV02-F3", "SUB-PILE-TEST-B", "FS", 5),
-    ("EV05", "EV05-F1", "EV05-F2", "FS", 0),
-    ("EV05", "MEP-B1-ELECTRICAL", "EV05-F2", "FS", 0),
-    ("EV05", "EV05-F2", "FIT-B1-DECK", "FS", 0),
-    ("EV05", "EV05-F2", "COM-CARPARK", "FS", 0),
-    ("EV06", "FRM-00-STRIKE", "EV06-F1", "FS", 0),
-    ("EV06", "EV06-F1", "EV06-F2", "FS", 0),
-    ("EV06", "EV06-F2", "FIT-B1-DECK", "FS", 0),
-]
-
-
 # ---------------------------------------------------------------------------------------
-# Model elements: a 48 m x 24 m block on an 8 m grid, basement B1, floors 00 to 05
+# Model elements (layout.toml and elements.csv)
 # ---------------------------------------------------------------------------------------
 # Classification: the project's own simple scheme, GROUP-TYPE (SUB substructure, FRM frame,
 # ENV envelope, SRV services, LFT lifts, FIT fit-out, EXT external works, TMP temporary works).
 
-GRID_X = {"A": 0.0, "B": 8.0, "C": 16.0, "D": 24.0, "E": 32.0, "F": 40.0, "G": 48.0}
-GRID_Y = {"1": 0.0, "2": 8.0, "3": 16.0, "4": 24.0}
-CORE = (24.0, 8.0, 32.0, 16.0)  # x0, y0, x1, y1 of the stair and lift core
-CORE_CORNERS = {("D", "2"), ("E", "2"), ("D", "3"), ("E", "3")}
+class Boxes:
+    """Element rows in the order they are made, with the layout's helpers."""
 
-DUPLICATE_GROUPS = [["DOR-03-02", "DOR-03-02b", "DOR-03-02c"], ["COL-02-B3", "COL-02-B3b"]]
-UNLINKED = {"WIN-W03-2": "4.W.3.2", "PLT-RF-09": "5.0.9", "LGT-EXT-07": "8.9"}
+    def __init__(self, layout: dict):
+        self.layout = layout
+        self.rows: list[dict] = []
+        grid = layout["grid"]
+        self.width, self.depth = max(grid["x"].values()), max(grid["y"].values())
 
+    def box(self, id, name, wbs, classification, x, y, z, dx, dy, dz, level, zone):
+        self.rows.append({"id": id, "name": name, "wbs": wbs, "classification": classification,
+                          "x": round(x, 3), "y": round(y, 3), "z": round(z, 3),
+                          "dx": round(dx, 3), "dy": round(dy, 3), "dz": round(dz, 3),
+                          "level": level, "zone": zone})
 
-def build_elements() -> list[dict]:
-    rows: list[dict] = []
+    def zone_of(self, x: float) -> str:
+        return "A" if x < self.layout["grid"]["zone_split"] else "B"
 
-    def box(id, name, wbs, classification, x, y, z, dx, dy, dz, level, zone):
-        rows.append({"id": id, "name": name, "wbs": wbs, "classification": classification,
-                     "x": round(x, 3), "y": round(y, 3), "z": round(z, 3), "dx": round(dx, 3),
-                     "dy": round(dy, 3), "dz": round(dz, 3), "level": level, "zone": zone})
+    def thickness(self, slab: str) -> float:
+        levels = self.layout["levels"]
+        return levels["slab_thickness"].get(slab, levels["default_slab_thickness"])
 
-    def zone_of(x: float) -> str:
-        return "A" if x < 24.0 else "B"
+    def level_name(self, level: str) -> str:
+        return self.layout["levels"]["names"].get(level, f"level {level}")
 
-    grid = [(gx, gy) for gx in GRID_X for gy in GRID_Y]
-    # Substructure
-    for gx, gy in grid:
-        x, y = GRID_X[gx], GRID_Y[gy]
-        z = zone_of(x)
-        box(f"PIL-{gx}{gy}", f"Bearing pile {gx}/{gy}", "2.2.3" if z == "A" else "2.2.4",
-            "SUB-PILE", x - 0.45, y - 0.45, -20.1, 0.9, 0.9, 15.0, "B1", z)
-        box(f"CAP-{gx}{gy}", f"Pile cap {gx}/{gy}", "2.3.1" if z == "A" else "2.3.2", "SUB-CAP",
-            x - 0.9, y - 0.9, -5.1, 1.8, 1.8, 1.0, "B1", z)
-    box("PIT-01", "Lift pit and core base", "2.3.3", "SUB-PIT", CORE[0], CORE[1], -5.6,
-        CORE[2] - CORE[0], CORE[3] - CORE[1], 1.5, "B1", "core")
-    sides = {"N": ("2.2.1", "2.4.1", 6), "E": ("2.2.1", "2.4.2", 3),
-             "S": ("2.2.2", "2.4.3", 6), "W": ("2.2.2", "2.4.4", 3)}
-    for side, (pile_wbs, wall_wbs, bays) in sides.items():
-        word = dict(ELEVATIONS)[side]
-        for n in range(1, bays + 1):
-            a = 8.0 * (n - 1)
+    def grid(self):
+        g = self.layout["grid"]
+        return [(gx, x, gy, y) for gx, x in g["x"].items() for gy, y in g["y"].items()]
+
+    def bays(self, side: str) -> int:
+        return round((self.width if side in "NS" else self.depth) / self.layout["grid"]["bay"])
+
+    def edge(self, side: str, along: float, length: float, thickness: float, outside: bool):
+        """A strip along one side of the building: x, y, dx, dy."""
+        if side in "NS":
             if side == "N":
-                pw, lw = (a, 24.0, 8.0, 0.6), (a, 23.7, 8.0, 0.3)
-            elif side == "S":
-                pw, lw = (a, -0.6, 8.0, 0.6), (a, 0.0, 8.0, 0.3)
-            elif side == "E":
-                pw, lw = (48.0, a, 0.6, 8.0), (47.7, a, 0.3, 8.0)
+                y = self.depth if outside else self.depth - thickness
             else:
-                pw, lw = (-0.6, a, 0.6, 8.0), (0.0, a, 0.3, 8.0)
-            zone = zone_of(pw[0] + pw[2] / 2)
-            box(f"PWL-{side}-{n}", f"Contiguous piled wall, {word} side, bay {n}", pile_wbs,
-                "SUB-PILED-WALL", pw[0], pw[1], -12.0, pw[2], pw[3], 12.0, "B1", zone)
-            box(f"BWL-{side}-{n}", f"Basement lining wall, {word} side, bay {n}", wall_wbs,
-                "SUB-WALL", lw[0], lw[1], -3.6, lw[2], lw[3], 3.15, "B1", zone)
-    for z, wbs in (("A", "2.5.1"), ("B", "2.5.2")):
-        box(f"BSL-{z}", f"Basement slab, zone {z}", wbs, "SUB-SLAB", 0.0 if z == "A" else 24.0,
-            0.0, -4.1, 24.0, 24.0, 0.5, "B1", z)
-    box("RMP-01", "Car park access ramp", "2.5.4", "SUB-RAMP", 48.6, 2.0, -3.6, 4.0, 18.0, 3.6,
-        "B1", "B")
+                y = -thickness if outside else 0.0
+            return along, y, length, thickness
+        if side == "E":
+            x = self.width if outside else self.width - thickness
+        else:
+            x = -thickness if outside else 0.0
+        return x, along, thickness, length
 
-    # Frame
-    for storey in STOREYS:
-        bottom, top = LEVEL_Z[storey], LEVEL_Z[SLAB_ABOVE[storey]]
-        height = top - bottom - (0.45 if storey == "B1" else 0.3)
-        for gx, gy in grid:
-            if (gx, gy) in CORE_CORNERS:
+
+def piles(b: Boxes):
+    p, lowest = b.layout["piles"], b.layout["levels"]["storeys"][0]
+    for gx, x, gy, y in b.grid():
+        z = b.zone_of(x)
+        half, cap = p["pile_size"] / 2, p["cap_size"] / 2
+        b.box(f"PIL-{gx}{gy}", f"Bearing pile {gx}/{gy}", p["pile_wbs"][z], "SUB-PILE",
+              x - half, y - half, p["pile_bottom"], p["pile_size"], p["pile_size"],
+              p["pile_length"], lowest, z)
+        b.box(f"CAP-{gx}{gy}", f"Pile cap {gx}/{gy}", p["cap_wbs"][z], "SUB-CAP", x - cap,
+              y - cap, p["cap_bottom"], p["cap_size"], p["cap_size"], p["cap_depth"], lowest, z)
+
+
+def lift_pit(b: Boxes):
+    x0, y0, x1, y1 = b.layout["core"]["box"]
+    pit = b.layout["lift_pit"]
+    b.box("PIT-01", "Lift pit and core base", pit["wbs"], "SUB-PIT", x0, y0, pit["bottom"],
+          x1 - x0, y1 - y0, pit["depth"], b.layout["levels"]["storeys"][0], "core")
+
+
+def perimeter_walls(b: Boxes):
+    p, lowest = b.layout["perimeter"], b.layout["levels"]["storeys"][0]
+    piled, lining = p["piled_wall"], p["lining_wall"]
+    for side, word in b.layout["facade"]["elevations"].items():
+        for n in range(1, b.bays(side) + 1):
+            along = b.layout["grid"]["bay"] * (n - 1)
+            pw = b.edge(side, along, b.layout["grid"]["bay"], piled["thickness"], True)
+            lw = b.edge(side, along, b.layout["grid"]["bay"], lining["thickness"], False)
+            zone = b.zone_of(pw[0] + pw[2] / 2)
+            b.box(f"PWL-{side}-{n}", f"Contiguous piled wall, {word} side, bay {n}",
+                  p["pile_wbs"][side], "SUB-PILED-WALL", pw[0], pw[1], piled["bottom"], pw[2],
+                  pw[3], piled["height"], lowest, zone)
+            b.box(f"BWL-{side}-{n}", f"Basement lining wall, {word} side, bay {n}",
+                  p["wall_wbs"][side], "SUB-WALL", lw[0], lw[1], lining["bottom"], lw[2], lw[3],
+                  lining["height"], lowest, zone)
+
+
+def frame(b: Boxes):
+    levels, core = b.layout["levels"], b.layout["core"]
+    size, words = b.layout["frame"]["column_size"], b.layout["facade"]["elevations"]
+    x0, y0, x1, y1 = core["box"]
+    t = core["wall_thickness"]
+    walls = {"N": (x0, y1 - t, x1 - x0, t), "S": (x0, y0, x1 - x0, t),
+             "E": (x1 - t, y0 + t, t, y1 - y0 - 2 * t), "W": (x0, y0 + t, t, y1 - y0 - 2 * t)}
+    for storey in levels["storeys"]:
+        above = levels["slab_above"][storey]
+        bottom = levels["z"][storey]
+        height = levels["z"][above] - bottom - b.thickness(above)
+        for gx, x, gy, y in b.grid():
+            if f"{gx}{gy}" in core["no_column"]:
                 continue
-            x, y = GRID_X[gx], GRID_Y[gy]
-            box(f"COL-{storey}-{gx}{gy}", f"Column {gx}/{gy}, storey {storey}",
-                f"3.{storey}.1", "FRM-COLUMNS", x - 0.2, y - 0.2, bottom, 0.4, 0.4, height, storey,
-                zone_of(x))
-        x0, y0, x1, y1 = CORE
-        walls = {"N": (x0, y1 - 0.25, x1 - x0, 0.25), "S": (x0, y0, x1 - x0, 0.25),
-                 "E": (x1 - 0.25, y0 + 0.25, 0.25, y1 - y0 - 0.5),
-                 "W": (x0, y0 + 0.25, 0.25, y1 - y0 - 0.5)}
+            b.box(f"COL-{storey}-{gx}{gy}", f"Column {gx}/{gy}, storey {storey}",
+                  f"3.{storey}.1", "FRM-COLUMNS", x - size / 2, y - size / 2, bottom, size, size,
+                  height, storey, b.zone_of(x))
         for side, (x, y, dx, dy) in walls.items():
-            box(f"CORE-{storey}-{side}", f"Core wall, {dict(ELEVATIONS)[side]}, storey {storey}",
-                f"3.{storey}.1", "FRM-CORE", x, y, bottom, dx, dy, height, storey, "core")
-        box(f"STR-{storey}", f"Precast stair flights, storey {storey}", f"3.{storey}.3",
-            "FRM-STAIR", 28.5, 12.5, bottom, 3.0, 3.0, height, storey, "core")
-    for slab in SLABS:
-        thickness = 0.45 if slab == "00" else 0.3
-        for z in ("A", "B"):
-            box(f"SLB-{slab}-{z}", f"Slab level {slab}, zone {z}", f"3.{slab}.2", "FRM-SLAB",
-                0.0 if z == "A" else 24.0, 0.0, LEVEL_Z[slab] - thickness, 24.0, 24.0, thickness,
-                slab, z)
+            b.box(f"CORE-{storey}-{side}", f"Core wall, {words[side]}, storey {storey}",
+                  f"3.{storey}.1", "FRM-CORE", x, y, bottom, dx, dy, height, storey, "core")
+        sx, sy, sdx, sdy = core["stair"]
+        b.box(f"STR-{storey}", f"Precast stair flights, storey {storey}", f"3.{storey}.3",
+              "FRM-STAIR", sx, sy, bottom, sdx, sdy, height, storey, "core")
 
-    # Envelope: one panel and one window per 8 m bay, per elevation, per floor
-    for floor in FLOORS:
-        bottom, top = LEVEL_Z[floor], LEVEL_Z[SLAB_ABOVE[floor]]
-        for code, word in ELEVATIONS:
-            bays = 6 if code in "NS" else 3
-            for n in range(1, bays + 1):
-                a = 8.0 * (n - 1)
-                if code == "N":
-                    px, py, pdx, pdy = a, 24.0, 8.0, 0.3
-                elif code == "S":
-                    px, py, pdx, pdy = a, -0.3, 8.0, 0.3
-                elif code == "E":
-                    px, py, pdx, pdy = 48.0, a, 0.3, 8.0
-                else:
-                    px, py, pdx, pdy = -0.3, a, 0.3, 8.0
-                zone = zone_of(px + pdx / 2) if code in "NS" else ("B" if code == "E" else "A")
-                box(f"PNL-{code}{floor}-{n}", f"Facade panel, {word} elevation, level {floor}, "
-                    f"bay {n}", f"4.{code}.{floor}.1", "ENV-PANEL", px, py, bottom, pdx, pdy,
-                    top - bottom, floor, zone)
-                shop = floor == "00"
-                inset, width = (0.5, 7.0) if shop else (1.5, 5.0)
-                sill, height = (0.3, 3.5) if shop else (0.9, 1.5)
+
+def slabs(b: Boxes):
+    levels, split = b.layout["levels"], b.layout["grid"]["zone_split"]
+    for slab in (levels["slab_above"][s] for s in levels["storeys"]):
+        thickness = b.thickness(slab)
+        for z in b.layout["zones"]:
+            x0, x1 = (0.0, split) if z == "A" else (split, b.width)
+            b.box(f"SLB-{slab}-{z}", f"Slab level {slab}, zone {z}", f"3.{slab}.2", "FRM-SLAB",
+                  x0, 0.0, levels["z"][slab] - thickness, x1 - x0, b.depth, thickness, slab, z)
+
+
+def facade(b: Boxes):
+    """One panel and one window (a shopfront on the ground floor) per bay."""
+    levels, f, bay = b.layout["levels"], b.layout["facade"], b.layout["grid"]["bay"]
+    for floor in levels["floors"]:
+        bottom, top = levels["z"][floor], levels["z"][levels["slab_above"][floor]]
+        shop = floor not in levels["residential"]
+        opening = f["shopfront"] if shop else f["window"]
+        for code, word in f["elevations"].items():
+            for n in range(1, b.bays(code) + 1):
+                px, py, pdx, pdy = b.edge(code, bay * (n - 1), bay, f["panel_thickness"], True)
+                zone = b.zone_of(px + pdx / 2)
+                b.box(f"PNL-{code}{floor}-{n}", f"Facade panel, {word} elevation, level {floor}, "
+                      f"bay {n}", f"4.{code}.{floor}.1", "ENV-PANEL", px, py, bottom, pdx, pdy,
+                      top - bottom, floor, zone)
+                inset, width = opening["inset"], opening["width"]
                 wx, wy = (px + inset, py) if code in "NS" else (px, py + inset)
                 wdx, wdy = (width, pdy) if code in "NS" else (pdx, width)
-                wid = f"WIN-{code}{floor}-{n}"
-                box(wid, f"{'Shopfront' if shop else 'Window'}, {word} elevation, level {floor}, "
-                    f"bay {n}", UNLINKED.get(wid, f"4.{code}.{floor}.2"),
-                    "ENV-SHOPFRONT" if shop else "ENV-WINDOW", wx, wy, bottom + sill, wdx, wdy,
-                    height, floor, zone)
-    for z in ("A", "B"):
-        box(f"ROF-{z}", f"Roof insulation and membrane, zone {z}", "4.R.2", "ENV-ROOF",
-            0.0 if z == "A" else 24.0, 0.0, 20.5, 24.0, 24.0, 0.3, "RF", z)
-    for side, (x, y, dx, dy) in {"N": (0.0, 23.8, 48.0, 0.2), "S": (0.0, 0.0, 48.0, 0.2),
-                                 "E": (47.8, 0.2, 0.2, 23.6), "W": (0.0, 0.2, 0.2, 23.6)}.items():
-        box(f"PAR-{side}", f"Roof parapet, {dict(ELEVATIONS)[side]}", "4.R.1", "ENV-PARAPET",
-            x, y, 20.8, dx, dy, 1.1, "RF", "roof")
+                b.box(f"WIN-{code}{floor}-{n}", f"{'Shopfront' if shop else 'Window'}, {word} "
+                      f"elevation, level {floor}, bay {n}", f"4.{code}.{floor}.2",
+                      "ENV-SHOPFRONT" if shop else "ENV-WINDOW", wx, wy,
+                      bottom + opening["sill"], wdx, wdy, opening["height"], floor, zone)
 
-    # Services
-    plant = [("PLT-RF-01", "Air handling unit 1", 4.0, 4.0, 6.0, 4.0, 2.0),
-             ("PLT-RF-02", "Air handling unit 2", 38.0, 4.0, 6.0, 4.0, 2.0),
-             ("PLT-RF-03", "Heat pump bank 1", 14.0, 16.0, 6.0, 4.0, 1.8),
-             ("PLT-RF-04", "Heat pump bank 2", 34.0, 17.0, 6.0, 4.0, 1.8),
-             ("PLT-RF-09", "Roof extract fan", 22.0, 2.0, 1.2, 1.2, 1.0)]
-    for id, name, x, y, dx, dy, dz in plant:
-        box(id, name, UNLINKED.get(id, "5.0.5"), "SRV-PLANT", x, y, 20.8, dx, dy, dz, "RF",
-            "roof")
-    for id, name, x, y, dx, dy, dz in [("PLT-B1-01", "Boilers", 2.0, 2.0, 4.0, 3.0, 2.2),
-                                       ("PLT-B1-02", "Booster pumps", 7.0, 2.0, 3.0, 2.0, 1.5),
-                                       ("PLT-B1-03", "Cold water storage tanks", 11.0, 2.0, 5.0,
-                                        3.0, 2.5)]:
-        box(id, name, "5.0.1", "SRV-PLANT", x, y, -3.6, dx, dy, dz, "B1", "A")
-    box("SWB-B1-01", "Main switchboard", "5.0.2", "SRV-SWITCH", 18.0, 2.0, -3.6, 4.0, 0.8, 2.2,
-        "B1", "A")
-    box("RSR-01", "Service riser, all levels", "5.0.3", "SRV-RISER", 32.2, 12.0, -3.6, 1.2, 2.0,
-        24.1, "B1-RF", "core")
-    for level in ["B1"] + FLOORS:
-        soffit = LEVEL_Z[SLAB_ABOVE[level]] - (0.45 if level == "B1" else 0.3)
-        for z in ("A", "B"):
-            box(f"SRV-{level}-{z}",
-                f"Services distribution in the ceiling void, {level_name(level)}, zone {z}",
-                f"5.{level}.1", "SRV-ZONE", 0.3 if z == "A" else 24.0, 0.3,
-                soffit - 0.5, 23.7, 23.4, 0.5, level, z)
 
-    # Lifts
-    for n, x in ((1, 24.5), (2, 28.5)):
-        box(f"LFT-CAR-{n}", f"Lift car {n}", f"7.{n + 1}", "LFT-CAR", x, 8.5, -3.6, 3.0, 3.0, 2.4,
-            "B1", "core")
+def service_zones(b: Boxes):
+    levels, depth = b.layout["levels"], b.layout["service_zones"]["depth"]
+    for level in levels["storeys"]:
+        above = levels["slab_above"][level]
+        soffit = levels["z"][above] - b.thickness(above)
+        for z, (x, y, dx, dy) in b.layout["zones"].items():
+            b.box(f"SRV-{level}-{z}",
+                  f"Services distribution in the ceiling void, {b.level_name(level)}, zone {z}",
+                  f"5.{level}.1", "SRV-ZONE", x, y, soffit - depth, dx, dy, depth, level, z)
 
-    # Fit-out
-    door_spots = [(4.0, 12.5, 1.0, 0.1), (12.0, 12.5, 1.0, 0.1), (38.0, 12.5, 1.0, 0.1),
-                  (44.0, 12.5, 1.0, 0.1), (8.0, 11.4, 1.0, 0.1), (40.0, 11.4, 1.0, 0.1),
-                  (23.9, 11.5, 0.1, 1.0)]
-    for floor in FLOORS:
-        bottom = LEVEL_Z[floor]
-        spots = door_spots if floor != "00" else door_spots[:4]
+
+def fit_out(b: Boxes):
+    levels, f = b.layout["levels"], b.layout["fit_out"]
+    kdx, kdy, kdz = f["kitchen_size"]
+    for floor in levels["floors"]:
+        bottom = levels["z"][floor]
+        residential = floor in levels["residential"]
+        spots = f["doors"] if residential else f["doors"][:f["retail_doors"]]
         for n, (x, y, dx, dy) in enumerate(spots, start=1):
-            did = f"DOR-{floor}-{n:02d}"
-            what = "Lobby door" if (dx < dy) else ("Retail unit door" if floor == "00"
-                                                   else "Apartment entrance door")
-            box(did, f"{what} {n}, level {floor}", f"6.{floor}.3", "FIT-DOOR", x, y, bottom, dx,
-                dy, 2.1, floor, zone_of(x))
-        if floor in RESIDENTIAL:
-            for n, (x, y) in enumerate([(2.0, 20.0), (10.0, 20.0), (36.0, 20.0), (44.0, 20.0),
-                                        (6.0, 3.0), (40.0, 3.0)], start=1):
-                box(f"KIT-{floor}-{n:02d}", f"Kitchen, apartment {n}, level {floor}",
-                    f"6.{floor}.4", "FIT-KITCHEN", x, y, bottom, 3.0, 0.6, 0.9, floor, zone_of(x))
-        for z in ("A", "B"):
-            x0 = 0.3 if z == "A" else 24.0
-            box(f"PRT-{floor}-{z}", f"Partitions and drylining, level {floor}, zone {z}",
-                f"6.{floor}.1", "FIT-PARTITION", x0, 11.5, bottom, 23.7, 1.0, 2.7, floor, z)
-            box(f"CLG-{floor}-{z}", f"Suspended ceilings, level {floor}, zone {z}",
-                f"6.{floor}.2", "FIT-CEILING", x0, 0.3, bottom + 2.7, 23.7, 23.4, 0.05, floor, z)
-    for n, (x, y, dx, dy) in enumerate([(23.9, 11.5, 0.1, 1.0), (16.0, 4.9, 1.0, 0.1),
-                                        (31.9, 13.0, 0.1, 1.0)], start=1):
-        box(f"DOR-B1-{n:02d}", f"Fire door {n}, basement", "6.B1.3", "FIT-DOOR", x, y, -3.6, dx,
-            dy, 2.1, "B1", zone_of(x))
-    for z in ("A", "B"):
-        box(f"CPK-DECK-{z}", f"Car park deck coating, zone {z}", "6.B1.1", "FIT-DECK",
-            0.3 if z == "A" else 24.0, 0.3, -3.6, 23.7, 23.4, 0.01, "B1", z)
-        box(f"CPK-MARK-{z}", f"Car park bay marking, zone {z}", "6.B1.2", "FIT-MARKING",
-            0.3 if z == "A" else 24.0, 0.3, -3.59, 23.7, 23.4, 0.005, "B1", z)
-    box("CPK-BARRIER", "Car park entry barrier", "6.B1.3", "FIT-BARRIER", 48.6, 19.0, -3.6, 4.0,
-        0.3, 1.2, "B1", "B")
+            what = "Lobby door" if dx < dy else ("Apartment entrance door" if residential
+                                                 else "Retail unit door")
+            b.box(f"DOR-{floor}-{n:02d}", f"{what} {n}, level {floor}", f"6.{floor}.3",
+                  "FIT-DOOR", x, y, bottom, dx, dy, f["door_height"], floor, b.zone_of(x))
+        if residential:
+            for n, (x, y) in enumerate(f["kitchens"], start=1):
+                b.box(f"KIT-{floor}-{n:02d}", f"Kitchen, apartment {n}, level {floor}",
+                      f"6.{floor}.4", "FIT-KITCHEN", x, y, bottom, kdx, kdy, kdz, floor,
+                      b.zone_of(x))
+        band, ceiling = f["partitions"], f["ceiling"]
+        for z, (x, y, dx, dy) in b.layout["zones"].items():
+            b.box(f"PRT-{floor}-{z}", f"Partitions and drylining, level {floor}, zone {z}",
+                  f"6.{floor}.1", "FIT-PARTITION", x, band["y"], bottom, dx, band["dy"],
+                  band["height"], floor, z)
+            b.box(f"CLG-{floor}-{z}", f"Suspended ceilings, level {floor}, zone {z}",
+                  f"6.{floor}.2", "FIT-CEILING", x, y, bottom + ceiling["height"], dx, dy,
+                  ceiling["thickness"], floor, z)
 
-    # External works and temporary works
-    box("EXT-MH-01", "Manhole and connection, north", "8.1", "EXT-MANHOLE", 10.0, 27.0, -1.5,
-        1.2, 1.2, 1.5, "00", "external")
-    box("EXT-MH-02", "Manhole and connection, south", "8.1", "EXT-MANHOLE", 36.0, -5.0, -1.5,
-        1.2, 1.2, 1.5, "00", "external")
-    box("EXT-PAV-N", "Paving, north frontage", "8.2", "EXT-PAVING", -2.0, 24.6, -0.2, 52.0, 5.4,
-        0.2, "00", "external")
-    box("EXT-PAV-S", "Paving, south courtyard", "8.3", "EXT-PAVING", -2.0, -8.0, -0.2, 52.0, 7.4,
-        0.2, "00", "external")
-    for n, x in enumerate((4.0, 20.0, 36.0), start=1):
-        box(f"EXT-BED-{n}", f"Planting bed {n}, south courtyard", "8.4", "EXT-PLANTING", x, -6.5,
-            0.0, 6.0, 3.0, 0.5, "00", "external")
-    for side, (x, y, dx, dy) in {"N": (-4.0, 32.0, 57.0, 0.3), "S": (-4.0, -10.3, 57.0, 0.3),
-                                 "E": (52.7, -10.0, 0.3, 42.0), "W": (-4.3, -10.0, 0.3, 42.0)
-                                 }.items():
-        box(f"EXT-WAL-{side}", f"Boundary wall and railings, {dict(ELEVATIONS)[side]}", "8.5",
-            "EXT-WALL", x, y, 0.0, dx, dy, 1.2, "00", "external")
-    for n in range(1, 8):
-        x = -1.0 + 8.0 * (n - 1)
-        box(f"LGT-EXT-{n:02d}", f"External lighting column {n}", UNLINKED.get(
-            f"LGT-EXT-{n:02d}", "8.6"), "EXT-LIGHT", x, 30.5, 0.0, 0.2, 0.2, 5.0, "00", "external")
-    box("EXT-XNG-01", "Footway crossing", "8.7", "EXT-CROSSING", 48.6, 30.0, -0.2, 4.0, 2.5, 0.2,
-        "00", "external")
-    box("TMP-CRANE-BASE", "Tower crane base", "1.3", "TMP-CRANEBASE", 49.0, 25.0, -1.5, 4.0, 4.0,
-        1.5, "00", "external")
-    box("TMP-CRANE", "Tower crane mast", "1.3", "TMP-CRANE", 50.0, 26.0, 0.0, 2.0, 2.0, 45.0, "00",
-        "external")
-    box("TMP-HOIST", "Construction hoist, north elevation", "1.3", "TMP-HOIST", 20.0, 24.3, 0.0,
-        3.0, 1.7, 22.0, "00-RF", "external")
 
-    # The planted duplicates: copies in the same place as their originals
+ELEMENT_KINDS = {"piles": piles, "lift pit": lift_pit, "perimeter walls": perimeter_walls,
+                 "frame": frame, "slabs": slabs, "facade": facade,
+                 "service zones": service_zones, "fit-out": fit_out}
+BOX_COLUMNS = ["x", "y", "z", "dx", "dy", "dz"]
+
+
+def build_elements(scn: Scenario) -> list[dict]:
+    """Every element of ``layout.toml``'s sequence, then the planted defects of
+    ``records.toml``: wrong codes on some elements, copies of others in the same place."""
+    b = Boxes(scn.layout)
+    for step in scn.layout["sequence"]:
+        if step.startswith("fixed:"):
+            for r in scn.elements:
+                if r["group"] == step[len("fixed:"):]:
+                    b.box(r["id"], r["name"], r["wbs"], r["classification"],
+                          *(float(r[c]) for c in BOX_COLUMNS), r["level"], r["zone"])
+        else:
+            ELEMENT_KINDS[step](b)
+    rows = b.rows
+    defects = scn.records["elements"]
+    for row in rows:
+        row["wbs"] = defects["unlinked"].get(row["id"], row["wbs"])
     by_id = {r["id"]: r for r in rows}
-    for group in DUPLICATE_GROUPS:
+    for group in defects["duplicates"]:
         original = by_id[group[0]]
         position = rows.index(original)
         for n, copy_id in enumerate(group[1:], start=1):
@@ -1481,68 +1095,17 @@ def build_elements() -> list[dict]:
 
 
 # ---------------------------------------------------------------------------------------
-# Commercial tables
-# ---------------------------------------------------------------------------------------
-
-CONTRACT_SUM = 18_400_000
-LD_WHOLE_WORKS = 4500
-LD_SECTION_1 = 1500
-LD_CAP = CONTRACT_SUM // 10
-PROLONGATION_FLAT = 3100
-
-SECTIONS = [
-    {"section": "1", "name": "Basement car park and ground-floor retail units",
-     "completion_activity": "MS-SECTION-1", "contract_completion": SECTION_1_COMPLETION,
-     "liquidated_damages_per_day": LD_SECTION_1},
-    {"section": "2", "name": "The whole of the Works", "completion_activity": "MS-COMPLETION",
-     "contract_completion": CONTRACT_COMPLETION, "liquidated_damages_per_day": LD_WHOLE_WORKS},
-]
-PROLONGATION_RATES = [
-    {"from": dt.date(2025, 3, 3), "to": dt.date(2025, 9, 30), "cost_per_day": 2800},
-    {"from": dt.date(2025, 10, 1), "to": dt.date(2026, 3, 31), "cost_per_day": 3400},
-    {"from": dt.date(2026, 4, 1), "to": dt.date(2026, 12, 31), "cost_per_day": 2600},
-]
-
-
-def extensions_granted(events: list[dict]) -> list[dict]:
-    obstruction = next(e for e in events if e["title"].startswith("Unforeseen ground"))
-    granted = obstruction["finish"] + dt.timedelta(days=42)
-    while granted.weekday() != 4:  # the Employer's agent's decisions go out on Fridays
-        granted += dt.timedelta(days=1)
-    return [{"id": "EOT-01", "granted_on": granted, "days": 21, "section": "2",
-             "events": obstruction["id"],
-             "reason": "Buried obstructions in piling zone B: 21 days granted for the Works "
-                       "(Section 2); the Employer's agent assessed no delay to Section 1"}]
-
-
-# ---------------------------------------------------------------------------------------
 # Records as kept: as-built sources, deliberate defects, disclosed corrections
 # ---------------------------------------------------------------------------------------
 
-RETROSPECTIVE_ACTIVITY = "SET-WELFARE"
-RETROSPECTIVE_SHIFT = 2  # work days earlier in the later updates
-CORRECTED_REMAINING_UPDATE = 9   # from this update on, the first remaining of 11 to 19 days
-OMITTED_LINK_UPDATE = 11         # the update that dropped a link by mistake
-OMITTED_LINK = ("FIT-03-PARTITIONS", "FIT-03-CEILINGS")
-
-
-def asbuilt_source(aid: str, finish: dt.date) -> str:
-    special = {
-        "MS-START": "Possession certificate PC-00",
-        "MS-SECTION-1": "Section 1 completion certificate SC-01",
-        "MS-COMPLETION": "Practical completion certificate PCC-01",
-        "LFT-DELIVERY": "Lift supplier's delivery note LD-118",
-        "MEP-POWER-ON": "Network operator's energisation certificate EN-2291",
-        "LFT-TEST": "Lift test certificates LT-1 and LT-2",
-        "COM-AUTHORITY": "Building control completion notice BC-114",
-    }
-    if aid in special:
-        return special[aid]
-    if aid.endswith("-POUR"):
-        return f"Concrete pour register {finish}"
-    if aid.startswith("COM-"):
-        return f"Commissioning record {finish}"
-    return f"Site diary {finish}"
+def asbuilt_source(sources: dict, aid: str, finish: dt.date) -> str:
+    """The record an as-built date comes from (``records.toml``)."""
+    if aid in sources["activity"]:
+        return sources["activity"][aid]
+    text = next((text for end, text in sources["suffix"].items() if aid.endswith(end)),
+                next((text for start, text in sources["prefix"].items()
+                      if aid.startswith(start)), sources["default"]))
+    return text.format(finish=finish)
 
 
 @dataclass
@@ -1558,15 +1121,96 @@ class Records:
 def activity_row(a: Activity) -> dict:
     return {"id": a.id, "name": a.name, "duration": a.duration, "calendar": a.calendar,
             "wbs": a.wbs, "kind": a.kind, "constraint": a.constraint,
-            "constraint_date": a.constraint_date, "party": a.party}
+            "constraint_date": a.constraint_date, "party": a.party, "risk": a.risk}
 
 
 def link_rows(p: Programme) -> list[dict]:
     return [{"pred": l.pred, "succ": l.succ, "type": l.type, "lag": l.lag} for l in p.links]
 
 
-def keep_records(updates: list[Update], works: ActualWorks, calendars) -> Records:
-    update_rows, update_links = {}, {}
+def row_of(rows: list[dict], aid: str) -> dict:
+    return next(r for r in rows if r["id"] == aid)
+
+
+def retrospective_edit(scn: Scenario, records: Records, updates, works, site) -> None:
+    """Defect: an actual finish re-dated in every update after the first that reported it."""
+    rule = scn.records["retrospective_edit"]
+    aid = rule["activity"]
+    true_finish = works.timings[aid].finish
+    edited = site.date(site.on_or_after(true_finish) - rule["workdays_earlier"])
+    require(edited >= works.timings[aid].start, "the retrospective edit precedes the start")
+    first = next(u for u in updates if u.progress.get(aid) and u.progress[aid].actual_finish)
+    later = [u for u in updates if u.data_date > first.data_date]
+    for u in later:
+        row_of(records.update_rows[u.folder], aid)["actual_finish"] = edited
+    records.retrospective.append(
+        {"activity": aid, "column": "actual_finish", "first_reported_in": first.folder,
+         "first_value": true_finish.isoformat(), "changed_in": later[0].folder,
+         "changed_value": edited.isoformat(), "also_in": [u.folder for u in later[1:]],
+         "asbuilt_value": true_finish.isoformat()})
+
+
+def miskeyed_remaining(scn: Scenario, records: Records, updates) -> None:
+    """Disclosed correction: a remaining duration keyed without its tens digit."""
+    rule = scn.records["miskeyed_remaining"]
+    for u in updates[rule["from_update"] - 1:]:
+        candidates = sorted(aid for aid, p in u.progress.items() if p.actual_finish is None
+                            and p.remaining is not None
+                            and rule["low"] <= p.remaining <= rule["high"])
+        if candidates:
+            break
+    require(candidates, "no update has a remaining duration to mis-key")
+    row = row_of(records.update_rows[u.folder], candidates[0])
+    remaining = row["remaining"]
+    row["remaining"] = remaining % 10
+    records.corrections.append(
+        {"snapshot": u.label, "table": "activities", "key": row["id"], "column": "remaining",
+         "value": remaining, "reason": rule["reason"].format(keyed=remaining % 10,
+                                                             remaining=remaining)})
+
+
+def omitted_link(scn: Scenario, records: Records, updates, works) -> None:
+    """Disclosed correction: a link dropped from one update by mistake."""
+    rule = scn.records["omitted_link"]
+    pair = (rule["pred"], rule["succ"])
+    u = updates[rule["update"] - 1]
+    require(pair[1] not in u.progress, "the omitted link must precede its successor")
+    require(pair != works.out_of_sequence, "the omitted link is the out-of-sequence pair")
+    before = len(records.update_links[u.folder])
+    records.update_links[u.folder] = [r for r in records.update_links[u.folder]
+                                      if (r["pred"], r["succ"]) != pair]
+    require(len(records.update_links[u.folder]) == before - 1, "the omitted link was not found")
+    records.corrections.append({"snapshot": u.label, "table": "links",
+                                "key": f"{pair[0]}>{pair[1]}", "column": "add",
+                                "value": rule["value"], "reason": rule["reason"]})
+
+
+def asbuilt_record(scn: Scenario, records: Records, last: Update, works, site) -> None:
+    """The as-built record, every activity of the last update, and the disclosed correction
+    of an as-built start taken from the wrong record."""
+    sources = scn.records["asbuilt_sources"]
+    for aid in last.programme.activities:
+        t = works.timings[aid]
+        records.asbuilt_rows.append({"id": aid, "actual_start": t.start,
+                                     "actual_finish": t.finish,
+                                     "source": asbuilt_source(sources, aid, t.finish)})
+    rule = scn.records["asbuilt_start"]
+    late = sorted((works.timings[aid].start, aid) for aid, a in last.programme.activities.items()
+                  if a.kind == "task" and a.duration >= rule["min_duration"]
+                  and works.timings[aid].start >= last.data_date)
+    require(late, "no activity starts after the last data date")
+    start, aid = late[0]
+    wrong = site.date(site.on_or_after(start) + rule["workdays_late"])
+    require(wrong <= works.timings[aid].finish, "the wrong as-built start is after the finish")
+    row = row_of(records.asbuilt_rows, aid)
+    row["actual_start"], row["source"] = wrong, rule["source"].format(wrong=wrong)
+    records.corrections.append({"snapshot": "asbuilt", "table": "activities", "key": aid,
+                                "column": "actual_start", "value": start,
+                                "reason": rule["reason"].format(wrong=wrong, start=start)})
+
+
+def keep_records(scn: Scenario, updates: list[Update], works: ActualWorks, calendars) -> Records:
+    records = Records({}, {}, [], [], [])
     for u in updates:
         rows = []
         for aid, a in u.programme.activities.items():
@@ -1576,91 +1220,42 @@ def keep_records(updates: list[Update], works: ActualWorks, calendars) -> Record
                        actual_finish=prog.actual_finish if prog else None,
                        remaining=prog.remaining if prog else None)
             rows.append(row)
-        update_rows[u.folder] = rows
-        update_links[u.folder] = link_rows(u.programme)
-
-    # Deliberate defect: the welfare finish is re-dated in every update after the first
-    # that reported it complete.
-    site = calendars[SITE]
-    true_finish = works.timings[RETROSPECTIVE_ACTIVITY].finish
-    edited = site.date(site.on_or_after(true_finish) - RETROSPECTIVE_SHIFT)
-    require(edited >= works.timings[RETROSPECTIVE_ACTIVITY].start,
-            "the retrospective edit precedes the start")
-    first = next(u for u in updates if u.progress.get(RETROSPECTIVE_ACTIVITY)
-                 and u.progress[RETROSPECTIVE_ACTIVITY].actual_finish)
-    later = [u for u in updates if u.data_date > first.data_date]
-    for u in later:
-        for row in update_rows[u.folder]:
-            if row["id"] == RETROSPECTIVE_ACTIVITY:
-                row["actual_finish"] = edited
-    retrospective = [{"activity": RETROSPECTIVE_ACTIVITY, "column": "actual_finish",
-                      "first_reported_in": first.folder, "first_value": true_finish.isoformat(),
-                      "changed_in": later[0].folder, "changed_value": edited.isoformat(),
-                      "also_in": [u.folder for u in later[1:]],
-                      "asbuilt_value": true_finish.isoformat()}]
-
-    corrections = []
-    # Disclosed correction 1: a remaining duration keyed without its tens digit.
-    for u in updates[CORRECTED_REMAINING_UPDATE - 1:]:
-        candidates = sorted(aid for aid, p in u.progress.items() if p.actual_finish is None
-                            and p.remaining is not None and 11 <= p.remaining <= 19)
-        if candidates:
-            break
-    require(candidates, "no update has a remaining duration to mis-key")
-    aid = candidates[0]
-    for row in update_rows[u.folder]:
-        if row["id"] == aid:
-            true_remaining = row["remaining"]
-            row["remaining"] = true_remaining % 10
-    corrections.append({"snapshot": u.label, "table": "activities", "key": aid,
-                        "column": "remaining", "value": true_remaining,
-                        "reason": f"Remaining duration keyed as {true_remaining % 10} in the "
-                                  f"update; the contractor's progress report for the month "
-                                  f"gives {true_remaining} days"})
-    # Disclosed correction 2: a link dropped from one update by mistake.
-    u = updates[OMITTED_LINK_UPDATE - 1]
-    require(OMITTED_LINK[1] not in u.progress, "the omitted link must precede its successor")
-    require(OMITTED_LINK != works.out_of_sequence, "the omitted link is the out-of-sequence pair")
-    before = len(update_links[u.folder])
-    update_links[u.folder] = [r for r in update_links[u.folder]
-                              if (r["pred"], r["succ"]) != OMITTED_LINK]
-    require(len(update_links[u.folder]) == before - 1, "the omitted link was not found")
-    corrections.append({"snapshot": u.label, "table": "links",
-                        "key": f"{OMITTED_LINK[0]}>{OMITTED_LINK[1]}", "column": "add",
-                        "value": "FS 0",
-                        "reason": "Link lost when the update was saved; it is in the updates "
-                                  "before and after and in the contractor's method statement"})
-
-    # The as-built record, every activity of the last update.
-    last = updates[-1]
-    asbuilt = []
-    for aid in last.programme.activities:
-        t = works.timings[aid]
-        asbuilt.append({"id": aid, "actual_start": t.start, "actual_finish": t.finish,
-                        "source": asbuilt_source(aid, t.finish)})
-    # Disclosed correction 3: an as-built start taken from the wrong record.
-    late = sorted((works.timings[aid].start, aid) for aid, a in last.programme.activities.items()
-                  if a.kind == "task" and a.duration >= 2
-                  and works.timings[aid].start >= last.data_date)
-    require(late, "no activity starts after the last data date")
-    start, aid = late[0]
-    wrong = site.date(site.on_or_after(start) + 1)
-    require(wrong <= works.timings[aid].finish, "the wrong as-built start is after the finish")
-    for row in asbuilt:
-        if row["id"] == aid:
-            row["actual_start"] = wrong
-            row["source"] = f"Site diary {wrong}"
-    corrections.append({"snapshot": "asbuilt", "table": "activities", "key": aid,
-                        "column": "actual_start", "value": start,
-                        "reason": f"The as-built record took the start from the site diary of "
-                                  f"{wrong}; the Employer's agent's inspection notes show the "
-                                  f"work began on {start}"})
-    return Records(update_rows, update_links, asbuilt, corrections, retrospective)
+        records.update_rows[u.folder] = rows
+        records.update_links[u.folder] = link_rows(u.programme)
+    site = calendars[scn.site]
+    retrospective_edit(scn, records, updates, works, site)
+    miskeyed_remaining(scn, records, updates)
+    omitted_link(scn, records, updates, works)
+    asbuilt_record(scn, records, updates[-1], works, site)
+    return records
 
 
 # ---------------------------------------------------------------------------------------
-# Checks: every validation rule of case-format v1, and the planted defects exactly
+# Checks: every validation rule of the case format, and the planted defects exactly
 # ---------------------------------------------------------------------------------------
+
+def check_progress(where: str, r: dict, data_date: dt.date):
+    start, finish, remaining = r["actual_start"], r["actual_finish"], r["remaining"]
+    for d in (start, finish):
+        require(d is None or d < data_date, f"{where}: {r['id']} actual date on or after the "
+                                            f"data date")
+    if finish is not None:
+        require(start is not None and finish >= start, f"{where}: {r['id']} finish/start")
+        require(remaining in (0, None), f"{where}: {r['id']} complete with remaining")
+    elif start is not None:
+        require(remaining is not None and remaining > 0, f"{where}: {r['id']} in progress "
+                                                         f"without remaining")
+    else:
+        require(remaining is None, f"{where}: {r['id']} not started with remaining")
+
+
+def programme_of_rows(rows: list[dict], links: list[dict]) -> Programme:
+    p = Programme()
+    for r in rows:
+        p.activities[r["id"]] = Activity(r["id"], r["name"], int(r["duration"]), r["wbs"])
+    p.links = [Link(l["pred"], l["succ"], l["type"], int(l["lag"])) for l in links]
+    return p
+
 
 def check_snapshot(where: str, rows: list[dict], links: list[dict], calendars: set[str],
                    data_date: dt.date | None):
@@ -1677,52 +1272,23 @@ def check_snapshot(where: str, rows: list[dict], links: list[dict], calendars: s
             require(r["constraint"] in ("earliest_start", "latest_finish", "fixed_start",
                                         "fixed_finish") and r["constraint_date"] is not None,
                     f"{where}: constraint of {r['id']}")
-        if data_date is None:
-            continue
-        start, finish, remaining = r["actual_start"], r["actual_finish"], r["remaining"]
-        for d in (start, finish):
-            require(d is None or d < data_date, f"{where}: {r['id']} actual date on or after "
-                                                f"the data date")
-        if finish is not None:
-            require(start is not None and finish >= start, f"{where}: {r['id']} finish/start")
-            require(remaining in (0, None), f"{where}: {r['id']} complete with remaining")
-        elif start is not None:
-            require(remaining is not None and remaining > 0, f"{where}: {r['id']} in progress "
-                                                             f"without remaining")
-        else:
-            require(remaining is None, f"{where}: {r['id']} not started with remaining")
+        if data_date is not None:
+            check_progress(where, r, data_date)
     pairs = [(l["pred"], l["succ"]) for l in links]
     require(len(pairs) == len(set(pairs)), f"{where}: duplicate links")
     for l in links:
         require(l["pred"] in known and l["succ"] in known, f"{where}: link {l} names unknown id")
         require(l["pred"] != l["succ"], f"{where}: self link")
         require(l["type"] in ("FS", "SS", "FF", "SF"), f"{where}: link type")
-    p = Programme()
-    for r in rows:
-        p.activities[r["id"]] = Activity(r["id"], r["name"], r["duration"], r["wbs"])
-    p.links = [Link(l["pred"], l["succ"], l["type"], l["lag"]) for l in links]
     try:
-        topological_order(p)
+        topological_order(programme_of_rows(rows, links))
     except ValueError as error:
         raise CaseCheckError(f"{where}: {error}") from None
 
 
-def check_case(baseline_rows, baseline_links, updates, records: Records, events, elements,
-               exceptions):
-    calendars = {r["calendar"] for r in CALENDAR_ROWS}
-    require(len(calendars) == len(CALENDAR_ROWS), "calendar names not unique")
-    require({r["calendar"] for r in exceptions} <= calendars, "exception for unknown calendar")
-    check_snapshot("baseline", baseline_rows, baseline_links, calendars, None)
-    previous_date = CONTRACT_START
-    for u in updates:
-        require(u.data_date > previous_date, "data dates must increase")
-        previous_date = u.data_date
-        check_snapshot(u.folder, records.update_rows[u.folder], records.update_links[u.folder],
-                       calendars, u.data_date)
-    require([u.folder for u in updates] == sorted(u.folder for u in updates), "folder order")
-    require(len(updates) >= 8, "fewer than 8 updates")
-
-    # Actual dates never change between updates, except the planted retrospective edit.
+def check_records(updates, records: Records):
+    """Actual dates never change between updates, except the planted retrospective edit; the
+    as-built record covers every activity of the last update with both dates."""
     planted = {(e["activity"], e["column"]) for e in records.retrospective}
     seen: dict[tuple[str, str], object] = {}
     changes = set()
@@ -1736,8 +1302,6 @@ def check_case(baseline_rows, baseline_links, updates, records: Records, events,
                     changes.add(key)
                 seen[key] = r[column]
     require(changes == planted, f"actual dates changed between updates: {sorted(changes)}")
-
-    # As-built: every activity of the last update, both dates, past the last data date.
     last = updates[-1]
     last_ids = [r["id"] for r in records.update_rows[last.folder]]
     require([r["id"] for r in records.asbuilt_rows] == last_ids, "as-built does not cover all")
@@ -1747,7 +1311,8 @@ def check_case(baseline_rows, baseline_links, updates, records: Records, events,
     require(max(r["actual_finish"] for r in records.asbuilt_rows) >= last.data_date,
             "as-built does not run past the last data date")
 
-    # Events and fragnets.
+
+def check_events(scn: Scenario, events, baseline_rows, baseline_links, all_ids):
     baseline_ids = {r["id"] for r in baseline_rows}
     require(len({e["id"] for e in events}) == len(events), "event ids")
     require({e["party"] for e in events} == {"employer", "contractor", "neutral"}, "parties")
@@ -1757,56 +1322,80 @@ def check_case(baseline_rows, baseline_links, updates, records: Records, events,
         require(e["start"] <= e["finish"], f"{e['id']} start after finish")
         require(all(a in baseline_ids for a in e["activities"].split(";")), f"{e['id']} ids")
         require((e["impact"] == "extend") == (e["days"] != ""), f"{e['id']} days")
-    all_ids = set(baseline_ids)
-    for u in updates:
-        all_ids |= {r["id"] for r in records.update_rows[u.folder]}
-    fragnet_ids = [f["id"] for f in FRAGNETS]
+    fragnet_ids = [f["id"] for f in scn.fragnets]
     require(len(fragnet_ids) == len(set(fragnet_ids)), "fragnet ids not unique")
     require(not (set(fragnet_ids) & all_ids), "fragnet id collides with an activity id")
-    fragnet_events = {f["event"] for f in FRAGNETS}
+    fragnet_events = {f["event"] for f in scn.fragnets}
     require(fragnet_events == {e["id"] for e in events if e["impact"] == "fragnet"},
             "fragnet events")
     require(len(fragnet_events) >= 3, "fewer than 3 fragnets")
     for event in fragnet_events:
-        own = {f["id"] for f in FRAGNETS if f["event"] == event}
-        p = Programme()
-        for r in baseline_rows:
-            p.activities[r["id"]] = Activity(r["id"], r["name"], r["duration"], r["wbs"])
-        for f in FRAGNETS:
-            if f["event"] == event:
-                p.activities[f["id"]] = Activity(f["id"], f["name"], f["duration"], f["wbs"])
-        p.links = [Link(l["pred"], l["succ"], l["type"], l["lag"]) for l in baseline_links]
-        for ev_id, pred, succ, type_, lag in FRAGNET_LINKS:
-            if ev_id == event:
-                require(pred in own | baseline_ids and succ in own | baseline_ids,
-                        f"fragnet link {pred}>{succ}")
-                require(pred in own or succ in own, f"fragnet link {pred}>{succ} has no "
-                                                    f"fragnet activity")
-                p.links.append(Link(pred, succ, type_, lag))
-        topological_order(p)
+        own = {f["id"] for f in scn.fragnets if f["event"] == event}
+        rows = baseline_rows + [{**f, "duration": int(f["duration"])} for f in scn.fragnets
+                                if f["event"] == event]
+        links = list(baseline_links)
+        for l in scn.fragnet_links:
+            if l["event"] == event:
+                require(l["pred"] in own | baseline_ids and l["succ"] in own | baseline_ids,
+                        f"fragnet link {l['pred']}>{l['succ']}")
+                require(l["pred"] in own or l["succ"] in own,
+                        f"fragnet link {l['pred']}>{l['succ']} has no fragnet activity")
+                links.append(l)
+        topological_order(programme_of_rows(rows, links))
 
-    # Elements: unique ids; the planted duplicates and unlinked elements and no others.
+
+def check_elements(scn: Scenario, elements, wbs_codes: set[str], last_wbs: set[str],
+                   baseline_wbs: set[str]):
+    """Unique ids; the planted duplicates and unlinked elements and no others."""
+    defects = scn.records["elements"]
     ids = [e["id"] for e in elements]
     require(len(ids) == len(set(ids)), "element ids not unique")
     require(len(elements) >= 300, "fewer than 300 elements")
-    wbs_codes = {r["wbs"] for r in baseline_rows}
-    for u in updates:
-        wbs_codes |= {r["wbs"] for r in records.update_rows[u.folder]}
-    last_wbs = {r["wbs"] for r in records.update_rows[last.folder]}
     unlinked = {e["id"] for e in elements if e["wbs"] not in wbs_codes}
-    require(unlinked == set(UNLINKED), f"unlinked elements {sorted(unlinked)}")
-    require(all(e["wbs"] in last_wbs and e["wbs"] in {r["wbs"] for r in baseline_rows}
-                for e in elements if e["id"] not in UNLINKED), "element wbs not in every programme")
+    require(unlinked == set(defects["unlinked"]), f"unlinked elements {sorted(unlinked)}")
+    require(all(e["wbs"] in last_wbs and e["wbs"] in baseline_wbs
+                for e in elements if e["id"] not in defects["unlinked"]),
+            "element wbs not in every programme")
     groups = defaultdict(list)
     for e in elements:
-        groups[(e["classification"], e["x"], e["y"], e["z"], e["dx"], e["dy"], e["dz"])].append(
-            e["id"])
+        groups[(e["classification"], *(e[c] for c in BOX_COLUMNS))].append(e["id"])
     duplicates = sorted(sorted(g) for g in groups.values() if len(g) > 1)
-    require(duplicates == sorted(sorted(g) for g in DUPLICATE_GROUPS), f"duplicates {duplicates}")
+    require(duplicates == sorted(sorted(g) for g in defects["duplicates"]),
+            f"duplicates {duplicates}")
 
-    # Sections and corrections name things that exist.
-    for s in SECTIONS:
+
+def check_case(scn: Scenario, baseline_rows, baseline_links, updates, records: Records, events,
+               elements, exceptions):
+    calendars = {r["calendar"] for r in calendar_rows(scn)}
+    require(len(calendars) == len(calendar_rows(scn)), "calendar names not unique")
+    require({r["calendar"] for r in exceptions} <= calendars, "exception for unknown calendar")
+    check_snapshot("baseline", baseline_rows, baseline_links, calendars, None)
+    previous_date = scn.start
+    for u in updates:
+        require(u.data_date > previous_date, "data dates must increase")
+        previous_date = u.data_date
+        check_snapshot(u.folder, records.update_rows[u.folder], records.update_links[u.folder],
+                       calendars, u.data_date)
+    require([u.folder for u in updates] == sorted(u.folder for u in updates), "folder order")
+    require(len(updates) >= 8, "fewer than 8 updates")
+    check_records(updates, records)
+    all_ids = {r["id"] for r in baseline_rows}
+    wbs_codes = {r["wbs"] for r in baseline_rows}
+    for u in updates:
+        all_ids |= {r["id"] for r in records.update_rows[u.folder]}
+        wbs_codes |= {r["wbs"] for r in records.update_rows[u.folder]}
+    check_events(scn, events, baseline_rows, baseline_links, all_ids)
+    check_elements(scn, elements, wbs_codes,
+                   {r["wbs"] for r in records.update_rows[updates[-1].folder]},
+                   {r["wbs"] for r in baseline_rows})
+    baseline_ids = {r["id"] for r in baseline_rows}
+    for s in scn.sections:
         require(s["completion_activity"] in baseline_ids, "section milestone")
+    for g in scn.extensions:
+        granted = dt.date.fromisoformat(g["granted_on"])
+        require(granted.weekday() == 4, f"{g['id']}: the Employer's agent decides on Fridays")
+        require(all(e["start"] < granted for e in events if e["id"] in split_ids(g["events"])),
+                f"{g['id']} is granted before its event began")
     for c in records.corrections:
         if c["table"] == "activities":
             require(c["key"] in all_ids, f"correction key {c['key']}")
@@ -1817,8 +1406,12 @@ def check_case(baseline_rows, baseline_links, updates, records: Records, events,
 # ---------------------------------------------------------------------------------------
 
 ACTIVITY_COLUMNS = ["id", "name", "duration", "calendar", "wbs", "kind", "constraint",
-                    "constraint_date", "party"]
+                    "constraint_date", "party", "risk"]
 PROGRESS_COLUMNS = ["actual_start", "actual_finish", "remaining"]
+LINK_COLUMNS = ["pred", "succ", "type", "lag"]
+EVENT_COLUMNS = ["id", "title", "party", "start", "finish", "activities", "impact", "days",
+                 "evidence", "notified", "claimed_days", "asbuilt_activities"]
+ELEMENT_COLUMNS = ["id", "name", "wbs", "classification", *BOX_COLUMNS, "level", "zone"]
 
 
 def cell(value) -> str:
@@ -1863,62 +1456,47 @@ def write_toml(path: Path, sections: dict[str, dict]):
     path.write_text("\n".join(lines), encoding="utf-8")
 
 
-CASE_TOML = {
-    "project": {"name": PROJECT_NAME, "contract_start": CONTRACT_START,
-                "contract_completion": CONTRACT_COMPLETION},
-    "schedule": {"default_calendar": SITE, "progress": "retained_logic",
-                 "lag_calendar": "successor", "float_to": "project_finish"},
-    "commercial": {"currency": "EUR", "liquidated_damages_per_day": LD_WHOLE_WORKS,
-                   "liquidated_damages_cap": LD_CAP,
-                   "prolongation_cost_per_day": PROLONGATION_FLAT},
-    "analysis": {"half_step": True, "concurrency": "time_not_money"},
-}
-
+CASE_SECTIONS = ("project", "schedule", "commercial", "analysis")
 GENERATED = ["case.toml", "calendars.csv", "calendar_exceptions.csv", "snapshots", "asbuilt.csv",
              "corrections.csv", "events.csv", "fragnets.csv", "fragnet_links.csv",
              "elements.csv", "sections.csv", "extensions_granted.csv", "prolongation_rates.csv",
              "KNOWN_DEFECTS.json", "README.md"]
 
 
-def write_case(folder: Path, baseline_rows, baseline_links, updates, records, events, elements,
-               exceptions, readme: str, known_defects: dict):
-    write_toml(folder / "case.toml", CASE_TOML)
-    write_csv(folder / "calendars.csv", CALENDAR_ROWS, ["calendar", "workdays"])
-    write_csv(folder / "calendar_exceptions.csv", exceptions,
-              ["calendar", "date", "working", "reason"])
+def write_snapshots(folder: Path, scn: Scenario, baseline_rows, baseline_links, updates, records):
     snapshots = folder / "snapshots"
     write_toml(snapshots / "baseline" / "snapshot.toml",
-               {"": {"label": "Baseline", "data_date": CONTRACT_START, "kind": "baseline"}})
+               {"": {"label": "Baseline", "data_date": scn.start, "kind": "baseline"}})
     write_csv(snapshots / "baseline" / "activities.csv", baseline_rows, ACTIVITY_COLUMNS)
-    write_csv(snapshots / "baseline" / "links.csv", baseline_links, ["pred", "succ", "type", "lag"])
+    write_csv(snapshots / "baseline" / "links.csv", baseline_links, LINK_COLUMNS)
     for u in updates:
         write_toml(snapshots / u.folder / "snapshot.toml",
                    {"": {"label": u.label, "data_date": u.data_date, "kind": "update"}})
         write_csv(snapshots / u.folder / "activities.csv", records.update_rows[u.folder],
                   ACTIVITY_COLUMNS + PROGRESS_COLUMNS)
         write_csv(snapshots / u.folder / "links.csv", records.update_links[u.folder],
-                  ["pred", "succ", "type", "lag"])
+                  LINK_COLUMNS)
+
+
+def write_case(folder: Path, scn: Scenario, baseline_rows, baseline_links, updates, records,
+               events, elements, exceptions, readme: str, known_defects: dict):
+    write_toml(folder / "case.toml", {name: values for name, values in scn.project.items()
+                                      if name in CASE_SECTIONS})
+    write_csv(folder / "calendars.csv", calendar_rows(scn), ["calendar", "workdays"])
+    write_csv(folder / "calendar_exceptions.csv", exceptions,
+              ["calendar", "date", "working", "reason"])
+    write_snapshots(folder, scn, baseline_rows, baseline_links, updates, records)
     write_csv(folder / "asbuilt.csv", records.asbuilt_rows,
               ["id", "actual_start", "actual_finish", "source"])
     write_csv(folder / "corrections.csv", records.corrections,
               ["snapshot", "table", "key", "column", "value", "reason"])
-    write_csv(folder / "events.csv", events,
-              ["id", "title", "party", "start", "finish", "activities", "impact", "days",
-               "evidence", "notified", "claimed_days"])
-    write_csv(folder / "fragnets.csv", FRAGNETS,
-              ["event", "id", "name", "duration", "calendar", "wbs"])
-    write_csv(folder / "fragnet_links.csv",
-              [dict(zip(["event", "pred", "succ", "type", "lag"], l)) for l in FRAGNET_LINKS],
-              ["event", "pred", "succ", "type", "lag"])
-    write_csv(folder / "elements.csv", elements,
-              ["id", "name", "wbs", "classification", "x", "y", "z", "dx", "dy", "dz", "level",
-               "zone"])
-    write_csv(folder / "sections.csv", SECTIONS,
-              ["section", "name", "completion_activity", "contract_completion",
-               "liquidated_damages_per_day"])
-    write_csv(folder / "extensions_granted.csv", extensions_granted(events),
-              ["id", "granted_on", "days", "section", "events", "reason"])
-    write_csv(folder / "prolongation_rates.csv", PROLONGATION_RATES, ["from", "to", "cost_per_day"])
+    write_csv(folder / "events.csv", events, EVENT_COLUMNS)
+    write_csv(folder / "elements.csv", elements, ELEMENT_COLUMNS)
+    # tables of the scenario that the case takes as they are
+    for name, rows in (("fragnets", scn.fragnets), ("fragnet_links", scn.fragnet_links),
+                       ("sections", scn.sections), ("extensions_granted", scn.extensions),
+                       ("prolongation_rates", scn.prolongation)):
+        write_csv(folder / f"{name}.csv", rows, list(rows[0]))
     (folder / "KNOWN_DEFECTS.json").write_text(
         json.dumps(known_defects, indent=2, ensure_ascii=False) + "\n", encoding="utf-8")
     (folder / "README.md").write_text(readme, encoding="utf-8")
@@ -1943,159 +1521,229 @@ def move_into_place(built: Path, target: Path):
 # README and the machine-readable list of planted defects
 # ---------------------------------------------------------------------------------------
 
-def known_defects(records: Records) -> dict:
+def known_defects(scn: Scenario, records: Records) -> dict:
+    defects = scn.records["elements"]
     return {
-        "description": "Record defects planted on purpose in the Tessaly Wharf demo case; a "
-                       "checker must find each of these and nothing else. Disclosed "
-                       "corrections (corrections.csv) are listed apart: they are not defects.",
-        "duplicate_elements": DUPLICATE_GROUPS,
-        "unlinked_elements": list(UNLINKED),
-        "unlinked_element_wbs": UNLINKED,
+        "description": scn.records["known_defects_description"],
+        "duplicate_elements": defects["duplicates"],
+        "unlinked_elements": list(defects["unlinked"]),
+        "unlinked_element_wbs": defects["unlinked"],
         "retrospective_edits": records.retrospective,
         "disclosed_corrections": [{k: cell(v) for k, v in c.items() if k != "reason"}
                                   for c in records.corrections],
     }
 
 
-def readme_text(f: dict) -> str:
+NUMBER_WORDS = ["no", "one", "two", "three", "four", "five", "six", "seven", "eight", "nine"]
+
+
+def counted(n: int, noun: str) -> str:
+    return f"{NUMBER_WORDS[n] if n < len(NUMBER_WORDS) else n} {noun}{'' if n == 1 else 's'}"
+
+
+def readme_tables(scn: Scenario, f: dict) -> dict:
+    """The README's tables and lists, as text."""
     events = "\n".join(
         f"| {e['id']} | {e['party']} | {e['start']} to {e['finish']} | {e['impact']}"
         f"{' +' + str(e['days']) + ' d' if e['days'] != '' else ''} | {e['title']} |"
         for e in f["events"])
     forecasts = "\n".join(f"| {label} | {date} | {pc} | {s1} |"
                           for label, date, pc, s1 in f["forecasts"])
+
     def first_update(threshold: dt.date) -> str:
         label, date = next((label, date) for label, date, _, _ in f["forecasts"]
                            if date >= threshold)
         return f"{label} ({date})"
 
-    revisions_text = "\n".join(f"- {r.kind}, from {first_update(r.first_data_date)} on: {r.text}"
-                               for r in f["revisions"])
+    causes = {e["id"]: e["cause"] for e in scn.events}
+    return {
+        "events": events, "forecasts": forecasts,
+        "revisions": "\n".join(f"- {r.kind}, from {first_update(r.first_data_date)} on: {r.text}"
+                               for r in f["revisions"]),
+        "but_for": "\n".join(f"| {e} | {causes[e]} | {pc} | {s1} |"
+                             for e, (pc, s1) in f["but_for"].items()),
+        "corrections": "\n".join(f"- {c['snapshot']}, {c['table']} `{c['key']}` {c['column']}: "
+                                 f"{c['reason']}" for c in f["corrections"]),
+    }
+
+
+def joined(words: list[str]) -> str:
+    """``a``, ``a and b``, ``a, b and c``."""
+    return words[0] if len(words) == 1 else ", ".join(words[:-1]) + " and " + words[-1]
+
+
+def programme_before(day: dt.date, programmes: list[tuple[str, dt.date, dict]]):
+    """The last programme whose data date is strictly before ``day``."""
+    return [p for p in programmes if p[1] < day][-1]
+
+
+def hold_relation(t: Timing | None, progress: Progress | None, first: dt.date, last: dt.date
+                  ) -> str:
+    """How a hold from ``first`` to ``last`` falls on an activity's dates in a programme."""
+    if t is None:
+        return "not in this programme"
+    if progress is not None and progress.actual_finish is not None:
+        return f"complete ({t.finish}): no effect"
+    planned = f"for {t.start}" if t.start == t.finish else f"{t.start} to {t.finish}"
+    if t.finish < first:
+        return f"planned {planned}, before the hold: no effect"
+    if t.start > last:
+        return f"planned from {t.start}, after the hold: no effect"
+    if t.start < first:
+        return f"planned {planned}: stops for the hold, resumes after it"
+    return f"planned from {t.start}, in the hold: its start moves after it"
+
+
+def actual_hold_effect(works: ActualWorks, aid: str, first: dt.date, last: dt.date,
+                       calendars) -> str:
+    """What a hold did to an activity in the actual works."""
+    t = works.timings[aid]
+    cal = calendars[works.programme.activities[aid].calendar]
+    resumed = cal.date(cal.after(last))
+    if t.start < first:
+        done = cal.count(t.start, first - dt.timedelta(days=1))
+        return (f"started {t.start}, stopped after {counted(done, 'work day')}, resumed "
+                f"{resumed}, finished {t.finish}")
+    return f"due {cal.date(t.logic_start)}, started {t.start}"
+
+
+def hold_rows(f: dict, works: ActualWorks, programmes, calendars) -> str:
+    rows = []
+    for e in f["events"]:
+        if e["impact"] != "hold":
+            continue
+        label, data_date, timings, progress = programme_before(e["start"], programmes)
+        for aid in e["activities"].split(";"):
+            baseline = hold_relation(programmes[0][2].get(aid), None, e["start"], e["finish"])
+            before = hold_relation(timings.get(aid), progress.get(aid), e["start"], e["finish"])
+            actual = actual_hold_effect(works, aid, e["start"], e["finish"], calendars)
+            rows.append(f"| {e['id']} | {aid} | {baseline} | {label} ({data_date}): {before} | "
+                        f"{actual} |")
+    return "\n".join(rows)
+
+
+def grant_rows(scn: Scenario, programmes) -> tuple[str, str]:
+    """The grants table and the words on when each grant is in force."""
+    rows, words, granted = [], [], defaultdict(int)
+    whole_works = next(s for s in scn.sections if s["completion_activity"] == scn.completion)
+    for g in sorted(scn.extensions, key=lambda g: g["granted_on"]):
+        day = dt.date.fromisoformat(g["granted_on"])
+        section = next((s for s in scn.sections if s["section"] == g["section"]), whole_works)
+        granted[section["section"]] += int(g["days"])
+        in_force = (dt.date.fromisoformat(section["contract_completion"])
+                    + dt.timedelta(days=granted[section["section"]]))
+        before = programme_before(day, programmes)
+        after = next(p for p in programmes if p[1] > day)
+        require(not any(p[1] == day for p in programmes), f"{g['id']} is granted on a data date")
+        whole = " (the whole of the Works)" if section is whole_works else ""
+        rows.append(f"| {g['id']} | {section['section']}{whole} | {day} | {before[0]} "
+                    f"({before[1]}) and {after[0]} ({after[1]}) | {g['days']} | "
+                    f"{', '.join(split_ids(g['events']))} | {in_force} |")
+        words.append(f"{g['id']} from {after[0]} ({after[1]}) on, not in {before[0]}")
+    return "\n".join(rows), "; ".join(words)
+
+
+def v2_values(scn: Scenario, f: dict, works: ActualWorks, programmes, calendars) -> dict:
+    """The README's account of what the case exercises of case format v2."""
+    risks = defaultdict(list)
+    for row in scn.activities:
+        if row["risk"]:
+            risks[row["risk"]].append(row["id"])
+    shown = [e for e in f["events"] if e["asbuilt_activities"]]
+    tia = defaultdict(list)
+    for e in f["events"]:
+        label, data_date, _, _ = programme_before(e["start"], programmes)
+        tia[f"{label} ({data_date})"].append(e["id"])
+    on_data_date = [f"{e['id']} starts on the data date of {label} ({date}), so it goes into "
+                    f"the programme before, not into the update that already reports it"
+                    for e in f["events"] for label, date, _, _ in programmes[1:]
+                    if e["start"] == date]
+    claim = next(iter(scn.story["claims"]["in_progress"].items()))
+    event = next(e for e in f["events"] if e["id"] == claim[0])
+    grants, grant_words = grant_rows(scn, programmes)
+    return {
+        "in_progress_hold": f"{claim[1]} "
+                            + actual_hold_effect(works, claim[1], event["start"], event["finish"],
+                                                 calendars) + f" ({claim[0]}).",
+        "grants": grants, "grant_words": grant_words,
+        "completion_activity": f"`{scn.completion}`",
+        "unexplained_risk": f"`{scn.project['analysis']['unexplained_risk']}`",
+        "risk_words": "; ".join(f"`{risk}` for {joined(ids)}" for risk, ids in risks.items()),
+        "asbuilt_words": f"{joined([e['id'] for e in shown])} are fragnets whose activities are "
+                         f"never built under their own ids; the as-built record carries their "
+                         f"work as " + joined([f"{e['asbuilt_activities'].replace(';', ', ')} "
+                                               f"({e['id']})" for e in shown])
+                         + ", and the column names those for collapsed as-built. Every other "
+                           "event shows in its own activities (the default).",
+        "holds": hold_rows(f, works, programmes, calendars),
+        "tia_words": "; ".join(f"{joined(ids)} into {where}" for where, ids in tia.items())
+                     + "." + "".join(f" {text}." for text in on_data_date),
+    }
+
+
+def readme_text(scn: Scenario, f: dict) -> str:
+    """``scenario/readme.md`` with the figures of this run filled in."""
     labels = {date.isoformat(): label for label, date, _, _ in f["forecasts"]}
-    but_for = "\n".join(f"| {e} | {EVENT_CAUSES[e]} | {pc} | {s1} |"
-                        for e, (pc, s1) in f["but_for"].items())
-    corrections = "\n".join(f"- {c['snapshot']}, {c['table']} `{c['key']}` {c['column']}: "
-                            f"{c['reason']}" for c in f["corrections"])
     retro = f["retrospective"][0]
-    return f"""# Tessaly Wharf, Brennholm: the bundled demo case
+    pred, succ = f["out_of_sequence"]
+    commercial = scn.project["commercial"]
+    values = {
+        "contract_sum": f"{scn.project['contract']['contract_sum']:,}",
+        "contract_start": scn.start, "contract_completion": scn.completion_date,
+        "section_1_completion": scn.section["contract_completion"],
+        "section_1_damages": f"{int(scn.section['liquidated_damages_per_day']):,}",
+        "whole_works_damages": f"{commercial['liquidated_damages_per_day']:,}",
+        "damages_cap": f"{commercial['liquidated_damages_cap']:,}",
+        "out_of_sequence_floor": pred[4:6], "out_of_sequence_pred": pred,
+        "out_of_sequence_succ": succ,
+        "retro_activity": retro["activity"], "retro_first_value": retro["first_value"],
+        "retro_first_label": labels[retro["first_reported_in"]],
+        "retro_first_folder": retro["first_reported_in"],
+        "retro_changed_value": retro["changed_value"],
+        "retro_changed_label": labels[retro["changed_in"]],
+        "retro_changed_folder": retro["changed_in"], "retro_asbuilt_value": retro["asbuilt_value"],
+        "event_count": len(f["events"]), "fragnet_count": len(scn.fragnets),
+        "fragnet_events": len({r["event"] for r in scn.fragnets}),
+        "sections_count": counted(len(scn.sections), "section"),
+        "grants_count": counted(len(scn.extensions), "extension"),
+        "rates_count": counted(len(scn.prolongation), "prolongation rate period"),
+        **{k: f[k] for k in ("activities", "links", "baseline_pc", "baseline_s1", "actual_pc",
+                             "actual_s1", "power_float", "carpark_float", "updates", "elements",
+                             "out_of_sequence_update")},
+        **readme_tables(scn, f), **f["v2"],
+    }
+    return reflow(string.Template(scn.readme).substitute(values))
 
-**This project is fictitious.** Tessaly Wharf, the town of Brennholm, every company, person,
-document and event in this folder are invented for the toolkit's demonstration and tests.
-Any likeness to a real project, firm or person is accidental.
 
-The folder is a case in case-format v1, written by `generate.py` (deterministic; run
-`python case_demo/generate.py` to rebuild it). Do not edit the files by hand.
+def reflow(text: str, width: int = 92, longest: int = 100) -> str:
+    """Re-wrap each paragraph or list item that a filled-in figure made longer than
+    ``longest`` characters; tables, headings and every other paragraph stay as written."""
+    out, block = [], []
 
-## The project
+    def flush():
+        if any(len(line) > longest for line in block):
+            item = block[0].startswith("- ")
+            out.extend(textwrap.wrap(" ".join(line.strip() for line in block), width,
+                                     subsequent_indent="  " if item else "",
+                                     break_on_hyphens=False, break_long_words=False))
+        else:
+            out.extend(block)
+        block.clear()
 
-A six-storey mixed-use building on a former harbour yard: a basement car park (level B1) in a
-contiguous piled box, retail units on the ground floor (level 00) and 30 apartments on
-levels 01 to 05; reinforced concrete frame on bearing piles, 48 m by 24 m on an 8 m grid,
-one stair and lift core, precast facade panels, two passenger lifts.
-
-- Employer: Tessaly Wharf Developments Ltd; its architect: Varnhalt Architects; the contract
-  is run by the Employer's agent. The Employer supplies the lift equipment (free issue).
-- Contractor: Hollowmere Construction Ltd, with its piling, services and lift installation
-  subcontractors.
-- Contract sum EUR {CONTRACT_SUM:,}; start {CONTRACT_START}; completion of Section 1
-  (basement car park and ground-floor retail units) {SECTION_1_COMPLETION}, damages
-  EUR {LD_SECTION_1:,} a day; completion of the whole of the Works (Section 2)
-  {CONTRACT_COMPLETION}, damages EUR {LD_WHOLE_WORKS:,} a day, capped at EUR {LD_CAP:,}.
-- Ground conditions are at the Employer's risk (the site investigation is the Employer's);
-  exceptional weather and a statutory undertaker's delay give time but no money (neutral).
-
-The accepted baseline has {f['activities']} activities and {f['links']} links (FS, SS, FF and
-one SF; lags and one lead) on two calendars: `site5` (Monday to Friday, public holidays,
-Brennholm Harbour Day, winter shutdowns) and `cure7` (every day: concrete curing, screed
-drying). It plans Section 1 for {f['baseline_s1']} and practical completion for
-{f['baseline_pc']}.
-
-## What went wrong
-
-| event | risk | dates | impact | what happened |
-|---|---|---|---|---|
-{events}
-
-The whole of the Works: the buried obstructions (EV02, absorbing the rain of EV01 on the
-same excavation), the slow frame (EV04), the crane failure (EV08) and the cold spell (EV09)
-drove completion in turn. At the end two delays run at the same time on parallel paths and
-end on the same day: the late Employer-supplied lift equipment (EV10: lifts, then hoist
-removal and the north frontage) and the contractor's slow services second fix (EV11:
-commissioning, then the authority inspection). That is the concurrent pair of employer and
-contractor delay.
-
-Section 1: the late facade design information (EV03, employer) drove the ground-floor
-facade a few days ahead of the frame path, which the contractor's slow frame (EV04) and the
-obstructions (EV02) had delayed as well; the late power connection (EV07, neutral) ends
-{f['power_float']} work days before the commissioning needed it. The variation (EV05) and
-the leaking basement walls (EV06) stay on the car park path, which keeps
-{f['carpark_float']} work days of float: an analysis should give them no time.
-
-Taking any one event out of the actual works alone (a but-for test, not additive, shown so
-that a reader sees why concurrency matters) leaves completion where it was: whichever of
-EV10 and EV11 is left still holds it.
-
-| event | cause | completion without it | Section 1 without it |
-|---|---|---|---|
-{but_for}
-
-Re-planning shown in the updates:
-{revisions_text}
-
-On floor {f['out_of_sequence'][0][4:6]} the ceilings ({f['out_of_sequence'][1]}) started before
-the partitions ({f['out_of_sequence'][0]}) were finished, against the programme's
-finish-to-start link: out-of-sequence progress, seen in {f['out_of_sequence_update']}.
-
-## How it ended
-
-Section 1 was completed on {f['actual_s1']} and the whole of the Works on {f['actual_pc']}.
-Extension EOT-01 (21 days, Section 2, for EV02) was granted on {f['eot_granted']}. Monthly
-updates have data dates at month ends; each one's forecast (the generator's own forward
-pass, retained logic):
-
-| update | data date | forecast completion | forecast Section 1 |
-|---|---|---|---|
-| Baseline | {CONTRACT_START} | {f['baseline_pc']} | {f['baseline_s1']} |
-{forecasts}
-
-## Deliberate record defects (for the checker)
-
-Listed again, machine-readable, in `KNOWN_DEFECTS.json`; nothing else is meant to be wrong.
-
-- Door `DOR-03-02` appears three times in one place (`DOR-03-02b`, `DOR-03-02c`); column
-  `COL-02-B3` is duplicated as `COL-02-B3b`.
-- `WIN-W03-2` (wbs `4.W.3.2`, a slip for `4.W.03.2`), `PLT-RF-09` (wbs `5.0.9`) and
-  `LGT-EXT-07` (wbs `8.9`) match no activity.
-- The actual finish of `{retro['activity']}` is {retro['first_value']} in
-  {labels[retro['first_reported_in']]} ({retro['first_reported_in']}) and {retro['changed_value']}
-  from {labels[retro['changed_in']]} ({retro['changed_in']}) on: a retrospective edit of the
-  records (the site diary in the as-built record keeps {retro['asbuilt_value']}).
-
-Disclosed corrections (corrections.csv), which the analyst has made openly:
-{corrections}
-
-## Contents
-
-{f['updates']} monthly updates in `snapshots/` (folders named by data date), the as-built
-record (`asbuilt.csv`, every activity, sources such as site diaries and pour registers),
-{len(f['events'])} delay events with {f['fragnet_count']} fragnet activities for 3 events,
-{f['elements']} model elements (axis-aligned boxes in metres, x east, y north, z up from the
-ground floor; classification codes of the project's own GROUP-TYPE scheme: SUB substructure,
-FRM frame, ENV envelope, SRV services, LFT lifts, FIT fit-out, EXT external works, TMP
-temporary works), two sections, one extension granted and three prolongation rate periods.
-
-Activity ids read AREA-PLACE-WORK: MS key dates, SET site establishment and plant, SUB
-substructure, FRM frame (`FRM-03-COLUMNS`: columns and core walls of storey 03;
-`FRM-04-POUR`: pouring slab level 04), ENV envelope (`ENV-N02-PANELS`: north elevation,
-level 02), MEP services, FIT fit-out, LFT lifts, EXT external works, COM commissioning and
-handover. Work breakdown codes run 1 (key dates, site) to 9 (commissioning) with the level
-(`B1`, `00` to `05`, `RF`) and elevation (`N`, `E`, `S`, `W`) in them; model elements carry
-the same codes, so `4.N.02.1` ties the north facade panels of level 02 to `ENV-N02-PANELS`.
-"""
+    for line in text.split("\n"):
+        if not line.strip() or line.startswith(("|", "#")):
+            flush()
+            out.append(line)
+        else:
+            if line.startswith("- "):
+                flush()
+            block.append(line)
+    flush()
+    return "\n".join(out)
 
 
 # ---------------------------------------------------------------------------------------
-# Main
+# The story told in the README, checked
 # ---------------------------------------------------------------------------------------
 
 def driving_chain(programme: Programme, timings: dict[str, Timing], calendars, end: str
@@ -2125,90 +1773,116 @@ def driving_chain(programme: Programme, timings: dict[str, Timing], calendars, e
     return chain
 
 
-def story_checks(baseline, calendars, works: ActualWorks, updates: list[Update]) -> dict:
+def check_claims(scn: Scenario, baseline_timings, calendars, works: ActualWorks) -> dict:
+    """The claims of ``story.toml`` about the actual works; returns the gaps it measures."""
+    claims, t = scn.story["claims"], works.timings
+    site = calendars[scn.site]
+    for later, earlier in claims["finishes_after"]:
+        require(t[later].finish > t[earlier].finish, f"{later} no longer finishes after {earlier}")
+    for end, drivers in claims["drives"].items():
+        chain = driving_chain(works.programme, t, calendars, end)
+        for aid in drivers:
+            require(aid in chain, f"{aid} no longer drives {end}")
+    for event, aid in claims["in_progress"].items():
+        row = event_row(scn, event)
+        first, last = dt.date.fromisoformat(row["start"]), dt.date.fromisoformat(row["finish"])
+        require(t[aid].start < first and t[aid].finish > last and aid in works.held[event],
+                f"{event} no longer stops {aid} in progress")
+    first, second = claims["finish_together"]
+    require(t[first].finish == t[second].finish,
+            f"{first} ({t[first].finish}) and {second} ({t[second].finish}) no longer end together")
+    for event, aid in claims["due"].items():
+        due = site.date(site.after(baseline_timings[aid].finish))
+        require(resolve_date(event_row(scn, event)["start"], t) == due,
+                f"{event} does not start when {aid} was due")
+    gaps = {}
+    for gap in claims["gap"]:
+        after = max(site.after(t[aid].finish) for aid in gap["after"])
+        gaps[gap["name"]] = site.on_or_after(t[gap["before"]].start) - after
+        require(gap["min"] <= gaps[gap["name"]] <= gap["max"],
+                f"{gap['name']} is {gaps[gap['name']]} work days")
+    return gaps
+
+
+def story_checks(scn: Scenario, baseline, baseline_timings, calendars, works: ActualWorks,
+                 updates: list[Update]) -> dict:
     """Make sure what the README tells about the actual works is true."""
-    site = calendars[SITE]
     t = works.timings
-    require(t["SUB-OBSTRUCTIONS"].finish > t["SUB-EXCAVATION-B"].finish,
-            "the obstructions no longer absorb the rain")
-    require(t["ENV-FABRICATE"].finish > t["FRM-01-STRIKE"].finish,
-            "the facade design path no longer leads the frame into the ground-floor facade")
     link_types = [l.type for l in baseline.links]
     require(link_types.count("SF") == 1 and {"FS", "SS", "FF"} <= set(link_types)
             and any(l.lag < 0 for l in baseline.links), "link types differ from the README")
-    services_chain = driving_chain(works.programme, t, calendars, "COM-AUTHORITY")
-    for aid in ("MEP-05-SECOND-FIX", "FRM-04-POUR", "FRM-03-COLUMNS", "FRM-00-DECK",
-                "SUB-OBSTRUCTIONS"):
-        require(aid in services_chain, f"{aid} no longer drives completion")
-    require(t["FRM-04-POUR"].early_start > t["FRM-04-POUR"].logic_start, "cold spell idle")
-    require("LFT-DELIVERY" in driving_chain(works.programme, t, calendars, "EXT-CROSSING"),
-            "the lift delivery no longer drives the lift path")
-    lift_path = t["EXT-CROSSING"].finish
-    services_path = t["COM-AUTHORITY"].finish
-    require(lift_path == services_path, f"lift path {lift_path} and services path "
-                                        f"{services_path} no longer end together")
-    require(t["MS-COMPLETION"].finish > CONTRACT_COMPLETION, "the works are not late")
-    require(t["MS-SECTION-1"].finish > SECTION_1_COMPLETION, "section 1 is not late")
-    power_float = site.on_or_after(t["COM-CARPARK"].start) - site.after(t["MEP-POWER-ON"].finish)
-    carpark_float = (site.on_or_after(t["COM-CARPARK"].start)
-                     - site.after(max(t["FIT-B1-MARK"].finish, t["FIT-B1-DOORS"].finish)))
-    require(0 < power_float <= 5, "the power connection is no longer near-critical")
-    require(carpark_float >= 10, "the car park path has lost its float")
-    but = but_for(baseline, calendars, works)
-    require(all(pc == t["MS-COMPLETION"].finish for pc, _ in but.values()),
+    gaps = check_claims(scn, baseline_timings, calendars, works)
+    require(t[scn.completion].finish > scn.completion_date, "the works are not late")
+    section = scn.section
+    require(t[section["completion_activity"]].finish
+            > dt.date.fromisoformat(section["contract_completion"]), "section 1 is not late")
+    but = but_for(scn, baseline, calendars, works)
+    require(all(pc == t[scn.completion].finish for pc, _ in but.values()),
             "a single event now moves completion on its own")
     pred, succ = works.out_of_sequence
     seen = next(u for u in updates if succ in u.progress and pred in u.progress
                 and u.progress[pred].actual_finish is None)
-    return {"power_float": power_float, "carpark_float": carpark_float, "but_for": but,
-            "out_of_sequence_update": f"{seen.label} ({seen.data_date})"}
+    return {**gaps, "but_for": but, "out_of_sequence_update": f"{seen.label} ({seen.data_date})"}
 
 
-def build(output: Path) -> dict:
-    exceptions = site_exceptions()
-    calendars = build_calendars(exceptions)
-    baseline = build_baseline()
-    baseline_timings = forward_pass(baseline, calendars, CONTRACT_START)
-    require(baseline_timings["MS-SECTION-1"].finish <= SECTION_1_COMPLETION,
-            "baseline misses Section 1")
-    require(baseline_timings["MS-COMPLETION"].finish <= CONTRACT_COMPLETION,
-            "baseline misses completion")
-    works, data_dates = choose_out_of_sequence(baseline, calendars)
-    events, hidden = derive_events(baseline_timings, works, calendars)
-    updates = build_updates(baseline, works, calendars, data_dates, hidden)
-    records = keep_records(updates, works, calendars)
-    baseline_rows = [activity_row(a) for a in baseline.activities.values()]
-    baseline_links = link_rows(baseline)
-    elements = build_elements()
-    check_case(baseline_rows, baseline_links, updates, records, events, elements, exceptions)
+# ---------------------------------------------------------------------------------------
+# Main
+# ---------------------------------------------------------------------------------------
 
-    story = story_checks(baseline, calendars, works, updates)
-    forecasts = []
-    schedules = {"baseline": baseline_timings}
+def schedule_all(scn: Scenario, baseline_timings, updates, calendars):
+    """Each update's forecast: the generator's own forward pass over what the update says."""
+    forecasts, schedules = [], {"baseline": baseline_timings}
+    milestone = scn.section["completion_activity"]
     for u in updates:
         t = forward_pass(u.programme, calendars, u.data_date, progress=u.progress)
         schedules[u.folder] = t
-        forecasts.append((u.label, u.data_date, t["MS-COMPLETION"].finish,
-                          t["MS-SECTION-1"].finish))
+        forecasts.append((u.label, u.data_date, t[scn.completion].finish, t[milestone].finish))
+    return forecasts, schedules
+
+
+def build(output: Path, scn: Scenario | None = None) -> dict:
+    scn = scn or load_scenario()
+    exceptions = calendar_exceptions(scn)
+    calendars = build_calendars(scn, exceptions)
+    baseline = baseline_programme(scn)
+    baseline_timings = forward_pass(baseline, calendars, scn.start)
+    section = scn.section
+    require(baseline_timings[section["completion_activity"]].finish
+            <= dt.date.fromisoformat(section["contract_completion"]), "baseline misses Section 1")
+    require(baseline_timings[scn.completion].finish <= scn.completion_date,
+            "baseline misses completion")
+    works, data_dates = choose_out_of_sequence(scn, baseline, calendars)
+    events, hidden = derive_events(scn, works)
+    updates = build_updates(scn, baseline, works, calendars, data_dates, hidden)
+    records = keep_records(scn, updates, works, calendars)
+    baseline_rows = [activity_row(a) for a in baseline.activities.values()]
+    baseline_links = link_rows(baseline)
+    elements = build_elements(scn)
+    check_case(scn, baseline_rows, baseline_links, updates, records, events, elements,
+               exceptions)
+    story = story_checks(scn, baseline, baseline_timings, calendars, works, updates)
+    forecasts, schedules = schedule_all(scn, baseline_timings, updates, calendars)
+    programmes = [("Baseline", scn.start, baseline_timings, {})] + [
+        (u.label, u.data_date, schedules[u.folder], u.progress) for u in updates]
     facts = {
         "activities": len(baseline.activities), "links": len(baseline.links),
-        "baseline_pc": baseline_timings["MS-COMPLETION"].finish,
-        "baseline_s1": baseline_timings["MS-SECTION-1"].finish,
-        "actual_pc": works.timings["MS-COMPLETION"].finish,
-        "actual_s1": works.timings["MS-SECTION-1"].finish,
-        "events": events, "revisions": revisions(works), "corrections": records.corrections,
+        "baseline_pc": baseline_timings[scn.completion].finish,
+        "baseline_s1": baseline_timings[section["completion_activity"]].finish,
+        "actual_pc": works.timings[scn.completion].finish,
+        "actual_s1": works.timings[section["completion_activity"]].finish,
+        "events": events, "revisions": revisions(scn, works), "corrections": records.corrections,
         "retrospective": records.retrospective, "forecasts": forecasts,
         "out_of_sequence": works.out_of_sequence, "updates": len(updates),
-        "elements": len(elements), "fragnet_count": len(FRAGNETS),
-        "eot_granted": extensions_granted(events)[0]["granted_on"],
-        "schedules": schedules,
+        "elements": len(elements), "schedules": schedules,
+        "retrospective_activity": scn.records["retrospective_edit"]["activity"],
         **story,
     }
+    facts["v2"] = v2_values(scn, facts, works, programmes, calendars)
     output.mkdir(parents=True, exist_ok=True)
     built = Path(tempfile.mkdtemp(prefix=".generate-", dir=output))
     try:
-        write_case(built, baseline_rows, baseline_links, updates, records, events, elements,
-                   exceptions, readme_text(facts), known_defects(records))
+        write_case(built, scn, baseline_rows, baseline_links, updates, records, events, elements,
+                   exceptions, readme_text(scn, facts), known_defects(scn, records))
         move_into_place(built, output)
     finally:
         shutil.rmtree(built, ignore_errors=True)
@@ -2238,7 +1912,7 @@ def self_check(output: Path, facts: dict) -> None:
                   f"{completion_of(timings)}")
         table = result.activities.set_index("id")
         for aid, t in timings.items():
-            if aid == RETROSPECTIVE_ACTIVITY:
+            if aid == facts["retrospective_activity"]:
                 continue  # the records carry the planted edit, the generator the truth
             compared += 1
             row = table.loc[aid]
@@ -2254,7 +1928,7 @@ def self_check(output: Path, facts: dict) -> None:
 
 def main(argv: list[str] | None = None) -> int:
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
-    parser.add_argument("--output", type=Path, default=Path(__file__).resolve().parent,
+    parser.add_argument("--output", type=Path, default=HERE,
                         help="case folder to write (default: the folder of this script)")
     parser.add_argument("--no-self-check", action="store_true",
                         help="do not load the written case with the toolkit afterwards")
