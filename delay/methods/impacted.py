@@ -349,7 +349,10 @@ def _insert(case: Case, base: Snapshot, model: ScheduleModel, register: pd.DataF
         cumulative, _, cumulative_notes = apply_event(cumulative, case, event, present | added)
         cumulative_finish.append(_finish_of(cumulative.finish_days(), where))
         applied.append("" if not missing else f"not in {label}: {', '.join(missing)}")
-        effect.append("; ".join(dict.fromkeys(notes + cumulative_notes)))
+        words = [f"alone: {n}" for n in notes if n not in cumulative_notes]
+        words += [f"in the cumulative run: {n}" for n in cumulative_notes if n not in notes]
+        words += [n for n in notes if n in cumulative_notes]
+        effect.append("; ".join(words))
     shape = (len(register), len(targets))
     return _Runs(base_finish, np.asarray(alone, dtype=np.int64).reshape(shape),
                  np.asarray(cumulative_finish, dtype=np.int64).reshape(shape), applied, effect, cumulative)
