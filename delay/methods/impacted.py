@@ -6,11 +6,12 @@ its real dates, and the programme is re-scheduled:
 - ``extend`` lengthens each named activity by the event's ``days`` (work days; an activity
   already started gets them on its remaining duration);
 - ``hold`` stops work on each named activity from the event's start to its finish, both
-  included, whatever its status: its work days in that period become non-working for it
-  alone (a calendar derived from its own), so work before the hold stands and the rest
-  resumes after it. An activity that the programme has no work on in that period (planned
-  to finish before the hold, to start after it, or complete) is not affected, and the
-  result says so;
+  included, whatever its status: its work days in that period (from the programme's data
+  date on) become non-working for it alone (a calendar derived from its own), so work
+  before the hold stands and the rest resumes after it. An activity that the programme has
+  no work on in that period (planned to finish before the hold, to start after it, or
+  complete) is not moved by it, and the result says so (a lag counted on the held
+  activity's calendar across the period still waits for its work days);
 - ``fragnet`` inserts the event's activities (fragnets.csv) and links (fragnet_links.csv);
   a fragnet activity with no predecessor in its fragnet starts no earlier than the event's
   start.
@@ -97,8 +98,8 @@ def order_events(case: Case, events: Sequence[str] | None = None, order: str = "
 
 
 def _hold_effects(event: pd.Series, named: list[str], schedule: ScheduleResult) -> tuple[list[str], list[str]]:
-    """Which named activities a hold stops (work planned in its period), and a sentence for
-    each one it leaves alone."""
+    """Which named activities a hold applies to (every one not complete), and a sentence
+    for each one that has no work planned in its period."""
     first = np.datetime64(pd.Timestamp(event["start"]).date(), "D").astype(np.int64)
     last = np.datetime64(pd.Timestamp(event["finish"]).date(), "D").astype(np.int64)
     where = schedule.model.network.index_of(named)
@@ -110,13 +111,12 @@ def _hold_effects(event: pd.Series, named: list[str], schedule: ScheduleResult) 
         if schedule.status[k] == COMPLETE:
             notes.append(f"{activity}: no effect on this programme: the work was complete before the hold")
             continue
+        held.append(activity)
         begins = max(int(start[k]), data_day) if schedule.status[k] != 0 else int(start[k])
         if int(finish[k]) < first:
             notes.append(f"{activity}: no effect on this programme: the work is planned to finish before the hold")
         elif begins > last:
             notes.append(f"{activity}: no effect on this programme: the work is planned to start after the hold")
-        else:
-            held.append(activity)
     return held, notes
 
 
@@ -154,8 +154,11 @@ def event_changes(case: Case, event: pd.Series, present: set[str],
         if named and pd.notna(event["start"]) and pd.notna(event["finish"]):
             found = schedule() if callable(schedule) else schedule
             held, notes = _hold_effects(event, named, found) if found is not None else (named, [])
-            period = (pd.Timestamp(event["start"]).date(), pd.Timestamp(event["finish"]).date())
-            changes["hold"] = {a: [period] for a in held}
+            first, last = pd.Timestamp(event["start"]).date(), pd.Timestamp(event["finish"]).date()
+            if found is not None:  # the days before the data date are history, not a hold
+                first = max(first, day_to_date(found.model.data_day))
+            if first <= last:
+                changes["hold"] = {a: [(first, last)] for a in held}
             changes["notes"] = notes
     elif impact == "fragnet":
         fragnet = case.fragnets[case.fragnets["event"] == event["id"]]
