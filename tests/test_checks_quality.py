@@ -14,6 +14,8 @@ named beside the check. Day arithmetic is checked against numpy's business-day f
 
 from __future__ import annotations
 
+import datetime as dt
+
 import numpy as np
 import pytest
 
@@ -402,23 +404,51 @@ def cpli_case(tmp_path, completion, extensions=None):
     files = {}
     if extensions:
         files["extensions_granted.csv"] = extensions
-        files["sections.csv"] = [{"section": "S1", "name": "Part of the works", "completion_activity": "FINISH",
+        files["sections.csv"] = [{"section": "S1", "name": "Part of the works", "completion_activity": "T1",
                                   "contract_completion": completion}]
     return write_case(tmp_path, activities=activities, links=links, completion=completion, files=files)
 
 
 def test_cpli_against_the_contract_completion_in_force(tmp_path):
     # Contract completion 2025-01-24, plus 7 days granted for the whole works (no
-    # section) = 2025-01-31; 100 days granted for section S1 do not count. Work days to it:
-    # busday_count(2025-01-06, 2025-02-01) = 20. CPLI = 20 / 20 = 1.00 >= 0.95: pass.
+    # section) on 2025-01-03, before the baseline's data date = 2025-01-31; 100 days granted
+    # for section S1 (whose milestone is T1, not the project's completion) do not count. Work
+    # days to it: busday_count(2025-01-06, 2025-02-01) = 20. CPLI = 20 / 20 = 1.00 >= 0.95: pass.
     root = cpli_case(tmp_path, "2025-01-24", extensions=[
-        {"id": "E1", "granted_on": "2025-01-10", "days": 7, "section": ""},
-        {"id": "E2", "granted_on": "2025-01-10", "days": 100, "section": "S1"}])
+        {"id": "E1", "granted_on": "2025-01-03", "days": 7, "section": ""},
+        {"id": "E2", "granted_on": "2025-01-03", "days": 100, "section": "S1"}])
     case = load_case(root)
     assert str(contract_completion_in_force(case)) == "2025-01-31"
     cpli = {m.key: m for m in metric_list(case)}["cpli"]
     length = int(np.busday_count("2025-01-06", "2025-02-01"))
     assert (cpli.count, cpli.denominator, cpli.passed) == (length, length, True)
+
+
+def test_cpli_uses_the_completion_in_force_at_the_data_date(tmp_path):
+    # Case format v2: a grant is in force from its granted_on date, and a check of a programme
+    # uses its data date. The 7 days granted on 2025-01-10 are not yet in force at the
+    # baseline's data date 2025-01-06: CPLI 15 / 20 = 0.75, as without the extension; after every
+    # grant the completion in force is 2025-01-31.
+    root = cpli_case(tmp_path, "2025-01-24", extensions=[
+        {"id": "E1", "granted_on": "2025-01-10", "days": 7, "section": ""}])
+    case = load_case(root)
+    assert str(contract_completion_in_force(case)) == "2025-01-31"
+    assert str(contract_completion_in_force(case, at=dt.date(2025, 1, 6))) == "2025-01-24"
+    cpli = {m.key: m for m in metric_list(case)}["cpli"]
+    assert (cpli.count, cpli.denominator, cpli.passed) == (15, 20, False)
+
+
+def test_a_grant_naming_the_whole_works_section_is_the_whole_works(tmp_path):
+    # Case format v2: the section whose completion activity is the project's completion
+    # activity (FINISH, the finish milestone that finishes last) is the whole of the works,
+    # and a grant naming it applies to the whole works.
+    root = cpli_case(tmp_path, "2025-01-24")
+    from casewriter import write_csv
+
+    write_csv(root / "sections.csv", [{"section": "W", "name": "The whole of the works",
+                                       "completion_activity": "FINISH", "contract_completion": "2025-01-24"}])
+    write_csv(root / "extensions_granted.csv", [{"id": "E1", "granted_on": "2025-01-03", "days": 7, "section": "W"}])
+    assert str(contract_completion_in_force(load_case(root))) == "2025-01-31"
 
 
 def test_cpli_fails_without_the_extension(tmp_path):

@@ -494,7 +494,7 @@ def test_hold_explains_only_the_gap_days_it_covers(tmp_path):
     assert result.reproduced
     events = by_id(result.by_event, "event")
     assert events.loc["L1", "days_earlier"] == 0
-    assert "does not overlap" in events.loc["L1", "note"]
+    assert "overlaps neither its actual work nor the gap before its actual start" in events.loc["L1", "note"]
     assert events.loc["L2", "days_earlier"] == 1
     assert events.loc["L2", "but_for_completion"] == day("2025-03-07")
     assert by_id(result.by_party, "party").loc["employer", "days_earlier"] == 1
@@ -717,3 +717,59 @@ def test_properties_on_synthetic_cases(tmp_path_factory, activities, seed):
     for row in result.by_event.itertuples(index=False):
         if pd.notna(row.but_for_completion):
             assert parties[row.party] <= row.but_for_completion
+
+
+# ================================================================================================
+# 7. Case format v2: holds stop work in progress; events shown in other recorded activities
+# ================================================================================================
+# A2 -> B5 -> F (7-day).  As built: A Mar 03-04 (days 0-1); B Mar 05-13 (days 2-10, 9 work days
+# for 5: it stopped on Mar 07-10 for the contractor's crane repair, hold K1, and resumed);
+# F Mar 13.  The hold Mar 07-10 covers 4 of B's own work days (days 4-7): taking it out gives B
+# 5 days, Mar 05-09, F Mar 09: 4 days earlier (before, a hold explained only a gap before the
+# start, so it took out nothing here).
+def test_a_hold_on_work_in_progress_comes_off_its_duration(tmp_path):
+    root = tmp_path / "case"
+    write_case(root, activities=[task("A", 2), task("B", 5), finish()], links=[link("A", "B"), link("B", "F")],
+               start="2025-03-03", completion="2025-03-31", schedule={"default_calendar": "7d"},
+               files={"asbuilt.csv": [record("A", "2025-03-03", "2025-03-04"), record("B", "2025-03-05", "2025-03-13"),
+                                      record("F", "2025-03-13", "2025-03-13")],
+                      "events.csv": [event("K1", "contractor", "2025-03-07", "2025-03-10", "hold", "B")]})
+    result = analyse(load_case(root))
+    assert result.reproduced
+    events = by_id(result.by_event, "event")
+    assert events.loc["K1", "days_earlier"] == 4
+    assert events.loc["K1", "but_for_completion"] == day("2025-03-09")
+    assert "B 9 to 5 work days (work suspended)" in events.loc["K1", "removed"]
+
+
+# A fragnet that the as-built record shows as an activity of its own: the event's fragnet
+# (W1-F1) never appears in the record, which records the work as N1 (added in the update).
+# Without asbuilt_activities the event is reported, not scored; with asbuilt_activities = N1 it
+# is taken out where it shows: N1 (Mar 05-07, 3 days) removed, B follows A directly:
+#   A Mar 03-04, N1 Mar 05-07, B Mar 08-10, F Mar 10 -> without N1: B Mar 05-07, F Mar 07: 3 days.
+def test_asbuilt_activities_scores_a_fragnet_recorded_otherwise(tmp_path):
+    rows = [task("A", 2), task("N1", 3), task("B", 3), finish()]
+    links = [link("A", "N1"), link("N1", "B"), link("B", "F")]
+
+    def make(root, shows):
+        write_case(root, activities=[task("A", 2), task("B", 3), finish()], links=[link("A", "B"), link("B", "F")],
+                   start="2025-03-03", completion="2025-03-31", schedule={"default_calendar": "7d"},
+                   snapshots={"U1": {"data_date": "2025-03-05", "activities": [
+                       task("A", 2, actual_start="2025-03-03", actual_finish="2025-03-04"), rows[1], rows[2], rows[3]],
+                       "links": links}},
+                   files={"asbuilt.csv": [record("A", "2025-03-03", "2025-03-04"),
+                                          record("N1", "2025-03-05", "2025-03-07"),
+                                          record("B", "2025-03-08", "2025-03-10"), record("F", "2025-03-10", "2025-03-10")],
+                          "events.csv": [{**event("W1", "employer", "2025-03-05", "2025-03-07", "fragnet"),
+                                          "asbuilt_activities": shows}],
+                          "fragnets.csv": [{"event": "W1", "id": "W1-F1", "name": "Obstruction removal", "duration": 3}],
+                          "fragnet_links.csv": [{"event": "W1", "pred": "A", "succ": "W1-F1", "type": "FS", "lag": 0},
+                                                {"event": "W1", "pred": "W1-F1", "succ": "B", "type": "FS", "lag": 0}]})
+        return analyse(load_case(root))
+
+    without = by_id(make(tmp_path / "without", "").by_event, "event").loc["W1"]
+    assert pd.isna(without["days_earlier"]) and not without["found_in_as_built"]
+    assert "asbuilt_activities" in without["note"]
+    shown = by_id(make(tmp_path / "with", "N1").by_event, "event").loc["W1"]
+    assert (shown["days_earlier"], shown["but_for_completion"]) == (3, day("2025-03-07"))
+    assert "N1" in shown["removed"]
