@@ -363,34 +363,43 @@ def test_collapsed_assesses_the_whole_works_not_the_sections(tmp_path):
     one = result.sections.set_index("section").loc["S1"]
     assert one["eot_days"] is None and one["ld_exposure"] is None
     assert one["actual_completion"] == day("2025-01-12")
-    assert "project completion only" in one["note"]
+    assert "the whole works only" in one["note"]
 
 
 # =======================================================================================
 # 6. An extension already granted
 #
-# Baseline A5 -> B5 -> F: F Jan 15 = contract completion; section S1 marked by F with its
-#   own contract date Jan 15 (rate 300).  EV1 (employer, Jan 06) adds 7 days to A; as-built
-#   A Jan 06-17, B Jan 18-22, F Jan 22.
+# Baseline A5 -> M1 and A5 -> B5 -> F: A Jan 06-10, M1 Jan 10, B Jan 11-15, F Jan 15 = contract
+#   completion; section S1 marked by M1 with its own contract date Jan 10 (rate 300).  EV1
+#   (employer, Jan 06) adds 7 days to A; as-built A Jan 06-17, M1 Jan 17, B Jan 18-22, F Jan 22.
 # extensions_granted.csv: X1 5 days for the whole works (no section); X2 10 days for S1.
 # Whole works: in force Jan 15 + 5 = Jan 20 (X2 is S1's only); with excusable Jan 15 + 7
 #   = Jan 22; EoT = Jan 22 - Jan 20 = 2 (not 7: 5 were granted); revised Jan 22; actual
 #   Jan 22: culpable 0.
-# S1: in force Jan 15 + 10 = Jan 25; with excusable Jan 22; EoT max(0, -3) = 0; revised
-#   Jan 25; actual Jan 22: culpable 0.
-def granted_case(root):
-    write_case(root, activities=[task("A", 5), task("B", 5), finish_milestone()], links=[link("A", "B"), link("B", "F")],
+# S1: in force Jan 10 + 10 = Jan 20; M1 traced: A's 7 days (EV1) -> with excusable Jan 17;
+#   EoT max(0, Jan 17 - Jan 20) = 0; revised Jan 20; actual Jan 17: culpable 0.
+# A second section S2 marked by F, the project's completion activity, is the whole of the works
+#   (case format v2): a grant naming it (X3, 3 days) counts for the whole works, and its row
+#   is the whole works'.
+def granted_case(root, whole_works_grant=False):
+    grants = [{"id": "X1", "granted_on": "2025-01-20", "days": 5, "section": "", "events": "EV1",
+               "reason": "Late access"},
+              {"id": "X2", "granted_on": "2025-01-21", "days": 10, "section": "S1", "events": "EV1",
+               "reason": "Late access, the section"}]
+    if whole_works_grant:
+        grants.append({"id": "X3", "granted_on": "2025-01-22", "days": 3, "section": "S2", "events": "EV1",
+                       "reason": "Late access, the whole of the works"})
+    write_case(root, activities=[task("A", 5), finish_milestone("M1"), task("B", 5), finish_milestone()],
+               links=[link("A", "M1"), link("A", "B"), link("B", "F")],
                completion="2025-01-15", schedule=SEVEN_DAY, commercial={"liquidated_damages_per_day": 1000},
                files={"events.csv": [event("EV1", "employer", "2025-01-06", "2025-01-12", "A", 7)],
-                      "sections.csv": [{"section": "S1", "name": "The works", "completion_activity": "F",
-                                        "contract_completion": "2025-01-15", "liquidated_damages_per_day": 300}],
-                      "extensions_granted.csv": [
-                          {"id": "X1", "granted_on": "2025-01-20", "days": 5, "section": "", "events": "EV1",
-                           "reason": "Late access"},
-                          {"id": "X2", "granted_on": "2025-01-21", "days": 10, "section": "S1", "events": "EV1",
-                           "reason": "Late access, the section"}],
-                      "asbuilt.csv": [record("A", "2025-01-06", "2025-01-17"), record("B", "2025-01-18", "2025-01-22"),
-                                      record("F", "2025-01-22", "2025-01-22")]})
+                      "sections.csv": [{"section": "S1", "name": "Car park", "completion_activity": "M1",
+                                        "contract_completion": "2025-01-10", "liquidated_damages_per_day": 300},
+                                       {"section": "S2", "name": "The whole of the works", "completion_activity": "F",
+                                        "contract_completion": "2025-01-15", "liquidated_damages_per_day": 1000}],
+                      "extensions_granted.csv": grants,
+                      "asbuilt.csv": [record("A", "2025-01-06", "2025-01-17"), record("M1", "2025-01-17", "2025-01-17"),
+                                      record("B", "2025-01-18", "2025-01-22"), record("F", "2025-01-22", "2025-01-22")]})
     return load_case(root)
 
 
@@ -398,15 +407,36 @@ def granted_case(root):
 def test_an_extension_already_granted(tmp_path, method):
     case = granted_case(tmp_path / "case")
     assert completion_in_force(case) == (day("2025-01-15"), 5, day("2025-01-20"))
-    assert completion_in_force(case, "S1") == (day("2025-01-15"), 10, day("2025-01-25"))
+    assert completion_in_force(case, "S1") == (day("2025-01-10"), 10, day("2025-01-20"))
+    assert completion_in_force(case, at=day("2025-01-19")) == (day("2025-01-15"), 0, day("2025-01-15"))
     result = assess(case, [method]).method(method)
     assert (result.granted_days, result.completion_in_force) == (5, day("2025-01-20"))
     assert (result.excusable_days, result.eot_days, result.revised_completion, result.culpable_days) == (
         7, 2, day("2025-01-22"), 0)
+    assert list(result.grants["id"]) == ["X1"]
+    sections = result.sections.set_index("section")
+    whole = sections.loc["S2"]
+    assert bool(whole["whole_works"]) and (whole["eot_days"], whole["revised_completion"]) == (2, day("2025-01-22"))
     if method != "collapsed":
-        one = result.sections.set_index("section").loc["S1"]
+        one = sections.loc["S1"]
         assert (one["granted_days"], one["completion_in_force"], one["eot_days"], one["revised_completion"],
-                one["culpable_days"]) == (10, day("2025-01-25"), 0, day("2025-01-25"), 0)
+                one["culpable_days"]) == (10, day("2025-01-20"), 0, day("2025-01-20"), 0)
+
+
+@pytest.mark.parametrize("method", ALL)
+def test_a_grant_for_the_whole_works_section_is_the_whole_works(tmp_path, method):
+    # X3 names S2, the whole of the works: in force Jan 15 + 5 + 3 = Jan 23; with excusable
+    #   Jan 22: EoT 0, revised Jan 23; S2's row is the whole works' (they never differ).
+    case = granted_case(tmp_path / "case", whole_works_grant=True)
+    assert completion_in_force(case) == (day("2025-01-15"), 8, day("2025-01-23"))
+    assert completion_in_force(case, "S2") == completion_in_force(case)
+    result = assess(case, [method]).method(method)
+    assert (result.eot_days, result.revised_completion) == (0, day("2025-01-23"))
+    assert list(result.grants["id"]) == ["X1", "X3"]
+    whole = result.sections.set_index("section").loc["S2"]
+    for column in ("granted_days", "completion_in_force", "excusable_days", "eot_days", "revised_completion",
+                   "culpable_days", "ld_exposure"):
+        assert whole[column] == getattr(result, column), column
 
 
 # =======================================================================================
@@ -418,12 +448,16 @@ def test_an_extension_already_granted(tmp_path, method):
 # Excusable 0, EoT 0, revised Jan 10; actual Jan 19: culpable 9.  Whole works 9 x 1000 =
 #   9000 > 6000: 6000, capped.  S1: 9 x 500 = 4500 < 6000: 4500, not capped.
 def capped_case(root, cap):
-    write_case(root, activities=[task("A", 5), finish_milestone()], links=[link("A", "F")], completion="2025-01-10",
+    # S1 is marked by its own milestone M1 (after A, beside F; F, last in the file, is the
+    # completion activity on the tie), so that it is a section of its own.
+    write_case(root, activities=[task("A", 5), finish_milestone("M1"), finish_milestone()],
+               links=[link("A", "M1"), link("A", "F")], completion="2025-01-10",
                schedule=SEVEN_DAY, commercial={"liquidated_damages_per_day": 1000, "liquidated_damages_cap": cap},
                files={"events.csv": [event("EV1", "contractor", "2025-01-06", "2025-01-14", "A", 9)],
-                      "sections.csv": [{"section": "S1", "name": "All", "completion_activity": "F",
+                      "sections.csv": [{"section": "S1", "name": "All", "completion_activity": "M1",
                                         "contract_completion": "2025-01-10", "liquidated_damages_per_day": 500}],
-                      "asbuilt.csv": [record("A", "2025-01-06", "2025-01-19"), record("F", "2025-01-19", "2025-01-19")]})
+                      "asbuilt.csv": [record("A", "2025-01-06", "2025-01-19"), record("M1", "2025-01-19", "2025-01-19"),
+                                      record("F", "2025-01-19", "2025-01-19")]})
     return load_case(root)
 
 
@@ -523,11 +557,12 @@ def test_prolongation_across_two_rate_periods_windows(tmp_path):
 #   Half-step: the baseline with A's progress: F Jan 15, progress 0.  Revisions (windows
 #   doc): durations (B 5 -> 8): B Jan 11-18, F Jan 18: +3.
 #   With EV1 (employer, Jan 08, names B): the revision's causes are employer ->
-#   compensable 3, EoT 3.  Without an event: unexplained, contractor -> culpable 3, EoT 0.
+#   compensable 3, EoT 3.  Without an event: the unexplained-risk setting, contractor ->
+#   culpable 3, EoT 0.
 #   The forecast completion compared (no as-built record) is U1's, Jan 18.
 @pytest.mark.parametrize("events, expected", [
     ([event("EV1", "employer", "2025-01-08", "2025-01-09", "B", 3)], ("employer", "compensable", 3, 3, 0)),
-    ([], ("unexplained", "culpable", 0, 0, 3)),
+    ([], ("contractor", "culpable", 0, 0, 3)),
 ])
 def test_windows_revision_charge_parties(tmp_path, events, expected):
     a, b, f = task("A", 5), task("B", 5), finish_milestone()
@@ -557,8 +592,10 @@ def test_windows_revision_charge_parties(tmp_path, events, expected):
 # Collapsed: but for EV1, A 7 days, F Jan 12: 3 earlier (employer and every event).  D = 5:
 #   the employer's sole days 3, concurrent 0, unexplained 5 - 3 = 2 (contractor: culpable).
 #   EoT 3, revised Jan 13; actual Jan 15: culpable 2.
-# Impacted: EV1 +3 (its alone and increment), nothing culpable in the table
-#   (culpable_delay_days 0), but the actual completion is Jan 15: culpable days 2.
+# Impacted: EV1 +3 (its alone and increment), and the residual: the actual Jan 15 less the
+#   impacted Jan 13 = 2 days no event explains (the unexplained-risk setting, contractor):
+#   culpable delay 2 in the table too (impacted doc), and the actual completion is Jan 15:
+#   culpable days 2.
 @pytest.mark.parametrize("method", ["collapsed", "impacted"])
 def test_delay_no_event_explains(tmp_path, method):
     write_case(tmp_path / "case", activities=[task("A", 5), finish_milestone()], links=[link("A", "F")],
@@ -568,12 +605,13 @@ def test_delay_no_event_explains(tmp_path, method):
     result = assess(load_case(tmp_path / "case"), [method]).method(method)
     assert (result.excusable_days, result.eot_days, result.revised_completion) == (3, 3, day("2025-01-13"))
     assert (result.culpable_days, result.ld_exposure) == (2, 200.0)
+    assert result.culpable_delay_days == 2
+    table = result.causation.table
     if method == "collapsed":
-        table = result.causation.table.set_index("step")
-        assert int(table.loc["not taken out by any event", "culpable_days"]) == 2
-        assert result.culpable_delay_days == 2
+        assert int(table.set_index("step").loc["not taken out by any event", "culpable_days"]) == 2
     else:
-        assert result.culpable_delay_days == 0
+        (residual,) = table[table["basis"] == "residual"].itertuples()
+        assert (residual.party, int(residual.days), int(residual.culpable_days)) == ("unexplained", 2, 2)
 
 
 # =======================================================================================
@@ -615,7 +653,8 @@ def test_classification_of_a_day_by_its_causes():
                              (["contractor", "contractor"], (0, 0, 1))]:
         split = classify_days([(p, 1) for p in causes], 1, "time_not_money")
         assert (split["excusable"], split["compensable"], split["culpable"]) == expected, causes
-    assert classify_days([], 2, "time_not_money")["culpable"] == 2  # unexplained: contractor
+    with pytest.raises(ValueError):  # days always have a cause: the methods name the unexplained risk
+        classify_days([], 2, "time_not_money")
 
 
 def test_largest_remainder_worked_examples():

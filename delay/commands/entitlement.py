@@ -91,15 +91,23 @@ def entitlement(case, method, output_format):
         click.echo(json.dumps(result.to_json(), indent=2))
         return
     currency = result.currency
-    print_table(f"Entitlement per method (calendar days; money in {currency}; concurrency {result.concurrency})",
-                ["method", "completion in force", "planned", "excusable", "extension of time", "revised completion",
-                 "actual or forecast", "compensable", "prolongation cost", "culpable delay", "acceleration",
-                 "culpable", "damages", "concurrent"],
-                [[m.method, m.completion_in_force, m.planned_completion, m.excusable_days, m.eot_days,
-                  m.revised_completion, m.actual_completion, m.compensable_days, _text(m.prolongation_cost),
-                  m.culpable_delay_days, m.acceleration_days, m.culpable_days,
-                  _text(m.ld_exposure) + (" (capped)" if m.ld_capped else ""), m.concurrent_days]
-                 for m in result.methods])
+    figures = [("contract completion in force", lambda m: m.completion_in_force),
+               ("planned completion", lambda m: m.planned_completion),
+               ("excusable days", lambda m: m.excusable_days),
+               ("extension of time (days)", lambda m: m.eot_days),
+               ("revised completion", lambda m: m.revised_completion),
+               ("actual or forecast completion", lambda m: m.actual_completion),
+               ("compensable days", lambda m: m.compensable_days),
+               (f"prolongation cost ({currency})", lambda m: _text(m.prolongation_cost)),
+               ("culpable delay (the contractor's net delay)", lambda m: m.culpable_delay_days),
+               ("acceleration (the contractor's net recovery)", lambda m: m.acceleration_days),
+               ("culpable days (past the revised completion)", lambda m: m.culpable_days),
+               (f"liquidated damages ({currency})",
+                lambda m: _text(m.ld_exposure) + (" (capped)" if m.ld_capped else "")),
+               ("concurrent days", lambda m: m.concurrent_days)]
+    print_table(f"Entitlement per method (calendar days; concurrency {result.concurrency})",
+                ["figure", *[m.method for m in result.methods]],
+                [[name, *[_text(value(m)) for m in result.methods]] for name, value in figures])
     for m in result.methods:
         if len(m.sections):
             print_table(f"{m.method}: sections (never add them to each other or to the whole works)",
