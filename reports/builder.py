@@ -724,6 +724,19 @@ _MODELLED_CAUSATION_COLUMNS = ["step", "event", "party", "days", "alone_days", "
                                "classification"]
 
 
+def _event_rows(events: pd.DataFrame, extra: list[str] = (), alone: list[str] = (),
+                increment: list[str] = ()) -> pd.DataFrame:
+    """A modelled method's events for the report: the figures, and one column of notes
+    (activities not found, what a hold left alone, warnings)."""
+    notes = []
+    for record in events.itertuples(index=False):
+        parts = [record.applied, record.effect, *getattr(record, "warnings", [])]
+        notes.append("; ".join(p for p in parts if p))
+    columns = ["id", "title", "party", "impact", "start", *extra, "alone_days", *alone, "increment_days", *increment,
+               "completion_after"]
+    return events[columns].assign(notes=notes)
+
+
 def _impacted(ctx: _Context) -> Section:
     section = Section("impacted", "Impacted as-planned")
     if not _method_missing(ctx, section, "impacted"):
@@ -748,7 +761,8 @@ def _impacted(ctx: _Context) -> Section:
     blocks.append(FigureBlock("impacted_steps", completion_steps(_steps(rows), title="Completion after each event"),
                               "The staircase is the cumulative run; hollow markers show each event alone."))
     blocks.append(ctx.table("impacted_events", "Each event alone and in the cumulative run", "impacted",
-                            result.events, note=" ".join(result.notes)))
+                            _event_rows(result.events, ["finish"], ["alone_work_days", "completion_alone"],
+                                        ["increment_work_days"]), note=" ".join(result.notes)))
     blocks.append(ctx.table("impacted_by_party", "Per party", "impacted", result.by_party,
                             labels={"alone_days": "the party's events together, without the others"}))
     blocks.append(_causation_block(
@@ -782,7 +796,8 @@ def _tia(ctx: _Context) -> Section:
     blocks.append(ctx.table("tia_updates", "Each programme: its events, impacted completion and residual", "tia",
                             result.updates, labels={"increment_days": "increments of its events (calendar days)",
                                                     "events": "events inserted"}))
-    blocks.append(ctx.table("tia_events", "Each event in its update", "tia", result.events, note=" ".join(result.notes)))
+    blocks.append(ctx.table("tia_events", "Each event in the programme it was inserted into", "tia",
+                            _event_rows(result.events, ["update", "completion_before"]), note=" ".join(result.notes)))
     blocks.append(ctx.table("tia_by_party", "Per party", "tia", result.by_party,
                             labels={"alone_days": "impacts alone of its events, summed (need not add up)",
                                     "increment_days": "increments of its events (calendar days)"}))

@@ -151,7 +151,7 @@ def test_impacted_event_alone_and_cumulative_match_the_hand_working(small_report
     # numpy's business-day count (reference library): Fri 2025-01-17 to Wed 2025-01-22 is 3 work days
     assert np.busday_count("2025-01-17", "2025-01-22") == 3
     assert (event["alone_days"], event["alone_work_days"], event["completion_alone"]) == ("5", "3", "2025-01-22")
-    assert (event["cumulative_days"], event["completion_after"]) == ("5", "2025-01-22")
+    assert (event["increment_days"], event["completion_after"]) == ("5", "2025-01-22")
 
 
 def test_windows_and_as_built_match_the_hand_working(small_report):
