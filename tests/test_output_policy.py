@@ -182,6 +182,24 @@ def test_export_ifc_over_the_cases_own_events_csv_is_refused(case, tmp_path):
     assert temporaries(tmp_path) == []
 
 
+def test_import_ifc_never_writes_over_its_model_or_through_a_link_out_of_the_case(case, tmp_path):
+    pytest.importorskip("ifcopenshell")
+    # the model named is the case's own elements.csv, which the import would write
+    (case / "elements.csv").write_text("id,name,wbs\n", encoding="utf-8")
+    before = digest(case)
+    assert_refused(run("import-ifc", case / "elements.csv", case), "the model is the case's elements.csv")
+    assert digest(case) == before
+    # elements.csv is a link to a file outside the case: the import must not write there
+    outside = tmp_path / "shared-elements.csv"
+    outside.write_text("id,name,wbs\n", encoding="utf-8")
+    (case / "elements.csv").unlink()
+    (case / "elements.csv").symlink_to(outside)
+    model = tmp_path / "model.ifc"  # refused before the model is read
+    model.write_text("ISO-10303-21;\n", encoding="utf-8")
+    assert_refused(run("import-ifc", model, case), "a link out of the case folder")
+    assert outside.read_text(encoding="utf-8") == "id,name,wbs\n"
+
+
 def test_new_and_synth_write_only_into_a_new_or_empty_folder(tmp_path):
     mine = tmp_path / "mine"
     mine.mkdir()
