@@ -289,7 +289,12 @@ def clean_stale(folder: str | Path) -> None:
     """Remove the temporaries that runs which no longer run left in ``folder``.
 
     An earlier output that a killed run had moved aside, and whose place is still empty, is
-    put back instead. Nothing else is touched; a failure to remove is passed over.
+    put back instead. Nothing else is touched; a failure to remove is passed over. Every
+    writer of this module calls it on the folder it writes into.
+
+    Parameters
+    ----------
+    folder: the folder to clean (its own entries only, not those of its subfolders).
     """
     folder = Path(folder)
     try:
@@ -323,10 +328,20 @@ def _folder_mode(path: Path) -> None:
 
 # -- the marker -------------------------------------------------------------------------------
 def read_marker(folder: str | Path) -> dict | None:
-    """The marker of an output folder the toolkit wrote, or ``None`` when there is none.
+    """The marker of an output folder the toolkit wrote.
 
-    A marker is :data:`MARKER`, a JSON object naming :data:`TOOL`, with a random ``id`` of 32
-    hex digits and ``files``, the list of every path written in the folder.
+    A marker is :data:`MARKER`, a plain file (not a link) of at most 8 MiB holding a JSON
+    object that names :data:`TOOL`, with a random ``id`` of 32 hex digits and ``files``, the
+    list of every path written in the folder.
+
+    Parameters
+    ----------
+    folder: the folder to look in.
+
+    Returns
+    -------
+    dict or None
+        The marker's facts, or ``None`` when the folder holds no valid marker.
     """
     path = Path(folder) / MARKER
     try:
@@ -344,8 +359,19 @@ def read_marker(folder: str | Path) -> dict | None:
 
 
 def mark_folder(folder: str | Path, what: str) -> str:
-    """Write the marker of a new output into ``folder`` (its files are listed when
-    :func:`finish_marker` is called); returns the output's random id."""
+    """Write the marker of a new output into ``folder``; its files are listed when
+    :func:`finish_marker` is called.
+
+    Parameters
+    ----------
+    folder: a folder being built (under a temporary name).
+    what: what the output is (``report``, ``demo``), for a reader of the marker.
+
+    Returns
+    -------
+    str
+        The output's random id (32 hex digits), recorded in a report's manifest.
+    """
     identity = secrets.token_hex(16)
     _write_marker(Path(folder), {"tool": TOOL, "id": identity, "what": what, "files": []})
     return identity
@@ -374,7 +400,17 @@ def _listing(folder: Path, prefix: str = "") -> list[str]:
 
 
 def finish_marker(folder: str | Path) -> None:
-    """List in the marker of ``folder`` every path now written there."""
+    """List in the marker of ``folder`` every path now written there.
+
+    Parameters
+    ----------
+    folder: a folder marked by :func:`mark_folder`.
+
+    Raises
+    ------
+    ValueError
+        When the folder holds no marker (a fault of the caller).
+    """
     folder = Path(folder)
     facts = read_marker(folder)
     if facts is None:
@@ -491,6 +527,15 @@ def check_file_target(target: str | Path, *, case_root: str | Path | None = None
     """Check that an output file may be written at ``target``: new, or a file the toolkit
     wrote (``recognise(path)`` says so); never an input, the case folder or inside it.
 
+    Parameters
+    ----------
+    target: the output file as the user gave it.
+    case_root: the case folder (or workbook) the output is made from, if any.
+    inputs: every input file of the run.
+    recognise: whether an existing file is one the toolkit wrote; without it, an existing
+        file is refused.
+    option: how the user names the target, for the message.
+
     Returns
     -------
     Path
@@ -581,6 +626,16 @@ def output_folder(target: str | Path, *, case_root: str | Path | None = None, in
     file when the block is done. Use :func:`read_marker` on the yielded folder for the
     output's id.
 
+    Parameters
+    ----------
+    target, case_root, inputs, option: as for :func:`check_folder_target`.
+    what: what the output is, for its marker.
+
+    Yields
+    ------
+    Path
+        The folder to write into (it becomes ``target`` when the block ends without error).
+
     >>> with output_folder("out/demo", case_root="case_demo") as folder:   # doctest: +SKIP
     ...     (folder / "summary.json").write_text("{}")
 
@@ -607,6 +662,16 @@ def new_folder(target: str | Path, *, option: str = "") -> Iterator[Path]:
     which must be new or empty. No marker is written: the folder is the user's, not an
     output the toolkit may replace later.
 
+    Parameters
+    ----------
+    target: the new folder.
+    option: how the user names it, for the message.
+
+    Yields
+    ------
+    Path
+        The folder to write into.
+
     Raises
     ------
     OutputRefused, OutputFailed
@@ -630,8 +695,20 @@ def replace_directory(target: str | Path) -> Iterator[Path]:
     >>> with replace_directory("case/snapshots/u01") as folder:   # doctest: +SKIP
     ...     (folder / "snapshot.toml").write_text("...")
 
-    On an exception the temporary folder is removed and ``target`` is left as it was; an
-    OSError becomes :class:`OutputFailed`.
+    Parameters
+    ----------
+    target: the folder to replace (or to create).
+
+    Yields
+    ------
+    Path
+        The folder to write into.
+
+    Raises
+    ------
+    OutputFailed
+        An OSError while writing; the temporary folder is removed and ``target`` is left as
+        it was (as on any other exception).
     """
     with _staged(_real(target), str(target), None, None) as building:
         yield building
@@ -651,6 +728,17 @@ def write_through(path: str | Path, write: Callable[[str], object], suffix: str 
     then move it to ``path``; on an exception the temporary file is removed and ``path`` is
     left as it was. ``suffix`` ends the temporary name (a writer may choose its format by
     it).
+
+    Parameters
+    ----------
+    path: the file to write.
+    write: writes the file at the path it is given.
+    suffix: the end of the temporary name.
+
+    Returns
+    -------
+    Path
+        ``path``.
 
     Raises
     ------
@@ -680,12 +768,19 @@ def write_through(path: str | Path, write: Callable[[str], object], suffix: str 
 
 
 def write_bytes(path: str | Path, data: bytes) -> Path:
-    """Write ``data`` to ``path`` through a temporary file in the same folder."""
+    """Write ``data`` to ``path`` through a temporary file in the same folder
+    (:func:`write_through`); returns ``path``.
+
+    Raises
+    ------
+    OutputFailed
+        An OSError while writing.
+    """
     return write_through(path, lambda temporary: Path(temporary).write_bytes(data))
 
 
 def write_text(path: str | Path, text: str) -> Path:
-    """Write UTF-8 ``text`` to ``path`` through a temporary file."""
+    """Write UTF-8 ``text`` to ``path`` through a temporary file (:func:`write_bytes`)."""
     return write_bytes(path, text.encode("utf-8"))
 
 
@@ -693,6 +788,15 @@ def write_together(files: Mapping[str | Path, bytes]) -> tuple[Path, ...]:
     """Write several files that belong together: every one under a temporary name first,
     then all moved into place at once, so that a failure (a full disk) leaves all of them
     as they were.
+
+    Parameters
+    ----------
+    files: each file's path and its content.
+
+    Returns
+    -------
+    tuple of Path
+        The paths written, in the order given.
 
     Raises
     ------
@@ -732,11 +836,24 @@ def write_output_file(target: str | Path, write: Callable[[str], object], *, cas
                       recognise: Callable[[Path], bool] | None = None, suffix: str = ".part",
                       option: str = "") -> Path:
     """Check ``target`` with :func:`check_file_target`, then write it through a temporary
-    file (:func:`write_through`); returns ``target``.
+    file (:func:`write_through`).
+
+    Parameters
+    ----------
+    target, case_root, inputs, recognise, option: as for :func:`check_file_target`.
+    write, suffix: as for :func:`write_through`.
+
+    Returns
+    -------
+    Path
+        ``target``.
 
     Raises
     ------
-    OutputRefused, OutputFailed
+    OutputRefused
+        When ``target`` must not be written (nothing is written).
+    OutputFailed
+        An OSError while writing.
     """
     check_file_target(target, case_root=case_root, inputs=inputs, recognise=recognise, option=option)
     return write_through(target, write, suffix=suffix)
@@ -768,8 +885,17 @@ def _safe_cell(value):
 
 
 def csv_safe(frame: pd.DataFrame) -> pd.DataFrame:
-    """``frame`` with every text cell and column name passed through :func:`neutralise`;
-    numbers, dates and blanks unchanged (a copy; ``frame`` is not changed)."""
+    """``frame`` with every text cell and column name passed through :func:`neutralise`.
+
+    Parameters
+    ----------
+    frame: any table.
+
+    Returns
+    -------
+    pandas.DataFrame
+        A copy; numbers, dates and blanks unchanged (their columns keep their types).
+    """
     out = frame.copy()
     for position, column in enumerate(frame.columns):
         series = frame.iloc[:, position]
@@ -781,21 +907,43 @@ def csv_safe(frame: pd.DataFrame) -> pd.DataFrame:
 
 
 def csv_text(frame: pd.DataFrame, **to_csv) -> str:
-    """The CSV text of ``frame`` (no index), text cells neutralised (:func:`csv_safe`)."""
+    """The CSV text of ``frame`` (no index), text cells neutralised (:func:`csv_safe`);
+    ``to_csv`` goes to :meth:`pandas.DataFrame.to_csv` (``date_format``, say)."""
     buffer = io.StringIO()
     csv_safe(frame).to_csv(buffer, index=False, **to_csv)
     return buffer.getvalue()
 
 
 def write_csv(path: str | Path, frame: pd.DataFrame, **to_csv) -> Path:
-    """Write ``frame`` as an output CSV (no index, text cells neutralised) through a
-    temporary file; ``to_csv`` goes to :meth:`pandas.DataFrame.to_csv`."""
+    """Write ``frame`` as an output CSV (:func:`csv_text`) through a temporary file.
+
+    Returns
+    -------
+    Path
+        ``path``.
+
+    Raises
+    ------
+    OutputFailed
+        An OSError while writing.
+    """
     text = csv_text(frame, **to_csv)
     return write_bytes(path, text.encode("utf-8"))
 
 
 def copy_csv(source: str | Path, target: str | Path) -> Path:
-    """Copy a CSV file (a case file shown among the outputs) with every cell neutralised."""
+    """Copy a CSV file (a case file shown among the outputs) with every cell neutralised.
+
+    Parameters
+    ----------
+    source: a UTF-8 CSV file (a byte-order mark is dropped).
+    target: the copy to write (through a temporary file).
+
+    Returns
+    -------
+    Path
+        ``target``.
+    """
     with open(source, newline="", encoding="utf-8-sig") as handle:
         rows = list(csv.reader(handle))
     buffer = io.StringIO()

@@ -115,8 +115,18 @@ def _input_path(path: Path, base: Path) -> str:
 
 
 def input_files(case) -> list[dict[str, Any]]:
-    """Every file the case was read from: ``path`` (relative to the case folder, or the
-    workbook's name), ``bytes`` and ``sha256``; sorted by path."""
+    """Every file the case was read from.
+
+    Parameters
+    ----------
+    case: a loaded case.
+
+    Returns
+    -------
+    list of dict
+        ``path`` (relative to the case folder, or the workbook's name), ``bytes`` and
+        ``sha256`` of each file, sorted by path.
+    """
     base = _case_base(Path(case.root))
     rows = []
     for path in dict.fromkeys(Path(p) for p in case.input_files):
@@ -237,8 +247,19 @@ def _report_files(folder: Path) -> dict[str, Path]:
 
 
 def record_outputs(manifest: dict, folder: Path) -> dict:
-    """``manifest`` with ``outputs``: every file now in ``folder`` (all but the manifest and
-    the marker), with its size and SHA-256."""
+    """The manifest with the report's files recorded.
+
+    Parameters
+    ----------
+    manifest: from :func:`make_manifest`.
+    folder: the report folder, every file written but the manifest.
+
+    Returns
+    -------
+    dict
+        ``manifest`` with ``outputs``: every file now in ``folder`` (all but the manifest,
+        the marker and operating-system litter), with its size and SHA-256.
+    """
     outputs = [{"path": name, "bytes": path.stat().st_size, "sha256": _sha256(path)}
                for name, path in _report_files(folder).items()]
     return manifest | {"outputs": outputs}
@@ -407,6 +428,15 @@ class _Schema:
 
 def read_manifest(folder: str | Path) -> dict:
     """The manifest of a report folder, checked before it is trusted (module docstring).
+
+    Parameters
+    ----------
+    folder: a report folder.
+
+    Returns
+    -------
+    dict
+        The manifest, every key, type and path as the toolkit writes them.
 
     Raises
     ------

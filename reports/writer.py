@@ -54,6 +54,12 @@ def write_report(content: ReportContent, folder: Path, location: Path) -> Path:
     The folder gets its own marker (:func:`delay.output.mark_folder`), so that it is an
     output of the toolkit wherever it sits (inside the folder of ``delay demo``, say).
 
+    Parameters
+    ----------
+    content: the report's content (:func:`reports.builder.compute`).
+    folder: a new folder inside a folder being built by :func:`delay.output.output_folder`.
+    location: where ``folder`` will be once it is moved into place.
+
     Returns
     -------
     Path
@@ -128,7 +134,7 @@ def demo_report(case: Case | str | Path, out_dir: str | Path, *,
 
 
 def demo_title(case: Case) -> str:
-    """The title of the demo's report."""
+    """The title of the demo's report of ``case`` (a loaded case)."""
     return f"Delay analysis report: {case.settings.project.name}"
 
 

@@ -493,8 +493,19 @@ WRITTEN_BY = "delay-toolkit"
 
 
 def written_by_toolkit(path: Path) -> bool:
-    """Whether ``path`` is an IFC file this toolkit's export wrote (its header says so), and
-    may therefore be replaced by the next export."""
+    """Whether ``path`` is an IFC file this toolkit's export wrote, and may therefore be
+    replaced by the next export.
+
+    Parameters
+    ----------
+    path: an existing file.
+
+    Returns
+    -------
+    bool
+        True when the file is a STEP physical file (ISO 10303-21) whose header's FILE_NAME
+        names :data:`WRITTEN_BY` as the program that wrote it.
+    """
     try:
         with open(path, "rb") as stream:
             head = stream.read(4096)

@@ -73,6 +73,7 @@ __all__ = [
     "ELEMENT_COLUMNS",
     "FINDINGS_FILE",
     "SOURCE_FILE",
+    "WRITTEN_FILES",
     "GEOMETRY_LIBRARY",
 ]
 
