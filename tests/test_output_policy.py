@@ -9,9 +9,9 @@ the project are hashlib for "unchanged", the POSIX rule for file modes (a new fo
 that a process ended by signal N exits with status 128 + N (130 for SIGINT, 143 for
 SIGTERM; POSIX "Shell Command Language", 2.8.2 Exit Status for Commands).
 
-The small case (5-day calendar from Monday 2025-01-06): START -> A (5 days) -> B (5 days)
--> END, an update at 2025-01-13 with A finished, one employer event on B, an as-built
-record; enough for every method of the report.
+The case is the small one of tests/test_report.py (START -> A -> B -> END on a 5-day
+calendar, an update with A finished, one employer event on B, an as-built record, two model
+elements): enough for every method of the report.
 """
 
 from __future__ import annotations
@@ -29,33 +29,12 @@ from pathlib import Path
 import pytest
 from click.testing import CliRunner
 
-from casewriter import write_case
 from delay import output
 from delay.cli import cli
+from test_report import write_small_case
 
-ACTIVITIES = [
-    {"id": "START", "name": "Possession of the site", "duration": 0, "kind": "start_milestone", "wbs": "1"},
-    {"id": "A", "name": "Dig the foundations", "duration": 5, "wbs": "1"},
-    {"id": "B", "name": "Cast the slab", "duration": 5, "wbs": "2"},
-    {"id": "END", "name": "Completion", "duration": 0, "kind": "finish_milestone", "wbs": "2"},
-]
-LINKS = [{"pred": "START", "succ": "A"}, {"pred": "A", "succ": "B"}, {"pred": "B", "succ": "END"}]
-UPDATE = [dict(ACTIVITIES[0], actual_start="2025-01-06"),
-          dict(ACTIVITIES[1], actual_start="2025-01-06", actual_finish="2025-01-10"),
-          ACTIVITIES[2], ACTIVITIES[3]]
-EVENTS = [{"id": "E1", "title": "Late drawings for the slab", "party": "employer", "start": "2025-01-13",
-           "finish": "2025-01-22", "activities": "B", "impact": "extend", "days": 3}]
-ASBUILT = [{"id": "START", "actual_start": "2025-01-06", "actual_finish": "2025-01-06"},
-           {"id": "A", "actual_start": "2025-01-06", "actual_finish": "2025-01-10"},
-           {"id": "B", "actual_start": "2025-01-13", "actual_finish": "2025-01-22"},
-           {"id": "END", "actual_start": "2025-01-22", "actual_finish": "2025-01-22"}]
-
-
-def small_case(root: Path) -> Path:
-    return write_case(root, activities=ACTIVITIES, links=LINKS, completion="2025-01-17",
-                      commercial={"currency": "EUR", "prolongation_cost_per_day": 100},
-                      snapshots={"u01": {"label": "Update 01", "data_date": "2025-01-13", "activities": UPDATE}},
-                      files={"events.csv": EVENTS, "asbuilt.csv": ASBUILT})
+# the small case of the report's tests (its working is in tests/test_report.py)
+small_case = write_small_case
 
 
 def digest(root: Path) -> dict[str, str]:

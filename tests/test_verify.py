@@ -8,8 +8,8 @@ exit status 1. The references outside the project are hashlib (SHA-256, for "unc
 for the hashes that must never be printed), openpyxl (to change a number in the workbook as
 a spreadsheet user would) and importlib.metadata (the installed version of each dependency).
 
-The case is the small one of tests/test_output_policy.py (START -> A -> B -> END, an
-update, one event, an as-built record).
+The case is the small one of tests/test_report.py (START -> A -> B -> END, an update, one
+event, an as-built record).
 """
 
 from __future__ import annotations
@@ -270,8 +270,9 @@ def test_every_difference_is_one_line_of_a_known_kind(project):
     (report / "report.html").write_text("<p>another report</p>", encoding="utf-8")
     (report / "extra.txt").write_text("x", encoding="utf-8")
     activities = project / "case" / "snapshots" / "baseline" / "activities.csv"
-    activities.write_text(activities.read_text(encoding="utf-8").replace("Cast the slab,5", "Cast the slab,7"),
-                          encoding="utf-8")
+    text = activities.read_text(encoding="utf-8")
+    assert "A,Dig the foundations,5" in text
+    activities.write_text(text.replace("A,Dig the foundations,5", "A,Dig the foundations,7"), encoding="utf-8")
     kinds = ("output changed:", "output added:", "input changed:", "table differs:")
     lines = differences(run("verify", report))
     assert all(line.startswith(kinds) for line in lines), lines
@@ -304,7 +305,7 @@ def test_a_workbook_case_is_verified_from_its_workbook(tmp_path):
     build(workbook, tmp_path / "project" / "report", methods="impacted")
     manifest = manifest_of(tmp_path / "project" / "report")
     assert manifest["case"] == {"path": "case.xlsx", "form": "workbook", "relative_to_report": "../case.xlsx",
-                                "project": "Test case"}
+                                "project": "Test case"}  # casewriter's project name
     assert [i["path"] for i in manifest["inputs"]] == ["case.xlsx"]
     (tmp_path / "project").rename(tmp_path / "moved")
     result = run("verify", tmp_path / "moved" / "report")
