@@ -518,7 +518,7 @@ def written_by_toolkit(path: Path) -> bool:
     return start >= 0 and f"'{WRITTEN_BY} ".encode() in head[start:end]
 
 
-def _guard(case: Case, out_path: Path, model: Path | None) -> dict:
+def _guard(case: Case, model: Path | None) -> dict:
     """The output policy's checks for the export's file (delay.output.check_file_target)."""
     inputs = list(case.input_files) + ([model] if model is not None else [])
     return {"case_root": case.root, "inputs": inputs, "recognise": written_by_toolkit}
@@ -585,7 +585,7 @@ def export_schedule(
     root = Path(case.root)
     if model is None and use_imported_model and root.is_dir():
         model = imported_model_path(root)
-    guard = _guard(case, Path(out_path), Path(model) if model is not None else None)
+    guard = _guard(case, Path(model) if model is not None else None)
     check_file_target(out_path, **guard)  # refused before any work
     snap = snapshot if isinstance(snapshot, Snapshot) else _find(case, snapshot)
     result = schedule(case, snap, settings)
