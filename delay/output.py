@@ -58,6 +58,7 @@ import time
 from pathlib import Path
 from typing import Callable, Iterable, Iterator, Mapping
 
+import numpy as np
 import pandas as pd
 
 __all__ = [
@@ -893,11 +894,16 @@ def csv_safe(frame: pd.DataFrame) -> pd.DataFrame:
         A copy; numbers, dates and blanks unchanged (their columns keep their types).
     """
     out = frame.copy()
-    for position, column in enumerate(frame.columns):
+    for position in range(frame.shape[1]):
         series = frame.iloc[:, position]
         if not (pd.api.types.is_object_dtype(series.dtype) or pd.api.types.is_string_dtype(series.dtype)):
             continue
-        out.isetitem(position, series.map(_safe_cell).astype(object))
+        column = series.to_numpy(dtype=object, copy=True)
+        starts = np.fromiter((isinstance(v, str) and v[:1] in _FORMULA_START for v in column), dtype=bool,
+                             count=len(column))
+        if starts.any():
+            column[starts] = [_safe_cell(v) for v in column[starts]]
+            out.isetitem(position, pd.Series(column, index=series.index, name=series.name, dtype=object))
     out.columns = [_safe_cell(c) for c in frame.columns]
     return out
 
