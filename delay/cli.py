@@ -2,15 +2,18 @@
 
 Every command that prints a table takes ``--format``; ``json`` gives the machine form.
 Input problems print one plain line each (file, row, column, what is wrong, what to do) and
-exit with status 2, never with a traceback; outputs are written under a temporary name and
-moved into place, so a failed run leaves nothing half-written.
+exit with status 2, never with a traceback. Every command that writes follows one output
+policy (:mod:`delay.output`): a target that holds anything the toolkit did not write, the
+case or an input is refused (one line, status 2); outputs are written under a temporary name
+and moved into place, so a failed or interrupted run leaves nothing half-written; a failed
+write is one line and status 2; Ctrl-C is one line and status 130 (SIGTERM 143).
 """
 
 from __future__ import annotations
 
 import dataclasses
-import io
 import json
+import sys
 from pathlib import Path
 
 import click
@@ -84,7 +87,7 @@ def _print_summary(summary: dict) -> None:
 
 
 @cli.command()
-@click.argument("directory", type=click.Path(file_okay=False))
+@click.argument("directory", type=click.Path())
 @reports_input_errors
 def new(directory):
     """Write an empty, valid case skeleton into DIRECTORY.
@@ -93,8 +96,10 @@ def new(directory):
     one start milestone, a case.toml with every setting explained, and a text file that
     explains each column. DIRECTORY must be new or empty.
     """
+    from .output import check_folder_target
     from .skeleton import write_skeleton
 
+    check_folder_target(Path(directory), earlier=False)  # one line when it is not new or empty
     path = write_skeleton(Path(directory))
     click.echo(f"Wrote an empty case to {path}. Fill in the CSV files, then run: delay validate {path}")
 
@@ -133,9 +138,11 @@ def schedule(case, snapshot, output_format, progress, float_to, lag_calendar):
         return
     frame = _schedule_rows(result)
     if output_format == "csv":
-        buffer = io.StringIO()
-        frame.to_csv(buffer, index=False, date_format="%Y-%m-%d")
-        click.echo(buffer.getvalue(), nl=False)
+        from .cpm import _find
+        from .output import csv_text
+
+        frame = _with_unknown_columns(frame, _find(loaded, snapshot))
+        click.echo(csv_text(frame, date_format="%Y-%m-%d"), nl=False)
         return
     columns = ["id", "name", "status", "early_start", "early_finish", "late_start", "late_finish",
                "total_float", "free_float", "critical", "driving"]
@@ -157,6 +164,20 @@ def _schedule_rows(result):
     return frame.drop(columns="_path").reset_index(drop=True)
 
 
+def _with_unknown_columns(frame, snap):
+    """The schedule with the snapshot's columns the toolkit does not know carried along, by
+    activity id (a name the schedule uses already gets `` (input)``)."""
+    from .model import COLUMNS
+
+    activities = snap.activities
+    unknown = [c for c in activities.columns if c not in COLUMNS["activities"]]
+    if not unknown:
+        return frame
+    extra = activities[["id", *unknown]].drop_duplicates("id")
+    extra = extra.rename(columns={c: f"{c} (input)" for c in unknown if c in frame.columns})
+    return frame.merge(extra, on="id", how="left", sort=False)
+
+
 def _cell(value):
     import pandas as pd
 
@@ -170,7 +191,7 @@ def _cell(value):
 
 
 @cli.command()
-@click.argument("out", type=click.Path(file_okay=False))
+@click.argument("out", type=click.Path())
 @click.option("--activities", type=click.IntRange(2, 5_000_000), required=True, help="Number of activities.")
 @click.option("--links-per-activity", type=click.FloatRange(1.0, 20.0), default=2.5, show_default=True)
 @click.option("--updates", type=click.IntRange(0, 240), default=0, show_default=True,
@@ -196,8 +217,9 @@ def _demo_case() -> Path:
 
 
 @cli.command()
-@click.option("--out", "out_dir", type=click.Path(file_okay=False), default="out/demo", show_default=True,
-              help="Folder for the outputs (replaced whole when the run succeeds).")
+@click.option("--out", "out_dir", type=click.Path(), default="out/demo", show_default=True,
+              help="Folder for the outputs: new, empty or an earlier output of the toolkit (replaced whole "
+                   "when the run succeeds); never the case folder, inside it or above it.")
 @click.option("--case", "case_path", type=click.Path(exists=True), default=None,
               help="Another case to run instead of the bundled demo.")
 @reports_input_errors
@@ -214,11 +236,20 @@ def demo(out_dir, case_path):
     from .demo import run_demo
 
     case = Path(case_path) if case_path else _demo_case()
-    written = run_demo(case, Path(out_dir), echo=click.echo)
-    from reports.writer import demo_report  # the report builder sits downstream of delay
-
-    demo_report(case, Path(out_dir) / "report", echo=click.echo)
+    written = run_demo(case, Path(out_dir), echo=click.echo, extra=_demo_report)
     click.echo(f"Wrote {len(written)} files to {out_dir} and the report to {Path(out_dir) / 'report' / 'report.html'}")
+
+
+def _demo_report(case, folder: Path, out_dir: Path) -> list[Path]:
+    """The demo's full report, written into the demo's folder as it is built."""
+    from reports.builder import compute  # the report builder sits downstream of delay
+    from reports.writer import REPORT_FILE, demo_title, write_report
+
+    click.echo(f"Analysing {case.settings.project.name} for the report")
+    content = compute(case, None, demo_title(case))
+    click.echo(f"Writing the report: {len(content.tables)} tables")
+    write_report(content, folder / "report", out_dir / "report")
+    return [out_dir / "report" / REPORT_FILE]
 
 
 for _command in all_commands():
@@ -226,7 +257,23 @@ for _command in all_commands():
 
 
 def main() -> None:
-    cli(prog_name="delay")
+    """The ``delay`` command: Ctrl-C and SIGTERM end it with one line (status 130 or 143)
+    after every temporary output is removed; an output refused or a failed write is one
+    line and status 2 even where a command did not catch it."""
+    from .output import Interrupted, OutputFailed, OutputRefused, describe_os_error, install_signal_handlers
+
+    install_signal_handlers()
+    try:
+        cli(prog_name="delay")
+    except Interrupted as stop:
+        click.echo(f"error: {stop}", err=True)
+        sys.exit(stop.exit_status)
+    except (OutputRefused, OutputFailed) as error:
+        click.echo(f"error: {error}", err=True)
+        sys.exit(2)
+    except OSError as error:
+        click.echo(f"error: {describe_os_error(error)}", err=True)
+        sys.exit(2)
 
 
 if __name__ == "__main__":

@@ -1,6 +1,10 @@
 """``delay demo``: every capability of the toolkit, run on one case.
 
-The outputs go into a folder built under a temporary name and moved into place whole.
+The outputs go into one folder, checked by the toolkit's output policy (new, empty or an
+earlier output; never the case or an input), built under a temporary name and moved into
+place whole (:func:`delay.output.output_folder`). Every CSV goes through
+:func:`delay.output.write_csv` (text cells that a spreadsheet would run are neutralised), and
+nothing written names a path of the machine: the case appears by its folder's name.
 Each capability adds its outputs here as it is built.
 """
 
@@ -15,24 +19,40 @@ import pandas as pd
 from .calendars import CalendarSet, build_calendars
 from .case import load_case, summarise
 from .cpm import prepare
-from .output import replace_directory
+from .output import output_folder, write_csv
 
 __all__ = ["run_demo"]
 
 
-def run_demo(case_path: Path, out_dir: Path, echo: Callable[[str], None] = print) -> list[Path]:
+def run_demo(case_path: Path, out_dir: Path, echo: Callable[[str], None] = print, *,
+             extra: Callable[[object, Path, Path], list[Path]] | None = None) -> list[Path]:
     """Run the demo on ``case_path``, writing into ``out_dir``; returns the files written.
+
+    Parameters
+    ----------
+    case_path: the case folder or workbook.
+    out_dir: the output folder (new, empty or an earlier output of the toolkit).
+    echo: called with a line of progress.
+    extra: ``extra(case, folder, out_dir)`` writes more outputs into ``folder`` (the folder
+        being built) before it is moved to ``out_dir``, and returns their paths under
+        ``out_dir``; the command line writes the report this way.
 
     Raises
     ------
     CaseError
         When the case is invalid (nothing is written then).
+    delay.output.OutputRefused
+        When ``out_dir`` must not be written (nothing is written then).
+    delay.output.OutputFailed
+        An OSError while writing (an earlier output survives whole).
     """
     case = load_case(case_path)
     echo(f"Loaded {case.settings.project.name}: {len(case.snapshots)} snapshots")
     written: list[Path] = []
-    with replace_directory(out_dir) as folder:
+    with output_folder(out_dir, case_root=case.root, inputs=case.input_files, what="demo",
+                       option=" (--out)") as folder:
         summary = summarise(case)
+        summary["root"] = Path(case.root).resolve().name  # the case by its name, never a path of the machine
         (folder / "case_summary.json").write_text(json.dumps(summary, indent=2), encoding="utf-8")
         written.append(out_dir / "case_summary.json")
         from .checks import run_all
@@ -49,7 +69,7 @@ def run_demo(case_path: Path, out_dir: Path, echo: Callable[[str], None] = print
         for snap in snapshots:
             result = prepare(case, snap, calendars=calendars).run()
             frame = result.activities
-            frame.to_csv(schedules / f"{snap.folder}.csv", index=False, date_format="%Y-%m-%d")
+            write_csv(schedules / f"{snap.folder}.csv", frame, date_format="%Y-%m-%d")
             (schedules / f"{snap.folder}.json").write_text(json.dumps(result.to_json(), indent=2), encoding="utf-8")
             written += [out_dir / "schedules" / f"{snap.folder}.csv", out_dir / "schedules" / f"{snap.folder}.json"]
             trend.append({
@@ -59,7 +79,7 @@ def run_demo(case_path: Path, out_dir: Path, echo: Callable[[str], None] = print
                 "driving_path_length": len(result.driving_path()),
             })
             echo(f"  {snap.label:<24} data date {snap.data_date}  completion {result.completion}")
-        pd.DataFrame(trend).to_csv(folder / "completion_by_snapshot.csv", index=False)
+        write_csv(folder / "completion_by_snapshot.csv", pd.DataFrame(trend))
         written.append(out_dir / "completion_by_snapshot.csv")
         written += _retrospective(case, folder, out_dir, echo)
         written += _modelled(case, folder, out_dir, echo)
@@ -72,6 +92,8 @@ def run_demo(case_path: Path, out_dir: Path, echo: Callable[[str], None] = print
             written += [out_dir / p.relative_to(folder) for p in ifc_files]
             if ifc_files:
                 echo(f"IFC: the demo model imported and the baseline exported as a work schedule ({len(ifc_files)} files)")
+        if extra is not None:
+            written += extra(case, folder, out_dir)
     return written
 
 
@@ -83,19 +105,19 @@ def _retrospective(case, folder: Path, out_dir: Path, echo) -> list[Path]:
     if len(case.snapshots) + (case.asbuilt_snapshot is not None) >= 2:
         result = windows.analyse(case)
         (folder / "windows.json").write_text(json.dumps(result.to_json(), indent=2), encoding="utf-8")
-        result.table.to_csv(folder / "windows.csv", index=False, date_format="%Y-%m-%d")
+        write_csv(folder / "windows.csv", result.table, date_format="%Y-%m-%d")
         charges = result.charges
         for column in ("concurrent_with", "events", "parties"):
             if column in charges:
                 charges[column] = charges[column].map(lambda v: "; ".join(v) if isinstance(v, list) else v)
-        charges.to_csv(folder / "windows_charges.csv", index=False)
+        write_csv(folder / "windows_charges.csv", charges)
         written += [out_dir / "windows.json", out_dir / "windows.csv", out_dir / "windows_charges.csv"]
         echo(f"Windows analysis: {len(result.windows)} windows, total movement {result.total_movement_days} days")
     if case.asbuilt_snapshot is not None:
         compared = as_built.compare(case)
         (folder / "asbuilt.json").write_text(json.dumps(compared.to_json(), indent=2), encoding="utf-8")
-        compared.activities.to_csv(folder / "asbuilt_activities.csv", index=False, date_format="%Y-%m-%d")
-        compared.critical_path.to_csv(folder / "asbuilt_critical_path.csv", index=False, date_format="%Y-%m-%d")
+        write_csv(folder / "asbuilt_activities.csv", compared.activities, date_format="%Y-%m-%d")
+        write_csv(folder / "asbuilt_critical_path.csv", compared.critical_path, date_format="%Y-%m-%d")
         written += [out_dir / "asbuilt.json", out_dir / "asbuilt_activities.csv", out_dir / "asbuilt_critical_path.csv"]
         echo(f"As-built: planned completion {compared.planned_completion}, actual {compared.actual_completion}")
     return written
@@ -109,7 +131,7 @@ def _modelled(case, folder: Path, out_dir: Path, echo) -> list[Path]:
     if len(case.events):
         impact = impacted.analyse(case)
         (folder / "impacted.json").write_text(json.dumps(impact.to_json(), indent=2), encoding="utf-8")
-        impact.events.to_csv(folder / "impacted_events.csv", index=False, date_format="%Y-%m-%d")
+        write_csv(folder / "impacted_events.csv", impact.events, date_format="%Y-%m-%d")
         tia = time_impact.analyse(case)
         (folder / "time_impact.json").write_text(json.dumps(tia.to_json(), indent=2), encoding="utf-8")
         written += [out_dir / "impacted.json", out_dir / "impacted_events.csv", out_dir / "time_impact.json"]
@@ -136,7 +158,7 @@ def _entitlement(case, folder: Path, out_dir: Path, echo) -> list[Path]:
     (folder / "entitlement.json").write_text(json.dumps(assessed.to_json(), indent=2), encoding="utf-8")
     compared = compare_methods(case, {m: assessed.method(m) for m in methods})
     (folder / "comparison.json").write_text(json.dumps(compared.to_json(), indent=2), encoding="utf-8")
-    sensitivity(case, methods).to_csv(folder / "sensitivity.csv", index=False)
+    write_csv(folder / "sensitivity.csv", sensitivity(case, methods))
     for m in methods:
         e = assessed.method(m)
         echo(f"  {m:<10} extension of time {e.eot_days} days (revised completion {e.revised_completion}), "

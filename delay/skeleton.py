@@ -10,15 +10,13 @@ from __future__ import annotations
 
 import csv
 import datetime as dt
-import os
-import shutil
-import tempfile
 import textwrap
 from pathlib import Path
 
 from delay.errors import CaseError, Problem
 from delay.case._source import OPTIONAL_FILES
 from delay.model import COLUMNS
+from delay.output import new_folder
 
 __all__ = ["write_skeleton", "FILE_GUIDE", "GUIDE_NAME"]
 
@@ -330,9 +328,8 @@ def write_skeleton(directory: str | Path, *, project_name: str = "New project",
             fix="give the path of a new or empty folder"))
     start = start or _next_monday(dt.date.today())
     completion = start + dt.timedelta(weeks=52, days=-3)
-    directory.parent.mkdir(parents=True, exist_ok=True)
-    staging = Path(tempfile.mkdtemp(prefix=f".{directory.name}.", dir=directory.parent))
-    try:
+    # built under a temporary name and moved into place (delay.output.new_folder)
+    with new_folder(directory) as staging:
         (staging / "case.toml").write_text(_case_toml(project_name, start, completion),
                                            encoding="utf-8")
         _write_csv(staging / "calendars.csv", COLUMNS["calendars"], [
@@ -351,15 +348,6 @@ def write_skeleton(directory: str | Path, *, project_name: str = "New project",
         for name in OPTIONAL_FILES:
             _write_csv(staging / f"{name}.csv", COLUMNS[name])
         (staging / GUIDE_NAME).write_text(_guide_text(), encoding="utf-8")
-        os.chmod(staging, 0o777 & ~_umask())
-        os.replace(staging, directory)
-    except BaseException:
-        shutil.rmtree(staging, ignore_errors=True)
-        raise
     return directory
 
 
-def _umask() -> int:
-    mask = os.umask(0)
-    os.umask(mask)
-    return mask

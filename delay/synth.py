@@ -18,9 +18,6 @@ case.
 from __future__ import annotations
 
 import datetime as dt
-import os
-import shutil
-import tempfile
 from pathlib import Path
 
 import numpy as np
@@ -28,6 +25,7 @@ import pandas as pd
 
 from .calendars import CalendarSet, WorkCalendar, parse_workdays
 from .network import LINK_CODES, build_network
+from .output import check_folder_target, new_folder
 
 __all__ = ["synthesise", "synthetic_network"]
 
@@ -164,20 +162,22 @@ def synthesise(out: str | Path, activities: int, links_per_activity: float = 2.5
     Returns
     -------
     Path of the case folder.
+
+    Raises
+    ------
+    delay.output.OutputRefused
+        When ``out`` is a file or a folder that is not empty (nothing is written).
     """
     out = Path(out)
-    if out.exists() and any(out.iterdir()):
-        raise FileExistsError(f"{out} is not empty")
+    check_folder_target(out, earlier=False)  # new or empty, before any work
     rng = np.random.default_rng(seed + 1)
     acts, links = synthetic_network(activities, links_per_activity, seed)
     start_day, finish_day, calendars, actual = _actual_run(acts, links, rng)
     end = dt.date(1970, 1, 1) + dt.timedelta(days=int(finish_day.max()))
     planned_end = end  # contract completion a little before the simulated end
     contract = START + dt.timedelta(days=max(30, int((planned_end - START).days * 0.8)))
-    parent = out.parent
-    parent.mkdir(parents=True, exist_ok=True)
-    tmp = Path(tempfile.mkdtemp(prefix=".synth-", dir=parent))
-    try:
+    # built under a temporary name and moved into place (delay.output.new_folder)
+    with new_folder(out) as tmp:
         (tmp / "case.toml").write_text(
             "[project]\n"
             f'name = "Synthetic programme of {activities} activities (seed {seed})"\n'
@@ -254,12 +254,6 @@ def synthesise(out: str | Path, activities: int, links_per_activity: float = 2.5
             }).to_csv(tmp / "asbuilt.csv", index=False)
         if elements:
             _write_elements(tmp / "elements.csv", acts, elements, rng)
-        if out.exists():
-            out.rmdir()
-        os.replace(tmp, out)
-    except BaseException:
-        shutil.rmtree(tmp, ignore_errors=True)
-        raise
     return out
 
 

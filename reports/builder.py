@@ -998,7 +998,8 @@ def _inputs(ctx: _Context, title: str) -> Section:
     case = ctx.case
     blocks = section.blocks
     summary = []
-    summary.append(("Case", str(Path(case.root).resolve())))
+    # the case by its folder's (or workbook's) name: the report names no path of the machine it was made on
+    summary.append(("Case", Path(case.root).resolve().name))
     summary.append(("Programmes", f"{len(case.snapshots)} (baseline and {len(case.updates)} progress updates)"
                     + ("; an as-built record" if case.asbuilt_snapshot is not None else "; no as-built record")))
     summary.append(("Delay events", str(len(case.events))))

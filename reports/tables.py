@@ -16,7 +16,12 @@ Canonical CSV (the text that is fingerprinted and written to ``tables/<key>.csv`
 - floats as Python's ``repr`` (the shortest text that reads back to the same float);
 - whole numbers as digits, booleans as ``true`` / ``false``;
 - a missing value (``None``, ``NaN``, ``NaT``, ``<NA>``) as an empty field;
-- a list or tuple as its items joined by ``;``.
+- a list or tuple as its items joined by ``;``;
+- a text cell (or column name) that a spreadsheet would run as a formula - one that starts
+  with ``=``, ``+``, ``-``, ``@``, a tab or a carriage return and is not a plain number -
+  with a leading apostrophe (:func:`delay.output.neutralise`, after the OWASP guidance on
+  CSV injection); numbers, dates and text such as ``-3`` stay as they are. The workbook's
+  cells are typed strings and keep the text as it is.
 
 The fingerprint of a table is the SHA-256 of its canonical CSV.
 """
@@ -36,6 +41,8 @@ from typing import Iterable, Mapping, Sequence
 
 import numpy as np
 import pandas as pd
+
+from delay.output import neutralise
 
 __all__ = [
     "ReportTable",
@@ -299,14 +306,25 @@ def canonical_value(value) -> str:
     return str(value)
 
 
+def _csv_cell(value) -> str:
+    text = canonical_value(value)
+    if isinstance(value, (bool, np.bool_, int, np.integer, float, np.floating, dt.date, np.datetime64)):
+        return text  # a number or a date: never a formula
+    return neutralise(text)
+
+
 def canonical_csv(frame: pd.DataFrame) -> str:
-    """The canonical CSV text of ``frame`` (see the module docstring)."""
+    """The canonical CSV text of ``frame`` (see the module docstring).
+
+    >>> canonical_csv(pd.DataFrame({"name": ["=1+1", "-3", "Dig"], "days": [-3, 2, 1]})).splitlines()
+    ['name,days', "'=1+1,-3", '-3,2', 'Dig,1']
+    """
     buffer = io.StringIO()
     writer = csv.writer(buffer, lineterminator="\n", quoting=csv.QUOTE_MINIMAL)
-    writer.writerow([str(c) for c in frame.columns])
-    columns = [frame[c].tolist() for c in frame.columns]
+    writer.writerow([neutralise(str(c)) for c in frame.columns])
+    columns = [frame.iloc[:, i].tolist() for i in range(frame.shape[1])]
     for row in zip(*columns):
-        writer.writerow([canonical_value(v) for v in row])
+        writer.writerow([_csv_cell(v) for v in row])
     return buffer.getvalue()
 
 

@@ -1,16 +1,19 @@
 """Writing a report folder: the page, the appendices and the manifest, all at once.
 
-:func:`build` writes into a folder built under a temporary name and moved into place whole
-(:func:`delay.output.replace_directory`): a reader never sees half a report, and a failed
-run leaves whatever was there before.
+:func:`build` checks the target by the toolkit's output policy (:mod:`delay.output`: new,
+empty or an earlier output of the toolkit; never the case or an input), then writes into a
+folder built under a temporary name and moved into place whole: a reader never sees half a
+report, and a failed or interrupted run leaves whatever was there before.
 
 ::
 
     DIR/
-      report.html      the report, one self-contained page (plotly.js inlined)
-      tables.xlsx      every table of the report as a sheet (dates as dates)
-      tables/*.csv     every table as canonical CSV (the text that is fingerprinted)
-      manifest.json    tool version, settings, input hashes, time of the run, fingerprints
+      report.html        the report, one self-contained page (plotly.js inlined)
+      tables.xlsx        every table of the report as a sheet (dates as dates)
+      tables/*.csv       every table as canonical CSV (the text that is fingerprinted)
+      manifest.json      tool version, settings, input hashes, the hash of every file above,
+                         time of the run, fingerprints
+      delay-output.json  the marker of an output folder of the toolkit (delay.output.MARKER)
 """
 
 from __future__ import annotations
@@ -19,20 +22,21 @@ import json
 from pathlib import Path
 from typing import Callable, Sequence
 
-from delay.errors import CaseError, Problem
 from delay.model import Case
-from delay.output import replace_directory
+from delay.output import check_folder_target, finish_marker, mark_folder, output_folder
 
 from .builder import CAUTIONS, ReportContent, compute, resolve_methods
-from .manifest import MANIFEST, make_manifest
+from .manifest import MANIFEST, make_manifest, record_outputs
 from .page import render_html
 from .tables import write_csv_files, write_workbook
 
-__all__ = ["build", "demo_report", "REPORT_FILE", "WORKBOOK_FILE", "TABLES_FOLDER"]
+__all__ = ["build", "demo_report", "demo_title", "write_report", "content_of", "REPORT_FILE", "WORKBOOK_FILE", "TABLES_FOLDER"]
 
 REPORT_FILE = "report.html"
 WORKBOOK_FILE = "tables.xlsx"
 TABLES_FOLDER = "tables"
+
+_OPTION = " (--out)"
 
 
 def _case(case: Case | str | Path) -> Case:
@@ -43,21 +47,35 @@ def _case(case: Case | str | Path) -> Case:
     return load_case(Path(case))
 
 
-def _check_target(out_dir: Path, case: Case) -> None:
-    """Refuse a folder whose replacement would lose anything but an earlier report."""
-    out = out_dir.resolve()
-    root = Path(case.root).resolve()
-    shown = str(out_dir)
-    if out.exists() and not out.is_dir():
-        raise CaseError(Problem(file=shown, message="the output is a file, not a folder",
-                                fix="give a folder for the report with --out"))
-    if root == out or root.is_relative_to(out):
-        raise CaseError(Problem(file=shown, message="the output folder holds the case itself",
-                                fix="give a new folder for the report with --out"))
-    if out.is_dir() and any(out.iterdir()) and not (out / MANIFEST).is_file():
-        raise CaseError(Problem(file=shown, message="the folder exists and is not a report folder; it would be "
-                                                    "replaced whole",
-                                fix="give a new or empty folder, or the folder of an earlier report, with --out"))
+def write_report(content: ReportContent, folder: Path, location: Path) -> Path:
+    """Write the report of ``content`` into ``folder``, a new folder that will be moved to
+    ``location`` (the manifest records the case relative to that place).
+
+    The folder gets its own marker (:func:`delay.output.mark_folder`), so that it is an
+    output of the toolkit wherever it sits (inside the folder of ``delay demo``, say).
+
+    Parameters
+    ----------
+    content: the report's content (:func:`reports.builder.compute`).
+    folder: a new folder inside a folder being built by :func:`delay.output.output_folder`.
+    location: where ``folder`` will be once it is moved into place.
+
+    Returns
+    -------
+    Path
+        ``folder``.
+    """
+    folder.mkdir(parents=True, exist_ok=True)
+    output_id = mark_folder(folder, "report")
+    manifest = make_manifest(content, location, output_id=output_id)
+    page = render_html(content, manifest)
+    (folder / REPORT_FILE).write_bytes(page.encode("utf-8"))
+    write_workbook(content.tables, folder / WORKBOOK_FILE, title=content.title, caution=" ".join(CAUTIONS))
+    write_csv_files(content.tables, folder / TABLES_FOLDER)
+    manifest = record_outputs(manifest, folder)
+    (folder / MANIFEST).write_bytes(json.dumps(manifest, indent=2, ensure_ascii=False).encode("utf-8"))
+    finish_marker(folder)
+    return folder
 
 
 def build(case: Case | str | Path, out_dir: str | Path, methods: str | Sequence[str] | None = None,
@@ -67,7 +85,8 @@ def build(case: Case | str | Path, out_dir: str | Path, methods: str | Sequence[
     Parameters
     ----------
     case: a loaded case, or the path of a case folder or workbook.
-    out_dir: the report folder; it must be new, empty or an earlier report's folder.
+    out_dir: the report folder; it must be new, empty or an earlier output of the toolkit,
+        and neither the case folder, inside it, nor a folder holding it.
     methods: among ``windows``, ``impacted``, ``tia``, ``collapsed``, ``asbuilt`` (a list or
         comma-separated text); ``None`` or ``"all"``: every method the case supports.
     title: the report's title.
@@ -80,8 +99,10 @@ def build(case: Case | str | Path, out_dir: str | Path, methods: str | Sequence[
 
     Raises
     ------
-    CaseError: bad input, an unknown method or an output folder that must not be replaced.
-        Nothing is written then.
+    CaseError: bad input or an unknown method. Nothing is written then.
+    delay.output.OutputRefused: an output folder that must not be replaced (checked before
+        any work). Nothing is written then.
+    delay.output.OutputFailed: an OSError while writing; an earlier report survives whole.
 
     Example
     -------
@@ -90,18 +111,14 @@ def build(case: Case | str | Path, out_dir: str | Path, methods: str | Sequence[
     say = echo or (lambda line: None)
     loaded = _case(case)
     out = Path(out_dir)
-    _check_target(out, loaded)
+    guard = {"case_root": loaded.root, "inputs": loaded.input_files, "option": _OPTION}
+    check_folder_target(out, **guard)  # refused before any work
     resolve_methods(loaded, methods)  # an unknown method is refused before any work
     say(f"Analysing {loaded.settings.project.name}")
     content = compute(loaded, methods, title)
-    manifest = make_manifest(content, out)
     say(f"Writing the report: {len(content.tables)} tables")
-    page = render_html(content, manifest)
-    with replace_directory(out) as folder:
-        (folder / REPORT_FILE).write_bytes(page.encode("utf-8"))
-        write_workbook(content.tables, folder / WORKBOOK_FILE, title=content.title, caution=" ".join(CAUTIONS))
-        write_csv_files(content.tables, folder / TABLES_FOLDER)
-        (folder / MANIFEST).write_bytes(json.dumps(manifest, indent=2, ensure_ascii=False).encode("utf-8"))
+    with output_folder(out, what="report", **guard) as folder:
+        write_report(content, folder, out)  # renews the marker: its id is the manifest's
     say(f"Wrote {out / REPORT_FILE}")
     return out
 
@@ -113,8 +130,12 @@ def demo_report(case: Case | str | Path, out_dir: str | Path, *,
     This is what ``delay demo`` writes beside its other outputs.
     """
     loaded = _case(case)
-    return build(loaded, out_dir, methods=None,
-                 title=f"Delay analysis report: {loaded.settings.project.name}", echo=echo)
+    return build(loaded, out_dir, methods=None, title=demo_title(loaded), echo=echo)
+
+
+def demo_title(case: Case) -> str:
+    """The title of the demo's report of ``case`` (a loaded case)."""
+    return f"Delay analysis report: {case.settings.project.name}"
 
 
 def content_of(case: Case | str | Path, methods=None, title=None) -> ReportContent:

@@ -174,13 +174,24 @@ def test_unknown_snapshot_is_an_input_error(tmp_path):
 def test_demo_on_a_small_case_writes_its_outputs_whole(tmp_path):
     root = write_case(tmp_path / "case", activities=ACTIVITIES, links=LINKS)
     out = tmp_path / "out"
-    out.mkdir()
-    (out / "stale.txt").write_text("from an earlier run")
-    result = run("demo", "--case", root, "--out", out)
+    assert run("demo", "--case", root, "--out", out).exit_code == 0
+    earlier = json.loads((out / "delay-output.json").read_text(encoding="utf-8"))
+    (out / "schedules" / "baseline.csv").write_text("an earlier run's file", encoding="utf-8")
+    result = run("demo", "--case", root, "--out", out)  # the folder of an earlier run
     assert result.exit_code == 0, result.output
-    assert (out / "schedules" / "baseline.csv").exists()
-    assert not (out / "stale.txt").exists(), "the output folder is replaced whole"
+    assert (out / "schedules" / "baseline.csv").read_text(encoding="utf-8").startswith("id,")
+    marker = json.loads((out / "delay-output.json").read_text(encoding="utf-8"))
+    assert marker["id"] != earlier["id"], "the output folder is replaced whole"
+    assert "schedules/baseline.csv" in marker["files"] and "report/report.html" in marker["files"]
     assert not [p for p in tmp_path.iterdir() if p.name.startswith(".")], "no temporary folder is left"
+    # a folder that holds a file the toolkit did not write is never replaced
+    mine = tmp_path / "mine"
+    mine.mkdir()
+    (mine / "stale.txt").write_text("from an earlier run", encoding="utf-8")
+    refused = run("demo", "--case", root, "--out", mine)
+    assert refused.exit_code == 2 and "did not write" in refused.output
+    assert [p.name for p in mine.iterdir()] == ["stale.txt"]
+    assert (mine / "stale.txt").read_text(encoding="utf-8") == "from an earlier run"
 
 
 def test_case_rows_with_a_bom_are_read(tmp_path):

@@ -97,16 +97,25 @@ def small_report(tmp_path_factory):
 
 # -- the folder ---------------------------------------------------------------------------------
 def test_the_folder_holds_the_page_the_workbook_the_tables_and_the_manifest(small_report):
-    _, _, out = small_report
-    assert sorted(p.name for p in out.iterdir()) == ["manifest.json", "report.html", "tables", "tables.xlsx"]
+    _, case, out = small_report
+    assert sorted(p.name for p in out.iterdir()) == ["delay-output.json", "manifest.json", "report.html", "tables",
+                                                     "tables.xlsx"]
     manifest = json.loads((out / "manifest.json").read_text(encoding="utf-8"))
     listed = {t["key"] for t in manifest["tables"]}
     assert listed == {p.stem for p in (out / "tables").glob("*.csv")}
     for item in manifest["tables"]:
         # the fingerprint is the SHA-256 of the CSV file as written (hashlib, the reference)
         assert hashlib.sha256((out / item["file"]).read_bytes()).hexdigest() == item["sha256"]
+    # every file the report wrote, with its SHA-256 (all but the manifest and the marker)
+    written = {p.relative_to(out).as_posix(): p for p in out.rglob("*") if p.is_file()}
+    assert {o["path"] for o in manifest["outputs"]} == set(written) - {"manifest.json", "delay-output.json"}
+    for item in manifest["outputs"]:
+        assert hashlib.sha256(written[item["path"]].read_bytes()).hexdigest() == item["sha256"]
+    # the case by its folder's name and its place relative to the report, never an absolute path
+    assert manifest["case"]["path"] == "case" and manifest["case"]["relative_to_report"] == "../case"
+    assert (out / manifest["case"]["relative_to_report"]).resolve() == case.resolve()
     for item in manifest["inputs"]:
-        path = Path(manifest["case"]["path"]) / item["path"]
+        path = out / manifest["case"]["relative_to_report"] / item["path"]
         assert hashlib.sha256(path.read_bytes()).hexdigest() == item["sha256"]
         assert path.stat().st_size == item["bytes"]
     assert {"snapshots/baseline/activities.csv", "events.csv", "case.toml"} <= {i["path"] for i in manifest["inputs"]}
@@ -314,11 +323,17 @@ def test_a_folder_that_is_not_a_report_is_never_replaced(tmp_path):
         assert result.exit_code == 2, target
     assert (keep / "letter.txt").read_text(encoding="utf-8") == "keep me"
     assert (root / "case.toml").exists()
-    # an earlier report's folder is replaced whole
+    # an earlier report's folder is replaced whole: a table of the first run is gone
     assert run("report", root, "--out", tmp_path / "r", "--methods", "impacted").exit_code == 0
-    (tmp_path / "r" / "stale.txt").write_text("old", encoding="utf-8")
+    assert (tmp_path / "r" / "tables" / "impacted_events.csv").exists()
     assert run("report", root, "--out", tmp_path / "r", "--methods", "asbuilt").exit_code == 0
-    assert not (tmp_path / "r" / "stale.txt").exists()
+    assert not (tmp_path / "r" / "tables" / "impacted_events.csv").exists()
+    # but not once the user has put a file of their own into it
+    (tmp_path / "r" / "notes.txt").write_text("mine", encoding="utf-8")
+    refused = run("report", root, "--out", tmp_path / "r", "--methods", "impacted")
+    assert refused.exit_code == 2 and "notes.txt" in refused.output
+    assert (tmp_path / "r" / "notes.txt").read_text(encoding="utf-8") == "mine"
+    assert not (tmp_path / "r" / "tables" / "impacted_events.csv").exists()
 
 
 def test_verify_confirms_an_unchanged_report_and_lists_a_tampered_input(tmp_path):

@@ -9,6 +9,7 @@ from pathlib import Path
 import click
 
 from ..errors import CaseError, ReconciliationError
+from ..output import OutputFailed, OutputRefused, describe_os_error
 
 __all__ = ["EXIT_INPUT", "FORMAT", "reports_input_errors", "print_table", "load_case_argument"]
 
@@ -28,7 +29,9 @@ def _fail(lines: list[str]) -> None:
 
 
 def reports_input_errors(command):
-    """Turn input problems into plain lines on stderr and exit status 2."""
+    """Turn input problems into plain lines on stderr and exit status 2: a bad case (one
+    line per problem and a count), an output the policy refuses, a failed write or any
+    other OSError (one line each)."""
 
     @functools.wraps(command)
     def wrapper(*args, **kwargs):
@@ -42,8 +45,10 @@ def reports_input_errors(command):
             click.echo(f"error: {error} - the analysis was stopped; nothing was written. Please report this "
                        "with the case, it is a fault of the toolkit or a record it cannot reconcile", err=True)
             sys.exit(1)
-        except FileExistsError as error:
-            _fail([f"error: {error.args[0] if error.args else error} - choose an empty or new folder"])
+        except (OutputRefused, OutputFailed) as error:
+            _fail([f"error: {error}"])
+        except OSError as error:  # reading an input, or writing outside delay.output
+            _fail([f"error: {describe_os_error(error)}"])
 
     return wrapper
 

@@ -155,7 +155,7 @@ def import_ifc_schedule(model, case, folder, data_date, label, kind, work_schedu
 
 @click.command("export-ifc")
 @click.argument("case", type=click.Path(exists=True))
-@click.argument("out", type=click.Path(dir_okay=False))
+@click.argument("out", type=click.Path())
 @click.option("--snapshot", default="baseline", show_default=True,
               help="Folder name under snapshots/ or label; 'asbuilt' for the as-built record.")
 @click.option("--model", "model_path", type=click.Path(dir_okay=False, exists=True), default=None,

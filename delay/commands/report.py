@@ -7,7 +7,7 @@ from pathlib import Path
 
 import click
 
-from .common import load_case_argument, reports_input_errors
+from .common import EXIT_INPUT, load_case_argument, reports_input_errors
 
 __all__ = ["report", "verify", "COMMANDS"]
 
@@ -17,8 +17,9 @@ METHODS_HELP = ("Methods to run, comma separated, among windows, impacted, tia, 
 
 @click.command()
 @click.argument("case", type=click.Path(exists=True))
-@click.option("--out", "out_dir", type=click.Path(file_okay=False), default="out/report", show_default=True,
-              help="Folder for the report: new, empty, or an earlier report's folder (replaced whole).")
+@click.option("--out", "out_dir", type=click.Path(), default="out/report", show_default=True,
+              help="Folder for the report: new, empty, or an earlier output of the toolkit (replaced whole); "
+                   "never the case folder, inside it or above it.")
 @click.option("--methods", default=None, metavar="M1,M2,...", help=METHODS_HELP)
 @click.option("--title", default=None, help="Title of the report (default: 'Delay analysis: <project name>').")
 @reports_input_errors
@@ -32,13 +33,18 @@ def report(case, out_dir, methods, title):
                      each method's results with its charts, the element timeline,
                      inputs and method, manifest; printable on A4 landscape
       tables.xlsx    every table of the report as a sheet, dates as dates
-      tables/*.csv   every table as CSV (the text each fingerprint is made from)
-      manifest.json  tool version, settings, SHA-256 of every input file, the time of
-                     the run and a fingerprint of every table
+      tables/*.csv   every table as CSV (the text each fingerprint is made from;
+                     text a spreadsheet would run as a formula starts with ')
+      manifest.json  tool version, settings, SHA-256 of every input file and of
+                     every file above, the time of the run and a fingerprint of
+                     every table; the case by its folder's name and its place
+                     relative to the report, never an absolute path
+      delay-output.json  the marker of a folder the toolkit wrote
 
     Check the report later with: delay verify FOLDER. The folder is written under a
     temporary name and moved into place whole; on bad input nothing is written and each
-    problem is printed on one line (exit status 2).
+    problem is printed on one line (exit status 2). A folder that holds anything the
+    toolkit did not write is never replaced.
 
     Results depend on the records and on the method chosen; they are not legal advice. The
     contract, the applicable law and the analyst's professional judgement govern.
@@ -59,18 +65,29 @@ def verify(directory, case_path):
     """Check a report folder against the inputs it was made from.
 
     \b
-    1. every input file named in manifest.json is hashed again (SHA-256);
-    2. every tables/*.csv of the folder is compared with its fingerprint;
-    3. the case is loaded again and the analysis re-run with the report's options, and
-       every table's fingerprint is compared.
+    0. manifest.json is checked before anything is read through it: its size,
+       its nesting, every key and type, every path (relative, inside its folder);
+    1. every file of the report folder (report.html, tables.xlsx, tables/*.csv,
+       ...) is hashed and compared with the manifest: changed, missing or added;
+    2. the case is found beside the report where the manifest says (its path
+       relative to the report) or where --case says, and every input file is
+       hashed again (SHA-256);
+    3. the analysis is re-run with the report's options, and every table's
+       fingerprint is compared.
 
-    Exit status 0 when everything matches; 1 with one line per difference (an input
-    changed, missing or added, a table that differs, is new or is gone); 2 when the folder
-    holds no readable manifest or the case cannot be found.
+    Exit status 0 when everything matches; 1 with one line per difference (a file of the
+    report changed, missing or added, an input changed, missing or added, a table that
+    differs, is new or is gone); 2 with one line when the manifest is missing, unreadable
+    or malformed, or the case cannot be found.
     """
+    from reports.manifest import VerifyError
     from reports.manifest import verify as check
 
-    result = check(Path(directory), case_path)
+    try:
+        result = check(Path(directory), case_path)
+    except VerifyError as error:
+        click.echo(f"error: {error}", err=True)
+        sys.exit(EXIT_INPUT)
     for line in result.lines():
         click.echo(line)
     if not result.confirmed:

@@ -61,7 +61,7 @@ import pandas as pd
 from ..cpm import FINISH_MILESTONE
 from ..errors import CaseError, Problem
 from ..model import Case, Snapshot
-from ..output import json_date, write_through
+from ..output import check_file_target, copy_csv, json_date, write_output_file
 from ._common import (
     ELEMENT_PSET,
     SCHEDULING_PSET,
@@ -71,7 +71,8 @@ from ._common import (
     work_days_duration,
 )
 
-__all__ = ["ScheduleExport", "export_schedule", "demo_outputs", "START_TIME", "FINISH_TIME", "SEQUENCE_ENUM"]
+__all__ = ["ScheduleExport", "export_schedule", "demo_outputs", "written_by_toolkit", "WRITTEN_BY", "START_TIME",
+           "FINISH_TIME", "SEQUENCE_ENUM"]
 
 #: Times of day written with the dates (common practice: a working day from 08:00 to 17:00).
 START_TIME = "08:00:00"
@@ -486,9 +487,49 @@ def _write_schedule(writer: _Writer, case: Case, snap: Snapshot, result, finding
     return tasks, len(links), len(calendar_of)
 
 
-def _write_file(model, path: Path) -> Path:
+#: The header's preprocessor_version (ISO 10303-21 FILE_NAME: the program that wrote the
+#: file) of every file the export writes; how an earlier export is recognised as ours.
+WRITTEN_BY = "delay-toolkit"
+
+
+def written_by_toolkit(path: Path) -> bool:
+    """Whether ``path`` is an IFC file this toolkit's export wrote, and may therefore be
+    replaced by the next export.
+
+    Parameters
+    ----------
+    path: an existing file.
+
+    Returns
+    -------
+    bool
+        True when the file is a STEP physical file (ISO 10303-21) whose header's FILE_NAME
+        names :data:`WRITTEN_BY` as the program that wrote it.
+    """
+    try:
+        with open(path, "rb") as stream:
+            head = stream.read(4096)
+    except OSError:
+        return False
+    if not head.startswith(b"ISO-10303-21;"):
+        return False
+    start = head.find(b"FILE_NAME(")
+    end = head.find(b";", start) if start >= 0 else -1
+    return start >= 0 and f"'{WRITTEN_BY} ".encode() in head[start:end]
+
+
+def _guard(case: Case, model: Path | None) -> dict:
+    """The output policy's checks for the export's file (delay.output.check_file_target)."""
+    inputs = list(case.input_files) + ([model] if model is not None else [])
+    return {"case_root": case.root, "inputs": inputs, "recognise": written_by_toolkit}
+
+
+def _write_file(model, path: Path, guard: dict) -> Path:
+    from .. import __version__
+
+    model.header.file_name.preprocessor_version = f"{WRITTEN_BY} {__version__}"
     # the writer takes the format from the name's ending, hence ".part.ifc"
-    return write_through(path, model.write, suffix=".part.ifc")
+    return write_output_file(path, model.write, suffix=".part.ifc", **guard)
 
 
 def export_schedule(
@@ -509,7 +550,9 @@ def export_schedule(
     snapshot:
         Folder name, label or ``"asbuilt"`` (or a Snapshot).
     out_path:
-        The .ifc file to write (written under a temporary name, then moved into place).
+        The .ifc file to write (written under a temporary name, then moved into place): a
+        new file, or one an earlier export wrote (:func:`written_by_toolkit`); never an
+        input file, the case folder or a file inside it.
     model:
         An IFC 4 model to add the schedule to; its elements whose GlobalId is an element id
         of the case are assigned to the tasks that build them.
@@ -527,6 +570,8 @@ def export_schedule(
     ------
     CaseError
         Unknown snapshot, a logic loop, a model that cannot be read or is not IFC 4.
+    delay.output.OutputRefused
+        When ``out_path`` must not be written (checked before any work).
     IfcExtraMissing
         When ifcopenshell is not installed.
     """
@@ -537,12 +582,14 @@ def export_schedule(
     ifcopenshell = require_ifcopenshell()
     import ifcopenshell.util.unit
 
-    snap = snapshot if isinstance(snapshot, Snapshot) else _find(case, snapshot)
-    result = schedule(case, snap, settings)
-    findings = Findings()
     root = Path(case.root)
     if model is None and use_imported_model and root.is_dir():
         model = imported_model_path(root)
+    guard = _guard(case, Path(model) if model is not None else None)
+    check_file_target(out_path, **guard)  # refused before any work
+    snap = snapshot if isinstance(snapshot, Snapshot) else _find(case, snapshot)
+    result = schedule(case, snap, settings)
+    findings = Findings()
     salt = f"{case.settings.project.name}\x1f{snap.folder}"
     if model is not None:
         model = Path(model)
@@ -593,7 +640,7 @@ def export_schedule(
     if unbuilt:
         findings.add("assignment", f"{unbuilt} element(s) share their wbs with no activity of the snapshot; "
                                    "no task builds them")
-    path = _write_file(base, Path(out_path))
+    path = _write_file(base, Path(out_path), guard)
     return ScheduleExport(path, len(tasks), link_count, calendar_count, len(found), len(made), assignments,
                           model, findings.frame())
 
@@ -643,8 +690,8 @@ def demo_outputs(case: Case, out_folder: str | Path) -> list[Path]:
         for name in ("elements.csv", FINDINGS_FILE, SOURCE_FILE):
             (copy / name).unlink(missing_ok=True)
         imported = import_model(models[0], copy, **options)
-        shutil.copy2(copy / "elements.csv", out / "elements_from_model.csv")
-        shutil.copy2(copy / FINDINGS_FILE, out / "elements_findings.csv")
+        copy_csv(copy / "elements.csv", out / "elements_from_model.csv")  # an output: its cells neutralised
+        copy_csv(copy / FINDINGS_FILE, out / "elements_findings.csv")
         loaded = load_case(copy)
         checks = element_checks(loaded)
         (out / "element_checks.json").write_text(json.dumps(checks.to_json(), indent=2), encoding="utf-8")

@@ -62,7 +62,7 @@ import numpy as np
 import pandas as pd
 
 from ..model import COLUMNS
-from ..output import write_bytes
+from ..output import OutputRefused, write_together
 from ._common import Findings, case_folder, csv_bytes, open_model, sha256_of, validate_in_copy
 
 __all__ = [
@@ -73,6 +73,7 @@ __all__ = [
     "ELEMENT_COLUMNS",
     "FINDINGS_FILE",
     "SOURCE_FILE",
+    "WRITTEN_FILES",
     "GEOMETRY_LIBRARY",
 ]
 
@@ -560,10 +561,10 @@ def import_model(
     Parameters are those of :func:`read_model`; ``case_path`` is the case folder (its
     baseline gives the wbs of activities named by building tasks).
 
-    Writes, each under a temporary name first: ``elements_findings.csv``,
-    ``elements_source.json`` and ``elements.csv``. The merged table is loaded with the
-    case's settings before anything is written; a table the case would refuse is never
-    written.
+    Writes ``elements_findings.csv``, ``elements_source.json`` and ``elements.csv``, each
+    under a temporary name first, then all three moved into place together. The merged
+    table is loaded with the case's settings before anything is written; a table the case
+    would refuse is never written.
 
     Returns
     -------
@@ -574,6 +575,10 @@ def import_model(
     CaseError
         When the case does not load, is a workbook, the file is not IFC, or the merged
         elements would not load.
+    delay.output.OutputRefused
+        When the model is one of the files written, or one of them is a link out of the case.
+    delay.output.OutputFailed
+        An OSError while writing; none of the three files is changed then.
     IfcExtraMissing
         When ifcopenshell is not installed.
     """
@@ -581,6 +586,7 @@ def import_model(
 
     case = load_case(Path(case_path))
     root = case_folder(case)
+    _check_targets(Path(model_path), root)
     baseline = case.baseline.activities
     activity_wbs = dict(zip(baseline["id"].astype(str), baseline["wbs"].astype(str)))
     model_path = Path(model_path)
@@ -610,12 +616,35 @@ def import_model(
         "code_classification": code_classification,
         "imported_on": dt.date.today().isoformat(),
     }
-    written = (
-        write_bytes(root / FINDINGS_FILE, findings_bytes),
-        write_bytes(root / SOURCE_FILE, (json.dumps(source, indent=2) + "\n").encode("utf-8")),
-        write_bytes(root / "elements.csv", elements_bytes),
-    )
+    written = write_together({  # all three, or none: a full disk leaves the case as it was
+        root / FINDINGS_FILE: findings_bytes,
+        root / SOURCE_FILE: (json.dumps(source, indent=2) + "\n").encode("utf-8"),
+        root / "elements.csv": elements_bytes,
+    })
     return ModelImport(read, merged, replaced, added, written)
+
+
+#: The files the import writes into the case folder.
+WRITTEN_FILES = (FINDINGS_FILE, SOURCE_FILE, "elements.csv")
+
+
+def _check_targets(model_path: Path, root: Path) -> None:
+    """The import writes WRITTEN_FILES into the case (that is its purpose): never over the
+    model it reads, and never through a link out of the case folder or onto a folder."""
+    model = Path(os.path.realpath(model_path))
+    inside = Path(os.path.realpath(root))
+    for name in WRITTEN_FILES:
+        target = root / name
+        real = Path(os.path.realpath(target))
+        if real == model:
+            raise OutputRefused(model_path, f"the model is the case's {name}, which the import writes",
+                                "give the path of the .ifc model")
+        if not real.is_relative_to(inside):
+            raise OutputRefused(target, "this is a link out of the case folder; the import writes only inside the case",
+                                "remove the link, or replace it with the file itself")
+        if real.is_dir():
+            raise OutputRefused(target, "this is a folder; the import writes a file of that name",
+                                "move the folder out of the case")
 
 
 def imported_model_path(case_root: Path) -> Path | None:
