@@ -807,3 +807,37 @@ def test_properties_on_synthetic_cases(activities, updates, seed):
             sign = a["days"].map(lambda d: 1 if d >= 0 else -1)
             assert (sign * b["excusable_days"] <= sign * a["excusable_days"]).all(), method
             assert (sign * b["compensable_days"] >= sign * a["compensable_days"]).all(), method
+
+
+# =======================================================================================
+# 15. Concurrency needs time (causation doc; AACE RP 29R-03 section 4.2 and the SCL
+#     Protocol's guidance on concurrent delay, as recalled)
+#
+# Baseline A5 -> F and B5 -> F (7-day): A, B Jan 06-10, F Jan 10 = contract completion.
+# EV1 (employer) adds 4 days to A; EV2 (contractor) adds 6 days to B.  Impacted as-planned
+#   (prospective: no record after the baseline): alone 4 and 6; chronological run EV1 +4
+#   (positions 1-4), EV2 +2 (positions 5-6).
+# (a) EV1 Jan 06-08, EV2 Feb 10-12: their periods do not overlap, so no day is concurrent,
+#     however far EV2 alone would reach: positions 1-4 are the employer's alone (compensable
+#     4), 5-6 the contractor's (culpable 2), under either rule.
+# (b) EV2 Jan 07-09 overlaps EV1, and EV2 alone (6) reaches positions 1-4: those 4 days are
+#     concurrent.  time_not_money: excusable 4, compensable 0; 5-6 culpable 2.  apportion: the
+#     4 days split 4 : 6 (impacts alone) by largest remainder: quotas 1.6 and 2.4, whole parts
+#     1 and 2, the day left to the larger remainder (0.6, EV1): employer 2 (compensable),
+#     contractor 2 (culpable); with 5-6: excusable 2, compensable 2, culpable delay 4.
+@pytest.mark.parametrize("start, finish, rule, expected", [
+    ("2025-02-10", "2025-02-12", "time_not_money", (4, 4, 2, 0)),
+    ("2025-02-10", "2025-02-12", "apportion", (4, 4, 2, 0)),
+    ("2025-01-07", "2025-01-09", "time_not_money", (4, 0, 2, 4)),
+    ("2025-01-07", "2025-01-09", "apportion", (2, 2, 4, 4)),
+])
+def test_concurrency_needs_the_periods_to_overlap(tmp_path, start, finish, rule, expected):
+    write_case(tmp_path / "case", activities=[task("A", 5), task("B", 5), finish_milestone()],
+               links=[link("A", "F"), link("B", "F")], completion="2025-01-10", schedule=SEVEN_DAY,
+               analysis={"concurrency": rule},
+               files={"events.csv": [event("EV1", "employer", "2025-01-06", "2025-01-08", "A", 4),
+                                     event("EV2", "contractor", start, finish, "B", 6)]})
+    result = assess(load_case(tmp_path / "case"), ["impacted"]).method("impacted")
+    assert (result.excusable_days, result.compensable_days, result.culpable_delay_days,
+            result.concurrent_days) == expected
+    assert result.causation.explained_days == 6

@@ -204,13 +204,15 @@ def test_cli_json_chronological(tmp_path):
     run = invoke(parallel_case(tmp_path / "case"), "--format", "json")
     assert run.exit_code == 0, run.output
     data = json.loads(run.stdout)
-    # no as-built record and no update: the actual completion is the baseline's own forecast,
-    # so the residual is Jan 15 - Jan 20 = -5 and the method explains 0 days (impacted doc)
+    # no as-built record and no programme after the baseline: nothing says what happened, so
+    # the analysis is prospective and the impacted completion stands, with no residual
+    # (impacted doc)
     assert {k: data[k] for k in ("method", "base", "target", "completion_base", "completion_cumulative",
                                  "actual_completion", "total_days", "residual_days", "explained_days")} == {
         "method": "impacted", "base": "baseline", "target": "F", "completion_base": "2025-01-15",
-        "completion_cumulative": "2025-01-20", "actual_completion": "2025-01-15", "total_days": 5,
-        "residual_days": -5, "explained_days": 0}
+        "completion_cumulative": "2025-01-20", "actual_completion": "2025-01-20", "total_days": 5,
+        "residual_days": 0, "explained_days": 5}
+    assert any("prospective" in note for note in data["notes"])
     assert [{k: e[k] for k in ("id", "party", "alone_days", "increment_days", "completion_after")}
             for e in data["events"]] == [
         {"id": "E1", "party": "employer", "alone_days": 5, "increment_days": 5, "completion_after": "2025-01-20"},

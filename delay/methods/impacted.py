@@ -28,7 +28,9 @@ The method measures the plan's response to the events, not what happened. The *r
 the actual completion (the as-built record's, else the last update's forecast) less the
 completion with every event inserted, is what the events do not explain: positive, delay
 no event explains; negative, the works finished earlier than the impacted plan (the
-contractor's recovery, or events modelled larger than they were).
+contractor's recovery, or events modelled larger than they were). With no as-built record
+and no programme later than the base, nothing says what happened: the analysis is
+prospective and has no residual.
 
 References
 ----------
@@ -463,7 +465,11 @@ def analyse(case: Case, base: str = "baseline", events: Sequence[str] | None = N
         raise CaseError(Problem(file="case.toml", column="completion_activity",
                                 message=f"the completion activity '{targets[0]}' is not in snapshot '{snapshot.folder}'",
                                 fix="name an activity of the programme in [project] completion_activity"))
-    actual = actual_finishes(case, targets)
+    # Without an as-built record and without a later programme than the base, nothing says
+    # what happened: the analysis is prospective, and the impacted completion stands as the
+    # forecast (no residual).
+    prospective = case.asbuilt_snapshot is None and snapshot.folder == case.snapshots[-1].folder
+    actual = final_full if prospective else actual_finishes(case, targets)
     runs = [None if frame is None or actual[t] == NO_DAY else
             ImpactedRun(targets[t], day_to_date(int(base_full[t])), day_to_date(int(final_full[t])),
                         day_to_date(int(actual[t])), frame) for t, frame in enumerate(frames)]
@@ -494,5 +500,6 @@ def analyse(case: Case, base: str = "baseline", events: Sequence[str] | None = N
         "Increments depend on the order of insertion; they add up exactly to the cumulative impact.",
         "The method measures the plan's response to the events at their real dates, not what happened; the "
         "residual is the actual completion less the impacted one.",
-    )
+    ) + (("No as-built record and no programme later than the base: the analysis is prospective, and the "
+          "completion with every event is the forecast (no residual).",) if prospective else ())
     return ImpactedResult(snapshot.folder, whole, by_party, order, notes, sections)
