@@ -43,6 +43,9 @@ __all__ = [
     "IMPACTS",
     "METHODS",
     "WEEKDAYS",
+    "FIRST_DATE",
+    "LAST_DATE",
+    "LARGEST_DAYS",
 ]
 
 LINK_TYPES = ("FS", "SS", "FF", "SF")
@@ -50,6 +53,14 @@ ACTIVITY_KINDS = ("task", "start_milestone", "finish_milestone")
 CONSTRAINTS = ("earliest_start", "latest_finish", "fixed_start", "fixed_finish")
 PARTIES = ("employer", "contractor", "neutral")
 IMPACTS = ("extend", "hold", "fragnet")
+#: The first and last date a case may hold and the toolkit computes: far wider than any
+#: works, narrow enough that every date stays exact in every date type the toolkit uses.
+FIRST_DATE = dt.date(1900, 1, 1)
+LAST_DATE = dt.date(2200, 12, 31)
+#: The largest duration, remaining duration, lag or number of days (work or calendar days
+#: as the column is) a case may give: 36,500, about a hundred years of calendar days.
+LARGEST_DAYS = 36_500
+
 #: The delay-analysis methods a report may name as the analyst's preferred one.
 METHODS = ("windows", "asbuilt", "impacted", "tia", "collapsed")
 WEEKDAYS = ("Mon", "Tue", "Wed", "Thu", "Fri", "Sat", "Sun")
