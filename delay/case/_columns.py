@@ -13,7 +13,7 @@ import numpy as np
 import pandas as pd
 
 from delay.case._problems import Problems, RawTable
-from delay.model import COLUMNS
+from delay.model import COLUMNS, FIRST_DATE, LARGEST_DAYS, LAST_DATE
 
 __all__ = [
     "DATE_DTYPE",
@@ -36,8 +36,10 @@ __all__ = [
     "assemble",
 ]
 
-#: The largest whole number of days accepted (about 270 years of calendar days).
-LARGEST_WHOLE_NUMBER = 100_000
+#: The largest whole number of days accepted (:data:`delay.model.LARGEST_DAYS`).
+LARGEST_WHOLE_NUMBER = LARGEST_DAYS
+_FIRST = np.datetime64(FIRST_DATE, "us")
+_LAST = np.datetime64(LAST_DATE, "us")
 
 #: The dtype of every date column (pandas' own unit for parsed dates).
 DATE_DTYPE = "datetime64[us]"
@@ -145,6 +147,13 @@ def dates(problems: Problems, table: RawTable, column: str, *, required: Text | 
     problems.flag(table, ~empty & parsed.isna().to_numpy(), column,
                   "'{value}' is not a date",
                   "write the date as YYYY-MM-DD, for example 2025-03-31")
+    values = parsed.to_numpy()
+    outside = ~np.isnat(values) & ((values < _FIRST) | (values > _LAST))
+    problems.flag(table, outside, column,
+                  f"the date '{{value}}' is outside {FIRST_DATE} to {LAST_DATE}, the dates "
+                  "the toolkit works with", "check the year of the date")
+    if outside.any():
+        parsed = parsed.where(~outside)
     if required is not None:
         problems.flag(table, empty, column, required, fix_required or "fill in the date as YYYY-MM-DD")
     return parsed
@@ -179,8 +188,11 @@ def integers(problems: Problems, table: RawTable, column: str, *, unit: str,
                   f"give a whole number of {unit}")
     bad = not_number | fraction
     huge = ~empty & ~bad & (np.abs(np.nan_to_num(values)) > LARGEST_WHOLE_NUMBER)
-    problems.flag(table, huge, column, "'{value}' is too large",
-                  f"give at most {LARGEST_WHOLE_NUMBER:,} {unit}")
+    signed = minimum is None or minimum < 0
+    problems.flag(table, huge, column, "'{value}' is too large" if not signed
+                  else "'{value}' is out of range",
+                  f"give at most {LARGEST_WHOLE_NUMBER:,} {unit}" if not signed else
+                  f"give from -{LARGEST_WHOLE_NUMBER:,} to {LARGEST_WHOLE_NUMBER:,} {unit}")
     bad |= huge
     if minimum is not None:
         low = ~empty & ~bad & (values < minimum)
@@ -196,12 +208,12 @@ def integers(problems: Problems, table: RawTable, column: str, *, unit: str,
 
 
 def numbers(problems: Problems, table: RawTable, column: str, *, unit: str = "",
-            whole: bool = False, minimum: float | None = None,
+            whole: bool = False, minimum: float | None = None, maximum: float | None = None,
             required: Text | None = None) -> pd.Series:
     """``column`` as ``float64`` (``NaN`` for blank).
 
-    ``whole`` makes a fraction a problem; ``minimum`` a smaller value; ``required`` (a
-    message) a blank cell. Bad cells become ``NaN``.
+    ``whole`` makes a fraction a problem; ``minimum`` a smaller value, ``maximum`` a
+    larger one; ``required`` (a message) a blank cell. Bad cells become ``NaN``.
     """
     values, empty, not_number = _numbers(table.frame[column])
     what = f"a whole number of {unit}" if whole else (f"a number of {unit}" if unit else "a number")
@@ -216,6 +228,11 @@ def numbers(problems: Problems, table: RawTable, column: str, *, unit: str = "",
         problems.flag(table, low, column, f"{column} {{value}} is below {minimum:g}",
                       f"give {minimum:g} or more")
         bad |= low
+    if maximum is not None:
+        high = ~empty & ~bad & (np.nan_to_num(values) > maximum)
+        problems.flag(table, high, column, "'{value}' is too large",
+                      f"give at most {maximum:,g} {unit}".rstrip())
+        bad |= high
     if required is not None:
         problems.flag(table, empty, column, required, f"give {what}")
     result = np.where(bad, np.nan, values)

@@ -13,6 +13,8 @@ from delay.case._source import SettingsSource
 from delay.model import (
     AnalysisSettings,
     CaseSettings,
+    FIRST_DATE,
+    LAST_DATE,
     CommercialSettings,
     ProjectSettings,
     ReportSettings,
@@ -77,6 +79,8 @@ def _convert(cls: type, name: str, value: Any) -> tuple[Any, str | None]:
         parsed = parse_date_value(value)
         if parsed is None:
             return None, "must be a date written YYYY-MM-DD"
+        if not FIRST_DATE <= parsed <= LAST_DATE:
+            return None, f"must be a date from {FIRST_DATE} to {LAST_DATE}"
         return parsed, None
     if hint is bool:
         if isinstance(value, bool):

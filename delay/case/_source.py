@@ -19,6 +19,7 @@ from typing import Any, Callable
 import numpy as np
 import pandas as pd
 
+from delay.case._limits import LARGEST_SETTING_PARTS, LARGEST_TOML, check_toml, check_workbook
 from delay.case._problems import Problems, RawTable
 from delay.model import COLUMNS
 
@@ -245,12 +246,20 @@ def _toml_locator(file: str) -> Callable[[str], tuple[int | None, str]]:
 def _read_toml(path: Path, file: str, problems: Problems) -> dict[str, Any] | None:
     try:
         with path.open("rb") as handle:
-            return tomllib.load(handle)
+            data = handle.read(LARGEST_TOML + 1)
+        if not check_toml(data, file, problems):
+            return None
+        # A byte-order mark (as some editors save UTF-8) is not part of the settings.
+        text = data.decode("utf-8")
+        return tomllib.loads(text[1:] if text.startswith("\ufeff") else text)
     except tomllib.TOMLDecodeError as error:
         problems.add(file, f"the file is not valid TOML: {error}",
                      "write each setting as key = value; put text in double quotes, dates as YYYY-MM-DD")
     except UnicodeDecodeError:
         problems.add(file, "the file is not UTF-8 text", "save it in UTF-8 encoding")
+    except RecursionError:  # beyond what toml_depth foresaw: still one line
+        problems.add(file, "the settings nest too deeply to be read",
+                     "write each setting as key = value under its [section]")
     except OSError as error:
         problems.add(file, f"the file cannot be read ({error.strerror or error})",
                      "check that the file exists and may be read")
@@ -373,11 +382,15 @@ def _read_workbook_quietly(path: Path, problems: Problems) -> CaseSource:
     name = path.name
     source = CaseSource(root=path, workbook=True, settings=None, tables={}, snapshots=[],
                         input_files=[path])
+    if not check_workbook(path, name, problems):
+        source.snapshots_found = False  # nothing more is read: the one problem says why
+        return source
     try:
         workbook = openpyxl.load_workbook(path, read_only=True, data_only=True)
     except Exception as error:  # openpyxl raises many kinds for a damaged file
         problems.add(name, f"the workbook cannot be opened ({error})",
                      "save it again from the spreadsheet program as an .xlsx workbook")
+        source.snapshots_found = False
         return source
     try:
         sheets = set(workbook.sheetnames)
@@ -451,7 +464,14 @@ def _read_case_sheet(sheet, file: str, problems: Problems) -> SettingsSource | N
         value = _native(cells[value_at])
         if value is None or value == "":
             continue
-        parts = key.split(".")
+        # A header named in input.columns may itself hold a dot: it is the fourth part.
+        parts = key.split(".", 3) if key.startswith("input.columns.") else key.split(".")
+        if len(parts) > LARGEST_SETTING_PARTS:
+            problems.add(file, f"the setting name has {len(parts):,} parts, more than the "
+                               f"{LARGEST_SETTING_PARTS} a setting may have",
+                         "name the setting section.name, e.g. project.name", row=row,
+                         column="key")
+            continue
         target = values
         for part in parts[:-1]:
             existing = target.setdefault(part, {})
