@@ -85,7 +85,9 @@ def summarise(case: Case) -> dict[str, Any]:
         ``asbuilt`` (``True`` when the case has an as-built record), ``asbuilt_snapshot``
         (its summary or ``None``), ``completion_activity`` (from case.toml, or ``None``),
         ``unexplained_risk``, ``preferred_method`` (or ``None``), ``opinion`` (``True``
-        when the case has an opinion.md that is not blank), and the counts
+        when the case has an opinion.md that is not blank), ``input`` (per file or sheet
+        read, what was read: ``file``, ``delimiter`` and ``encoding`` with where each came
+        from, ``date_format``, ``decimal`` and the ``renamed`` headers), and the counts
         ``calendars``, ``events``, ``fragnets`` (inserted activities), ``fragnet_links``,
         ``elements``, ``sections``, ``extensions``, ``corrections`` and ``attributions``.
     """
@@ -107,6 +109,7 @@ def summarise(case: Case) -> dict[str, Any]:
         "unexplained_risk": case.settings.analysis.unexplained_risk,
         "preferred_method": case.settings.report.preferred_method,
         "opinion": bool(case.opinion.strip()),
+        "input": [dialect.as_dict() for dialect in case.input_dialects],
         "calendars": rows("calendars"),
         "events": rows("events"),
         "fragnets": rows("fragnets"),

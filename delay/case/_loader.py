@@ -148,6 +148,7 @@ class _Loader:
             corrections=tuple(self.corrections),
             input_files=tuple(self.source.input_files),
             opinion=self.source.opinion,
+            input_dialects=tuple(self.source.dialects),
         )
 
     def usable(self, name: str) -> RawTable | None:
@@ -160,7 +161,7 @@ class _Loader:
         settings_source = self.source.settings
         if settings_source is None:
             return
-        self.settings = parse_settings(settings_source, self.problems)
+        self.settings = parse_settings(settings_source, self.problems, self.source.input)
         if self.settings is not None:
             self.default_calendar = self.settings.schedule.default_calendar
         else:

@@ -16,6 +16,7 @@ from delay.model import (
     FIRST_DATE,
     LAST_DATE,
     CommercialSettings,
+    InputSettings,
     ProjectSettings,
     ReportSettings,
     ScheduleSettings,
@@ -123,13 +124,16 @@ def _example(cls: type, name: str) -> str:
     }.get(hint, f'{name} = "..."')
 
 
-def parse_settings(source: SettingsSource, problems: Problems) -> CaseSettings | None:
+def parse_settings(source: SettingsSource, problems: Problems,
+                   input_settings: InputSettings | None = None) -> CaseSettings | None:
     """Build :class:`CaseSettings` from the settings as read, recording every problem.
 
     Parameters
     ----------
     source:
         The nested mapping read from case.toml or the ``case`` sheet.
+    input_settings:
+        ``[input]``, already read and checked with the files it describes.
     problems:
         Where problems are recorded; each names the file and the setting (``section.key``).
 
@@ -148,6 +152,8 @@ def parse_settings(source: SettingsSource, problems: Problems) -> CaseSettings |
         problems.add(file, message, fix, row=row, column=column)
 
     for section, value in source.values.items():
+        if section == "input":
+            continue  # read with the files it describes (delay.case._dialect)
         if section not in SETTINGS_SECTIONS:
             extra[section] = value
         elif not isinstance(value, dict):
@@ -195,5 +201,6 @@ def parse_settings(source: SettingsSource, problems: Problems) -> CaseSettings |
         commercial=built.get("commercial", CommercialSettings()),
         analysis=built.get("analysis", AnalysisSettings()),
         report=built.get("report", ReportSettings()),
+        input=input_settings or InputSettings(),
         extra=extra,
     )
