@@ -8,12 +8,23 @@ plain line per problem and exits with status 2; it never shows a traceback for t
 
 from __future__ import annotations
 
+import unicodedata
 from dataclasses import dataclass
 
 __all__ = ["Problem", "CaseError", "DateBoundError", "ReconciliationError", "MAX_PROBLEMS_PER_FILE"]
 
 #: At most this many problems are collected from one file before checking moves on.
 MAX_PROBLEMS_PER_FILE = 50
+
+
+def _one_line(text: str) -> str:
+    """``text`` with every control character (line breaks, form feeds, NUL ...) written as
+    its escape, so that a problem quoting a cell stays one plain line."""
+    if text.isprintable():
+        return text
+    return "".join(character if character.isprintable() or character == " "
+                   or unicodedata.category(character) not in ("Cc", "Zl", "Zp")
+                   else repr(character)[1:-1] for character in text)
 
 
 @dataclass(frozen=True)
@@ -50,7 +61,7 @@ class Problem:
         text = f"{where}: {self.message}"
         if self.fix:
             text += f" - {self.fix}"
-        return text
+        return _one_line(text)
 
 
 class CaseError(Exception):
