@@ -19,7 +19,7 @@ from delay.errors import CaseError
 from delay.model import COLUMNS, CaseSettings
 from delay.skeleton import GUIDE_NAME, write_skeleton
 
-# The files of the format (shared/case-format.md, the folder tree at its top).
+# The files of the format (docs/case-format.md, the folder tree at its top).
 FORMAT_FILES = {
     "calendars.csv": "calendars",
     "calendar_exceptions.csv": "calendar_exceptions",
