@@ -162,8 +162,10 @@ def check_late_days(model, calendars, late_start: np.ndarray) -> None:
     """Raise :func:`runaway_error` when a late date of the backward pass falls before
     1900-01-01.
 
-    Only the earliest late boundary of each calendar is turned into a date (a few look-ups
-    per run), so the check costs next to nothing beside the passes.
+    The earliest late boundary is turned into a date on every calendar of the set (a
+    calendar's dates rise with its boundaries, so no activity's late date is earlier than
+    that one on its own calendar); only when one of them falls before the bound are the
+    activities' own calendars looked at. A few look-ups per run beside the passes.
 
     Raises
     ------
@@ -173,12 +175,19 @@ def check_late_days(model, calendars, late_start: np.ndarray) -> None:
     """
     if not late_start.size:
         return
-    calendar = np.asarray(model.calendar)
-    numbers = np.unique(calendar)
+    every = np.arange(len(calendars), dtype=np.int64)
     # A milestone's date is read from the boundary before it: one work day earlier.
-    lowest = [int(late_start[calendar == number].min()) - 1 for number in numbers]
+    lowest = int(late_start.min()) - 1
     try:
-        days = calendars.day_of(numbers, np.asarray(lowest, dtype=np.int64))
+        if int(calendars.day_of(every, np.full(every.size, lowest)).min()) >= FIRST_DAY:
+            return
+    except DateBoundError:
+        pass  # too early on some calendar: look at the activities' own calendars
+    try:
+        calendar = np.asarray(model.calendar)
+        numbers = np.unique(calendar)
+        own = [int(late_start[calendar == number].min()) - 1 for number in numbers]
+        days = calendars.day_of(numbers, np.asarray(own, dtype=np.int64))
     except DateBoundError:
         raise runaway_error(model, True) from None
     if int(days.min()) < FIRST_DAY:
