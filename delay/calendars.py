@@ -27,11 +27,17 @@ from typing import Iterable, Mapping, Sequence
 
 import numpy as np
 
-from .model import WEEKDAYS
+from .errors import DateBoundError
+from .model import FIRST_DATE, LAST_DATE, WEEKDAYS
 
-__all__ = ["WorkCalendar", "CalendarSet", "build_calendars", "to_days", "to_dates", "parse_workdays"]
+__all__ = ["WorkCalendar", "CalendarSet", "build_calendars", "to_days", "to_dates", "parse_workdays",
+           "HORIZON_FIRST_DAY", "HORIZON_LAST_DAY"]
 
 _EPOCH = np.datetime64("1970-01-01", "D")
+#: The horizon grows no further than a year beyond the dates a case may hold: a look-up a
+#: few days past them still works, and one further raises DateBoundError (day numbers).
+HORIZON_FIRST_DAY = int(np.datetime64(FIRST_DATE, "D").astype(np.int64)) - 366
+HORIZON_LAST_DAY = int(np.datetime64(LAST_DATE, "D").astype(np.int64)) + 366
 
 
 def to_days(dates) -> np.ndarray:
@@ -68,15 +74,28 @@ def parse_workdays(text: str) -> tuple[bool, ...]:
 
 def _widened(first: int, last: int, low: int, high: int) -> tuple[int, int]:
     """The horizon ``[first, last]`` widened until it covers ``[low, high]``, doubling the
-    step each time (so growing on demand costs a constant number of rebuilds per doubling)."""
+    step each time (so growing on demand costs a constant number of rebuilds per doubling),
+    never past the horizon's bounds; a day beyond them raises :class:`DateBoundError`."""
+    if low < min(first, HORIZON_FIRST_DAY) or high > max(last, HORIZON_LAST_DAY):
+        raise DateBoundError(earlier=low < min(first, HORIZON_FIRST_DAY))
+    floor, ceiling = min(first, HORIZON_FIRST_DAY), max(last, HORIZON_LAST_DAY)
     span = last - first + 1
     while low < first:
-        first -= span
+        first = max(first - span, floor)
         span *= 2
     while high > last:
-        last += span
+        last = min(last + span, ceiling)
         span *= 2
     return first, last
+
+
+def _further(first: int, last: int, span: int, earlier: bool, later: bool) -> tuple[int, int]:
+    """The horizon ``[first, last]`` grown by ``span`` days on the sides asked for, within
+    the horizon's bounds; :class:`DateBoundError` when a side asked for is at its bound."""
+    if (earlier and first <= HORIZON_FIRST_DAY) or (later and last >= HORIZON_LAST_DAY):
+        raise DateBoundError(earlier=earlier and first <= HORIZON_FIRST_DAY)
+    return (max(first - span, HORIZON_FIRST_DAY) if earlier else first,
+            min(last + span, HORIZON_LAST_DAY) if later else last)
 
 class WorkCalendar:
     """One work calendar over a horizon that grows on demand.
@@ -175,8 +194,8 @@ class WorkCalendar:
                 raise ValueError(f"calendar '{self.name}' has no work day that early")
             if hi_pos >= self._work_days.size and not any(self.weekmask):
                 raise ValueError(f"calendar '{self.name}' has no work day that late")
-            self._grow_days(self.first_day - (span if lo_pos < 0 else 0),
-                            self.last_day + (span if hi_pos >= self._work_days.size else 0))
+            self._grow_days(*_further(self.first_day, self.last_day, span, lo_pos < 0,
+                                      hi_pos >= self._work_days.size))
 
     # -- conversions -----------------------------------------------------------------------
     def start_index_days(self, days: np.ndarray) -> np.ndarray:
@@ -284,10 +303,7 @@ class CalendarSet:
         """Widen the horizon fourfold on one side (the compiled passes ask for it when a
         look-up falls outside the tables)."""
         span = 3 * (self.last_day - self.first_day + 1)
-        if earlier:
-            self._cover(self.first_day - span, self.last_day)
-        else:
-            self._cover(self.first_day, self.last_day + span)
+        self._cover(*_further(self.first_day, self.last_day, span, earlier, not earlier))
 
     def table(self) -> np.ndarray:
         """The lookup tables as the compiled passes take them: one ``int64`` array (a kernel
@@ -395,8 +411,8 @@ class CalendarSet:
             if not (too_early.any() or too_late.any()):
                 break
             span = self.last_day - self.first_day + 1
-            self._grow(self.first_day - (span if too_early.any() else 0),
-                       self.last_day + (span if too_late.any() else 0))
+            self._cover(*_further(self.first_day, self.last_day, span, bool(too_early.any()),
+                                  bool(too_late.any())))
         else:
             raise ValueError("a work-day index lies beyond every calendar's work days")
         return self._work_days[self._work_offset[which] + position]

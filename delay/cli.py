@@ -84,6 +84,31 @@ def _print_summary(summary: dict) -> None:
               if isinstance(value, int) and not isinstance(value, bool)]
     if counts:
         _print_table("Records", ["record", "count"], counts)
+    click.echo(f"Completion activity: {summary.get('completion_activity') or 'not named (the finish milestone that finishes last in the baseline)'}")
+    click.echo(f"Unexplained slippage carried by: {summary.get('unexplained_risk', '')}")
+    click.echo(f"Preferred method: {summary.get('preferred_method') or 'none named'}")
+    click.echo(f"Analyst's opinion (opinion.md): {'given' if summary.get('opinion') else 'none'}")
+    _print_dialects(summary.get("input", []))
+
+
+_DELIMITER_WORDS = {",": "comma", ";": "semicolon", "\t": "tab", "|": "vertical bar"}
+
+
+def _print_dialects(dialects: list) -> None:
+    """How each file was read, so that nothing is guessed silently."""
+    rows = []
+    for d in dialects:
+        if d.get("delimiter_source") == "sheet":
+            delimiter = encoding = "workbook sheet"
+        else:
+            delimiter = f"{_DELIMITER_WORDS.get(d.get('delimiter'), d.get('delimiter'))} ({d.get('delimiter_source')})"
+            encoding = f"{d.get('encoding')} ({d.get('encoding_source')})"
+        renamed = ", ".join(f"{k} -> {v}" for k, v in d.get("renamed", {}).items())
+        rows.append([d.get("file"), delimiter, encoding, d.get("date_format"), d.get("decimal"),
+                     f"headers read as: {renamed}" if renamed else ""])
+    if rows:  # "note" is a column that wraps (commands.common.WIDE_COLUMNS)
+        _print_table("How the files were read", ["file", "delimiter", "encoding", "date format", "decimal",
+                                                 "note"], rows)
 
 
 @cli.command()

@@ -42,6 +42,7 @@ from typing import Mapping, Sequence
 import numpy as np
 import pandas as pd
 
+from .bounds import check_finish_days, check_late_days, grow_within_bounds
 from .calendars import CalendarSet, build_calendars, to_days
 from .errors import CaseError, Problem
 from .model import ACTIVITY_KINDS, CONSTRAINTS, Case, ScheduleSettings, Snapshot
@@ -471,7 +472,8 @@ def _run(model: ScheduleModel, forward_only: bool = False):
             early_finish, start_read, remaining_start, finish_day, relative_float, link_free_float_t)
         if code == _kernels.OK:
             break
-        cals.grow(earlier=code == _kernels.TOO_EARLY)
+        grow_within_bounds(model, cals, code == _kernels.TOO_EARLY)
+    check_finish_days(model, finish_day)
 
     # -- completion ---------------------------------------------------------------------------
     completion_day = int(finish_day.max()) if n else model.data_day
@@ -492,7 +494,8 @@ def _run(model: ScheduleModel, forward_only: bool = False):
             late_finish_t, late_start, late_finish, total_float, free_float)
         if code == _kernels.OK:
             break
-        cals.grow(earlier=code == _kernels.TOO_EARLY)
+        grow_within_bounds(model, cals, code == _kernels.TOO_EARLY)
+    check_late_days(model, cals, late_start)
     return ScheduleResult(
         model=model,
         status=status,

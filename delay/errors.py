@@ -8,12 +8,23 @@ plain line per problem and exits with status 2; it never shows a traceback for t
 
 from __future__ import annotations
 
+import unicodedata
 from dataclasses import dataclass
 
-__all__ = ["Problem", "CaseError", "ReconciliationError", "MAX_PROBLEMS_PER_FILE"]
+__all__ = ["Problem", "CaseError", "DateBoundError", "ReconciliationError", "MAX_PROBLEMS_PER_FILE"]
 
 #: At most this many problems are collected from one file before checking moves on.
 MAX_PROBLEMS_PER_FILE = 50
+
+
+def _one_line(text: str) -> str:
+    """``text`` with every control character (line breaks, form feeds, NUL ...) written as
+    its escape, so that a problem quoting a cell stays one plain line."""
+    if text.isprintable():
+        return text
+    return "".join(character if character.isprintable() or character == " "
+                   or unicodedata.category(character) not in ("Cc", "Zl", "Zp")
+                   else repr(character)[1:-1] for character in text)
 
 
 @dataclass(frozen=True)
@@ -50,7 +61,7 @@ class Problem:
         text = f"{where}: {self.message}"
         if self.fix:
             text += f" - {self.fix}"
-        return text
+        return _one_line(text)
 
 
 class CaseError(Exception):
@@ -63,6 +74,29 @@ class CaseError(Exception):
         if not self.problems:
             raise ValueError("CaseError needs at least one problem")
         super().__init__("\n".join(str(p) for p in self.problems))
+
+
+class DateBoundError(CaseError):
+    """A computed date would fall outside the dates the toolkit works with.
+
+    Raised by :mod:`delay.calendars` when a look-up needs a date beyond its horizon's
+    bound (a year past :data:`delay.model.FIRST_DATE` .. :data:`delay.model.LAST_DATE`).
+    The engine turns it into a problem naming the snapshot and the durations and lags
+    that drive the dates so far (:mod:`delay.bounds`); on its own it still reads as one
+    plain line. ``earlier`` tells which bound: before the first date, or after the last.
+    """
+
+    def __init__(self, earlier: bool, problems: Problem | list[Problem] | None = None):
+        self.earlier = bool(earlier)
+        if problems is None:
+            side = "before 1900-01-01" if earlier else "after 2200-12-31"
+            problems = Problem(
+                file="the schedule",
+                message=f"a computed date would fall {side}, outside the dates the toolkit "
+                        "works with",
+                fix="check the durations, lags and event days of the case for a value keyed "
+                    "in the wrong unit or with an extra digit")
+        super().__init__(problems)
 
 
 class ReconciliationError(Exception):

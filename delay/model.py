@@ -31,6 +31,7 @@ __all__ = [
     "CommercialSettings",
     "AnalysisSettings",
     "ReportSettings",
+    "InputSettings",
     "CaseSettings",
     "Snapshot",
     "Correction",
@@ -43,6 +44,9 @@ __all__ = [
     "IMPACTS",
     "METHODS",
     "WEEKDAYS",
+    "FIRST_DATE",
+    "LAST_DATE",
+    "LARGEST_DAYS",
 ]
 
 LINK_TYPES = ("FS", "SS", "FF", "SF")
@@ -50,6 +54,14 @@ ACTIVITY_KINDS = ("task", "start_milestone", "finish_milestone")
 CONSTRAINTS = ("earliest_start", "latest_finish", "fixed_start", "fixed_finish")
 PARTIES = ("employer", "contractor", "neutral")
 IMPACTS = ("extend", "hold", "fragnet")
+#: The first and last date a case may hold and the toolkit computes: far wider than any
+#: works, narrow enough that every date stays exact in every date type the toolkit uses.
+FIRST_DATE = dt.date(1900, 1, 1)
+LAST_DATE = dt.date(2200, 12, 31)
+#: The largest duration, remaining duration, lag or number of days (work or calendar days
+#: as the column is) a case may give: 36,500, about a hundred years of calendar days.
+LARGEST_DAYS = 36_500
+
 #: The delay-analysis methods a report may name as the analyst's preferred one.
 METHODS = ("windows", "asbuilt", "impacted", "tia", "collapsed")
 WEEKDAYS = ("Mon", "Tue", "Wed", "Thu", "Fri", "Sat", "Sun")
@@ -145,6 +157,26 @@ class ReportSettings:
 
 
 @dataclass(frozen=True)
+class InputSettings:
+    """``[input]`` of case.toml (all optional): the dialect the case's CSV files are in.
+
+    ``delimiter`` (``None``: detected from each file's header row) and ``encoding``
+    (``None``: UTF-8; a byte-order mark always decides) say how files are read;
+    ``date_format`` (a :func:`datetime.datetime.strptime` format) is applied to every date
+    column and ``decimal`` (``"."`` or ``","``) to every number, ISO dates and a decimal
+    point being understood too; ``columns`` maps, per table, a header of the user's files
+    (matched ignoring case and surrounding spaces, as its key here) to the case format's
+    column. What was read for each file is :attr:`Case.input_dialects`.
+    """
+
+    delimiter: str | None = None
+    encoding: str | None = None
+    date_format: str = "%Y-%m-%d"
+    decimal: str = "."
+    columns: Mapping[str, Mapping[str, str]] = field(default_factory=dict)
+
+
+@dataclass(frozen=True)
 class CaseSettings:
     """All of case.toml, defaults applied. ``extra`` keeps keys the toolkit does not know."""
 
@@ -153,6 +185,7 @@ class CaseSettings:
     commercial: CommercialSettings = field(default_factory=CommercialSettings)
     analysis: AnalysisSettings = field(default_factory=AnalysisSettings)
     report: ReportSettings = field(default_factory=ReportSettings)
+    input: InputSettings = field(default_factory=InputSettings)
     extra: Mapping[str, object] = field(default_factory=dict)
 
 
@@ -265,6 +298,8 @@ class Case:
     corrections: the analyst's corrections, applied, in corrections.csv order.
     input_files: every file read, for the report's manifest.
     opinion: the analyst's opinion (opinion.md) as text, ``""`` when there is none.
+    input_dialects: per CSV file (or sheet) read, what was read: delimiter, encoding,
+        date format, decimal mark and renamed headers (``delay.case._dialect.Dialect``).
 
     Each optional table is present (empty, with its stable columns) even when its file
     is absent. A table added in case-format version 2 (``attributions``) may be left out
@@ -282,6 +317,7 @@ class Case:
         corrections: tuple[Correction, ...],
         input_files: tuple[Path, ...],
         opinion: str = "",
+        input_dialects: tuple = (),
     ):
         tables = dict(tables)
         for name in _VERSION_2_TABLES:
@@ -293,6 +329,7 @@ class Case:
         self.root = Path(root)
         self.settings = settings
         self.opinion = str(opinion)
+        self.input_dialects = tuple(input_dialects)
         self._tables = tables
         self.snapshots = tuple(snapshots)
         self.asbuilt_snapshot = asbuilt_snapshot

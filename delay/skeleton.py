@@ -225,6 +225,17 @@ _SETTINGS: tuple[tuple[str, str, str, str], ...] = (
     ("report", "preferred_method", None,
      'the method the analyst relies on: "windows", "asbuilt", "impacted", "tia" or '
      '"collapsed"; left out: none is named'),
+    ("input", "delimiter", None,
+     'the CSV files\' delimiter: ",", ";", "\\t" (tab) or "|"; left out: detected from '
+     "each file's header row (validate says which)"),
+    ("input", "encoding", None,
+     'the CSV files\' encoding: "utf-8", "cp1252" or "utf-16"; left out: UTF-8 (a '
+     "byte-order mark always decides)"),
+    ("input", "date_format", '"%Y-%m-%d"',
+     'how the CSV files write dates, e.g. "%d/%m/%Y" or "%d.%m.%Y"; YYYY-MM-DD is always read'),
+    ("input", "decimal", '"."', 'the decimal mark of numbers in the CSV files: "." or ","'),
+    ("input", "columns", None,
+     "per table, a header of your files (any case) read as a column of the format"),
 )
 
 
@@ -247,7 +258,9 @@ def _case_toml(name: str, start: dt.date, completion: dt.date) -> str:
 
 
 #: An example for each setting that has no default (written as a comment line).
-_EXAMPLES = {"completion_activity": '"FINISH"', "preferred_method": '"windows"'}
+_EXAMPLES = {"completion_activity": '"FINISH"', "preferred_method": '"windows"',
+             "delimiter": '";"', "encoding": '"cp1252"',
+             "columns": '{ activities = { "Task No" = "id", "Task" = "name" } }'}
 
 _SNAPSHOT_TOML = """\
 label = "Baseline"        # the name shown in the report

@@ -1,6 +1,6 @@
 """Loading a valid case: types, defaults, order, as-built record, corrections, summary.
 
-The expectations come from shared/case-format.md (the input contract) and the column
+The expectations come from docs/case-format.md (the input contract) and the column
 types documented in delay/model.py; dates and counts are worked out by hand from the rows
 of test_case_support.
 """

@@ -19,7 +19,7 @@ from delay.errors import CaseError
 from delay.model import COLUMNS, CaseSettings
 from delay.skeleton import GUIDE_NAME, write_skeleton
 
-# The files of the format (shared/case-format.md, the folder tree at its top).
+# The files of the format (docs/case-format.md, the folder tree at its top).
 FORMAT_FILES = {
     "calendars.csv": "calendars",
     "calendar_exceptions.csv": "calendar_exceptions",
@@ -77,11 +77,14 @@ def test_case_toml_gives_every_setting_with_a_comment(tmp_path):
         fields = dataclasses.fields(type(getattr(settings, section.name)))
         # A setting whose default is "none given" cannot be written in TOML (which has no
         # null): the skeleton gives it as a commented example line under its section.
-        given = {f.name for f in fields if f.default is not None}
+        # So is a table to fill in (``[input] columns``, empty by default).
+        commented = {f.name for f in fields
+                     if f.default is None or f.default_factory is not dataclasses.MISSING}
+        given = {f.name for f in fields} - commented
         assert set(values.get(section.name, {})) == given, section.name
         block = text.split(f"[{section.name}]\n", 1)[1].split("\n[", 1)[0]
         for field in fields:
-            if field.default is None:
+            if field.name in commented:
                 line = next(l for l in block.splitlines() if l.startswith(f"# {field.name} = "))
                 example = tomllib.loads(line[2:].split("#", 1)[0])
                 assert set(example) == {field.name}, line

@@ -1,4 +1,4 @@
-"""One small broken case per validation rule of case-format v1 (shared/case-format.md).
+"""One small broken case per validation rule of case-format v1 (docs/case-format.md).
 
 Each test starts from the valid case of test_case_support (which itself must load: see
 test_the_full_case_is_valid), breaks one thing, and checks that the problem names the

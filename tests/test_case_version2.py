@@ -1,4 +1,4 @@
-"""The fields case-format version 2 adds (shared/case-format.md, the "(v2)" marks).
+"""The fields case-format version 2 adds (docs/case-format.md, the "(v2)" marks).
 
 For each: a valid case using it loads to the typed value the format describes, and a
 broken one gives one problem naming the file, the spreadsheet row (header = row 1, first

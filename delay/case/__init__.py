@@ -47,13 +47,18 @@ def load_case(path: str | Path) -> Case:
         Blank cells take the format's defaults (calendar: ``schedule.default_calendar``;
         kind: ``task``; link type: ``FS``; lag: 0). A milestone (a milestone kind or a task
         of duration 0) with one actual date takes it as both; a finished activity has
-        remaining 0. Dates are ``datetime64[us]``.
+        remaining 0. Dates are ``datetime64[us]``. The CSV files are read in the dialect
+        ``[input]`` of case.toml declares (else detected or the default: UTF-8, ISO
+        dates); what was read for each file is :attr:`Case.input_dialects`. The analyst's
+        opinion.md, when there is one, is :attr:`Case.opinion`.
 
     Raises
     ------
     CaseError
-        When anything in the case is missing or wrong; it lists every problem found, at
-        most :data:`delay.errors.MAX_PROBLEMS_PER_FILE` per file.
+        When anything in the case is missing or wrong, or beyond the limits of the case
+        format (dates outside 1900-01-01 to 2200-12-31, more than 36,500 days, settings
+        files or workbooks too large or too deeply nested); it lists every problem found,
+        at most :data:`delay.errors.MAX_PROBLEMS_PER_FILE` per file.
     """
     return _load(Path(path)).case
 
@@ -85,7 +90,9 @@ def summarise(case: Case) -> dict[str, Any]:
         ``asbuilt`` (``True`` when the case has an as-built record), ``asbuilt_snapshot``
         (its summary or ``None``), ``completion_activity`` (from case.toml, or ``None``),
         ``unexplained_risk``, ``preferred_method`` (or ``None``), ``opinion`` (``True``
-        when the case has an opinion.md that is not blank), and the counts
+        when the case has an opinion.md that is not blank), ``input`` (per file or sheet
+        read, what was read: ``file``, ``delimiter`` and ``encoding`` with where each came
+        from, ``date_format``, ``decimal`` and the ``renamed`` headers), and the counts
         ``calendars``, ``events``, ``fragnets`` (inserted activities), ``fragnet_links``,
         ``elements``, ``sections``, ``extensions``, ``corrections`` and ``attributions``.
     """
@@ -107,6 +114,7 @@ def summarise(case: Case) -> dict[str, Any]:
         "unexplained_risk": case.settings.analysis.unexplained_risk,
         "preferred_method": case.settings.report.preferred_method,
         "opinion": bool(case.opinion.strip()),
+        "input": [dialect.as_dict() for dialect in case.input_dialects],
         "calendars": rows("calendars"),
         "events": rows("events"),
         "fragnets": rows("fragnets"),

@@ -7,13 +7,15 @@ so that later checks can still run on the rest).
 
 from __future__ import annotations
 
+import datetime as dt
 from typing import Callable, Iterable
 
 import numpy as np
 import pandas as pd
 
+from delay.case._dialect import ISO_DATE
 from delay.case._problems import Problems, RawTable
-from delay.model import COLUMNS
+from delay.model import COLUMNS, FIRST_DATE, LARGEST_DAYS, LAST_DATE
 
 __all__ = [
     "DATE_DTYPE",
@@ -26,6 +28,8 @@ __all__ = [
     "empty_cells",
     "required_cells",
     "dates",
+    "parse_dates",
+    "parse_numbers",
     "integers",
     "numbers",
     "choices",
@@ -36,8 +40,10 @@ __all__ = [
     "assemble",
 ]
 
-#: The largest whole number of days accepted (about 270 years of calendar days).
-LARGEST_WHOLE_NUMBER = 100_000
+#: The largest whole number of days accepted (:data:`delay.model.LARGEST_DAYS`).
+LARGEST_WHOLE_NUMBER = LARGEST_DAYS
+_FIRST = np.datetime64(FIRST_DATE, "us")
+_LAST = np.datetime64(LAST_DATE, "us")
 
 #: The dtype of every date column (pandas' own unit for parsed dates).
 DATE_DTYPE = "datetime64[us]"
@@ -136,27 +142,60 @@ def dates(problems: Problems, table: RawTable, column: str, *, required: Text | 
     """
     text = table.frame[column]
     empty = empty_cells(text)
-    if empty.all():
-        parsed = pd.Series(np.full(len(text), np.datetime64("NaT"), dtype=DATE_DTYPE),
-                           index=text.index, name=column)
-    else:
-        parsed = pd.to_datetime(text.where(~empty), format="%Y-%m-%d", errors="coerce")
-        parsed = parsed.astype(DATE_DTYPE)
+    parsed = parse_dates(text, table.date_format)
+    example = dt.date(2025, 3, 31).strftime(table.date_format)
+    shown = "YYYY-MM-DD" if table.date_format == ISO_DATE else f"{table.date_format} ([input] of case.toml)"
     problems.flag(table, ~empty & parsed.isna().to_numpy(), column,
                   "'{value}' is not a date",
-                  "write the date as YYYY-MM-DD, for example 2025-03-31")
+                  f"write the date as {shown}, for example {example}")
+    values = parsed.to_numpy()
+    outside = ~np.isnat(values) & ((values < _FIRST) | (values > _LAST))
+    problems.flag(table, outside, column,
+                  f"the date '{{value}}' is outside {FIRST_DATE} to {LAST_DATE}, the dates "
+                  "the toolkit works with", "check the year of the date")
+    if outside.any():
+        parsed = parsed.where(~outside)
     if required is not None:
         problems.flag(table, empty, column, required, fix_required or "fill in the date as YYYY-MM-DD")
     return parsed
 
 
-def _numbers(text: pd.Series) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+def parse_dates(text: pd.Series, date_format: str = ISO_DATE) -> pd.Series:
+    """Dates (``DATE_DTYPE``, ``NaT`` for a blank or unreadable cell) of a text column
+    written in ``date_format``; ISO ``YYYY-MM-DD`` is understood too (workbook date cells
+    and corrections may use it)."""
+    empty = empty_cells(text)
+    if empty.all():
+        return pd.Series(np.full(len(text), np.datetime64("NaT"), dtype=DATE_DTYPE),
+                         index=text.index, name=text.name)
+    parsed = pd.to_datetime(text.where(~empty), format=date_format, errors="coerce")
+    if date_format != ISO_DATE:
+        again = parsed.isna().to_numpy() & ~empty
+        if again.any():
+            parsed = parsed.where(~again, pd.to_datetime(text.where(again), format=ISO_DATE,
+                                                         errors="coerce"))
+    return parsed.astype(DATE_DTYPE)
+
+
+def parse_numbers(text: pd.Series, decimal: str = ".") -> np.ndarray:
+    """Numbers (``float64``, ``NaN`` for a blank or unreadable cell) of a text column.
+
+    With the decimal mark ``","``, a cell holding a point is unreadable: it may be a
+    thousands separator (``2.800``), which must never be read as a decimal point.
+    """
+    if decimal == ",":
+        point = text.str.contains(".", regex=False).to_numpy()
+        text = text.str.replace(",", ".", regex=False).where(~point, "not a number")
+    return pd.to_numeric(text, errors="coerce").to_numpy(dtype=np.float64)
+
+
+def _numbers(text: pd.Series, decimal: str = ".") -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     """(values, blank mask, not-a-number mask) of a text column."""
     empty = empty_cells(text)
     if empty.all():
         nothing = np.zeros(len(text), dtype=bool)
         return np.full(len(text), np.nan), empty, nothing
-    values = pd.to_numeric(text.where(~empty), errors="coerce").to_numpy(dtype=np.float64)
+    values = parse_numbers(text.where(~empty), decimal)
     not_number = ~empty & ~np.isfinite(values)
     values = np.where(not_number, np.nan, values)
     return values, empty, not_number
@@ -171,7 +210,7 @@ def integers(problems: Problems, table: RawTable, column: str, *, unit: str,
     the message ``required``. Text that is not a number, a fraction, or a value below
     ``minimum`` is a problem. Bad cells become ``default`` (or 0) in the result.
     """
-    values, empty, not_number = _numbers(table.frame[column])
+    values, empty, not_number = _numbers(table.frame[column], table.decimal)
     problems.flag(table, not_number, column, "'{value}' is not a number",
                   f"write a whole number of {unit}")
     fraction = ~empty & ~not_number & (np.floor(values) != values)
@@ -179,8 +218,11 @@ def integers(problems: Problems, table: RawTable, column: str, *, unit: str,
                   f"give a whole number of {unit}")
     bad = not_number | fraction
     huge = ~empty & ~bad & (np.abs(np.nan_to_num(values)) > LARGEST_WHOLE_NUMBER)
-    problems.flag(table, huge, column, "'{value}' is too large",
-                  f"give at most {LARGEST_WHOLE_NUMBER:,} {unit}")
+    signed = minimum is None or minimum < 0
+    problems.flag(table, huge, column, "'{value}' is too large" if not signed
+                  else "'{value}' is out of range",
+                  f"give at most {LARGEST_WHOLE_NUMBER:,} {unit}" if not signed else
+                  f"give from -{LARGEST_WHOLE_NUMBER:,} to {LARGEST_WHOLE_NUMBER:,} {unit}")
     bad |= huge
     if minimum is not None:
         low = ~empty & ~bad & (values < minimum)
@@ -196,16 +238,18 @@ def integers(problems: Problems, table: RawTable, column: str, *, unit: str,
 
 
 def numbers(problems: Problems, table: RawTable, column: str, *, unit: str = "",
-            whole: bool = False, minimum: float | None = None,
+            whole: bool = False, minimum: float | None = None, maximum: float | None = None,
             required: Text | None = None) -> pd.Series:
     """``column`` as ``float64`` (``NaN`` for blank).
 
-    ``whole`` makes a fraction a problem; ``minimum`` a smaller value; ``required`` (a
-    message) a blank cell. Bad cells become ``NaN``.
+    ``whole`` makes a fraction a problem; ``minimum`` a smaller value, ``maximum`` a
+    larger one; ``required`` (a message) a blank cell. Bad cells become ``NaN``.
     """
-    values, empty, not_number = _numbers(table.frame[column])
+    values, empty, not_number = _numbers(table.frame[column], table.decimal)
     what = f"a whole number of {unit}" if whole else (f"a number of {unit}" if unit else "a number")
-    problems.flag(table, not_number, column, "'{value}' is not a number", f"write {what}")
+    mark = (", with a decimal comma and no thousands separator ([input] of case.toml)"
+            if table.decimal == "," and not whole else "")
+    problems.flag(table, not_number, column, "'{value}' is not a number", f"write {what}{mark}")
     bad = not_number.copy()
     if whole:
         fraction = ~empty & ~bad & (np.floor(values) != values)
@@ -216,6 +260,11 @@ def numbers(problems: Problems, table: RawTable, column: str, *, unit: str = "",
         problems.flag(table, low, column, f"{column} {{value}} is below {minimum:g}",
                       f"give {minimum:g} or more")
         bad |= low
+    if maximum is not None:
+        high = ~empty & ~bad & (np.nan_to_num(values) > maximum)
+        problems.flag(table, high, column, "'{value}' is too large",
+                      f"give at most {maximum:,g} {unit}".rstrip())
+        bad |= high
     if required is not None:
         problems.flag(table, empty, column, required, f"give {what}")
     result = np.where(bad, np.nan, values)

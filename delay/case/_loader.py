@@ -29,7 +29,9 @@ from delay.model import (
     ACTIVITY_KINDS,
     COLUMNS,
     CONSTRAINTS,
+    FIRST_DATE,
     IMPACTS,
+    LAST_DATE,
     LINK_TYPES,
     PARTIES,
     WEEKDAYS,
@@ -146,6 +148,7 @@ class _Loader:
             corrections=tuple(self.corrections),
             input_files=tuple(self.source.input_files),
             opinion=self.source.opinion,
+            input_dialects=tuple(self.source.dialects),
         )
 
     def usable(self, name: str) -> RawTable | None:
@@ -158,7 +161,7 @@ class _Loader:
         settings_source = self.source.settings
         if settings_source is None:
             return
-        self.settings = parse_settings(settings_source, self.problems)
+        self.settings = parse_settings(settings_source, self.problems, self.source.input)
         if self.settings is not None:
             self.default_calendar = self.settings.schedule.default_calendar
         else:
@@ -290,11 +293,17 @@ class _Loader:
                 if data_date is None:
                     report("data_date", f"the data date {facts['data_date']!r} is not a date",
                            "write it as data_date = YYYY-MM-DD")
+                elif not FIRST_DATE <= data_date <= LAST_DATE:
+                    report("data_date", f"the data date {data_date} is outside {FIRST_DATE} to "
+                           f"{LAST_DATE}, the dates the toolkit works with",
+                           "check the year of the data date")
+                    data_date = None
             kind = facts.get("kind", "baseline" if snap.folder.lower() == "baseline" else "update")
             if kind not in _SNAPSHOT_KINDS:
                 report("kind", f"the kind {kind!r} is not baseline or update",
                        'write kind = "baseline" for the baseline, kind = "update" otherwise')
                 kind = None
+            self.check_reserved_names(snap, label, kind, report)
             facts_list.append(_SnapshotFacts(snap, snap.folder, label, data_date, kind))
 
         baselines = [f for f in facts_list if f.kind == "baseline"]
@@ -346,6 +355,33 @@ class _Loader:
                       "give every snapshot its own label", row=row, column=column)
             labels.setdefault(facts.label, facts)
         self.snapshots = ordered
+
+    def check_reserved_names(self, snap: SnapshotSource, label: str, kind: str | None,
+                             report) -> None:
+        """A snapshot may not take a name the case format keeps for something else:
+        ``asbuilt`` (the as-built record, labelled As-built) for any snapshot, and
+        ``baseline`` for a snapshot that is not the baseline. One problem per snapshot."""
+        workbook = self.source.workbook
+        names = [("folder name", snap.folder)] + ([("label", label)] if label != snap.folder else [])
+        for what, name in names:
+            plain = name.strip().lower().replace("-", "").replace("_", "").replace(" ", "")
+            if plain == ASBUILT:
+                message = (f"the {what} '{name}' is kept for the as-built record, which "
+                           "comes from asbuilt.csv")
+                fix = (f"give this snapshot another {what}, and put the as-built dates in "
+                       "asbuilt.csv")
+            elif plain == "baseline" and kind == "update":
+                message = f"the {what} '{name}' is kept for the baseline, but this is an update"
+                fix = (f"give the update another {what}, or make it the baseline with "
+                       'kind = "baseline"')
+            else:
+                continue
+            if what == "folder name" and not workbook:
+                self.problems.add(f"snapshots/{snap.folder}", message, fix)
+            else:  # the workbook's folder column, or its label when it has none
+                given = what == "folder name" and snap.facts.get("label") != snap.folder
+                report("folder" if given else "label", message, fix)
+            return
 
     # ------------------------------------------------------------------ corrections
 
@@ -428,7 +464,8 @@ class _Loader:
                "name the constraint (" + ", ".join(CONSTRAINTS) + ") or clear the date")
         start = columns.dates(p, table, "actual_start")
         finish = columns.dates(p, table, "actual_finish")
-        remaining = columns.numbers(p, table, "remaining", unit="work days", whole=True, minimum=0)
+        remaining = columns.numbers(p, table, "remaining", unit="work days", whole=True, minimum=0,
+                                    maximum=columns.LARGEST_WHOLE_NUMBER)
         start, finish, remaining = self.check_progress(
             table, duration, kind, start, finish, remaining, data_date)
         return columns.assemble(table, {
@@ -676,7 +713,8 @@ class _Loader:
                              "the baseline or any update",
                              "name activities of the baseline or of an update, separated by ;")
         impact = columns.choices(p, table, "impact", IMPACTS, what="impact")
-        days = columns.numbers(p, table, "days", unit="work days", whole=True, minimum=0)
+        days = columns.numbers(p, table, "days", unit="work days", whole=True, minimum=0,
+                               maximum=columns.LARGEST_WHOLE_NUMBER)
         extend = (impact == "extend").to_numpy()
         p.flag(table, extend & (frame["days"] == "").to_numpy(), "days",
                "the impact extend needs the number of days",
@@ -694,7 +732,8 @@ class _Loader:
                                        "in fragnets.csv",
                    "add its activities to fragnets.csv, or choose another impact")
         notified = columns.dates(p, table, "notified")
-        claimed = columns.numbers(p, table, "claimed_days", unit="calendar days", minimum=0)
+        claimed = columns.numbers(p, table, "claimed_days", unit="calendar days", minimum=0,
+                                  maximum=columns.LARGEST_WHOLE_NUMBER)
         self.check_event_programmes(table)
         self.event_ids = [i for i in ids.tolist() if i]
         self.event_impacts = dict(zip(ids.tolist(), impact.tolist()))
@@ -965,6 +1004,8 @@ class _Loader:
                            "give every extension a different id", skip=no_id)
         granted = columns.dates(p, table, "granted_on", required="the extension has no date")
         days = columns.numbers(p, table, "days", unit="calendar days", whole=True,
+                               minimum=-columns.LARGEST_WHOLE_NUMBER,
+                               maximum=columns.LARGEST_WHOLE_NUMBER,
                                required="the extension gives no days")
         if self.section_ids is not None:
             columns.references(p, table, "section", self.section_ids,

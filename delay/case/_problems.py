@@ -37,6 +37,10 @@ class RawTable:
     origins: dict[int, tuple[str, int]] = field(default_factory=dict)
     #: False for the empty stand-in of an optional file that the case does not have.
     present: bool = True
+    #: How the file writes dates and numbers ([input] of case.toml): ``date_format`` is a
+    #: strptime format (ISO dates are understood too), ``decimal`` the decimal mark.
+    date_format: str = "%Y-%m-%d"
+    decimal: str = "."
 
     def __len__(self) -> int:
         return len(self.frame)

@@ -13,7 +13,10 @@ from delay.case._source import SettingsSource
 from delay.model import (
     AnalysisSettings,
     CaseSettings,
+    FIRST_DATE,
+    LAST_DATE,
     CommercialSettings,
+    InputSettings,
     ProjectSettings,
     ReportSettings,
     ScheduleSettings,
@@ -77,6 +80,8 @@ def _convert(cls: type, name: str, value: Any) -> tuple[Any, str | None]:
         parsed = parse_date_value(value)
         if parsed is None:
             return None, "must be a date written YYYY-MM-DD"
+        if not FIRST_DATE <= parsed <= LAST_DATE:
+            return None, f"must be a date from {FIRST_DATE} to {LAST_DATE}"
         return parsed, None
     if hint is bool:
         if isinstance(value, bool):
@@ -119,13 +124,16 @@ def _example(cls: type, name: str) -> str:
     }.get(hint, f'{name} = "..."')
 
 
-def parse_settings(source: SettingsSource, problems: Problems) -> CaseSettings | None:
+def parse_settings(source: SettingsSource, problems: Problems,
+                   input_settings: InputSettings | None = None) -> CaseSettings | None:
     """Build :class:`CaseSettings` from the settings as read, recording every problem.
 
     Parameters
     ----------
     source:
         The nested mapping read from case.toml or the ``case`` sheet.
+    input_settings:
+        ``[input]``, already read and checked with the files it describes.
     problems:
         Where problems are recorded; each names the file and the setting (``section.key``).
 
@@ -144,6 +152,8 @@ def parse_settings(source: SettingsSource, problems: Problems) -> CaseSettings |
         problems.add(file, message, fix, row=row, column=column)
 
     for section, value in source.values.items():
+        if section == "input":
+            continue  # read with the files it describes (delay.case._dialect)
         if section not in SETTINGS_SECTIONS:
             extra[section] = value
         elif not isinstance(value, dict):
@@ -191,5 +201,6 @@ def parse_settings(source: SettingsSource, problems: Problems) -> CaseSettings |
         commercial=built.get("commercial", CommercialSettings()),
         analysis=built.get("analysis", AnalysisSettings()),
         report=built.get("report", ReportSettings()),
+        input=input_settings or InputSettings(),
         extra=extra,
     )

@@ -9,6 +9,7 @@ missing files, unreadable files, broken headers.
 from __future__ import annotations
 
 import datetime as dt
+import io
 import re
 import tomllib
 import warnings
@@ -19,8 +20,18 @@ from typing import Any, Callable
 import numpy as np
 import pandas as pd
 
+from delay.case._dialect import (
+    DecodeProblem,
+    Dialect,
+    decode,
+    detect_delimiter,
+    header_key,
+    parse_input,
+    rename_header,
+)
+from delay.case._limits import LARGEST_SETTING_PARTS, LARGEST_TOML, check_toml, check_workbook
 from delay.case._problems import Problems, RawTable
-from delay.model import COLUMNS
+from delay.model import COLUMNS, InputSettings
 
 __all__ = [
     "CaseSource",
@@ -97,6 +108,10 @@ class CaseSource:
     snapshots_found: bool = True
     #: The analyst's opinion (opinion.md), ``""`` when there is none.
     opinion: str = ""
+    #: ``[input]`` of the settings: the dialect the files are read in.
+    input: InputSettings = field(default_factory=InputSettings)
+    #: What was read for each CSV file or sheet, in reading order.
+    dialects: list[Dialect] = field(default_factory=list)
 
 
 # --------------------------------------------------------------------------- tables
@@ -108,14 +123,14 @@ _EDGES = np.zeros(256, dtype=bool)
 _EDGES[[ord(","), ord('"'), ord("\n"), ord("\r")]] = True
 
 
-def _needs_strip(data: bytes) -> bool:
+def _needs_strip(data: bytes, delimiter: str = ",") -> bool:
     """Whether any cell of a CSV file may start or end with a space.
 
-    Looks for a space or tab beside a separator, a quote or a line end (or at either end
+    Looks for a space or tab beside a delimiter, a quote or a line end (or at either end
     of the file), with whole-array operations over the file's bytes; a file without one
     has no cell that needs stripping, and the costly strip of every column is skipped.
     """
-    if b"\xc2\xa0" in data:  # a no-break space anywhere: strip to be safe
+    if b"\xc2\xa0" in data or delimiter == "\t":  # a no-break space, or tab-separated
         return True
     octets = np.frombuffer(data, dtype=np.uint8)
     if not octets.size:
@@ -123,19 +138,28 @@ def _needs_strip(data: bytes) -> bool:
     space = _SPACES[octets]
     if space[0] or space[-1]:
         return True
-    edge = _EDGES[octets]
+    edges = _EDGES.copy()
+    edges[ord(delimiter)] = True
+    edge = edges[octets]
     return bool((space[:-1] & edge[1:]).any() or (edge[:-1] & space[1:]).any())
 
 
 def _make_table(name: str, file: str, header: list[str], body: pd.DataFrame, rows: np.ndarray,
-                problems: Problems, path: Path | None = None, strip: bool = True) -> RawTable | None:
-    """Name the columns of ``body`` from ``header``, strip cells and drop blank rows."""
-    header = [str(h).strip() for h in header]
+                problems: Problems, path: Path | None = None, strip: bool = True,
+                settings: InputSettings | None = None) -> tuple[RawTable | None, dict[str, str]]:
+    """Name the columns of ``body`` from ``header``, strip cells and drop blank rows.
+
+    Headers are matched ignoring case and surrounding spaces, through ``[input.columns]``
+    of ``settings`` first; returns the table and the headers read as another name.
+    """
+    settings = settings or InputSettings()
+    given = [str(h).strip() for h in header]
+    header, renamed = rename_header(name, given, settings)
     body = body.copy()
     body.columns = range(body.shape[1])
     usable = True
     keep_columns = []
-    seen: set[str] = set()
+    seen: dict[str, str] = {}
     for number, column_name in enumerate(header):
         column = body[number].astype("str")
         if strip and len(body):
@@ -148,14 +172,18 @@ def _make_table(name: str, file: str, header: list[str], body: pd.DataFrame, row
                 usable = False
             continue
         if column_name in seen:
-            problems.add(file, f"the column '{column_name}' appears twice in the header row",
-                         "keep one column of that name", row=1, column=column_name)
+            first, this = seen[column_name], given[number]
+            message = (f"the column '{column_name}' appears twice in the header row"
+                       if first == this == column_name else
+                       f"the columns '{first}' and '{this}' are both read as '{column_name}'")
+            problems.add(file, message, "keep one column of that name", row=1,
+                         column=column_name)
             usable = False
             continue
-        seen.add(column_name)
+        seen[column_name] = given[number]
         keep_columns.append(number)
     if not usable:
-        return None
+        return None, renamed
     frame = body[keep_columns]
     frame.columns = [header[n] for n in keep_columns]
     if len(frame) and len(frame.columns):
@@ -169,53 +197,83 @@ def _make_table(name: str, file: str, header: list[str], body: pd.DataFrame, row
         rows = rows[:0]
     frame = frame.reset_index(drop=True)
     return RawTable(name=name, file=file, frame=frame, rows=np.asarray(rows, dtype=np.int64),
-                    path=path)
+                    path=path, date_format=settings.date_format,
+                    decimal=settings.decimal), renamed
 
 
-def read_csv_table(path: Path, name: str, file: str, problems: Problems) -> RawTable | None:
+_DELIMITER_NAMES = {",": "comma", ";": "semicolon", "\t": "tab", "|": "vertical bar"}
+
+
+def _encoding_name(encoding: str) -> str:
+    return encoding.upper().replace("-LE", " LE").replace("-BE", " BE") \
+        if encoding.startswith("utf") else encoding
+
+
+def read_csv_table(path: Path, name: str, file: str, problems: Problems,
+                   settings: InputSettings | None = None,
+                   dialects: list[Dialect] | None = None) -> RawTable | None:
     """Read one CSV file of the case into a :class:`RawTable` of strings.
 
-    Returns ``None`` (with a problem recorded) when the file cannot be read as a table.
+    The file is read in the dialect of ``settings`` (``[input]`` of case.toml: encoding,
+    delimiter, header names; detected where not declared); what was read is appended to
+    ``dialects``. Returns ``None`` (with a problem recorded) when the file cannot be read
+    as a table.
     """
+    settings = settings or InputSettings()
+    try:
+        data = path.read_bytes()
+    except OSError as error:
+        problems.add(file, f"the file cannot be read ({error.strerror or error})",
+                     "check that the file exists and may be read")
+        return None
+    try:
+        text, encoding, encoding_source = decode(data, settings.encoding)
+    except DecodeProblem as error:
+        problems.add(file, str(error).replace(f"not {settings.encoding or 'utf-8'}",
+                                              f"not {_encoding_name(settings.encoding or 'utf-8')}"),
+                     "save it as CSV in UTF-8 encoding, or name its encoding in [input] of "
+                     'case.toml (e.g. encoding = "cp1252")')
+        return None
+    line_end = text.find("\n")
+    delimiter = settings.delimiter or detect_delimiter(text[:line_end if line_end >= 0 else None])
+    separator = _DELIMITER_NAMES[delimiter]
     try:
         cells = pd.read_csv(
-            path, header=None, dtype=str, na_filter=False, skip_blank_lines=False,
-            index_col=False, encoding="utf-8-sig",
+            io.StringIO(text), sep=delimiter, header=None, dtype=str, na_filter=False,
+            skip_blank_lines=False, index_col=False, quotechar='"',
         )
     except pd.errors.EmptyDataError:
         problems.add(file, "the file is empty",
                      "give at least the header row: " + ",".join(COLUMNS[name]), row=1)
         return None
-    except UnicodeDecodeError:
-        problems.add(file, "the file is not UTF-8 text",
-                     "save it as CSV in UTF-8 encoding")
-        return None
     except pd.errors.ParserError as error:
         found = re.search(r"line (\d+), saw (\d+)", str(error))
         if found:
             problems.add(file, f"this row has {found.group(2)} cells, more than the header row",
-                         "remove the extra cells or quote a value that contains a comma",
+                         f"remove the extra cells or quote a value that contains a {separator}",
                          row=int(found.group(1)))
         else:
             problems.add(file, f"the file cannot be read as CSV ({error})",
-                         "check the quoting of values that contain commas or line breaks")
-        return None
-    except OSError as error:
-        problems.add(file, f"the file cannot be read ({error.strerror or error})",
-                     "check that the file exists and may be read")
+                         f"check the quoting of values that contain a {separator} or a line break")
         return None
     header = cells.iloc[0].tolist() if len(cells) else []
     body = cells.iloc[1:]
     rows = np.arange(2, len(cells) + 1, dtype=np.int64)
-    try:
-        padded = _needs_strip(path.read_bytes())
-    except OSError:
-        padded = True
-    return _make_table(name, file, header, body, rows, problems, path, strip=padded)
+    raw = data if encoding == "utf-8" else text.encode("utf-8")
+    table, renamed = _make_table(name, file, header, body, rows, problems, path,
+                                 strip=_needs_strip(raw, delimiter), settings=settings)
+    if dialects is not None:
+        dialects.append(Dialect(
+            file=file, delimiter=delimiter,
+            delimiter_source="declared" if settings.delimiter else "detected",
+            encoding=_encoding_name(encoding), encoding_source=encoding_source,
+            date_format=settings.date_format, decimal=settings.decimal, renamed=renamed))
+    return table
 
 
-def cell_text(value: Any) -> str:
-    """A workbook cell as the text a CSV file would hold for it."""
+def cell_text(value: Any, decimal_comma: bool = False) -> str:
+    """A workbook cell as the text a CSV file would hold for it (a number with a decimal
+    comma when ``decimal_comma``: the ``decimal`` of [input] applies to the sheet's text)."""
     if value is None:
         return ""
     if isinstance(value, str):
@@ -231,7 +289,7 @@ def cell_text(value: Any) -> str:
     if isinstance(value, float):
         if value.is_integer():
             return str(int(value))
-        return repr(value)
+        return repr(value).replace(".", ",") if decimal_comma else repr(value)
     return str(value)
 
 
@@ -245,12 +303,20 @@ def _toml_locator(file: str) -> Callable[[str], tuple[int | None, str]]:
 def _read_toml(path: Path, file: str, problems: Problems) -> dict[str, Any] | None:
     try:
         with path.open("rb") as handle:
-            return tomllib.load(handle)
+            data = handle.read(LARGEST_TOML + 1)
+        if not check_toml(data, file, problems):
+            return None
+        # A byte-order mark (as some editors save UTF-8) is not part of the settings.
+        text = data.decode("utf-8")
+        return tomllib.loads(text[1:] if text.startswith("\ufeff") else text)
     except tomllib.TOMLDecodeError as error:
         problems.add(file, f"the file is not valid TOML: {error}",
                      "write each setting as key = value; put text in double quotes, dates as YYYY-MM-DD")
     except UnicodeDecodeError:
         problems.add(file, "the file is not UTF-8 text", "save it in UTF-8 encoding")
+    except RecursionError:  # beyond what toml_depth foresaw: still one line
+        problems.add(file, "the settings nest too deeply to be read",
+                     "write each setting as key = value under its [section]")
     except OSError as error:
         problems.add(file, f"the file cannot be read ({error.strerror or error})",
                      "check that the file exists and may be read")
@@ -274,11 +340,13 @@ def _read_folder(root: Path, problems: Problems) -> CaseSource:
         values = _read_toml(path, "case.toml", problems)
         if values is not None:
             source.settings = SettingsSource(values, "case.toml", _toml_locator("case.toml"))
+            source.input = _input_settings(source.settings, problems)
+
+    def read(path: Path, name: str, relative: str) -> RawTable | None:
+        return read_csv_table(path, name, relative, problems, source.input, source.dialects)
 
     path = required_file("calendars.csv")
-    source.tables["calendars"] = (
-        read_csv_table(path, "calendars", "calendars.csv", problems) if path else None
-    )
+    source.tables["calendars"] = read(path, "calendars", "calendars.csv") if path else None
 
     snapshots_dir = root / "snapshots"
     if not snapshots_dir.is_dir():
@@ -297,7 +365,7 @@ def _read_folder(root: Path, problems: Problems) -> CaseSource:
             for name in ("activities", "links"):
                 relative = f"{base}/{name}.csv"
                 path = required_file(relative)
-                table = read_csv_table(path, name, relative, problems) if path else None
+                table = read(path, name, relative) if path else None
                 setattr(snap, name, table)
             source.snapshots.append(snap)
 
@@ -305,11 +373,21 @@ def _read_folder(root: Path, problems: Problems) -> CaseSource:
         path = root / f"{name}.csv"
         if path.is_file():
             source.input_files.append(path)
-            source.tables[name] = read_csv_table(path, name, f"{name}.csv", problems)
+            source.tables[name] = read(path, name, f"{name}.csv")
         else:
             source.tables[name] = _empty_table(name, f"{name}.csv")
     _read_opinion(source, root, problems)
     return source
+
+
+def _input_settings(settings: SettingsSource, problems: Problems) -> InputSettings:
+    """``[input]`` of the settings, its problems recorded at the setting's place."""
+
+    def report(key: str, message: str, fix: str) -> None:
+        row, column = settings.locate(key)
+        problems.add(settings.file, message, fix, row=row, column=column)
+
+    return parse_input(settings.values.get("input"), report)
 
 
 def _empty_table(name: str, file: str) -> RawTable:
@@ -342,7 +420,8 @@ def _sheet_cells(sheet) -> tuple[list[str], list[list[Any]], list[int]]:
     return header, body, rows
 
 
-def _sheet_table(workbook, name: str, label: str, problems: Problems) -> RawTable | None:
+def _sheet_table(workbook, name: str, label: str, problems: Problems,
+                 source: CaseSource) -> RawTable | None:
     header, body, rows = _sheet_cells(workbook[name])
     width = len(header)
     for values, row in zip(body, rows):
@@ -351,12 +430,17 @@ def _sheet_table(workbook, name: str, label: str, problems: Problems) -> RawTabl
             problems.add(label, "this row has values to the right of the last named column",
                          "give the column a name in row 1, or delete the values", row=row)
             return None
-    cells = [[cell_text(v).strip() for v in (values[:width] + [None] * (width - len(values)))]
+    comma = source.input.decimal == ","
+    cells = [[cell_text(v, comma).strip() for v in (values[:width] + [None] * (width - len(values)))]
              for values in body]
     frame = pd.DataFrame(cells, columns=range(width), dtype="str") if cells else pd.DataFrame(
         {n: pd.Series([], dtype="str") for n in range(width)})
-    return _make_table(name, label, header, frame, np.asarray(rows, dtype=np.int64), problems,
-                       strip=False)
+    table, renamed = _make_table(name, label, header, frame, np.asarray(rows, dtype=np.int64),
+                                 problems, strip=False, settings=source.input)
+    source.dialects.append(Dialect(
+        file=label, delimiter="", delimiter_source="sheet", encoding="", encoding_source="sheet",
+        date_format=source.input.date_format, decimal=source.input.decimal, renamed=renamed))
+    return table
 
 
 def _read_workbook(path: Path, problems: Problems) -> CaseSource:
@@ -373,11 +457,15 @@ def _read_workbook_quietly(path: Path, problems: Problems) -> CaseSource:
     name = path.name
     source = CaseSource(root=path, workbook=True, settings=None, tables={}, snapshots=[],
                         input_files=[path])
+    if not check_workbook(path, name, problems):
+        source.snapshots_found = False  # nothing more is read: the one problem says why
+        return source
     try:
         workbook = openpyxl.load_workbook(path, read_only=True, data_only=True)
     except Exception as error:  # openpyxl raises many kinds for a damaged file
         problems.add(name, f"the workbook cannot be opened ({error})",
                      "save it again from the spreadsheet program as an .xlsx workbook")
+        source.snapshots_found = False
         return source
     try:
         sheets = set(workbook.sheetnames)
@@ -394,8 +482,10 @@ def _read_workbook_quietly(path: Path, problems: Problems) -> CaseSource:
 
         if required_sheet("case"):
             source.settings = _read_case_sheet(workbook["case"], label("case"), problems)
+            if source.settings is not None:
+                source.input = _input_settings(source.settings, problems)
         source.tables["calendars"] = (
-            _sheet_table(workbook, "calendars", label("calendars"), problems)
+            _sheet_table(workbook, "calendars", label("calendars"), problems, source)
             if required_sheet("calendars") else None
         )
         source.snapshots_found = required_sheet("snapshots")
@@ -403,12 +493,12 @@ def _read_workbook_quietly(path: Path, problems: Problems) -> CaseSource:
             source.snapshots = _read_snapshots_sheet(workbook, label, problems)
             for table_name in ("activities", "links"):
                 if required_sheet(table_name):
-                    _split_snapshot_sheet(workbook, table_name, label(table_name), source.snapshots,
+                    _split_snapshot_sheet(workbook, table_name, label(table_name), source,
                                           problems)
         for table_name in OPTIONAL_FILES:
             if table_name in sheets:
                 source.tables[table_name] = _sheet_table(workbook, table_name, label(table_name),
-                                                         problems)
+                                                         problems, source)
             else:
                 source.tables[table_name] = _empty_table(table_name, label(table_name))
     finally:
@@ -427,9 +517,14 @@ def _native(value: Any) -> Any:
     return value
 
 
+def _known_headers(header: list[str], known: tuple[str, ...]) -> list[str]:
+    """Header texts, those matching ``known`` (ignoring case and spaces) as ``known`` has them."""
+    return [header_key(h) if header_key(h) in known else h.strip() for h in header]
+
+
 def _read_case_sheet(sheet, file: str, problems: Problems) -> SettingsSource | None:
     header, body, rows = _sheet_cells(sheet)
-    header = [h.strip() for h in header]
+    header = _known_headers(header, ("key", "value"))
     if "key" not in header or "value" not in header:
         problems.add(file, "the sheet needs the columns 'key' and 'value' in row 1",
                      "write key in A1 and value in B1, then one setting per row, e.g. project.name",
@@ -451,7 +546,14 @@ def _read_case_sheet(sheet, file: str, problems: Problems) -> SettingsSource | N
         value = _native(cells[value_at])
         if value is None or value == "":
             continue
-        parts = key.split(".")
+        # A header named in input.columns may itself hold a dot: it is the fourth part.
+        parts = key.split(".", 3) if key.startswith("input.columns.") else key.split(".")
+        if len(parts) > LARGEST_SETTING_PARTS:
+            problems.add(file, f"the setting name has {len(parts):,} parts, more than the "
+                               f"{LARGEST_SETTING_PARTS} a setting may have",
+                         "name the setting section.name, e.g. project.name", row=row,
+                         column="key")
+            continue
         target = values
         for part in parts[:-1]:
             existing = target.setdefault(part, {})
@@ -472,7 +574,7 @@ def _read_case_sheet(sheet, file: str, problems: Problems) -> SettingsSource | N
 def _read_snapshots_sheet(workbook, label, problems: Problems) -> list[SnapshotSource]:
     file = label("snapshots")
     header, body, rows = _sheet_cells(workbook["snapshots"])
-    header = [h.strip() for h in header]
+    header = _known_headers(header, ("label", "data_date", "kind", "folder"))
     missing = [c for c in ("label", "data_date") if c not in header]
     for column in missing:
         problems.add(file, f"the required column '{column}' is missing",
@@ -499,10 +601,11 @@ def _read_snapshots_sheet(workbook, label, problems: Problems) -> list[SnapshotS
     return snapshots
 
 
-def _split_snapshot_sheet(workbook, name: str, file: str, snapshots: list[SnapshotSource],
+def _split_snapshot_sheet(workbook, name: str, file: str, source: CaseSource,
                           problems: Problems) -> None:
     """Split the activities or links sheet by its leading ``snapshot`` column."""
-    table = _sheet_table(workbook, name, file, problems)
+    snapshots = source.snapshots
+    table = _sheet_table(workbook, name, file, problems, source)
     if table is None:
         return
     if "snapshot" not in table.frame.columns:
@@ -530,7 +633,8 @@ def _split_snapshot_sheet(workbook, name: str, file: str, snapshots: list[Snapsh
         # A column the sheet has for another snapshot's sake is not part of this one.
         unused = [c for c in frame.columns if c not in stable and not (frame[c] != "").any()]
         frame = frame.drop(columns=unused)
-        setattr(snap, name, RawTable(name=name, file=file, frame=frame, rows=table.rows[mask]))
+        setattr(snap, name, RawTable(name=name, file=file, frame=frame, rows=table.rows[mask],
+                                     date_format=table.date_format, decimal=table.decimal))
 
 
 # --------------------------------------------------------------------------- opinion

@@ -8,6 +8,8 @@ import tempfile
 from pathlib import Path
 from typing import Any, Iterator
 
+import pandas as pd
+
 from delay.case import _columns as columns
 from delay.case._problems import RawTable
 from delay.case._source import OPTIONAL_FILES
@@ -27,15 +29,16 @@ def _flatten(values: dict[str, Any], prefix: str = "") -> Iterator[tuple[str, An
             yield name, value
 
 
-def _typed(table_name: str, column: str, text: str) -> Any:
-    """The cell value to write for ``text`` (already checked by loading the case)."""
+def _typed(table_name: str, column: str, text: str, table: RawTable) -> Any:
+    """The cell value to write for ``text`` (already checked by loading the case), read
+    in the dialect of the file it came from ([input] of case.toml)."""
     if text == "":
         return None
     if column in columns.DATE_COLUMNS.get(table_name, ()):
-        return dt.datetime.strptime(text, "%Y-%m-%d").date()
+        return columns.parse_dates(pd.Series([text]), table.date_format).iat[0].date()
     if column in columns.INTEGER_COLUMNS.get(table_name, ()) or column in columns.NUMBER_COLUMNS.get(
             table_name, ()):
-        number = float(text)
+        number = float(columns.parse_numbers(pd.Series([text]), table.decimal)[0])
         return int(number) if number.is_integer() else number
     return text
 
@@ -85,7 +88,7 @@ class _SheetWriter:
             for values in zip(*cells) if cells else ():
                 row = [label] if leading else []
                 for (column, is_date), text in zip(converters, values):
-                    value = _typed(name, column, text)
+                    value = _typed(name, column, text, table)
                     row.append(self.value(sheet, value) if is_date else value)
                 sheet.append(row)
 
