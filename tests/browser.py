@@ -12,7 +12,7 @@ import contextlib
 import os
 import shutil
 from pathlib import Path
-from typing import Iterator
+from typing import Iterator, Sequence
 
 import pytest
 
@@ -112,6 +112,59 @@ def pixel_share(page, png: bytes, test_js: str) -> float:
     )
 
 
+#: A pixel "painted" in the timeline's 3D views: its darkest channel below 190. The white
+#: background, the pale grid (#E4E4E4) and the faint wire frames of work not begun
+#: (#C9CFD6, palette.GHOST_COLOURS) stay below that line; the solid colours, the outlines
+#: and the axis labels are above it.
+PAINTED = "Math.min(r, g, b) < 190"
+
+
+def painted_share(page, locator) -> float:
+    """Share of the painted pixels (:data:`PAINTED`) in a screenshot of ``locator``."""
+    return pixel_share(page, locator.screenshot(), PAINTED)
+
+
+def image_difference(page, first: bytes, second: bytes) -> float:
+    """Mean absolute difference of two PNGs of the same size, per channel, 0 to 255.
+
+    Decoded by the browser, as :func:`pixel_share` does.
+    """
+    sources = ["data:image/png;base64," + base64.b64encode(png).decode("ascii") for png in (first, second)]
+    return page.evaluate(
+        """async (sources) => {
+            const pixels = [];
+            for (const source of sources) {
+                const image = new Image();
+                image.src = source;
+                await image.decode();
+                const canvas = document.createElement("canvas");
+                canvas.width = image.width; canvas.height = image.height;
+                const context = canvas.getContext("2d", {willReadFrequently: true});
+                context.drawImage(image, 0, 0);
+                pixels.push(context.getImageData(0, 0, image.width, image.height).data);
+            }
+            if (pixels[0].length !== pixels[1].length) throw new Error("the images differ in size");
+            let total = 0, count = 0;
+            for (let k = 0; k < pixels[0].length; k += 4) {
+                for (let c = 0; c < 3; c++) total += Math.abs(pixels[0][k + c] - pixels[1][k + c]);
+                count += 3;
+            }
+            return total / count;
+        }""",
+        sources,
+    )
+
+
+def drag(page, x: float, y: float, dx: float, dy: float, steps: int = 10) -> None:
+    """Press the mouse at (x, y), move it by (dx, dy) in ``steps`` steps and let go."""
+    page.mouse.move(x, y)
+    page.mouse.down()
+    for k in range(1, steps + 1):
+        page.mouse.move(x + dx * k / steps, y + dy * k / steps)
+        page.wait_for_timeout(40)
+    page.mouse.up()
+
+
 def set_slider(page, frame: int) -> None:
     """Move the element timeline's slider to ``frame`` and wait until it is drawn."""
     page.evaluate("""frame => {
@@ -121,7 +174,33 @@ def set_slider(page, frame: int) -> None:
     }""", frame)
     page.wait_for_function("frame => document.querySelector('.element-timeline').dataset.frame === String(frame)",
                            arg=frame)
-    page.wait_for_timeout(150)
+    wait_until_drawn(page)
+
+
+def set_top_level(page, *, keys: Sequence[str] = (), option: str | None = None) -> int:
+    """Choose the highest level the 3D views show: with the keyboard (``keys`` pressed on
+    the focused control) or as a mouse would (``option``, the value chosen). Returns the
+    level number now shown, once drawn."""
+    control = page.locator('.element-timeline [data-role="levels"]')
+    if option is not None:
+        control.select_option(option)
+    control.focus()
+    for key in keys:
+        page.keyboard.press(key)
+    top = int(control.input_value())
+    page.wait_for_function("top => document.querySelector('.element-timeline').dataset.topLevel === String(top)",
+                           arg=top)
+    wait_until_drawn(page)
+    return top
+
+
+def wait_until_drawn(page) -> None:
+    """Wait until the element timeline has drawn the week and levels it shows."""
+    page.wait_for_function("""() => {
+        const root = document.querySelector('.element-timeline');
+        return root.dataset.drawn === root.dataset.frame + ":" + root.dataset.topLevel;
+    }""", timeout=60_000)
+    page.wait_for_timeout(150)  # WebGL paints on the next animation frames
 
 
 def play_then_pause(page) -> None:

@@ -168,6 +168,37 @@ class ElementTimeline:
             d["linked_as_built"].reshape(shape),
         )
 
+    def start_frames(self, view: str = "as_built") -> np.ndarray:
+        """Per element, the first frame at which its work has begun in ``view``'s own dates.
+
+        "Late against plan" (code 3) covers work that has begun but not caught up with the
+        plan and work that has not begun at all; this tells the two apart. The frame is the
+        first whose Monday is on or after the element's start in that view (its planned
+        start as planned, its actual start as built).
+
+        Parameters
+        ----------
+        view: ``"as_planned"`` or ``"as_built"``.
+
+        Returns
+        -------
+        numpy.ndarray of int64, shape (elements,)
+            The frame number; the number of frames for an element not linked in the view
+            (its work never begins there).
+
+        Examples
+        --------
+        An element whose start is the Wednesday of the second week has begun by the third
+        Monday: frame 2.
+        """
+        if view not in VIEWS:
+            raise ValueError(f"unknown view '{view}': use one of {', '.join(VIEWS)}")
+        d = self._days
+        start = d["planned_start"] if view == "as_planned" else d["actual_start"]
+        linked = d["linked_as_planned"] if view == "as_planned" else d["linked_as_built"]
+        first = np.searchsorted(d["frames"], start, side="left").astype(np.int64)
+        return np.where(linked, first, d["frames"].size)
+
     def runs(self, view: str = "as_built") -> list[list[tuple[int, int]]]:
         """Per element, its states as runs ``(code, number of frames)`` from frame 0.
 

@@ -25,8 +25,9 @@ from typing import Sequence
 
 import numpy as np
 
-from .data import STATE_NAMES, VIEW_TITLES, VIEWS, ElementTimeline
-from .scene import BOX_CORNERS, BOX_EDGES, BOX_TRIANGLES, LEGEND, PLAY_MILLISECONDS, base_2d, base_3d, hover_texts
+from .data import NOT_STARTED, STATE_NAMES, UNLINKED, VIEW_TITLES, VIEWS, ElementTimeline
+from .scene import (BOX_CORNERS, BOX_EDGES, BOX_TRIANGLES, LEGEND, PLAY_MILLISECONDS, ROLES_3D, base_2d, base_3d,
+                    box_levels, hover_texts)
 from .script import SCRIPT, STYLE
 
 __all__ = ["timeline_html", "standalone_html"]
@@ -61,6 +62,7 @@ def _payload(timeline: ElementTimeline, views: Sequence[str]) -> dict:
         "views": [{"key": v, "name": VIEW_TITLES[v]} for v in VIEWS],
         "state_names": list(STATE_NAMES),
         "states": {v: _encode_runs(timeline.runs(v)) for v in VIEWS},
+        "start_frames": {v: timeline.start_frames(v).tolist() for v in VIEWS},
         "elements": len(timeline.elements),
         "hover": hover_texts(timeline),
         "play_milliseconds": PLAY_MILLISECONDS,
@@ -69,10 +71,13 @@ def _payload(timeline: ElementTimeline, views: Sequence[str]) -> dict:
         base = base_3d(timeline, legend=False)
         drawn, boxes = base["drawn"], base["boxes"]
         highlighted = timeline.elements["highlighted"].to_numpy(dtype=bool)
+        levels, numbers = box_levels(timeline, drawn)
         payload["figure3d"] = {
             "layout": _plotly_json(base["layout"]), "traces": _plotly_json(base["traces"]),
-            "drawn": drawn.tolist(), "boxes": [round(float(v), 3) for v in boxes.ravel()],
+            "roles": list(ROLES_3D), "drawn": drawn.tolist(),
+            "boxes": [round(float(v), 3) for v in boxes.ravel()],
             "outlined": [n for n, row in enumerate(drawn.tolist()) if highlighted[row]],
+            "levels": levels, "box_levels": numbers.tolist(), "margin": base["margin"],
             "corners": BOX_CORNERS, "triangles": BOX_TRIANGLES, "edges": BOX_EDGES,
         }
     if "2d" in views:
@@ -85,13 +90,27 @@ def _payload(timeline: ElementTimeline, views: Sequence[str]) -> dict:
 
 def _legend_html() -> str:
     items = []
+    kinds = {NOT_STARTED: " ghost", UNLINKED: " wire"}
     for code, colour, label, meaning in LEGEND:
         if code is None:
             swatch = f'<span class="swatch" style="background:#FFFFFF;border:3px solid {colour}"></span>'
         else:
-            swatch = f'<span class="swatch" style="background:{colour}"></span>'
+            swatch = f'<span class="swatch{kinds.get(code, "")}" style="background:{colour}"></span>'
         items.append(f'<li>{swatch}<b>{html.escape(label)}</b>: {html.escape(meaning)}</li>')
     return '<ul class="legend">' + "".join(items) + "</ul>"
+
+
+def _levels_html(timeline: ElementTimeline) -> str:
+    """The "show levels up to" control of the 3D views (a select: mouse and keyboard)."""
+    levels, _ = box_levels(timeline, np.flatnonzero(timeline.elements["drawn_in_3d"].to_numpy(dtype=bool)))
+    options = "".join(
+        f'<option value="{k}"{" selected" if k == len(levels) - 1 else ""}>'
+        f'{html.escape(name)}{" (every level)" if k == len(levels) - 1 else ""}</option>'
+        for k, name in enumerate(levels))
+    return ('<div class="controls levels"><label>3D views: show levels up to '
+            f'<select data-role="levels">{options}</select></label>'
+            '<span class="hint">choose a lower level to see the work inside; drag either view to turn both'
+            '</span></div>')
 
 
 def _unlinked_html(timeline: ElementTimeline) -> str:
@@ -125,8 +144,8 @@ def timeline_html(timeline: ElementTimeline, *, views: Sequence[str] = ("3d", "2
     The page that holds it must load plotly.js once (inline, for a self-contained report)
     before the fragment. The fragment holds the title, the legend in plain words, the week
     slider with a play/pause button, the 3D views (as planned and as built, one camera:
-    turning one turns the other) and the 2D view by level and zone, and the list of
-    elements with no linked activity.
+    turning one turns the other) with a "show levels up to" control, the 2D view by level
+    and zone, and the list of elements with no linked activity.
 
     Parameters
     ----------
@@ -139,9 +158,11 @@ def timeline_html(timeline: ElementTimeline, *, views: Sequence[str] = ("3d", "2
     -------
     str
         The fragment. Its outer ``div`` has class ``element-timeline``; controls carry
-        ``data-role`` attributes (``slider``, ``play``, ``date``, ``counts``, ``plot3d``,
-        ``plot2d``, ``unlinked``); once drawn the ``div`` has ``data-ready="true"`` and
-        ``data-frame`` (the week shown, from 0).
+        ``data-role`` attributes (``slider``, ``play``, ``date``, ``counts``, ``levels``,
+        ``plot3d``, ``plot2d``, ``unlinked``); once drawn the ``div`` has
+        ``data-ready="true"``, ``data-frame`` (the week shown, from 0), ``data-top-level``
+        (the number of the highest level shown in 3D, from 0 at the lowest) and
+        ``data-drawn`` (``"<week>:<level>"`` once both are drawn).
     """
     views = tuple(views)
     unknown = set(views) - {"3d", "2d"}
@@ -153,7 +174,7 @@ def timeline_html(timeline: ElementTimeline, *, views: Sequence[str] = ("3d", "2
     count = len(timeline.frames)
     plots = ""
     if "3d" in views:
-        plots += '<div data-role="plot3d" style="width:100%;height:560px"></div>'
+        plots += _levels_html(timeline) + '<div data-role="plot3d" style="width:100%;height:560px"></div>'
     if "2d" in views:
         plots += '<div data-role="plot2d" style="width:100%"></div>'
     return (

@@ -24,7 +24,7 @@ from typing import Sequence
 import numpy as np
 import pandas as pd
 
-from ..palette import BACKGROUND_COLOUR, HIGHLIGHT_COLOUR, STATE_COLOURS, discrete_colourscale
+from ..palette import BACKGROUND_COLOUR, GHOST_COLOURS, HIGHLIGHT_COLOUR, STATE_COLOURS, discrete_colourscale
 from .data import COMPLETE, IN_PROGRESS, LATE, NOT_STARTED, UNLINKED, VIEW_TITLES, VIEWS, ElementTimeline, split_ids
 
 __all__ = [
@@ -33,7 +33,14 @@ __all__ = [
     "hover_texts",
     "base_3d",
     "base_2d",
+    "box_levels",
+    "level_order",
+    "drawn_parts",
+    "edge_margin",
     "LEGEND",
+    "SOLID_STATES",
+    "ROLES_3D",
+    "ROLE_NAMES",
     "BOX_CORNERS",
     "BOX_TRIANGLES",
     "BOX_EDGES",
@@ -42,17 +49,30 @@ __all__ = [
 
 #: The legend in plain words: (state code or None for the outline, colour, label, meaning).
 LEGEND: tuple[tuple[int | None, str, str, str], ...] = (
-    (NOT_STARTED, STATE_COLOURS[0], "Not started", "its work has not begun by this date"),
+    (NOT_STARTED, STATE_COLOURS[0], "Not started",
+     "its work has not begun by this date: a faint wire frame in 3D (a ghost of the works to come), "
+     "pale in the flat view"),
     (IN_PROGRESS, STATE_COLOURS[1], "In progress",
      "between the first start and the last finish of the activities that build it"),
     (COMPLETE, STATE_COLOURS[2], "Complete", "all the activities that build it have finished"),
     (LATE, STATE_COLOURS[3], "Late against plan",
-     "as built only: by this date the plan had it started (or finished) and it had not"),
+     "as built only: by this date the plan had it started (or finished) and it had not; "
+     "in 3D a pale vermillion wire frame until its work begins, solid after"),
     (UNLINKED, STATE_COLOURS[4], "No linked activity",
-     "no activity shares its work breakdown code (greyed; listed below)"),
+     "no activity shares its work breakdown code: a dotted grey wire frame in 3D, grey in the flat view "
+     "(listed below)"),
     (None, HIGHLIGHT_COLOUR, "Black outline",
-     "built by an activity that a delay event affected"),
+     "built by an activity that a delay event affected (in 3D once its work has begun)"),
 )
+
+#: The states drawn solid in 3D once an element's work has begun.
+SOLID_STATES = (IN_PROGRESS, COMPLETE, LATE)
+
+#: What each pair of 3D traces draws (see :func:`drawn_parts`); trace ``2 r + v`` is role
+#: ``r`` in view ``v`` (0 as planned, 1 as built).
+ROLES_3D = ("solid", "ghost", "unlinked", "outline")
+ROLE_NAMES = {"solid": "work begun", "ghost": "work not begun", "unlinked": "no linked activity",
+              "outline": "affected by a delay event"}
 
 #: Corners of a box as fractions of its size, and its 12 triangles and 12 edges (corner
 #: numbers). Vertex ``8 n + c`` of a 3D trace is corner ``c`` of the ``n``-th box drawn.
@@ -120,22 +140,30 @@ def _box_mesh(boxes: np.ndarray):
     """Vertices (x, y, z: 8 per box) and triangles (i, j, k: 12 per box) of ``boxes``."""
     corners = np.asarray(BOX_CORNERS, dtype=np.float64)
     points = boxes[:, None, :3] + corners[None, :, :] * boxes[:, None, 3:]
-    triangles = np.asarray(BOX_TRIANGLES, dtype=np.int32)[None, :, :] \
-        + (8 * np.arange(boxes.shape[0], dtype=np.int32))[:, None, None]
     points = points.reshape(-1, 3).astype(np.float32)
+    i, j, k = _triangles(np.arange(boxes.shape[0]))
+    return points[:, 0], points[:, 1], points[:, 2], i, j, k
+
+
+def _triangles(numbers: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """The 12 triangles (i, j, k vertex numbers) of each box ``numbers`` of the mesh."""
+    triangles = np.asarray(BOX_TRIANGLES, dtype=np.int32)[None, :, :] \
+        + (8 * np.asarray(numbers, dtype=np.int32))[:, None, None]
     triangles = triangles.reshape(-1, 3)
-    return points[:, 0], points[:, 1], points[:, 2], triangles[:, 0], triangles[:, 1], triangles[:, 2]
+    return triangles[:, 0], triangles[:, 1], triangles[:, 2]
 
 
-def _box_edges(boxes: np.ndarray) -> tuple[list, list, list]:
-    """Line coordinates of the 12 edges of each box, each edge followed by a gap (None)."""
+def _box_edges(boxes: np.ndarray, margin: float = 0.0) -> tuple[list, list, list]:
+    """Line coordinates of the 12 edges of each box grown by ``margin`` on every side, each
+    edge followed by a gap (None). The margin keeps an outline off its own box's faces,
+    where the faces would hide half of each line."""
     corners = np.asarray(BOX_CORNERS, dtype=np.float64)
     edges = np.asarray(BOX_EDGES)
     xs: list = []
     ys: list = []
     zs: list = []
     for box in boxes:
-        points = box[:3] + corners * box[3:]
+        points = box[:3] - margin + corners * (box[3:] + 2 * margin)
         for a, b in edges:
             for out, axis in ((xs, 0), (ys, 1), (zs, 2)):
                 out.extend((round(float(points[a, axis]), 3), round(float(points[b, axis]), 3), None))
@@ -149,6 +177,95 @@ def _scene_ranges(boxes: np.ndarray) -> list[list[float]]:
     high = (boxes[:, :3] + boxes[:, 3:]).max(axis=0)
     pad = np.maximum((high - low) * 0.02, 0.5)
     return [[float(low[a] - pad[a]), float(high[a] + pad[a])] for a in range(3)]
+
+
+def edge_margin(boxes: np.ndarray) -> float:
+    """How far outlines stand off their boxes: 0.15 % of the model's largest extent.
+
+    Parameters
+    ----------
+    boxes: ``x, y, z, dx, dy, dz`` of the boxes drawn, shape (n, 6).
+
+    Returns
+    -------
+    float
+        Metres (0.1 m on a model 70 m across; 0 with no boxes).
+    """
+    if boxes.size == 0:
+        return 0.0
+    extent = (boxes[:, :3] + boxes[:, 3:]).max(axis=0) - boxes[:, :3].min(axis=0)
+    return round(float(extent.max()) * 0.0015, 3)
+
+
+def level_order(elements: pd.DataFrame) -> tuple[pd.Series, list[str]]:
+    """Each element's level and the levels from the lowest up.
+
+    Parameters
+    ----------
+    elements: the timeline's elements (``level`` and ``z`` columns).
+
+    Returns
+    -------
+    (pandas.Series, list of str)
+        The level of each element (``"(no level)"`` where blank), and the level names in
+        the order of their lowest ``z`` (levels with no ``z`` last, then by name).
+    """
+    level = elements["level"].fillna("").replace("", "(no level)")
+    return level, _names_in_order(level, elements["z"])
+
+
+def _names_in_order(names: pd.Series, position: pd.Series) -> list[str]:
+    """The distinct ``names`` by their lowest ``position`` (those with none last, then by name)."""
+    lowest = pd.DataFrame({"name": names, "at": position}).groupby("name", sort=False)["at"].min()
+    return (lowest.reset_index().assign(_n=lambda t: t["at"].isna())
+            .sort_values(["_n", "at", "name"], kind="stable")["name"].tolist())
+
+
+def box_levels(timeline: ElementTimeline, drawn: np.ndarray) -> tuple[list[str], np.ndarray]:
+    """The level names from the lowest up and, per box drawn, the number of its level.
+
+    Parameters
+    ----------
+    timeline: from :func:`~reports.element_timeline.data.element_states`.
+    drawn: row numbers of the elements drawn in 3D.
+
+    Returns
+    -------
+    (list of str, numpy.ndarray of int64)
+        What the "show levels up to" control offers, and which boxes each choice keeps
+        (a box shows when its level number is at most the one chosen).
+    """
+    level, order = level_order(timeline.elements)
+    number = level.map({name: k for k, name in enumerate(order)}).to_numpy(dtype=np.int64)
+    return order, number[drawn]
+
+
+def drawn_parts(box_states: np.ndarray, started: np.ndarray, outlined: np.ndarray,
+                shown: np.ndarray | None = None) -> dict[str, np.ndarray]:
+    """Which boxes one 3D view draws in one week, and how.
+
+    Parameters
+    ----------
+    box_states: state code of each box drawn (module :mod:`~reports.element_timeline.data`).
+    started: whether each box's work has begun in the view's own dates.
+    outlined: whether each box is built by an activity that a delay event affected.
+    shown: whether each box's level is shown (default every box).
+
+    Returns
+    -------
+    dict of numpy.ndarray (box numbers)
+        ``solid``: work begun, drawn opaque in its state's colour (in progress, complete,
+        or late against plan); ``ghost``: work not begun, a faint wire frame (not started,
+        or late against plan and not begun); ``unlinked``: no linked activity, a dotted grey
+        wire frame;
+        ``outline``: solid boxes built by an affected activity.
+    """
+    shown = np.ones(box_states.shape, dtype=bool) if shown is None else shown
+    linked = box_states != UNLINKED
+    solid = shown & linked & started & np.isin(box_states, SOLID_STATES)
+    ghost = shown & linked & ~solid
+    return {"solid": np.flatnonzero(solid), "ghost": np.flatnonzero(ghost),
+            "unlinked": np.flatnonzero(shown & ~linked), "outline": np.flatnonzero(solid & outlined)}
 
 
 def _legend_annotations(y: float) -> list[dict]:
@@ -169,14 +286,16 @@ def base_3d(timeline: ElementTimeline, *, legend: bool) -> dict:
     Returns
     -------
     dict
-        ``layout`` (two scenes side by side), ``traces`` (styles without coordinates),
-        ``drawn`` (row numbers of the elements with a complete box) and ``boxes`` (their
-        ``x, y, z, dx, dy, dz``, shape (n, 6)).
+        ``layout`` (two scenes side by side, one camera to start with), ``traces`` (styles
+        without coordinates, two per role of :data:`ROLES_3D`: trace ``2 r + v`` is role
+        ``r`` in view ``v``), ``drawn`` (row numbers of the elements with a complete box),
+        ``boxes`` (their ``x, y, z, dx, dy, dz``, shape (n, 6)) and ``margin`` (how far
+        outlines stand off their boxes).
     """
     drawn, boxes = _boxes(timeline)
     ranges = _scene_ranges(boxes)
     axes = [dict(title=dict(text=f"{name} (m)"), range=r, backgroundcolor=BACKGROUND_COLOUR,
-                 gridcolor="#DDDDDD", zerolinecolor="#BBBBBB", showspikes=False)
+                 gridcolor="#E4E4E4", zerolinecolor="#CCCCCC", showspikes=False)
             for name, r in zip("xyz", ranges)]
     camera = dict(eye=dict(x=1.45, y=-1.55, z=1.05), up=dict(x=0, y=0, z=1))
     scene = dict(xaxis=axes[0], yaxis=axes[1], zaxis=axes[2], aspectmode="data", camera=camera,
@@ -190,24 +309,27 @@ def base_3d(timeline: ElementTimeline, *, legend: bool) -> dict:
     if legend:
         annotations += _legend_annotations(-0.02)
     layout = dict(
-        template="none", paper_bgcolor=BACKGROUND_COLOUR, height=560,
+        template="none", paper_bgcolor=BACKGROUND_COLOUR, height=560, uirevision="timeline",
         margin=dict(l=0, r=0, t=40, b=60 if legend else 10), showlegend=False,
         scene=dict(scene, domain=dict(x=[0.0, 0.49], y=[0.0, 0.95])),
         scene2=dict(scene, domain=dict(x=[0.51, 1.0], y=[0.0, 0.95])),
         annotations=annotations, hoverlabel=dict(align="left"),
     )
-    mesh = dict(type="mesh3d", flatshading=True, colorscale=discrete_colourscale(),
-                cmin=-0.5, cmax=len(STATE_COLOURS) - 0.5, showscale=False,
-                hovertemplate="%{text}<extra></extra>",
-                lighting=dict(ambient=0.72, diffuse=0.38, specular=0.04, roughness=0.9, fresnel=0.05),
+    lighting = dict(ambient=0.72, diffuse=0.38, specular=0.04, roughness=0.9, fresnel=0.05)
+    mesh = dict(type="mesh3d", flatshading=True, cmin=-0.5, cmax=len(STATE_COLOURS) - 0.5, showscale=False,
+                hovertemplate="%{text}<extra></extra>", lighting=lighting,
                 lightposition=dict(x=1000, y=-2000, z=4000))
-    traces = [dict(mesh, scene="scene", name=VIEW_TITLES["as_planned"]),
-              dict(mesh, scene="scene2", name=VIEW_TITLES["as_built"])]
-    edges = dict(type="scatter3d", mode="lines", hoverinfo="skip",
-                 line=dict(color=HIGHLIGHT_COLOUR, width=4))
-    traces += [dict(edges, scene="scene", name="delayed by an event"),
-               dict(edges, scene="scene2", name="delayed by an event")]
-    return {"layout": layout, "traces": traces, "drawn": drawn, "boxes": boxes}
+    lines = dict(type="scatter3d", mode="lines", hoverinfo="skip")
+    styles = {
+        "solid": dict(mesh, colorscale=discrete_colourscale()),
+        "ghost": dict(lines, line=dict(colorscale=discrete_colourscale(GHOST_COLOURS), cmin=-0.5,
+                                       cmax=len(GHOST_COLOURS) - 0.5, width=1)),
+        "unlinked": dict(lines, line=dict(color=STATE_COLOURS[UNLINKED], width=2, dash="dot")),
+        "outline": dict(lines, line=dict(color=HIGHLIGHT_COLOUR, width=6)),
+    }
+    traces = [dict(styles[role], scene=scene_name, name=f"{VIEW_TITLES[view]}: {ROLE_NAMES[role]}")
+              for role in ROLES_3D for view, scene_name in zip(VIEWS, ("scene", "scene2"))]
+    return {"layout": layout, "traces": traces, "drawn": drawn, "boxes": boxes, "margin": edge_margin(boxes)}
 
 
 def _short(source: str) -> str:
@@ -232,38 +354,64 @@ def _slider_and_buttons(dates: Sequence[str], *, frames: bool) -> dict:
     return {"sliders": [slider], "updatemenus": [buttons]} if frames else {}
 
 
+def _week_parts(boxes: np.ndarray, states: list[np.ndarray], starts: list[np.ndarray], outlined: np.ndarray,
+                margin: float, frame: int, roles: Sequence[str] = ROLES_3D) -> list[dict]:
+    """What changes in the 3D traces of ``roles`` in week ``frame``, in trace order."""
+    parts = [drawn_parts(states[v][:, frame], starts[v] <= frame, outlined) for v in range(len(VIEWS))]
+    out = []
+    for role in roles:
+        for v in range(len(VIEWS)):
+            numbers = parts[v][role]
+            if role == "solid":
+                i, j, k = _triangles(numbers)
+                out.append(dict(type="mesh3d", i=i, j=j, k=k,
+                                intensity=np.repeat(states[v][:, frame], 8).astype(np.uint8)))
+                continue
+            ex, ey, ez = _box_edges(boxes[numbers], margin if role == "outline" else 0.0)
+            trace = dict(type="scatter3d", x=ex, y=ey, z=ez)
+            if role == "ghost":  # each edge is two ends and a gap: three colour values
+                trace["line"] = dict(color=np.repeat(states[v][numbers, frame], 3 * len(BOX_EDGES)).astype(np.uint8))
+            out.append(trace)
+    return out
+
+
 def figure_3d(timeline: ElementTimeline, *, frames: bool = True):
     """The two 3D views (as planned, as built) as a plotly figure with a weekly slider.
 
+    Work begun is solid in its state's colour, work not begun a faint wire frame, elements
+    with no linked activity a dotted grey wire frame, and begun work of an activity that a
+    delay event affected outlined (:func:`drawn_parts`).
+
     Parameters
     ----------
-    timeline: from :func:`element_states`.
-    frames: add one animation frame per week (colour values only) with a slider and
-        play/pause buttons; ``False`` gives the first week alone.
+    timeline: from :func:`~reports.element_timeline.data.element_states`.
+    frames: add one animation frame per week (the triangles drawn solid and their colour
+        values, the faint wire frames and the outlines) with a slider and play/pause buttons; ``False``
+        gives the first week alone.
 
     Returns
     -------
     plotly.graph_objects.Figure
-        Traces: 0 and 1 the boxes of the planned and as-built views (one Mesh3d each), 2 and
-        3 the outlines of the elements delayed by an event. In a notebook the two scenes
-        turn separately; :func:`timeline_html` links their cameras.
+        Traces in pairs (as planned, as built) by role of :data:`ROLES_3D`: 0 and 1 the
+        solid boxes (Mesh3d over every box's 8 corners, drawing the 12 triangles of each
+        box begun), 2 and 3 the faint wire frames of work not begun, 4 and 5 the dotted
+        wire frames of elements with no linked activity, 6 and 7 the outlines. In a notebook the two scenes turn separately; the report's fragment
+        links their cameras.
     """
     import plotly.graph_objects as go
 
     base = base_3d(timeline, legend=True)
     drawn, boxes = base["drawn"], base["boxes"]
-    x, y, z, i, j, k = _box_mesh(boxes)
-    hover = np.asarray(hover_texts(timeline), dtype=object)[drawn]
-    text = np.repeat(hover, 8).tolist()
-    highlighted = timeline.elements["highlighted"].to_numpy(dtype=bool)[drawn]
-    ex, ey, ez = _box_edges(boxes[highlighted])
-    first = [np.repeat(timeline.states(view)[drawn, 0], 8).astype(np.uint8) for view in VIEWS]
-    traces = base["traces"]
-    data = []
-    for number, trace in enumerate(traces[:2]):
-        data.append(dict(trace, x=x, y=y, z=z, i=i, j=j, k=k, intensity=first[number], text=text))
-    for trace in traces[2:]:
-        data.append(dict(trace, x=ex, y=ey, z=ez))
+    x, y, z, _, _, _ = _box_mesh(boxes)
+    text = np.repeat(np.asarray(hover_texts(timeline), dtype=object)[drawn], 8).tolist()
+    outlined = timeline.elements["highlighted"].to_numpy(dtype=bool)[drawn]
+    states = [timeline.states(view)[drawn] for view in VIEWS]
+    starts = [timeline.start_frames(view)[drawn] for view in VIEWS]
+    data = [dict(trace, **part) for trace, part in
+            zip(base["traces"], _week_parts(boxes, states, starts, outlined, base["margin"], 0))]
+    for trace in data:
+        if trace["type"] == "mesh3d":
+            trace.update(x=x, y=y, z=z, text=text)
     dates = [d.isoformat() for d in timeline.frame_dates.astype(dt.date)]
     layout = dict(base["layout"], title=dict(text=html.escape(timeline.title), font=dict(size=14), x=0.01),
                   **_slider_and_buttons(dates, frames=frames))
@@ -274,10 +422,10 @@ def figure_3d(timeline: ElementTimeline, *, frames: bool = True):
             annotation["y"] = -0.12
     figure = go.Figure(data=data, layout=layout)
     if frames:
-        states = [timeline.states(view)[drawn] for view in VIEWS]
-        figure.frames = [go.Frame(name=date, traces=[0, 1],
-                                  data=[dict(type="mesh3d", intensity=np.repeat(s[:, f], 8).astype(np.uint8))
-                                        for s in states])
+        changing = ("solid", "ghost", "outline")
+        numbers = [2 * ROLES_3D.index(role) + v for role in changing for v in range(len(VIEWS))]
+        figure.frames = [go.Frame(name=date, traces=numbers,
+                                  data=_week_parts(boxes, states, starts, outlined, base["margin"], f, changing))
                          for f, date in enumerate(dates)]
     return figure
 
@@ -285,15 +433,10 @@ def figure_3d(timeline: ElementTimeline, *, frames: bool = True):
 def _plan_positions(timeline: ElementTimeline) -> dict:
     """Where each element sits in the 2D view: zones across, levels up, a small grid per cell."""
     e = timeline.elements
-    level = e["level"].fillna("").replace("", "(no level)")
+    level, levels = level_order(e)
     zone = e["zone"].fillna("").replace("", "(no zone)")
-    level_order = (pd.DataFrame({"name": level, "z": e["z"]}).groupby("name", sort=False)["z"].min()
-                   .reset_index().assign(_n=lambda t: t["z"].isna())
-                   .sort_values(["_n", "z", "name"], kind="stable")["name"].tolist())
-    zone_order = (pd.DataFrame({"name": zone, "x": e["x"]}).groupby("name", sort=False)["x"].min()
-                  .reset_index().assign(_n=lambda t: t["x"].isna())
-                  .sort_values(["_n", "x", "name"], kind="stable")["name"].tolist())
-    level_number = level.map({n: k for k, n in enumerate(level_order)}).to_numpy(dtype=np.int64)
+    zone_order = _names_in_order(zone, e["x"])
+    level_number = level.map({n: k for k, n in enumerate(levels)}).to_numpy(dtype=np.int64)
     zone_number = zone.map({n: k for k, n in enumerate(zone_order)}).to_numpy(dtype=np.int64)
     order = pd.DataFrame({"level": level_number, "zone": zone_number, "z": e["z"], "y": e["y"],
                           "x": e["x"], "row": np.arange(len(e))})
@@ -306,7 +449,7 @@ def _plan_positions(timeline: ElementTimeline) -> dict:
     rows = order["row"].to_numpy()
     px[rows] = order["zone"].to_numpy() + (place % side + 0.5) / side
     py[rows] = order["level"].to_numpy() + 1 - (place // side + 0.5) / side
-    return {"x": np.round(px, 4), "y": np.round(py, 4), "levels": level_order, "zones": zone_order,
+    return {"x": np.round(px, 4), "y": np.round(py, 4), "levels": levels, "zones": zone_order,
             "side": side}
 
 
