@@ -31,6 +31,8 @@ D55E00, 000000 ...; recalled from memory).
 
 from __future__ import annotations
 
+from types import MappingProxyType
+
 __all__ = [
     "STATE_COLOURS",
     "GHOST_COLOURS",
@@ -57,10 +59,10 @@ GHOST_COLOURS: tuple[str, ...] = ("#C9CFD6", STATE_COLOURS[1], STATE_COLOURS[2],
 
 #: Planned bars (the chart of planned against actual bars): a pale tint of the sky blue,
 #: hatched and outlined in deep blue.
-PLANNED_BAR = {"fill": "#E3F1FA", "line": "#0072B2", "pattern": "/"}
+PLANNED_BAR = MappingProxyType({"fill": "#E3F1FA", "line": "#0072B2", "pattern": "/"})
 
 #: Actual bars: solid deep blue, no hatching.
-BUILT_BAR = {"fill": "#0072B2", "line": "#0072B2", "pattern": ""}
+BUILT_BAR = MappingProxyType({"fill": "#0072B2", "line": "#0072B2", "pattern": ""})
 
 #: Outline of the elements of activities delayed by an event.
 HIGHLIGHT_COLOUR = "#000000"

@@ -155,6 +155,32 @@ def image_difference(page, first: bytes, second: bytes) -> float:
     )
 
 
+def grey_statistics(page, png: bytes) -> tuple[float, float]:
+    """Mean and standard deviation of the lightness (0 to 255, the mean of r, g and b) of
+    the pixels of a PNG, decoded by the browser as :func:`pixel_share` does."""
+    source = "data:image/png;base64," + base64.b64encode(png).decode("ascii")
+    return tuple(page.evaluate(
+        """async (source) => {
+            const image = new Image();
+            image.src = source;
+            await image.decode();
+            const canvas = document.createElement("canvas");
+            canvas.width = image.width; canvas.height = image.height;
+            const context = canvas.getContext("2d", {willReadFrequently: true});
+            context.drawImage(image, 0, 0);
+            const pixels = context.getImageData(0, 0, image.width, image.height).data;
+            let sum = 0, squares = 0, count = 0;
+            for (let k = 0; k < pixels.length; k += 4) {
+                const grey = (pixels[k] + pixels[k + 1] + pixels[k + 2]) / 3;
+                sum += grey; squares += grey * grey; count++;
+            }
+            const mean = sum / count;
+            return [mean, Math.sqrt(Math.max(0, squares / count - mean * mean))];
+        }""",
+        source,
+    ))
+
+
 def drag(page, x: float, y: float, dx: float, dy: float, steps: int = 10) -> None:
     """Press the mouse at (x, y), move it by (dx, dy) in ``steps`` steps and let go."""
     page.mouse.move(x, y)
