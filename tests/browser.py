@@ -198,8 +198,9 @@ def set_slider(page, frame: int) -> None:
         slider.value = String(frame);
         slider.dispatchEvent(new Event("input", {bubbles: true}));
     }""", frame)
+    # software WebGL on a loaded machine can hold the page's thread for many seconds
     page.wait_for_function("frame => document.querySelector('.element-timeline').dataset.frame === String(frame)",
-                           arg=frame)
+                           arg=frame, timeout=120_000)
     wait_until_drawn(page)
 
 
@@ -215,7 +216,7 @@ def set_top_level(page, *, keys: Sequence[str] = (), option: str | None = None) 
         page.keyboard.press(key)
     top = int(control.input_value())
     page.wait_for_function("top => document.querySelector('.element-timeline').dataset.topLevel === String(top)",
-                           arg=top)
+                           arg=top, timeout=120_000)
     wait_until_drawn(page)
     return top
 
@@ -225,7 +226,7 @@ def wait_until_drawn(page) -> None:
     page.wait_for_function("""() => {
         const root = document.querySelector('.element-timeline');
         return root.dataset.drawn === root.dataset.frame + ":" + root.dataset.topLevel;
-    }""", timeout=60_000)
+    }""", timeout=120_000)
     page.wait_for_timeout(150)  # WebGL paints on the next animation frames
 
 

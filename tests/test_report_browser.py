@@ -148,6 +148,11 @@ def test_the_planned_against_built_chart_prints_on_a4_and_reads_in_greyscale(dem
     chart.scroll_into_view_if_needed()
     (svg,) = _boxes_of(page, name, ".main-svg:first-of-type")
     assert svg["right"] <= page.evaluate("() => document.documentElement.clientWidth") + 1, svg
+    # every other chart and both views of the element timeline fit the printed width too
+    wide = page.evaluate("""() => Array.from(document.querySelectorAll('.js-plotly-plot'))
+        .filter(p => p.getBoundingClientRect().right > document.documentElement.clientWidth + 1)
+        .map(p => (p.closest('[data-figure]') || {dataset: {figure: p.dataset.role}}).dataset.figure)""")
+    assert wide == [], f"charts wider than A4 landscape: {wide}"
     # the legend keeps clear of the plot, of every date tick (the first one too) and of the title
     (legend,) = _boxes_of(page, name, ".legend")
     ticks = _boxes_of(page, name, ".xtick text")

@@ -297,7 +297,7 @@ def base_3d(timeline: ElementTimeline, *, legend: bool) -> dict:
     axes = [dict(title=dict(text=f"{name} (m)"), range=r, backgroundcolor=BACKGROUND_COLOUR,
                  gridcolor="#E4E4E4", zerolinecolor="#CCCCCC", showspikes=False)
             for name, r in zip("xyz", ranges)]
-    camera = dict(eye=dict(x=1.45, y=-1.55, z=1.05), up=dict(x=0, y=0, z=1))
+    camera = dict(eye=dict(x=1.2, y=-1.3, z=0.85), up=dict(x=0, y=0, z=1))
     scene = dict(xaxis=axes[0], yaxis=axes[1], zaxis=axes[2], aspectmode="data", camera=camera,
                  bgcolor=BACKGROUND_COLOUR)
     annotations = [
