@@ -15,8 +15,8 @@ from types import SimpleNamespace
 
 import pytest
 
-from browser import (Page, chromium, grey_statistics, play_then_pause, require_browser, save_screenshot, set_slider,
-                     state_mismatches)
+from browser import (Page, chromium, grey_statistics, play_then_pause, printed, require_browser, save_screenshot,
+                     set_slider, state_mismatches)
 from reports.builder import SECTIONS
 from reports.writer import demo_report
 from test_browser_timeline import _computed_expectations, _demo_or_synthetic, _drawn_positions
@@ -103,10 +103,12 @@ def test_three_elements_at_three_dates_match_the_planned_and_built_dates(demo):
 
 def test_the_tables_fit_a4_landscape_when_printed(demo):
     page = demo.page
-    page.set_viewport_size({"width": A4_LANDSCAPE_CONTENT_PX, "height": 900})
-    page.emulate_media(media="print")
-    page.evaluate("() => window.dispatchEvent(new Event('beforeprint'))")  # opens folded tables
-    page.wait_for_timeout(300)
+    with printed(page, A4_LANDSCAPE_CONTENT_PX, settle=300):  # folded tables open
+        _tables_fit_a4(page)
+    _no_errors(demo)
+
+
+def _tables_fit_a4(page) -> None:
     wide = page.evaluate("""() => Array.from(document.querySelectorAll('table'))
         .filter(t => t.offsetParent !== null && t.getBoundingClientRect().width > 0)
         .filter(t => t.getBoundingClientRect().right > document.documentElement.clientWidth + 1)
@@ -120,10 +122,6 @@ def test_the_tables_fit_a4_landscape_when_printed(demo):
     boxes = re.findall(rb"/MediaBox\s*\[\s*0\s+0\s+([\d.]+)\s+([\d.]+)\s*\]", pdf)
     assert boxes and all(abs(float(w) - 841.89) < 2 and abs(float(h) - 595.28) < 2 for w, h in boxes)
     assert len(boxes) >= len(SECTIONS)
-    page.emulate_media(media="screen")
-    page.evaluate("() => window.dispatchEvent(new Event('afterprint'))")
-    page.set_viewport_size({"width": 1300, "height": 1400})
-    _no_errors(demo)
 
 
 def _boxes_of(page, figure: str, selector: str) -> list[dict]:
@@ -139,11 +137,12 @@ def _overlap(a: dict, b: dict) -> bool:
 
 def test_the_planned_against_built_chart_prints_on_a4_and_reads_in_greyscale(demo):
     page = demo.page
-    page.set_viewport_size({"width": A4_LANDSCAPE_CONTENT_PX, "height": 900})
-    page.emulate_media(media="print")
-    page.evaluate("() => window.dispatchEvent(new Event('beforeprint'))")  # charts fit the printed width
-    page.wait_for_timeout(500)
-    name = "planned_against_built"
+    with printed(page, A4_LANDSCAPE_CONTENT_PX):  # charts fit the printed width
+        _chart_prints_on_a4_in_greyscale(page, "planned_against_built")
+    _no_errors(demo)
+
+
+def _chart_prints_on_a4_in_greyscale(page, name: str) -> None:
     chart = page.locator(f'[data-figure="{name}"] .js-plotly-plot')
     chart.scroll_into_view_if_needed()
     (svg,) = _boxes_of(page, name, ".main-svg:first-of-type")
@@ -185,10 +184,6 @@ def test_the_planned_against_built_chart_prints_on_a4_and_reads_in_greyscale(dem
     assert planned_mean - built_mean > 90  # light against dark, out of 255
     assert planned_spread > 2 * built_spread + 5  # hatched against plain
     page.evaluate(f"""() => document.querySelector('[data-figure="{name}"]').style.filter = "" """)
-    page.emulate_media(media="screen")
-    page.evaluate("() => window.dispatchEvent(new Event('afterprint'))")
-    page.set_viewport_size({"width": 1300, "height": 1400})
-    _no_errors(demo)
 
 
 def test_a_screenshot_of_the_report_is_saved(demo):
