@@ -377,10 +377,11 @@ def test_the_level_filter_changes_what_is_painted(opened):
     plot = page.locator('.element-timeline [data-role="plot3d"]')
     last = opened.weeks - 1
     set_slider(page, last)
-    # the levels from the lowest up, by the lowest z of their elements (elements.csv)
+    # the levels of the boxes drawn, from the lowest up by the lowest z of their elements
+    # (elements.csv)
     lowest: dict[str, float] = {}
     for row in opened.rows:
-        if row.get("z", "").strip():
+        if row["id"] in opened.drawn:
             level = row["level"] or "(no level)"
             lowest[level] = min(lowest.get(level, float("inf")), float(row["z"]))
     order = sorted(lowest, key=lambda name: (lowest[name], name))

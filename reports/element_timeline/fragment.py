@@ -103,6 +103,8 @@ def _legend_html() -> str:
 def _levels_html(timeline: ElementTimeline) -> str:
     """The "show levels up to" control of the 3D views (a select: mouse and keyboard)."""
     levels, _ = box_levels(timeline, np.flatnonzero(timeline.elements["drawn_in_3d"].to_numpy(dtype=bool)))
+    if not levels:
+        return ""
     options = "".join(
         f'<option value="{k}"{" selected" if k == len(levels) - 1 else ""}>'
         f'{html.escape(name)}{" (every level)" if k == len(levels) - 1 else ""}</option>'

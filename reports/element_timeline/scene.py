@@ -222,7 +222,7 @@ def _names_in_order(names: pd.Series, position: pd.Series) -> list[str]:
 
 
 def box_levels(timeline: ElementTimeline, drawn: np.ndarray) -> tuple[list[str], np.ndarray]:
-    """The level names from the lowest up and, per box drawn, the number of its level.
+    """The levels of the boxes drawn, from the lowest up, and each box's level number.
 
     Parameters
     ----------
@@ -236,8 +236,10 @@ def box_levels(timeline: ElementTimeline, drawn: np.ndarray) -> tuple[list[str],
         (a box shows when its level number is at most the one chosen).
     """
     level, order = level_order(timeline.elements)
-    number = level.map({name: k for k, name in enumerate(order)}).to_numpy(dtype=np.int64)
-    return order, number[drawn]
+    present = set(level.iloc[drawn])
+    order = [name for name in order if name in present]
+    number = level.iloc[drawn].map({name: k for k, name in enumerate(order)}).to_numpy(dtype=np.int64)
+    return order, number
 
 
 def drawn_parts(box_states: np.ndarray, started: np.ndarray, outlined: np.ndarray,

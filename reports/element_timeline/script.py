@@ -261,11 +261,24 @@ SCRIPT = r"""
       label.textContent = "Week of Monday " + date + " (week " + (frame + 1) + " of " + F + ")";
       root.querySelector('[data-role="counts"]').textContent = describe(data, view.states);
     }
+    // one drawing at a time; the calls made meanwhile share one more, of the latest week
+    var busy = null, queued = null;
+    function again() { queued = null; return redraw(); }
     function redraw() {
+      if (busy) {
+        if (!queued) queued = busy.then(again, again);
+        return queued;
+      }
       var drawn = view.frame + ":" + view.top;
-      return Promise.all(plots.map(function (p) { return p.update(); })).then(function () {
+      busy = Promise.all(plots.map(function (p) { return p.update(); })).then(function () {
+        busy = null;
         root.dataset.drawn = drawn;  // the week and the highest level now on screen
+      }, function (error) {
+        busy = null;
+        status.textContent = "The figure could not be redrawn: " + error;
+        throw error;
       });
+      return busy;
     }
     var control = {
       frame: function () { return view.frame; },
