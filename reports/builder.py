@@ -928,9 +928,11 @@ def _asbuilt(ctx: _Context) -> Section:
     from .figures import planned_against_built
 
     if len(drawn):
-        blocks.append(FigureBlock("planned_against_built", planned_against_built(drawn, data_dates=data_dates),
-                                  "Planned (baseline early dates) and actual bars of the activities on the baseline "
-                                  "driving path and the as-built critical path, grouped by work breakdown code; "
+        blocks.append(FigureBlock("planned_against_built", planned_against_built(
+            drawn, critical_path=result.critical_path, data_dates=data_dates),
+                                  "Planned (baseline early dates, pale hatched bars) and actual (solid bars) dates of "
+                                  "the activities on the baseline driving path and the as-built critical path: the "
+                                  "as-built critical path first, in path order, then the other activities by start; "
                                   "dotted lines mark the data dates of the progress updates." + note))
     blocks.append(ctx.table("driving_path_activities", "Activities on the driving paths, planned and actual",
                             "asbuilt", frame))

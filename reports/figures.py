@@ -5,7 +5,9 @@ the same wherever it appears. Colours are the colour-blind-safe hues of
 :mod:`reports.palette`; the roles are our own:
 
 - planned dates and "time only" days: sky blue; actual dates and "time and money" days:
-  deep blue; culpable days and lateness: vermillion; reference lines: black and grey.
+  deep blue; culpable days and lateness: vermillion; reference lines: black and grey;
+- the bars of planned against actual dates differ in more than colour: planned bars are
+  pale, hatched and outlined, actual bars solid and dark, for a greyscale print.
 
 Text that comes from the case (activity names, event titles, labels) is escaped before it
 reaches plotly, whose labels read a small subset of HTML: a name such as ``<b>`` shows as
@@ -20,13 +22,15 @@ import html
 import numpy as np
 import pandas as pd
 
-from .palette import BACKGROUND_COLOUR, HIGHLIGHT_COLOUR, STATE_COLOURS
+from .palette import BACKGROUND_COLOUR, BUILT_BAR, HIGHLIGHT_COLOUR, PLANNED_BAR, STATE_COLOURS
 
 __all__ = [
     "completion_trend",
     "window_movements",
     "completion_steps",
     "planned_against_built",
+    "gantt_order",
+    "GANTT_GROUPS",
     "days_by_method",
     "but_for_days",
     "PLANNED_COLOUR",
@@ -73,17 +77,12 @@ def _layout(title: str, **extra) -> dict:
     return layout
 
 
-def _reference_line(figure, *, y=None, x=None, text: str, colour: str, dash: str) -> None:
-    if y is not None:
-        figure.add_shape(type="line", xref="paper", x0=0, x1=1, yref="y", y0=y, y1=y,
-                         line=dict(color=colour, width=1.5, dash=dash))
-        figure.add_annotation(xref="paper", x=1.0, yref="y", y=y, text=_text(text), showarrow=False,
-                              xanchor="right", yanchor="bottom", font=dict(size=11, color=colour))
-    else:
-        figure.add_shape(type="line", yref="paper", y0=0, y1=1, xref="x", x0=x, x1=x,
-                         line=dict(color=colour, width=1, dash=dash))
-        figure.add_annotation(yref="paper", y=1.0, xref="x", x=x, text=_text(text), showarrow=False,
-                              textangle=-90, xanchor="right", yanchor="top", font=dict(size=10, color=colour))
+def _reference_line(figure, *, y, text: str, colour: str, dash: str) -> None:
+    """A horizontal line across the plot at ``y``, labelled at its right end."""
+    figure.add_shape(type="line", xref="paper", x0=0, x1=1, yref="y", y0=y, y1=y,
+                     line=dict(color=colour, width=1.5, dash=dash))
+    figure.add_annotation(xref="paper", x=1.0, yref="y", y=y, text=_text(text), showarrow=False,
+                          xanchor="right", yanchor="bottom", font=dict(size=11, color=colour))
 
 
 def completion_trend(trend: pd.DataFrame, *, contract_in_force=None, planned=None,
@@ -198,68 +197,143 @@ def completion_steps(steps: pd.DataFrame, *, title: str = "Completion after each
     return figure
 
 
-def planned_against_built(activities: pd.DataFrame, *, data_dates: pd.DataFrame | None = None,
-                          title: str = "As planned against as built, activities on the driving paths"):
-    """Planned and actual bars per activity, grouped by work breakdown code.
+#: The two groups of rows of :func:`planned_against_built`, top first.
+GANTT_GROUPS = ("as-built critical path", "other activities")
+
+#: Pixels of the top margin of :func:`planned_against_built`: the title, the legend under
+#: it, then the date ticks above the plot, each in a band of its own.
+_GANTT_TITLE_PX, _GANTT_LEGEND_PX, _GANTT_TOP_PX, _GANTT_BOTTOM_PX = 12, 44, 120, 110
+
+
+def gantt_order(activities: pd.DataFrame, critical_path=None) -> pd.DataFrame:
+    """The rows of :func:`planned_against_built` in the order drawn, with their group.
 
     Parameters
     ----------
-    activities: one row per activity, in the order shown (top first): ``wbs``, ``id``,
-        ``name``, ``planned_start``, ``planned_finish``, ``actual_start``,
-        ``actual_finish`` (dates; a missing pair draws no bar) and ``milestone`` (bool).
-        A bar runs from the start of its start date to the end of its finish date (work
-        happens on both), so its length is ``finish - start + 1`` days.
+    activities: as for :func:`planned_against_built`.
+    critical_path: the as-built critical path in path order: the ``critical_path`` table of
+        :class:`delay.methods.as_built.AsBuiltResult` (its ``activity`` column) or a list of
+        activity ids; ``None`` for none.
+
+    Returns
+    -------
+    pandas.DataFrame
+        ``activities`` reordered: the activities on the path first, in path order, then the
+        others by start (the planned start, else the actual start), then id; with a column
+        ``group`` (one of :data:`GANTT_GROUPS`).
+
+    Examples
+    --------
+    >>> rows = pd.DataFrame({"id": ["A", "B", "C"], "planned_start": pd.to_datetime(
+    ...     ["2025-01-06", "2025-01-13", "2025-01-08"]), "actual_start": pd.NaT})
+    >>> gantt_order(rows, ["B", "A"])["id"].tolist()
+    ['B', 'A', 'C']
+    """
+    if critical_path is None:
+        path: list[str] = []
+    elif isinstance(critical_path, pd.DataFrame):
+        path = [str(a) for a in critical_path["activity"]]
+    else:
+        path = [str(a) for a in critical_path]
+    position = {ident: k for k, ident in enumerate(dict.fromkeys(path))}
+    ids = activities["id"].astype(str)
+    start = pd.to_datetime(activities["planned_start"]).fillna(pd.to_datetime(activities["actual_start"]))
+    keys = pd.DataFrame({"path": ids.map(position).to_numpy(dtype=float), "start": start.to_numpy(), "id": ids.to_numpy()})
+    order = keys.sort_values(["path", "start", "id"], na_position="last", kind="stable").index
+    out = activities.iloc[order].reset_index(drop=True)
+    out["group"] = np.where(keys["path"].notna().to_numpy()[order], GANTT_GROUPS[0], GANTT_GROUPS[1])
+    return out
+
+
+def planned_against_built(activities: pd.DataFrame, *, critical_path=None, data_dates: pd.DataFrame | None = None,
+                          title: str = "As planned against as built, activities on the driving paths"):
+    """Planned and actual bars per activity, the as-built critical path first.
+
+    Planned bars are a pale tint, hatched and outlined; actual bars solid and dark
+    (:data:`reports.palette.PLANNED_BAR`, :data:`reports.palette.BUILT_BAR`), so that they
+    stay apart in a greyscale print as well as in colour. The legend sits under the title,
+    above the date ticks, clear of the axes.
+
+    Parameters
+    ----------
+    activities: one row per activity: ``wbs``, ``id``, ``name``, ``planned_start``,
+        ``planned_finish``, ``actual_start``, ``actual_finish`` (dates; a missing pair
+        draws no bar) and ``milestone`` (bool). A bar runs from the start of its start date
+        to the end of its finish date (work happens on both), so its length is
+        ``finish - start + 1`` days.
+    critical_path: the as-built critical path in path order (the ``critical_path`` table
+        of :func:`delay.methods.as_built.compare`, or a list of ids): its activities are
+        drawn first, in path order, then the others by start (:func:`gantt_order`).
     data_dates: ``label`` and ``data_date`` of each progress update, drawn as dotted
-        vertical lines.
+        vertical lines, labelled under the plot.
 
     Returns
     -------
     plotly.graph_objects.Figure
         Two horizontal bar traces (``as planned``, ``as built``) on a two-level category
-        axis (work breakdown code, activity id), ``base`` the start date and ``x`` the
-        length in milliseconds; milestones as diamond markers in two further traces. A first,
-        invisible trace ``rows`` holds every row so the axis keeps the order given.
+        axis (the group of :data:`GANTT_GROUPS`, the activity id), ``base`` the start date
+        and ``x`` the length in milliseconds; milestones as diamond markers in two further
+        traces (open as planned, filled as built). A first, invisible trace ``rows`` holds
+        every row so the axis keeps the order drawn.
     """
     import plotly.graph_objects as go
 
-    wbs = [_text(w) or "(no code)" for w in activities["wbs"]]
-    ids = [_text(i) for i in activities["id"]]
-    names = [_text(n) for n in activities["name"]]
-    rows = len(ids)
-    figure = go.Figure(layout=_layout(
-        title, barmode="group", bargap=0.25, bargroupgap=0.05, height=max(360, 140 + 24 * rows),
-        xaxis=dict(title=dict(text="date"), type="date", side="top"),
-        yaxis=dict(type="multicategory", autorange="reversed", tickfont=dict(size=10)),
-        margin=dict(l=230, r=30, t=120, b=60),
-        legend=dict(orientation="h", x=0.0, y=1.0, xanchor="left", yanchor="bottom")))
-    milestone = activities["milestone"].to_numpy(dtype=bool) if "milestone" in activities else np.zeros(rows, bool)
-    # an invisible first trace holds every row, so the axis lists the rows in the order given
-    first_date = pd.to_datetime(activities["planned_start"]).fillna(pd.to_datetime(activities["actual_start"]))
-    figure.add_trace(go.Scatter(mode="markers", y=[wbs, ids], x=[_iso(v) for v in first_date], showlegend=False,
+    rows = gantt_order(activities, critical_path)
+    groups = [g.replace(" ", "<br>", 1) for g in rows["group"]]
+    ids = [_text(i) for i in rows["id"]]
+    names = [_text(n) for n in rows["name"]]
+    codes = [_text(w) or "(no code)" for w in rows["wbs"]]
+    height = max(360, _GANTT_TOP_PX + _GANTT_BOTTOM_PX + 22 * len(ids))
+    layout = _layout(
+        title, barmode="group", bargap=0.25, bargroupgap=0.05, height=height,
+        xaxis=dict(type="date", side="top", ticks="outside", automargin=False),
+        # the rows top first, half a row of room at either end (categories count 0, 1, ...)
+        yaxis=dict(type="multicategory", range=[len(ids) - 0.5, -0.5], autorange=False, tickfont=dict(size=10)),
+        margin=dict(l=230, r=30, t=_GANTT_TOP_PX, b=_GANTT_BOTTOM_PX),
+        legend=dict(orientation="h", x=0.0, xanchor="left", xref="container", y=1 - _GANTT_LEGEND_PX / height,
+                    yanchor="top", yref="container"))
+    layout["title"].update(y=1 - _GANTT_TITLE_PX / height, yanchor="top", yref="container")
+    figure = go.Figure(layout=layout)
+    milestone = rows["milestone"].to_numpy(dtype=bool) if "milestone" in rows else np.zeros(len(ids), bool)
+    first_date = pd.to_datetime(rows["planned_start"]).fillna(pd.to_datetime(rows["actual_start"]))
+    figure.add_trace(go.Scatter(mode="markers", y=[groups, ids], x=[_iso(v) for v in first_date], showlegend=False,
                                 marker=dict(opacity=0, size=1), hoverinfo="skip", name="rows"))
-    for which, colour, name in (("planned", PLANNED_COLOUR, "as planned"), ("actual", BUILT_COLOUR, "as built")):
-        start = pd.to_datetime(activities[f"{which}_start"])
-        finish = pd.to_datetime(activities[f"{which}_finish"])
+    for which, style, name in (("planned", PLANNED_BAR, "as planned"), ("actual", BUILT_BAR, "as built")):
+        start = pd.to_datetime(rows[f"{which}_start"])
+        finish = pd.to_datetime(rows[f"{which}_finish"])
         dated = (start.notna() & finish.notna()).to_numpy()
-        bar = dated & ~milestone
         length = ((finish - start).dt.days + 1).to_numpy(dtype=float, na_value=np.nan) * MILLISECONDS_PER_DAY
-        hover = [f"{i} {n}<br>{name}: {_iso(s)} to {_iso(f)}" for i, n, s, f in zip(ids, names, start, finish)]
+        hover = [f"{i} {n}<br>wbs {c}<br>{name}: {_iso(s)} to {_iso(f)}"
+                 for i, n, c, s, f in zip(ids, names, codes, start, finish)]
+
+        def pick(values, keep):
+            return [v for v, k in zip(values, keep) if k]
+
+        bar, point = dated & ~milestone, dated & milestone
         figure.add_trace(go.Bar(
-            orientation="h", name=name, marker_color=colour,
-            y=[[w for w, b in zip(wbs, bar) if b], [i for i, b in zip(ids, bar) if b]],
-            base=[_iso(s) for s, b in zip(start, bar) if b], x=[float(v) for v, b in zip(length, bar) if b],
-            hovertext=[h for h, b in zip(hover, bar) if b], hoverinfo="text"))
-        point = dated & milestone
+            orientation="h", name=name, y=[pick(groups, bar), pick(ids, bar)],
+            base=pick([_iso(v) for v in start], bar), x=[float(v) for v in pick(length, bar)],
+            marker=dict(color=style["fill"], line=dict(color=style["line"], width=1),
+                        pattern=dict(shape=style["pattern"], fgcolor=style["line"], size=6, solidity=0.3)),
+            hovertext=pick(hover, bar), hoverinfo="text"))
         figure.add_trace(go.Scatter(
             mode="markers", name=f"{name} (milestone)", showlegend=False,
-            marker=dict(symbol="diamond", size=10, color=colour, line=dict(color=LINE_COLOUR, width=1)),
-            y=[[w for w, b in zip(wbs, point) if b], [i for i, b in zip(ids, point) if b]],
-            x=[_iso(f) for f, b in zip(finish, point) if b],
-            hovertext=[h for h, b in zip(hover, point) if b], hoverinfo="text"))
+            marker=dict(symbol="diamond-open" if style["pattern"] else "diamond", size=10, color=style["line"],
+                        line=dict(color=style["line"], width=2)),
+            y=[pick(groups, point), pick(ids, point)], x=pick([_iso(f) for f in finish], point),
+            hovertext=pick(hover, point), hoverinfo="text"))
     if data_dates is not None:
         for label, day in zip(data_dates["label"], data_dates["data_date"]):
-            _reference_line(figure, x=_iso(day), text=f"data date {label}", colour=REFERENCE_COLOUR, dash="dot")
+            _data_date_line(figure, _iso(day), label)
     return figure
+
+
+def _data_date_line(figure, day: str | None, label) -> None:
+    """A dotted vertical line at a data date, labelled below the plot."""
+    figure.add_shape(type="line", yref="paper", y0=0, y1=1, xref="x", x0=day, x1=day,
+                     line=dict(color=REFERENCE_COLOUR, width=1, dash="dot"))
+    figure.add_annotation(yref="paper", y=0, yshift=-6, xref="x", x=day, text=_text(label), showarrow=False,
+                          textangle=-90, xanchor="center", yanchor="top", font=dict(size=10, color="#555555"))
 
 
 def days_by_method(summary: pd.DataFrame, *, title: str = "Days by method"):

@@ -11,6 +11,14 @@ no hue to confuse). Which colour stands for which state is our own choice:
 - no linked activity: a neutral grey (the element is "greyed");
 - elements of activities delayed by an event: a black outline.
 
+In the 3D views work not yet begun is drawn as a faint wire frame (a ghost of the works to
+come): thin lines in a pale cool grey, or in a pale vermillion where the plan had the work
+begun; elements with no linked activity are a dotted grey wire frame. A wire frame leaves
+the site almost empty however many elements stand behind one another, where translucent
+fills would add up to a grey block. The chart of planned against actual bars keeps the two apart without
+colour: planned bars are a pale tint, hatched and outlined in deep blue; actual bars are
+solid deep blue, so a greyscale print shows light hatched bars against dark plain ones.
+
 ``tests/test_element_timeline.py`` checks that every pair stays clearly apart under a
 simulation of the three kinds of dichromacy.
 
@@ -23,7 +31,17 @@ D55E00, 000000 ...; recalled from memory).
 
 from __future__ import annotations
 
-__all__ = ["STATE_COLOURS", "HIGHLIGHT_COLOUR", "BACKGROUND_COLOUR", "discrete_colourscale"]
+from types import MappingProxyType
+
+__all__ = [
+    "STATE_COLOURS",
+    "GHOST_COLOURS",
+    "HIGHLIGHT_COLOUR",
+    "BACKGROUND_COLOUR",
+    "PLANNED_BAR",
+    "BUILT_BAR",
+    "discrete_colourscale",
+]
 
 #: One fill colour per element state code (see :mod:`reports.element_timeline`).
 STATE_COLOURS: tuple[str, ...] = (
@@ -33,6 +51,18 @@ STATE_COLOURS: tuple[str, ...] = (
     "#D55E00",  # 3 late against plan
     "#9A9A9A",  # 4 no linked activity
 )
+
+#: The faint wire frame of work not begun by the week shown (3D), by state code: "not
+#: started" a pale cool grey, "late against plan" (not begun though the plan had it begun)
+#: a pale vermillion. Only codes 0 and 3 are drawn so; the others repeat the solid colours.
+GHOST_COLOURS: tuple[str, ...] = ("#C9CFD6", STATE_COLOURS[1], STATE_COLOURS[2], "#EFA982", STATE_COLOURS[4])
+
+#: Planned bars (the chart of planned against actual bars): a pale tint of the sky blue,
+#: hatched and outlined in deep blue.
+PLANNED_BAR = MappingProxyType({"fill": "#E3F1FA", "line": "#0072B2", "pattern": "/"})
+
+#: Actual bars: solid deep blue, no hatching.
+BUILT_BAR = MappingProxyType({"fill": "#0072B2", "line": "#0072B2", "pattern": ""})
 
 #: Outline of the elements of activities delayed by an event.
 HIGHLIGHT_COLOUR = "#000000"

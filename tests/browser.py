@@ -12,7 +12,7 @@ import contextlib
 import os
 import shutil
 from pathlib import Path
-from typing import Iterator
+from typing import Iterator, Sequence
 
 import pytest
 
@@ -86,30 +86,105 @@ def save_screenshot(page, name: str, folder: Path) -> list[Path]:
     return paths
 
 
-def pixel_share(page, png: bytes, test_js: str) -> float:
-    """Share of the pixels of a PNG for which ``test_js`` (a JS expression in r, g, b) holds.
+_DECODED = """async ([sources, argument]) => {
+    const images = [];
+    for (const source of sources) {
+        const image = new Image();
+        image.src = source;
+        await image.decode();
+        const canvas = document.createElement("canvas");
+        canvas.width = image.width; canvas.height = image.height;
+        const context = canvas.getContext("2d", {willReadFrequently: true});
+        context.drawImage(image, 0, 0);
+        images.push(context.getImageData(0, 0, image.width, image.height).data);
+    }
+    return (%s)(images, argument);
+}"""
 
-    The PNG is decoded by the browser itself (an image drawn on a canvas), so no imaging
-    library is needed.
-    """
-    source = "data:image/png;base64," + base64.b64encode(png).decode("ascii")
-    return page.evaluate(
-        """async ([source, test]) => {
-            const image = new Image();
-            image.src = source;
-            await image.decode();
-            const canvas = document.createElement("canvas");
-            canvas.width = image.width; canvas.height = image.height;
-            const context = canvas.getContext("2d", {willReadFrequently: true});
-            context.drawImage(image, 0, 0);
-            const pixels = context.getImageData(0, 0, image.width, image.height).data;
-            const check = new Function("r", "g", "b", "return " + test + ";");
-            let hits = 0;
-            for (let k = 0; k < pixels.length; k += 4) if (check(pixels[k], pixels[k + 1], pixels[k + 2])) hits++;
-            return hits / (pixels.length / 4);
-        }""",
-        [source, test_js],
-    )
+
+def _with_pixels(page, pngs: Sequence[bytes], function_js: str, argument=None):
+    """Run ``function_js`` (a JS function of the images' RGBA pixel arrays and
+    ``argument``) in the page on the PNGs, decoded by the browser itself (each drawn on a
+    canvas), so that no imaging library is needed."""
+    sources = ["data:image/png;base64," + base64.b64encode(png).decode("ascii") for png in pngs]
+    return page.evaluate(_DECODED % function_js, [sources, argument])
+
+
+def pixel_share(page, png: bytes, test_js: str) -> float:
+    """Share of the pixels of a PNG for which ``test_js`` (a JS expression in r, g, b) holds."""
+    return _with_pixels(page, [png], """([pixels], test) => {
+        const check = new Function("r", "g", "b", "return " + test + ";");
+        let hits = 0;
+        for (let k = 0; k < pixels.length; k += 4) if (check(pixels[k], pixels[k + 1], pixels[k + 2])) hits++;
+        return hits / (pixels.length / 4);
+    }""", test_js)
+
+
+#: A pixel "painted" in the timeline's 3D views: its darkest channel below 190. The white
+#: background, the pale grid (#E4E4E4) and the faint wire frames of work not begun
+#: (#C9CFD6, palette.GHOST_COLOURS) have every channel at 190 or above, so they do not
+#: count; the solid colours, the outlines and the axis labels do.
+PAINTED = "Math.min(r, g, b) < 190"
+
+
+def painted_share(page, locator) -> float:
+    """Share of the painted pixels (:data:`PAINTED`) in a screenshot of ``locator``."""
+    return pixel_share(page, locator.screenshot(), PAINTED)
+
+
+def image_difference(page, first: bytes, second: bytes) -> float:
+    """Mean absolute difference of two PNGs of the same size, per channel, 0 to 255."""
+    return _with_pixels(page, [first, second], """([one, two]) => {
+        if (one.length !== two.length) throw new Error("the images differ in size");
+        let total = 0, count = 0;
+        for (let k = 0; k < one.length; k += 4) {
+            for (let c = 0; c < 3; c++) total += Math.abs(one[k + c] - two[k + c]);
+            count += 3;
+        }
+        return total / count;
+    }""")
+
+
+def grey_statistics(page, png: bytes) -> tuple[float, float]:
+    """Mean and standard deviation of the lightness (0 to 255, the mean of r, g and b) of
+    the pixels of a PNG."""
+    return tuple(_with_pixels(page, [png], """([pixels]) => {
+        let sum = 0, squares = 0, count = 0;
+        for (let k = 0; k < pixels.length; k += 4) {
+            const grey = (pixels[k] + pixels[k + 1] + pixels[k + 2]) / 3;
+            sum += grey; squares += grey * grey; count++;
+        }
+        const mean = sum / count;
+        return [mean, Math.sqrt(Math.max(0, squares / count - mean * mean))];
+    }"""))
+
+
+def drag(page, x: float, y: float, dx: float, dy: float, steps: int = 10) -> None:
+    """Press the mouse at (x, y), move it by (dx, dy) in ``steps`` steps and let go."""
+    page.mouse.move(x, y)
+    page.mouse.down()
+    for k in range(1, steps + 1):
+        page.mouse.move(x + dx * k / steps, y + dy * k / steps)
+        page.wait_for_timeout(40)
+    page.mouse.up()
+
+
+@contextlib.contextmanager
+def printed(page, width: int, *, settle: int = 500) -> Iterator[None]:
+    """The page laid out as printed: ``width`` pixels wide, print media, the page's own
+    ``beforeprint`` work done (folded tables opened, charts fitted); afterwards back to the
+    screen at the size it had."""
+    size = page.viewport_size
+    page.set_viewport_size({"width": width, "height": 900})
+    page.emulate_media(media="print")
+    page.evaluate("() => window.dispatchEvent(new Event('beforeprint'))")
+    page.wait_for_timeout(settle)
+    try:
+        yield
+    finally:
+        page.emulate_media(media="screen")
+        page.evaluate("() => window.dispatchEvent(new Event('afterprint'))")
+        page.set_viewport_size(size)
 
 
 def set_slider(page, frame: int) -> None:
@@ -119,9 +194,36 @@ def set_slider(page, frame: int) -> None:
         slider.value = String(frame);
         slider.dispatchEvent(new Event("input", {bubbles: true}));
     }""", frame)
+    # software WebGL on a loaded machine can hold the page's thread for many seconds
     page.wait_for_function("frame => document.querySelector('.element-timeline').dataset.frame === String(frame)",
-                           arg=frame)
-    page.wait_for_timeout(150)
+                           arg=frame, timeout=120_000)
+    wait_until_drawn(page)
+
+
+def set_top_level(page, *, keys: Sequence[str] = (), option: str | None = None) -> int:
+    """Choose the highest level the 3D views show: with the keyboard (``keys`` pressed on
+    the focused control) or as a mouse would (``option``, the value chosen). Returns the
+    level number now shown, once drawn."""
+    control = page.locator('.element-timeline [data-role="levels"]')
+    if option is not None:
+        control.select_option(option)
+    control.focus()
+    for key in keys:
+        page.keyboard.press(key)
+    top = int(control.input_value())
+    page.wait_for_function("top => document.querySelector('.element-timeline').dataset.topLevel === String(top)",
+                           arg=top, timeout=120_000)
+    wait_until_drawn(page)
+    return top
+
+
+def wait_until_drawn(page) -> None:
+    """Wait until the element timeline has drawn the week and levels it shows."""
+    page.wait_for_function("""() => {
+        const root = document.querySelector('.element-timeline');
+        return root.dataset.drawn === root.dataset.frame + ":" + root.dataset.topLevel;
+    }""", timeout=120_000)
+    page.wait_for_timeout(150)  # WebGL paints on the next animation frames
 
 
 def play_then_pause(page) -> None:

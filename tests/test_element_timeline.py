@@ -37,6 +37,7 @@ from reports.element_timeline import (
     COMPLETE, IN_PROGRESS, LATE, NOT_STARTED, UNLINKED, element_states, figure_2d, figure_3d,
     standalone_html, timeline_html,
 )
+from reports.element_timeline.scene import ROLES_3D, box_levels, drawn_parts
 from reports.palette import STATE_COLOURS, HIGHLIGHT_COLOUR
 
 ACTIVITIES = [
@@ -173,6 +174,44 @@ def test_runs_give_the_same_states_as_the_table(small):
     assert small.runs("as_planned")[3] == [(4, 6)]
 
 
+def test_start_frames_tell_begun_work_from_work_not_begun(small):
+    # Mondays 01-06, 01-13, 01-20, 01-27, 02-03, 02-10. As planned E1 starts Monday 01-06
+    # (frame 0) and E2, E3 Monday 01-13 (frame 1); as built E2, E3 start Wednesday 01-15,
+    # so the first Monday on or after it is 01-20 (frame 2). E4 is linked in neither view:
+    # its work never begins (6, the number of frames).
+    assert small.start_frames("as_planned").tolist() == [0, 1, 1, 6]
+    assert small.start_frames("as_built").tolist() == [0, 2, 2, 6]
+    with pytest.raises(ValueError, match="unknown view"):
+        small.start_frames("forecast")
+
+
+def test_drawn_parts_follow_the_state_and_the_start():
+    # one box per case: not started; in progress; complete; late and begun; late and not
+    # begun; unlinked; and one complete box on a level that is not shown
+    codes = np.array([NOT_STARTED, IN_PROGRESS, COMPLETE, LATE, LATE, UNLINKED, COMPLETE])
+    begun = np.array([False, True, True, True, False, False, True])
+    outlined = np.array([True, True, False, True, True, True, True])
+    shown = np.array([True, True, True, True, True, True, False])
+    parts = drawn_parts(codes, begun, outlined, shown)
+    assert parts["solid"].tolist() == [1, 2, 3]
+    assert parts["ghost"].tolist() == [0, 4]  # work not begun is faint, late or not
+    assert parts["unlinked"].tolist() == [5]
+    assert parts["outline"].tolist() == [1, 3]  # affected boxes, once begun and shown
+    assert drawn_parts(codes, begun, outlined)["solid"].tolist() == [1, 2, 3, 6]
+
+
+def test_levels_are_offered_from_the_lowest_up(small):
+    # E1, E2 and E4 are on level 00 (lowest z 0), E3 on level 01 (z 4)
+    levels, numbers = box_levels(small, np.arange(4))
+    assert levels == ["00", "01"] and numbers.tolist() == [0, 0, 1, 0]
+    fragment = timeline_html(small)
+    options = re.findall(r'<option value="(\d+)"( selected)?>([^<]*)</option>', fragment)
+    assert options == [("0", "", "00"), ("1", " selected", "01 (every level)")]
+    payload = _payload_of(fragment)
+    assert payload["figure3d"]["levels"] == ["00", "01"] and payload["figure3d"]["box_levels"] == [0, 0, 1, 0]
+    assert payload["start_frames"] == {"as_planned": [0, 1, 1, 6], "as_built": [0, 2, 2, 6]}
+
+
 def test_unlinked_elements_are_grey_and_listed(small):
     assert small.unlinked["id"].tolist() == ["E4"]
     assert small.unlinked["missing_from"].tolist() == ["both views"]
@@ -193,10 +232,22 @@ def test_events_pick_out_the_elements_of_their_activities(tmp_path):
     assert table.loc["E2", "events"] == "EV1" and table.loc["E1", "events"] == ""
     chosen = element_states(case, highlight={"A"}).elements.set_index("id")["highlighted"]
     assert chosen.to_dict() == {"E1": True, "E2": False, "E3": False, "E4": False}
-    # 3D: the outlines are drawn for the two highlighted boxes only (12 edges each)
-    figure = figure_3d(timeline, frames=False)
-    edges = [v for v in figure.data[2].x if v is not None]
-    assert len(edges) == 2 * 12 * 2
+    # 3D: outlines are drawn round the highlighted boxes once their work has begun. In the
+    # first week (Monday 2025-01-06) only E1 (not highlighted) has begun: no outline. On
+    # Monday 2025-01-20 (frame 2) B has begun in both views (planned 01-13, built 01-15),
+    # so E2 and E3 are outlined: 12 edges of 2 ends each, per box.
+    figure = figure_3d(timeline)
+    outline = [2 * ROLES_3D.index("outline") + view for view in (0, 1)]
+    for number in outline:
+        assert [v for v in figure.data[number].x if v is not None] == []
+    for trace in figure.frames[2].data[-2:]:
+        assert len([v for v in trace.x if v is not None]) == 2 * 12 * 2
+    # each outline stands off its box by the margin on every side: E2 spans x 1 .. 1.5 and
+    # E3 x 0 .. 4 (elements.csv above); the margin is 0.15 % of the model's largest extent,
+    # here the 6.2 m of x (0 .. 6.2 with the flagpole): 0.0093, kept to 3 decimals: 0.009
+    margin = 0.009
+    xs = {round(v, 3) for v in figure.frames[2].data[-1].x if v is not None}
+    assert xs == {round(1 - margin, 3), round(1.5 + margin, 3), round(-margin, 3), round(4 + margin, 3)}
 
 
 def test_without_an_as_built_record_the_last_update_is_used(tmp_path):
@@ -259,13 +310,33 @@ def test_figures_carry_geometry_once_and_colours_per_frame(small):
     figure = figure_3d(small)
     mesh = figure.data[0]
     assert mesh.type == "mesh3d" and figure.data[1].scene == "scene2"
-    assert len(mesh.x) == 4 * 8 and len(mesh.i) == 4 * 12
+    # every box's 8 corners; in the first week (Monday 2025-01-06) only E1 has begun:
+    # 12 triangles solid, E2 and E3 faint wire frames (12 edges of two ends and a gap
+    # each), E4 (no linked activity) a dotted wire frame
+    assert len(mesh.x) == 4 * 8 and len(mesh.i) == 1 * 12 and len(figure.data[2].x) == 2 * 12 * 3
+    assert set(figure.data[2].line.color) == {NOT_STARTED}
+    assert len([v for v in figure.data[4].x if v is not None]) == 12 * 2
+    assert figure.data[4].line.dash == "dot" and figure.data[4].line.color == STATE_COLOURS[UNLINKED]
     # vertex 8n + 6 is the far corner (x + dx, y + dy, z + dz) of box n: E2 -> (1.5, 1.5, 4)
     assert (mesh.x[8 + 6], mesh.y[8 + 6], mesh.z[8 + 6]) == (1.5, 1.5, 4.0)
     assert len(figure.frames) == 6 and len(figure.layout.sliders[0].steps) == 6
     for frame in figure.frames:
-        for trace in frame.data:
-            assert set(trace.to_plotly_json()) == {"type", "intensity"}
+        meshes = [t.to_plotly_json() for t in frame.data if t.type == "mesh3d"]
+        # the corners are sent once; a week sends only the triangles drawn and the colours
+        assert [set(t) for t in meshes] == [{"type", "i", "j", "k", "intensity"}] * 2
+    # Monday 2025-01-13 (frame 1), worked from the dates in the module docstring: as planned
+    # E1 is complete and E2, E3 in progress, all begun: solid, no wire frame. As built E1
+    # is still in progress (late) and begun: solid; E2 and E3 are late and not begun (B
+    # started 01-15): faint wire frames in the "late" colour. Box n owns vertices
+    # 8n .. 8n+7 and 12 triangles; a wire frame is 12 edges of two ends and a gap.
+    solid_planned, solid_built, ghost_planned, ghost_built = figure.frames[1].data[:4]
+    assert len(solid_planned.i) == 3 * 12 and len(ghost_planned.x) == 0
+    assert sorted(set(solid_built.i) | set(solid_built.j) | set(solid_built.k)) == list(range(8))
+    assert len(ghost_built.x) == 2 * 12 * 3 and set(ghost_built.line.color) == {LATE}
+    # E2's box runs x 1 .. 1.5, E3's 0 .. 4 (elements.csv above)
+    assert {v for v in ghost_built.x if v is not None} == {0, 1, 1.5, 4}
+    # Monday 2025-02-03 (frame 4): E2 and E3 are still late as built but begun: solid
+    assert len(figure.frames[4].data[1].i) == 3 * 12 and len(figure.frames[4].data[3].x) == 0
     # the frame of Monday 2025-01-13: E2 late as built (3), in progress as planned (1)
     assert figure.frames[1].data[1].intensity[8] == LATE
     assert figure.frames[1].data[0].intensity[8] == IN_PROGRESS

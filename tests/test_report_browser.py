@@ -15,7 +15,8 @@ from types import SimpleNamespace
 
 import pytest
 
-from browser import Page, chromium, play_then_pause, require_browser, save_screenshot, set_slider, state_mismatches
+from browser import (Page, chromium, grey_statistics, play_then_pause, printed, require_browser, save_screenshot,
+                     set_slider, state_mismatches)
 from reports.builder import SECTIONS
 from reports.writer import demo_report
 from test_browser_timeline import _computed_expectations, _demo_or_synthetic, _drawn_positions
@@ -102,10 +103,12 @@ def test_three_elements_at_three_dates_match_the_planned_and_built_dates(demo):
 
 def test_the_tables_fit_a4_landscape_when_printed(demo):
     page = demo.page
-    page.set_viewport_size({"width": A4_LANDSCAPE_CONTENT_PX, "height": 900})
-    page.emulate_media(media="print")
-    page.evaluate("() => window.dispatchEvent(new Event('beforeprint'))")  # opens folded tables
-    page.wait_for_timeout(300)
+    with printed(page, A4_LANDSCAPE_CONTENT_PX, settle=300):  # folded tables open
+        _tables_fit_a4(page)
+    _no_errors(demo)
+
+
+def _tables_fit_a4(page) -> None:
     wide = page.evaluate("""() => Array.from(document.querySelectorAll('table'))
         .filter(t => t.offsetParent !== null && t.getBoundingClientRect().width > 0)
         .filter(t => t.getBoundingClientRect().right > document.documentElement.clientWidth + 1)
@@ -119,10 +122,68 @@ def test_the_tables_fit_a4_landscape_when_printed(demo):
     boxes = re.findall(rb"/MediaBox\s*\[\s*0\s+0\s+([\d.]+)\s+([\d.]+)\s*\]", pdf)
     assert boxes and all(abs(float(w) - 841.89) < 2 and abs(float(h) - 595.28) < 2 for w, h in boxes)
     assert len(boxes) >= len(SECTIONS)
-    page.emulate_media(media="screen")
-    page.evaluate("() => window.dispatchEvent(new Event('afterprint'))")
-    page.set_viewport_size({"width": 1300, "height": 1400})
+
+
+def _boxes_of(page, figure: str, selector: str) -> list[dict]:
+    return page.evaluate("""([figure, selector]) => Array.from(
+        document.querySelectorAll(`[data-figure="${figure}"] ${selector}`))
+        .map(e => e.getBoundingClientRect()).filter(r => r.width > 0 && r.height > 0)
+        .map(r => ({left: r.left, top: r.top, right: r.right, bottom: r.bottom}))""", [figure, selector])
+
+
+def _overlap(a: dict, b: dict) -> bool:
+    return a["left"] < b["right"] and b["left"] < a["right"] and a["top"] < b["bottom"] and b["top"] < a["bottom"]
+
+
+def test_the_planned_against_built_chart_prints_on_a4_and_reads_in_greyscale(demo):
+    page = demo.page
+    with printed(page, A4_LANDSCAPE_CONTENT_PX):  # charts fit the printed width
+        _chart_prints_on_a4_in_greyscale(page, "planned_against_built")
     _no_errors(demo)
+
+
+def _chart_prints_on_a4_in_greyscale(page, name: str) -> None:
+    chart = page.locator(f'[data-figure="{name}"] .js-plotly-plot')
+    chart.scroll_into_view_if_needed()
+    (svg,) = _boxes_of(page, name, ".main-svg:first-of-type")
+    assert svg["right"] <= page.evaluate("() => document.documentElement.clientWidth") + 1, svg
+    # every other chart and both views of the element timeline fit the printed width too
+    wide = page.evaluate("""() => Array.from(document.querySelectorAll('.js-plotly-plot'))
+        .filter(p => p.getBoundingClientRect().right > document.documentElement.clientWidth + 1)
+        .map(p => (p.closest('[data-figure]') || {dataset: {figure: p.dataset.role}}).dataset.figure)""")
+    assert wide == [], f"charts wider than A4 landscape: {wide}"
+    # the legend keeps clear of the plot, of every date tick (the first one too) and of the title
+    (legend,) = _boxes_of(page, name, ".legend")
+    ticks = _boxes_of(page, name, ".xtick text")
+    plot = _boxes_of(page, name, ".nsewdrag")
+    title = _boxes_of(page, name, ".gtitle")
+    assert ticks and plot and title
+    assert not [box for box in ticks + plot + title if _overlap(legend, box)], (legend, ticks[:2])
+    assert legend["bottom"] <= min(t["top"] for t in ticks)  # above the first date tick, not beside it
+    # in greyscale the planned bars (pale, hatched) and the actual bars (solid, dark) stay
+    # apart: compare the pixels of the longest bar of each kind
+    page.evaluate(f"""() => document.querySelector('[data-figure="{name}"]').style.filter = "grayscale(1)" """)
+    statistics = []
+    for trace in range(2):  # the bar traces: as planned, then as built
+        bars = page.evaluate("""([figure, trace]) => {
+            const layer = document.querySelectorAll(`[data-figure="${figure}"] .barlayer .trace`)[trace];
+            return Array.from(layer.querySelectorAll(".point path")).map(p => p.getBoundingClientRect())
+                .map(r => ({x: r.left + window.scrollX, y: r.top + window.scrollY, width: r.width, height: r.height}));
+        }""", [name, trace])
+        widest = max(bars, key=lambda b: b["width"])
+        assert widest["width"] > 8 and widest["height"] > 4, widest
+        clip = {"x": widest["x"] + 2, "y": widest["y"] + 2, "width": widest["width"] - 4, "height": widest["height"] - 4}
+        statistics.append(grey_statistics(page, page.screenshot(full_page=True, clip=clip)))
+    (planned_mean, planned_spread), (built_mean, built_spread) = statistics
+    print(f"\ngreyscale print: planned bar lightness {planned_mean:.0f} (spread {planned_spread:.0f}), "
+          f"actual bar {built_mean:.0f} (spread {built_spread:.0f})")
+    # (two plain blues, sky #56B4E9 and deep #0072B2, come out at 164 and 94 under the
+    # weights 0.2126 r + 0.7152 g + 0.0722 b of grayscale() in the W3C Filter Effects
+    # specification, worked by hand: 70 apart; these bars must be more than 90 apart, and
+    # only one of them hatched)
+    assert planned_mean - built_mean > 90  # light against dark, out of 255
+    assert planned_spread > 2 * built_spread + 5  # hatched against plain
+    page.evaluate(f"""() => document.querySelector('[data-figure="{name}"]').style.filter = "" """)
 
 
 def test_a_screenshot_of_the_report_is_saved(demo):

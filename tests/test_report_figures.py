@@ -8,10 +8,13 @@ from __future__ import annotations
 
 import datetime as dt
 
+import numpy as np
 import pandas as pd
+import pytest
 
 from reports import figures
-from reports.palette import STATE_COLOURS
+from reports.palette import BUILT_BAR, PLANNED_BAR, STATE_COLOURS
+from test_element_timeline import _DICHROMACY, _lab
 
 
 def test_completion_trend_draws_each_programme_and_the_reference_lines():
@@ -58,8 +61,8 @@ def test_completion_steps_are_a_staircase_with_impacts_alone_beside_it():
     assert len(lines) == 2 and list(lines[1].x)[0] == "u01: before any event"
 
 
-def test_planned_against_built_bars_run_from_start_to_the_end_of_the_finish_date():
-    activities = pd.DataFrame({
+def _three_activities() -> pd.DataFrame:
+    return pd.DataFrame({
         "wbs": ["1", "1", "2"], "id": ["A", "M", "B"], "name": ["Dig", "Handover", "<b>Pour</b>"],
         "planned_start": pd.to_datetime(["2025-01-06", "2025-01-17", "2025-01-13"]),
         "planned_finish": pd.to_datetime(["2025-01-10", "2025-01-17", "2025-01-17"]),
@@ -67,22 +70,77 @@ def test_planned_against_built_bars_run_from_start_to_the_end_of_the_finish_date
         "actual_finish": pd.to_datetime(["2025-01-14", "2025-01-22", None]),
         "milestone": [False, True, False],
     })
+
+
+def test_planned_against_built_bars_run_from_start_to_the_end_of_the_finish_date():
+    activities = _three_activities()
     data_dates = pd.DataFrame({"label": ["Update 01"], "data_date": [dt.date(2025, 1, 13)]})
-    figure = figures.planned_against_built(activities, data_dates=data_dates)
+    # the as-built critical path runs B then M (the critical_path table of the as-built
+    # method, in path order); A is not on it
+    path = pd.DataFrame({"activity": ["B", "M"], "accrued_days": [3, 2]})
+    figure = figures.planned_against_built(activities, critical_path=path, data_dates=data_dates)
     rows, planned, planned_points, built, built_points = figure.data
     day = 86_400_000  # milliseconds in a day
-    # A planned Mon 01-06 to Fri 01-10: 5 days (work on both ends); built to Tue 01-14: 9 days
-    assert list(planned.base) == ["2025-01-06", "2025-01-13"] and list(planned.x) == [5 * day, 5 * day]
-    assert list(built.base) == ["2025-01-06"] and list(built.x) == [9 * day]  # B has no actual finish
-    assert [list(level) for level in rows.y] == [["1", "1", "2"], ["A", "M", "B"]]  # the order given
-    assert [list(level) for level in planned.y] == [["1", "2"], ["A", "B"]]
+    # the rows: the path first in path order (B, M), then the rest by start (A)
+    path_group, other = (g.replace(" ", "<br>", 1) for g in figures.GANTT_GROUPS)
+    assert [list(level) for level in rows.y] == [[path_group, path_group, other], ["B", "M", "A"]]
+    # A planned Mon 01-06 to Fri 01-10: 5 days (work on both ends); built to Tue 01-14: 9
+    # days; B planned Mon 01-13 to Fri 01-17: 5 days, and no actual finish: no actual bar
+    assert [list(level) for level in planned.y] == [[path_group, other], ["B", "A"]]
+    assert list(planned.base) == ["2025-01-13", "2025-01-06"] and list(planned.x) == [5 * day, 5 * day]
+    assert list(built.y[1]) == ["A"] and list(built.base) == ["2025-01-06"] and list(built.x) == [9 * day]
     assert list(planned_points.x) == ["2025-01-17"] and list(built_points.x) == ["2025-01-22"]
-    assert planned_points.marker.symbol == "diamond"
-    assert figure.layout.yaxis.type == "multicategory" and figure.layout.yaxis.autorange == "reversed"
-    assert "&lt;b&gt;Pour&lt;/b&gt;" in planned.hovertext[1]
+    assert planned_points.marker.symbol == "diamond-open" and built_points.marker.symbol == "diamond"
+    assert figure.layout.yaxis.type == "multicategory" and list(figure.layout.yaxis.range) == [2.5, -0.5]
+    assert "&lt;b&gt;Pour&lt;/b&gt;" in planned.hovertext[0] and "wbs 2" in planned.hovertext[0]
     (line,) = figure.layout.shapes
     assert line.x0 == line.x1 == "2025-01-13" and line.line.dash == "dot"
-    assert planned.marker.color == STATE_COLOURS[1] and built.marker.color == STATE_COLOURS[2]
+    (label,) = figure.layout.annotations
+    assert label.text == "Update 01" and label.y == 0 and label.yanchor == "top"  # under the plot
+    # planned and actual differ in fill, hatching and outline, not in colour alone
+    assert planned.marker.color == PLANNED_BAR["fill"] and planned.marker.pattern.shape == "/"
+    assert built.marker.color == BUILT_BAR["fill"] and built.marker.pattern.shape == ""
+    assert planned.marker.line.color == PLANNED_BAR["line"]
+
+
+def test_the_legend_sits_between_the_title_and_the_date_ticks():
+    figure = figures.planned_against_built(_three_activities())
+    layout = figure.layout
+    height, top = layout.height, layout.margin.t
+    # in pixels from the top of the figure: the title's band, then the legend's (one row of
+    # about 20 px for two entries), then the date tick labels just above the plot (about
+    # 30 px for 12 px text and outside ticks)
+    title_px = (1 - layout.title.y) * height
+    legend_px = (1 - layout.legend.y) * height
+    assert layout.title.yref == layout.legend.yref == "container"
+    assert layout.title.yanchor == layout.legend.yanchor == "top"
+    assert title_px + 20 <= legend_px and legend_px + 20 <= top - 30
+    assert layout.xaxis.side == "top"
+
+
+def test_gantt_order_puts_the_path_first_then_the_rest_by_start():
+    activities = pd.DataFrame({"id": ["A", "B", "C", "D", "E"],
+                               "planned_start": pd.to_datetime(["2025-01-13", None, "2025-01-06", "2025-01-06", None]),
+                               "actual_start": pd.to_datetime([None, "2025-01-08", None, None, "2025-01-20"])})
+    # path E, A; the others by start: C and D both 01-06 (then by id), B 01-08 (its actual
+    # start, having no planned one)
+    ordered = figures.gantt_order(activities, ["E", "A"])
+    assert ordered["id"].tolist() == ["E", "A", "C", "D", "B"]
+    assert ordered["group"].tolist() == [figures.GANTT_GROUPS[0]] * 2 + [figures.GANTT_GROUPS[1]] * 3
+    assert figures.gantt_order(activities)["id"].tolist() == ["C", "D", "B", "A", "E"]
+
+
+@pytest.mark.parametrize("vision", ["normal", *_DICHROMACY])
+def test_planned_and_actual_bars_stay_apart_in_greyscale(vision):
+    # CIE L* (lightness) of the two fills, also as a reader with each dichromacy sees them
+    # (the simulation of test_element_timeline.py): a greyscale print keeps lightness only
+    matrix = np.eye(3) if vision == "normal" else _DICHROMACY[vision]
+    planned, built = (_lab(style["fill"], matrix)[0] for style in (PLANNED_BAR, BUILT_BAR))
+    # a lightness step of 40 is far above the just-noticeable difference of about 2.3
+    # (Sharma, Digital Color Imaging Handbook, 2003; recalled from memory) and reads as
+    # "light" against "dark"
+    assert planned - built > 40, (vision, planned, built)
+    assert PLANNED_BAR["pattern"] and not BUILT_BAR["pattern"]
 
 
 def test_days_by_method_groups_three_figures_per_method():

@@ -1,7 +1,7 @@
 """Take the README's screenshot of the demo report with headless Chromium.
 
     /work/venv/bin/python tools/screenshot.py [--report DIR] [--out docs/report.png]
-        [--section timeline] [--week 0.6] [--width 1280] [--height 820]
+        [--section timeline] [--week 0.6] [--width 1280] [--height 980]
 
 Without ``--report`` the demo case's full report is built first into a temporary folder
 (``reports.writer.demo_report``). The page is opened from the file system in Debian's
@@ -49,9 +49,12 @@ def take(report: Path, out: Path, *, section: str, week: float, width: int, heig
                     slider.value = String(frame);
                     slider.dispatchEvent(new Event("input", {bubbles: true}));
                 }""", frame)
-                page.wait_for_function("f => document.querySelector('.element-timeline').dataset.frame === String(f)",
-                                       arg=frame)
-                page.wait_for_timeout(1500)  # software WebGL draws the week
+                # the timeline marks the week and levels it has drawn in data-drawn
+                page.wait_for_function("""f => {
+                    const root = document.querySelector('.element-timeline');
+                    return root.dataset.frame === String(f) && root.dataset.drawn === f + ":" + root.dataset.topLevel;
+                }""", arg=frame, timeout=120_000)
+                page.wait_for_timeout(500)  # software WebGL paints on the next animation frames
             box = page.locator(f"#{section}").bounding_box()
             if box is None:
                 raise SystemExit(f"the report has no section '{section}'")
@@ -72,7 +75,7 @@ def main() -> None:
     parser.add_argument("--section", default="timeline", help="section to photograph (its id)")
     parser.add_argument("--week", type=float, default=0.6, help="how far through the project, 0 to 1")
     parser.add_argument("--width", type=int, default=1280)
-    parser.add_argument("--height", type=int, default=820)
+    parser.add_argument("--height", type=int, default=980)
     arguments = parser.parse_args()
     if not (Path(CHROMIUM).exists() or shutil.which(CHROMIUM)):
         raise SystemExit(f"Chromium is not at {CHROMIUM}: apt-get install chromium (or set CHROMIUM)")
