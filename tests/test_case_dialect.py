@@ -91,7 +91,7 @@ def accented_demo(target: Path) -> Path:
     """The demo case (UTF-8) with letters whose bytes differ between UTF-8 and cp1252."""
     for source in DEMO.rglob("*"):
         relative = source.relative_to(DEMO)
-        if relative.parts[0] == "model" or source.is_dir():
+        if relative.parts[0] in ("model", "scenario") or source.is_dir():
             continue
         destination = target / relative
         destination.parent.mkdir(parents=True, exist_ok=True)
@@ -106,7 +106,7 @@ def export_demo(demo: Path, target: Path) -> Path:
     """The case ``demo`` as a semicolon-separated, dd/mm/yyyy, cp1252 export."""
     for source in demo.rglob("*"):
         relative = source.relative_to(demo)
-        if relative.parts[0] == "model" or source.is_dir():
+        if relative.parts[0] in ("model", "scenario") or source.is_dir():
             continue
         destination = target / relative
         destination.parent.mkdir(parents=True, exist_ok=True)
