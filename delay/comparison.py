@@ -24,6 +24,7 @@ from typing import Mapping, Sequence
 import pandas as pd
 
 from .entitlement import Entitlement, assess, json_records
+from .memo import remembered
 from .model import Case
 
 __all__ = ["compare_methods", "sensitivity", "available_methods", "MethodComparison", "METHOD_TITLES"]
@@ -209,11 +210,16 @@ def _explain(methods, by_party: pd.DataFrame, headline: pd.DataFrame, results) -
 
 
 def _with_progress(case: Case, progress: str) -> Case:
-    settings = dataclasses.replace(case.settings, schedule=dataclasses.replace(case.settings.schedule,
-                                                                                   progress=progress))
-    return Case(root=case.root, settings=settings, tables={n: case.table(n) for n in case._tables},
-                snapshots=case.snapshots, asbuilt_snapshot=case.asbuilt_snapshot, corrections=case.corrections,
-                input_files=case.input_files)
+    """The case under another progress mode (one variant per case, kept with it)."""
+
+    def variant() -> Case:
+        settings = dataclasses.replace(case.settings, schedule=dataclasses.replace(case.settings.schedule,
+                                                                                       progress=progress))
+        return Case(root=case.root, settings=settings, tables={n: case.table(n) for n in case._tables},
+                    snapshots=case.snapshots, asbuilt_snapshot=case.asbuilt_snapshot, corrections=case.corrections,
+                    input_files=case.input_files)
+
+    return remembered(case, ("with progress", progress), variant)
 
 
 def sensitivity(case: Case, methods: Sequence[str] | None = None) -> pd.DataFrame:
@@ -228,6 +234,10 @@ def sensitivity(case: Case, methods: Sequence[str] | None = None) -> pd.DataFram
         ``changed`` (whether any figure differs from the case's own settings).
     """
     methods = list(methods) if methods else available_methods(case)
+    return remembered(case, ("sensitivity", tuple(methods)), lambda: _sensitivity(case, methods)).copy()
+
+
+def _sensitivity(case: Case, methods: list[str]) -> pd.DataFrame:
     progress = case.settings.schedule.progress
     concurrency = case.settings.analysis.concurrency
     other_progress = "progress_override" if progress == "retained_logic" else "retained_logic"

@@ -95,6 +95,7 @@ from .contract import completion_in_force, grants, whole_works_section
 from .cpm import NO_DAY, ScheduleResult, calendars_of, day_to_date, prepare
 from .errors import CaseError, Problem
 from .events import completion_activity
+from .memo import remembered
 from .model import Case
 
 __all__ = [
@@ -510,6 +511,15 @@ def entitlement(case: Case, method: str, result=None, concurrency: str | None = 
     """
     if result is None:
         result = _run_method(case, method)
+    rule = concurrency or case.settings.analysis.concurrency
+    found = remembered(case, ("entitlement", method, rule, id(result)),
+                       lambda: (result, _entitlement(case, method, result, concurrency)))
+    if found[0] is result:  # the same result object, not another that took its id
+        return found[1]
+    return _entitlement(case, method, result, concurrency)
+
+
+def _entitlement(case: Case, method: str, result, concurrency: str | None) -> Entitlement:
     table_of = causation(case, method, result, concurrency)
     rule = table_of.concurrency
     table = table_of.table

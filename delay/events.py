@@ -60,6 +60,7 @@ __all__ = [
     "unexplained_risk",
     "activity_risk",
     "match_events",
+    "events_naming",
     "attributions",
     "completion_activity",
 ]
@@ -98,6 +99,12 @@ def event_activities(case: Case) -> dict[str, set[str]]:
     dict
         Event id to a set of activity ids (every event of the register has an entry).
     """
+    from .memo import remembered
+
+    return remembered(case, ("event activities",), lambda: _event_activities(case))
+
+
+def _event_activities(case: Case) -> dict[str, set[str]]:
     events = case.events
     fragnet_links = case.fragnet_links
     fragnet_ids = set(case.fragnets["id"])
@@ -147,11 +154,18 @@ def unexplained_risk(case: Case) -> str:
 
 def activity_risk(snapshot: Snapshot, ids: Iterable[str]) -> list[str]:
     """Each activity's ``risk`` column in a snapshot (``""`` when blank, absent or unknown)."""
-    activities = snapshot.activities
-    if "risk" not in activities:
-        return ["" for _ in ids]
-    risk = dict(zip(activities["id"], activities["risk"].fillna("").astype(str).str.strip()))
-    return [risk.get(a, "") if risk.get(a, "") in PARTIES else "" for a in ids]
+    ids = list(ids)
+    risk = snapshot.derived.get("risk_by_id")
+    if risk is None:  # looked up once per snapshot
+        activities = snapshot.activities_table
+        values = (activities["risk"].fillna("").astype(str).str.strip() if "risk" in activities
+                  else pd.Series([""] * len(activities)))
+        values = values.where(values.isin(PARTIES), "")
+        risk = snapshot.derived["risk_by_id"] = pd.Series(values.to_numpy(dtype=object),
+                                                          index=activities["id"].to_numpy(dtype=object))
+    if not ids:
+        return []
+    return list(risk.reindex(ids).fillna("").to_numpy(dtype=object))
 
 
 def _overlapping(case: Case, first: dt.date | None, last: dt.date | None) -> np.ndarray:
@@ -221,6 +235,16 @@ def match_events(case: Case, activities: Sequence[str], first: dt.date | None, l
             party, basis, parties = default, "unexplained", [default]
         rows.append({"activity": activity, "events": matched, "parties": parties, "party": party, "basis": basis})
     return pd.DataFrame(rows, columns=MATCH_COLUMNS)
+
+
+def events_naming(case: Case, activities: Iterable[str], first: dt.date | None, last: dt.date | None) -> list[str]:
+    """The events (register order) whose period overlaps ``first .. last`` (both included)
+    and that name any of ``activities``: the causes of a change to those activities, such
+    as a window's revision of their durations or logic."""
+    wanted = set(activities)
+    named = event_activities(case)
+    live = _overlapping(case, first, last)
+    return [e for e, alive in zip(case.events["id"], live) if alive and named.get(e, set()) & wanted]
 
 
 def attributions(case: Case) -> pd.DataFrame:

@@ -303,14 +303,18 @@ def trace_charges(after: ScheduleResult, before: ScheduleResult, late_before: np
     for v, after_v in zip(chain[:-1], chain[1:]):
         out[v] = passed(v, parent[after_v][1])
 
+    changes: dict[int, int | None] = {}
+
     def own_change(v: int) -> int | None:
         """The work days ``v`` itself added (its gap behind its driving predecessor and its
         duration, against *before*); ``None`` when *before* cannot tell."""
-        chosen = parent.get(v)
-        if chosen is None or found.before_number[v] < 0:
-            return None
-        gap = _gap_change(after, before, chosen[1], found.before_number)
-        return None if gap is None else gap + int(found.span_change[v])
+        if v not in changes:
+            chosen = parent.get(v)
+            gap = None
+            if chosen is not None and found.before_number[v] >= 0:
+                gap = _gap_change(after, before, chosen[1], found.before_number)
+            changes[v] = None if gap is None else gap + int(found.span_change[v])
+        return changes[v]
 
     def inherited(v: int) -> bool:
         return own_change(v) == 0

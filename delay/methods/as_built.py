@@ -55,6 +55,7 @@ import pandas as pd
 from ..cpm import NO_DAY, calendars_of, day_to_date, prepare
 from ..errors import CaseError, Problem, ReconciliationError
 from ..events import completion_activity
+from ..memo import remembered
 from ..ledger import ledger_number, logic_late_finish, split_days, trace_charges
 from ..output import json_date, json_int
 
@@ -210,6 +211,10 @@ def compare(case, period: str = "M") -> AsBuiltResult:
     if case.asbuilt_snapshot is None:
         raise CaseError(Problem(file="asbuilt.csv", message="the case has no as-built record",
                                 fix="add asbuilt.csv with the actual dates of every activity"))
+    return remembered(case, ("asbuilt", period), lambda: _compare(case, period))
+
+
+def _compare(case, period: str) -> AsBuiltResult:
     calendars = calendars_of(case)
     planned = prepare(case, case.baseline, calendars=calendars).run()
     built = prepare(case, case.asbuilt_snapshot, calendars=calendars).run()

@@ -99,6 +99,7 @@ import pandas as pd
 from ..events import asbuilt_activities, completion_activity
 from ..cpm import FINISH_MILESTONE, NO_DAY, ScheduleResult, calendars_of, prepare
 from ..errors import CaseError, Problem
+from ..memo import remembered
 from ..model import PARTIES, Case
 from ..output import json_date, json_int
 
@@ -562,6 +563,10 @@ def analyse(case: Case) -> CollapsedResult:
     if case.asbuilt_snapshot is None:
         raise CaseError(Problem(file="asbuilt.csv", message="the case has no as-built record",
                                 fix="add asbuilt.csv with the actual dates of every activity"))
+    return remembered(case, ("collapsed",), lambda: _analyse(case))
+
+
+def _analyse(case: Case) -> CollapsedResult:
     built = _AsBuiltModel(case)
     net = built.network
     result = built.result

@@ -57,6 +57,7 @@ import pandas as pd
 from ..cpm import COMPLETE, NO_DAY, ScheduleModel, ScheduleResult, calendars_of, day_to_date, prepare
 from ..errors import CaseError, Problem, ReconciliationError
 from ..events import completion_activity, split_ids
+from ..memo import remembered
 from ..model import PARTIES, Case, Snapshot
 
 __all__ = ["analyse", "ImpactedResult", "ImpactedRun", "event_changes", "order_events", "apply_event",
@@ -458,6 +459,11 @@ def analyse(case: Case, base: str = "baseline", events: Sequence[str] | None = N
         raise CaseError(Problem(file="snapshots/", message=f"no snapshot '{base}'",
                                 fix="name a folder under snapshots/ or a label")) from None
     register = order_events(case, events, order)
+    key = ("impacted", snapshot.folder, tuple(register["id"]), order)
+    return remembered(case, key, lambda: _analyse(case, snapshot, register, order))
+
+
+def _analyse(case: Case, snapshot: Snapshot, register: pd.DataFrame, order: str) -> ImpactedResult:
     model = prepare(case, snapshot, calendars=calendars_of(case))
     targets = targets_of(case)
     frames, base_full, final_full, _ = run_events(case, snapshot, model, register, snapshot.folder, targets)

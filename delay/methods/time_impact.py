@@ -49,6 +49,7 @@ import pandas as pd
 from ..cpm import NO_DAY, calendars_of, day_to_date, prepare
 from ..errors import ReconciliationError
 from ..events import split_ids
+from ..memo import remembered
 from ..model import Case, Snapshot
 from .impacted import EVENT_COLUMNS, actual_finishes, event_changes, order_events, run_events, targets_of
 
@@ -233,6 +234,10 @@ def analyse(case: Case) -> TimeImpactResult:
     AACE RP 29R-03 (2011), MIP 3.7; SCL Delay and Disruption Protocol, 2nd edition (2017),
     Part B, time impact analysis.
     """
+    return remembered(case, ("tia",), lambda: _analyse(case))
+
+
+def _analyse(case: Case) -> TimeImpactResult:
     register = order_events(case)
     register = register.assign(_current=current_programmes(case, register))
     snapshots = list(case.snapshots)

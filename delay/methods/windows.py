@@ -73,11 +73,13 @@ import numpy as np
 import pandas as pd
 
 from ..calendars import CalendarSet
-from ..cpm import COMPLETE, ScheduleResult, calendars_of, day_to_date, prepare
+from ..cpm import COMPLETE, NO_DAY, ScheduleModel, ScheduleResult, calendars_of, day_to_date, prepare
+from ..network import build_network
 from ..errors import CaseError, Problem, ReconciliationError
-from ..events import CONCURRENT, activity_risk, attributions, completion_activity, match_events, split_ids
+from ..events import CONCURRENT, activity_risk, attributions, completion_activity, events_naming, match_events
 from ..ledger import CHARGE_COLUMNS as TRACE_COLUMNS
 from ..ledger import ledger_number, logic_late_finish, split_days, trace_charges
+from ..memo import remembered
 from ..model import PARTIES, Case, Snapshot
 
 __all__ = ["analyse", "Window", "WindowsResult", "REVISION_KINDS", "half_step_snapshot", "CHARGE_COLUMNS",
@@ -86,8 +88,6 @@ __all__ = ["analyse", "Window", "WindowsResult", "REVISION_KINDS", "half_step_sn
 #: The order in which a window's revisions are applied and charged.
 REVISION_KINDS = ("deletions", "additions", "durations", "logic", "calendars", "constraints")
 
-_DURATION_COLUMNS = ("duration", "remaining", "kind")
-_CONSTRAINT_COLUMNS = ("constraint", "constraint_date")
 _PROGRESS_COLUMNS = ("actual_start", "actual_finish", "remaining")
 
 #: Columns of a window's progress charges.
@@ -319,6 +319,19 @@ def half_step_snapshot(start: Snapshot, end: Snapshot) -> Snapshot:
                     end.data_date, activities, start.links)
 
 
+def _half_step_model(start: ScheduleModel, end: ScheduleModel) -> ScheduleModel:
+    """:func:`half_step_snapshot` on the engine's arrays: S's compiled programme with E's
+    data date and E's progress (actual dates, remaining durations) for the activities E
+    shows started; nothing is compiled again."""
+    in_end = end.network.index_of(start.network.ids)
+    safe = np.maximum(in_end, 0)
+    started = (in_end >= 0) & ((end.actual_start[safe] != NO_DAY) | (end.actual_finish[safe] != NO_DAY))
+    arrays = {name: np.where(started, getattr(end, name)[safe], getattr(start, name))
+              for name in ("actual_start", "actual_finish", "remaining")}
+    return dataclasses.replace(start, data_day=end.data_day, label=f"{start.label} progressed to {end.label}",
+                               **arrays)
+
+
 class _Scheduler:
     """Schedules snapshots of one case with shared calendars, each boundary once."""
 
@@ -343,62 +356,118 @@ def _finishes(result: ScheduleResult, targets: Sequence[str]) -> np.ndarray:
     return np.where(where >= 0, result.finish_day[np.maximum(where, 0)], -1)
 
 
-def _revision_steps(scheduler: _Scheduler, half: Snapshot, end: Snapshot, end_result: ScheduleResult,
+_ARRAYS = ("names", "calendar", "duration", "remaining", "actual_start", "actual_finish", "kind", "constraint",
+           "constraint_day", "start_bound")
+#: The model arrays each revision kind takes from E.
+_KIND_ARRAYS = {"durations": ("duration", "remaining", "kind"), "calendars": ("calendar",),
+                "constraints": ("constraint", "constraint_day")}
+
+
+class _Programme:
+    """A programme as the engine's arrays, keyed by activity id, with its links by ids: what
+    the revision steps change one kind at a time, with no tables rebuilt per step."""
+
+    def __init__(self, model: ScheduleModel):
+        self.template = model
+        net = model.network
+        self.ids = np.asarray(net.ids, dtype=object)
+        self.arrays = {name: np.asarray(getattr(model, name)) for name in _ARRAYS}
+        order = model.link_order if model.link_order is not None else np.arange(net.link_count)
+        rows = np.argsort(order, kind="stable")  # links in their input order
+        self.links = (net.ids[net.pred][rows], net.ids[net.succ][rows], net.link_type[rows], net.lag[rows])
+
+    def keep(self, mask: np.ndarray) -> None:
+        self.ids = self.ids[mask]
+        self.arrays = {name: values[mask] for name, values in self.arrays.items()}
+        present = pd.Index(self.ids)
+        kept = (present.get_indexer(self.links[0]) >= 0) & (present.get_indexer(self.links[1]) >= 0)
+        self.links = tuple(values[kept] for values in self.links)
+
+    def add(self, other: "_Programme", rows: np.ndarray) -> None:
+        self.ids = np.concatenate([self.ids, other.ids[rows]])
+        self.arrays = {name: np.concatenate([values, other.arrays[name][rows]]) for name, values in self.arrays.items()}
+        added = pd.Index(other.ids[rows])
+        present = pd.Index(self.ids)
+        touching = (added.get_indexer(other.links[0]) >= 0) | (added.get_indexer(other.links[1]) >= 0)
+        touching &= (present.get_indexer(other.links[0]) >= 0) & (present.get_indexer(other.links[1]) >= 0)
+        self.links = tuple(np.concatenate([mine, theirs[touching]]) for mine, theirs in zip(self.links, other.links))
+
+    def model(self) -> ScheduleModel:
+        present = pd.Index(self.ids)
+        pred, succ = present.get_indexer(self.links[0]), present.get_indexer(self.links[1])
+        network = build_network(self.ids, pred, succ, self.links[2], self.links[3])
+        return dataclasses.replace(self.template, network=network, link_order=np.arange(pred.size), **self.arrays)
+
+
+def _differs(a: np.ndarray, b: np.ndarray) -> np.ndarray:
+    """Element-wise ``a != b``, with NaN equal to NaN."""
+    if a.dtype.kind == "f" or b.dtype.kind == "f":
+        return ~((a == b) | (np.isnan(a.astype(float)) & np.isnan(b.astype(float))))
+    return a != b
+
+
+def _changed_links(before, after, ids: pd.Index) -> list[str]:
+    """``pred>succ`` of every link that is in one of two link lists and not in the other
+    (same ends, type and lag), each once, sorted; ``ids`` holds every activity of both."""
+    width = np.int64(len(ids) + 1)
+
+    def keys(links) -> np.ndarray:
+        pred, succ = ids.get_indexer(links[0]).astype(np.int64), ids.get_indexer(links[1]).astype(np.int64)
+        return ((pred * width + succ) * 4 + np.asarray(links[2], dtype=np.int64)) * 200_003 + (
+            np.asarray(links[3], dtype=np.int64) + 100_001)
+
+    if all(len(b) == len(a) and np.array_equal(np.asarray(b), np.asarray(a)) for b, a in zip(before, after)):
+        return []  # the same links in the same order: nothing to compare
+    moved = np.setxor1d(keys(before), keys(after))
+    ends = moved // 200_003 // 4
+    return sorted({f"{ids[p]}>{ids[q]}" for p, q in zip(ends // width, ends % width)})
+
+
+def _revision_steps(scheduler: _Scheduler, half_result: ScheduleResult, end_result: ScheduleResult,
                     targets: Sequence[str]) -> list[tuple[str, list[str], np.ndarray]]:
-    """E's changes applied to H one kind at a time: ``(kind, changed, finishes of the
-    targets after it)`` per kind that changed something, then ``other`` when the steps do
-    not end exactly at E."""
-    activities = half.activities
-    links = half.links
-    end_acts = end.activities
-    end_links = end.links
-    end_ids = set(end_acts["id"])
-    half_ids = set(activities["id"])
+    """E's changes applied to H one kind at a time, on the engine's arrays: ``(kind,
+    changed, finishes of the targets after it)`` per kind that changed something, then
+    ``other`` when the steps do not end exactly at E."""
+    current, end = _Programme(half_result.model), _Programme(end_result.model)
     steps: list[tuple[str, list[str], np.ndarray]] = []
 
-    def step(kind: str, changed: list[str], new_acts: pd.DataFrame, new_links: pd.DataFrame):
-        nonlocal activities, links
-        activities, links = new_acts.reset_index(drop=True), new_links.reset_index(drop=True)
-        if changed:
-            result = scheduler.run(_variant(end, kind, f"{end.label}: {kind} applied", end.data_date, activities,
-                                            links))
-            steps.append((kind, sorted(changed), _finishes(result, targets)))
+    def step(kind: str, changed) -> None:
+        if len(changed):
+            steps.append((kind, sorted(str(c) for c in changed), _finishes_on(current.model(), targets)))
 
-    deleted = sorted(half_ids - end_ids)
-    keep = activities["id"].isin(end_ids)
-    step("deletions", deleted, activities[keep], links[links["pred"].isin(end_ids) & links["succ"].isin(end_ids)])
-    added = sorted(end_ids - half_ids)
-    new_rows = end_acts[end_acts["id"].isin(added)]
-    present = set(activities["id"]) | set(added)
-    touching = end_links[(end_links["pred"].isin(added) | end_links["succ"].isin(added))
-                         & end_links["pred"].isin(present) & end_links["succ"].isin(present)]
-    step("additions", added, pd.concat([activities, new_rows], ignore_index=True),
-         pd.concat([links, touching], ignore_index=True))
+    in_end = pd.Index(end.ids).get_indexer(current.ids)
+    deleted = current.ids[in_end < 0]
+    current.keep(in_end >= 0)
+    step("deletions", deleted)
+    added = np.flatnonzero(pd.Index(current.ids).get_indexer(end.ids) < 0)
+    current.add(end, added)
+    step("additions", end.ids[added])
+    position = pd.Index(end.ids).get_indexer(current.ids)  # every current activity is in E now
 
-    def reassign(columns, kind):
-        current = activities.set_index("id")
-        target = end_acts.set_index("id").reindex(current.index)
-        changed = []
-        for column in columns:
-            a, b = current[column], target[column]
-            differs = ~((a == b) | (a.isna() & b.isna())).to_numpy()
-            changed += list(current.index[differs])
-            current[column] = b.to_numpy() if len(b) else current[column]
-        step(kind, sorted(set(changed)), current.reset_index(), links)
+    def reassign(kind: str) -> None:
+        changed = np.zeros(current.ids.size, dtype=bool)
+        for name in _KIND_ARRAYS[kind]:
+            theirs = end.arrays[name][position]
+            changed |= _differs(current.arrays[name], theirs)
+            current.arrays[name] = theirs
+        step(kind, current.ids[changed])
 
-    reassign(_DURATION_COLUMNS, "durations")
-
-    def link_keys(frame):
-        return set(zip(*(frame[c].to_numpy(dtype=object) for c in ("pred", "succ", "type", "lag"))))
-
-    changed_links = sorted({f"{p}>{s}" for p, s, _, _ in link_keys(links) ^ link_keys(end_links)})
-    step("logic", changed_links, activities, end_links)
-    reassign(("calendar",), "calendars")
-    reassign(_CONSTRAINT_COLUMNS, "constraints")
+    reassign("durations")
+    moved = _changed_links(current.links, end.links, end_result.model.network.index)
+    current.links = end.links
+    step("logic", moved)
+    reassign("calendars")
+    reassign("constraints")
     final = _finishes(end_result, targets)
     if not steps or not np.array_equal(steps[-1][2], final):
         steps.append(("other", [], final))
     return steps
+
+
+def _finishes_on(model: ScheduleModel, targets: Sequence[str]) -> np.ndarray:
+    """Finish day numbers of the targets in a model's forward pass; ``-1`` for one not in it."""
+    where = model.network.index_of(list(targets))
+    return np.where(where >= 0, model.finish_days()[np.maximum(where, 0)], -1)
 
 
 def _risk_lookup(snapshots: Sequence[Snapshot], ids: Sequence[str]) -> list[str]:
@@ -451,14 +520,12 @@ def _revision_frame(case: Case, steps, work_days: np.ndarray, days: np.ndarray, 
                     overrides: pd.DataFrame) -> pd.DataFrame:
     rows = []
     mine = overrides[overrides["folder"] == end.folder] if len(overrides) else overrides
+    party_of = dict(zip(case.events["id"], case.events["party"]))
     for (kind, changed, finish), work, calendar_days in zip(steps, work_days, days):
-        ids = [part.strip() for item in changed for part in str(item).split(">") if part.strip()]
-        ids = list(dict.fromkeys(ids))
-        events: list[str] = []
-        if ids:
-            for listed in _causes(case, ids, start, end)["events"]:
-                events += [e for e in listed if e not in events]
-        party_of = dict(zip(case.events["id"], case.events["party"]))
+        if not int(work) and not int(calendar_days):
+            continue  # a kind that moved nothing for this target is not listed
+        ids = list(dict.fromkeys(part.strip() for item in changed for part in str(item).split(">") if part.strip()))
+        events = events_naming(case, ids, start.data_date, end.data_date) if ids else []
         parties = [p for p in PARTIES if p in {party_of[e] for e in events}]
         basis = "event" if parties else "unexplained"
         if not parties:
@@ -513,7 +580,8 @@ def _window(case: Case, number: int, start: _Boundary, end: _Boundary, target: s
     ledger = ledger_number(s_result, target)
     position = {name: _ledger_position(s_result, ledger, day)
                 for name, day in (("s", finish_s), ("h", finish_h), ("e", finish_e))}
-    stop = np.isin(traced.ids, start.snapshot.activities["id"][s_result.status == COMPLETE].to_numpy())
+    in_start = s_result.model.network.index_of(traced.ids)  # complete at S: where the trace stops
+    stop = (in_start >= 0) & (s_result.status[np.maximum(in_start, 0)] == COMPLETE)
     traced_charges = trace_charges(traced, s_result, late, target, stop, ledger)
     counted = traced_charges["counted"].astype(bool).to_numpy() if len(traced_charges) else np.zeros(0, bool)
     progress_work = position["h"] - position["s"]
@@ -544,7 +612,7 @@ def _window(case: Case, number: int, start: _Boundary, end: _Boundary, target: s
     if int(days.sum()) != movement:
         raise ReconciliationError(f"window {number}, {target}", {"calendar days charged": int(days.sum()),
                                                                  "movement": movement})
-    deleted = tuple(sorted(set(start.snapshot.activities["id"]) - set(end.snapshot.activities["id"])))
+    deleted = tuple(sorted(s_result.model.network.index.difference(e_result.model.network.index)))
     return Window(
         number=number, start=start.snapshot.folder, end=end.snapshot.folder, start_label=start.snapshot.label,
         end_label=end.snapshot.label, start_data_date=start.snapshot.data_date,
@@ -603,6 +671,11 @@ def analyse(case: Case, windows: Sequence[str] | None = None, half_step: bool | 
     """
     if half_step is None:
         half_step = case.settings.analysis.half_step
+    key = ("windows", tuple(windows) if windows else None, bool(half_step))
+    return remembered(case, key, lambda: _analyse(case, windows, bool(half_step)))
+
+
+def _analyse(case: Case, windows: Sequence[str] | None, half_step: bool) -> WindowsResult:
     boundaries = _snapshots(case, windows)
     if len(boundaries) < 2:
         raise CaseError(Problem(file="snapshots/", message="a windows analysis needs at least two snapshots",
@@ -617,9 +690,8 @@ def analyse(case: Case, windows: Sequence[str] | None = None, half_step: bool | 
     per_target: dict[str, list[Window]] = {t: [] for t in targets}
     for number, (start, end) in enumerate(zip(marks[:-1], marks[1:]), start=1):
         if half_step:
-            half = half_step_snapshot(start.snapshot, end.snapshot)
-            traced = scheduler.run(half)
-            steps = _revision_steps(scheduler, half, end.snapshot, end.result, targets)
+            traced = _half_step_model(start.result.model, end.result.model).run()
+            steps = _revision_steps(scheduler, traced, end.result, targets)
         else:
             traced = end.result
             steps = []
