@@ -327,11 +327,21 @@ class ScheduleModel:
         """Completion date from the forward pass alone (see :meth:`completion_day`)."""
         return _date(self.completion_day())
 
+    def work_dates(self) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+        """``(status, start day, finish day)`` of every activity from the forward pass alone:
+        the status code, the day its work starts (the actual start once started) and the day
+        it finishes (day numbers, network order). Computed once per model."""
+        found = self.__dict__.get("_work_dates")
+        if found is None:  # a frozen model: its dates never change
+            found = self.__dict__["_work_dates"] = _run(self, forward_only="dates")
+        return found
+
     def finish_days(self) -> np.ndarray:
         """Every activity's finish date (day numbers, network order) from the forward pass
         alone: what a what-if that asks when some activities (a section's milestone, the
-        project's completion activity) would finish needs."""
-        return _run(self, forward_only="finish")
+        project's completion activity) would finish needs. Computed once per model, with
+        :meth:`work_dates`."""
+        return self.work_dates()[2]
 
 
 def _run(model: ScheduleModel, forward_only: bool = False):
@@ -477,8 +487,9 @@ def _run(model: ScheduleModel, forward_only: bool = False):
 
     # -- completion ---------------------------------------------------------------------------
     completion_day = int(finish_day.max()) if n else model.data_day
-    if forward_only == "finish":
-        return finish_day
+    if forward_only == "dates":
+        start_day = np.where(has_start, model.actual_start, cals.day_of(cal, start_read))
+        return status, start_day, finish_day
     if forward_only:
         return completion_day
 

@@ -49,12 +49,12 @@ from __future__ import annotations
 
 import datetime as dt
 from dataclasses import dataclass, field
-from typing import Callable, Sequence
+from typing import Sequence
 
 import numpy as np
 import pandas as pd
 
-from ..cpm import COMPLETE, NO_DAY, ScheduleModel, ScheduleResult, calendars_of, day_to_date, prepare
+from ..cpm import COMPLETE, NO_DAY, ScheduleModel, calendars_of, day_to_date, prepare
 from ..errors import CaseError, Problem, ReconciliationError
 from ..events import completion_activity, split_ids
 from ..memo import remembered
@@ -100,22 +100,21 @@ def order_events(case: Case, events: Sequence[str] | None = None, order: str = "
     return register.drop(columns=["_row", "_listed"]).reset_index(drop=True)
 
 
-def _hold_effects(event: pd.Series, named: list[str], schedule: ScheduleResult) -> tuple[list[str], list[str]]:
+def _hold_effects(event: pd.Series, named: list[str], model: ScheduleModel) -> tuple[list[str], list[str]]:
     """Which named activities a hold applies to (every one not complete), and a sentence
     for each one that has no work planned in its period."""
     first = np.datetime64(pd.Timestamp(event["start"]).date(), "D").astype(np.int64)
     last = np.datetime64(pd.Timestamp(event["finish"]).date(), "D").astype(np.int64)
-    where = schedule.model.network.index_of(named)
-    start = schedule.day_array("early_start")
-    finish = schedule.day_array("early_finish")
-    data_day = schedule.model.data_day
+    where = model.network.index_of(named)
+    status, start, finish = model.work_dates()
+    data_day = model.data_day
     held, notes = [], []
     for activity, k in zip(named, where):
-        if schedule.status[k] == COMPLETE:
+        if status[k] == COMPLETE:
             notes.append(f"{activity}: no effect on this programme: the work was complete before the hold")
             continue
         held.append(activity)
-        begins = max(int(start[k]), data_day) if schedule.status[k] != 0 else int(start[k])
+        begins = max(int(start[k]), data_day) if status[k] != 0 else int(start[k])
         if int(finish[k]) < first:
             notes.append(f"{activity}: no effect on this programme: the work is planned to finish before the hold")
         elif begins > last:
@@ -123,8 +122,7 @@ def _hold_effects(event: pd.Series, named: list[str], schedule: ScheduleResult) 
     return held, notes
 
 
-def event_changes(case: Case, event: pd.Series, present: set[str],
-                  schedule: ScheduleResult | Callable[[], ScheduleResult] | None = None) -> dict:
+def event_changes(case: Case, event: pd.Series, present: set[str], model: ScheduleModel | None = None) -> dict:
     """The ``what_if`` arguments that model one event in a programme whose activity ids are
     ``present``.
 
@@ -134,9 +132,9 @@ def event_changes(case: Case, event: pd.Series, present: set[str],
         The case and one row of its event register.
     present:
         The activity ids of the programme (fragnet activities already inserted included).
-    schedule:
-        The programme's schedule before the event (or a function giving it): a hold
-        needs it, to tell which named activities have work in its period.
+    model:
+        The programme before the event: a hold needs it, to tell which named activities
+        have work in its period (and from which data date).
 
     Returns
     -------
@@ -155,41 +153,49 @@ def event_changes(case: Case, event: pd.Series, present: set[str],
         changes["extend"] = {a: days for a in named}
     elif impact == "hold":
         if named and pd.notna(event["start"]) and pd.notna(event["finish"]):
-            found = schedule() if callable(schedule) else schedule
-            held, notes = _hold_effects(event, named, found) if found is not None else (named, [])
+            held, notes = _hold_effects(event, named, model) if model is not None else (named, [])
             first, last = pd.Timestamp(event["start"]).date(), pd.Timestamp(event["finish"]).date()
-            if found is not None:  # the days before the data date are history, not a hold
-                first = max(first, day_to_date(found.model.data_day))
+            if model is not None:  # the days before the data date are history, not a hold
+                first = max(first, day_to_date(model.data_day))
             if first <= last:
                 changes["hold"] = {a: [(first, last)] for a in held}
             changes["notes"] = notes
     elif impact == "fragnet":
-        fragnet = case.fragnets[case.fragnets["event"] == event["id"]]
-        links = case.fragnet_links[case.fragnet_links["event"] == event["id"]]
+        fragnet, links = _fragnets(case).get(event["id"], (None, None))
+        if fragnet is None:
+            return changes
         ids = set(fragnet["id"])
-        usable = links[(links["pred"].isin(ids | present)) & (links["succ"].isin(ids | present))]
-        missing += sorted((set(links["pred"]) | set(links["succ"])) - ids - present)
-        has_pred = set(usable["succ"][usable["succ"].isin(ids)])
+        known = [(p in ids or p in present) and (q in ids or q in present) for p, q in zip(links["pred"], links["succ"])]
+        usable = links[np.asarray(known, dtype=bool)] if len(links) else links
+        missing += sorted({a for a in (*links["pred"], *links["succ"]) if a not in ids and a not in present})
+        has_pred = {q for q in usable["succ"] if q in ids}
         start = pd.Timestamp(event["start"]).date() if pd.notna(event["start"]) else None
-        added = pd.DataFrame({
-            "id": fragnet["id"].to_numpy(), "name": fragnet["name"].to_numpy(),
-            "duration": fragnet["duration"].to_numpy(), "calendar": fragnet["calendar"].to_numpy(),
-            "start_no_earlier": [None if i in has_pred else start for i in fragnet["id"]],
-        })
-        changes["add_activities"] = added
-        changes["add_links"] = usable[["pred", "succ", "type", "lag"]].reset_index(drop=True)
+        changes["add_activities"] = fragnet.assign(
+            start_no_earlier=[None if i in has_pred else start for i in fragnet["id"]])
+        changes["add_links"] = usable.reset_index(drop=True)
         changes["touches"] = named
     return changes
 
 
-def apply_event(model: ScheduleModel, case: Case, event: pd.Series, present: set[str],
-                schedule: ScheduleResult | Callable[[], ScheduleResult] | None = None
+def _fragnets(case: Case) -> dict[str, tuple[pd.DataFrame, pd.DataFrame]]:
+    """Each fragnet event's activities (``id, name, duration, calendar``) and links
+    (``pred, succ, type, lag``), grouped once per case."""
+    def group() -> dict[str, tuple[pd.DataFrame, pd.DataFrame]]:
+        activities = case.fragnets[["event", "id", "name", "duration", "calendar"]]
+        links = case.fragnet_links[["event", "pred", "succ", "type", "lag"]]
+        by_event = {e: rows.drop(columns="event").reset_index(drop=True) for e, rows in activities.groupby("event")}
+        linked = {e: rows.drop(columns="event").reset_index(drop=True) for e, rows in links.groupby("event")}
+        empty = links.drop(columns="event").iloc[:0]
+        return {e: (rows, linked.get(e, empty)) for e, rows in by_event.items()}
+
+    return remembered(case, ("fragnets by event",), group)
+
+
+def apply_event(model: ScheduleModel, case: Case, event: pd.Series, present: set[str]
                 ) -> tuple[ScheduleModel, list[str], list[str]]:
     """``model`` with one event inserted, the named activities it could not find, and what
     the event leaves alone, in words (see :func:`event_changes`)."""
-    if schedule is None and event["impact"] == "hold":
-        schedule = model.run
-    changes = event_changes(case, event, present, schedule)
+    changes = event_changes(case, event, present, model)
     missing = changes.pop("missing")
     notes = changes.pop("notes")
     changes.pop("touches", None)
@@ -341,15 +347,8 @@ def _insert(case: Case, base: Snapshot, model: ScheduleModel, register: pd.DataF
     present = set(base.activities["id"])
     alone, cumulative_finish, applied, effect = [], [], [], []
     cumulative = model
-    base_schedule: list[ScheduleResult] = []
-
-    def base_run() -> ScheduleResult:
-        if not base_schedule:
-            base_schedule.append(model.run())
-        return base_schedule[0]
-
     for _, event in register.iterrows():
-        alone_model, missing, notes = apply_event(model, case, event, present, base_run)
+        alone_model, missing, notes = apply_event(model, case, event, present)
         alone.append(_finish_of(alone_model.finish_days(), where))
         added = {str(i) for i in cumulative.network.ids[model.network.size:]}
         cumulative, _, cumulative_notes = apply_event(cumulative, case, event, present | added)
