@@ -117,8 +117,18 @@ def run_all(case: Case) -> dict[str, Any]:
         Ready for ``json.dumps``: ``project``, ``contract_completion_in_force``,
         ``snapshots`` (a :func:`check_snapshot` object per snapshot: baseline, updates by
         data date, then the as-built snapshot when there is one) and ``comparisons`` (the
-        :meth:`Comparison.to_json` of each snapshot against the one before it).
+        :meth:`Comparison.to_json` of each snapshot against the one before it). Computed
+        once per loaded case (``delay demo`` and the report both ask for it); each call
+        hands out its own copy.
     """
+    import copy
+
+    from ..memo import remembered
+
+    return copy.deepcopy(remembered(case, ("checks",), lambda: _run_all(case)))
+
+
+def _run_all(case: Case) -> dict[str, Any]:
     snapshots = ordered_snapshots(case)
     return {
         "project": case.settings.project.name,

@@ -646,6 +646,22 @@ def export_schedule(
 
 
 # -- demo ----------------------------------------------------------------------------------------------
+def _only_the_baseline(root: Path):
+    """A ``shutil.copytree`` filter that copies of a case what its baseline needs, and no
+    more: case.toml, the calendars and the baseline snapshot (the round trip of the
+    baseline's schedule reads nothing else, and the other files name later programmes)."""
+    keep = {"case.toml", "calendars.csv", "calendar_exceptions.csv", "snapshots"}
+
+    def ignore(folder: str, names: list[str]) -> set[str]:
+        if Path(folder) == root:
+            return {name for name in names if name not in keep}
+        if Path(folder) == root / "snapshots":
+            return {name for name in names if name != "baseline"}
+        return set()
+
+    return ignore
+
+
 def demo_outputs(case: Case, out_folder: str | Path) -> list[Path]:
     """The IFC part of ``delay demo``: model import, element checks, schedule export and
     its round trip, on a copy of the case (the case itself is never changed).
@@ -699,8 +715,8 @@ def demo_outputs(case: Case, out_folder: str | Path) -> list[Path]:
         written += [out / "elements_from_model.csv", out / "elements_findings.csv", out / "element_checks.json",
                     exported.path]
 
-        again = Path(folder) / "again"
-        shutil.copytree(root, again, ignore=shutil.ignore_patterns("model", "__pycache__", "*.py"))
+        again = Path(folder) / "again"  # the round trip needs the baseline only
+        shutil.copytree(root, again, ignore=_only_the_baseline(root))
         read_back = import_work_schedule(exported.path, again, "baseline", replace=True)
         first = schedule(loaded, "baseline").activities.set_index("id")
         second = schedule(load_case(again), "baseline").activities.set_index("id")
