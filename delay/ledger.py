@@ -137,21 +137,16 @@ class Levels:
     span_change: np.ndarray
 
 
-def _ledger_index(result: ScheduleResult, ledger: int, days: np.ndarray) -> np.ndarray:
+def _ledger_index(result: ScheduleResult, ledger: int, days: np.ndarray, start: bool = False) -> np.ndarray:
+    """Work-day indices on the ledger calendar: of the last work day on or before each day
+    (a finish), or with ``start`` of the first on or after it; 0 for :data:`NO_DAY`."""
     days = np.asarray(days, dtype=np.int64)
     out = np.zeros(days.size, dtype=np.int64)
     known = days != NO_DAY
     if known.any():
-        out[known] = result.model.calendars.finish_index_days(np.full(int(known.sum()), ledger), days[known])
-    return out
-
-
-def _ledger_start(result: ScheduleResult, ledger: int, days: np.ndarray) -> np.ndarray:
-    days = np.asarray(days, dtype=np.int64)
-    out = np.zeros(days.size, dtype=np.int64)
-    known = days != NO_DAY
-    if known.any():
-        out[known] = result.model.calendars.start_index_days(np.full(int(known.sum()), ledger), days[known])
+        cals = result.model.calendars
+        convert = cals.start_index_days if start else cals.finish_index_days
+        out[known] = convert(np.full(int(known.sum()), ledger), days[known])
     return out
 
 
@@ -176,10 +171,9 @@ def _level(after: ScheduleResult, ledger: int, now: np.ndarray, late: np.ndarray
     """``max(0, now - late) + min(0, now - early)`` in ledger work days; NaN without a late
     date."""
     known = late != NO_DAY
-    convert = _ledger_start if start else _ledger_index
-    here = convert(after, ledger, now)
-    past_late = here - convert(after, ledger, late)
-    past_early = here - convert(after, ledger, early)
+    here = _ledger_index(after, ledger, now, start)
+    past_late = here - _ledger_index(after, ledger, late, start)
+    past_early = here - _ledger_index(after, ledger, early, start)
     return np.where(known, np.maximum(past_late, 0) + np.minimum(past_early, 0), np.nan).astype(np.float64)
 
 

@@ -26,6 +26,26 @@ DEFAULT_CALENDARS = [
 ]
 
 
+def task(activity_id: str, duration: int, **extra) -> dict:
+    """An activity row: ``Work <id>`` of ``duration`` work days."""
+    return {"id": activity_id, "name": f"Work {activity_id}", "duration": duration, **extra}
+
+
+def finish_milestone(activity_id: str = "F", **extra) -> dict:
+    """A finish milestone row."""
+    return {"id": activity_id, "name": f"Milestone {activity_id}", "duration": 0, "kind": "finish_milestone", **extra}
+
+
+def link(pred: str, succ: str, kind: str = "FS", lag: int = 0) -> dict:
+    """A link row."""
+    return {"pred": pred, "succ": succ, "type": kind, "lag": lag}
+
+
+def progressed(row: Mapping[str, Any], actual_start=None, actual_finish=None, remaining=None) -> dict:
+    """An update's row: the baseline row with its progress columns."""
+    return {**row, "actual_start": actual_start, "actual_finish": actual_finish, "remaining": remaining}
+
+
 def write_csv(path: Path, rows: Iterable[Mapping[str, Any]], columns: list[str] | None = None):
     rows = list(rows)
     if columns is None:

@@ -30,29 +30,13 @@ import datetime as dt
 
 import pandas as pd
 
-from casewriter import write_case
+from casewriter import finish_milestone, link, progressed, task, write_case
 from delay.case import load_case
 from delay.causation import class_totals, windows_causation
 from delay.entitlement import assess
 from delay.methods.windows import analyse
 
 SEVEN_DAY = {"default_calendar": "7d"}
-
-
-def task(activity_id, duration, **extra):
-    return {"id": activity_id, "name": f"Work {activity_id}", "duration": duration, **extra}
-
-
-def finish_milestone(activity_id="F", **extra):
-    return {"id": activity_id, "name": f"Milestone {activity_id}", "duration": 0, "kind": "finish_milestone", **extra}
-
-
-def link(pred, succ, kind="FS", lag=0):
-    return {"pred": pred, "succ": succ, "type": kind, "lag": lag}
-
-
-def progressed(row, actual_start=None, actual_finish=None, remaining=None):
-    return {**row, "actual_start": actual_start, "actual_finish": actual_finish, "remaining": remaining}
 
 
 def day(text):
