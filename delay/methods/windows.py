@@ -375,8 +375,10 @@ class _Programme:
         order = model.link_order if model.link_order is not None else np.arange(net.link_count)
         rows = np.argsort(order, kind="stable")  # links in their input order
         self.links = (net.ids[net.pred][rows], net.ids[net.succ][rows], net.link_type[rows], net.lag[rows])
+        self._network = None  # compiled again only when the activities or the links change
 
     def keep(self, mask: np.ndarray) -> None:
+        self._network = None
         self.ids = self.ids[mask]
         self.arrays = {name: values[mask] for name, values in self.arrays.items()}
         present = pd.Index(self.ids)
@@ -384,6 +386,7 @@ class _Programme:
         self.links = tuple(values[kept] for values in self.links)
 
     def add(self, other: "_Programme", rows: np.ndarray) -> None:
+        self._network = None
         self.ids = np.concatenate([self.ids, other.ids[rows]])
         self.arrays = {name: np.concatenate([values, other.arrays[name][rows]]) for name, values in self.arrays.items()}
         added = pd.Index(other.ids[rows])
@@ -392,11 +395,18 @@ class _Programme:
         touching &= (present.get_indexer(other.links[0]) >= 0) & (present.get_indexer(other.links[1]) >= 0)
         self.links = tuple(np.concatenate([mine, theirs[touching]]) for mine, theirs in zip(self.links, other.links))
 
+    def relink(self, links) -> None:
+        self._network = None
+        self.links = links
+
     def model(self) -> ScheduleModel:
-        present = pd.Index(self.ids)
-        pred, succ = present.get_indexer(self.links[0]), present.get_indexer(self.links[1])
-        network = build_network(self.ids, pred, succ, self.links[2], self.links[3])
-        return dataclasses.replace(self.template, network=network, link_order=np.arange(pred.size), **self.arrays)
+        if self._network is None:
+            present = pd.Index(self.ids)
+            pred, succ = present.get_indexer(self.links[0]), present.get_indexer(self.links[1])
+            self._network = build_network(self.ids, pred, succ, self.links[2], self.links[3])
+        network = self._network
+        return dataclasses.replace(self.template, network=network, link_order=np.arange(network.link_count),
+                                   **self.arrays)
 
 
 def _differs(a: np.ndarray, b: np.ndarray) -> np.ndarray:
@@ -454,7 +464,8 @@ def _revision_steps(scheduler: _Scheduler, half_result: ScheduleResult, end_resu
 
     reassign("durations")
     moved = _changed_links(current.links, end.links, end_result.model.network.index)
-    current.links = end.links
+    if moved:
+        current.relink(end.links)
     step("logic", moved)
     reassign("calendars")
     reassign("constraints")
