@@ -566,89 +566,92 @@ def analyse(case: Case) -> CollapsedResult:
     return remembered(case, ("collapsed",), lambda: _analyse(case))
 
 
-def _analyse(case: Case) -> CollapsedResult:
-    built = _AsBuiltModel(case)
-    net = built.network
-    result = built.result
-    target = completion_activity(case)
-    k = int(net.index_of([target])[0])
-    if k < 0:
-        raise CaseError(Problem(file="asbuilt.csv", message=f"the completion activity '{target}' is not in the as-built "
-                                "record", fix="name an activity of the as-built record in [project] completion_activity"))
-    modelled_day = int(result.finish_day[k])
-    actual_day = int(built.recorded.finish_day[k])
-    mismatches, wrong = _mismatches(built)
-    default = built.calendars[case.settings.schedule.default_calendar]
-    modelled_index = int(default.finish_index_days(np.array([modelled_day]))[0])
+class _ButFor:
+    """But-for runs of the as-built model measured at the completion activity: the
+    but-for completion, the days and work days earlier; a run that finishes later than the
+    model (possible with start-to-start and finish-to-finish logic) is noted in ``later``."""
 
-    later: list[str] = []
+    def __init__(self, built: _AsBuiltModel, target: int, default):
+        self.built, self.target, self.default = built, target, default
+        self.modelled_day = int(built.result.finish_day[target])
+        self.modelled_index = int(default.finish_index_days(np.array([self.modelled_day]))[0])
+        self.later: list[str] = []
 
-    def figures(removal: _Removal | None, where: str):
+    def __call__(self, removal: _Removal | None, where: str):
         if removal is None:
             return pd.NaT, pd.NA, pd.NA
-        day = int(built.run(removal).finish_day[k]) if not removal.empty else modelled_day
-        if day > modelled_day:
+        day = int(self.built.run(removal).finish_day[self.target]) if not removal.empty else self.modelled_day
+        if day > self.modelled_day:
             # possible with start-to-start and finish-to-finish logic: a shorter activity can
             # hold its successors later (the reverse effect); reported, not hidden
-            later.append(f"but for {where}: completion {_date(day).isoformat()}, later than the modelled "
-                         f"{_date(modelled_day).isoformat()} (start-to-start / finish-to-finish logic "
-                         "lets a shorter activity hold its successors later)")
-        work = modelled_index - int(default.finish_index_days(np.array([day]))[0])
-        return pd.Timestamp(_date(day)), modelled_day - day, work
+            self.later.append(f"but for {where}: completion {_date(day).isoformat()}, later than the modelled "
+                              f"{_date(self.modelled_day).isoformat()} (start-to-start / finish-to-finish logic "
+                              "lets a shorter activity hold its successors later)")
+        work = self.modelled_index - int(self.default.finish_index_days(np.array([day]))[0])
+        return pd.Timestamp(_date(day)), self.modelled_day - day, work
 
-    events = case.events
+
+def _typed(frame: pd.DataFrame) -> pd.DataFrame:
+    frame["but_for_completion"] = pd.to_datetime(frame["but_for_completion"]).astype("datetime64[s]")
+    for column in ("days_earlier", "work_days_earlier"):
+        frame[column] = frame[column].astype("Int64")
+    return frame
+
+
+def _by_event(case: Case, built: _AsBuiltModel, figures: _ButFor):
+    """Each event taken out alone, and what each party's events (and all) take out."""
     shows = asbuilt_activities(case)
-
-    event_rows = []
-    by_party_removal: dict[str, _Removal] = {}
+    rows = []
+    by_party: dict[str, _Removal] = {}
     scored: dict[str, list[str]] = {}
     unscored: dict[str, list[str]] = {}
     everything = _Removal()
-    for event in events.itertuples(index=False):
+    for event in case.events.itertuples(index=False):
         removal, found, removed, note = _event_removal(built, shows, event)
         but_for, earlier, work = figures(removal, f"but for event {event.id}")
         if removal is not None:
-            by_party_removal.setdefault(event.party, _Removal()).add(removal)
+            by_party.setdefault(event.party, _Removal()).add(removal)
             everything.add(removal)
             scored.setdefault(event.party, []).append(event.id)
         else:
             unscored.setdefault(event.party, []).append(event.id)
-        event_rows.append({"event": event.id, "title": event.title, "party": event.party, "impact": event.impact,
-                           "but_for_completion": but_for, "days_earlier": earlier, "work_days_earlier": work,
-                           "found_in_as_built": found, "removed": removed, "note": note})
-    by_event = pd.DataFrame(event_rows, columns=EVENT_COLUMNS)
-    by_event["but_for_completion"] = pd.to_datetime(by_event["but_for_completion"]).astype("datetime64[s]")
-    for column in ("days_earlier", "work_days_earlier"):
-        by_event[column] = by_event[column].astype("Int64")
-    by_event["found_in_as_built"] = by_event["found_in_as_built"].astype(bool)
+        rows.append({"event": event.id, "title": event.title, "party": event.party, "impact": event.impact,
+                     "but_for_completion": but_for, "days_earlier": earlier, "work_days_earlier": work,
+                     "found_in_as_built": found, "removed": removed, "note": note})
+    frame = _typed(pd.DataFrame(rows, columns=EVENT_COLUMNS))
+    frame["found_in_as_built"] = frame["found_in_as_built"].astype(bool)
+    return frame, by_party, scored, unscored, everything
 
-    party_rows = []
-    parties = [p for p in PARTIES if p in set(events["party"])]
+
+def _by_party(case: Case, figures: _ButFor, removals: dict, scored: dict, unscored: dict,
+              everything: _Removal) -> pd.DataFrame:
+    """But for each party's events together, then for every event (``party = "all"``)."""
+    rows = []
+    parties = [p for p in PARTIES if p in set(case.events["party"])]
     for party in parties:
-        removal = by_party_removal.get(party)
-        but_for, earlier, work = figures(removal, f"but for the {party}'s events")
-        party_rows.append({"party": party, "but_for_completion": but_for, "days_earlier": earlier,
-                           "work_days_earlier": work, "events": scored.get(party, []),
-                           "not_scored": unscored.get(party, [])})
+        but_for, earlier, work = figures(removals.get(party), f"but for the {party}'s events")
+        rows.append({"party": party, "but_for_completion": but_for, "days_earlier": earlier,
+                     "work_days_earlier": work, "events": scored.get(party, []), "not_scored": unscored.get(party, [])})
     any_scored = bool(scored)
     but_for, earlier, work = figures(everything if any_scored else None, "but for every event")
-    party_rows.append({"party": ALL_PARTIES, "but_for_completion": but_for, "days_earlier": earlier,
-                       "work_days_earlier": work, "events": [e for p in parties for e in scored.get(p, [])],
-                       "not_scored": [e for p in parties for e in unscored.get(p, [])]})
-    by_party = pd.DataFrame(party_rows, columns=PARTY_COLUMNS)
-    by_party["but_for_completion"] = pd.to_datetime(by_party["but_for_completion"]).astype("datetime64[s]")
-    for column in ("days_earlier", "work_days_earlier"):
-        by_party[column] = by_party[column].astype("Int64")
+    rows.append({"party": ALL_PARTIES, "but_for_completion": but_for, "days_earlier": earlier,
+                 "work_days_earlier": work, "events": [e for p in parties for e in scored.get(p, [])],
+                 "not_scored": [e for p in parties for e in unscored.get(p, [])]})
+    frame = _typed(pd.DataFrame(rows, columns=PARTY_COLUMNS))
     if any_scored:
-        overall = by_party["but_for_completion"].iloc[-1]
-        for row in by_party.iloc[:-1].itertuples(index=False):
+        overall = frame["but_for_completion"].iloc[-1]
+        for row in frame.iloc[:-1].itertuples(index=False):
             if pd.notna(row.but_for_completion) and overall > row.but_for_completion:
-                later.append(f"but for every event the works finish {pd.Timestamp(overall).date().isoformat()}, "
-                             f"later than but for the {row.party}'s events alone "
-                             f"({pd.Timestamp(row.but_for_completion).date().isoformat()}): the reverse effect of "
-                             "start-to-start / finish-to-finish logic")
+                figures.later.append(
+                    f"but for every event the works finish {pd.Timestamp(overall).date().isoformat()}, later than "
+                    f"but for the {row.party}'s events alone ({pd.Timestamp(row.but_for_completion).date().isoformat()}): "
+                    "the reverse effect of start-to-start / finish-to-finish logic")
+    return frame
 
-    # the model, for the reader
+
+def _model_tables(built: _AsBuiltModel) -> tuple[pd.DataFrame, pd.DataFrame]:
+    """The as-built model itself, for the reader: per activity and per link."""
+    net, result = built.network, built.result
     held_by = np.full(net.size, "", dtype=object)
     held_by[built.has_pred & ~built.out_of_sequence & (built.least_gap > 0)] = "link"
     held_by[built.open_start & (built.bound_gap > 0)] = "start_no_earlier"
@@ -668,7 +671,11 @@ def _analyse(case: Case) -> CollapsedResult:
         "type": _TYPE_NAMES[net.link_type], "lag": built.original_lag, "gap_work_days": built.gaps,
         "driving": built.driving, "model_lag": built.fitted_lag,
     }, columns=LINK_COLUMNS)
+    return activities, links
 
+
+def _notes(mismatches: pd.DataFrame, by_event: pd.DataFrame, modelled_day: int, actual_day: int,
+           later: list[str]) -> list[str]:
     notes = [BUT_FOR_NOTE,
              "Each activity's gap after its driving predecessors is kept as lag on its driving links; an "
              "activity with no predecessor that started after the project's actual start is held by a "
@@ -683,9 +690,25 @@ def _analyse(case: Case) -> CollapsedResult:
     if not_found := by_event.loc[~by_event["found_in_as_built"], "event"].tolist():
         notes.append("Events reported but not scored (nothing of theirs in the as-built record to take out): "
                      + ", ".join(not_found) + ".")
-    notes += later
+    return notes + later
+
+
+def _analyse(case: Case) -> CollapsedResult:
+    built = _AsBuiltModel(case)
+    target = completion_activity(case)
+    k = int(built.network.index_of([target])[0])
+    if k < 0:
+        raise CaseError(Problem(file="asbuilt.csv", message=f"the completion activity '{target}' is not in the as-built "
+                                "record", fix="name an activity of the as-built record in [project] completion_activity"))
+    figures = _ButFor(built, k, built.calendars[case.settings.schedule.default_calendar])
+    actual_day = int(built.recorded.finish_day[k])
+    mismatches, _ = _mismatches(built)
+    by_event, removals, scored, unscored, everything = _by_event(case, built, figures)
+    by_party = _by_party(case, figures, removals, scored, unscored, everything)
+    activities, links = _model_tables(built)
+    notes = _notes(mismatches, by_event, figures.modelled_day, actual_day, figures.later)
     return CollapsedResult(
         reproduced=not len(mismatches), mismatches=mismatches, actual_completion=_date(actual_day),
-        modelled_completion=_date(modelled_day), by_party=by_party, by_event=by_event,
+        modelled_completion=_date(figures.modelled_day), by_party=by_party, by_event=by_event,
         activities=activities, links=links, notes=tuple(notes),
     )
