@@ -663,7 +663,7 @@ def sequence_rows(events: pd.DataFrame, concurrency: str, method: str) -> list[d
 def _run_frame(frame: pd.DataFrame, snapshot: str, label: str) -> pd.DataFrame:
     activities = [a if isinstance(a, str) else _joined(a) for a in frame["activities"]]
     return pd.DataFrame({
-        "event": frame["id"].to_numpy(dtype=object), "party": frame["party"].to_numpy(dtype=object),
+        "event": frame["event"].to_numpy(dtype=object), "party": frame["party"].to_numpy(dtype=object),
         "activities": activities, "alone_days": frame["alone_days"].to_numpy(dtype=np.int64),
         "days": frame["increment_days"].to_numpy(dtype=np.int64), "arose_on": pd.to_datetime(frame["start"]),
         "until": pd.to_datetime(frame["finish"]),

@@ -156,7 +156,7 @@ def compare_methods(case: Case, results: Mapping[str, Entitlement] | None = None
         "method": m, "eot_days": results[m].eot_days, "revised_completion": results[m].revised_completion,
         "compensable_days": results[m].compensable_days, "prolongation_cost": results[m].prolongation_cost,
         "culpable_delay_days": results[m].culpable_delay_days, "acceleration_days": results[m].acceleration_days,
-        "culpable_days": results[m].culpable_days, "ld_exposure": results[m].ld_exposure,
+        "ld_days": results[m].ld_days, "ld_exposure": results[m].ld_exposure,
         "concurrent_days": results[m].concurrent_days, "explained_days": results[m].causation.explained_days,
     } for m in methods])
     return MethodComparison(methods, by_party, by_event, headline, tuple(_explain(methods, by_party, headline, results)))
@@ -230,7 +230,7 @@ def sensitivity(case: Case, methods: Sequence[str] | None = None) -> pd.DataFram
     DataFrame
         One row per method and variant (``as set``, ``other progress mode``, ``other
         concurrency rule``): ``progress``, ``concurrency``, ``eot_days``,
-        ``compensable_days``, ``culpable_days``, ``ld_exposure``, ``concurrent_days``, and
+        ``compensable_days``, ``ld_days``, ``ld_exposure``, ``concurrent_days``, and
         ``changed`` (whether any figure differs from the case's own settings).
     """
     methods = list(methods) if methods else available_methods(case)
@@ -253,11 +253,11 @@ def _sensitivity(case: Case, methods: list[str]) -> pd.DataFrame:
         assessed = assess(variant_case, methods, concurrency=rule)
         for m in methods:
             e = assessed.method(m)
-            figures = (e.eot_days, e.compensable_days, e.culpable_days, e.ld_exposure, e.concurrent_days)
+            figures = (e.eot_days, e.compensable_days, e.ld_days, e.ld_exposure, e.concurrent_days)
             if name == "as set":
                 base[m] = figures
             rows.append({"method": m, "variant": name, "progress": mode, "concurrency": rule,
                          "eot_days": e.eot_days, "compensable_days": e.compensable_days,
-                         "culpable_days": e.culpable_days, "ld_exposure": e.ld_exposure,
+                         "ld_days": e.ld_days, "ld_exposure": e.ld_exposure,
                          "concurrent_days": e.concurrent_days, "changed": figures != base[m]})
     return pd.DataFrame(rows)

@@ -51,7 +51,7 @@ def grants(case: Case, section: str | None = None, at: dt.date | None = None) ->
     Returns
     -------
     DataFrame
-        The rows of extensions_granted.csv that apply.
+        The rows of extensions_granted.csv that apply (its columns as in the file).
     """
     granted = case.extensions_granted
     named = granted["section"].fillna("").astype(str).str.strip()

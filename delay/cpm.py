@@ -126,6 +126,7 @@ class ScheduleModel:
     contract_completion_day: int
     settings: ScheduleSettings
     label: str = ""
+    folder: str = ""  # the snapshot's folder under snapshots/ ("asbuilt" for the as-built record)
     link_order: np.ndarray | None = None  # input row of each link (for tie-breaks)
 
     # -- variants ------------------------------------------------------------------------
@@ -788,7 +789,8 @@ class ScheduleResult:
                 }
             )
         return {
-            "snapshot": self.snapshot,
+            "snapshot": self.model.folder,
+            "label": self.snapshot,
             "data_date": self.data_date.isoformat(),
             "completion": self.completion.isoformat(),
             "activities": rows,
@@ -853,6 +855,7 @@ def prepare(case: Case, snapshot: str | Snapshot = "baseline", settings: Schedul
         contract_completion_day=int(to_days(np.datetime64(case.settings.project.contract_completion, "D"))),
         settings=settings,
         label=snap.label,
+        folder=snap.folder,
         link_order=arrays["link_order"],
     )
 

@@ -162,5 +162,5 @@ def _entitlement(case, folder: Path, out_dir: Path, echo) -> list[Path]:
     for m in methods:
         e = assessed.method(m)
         echo(f"  {m:<10} extension of time {e.eot_days} days (revised completion {e.revised_completion}), "
-             f"compensable {e.compensable_days}, culpable {e.culpable_days}, acceleration {e.acceleration_days}")
+             f"compensable {e.compensable_days}, days of damages {e.ld_days}, acceleration {e.acceleration_days}")
     return [out_dir / "entitlement.json", out_dir / "comparison.json", out_dir / "sensitivity.csv"]

@@ -26,8 +26,9 @@ The figures (dates are calendar dates, days calendar days)
   edition (2017), core principles 4 and 7, as recalled; a contract that reserves terminal
   float to the contractor would measure from the planned completion instead). The
   *revised completion* is the completion in force plus the extension of time.
-- *Culpable days* = max(0, actual or forecast completion - revised completion): the days
-  liquidated damages may be levied for. The actual completion is the as-built record's;
+- *Days of liquidated damages* (``ld_days``) = max(0, actual or forecast completion -
+  revised completion): the days liquidated damages may be levied for (not to be confused
+  with the causation table's ``culpable_days``, the contractor's part of each row). The actual completion is the as-built record's;
   without one, the last update's forecast. Beside it, from the causation table
   (:func:`delay.causation.class_totals`): ``excusable_days`` (employer and neutral, net),
   ``culpable_delay_days`` (the contractor's net delay, when positive) and
@@ -35,7 +36,7 @@ The figures (dates are calendar dates, days calendar days)
   cutting the extension), with ``excusable + culpable delay - acceleration`` = the delay
   the method explains (the actual less the planned completion). An extension beyond the
   actual overrun past the completion in force is explained by that acceleration.
-- *Liquidated damages* = culpable days x the rate (a section's own rate from sections.csv,
+- *Liquidated damages* = ``ld_days`` x the rate (a section's own rate from sections.csv,
   else ``[commercial] liquidated_damages_per_day``), limited to ``liquidated_damages_cap``
   when that is above 0. The cap is applied to each figure (the whole works, each section)
   on its own; how a contract's cap aggregates sections is for the contract.
@@ -117,7 +118,7 @@ SECTION_COLUMNS = [
     "section", "name", "completion_activity", "whole_works", "contract_completion", "granted_days",
     "completion_in_force", "planned_completion", "excusable_days", "completion_with_excusable_delays", "eot_days",
     "revised_completion", "actual_completion", "compensable_days", "prolongation_cost", "culpable_delay_days",
-    "acceleration_days", "culpable_days", "liquidated_damages_per_day", "ld_exposure", "ld_capped",
+    "acceleration_days", "ld_days", "liquidated_damages_per_day", "ld_exposure", "ld_capped",
     "concurrent_days", "note",
 ]
 EVENT_COLUMNS = ["event", "title", "party", "notified", "claimed_days", "assessed_days", "excusable_days",
@@ -185,10 +186,10 @@ def prolongation_cost(case: Case, rows: pd.DataFrame) -> float:
     return round(float(build_up["cost"].sum()), 2) if len(build_up) else 0.0
 
 
-def liquidated_damages(case: Case, culpable_days: int, rate: float) -> tuple[float, bool]:
+def liquidated_damages(case: Case, ld_days: int, rate: float) -> tuple[float, bool]:
     """``(amount, capped)``: culpable days x rate, limited to the case's
     ``liquidated_damages_cap`` when that is above 0."""
-    amount = max(0, int(culpable_days)) * float(rate)
+    amount = max(0, int(ld_days)) * float(rate)
     cap = float(case.settings.commercial.liquidated_damages_cap)
     if cap > 0 and amount > cap:
         return round(cap, 2), True
@@ -210,7 +211,7 @@ def _figures(case: Case, *, planned: dt.date, in_force: dt.date, actual: dt.date
         "actual_completion": actual, "compensable_days": totals["compensable_days"],
         "prolongation_cost": prolongation_cost(case, rows) if len(rows) else 0.0,
         "culpable_delay_days": totals["culpable_delay_days"], "acceleration_days": totals["acceleration_days"],
-        "culpable_days": culpable, "liquidated_damages_per_day": float(rate), "ld_exposure": amount,
+        "ld_days": culpable, "liquidated_damages_per_day": float(rate), "ld_exposure": amount,
         "ld_capped": capped,
         "concurrent_days": int(rows["concurrent_days"].sum()) if len(rows) else 0,
     }
@@ -259,7 +260,8 @@ class Entitlement:
     figure. ``causation`` is the method's :class:`delay.causation.Causation`; ``sections``
     has :data:`SECTION_COLUMNS` (figures ``None`` where the method cannot give them, with
     the reason in ``note``); ``events`` has :data:`EVENT_COLUMNS`; ``grants`` the
-    extensions already granted that apply to the whole works; ``prolongation`` the build-up
+    extensions already granted that apply to the whole works (extensions_granted.csv's
+    rows, the grant's id as ``grant``); ``prolongation`` the build-up
     of the prolongation cost (:func:`prolongation_build_up`).
     """
 
@@ -279,7 +281,7 @@ class Entitlement:
     prolongation_cost: float
     culpable_delay_days: int
     acceleration_days: int
-    culpable_days: int
+    ld_days: int
     liquidated_damages_per_day: float
     ld_exposure: float
     ld_capped: bool
@@ -303,7 +305,7 @@ class Entitlement:
             "revised_completion": _iso(self.revised_completion),
             "compensable_days": self.compensable_days,
             "prolongation_cost": self.prolongation_cost,
-            "culpable_days": self.culpable_days,
+            "ld_days": self.ld_days,
             "ld_exposure": self.ld_exposure,
             "concurrent_days": self.concurrent_days,
             "excusable_days": self.excusable_days,
@@ -348,7 +350,7 @@ class EntitlementResult:
         """One row per method: the whole works' figures."""
         columns = ["method", "completion_in_force", "planned_completion", "excusable_days", "eot_days",
                    "revised_completion", "actual_completion", "compensable_days", "prolongation_cost",
-                   "culpable_delay_days", "acceleration_days", "culpable_days", "ld_exposure", "ld_capped",
+                   "culpable_delay_days", "acceleration_days", "ld_days", "ld_exposure", "ld_capped",
                    "concurrent_days"]
         return pd.DataFrame([{c: getattr(m, c) for c in columns} for m in self.methods], columns=columns)
 
@@ -541,7 +543,8 @@ def _entitlement(case: Case, method: str, result, concurrency: str | None) -> En
                         granted_days=granted, completion_in_force=in_force, **figures, causation=table_of,
                         sections=pd.DataFrame(columns=SECTION_COLUMNS),
                         events=_event_table(case, method, table, result if method == "collapsed" else None),
-                        grants=grants(case), prolongation=prolongation, notes=tuple(notes))
+                        grants=grants(case).rename(columns={"id": "grant"}), prolongation=prolongation,
+                        notes=tuple(notes))
     return dataclasses.replace(whole, sections=_sections(case, method, result, rule, whole))
 
 

@@ -46,7 +46,7 @@ def test_one_snapshot_as_json(tmp_path):
     result = run(root, "--snapshot", "u01", "--format", "json")
     assert result.exit_code == 0, result.output
     data = json.loads(result.output)
-    assert data["snapshot"] == "Update 01"
+    assert data["snapshot"] == "u01"
     assert [m["key"] for m in data["metrics"]] == list(METRIC_KEYS)
     for metric in data["metrics"]:
         assert {"key", "title", "count", "denominator", "percent", "threshold", "passed", "activities"} <= set(metric)
@@ -58,13 +58,13 @@ def test_one_snapshot_as_json(tmp_path):
 
 def test_baseline_by_default(tmp_path):
     data = json.loads(run(small_case(tmp_path), "--format", "json").output)
-    assert data["snapshot"] == "Baseline"
+    assert data["snapshot"] == "baseline"
 
 
 def test_all_snapshots(tmp_path):
     result = run(small_case(tmp_path), "--all", "--format", "json")
     assert result.exit_code == 0, result.output
-    assert [s["snapshot"] for s in json.loads(result.output)["snapshots"]] == ["Baseline", "Update 01"]
+    assert [s["snapshot"] for s in json.loads(result.output)["snapshots"]] == ["baseline", "u01"]
 
 
 def test_compare_two_snapshots(tmp_path):

@@ -85,7 +85,7 @@ def test_open_ends_other_than_the_project_start_and_finish(tmp_path):
     no_pred = {v for v in graph if graph.in_degree(v) == 0} - {"START"}
     no_succ = {v for v in graph if graph.out_degree(v) == 0} - {"FINISH"}
     assert (no_pred, no_succ) == ({"Y"}, {"X"})
-    assert sorted(rows(found, "id", "missing")) == [("X", "successor"), ("Y", "predecessor")]
+    assert sorted(rows(found, "activity", "missing")) == [("X", "successor"), ("Y", "predecessor")]
     assert "START" in found.note and "FINISH" in found.note
 
 
@@ -100,7 +100,7 @@ def test_dangling_starts_and_finishes(tmp_path):
     links = [link("START", "A"), link("A", "B", "FF"), link("B", "FINISH"), link("START", "C"),
              link("C", "D", "SS"), link("D", "FINISH"), link("A", "M", "FF"), link("M", "FINISH")]
     found = checks_of(write_case(tmp_path, activities=activities, links=links))["dangling"]
-    assert rows(found, "id", "dangling") == [("B", "start"), ("C", "finish")]
+    assert rows(found, "activity", "dangling") == [("B", "start"), ("C", "finish")]
 
 
 # -- actual date changes and retrospective edits ------------------------------------------
@@ -141,9 +141,9 @@ def progress_case(tmp_path):
 def test_actual_dates_changed_between_updates(tmp_path):
     root = progress_case(tmp_path)
     changes = checks_of(root, "u02")["actual_date_changes"]
-    assert rows(changes, "id", "column", "earlier_snapshot", "earlier_value", "later_value") == [
-        ("T1", "actual_finish", "Update 1", "2025-01-10", "2025-01-09"),
-        ("T5", "actual_start", "Update 1", "2025-01-13", None),
+    assert rows(changes, "activity", "column", "earlier_snapshot", "earlier_value", "later_value") == [
+        ("T1", "actual_finish", "u01", "2025-01-10", "2025-01-09"),
+        ("T5", "actual_start", "u01", "2025-01-13", None),
     ]
     # Against the baseline, which reports no progress, update 1 changes nothing.
     assert checks_of(root, "u01")["actual_date_changes"].count == 0
@@ -152,9 +152,9 @@ def test_actual_dates_changed_between_updates(tmp_path):
 def test_retrospective_edits(tmp_path):
     root = progress_case(tmp_path)
     edits = checks_of(root, "u02")["retrospective_edits"]
-    assert rows(edits, "id", "column", "value", "earlier_snapshot", "earlier_data_date", "earlier_value") == [
-        ("T1", "actual_finish", "2025-01-09", "Update 1", "2025-01-20", "2025-01-10"),
-        ("T3", "actual_start", "2025-01-16", "Update 1", "2025-01-20", None),
+    assert rows(edits, "activity", "column", "value", "earlier_snapshot", "earlier_data_date", "earlier_value") == [
+        ("T1", "actual_finish", "2025-01-09", "u01", "2025-01-20", "2025-01-10"),
+        ("T3", "actual_start", "2025-01-16", "u01", "2025-01-20", None),
     ]
     # The first update follows the baseline, which is no progress report.
     assert checks_of(root, "u01")["retrospective_edits"].count == 0
@@ -361,7 +361,7 @@ def test_synthetic_case_against_references(tmp_path):
         found = {c.key: c for c in data_checks(case, snap)}["open_ends"]
         ends = set(table["id"][table["kind"].isin(["start_milestone", "finish_milestone"])])
         assert len(ends) == 2  # the synthetic programme's start and finish milestones
-        assert set(found.items["id"]) == open_ends - ends
+        assert set(found.items["activity"]) == open_ends - ends
         task = (table["kind"] == "task") & (table["duration"] > 0) & table["actual_finish"].isna()
         no_logic = {v for v in table["id"][task] if graph.in_degree(v) == 0 or graph.out_degree(v) == 0}
         logic = {m.key: m for m in metric_list(case, snap)}["logic"]

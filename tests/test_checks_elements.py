@@ -78,15 +78,15 @@ def test_duplicates_within_one_millimetre(case):
     assert groups == brute_force_groups(ELEMENTS)
     assert groups == [("E1", "E2", "E3"), ("E7", "E8"), ("E9", "E10", "E11")]
     # The original (first in file order) leads each group.
-    assert found.duplicates.groupby("group")["id"].first().tolist() == ["E1", "E7", "E9"]
+    assert found.duplicates.groupby("group")["element"].first().tolist() == ["E1", "E7", "E9"]
     data = found.to_json()["duplicates"]
     assert (data["count"], data["copies"], data["duplicate_ids"]) == (3, 5, "checked at load")
 
 
 def test_unlinked_elements_and_unmodelled_activities(case):
     found = element_checks(case)
-    assert found.unlinked_elements["id"].tolist() == ["E6"]
-    assert found.unmodelled_activities["id"].tolist() == ["B"]
+    assert found.unlinked_elements["element"].tolist() == ["E6"]
+    assert found.unmodelled_activities["activity"].tolist() == ["B"]
 
 
 def test_no_elements_is_not_applicable(tmp_path):
@@ -121,7 +121,7 @@ def test_demo_element_defects_exactly(demo):
     assert sorted(g[0] for g in found.duplicate_groups()) == sorted(g[0] for g in known["duplicate_elements"])
     unlinked = known["unlinked_elements"]
     unlinked_ids = [u["id"] if isinstance(u, dict) else u for u in unlinked]
-    assert sorted(found.unlinked_elements["id"]) == sorted(unlinked_ids)
+    assert sorted(found.unlinked_elements["element"]) == sorted(unlinked_ids)
 
 
 def test_demo_retrospective_edits_exactly(demo):
@@ -129,20 +129,19 @@ def test_demo_retrospective_edits_exactly(demo):
     # only retrospective one; the as-built record restores the first reported date.
     known = json.loads((demo / "KNOWN_DEFECTS.json").read_text(encoding="utf-8"))["retrospective_edits"]
     case = load_case(demo)
-    folders = {s.label: s.folder for s in case.snapshots}
     changes, edits = [], []
     for snap in case.updates:
         checks = {c.key: c for c in data_checks(case, snap)}
         for row in checks["actual_date_changes"].items.itertuples(index=False):
-            changes.append((row.id, row.column, folders[row.earlier_snapshot], snap.folder,
+            changes.append((row.activity, row.column, row.earlier_snapshot, snap.folder,
                             str(row.earlier_value.date()), str(row.later_value.date())))
         for row in checks["retrospective_edits"].items.itertuples(index=False):
-            edits.append((row.id, row.column, snap.folder, str(row.value.date())))
+            edits.append((row.activity, row.column, snap.folder, str(row.value.date())))
     assert changes == [(k["activity"], k["column"], k["first_reported_in"], k["changed_in"], k["first_value"],
                         k["changed_value"]) for k in known]
     assert edits == [(k["activity"], k["column"], k["changed_in"], k["changed_value"]) for k in known]
     if case.asbuilt_snapshot is not None:
         checks = {c.key: c for c in data_checks(case, "asbuilt")}
-        restored = [(r.id, r.column, str(r.later_value.date()))
+        restored = [(r.activity, r.column, str(r.later_value.date()))
                     for r in checks["actual_date_changes"].items.itertuples(index=False)]
         assert restored == [(k["activity"], k["column"], k["asbuilt_value"]) for k in known]

@@ -130,7 +130,8 @@ def test_new_writes_a_skeleton_that_validates(tmp_path):
 def test_schedule_json_contract(tmp_path):
     root = write_case(tmp_path / "case", activities=ACTIVITIES, links=LINKS)
     payload = json.loads(run("schedule", root, "--format", "json").output)
-    assert set(payload) == {"snapshot", "data_date", "completion", "activities"}
+    assert set(payload) == {"snapshot", "label", "data_date", "completion", "activities"}
+    assert payload["snapshot"] == "baseline"
     assert set(payload["activities"][0]) == {
         "id", "early_start", "early_finish", "late_start", "late_finish", "total_float", "free_float", "critical"}
     by_id = {a["id"]: a for a in payload["activities"]}

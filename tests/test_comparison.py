@@ -83,7 +83,7 @@ def test_impacted_column_and_headline(case):
     headline = result.headline.set_index("method")
     assert int(headline.loc["impacted", "eot_days"]) == 3
     assert int(headline.loc["impacted", "compensable_days"]) == 0
-    assert int(headline.loc["impacted", "culpable_days"]) == 0
+    assert int(headline.loc["impacted", "ld_days"]) == 0
     assert int(headline.loc["impacted", "concurrent_days"]) == 3
     # every method explains the delay it measures; the table says so per method
     assert int(headline.loc["collapsed", "explained_days"]) == 3  # actual Jan 13 less planned Jan 10
@@ -101,11 +101,11 @@ def test_impacted_column_and_headline(case):
 def test_sensitivity_shows_what_rests_on_the_concurrency_rule(case):
     table = sensitivity(case, ["impacted"]).set_index("variant")
     as_set = table.loc["as set"]
-    assert (as_set["eot_days"], as_set["compensable_days"], as_set["culpable_days"]) == (3, 0, 0)
+    assert (as_set["eot_days"], as_set["compensable_days"], as_set["ld_days"]) == (3, 0, 0)
     other_rule = table.loc["other concurrency rule"]
     assert other_rule["concurrency"] == "apportion"
     # apportioned 2 : 1 by largest remainder, the tie to the earlier cause (module docstring)
-    assert (other_rule["eot_days"], other_rule["compensable_days"], other_rule["culpable_days"]) == (2, 2, 1)
+    assert (other_rule["eot_days"], other_rule["compensable_days"], other_rule["ld_days"]) == (2, 2, 1)
     assert bool(other_rule["changed"])
     other_mode = table.loc["other progress mode"]
     assert other_mode["progress"] == "progress_override"

@@ -92,7 +92,7 @@ def whole_works(entitlement):
     """The headline figures of one method's entitlement."""
     return {"excusable": entitlement.excusable_days, "eot": entitlement.eot_days,
             "revised": entitlement.revised_completion, "compensable": entitlement.compensable_days,
-            "prolongation": entitlement.prolongation_cost, "culpable": entitlement.culpable_days,
+            "prolongation": entitlement.prolongation_cost, "culpable": entitlement.ld_days,
             "damages": entitlement.ld_exposure, "concurrent": entitlement.concurrent_days}
 
 
@@ -350,9 +350,9 @@ def test_section_with_its_own_damages_rate(tmp_path, method):
     assert (one["planned_completion"], one["completion_in_force"], one["actual_completion"]) == (
         day("2025-01-10"), day("2025-01-10"), day("2025-01-12"))
     assert (one["excusable_days"], one["eot_days"], one["revised_completion"]) == (0, 0, day("2025-01-10"))
-    assert (one["culpable_days"], one["liquidated_damages_per_day"], one["ld_exposure"]) == (2, 500.0, 1000.0)
+    assert (one["ld_days"], one["liquidated_damages_per_day"], one["ld_exposure"]) == (2, 500.0, 1000.0)
     two = sections.loc["S2"]
-    assert (two["eot_days"], two["culpable_days"], two["liquidated_damages_per_day"], two["ld_exposure"]) == (
+    assert (two["eot_days"], two["ld_days"], two["liquidated_damages_per_day"], two["ld_exposure"]) == (
         3, 2, 1000.0, 2000.0)
 
 
@@ -411,16 +411,16 @@ def test_an_extension_already_granted(tmp_path, method):
     assert completion_in_force(case, at=day("2025-01-19")) == (day("2025-01-15"), 0, day("2025-01-15"))
     result = assess(case, [method]).method(method)
     assert (result.granted_days, result.completion_in_force) == (5, day("2025-01-20"))
-    assert (result.excusable_days, result.eot_days, result.revised_completion, result.culpable_days) == (
+    assert (result.excusable_days, result.eot_days, result.revised_completion, result.ld_days) == (
         7, 2, day("2025-01-22"), 0)
-    assert list(result.grants["id"]) == ["X1"]
+    assert list(result.grants["grant"]) == ["X1"]
     sections = result.sections.set_index("section")
     whole = sections.loc["S2"]
     assert bool(whole["whole_works"]) and (whole["eot_days"], whole["revised_completion"]) == (2, day("2025-01-22"))
     if method != "collapsed":
         one = sections.loc["S1"]
         assert (one["granted_days"], one["completion_in_force"], one["eot_days"], one["revised_completion"],
-                one["culpable_days"]) == (10, day("2025-01-20"), 0, day("2025-01-20"), 0)
+                one["ld_days"]) == (10, day("2025-01-20"), 0, day("2025-01-20"), 0)
 
 
 @pytest.mark.parametrize("method", ALL)
@@ -432,10 +432,10 @@ def test_a_grant_for_the_whole_works_section_is_the_whole_works(tmp_path, method
     assert completion_in_force(case, "S2") == completion_in_force(case)
     result = assess(case, [method]).method(method)
     assert (result.eot_days, result.revised_completion) == (0, day("2025-01-23"))
-    assert list(result.grants["id"]) == ["X1", "X3"]
+    assert list(result.grants["grant"]) == ["X1", "X3"]
     whole = result.sections.set_index("section").loc["S2"]
     for column in ("granted_days", "completion_in_force", "excusable_days", "eot_days", "revised_completion",
-                   "culpable_days", "ld_exposure"):
+                   "ld_days", "ld_exposure"):
         assert whole[column] == getattr(result, column), column
 
 
@@ -464,11 +464,11 @@ def capped_case(root, cap):
 @pytest.mark.parametrize("method", ["windows", "impacted", "collapsed"])
 def test_damages_are_capped(tmp_path, method):
     result = assess(capped_case(tmp_path / "case", 6000), [method]).method(method)
-    assert (result.eot_days, result.culpable_days, result.culpable_delay_days) == (0, 9, 9)
+    assert (result.eot_days, result.ld_days, result.culpable_delay_days) == (0, 9, 9)
     assert (result.ld_exposure, result.ld_capped) == (6000.0, True)
     if method != "collapsed":
         one = result.sections.set_index("section").loc["S1"]
-        assert (one["culpable_days"], one["ld_exposure"], one["ld_capped"]) == (9, 4500.0, False)
+        assert (one["ld_days"], one["ld_exposure"], one["ld_capped"]) == (9, 4500.0, False)
 
 
 def test_a_baseline_late_against_the_contract_gives_no_extension_by_itself(tmp_path):
@@ -483,7 +483,7 @@ def test_a_baseline_late_against_the_contract_gives_no_extension_by_itself(tmp_p
                       "asbuilt.csv": [record("A", "2025-01-06", "2025-01-12"), record("F", "2025-01-12", "2025-01-12")]})
     result = assess(load_case(tmp_path / "case"), ["impacted"]).method("impacted")
     assert result.completion_with_excusable_delays == day("2025-01-12")
-    assert (result.eot_days, result.revised_completion, result.culpable_days, result.ld_exposure) == (
+    assert (result.eot_days, result.revised_completion, result.ld_days, result.ld_exposure) == (
         2, day("2025-01-09"), 3, 3000.0)
 
 
@@ -580,7 +580,7 @@ def test_windows_revision_charge_parties(tmp_path, events, expected):
         "window 1 (baseline to U1): revision (durations)", "B", 3)
     party, classification, eot, compensable, culpable = expected
     assert (row["party"], row["classification"]) == (party, classification)
-    assert (result.eot_days, result.compensable_days, result.culpable_days) == (eot, compensable, culpable)
+    assert (result.eot_days, result.compensable_days, result.ld_days) == (eot, compensable, culpable)
     assert result.actual_completion == day("2025-01-18")
 
 
@@ -604,7 +604,7 @@ def test_delay_no_event_explains(tmp_path, method):
                       "asbuilt.csv": [record("A", "2025-01-06", "2025-01-15"), record("F", "2025-01-15", "2025-01-15")]})
     result = assess(load_case(tmp_path / "case"), [method]).method(method)
     assert (result.excusable_days, result.eot_days, result.revised_completion) == (3, 3, day("2025-01-13"))
-    assert (result.culpable_days, result.ld_exposure) == (2, 200.0)
+    assert (result.ld_days, result.ld_exposure) == (2, 200.0)
     assert result.culpable_delay_days == 2
     table = result.causation.table
     if method == "collapsed":
@@ -692,12 +692,12 @@ def test_command_json_shape(tmp_path):
     data = json.loads(run.output)
     assert [m["method"] for m in data["methods"]] == list(ALL)
     required = {"method", "eot_days", "revised_completion", "compensable_days", "prolongation_cost",
-                "culpable_days", "ld_exposure", "concurrent_days", "sections"}
+                "ld_days", "ld_exposure", "concurrent_days", "sections"}
     for method in data["methods"]:
         assert required <= set(method)
         # Case 1 worked by hand: EoT 3, revised 2025-01-18, compensable 3 at 1000/day.
         assert (method["eot_days"], method["revised_completion"], method["compensable_days"],
-                method["prolongation_cost"], method["culpable_days"], method["ld_exposure"]) == (
+                method["prolongation_cost"], method["ld_days"], method["ld_exposure"]) == (
             3, "2025-01-18", 3, 3000.0, 0, 0.0)
 
 
@@ -797,7 +797,7 @@ def test_properties_on_synthetic_cases(activities, updates, seed):
                         & (delay["concurrent_days"] <= delay["days"])).all(), method
                 assert result.eot_days >= 0
                 assert result.revised_completion == result.completion_in_force + dt.timedelta(days=result.eot_days)
-                assert result.culpable_days == max(0, (result.actual_completion - result.revised_completion).days)
+                assert result.ld_days == max(0, (result.actual_completion - result.revised_completion).days)
                 assert result.ld_exposure <= 5000.0
                 for section in result.sections.to_dict("records"):
                     if section["eot_days"] is not None:

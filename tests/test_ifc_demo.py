@@ -73,7 +73,7 @@ def test_the_element_checks_find_the_planted_defects_in_the_model(imported):
     checks = element_checks(load_case(copy))
     groups = [sorted(tags[i] for i in group) for group in checks.duplicate_groups()]
     assert sorted(groups) == sorted(sorted(g) for g in known["duplicate_elements"])
-    assert sorted(tags[i] for i in checks.unlinked_elements["id"]) == sorted(known["unlinked_elements"])
+    assert sorted(tags[i] for i in checks.unlinked_elements["element"]) == sorted(known["unlinked_elements"])
 
 
 def test_demo_outputs_export_and_read_back_the_baseline(tmp_path):

@@ -84,7 +84,7 @@ def day(text):
 
 
 def by_event(result):
-    return result.events.set_index("id")
+    return result.events.set_index("event")
 
 
 def invoke(*args):
@@ -139,7 +139,7 @@ def test_event_within_float_moves_nothing(tmp_path):
 
 def test_chronological_run_of_critical_and_float_events(tmp_path):
     result = analyse(load_case(chain_case(tmp_path / "case")))
-    assert list(result.events["id"]) == ["E2", "E1"]  # E2 starts Jan 07, E1 Jan 09
+    assert list(result.events["event"]) == ["E2", "E1"]  # E2 starts Jan 07, E1 Jan 09
     assert list(result.events["alone_days"]) == [0, 3]
     assert list(result.events["increment_days"]) == [0, 3]
     assert list(result.events["completion_after"]) == [day("2025-01-15"), day("2025-01-18")]
@@ -176,7 +176,7 @@ def parallel_case(root):
 def test_parallel_paths_second_event_hidden_behind_the_first(tmp_path):
     result = analyse(load_case(parallel_case(tmp_path / "case")))
     table = by_event(result)
-    assert list(result.events["id"]) == ["E1", "E2"]
+    assert list(result.events["event"]) == ["E1", "E2"]
     assert (table.loc["E1", "alone_days"], table.loc["E2", "alone_days"]) == (5, 2)
     assert table.loc["E2", "completion_alone"] == day("2025-01-17")
     assert (table.loc["E1", "increment_days"], table.loc["E2", "increment_days"]) == (5, 0)
@@ -190,14 +190,14 @@ def test_order_as_listed_changes_the_increments_not_the_total(tmp_path):
     case = load_case(parallel_case(tmp_path / "case"))
     listed = analyse(case, events=["E2", "E1"], order="as-listed")
     chronological = analyse(case, events=["E2", "E1"], order="chronological")
-    assert list(listed.events["id"]) == ["E2", "E1"]
+    assert list(listed.events["event"]) == ["E2", "E1"]
     assert list(listed.events["increment_days"]) == [2, 3]
     assert list(listed.events["completion_after"]) == [day("2025-01-17"), day("2025-01-20")]
-    assert list(chronological.events["id"]) == ["E1", "E2"]
+    assert list(chronological.events["event"]) == ["E1", "E2"]
     assert list(chronological.events["increment_days"]) == [5, 0]
     assert listed.total_days == chronological.total_days == 5
     # the impacts alone do not depend on the order
-    assert list(listed.events.set_index("id").loc[["E1", "E2"], "alone_days"]) == [5, 2]
+    assert list(listed.events.set_index("event").loc[["E1", "E2"], "alone_days"]) == [5, 2]
 
 
 def test_cli_json_chronological(tmp_path):
@@ -213,10 +213,10 @@ def test_cli_json_chronological(tmp_path):
         "completion_cumulative": "2025-01-20", "actual_completion": "2025-01-20", "total_days": 5,
         "residual_days": 0, "explained_days": 5}
     assert any("prospective" in note for note in data["notes"])
-    assert [{k: e[k] for k in ("id", "party", "alone_days", "increment_days", "completion_after")}
+    assert [{k: e[k] for k in ("event", "party", "alone_days", "increment_days", "completion_after")}
             for e in data["events"]] == [
-        {"id": "E1", "party": "employer", "alone_days": 5, "increment_days": 5, "completion_after": "2025-01-20"},
-        {"id": "E2", "party": "contractor", "alone_days": 2, "increment_days": 0, "completion_after": "2025-01-20"},
+        {"event": "E1", "party": "employer", "alone_days": 5, "increment_days": 5, "completion_after": "2025-01-20"},
+        {"event": "E2", "party": "contractor", "alone_days": 2, "increment_days": 0, "completion_after": "2025-01-20"},
     ]
 
 
@@ -225,7 +225,7 @@ def test_cli_order_as_listed(tmp_path):
                  "--format", "json")
     assert run.exit_code == 0, run.output
     data = json.loads(run.stdout)
-    assert [(e["id"], e["increment_days"], e["completion_after"]) for e in data["events"]] == [
+    assert [(e["event"], e["increment_days"], e["completion_after"]) for e in data["events"]] == [
         ("E2", 2, "2025-01-17"), ("E1", 3, "2025-01-20")]
     assert data["total_days"] == 5
 
@@ -235,7 +235,7 @@ def test_cli_events_filter(tmp_path):
     run = invoke(parallel_case(tmp_path / "case"), "--events", "E2", "--format", "json")
     assert run.exit_code == 0, run.output
     data = json.loads(run.stdout)
-    assert [e["id"] for e in data["events"]] == ["E2"]
+    assert [e["event"] for e in data["events"]] == ["E2"]
     assert (data["events"][0]["alone_days"], data["events"][0]["increment_days"]) == (2, 2)
     assert data["total_days"] == 2
 
@@ -656,5 +656,5 @@ def test_properties_on_synthetic_programmes(seed, activities, count):
     assert int(result.events["increment_days"].sum()) == result.total_days == (reference - plain).days
     assert (result.events["alone_days"] >= 0).all() and (result.events["increment_days"] >= 0).all()
     assert int(result.events["alone_days"].max()) <= result.total_days
-    reversed_order = analyse(case, events=list(result.events["id"])[::-1], order="as-listed")
+    reversed_order = analyse(case, events=list(result.events["event"])[::-1], order="as-listed")
     assert reversed_order.total_days == result.total_days

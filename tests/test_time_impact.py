@@ -124,8 +124,8 @@ def day(text):
 
 def test_events_go_into_the_last_programme_before_they_began(tmp_path):
     result = analyse(load_case(two_update_case(tmp_path / "case")))
-    events = result.events.set_index("id")
-    assert list(result.events["id"]) == ["E0", "E3", "E1", "E2"]
+    events = result.events.set_index("event")
+    assert list(result.events["event"]) == ["E0", "E3", "E1", "E2"]
     assert dict(events["update"]) == {"E0": "baseline", "E3": "u1", "E1": "u1", "E2": "u1"}
     assert dict(events["completion_before"]) == {"E0": day("2025-01-15"), "E3": day("2025-01-16"),
                                                  "E1": day("2025-01-16"), "E2": day("2025-01-16")}
@@ -157,7 +157,7 @@ def test_each_programme_reconciles_with_the_next(tmp_path):
 
 def test_a_programme_that_already_shows_the_event_is_flagged(tmp_path):
     result = analyse(load_case(two_update_case(tmp_path / "case")))
-    warnings = dict(zip(result.events["id"], result.events["warnings"]))
+    warnings = dict(zip(result.events["event"], result.events["warnings"]))
     assert warnings["E0"] == [] and warnings["E1"] == []
     for event_id, adds in (("E3", 1), ("E2", 3)):
         (text,) = warnings[event_id]
@@ -171,7 +171,7 @@ def test_tia_update_names_the_programme(tmp_path):
     #   Increments 1 + 2 + 1 = 4, residuals 0 - 1 + 0 = -1: 3, the same actual delay.
     events = [{**e, "tia_update": "u2" if e["id"] == "E2" else ""} for e in EVENTS]
     result = analyse(load_case(two_update_case(tmp_path / "case", events)))
-    events_by_id = result.events.set_index("id")
+    events_by_id = result.events.set_index("event")
     assert dict(events_by_id["update"]) == {"E0": "baseline", "E3": "u1", "E1": "u1", "E2": "u2"}
     assert int(events_by_id.loc["E2", "increment_days"]) == 1
     updates = result.updates.set_index("snapshot")
@@ -215,11 +215,11 @@ def test_cli_json(tmp_path):
         {"snapshot": "u2", "completion_before": "2025-01-17", "completion_after": "2025-01-17",
          "increment_days": 0, "next_snapshot": "asbuilt", "residual_days": 1},
     ]
-    assert [{k: e[k] for k in ("id", "update", "increment_days", "alone_days")} for e in data["events"]] == [
-        {"id": "E0", "update": "baseline", "increment_days": 1, "alone_days": 1},
-        {"id": "E3", "update": "u1", "increment_days": 1, "alone_days": 1},
-        {"id": "E1", "update": "u1", "increment_days": 1, "alone_days": 2},
-        {"id": "E2", "update": "u1", "increment_days": 2, "alone_days": 3},
+    assert [{k: e[k] for k in ("event", "update", "increment_days", "alone_days")} for e in data["events"]] == [
+        {"event": "E0", "update": "baseline", "increment_days": 1, "alone_days": 1},
+        {"event": "E3", "update": "u1", "increment_days": 1, "alone_days": 1},
+        {"event": "E1", "update": "u1", "increment_days": 1, "alone_days": 2},
+        {"event": "E2", "update": "u1", "increment_days": 2, "alone_days": 3},
     ]
     assert all(isinstance(e["warnings"], list) for e in data["events"])
 

@@ -239,7 +239,7 @@ def test_a_real_recovery_is_acceleration(tmp_path):
     totals = class_totals(windows_causation(case, result).table)
     assert totals == {"excusable_days": 2, "compensable_days": 2, "culpable_delay_days": 0, "acceleration_days": 1}
     entitlement = assess(case, ["windows"], results={"windows": result}).method("windows")
-    assert (entitlement.eot_days, entitlement.revised_completion, entitlement.culpable_days) == (
+    assert (entitlement.eot_days, entitlement.revised_completion, entitlement.ld_days) == (
         2, day("2025-01-17"), 0)
     assert entitlement.acceleration_days == 1
     assert entitlement.eot_days <= entitlement.overrun_days + entitlement.acceleration_days
@@ -281,7 +281,7 @@ def test_a_section_is_traced_to_its_own_milestone(tmp_path):
     table = windows_causation(case, result, section="S1").table
     assert class_totals(table)["culpable_delay_days"] == 2 and class_totals(table)["excusable_days"] == 0
     one = assess(case, ["windows"], results={"windows": result}).method("windows").sections.set_index("section")
-    assert (one.loc["S1", "excusable_days"], one.loc["S1", "culpable_days"], one.loc["S1", "ld_exposure"]) == (
+    assert (one.loc["S1", "excusable_days"], one.loc["S1", "ld_days"], one.loc["S1", "ld_exposure"]) == (
         0, 2, 200.0)
 
 

@@ -77,7 +77,7 @@ def check_snapshot(case: Case, snapshot: str | Snapshot = "baseline") -> dict[st
     -------
     dict
         ``snapshot`` (label), ``folder``, ``kind``, ``data_date``, ``completion`` (forecast),
-        ``contract_completion_in_force``, ``metrics`` (one object per metric of
+        ``completion_in_force`` (at its data date), ``metrics`` (one object per metric of
         :data:`METRIC_KEYS`: ``key, title, count, denominator, percent, threshold, passed,
         activities, unit, note``), ``data_checks`` (one object per check of
         :data:`DATA_CHECK_KEYS`: ``key, title, status, count, note, items``) and
@@ -91,12 +91,12 @@ def check_snapshot(case: Case, snapshot: str | Snapshot = "baseline") -> dict[st
     snap = resolve(case, snapshot)
     result = scheduled(case, snap)
     return {
-        "snapshot": snap.label,
-        "folder": snap.folder,
+        "snapshot": snap.folder,
+        "label": snap.label,
         "kind": snap.kind,
         "data_date": snap.data_date.isoformat(),
         "completion": result.completion.isoformat(),
-        "contract_completion_in_force": contract_completion_in_force(case).isoformat(),
+        "completion_in_force": contract_completion_in_force(case, at=snap.data_date).isoformat(),
         "metrics": [m.to_json() for m in metric_list(case, snap)],
         "data_checks": [c.to_json() for c in data_checks(case, snap)],
         "elements": element_checks(case, snap).to_json(),
@@ -114,7 +114,7 @@ def run_all(case: Case) -> dict[str, Any]:
     Returns
     -------
     dict
-        Ready for ``json.dumps``: ``project``, ``contract_completion_in_force``,
+        Ready for ``json.dumps``: ``project``, ``completion_in_force`` (every grant),
         ``snapshots`` (a :func:`check_snapshot` object per snapshot: baseline, updates by
         data date, then the as-built snapshot when there is one) and ``comparisons`` (the
         :meth:`Comparison.to_json` of each snapshot against the one before it). Computed
@@ -132,7 +132,7 @@ def _run_all(case: Case) -> dict[str, Any]:
     snapshots = ordered_snapshots(case)
     return {
         "project": case.settings.project.name,
-        "contract_completion_in_force": contract_completion_in_force(case).isoformat(),
+        "completion_in_force": contract_completion_in_force(case).isoformat(),
         "snapshots": [check_snapshot(case, snap) for snap in snapshots],
         "comparisons": [compare(case, earlier, later).to_json()
                         for earlier, later in zip(snapshots, snapshots[1:])],

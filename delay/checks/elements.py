@@ -43,9 +43,9 @@ class ElementChecks:
 
     Attributes
     ----------
-    unlinked_elements: ``id, name, wbs, classification`` of elements whose wbs matches no
+    unlinked_elements: ``element, name, wbs, classification`` of elements whose wbs matches no
         activity of any snapshot, in elements.csv order.
-    unmodelled_activities: ``id, name, wbs, snapshot`` of activities with a wbs that no
+    unmodelled_activities: ``activity, name, wbs, snapshot`` (the folder) of activities with a wbs that no
         element carries (the snapshot where the pair is first seen).
     duplicates: ``group, id, name, classification, x, y, z, dx, dy, dz``: one row per
         element of each group of suspected duplicates (groups numbered from 1 in file order
@@ -60,13 +60,13 @@ class ElementChecks:
 
     def duplicate_groups(self) -> list[list[str]]:
         """The ids of each group of suspected duplicates, original first."""
-        return [list(group["id"]) for _, group in self.duplicates.groupby("group", sort=True)]
+        return [list(group["element"]) for _, group in self.duplicates.groupby("group", sort=True)]
 
     def to_json(self) -> dict:
         groups = []
         for _, group in self.duplicates.groupby("group", sort=True):
             first = group.iloc[0]
-            groups.append({"elements": [str(i) for i in group["id"]], "classification": str(first["classification"]),
+            groups.append({"elements": [str(i) for i in group["element"]], "classification": str(first["classification"]),
                            "box": [float(first[c]) for c in BOX_COLUMNS]})
         return {
             "unlinked_elements": {"count": len(self.unlinked_elements), "items": frame_records(self.unlinked_elements),
@@ -110,6 +110,7 @@ def element_checks(case: Case, snapshot: str | Snapshot | None = None) -> Elemen
     programme_codes.discard("")
     wbs = elements["wbs"].astype(str)
     unlinked = elements.loc[~wbs.isin(programme_codes).to_numpy(), ["id", "name", "wbs", "classification"]]
+    unlinked = unlinked.rename(columns={"id": "element"})
 
     note = ""
     rows = []
@@ -119,21 +120,21 @@ def element_checks(case: Case, snapshot: str | Snapshot | None = None) -> Elemen
             table = snap.activities_table
             codes = table["wbs"].astype(str)
             missing = (codes != "").to_numpy() & (carried.get_indexer(codes) < 0)
-            found = table.loc[missing, ["id", "name", "wbs"]].copy()
-            found["snapshot"] = snap.label
+            found = table.loc[missing, ["id", "name", "wbs"]].rename(columns={"id": "activity"})
+            found["snapshot"] = snap.folder
             rows.append(found)
     else:
         note = "not applicable: the case has no model elements"
     if rows:
-        unmodelled = pd.concat(rows, ignore_index=True).drop_duplicates(["id", "wbs"], keep="first")
+        unmodelled = pd.concat(rows, ignore_index=True).drop_duplicates(["activity", "wbs"], keep="first")
     else:
-        unmodelled = pd.DataFrame({c: pd.Series([], dtype=object) for c in ("id", "name", "wbs", "snapshot")})
+        unmodelled = pd.DataFrame({c: pd.Series([], dtype=object) for c in ("activity", "name", "wbs", "snapshot")})
     return ElementChecks(unlinked.reset_index(drop=True), unmodelled.reset_index(drop=True),
                          _duplicates(elements), note)
 
 
 def _duplicates(elements: pd.DataFrame) -> pd.DataFrame:
-    columns = ["group", "id", "name", "classification", *BOX_COLUMNS]
+    columns = ["group", "element", "name", "classification", *BOX_COLUMNS]
     n = len(elements)
     if n < 2:
         return pd.DataFrame({c: pd.Series([], dtype=object) for c in columns})
@@ -196,5 +197,6 @@ def _duplicates(elements: pd.DataFrame) -> pd.DataFrame:
     first_rows = roots[grouped]  # the root is the group's first row
     numbers = pd.factorize(first_rows, sort=True)[0] + 1
     frame = elements.iloc[grouped][["id", "name", "classification", *BOX_COLUMNS]].reset_index(drop=True)
+    frame = frame.rename(columns={"id": "element"})
     frame.insert(0, "group", numbers)
     return frame.sort_values(["group"], kind="stable").reset_index(drop=True)

@@ -61,11 +61,11 @@ DATA_CHECK_KEYS = ("open_ends", "dangling", "actual_date_changes", "future_actua
 
 #: Columns of each check's items.
 ITEM_COLUMNS: dict[str, tuple[str, ...]] = {
-    "open_ends": ("id", "name", "status", "missing"),
-    "dangling": ("id", "name", "status", "dangling"),
-    "actual_date_changes": ("id", "column", "earlier_snapshot", "earlier_value", "later_value"),
-    "future_actuals": ("id", "column", "value"),
-    "retrospective_edits": ("id", "column", "value", "earlier_snapshot", "earlier_data_date", "earlier_value"),
+    "open_ends": ("activity", "name", "status", "missing"),
+    "dangling": ("activity", "name", "status", "dangling"),
+    "actual_date_changes": ("activity", "column", "earlier_snapshot", "earlier_value", "later_value"),
+    "future_actuals": ("activity", "column", "value"),
+    "retrospective_edits": ("activity", "column", "value", "earlier_snapshot", "earlier_data_date", "earlier_value"),
     "out_of_sequence": ("pred", "succ", "lag", "succ_actual_start", "pred_actual_finish"),
     "redundant_links": ("pred", "succ", "lag", "via"),
     "corrections": ("table", "key", "column", "original", "corrected", "reason", "row"),
@@ -189,7 +189,7 @@ def _open_ends(snap: Snapshot, result, start_number: int, finish_number: int) ->
     missing = np.where(no_pred[rows] & no_succ[rows], "predecessor and successor",
                        np.where(no_pred[rows], "predecessor", "successor")).astype(object)
     items = _frame("open_ends", {
-        "id": net.ids[rows], "name": result.model.names[rows], "status": STATUS_NAMES[result.status[rows]],
+        "activity": net.ids[rows], "name": result.model.names[rows], "status": STATUS_NAMES[result.status[rows]],
         "missing": missing,
     })
     ends = []
@@ -219,7 +219,7 @@ def _dangling(snap: Snapshot, result, start_number: int, finish_number: int) -> 
     side = np.where(start_open[rows] & finish_open[rows], "start and finish",
                     np.where(start_open[rows], "start", "finish")).astype(object)
     items = _frame("dangling", {
-        "id": net.ids[rows], "name": result.model.names[rows], "status": STATUS_NAMES[result.status[rows]],
+        "activity": net.ids[rows], "name": result.model.names[rows], "status": STATUS_NAMES[result.status[rows]],
         "dangling": side,
     })
     return DataCheck("dangling", "Dangling starts and finishes", CHECKED, items,
@@ -262,7 +262,7 @@ def _actual_date_changes(snap: Snapshot, earlier: Snapshot | None) -> DataCheck:
         changed = present & ~np.isnat(previous) & (np.isnat(current) | (current != previous))
         rows = np.flatnonzero(changed)
         parts.append(pd.DataFrame({
-            "id": now["id"].to_numpy(dtype=object)[rows], "column": column, "earlier_snapshot": earlier.label,
+            "activity": now["id"].to_numpy(dtype=object)[rows], "column": column, "earlier_snapshot": earlier.folder,
             "earlier_value": _dates(previous[rows]), "later_value": _dates(current[rows]), "_row": rows,
         }))
     items = pd.concat(parts, ignore_index=True).sort_values(["_row", "column"], kind="stable")
@@ -284,8 +284,8 @@ def _retrospective_edits(snap: Snapshot, earlier: Snapshot | None) -> DataCheck:
         entered = ~np.isnat(current) & (current < limit) & (np.isnat(previous) | (current != previous))
         rows = np.flatnonzero(entered)
         parts.append(pd.DataFrame({
-            "id": now["id"].to_numpy(dtype=object)[rows], "column": column, "value": _dates(current[rows]),
-            "earlier_snapshot": earlier.label, "earlier_data_date": pd.Timestamp(earlier.data_date),
+            "activity": now["id"].to_numpy(dtype=object)[rows], "column": column, "value": _dates(current[rows]),
+            "earlier_snapshot": earlier.folder, "earlier_data_date": pd.Timestamp(earlier.data_date),
             "earlier_value": _dates(previous[rows]), "_row": rows,
         }))
     items = pd.concat(parts, ignore_index=True).sort_values(["_row", "column"], kind="stable")

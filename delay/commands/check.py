@@ -108,8 +108,8 @@ def _blank(value) -> str:
 
 
 def _print_findings(found: dict) -> None:
-    head = (f"{found['snapshot']} ({found['folder']}): data date {found['data_date']}, forecast completion "
-            f"{found['completion']}, contract completion in force {found['contract_completion_in_force']}")
+    head = (f"{found['label']} ({found['snapshot']}): data date {found['data_date']}, forecast completion "
+            f"{found['completion']}, contract completion in force {found['completion_in_force']}")
     click.echo(head)
     rows = []
     for metric in found["metrics"]:
@@ -141,9 +141,9 @@ def _print_findings(found: dict) -> None:
     duplicates = elements["duplicates"]
     print_table("Model elements", ["check", "count", "items"], [
         ["unlinked elements", elements["unlinked_elements"]["count"],
-         _listed([i["id"] for i in elements["unlinked_elements"]["items"]])],
+         _listed([i["element"] for i in elements["unlinked_elements"]["items"]])],
         ["unmodelled activities", elements["unmodelled_activities"]["count"],
-         _listed([i["id"] for i in elements["unmodelled_activities"]["items"]])],
+         _listed([i["activity"] for i in elements["unmodelled_activities"]["items"]])],
         ["duplicate groups", duplicates["count"],
          _listed([" = ".join(g["elements"]) for g in duplicates["groups"]], 4)],
         ["duplicate ids", "", duplicates["duplicate_ids"]],

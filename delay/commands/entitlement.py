@@ -69,10 +69,10 @@ def entitlement(case, method, output_format):
       extension of time     max(0, planned completion + excusable days - completion in force),
                             never more than the excusable days
       revised completion    completion in force + extension of time
-      culpable days         max(0, actual or forecast completion - revised completion)
+      damages days          max(0, actual or forecast completion - revised completion)
       acceleration          the contractor's net gain in the causation table: shown, never
                             cutting the extension of time
-      damages               culpable days x the rate, limited to the cap when one is set
+      damages               damages days x the rate, limited to the cap when one is set
       prolongation cost     compensable days x the rate of the period the delay arose in
 
     Days are calendar days. Beside each event: its notification date and the days claimed,
@@ -101,7 +101,7 @@ def entitlement(case, method, output_format):
                (f"prolongation cost ({currency})", lambda m: _text(m.prolongation_cost)),
                ("culpable delay (the contractor's net delay)", lambda m: m.culpable_delay_days),
                ("acceleration (the contractor's net recovery)", lambda m: m.acceleration_days),
-               ("culpable days (past the revised completion)", lambda m: m.culpable_days),
+               ("days of liquidated damages (past the revised completion)", lambda m: m.ld_days),
                (f"liquidated damages ({currency})",
                 lambda m: _text(m.ld_exposure) + (" (capped)" if m.ld_capped else "")),
                ("concurrent days", lambda m: m.concurrent_days)]
@@ -112,11 +112,11 @@ def entitlement(case, method, output_format):
         if len(m.sections):
             print_table(f"{m.method}: sections (never add them to each other or to the whole works)",
                         ["section", "milestone", "in force", "planned", "excusable", "extension", "revised",
-                         "actual or forecast", "compensable", "prolongation cost", "culpable", "damages", "note"],
+                         "actual or forecast", "compensable", "prolongation cost", "damages days", "damages", "note"],
                         [[s["section"], s["completion_activity"], _text(s["completion_in_force"]),
                           _text(s["planned_completion"]), _text(s["excusable_days"]), _text(s["eot_days"]),
                           _text(s["revised_completion"]), _text(s["actual_completion"]),
-                          _text(s["compensable_days"]), _text(s["prolongation_cost"]), _text(s["culpable_days"]),
+                          _text(s["compensable_days"]), _text(s["prolongation_cost"]), _text(s["ld_days"]),
                           _text(s["ld_exposure"]) + (" (capped)" if s["ld_capped"] else ""), _text(s["note"])]
                          for s in m.sections.to_dict("records")])
         table = m.causation.table
@@ -168,9 +168,9 @@ def compare(case, output_format):
     print_table("Days per event (a day explained by several events counts against each)",
                 ["event", "party", *methods], result.by_event.drop(columns="title").values.tolist())
     print_table("Sensitivity of the headline figures",
-                ["method", "variant", "progress", "concurrency", "extension of time", "compensable", "culpable",
+                ["method", "variant", "progress", "concurrency", "extension of time", "compensable", "damages days",
                  "damages", "changed"],
-                [[r.method, r.variant, r.progress, r.concurrency, r.eot_days, r.compensable_days, r.culpable_days,
+                [[r.method, r.variant, r.progress, r.concurrency, r.eot_days, r.compensable_days, r.ld_days,
                   f"{r.ld_exposure:,.2f}", "yes" if r.changed else ""] for r in table.itertuples()])
     for line in result.explanation:
         click.echo(line)

@@ -74,7 +74,7 @@ def impact(case, event_ids, order, base, output_format):
     if output_format == "json":
         click.echo(json.dumps(result.to_json(), indent=2))
         return
-    rows = [[r.id, r.title, r.party, r.impact, _day(r.start), _day(r.finish), r.alone_days, r.alone_work_days,
+    rows = [[r.event, r.title, r.party, r.impact, _day(r.start), _day(r.finish), r.alone_days, r.alone_work_days,
              r.completion_alone, r.increment_days, r.increment_work_days, r.completion_after,
              "; ".join(x for x in (r.applied, r.effect) if x)]
             for r in result.events.itertuples(index=False)]
@@ -122,7 +122,7 @@ def tia(case, output_format):
                 [[r.snapshot, r.data_date, r.completion_before, _listed(r.events), r.increment_days,
                   r.completion_after, r.next_snapshot, r.next_completion, r.residual_days]
                  for r in result.updates.itertuples(index=False)])
-    rows = [[r.id, r.title, r.party, r.impact, _day(r.start), r.update, r.completion_before, r.alone_days,
+    rows = [[r.event, r.title, r.party, r.impact, _day(r.start), r.update, r.completion_before, r.alone_days,
              r.increment_days, r.increment_work_days, r.completion_after,
              "; ".join(x for x in (r.applied, r.effect, *r.warnings) if x)]
             for r in result.events.itertuples(index=False)]

@@ -173,6 +173,7 @@ class CollapsedResult:
 
     def to_json(self) -> dict:
         return {
+            "method": "collapsed",
             "reproduced": bool(self.reproduced),
             "actual_completion": self.actual_completion.isoformat(),
             "modelled_completion": self.modelled_completion.isoformat(),

@@ -63,7 +63,7 @@ from ..model import PARTIES, Case, Snapshot
 __all__ = ["analyse", "ImpactedResult", "ImpactedRun", "event_changes", "order_events", "apply_event",
            "run_events", "EVENT_COLUMNS", "targets_of", "actual_finishes"]
 
-EVENT_COLUMNS = ["id", "title", "party", "impact", "start", "finish", "activities", "alone_days",
+EVENT_COLUMNS = ["event", "title", "party", "impact", "start", "finish", "activities", "alone_days",
                  "alone_work_days", "completion_alone", "increment_days", "increment_work_days",
                  "completion_after", "applied", "effect"]
 
@@ -304,16 +304,16 @@ class ImpactedResult:
             "total_days": self.total_days,
             "residual_days": self.residual_days,
             "explained_days": self.explained_days,
-            "sections": {section: {"target": run.target, "events": _event_json(run.events),
-                                   "total_days": run.total_days, "residual_days": run.residual_days,
-                                   "explained_days": run.explained_days}
-                         for section, run in self.sections.items()},
+            "sections": [{"section": section, "target": run.target, "events": _event_json(run.events),
+                          "total_days": run.total_days, "residual_days": run.residual_days,
+                          "explained_days": run.explained_days}
+                         for section, run in self.sections.items()],
             "notes": list(self.notes),
         }
 
 
 def _event_json(events: pd.DataFrame) -> list[dict]:
-    return [{"id": r.id, "party": r.party, "alone_days": int(r.alone_days), "increment_days": int(r.increment_days),
+    return [{"event": r.event, "party": r.party, "alone_days": int(r.alone_days), "increment_days": int(r.increment_days),
              "completion_after": r.completion_after.isoformat(), "applied": r.applied, "effect": r.effect}
             for r in events.itertuples(index=False)]
 
@@ -371,7 +371,7 @@ def _frame(register: pd.DataFrame, runs: _Runs, t: int, model: ScheduleModel) ->
     for i, (_, event) in enumerate(register.iterrows()):
         alone_day, before, now = int(runs.alone[i, t]), int(after[i]), int(after[i + 1])
         rows.append({
-            "id": event["id"], "title": event["title"], "party": event["party"], "impact": event["impact"],
+            "event": event["id"], "title": event["title"], "party": event["party"], "impact": event["impact"],
             "start": event["start"], "finish": event["finish"], "activities": split_ids(event["activities"]),
             "alone_days": alone_day - base, "alone_work_days": _work_days(model, base, alone_day),
             "completion_alone": day_to_date(alone_day), "increment_days": now - before,
@@ -445,7 +445,7 @@ def analyse(case: Case, base: str = "baseline", events: Sequence[str] | None = N
     Examples
     --------
     >>> result = analyse(load_case("case_demo"))   # doctest: +SKIP
-    >>> result.events[["id", "alone_days", "increment_days"]]   # doctest: +SKIP
+    >>> result.events[["event", "alone_days", "increment_days"]]   # doctest: +SKIP
 
     References
     ----------

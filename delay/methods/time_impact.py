@@ -96,7 +96,7 @@ class TimeImpactTrace:
                 for r in self.updates.itertuples(index=False)
             ],
             "events": [
-                {"id": r.id, "party": r.party, "update": r.update, "increment_days": int(r.increment_days),
+                {"event": r.event, "party": r.party, "update": r.update, "increment_days": int(r.increment_days),
                  "alone_days": int(r.alone_days), "completion_after": r.completion_after.isoformat(),
                  "applied": r.applied, "effect": r.effect, "warnings": list(r.warnings)}
                 for r in self.events.itertuples(index=False)
@@ -146,7 +146,7 @@ class TimeImpactResult:
 
     def to_json(self) -> dict:
         return {"method": "tia", **self.trace.to_json(),
-                "sections": {section: trace.to_json() for section, trace in self.sections.items()},
+                "sections": [{"section": section, **trace.to_json()} for section, trace in self.sections.items()],
                 "notes": list(self.notes)}
 
 

@@ -254,9 +254,11 @@ class WindowsResult:
 
     def to_json(self) -> dict:
         return {
-            "target": self.target, "ledger_calendar": self.ledger_calendar, "half_step": self.half_step,
+            "method": "windows", "target": self.target, "ledger_calendar": self.ledger_calendar,
+            "half_step": self.half_step,
             "windows": [w.to_json() for w in self.windows], "total_movement_days": self.total_movement_days,
-            "sections": {section: [w.to_json() for w in windows] for section, windows in self.sections.items()},
+            "sections": [{"section": section, "target": windows[0].target if windows else "",
+                          "windows": [w.to_json() for w in windows]} for section, windows in self.sections.items()],
             "attributions": [] if self.attributions is None else [
                 {k: (list(v) if isinstance(v, list) else v) for k, v in row.items()}
                 for row in self.attributions.to_dict("records")],
