@@ -1,0 +1,49 @@
+"""Pieces several sections share: the causation table of a method, the events of a
+modelled method with their notes, and the steps of a cumulative run for a staircase chart.
+"""
+
+from __future__ import annotations
+
+import pandas as pd
+
+from ..blocks import TableBlock
+from ..context import Context
+
+__all__ = ["causation_block", "event_rows", "steps_frame", "MODELLED_CAUSATION_COLUMNS", "CAUSATION_NOTE"]
+
+#: Causation columns shown for the modelled methods (time impact adds ``snapshot``).
+MODELLED_CAUSATION_COLUMNS = ["step", "event", "party", "days", "alone_days", "causes", "concurrent_with",
+                              "concurrent_days", "excusable_days", "compensable_days", "culpable_days",
+                              "classification"]
+
+CAUSATION_NOTE = ("Excusable days give time; compensable days (a part of the excusable days) give time and money; "
+                  "culpable days give neither. Excusable and culpable days add up to the days.")
+
+
+def causation_block(ctx: Context, method: str, key: str, title: str, columns: list[str], *,
+                    only_charged: bool = False, style: str = "") -> TableBlock:
+    """The causation table of ``method`` (from its entitlement), with ``columns`` shown;
+    ``only_charged`` keeps the rows with days or concurrency."""
+    table = ctx.entitlement.method(method).causation.table
+    if only_charged and len(table):
+        table = table[(table["days"] != 0) | (table["concurrent_with"].fillna("") != "")]
+    return ctx.table(key, title, method, table[[c for c in columns if c in table.columns]], note=CAUSATION_NOTE,
+                     style=style)
+
+
+def event_rows(events: pd.DataFrame, extra: list[str] = (), alone: list[str] = (),
+               increment: list[str] = ()) -> pd.DataFrame:
+    """A modelled method's events for the report: the figures, and one column of notes
+    (activities not found, what a hold left alone, warnings)."""
+    notes = []
+    for record in events.itertuples(index=False):
+        parts = [record.applied, record.effect, *getattr(record, "warnings", [])]
+        notes.append("; ".join(p for p in parts if p))
+    columns = ["id", "title", "party", "impact", "start", *extra, "alone_days", *alone, "increment_days", *increment,
+               "completion_after"]
+    return events[columns].assign(notes=notes)
+
+
+def steps_frame(rows: list[dict]) -> pd.DataFrame:
+    """The points of :func:`reports.figures.completion_steps`."""
+    return pd.DataFrame(rows, columns=["run", "step", "completion", "alone", "title"])
