@@ -17,7 +17,7 @@ import pandas as pd
 from delay.cpm import calendars_of, prepare
 from delay.model import Case
 
-from .blocks import Notice, Section, TableBlock
+from .blocks import Notice, Paragraph, Section, TableBlock
 from .tables import BuildUp, ReportTable
 
 __all__ = [
@@ -116,11 +116,15 @@ class Context:
             self._completions[snapshot.folder] = model.completion()
         return self._completions[snapshot.folder]
 
-    def left_out(self, section: Section, method: str) -> bool:
-        """True when ``method`` ran; else mark ``section`` as not shown, say why, and return False."""
-        if method in self.results:
-            return True
-        section.available = False
-        section.blocks.append(Notice(f"The {METHOD_NAMES[method]} was not run for this report (see the methods "
-                                     "chosen in the inputs section)."))
-        return False
+    def method_section(self, method: str, title: str, explanation: str) -> tuple[Section, Any]:
+        """The section of ``method`` and the method's result: the section opens with
+        ``explanation`` when the method ran; else it says why it is not shown, is marked not
+        available, and the result is ``None``."""
+        section = Section(method, title)
+        if method not in self.results:
+            section.available = False
+            section.blocks.append(Notice(f"The {METHOD_NAMES[method]} was not run for this report (see the methods "
+                                         "chosen in the inputs section)."))
+            return section, None
+        section.blocks.append(Paragraph(explanation))
+        return section, self.results[method]

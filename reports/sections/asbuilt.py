@@ -16,7 +16,7 @@ import pandas as pd
 
 from delay.cpm import calendars_of, prepare
 
-from ..blocks import Facts, FigureBlock, Paragraph, Section
+from ..blocks import Facts, FigureBlock, Section
 from ..context import Context, days_text
 from ..figures import planned_against_built
 
@@ -82,13 +82,11 @@ def driving_path_frame(ctx: Context, result) -> pd.DataFrame:
 
 def section(ctx: Context) -> Section:
     """The as planned against as built section (see the module docstring)."""
-    asbuilt = Section("asbuilt", "As planned against as built")
-    if not ctx.left_out(asbuilt, "asbuilt"):
+    asbuilt, result = ctx.method_section("asbuilt", "As planned against as built", _EXPLAIN)
+    if result is None:
         return asbuilt
-    result = ctx.results["asbuilt"]
     case = ctx.case
     blocks = asbuilt.blocks
-    blocks.append(Paragraph(_EXPLAIN))
     blocks.append(Facts((("Planned completion", result.planned_completion.isoformat()),
                          ("Actual completion", result.actual_completion.isoformat()),
                          ("Completion variance", days_text(result.completion_variance_days)))))

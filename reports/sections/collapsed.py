@@ -26,12 +26,10 @@ _EXPLAIN = (
 
 def section(ctx: Context) -> Section:
     """The collapsed as-built section (see the module docstring)."""
-    collapsed = Section("collapsed", "Collapsed as-built")
-    if not ctx.left_out(collapsed, "collapsed"):
+    collapsed, result = ctx.method_section("collapsed", "Collapsed as-built", _EXPLAIN)
+    if result is None:
         return collapsed
-    result = ctx.results["collapsed"]
     blocks = collapsed.blocks
-    blocks.append(Paragraph(_EXPLAIN))
     blocks.append(Facts((
         ("Actual completion", result.actual_completion.isoformat()),
         ("Completion of the as-built model", result.modelled_completion.isoformat()),

@@ -10,7 +10,7 @@ party, and the method's causation (``Entitlement.causation``).
 
 from __future__ import annotations
 
-from ..blocks import Facts, FigureBlock, Notice, Paragraph, Section
+from ..blocks import Facts, FigureBlock, Notice, Section
 from ..context import Context, days_text
 from ..figures import completion_steps
 from .common import MODELLED_CAUSATION_COLUMNS, causation_block, event_rows, steps_frame
@@ -29,12 +29,10 @@ _EXPLAIN = (
 
 def section(ctx: Context) -> Section:
     """The impacted as-planned section (see the module docstring)."""
-    impacted = Section("impacted", "Impacted as-planned")
-    if not ctx.left_out(impacted, "impacted"):
+    impacted, result = ctx.method_section("impacted", "Impacted as-planned", _EXPLAIN)
+    if result is None:
         return impacted
-    result = ctx.results["impacted"]
     blocks = impacted.blocks
-    blocks.append(Paragraph(_EXPLAIN))
     if not len(result.events):
         blocks.append(Notice("The delay event register holds no events: nothing was inserted."))
     blocks.append(Facts((("Programme impacted", result.base),

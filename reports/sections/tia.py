@@ -9,7 +9,7 @@ and the method's causation (``Entitlement.causation``).
 
 from __future__ import annotations
 
-from ..blocks import FigureBlock, Notice, Paragraph, Section
+from ..blocks import FigureBlock, Notice, Section
 from ..context import Context
 from ..figures import completion_steps
 from .common import MODELLED_CAUSATION_COLUMNS, causation_block, event_rows, steps_frame
@@ -27,12 +27,10 @@ _EXPLAIN = (
 
 def section(ctx: Context) -> Section:
     """The time impact analysis section (see the module docstring)."""
-    tia = Section("tia", "Time impact analysis")
-    if not ctx.left_out(tia, "tia"):
+    tia, result = ctx.method_section("tia", "Time impact analysis", _EXPLAIN)
+    if result is None:
         return tia
-    result = ctx.results["tia"]
     blocks = tia.blocks
-    blocks.append(Paragraph(_EXPLAIN))
     if not len(result.events):
         blocks.append(Notice("The delay event register holds no events: nothing was inserted."))
     rows = []

@@ -23,7 +23,7 @@ import pandas as pd
 
 from delay.contract import completion_in_force, grants
 
-from ..blocks import FigureBlock, Folded, Paragraph, Section, Sentences
+from ..blocks import FigureBlock, Folded, Section, Sentences
 from ..context import Context, days_text
 from ..figures import PARTIES_DRAWN, completion_trend, window_movements, window_parties
 from .common import causation_block
@@ -107,12 +107,10 @@ def _trend(ctx: Context, result) -> list:
 
 def section(ctx: Context) -> Section:
     """The windows section (see the module docstring)."""
-    windows = Section("windows", "Windows analysis")
-    if not ctx.left_out(windows, "windows"):
+    windows, result = ctx.method_section("windows", "Windows analysis", _EXPLAIN)
+    if result is None:
         return windows
-    result = ctx.results["windows"]
     blocks = windows.blocks
-    blocks.append(Paragraph(_EXPLAIN))
     blocks += _trend(ctx, result)
     blocks.append(Sentences(tuple(w.sentence for w in result.windows), heading="Window by window", ordered=True,
                             style="story"))
