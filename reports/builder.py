@@ -81,9 +81,11 @@ class ReportContent:
     left_out: list[str]
 
     def fingerprints(self) -> dict[str, str]:
+        """The SHA-256 of each table's canonical CSV, by table key."""
         return {t.key: t.fingerprint() for t in self.tables}
 
     def table(self, key: str) -> ReportTable:
+        """The table named ``key`` (:class:`KeyError` when there is none)."""
         for table in self.tables:
             if table.key == key:
                 return table
@@ -97,6 +99,17 @@ def resolve_methods(case: Case, methods: str | Sequence[str] | None) -> tuple[li
     programmes; the collapsed as-built and as planned against as built need an as-built
     record). Names given are kept as given (in section order) and an unsupported one fails
     in its method with the method's own message.
+
+    Parameters
+    ----------
+    case: a loaded case.
+    methods: names among :data:`REPORT_METHODS` (a list or a comma-separated text),
+        ``None`` or ``"all"``.
+
+    Returns
+    -------
+    tuple of list of str
+        The methods, in section order, and the reasons for the ones left out.
 
     Raises
     ------

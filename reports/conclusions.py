@@ -57,6 +57,10 @@ def extension_beyond_overrun(item, *, actual_word: str = "actual") -> str | None
     ----------
     item: a :class:`delay.entitlement.Entitlement`.
     actual_word: ``"actual"``, or ``"forecast"`` when the case has no as-built record.
+
+    Returns
+    -------
+    str or None
     """
     overrun = item.overrun_days
     excess = item.eot_days - max(0, overrun)
@@ -88,6 +92,10 @@ def unexplained_days(item) -> str | None:
     Parameters
     ----------
     item: a :class:`delay.entitlement.Entitlement`.
+
+    Returns
+    -------
+    str or None
     """
     table = item.causation.table
     if not len(table):
@@ -113,7 +121,17 @@ def unexplained_days(item) -> str | None:
 
 
 def collapsed_model(result) -> str | None:
-    """The sentence for a collapsed as-built model that does not reproduce the actual dates."""
+    """The sentence for a collapsed as-built model that does not reproduce the actual dates.
+
+    Parameters
+    ----------
+    result: a :class:`delay.methods.collapsed.CollapsedResult`.
+
+    Returns
+    -------
+    str or None
+        ``None`` when the model reproduces them.
+    """
     if result.reproduced:
         return None
     count = len(result.mismatches)
@@ -125,7 +143,18 @@ def collapsed_model(result) -> str | None:
 
 def events_left_alone(method: str, result) -> list[str]:
     """Sentences for the events a method could not score, applied only in part, or whose
-    hold left work alone."""
+    hold left work alone.
+
+    Parameters
+    ----------
+    method: ``impacted``, ``tia`` or ``collapsed``.
+    result: the method's result (its ``events``, with ``applied`` and ``effect``; for the
+        collapsed as-built its ``by_event``, with ``days_earlier`` and ``note``).
+
+    Returns
+    -------
+    list of str
+    """
     found = []
     if method == "collapsed":
         events = result.by_event
@@ -139,14 +168,26 @@ def events_left_alone(method: str, result) -> list[str]:
     untouched = [str(row.id) for row in events.itertuples(index=False) if row.effect]
     if untouched:
         which = " and ".join([", ".join(untouched[:-1]), untouched[-1]] if len(untouched) > 1 else untouched)
-        found.append(f"{_name(method)}: {which} leave some of their activities alone (a hold stops only work the "
-                     "programme has in its period), so they score less than their periods suggest; the events "
-                     "table says which.")
+        one = len(untouched) == 1
+        verb, its, score = ("leaves", "its", "it scores less than its period suggests") if one else (
+            "leave", "their", "they score less than their periods suggest")
+        found.append(f"{_name(method)}: {which} {verb} some of {its} activities alone (a hold stops only work the "
+                     f"programme has in its period), so {score}; the events table says which.")
     return found
 
 
 def tia_warnings(result) -> list[str]:
-    """The time impact analysis's warnings that a programme may already show an event."""
+    """The time impact analysis's warnings that a programme may already show an event.
+
+    Parameters
+    ----------
+    result: a :class:`delay.methods.time_impact.TimeImpactResult` (its events' ``warnings``).
+
+    Returns
+    -------
+    list of str
+        One sentence per warning, naming its event.
+    """
     return [f"Time impact analysis, {row.id}: {warning}." for row in result.events.itertuples(index=False)
             for warning in row.warnings]
 

@@ -55,12 +55,41 @@ CAUTIONS: tuple[str, ...] = (
 
 
 def days_text(n: int) -> str:
-    """``n`` calendar days in words: ``"1 calendar day"``, ``"-3 calendar days"``."""
+    """``n`` calendar days in words.
+
+    Parameters
+    ----------
+    n: a number of calendar days.
+
+    Returns
+    -------
+    str
+
+    Examples
+    --------
+    >>> days_text(1), days_text(-3)
+    ('1 calendar day', '-3 calendar days')
+    """
     return f"{n} calendar day{'s' if abs(n) != 1 else ''}"
 
 
 def money_text(amount: float, currency: str) -> str:
-    """A sum of money in words: ``"EUR 54,600.00"``."""
+    """A sum of money in words.
+
+    Parameters
+    ----------
+    amount: the sum.
+    currency: its ISO 4217 code.
+
+    Returns
+    -------
+    str
+
+    Examples
+    --------
+    >>> money_text(54600, "EUR")
+    'EUR 54,600.00'
+    """
     return f"{currency} {float(amount):,.2f}"
 
 
@@ -90,16 +119,39 @@ class Context:
 
     @property
     def entitled(self) -> list:
-        """The :class:`delay.entitlement.Entitlement` of each method assessed, in order."""
+        """The entitlement of each method assessed.
+
+        Returns
+        -------
+        list of delay.entitlement.Entitlement
+            In the order of the methods; empty when none was assessed.
+        """
         return list(self.entitlement.methods) if self.entitlement is not None else []
 
     @property
     def currency(self) -> str:
+        """The case's currency (``[commercial] currency``)."""
         return self.case.settings.commercial.currency
 
     def table(self, key: str, title: str, section: str, frame: pd.DataFrame, *, note: str = "",
               labels: dict | None = None, style: str = "", build_up: BuildUp | None = None) -> TableBlock:
-        """Register a table (its key must be new) and return the block that shows it."""
+        """Register a table of the report and return the block that shows it.
+
+        Parameters
+        ----------
+        key, title, section, frame, note, labels, build_up: as for
+            :class:`reports.tables.ReportTable`.
+        style: the block's style (:class:`reports.blocks.TableBlock`).
+
+        Returns
+        -------
+        reports.blocks.TableBlock
+
+        Raises
+        ------
+        ValueError
+            A key already registered: two tables of one report never share a name.
+        """
         if any(t.key == key for t in self.tables):
             raise ValueError(f"two tables named {key}")
         table = ReportTable(key=key, title=title, section=section, frame=frame.reset_index(drop=True),
@@ -108,7 +160,16 @@ class Context:
         return TableBlock(table, style=style)
 
     def completion(self, snapshot) -> dt.date:
-        """The forecast completion of ``snapshot`` (scheduled once per snapshot)."""
+        """The forecast completion of a programme, scheduled once per programme.
+
+        Parameters
+        ----------
+        snapshot: a :class:`delay.model.Snapshot` of the case.
+
+        Returns
+        -------
+        datetime.date
+        """
         if snapshot.folder not in self._completions:
             if self._calendars is None:
                 self._calendars = calendars_of(self.case)
@@ -117,9 +178,21 @@ class Context:
         return self._completions[snapshot.folder]
 
     def method_section(self, method: str, title: str, explanation: str) -> tuple[Section, Any]:
-        """The section of ``method`` and the method's result: the section opens with
-        ``explanation`` when the method ran; else it says why it is not shown, is marked not
-        available, and the result is ``None``."""
+        """The section of a method, opened, and the method's result.
+
+        Parameters
+        ----------
+        method: a name of :data:`REPORT_METHODS` (also the section's key).
+        title: the section's title.
+        explanation: the paragraph the section opens with when the method ran.
+
+        Returns
+        -------
+        tuple
+            The :class:`~reports.blocks.Section` and the method's result; when the method
+            did not run, the section says why and is marked not available, and the result
+            is ``None``.
+        """
         section = Section(method, title)
         if method not in self.results:
             section.available = False

@@ -41,6 +41,15 @@ def safe_link(address: str) -> bool:
     Blanks and control characters are taken out before the scheme is read, as browsers do
     (``java\\tscript:`` is ``javascript:``).
 
+    Parameters
+    ----------
+    address: a link's address as written in the Markdown (after markdown-it-py's
+        normalisation).
+
+    Returns
+    -------
+    bool
+
     Examples
     --------
     >>> [safe_link(a) for a in ("https://example.org", "#part", "mailto:a@b.c", "javascript:alert(1)",
@@ -56,14 +65,17 @@ def _parser() -> MarkdownIt:
     parser.validateLink = safe_link
 
     def image(tokens, index, options, env):
+        """An image: its description in words, no image."""
         text = html.escape(tokens[index].content or "an image", quote=False)
         return f'<span class="image-left-out">[{text}: image not shown]</span>'
 
     def link_open(tokens, index, options, env):
+        """A link kept: it opens no other page's access to this one."""
         tokens[index].attrSet("rel", "noopener noreferrer")
         return parser.renderer.renderToken(tokens, index, options, env)
 
     def heading(tokens, index, options, env):
+        """A heading three levels down."""
         token = tokens[index]
         token.tag = f"h{min(6, int(token.tag[1]) + 3)}"
         return parser.renderer.renderToken(tokens, index, options, env)

@@ -5,8 +5,8 @@ every text that comes from the case (names, titles, notes) is escaped. The only 
 passed through unescaped is made by this package: plotly's figure fragments (whose data is
 JSON with ``<`` written as ``\\u003c``), the element timeline's fragment (which escapes
 its own text) and the analyst's opinion as :func:`reports.opinion.render_opinion` renders
-it (Markdown with raw HTML off, links checked, no images). plotly.js is inlined once in the page's head, so the page opens with no
-network access.
+it (Markdown with raw HTML off, links checked, no images). plotly.js is inlined once in the
+page's head, so the page opens with no network access.
 """
 
 from __future__ import annotations
@@ -34,7 +34,13 @@ MATRIX_COLUMNS = 10
 
 
 def environment():
-    """The jinja2 environment of the report's templates (autoescaping on)."""
+    """The jinja2 environment of the report's templates.
+
+    Returns
+    -------
+    jinja2.Environment
+        Autoescaping on, undefined names an error.
+    """
     from jinja2 import Environment, PackageLoader, StrictUndefined
 
     return Environment(loader=PackageLoader("reports", "templates"), autoescape=True,
@@ -74,8 +80,20 @@ def _rows(table: ReportTable) -> tuple[list[list[str]], list[str]]:
 
 
 def table_view(table: ReportTable, style: str = "") -> dict[str, Any]:
-    """What the template needs to show ``table``: its headings and rows in parts (a wide
-    matrix is cut into parts of :data:`MATRIX_COLUMNS` programmes), whether it is folded."""
+    """What the template needs to show a table.
+
+    Parameters
+    ----------
+    table: the table.
+    style: its block's style (``matrix`` is cut into parts of :data:`MATRIX_COLUMNS`
+        programmes; ``folded`` and ``headline`` are never folded again).
+
+    Returns
+    -------
+    dict
+        Headings and rows (total rows of a build-up included) in parts, the counts, and
+        whether the table is folded.
+    """
     frame = table.frame
     rows, classes = _rows(table)
     headings = table.headings
@@ -147,6 +165,11 @@ def render_html(content: ReportContent, manifest: dict) -> str:
     ----------
     content: from :func:`reports.builder.compute`.
     manifest: the manifest written beside the page (its facts fill the manifest section).
+
+    Returns
+    -------
+    str
+        The page, one self-contained HTML document.
     """
     from plotly.offline import get_plotlyjs
 

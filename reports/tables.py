@@ -260,12 +260,32 @@ class BuildUp:
     group: str = ""
 
     def recomputed(self, columns: Sequence[str]) -> list[str]:
-        """The columns that get a formula column, in the table's column order."""
+        """The columns that get a formula column in the workbook.
+
+        Parameters
+        ----------
+        columns: the table's columns.
+
+        Returns
+        -------
+        list of str
+            In the table's column order.
+        """
         wanted = set(self.products) | set(self.capped) | set(self.totals)
         return [c for c in columns if c in wanted]
 
     def groups(self, frame: pd.DataFrame) -> list[tuple[int, int]]:
-        """The runs of rows totalled together, as ``(first, past the last)`` positions."""
+        """The runs of rows totalled together.
+
+        Parameters
+        ----------
+        frame: the table's rows.
+
+        Returns
+        -------
+        list of tuple
+            ``(first, past the last)`` positions of each run, in order.
+        """
         if not len(frame):
             return []
         if not self.group:
@@ -279,11 +299,33 @@ class BuildUp:
         return runs
 
     def total_label(self, frame: pd.DataFrame, first: int) -> str:
-        """The words in the first cell of the total row of the group starting at ``first``."""
+        """The words in the first cell of a total row.
+
+        Parameters
+        ----------
+        frame: the table's rows.
+        first: the position of the group's first row.
+
+        Returns
+        -------
+        str
+            ``"total"``, or ``"total, <the group's value>"``.
+        """
         return f"total, {frame[self.group].iloc[first]}" if self.group else "total"
 
     def total(self, frame: pd.DataFrame, first: int, stop: int) -> dict[str, float | int]:
-        """The sums of :attr:`totals` over rows ``first`` to ``stop - 1``."""
+        """The sums of :attr:`totals` over a group.
+
+        Parameters
+        ----------
+        frame: the table's rows.
+        first, stop: the group's positions (``stop`` past the last).
+
+        Returns
+        -------
+        dict
+            Column to sum: a float rounded to cents where the column holds floats, else an int.
+        """
         sums = {}
         for column in self.totals:
             values = frame[column].iloc[first:stop]

@@ -20,7 +20,8 @@ import pandas as pd
 import pytest
 
 from delay.comparison import DISAGREEMENT_DAYS, MethodComparison, disagreements, why_they_differ
-from reports.conclusions import extension_beyond_overrun, unexplained_days
+from reports.conclusions import (collapsed_model, events_left_alone, extension_beyond_overrun, tia_warnings,
+                                 unexplained_days)
 from reports.opinion import render_opinion, safe_link
 from reports.writer import build
 from test_report import rows_of, write_small_case
@@ -101,6 +102,28 @@ def test_days_no_event_explains_gains_and_recovery_are_named():
     assert "18 days of recovery" in text
     only_events = pd.DataFrame({"party": ["employer"], "basis": ["event"], "days": [5]})
     assert unexplained_days(SimpleNamespace(method="tia", causation=SimpleNamespace(table=only_events))) is None
+
+
+def test_events_not_scored_or_applied_in_part_and_programmes_that_show_an_event_are_named():
+    events = pd.DataFrame({"id": ["E1", "E2", "E3"], "applied": ["", "not in Baseline: X9", ""],
+                           "effect": ["", "", "alone: A: no effect on this programme"],
+                           "warnings": [["Update 02 already shows A 5 work days later"], [], []]})
+    found = events_left_alone("impacted", SimpleNamespace(events=events))
+    assert found == ["Impacted as-planned: E2 is applied only in part (not in Baseline: X9).",
+                     "Impacted as-planned: E3 leaves some of its activities alone (a hold stops only work the "
+                     "programme has in its period), so it scores less than its period suggests; the events table "
+                     "says which."]
+    assert tia_warnings(SimpleNamespace(events=events)) == [
+        "Time impact analysis, E1: Update 02 already shows A 5 work days later."]
+    by_event = pd.DataFrame({"event": ["E1", "E2"], "days_earlier": pd.array([3, None], dtype="Int64"),
+                             "note": ["", "nothing of it is in the as-built record"]})
+    assert events_left_alone("collapsed", SimpleNamespace(by_event=by_event)) == [
+        "Collapsed as-built: E2 is not scored: nothing of it is in the as-built record."]
+    model = SimpleNamespace(reproduced=False, mismatches=pd.DataFrame({"activity": ["A", "B"]}),
+                            modelled_completion=dt.date(2025, 2, 3), actual_completion=dt.date(2025, 2, 1))
+    assert "does not reproduce the actual dates of 2 activities (modelled completion 2025-02-03, actual 2025-02-01)" \
+        in collapsed_model(model)
+    assert collapsed_model(SimpleNamespace(reproduced=True)) is None
 
 
 def _comparison(eot, compensable, culpable) -> MethodComparison:

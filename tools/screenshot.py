@@ -32,6 +32,27 @@ ARGUMENTS = ["--no-sandbox", "--disable-gpu", "--disable-background-networking",
 
 
 def take(report: Path, out: Path, *, section: str, week: float, width: int, height: int) -> Path:
+    """Photograph a report page with headless Chromium.
+
+    Parameters
+    ----------
+    report: the report's ``report.html``.
+    out: the PNG file to write.
+    section: :data:`FIRST_PAGE`, or the id of a section.
+    week: how far through the project the element timeline is set, 0 to 1.
+    width, height: the window's size in pixels (a section: at most ``height`` of it).
+
+    Returns
+    -------
+    Path
+        ``out``.
+
+    Raises
+    ------
+    SystemExit
+        The page reported a problem (a console error, a network request), or has no such
+        section.
+    """
     from playwright.sync_api import sync_playwright
 
     problems: list[str] = []
@@ -78,6 +99,7 @@ def take(report: Path, out: Path, *, section: str, week: float, width: int, heig
 
 
 def main() -> None:
+    """The command line: build the demo report unless ``--report`` names one, then photograph it."""
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     parser.add_argument("--report", type=Path, help="a report folder (default: build the demo report)")
     parser.add_argument("--out", type=Path, default=ROOT / "docs" / "report.png")

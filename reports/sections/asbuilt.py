@@ -43,8 +43,19 @@ def _wbs_key(code) -> tuple:
 
 
 def driving_path_frame(ctx: Context, result) -> pd.DataFrame:
-    """The activities on the baseline driving path and the as-built critical path, planned
-    against actual, by work breakdown code then start."""
+    """The activities on the baseline driving path and the as-built critical path.
+
+    Parameters
+    ----------
+    ctx: the report's results.
+    result: a :class:`delay.methods.as_built.AsBuiltResult`.
+
+    Returns
+    -------
+    pandas.DataFrame
+        Planned against actual, by work breakdown code then start, with the paths each
+        activity is on and whether it is a milestone.
+    """
     case = ctx.case
     planned_path = prepare(case, case.baseline, calendars=calendars_of(case)).run().driving_path()
     built_path = list(result.critical_path["activity"])
@@ -81,7 +92,16 @@ def driving_path_frame(ctx: Context, result) -> pd.DataFrame:
 
 
 def section(ctx: Context) -> Section:
-    """The as planned against as built section (see the module docstring)."""
+    """The as planned against as built section (see the module docstring).
+
+    Parameters
+    ----------
+    ctx: the report's results.
+
+    Returns
+    -------
+    reports.blocks.Section
+    """
     asbuilt, result = ctx.method_section("asbuilt", "As planned against as built", _EXPLAIN)
     if result is None:
         return asbuilt

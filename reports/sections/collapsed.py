@@ -25,7 +25,16 @@ _EXPLAIN = (
 
 
 def section(ctx: Context) -> Section:
-    """The collapsed as-built section (see the module docstring)."""
+    """The collapsed as-built section (see the module docstring).
+
+    Parameters
+    ----------
+    ctx: the report's results.
+
+    Returns
+    -------
+    reports.blocks.Section
+    """
     collapsed, result = ctx.method_section("collapsed", "Collapsed as-built", _EXPLAIN)
     if result is None:
         return collapsed

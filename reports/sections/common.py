@@ -22,8 +22,21 @@ CAUSATION_NOTE = ("Excusable days give time; compensable days (a part of the exc
 
 def causation_block(ctx: Context, method: str, key: str, title: str, columns: list[str], *,
                     only_charged: bool = False, style: str = "") -> TableBlock:
-    """The causation table of ``method`` (from its entitlement), with ``columns`` shown;
-    ``only_charged`` keeps the rows with days or concurrency."""
+    """The causation table of a method, from its entitlement.
+
+    Parameters
+    ----------
+    ctx: the report's results.
+    method: the method (also the section's key).
+    key, title: the table's.
+    columns: the columns shown (those the table has).
+    only_charged: keep only the rows with days or concurrency.
+    style: the block's style.
+
+    Returns
+    -------
+    reports.blocks.TableBlock
+    """
     table = ctx.entitlement.method(method).causation.table
     if only_charged and len(table):
         table = table[(table["days"] != 0) | (table["concurrent_with"].fillna("") != "")]
@@ -33,8 +46,20 @@ def causation_block(ctx: Context, method: str, key: str, title: str, columns: li
 
 def event_rows(events: pd.DataFrame, extra: list[str] = (), alone: list[str] = (),
                increment: list[str] = ()) -> pd.DataFrame:
-    """A modelled method's events for the report: the figures, and one column of notes
-    (activities not found, what a hold left alone, warnings)."""
+    """A modelled method's events for the report.
+
+    Parameters
+    ----------
+    events: the method's events (:data:`delay.methods.impacted.EVENT_COLUMNS`).
+    extra, alone, increment: columns shown after ``start``, after ``alone_days`` and after
+        ``increment_days``.
+
+    Returns
+    -------
+    pandas.DataFrame
+        The figures, and one column ``notes``: activities not found, what a hold left
+        alone, warnings.
+    """
     notes = []
     for record in events.itertuples(index=False):
         parts = [record.applied, record.effect, *getattr(record, "warnings", [])]
@@ -45,5 +70,14 @@ def event_rows(events: pd.DataFrame, extra: list[str] = (), alone: list[str] = (
 
 
 def steps_frame(rows: list[dict]) -> pd.DataFrame:
-    """The points of :func:`reports.figures.completion_steps`."""
+    """The points of :func:`reports.figures.completion_steps`.
+
+    Parameters
+    ----------
+    rows: dicts with ``run``, ``step``, ``completion``, ``alone``, ``title``.
+
+    Returns
+    -------
+    pandas.DataFrame
+    """
     return pd.DataFrame(rows, columns=["run", "step", "completion", "alone", "title"])

@@ -21,7 +21,16 @@ _EXPLAIN = (
 
 
 def section(ctx: Context) -> Section:
-    """The comparison section (see the module docstring)."""
+    """The comparison section (see the module docstring).
+
+    Parameters
+    ----------
+    ctx: the report's results.
+
+    Returns
+    -------
+    reports.blocks.Section
+    """
     comparison = Section("comparison", "Method comparison")
     if ctx.comparison is None:
         comparison.available = False

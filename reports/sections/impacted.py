@@ -28,7 +28,16 @@ _EXPLAIN = (
 
 
 def section(ctx: Context) -> Section:
-    """The impacted as-planned section (see the module docstring)."""
+    """The impacted as-planned section (see the module docstring).
+
+    Parameters
+    ----------
+    ctx: the report's results.
+
+    Returns
+    -------
+    reports.blocks.Section
+    """
     impacted, result = ctx.method_section("impacted", "Impacted as-planned", _EXPLAIN)
     if result is None:
         return impacted
@@ -45,7 +54,8 @@ def section(ctx: Context) -> Section:
              "title": "the programme before any event"}]
     rows += [{"run": result.base, "step": r.id, "completion": r.completion_after, "alone": r.completion_alone,
               "title": r.title} for r in result.events.itertuples(index=False)]
-    blocks.append(FigureBlock("impacted_steps", completion_steps(steps_frame(rows), title="Completion after each event"),
+    chart = completion_steps(steps_frame(rows), title="Completion after each event")
+    blocks.append(FigureBlock("impacted_steps", chart,
                               "The staircase is the cumulative run; hollow markers show each event alone."))
     blocks.append(ctx.table("impacted_events", "Each event alone and in the cumulative run", "impacted",
                             event_rows(result.events, ["finish"], ["alone_work_days", "completion_alone"],

@@ -26,7 +26,23 @@ _METHOD_MODULES = {"windows": windows, "impacted": impacted, "tia": time_impact,
 
 
 def docstring_part(doc: str, heading: str) -> list[str]:
-    """The paragraphs under ``heading`` (a numpydoc-style heading) of a docstring."""
+    """The paragraphs under a numpydoc-style heading of a docstring.
+
+    Parameters
+    ----------
+    doc: the docstring (a method module's ``__doc__``).
+    heading: ``"References"``, ``"Assumptions"``, ...
+
+    Returns
+    -------
+    list of str
+        One text per paragraph or list item, lines joined.
+
+    Examples
+    --------
+    >>> docstring_part("Intro.\\n\\nReferences\\n----------\\nA book,\\n2011.\\n", "References")
+    ['A book, 2011.']
+    """
     lines = (doc or "").splitlines()
     out: list[str] = []
     inside = False
@@ -56,7 +72,19 @@ def docstring_part(doc: str, heading: str) -> list[str]:
 
 
 def settings_frame(case, methods: list[str], title: str) -> pd.DataFrame:
-    """Every setting of the case (``part.name``) and of this report."""
+    """Every setting of the case and of this report.
+
+    Parameters
+    ----------
+    case: the loaded case.
+    methods: the methods of the report.
+    title: the report's title.
+
+    Returns
+    -------
+    pandas.DataFrame
+        ``setting`` (``part.name``) and ``value``.
+    """
     settings = case.settings
     rows = []
     for part in ("project", "schedule", "commercial", "analysis", "report"):
@@ -77,7 +105,17 @@ def _corrections(case) -> pd.DataFrame:
 
 
 def section(ctx: Context, title: str) -> Section:
-    """The inputs section (see the module docstring); ``title`` is the report's title."""
+    """The inputs section (see the module docstring).
+
+    Parameters
+    ----------
+    ctx: the report's results.
+    title: the report's title (listed among the settings).
+
+    Returns
+    -------
+    reports.blocks.Section
+    """
     inputs = Section("inputs", "Inputs and method")
     case = ctx.case
     blocks = inputs.blocks

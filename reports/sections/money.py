@@ -41,7 +41,18 @@ _EXPLAIN = (
 
 
 def rates_frame(case) -> pd.DataFrame:
-    """The rates of time-related cost: each period of prolongation_rates.csv and the flat rate."""
+    """The rates of time-related cost and their sources.
+
+    Parameters
+    ----------
+    case: the loaded case.
+
+    Returns
+    -------
+    pandas.DataFrame
+        ``from``, ``to``, ``cost_per_day``, ``source``: each period of
+        prolongation_rates.csv (by its row), then the flat rate of case.toml.
+    """
     rates = case.prolongation_rates.reset_index(drop=True)
     rows = [{"from": pd.Timestamp(r["from"]).date(), "to": pd.Timestamp(r["to"]).date(),
              "cost_per_day": float(r["cost_per_day"]), "source": f"prolongation_rates.csv row {k + 2}"}
@@ -53,7 +64,18 @@ def rates_frame(case) -> pd.DataFrame:
 
 
 def prolongation_frame(ctx: Context) -> pd.DataFrame:
-    """Each method's prolongation build-up, one row per rate applied, method by method."""
+    """Each method's prolongation build-up, one row per rate applied.
+
+    Parameters
+    ----------
+    ctx: the report's results.
+
+    Returns
+    -------
+    pandas.DataFrame
+        ``method`` (in words) and the columns of
+        :func:`delay.entitlement.prolongation_build_up`, method by method.
+    """
     frames = [m.prolongation.assign(method=METHOD_NAMES[m.method]) for m in ctx.entitled
               if m.prolongation is not None and len(m.prolongation)]
     columns = ["method", "from", "to", "source", "cost_per_day", "days", "cost"]
@@ -63,7 +85,20 @@ def prolongation_frame(ctx: Context) -> pd.DataFrame:
 
 
 def damages_frame(ctx: Context) -> pd.DataFrame:
-    """Each method's liquidated damages: the whole works', then each other section's."""
+    """Each method's liquidated damages: the whole works', then each other section's.
+
+    Parameters
+    ----------
+    ctx: the report's results.
+
+    Returns
+    -------
+    pandas.DataFrame
+        ``method``, ``applies_to``, ``culpable_days``, ``liquidated_damages_per_day``,
+        ``damages_before_cap`` (days x rate), ``cap`` (``[commercial]
+        liquidated_damages_cap``, 0: none), ``ld_exposure`` and ``ld_capped`` (the
+        entitlement's figures).
+    """
     cap = float(ctx.case.settings.commercial.liquidated_damages_cap)
     rows = []
     for item in ctx.entitled:
@@ -86,17 +121,27 @@ def _cap_sentence(frame: pd.DataFrame, cap: float, currency: str) -> str:
     if cap <= 0:
         return "The contract sets no cap on liquidated damages ([commercial] liquidated_damages_cap is 0)."
     bit = frame[frame["ld_capped"]]
-    text = f"The cap of {money_text(cap, currency)} ([commercial] liquidated_damages_cap) applies to each figure on its own"
+    text = (f"The cap of {money_text(cap, currency)} ([commercial] liquidated_damages_cap) applies to each figure on "
+            "its own")
     if not len(bit):
-        return text + f"; it limits none of them (the largest before the cap is " \
-                      f"{money_text(frame['damages_before_cap'].max() if len(frame) else 0, currency)})."
+        largest = frame["damages_before_cap"].max() if len(frame) else 0
+        return text + f"; it limits none of them (the largest before the cap is {money_text(largest, currency)})."
     limited = "; ".join(f"{r.method}, {r.applies_to}: {money_text(r.damages_before_cap, currency)}"
                         for r in bit.itertuples(index=False))
     return text + f"; it limits: {limited}."
 
 
 def section(ctx: Context) -> Section:
-    """The money section (see the module docstring)."""
+    """The money section (see the module docstring).
+
+    Parameters
+    ----------
+    ctx: the report's results.
+
+    Returns
+    -------
+    reports.blocks.Section
+    """
     money = Section("money", "Money and its build-up")
     if ctx.entitlement is None:
         money.available = False

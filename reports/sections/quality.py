@@ -105,7 +105,16 @@ def _model_links(ctx: Context, snapshot: dict) -> list:
 
 
 def section(ctx: Context) -> Section:
-    """The schedule quality section (see the module docstring)."""
+    """The schedule quality section (see the module docstring).
+
+    Parameters
+    ----------
+    ctx: the report's results.
+
+    Returns
+    -------
+    reports.blocks.Section
+    """
     quality = Section("quality", "Schedule quality")
     found = run_all(ctx.case)
     blocks = quality.blocks

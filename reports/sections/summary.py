@@ -42,8 +42,19 @@ _HEADLINE_LABELS = {"method": "method", "eot_days": "extension of time (days)", 
 
 
 def headline_frame(ctx: Context) -> pd.DataFrame:
-    """One row per method assessed: the figures of the first page (the method relied on by
-    the analyst marked)."""
+    """One row per method assessed: the figures of the first page.
+
+    Parameters
+    ----------
+    ctx: the report's results.
+
+    Returns
+    -------
+    pandas.DataFrame
+        ``method`` (in words; the method the analyst relies on marked), ``eot_days``,
+        ``revised_completion``, ``compensable_days``, ``prolongation_cost``,
+        ``culpable_days``, ``ld_exposure``, ``acceleration_days``.
+    """
     preferred = ctx.case.settings.report.preferred_method
     rows = [{"method": METHOD_NAMES[m.method] + (" (relied on by the analyst)" if m.method == preferred else ""),
              "eot_days": m.eot_days, "revised_completion": m.revised_completion,
@@ -55,7 +66,16 @@ def headline_frame(ctx: Context) -> pd.DataFrame:
 
 
 def key_dates(ctx: Context) -> str:
-    """The planned, in force and actual (or forecast) completion in one sentence."""
+    """The planned, in force and actual (or forecast) completion in one sentence.
+
+    Parameters
+    ----------
+    ctx: the report's results.
+
+    Returns
+    -------
+    str
+    """
     case = ctx.case
     planned = ctx.completion(case.baseline)
     contract, granted, in_force = completion_in_force(case)
@@ -136,8 +156,20 @@ def _dates(ctx: Context) -> pd.DataFrame:
 
 
 def grants_frame(case) -> pd.DataFrame:
-    """Every extension of time already granted (extensions_granted.csv, in the file's order),
-    what it applies to, and the completion in force from the day it was granted."""
+    """Every extension of time already granted and the completion in force from its day.
+
+    Parameters
+    ----------
+    case: the loaded case.
+
+    Returns
+    -------
+    pandas.DataFrame
+        One row per row of extensions_granted.csv, in the file's order: ``id``,
+        ``granted_on``, ``days``, ``applies_to`` (the whole works or a section, in words),
+        ``events``, ``reason`` and ``completion_in_force`` (of what it applies to, counting
+        the grants made on or before ``granted_on``: :func:`delay.contract.completion_in_force`).
+    """
     whole = whole_works_section(case)
     names = dict(zip(case.sections["section"].astype(str), case.sections["name"])) if len(case.sections) else {}
     rows = []
@@ -217,8 +249,17 @@ def _entitlement_tables(ctx: Context) -> list:
 
 
 def section(ctx: Context, left_out: list[str] = ()) -> Section:
-    """The summary section (see the module docstring); ``left_out`` are the reasons why
-    methods the case cannot support were left out."""
+    """The summary section (see the module docstring).
+
+    Parameters
+    ----------
+    ctx: the report's results.
+    left_out: why methods the case cannot support were left out.
+
+    Returns
+    -------
+    reports.blocks.Section
+    """
     summary = Section("summary", "Summary")
     blocks = summary.blocks
     blocks.append(_conclusions(ctx))

@@ -26,7 +26,16 @@ _EXPLAIN = (
 
 
 def section(ctx: Context) -> Section:
-    """The time impact analysis section (see the module docstring)."""
+    """The time impact analysis section (see the module docstring).
+
+    Parameters
+    ----------
+    ctx: the report's results.
+
+    Returns
+    -------
+    reports.blocks.Section
+    """
     tia, result = ctx.method_section("tia", "Time impact analysis", _EXPLAIN)
     if result is None:
         return tia

@@ -23,7 +23,16 @@ _COLUMNS = ["id", "name", "wbs", "classification", "level", "zone", "activities"
 
 
 def section(ctx: Context) -> Section:
-    """The element timeline section (see the module docstring)."""
+    """The element timeline section (see the module docstring).
+
+    Parameters
+    ----------
+    ctx: the report's results.
+
+    Returns
+    -------
+    reports.blocks.Section
+    """
     timeline_section = Section("timeline", "Element timeline")
     if not len(ctx.case.elements):
         timeline_section.available = False

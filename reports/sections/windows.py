@@ -50,9 +50,20 @@ _LEDGER_COLUMNS = ["window", "start", "end", "source", "activity", "name", "leve
 
 
 def in_force_steps(case, first: dt.date, last: dt.date) -> pd.DataFrame:
-    """The whole works' contract completion in force from ``first`` to ``last``: a row at
-    ``first``, one on the day of each grant after it (its id and days in ``grant``), and
-    one at ``last`` (or at the last grant, when later)."""
+    """The whole works' contract completion in force over time.
+
+    Parameters
+    ----------
+    case: the loaded case.
+    first, last: the dates the chart spans.
+
+    Returns
+    -------
+    pandas.DataFrame
+        ``date``, ``completion_in_force`` and ``grant``: a row at ``first``, one on the day
+        of each grant after it (its id and days in ``grant``), and one at ``last`` (or at
+        the last grant, when later).
+    """
     granted = grants(case)
     rows = [{"date": first, "completion_in_force": completion_in_force(case, at=first)[2], "grant": ""}]
     days = sorted({pd.Timestamp(d).date() for d in granted["granted_on"]})
@@ -68,9 +79,20 @@ def in_force_steps(case, first: dt.date, last: dt.date) -> pd.DataFrame:
 
 
 def party_frame(result) -> pd.DataFrame:
-    """One row per window: its labels, movement, and per party of :data:`PARTIES_DRAWN` its
-    delays (``<party>_days``) and gains (``<party>_gain_days``, zero or less), from the
-    window's counted charges and revisions (which add up to its movement)."""
+    """Each window's delays and gains by party.
+
+    Parameters
+    ----------
+    result: a :class:`delay.methods.windows.WindowsResult`.
+
+    Returns
+    -------
+    pandas.DataFrame
+        One row per window: ``window``, ``start``, ``end`` (labels), ``movement_days``, and
+        per party of :data:`PARTIES_DRAWN` its delays (``<party>_days``) and gains
+        (``<party>_gain_days``, zero or less), from the window's counted charges and
+        revisions, which add up to its movement.
+    """
     rows = []
     for w in result.windows:
         parties = list(w.counted["party"]) + list(w.revisions["party"])
@@ -106,7 +128,16 @@ def _trend(ctx: Context, result) -> list:
 
 
 def section(ctx: Context) -> Section:
-    """The windows section (see the module docstring)."""
+    """The windows section (see the module docstring).
+
+    Parameters
+    ----------
+    ctx: the report's results.
+
+    Returns
+    -------
+    reports.blocks.Section
+    """
     windows, result = ctx.method_section("windows", "Windows analysis", _EXPLAIN)
     if result is None:
         return windows
