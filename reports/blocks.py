@@ -131,3 +131,19 @@ class Section:
     title: str
     blocks: list = field(default_factory=list)
     available: bool = True
+
+    def not_shown(self, reason: str) -> "Section":
+        """Mark the section not available and say why.
+
+        Parameters
+        ----------
+        reason: a sentence shown in the section's place.
+
+        Returns
+        -------
+        Section
+            This section.
+        """
+        self.available = False
+        self.blocks.append(Notice(reason))
+        return self

@@ -17,7 +17,7 @@ import pandas as pd
 from delay.cpm import calendars_of, prepare
 from delay.model import Case
 
-from .blocks import Notice, Paragraph, Section, TableBlock
+from .blocks import Paragraph, Section, TableBlock
 from .tables import BuildUp, ReportTable
 
 __all__ = [
@@ -195,9 +195,7 @@ class Context:
         """
         section = Section(method, title)
         if method not in self.results:
-            section.available = False
-            section.blocks.append(Notice(f"The {METHOD_NAMES[method]} was not run for this report (see the methods "
-                                         "chosen in the inputs section)."))
-            return section, None
+            return section.not_shown(f"The {METHOD_NAMES[method]} was not run for this report (see the methods "
+                                     "chosen in the inputs section)."), None
         section.blocks.append(Paragraph(explanation))
         return section, self.results[method]

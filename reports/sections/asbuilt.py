@@ -96,11 +96,12 @@ def section(ctx: Context) -> Section:
 
     Parameters
     ----------
-    ctx: the report's results.
+    ctx: the report's results; this section reads ``ctx.results["asbuilt"]`` and the baseline's driving path.
 
     Returns
     -------
     reports.blocks.Section
+        "As planned against as built"; not available when the method was not run.
     """
     asbuilt, result = ctx.method_section("asbuilt", "As planned against as built", _EXPLAIN)
     if result is None:

@@ -29,11 +29,12 @@ def section(ctx: Context) -> Section:
 
     Parameters
     ----------
-    ctx: the report's results.
+    ctx: the report's results; this section reads ``ctx.results["collapsed"]`` and the method's entitlement.
 
     Returns
     -------
     reports.blocks.Section
+        "Collapsed as-built"; not available when the method was not run.
     """
     collapsed, result = ctx.method_section("collapsed", "Collapsed as-built", _EXPLAIN)
     if result is None:

@@ -10,7 +10,7 @@ from __future__ import annotations
 
 from delay.comparison import sensitivity
 
-from ..blocks import Notice, Paragraph, Section
+from ..blocks import Paragraph, Section
 from ..context import Context
 
 __all__ = ["section"]
@@ -25,18 +25,16 @@ def section(ctx: Context) -> Section:
 
     Parameters
     ----------
-    ctx: the report's results.
+    ctx: the report's results; this section reads ``ctx.comparison`` (and runs :func:`delay.comparison.sensitivity`).
 
     Returns
     -------
     reports.blocks.Section
+        "Method comparison"; not available when no method assessed entitlement.
     """
     comparison = Section("comparison", "Method comparison")
     if ctx.comparison is None:
-        comparison.available = False
-        comparison.blocks.append(Notice("No method that assesses entitlement was run, so there is nothing to "
-                                        "compare."))
-        return comparison
+        return comparison.not_shown("No method that assesses entitlement was run, so there is nothing to compare.")
     result = ctx.comparison
     blocks = comparison.blocks
     blocks.append(Paragraph(_EXPLAIN))

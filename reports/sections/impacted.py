@@ -32,11 +32,12 @@ def section(ctx: Context) -> Section:
 
     Parameters
     ----------
-    ctx: the report's results.
+    ctx: the report's results; this section reads ``ctx.results["impacted"]`` and the method's entitlement.
 
     Returns
     -------
     reports.blocks.Section
+        "Impacted as-planned"; not available when the method was not run.
     """
     impacted, result = ctx.method_section("impacted", "Impacted as-planned", _EXPLAIN)
     if result is None:

@@ -19,7 +19,7 @@ from __future__ import annotations
 
 import pandas as pd
 
-from ..blocks import Notice, Paragraph, Section
+from ..blocks import Paragraph, Section
 from ..context import METHOD_NAMES, Context, money_text
 from ..tables import BuildUp
 
@@ -136,17 +136,16 @@ def section(ctx: Context) -> Section:
 
     Parameters
     ----------
-    ctx: the report's results.
+    ctx: the report's results; this section reads ``ctx.entitlement`` and the case's rates.
 
     Returns
     -------
     reports.blocks.Section
+        "Money and its build-up"; not available when no method assessed entitlement.
     """
     money = Section("money", "Money and its build-up")
     if ctx.entitlement is None:
-        money.available = False
-        money.blocks.append(Notice("No method that assesses entitlement was run, so there is no money to build up."))
-        return money
+        return money.not_shown("No method that assesses entitlement was run, so there is no money to build up.")
     currency = ctx.currency
     blocks = money.blocks
     blocks.append(Paragraph(_EXPLAIN))

@@ -109,11 +109,12 @@ def section(ctx: Context) -> Section:
 
     Parameters
     ----------
-    ctx: the report's results.
+    ctx: the report's results; this section reads the case alone (and runs :func:`delay.checks.run_all`).
 
     Returns
     -------
     reports.blocks.Section
+        "Schedule quality".
     """
     quality = Section("quality", "Schedule quality")
     found = run_all(ctx.case)

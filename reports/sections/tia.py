@@ -30,11 +30,12 @@ def section(ctx: Context) -> Section:
 
     Parameters
     ----------
-    ctx: the report's results.
+    ctx: the report's results; this section reads ``ctx.results["tia"]`` and the method's entitlement.
 
     Returns
     -------
     reports.blocks.Section
+        "Time impact analysis"; not available when the method was not run.
     """
     tia, result = ctx.method_section("tia", "Time impact analysis", _EXPLAIN)
     if result is None:

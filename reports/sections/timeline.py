@@ -7,7 +7,7 @@ and as built, week by week, and each element's dates.
 
 from __future__ import annotations
 
-from ..blocks import Notice, Paragraph, Section, TimelineBlock
+from ..blocks import Paragraph, Section, TimelineBlock
 from ..context import Context
 from ..element_timeline import element_states
 
@@ -27,18 +27,17 @@ def section(ctx: Context) -> Section:
 
     Parameters
     ----------
-    ctx: the report's results.
+    ctx: the report's results; this section reads the case's elements and programmes.
 
     Returns
     -------
     reports.blocks.Section
+        "Element timeline"; not available when the case has no elements.
     """
     timeline_section = Section("timeline", "Element timeline")
     if not len(ctx.case.elements):
-        timeline_section.available = False
-        timeline_section.blocks.append(Notice("The case has no model elements (elements.csv is absent or empty): "
-                                              "there is no element timeline."))
-        return timeline_section
+        return timeline_section.not_shown("The case has no model elements (elements.csv is absent or empty): there "
+                                          "is no element timeline.")
     timeline = element_states(ctx.case)
     timeline_section.blocks.append(Paragraph(_EXPLAIN))
     timeline_section.blocks.append(TimelineBlock(timeline))

@@ -132,11 +132,12 @@ def section(ctx: Context) -> Section:
 
     Parameters
     ----------
-    ctx: the report's results.
+    ctx: the report's results; this section reads ``ctx.results["windows"]``, the windows' entitlement and the grants.
 
     Returns
     -------
     reports.blocks.Section
+        "Windows analysis"; not available when the method was not run.
     """
     windows, result = ctx.method_section("windows", "Windows analysis", _EXPLAIN)
     if result is None:
