@@ -37,7 +37,10 @@ _EXPLAIN = (
     "the period of prolongation_rates.csv that holds the day their delay arose (a window's last day, an event's "
     "start), else at the flat rate of case.toml (SCL Delay and Disruption Protocol, 2nd edition (2017), core "
     "principle 17, as recalled). Liquidated damages are the culpable days times the rate, limited to the cap when "
-    "the contract sets one; the cap applies to each figure on its own. Sums already paid are not deducted.")
+    "the contract sets one; the cap applies to each figure on its own. Sums already paid are not deducted. In "
+    "tables.xlsx the sheets prolongation_build_up and damages_build_up recompute every product, cap and total by "
+    "formula, in the columns marked (formula) beside the values: the library that writes the workbook stores a "
+    "formula without its result, so a spreadsheet shows the formulas' results once it calculates.")
 
 
 def rates_frame(case) -> pd.DataFrame:
