@@ -27,7 +27,8 @@ from .entitlement import Entitlement, assess, json_records
 from .memo import remembered
 from .model import Case
 
-__all__ = ["compare_methods", "sensitivity", "available_methods", "MethodComparison", "METHOD_TITLES"]
+__all__ = ["compare_methods", "sensitivity", "available_methods", "disagreements", "why_they_differ",
+           "MethodComparison", "METHOD_TITLES", "DISAGREEMENT_DAYS", "HEADLINE_DAYS"]
 
 METHOD_TITLES = {
     "windows": "windows analysis",
@@ -48,6 +49,16 @@ MEASURES = {
                  "reproducing the actual dates",
 }
 PARTY_ORDER = ("employer", "contractor", "neutral", "concurrent", "unexplained", "recovery")
+
+#: Methods whose figures of days differ by more than this many calendar days disagree
+#: (:func:`disagreements`): our own threshold, about two working weeks, for the reader's
+#: attention; it is no rule of the trade.
+DISAGREEMENT_DAYS = 10
+
+#: The headline figures counted in days, with their names in words, in the order they are
+#: compared.
+HEADLINE_DAYS = {"eot_days": "extension of time", "compensable_days": "compensable days",
+                 "culpable_days": "culpable days"}
 
 
 def available_methods(case: Case) -> list[str]:
@@ -207,6 +218,78 @@ def _explain(methods, by_party: pd.DataFrame, headline: pd.DataFrame, results) -
     lines.append("Which method suits the dispute, and whether its assumptions hold on these records, is for the "
                  "analyst's professional judgement under the contract and the applicable law.")
     return lines
+
+
+def _spread(comparison: MethodComparison, figure: str) -> tuple[str, int, str, int]:
+    """``(method, days, method, days)``: the lowest and the highest value of ``figure``
+    (the first method in the comparison's order on a tie)."""
+    values = comparison.headline.set_index("method")[figure]
+    low, high = values.idxmin(), values.idxmax()
+    return low, int(values[low]), high, int(values[high])
+
+
+def disagreements(comparison: MethodComparison, threshold: int = DISAGREEMENT_DAYS) -> list[dict]:
+    """The headline figures of days on which the methods differ by more than ``threshold``.
+
+    Parameters
+    ----------
+    comparison: from :func:`compare_methods`.
+    threshold: calendar days (default :data:`DISAGREEMENT_DAYS`).
+
+    Returns
+    -------
+    list of dict
+        One per figure of :data:`HEADLINE_DAYS` whose highest and lowest values differ by
+        more than ``threshold``: ``figure`` (its name in words), ``difference``, ``low`` and
+        ``high`` (method names), ``low_days``, ``high_days``, ``sentence``.
+
+    Examples
+    --------
+    >>> found = disagreements(compare_methods(load_case("case_demo")))      # doctest: +SKIP
+    >>> found[0]["sentence"]                                               # doctest: +SKIP
+    'The methods differ by 12 days on the extension of time (0 days by windows analysis, ...'
+    """
+    found = []
+    if len(comparison.methods) < 2:
+        return found
+    for figure, words in HEADLINE_DAYS.items():
+        low, low_days, high, high_days = _spread(comparison, figure)
+        if high_days - low_days > threshold:
+            found.append({"figure": words, "difference": high_days - low_days, "low": low, "high": high,
+                          "low_days": low_days, "high_days": high_days, "sentence": (
+                              f"The methods differ by {high_days - low_days} days on the {words} ({low_days} days "
+                              f"by {METHOD_TITLES[low]}, {high_days} by {METHOD_TITLES[high]}), more than the "
+                              f"{threshold} days this report flags.")})
+    return found
+
+
+def why_they_differ(comparison: MethodComparison) -> tuple[str, ...]:
+    """One or two sentences for a first page: how far apart the methods are on the headline
+    figure of days that differs most (the extension of time on a tie), and what the two
+    methods at either end measure.
+
+    Parameters
+    ----------
+    comparison: from :func:`compare_methods`.
+
+    Returns
+    -------
+    tuple of str
+    """
+    methods = comparison.methods
+    if not methods:
+        return ("No method can be run on this case's records.",)
+    if len(methods) == 1:
+        return (f"Only the {METHOD_TITLES[methods[0]]} was run, so there is no other method to compare it with.",)
+    spreads = {figure: _spread(comparison, figure) for figure in HEADLINE_DAYS}
+    figure = max(spreads, key=lambda f: spreads[f][3] - spreads[f][1])  # the first on a tie
+    low, low_days, high, high_days = spreads[figure]
+    if high_days == low_days:
+        return (f"All {len(methods)} methods give the same extension of time, compensable and culpable days "
+                f"({spreads['eot_days'][1]}, {spreads['compensable_days'][1]} and {spreads['culpable_days'][1]}).",)
+    return (f"The methods differ most on the {HEADLINE_DAYS[figure]}: from {low_days} days by {METHOD_TITLES[low]} "
+            f"to {high_days} by {METHOD_TITLES[high]}.",
+            f"The {METHOD_TITLES[high]} {MEASURES[high]}; the {METHOD_TITLES[low]} {MEASURES[low]}.")
 
 
 def _with_progress(case: Case, progress: str) -> Case:

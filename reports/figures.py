@@ -22,11 +22,13 @@ import html
 import numpy as np
 import pandas as pd
 
-from .palette import BACKGROUND_COLOUR, BUILT_BAR, HIGHLIGHT_COLOUR, PLANNED_BAR, STATE_COLOURS
+from .palette import BACKGROUND_COLOUR, BUILT_BAR, HIGHLIGHT_COLOUR, PARTY_COLOURS, PLANNED_BAR, STATE_COLOURS
 
 __all__ = [
     "completion_trend",
     "window_movements",
+    "window_parties",
+    "PARTIES_DRAWN",
     "completion_steps",
     "planned_against_built",
     "gantt_order",
@@ -85,7 +87,7 @@ def _reference_line(figure, *, y, text: str, colour: str, dash: str) -> None:
                           xanchor="right", yanchor="bottom", font=dict(size=11, color=colour))
 
 
-def completion_trend(trend: pd.DataFrame, *, contract_in_force=None, planned=None,
+def completion_trend(trend: pd.DataFrame, *, contract_in_force=None, planned=None, in_force: pd.DataFrame | None = None,
                      title: str = "Forecast completion at each programme"):
     """Forecast completion of each programme against its data date.
 
@@ -95,11 +97,17 @@ def completion_trend(trend: pd.DataFrame, *, contract_in_force=None, planned=Non
         ``completion`` (dates), optionally ``kind`` (``baseline``, ``update``, ``asbuilt``).
     contract_in_force, planned: dates drawn as horizontal reference lines (the contract
         completion in force, black dashes; the planned completion, grey dots).
+    in_force: the contract completion in force over time, in date order: ``date`` (from
+        when), ``completion_in_force`` and ``grant`` (the words at a step, ``""`` where
+        none); drawn as a black dashed line that steps up at each grant (instead of the
+        flat ``contract_in_force``).
 
     Returns
     -------
     plotly.graph_objects.Figure
-        One line trace ``forecast completion`` (x: data dates, y: completions, ISO text).
+        A line trace ``forecast completion`` (x: data dates, y: completions, ISO text) and,
+        with ``in_force``, a trace ``contract completion in force`` with
+        ``line.shape = "hv"`` (each date holds until the next grant).
     """
     import plotly.graph_objects as go
 
@@ -113,7 +121,17 @@ def completion_trend(trend: pd.DataFrame, *, contract_in_force=None, planned=Non
         x=x, y=y, mode="lines+markers", name="forecast completion", text=labels,
         line=dict(color=BUILT_COLOUR, width=2), marker=dict(size=7, color=BUILT_COLOUR),
         hovertemplate="%{text}<br>data date %{x|%Y-%m-%d}<br>completion %{y|%Y-%m-%d}<extra></extra>"))
-    if contract_in_force is not None:
+    if in_force is not None and len(in_force):
+        words = [_text(g) for g in in_force["grant"]]
+        figure.add_trace(go.Scatter(
+            x=[_iso(v) for v in in_force["date"]], y=[_iso(v) for v in in_force["completion_in_force"]],
+            mode="lines+markers+text", line_shape="hv", name="contract completion in force", text=words,
+            textposition="top right", textfont=dict(size=10, color=LINE_COLOUR),
+            line=dict(color=LINE_COLOUR, width=1.5, dash="dash"),
+            marker=dict(size=[8 if w else 0 for w in words], symbol="triangle-up", color=LINE_COLOUR),
+            hovertemplate="in force from %{x|%Y-%m-%d}: %{y|%Y-%m-%d}<br>%{text}<extra></extra>"))
+        figure.update_layout(showlegend=True)
+    elif contract_in_force is not None:
         _reference_line(figure, y=_iso(contract_in_force), text="contract completion in force",
                         colour=LINE_COLOUR, dash="dash")
     if planned is not None:
@@ -150,6 +168,59 @@ def window_movements(windows: pd.DataFrame, *, title: str = "Movement of complet
     figure.add_trace(go.Bar(x=names, y=[int(v) for v in windows["revision_days"]], name="effect of revisions",
                             marker_color=PLANNED_COLOUR, text=spans, textposition="none",
                             hovertemplate="%{text}<br>revisions %{y} days<extra></extra>"))
+    return figure
+
+
+#: The parties of :func:`window_parties`, in the order stacked.
+PARTIES_DRAWN = ("employer", "contractor", "neutral", "concurrent")
+
+
+def window_parties(windows: pd.DataFrame, *, title: str = "Each window's movement of completion, by party"):
+    """Each window's movement of completion split by the party carrying it, stacked: delays
+    above zero, gains (the contractor's acceleration, recovery, re-planning that saves time)
+    below.
+
+    Parameters
+    ----------
+    windows: one row per window: ``window``, ``start``, ``end`` (programme labels),
+        ``movement_days``, and per party of :data:`PARTIES_DRAWN` its delays
+        ``<party>_days`` (zero or more) and its gains ``<party>_gain_days`` (zero or less),
+        in calendar days.
+
+    Returns
+    -------
+    plotly.graph_objects.Figure
+        Per party a bar trace of its delays and one of its gains (the same colour, the
+        gains hatched; ``barmode="relative"`` stacks delays up from zero and gains down),
+        x the window numbers as text, leaving out a trace that would be zero in every
+        window; and a marker trace ``net movement`` at each window's movement (the sum of
+        its bars).
+    """
+    import plotly.graph_objects as go
+
+    names = [str(int(w)) for w in windows["window"]]
+    spans = [f"window {int(w)}: {_text(s)} to {_text(e)}" for w, s, e in
+             zip(windows["window"], windows["start"], windows["end"])]
+    figure = go.Figure(layout=_layout(
+        title, barmode="relative", height=460, margin=dict(l=70, r=30, t=90, b=60),
+        xaxis=dict(title=dict(text="window"), type="category"),
+        yaxis=dict(title=dict(text="calendar days (below zero: a gain)"), zeroline=True, zerolinecolor=LINE_COLOUR),
+        legend=dict(orientation="h", x=0.0, y=1.0, xanchor="left", yanchor="bottom")))
+    for party in PARTIES_DRAWN:
+        for column, name, shape in ((f"{party}_days", party, "x" if party == "concurrent" else ""),
+                                    (f"{party}_gain_days", f"{party}: gain", "/")):
+            values = [int(v) for v in windows[column]]
+            if not any(values):
+                continue
+            figure.add_trace(go.Bar(
+                x=names, y=values, name=name, text=spans, textposition="none", legendgroup=party,
+                marker=dict(color=PARTY_COLOURS[party], line=dict(color=LINE_COLOUR, width=0.5),
+                            pattern=dict(shape=shape, fgcolor="#FFFFFF", size=6, fillmode="overlay")),
+                hovertemplate="%{text}<br>" + name + " %{y} days<extra></extra>"))
+    figure.add_trace(go.Scatter(
+        x=names, y=[int(v) for v in windows["movement_days"]], mode="markers", name="net movement", text=spans,
+        marker=dict(symbol="diamond", size=9, color="#FFFFFF", line=dict(color=LINE_COLOUR, width=2)),
+        hovertemplate="%{text}<br>net movement %{y} days<extra></extra>"))
     return figure
 
 

@@ -59,7 +59,7 @@ __all__ = ["make_manifest", "record_outputs", "input_files", "read_manifest", "v
            "Difference", "VerifyError", "MANIFEST", "FORMAT", "MAX_BYTES", "MAX_DEPTH"]
 
 MANIFEST = "manifest.json"
-FORMAT = "delay-report-manifest/2"
+FORMAT = "delay-report-manifest/3"
 
 #: The largest manifest read (a manifest of a case of 240 updates is a few hundred KB).
 MAX_BYTES = 32 << 20
@@ -224,7 +224,6 @@ def make_manifest(content, out_dir: Path, created: dt.datetime | None = None, *,
         "tables": [{"key": t.key, "title": t.title, "section": t.section, "rows": int(len(t.frame)),
                     "columns": t.columns, "file": f"tables/{t.key}.csv", "sha256": t.fingerprint()}
                    for t in content.tables],
-        "not_available": list(content.missing),
     }
 
 
@@ -402,7 +401,6 @@ class _Schema:
                 "key": self.pattern(_KEY, "a table key"), "title": self.text, "section": self.text,
                 "rows": self.count, "columns": self.items(self.text), "file": self.relative_path,
                 "sha256": self.pattern(_HEX64, "a SHA-256")}), unique="key"),
-            "not_available": self.items(self.text),
         })
         self._agree(manifest)
 

@@ -3,9 +3,10 @@
 The page is made from the jinja2 templates in ``reports/templates`` with autoescaping on:
 every text that comes from the case (names, titles, notes) is escaped. The only markup
 passed through unescaped is made by this package: plotly's figure fragments (whose data is
-JSON with ``<`` written as ``\\u003c``) and the element timeline's fragment (which escapes
-its own text). plotly.js is inlined once in the page's head, so the page opens with no
-network access.
+JSON with ``<`` written as ``\\u003c``), the element timeline's fragment (which escapes
+its own text) and the analyst's opinion as :func:`reports.opinion.render_opinion` renders
+it (Markdown with raw HTML off, links checked, no images). plotly.js is inlined once in the
+page's head, so the page opens with no network access.
 """
 
 from __future__ import annotations
@@ -16,10 +17,13 @@ import numpy as np
 import pandas as pd
 from markupsafe import Markup
 
-from .builder import FigureBlock, ReportContent, Section, TableBlock, TimelineBlock
-from .tables import ReportTable, display_value
+from .blocks import FigureBlock, Folded, Group, Section, TableBlock, TimelineBlock
+from .builder import ReportContent
+from .element_timeline import timeline_html
+from .figures import figure_html
+from .tables import MONEY_COLUMNS, ReportTable, display_value
 
-__all__ = ["render_html", "environment", "COLLAPSE_ROWS"]
+__all__ = ["render_html", "environment", "table_view", "COLLAPSE_ROWS"]
 
 #: Tables longer than this many rows are folded (opened for printing).
 COLLAPSE_ROWS = 40
@@ -30,7 +34,13 @@ MATRIX_COLUMNS = 10
 
 
 def environment():
-    """The jinja2 environment of the report's templates (autoescaping on)."""
+    """The jinja2 environment of the report's templates.
+
+    Returns
+    -------
+    jinja2.Environment
+        Autoescaping on, undefined names an error.
+    """
     from jinja2 import Environment, PackageLoader, StrictUndefined
 
     return Environment(loader=PackageLoader("reports", "templates"), autoescape=True,
@@ -47,11 +57,45 @@ def _numeric(series: pd.Series) -> bool:
                                 for v in values)
 
 
-def table_view(table: ReportTable, style: str = "") -> dict[str, Any]:
+def _rows(table: ReportTable) -> tuple[list[list[str]], list[str]]:
+    """The page's rows of ``table`` (at most ``shown_rows``) and a class for each: ``total``
+    for the total rows of a :class:`~reports.tables.BuildUp`, after each group."""
     frame = table.frame
     shown = frame.iloc[:table.shown_rows]
+    money = [c in MONEY_COLUMNS for c in shown.columns]
     columns = [shown[c].tolist() for c in shown.columns]
-    rows = [[display_value(v) for v in row] for row in zip(*columns)] if len(shown.columns) else []
+    rows = [[display_value(v, money=m) for v, m in zip(row, money)] for row in zip(*columns)] if len(shown.columns) \
+        else []
+    classes = [""] * len(rows)
+    build_up = table.build_up
+    if build_up is None or not build_up.totals or len(shown) < len(frame):
+        return rows, classes
+    for first, stop in reversed(build_up.groups(frame)):
+        sums = build_up.total(frame, first, stop)
+        total = [display_value(sums[c], money=m) if c in sums else "" for c, m in zip(frame.columns, money)]
+        total[0] = build_up.total_label(frame, first)
+        rows.insert(stop, total)
+        classes.insert(stop, "total")
+    return rows, classes
+
+
+def table_view(table: ReportTable, style: str = "") -> dict[str, Any]:
+    """What the template needs to show a table.
+
+    Parameters
+    ----------
+    table: the table.
+    style: its block's style (``matrix`` is cut into parts of :data:`MATRIX_COLUMNS`
+        programmes; ``folded`` and ``headline`` are never folded again).
+
+    Returns
+    -------
+    dict
+        Headings and rows (total rows of a build-up included) in parts, the counts, and
+        whether the table is folded.
+    """
+    frame = table.frame
+    rows, classes = _rows(table)
     headings = table.headings
     numeric = [_numeric(frame[c]) for c in frame.columns]
     groups = [list(range(len(headings)))]
@@ -59,11 +103,11 @@ def table_view(table: ReportTable, style: str = "") -> dict[str, Any]:
         rest = list(range(1, len(headings)))
         groups = [[0] + rest[k:k + MATRIX_COLUMNS] for k in range(0, len(rest), MATRIX_COLUMNS)]
     parts = [{"headings": [headings[k] for k in group], "numeric": [numeric[k] for k in group],
-              "rows": [[row[k] for k in group] for row in rows]} for group in groups]
+              "rows": [[row[k] for k in group] for row in rows], "classes": classes} for group in groups]
     return {
         "kind": "table", "key": table.key, "title": table.title, "note": table.note, "style": style,
-        "parts": parts, "total": len(frame), "shown": len(shown),
-        "collapsed": len(frame) > COLLAPSE_ROWS and style != "matrix",
+        "parts": parts, "total": len(frame), "shown": min(len(frame), table.shown_rows),
+        "collapsed": len(frame) > COLLAPSE_ROWS and style not in ("matrix", "folded", "headline"),
     }
 
 
@@ -72,17 +116,17 @@ def _figure_id(key: str) -> str:
 
 
 def _block_view(block) -> dict[str, Any] | Any:
-    from .figures import figure_html
-
     if isinstance(block, TableBlock):
         return table_view(block.table, block.style)
     if isinstance(block, FigureBlock):
         return {"kind": "figure", "key": block.key, "caption": block.caption,
                 "html": Markup(figure_html(block.figure, _figure_id(block.key)))}
     if isinstance(block, TimelineBlock):
-        from .element_timeline import timeline_html
-
         return {"kind": "timeline", "html": Markup(timeline_html(block.timeline, element_id="element-timeline"))}
+    if isinstance(block, Group):
+        return {"kind": "group", "style": block.style, "blocks": [_block_view(b) for b in block.blocks]}
+    if isinstance(block, Folded):
+        return {"kind": "folded", "summary": block.summary, "blocks": [_block_view(b) for b in block.blocks]}
     return block
 
 
@@ -103,12 +147,12 @@ def _manifest_section(section: Section, manifest: dict) -> dict[str, Any]:
         {"kind": "facts", "rows": facts},
         {"kind": "table", "key": "manifest_inputs", "title": "Input files and their SHA-256", "note": "",
          "style": "hashes", "parts": [{"headings": ["file", "bytes", "SHA-256"], "numeric": [False, True, False],
-                                       "rows": inputs}],
+                                       "rows": inputs, "classes": [""] * len(inputs)}],
          "total": len(inputs), "shown": len(inputs), "collapsed": len(inputs) > COLLAPSE_ROWS},
         {"kind": "table", "key": "manifest_tables", "title": "Fingerprint of each table (SHA-256 of its canonical CSV)",
          "note": "The canonical CSV of each table is tables/<table>.csv beside this page.", "style": "hashes",
          "parts": [{"headings": ["table", "title", "rows", "SHA-256"], "numeric": [False, False, True, False],
-                    "rows": tables}],
+                    "rows": tables, "classes": [""] * len(tables)}],
          "total": len(tables), "shown": len(tables), "collapsed": len(tables) > COLLAPSE_ROWS},
     ]
     return {"key": section.key, "title": section.title, "available": True, "blocks": blocks}
@@ -121,6 +165,11 @@ def render_html(content: ReportContent, manifest: dict) -> str:
     ----------
     content: from :func:`reports.builder.compute`.
     manifest: the manifest written beside the page (its facts fill the manifest section).
+
+    Returns
+    -------
+    str
+        The page, one self-contained HTML document.
     """
     from plotly.offline import get_plotlyjs
 
@@ -138,7 +187,7 @@ def render_html(content: ReportContent, manifest: dict) -> str:
     return template.render(
         title=content.title, project=content.case.settings.project.name, sections=sections,
         created=manifest.get("created", ""), version=manifest.get("tool", {}).get("version", ""),
-        plotly_js=Markup(plotly_js), missing=content.missing,
+        plotly_js=Markup(plotly_js),
     )
 
 

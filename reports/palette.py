@@ -19,6 +19,10 @@ fills would add up to a grey block. The chart of planned against actual bars kee
 colour: planned bars are a pale tint, hatched and outlined in deep blue; actual bars are
 solid deep blue, so a greyscale print shows light hatched bars against dark plain ones.
 
+The chart of each window's delay by party gives each party a colour of its own: the
+employer deep blue, the contractor vermillion, neutral events a light grey (no one's risk
+carries a hue), days concurrent between parties a dark grey, hatched.
+
 ``tests/test_element_timeline.py`` checks that every pair stays clearly apart under a
 simulation of the three kinds of dichromacy.
 
@@ -40,6 +44,7 @@ __all__ = [
     "BACKGROUND_COLOUR",
     "PLANNED_BAR",
     "BUILT_BAR",
+    "PARTY_COLOURS",
     "discrete_colourscale",
 ]
 
@@ -63,6 +68,10 @@ PLANNED_BAR = MappingProxyType({"fill": "#E3F1FA", "line": "#0072B2", "pattern":
 
 #: Actual bars: solid deep blue, no hatching.
 BUILT_BAR = MappingProxyType({"fill": "#0072B2", "line": "#0072B2", "pattern": ""})
+
+#: The colour of each party's days in the chart of each window's delay by party.
+PARTY_COLOURS = MappingProxyType({"employer": "#0072B2", "contractor": "#D55E00", "neutral": "#BBBBBB",
+                                  "concurrent": "#5A5A5A"})
 
 #: Outline of the elements of activities delayed by an event.
 HIGHLIGHT_COLOUR = "#000000"

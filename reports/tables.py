@@ -46,6 +46,7 @@ from delay.output import neutralise
 
 __all__ = [
     "ReportTable",
+    "BuildUp",
     "canonical_value",
     "canonical_csv",
     "fingerprint",
@@ -54,11 +55,16 @@ __all__ = [
     "write_workbook",
     "EXCEL_CELL_LIMIT",
     "LABELS",
+    "MONEY_COLUMNS",
     "label_of",
 ]
 
 #: The most characters one cell of an xlsx workbook may hold.
 EXCEL_CELL_LIMIT = 32_767
+
+#: Columns that hold sums of money: the page shows them with two decimals.
+MONEY_COLUMNS = frozenset({"prolongation_cost", "ld_exposure", "cost", "cost_per_day", "damages_before_cap", "cap",
+                           "liquidated_damages_per_day"})
 
 #: Column headings in plain words, for the page and the workbook (the CSV keeps the names).
 LABELS: dict[str, str] = {
@@ -207,6 +213,13 @@ LABELS: dict[str, str] = {
     "later": "later programme",
     "what": "what",
     "date": "date",
+    "granted_on": "granted on",
+    "applies_to": "applies to",
+    "source": "source",
+    "cost_per_day": "rate per day",
+    "cost": "cost",
+    "damages_before_cap": "damages before the cap",
+    "cap": "cap (0: none)",
 }
 
 
@@ -215,6 +228,110 @@ def label_of(column: str, labels: Mapping[str, str] | None = None) -> str:
     if labels and column in labels:
         return labels[column]
     return LABELS.get(column, column.replace("_", " "))
+
+
+@dataclass(frozen=True, eq=False)
+class BuildUp:
+    """How the money of a table is built up, so that a reader can recompute it.
+
+    Attributes
+    ----------
+    products: a column whose values are the product of other columns (``{"cost": ("days",
+        "cost_per_day")}``).
+    capped: a column whose values are the smaller of two others, the second a cap that
+        applies only when above 0 (``{"ld_exposure": ("damages_before_cap", "cap")}``).
+    totals: columns summed in a total row after each group of rows.
+    group: the column whose runs of equal values are totalled apart (``""``: one total for
+        the whole table).
+
+    In the page the total rows follow each group. In tables.xlsx each column of
+    ``products``, ``capped`` and ``totals`` gets a formula column beside the values, named
+    "... (formula)": a product of the row's cells, ``MIN`` of a figure and its cap, ``SUM``
+    over a group in the total row; a formula reads the formula column of a figure that has
+    one, so the chain recomputes from the inputs. openpyxl, which writes the workbook,
+    stores a formula without its result, so the values are written beside the formulas
+    rather than as their cached results; a spreadsheet shows the formulas' results once it
+    calculates (on opening).
+    """
+
+    products: Mapping[str, tuple[str, ...]] = field(default_factory=dict)
+    capped: Mapping[str, tuple[str, str]] = field(default_factory=dict)
+    totals: tuple[str, ...] = ()
+    group: str = ""
+
+    def recomputed(self, columns: Sequence[str]) -> list[str]:
+        """The columns that get a formula column in the workbook.
+
+        Parameters
+        ----------
+        columns: the table's columns.
+
+        Returns
+        -------
+        list of str
+            In the table's column order.
+        """
+        wanted = set(self.products) | set(self.capped) | set(self.totals)
+        return [c for c in columns if c in wanted]
+
+    def groups(self, frame: pd.DataFrame) -> list[tuple[int, int]]:
+        """The runs of rows totalled together.
+
+        Parameters
+        ----------
+        frame: the table's rows.
+
+        Returns
+        -------
+        list of tuple
+            ``(first, past the last)`` positions of each run, in order.
+        """
+        if not len(frame):
+            return []
+        if not self.group:
+            return [(0, len(frame))]
+        values = frame[self.group].tolist()
+        runs, first = [], 0
+        for k in range(1, len(values) + 1):
+            if k == len(values) or values[k] != values[first]:
+                runs.append((first, k))
+                first = k
+        return runs
+
+    def total_label(self, frame: pd.DataFrame, first: int) -> str:
+        """The words in the first cell of a total row.
+
+        Parameters
+        ----------
+        frame: the table's rows.
+        first: the position of the group's first row.
+
+        Returns
+        -------
+        str
+            ``"total"``, or ``"total, <the group's value>"``.
+        """
+        return f"total, {frame[self.group].iloc[first]}" if self.group else "total"
+
+    def total(self, frame: pd.DataFrame, first: int, stop: int) -> dict[str, float | int]:
+        """The sums of :attr:`totals` over a group.
+
+        Parameters
+        ----------
+        frame: the table's rows.
+        first, stop: the group's positions (``stop`` past the last).
+
+        Returns
+        -------
+        dict
+            Column to sum: a float rounded to cents where the column holds floats, else an int.
+        """
+        sums = {}
+        for column in self.totals:
+            values = frame[column].iloc[first:stop]
+            total = sum(v for v in values.tolist() if not _missing(v))
+            sums[column] = round(float(total), 2) if any(isinstance(v, float) for v in values.tolist()) else int(total)
+        return sums
 
 
 @dataclass(frozen=True, eq=False)
@@ -231,6 +348,9 @@ class ReportTable:
     labels: headings in plain words for columns :data:`LABELS` does not name well here.
     note: a sentence shown under the caption (what the figures mean, what need not add up).
     shown_rows: at most this many rows appear in the page (all appear in the appendix).
+    build_up: for a table of money, how its figures are built up: the page adds a total
+        row after each group, the workbook recomputes the figures and totals by formula
+        (:class:`BuildUp`). The canonical CSV holds the rows alone.
     """
 
     key: str
@@ -240,6 +360,7 @@ class ReportTable:
     labels: Mapping[str, str] = field(default_factory=dict)
     note: str = ""
     shown_rows: int = 1000
+    build_up: "BuildUp | None" = None
 
     def __post_init__(self):
         if not (0 < len(self.key) <= 31) or not self.key.replace("_", "").isalnum():
@@ -418,25 +539,20 @@ def _width(values: Sequence, heading: str) -> float:
     return float(min(max(longest + 2, 8), 60))
 
 
-def write_workbook(tables: Sequence[ReportTable], path: Path, *, title: str = "",
-                   caution: str = "") -> Path:
-    """Write every table as a sheet of one xlsx workbook at ``path``.
+class _Sheets:
+    """Cells and sheets of one write-only workbook (openpyxl)."""
 
-    A first sheet ``contents`` lists the sheets with their titles and sections. Each table's
-    sheet has the headings in plain words in row 1 (frozen, with a filter), dates as date
-    cells (``yyyy-mm-dd``), numbers as numbers, and column widths set to fit the values.
-    The workbook is written row by row (openpyxl's write-only mode).
-    """
-    from openpyxl import Workbook
-    from openpyxl.cell import WriteOnlyCell
-    from openpyxl.styles import Alignment, Font
-    from openpyxl.utils import get_column_letter
+    def __init__(self, book):
+        from openpyxl.styles import Alignment, Font
 
-    book = Workbook(write_only=True)
-    bold = Font(bold=True)
-    wrapped = Alignment(wrap_text=True, vertical="top")
+        self.book = book
+        self.bold = Font(bold=True)
+        self.wrapped = Alignment(wrap_text=True, vertical="top")
 
-    def cell(sheet, value, *, font=None, number_format=None, alignment=None):
+    def cell(self, sheet, value, *, font=None, number_format=None, alignment=None, formula: bool = False):
+        """A cell; text that starts with ``=`` stays text unless ``formula`` is set."""
+        from openpyxl.cell import WriteOnlyCell
+
         item = WriteOnlyCell(sheet, value=value)
         if font is not None:
             item.font = font
@@ -444,37 +560,131 @@ def write_workbook(tables: Sequence[ReportTable], path: Path, *, title: str = ""
             item.number_format = number_format
         if alignment is not None:
             item.alignment = alignment
-        if isinstance(value, str) and value.startswith("="):
+        if isinstance(value, str) and value.startswith("=") and not formula:
             item.data_type = "s"  # text that looks like a formula stays text
         return item
 
-    contents = book.create_sheet("contents")
-    for letter, width in zip("ABCDE", (32, 60, 16, 8, 80)):
-        contents.column_dimensions[letter].width = width
-    contents.append([cell(contents, title or "Report tables", font=Font(bold=True, size=13))])
-    if caution:
-        contents.append([caution])
-    contents.append([])
-    contents.append([cell(contents, h, font=bold) for h in ("sheet", "table", "section", "rows", "note")])
-    for table in tables:
-        contents.append([table.key, table.title, table.section, len(table.frame), table.note or None])
+    def contents(self, tables: Sequence[ReportTable], title: str, caution: str) -> None:
+        from openpyxl.styles import Font
 
-    for table in tables:
-        sheet = book.create_sheet(table.key)
-        headings = table.headings
+        contents = self.book.create_sheet("contents")
+        for letter, width in zip("ABCDE", (32, 60, 16, 8, 80)):
+            contents.column_dimensions[letter].width = width
+        contents.append([self.cell(contents, title or "Report tables", font=Font(bold=True, size=13))])
+        if caution:
+            contents.append([caution])
+        contents.append([])
+        contents.append([self.cell(contents, h, font=self.bold) for h in ("sheet", "table", "section", "rows", "note")])
+        for table in tables:
+            note = table.note or ""
+            if table.build_up is not None:
+                note = (note + " " if note else "") + _FORMULA_NOTE
+            contents.append([table.key, table.title, table.section, len(table.frame), note or None])
+
+    def table(self, table: ReportTable) -> None:
+        from openpyxl.utils import get_column_letter
+
+        sheet = self.book.create_sheet(table.key)
         columns = [[_excel_value(v) for v in table.frame[c].tolist()] for c in table.frame.columns]
-        for number, (heading, values) in enumerate(zip(headings, columns), start=1):
-            sheet.column_dimensions[get_column_letter(number)].width = _width(values, heading)
+        headings = table.headings
+        extra = table.build_up.recomputed(table.columns) if table.build_up is not None else []
+        headings = headings + [f"{label_of(c, table.labels)} (formula)" for c in extra]
+        widths = [_width(values, h) for values, h in zip(columns, headings)] + [
+            _width(columns[table.columns.index(c)], h) for c, h in zip(extra, headings[len(columns):])]
+        for number, width in enumerate(widths, start=1):
+            sheet.column_dimensions[get_column_letter(number)].width = width
         sheet.freeze_panes = "A2"
+        rows = len(table.frame) + (len(table.build_up.groups(table.frame)) if table.build_up and
+                                   table.build_up.totals else 0)
         if headings:
-            sheet.auto_filter.ref = f"A1:{get_column_letter(len(headings))}{max(1, len(table.frame) + 1)}"
-        sheet.append([cell(sheet, h, font=bold, alignment=wrapped) for h in headings])
+            sheet.auto_filter.ref = f"A1:{get_column_letter(len(headings))}{max(1, rows + 1)}"
+        sheet.append([self.cell(sheet, h, font=self.bold, alignment=self.wrapped) for h in headings])
+        if table.build_up is not None:
+            for row in _build_up_rows(self, sheet, table, columns, extra):
+                sheet.append(row)
+            return
         # a date cell takes openpyxl's date format (yyyy-mm-dd) from its value's type; only
         # text that would be read as a formula needs a cell of its own
         for row in zip(*columns):
             if any(isinstance(v, str) and v.startswith("=") for v in row):
-                row = [cell(sheet, v) if isinstance(v, str) and v.startswith("=") else v for v in row]
+                row = [self.cell(sheet, v) if isinstance(v, str) and v.startswith("=") else v for v in row]
             sheet.append(row)
+
+
+_FORMULA_NOTE = ("The columns marked (formula) recompute the figures beside them and their totals: openpyxl, "
+                 "which writes this workbook, stores a formula without its result, so the values are written "
+                 "beside the formulas.")
+
+
+def _build_up_rows(sheets: _Sheets, sheet, table: ReportTable, columns: list[list], extra: list[str]):
+    """The rows of a table with a :class:`BuildUp`: the values, a formula column for each
+    figure it recomputes, and a total row after each group (values and ``SUM`` formulas)."""
+    from openpyxl.utils import get_column_letter
+
+    build_up, names, frame = table.build_up, table.columns, table.frame
+    value_letter = {c: get_column_letter(k + 1) for k, c in enumerate(names)}
+    formula_letter = {c: get_column_letter(len(names) + k + 1) for k, c in enumerate(extra)}
+    row_formula = set(build_up.products) | set(build_up.capped)
+
+    def ref(column: str, number: int) -> str:
+        letter = formula_letter[column] if column in row_formula else value_letter[column]
+        return f"{letter}{number}"
+
+    def money(column: str) -> str | None:
+        return "#,##0.00" if any(isinstance(v, float) for v in columns[names.index(column)]) else None
+
+    number = 1
+    for first, stop in build_up.groups(frame):
+        for k in range(first, stop):
+            number += 1
+            row = [sheets.cell(sheet, v) if isinstance(v, str) and v.startswith("=") else v
+                   for v in (values[k] for values in columns)]
+            for column in extra:
+                if column in build_up.products:
+                    formula = "=" + "*".join(ref(p, number) for p in build_up.products[column])
+                elif column in build_up.capped:
+                    figure, cap = build_up.capped[column]
+                    limit = frame[cap].iloc[k]
+                    formula = (f"=MIN({ref(figure, number)},{value_letter[cap]}{number})"
+                               if not _missing(limit) and float(limit) > 0 else f"={ref(figure, number)}")
+                else:
+                    row.append(None)
+                    continue
+                row.append(sheets.cell(sheet, formula, formula=True, number_format=money(column)))
+            yield row
+        if not build_up.totals:
+            continue
+        number += 1
+        sums = build_up.total(frame, first, stop)
+        row = [sums.get(c) for c in names]
+        row[0] = sheets.cell(sheet, build_up.total_label(frame, first), font=sheets.bold)
+        for column in extra:
+            if column not in build_up.totals:
+                row.append(None)
+                continue
+            letter = formula_letter[column] if column in row_formula else value_letter[column]
+            formula = f"=SUM({letter}{number - (stop - first)}:{letter}{number - 1})"
+            row.append(sheets.cell(sheet, formula, formula=True, number_format=money(column), font=sheets.bold))
+        yield row
+
+
+def write_workbook(tables: Sequence[ReportTable], path: Path, *, title: str = "",
+                   caution: str = "") -> Path:
+    """Write every table as a sheet of one xlsx workbook at ``path``.
+
+    A first sheet ``contents`` lists the sheets with their titles and sections. Each table's
+    sheet has the headings in plain words in row 1 (frozen, with a filter), dates as date
+    cells (``yyyy-mm-dd``), numbers as numbers, and column widths set to fit the values. A
+    table with a :class:`BuildUp` also has its formula columns and total rows. The workbook
+    is written row by row (openpyxl's write-only mode).
+    """
+    from openpyxl import Workbook
+
+    book = Workbook(write_only=True)
+    sheets = _Sheets(book)
+    sheets.contents(tables, title, caution)
+    for table in tables:
+        sheets.table(table)
     buffer = io.BytesIO()
     book.save(buffer)
     Path(path).write_bytes(buffer.getvalue())

@@ -71,11 +71,12 @@ class Page:
         self.page.close()
 
 
-def save_screenshot(page, name: str, folder: Path) -> list[Path]:
-    """Save a full-page screenshot under ``folder`` and, if set, ``REPORT_SCREENSHOT_DIR``."""
+def save_screenshot(page, name: str, folder: Path, *, full_page: bool = True) -> list[Path]:
+    """Save a screenshot of the whole page (``full_page``, else of the window) under
+    ``folder`` and, if set, ``REPORT_SCREENSHOT_DIR``."""
     folder = Path(folder)
     folder.mkdir(parents=True, exist_ok=True)
-    data = page.screenshot(full_page=True)
+    data = page.screenshot(full_page=full_page)
     paths = [folder / name]
     extra = os.environ.get("REPORT_SCREENSHOT_DIR")
     if extra:

@@ -216,3 +216,151 @@ def test_an_activity_named_like_a_script_shows_as_text_and_runs_nothing(browser,
     assert dialogs == [] and injected == 0
     assert page.errors == []
     page.close()
+
+
+# -- the first page: what each method concludes, why they differ, what needs explaining, the opinion --
+#: A4 landscape is 210 mm high; the report prints with 10 mm margins: 190 mm at 96 px per inch
+A4_LANDSCAPE_CONTENT_HEIGHT_PX = int(190 / 25.4 * 96)  # 718
+
+
+def _csv_rows(folder, key: str) -> list[dict]:
+    import csv
+
+    with open(folder / "tables" / f"{key}.csv", newline="", encoding="utf-8") as handle:
+        return list(csv.DictReader(handle))
+
+
+@pytest.fixture(scope="module")
+def first_page(browser, demo):
+    """The demo report in a window of 1280 x 900, at the top of the page."""
+    opened = Page(browser, demo.out / "report.html", width=1280, height=900)
+    opened.page.wait_for_function("() => document.documentElement.dataset.reportReady === 'true'")
+    yield opened
+    opened.close()
+
+
+def _box(page, selector: str) -> dict:
+    return page.evaluate("""selector => {
+        const r = document.querySelector(selector).getBoundingClientRect();
+        return {top: r.top + window.scrollY, bottom: r.bottom + window.scrollY, height: r.height};
+    }""", selector)
+
+
+def test_the_headline_the_reasons_and_the_opinion_are_seen_without_scrolling(first_page, demo):
+    page = first_page.page
+    assert page.evaluate("() => window.scrollY") == 0
+    headline = _box(page, '[data-table="headline"]')
+    reasons = _box(page, ".first-page .sentences:not(.warnings)")
+    opinion = _box(page, ".first-page .group.opinion")
+    assert 0 < headline["top"] and headline["bottom"] <= 900, headline
+    assert reasons["bottom"] <= 900 and opinion["bottom"] <= 900, (reasons, opinion)
+    # what each method concludes: one row per method, as in the appendix's table
+    shown = page.evaluate("""() => Array.from(document.querySelectorAll('[data-table="headline"] tbody tr'))
+        .map(tr => Array.from(tr.cells).map(td => td.textContent.trim()))""")
+    rows = _csv_rows(demo.out, "headline")
+    assert [r[0] for r in shown] == [r["method"] for r in rows]
+    assert [(r[1], r[2]) for r in shown] == [(r["eot_days"], r["revised_completion"]) for r in rows]
+    assert "Why the methods differ" in page.inner_text(".first-page")
+    assert "No opinion was given" in page.inner_text(".first-page .group.opinion")  # the demo has no opinion.md
+    save_screenshot(page, "report_first_page.png", demo.folder, full_page=False)
+    _no_errors(first_page)
+
+
+def test_the_warnings_the_demo_needs_are_on_its_first_page(first_page, demo):
+    page = first_page.page
+    warnings = page.evaluate("""() => Array.from(document.querySelectorAll('.first-page .sentences.warnings li'))
+        .map(li => [li.textContent, li.getBoundingClientRect().top + window.scrollY])""")
+    texts = [text for text, _ in warnings]
+    # worked out here from the headline and the dates of the appendix: a method whose revised
+    # completion falls after the actual completion gives more than the overrun; extensions
+    # further apart than 10 days are a disagreement
+    actual = {r["what"]: r["date"] for r in _csv_rows(demo.out, "completion_dates")}["actual completion"]
+    headline = _csv_rows(demo.out, "headline")
+    late = [r["method"] for r in headline if r["revised_completion"] > actual]
+    assert late, "the demo has a revised completion after the actual completion"
+    for method in late:
+        assert any(t.startswith(method.split(" (")[0].capitalize() + ": the extension of time")
+                   and "falls after the actual completion" in t for t in texts), method
+    extensions = [int(r["eot_days"]) for r in headline]
+    if max(extensions) - min(extensions) > 10:
+        assert any(f"differ by {max(extensions) - min(extensions)} days on the extension of time" in t for t in texts)
+    assert any("no event explains" in t for t in texts) and any("does not reproduce the actual dates" in t
+                                                                 for t in texts)
+    assert warnings[0][1] < 900  # they start above the fold
+    _no_errors(first_page)
+
+
+def test_the_first_printed_page_holds_the_conclusions_and_the_fold_prints_open(first_page):
+    page = first_page.page
+    assert page.evaluate("() => document.querySelector('details.folded').open") is False  # closed on screen
+    with printed(page, A4_LANDSCAPE_CONTENT_PX):
+        conclusions = _box(page, ".first-page")
+        assert conclusions["bottom"] <= A4_LANDSCAPE_CONTENT_HEIGHT_PX, conclusions
+        folded = page.evaluate("""() => { const d = document.querySelector('details.folded');
+            return [d.open, d.querySelector('table').getBoundingClientRect().height]; }""")
+        assert folded[0] is True and folded[1] > 1000  # the whole ledger, printed
+        _tables_fit_a4(page)
+    # closed again, the long tables too, though the PDF printed in between began a print of its own
+    assert page.evaluate("() => document.querySelector('details.folded').open") is False
+    assert page.evaluate("() => Array.from(document.querySelectorAll('details.long-table')).every(d => !d.open)")
+    _no_errors(first_page)
+
+
+def test_each_window_is_told_in_one_sentence(demo):
+    told = demo.page.evaluate("""() => Array.from(document.querySelectorAll('#windows .sentences.story li'))
+        .map(li => li.textContent)""")
+    windows = _csv_rows(demo.out, "windows")
+    assert len(told) == len(windows) > 1
+    assert told == [w["sentence"] for w in windows]
+    assert all(t.startswith(f"Window {w['window']} (") for t, w in zip(told, windows))
+    _no_errors(demo)
+
+
+def test_the_grants_are_listed_and_the_forecast_chart_steps_at_each(demo):
+    page = demo.page
+    rows = page.evaluate("""() => Array.from(document.querySelectorAll('[data-table="extensions_granted"] tbody tr'))
+        .map(tr => Array.from(tr.cells).slice(0, 3).map(td => td.textContent))""")
+    # extensions_granted.csv of the demo: EOT-01 of 21 days on 2025-08-22, EOT-02 of 7 days on 2026-03-20
+    assert rows == [["EOT-01", "2025-08-22", "21"], ["EOT-02", "2026-03-20", "7"]]
+    line = page.evaluate("""() => {
+        const trace = document.querySelector('[data-figure="completion_trend"] .js-plotly-plot').data
+            .find(t => t.name === 'contract completion in force');
+        return {x: Array.from(trace.x), y: Array.from(trace.y), shape: trace.line.shape};
+    }""")
+    # the contract completion 2026-05-29, +21 days from 2025-08-22, +7 more from 2026-03-20
+    assert line["shape"] == "hv"
+    steps = dict(zip(line["x"], line["y"]))
+    assert line["y"][0] == "2026-05-29" and steps["2025-08-22"] == "2026-06-19" and steps["2026-03-20"] == "2026-06-26"
+    _no_errors(demo)
+
+
+def test_a_hostile_opinion_is_shown_as_text_and_runs_nothing(browser, tmp_path):
+    from reports.writer import build
+    from test_report_conclusions import HOSTILE_OPINION
+
+    root = write_small_case(tmp_path / "case")
+    (root / "opinion.md").write_text(HOSTILE_OPINION, encoding="utf-8")
+    out = build(root, tmp_path / "report")
+    opened = Page(browser, out / "report.html", width=1280, height=900)
+    page = opened.page
+    dialogs: list[str] = []
+    page.on("dialog", lambda d: (dialogs.append(d.message), d.dismiss()))
+    page.wait_for_function("() => document.documentElement.dataset.reportReady === 'true'")
+    opinion = page.locator(".group.opinion .markdown")
+    opinion.hover()
+    page.mouse.move(5, 5)
+    for link in page.locator(".group.opinion .markdown a").all():  # the links kept are safe to follow
+        assert link.get_attribute("href").startswith(("https:", "mailto:", "notes/"))
+    page.wait_for_timeout(300)
+    found = page.evaluate("""() => ({
+        owned: typeof window.owned,
+        hrefs: Array.from(document.querySelectorAll('.markdown a')).map(a => a.getAttribute('href')),
+        dangerous: document.querySelectorAll('.markdown script, .markdown img, .markdown iframe, .markdown [onerror], '
+                                             + '.markdown [onmouseover], .markdown [onclick]').length,
+        text: document.querySelector('.markdown').textContent})""")
+    assert found["owned"] == "undefined"  # neither the script, the image, the div nor a link set it
+    assert found["dangerous"] == 0 and dialogs == []
+    assert found["hrefs"] == ["https://example.org/protocol", "notes/a.html", "mailto:a@example.org"]
+    assert "<script>" in found["text"] and "javascript:window.owned='link'" in found["text"]  # shown as typed
+    assert opened.errors == []  # no request for the image on the network either
+    opened.close()

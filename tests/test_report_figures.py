@@ -13,7 +13,9 @@ import pandas as pd
 import pytest
 
 from reports import figures
-from reports.palette import BUILT_BAR, PLANNED_BAR, STATE_COLOURS
+import itertools
+
+from reports.palette import BUILT_BAR, PARTY_COLOURS, PLANNED_BAR, STATE_COLOURS
 from test_element_timeline import _DICHROMACY, _lab
 
 
@@ -28,6 +30,48 @@ def test_completion_trend_draws_each_programme_and_the_reference_lines():
     levels = sorted(shape.y0 for shape in figure.layout.shapes)
     assert levels == ["2025-06-30", "2025-07-01"]
     assert figure.layout.yaxis.type == "date" and line.line.color == STATE_COLOURS[2]
+
+
+def test_completion_trend_steps_the_date_in_force_at_each_grant():
+    trend = pd.DataFrame({"label": ["Baseline", "Update 01"], "data_date": [dt.date(2025, 1, 6), dt.date(2025, 3, 3)],
+                          "completion": [dt.date(2025, 6, 30), dt.date(2025, 7, 14)]})
+    # a contract completion of 2025-06-27 and one grant of 10 days on 2025-02-10: in force
+    # 2025-06-27 until then, 2025-07-07 from then (datetime arithmetic: 27 June + 10 days)
+    assert dt.date(2025, 6, 27) + dt.timedelta(days=10) == dt.date(2025, 7, 7)
+    in_force = pd.DataFrame({"date": [dt.date(2025, 1, 6), dt.date(2025, 2, 10), dt.date(2025, 3, 3)],
+                             "completion_in_force": [dt.date(2025, 6, 27), dt.date(2025, 7, 7), dt.date(2025, 7, 7)],
+                             "grant": ["", "G-1 +10 days", ""]})
+    figure = figures.completion_trend(trend, planned=dt.date(2025, 6, 30), in_force=in_force)
+    forecast, steps = figure.data
+    assert steps.name == "contract completion in force" and steps.line.shape == "hv"  # held until the next grant
+    assert list(steps.x) == ["2025-01-06", "2025-02-10", "2025-03-03"]
+    assert list(steps.y) == ["2025-06-27", "2025-07-07", "2025-07-07"] and list(steps.text)[1] == "G-1 +10 days"
+    assert [shape.y0 for shape in figure.layout.shapes] == ["2025-06-30"]  # no flat line beside the steps
+
+
+def test_window_parties_stack_delays_above_and_gains_below_zero():
+    windows = pd.DataFrame({"window": [1, 2], "start": ["Baseline", "U1"], "end": ["U1", "U2"],
+                            "movement_days": [12, -1], "employer_days": [12, 0], "employer_gain_days": [0, 0],
+                            "contractor_days": [2, 1], "contractor_gain_days": [-2, -2], "neutral_days": [0, 0],
+                            "neutral_gain_days": [0, 0], "concurrent_days": [0, 0], "concurrent_gain_days": [0, 0]})
+    figure = figures.window_parties(windows)
+    assert figure.layout.barmode == "relative"  # stacked: positives up from zero, negatives down
+    names = [t.name for t in figure.data]
+    assert names == ["employer", "contractor", "contractor: gain", "net movement"]  # the parties with days
+    bars = {t.name: list(t.y) for t in figure.data}
+    assert bars["contractor: gain"] == [-2, -2] and bars["employer"] == [12, 0]
+    # each window's bars add up to its net movement: 12 + 2 - 2 = 12, 0 + 1 - 2 = -1
+    assert [sum(bars[n][k] for n in names[:-1]) for k in range(2)] == bars["net movement"] == [12, -1]
+    assert figure.data[0].marker.color == PARTY_COLOURS["employer"]
+
+
+@pytest.mark.parametrize("vision", ["normal", *_DICHROMACY])
+def test_party_colours_stay_apart_for_colour_blind_readers(vision):
+    matrix = np.eye(3) if vision == "normal" else _DICHROMACY[vision]
+    for first, second in itertools.combinations(PARTY_COLOURS.values(), 2):
+        # a CIE76 difference of 20 is far above the just-noticeable difference of about 2.3
+        # (Sharma, Digital Color Imaging Handbook, 2003; recalled from memory)
+        assert np.linalg.norm(_lab(first, matrix) - _lab(second, matrix)) > 20, (vision, first, second)
 
 
 def test_window_movements_stack_progress_and_revisions():

@@ -1,0 +1,201 @@
+"""What every report section reads: the case, the methods' results, the entitlement and the
+comparison, and the register of the tables shown.
+
+:class:`Context` is made once by :func:`reports.builder.compute`, after the methods have run;
+each module of :mod:`reports.sections` takes it and returns its
+:class:`~reports.blocks.Section`. Tables are registered here in page order, so that their
+keys stay unique and the appendices and the manifest list them in the order they appear.
+"""
+
+from __future__ import annotations
+
+import datetime as dt
+from typing import Any
+
+import pandas as pd
+
+from delay.cpm import calendars_of, prepare
+from delay.model import Case
+
+from .blocks import Paragraph, Section, TableBlock
+from .tables import BuildUp, ReportTable
+
+__all__ = [
+    "Context",
+    "REPORT_METHODS",
+    "ENTITLEMENT_METHODS",
+    "METHOD_NAMES",
+    "CAUTIONS",
+    "days_text",
+    "money_text",
+]
+
+#: Methods a report can run, by their command-line names, in the order of the sections.
+REPORT_METHODS = ("windows", "impacted", "tia", "collapsed", "asbuilt")
+
+#: The methods that assess an extension of time and money (:mod:`delay.entitlement`).
+ENTITLEMENT_METHODS = ("windows", "impacted", "tia", "collapsed")
+
+METHOD_NAMES = {
+    "windows": "windows analysis",
+    "impacted": "impacted as-planned",
+    "tia": "time impact analysis",
+    "collapsed": "collapsed as-built",
+    "asbuilt": "as planned against as built",
+}
+
+#: The cautions that go with every figure of the report (summary and inputs sections).
+CAUTIONS: tuple[str, ...] = (
+    "The results depend on the records given to the toolkit and on the method chosen; different "
+    "recognised methods can give different answers on the same facts.",
+    "Nothing in this report is legal advice.",
+    "The contract, the applicable law and the analyst's professional judgement govern; every result "
+    "should be reviewed by a competent professional before it is relied upon.",
+)
+
+
+def days_text(n: int) -> str:
+    """``n`` calendar days in words.
+
+    Parameters
+    ----------
+    n: a number of calendar days.
+
+    Returns
+    -------
+    str
+
+    Examples
+    --------
+    >>> days_text(1), days_text(-3)
+    ('1 calendar day', '-3 calendar days')
+    """
+    return f"{n} calendar day{'s' if abs(n) != 1 else ''}"
+
+
+def money_text(amount: float, currency: str) -> str:
+    """A sum of money in words.
+
+    Parameters
+    ----------
+    amount: the sum.
+    currency: its ISO 4217 code.
+
+    Returns
+    -------
+    str
+
+    Examples
+    --------
+    >>> money_text(54600, "EUR")
+    'EUR 54,600.00'
+    """
+    return f"{currency} {float(amount):,.2f}"
+
+
+class Context:
+    """The results a report is made of.
+
+    Parameters
+    ----------
+    case: the loaded case.
+    methods: the methods run, in section order.
+    results: each method's result, by its name in :data:`REPORT_METHODS`.
+    entitlement: :class:`delay.entitlement.EntitlementResult` of the methods that assess
+        entitlement, or ``None`` when none of them ran.
+    comparison: :class:`delay.comparison.MethodComparison` of the same methods, or ``None``.
+    """
+
+    def __init__(self, case: Case, methods: list[str], results: dict[str, Any], entitlement=None,
+                 comparison=None):
+        self.case = case
+        self.methods = methods
+        self.results = results
+        self.entitlement = entitlement
+        self.comparison = comparison
+        self.tables: list[ReportTable] = []
+        self._completions: dict[str, dt.date] = {}
+        self._calendars = None
+
+    @property
+    def entitled(self) -> list:
+        """The entitlement of each method assessed.
+
+        Returns
+        -------
+        list of delay.entitlement.Entitlement
+            In the order of the methods; empty when none was assessed.
+        """
+        return list(self.entitlement.methods) if self.entitlement is not None else []
+
+    @property
+    def currency(self) -> str:
+        """The case's currency (``[commercial] currency``)."""
+        return self.case.settings.commercial.currency
+
+    def table(self, key: str, title: str, section: str, frame: pd.DataFrame, *, note: str = "",
+              labels: dict | None = None, style: str = "", build_up: BuildUp | None = None) -> TableBlock:
+        """Register a table of the report and return the block that shows it.
+
+        Parameters
+        ----------
+        key, title, section, frame, note, labels, build_up: as for
+            :class:`reports.tables.ReportTable`.
+        style: the block's style (:class:`reports.blocks.TableBlock`).
+
+        Returns
+        -------
+        reports.blocks.TableBlock
+
+        Raises
+        ------
+        ValueError
+            A key already registered: two tables of one report never share a name.
+        """
+        if any(t.key == key for t in self.tables):
+            raise ValueError(f"two tables named {key}")
+        table = ReportTable(key=key, title=title, section=section, frame=frame.reset_index(drop=True),
+                            labels=labels or {}, note=note, build_up=build_up)
+        self.tables.append(table)
+        return TableBlock(table, style=style)
+
+    def completion(self, snapshot) -> dt.date:
+        """The forecast completion of a programme, scheduled once per programme.
+
+        Parameters
+        ----------
+        snapshot: a :class:`delay.model.Snapshot` of the case.
+
+        Returns
+        -------
+        datetime.date
+        """
+        if snapshot.folder not in self._completions:
+            if self._calendars is None:
+                self._calendars = calendars_of(self.case)
+            model = prepare(self.case, snapshot, calendars=self._calendars)
+            self._completions[snapshot.folder] = model.completion()
+        return self._completions[snapshot.folder]
+
+    def method_section(self, method: str, title: str, explanation: str) -> tuple[Section, Any]:
+        """The section of a method, opened, and the method's result.
+
+        Parameters
+        ----------
+        method: a name of :data:`REPORT_METHODS` (also the section's key).
+        title: the section's title.
+        explanation: the paragraph the section opens with when the method ran.
+
+        Returns
+        -------
+        tuple
+            The :class:`~reports.blocks.Section` and the method's result; when the method
+            did not run, the section says why and is marked not available, and the result
+            is ``None``.
+        """
+        section = Section(method, title)
+        if method not in self.results:
+            return section.not_shown(f"The {METHOD_NAMES[method]} was not run for this report (see the methods "
+                                     "chosen in the inputs section)."), None
+        section.blocks.append(Paragraph(explanation))
+        return section, self.results[method]
