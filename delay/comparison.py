@@ -58,7 +58,7 @@ DISAGREEMENT_DAYS = 10
 #: The headline figures counted in days, with their names in words, in the order they are
 #: compared.
 HEADLINE_DAYS = {"eot_days": "extension of time", "compensable_days": "compensable days",
-                 "culpable_days": "culpable days"}
+                 "ld_days": "days of liquidated damages"}
 
 
 def available_methods(case: Case) -> list[str]:
@@ -146,7 +146,7 @@ def compare_methods(case: Case, results: Mapping[str, Entitlement] | None = None
         as-built gives each event's own but-for days, so these columns need not add up),
         and for the collapsed as-built one row of the days concurrent between parties.
         ``headline``: per method the extension of time, the revised completion, compensable
-        days and prolongation cost, culpable delay and acceleration days, culpable days,
+        days and prolongation cost, culpable delay and acceleration days, days of liquidated damages,
         damages exposure and concurrent days. ``explanation``: sentences.
     """
     methods = tuple(results) if results else tuple(available_methods(case))
@@ -285,8 +285,8 @@ def why_they_differ(comparison: MethodComparison) -> tuple[str, ...]:
     figure = max(spreads, key=lambda f: spreads[f][3] - spreads[f][1])  # the first on a tie
     low, low_days, high, high_days = spreads[figure]
     if high_days == low_days:
-        return (f"All {len(methods)} methods give the same extension of time, compensable and culpable days "
-                f"({spreads['eot_days'][1]}, {spreads['compensable_days'][1]} and {spreads['culpable_days'][1]}).",)
+        return (f"All {len(methods)} methods give the same extension of time, compensable days and days of liquidated "
+                f"damages ({spreads['eot_days'][1]}, {spreads['compensable_days'][1]} and {spreads['ld_days'][1]}).",)
     return (f"The methods differ most on the {HEADLINE_DAYS[figure]}: from {low_days} days by {METHOD_TITLES[low]} "
             f"to {high_days} by {METHOD_TITLES[high]}.",
             f"The {METHOD_TITLES[high]} {MEASURES[high]}; the {METHOD_TITLES[low]} {MEASURES[low]}.")

@@ -164,8 +164,8 @@ def events_left_alone(method: str, result) -> list[str]:
     events = result.events
     for row in events.itertuples(index=False):
         if row.applied:
-            found.append(f"{_name(method)}: {row.id} is applied only in part ({row.applied}).")
-    untouched = [str(row.id) for row in events.itertuples(index=False) if row.effect]
+            found.append(f"{_name(method)}: {row.event} is applied only in part ({row.applied}).")
+    untouched = [str(row.event) for row in events.itertuples(index=False) if row.effect]
     if untouched:
         which = " and ".join([", ".join(untouched[:-1]), untouched[-1]] if len(untouched) > 1 else untouched)
         one = len(untouched) == 1
@@ -188,7 +188,7 @@ def tia_warnings(result) -> list[str]:
     list of str
         One sentence per warning, naming its event.
     """
-    return [f"Time impact analysis, {row.id}: {warning}." for row in result.events.itertuples(index=False)
+    return [f"Time impact analysis, {row.event}: {warning}." for row in result.events.itertuples(index=False)
             for warning in row.warnings]
 
 

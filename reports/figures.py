@@ -5,7 +5,7 @@ the same wherever it appears. Colours are the colour-blind-safe hues of
 :mod:`reports.palette`; the roles are our own:
 
 - planned dates and "time only" days: sky blue; actual dates and "time and money" days:
-  deep blue; culpable days and lateness: vermillion; reference lines: black and grey;
+  deep blue; days of liquidated damages and lateness: vermillion; reference lines: black and grey;
 - the bars of planned against actual dates differ in more than colour: planned bars are
   pale, hatched and outlined, actual bars solid and dark, for a greyscale print.
 
@@ -408,12 +408,12 @@ def _data_date_line(figure, day: str | None, label) -> None:
 
 
 def days_by_method(summary: pd.DataFrame, *, title: str = "Days by method"):
-    """Extension of time, compensable and culpable days of each method, side by side.
+    """Extension of time, compensable days and days of liquidated damages of each method, side by side.
 
     Parameters
     ----------
     summary: one row per method: ``method`` (its name in words), ``eot_days``,
-        ``compensable_days``, ``culpable_days`` (calendar days).
+        ``compensable_days``, ``ld_days`` (calendar days).
 
     Returns
     -------
@@ -428,7 +428,7 @@ def days_by_method(summary: pd.DataFrame, *, title: str = "Days by method"):
                                       yaxis=dict(title=dict(text="calendar days"))))
     for column, colour, name in (("eot_days", BUILT_COLOUR, "extension of time"),
                                  ("compensable_days", PLANNED_COLOUR, "compensable days (time and money)"),
-                                 ("culpable_days", LATE_COLOUR, "culpable days (damages may apply)")):
+                                 ("ld_days", LATE_COLOUR, "days of liquidated damages")):
         figure.add_trace(go.Bar(x=methods, y=[int(v) for v in summary[column]], name=name, marker_color=colour,
                                 hovertemplate="%{x}<br>" + name + ": %{y}<extra></extra>"))
     return figure

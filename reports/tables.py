@@ -129,6 +129,7 @@ LABELS: dict[str, str] = {
     "excusable_days": "excusable days (time)",
     "compensable_days": "compensable days (time and money)",
     "culpable_days": "culpable days",
+    "ld_days": "days of liquidated damages",
     "classification": "classification",
     "arose_on": "delay arose on",
     "method": "method",

@@ -71,7 +71,7 @@ def test_compare_two_snapshots(tmp_path):
     result = run(small_case(tmp_path), "--compare", "baseline", "u01", "--format", "json")
     assert result.exit_code == 0, result.output
     data = json.loads(result.output)
-    assert (data["earlier"], data["later"]) == ("Baseline", "Update 01")
+    assert (data["earlier_label"], data["later_label"]) == ("Baseline", "Update 01")
     # START's one milestone date is both its actual dates; A started, and its remaining
     # work went from the planned 3 days to 1: four progress rows.
     assert data["counts"]["progress"] == 4

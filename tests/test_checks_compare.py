@@ -154,7 +154,8 @@ def test_the_json_form(case):
     import json
 
     data = json.loads(json.dumps(compare(case, "baseline", "u01").to_json()))
-    assert data["earlier"] == "Baseline" and data["later"] == "Update 01"
+    assert data["earlier_label"] == "Baseline" and data["later_label"] == "Update 01"
+    assert (data["earlier_snapshot"], data["later_snapshot"]) == ("baseline", "u01")
     assert data["counts"]["link_changed"] == 3
     assert data["changes"][0] == {
         "kind": "activity_deleted", "activity": "D", "pred": "", "succ": "", "field": "", "before": "Work D",

@@ -151,7 +151,7 @@ def test_summary_figures_match_the_hand_working(small_report):
         assert figures["extension of time (calendar days)"][method] == "5"
         assert figures["revised completion date"][method] == "2025-01-22"
         assert figures["compensable days (time and money)"][method] == "5"
-        assert figures["culpable days"][method] == "0"
+        assert figures["days of liquidated damages"][method] == "0"
         assert float(figures["prolongation cost (EUR)"][method]) == 500.0
 
 

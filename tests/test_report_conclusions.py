@@ -105,7 +105,7 @@ def test_days_no_event_explains_gains_and_recovery_are_named():
 
 
 def test_events_not_scored_or_applied_in_part_and_programmes_that_show_an_event_are_named():
-    events = pd.DataFrame({"id": ["E1", "E2", "E3"], "applied": ["", "not in Baseline: X9", ""],
+    events = pd.DataFrame({"event": ["E1", "E2", "E3"], "applied": ["", "not in Baseline: X9", ""],
                            "effect": ["", "", "alone: A: no effect on this programme"],
                            "warnings": [["Update 02 already shows A 5 work days later"], [], []]})
     found = events_left_alone("impacted", SimpleNamespace(events=events))
@@ -129,7 +129,7 @@ def test_events_not_scored_or_applied_in_part_and_programmes_that_show_an_event_
 def _comparison(eot, compensable, culpable) -> MethodComparison:
     methods = ("windows", "impacted", "collapsed")
     headline = pd.DataFrame({"method": methods, "eot_days": eot, "compensable_days": compensable,
-                             "culpable_days": culpable})
+                             "ld_days": culpable})
     return MethodComparison(methods, pd.DataFrame(), pd.DataFrame(), headline, ())
 
 
@@ -179,7 +179,7 @@ def test_the_opinion_and_the_method_relied_on_are_on_the_first_page(tmp_path):
     headline = {r["method"]: r for r in rows_of(out, "headline")}
     assert "time impact analysis (relied on by the analyst)" in headline
     # the small case's working (test_report.py): 5 days, all excusable and compensable
-    assert headline["windows analysis"]["eot_days"] == "5" and headline["windows analysis"]["culpable_days"] == "0"
+    assert headline["windows analysis"]["eot_days"] == "5" and headline["windows analysis"]["ld_days"] == "0"
 
 
 @pytest.fixture(scope="module")

@@ -189,10 +189,10 @@ def test_planned_and_actual_bars_stay_apart_in_greyscale(vision):
 
 def test_days_by_method_groups_three_figures_per_method():
     summary = pd.DataFrame({"method": ["windows analysis", "impacted as-planned"], "eot_days": [10, 7],
-                            "compensable_days": [4, 7], "culpable_days": [3, 0]})
+                            "compensable_days": [4, 7], "ld_days": [3, 0]})
     figure = figures.days_by_method(summary)
     assert [t.name for t in figure.data] == ["extension of time", "compensable days (time and money)",
-                                             "culpable days (damages may apply)"]
+                                             "days of liquidated damages"]
     assert [list(t.y) for t in figure.data] == [[10, 7], [4, 7], [3, 0]]
     assert figure.layout.barmode == "group" and figure.data[2].marker.color == STATE_COLOURS[3]
 

@@ -187,9 +187,9 @@ def test_the_demo_damages_are_days_times_rate_under_the_cap(demo):
     whole = {r["method"]: r for r in rows_of(demo, "damages_build_up") if r["applies_to"] == "the whole works"}
     assert set(whole) == set(headline)
     for method, row in whole.items():
-        before = int(row["culpable_days"]) * float(commercial["liquidated_damages_per_day"])
+        before = int(row["ld_days"]) * float(commercial["liquidated_damages_per_day"])
         expected = min(before, float(commercial["liquidated_damages_cap"]))
-        assert int(row["culpable_days"]) == int(headline[method]["culpable_days"])
+        assert int(row["ld_days"]) == int(headline[method]["ld_days"])
         assert float(row["ld_exposure"]) == expected == float(headline[method]["ld_exposure"])
         assert row["ld_capped"] == ("true" if before > expected else "false")
 
@@ -198,7 +198,7 @@ def test_the_demo_grants_are_listed_with_the_completion_in_force_from_their_date
     with open(DEMO / "extensions_granted.csv", newline="", encoding="utf-8") as handle:
         granted = list(csv.DictReader(handle))
     listed = rows_of(demo, "extensions_granted")
-    assert [(r["id"], r["granted_on"], r["days"]) for r in listed] == [
+    assert [(r["grant"], r["granted_on"], r["days"]) for r in listed] == [
         (g["id"], g["granted_on"], g["days"]) for g in granted]
     assert [r["events"] for r in listed] == [g["events"] for g in granted]
     # by hand: the contract completion 2026-05-29 (case.toml), + 21 days from 2025-08-22 is
@@ -259,7 +259,7 @@ def test_a_cap_that_bites_is_recomputed_by_min(tmp_path):
                "asbuilt.csv": ASBUILT})
     out = build(root, tmp_path / "report", methods="windows,impacted")
     rows = rows_of(out, "damages_build_up")
-    assert [(r["culpable_days"], r["damages_before_cap"], r["cap"], r["ld_exposure"], r["ld_capped"]) for r in rows] \
+    assert [(r["ld_days"], r["damages_before_cap"], r["cap"], r["ld_exposure"], r["ld_capped"]) for r in rows] \
         == [("5", "250.0", "200.0", "200.0", "true")] * 2
     sheet = load_workbook(out / "tables.xlsx")["damages_build_up"]
     headings, _ = _sheet_rows(sheet)

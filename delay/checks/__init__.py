@@ -76,7 +76,7 @@ def check_snapshot(case: Case, snapshot: str | Snapshot = "baseline") -> dict[st
     Returns
     -------
     dict
-        ``snapshot`` (label), ``folder``, ``kind``, ``data_date``, ``completion`` (forecast),
+        ``snapshot`` (the folder), ``label``, ``kind``, ``data_date``, ``completion`` (forecast),
         ``completion_in_force`` (at its data date), ``metrics`` (one object per metric of
         :data:`METRIC_KEYS`: ``key, title, count, denominator, percent, threshold, passed,
         activities, unit, note``), ``data_checks`` (one object per check of

@@ -93,8 +93,8 @@ class Comparison:
         return {kind: int(found.get(kind, 0)) for kind in CHANGE_KINDS}
 
     def to_json(self) -> dict:
-        return {"earlier": self.earlier, "later": self.later, "earlier_folder": self.earlier_folder,
-                "later_folder": self.later_folder, "counts": self.counts(),
+        return {"earlier_snapshot": self.earlier_folder, "earlier_label": self.earlier,
+                "later_snapshot": self.later_folder, "later_label": self.later, "counts": self.counts(),
                 "changes": frame_records(self.changes)}
 
 

@@ -49,7 +49,7 @@ def check(case, snapshot, all_snapshots, compare, output_format):
     JSON (--format json):
       one snapshot   {"snapshot", "metrics": [...], "data_checks": [...], "elements": {...}}
       --all          {"snapshots": [one object per snapshot, as above]}
-      --compare      {"earlier", "later", "counts": {...}, "changes": [...]}
+      --compare      {"earlier_snapshot", "earlier_label", "later_snapshot", "later_label", "counts": {...}, "changes": [...]}
 
     A failed metric is a finding about the records, not an error: the exit status is 0.
     It is 2, with one line per problem, only when the case or the options are invalid.

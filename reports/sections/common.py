@@ -64,7 +64,7 @@ def event_rows(events: pd.DataFrame, extra: list[str] = (), alone: list[str] = (
     for record in events.itertuples(index=False):
         parts = [record.applied, record.effect, *getattr(record, "warnings", [])]
         notes.append("; ".join(p for p in parts if p))
-    columns = ["id", "title", "party", "impact", "start", *extra, "alone_days", *alone, "increment_days", *increment,
+    columns = ["event", "title", "party", "impact", "start", *extra, "alone_days", *alone, "increment_days", *increment,
                "completion_after"]
     return events[columns].assign(notes=notes)
 

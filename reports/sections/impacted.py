@@ -53,7 +53,7 @@ def section(ctx: Context) -> Section:
                          ("Residual (actual less impacted)", days_text(result.residual_days)))))
     rows = [{"run": result.base, "step": "before any event", "completion": result.completion_base, "alone": None,
              "title": "the programme before any event"}]
-    rows += [{"run": result.base, "step": r.id, "completion": r.completion_after, "alone": r.completion_alone,
+    rows += [{"run": result.base, "step": r.event, "completion": r.completion_after, "alone": r.completion_alone,
               "title": r.title} for r in result.events.itertuples(index=False)]
     chart = completion_steps(steps_frame(rows), title="Completion after each event")
     blocks.append(FigureBlock("impacted_steps", chart,

@@ -8,7 +8,7 @@ From :func:`delay.entitlement.assess` (``ctx.entitlement``), for each method:
   :func:`delay.entitlement.prolongation_build_up`): compensable days x the rate of the
   period in which their delay arose, one row per rate applied, with a total per method that
   is the prolongation cost of the summary;
-- the liquidated damages built up: culpable days x the rate (the whole works' and each
+- the liquidated damages built up: days of liquidated damages x the rate (the whole works' and each
   section's), the cap of ``[commercial] liquidated_damages_cap`` and whether it bit.
 
 In tables.xlsx these tables carry formula columns that recompute every product, cap and
@@ -28,15 +28,15 @@ __all__ = ["section", "rates_frame", "prolongation_frame", "damages_frame", "PRO
 #: How the prolongation cost is built up: days x rate, totals per method.
 PROLONGATION = BuildUp(products={"cost": ("days", "cost_per_day")}, totals=("days", "cost"), group="method")
 
-#: How liquidated damages are built up: culpable days x rate, then the cap where it is above 0.
-DAMAGES = BuildUp(products={"damages_before_cap": ("culpable_days", "liquidated_damages_per_day")},
+#: How liquidated damages are built up: days of liquidated damages x rate, then the cap where it is above 0.
+DAMAGES = BuildUp(products={"damages_before_cap": ("ld_days", "liquidated_damages_per_day")},
                   capped={"ld_exposure": ("damages_before_cap", "cap")})
 
 _EXPLAIN = (
     "Prolongation is priced when the delay was caused: each method's compensable days are priced at the rate of "
     "the period of prolongation_rates.csv that holds the day their delay arose (a window's last day, an event's "
     "start), else at the flat rate of case.toml (SCL Delay and Disruption Protocol, 2nd edition (2017), core "
-    "principle 17, as recalled). Liquidated damages are the culpable days times the rate, limited to the cap when "
+    "principle 17, as recalled). Liquidated damages are the days of liquidated damages times the rate, limited to the cap when "
     "the contract sets one; the cap applies to each figure on its own. Sums already paid are not deducted. In "
     "tables.xlsx the sheets prolongation_build_up and damages_build_up recompute every product, cap and total by "
     "formula, in the columns marked (formula) beside the values: the library that writes the workbook stores a "
@@ -97,7 +97,7 @@ def damages_frame(ctx: Context) -> pd.DataFrame:
     Returns
     -------
     pandas.DataFrame
-        ``method``, ``applies_to``, ``culpable_days``, ``liquidated_damages_per_day``,
+        ``method``, ``applies_to``, ``ld_days``, ``liquidated_damages_per_day``,
         ``damages_before_cap`` (days x rate), ``cap`` (``[commercial]
         liquidated_damages_cap``, 0: none), ``ld_exposure`` and ``ld_capped`` (the
         entitlement's figures).
@@ -105,18 +105,18 @@ def damages_frame(ctx: Context) -> pd.DataFrame:
     cap = float(ctx.case.settings.commercial.liquidated_damages_cap)
     rows = []
     for item in ctx.entitled:
-        figures = [("the whole works", item.culpable_days, item.liquidated_damages_per_day, item.ld_exposure,
+        figures = [("the whole works", item.ld_days, item.liquidated_damages_per_day, item.ld_exposure,
                     item.ld_capped)]
         for part in item.sections.itertuples(index=False):
-            if not part.whole_works and part.culpable_days is not None and not pd.isna(part.culpable_days):
-                figures.append((f"section {part.section}", part.culpable_days, part.liquidated_damages_per_day,
+            if not part.whole_works and part.ld_days is not None and not pd.isna(part.ld_days):
+                figures.append((f"section {part.section}", part.ld_days, part.liquidated_damages_per_day,
                                 part.ld_exposure, part.ld_capped))
         for what, days, rate, exposure, capped in figures:
-            rows.append({"method": METHOD_NAMES[item.method], "applies_to": what, "culpable_days": int(days),
+            rows.append({"method": METHOD_NAMES[item.method], "applies_to": what, "ld_days": int(days),
                          "liquidated_damages_per_day": float(rate),
                          "damages_before_cap": round(int(days) * float(rate), 2), "cap": cap,
                          "ld_exposure": float(exposure), "ld_capped": bool(capped)})
-    return pd.DataFrame(rows, columns=["method", "applies_to", "culpable_days", "liquidated_damages_per_day",
+    return pd.DataFrame(rows, columns=["method", "applies_to", "ld_days", "liquidated_damages_per_day",
                                        "damages_before_cap", "cap", "ld_exposure", "ld_capped"])
 
 
@@ -167,7 +167,7 @@ def section(ctx: Context) -> Section:
               + (f" No compensable days, so no prolongation: {', '.join(none)}." if none else ""))))
     damages = damages_frame(ctx)
     blocks.append(ctx.table(
-        "damages_build_up", f"Liquidated damages: culpable days x the rate, and the cap ({currency})", "money",
+        "damages_build_up", f"Liquidated damages: days of liquidated damages x the rate, and the cap ({currency})", "money",
         damages, build_up=DAMAGES,
         labels={"applies_to": "applies to", "liquidated_damages_per_day": f"rate per day ({currency})",
                 "damages_before_cap": f"before the cap ({currency})", "cap": f"cap ({currency}; 0: none)",

@@ -32,10 +32,9 @@ def _verdict(passed) -> str:
 def _item_text(item) -> str:
     if not isinstance(item, dict):
         return str(item)
-    if "id" in item:
-        return str(item["id"])
-    if "activity" in item and item.get("activity"):
-        return str(item["activity"])
+    for key in ("activity", "element"):
+        if item.get(key):
+            return str(item[key])
     if "pred" in item and "succ" in item:
         return f"{item['pred']}>{item['succ']}"
     if "elements" in item:
@@ -46,11 +45,11 @@ def _item_text(item) -> str:
 def _metrics(ctx: Context, snapshots: list[dict], folders: list[str], labels: dict) -> list:
     order = [m["key"] for m in snapshots[0].get("metrics", [])]
     titles = {m["key"]: m["title"] for s in snapshots for m in s.get("metrics", [])}
-    cells = {(s["folder"], m["key"]): m for s in snapshots for m in s.get("metrics", [])}
+    cells = {(s["snapshot"], m["key"]): m for s in snapshots for m in s.get("metrics", [])}
     verdicts = [{"metric": titles[key], **{folder: _verdict(None if (folder, key) not in cells
                                                              else cells[(folder, key)].get("passed"))
                                            for folder in folders}} for key in order]
-    detail = [{"snapshot": snap["snapshot"], "metric": m["title"], "count": m.get("count"),
+    detail = [{"snapshot": snap["label"], "metric": m["title"], "count": m.get("count"),
                "denominator": m.get("denominator"), "percent": m.get("percent"), "threshold": m.get("threshold"),
                "verdict": _verdict(m.get("passed")), "unit": m.get("unit"),
                "activities": list(m.get("activities") or []), "note": m.get("note", "")}
@@ -67,11 +66,11 @@ def _metrics(ctx: Context, snapshots: list[dict], folders: list[str], labels: di
 def _data_checks(ctx: Context, snapshots: list[dict], folders: list[str], labels: dict) -> list:
     order = [c["key"] for c in snapshots[0].get("data_checks", [])]
     titles = {c["key"]: c["title"] for s in snapshots for c in s.get("data_checks", [])}
-    checked = {(s["folder"], c["key"]): c for s in snapshots for c in s.get("data_checks", [])}
+    checked = {(s["snapshot"], c["key"]): c for s in snapshots for c in s.get("data_checks", [])}
     counts = [{"check": titles[key], **{folder: None if (folder, key) not in checked
                                         else checked[(folder, key)].get("count") for folder in folders}}
               for key in order]
-    findings = [{"snapshot": snap["snapshot"], "check": item["title"], "status": item.get("status"),
+    findings = [{"snapshot": snap["label"], "check": item["title"], "status": item.get("status"),
                  "count": item.get("count"), "items": [_item_text(i) for i in item.get("items") or []],
                  "note": item.get("note", "")}
                 for snap in snapshots for item in snap.get("data_checks", []) if item.get("count")]
@@ -81,13 +80,13 @@ def _data_checks(ctx: Context, snapshots: list[dict], folders: list[str], labels
                       pd.DataFrame(findings, columns=["snapshot", "check", "status", "count", "items", "note"]))]
 
 
-def _model_links(ctx: Context, snapshot: dict) -> list:
+def _model_links(ctx: Context, snapshot: dict, labels: dict) -> list:
     elements = snapshot.get("elements") or {}
     if not elements:
         return []
     rows = []
     for item in (elements.get("unlinked_elements") or {}).get("items", []):
-        rows.append({"finding": "element whose work breakdown code matches no activity", "items": [item.get("id")],
+        rows.append({"finding": "element whose work breakdown code matches no activity", "items": [item.get("element")],
                      "wbs": item.get("wbs", ""), "classification": item.get("classification", ""),
                      "note": item.get("name", "")})
     for group in (elements.get("duplicates") or {}).get("groups", []):
@@ -96,10 +95,10 @@ def _model_links(ctx: Context, snapshot: dict) -> list:
                      "classification": group.get("classification", ""),
                      "note": "box " + " ".join(str(v) for v in group.get("box", []))})
     for item in (elements.get("unmodelled_activities") or {}).get("items", []):
-        rows.append({"finding": f"activity of the {item.get('snapshot', 'programme')} that no element carries",
-                     "items": [item.get("id")], "wbs": item.get("wbs", ""), "classification": "",
+        rows.append({"finding": f"activity of the {labels.get(item.get('snapshot'), 'programme')} that no element carries",
+                     "items": [item.get("activity")], "wbs": item.get("wbs", ""), "classification": "",
                      "note": item.get("name", "")})
-    return [ctx.table("model_links", f"Model elements against the programme ({snapshot['snapshot']})", "quality",
+    return [ctx.table("model_links", f"Model elements against the programme ({snapshot['label']})", "quality",
                       pd.DataFrame(rows, columns=["finding", "items", "wbs", "classification", "note"]),
                       labels={"items": "elements or activity", "note": "name or box"})]
 
@@ -122,15 +121,15 @@ def section(ctx: Context) -> Section:
     blocks.append(Paragraph(_EXPLAIN))
     snapshots = found.get("snapshots", [])
     if snapshots:
-        folders = [s["folder"] for s in snapshots]
-        labels = {s["folder"]: s["snapshot"] for s in snapshots}
+        folders = [s["snapshot"] for s in snapshots]
+        labels = {s["snapshot"]: s["label"] for s in snapshots}
         blocks += _metrics(ctx, snapshots, folders, labels)
         blocks += _data_checks(ctx, snapshots, folders, labels)
-        blocks += _model_links(ctx, snapshots[0])
+        blocks += _model_links(ctx, snapshots[0], labels)
     comparisons = found.get("comparisons", [])
     if comparisons:
         kinds = list(dict.fromkeys(k for c in comparisons for k in c.get("counts", {})))
-        rows = [{"earlier": c.get("earlier"), "later": c.get("later"),
+        rows = [{"earlier": c.get("earlier_label"), "later": c.get("later_label"),
                  **{k: c.get("counts", {}).get(k, 0) for k in kinds}} for c in comparisons]
         blocks.append(ctx.table("snapshot_changes", "Changes from each programme to the next", "quality",
                                 pd.DataFrame(rows, columns=["earlier", "later"] + kinds),

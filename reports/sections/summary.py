@@ -6,7 +6,7 @@ The first page shows, from :func:`delay.entitlement.assess` (``ctx.entitlement``
 
 - the key dates in one sentence (planned, in force, actual or forecast completion);
 - a headline per method: extension of time, revised completion, compensable days and
-  prolongation cost, culpable days and liquidated damages, acceleration days;
+  prolongation cost, days of liquidated damages and the damages, acceleration days;
 - why the methods differ (:func:`delay.comparison.why_they_differ`);
 - the points that need explaining (:func:`reports.conclusions.warnings_of`);
 - the analyst's opinion (``Case.opinion``, opinion.md, rendered by
@@ -37,7 +37,7 @@ __all__ = ["section", "headline_frame", "grants_frame", "key_dates"]
 
 #: Headings of the headline table (money columns get the currency).
 _HEADLINE_LABELS = {"method": "method", "eot_days": "extension of time (days)", "revised_completion":
-                    "revised completion", "compensable_days": "compensable days", "culpable_days": "culpable days",
+                    "revised completion", "compensable_days": "compensable days", "ld_days": "days of liquidated damages",
                     "acceleration_days": "acceleration (days)"}
 
 
@@ -53,16 +53,16 @@ def headline_frame(ctx: Context) -> pd.DataFrame:
     pandas.DataFrame
         ``method`` (in words; the method the analyst relies on marked), ``eot_days``,
         ``revised_completion``, ``compensable_days``, ``prolongation_cost``,
-        ``culpable_days``, ``ld_exposure``, ``acceleration_days``.
+        ``ld_days``, ``ld_exposure``, ``acceleration_days``.
     """
     preferred = ctx.case.settings.report.preferred_method
     rows = [{"method": METHOD_NAMES[m.method] + (" (relied on by the analyst)" if m.method == preferred else ""),
              "eot_days": m.eot_days, "revised_completion": m.revised_completion,
              "compensable_days": m.compensable_days, "prolongation_cost": m.prolongation_cost,
-             "culpable_days": m.culpable_days, "ld_exposure": m.ld_exposure,
+             "ld_days": m.ld_days, "ld_exposure": m.ld_exposure,
              "acceleration_days": m.acceleration_days} for m in ctx.entitled]
     return pd.DataFrame(rows, columns=["method", "eot_days", "revised_completion", "compensable_days",
-                                       "prolongation_cost", "culpable_days", "ld_exposure", "acceleration_days"])
+                                       "prolongation_cost", "ld_days", "ld_exposure", "acceleration_days"])
 
 
 def key_dates(ctx: Context) -> str:
@@ -181,10 +181,10 @@ def grants_frame(case) -> pd.DataFrame:
         if section and section in names and pd.notna(names[section]):
             applies += f" ({names[section]})" if not whole_works else f" (section {section}, {names[section]})"
         in_force = completion_in_force(case, None if whole_works else section, at=granted_on)[2]
-        rows.append({"id": grant.id, "granted_on": granted_on, "days": int(grant.days), "applies_to": applies,
+        rows.append({"grant": grant.id, "granted_on": granted_on, "days": int(grant.days), "applies_to": applies,
                      "events": "" if pd.isna(grant.events) else str(grant.events),
                      "reason": "" if pd.isna(grant.reason) else str(grant.reason), "completion_in_force": in_force})
-    return pd.DataFrame(rows, columns=["id", "granted_on", "days", "applies_to", "events", "reason",
+    return pd.DataFrame(rows, columns=["grant", "granted_on", "days", "applies_to", "events", "reason",
                                        "completion_in_force"])
 
 
@@ -194,7 +194,7 @@ _FIGURES = (
     ("completion with only the excusable delays", "completion_with_excusable_delays"),
     ("extension of time (calendar days)", "eot_days"), ("revised completion date", "revised_completion"),
     ("actual or forecast completion", "actual_completion"), ("compensable days (time and money)", "compensable_days"),
-    ("prolongation cost ({currency})", "prolongation_cost"), ("culpable days", "culpable_days"),
+    ("prolongation cost ({currency})", "prolongation_cost"), ("days of liquidated damages", "ld_days"),
     ("acceleration days (the contractor's net recovery)", "acceleration_days"),
     ("liquidated damages exposure ({currency})", "ld_exposure"), ("damages limited by the cap", "ld_capped"),
     ("concurrent days", "concurrent_days"),
@@ -219,15 +219,15 @@ def _entitlement_tables(ctx: Context) -> list:
     chart = pd.DataFrame({"method": [METHOD_NAMES[m.method] for m in ctx.entitled],
                           "eot_days": [m.eot_days for m in ctx.entitled],
                           "compensable_days": [m.compensable_days for m in ctx.entitled],
-                          "culpable_days": [m.culpable_days for m in ctx.entitled]})
+                          "ld_days": [m.ld_days for m in ctx.entitled]})
     blocks.append(FigureBlock("days_by_method", days_by_method(chart, title="Days by method"),
-                              "Extension of time, compensable and culpable days of each method."))
+                              "Extension of time, compensable days and days of liquidated damages of each method."))
     sections = [m.sections.assign(method=m.method) for m in ctx.entitled if len(m.sections)]
     if sections:
         frame = pd.concat(sections, ignore_index=True)
         columns = ["method", "section", "name", "completion_activity", "completion_in_force", "planned_completion",
                    "excusable_days", "eot_days", "revised_completion", "actual_completion", "compensable_days",
-                   "prolongation_cost", "culpable_days", "ld_exposure", "note"]
+                   "prolongation_cost", "ld_days", "ld_exposure", "note"]
         frame = frame[columns].assign(method=frame["method"].map(METHOD_NAMES))
         blocks.append(ctx.table("entitlement_by_section", f"Sections (money in {currency})", "summary", frame,
                                 note="Sections' figures overlap each other and the whole works': never add them."))

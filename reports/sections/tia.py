@@ -48,7 +48,7 @@ def section(ctx: Context) -> Section:
         rows.append({"run": update.snapshot, "step": "before", "completion": update.completion_before, "alone": None,
                      "title": f"the update of {update.data_date.isoformat()} before its events"})
         events = result.events[result.events["update"] == update.snapshot]
-        rows += [{"run": update.snapshot, "step": r.id, "completion": r.completion_after, "alone": r.completion_alone,
+        rows += [{"run": update.snapshot, "step": r.event, "completion": r.completion_after, "alone": r.completion_alone,
                   "title": r.title} for r in events.itertuples(index=False)]
     if rows:
         blocks.append(FigureBlock("tia_steps", completion_steps(steps_frame(rows),
