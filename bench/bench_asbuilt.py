@@ -3,7 +3,7 @@
     python bench/bench_asbuilt.py [--activities 200000] [--repeat 1]
 
 Writes a synthetic case (delay.synth) with one update and an as-built record, loads it, and
-prints the time of :func:`delay.methods.as_built.compare` beside the peer measured in the same
+prints the time of :func:`delay.methods.asbuilt.compare` beside the peer measured in the same
 process: scheduling the baseline and the as-built snapshot once each (the two schedules the
 comparison cannot do without). No assertions.
 """
@@ -21,7 +21,7 @@ sys.path.insert(0, str(Path(__file__).resolve().parent))
 from delay.case import load_case  # noqa: E402
 from delay.cpm import schedule  # noqa: E402
 from delay.memo import forget  # noqa: E402
-from delay.methods.as_built import compare  # noqa: E402
+from delay.methods.asbuilt import compare  # noqa: E402
 from delay.synth import synthesise  # noqa: E402
 from timing import median_time  # noqa: E402
 

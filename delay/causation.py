@@ -74,7 +74,7 @@ Windows (:mod:`delay.methods.windows`):
   own cause like any other and reduces the class it falls in.
 
 Impacted as-planned and time impact analysis (:mod:`delay.methods.impacted`,
-:mod:`delay.methods.time_impact`):
+:mod:`delay.methods.tia`):
   one row per event, with its increment as its days. The increments of one cumulative run
   fill the days of delay in order: the first event's increment takes positions 1 .. i1,
   the next the following ones, and so on. Concurrency needs time (AACE RP 29R-03 section
@@ -719,7 +719,7 @@ def impacted_causation(case: Case, result, concurrency: str | None = None, secti
 def time_impact_causation(case: Case, result, concurrency: str | None = None,
                           section: str | None = None) -> Causation:
     """The causation table of a time impact analysis
-    (:class:`delay.methods.time_impact.TimeImpactResult`): per programme, one row per event
+    (:class:`delay.methods.tia.TimeImpactResult`): per programme, one row per event
     inserted into it (its increment), concurrency in time within the programme's run, and
     one row for its residual.
 
@@ -868,8 +868,7 @@ def causation(case: Case, method: str, result=None, concurrency: str | None = No
     if result is None:
         from importlib import import_module
 
-        module = {"windows": "windows", "impacted": "impacted", "tia": "time_impact", "collapsed": "collapsed"}
-        result = import_module(f"delay.methods.{module[method]}").analyse(case)
+        result = import_module(f"delay.methods.{method}").analyse(case)
     if method == "windows":
         return windows_causation(case, result, concurrency, section)
     if method == "impacted":

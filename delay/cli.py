@@ -20,13 +20,25 @@ import click
 
 from . import __version__
 
-from .commands import all_commands
+from .commands import ALIASES, all_commands
 from .commands.common import FORMAT, reports_input_errors
 from .commands.common import load_case_argument as _load
 from .commands.common import print_table as _print_table
 
 
-@click.group(context_settings={"help_option_names": ["-h", "--help"], "max_content_width": 100})
+class _Commands(click.Group):
+    """The ``delay`` group: a former command name (:data:`delay.commands.ALIASES`) runs the
+    command it became, and ``--help`` lists each command once, by its name."""
+
+    def get_command(self, ctx, cmd_name):
+        return super().get_command(ctx, ALIASES.get(cmd_name, cmd_name))
+
+    def resolve_command(self, ctx, args):
+        _, command, rest = super().resolve_command(ctx, args)
+        return (command.name if command is not None else None), command, rest
+
+
+@click.group(cls=_Commands, context_settings={"help_option_names": ["-h", "--help"], "max_content_width": 100})
 @click.version_option(__version__, prog_name="delay")
 def cli():
     """Forensic delay analysis of construction programmes.

@@ -25,17 +25,12 @@ import pandas as pd
 
 from .entitlement import Entitlement, assess, json_records
 from .memo import remembered
+from .methods import METHOD_TITLES
 from .model import Case
 
 __all__ = ["compare_methods", "sensitivity", "available_methods", "disagreements", "why_they_differ",
            "MethodComparison", "METHOD_TITLES", "DISAGREEMENT_DAYS", "HEADLINE_DAYS"]
 
-METHOD_TITLES = {
-    "windows": "windows analysis",
-    "impacted": "impacted as-planned",
-    "tia": "time impact analysis",
-    "collapsed": "collapsed as-built",
-}
 
 #: What each method measures: the sentence the explanation uses for it.
 MEASURES = {

@@ -99,7 +99,7 @@ def run_demo(case_path: Path, out_dir: Path, echo: Callable[[str], None] = print
 
 def _retrospective(case, folder: Path, out_dir: Path, echo) -> list[Path]:
     """Windows analysis and, where there is an as-built record, as-planned versus as-built."""
-    from .methods import as_built, windows
+    from .methods import asbuilt, windows
 
     written = []
     if len(case.snapshots) + (case.asbuilt_snapshot is not None) >= 2:
@@ -114,7 +114,7 @@ def _retrospective(case, folder: Path, out_dir: Path, echo) -> list[Path]:
         written += [out_dir / "windows.json", out_dir / "windows.csv", out_dir / "windows_charges.csv"]
         echo(f"Windows analysis: {len(result.windows)} windows, total movement {result.total_movement_days} days")
     if case.asbuilt_snapshot is not None:
-        compared = as_built.compare(case)
+        compared = asbuilt.compare(case)
         (folder / "asbuilt.json").write_text(json.dumps(compared.to_json(), indent=2), encoding="utf-8")
         write_csv(folder / "asbuilt_activities.csv", compared.activities, date_format="%Y-%m-%d")
         write_csv(folder / "asbuilt_critical_path.csv", compared.critical_path, date_format="%Y-%m-%d")
@@ -125,19 +125,19 @@ def _retrospective(case, folder: Path, out_dir: Path, echo) -> list[Path]:
 
 def _modelled(case, folder: Path, out_dir: Path, echo) -> list[Path]:
     """Impacted as-planned, time impact and collapsed as-built, where the case allows them."""
-    from .methods import collapsed, impacted, time_impact
+    from .methods import collapsed, impacted, tia
 
     written = []
     if len(case.events):
         impact = impacted.analyse(case)
         (folder / "impacted.json").write_text(json.dumps(impact.to_json(), indent=2), encoding="utf-8")
         write_csv(folder / "impacted_events.csv", impact.events, date_format="%Y-%m-%d")
-        tia = time_impact.analyse(case)
-        (folder / "time_impact.json").write_text(json.dumps(tia.to_json(), indent=2), encoding="utf-8")
-        written += [out_dir / "impacted.json", out_dir / "impacted_events.csv", out_dir / "time_impact.json"]
+        assessed = tia.analyse(case)
+        (folder / "tia.json").write_text(json.dumps(assessed.to_json(), indent=2), encoding="utf-8")
+        written += [out_dir / "impacted.json", out_dir / "impacted_events.csv", out_dir / "tia.json"]
         echo(f"Impacted as-planned: the events add {impact.total_days} days to the plan (residual "
-             f"{impact.residual_days:+d}); time impact: increments {tia.total_days} days, residuals "
-             f"{tia.trace.residual_days:+d}, {tia.explained_days} days in all")
+             f"{impact.residual_days:+d}); time impact: increments {assessed.total_days} days, residuals "
+             f"{assessed.trace.residual_days:+d}, {assessed.explained_days} days in all")
         if case.asbuilt_snapshot is not None:
             butfor = collapsed.analyse(case)
             (folder / "collapsed.json").write_text(json.dumps(butfor.to_json(), indent=2), encoding="utf-8")

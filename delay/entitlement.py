@@ -97,6 +97,7 @@ from .cpm import NO_DAY, ScheduleResult, calendars_of, day_to_date, prepare
 from .errors import CaseError, Problem
 from .events import completion_activity
 from .memo import remembered
+from .methods import METHOD_TITLES
 from .model import Case
 
 __all__ = [
@@ -124,8 +125,6 @@ SECTION_COLUMNS = [
 EVENT_COLUMNS = ["event", "title", "party", "notified", "claimed_days", "assessed_days", "excusable_days",
                  "compensable_days", "note"]
 
-_METHOD_NAMES = {"windows": "windows analysis", "impacted": "impacted as-planned",
-                 "tia": "time impact analysis", "collapsed": "collapsed as-built"}
 
 
 # -- the contract's figures -------------------------------------------------------------------
@@ -471,7 +470,7 @@ def _run_method(case: Case, method: str):
     elif method == "impacted":
         from .methods.impacted import analyse
     elif method == "tia":
-        from .methods.time_impact import analyse
+        from .methods.tia import analyse
     elif method == "collapsed":
         from .methods.collapsed import analyse
     else:

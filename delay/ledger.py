@@ -2,7 +2,7 @@
 and the movement of completion split into calendar days.
 
 The windows analysis (:mod:`delay.methods.windows`) and the as-planned versus as-built
-comparison (:mod:`delay.methods.as_built`) both ask the same question of two schedules of
+comparison (:mod:`delay.methods.asbuilt`) both ask the same question of two schedules of
 the works, *before* and *after*: which activities on the chain that drives a target
 activity (the project's completion activity, or a section's completion milestone) in
 *after* made it move, and by how much. This module answers it once for both.

@@ -20,7 +20,7 @@ from typing import Sequence
 from delay.comparison import compare_methods
 from delay.entitlement import assess
 from delay.errors import CaseError, Problem
-from delay.methods import as_built, collapsed, impacted, time_impact, windows
+from delay.methods import asbuilt, collapsed, impacted, tia, windows
 from delay.model import Case
 
 from .blocks import Section
@@ -53,9 +53,9 @@ __all__ = [
 _RUNNERS = {
     "windows": windows.analyse,
     "impacted": impacted.analyse,
-    "tia": time_impact.analyse,
+    "tia": tia.analyse,
     "collapsed": collapsed.analyse,
-    "asbuilt": as_built.compare,
+    "asbuilt": asbuilt.compare,
 }
 
 

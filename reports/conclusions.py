@@ -181,7 +181,7 @@ def tia_warnings(result) -> list[str]:
 
     Parameters
     ----------
-    result: a :class:`delay.methods.time_impact.TimeImpactResult` (its events' ``warnings``).
+    result: a :class:`delay.methods.tia.TimeImpactResult` (its events' ``warnings``).
 
     Returns
     -------

@@ -16,8 +16,10 @@ import pandas as pd
 
 from delay.cpm import calendars_of, prepare
 from delay.model import Case
+from delay.methods import METHOD_TITLES
 
 from .blocks import Paragraph, Section, TableBlock
+from .sections import method_title
 from .tables import BuildUp, ReportTable
 
 __all__ = [
@@ -36,13 +38,8 @@ REPORT_METHODS = ("windows", "impacted", "tia", "collapsed", "asbuilt")
 #: The methods that assess an extension of time and money (:mod:`delay.entitlement`).
 ENTITLEMENT_METHODS = ("windows", "impacted", "tia", "collapsed")
 
-METHOD_NAMES = {
-    "windows": "windows analysis",
-    "impacted": "impacted as-planned",
-    "tia": "time impact analysis",
-    "collapsed": "collapsed as-built",
-    "asbuilt": "as planned against as built",
-}
+#: Each method in words, by its one-word name (:data:`delay.methods.METHOD_TITLES`).
+METHOD_NAMES = METHOD_TITLES
 
 #: The cautions that go with every figure of the report (summary and inputs sections).
 CAUTIONS: tuple[str, ...] = (
@@ -177,13 +174,13 @@ class Context:
             self._completions[snapshot.folder] = model.completion()
         return self._completions[snapshot.folder]
 
-    def method_section(self, method: str, title: str, explanation: str) -> tuple[Section, Any]:
+    def method_section(self, method: str, explanation: str) -> tuple[Section, Any]:
         """The section of a method, opened, and the method's result.
 
         Parameters
         ----------
-        method: a name of :data:`REPORT_METHODS` (also the section's key).
-        title: the section's title.
+        method: a name of :data:`REPORT_METHODS` (also the section's key); the title is the
+            method in words and its one-word name, the command that runs it alone.
         explanation: the paragraph the section opens with when the method ran.
 
         Returns
@@ -193,7 +190,7 @@ class Context:
             did not run, the section says why and is marked not available, and the result
             is ``None``.
         """
-        section = Section(method, title)
+        section = Section(method, method_title(method))
         if method not in self.results:
             return section.not_shown(f"The {METHOD_NAMES[method]} was not run for this report (see the methods "
                                      "chosen in the inputs section)."), None

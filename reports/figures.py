@@ -283,7 +283,7 @@ def gantt_order(activities: pd.DataFrame, critical_path=None) -> pd.DataFrame:
     ----------
     activities: as for :func:`planned_against_built`.
     critical_path: the as-built critical path in path order: the ``critical_path`` table of
-        :class:`delay.methods.as_built.AsBuiltResult` (its ``activity`` column) or a list of
+        :class:`delay.methods.asbuilt.AsBuiltResult` (its ``activity`` column) or a list of
         activity ids; ``None`` for none.
 
     Returns
@@ -317,7 +317,7 @@ def gantt_order(activities: pd.DataFrame, critical_path=None) -> pd.DataFrame:
 
 
 def planned_against_built(activities: pd.DataFrame, *, critical_path=None, data_dates: pd.DataFrame | None = None,
-                          title: str = "As planned against as built, activities on the driving paths"):
+                          title: str = "As-planned versus as-built, activities on the driving paths"):
     """Planned and actual bars per activity, the as-built critical path first.
 
     Planned bars are a pale tint, hatched and outlined; actual bars solid and dark
@@ -333,7 +333,7 @@ def planned_against_built(activities: pd.DataFrame, *, critical_path=None, data_
         to the end of its finish date (work happens on both), so its length is
         ``finish - start + 1`` days.
     critical_path: the as-built critical path in path order (the ``critical_path`` table
-        of :func:`delay.methods.as_built.compare`, or a list of ids): its activities are
+        of :func:`delay.methods.asbuilt.compare`, or a list of ids): its activities are
         drawn first, in path order, then the others by start (:func:`gantt_order`).
     data_dates: ``label`` and ``data_date`` of each progress update, drawn as dotted
         vertical lines, labelled under the plot.

@@ -210,3 +210,25 @@ def test_unknown_columns_are_kept(tmp_path):
     from delay.case import load_case
 
     assert list(load_case(root).baseline.activities["area"]) == ["North"] * 4
+
+
+def test_former_command_names_run_the_command_they_became(tmp_path):
+    # impact became impacted and butfor collapsed (one word per method everywhere); the old
+    # names still run, give the same output, and --help lists each command once
+    # A occupies Mon 6 .. Wed 8 Jan 2025, B Thu 9 .. Fri 10; the as-built record has B two
+    # days late, and one event of the employer's lengthens it by two days
+    events = [{"id": "E1", "title": "Late pour permit", "party": "employer", "start": "2025-01-09",
+               "finish": "2025-01-14", "activities": "B", "impact": "extend", "days": 2}]
+    asbuilt = [{"id": "START", "actual_start": "2025-01-06", "actual_finish": "2025-01-06"},
+               {"id": "A", "actual_start": "2025-01-06", "actual_finish": "2025-01-08"},
+               {"id": "B", "actual_start": "2025-01-09", "actual_finish": "2025-01-14"},
+               {"id": "END", "actual_start": "2025-01-14", "actual_finish": "2025-01-14"}]
+    root = write_case(tmp_path / "case", activities=ACTIVITIES, links=LINKS,
+                      files={"events.csv": events, "asbuilt.csv": asbuilt})
+    for old, new in (("impact", "impacted"), ("butfor", "collapsed")):
+        before, after = run(old, root, "--format", "json"), run(new, root, "--format", "json")
+        assert after.exit_code == 0, after.output
+        assert before.exit_code == after.exit_code and before.output == after.output
+    listed = [line.split()[0] for line in run("--help").output.split("Commands:")[1].splitlines() if line.strip()]
+    assert "impacted" in listed and "collapsed" in listed
+    assert "impact" not in listed and "butfor" not in listed

@@ -1,4 +1,4 @@
-"""Acceptance tests of the impacted as-planned analysis and ``delay impact``, worked by hand.
+"""Acceptance tests of the impacted as-planned analysis and ``delay impacted``, worked by hand.
 
 Sources
 -------
@@ -52,7 +52,7 @@ from hypothesis import strategies as st
 
 from casewriter import write_case, write_csv
 from delay.case import load_case
-from delay.commands.modelled import impact
+from delay.commands.modelled import impacted
 from delay.cpm import ScheduleModel, prepare, schedule
 from delay.errors import CaseError, ReconciliationError
 from delay.events import completion_activity
@@ -88,8 +88,8 @@ def by_event(result):
 
 
 def invoke(*args):
-    """``delay impact ARGS`` through the command object itself."""
-    return CliRunner().invoke(impact, [str(a) for a in args])
+    """``delay impacted ARGS`` through the command object itself."""
+    return CliRunner().invoke(impacted, [str(a) for a in args])
 
 
 # =======================================================================================

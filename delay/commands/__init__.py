@@ -12,6 +12,10 @@ import importlib
 MODULES: tuple[str, ...] = ("retrospective", "check", "modelled", "ifc", "entitlement", "report")
 
 
+#: Former command names, still accepted: each runs the command it names (not listed in ``--help``).
+ALIASES: dict[str, str] = {"impact": "impacted", "butfor": "collapsed"}
+
+
 def all_commands():
     """Every command of every module in MODULES."""
     for name in MODULES:

@@ -1,8 +1,8 @@
-"""``delay impact`` and ``delay tia``: the modelled methods, events inserted into a programme.
+"""``delay impacted`` and ``delay tia``: the modelled methods, events inserted into a programme.
 
-``impact`` is the impacted as-planned analysis (:mod:`delay.methods.impacted`): the events of
+``impacted`` is the impacted as-planned analysis (:mod:`delay.methods.impacted`): the events of
 the register inserted into one programme, each alone and then one after another. ``tia`` is
-the time impact analysis (:mod:`delay.methods.time_impact`): each event inserted into the
+the time impact analysis (:mod:`delay.methods.tia`): each event inserted into the
 update current when it began and measured against that update's completion.
 """
 
@@ -14,7 +14,7 @@ import click
 
 from .common import load_case_argument, print_table, reports_input_errors
 
-__all__ = ["impact", "tia", "COMMANDS"]
+__all__ = ["impacted", "tia", "COMMANDS"]
 
 CAUTION = ("Results depend on the records and on the method chosen; they are not legal advice. "
            "The contract, the applicable law and the analyst's professional judgement govern.")
@@ -56,7 +56,7 @@ def _day(value) -> str:
 @click.option("--format", "output_format", type=click.Choice(["table", "json"]), default="table",
               show_default=True)
 @reports_input_errors
-def impact(case, event_ids, order, base, output_format):
+def impacted(case, event_ids, order, base, output_format):
     """Impacted as-planned: the delay events inserted into one programme.
 
     Each event is modelled in the base programme at its real dates (extend: work days added
@@ -103,14 +103,14 @@ def tia(case, output_format):
 
     An event's programme is the last one (baseline or progress update) whose data date is
     strictly before the event's start, unless the register's tia_update names another. Each
-    event is modelled there as `delay impact` models it and measured at that programme's
+    event is modelled there as `delay impacted` models it and measured at that programme's
     completion activity; events sharing a programme are inserted one after another in
     chronological order. Each programme's residual (the next programme's completion less
     its impacted one) reconciles the increments with what happened: increments plus
     residuals equal the actual less the planned completion. Days are calendar days;
     positive is delay.
     """
-    from ..methods.time_impact import analyse
+    from ..methods.tia import analyse
 
     result = analyse(load_case_argument(case))
     if output_format == "json":
@@ -139,4 +139,4 @@ def tia(case, output_format):
                f"{result.actual_completion}. {CAUTION}")
 
 
-COMMANDS = (impact, tia)
+COMMANDS = (impacted, tia)

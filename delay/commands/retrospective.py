@@ -82,7 +82,7 @@ def asbuilt(case, period, output_format):
     predecessor's, in work days of the completion activity's calendar: float and
     non-working days are not delay. The periods add up to the completion variance.
     """
-    from ..methods.as_built import compare
+    from ..methods.asbuilt import compare
 
     result = compare(load_case_argument(case), period=period)
     if output_format == "json":
@@ -107,7 +107,7 @@ def asbuilt(case, period, output_format):
 @click.argument("case", type=click.Path(exists=True))
 @click.option("--format", "output_format", type=click.Choice(["table", "json"]), default="table", show_default=True)
 @reports_input_errors
-def butfor(case, output_format):
+def collapsed(case, output_format):
     """Collapsed as-built: when would the works have finished but for each party's events?
 
     Builds an as-built model from actual durations and the last update's logic (the gaps
@@ -150,4 +150,4 @@ def _plain(value):
     return value
 
 
-COMMANDS = (windows, asbuilt, butfor)
+COMMANDS = (windows, asbuilt, collapsed)

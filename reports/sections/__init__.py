@@ -9,19 +9,31 @@ nothing else. The manifest section is filled in when the page is rendered
 
 from __future__ import annotations
 
-__all__ = ["SECTIONS"]
+from delay.methods import METHOD_TITLES
+
+__all__ = ["SECTIONS", "method_title"]
+
+
+def method_title(method: str) -> str:
+    """The title of a method's section: the method in words and its one-word name.
+
+    >>> method_title("impacted")
+    'Impacted as-planned (impacted)'
+    """
+    return f"{METHOD_TITLES[method].capitalize()} ({method})"
+
 
 #: The sections of the report: key (the page anchor and the module's name) and title, in order.
 SECTIONS: tuple[tuple[str, str], ...] = (
     ("summary", "Summary"),
     ("money", "Money and its build-up"),
     ("quality", "Schedule quality"),
-    ("windows", "Windows analysis"),
-    ("impacted", "Impacted as-planned"),
-    ("tia", "Time impact analysis"),
-    ("collapsed", "Collapsed as-built"),
+    ("windows", method_title("windows")),
+    ("impacted", method_title("impacted")),
+    ("tia", method_title("tia")),
+    ("collapsed", method_title("collapsed")),
     ("comparison", "Method comparison"),
-    ("asbuilt", "As planned against as built"),
+    ("asbuilt", method_title("asbuilt")),
     ("timeline", "Element timeline"),
     ("inputs", "Inputs and method"),
     ("manifest", "Manifest"),

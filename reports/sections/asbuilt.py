@@ -1,7 +1,7 @@
-"""Section 9, as planned against as built: the baseline's dates beside the actual ones.
+"""Section 9, as-planned versus as-built: the baseline's dates beside the actual ones.
 
-From :func:`delay.methods.as_built.compare` (``ctx.results["asbuilt"]``, an
-:class:`~delay.methods.as_built.AsBuiltResult`): the planned and actual completion and their
+From :func:`delay.methods.asbuilt.compare` (``ctx.results["asbuilt"]``, an
+:class:`~delay.methods.asbuilt.AsBuiltResult`): the planned and actual completion and their
 variance, a chart of planned against actual bars of the activities on the baseline driving
 path and the as-built critical path (the path first, in path order:
 :func:`reports.figures.gantt_order`), the as-built critical path with each activity's
@@ -22,7 +22,7 @@ from ..figures import planned_against_built
 
 __all__ = ["section", "driving_path_frame", "CHART_ACTIVITIES"]
 
-#: At most this many activities are drawn in the as planned against as built chart.
+#: At most this many activities are drawn in the as-planned versus as-built chart.
 CHART_ACTIVITIES = 300
 
 _EXPLAIN = (
@@ -48,7 +48,7 @@ def driving_path_frame(ctx: Context, result) -> pd.DataFrame:
     Parameters
     ----------
     ctx: the report's results.
-    result: a :class:`delay.methods.as_built.AsBuiltResult`.
+    result: a :class:`delay.methods.asbuilt.AsBuiltResult`.
 
     Returns
     -------
@@ -92,7 +92,7 @@ def driving_path_frame(ctx: Context, result) -> pd.DataFrame:
 
 
 def section(ctx: Context) -> Section:
-    """The as planned against as built section (see the module docstring).
+    """The as-planned versus as-built section (see the module docstring).
 
     Parameters
     ----------
@@ -101,9 +101,9 @@ def section(ctx: Context) -> Section:
     Returns
     -------
     reports.blocks.Section
-        "As planned against as built"; not available when the method was not run.
+        "As-planned versus as-built (asbuilt)"; not available when the method was not run.
     """
-    asbuilt, result = ctx.method_section("asbuilt", "As planned against as built", _EXPLAIN)
+    asbuilt, result = ctx.method_section("asbuilt", _EXPLAIN)
     if result is None:
         return asbuilt
     case = ctx.case

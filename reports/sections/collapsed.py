@@ -34,9 +34,9 @@ def section(ctx: Context) -> Section:
     Returns
     -------
     reports.blocks.Section
-        "Collapsed as-built"; not available when the method was not run.
+        "Collapsed as-built (collapsed)"; not available when the method was not run.
     """
-    collapsed, result = ctx.method_section("collapsed", "Collapsed as-built", _EXPLAIN)
+    collapsed, result = ctx.method_section("collapsed", _EXPLAIN)
     if result is None:
         return collapsed
     blocks = collapsed.blocks

@@ -37,9 +37,9 @@ def section(ctx: Context) -> Section:
     Returns
     -------
     reports.blocks.Section
-        "Impacted as-planned"; not available when the method was not run.
+        "Impacted as-planned (impacted)"; not available when the method was not run.
     """
-    impacted, result = ctx.method_section("impacted", "Impacted as-planned", _EXPLAIN)
+    impacted, result = ctx.method_section("impacted", _EXPLAIN)
     if result is None:
         return impacted
     blocks = impacted.blocks

@@ -14,15 +14,15 @@ from pathlib import Path
 
 import pandas as pd
 
-from delay.methods import as_built, collapsed, impacted, time_impact, windows
+from delay.methods import asbuilt, collapsed, impacted, tia, windows
 
 from ..blocks import Facts, Paragraph, Section
 from ..context import CAUTIONS, METHOD_NAMES, Context
 
 __all__ = ["section", "docstring_part", "settings_frame"]
 
-_METHOD_MODULES = {"windows": windows, "impacted": impacted, "tia": time_impact, "collapsed": collapsed,
-                   "asbuilt": as_built}
+_METHOD_MODULES = {"windows": windows, "impacted": impacted, "tia": tia, "collapsed": collapsed,
+                   "asbuilt": asbuilt}
 
 
 def docstring_part(doc: str, heading: str) -> list[str]:

@@ -1,7 +1,7 @@
 """Section 6, the time impact analysis: each event put into the programme of its time.
 
-From :func:`delay.methods.time_impact.analyse` (``ctx.results["tia"]``, a
-:class:`~delay.methods.time_impact.TimeImpactResult`): one staircase per programme with
+From :func:`delay.methods.tia.analyse` (``ctx.results["tia"]``, a
+:class:`~delay.methods.tia.TimeImpactResult`): one staircase per programme with
 its events, each programme's impacted completion and residual to the next, each event's
 figures with its warnings (the programme may already show the event), the days per party,
 and the method's causation (``Entitlement.causation``).
@@ -35,9 +35,9 @@ def section(ctx: Context) -> Section:
     Returns
     -------
     reports.blocks.Section
-        "Time impact analysis"; not available when the method was not run.
+        "Time impact analysis (tia)"; not available when the method was not run.
     """
-    tia, result = ctx.method_section("tia", "Time impact analysis", _EXPLAIN)
+    tia, result = ctx.method_section("tia", _EXPLAIN)
     if result is None:
         return tia
     blocks = tia.blocks

@@ -137,9 +137,9 @@ def section(ctx: Context) -> Section:
     Returns
     -------
     reports.blocks.Section
-        "Windows analysis"; not available when the method was not run.
+        "Windows analysis (windows)"; not available when the method was not run.
     """
-    windows, result = ctx.method_section("windows", "Windows analysis", _EXPLAIN)
+    windows, result = ctx.method_section("windows", _EXPLAIN)
     if result is None:
         return windows
     blocks = windows.blocks

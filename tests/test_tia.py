@@ -5,7 +5,7 @@ Sources
 - shared/case-format.md, "Time convention" and "Scheduling rules" (cited as "rule n"),
   in particular rule 3 (an activity in progress keeps its actual start; its remaining work
   starts no earlier than the data date) and the events.csv section (``extend``).
-- The method's definitions in the docstring of ``delay.methods.time_impact`` (cited as
+- The method's definitions in the docstring of ``delay.methods.tia`` (cited as
   "tia doc"): an event's *current* programme is the last snapshot (baseline or update)
   whose data date is strictly before the event's start, unless ``tia_update`` names one;
   the event is modelled there as impacted as-planned models it (``delay.methods.impacted``:
@@ -76,7 +76,7 @@ from click.testing import CliRunner
 from casewriter import write_case
 from delay.case import load_case
 from delay.commands.modelled import tia
-from delay.methods.time_impact import analyse
+from delay.methods.tia import analyse
 
 SEVEN_DAY = {"default_calendar": "7d"}
 

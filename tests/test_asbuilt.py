@@ -3,7 +3,7 @@
 Sources
 -------
 - shared/case-format.md, "Time convention", "Scheduling rules" and "asbuilt.csv".
-- The method's definitions in the docstrings of ``delay.methods.as_built`` ("as-built doc")
+- The method's definitions in the docstrings of ``delay.methods.asbuilt`` ("as-built doc")
   and ``delay.ledger`` ("ledger doc"): planned dates are the baseline's early dates; actual
   duration counts the work days from actual start to actual finish, both included; the
   as-built critical path walks back from the completion activity, each step taking the
@@ -37,7 +37,7 @@ from casewriter import write_case
 from delay.case import load_case
 from delay.cli import cli
 from delay.errors import CaseError
-from delay.methods.as_built import compare
+from delay.methods.asbuilt import compare
 
 
 def task(activity_id, duration, **extra):
