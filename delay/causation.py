@@ -156,6 +156,7 @@ import numpy as np
 import pandas as pd
 
 from .errors import CaseError, Problem, ReconciliationError
+from .convert import join_ids
 from .events import CONCURRENT, unexplained_risk
 from .model import PARTIES, Case
 
@@ -397,10 +398,6 @@ def _ordered_parties(parties: Iterable[str]) -> list[str]:
     return seen
 
 
-def _joined(values: Iterable) -> str:
-    return ";".join(str(v) for v in values)
-
-
 def _row(method: str, step: str, days: int, split: dict, **values) -> dict:
     row = {column: None for column in CAUSATION_COLUMNS}
     row.update(method=method, step=step, days=int(days), excusable_days=int(split["excusable"]),
@@ -525,19 +522,19 @@ def _windows_rows(windows, rule: str) -> list[dict]:
                 merged[party] = merged.get(party, Fraction(0)) + weight
             split = classify_days(list(merged.items()), int(charge["days"]), rule)
             rows.append(_row("windows", f"{where}: progress", int(charge["days"]), split, window=w.number,
-                             snapshot=w.end, event=_joined(charge["events"]), party=charge["party"],
+                             snapshot=w.end, event=join_ids(charge["events"]), party=charge["party"],
                              basis=charge["basis"], activities=str(charge["activity"]),
-                             work_days=int(charge["work_days"]), causes=_joined(merged),
-                             concurrent_with=_joined(names), arose_on=last_day))
+                             work_days=int(charge["work_days"]), causes=join_ids(merged),
+                             concurrent_with=join_ids(names), arose_on=last_day))
         for revision in w.revisions.itertuples(index=False):
             if int(revision.days) == 0:
                 continue
             causes = [(p, 1) for p in revision.parties]
             split = classify_days(causes, int(revision.days), rule)
             rows.append(_row("windows", f"{where}: revision ({revision.kind})", int(revision.days), split,
-                             window=w.number, snapshot=w.end, event=_joined(revision.events), party=revision.party,
-                             basis=revision.basis, activities=_joined(revision.activities),
-                             work_days=int(revision.work_days), causes=_joined(revision.parties),
+                             window=w.number, snapshot=w.end, event=join_ids(revision.events), party=revision.party,
+                             basis=revision.basis, activities=join_ids(revision.activities),
+                             work_days=int(revision.work_days), causes=join_ids(revision.parties),
                              concurrent_with="", arose_on=last_day))
     return rows
 
@@ -655,13 +652,13 @@ def sequence_rows(events: pd.DataFrame, concurrency: str, method: str) -> list[d
         cause_parties = _ordered_parties(parties[c] for c in causes_seen)
         rows.append(_row(method, row["step"], days, split, snapshot=row["snapshot"], event=names[i],
                          party=parties[i], basis="event", activities=row["activities"], alone_days=int(alone[i]),
-                         causes=_joined(cause_parties), concurrent_with=_joined(names[c] for c in partners),
+                         causes=join_ids(cause_parties), concurrent_with=join_ids(names[c] for c in partners),
                          arose_on=row["arose_on"]))
     return rows
 
 
 def _run_frame(frame: pd.DataFrame, snapshot: str, label: str) -> pd.DataFrame:
-    activities = [a if isinstance(a, str) else _joined(a) for a in frame["activities"]]
+    activities = [a if isinstance(a, str) else join_ids(a) for a in frame["activities"]]
     return pd.DataFrame({
         "event": frame["event"].to_numpy(dtype=object), "party": frame["party"].to_numpy(dtype=object),
         "activities": activities, "alone_days": frame["alone_days"].to_numpy(dtype=np.int64),
@@ -811,7 +808,7 @@ def collapsed_causation(case: Case, result, concurrency: str | None = None,
     rows = []
     for p in parties:
         split = classify_days([(p, 1)], sole[p], rule)
-        rows.append(_row("collapsed", f"but for the {p}'s events", sole[p], split, event=_joined(events_of[p]),
+        rows.append(_row("collapsed", f"but for the {p}'s events", sole[p], split, event=join_ids(events_of[p]),
                          party=p, alone_days=but_for[p], causes=p, arose_on=earliest(events_of[p])))
     involved = [p for p in parties if events_of[p]]
     if concurrent_days:
@@ -821,8 +818,8 @@ def collapsed_causation(case: Case, result, concurrency: str | None = None,
         split = classify_days(causes, concurrent_days, rule)
         events = [e for p in involved for e in events_of[p]]
         rows.append(_row("collapsed", "but for every event, not for any one party's", concurrent_days, split,
-                         event=_joined(events), party=CONCURRENT if len(involved) > 1 else (involved or [UNEXPLAINED])[0],
-                         causes=_joined(p for p, _ in causes), concurrent_with=_joined(involved),
+                         event=join_ids(events), party=CONCURRENT if len(involved) > 1 else (involved or [UNEXPLAINED])[0],
+                         causes=join_ids(p for p, _ in causes), concurrent_with=join_ids(involved),
                          arose_on=earliest(events)))
     if unexplained:
         split = classify_days([(unexplained_risk(case), 1)], unexplained, rule)

@@ -23,7 +23,8 @@ from typing import Mapping, Sequence
 
 import pandas as pd
 
-from .entitlement import Entitlement, assess, json_records
+from .convert import json_records, split_ids
+from .entitlement import Entitlement, assess
 from .memo import remembered
 from .methods import METHOD_TITLES
 from .model import Case
@@ -102,7 +103,7 @@ def _event_days(result: Entitlement) -> dict[str, int]:
     table = result.causation.table
     out: dict[str, int] = {}
     for events, days in zip(table["event"], table["days"]):
-        ids = [e for e in str(events or "").split(";") if e]
+        ids = split_ids(events)
         for event_id in ids:  # a row explained by several events is shown against each
             out[event_id] = out.get(event_id, 0) + int(days)
     return out

@@ -93,6 +93,7 @@ import pandas as pd
 
 from .causation import METHODS, Causation, class_totals, causation
 from .contract import completion_in_force, grants, whole_works_section
+from .convert import iso_date, json_records, split_ids
 from .cpm import NO_DAY, ScheduleResult, calendars_of, day_to_date, prepare
 from .errors import CaseError, Problem
 from .events import completion_activity
@@ -108,7 +109,6 @@ __all__ = [
     "completion_in_force",
     "prolongation_rate",
     "prolongation_build_up",
-    "json_records",
     "prolongation_cost",
     "liquidated_damages",
     "SECTION_COLUMNS",
@@ -217,40 +217,6 @@ def _figures(case: Case, *, planned: dt.date, in_force: dt.date, actual: dt.date
 
 
 # -- results ----------------------------------------------------------------------------------------
-def _iso(value):
-    if value is None or value is pd.NaT:
-        return None
-    if isinstance(value, pd.Timestamp):
-        return value.date().isoformat()
-    if isinstance(value, dt.datetime):
-        return value.date().isoformat()
-    if isinstance(value, dt.date):
-        return value.isoformat()
-    return None if pd.isna(value) else str(value)
-
-
-def _plain(value):
-    """A JSON value: dates as ISO text, numpy numbers as Python numbers, NA as null."""
-    if isinstance(value, (dt.date, pd.Timestamp)):
-        return _iso(value)
-    if isinstance(value, (bool, np.bool_)):
-        return bool(value)
-    if isinstance(value, (int, np.integer)):
-        return int(value)
-    if isinstance(value, (float, np.floating)):
-        return None if np.isnan(value) else float(value)
-    if value is None or value is pd.NA or value is pd.NaT:
-        return None
-    if isinstance(value, (list, tuple)):
-        return [_plain(v) for v in value]
-    return value
-
-
-def json_records(frame: pd.DataFrame) -> list[dict]:
-    """The rows of a result table as JSON-ready dicts (dates as ISO text, NA as null)."""
-    return [{k: _plain(v) for k, v in row.items()} for row in frame.to_dict("records")]
-
-
 @dataclass(frozen=True)
 class Entitlement:
     """One method's entitlement for the whole works, its sections and its events.
@@ -301,7 +267,7 @@ class Entitlement:
         return {
             "method": self.method,
             "eot_days": self.eot_days,
-            "revised_completion": _iso(self.revised_completion),
+            "revised_completion": iso_date(self.revised_completion),
             "compensable_days": self.compensable_days,
             "prolongation_cost": self.prolongation_cost,
             "ld_days": self.ld_days,
@@ -311,12 +277,12 @@ class Entitlement:
             "culpable_delay_days": self.culpable_delay_days,
             "acceleration_days": self.acceleration_days,
             "sections": json_records(self.sections),
-            "contract_completion": _iso(self.contract_completion),
+            "contract_completion": iso_date(self.contract_completion),
             "granted_days": self.granted_days,
-            "completion_in_force": _iso(self.completion_in_force),
-            "planned_completion": _iso(self.planned_completion),
-            "completion_with_excusable_delays": _iso(self.completion_with_excusable_delays),
-            "actual_completion": _iso(self.actual_completion),
+            "completion_in_force": iso_date(self.completion_in_force),
+            "planned_completion": iso_date(self.planned_completion),
+            "completion_with_excusable_delays": iso_date(self.completion_with_excusable_delays),
+            "actual_completion": iso_date(self.actual_completion),
             "overrun_days": self.overrun_days,
             "liquidated_damages_per_day": self.liquidated_damages_per_day,
             "ld_capped": self.ld_capped,
@@ -451,7 +417,7 @@ def _event_table(case: Case, method: str, table: pd.DataFrame, collapsed_result=
             note = "but-for days of the event alone: need not add up" if assessed is not None else (
                 "not scored: " + str(found["note"].iloc[0]) if len(found) else "not scored")
         else:
-            mine = table[[event.id in str(e).split(";") for e in table["event"]]] if len(table) else table
+            mine = table[[event.id in split_ids(e) for e in table["event"]]] if len(table) else table
             assessed = int(mine["days"].sum()) if len(mine) else 0
             excusable = int(mine["excusable_days"].sum()) if len(mine) else 0
             compensable = int(mine["compensable_days"].sum()) if len(mine) else 0

@@ -50,11 +50,11 @@ import numpy as np
 import pandas as pd
 
 from .model import PARTIES, Case, Snapshot
+from .convert import split_ids
 
 __all__ = [
     "BASES",
     "CONCURRENT",
-    "split_ids",
     "event_activities",
     "asbuilt_activities",
     "unexplained_risk",
@@ -72,22 +72,6 @@ BASES = ("event", "risk", "unexplained", "analyst")
 CONCURRENT = "concurrent"
 
 MATCH_COLUMNS = ["activity", "events", "parties", "party", "basis"]
-
-
-def split_ids(text) -> list[str]:
-    """The ids of a ``;``-separated cell, in order, blanks dropped, each once.
-
-    >>> split_ids(" A1; A2;;A1 ")
-    ['A1', 'A2']
-    """
-    if text is None or (not isinstance(text, str) and pd.isna(text)):
-        return []
-    ids: list[str] = []
-    for part in str(text).split(";"):
-        part = part.strip()
-        if part and part not in ids:
-            ids.append(part)
-    return ids
 
 
 def event_activities(case: Case) -> dict[str, set[str]]:

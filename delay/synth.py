@@ -23,6 +23,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
+from .convert import iso_dates
 from .calendars import CalendarSet, WorkCalendar, parse_workdays
 from .network import LINK_CODES, build_network
 from .output import check_folder_target, new_folder
@@ -141,11 +142,6 @@ def _actual_run(activities: pd.DataFrame, links: pd.DataFrame, rng):
     return result.day_array("early_start"), result.day_array("early_finish"), calendars, result
 
 
-def _iso(days: np.ndarray) -> np.ndarray:
-    text = np.datetime_as_string(np.asarray(days, dtype=np.int64).astype("datetime64[D]")).astype(object)
-    return text
-
-
 def synthesise(out: str | Path, activities: int, links_per_activity: float = 2.5, updates: int = 0,
                seed: int = 0, elements: int = 0) -> Path:
     """Write a valid random case folder to ``out`` (which must not exist or be empty).
@@ -211,9 +207,9 @@ def synthesise(out: str | Path, activities: int, links_per_activity: float = 2.5
             started &= ~milestone
             done_ms = milestone & (start_day < day)
             done |= done_ms
-            table["actual_start"] = np.where(done | started, _iso(start_day), "")
+            table["actual_start"] = np.where(done | started, iso_dates(start_day), "")
             table.loc[done_ms, "actual_start"] = ""
-            table["actual_finish"] = np.where(done, _iso(finish_day), "")
+            table["actual_finish"] = np.where(done, iso_dates(finish_day), "")
             # remaining: work days from the data date to the simulated finish (inclusive)
             remaining = np.zeros(len(acts), dtype=np.int64)
             if started.any():
@@ -249,8 +245,8 @@ def synthesise(out: str | Path, activities: int, links_per_activity: float = 2.5
             kept = ~deleted
             pd.DataFrame({
                 "id": acts["id"][kept],
-                "actual_start": np.where(acts["duration"] > 0, _iso(start_day), _iso(finish_day))[kept],
-                "actual_finish": _iso(finish_day)[kept], "source": "simulated record",
+                "actual_start": np.where(acts["duration"] > 0, iso_dates(start_day), iso_dates(finish_day))[kept],
+                "actual_finish": iso_dates(finish_day)[kept], "source": "simulated record",
             }).to_csv(tmp / "asbuilt.csv", index=False)
         if elements:
             _write_elements(tmp / "elements.csv", acts, elements, rng)

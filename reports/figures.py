@@ -22,6 +22,8 @@ import html
 import numpy as np
 import pandas as pd
 
+from delay.convert import iso_date
+
 from .palette import BACKGROUND_COLOUR, BUILT_BAR, HIGHLIGHT_COLOUR, PARTY_COLOURS, PLANNED_BAR, STATE_COLOURS
 
 __all__ = [
@@ -58,14 +60,6 @@ def _text(value) -> str:
     if value is None or (not isinstance(value, str) and pd.isna(value)):
         return ""
     return html.escape(str(value), quote=False)
-
-
-def _iso(value) -> str | None:
-    if value is None or (not isinstance(value, (dt.date, str)) and pd.isna(value)):
-        return None
-    if isinstance(value, str):
-        return value
-    return pd.Timestamp(value).date().isoformat()
 
 
 def _layout(title: str, **extra) -> dict:
@@ -112,8 +106,8 @@ def completion_trend(trend: pd.DataFrame, *, contract_in_force=None, planned=Non
     import plotly.graph_objects as go
 
     labels = [_text(v) for v in trend["label"]]
-    x = [_iso(v) for v in trend["data_date"]]
-    y = [_iso(v) for v in trend["completion"]]
+    x = [iso_date(v) for v in trend["data_date"]]
+    y = [iso_date(v) for v in trend["completion"]]
     figure = go.Figure(layout=_layout(
         title, xaxis=dict(title=dict(text="data date of the programme"), type="date"),
         yaxis=dict(title=dict(text="forecast completion"), type="date"), height=420, showlegend=False))
@@ -124,7 +118,7 @@ def completion_trend(trend: pd.DataFrame, *, contract_in_force=None, planned=Non
     if in_force is not None and len(in_force):
         words = [_text(g) for g in in_force["grant"]]
         figure.add_trace(go.Scatter(
-            x=[_iso(v) for v in in_force["date"]], y=[_iso(v) for v in in_force["completion_in_force"]],
+            x=[iso_date(v) for v in in_force["date"]], y=[iso_date(v) for v in in_force["completion_in_force"]],
             mode="lines+markers+text", line_shape="hv", name="contract completion in force", text=words,
             textposition="top right", textfont=dict(size=10, color=LINE_COLOUR),
             line=dict(color=LINE_COLOUR, width=1.5, dash="dash"),
@@ -132,10 +126,10 @@ def completion_trend(trend: pd.DataFrame, *, contract_in_force=None, planned=Non
             hovertemplate="in force from %{x|%Y-%m-%d}: %{y|%Y-%m-%d}<br>%{text}<extra></extra>"))
         figure.update_layout(showlegend=True)
     elif contract_in_force is not None:
-        _reference_line(figure, y=_iso(contract_in_force), text="contract completion in force",
+        _reference_line(figure, y=iso_date(contract_in_force), text="contract completion in force",
                         colour=LINE_COLOUR, dash="dash")
     if planned is not None:
-        _reference_line(figure, y=_iso(planned), text="planned completion", colour=REFERENCE_COLOUR, dash="dot")
+        _reference_line(figure, y=iso_date(planned), text="planned completion", colour=REFERENCE_COLOUR, dash="dot")
     return figure
 
 
@@ -253,14 +247,14 @@ def completion_steps(steps: pd.DataFrame, *, title: str = "Completion after each
         x = [f"{_text(run)}: {_text(s)}" if len(runs) > 1 else _text(s) for s in rows["step"]]
         hover = [_text(t) for t in rows["title"]] if "title" in rows else [""] * len(rows)
         figure.add_trace(go.Scatter(
-            x=x, y=[_iso(v) for v in rows["completion"]], mode="lines+markers", line_shape="hv",
+            x=x, y=[iso_date(v) for v in rows["completion"]], mode="lines+markers", line_shape="hv",
             name=f"cumulative: {_text(run)}" if len(runs) > 1 else "completion, events inserted one after another",
             line=dict(color=BUILT_COLOUR if number % 2 == 0 else LATE_COLOUR, width=2),
             marker=dict(size=7), text=hover,
             hovertemplate="%{x}<br>%{text}<br>completion %{y|%Y-%m-%d}<extra></extra>"))
         if "alone" in rows and rows["alone"].notna().any():
             figure.add_trace(go.Scatter(
-                x=x, y=[_iso(v) for v in rows["alone"]], mode="markers",
+                x=x, y=[iso_date(v) for v in rows["alone"]], mode="markers",
                 name="completion with that event alone" if number == 0 else f"alone: {_text(run)}",
                 showlegend=number == 0,
                 marker=dict(size=9, symbol="circle-open", color=PLANNED_COLOUR, line=dict(width=2)),
@@ -367,14 +361,14 @@ def planned_against_built(activities: pd.DataFrame, *, critical_path=None, data_
     figure = go.Figure(layout=layout)
     milestone = rows["milestone"].to_numpy(dtype=bool) if "milestone" in rows else np.zeros(len(ids), bool)
     first_date = pd.to_datetime(rows["planned_start"]).fillna(pd.to_datetime(rows["actual_start"]))
-    figure.add_trace(go.Scatter(mode="markers", y=[groups, ids], x=[_iso(v) for v in first_date], showlegend=False,
+    figure.add_trace(go.Scatter(mode="markers", y=[groups, ids], x=[iso_date(v) for v in first_date], showlegend=False,
                                 marker=dict(opacity=0, size=1), hoverinfo="skip", name="rows"))
     for which, style, name in (("planned", PLANNED_BAR, "as planned"), ("actual", BUILT_BAR, "as built")):
         start = pd.to_datetime(rows[f"{which}_start"])
         finish = pd.to_datetime(rows[f"{which}_finish"])
         dated = (start.notna() & finish.notna()).to_numpy()
         length = ((finish - start).dt.days + 1).to_numpy(dtype=float, na_value=np.nan) * MILLISECONDS_PER_DAY
-        hover = [f"{i} {n}<br>wbs {c}<br>{name}: {_iso(s)} to {_iso(f)}"
+        hover = [f"{i} {n}<br>wbs {c}<br>{name}: {iso_date(s)} to {iso_date(f)}"
                  for i, n, c, s, f in zip(ids, names, codes, start, finish)]
 
         def pick(values, keep):
@@ -383,7 +377,7 @@ def planned_against_built(activities: pd.DataFrame, *, critical_path=None, data_
         bar, point = dated & ~milestone, dated & milestone
         figure.add_trace(go.Bar(
             orientation="h", name=name, y=[pick(groups, bar), pick(ids, bar)],
-            base=pick([_iso(v) for v in start], bar), x=[float(v) for v in pick(length, bar)],
+            base=pick([iso_date(v) for v in start], bar), x=[float(v) for v in pick(length, bar)],
             marker=dict(color=style["fill"], line=dict(color=style["line"], width=1),
                         pattern=dict(shape=style["pattern"], fgcolor=style["line"], size=6, solidity=0.3)),
             hovertext=pick(hover, bar), hoverinfo="text"))
@@ -391,11 +385,11 @@ def planned_against_built(activities: pd.DataFrame, *, critical_path=None, data_
             mode="markers", name=f"{name} (milestone)", showlegend=False,
             marker=dict(symbol="diamond-open" if style["pattern"] else "diamond", size=10, color=style["line"],
                         line=dict(color=style["line"], width=2)),
-            y=[pick(groups, point), pick(ids, point)], x=pick([_iso(f) for f in finish], point),
+            y=[pick(groups, point), pick(ids, point)], x=pick([iso_date(f) for f in finish], point),
             hovertext=pick(hover, point), hoverinfo="text"))
     if data_dates is not None:
         for label, day in zip(data_dates["label"], data_dates["data_date"]):
-            _data_date_line(figure, _iso(day), label)
+            _data_date_line(figure, iso_date(day), label)
     return figure
 
 

@@ -36,13 +36,6 @@ def _listed(values) -> str:
     return ", ".join(str(v) for v in values)
 
 
-def _day(value) -> str:
-    """An ISO date, blank for none."""
-    import pandas as pd
-
-    return "" if value is None or pd.isna(value) else pd.Timestamp(value).date().isoformat()
-
-
 @click.command()
 @click.argument("case", type=click.Path(exists=True))
 @click.option("--events", "event_ids", default=None, metavar="E1,E2,...",
@@ -68,13 +61,14 @@ def impacted(case, event_ids, order, base, output_format):
     one: the method measures the plan's response, not what happened. Days are calendar
     days; positive is delay.
     """
+    from ..convert import text_cell
     from ..methods.impacted import analyse
 
     result = analyse(load_case_argument(case), base=base, events=_event_ids(event_ids), order=order)
     if output_format == "json":
         click.echo(json.dumps(result.to_json(), indent=2))
         return
-    rows = [[r.event, r.title, r.party, r.impact, _day(r.start), _day(r.finish), r.alone_days, r.alone_work_days,
+    rows = [[r.event, r.title, r.party, r.impact, text_cell(r.start), text_cell(r.finish), r.alone_days, r.alone_work_days,
              r.completion_alone, r.increment_days, r.increment_work_days, r.completion_after,
              "; ".join(x for x in (r.applied, r.effect) if x)]
             for r in result.events.itertuples(index=False)]
@@ -110,6 +104,7 @@ def tia(case, output_format):
     residuals equal the actual less the planned completion. Days are calendar days;
     positive is delay.
     """
+    from ..convert import text_cell
     from ..methods.tia import analyse
 
     result = analyse(load_case_argument(case))
@@ -122,7 +117,7 @@ def tia(case, output_format):
                 [[r.snapshot, r.data_date, r.completion_before, _listed(r.events), r.increment_days,
                   r.completion_after, r.next_snapshot, r.next_completion, r.residual_days]
                  for r in result.updates.itertuples(index=False)])
-    rows = [[r.event, r.title, r.party, r.impact, _day(r.start), r.update, r.completion_before, r.alone_days,
+    rows = [[r.event, r.title, r.party, r.impact, text_cell(r.start), r.update, r.completion_before, r.alone_days,
              r.increment_days, r.increment_work_days, r.completion_after,
              "; ".join(x for x in (r.applied, r.effect, *r.warnings) if x)]
             for r in result.events.itertuples(index=False)]

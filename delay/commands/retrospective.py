@@ -118,6 +118,7 @@ def collapsed(case, output_format):
     fragnet are). But-for figures need not add up: removing one party's delay can leave
     another's in its place.
     """
+    from ..convert import text_cell
     from ..methods.collapsed import analyse
 
     result = analyse(load_case_argument(case))
@@ -128,26 +129,14 @@ def collapsed(case, output_format):
                f"{'reproduces every actual date' if result.reproduced else 'does not reproduce every actual date'}.")
     if len(result.mismatches):
         print_table("Activities the as-built model does not place on their actual dates",
-                    list(result.mismatches.columns), [[_plain(v) for v in row] for row in result.mismatches.itertuples(index=False)])
+                    list(result.mismatches.columns), [[text_cell(v) for v in row] for row in result.mismatches.itertuples(index=False)])
     print_table("But for each party's events", list(result.by_party.columns),
-                [[_plain(v) for v in row] for row in result.by_party.itertuples(index=False)])
+                [[text_cell(v) for v in row] for row in result.by_party.itertuples(index=False)])
     print_table("But for each event alone", list(result.by_event.columns),
-                [[_plain(v) for v in row] for row in result.by_event.itertuples(index=False)])
+                [[text_cell(v) for v in row] for row in result.by_event.itertuples(index=False)])
     for note in result.notes:
         click.echo(note)
     click.echo(CAUTION)
-
-
-def _plain(value):
-    import pandas as pd
-
-    if isinstance(value, (list, tuple)):
-        return ", ".join(map(str, value))
-    if value is None or (not isinstance(value, str) and pd.isna(value)):
-        return ""
-    if isinstance(value, pd.Timestamp):
-        return value.date().isoformat()
-    return value
 
 
 COMMANDS = (windows, asbuilt, collapsed)

@@ -52,12 +52,12 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
-from ..cpm import NO_DAY, calendars_of, day_to_date, prepare
+from ..convert import NO_DAY, day_to_date, iso_date, json_int, table_dates
+from ..cpm import calendars_of, prepare
 from ..errors import CaseError, Problem, ReconciliationError
 from ..events import completion_activity
 from ..memo import remembered
 from ..ledger import ledger_number, logic_late_finish, split_days, trace_charges
-from ..output import json_date, json_int
 
 __all__ = ["compare", "AsBuiltResult", "PERIODS"]
 
@@ -93,8 +93,8 @@ class AsBuiltResult:
             "actual_completion": self.actual_completion.isoformat(),
             "completion_variance_days": self.completion_variance_days,
             "critical_path": [
-                {"activity": r.activity, "actual_start": json_date(r.actual_start),
-                 "actual_finish": json_date(r.actual_finish), "planned_finish": json_date(r.planned_finish),
+                {"activity": r.activity, "actual_start": iso_date(r.actual_start),
+                 "actual_finish": iso_date(r.actual_finish), "planned_finish": iso_date(r.planned_finish),
                  "driving_predecessor": r.driving_predecessor or None, "link": r.link or None,
                  "gap_work_days": json_int(r.gap_work_days), "lateness_work_days": json_int(r.lateness_work_days),
                  "inherited": bool(r.inherited), "work_days": int(r.work_days), "delay_days": int(r.delay_days),
@@ -107,8 +107,8 @@ class AsBuiltResult:
                 for r in self.periods.itertuples(index=False)
             ],
             "activities": [
-                {"activity": r.id, "planned_start": json_date(r.planned_start), "planned_finish": json_date(r.planned_finish),
-                 "actual_start": json_date(r.actual_start), "actual_finish": json_date(r.actual_finish),
+                {"activity": r.id, "planned_start": iso_date(r.planned_start), "planned_finish": iso_date(r.planned_finish),
+                 "actual_start": iso_date(r.actual_start), "actual_finish": iso_date(r.actual_finish),
                  "start_variance_days": json_int(r.start_variance_days),
                  "start_variance_work_days": json_int(r.start_variance_work_days),
                  "finish_variance_days": json_int(r.finish_variance_days),
@@ -117,12 +117,6 @@ class AsBuiltResult:
                 for r in self.activities.itertuples(index=False)
             ],
         }
-
-
-def _dates(days: np.ndarray) -> np.ndarray:
-    values = np.asarray(days, dtype=np.int64).astype("datetime64[D]")
-    values[np.asarray(days) == NO_DAY] = np.datetime64("NaT")
-    return values.astype("datetime64[s]")
 
 
 def _work_index(calendars, cal: np.ndarray, days: np.ndarray, finish: bool) -> pd.array:
@@ -149,8 +143,8 @@ def _activity_table(planned, built) -> pd.DataFrame:
     work_days = (calendars.finish_index_days(cal, actual_finish_day) + 1 - calendars.start_index_days(cal, actual_start_day))
     milestone = (built.point != 0) | (built.model.kind != 0)
     actual = pd.DataFrame({
-        "id": built.ids, "name": built.model.names, "actual_start": _dates(actual_start_day),
-        "actual_finish": _dates(actual_finish_day),
+        "id": built.ids, "name": built.model.names, "actual_start": table_dates(actual_start_day),
+        "actual_finish": table_dates(actual_finish_day),
         "actual_duration": np.where(milestone, 0, np.maximum(work_days, 0)),
         "_actual_start_index": _work_index(calendars, cal, actual_start_day, False),
         "_actual_finish_index": _work_index(calendars, cal, actual_finish_day, True),
@@ -159,7 +153,7 @@ def _activity_table(planned, built) -> pd.DataFrame:
     where = built.model.network.index_of(planned.ids)
     plan_cal = np.where(where >= 0, cal[np.maximum(where, 0)], planned.model.calendar)
     plan = pd.DataFrame({
-        "id": planned.ids, "planned_start": _dates(planned_start_day), "planned_finish": _dates(planned_finish_day),
+        "id": planned.ids, "planned_start": table_dates(planned_start_day), "planned_finish": table_dates(planned_finish_day),
         "planned_duration": planned.model.duration,
         "_planned_start_index": _work_index(calendars, plan_cal, planned_start_day, False),
         "_planned_finish_index": _work_index(calendars, plan_cal, planned_finish_day, True),
@@ -263,10 +257,10 @@ def _path_table(built, table: pd.DataFrame, chain: pd.DataFrame, days: np.ndarra
                 lag = int(net.lag[e])
                 link = _TYPE_NAMES[int(net.link_type[e])] + (f"{lag:+d}" if lag else "")
                 gap = int(built.link_gaps[e])
-        finish = pd.Timestamp(_dates(np.array([actual_finish[v]]))[0])
+        finish = pd.Timestamp(table_dates(np.array([actual_finish[v]]))[0])
         rows.append({
             "activity": str(net.ids[v]), "name": built.model.names[v],
-            "actual_start": pd.Timestamp(_dates(np.array([actual_start[v]]))[0]), "actual_finish": finish,
+            "actual_start": pd.Timestamp(table_dates(np.array([actual_start[v]]))[0]), "actual_finish": finish,
             "planned_finish": planned_finish.get(str(net.ids[v]), pd.NaT),
             "driving_predecessor": str(net.ids[p]) if p >= 0 else "", "link": link, "gap_work_days": gap,
             "lateness_work_days": int(chain["level"].iloc[i]), "inherited": bool(chain["inherited"].iloc[i]),

@@ -97,11 +97,11 @@ import numpy as np
 import pandas as pd
 
 from ..events import asbuilt_activities, completion_activity
-from ..cpm import FINISH_MILESTONE, NO_DAY, ScheduleResult, calendars_of, prepare
+from ..convert import NO_DAY, day_to_date, iso_date, json_int, table_dates
+from ..cpm import FINISH_MILESTONE, ScheduleResult, calendars_of, prepare
 from ..errors import CaseError, Problem
 from ..memo import remembered
 from ..model import PARTIES, Case
-from ..output import json_date, json_int
 
 __all__ = ["analyse", "CollapsedResult", "BUT_FOR_NOTE", "ALL_PARTIES"]
 
@@ -178,20 +178,20 @@ class CollapsedResult:
             "actual_completion": self.actual_completion.isoformat(),
             "modelled_completion": self.modelled_completion.isoformat(),
             "mismatches": [
-                {"activity": r.activity, "actual_start": json_date(r.actual_start), "actual_finish": json_date(r.actual_finish),
-                 "modelled_start": json_date(r.modelled_start), "modelled_finish": json_date(r.modelled_finish),
+                {"activity": r.activity, "actual_start": iso_date(r.actual_start), "actual_finish": iso_date(r.actual_finish),
+                 "modelled_start": iso_date(r.modelled_start), "modelled_finish": iso_date(r.modelled_finish),
                  "reason": r.reason}
                 for r in self.mismatches.itertuples(index=False)
             ],
             "by_party": [
-                {"party": r.party, "but_for_completion": json_date(r.but_for_completion),
+                {"party": r.party, "but_for_completion": iso_date(r.but_for_completion),
                  "days_earlier": json_int(r.days_earlier), "work_days_earlier": json_int(r.work_days_earlier),
                  "events": list(r.events), "not_scored": list(r.not_scored)}
                 for r in self.by_party.itertuples(index=False)
             ],
             "by_event": [
                 {"event": r.event, "title": r.title, "party": r.party, "impact": r.impact,
-                 "but_for_completion": json_date(r.but_for_completion), "days_earlier": json_int(r.days_earlier),
+                 "but_for_completion": iso_date(r.but_for_completion), "days_earlier": json_int(r.days_earlier),
                  "work_days_earlier": json_int(r.work_days_earlier), "found_in_as_built": bool(r.found_in_as_built),
                  "removed": r.removed, "note": r.note}
                 for r in self.by_event.itertuples(index=False)
@@ -391,16 +391,6 @@ class _AsBuiltModel:
 
 
 # -- helpers --------------------------------------------------------------------------------
-def _dates(days: np.ndarray) -> np.ndarray:
-    values = np.asarray(days, dtype=np.int64).astype("datetime64[D]")
-    values[np.asarray(days) == NO_DAY] = np.datetime64("NaT")
-    return values.astype("datetime64[s]")
-
-
-def _date(day: int) -> dt.date:
-    return dt.date(1970, 1, 1) + dt.timedelta(days=int(day))
-
-
 def _plural(count: int, word: str) -> str:
     return f"{count} {word}{'' if count == 1 else 's'}"
 
@@ -431,7 +421,7 @@ def _mismatches(built: _AsBuiltModel) -> tuple[pd.DataFrame, np.ndarray]:
             which, day = ("start", built.actual_start[v]) if start_off[v] else ("finish", built.actual_finish[v])
             if milestone[v]:
                 which = "date"
-            reason = (f"its actual {which} {_date(day).isoformat()} is not a work day of calendar "
+            reason = (f"its actual {which} {day_to_date(day).isoformat()} is not a work day of calendar "
                       f"'{calendar_name}', so no schedule on that calendar can place it there")
         elif built.out_of_sequence[v]:
             tied = links[built.gaps[links] == built.least_gap[v]]
@@ -456,7 +446,7 @@ def _mismatches(built: _AsBuiltModel) -> tuple[pd.DataFrame, np.ndarray]:
                      "modelled_finish": modelled_finish[v], "reason": reason})
     frame = pd.DataFrame(rows, columns=MISMATCH_COLUMNS)
     for column in MISMATCH_COLUMNS[1:5]:
-        frame[column] = _dates(frame[column].to_numpy(dtype=np.int64)) if len(frame) else pd.Series(
+        frame[column] = table_dates(frame[column].to_numpy(dtype=np.int64)) if len(frame) else pd.Series(
             [], dtype="datetime64[s]")
     return frame, wrong
 
@@ -585,11 +575,11 @@ class _ButFor:
         if day > self.modelled_day:
             # possible with start-to-start and finish-to-finish logic: a shorter activity can
             # hold its successors later (the reverse effect); reported, not hidden
-            self.later.append(f"but for {where}: completion {_date(day).isoformat()}, later than the modelled "
-                              f"{_date(self.modelled_day).isoformat()} (start-to-start / finish-to-finish logic "
+            self.later.append(f"but for {where}: completion {day_to_date(day).isoformat()}, later than the modelled "
+                              f"{day_to_date(self.modelled_day).isoformat()} (start-to-start / finish-to-finish logic "
                               "lets a shorter activity hold its successors later)")
         work = self.modelled_index - int(self.default.finish_index_days(np.array([day]))[0])
-        return pd.Timestamp(_date(day)), self.modelled_day - day, work
+        return pd.Timestamp(day_to_date(day)), self.modelled_day - day, work
 
 
 def _typed(frame: pd.DataFrame) -> pd.DataFrame:
@@ -661,11 +651,11 @@ def _model_tables(built: _AsBuiltModel) -> tuple[pd.DataFrame, pd.DataFrame]:
     activities = pd.DataFrame({
         "activity": net.ids.astype(object), "name": built.model.names,
         "calendar": np.asarray(built.calendars.names, dtype=object)[built.cal],
-        "actual_start": _dates(built.actual_start), "actual_finish": _dates(built.actual_finish),
+        "actual_start": table_dates(built.actual_start), "actual_finish": table_dates(built.actual_finish),
         "actual_duration": built.actual_duration, "held_by": held_by, "gap_work_days": gap,
-        "start_no_earlier": _dates(built.start_bound),
-        "modelled_start": _dates(result.day_array("early_start")),
-        "modelled_finish": _dates(result.day_array("early_finish")),
+        "start_no_earlier": table_dates(built.start_bound),
+        "modelled_start": table_dates(result.day_array("early_start")),
+        "modelled_finish": table_dates(result.day_array("early_finish")),
     }, columns=ACTIVITY_COLUMNS)
     links = pd.DataFrame({
         "pred": net.ids[net.pred].astype(object), "succ": net.ids[net.succ].astype(object),
@@ -686,7 +676,7 @@ def _notes(mismatches: pd.DataFrame, by_event: pd.DataFrame, modelled_day: int, 
         notes.append(
             f"The as-built model does not reproduce the actual dates of {len(mismatches)} "
             f"{'activity' if len(mismatches) == 1 else 'activities'}"
-            f" (modelled completion {_date(modelled_day).isoformat()}, actual {_date(actual_day).isoformat()}); "
+            f" (modelled completion {day_to_date(modelled_day).isoformat()}, actual {day_to_date(actual_day).isoformat()}); "
             "the but-for figures carry that error.")
     if not_found := by_event.loc[~by_event["found_in_as_built"], "event"].tolist():
         notes.append("Events reported but not scored (nothing of theirs in the as-built record to take out): "
@@ -709,7 +699,7 @@ def _analyse(case: Case) -> CollapsedResult:
     activities, links = _model_tables(built)
     notes = _notes(mismatches, by_event, figures.modelled_day, actual_day, figures.later)
     return CollapsedResult(
-        reproduced=not len(mismatches), mismatches=mismatches, actual_completion=_date(actual_day),
-        modelled_completion=_date(figures.modelled_day), by_party=by_party, by_event=by_event,
+        reproduced=not len(mismatches), mismatches=mismatches, actual_completion=day_to_date(actual_day),
+        modelled_completion=day_to_date(figures.modelled_day), by_party=by_party, by_event=by_event,
         activities=activities, links=links, notes=tuple(notes),
     )

@@ -56,7 +56,8 @@ import pandas as pd
 
 from ..cpm import COMPLETE, NO_DAY, ScheduleModel, calendars_of, day_to_date, prepare
 from ..errors import CaseError, Problem, ReconciliationError
-from ..events import completion_activity, split_ids
+from ..convert import split_ids
+from ..events import completion_activity
 from ..memo import remembered
 from ..model import PARTIES, Case, Snapshot
 

@@ -48,7 +48,7 @@ import pandas as pd
 
 from ..cpm import NO_DAY, calendars_of, day_to_date, prepare
 from ..errors import ReconciliationError
-from ..events import split_ids
+from ..convert import split_ids
 from ..memo import remembered
 from ..model import Case, Snapshot
 from .impacted import EVENT_COLUMNS, actual_finishes, event_changes, order_events, run_events, targets_of

@@ -58,7 +58,9 @@ from typing import Iterable
 import numpy as np
 import pandas as pd
 
+from delay.convert import NO_DAY, join_ids, to_days
 from delay.cpm import ScheduleResult, schedule
+from delay.events import event_activities
 from delay.model import Case
 
 __all__ = [
@@ -72,7 +74,6 @@ __all__ = [
     "STATE_NAMES",
     "VIEWS",
     "VIEW_TITLES",
-    "split_ids",
 ]
 
 NOT_STARTED, IN_PROGRESS, COMPLETE, LATE, UNLINKED = 0, 1, 2, 3, 4
@@ -80,7 +81,6 @@ STATE_NAMES = ("not started", "in progress", "complete", "late against plan", "n
 VIEWS = ("as_planned", "as_built")
 VIEW_TITLES = {"as_planned": "As planned", "as_built": "As built"}
 
-_NO_DAY = np.iinfo(np.int64).min
 
 
 @dataclass(frozen=True, eq=False)
@@ -120,8 +120,8 @@ class ElementTimeline:
     def _days(self) -> dict[str, np.ndarray]:
         out = {}
         for column in ("planned_start", "planned_finish", "actual_start", "actual_finish"):
-            out[column] = _to_days(self.elements[column])
-        out["frames"] = _to_days(self.frames["date"])
+            out[column] = to_days(pd.to_datetime(self.elements[column]))
+        out["frames"] = to_days(pd.to_datetime(self.frames["date"]))
         out["linked_as_planned"] = self.elements["linked_as_planned"].to_numpy(dtype=bool)
         out["linked_as_built"] = self.elements["linked_as_built"].to_numpy(dtype=bool)
         return out
@@ -143,7 +143,7 @@ class ElementTimeline:
         -------
         numpy.ndarray of int8, shape (elements,), codes as the module docstring defines.
         """
-        day = int(_to_days(pd.Series([pd.Timestamp(date)]))[0])
+        day = int(to_days([pd.Timestamp(date).to_datetime64()])[0])
         return self._codes(view, np.int64(day))
 
     def states(self, view: str = "as_built") -> np.ndarray:
@@ -250,15 +250,8 @@ def _state_codes(view, day, planned_start, planned_finish, linked_planned, actua
     return np.where(linked_built, np.where(late, LATE, built), UNLINKED).astype(np.int8)
 
 
-def _to_days(column: pd.Series) -> np.ndarray:
-    values = pd.to_datetime(column).to_numpy(dtype="datetime64[D]")
-    days = values.astype(np.int64)
-    days[np.isnat(values)] = _NO_DAY
-    return days
-
-
 def _next_day(days: np.ndarray) -> np.ndarray:
-    return np.where(days == _NO_DAY, _NO_DAY, days + 1)
+    return np.where(days == NO_DAY, NO_DAY, days + 1)
 
 
 def _monday_on_or_before(day: int) -> int:
@@ -436,35 +429,27 @@ def _linked_ids(wbs: pd.Series, planned: pd.DataFrame, actual: pd.DataFrame) -> 
     return wbs.map(by_wbs).fillna("").to_numpy(dtype=object)
 
 
-def split_ids(text: str) -> list[str]:
-    """The ids of a ``;`` separated list, blanks dropped."""
-    return [part.strip() for part in str(text).split(";") if part.strip()]
-
-
 def _event_activities(case: Case) -> set[str]:
-    ids: set[str] = set()
-    for text in case.events["activities"].fillna(""):
-        ids.update(split_ids(text))
-    return ids
+    """Every programme activity an event names, those its fragnet ties into included."""
+    return set().union(*event_activities(case).values())
 
 
 def _events_by_wbs(case: Case, wbs_of: dict[str, str]) -> dict[str, str]:
     found: dict[str, list[str]] = {}
-    events = case.events
-    for event, text in zip(events["id"].astype(str), events["activities"].fillna("")):
-        for activity in split_ids(text):
+    for event, activities in event_activities(case).items():
+        for activity in sorted(activities):
             code = wbs_of.get(activity, "")
             if code and event not in found.setdefault(code, []):
                 found[code].append(event)
-    return {code: ";".join(ids) for code, ids in found.items()}
+    return {code: join_ids(ids) for code, ids in found.items()}
 
 
 def _project_span(*programmes: pd.DataFrame) -> tuple[int, int]:
     starts, finishes = [], []
     for frame in programmes:
         for column, out in (("start", starts), ("finish", finishes)):
-            days = _to_days(frame[column])
-            days = days[days != _NO_DAY]
+            days = to_days(pd.to_datetime(frame[column]))
+            days = days[days != NO_DAY]
             if days.size:
                 out.append(days)
     if not starts or not finishes:

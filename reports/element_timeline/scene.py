@@ -24,8 +24,10 @@ from typing import Sequence
 import numpy as np
 import pandas as pd
 
+from delay.convert import split_ids, text_cell
+
 from ..palette import BACKGROUND_COLOUR, GHOST_COLOURS, HIGHLIGHT_COLOUR, STATE_COLOURS, discrete_colourscale
-from .data import COMPLETE, IN_PROGRESS, LATE, NOT_STARTED, UNLINKED, VIEW_TITLES, VIEWS, ElementTimeline, split_ids
+from .data import COMPLETE, IN_PROGRESS, LATE, NOT_STARTED, UNLINKED, VIEW_TITLES, VIEWS, ElementTimeline
 
 __all__ = [
     "figure_3d",
@@ -87,10 +89,6 @@ PLAY_MILLISECONDS = 350
 _OUTLINE_2D = "#A8A290"  # a thin edge so pale "not started" squares show on white
 
 
-def _iso(value) -> str:
-    return "" if pd.isna(value) else pd.Timestamp(value).date().isoformat()
-
-
 def hover_texts(timeline: ElementTimeline) -> list[str]:
     """One hover text per element (plotly's small HTML subset; input text escaped).
 
@@ -120,8 +118,8 @@ def hover_texts(timeline: ElementTimeline) -> list[str]:
             lines.append(f"activities: {shown}" + (f" and {more} more" if more > 0 else ""))
         else:
             lines.append("activities: none share this wbs")
-        lines.append("as planned: " + (f"{_iso(ps)} to {_iso(pf)}" if not pd.isna(ps) else "not linked"))
-        lines.append("as built: " + (f"{_iso(as_)} to {_iso(af)}" if not pd.isna(as_) else "not linked"))
+        lines.append("as planned: " + (f"{text_cell(ps)} to {text_cell(pf)}" if not pd.isna(ps) else "not linked"))
+        lines.append("as built: " + (f"{text_cell(as_)} to {text_cell(af)}" if not pd.isna(as_) else "not linked"))
         if highlighted:
             lines.append("delayed by event: " + (html.escape(events.replace(";", ", ")) or "(named in the input)"))
         texts.append("<br>".join(lines))
