@@ -916,6 +916,133 @@ def _toml_text(value: str) -> str:
 _FOLDER_NAME = re.compile(r"^[^./\\][^/\\]*$")
 
 
+def _check_options(root: Path, folder: str, kind: str | None, replace: bool) -> tuple[Path, str]:
+    """The snapshot folder to write and the snapshot's kind. Refused: a folder that is not a
+    plain name, one that exists (unless ``replace``), a kind other than baseline or update."""
+    if not _FOLDER_NAME.match(folder or ""):
+        raise CaseError(Problem(file="snapshots/", message=f"'{folder}' is not a folder name",
+                                fix="give --snapshot a plain name such as 2025-06-30"))
+    target = root / "snapshots" / folder
+    if target.exists() and not replace:
+        raise CaseError(Problem(file=f"snapshots/{folder}", message="the snapshot folder exists",
+                                fix="choose another --snapshot, or give --replace to replace it"))
+    kind = kind or ("baseline" if folder == "baseline" else "update")
+    if kind not in ("baseline", "update"):
+        raise CaseError(Problem(file=f"snapshots/{folder}", message=f"the kind '{kind}' is not baseline or update",
+                                fix="give --kind baseline or --kind update"))
+    return target, kind
+
+
+def _resolve_data_date(data_date: dt.date | str | None, read: WorkScheduleRead, kind: str,
+                       model_path: Path) -> dt.date:
+    """The data date given (a date or ``YYYY-MM-DD``), else the file's, else for a baseline the
+    work schedule's StartTime; refused when there is none."""
+    if isinstance(data_date, str):
+        try:
+            data_date = dt.date.fromisoformat(data_date)
+        except ValueError:
+            raise CaseError(Problem(file=str(model_path), message=f"the data date '{data_date}' is not a date",
+                                    fix="write it as YYYY-MM-DD")) from None
+    if data_date is None:
+        data_date = read.data_date
+    if data_date is None and kind == "baseline":
+        data_date = read.start_time
+    if data_date is None:
+        raise CaseError(Problem(file=str(model_path), message="the file does not say the data date of the programme",
+                                fix="give it with --data-date YYYY-MM-DD"))
+    return data_date
+
+
+def _check_other_snapshots(case, folder: str, data_date: dt.date, label: str) -> None:
+    """Refused when another snapshot of the case has the same data date, or the label as its
+    label or folder."""
+    for snap in case.snapshots:
+        if snap.folder == folder:
+            continue
+        if snap.data_date == data_date:
+            raise CaseError(Problem(file=f"snapshots/{folder}", message=f"the data date {data_date} is also the data "
+                                                                       f"date of '{snap.folder}'",
+                                    fix="give another --data-date, or --replace that snapshot"))
+        if label in (snap.label, snap.folder):
+            raise CaseError(Problem(file=f"snapshots/{folder}", message=f"the label '{label}' is also used by "
+                                                                       f"'{snap.folder}'",
+                                    fix="give another --label"))
+
+
+def _check_actual_dates(activities: pd.DataFrame, data_date: dt.date, model_path: Path) -> None:
+    """Refused when a task's actual start or finish is on or after the data date (the first 50
+    such dates named)."""
+    problems = []
+    for identification, start, finish in zip(activities["id"], activities["actual_start"],
+                                             activities["actual_finish"]):
+        for what, value in (("actual start", start), ("actual finish", finish)):
+            if value and dt.date.fromisoformat(value) >= data_date:
+                problems.append(Problem(file=str(model_path), message=f"the task '{identification}' has an {what} "
+                                                                      f"{value} on or after the data date {data_date}",
+                                        fix="give the data date with --data-date, or correct the task's task time"))
+    if problems:
+        raise CaseError(problems[:50])
+
+
+def _calendar_files(root: Path, added: list[CalendarRead]) -> dict[str, bytes]:
+    """calendars.csv, and calendar_exceptions.csv when they have exceptions, with the calendars
+    ``added`` appended (no file when no calendar is added)."""
+    files: dict[str, bytes] = {}
+    if not added:
+        return files
+    files["calendars.csv"] = _append_rows(root / "calendars.csv", ["calendar", "workdays"],
+                                          [{"calendar": c.name, "workdays": c.workdays} for c in added])
+    rows = []
+    for calendar in added:
+        for day, reason in sorted(calendar.holidays.items()):
+            rows.append({"calendar": calendar.name, "date": day.isoformat(), "working": "no", "reason": reason})
+        for day, reason in sorted(calendar.extra_workdays.items()):
+            rows.append({"calendar": calendar.name, "date": day.isoformat(), "working": "yes", "reason": reason})
+    if rows:
+        files["calendar_exceptions.csv"] = _append_rows(root / "calendar_exceptions.csv",
+                                                        ["calendar", "date", "working", "reason"], rows)
+    return files
+
+
+def _snapshot_files(label: str, data_date: dt.date, kind: str, activities: pd.DataFrame,
+                    links: pd.DataFrame) -> dict[str, bytes]:
+    """The files of the snapshot folder, by name: snapshot.toml, activities.csv and links.csv."""
+    snapshot_toml = (f"label = {_toml_text(label)}\ndata_date = {data_date.isoformat()}\n"
+                     f"kind = {_toml_text(kind)}\n").encode("utf-8")
+    return {
+        "snapshot.toml": snapshot_toml,
+        "activities.csv": csv_bytes(activities),
+        "links.csv": csv_bytes(links),
+    }
+
+
+def _compare_dates(file_dates: pd.DataFrame, result, findings: Findings) -> None:
+    """A finding for each activity (the first 50, then their count) whose dates in the file
+    differ from the early dates of the toolkit's critical path method (``result``)."""
+    compared = file_dates.dropna(subset=["start", "finish"], how="all").set_index("id")
+    if not len(compared):
+        return
+    ours = result.activities.set_index("id")[["early_start", "early_finish"]]
+    joined = compared.join(ours, how="inner")
+    differ = joined[(joined["start"] != joined["early_start"]) | (joined["finish"] != joined["early_finish"])]
+    for identification, row in differ.head(50).iterrows():
+        findings.add("dates_differ", f"the file schedules it {_day(row['start'])} to {_day(row['finish'])}; the "
+                                     f"toolkit's critical path method gives {_day(row['early_start'])} to "
+                                     f"{_day(row['early_finish'])}", subject=str(identification))
+    if len(differ) > 50:
+        findings.add("dates_differ", f"{len(differ) - 50} more activities whose dates differ")
+
+
+def _write_import(root: Path, target: Path, files: dict[str, bytes], snapshot_files: dict[str, bytes]) -> list[Path]:
+    """Write the case's calendar files, then the snapshot folder (built under a temporary name
+    and moved into place whole); returns the paths written."""
+    written = [write_bytes(root / name, content) for name, content in files.items()]
+    with replace_directory(target) as building:
+        for name, content in snapshot_files.items():
+            (building / name).write_bytes(content)
+    return written + [target / name for name in snapshot_files]
+
+
 def import_work_schedule(
     model_path: str | Path,
     case_path: str | Path,
@@ -975,100 +1102,26 @@ def import_work_schedule(
     case = load_case(Path(case_path))
     root = case_folder(case)
     model_path = Path(model_path)
-    if not _FOLDER_NAME.match(folder or ""):
-        raise CaseError(Problem(file="snapshots/", message=f"'{folder}' is not a folder name",
-                                fix="give --snapshot a plain name such as 2025-06-30"))
-    target = root / "snapshots" / folder
-    if target.exists() and not replace:
-        raise CaseError(Problem(file=f"snapshots/{folder}", message="the snapshot folder exists",
-                                fix="choose another --snapshot, or give --replace to replace it"))
-    kind = kind or ("baseline" if folder == "baseline" else "update")
-    if kind not in ("baseline", "update"):
-        raise CaseError(Problem(file=f"snapshots/{folder}", message=f"the kind '{kind}' is not baseline or update",
-                                fix="give --kind baseline or --kind update"))
+    target, kind = _check_options(root, folder, kind, replace)
     read = read_work_schedule(model_path, work_schedule=work_schedule)
     findings = Findings()
     findings.rows.extend(read.findings.to_dict("records"))
-    if isinstance(data_date, str):
-        try:
-            data_date = dt.date.fromisoformat(data_date)
-        except ValueError:
-            raise CaseError(Problem(file=str(model_path), message=f"the data date '{data_date}' is not a date",
-                                    fix="write it as YYYY-MM-DD")) from None
-    if data_date is None:
-        data_date = read.data_date
-    if data_date is None and kind == "baseline":
-        data_date = read.start_time
-    if data_date is None:
-        raise CaseError(Problem(file=str(model_path), message="the file does not say the data date of the programme",
-                                fix="give it with --data-date YYYY-MM-DD"))
+    data_date = _resolve_data_date(data_date, read, kind, model_path)
     label = label or str(read.facts.get("SnapshotLabel") or "") or folder
-    for snap in case.snapshots:
-        if snap.folder == folder:
-            continue
-        if snap.data_date == data_date:
-            raise CaseError(Problem(file=f"snapshots/{folder}", message=f"the data date {data_date} is also the data "
-                                                                       f"date of '{snap.folder}'",
-                                    fix="give another --data-date, or --replace that snapshot"))
-        if label in (snap.label, snap.folder):
-            raise CaseError(Problem(file=f"snapshots/{folder}", message=f"the label '{label}' is also used by "
-                                                                       f"'{snap.folder}'",
-                                    fix="give another --label"))
+    _check_other_snapshots(case, folder, data_date, label)
     activities = read.activities.copy()
-    problems = []
-    for row, (identification, start, finish) in enumerate(zip(activities["id"], activities["actual_start"],
-                                                              activities["actual_finish"])):
-        for what, value in (("actual start", start), ("actual finish", finish)):
-            if value and dt.date.fromisoformat(value) >= data_date:
-                problems.append(Problem(file=str(model_path), message=f"the task '{identification}' has an {what} "
-                                                                      f"{value} on or after the data date {data_date}",
-                                        fix="give the data date with --data-date, or correct the task's task time"))
-    if problems:
-        raise CaseError(problems[:50])
+    _check_actual_dates(activities, data_date, model_path)
     names, added = _place_calendars(case, read.calendars, findings)
     activities["calendar"] = activities["calendar"].map(lambda c: names.get(c, c) if c else "")
-    files: dict[str, bytes] = {}
-    if added:
-        files["calendars.csv"] = _append_rows(root / "calendars.csv", ["calendar", "workdays"],
-                                              [{"calendar": c.name, "workdays": c.workdays} for c in added])
-        rows = []
-        for calendar in added:
-            for day, reason in sorted(calendar.holidays.items()):
-                rows.append({"calendar": calendar.name, "date": day.isoformat(), "working": "no", "reason": reason})
-            for day, reason in sorted(calendar.extra_workdays.items()):
-                rows.append({"calendar": calendar.name, "date": day.isoformat(), "working": "yes", "reason": reason})
-        if rows:
-            files["calendar_exceptions.csv"] = _append_rows(root / "calendar_exceptions.csv",
-                                                            ["calendar", "date", "working", "reason"], rows)
-    snapshot_toml = (f"label = {_toml_text(label)}\ndata_date = {data_date.isoformat()}\n"
-                     f"kind = {_toml_text(kind)}\n").encode("utf-8")
+    files = _calendar_files(root, added)
+    snapshot_files = _snapshot_files(label, data_date, kind, activities, read.links)
     base = f"snapshots/{folder}"
-    snapshot_files = {
-        "snapshot.toml": snapshot_toml,
-        "activities.csv": csv_bytes(activities),
-        "links.csv": csv_bytes(read.links),
-    }
     copies = ["baseline"] if folder != "baseline" else []
     checked = validate_in_copy(root, {**files, **{f"{base}/{k}": v for k, v in snapshot_files.items()}}, copies)
-    result = schedule(checked, folder)
-    compared = read.file_dates.dropna(subset=["start", "finish"], how="all").set_index("id")
-    if len(compared):
-        ours = result.activities.set_index("id")[["early_start", "early_finish"]]
-        joined = compared.join(ours, how="inner")
-        differ = joined[(joined["start"] != joined["early_start"]) | (joined["finish"] != joined["early_finish"])]
-        for identification, row in differ.head(50).iterrows():
-            findings.add("dates_differ", f"the file schedules it {_day(row['start'])} to {_day(row['finish'])}; the "
-                                         f"toolkit's critical path method gives {_day(row['early_start'])} to "
-                                         f"{_day(row['early_finish'])}", subject=str(identification))
-        if len(differ) > 50:
-            findings.add("dates_differ", f"{len(differ) - 50} more activities whose dates differ")
+    _compare_dates(read.file_dates, schedule(checked, folder), findings)
     findings_frame = findings.frame()
     snapshot_files[FINDINGS_FILE] = csv_bytes(findings_frame)
-    written = [write_bytes(root / name, content) for name, content in files.items()]
-    with replace_directory(target) as building:
-        for name, content in snapshot_files.items():
-            (building / name).write_bytes(content)
-    written += [target / name for name in snapshot_files]
+    written = _write_import(root, target, files, snapshot_files)
     return ScheduleImport(read, target, data_date, label, kind, tuple(c.name for c in added), findings_frame,
                           tuple(written))
 
