@@ -66,6 +66,7 @@ from ._common import (
     ELEMENT_PSET,
     SCHEDULING_PSET,
     Findings,
+    case_calendar_days,
     date_time_text,
     open_model,
     work_days_duration,
@@ -385,11 +386,7 @@ def _calendar(writer: _Writer, case: Case, name: str):
     table = case.calendars
     workdays = table.loc[table["calendar"] == name, "workdays"].iloc[0]
     mask = parse_workdays(workdays)
-    exceptions = case.calendar_exceptions
-    own = exceptions[exceptions["calendar"] == name]
-    holidays, extra = {}, {}
-    for day, working, reason in zip(own["date"], own["working"], own["reason"]):
-        (extra if bool(working) else holidays)[pd.Timestamp(day).date()] = str(reason)
+    holidays, extra = case_calendar_days(case, name)
     weekly = model.create_entity("IfcRecurrencePattern", RecurrenceType="WEEKLY",
                                  WeekdayComponent=[k + 1 for k, on in enumerate(mask) if on])
     working = [model.create_entity("IfcWorkTime", Name=f"working weekdays: {workdays}", RecurrencePattern=weekly)]

@@ -61,6 +61,7 @@ from ._common import (
     SCHEDULING_PSET,
     Findings,
     IsoDuration,
+    case_calendar_days,
     case_folder,
     csv_bytes,
     open_model,
@@ -858,13 +859,9 @@ def _case_calendar(case, name: str) -> CalendarRead | None:
         return None
     from ..calendars import parse_workdays
 
-    read = CalendarRead(name=name, weekmask=parse_workdays(found["workdays"].iloc[0]))
-    exceptions = case.calendar_exceptions
-    own = exceptions[exceptions["calendar"] == name]
-    for day, working, reason in zip(own["date"], own["working"], own["reason"]):
-        date = pd.Timestamp(day).date()
-        (read.extra_workdays if bool(working) else read.holidays)[date] = str(reason)
-    return read
+    holidays, extra_workdays = case_calendar_days(case, name)
+    return CalendarRead(name=name, weekmask=parse_workdays(found["workdays"].iloc[0]), holidays=holidays,
+                        extra_workdays=extra_workdays)
 
 
 def _place_calendars(case, calendars: dict[str, CalendarRead], findings: Findings
