@@ -525,7 +525,7 @@ def _write_links(writer: _Writer, links: pd.DataFrame, tasks: dict) -> int:
     return len(links)
 
 
-def _write_schedule(writer: _Writer, case: Case, snap: Snapshot, result, findings: Findings) -> tuple[dict, int, int]:
+def _write_schedule(writer: _Writer, case: Case, snap: Snapshot, result) -> tuple[dict, int, int]:
     """The work plan, work schedule, tasks, calendars and links of a scheduled snapshot;
     returns the tasks by activity id and the counts of links and calendars."""
     data_time = date_time_text(snap.data_date, "00:00:00")
@@ -675,7 +675,7 @@ def export_schedule(
                                     "placeholders are written for them")
     made = _placeholders(writer, structure, missing, findings, unit_scale)
     structure.finish()
-    tasks, link_count, calendar_count = _write_schedule(writer, case, snap, result, findings)
+    tasks, link_count, calendar_count = _write_schedule(writer, case, snap, result)
 
     by_wbs: dict[str, list] = {}
     for row in snap.activities.itertuples(index=False):
