@@ -31,6 +31,7 @@ __all__ = [
     "date_time_text",
     "open_model",
     "case_folder",
+    "case_calendar_days",
     "sha256_of",
     "validate_in_copy",
     "SCHEDULING_PSET",
@@ -169,6 +170,31 @@ def case_folder(case) -> Path:
             file=str(root), message="the IFC commands write into a case folder, and this case is a workbook",
             fix="use the case in folder form (case.toml, calendars.csv, snapshots/...)"))
     return root
+
+
+def case_calendar_days(case, name: str) -> tuple[dict[dt.date, str], dict[dt.date, str]]:
+    """The dated exceptions of one calendar of a case (its calendar_exceptions.csv).
+
+    Parameters
+    ----------
+    case:
+        A loaded case.
+    name:
+        The calendar's name.
+
+    Returns
+    -------
+    tuple[dict, dict]
+        The holidays and the extra working days, each date mapped to its reason, in the
+        order of calendar_exceptions.csv.
+    """
+    holidays: dict[dt.date, str] = {}
+    extra_workdays: dict[dt.date, str] = {}
+    exceptions = case.calendar_exceptions
+    own = exceptions[exceptions["calendar"] == name]
+    for day, working, reason in zip(own["date"], own["working"], own["reason"]):
+        (extra_workdays if bool(working) else holidays)[pd.Timestamp(day).date()] = str(reason)
+    return holidays, extra_workdays
 
 
 def sha256_of(path: str | Path) -> str:

@@ -66,6 +66,7 @@ from ._common import (
     ELEMENT_PSET,
     SCHEDULING_PSET,
     Findings,
+    case_calendar_days,
     date_time_text,
     open_model,
     work_days_duration,
@@ -248,6 +249,84 @@ class _Structure:
                                RelatingStructure=structure, RelatedElements=elements)
 
 
+def _placeholder_storeys(structure: _Structure, levels: np.ndarray, boxes: np.ndarray, complete: np.ndarray) -> None:
+    """A storey per level (not a span ``B1-RF``), at the lowest base of its elements, made in
+    the order of their elevations."""
+    elevations: dict[str, float] = {}
+    for level, box, ok in zip(levels, boxes, complete):
+        if level and "-" not in level.strip("-"):
+            base = float(box[2]) if ok else 0.0
+            elevations[level] = min(elevations.get(level, base), base)
+    for level in sorted(elevations, key=lambda name: (elevations[name], name)):
+        structure.storey(level, round(elevations[level], 6))
+
+
+def _placeholder_global_id(writer: _Writer, element_id: str) -> str:
+    """The element id itself when it is a GlobalId the file does not hold yet, else a stable
+    GlobalId of our own."""
+    if (_GLOBAL_ID.match(element_id) and element_id not in writer.used
+            and model_by_guid(writer.model, element_id) is None):
+        writer.used.add(element_id)
+        return element_id
+    return writer.global_id("IfcBuildingElementProxy", element_id)
+
+
+def _box_shape(model, body, box: np.ndarray, complete: bool, unit_scale: float, findings: Findings,
+               element_id: str) -> tuple[object, object]:
+    """The placement of a box (at its low corner, in file units) and its body, an extruded
+    rectangle; None for what a box without a corner or an extent cannot give (a finding)."""
+    if not complete:
+        findings.add("placeholder", "the element has no box; its placeholder has no shape", subject=element_id)
+        return None, None
+    placement = model.create_entity("IfcLocalPlacement", RelativePlacement=_placement_3d(
+        model, tuple(box[:3] / unit_scale)))
+    dx, dy, dz = (float(v) / unit_scale for v in box[3:])
+    if not (min(dx, dy, dz) > 0 and body is not None):
+        findings.add("placeholder", "the element's box has no extent; its placeholder has no shape",
+                     subject=element_id)
+        return placement, None
+    profile = model.create_entity(
+        "IfcRectangleProfileDef", ProfileType="AREA",
+        Position=model.create_entity("IfcAxis2Placement2D", Location=model.create_entity(
+            "IfcCartesianPoint", [dx / 2, dy / 2])), XDim=dx, YDim=dy)
+    solid = model.create_entity("IfcExtrudedAreaSolid", SweptArea=profile,
+                                Position=_placement_3d(model, (0.0, 0.0, 0.0)),
+                                ExtrudedDirection=model.create_entity("IfcDirection", [0.0, 0.0, 1.0]),
+                                Depth=dz)
+    shape = model.create_entity("IfcShapeRepresentation", ContextOfItems=body,
+                                RepresentationIdentifier="Body", RepresentationType="SweptSolid",
+                                Items=[solid])
+    return placement, model.create_entity("IfcProductDefinitionShape", Representations=[shape])
+
+
+def _place_in_structure(structure: _Structure, proxy, level: str, zone: str) -> None:
+    """The placeholder contained in the storey of its level (a span of levels: contained in the
+    building and referenced in both storeys), and referenced in its zone."""
+    if level in structure.storeys:
+        structure.contain(structure.storeys[level], proxy)
+    else:
+        structure.contain(structure._building(), proxy)
+        low, _, high = level.partition("-")
+        if low in structure.storeys and high in structure.storeys:
+            structure.reference(structure.storeys[low], proxy)
+            structure.reference(structure.storeys[high], proxy)
+    if zone:
+        structure.reference(structure.zone(zone), proxy)
+
+
+def _classify_placeholders(writer: _Writer, by_code: dict[str, list]) -> None:
+    """One classification reference per element code, associated with its placeholders."""
+    if not by_code:
+        return
+    model = writer.model
+    classification = model.create_entity("IfcClassification", Name="Element classification of the case")
+    for code, products in by_code.items():
+        reference = model.create_entity("IfcClassificationReference", Identification=code, Name=code,
+                                        ReferencedSource=classification)
+        writer.rooted("IfcRelAssociatesClassification", ("classification", code), RelatedObjects=products,
+                      RelatingClassification=reference)
+
+
 def _placeholders(writer: _Writer, structure: _Structure, rows: pd.DataFrame, findings: Findings,
                   unit_scale: float) -> dict[str, object]:
     """IfcBuildingElementProxy placeholders with their boxes, by element id."""
@@ -257,80 +336,26 @@ def _placeholders(writer: _Writer, structure: _Structure, rows: pd.DataFrame, fi
     if not len(rows):
         return made
     boxes = rows[["x", "y", "z", "dx", "dy", "dz"]].to_numpy(dtype=np.float64)
-    levels = rows["level"].astype(str).to_numpy()
-    # a storey per level, at the lowest base of its elements (levels ordered by it)
     complete = np.isfinite(boxes).all(axis=1)
-    elevations: dict[str, float] = {}
-    for level, box, ok in zip(levels, boxes, complete):
-        if level and "-" not in level.strip("-"):
-            base = float(box[2]) if ok else 0.0
-            elevations[level] = min(elevations.get(level, base), base)
-    for level in sorted(elevations, key=lambda name: (elevations[name], name)):
-        structure.storey(level, round(elevations[level], 6))
-    classification = None
-    references: dict[str, object] = {}
+    _placeholder_storeys(structure, rows["level"].astype(str).to_numpy(), boxes, complete)
     by_code: dict[str, list] = {}
     for number, row in enumerate(rows.itertuples(index=False)):
         element_id = str(row.id)
-        existing_ids = writer.used
-        if _GLOBAL_ID.match(element_id) and element_id not in existing_ids and model_by_guid(model, element_id) is None:
-            global_id = element_id
-            writer.used.add(global_id)
-        else:
-            global_id = writer.global_id("IfcBuildingElementProxy", element_id)
-        box = boxes[number]
-        placement = representation = None
-        if complete[number]:
-            placement = model.create_entity("IfcLocalPlacement", RelativePlacement=_placement_3d(
-                model, tuple(box[:3] / unit_scale)))
-            dx, dy, dz = (float(v) / unit_scale for v in box[3:])
-            if min(dx, dy, dz) > 0 and body is not None:
-                profile = model.create_entity(
-                    "IfcRectangleProfileDef", ProfileType="AREA",
-                    Position=model.create_entity("IfcAxis2Placement2D", Location=model.create_entity(
-                        "IfcCartesianPoint", [dx / 2, dy / 2])), XDim=dx, YDim=dy)
-                solid = model.create_entity("IfcExtrudedAreaSolid", SweptArea=profile,
-                                            Position=_placement_3d(model, (0.0, 0.0, 0.0)),
-                                            ExtrudedDirection=model.create_entity("IfcDirection", [0.0, 0.0, 1.0]),
-                                            Depth=dz)
-                shape = model.create_entity("IfcShapeRepresentation", ContextOfItems=body,
-                                            RepresentationIdentifier="Body", RepresentationType="SweptSolid",
-                                            Items=[solid])
-                representation = model.create_entity("IfcProductDefinitionShape", Representations=[shape])
-            else:
-                findings.add("placeholder", "the element's box has no extent; its placeholder has no shape",
-                             subject=element_id)
-        else:
-            findings.add("placeholder", "the element has no box; its placeholder has no shape", subject=element_id)
+        global_id = _placeholder_global_id(writer, element_id)
+        placement, representation = _box_shape(model, body, boxes[number], complete[number], unit_scale, findings,
+                                                element_id)
         proxy = model.create_entity("IfcBuildingElementProxy", GlobalId=global_id, Name=str(row.name) or element_id,
                                     ObjectType="placeholder from elements.csv", ObjectPlacement=placement,
                                     Representation=representation, Tag=element_id[:255])
         made[element_id] = proxy
-        level = str(row.level)
-        if level in structure.storeys:
-            structure.contain(structure.storeys[level], proxy)
-        else:
-            structure.contain(structure._building(), proxy)
-            low, _, high = level.partition("-")
-            if low in structure.storeys and high in structure.storeys:
-                structure.reference(structure.storeys[low], proxy)
-                structure.reference(structure.storeys[high], proxy)
-        zone = str(getattr(row, "zone", ""))
-        if zone:
-            structure.reference(structure.zone(zone), proxy)
+        _place_in_structure(structure, proxy, str(row.level), str(getattr(row, "zone", "")))
         code = str(getattr(row, "classification", ""))
         if code:
             by_code.setdefault(code, []).append(proxy)
         writer.pset(ELEMENT_PSET, {"ElementId": ("IfcIdentifier", element_id),
                                    "WorkBreakdownCode": ("IfcIdentifier", str(row.wbs))},
                     [proxy], ("element-pset", element_id))
-    if by_code:
-        classification = model.create_entity("IfcClassification", Name="Element classification of the case")
-        for code, products in by_code.items():
-            references[code] = model.create_entity("IfcClassificationReference", Identification=code, Name=code,
-                                                    ReferencedSource=classification)
-            writer.rooted("IfcRelAssociatesClassification", ("classification", code), RelatedObjects=products,
-                          RelatingClassification=references[code])
+    _classify_placeholders(writer, by_code)
     return made
 
 
@@ -361,11 +386,7 @@ def _calendar(writer: _Writer, case: Case, name: str):
     table = case.calendars
     workdays = table.loc[table["calendar"] == name, "workdays"].iloc[0]
     mask = parse_workdays(workdays)
-    exceptions = case.calendar_exceptions
-    own = exceptions[exceptions["calendar"] == name]
-    holidays, extra = {}, {}
-    for day, working, reason in zip(own["date"], own["working"], own["reason"]):
-        (extra if bool(working) else holidays)[pd.Timestamp(day).date()] = str(reason)
+    holidays, extra = case_calendar_days(case, name)
     weekly = model.create_entity("IfcRecurrencePattern", RecurrenceType="WEEKLY",
                                  WeekdayComponent=[k + 1 for k, on in enumerate(mask) if on])
     working = [model.create_entity("IfcWorkTime", Name=f"working weekdays: {workdays}", RecurrencePattern=weekly)]
@@ -384,13 +405,11 @@ def _dates(column: pd.Series) -> list[dt.date | None]:
     return [None if pd.isna(v) else pd.Timestamp(v).date() for v in column]
 
 
-def _write_schedule(writer: _Writer, case: Case, snap: Snapshot, result, findings: Findings) -> tuple[dict, int, int]:
-    model = writer.model
+def _work_schedule(writer: _Writer, case: Case, snap: Snapshot, result, data_time: str):
+    """The IfcWorkPlan declared in the project and its IfcWorkSchedule, with the snapshot's
+    facts and scheduling settings in our property set; returns the work schedule."""
     settings = result.settings
-    activities = snap.activities
-    scheduled = result.activities.set_index("id")
-    project = model.by_type("IfcProject")[0]
-    data_time = date_time_text(snap.data_date, "00:00:00")
+    project = writer.model.by_type("IfcProject")[0]
     plan = writer.rooted("IfcWorkPlan", ("plan",), Name=case.settings.project.name, CreationDate=data_time,
                          StartTime=date_time_text(snap.data_date, START_TIME), PredefinedType="PLANNED")
     schedule = writer.rooted(
@@ -412,47 +431,69 @@ def _write_schedule(writer: _Writer, case: Case, snap: Snapshot, result, finding
         "DefaultCalendar": ("IfcLabel", settings.default_calendar),
         "TimesOfDay": ("IfcText", f"starts at {START_TIME}, finishes at {FINISH_TIME}; only the dates carry meaning"),
     }, [schedule], ("schedule-pset",))
+    return schedule
 
-    tasks: dict[str, object] = {}
-    early_start = _dates(scheduled["early_start"])
-    columns = {name: list(scheduled[name]) for name in ("early_finish", "late_start", "late_finish", "total_float",
-                                                         "free_float", "critical", "status")}
+
+def _scheduled_columns(result) -> tuple[dict[str, int], dict[str, list]]:
+    """Each activity's position in the schedule, and the schedule's columns as lists (the
+    early and late dates as dates, None for no date)."""
+    scheduled = result.activities.set_index("id")
+    columns = {name: list(scheduled[name]) for name in ("total_float", "free_float", "critical", "status")}
+    for name in ("early_start", "early_finish", "late_start", "late_finish"):
+        columns[name] = _dates(scheduled[name])
     position = {identification: k for k, identification in enumerate(scheduled.index)}
-    late_start, late_finish = _dates(scheduled["late_start"]), _dates(scheduled["late_finish"])
-    early_finish = _dates(scheduled["early_finish"])
+    return position, columns
+
+
+def _task_time_attributes(row, k: int, milestone: bool, columns: dict[str, list], point: int,
+                          data_time: str) -> dict:
+    """The IfcTaskTime of one activity (``k``: its position in the schedule): duration, early
+    and late dates, floats, actual dates and remaining time. A milestone's dates all carry the
+    time of day of the boundary it sits on."""
+    attributes = {
+        "DurationType": "WORKTIME",
+        "ScheduleDuration": work_days_duration(int(row.duration)),
+        "StatusTime": data_time,
+    }
+    start, finish = columns["early_start"][k], columns["early_finish"][k]
+    late_start, late_finish = columns["late_start"][k], columns["late_finish"][k]
+    start_time = FINISH_TIME if milestone and point == FINISH_MILESTONE else START_TIME
+    if start is not None:
+        attributes["ScheduleStart"] = attributes["EarlyStart"] = date_time_text(start, start_time)
+    if finish is not None:
+        finish_time = start_time if milestone else FINISH_TIME
+        attributes["ScheduleFinish"] = attributes["EarlyFinish"] = date_time_text(finish, finish_time)
+    if late_start is not None:
+        attributes["LateStart"] = date_time_text(late_start, start_time)
+    if late_finish is not None:
+        attributes["LateFinish"] = date_time_text(late_finish, start_time if milestone else FINISH_TIME)
+    total, free = columns["total_float"][k], columns["free_float"][k]
+    if not pd.isna(total):
+        attributes["TotalFloat"] = work_days_duration(int(total))
+        attributes["IsCritical"] = bool(columns["critical"][k])
+    if not pd.isna(free):
+        attributes["FreeFloat"] = work_days_duration(int(free))
+    if not pd.isna(row.actual_start):
+        attributes["ActualStart"] = date_time_text(pd.Timestamp(row.actual_start).date(), START_TIME)
+    if not pd.isna(row.actual_finish):
+        attributes["ActualFinish"] = date_time_text(pd.Timestamp(row.actual_finish).date(), FINISH_TIME)
+    if not pd.isna(row.remaining):
+        attributes["RemainingTime"] = work_days_duration(int(round(float(row.remaining))))
+    return attributes
+
+
+def _write_tasks(writer: _Writer, snap: Snapshot, result, data_time: str) -> tuple[dict, dict[str, list]]:
+    """One IfcTask per activity with its task time and our property set; returns the tasks by
+    activity id and the tasks of each calendar."""
+    model = writer.model
+    position, columns = _scheduled_columns(result)
+    tasks: dict[str, object] = {}
     calendar_of: dict[str, list] = {}
-    for row in activities.itertuples(index=False):
+    for row in snap.activities.itertuples(index=False):
         identification = str(row.id)
         k = position[identification]
         milestone = row.kind != "task" or int(row.duration) == 0
-        start, finish = early_start[k], early_finish[k]
-        attributes = {
-            "DurationType": "WORKTIME",
-            "ScheduleDuration": work_days_duration(int(row.duration)),
-            "StatusTime": data_time,
-        }
-        start_time = FINISH_TIME if milestone and int(result.point[k]) == FINISH_MILESTONE else START_TIME
-        if start is not None:
-            attributes["ScheduleStart"] = attributes["EarlyStart"] = date_time_text(start, start_time)
-        if finish is not None:
-            finish_time = start_time if milestone else FINISH_TIME
-            attributes["ScheduleFinish"] = attributes["EarlyFinish"] = date_time_text(finish, finish_time)
-        if late_start[k] is not None:
-            attributes["LateStart"] = date_time_text(late_start[k], start_time)
-        if late_finish[k] is not None:
-            attributes["LateFinish"] = date_time_text(late_finish[k], start_time if milestone else FINISH_TIME)
-        total, free = columns["total_float"][k], columns["free_float"][k]
-        if not pd.isna(total):
-            attributes["TotalFloat"] = work_days_duration(int(total))
-            attributes["IsCritical"] = bool(columns["critical"][k])
-        if not pd.isna(free):
-            attributes["FreeFloat"] = work_days_duration(int(free))
-        if not pd.isna(row.actual_start):
-            attributes["ActualStart"] = date_time_text(pd.Timestamp(row.actual_start).date(), START_TIME)
-        if not pd.isna(row.actual_finish):
-            attributes["ActualFinish"] = date_time_text(pd.Timestamp(row.actual_finish).date(), FINISH_TIME)
-        if not pd.isna(row.remaining):
-            attributes["RemainingTime"] = work_days_duration(int(round(float(row.remaining))))
+        attributes = _task_time_attributes(row, k, milestone, columns, int(result.point[k]), data_time)
         task_time = model.create_entity("IfcTaskTime", **attributes)
         task = writer.rooted("IfcTask", ("task", identification), Name=str(row.name), Identification=identification,
                              IsMilestone=bool(milestone), PredefinedType="CONSTRUCTION", TaskTime=task_time,
@@ -468,6 +509,28 @@ def _write_schedule(writer: _Writer, case: Case, snap: Snapshot, result, finding
             "WorkBreakdownCode": ("IfcIdentifier", str(row.wbs or "")),
             "Calendar": ("IfcLabel", str(row.calendar)),
         }, [task], ("task-pset", identification))
+    return tasks, calendar_of
+
+
+def _write_links(writer: _Writer, links: pd.DataFrame, tasks: dict) -> int:
+    """One IfcRelSequence per link, its lag an IfcLagTime of work days when not 0; returns how many."""
+    for row in links.itertuples(index=False):
+        lag = int(row.lag)
+        time_lag = None
+        if lag:
+            time_lag = writer.model.create_entity(
+                "IfcLagTime", LagValue=writer.value("IfcDuration", work_days_duration(lag)), DurationType="WORKTIME")
+        writer.rooted("IfcRelSequence", ("link", str(row.pred), str(row.succ)), RelatingProcess=tasks[str(row.pred)],
+                      RelatedProcess=tasks[str(row.succ)], TimeLag=time_lag, SequenceType=SEQUENCE_ENUM[str(row.type)])
+    return len(links)
+
+
+def _write_schedule(writer: _Writer, case: Case, snap: Snapshot, result) -> tuple[dict, int, int]:
+    """The work plan, work schedule, tasks, calendars and links of a scheduled snapshot;
+    returns the tasks by activity id and the counts of links and calendars."""
+    data_time = date_time_text(snap.data_date, "00:00:00")
+    schedule = _work_schedule(writer, case, snap, result, data_time)
+    tasks, calendar_of = _write_tasks(writer, snap, result, data_time)
     if tasks:
         writer.rooted("IfcRelAssignsToControl", ("schedule-tasks",), RelatedObjects=list(tasks.values()),
                       RelatingControl=schedule)
@@ -475,16 +538,7 @@ def _write_schedule(writer: _Writer, case: Case, snap: Snapshot, result, finding
         calendar = _calendar(writer, case, name)
         writer.rooted("IfcRelAssignsToControl", ("calendar-tasks", name), RelatedObjects=members,
                       RelatingControl=calendar)
-    links = snap.links
-    for row in links.itertuples(index=False):
-        lag = int(row.lag)
-        time_lag = None
-        if lag:
-            time_lag = model.create_entity("IfcLagTime", LagValue=writer.value("IfcDuration", work_days_duration(lag)),
-                                           DurationType="WORKTIME")
-        writer.rooted("IfcRelSequence", ("link", str(row.pred), str(row.succ)), RelatingProcess=tasks[str(row.pred)],
-                      RelatedProcess=tasks[str(row.succ)], TimeLag=time_lag, SequenceType=SEQUENCE_ENUM[str(row.type)])
-    return tasks, len(links), len(calendar_of)
+    return tasks, _write_links(writer, snap.links, tasks), len(calendar_of)
 
 
 #: The header's preprocessor_version (ISO 10303-21 FILE_NAME: the program that wrote the
@@ -621,7 +675,7 @@ def export_schedule(
                                     "placeholders are written for them")
     made = _placeholders(writer, structure, missing, findings, unit_scale)
     structure.finish()
-    tasks, link_count, calendar_count = _write_schedule(writer, case, snap, result, findings)
+    tasks, link_count, calendar_count = _write_schedule(writer, case, snap, result)
 
     by_wbs: dict[str, list] = {}
     for row in snap.activities.itertuples(index=False):

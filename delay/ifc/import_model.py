@@ -332,6 +332,200 @@ def _boxes(model, elements, progress: Callable[[int], None] | None, findings: Fi
     return boxes
 
 
+# -- reading: the model's relations -----------------------------------------------------------------
+@dataclass(frozen=True)
+class _Relations:
+    """What the model relates to its objects, by entity id: property sets (of objects and of
+    types), each object's type, (system, code) classification pairs, the spatial maps of
+    :func:`_storeys_and_zones`, the tasks that build each product, and the geometry's boxes."""
+
+    psets: dict[int, list]
+    type_psets: dict[int, list]
+    types: dict[int, object]
+    classes: dict[int, list[tuple[str, str]]]
+    contained: dict[int, object]
+    referenced: dict[int, list]
+    parent: dict[int, object]
+    children: dict[int, list]
+    builders: dict[int, list]
+    boxes: dict[int, np.ndarray]
+
+
+def _physical_elements(model, findings: Findings) -> list:
+    """The model's physical elements (IfcElement but no feature or virtual element), in file
+    order; none is a finding."""
+    physical = [e for e in model.by_type("IfcElement") if not any(e.is_a(c) for c in _NOT_PHYSICAL)]
+    if not physical:
+        findings.add("no_elements", "the model holds no physical element (IfcElement)")
+    return physical
+
+
+def _code_property_key(code_property: str | None, psets: dict[int, list], type_psets: dict[int, list],
+                       findings: Findings) -> tuple[str, str] | None:
+    """``code_property`` split into the property set and property names of the file; None
+    when it is not given, or matches no property set (a finding)."""
+    property_key = None
+    if code_property:
+        names = {p.Name for sets in (*psets.values(), *type_psets.values()) for p in sets if p.Name}
+        property_key = _split_property(code_property, names)
+        if property_key is None:
+            findings.add("no_code", f"no property set of the model matches '{code_property}' "
+                                    "(PSET.NAME, as the property set and property are named in the file)")
+    return property_key
+
+
+def _element_types(model) -> dict[int, object]:
+    """The type object of each typed object, by entity id (``IfcRelDefinesByType``)."""
+    types: dict[int, object] = {}
+    for rel in model.by_type("IfcRelDefinesByType"):
+        for obj in rel.RelatedObjects or ():
+            types[obj.id()] = rel.RelatingType
+    return types
+
+
+def _check_classification_systems(classes: dict[int, list[tuple[str, str]]], classification: str | None,
+                                  findings: Findings) -> None:
+    """A finding when several systems could fill the classification column and none is chosen,
+    or when the chosen system is not in the model."""
+    systems = sorted({s for pairs in classes.values() for s, _ in pairs})
+    if classification is None and len(systems) > 1:
+        findings.add("several_classification_systems",
+                     f"the model uses {len(systems)} classification systems ({', '.join(systems)}); "
+                     f"'{systems[0]}' fills the classification column - choose one with --classification")
+    elif classification is not None and systems and classification.casefold() not in {s.casefold() for s in systems}:
+        findings.add("several_classification_systems",
+                     f"no classification system '{classification}' in the model (it has: {', '.join(systems)})")
+
+
+# -- reading: each element ---------------------------------------------------------------------------
+def _own_or_type(entity_id: int, table: Mapping[int, list], types: dict[int, object]) -> list:
+    """The entries of ``table`` for an object, then those for its type."""
+    found = list(table.get(entity_id, ()))
+    if entity_id in types:
+        found += list(table.get(types[entity_id].id(), ()))
+    return found
+
+
+def _property_code(element, property_key: tuple[str, str] | None, relations: _Relations) -> str:
+    """The first non-blank value of the code property, on the element or else on its type."""
+    if property_key is None:
+        return ""
+    pset_name, prop_name = property_key
+    types = relations.types
+    for pset in list(relations.psets.get(element.id(), ())) + (
+            relations.type_psets.get(types[element.id()].id(), []) if element.id() in types else []):
+        if pset.Name != pset_name:
+            continue
+        for prop in pset.HasProperties or ():
+            if prop.Name == prop_name:
+                value = _property_value(prop)
+                if value:
+                    return value
+    return ""
+
+
+def _task_code(element, builders: dict[int, list], activity_wbs: dict[str, str], findings: Findings) -> str:
+    """The wbs, in the baseline, of the first activity among the tasks that build the element;
+    a task that is no activity of the baseline, and tasks of several codes, are findings."""
+    codes = []
+    for task in builders.get(element.id(), ()):
+        activity = _text(task.Identification)
+        if activity in activity_wbs and activity_wbs[activity]:
+            codes.append(activity_wbs[activity])
+        elif activity:
+            findings.add("task_not_in_baseline",
+                         f"the task '{activity}' that builds it is not an activity of the baseline "
+                         "(or has no wbs there)", element, _text(element.Name))
+    distinct = list(dict.fromkeys(codes))
+    if len(distinct) > 1:
+        findings.add("several_codes", f"the tasks that build it carry several wbs codes "
+                                      f"({', '.join(distinct)}); the first is taken", element, _text(element.Name))
+    return distinct[0] if distinct else ""
+
+
+def _element_code(element, pairs: list[tuple[str, str]], relations: _Relations,
+                  property_key: tuple[str, str] | None, code_classification: str | None,
+                  activity_wbs: dict[str, str], findings: Findings) -> tuple[str, str]:
+    """The element's work breakdown code and its source: the code property, else the
+    reference of the code classification (``pairs``: the element's and its type's), else the
+    tasks that build it."""
+    wbs, source = _property_code(element, property_key, relations), "property"
+    if not wbs and code_classification:
+        own = relations.classes.get(element.id(), [])
+        wbs, source = _pick(own, code_classification) or _pick(pairs, code_classification), "classification"
+    if not wbs:
+        wbs, source = _task_code(element, relations.builders, activity_wbs, findings), "task"
+    return wbs, source
+
+
+def _element_box(element, boxes: dict[int, np.ndarray], children: dict[int, list],
+                 findings: Findings) -> np.ndarray | None:
+    """The element's box, else the box around its parts' boxes; None (a finding) when neither
+    has geometry."""
+    box = boxes.get(element.id())
+    if box is None:
+        parts = [boxes[p.id()] for p in _all_parts(element, children) if p.id() in boxes]
+        if parts:
+            stacked = np.vstack(parts)
+            box = np.concatenate([stacked[:, :3].min(axis=0), stacked[:, 3:].max(axis=0)])
+    if box is None:
+        if element.Representation is None:
+            findings.add("no_geometry", "the element has no shape representation; it is written without a box",
+                         element, _text(element.Name))
+        else:
+            findings.add("geometry_failed", "the element's geometry could not be processed; it is written "
+                                            "without a box", element, _text(element.Name))
+    return box
+
+
+def _element_row(element, global_id: str, wbs: str, class_code: str, source: str, box: np.ndarray | None,
+                 relations: _Relations) -> dict:
+    """One row of :data:`ELEMENT_COLUMNS`: the box rounded to the micrometre (NaN without one)."""
+    if box is None:
+        x = y = z = dx = dy = dz = np.nan
+    else:
+        low, high = np.round(box[:3], _DECIMALS), np.round(box[3:], _DECIMALS)
+        x, y, z = (float(v) for v in low)
+        dx, dy, dz = (float(v) for v in np.round(high - low, _DECIMALS))
+    contained, referenced = relations.contained, relations.referenced
+    return {
+        "id": global_id, "name": _text(element.Name), "wbs": wbs, "classification": class_code,
+        "x": x, "y": y, "z": z, "dx": dx, "dy": dy, "dz": dz,
+        "level": _level(element, contained, referenced, relations.parent),
+        "zone": _zone(element, contained, referenced),
+        "ifc_class": element.is_a(), "code_source": source,
+    }
+
+
+def _element_rows(physical: list, relations: _Relations, property_key: tuple[str, str] | None,
+                  classification: str | None, code_classification: str | None, activity_wbs: dict[str, str],
+                  findings: Findings) -> list[dict]:
+    """A row for each physical element that has a code, in file order; a repeated GlobalId
+    and an element without a code are findings, and not written."""
+    rows = []
+    seen: set[str] = set()
+    for element in physical:
+        global_id = str(element.GlobalId)
+        if global_id in seen:
+            findings.add("duplicate_global_id", "the GlobalId is used twice in the model; the first is kept",
+                         element, _text(element.Name))
+            continue
+        seen.add(global_id)
+        pairs = _own_or_type(element.id(), relations.classes, relations.types)
+        own_pairs = relations.classes.get(element.id(), [])
+        class_code = _pick(own_pairs, classification) or _pick(pairs, classification)
+        wbs, source = _element_code(element, pairs, relations, property_key, code_classification, activity_wbs,
+                                    findings)
+        box = _element_box(element, relations.boxes, relations.children, findings)
+        if not wbs:
+            findings.add("no_code", "no work breakdown code (property, classification or building task); "
+                                    "the element is not written - give --code-property or --code-classification, "
+                                    "or assign it to the task that builds it", element, _text(element.Name))
+            continue
+        rows.append(_element_row(element, global_id, wbs, class_code, source, box, relations))
+    return rows
+
+
 def read_model(
     path: str | Path,
     *,
@@ -377,31 +571,13 @@ def read_model(
     ifcopenshell = require_ifcopenshell()
     model = open_model(path)
     findings = Findings()
-    physical = [e for e in model.by_type("IfcElement") if not any(e.is_a(c) for c in _NOT_PHYSICAL)]
-    if not physical:
-        findings.add("no_elements", "the model holds no physical element (IfcElement)")
+    physical = _physical_elements(model, findings)
     scale = float(ifcopenshell.util.unit.calculate_unit_scale(model))
     psets, type_psets = _property_sets(model)
-    property_key = None
-    if code_property:
-        names = {p.Name for sets in (*psets.values(), *type_psets.values()) for p in sets if p.Name}
-        property_key = _split_property(code_property, names)
-        if property_key is None:
-            findings.add("no_code", f"no property set of the model matches '{code_property}' "
-                                    "(PSET.NAME, as the property set and property are named in the file)")
-    types: dict[int, object] = {}
-    for rel in model.by_type("IfcRelDefinesByType"):
-        for obj in rel.RelatedObjects or ():
-            types[obj.id()] = rel.RelatingType
+    property_key = _code_property_key(code_property, psets, type_psets, findings)
+    types = _element_types(model)
     classes = _classifications(model)
-    systems = sorted({s for pairs in classes.values() for s, _ in pairs})
-    if classification is None and len(systems) > 1:
-        findings.add("several_classification_systems",
-                     f"the model uses {len(systems)} classification systems ({', '.join(systems)}); "
-                     f"'{systems[0]}' fills the classification column - choose one with --classification")
-    elif classification is not None and systems and classification.casefold() not in {s.casefold() for s in systems}:
-        findings.add("several_classification_systems",
-                     f"no classification system '{classification}' in the model (it has: {', '.join(systems)})")
+    _check_classification_systems(classes, classification, findings)
     contained, referenced, parent, children = _storeys_and_zones(model)
     builders = _building_tasks(model)
     activity_wbs = dict(activity_wbs or {})
@@ -409,89 +585,9 @@ def read_model(
     if on_total is not None:
         on_total(sum(1 for e in physical if e.Representation is not None))
     boxes = _boxes(model, physical, progress, findings)
-
-    def own_or_type(entity_id: int, table: Mapping[int, list]) -> list:
-        found = list(table.get(entity_id, ()))
-        if entity_id in types:
-            found += list(table.get(types[entity_id].id(), ()))
-        return found
-
-    def property_code(element) -> str:
-        if property_key is None:
-            return ""
-        pset_name, prop_name = property_key
-        for pset in list(psets.get(element.id(), ())) + (
-                type_psets.get(types[element.id()].id(), []) if element.id() in types else []):
-            if pset.Name != pset_name:
-                continue
-            for prop in pset.HasProperties or ():
-                if prop.Name == prop_name:
-                    value = _property_value(prop)
-                    if value:
-                        return value
-        return ""
-
-    rows = []
-    seen: set[str] = set()
-    for element in physical:
-        global_id = str(element.GlobalId)
-        if global_id in seen:
-            findings.add("duplicate_global_id", "the GlobalId is used twice in the model; the first is kept",
-                         element, _text(element.Name))
-            continue
-        seen.add(global_id)
-        pairs = own_or_type(element.id(), classes)
-        own_pairs = classes.get(element.id(), [])
-        class_code = _pick(own_pairs, classification) or _pick(pairs, classification)
-        wbs, source = property_code(element), "property"
-        if not wbs and code_classification:
-            wbs, source = _pick(classes.get(element.id(), []), code_classification) or _pick(pairs, code_classification), "classification"
-        if not wbs:
-            source = "task"
-            codes = []
-            for task in builders.get(element.id(), ()):
-                activity = _text(task.Identification)
-                if activity in activity_wbs and activity_wbs[activity]:
-                    codes.append(activity_wbs[activity])
-                elif activity:
-                    findings.add("task_not_in_baseline",
-                                 f"the task '{activity}' that builds it is not an activity of the baseline "
-                                 "(or has no wbs there)", element, _text(element.Name))
-            distinct = list(dict.fromkeys(codes))
-            if len(distinct) > 1:
-                findings.add("several_codes", f"the tasks that build it carry several wbs codes "
-                                              f"({', '.join(distinct)}); the first is taken", element, _text(element.Name))
-            wbs = distinct[0] if distinct else ""
-        box = boxes.get(element.id())
-        if box is None:
-            parts = [boxes[p.id()] for p in _all_parts(element, children) if p.id() in boxes]
-            if parts:
-                stacked = np.vstack(parts)
-                box = np.concatenate([stacked[:, :3].min(axis=0), stacked[:, 3:].max(axis=0)])
-        if box is None:
-            if element.Representation is None:
-                findings.add("no_geometry", "the element has no shape representation; it is written without a box",
-                             element, _text(element.Name))
-            else:
-                findings.add("geometry_failed", "the element's geometry could not be processed; it is written "
-                                                "without a box", element, _text(element.Name))
-        if not wbs:
-            findings.add("no_code", "no work breakdown code (property, classification or building task); "
-                                    "the element is not written - give --code-property or --code-classification, "
-                                    "or assign it to the task that builds it", element, _text(element.Name))
-            continue
-        if box is None:
-            x = y = z = dx = dy = dz = np.nan
-        else:
-            low, high = np.round(box[:3], _DECIMALS), np.round(box[3:], _DECIMALS)
-            x, y, z = (float(v) for v in low)
-            dx, dy, dz = (float(v) for v in np.round(high - low, _DECIMALS))
-        rows.append({
-            "id": global_id, "name": _text(element.Name), "wbs": wbs, "classification": class_code,
-            "x": x, "y": y, "z": z, "dx": dx, "dy": dy, "dz": dz,
-            "level": _level(element, contained, referenced, parent), "zone": _zone(element, contained, referenced),
-            "ifc_class": element.is_a(), "code_source": source,
-        })
+    relations = _Relations(psets, type_psets, types, classes, contained, referenced, parent, children, builders, boxes)
+    rows = _element_rows(physical, relations, property_key, classification, code_classification, activity_wbs,
+                         findings)
     frame = pd.DataFrame(rows, columns=list(ELEMENT_COLUMNS))
     for column in ("x", "y", "z", "dx", "dy", "dz"):
         frame[column] = frame[column].astype(np.float64)

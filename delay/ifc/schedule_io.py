@@ -61,6 +61,7 @@ from ._common import (
     SCHEDULING_PSET,
     Findings,
     IsoDuration,
+    case_calendar_days,
     case_folder,
     csv_bytes,
     open_model,
@@ -399,40 +400,19 @@ def _whole(value: float, findings: Findings, entity, subject: str, what: str) ->
     return whole
 
 
-# -- the reader --------------------------------------------------------------------------------------
-def read_work_schedule(path: str | Path, *, work_schedule: str | None = None) -> WorkScheduleRead:
-    """Read one IFC work schedule into case-format tables.
-
-    Parameters
-    ----------
-    path:
-        The .ifc file.
-    work_schedule:
-        Name, Identification or GlobalId of the work schedule when the file holds several.
-
-    Returns
-    -------
-    WorkScheduleRead
-
-    Raises
-    ------
-    CaseError
-        When the file is not IFC, holds no (or no such) work schedule, a task's
-        Identification repeats, or the schedule has no task.
-    IfcExtraMissing
-        When ifcopenshell is not installed.
-    """
-    path = Path(path)
+# -- the reader: tasks and calendars ---------------------------------------------------------------
+def _open_schedule(path: Path, work_schedule: str | None):
+    """The opened model and the work schedule chosen in it; an IFC 2x3 file is refused."""
     model = open_model(path)
     if model.schema == "IFC2X3":
         raise CaseError(Problem(file=str(path), message="the file is IFC 2x3, whose work schedules are not read here",
                                 fix="export the programme as an IFC 4 work schedule"))
-    findings = Findings()
-    schedule = _pick_schedule(model, work_schedule, path)
-    controls = _assigned_controls(model)
-    children, parent = _nested(model)
-    ours = _psets_named(model, SCHEDULING_PSET)
+    return model, _pick_schedule(model, work_schedule, path)
 
+
+def _schedule_tasks(schedule, children: dict[int, list], path: Path) -> tuple[list, set[int]]:
+    """Every task of the work schedule, depth first (a summary task before its parts), and the
+    entity ids of all of them; a work schedule without a task is refused."""
     roots = [o for rel in (schedule.Controls or ()) for o in (rel.RelatedObjects or ()) if o.is_a("IfcTask")]
     tasks, stack, seen = [], list(reversed(roots)), set()
     while stack:
@@ -445,12 +425,21 @@ def read_work_schedule(path: str | Path, *, work_schedule: str | None = None) ->
     if not tasks:
         raise CaseError(Problem(file=str(path), message=f"the work schedule '{_text(schedule.Name)}' has no task",
                                 fix="assign its tasks to it (IfcRelAssignsToControl)"))
+    return tasks, seen
+
+
+def _leaf_tasks(tasks: list, children: dict[int, list], findings: Findings) -> list:
+    """The tasks that become activities (those with no nested task); each summary task is a finding."""
     leaves = [t for t in tasks if not children.get(t.id())]
     for summary in (t for t in tasks if children.get(t.id())):
         findings.add("summary_task", f"a summary task of {len(children[summary.id()])} tasks: its tasks are read, "
                                      "it is not an activity", summary, _text(summary.Identification))
+    return leaves
 
-    # calendars
+
+def _calendar_years(leaves: list) -> tuple[dt.date, dt.date]:
+    """The span over which a yearly exception is written out: the tasks' first scheduled or
+    actual date (today when none is dated) to ``_RECURRING_YEARS_AFTER`` years after the last."""
     dates = []
     for task in leaves:
         time = task.TaskTime
@@ -461,25 +450,35 @@ def read_work_schedule(path: str | Path, *, work_schedule: str | None = None) ->
                     dates.append(day)
     first = min(dates) if dates else dt.date.today()
     last = (max(dates) if dates else first) + dt.timedelta(days=366 * _RECURRING_YEARS_AFTER)
+    return first, last
 
-    def calendar_entity(obj):
-        current, steps = obj, 0
-        while current is not None and steps < 1000:
-            for control in controls.get(current.id(), ()):
-                if control.is_a("IfcWorkCalendar"):
-                    return control
-            current = parent.get(current.id())
-            steps += 1
-        for control in controls.get(schedule.id(), ()):
+
+def _calendar_entity(task, schedule, controls: dict[int, list], parent: dict[int, object]):
+    """The IfcWorkCalendar a task is worked on: its own, else that of the nearest summary task
+    it is nested in, else the work schedule's; None when there is none."""
+    current, steps = task, 0
+    while current is not None and steps < 1000:
+        for control in controls.get(current.id(), ()):
             if control.is_a("IfcWorkCalendar"):
                 return control
-        return None
+        current = parent.get(current.id())
+        steps += 1
+    for control in controls.get(schedule.id(), ()):
+        if control.is_a("IfcWorkCalendar"):
+            return control
+    return None
 
+
+def _read_calendars(leaves: list, schedule, controls: dict[int, list], parent: dict[int, object],
+                    findings: Findings) -> tuple[dict[str, CalendarRead], dict[int, CalendarRead | None]]:
+    """The calendars the tasks are worked on, by name (each read once), and each task's
+    calendar by entity id (None: the case's default calendar)."""
+    first, last = _calendar_years(leaves)
     calendars: dict[str, CalendarRead] = {}
     by_entity: dict[int, CalendarRead] = {}
     task_calendar: dict[int, CalendarRead | None] = {}
     for task in leaves:
-        entity = calendar_entity(task)
+        entity = _calendar_entity(task, schedule, controls, parent)
         if entity is None:
             task_calendar[task.id()] = None
             continue
@@ -495,8 +494,12 @@ def read_work_schedule(path: str | Path, *, work_schedule: str | None = None) ->
     if any(c is None for c in task_calendar.values()):
         count = sum(1 for c in task_calendar.values() if c is None)
         findings.add("calendar", f"{count} task(s) have no work calendar; they take the case's default calendar")
+    return calendars, task_calendar
 
-    # ids
+
+def _task_ids(leaves: list, findings: Findings, path: Path) -> dict[int, str]:
+    """Each activity's id by entity id: its Identification, else its GlobalId (a finding); a
+    repeated Identification is refused, every repeat named."""
     ids: dict[int, str] = {}
     used: dict[str, object] = {}
     problems = []
@@ -514,12 +517,18 @@ def read_work_schedule(path: str | Path, *, work_schedule: str | None = None) ->
         ids[task.id()] = identification
     if problems:
         raise CaseError(problems)
-    leaf_ids = set(ids)
+    return ids
 
-    # links
+
+# -- the reader: links and lags --------------------------------------------------------------------
+def _read_links(model, ids: dict[int, str], seen: set[int], findings: Findings
+                ) -> tuple[list[dict], list[tuple], set[int]]:
+    """The links between activities, each with a lag of 0 for now: the rows, the sequences they
+    come from (``(rel, pred, succ)``, row by row, for the lags) and the entity ids of the tasks
+    that have a predecessor. Links the case cannot hold are findings, and left out."""
     link_rows, has_predecessor, link_seen = [], set(), set()
-    durations: dict[int, int] = {}
     raw_lags = []
+    leaf_ids = set(ids)
     for rel in model.by_type("IfcRelSequence"):
         pred, succ = rel.RelatingProcess, rel.RelatedProcess
         if pred is None or succ is None:
@@ -549,156 +558,245 @@ def read_work_schedule(path: str | Path, *, work_schedule: str | None = None) ->
         has_predecessor.add(succ.id())
         raw_lags.append((rel, pred, succ))
         link_rows.append({"pred": key[0], "succ": key[1], "type": link_type, "lag": 0})
+    return link_rows, raw_lags, has_predecessor
 
-    # activities
+
+def _lag_days(rel, predecessor_duration: int, calendar: CalendarRead | None, findings: Findings,
+              subject: str) -> float | None:
+    """Work days of a link's IfcLagTime (a ratio of the predecessor's duration, elapsed time or
+    work time); None when the link keeps its lag of 0 (no lag, or one that cannot be read)."""
+    lag_time = rel.TimeLag
+    if lag_time is None:
+        return None
+    value = lag_time.LagValue
+    if value is None:
+        return None
+    if value.is_a("IfcRatioMeasure") or value.is_a("IfcNormalisedRatioMeasure") or value.is_a("IfcPositiveRatioMeasure"):
+        lag = float(value.wrappedValue) * predecessor_duration
+        findings.add("lag", f"a lag of {float(value.wrappedValue):g} of the predecessor's duration is taken as "
+                            f"{lag:g} work days", rel, subject)
+        return lag
+    parsed = parse_duration(_text(value))
+    if parsed is None:
+        findings.add("lag", f"the lag '{_text(value)}' is not an ISO 8601 duration; it is taken as 0", rel, subject)
+        return None
+    if lag_time.DurationType == "ELAPSEDTIME":
+        elapsed = parsed.sign * (parsed.weeks * 7 + parsed.days)
+        lag = elapsed * (calendar.workdays_per_week if calendar is not None else 5) / 7
+        findings.add("lag", f"the lag '{_text(value)}' is elapsed time; it is taken as {lag:g} work days", rel,
+                     subject)
+        return lag
+    return _work_days(parsed, calendar, findings, rel, subject, "lag")
+
+
+def _with_lags(link_rows: list[dict], raw_lags: list[tuple], durations: dict[int, int],
+               task_calendar: dict[int, CalendarRead | None], findings: Findings) -> list[dict]:
+    """The link rows with their lags in whole work days of the successor's calendar, as text."""
+    rows = []
+    for row, (rel, pred, succ) in zip(link_rows, raw_lags):
+        subject = f"{row['pred']}>{row['succ']}"
+        lag = _lag_days(rel, durations.get(pred.id(), 0), task_calendar.get(succ.id()), findings, subject)
+        rows.append({**row, "lag": str(row["lag"] if lag is None else _whole(lag, findings, rel, subject, "lag"))})
+    return rows
+
+
+# -- the reader: activities ------------------------------------------------------------------------
+@dataclass
+class _TaskTimes:
+    """What a task's IfcTaskTime gives (``present`` False when it has none): dates, and its
+    duration and remaining time in work days (None when not given)."""
+
+    present: bool = False
+    duration_days: float | None = None
+    remaining: float | None = None
+    actual_start: dt.date | None = None
+    actual_finish: dt.date | None = None
+    status: dt.date | None = None
+    early_start: dt.date | None = None
+    early_finish: dt.date | None = None
+
+
+def _scheduled_duration(time, start: dt.date | None, calendar: CalendarRead | None, findings: Findings, task,
+                        identification: str) -> float | None:
+    """Work days of a task time's ScheduleDuration, elapsed time counted on the calendar from
+    the scheduled start; None when it is not given or not read."""
+    if not time.ScheduleDuration:
+        return None
+    parsed = parse_duration(time.ScheduleDuration)
+    if parsed is None:
+        findings.add("duration", f"the duration '{time.ScheduleDuration}' is not an ISO 8601 duration",
+                     task, identification)
+        return None
+    if time.DurationType == "ELAPSEDTIME":
+        elapsed = parsed.sign * (parsed.weeks * 7 + parsed.days + (parsed.hours + parsed.minutes / 60
+                                                                  + parsed.seconds / 3600) / 24)
+        if start is not None and calendar is not None:
+            duration_days = calendar.count(start, start + dt.timedelta(days=max(0, int(np.ceil(elapsed)) - 1)))
+        else:
+            duration_days = elapsed * (calendar.workdays_per_week if calendar else 5) / 7
+        findings.add("duration", f"the duration '{time.ScheduleDuration}' is elapsed time; it is taken "
+                                 f"as the {duration_days:g} work days it covers", task, identification)
+        return duration_days
+    if time.DurationType not in ("WORKTIME",):
+        findings.add("duration", "the duration type is not given; the duration is read as work time",
+                     task, identification)
+    return _work_days(parsed, calendar, findings, task, identification, "duration")
+
+
+def _task_times(task, identification: str, calendar: CalendarRead | None, findings: Findings) -> _TaskTimes:
+    """The dates and durations of a task's IfcTaskTime; without a duration, the work days
+    between its scheduled dates (a finding)."""
+    time = task.TaskTime
+    if time is None:
+        findings.add("duration", "the task has no task time (IfcTaskTime); its duration is taken as 0",
+                     task, identification)
+        return _TaskTimes()
+    start, finish = parse_date(time.ScheduleStart), parse_date(time.ScheduleFinish)
+    times = _TaskTimes(present=True, actual_start=parse_date(time.ActualStart),
+                       actual_finish=parse_date(time.ActualFinish), status=parse_date(time.StatusTime),
+                       early_start=parse_date(time.EarlyStart) or start,
+                       early_finish=parse_date(time.EarlyFinish) or finish)
+    times.duration_days = _scheduled_duration(time, start, calendar, findings, task, identification)
+    if times.duration_days is None and start is not None and finish is not None:
+        if calendar is not None:
+            times.duration_days = calendar.count(start, finish)
+        else:
+            times.duration_days = int(np.busday_count(start, finish + dt.timedelta(days=1)))
+        findings.add("duration", f"the duration is taken from the scheduled dates {start} to {finish}: "
+                                 f"{times.duration_days:g} work days", task, identification)
+    if time.RemainingTime:
+        parsed = parse_duration(time.RemainingTime)
+        if parsed is not None:
+            times.remaining = _work_days(parsed, calendar, findings, task, identification, "remaining time")
+    return times
+
+
+def _whole_duration(times: _TaskTimes, task, identification: str, findings: Findings) -> int:
+    """The activity's duration in whole work days: 0 when none is given, when it is negative
+    and for a milestone (each a finding)."""
+    duration_days = times.duration_days
+    if duration_days is None:
+        if times.present:
+            findings.add("duration", "the task has neither a duration nor scheduled dates; its duration is "
+                                     "taken as 0", task, identification)
+        duration_days = 0
+    duration = _whole(duration_days, findings, task, identification, "duration")
+    if duration < 0:
+        findings.add("duration", "a negative duration is taken as 0", task, identification)
+        duration = 0
+    if task.IsMilestone and duration > 0:
+        findings.add("milestone", f"a milestone with a duration of {duration} work days: taken as 0",
+                     task, identification)
+        duration = 0
+    return duration
+
+
+def _activity_kind(task, facts: dict, duration: int, has_predecessor: set[int], identification: str,
+                   findings: Findings) -> str:
+    """The activity's kind: our property set's, else from IsMilestone (a start milestone when
+    nothing precedes it); anything with a duration is a task."""
+    kind = _text(facts.get("Kind"))
+    if kind not in ACTIVITY_KINDS:
+        if kind:
+            findings.add("kind", f"the kind '{kind}' is not one of {', '.join(ACTIVITY_KINDS)}", task,
+                         identification)
+        kind = "task"
+        if task.IsMilestone:
+            kind = "finish_milestone" if task.id() in has_predecessor else "start_milestone"
+    if kind != "task" and duration > 0:
+        kind = "task"
+    return kind
+
+
+def _activity_constraint(task, facts: dict, identification: str, findings: Findings) -> tuple[str, dt.date | None]:
+    """The constraint of our property set and its date; an unknown one, or one without its
+    date, is left out (a finding)."""
+    constraint = _text(facts.get("Constraint"))
+    constraint_date = parse_date(facts.get("ConstraintDate"))
+    if constraint and constraint not in CONSTRAINTS:
+        findings.add("constraint", f"the constraint '{constraint}' is not one of {', '.join(CONSTRAINTS)}; "
+                                   "it is left out", task, identification)
+        constraint = ""
+    if constraint and constraint_date is None:
+        findings.add("constraint", "a constraint without its date is left out", task, identification)
+        constraint = ""
+    return constraint, constraint_date
+
+
+def _progress(times: _TaskTimes, kind: str, duration: int, task, identification: str,
+              findings: Findings) -> tuple[dt.date | None, str]:
+    """The actual start (an actual finish without one: the finish) and the remaining duration
+    as text: 0 when finished, the file's remaining time, else a started task's duration."""
+    actual_start, actual_finish, remaining = times.actual_start, times.actual_finish, times.remaining
+    remaining_text = ""
+    if actual_finish is not None:
+        remaining_text = "0"
+        if actual_start is None and kind == "task" and duration > 0:
+            findings.add("progress", "an actual finish without an actual start: the start is taken as the "
+                                     "finish", task, identification)
+            actual_start = actual_finish
+    elif remaining is not None:
+        remaining_text = str(max(0, _whole(remaining, findings, task, identification, "remaining time")))
+    if actual_start is not None and actual_finish is None and not remaining_text:
+        if duration > 0:
+            findings.add("progress", "a started task without a remaining time: its remaining duration is "
+                                     "taken as its duration", task, identification)
+            remaining_text = str(duration)
+    return actual_start, remaining_text
+
+
+def _activity_row(task, identification: str, calendar: CalendarRead | None, facts: dict, times: _TaskTimes,
+                  parent: dict[int, object], has_predecessor: set[int], findings: Findings) -> dict[str, str]:
+    """One row of activities.csv for a task, every cell text. The wbs is our property set's,
+    else the Identification of the summary task it is nested in."""
+    duration = _whole_duration(times, task, identification, findings)
+    kind = _activity_kind(task, facts, duration, has_predecessor, identification, findings)
+    constraint, constraint_date = _activity_constraint(task, facts, identification, findings)
+    wbs = _text(facts.get("WorkBreakdownCode"))
+    if not wbs and task.id() in parent:
+        wbs = _text(parent[task.id()].Identification)
+    actual_start, remaining_text = _progress(times, kind, duration, task, identification, findings)
+    actual_finish = times.actual_finish
+    return {
+        "id": identification, "name": _text(task.Name), "duration": str(duration),
+        "calendar": calendar.name if calendar is not None else "", "wbs": wbs, "kind": kind,
+        "constraint": constraint, "constraint_date": constraint_date.isoformat() if constraint else "",
+        "party": _text(facts.get("Party")), "risk": "",
+        "actual_start": actual_start.isoformat() if actual_start else "",
+        "actual_finish": actual_finish.isoformat() if actual_finish else "",
+        "remaining": remaining_text,
+    }
+
+
+def _read_activities(leaves: list, ids: dict[int, str], task_calendar: dict[int, CalendarRead | None],
+                     ours: dict[int, dict], parent: dict[int, object], has_predecessor: set[int],
+                     findings: Findings) -> tuple[list[dict], list[dict], set[dt.date], dict[int, int]]:
+    """The activities' rows, the file's own dates of each timed task (``id, start, finish``),
+    the distinct StatusTime dates, and each activity's duration by entity id (for ratio lags)."""
     rows, file_dates = [], []
     dated_statuses = set()
+    durations: dict[int, int] = {}
     for task in leaves:
         identification = ids[task.id()]
         calendar = task_calendar[task.id()]
-        time = task.TaskTime
-        facts = ours.get(task.id(), {})
-        duration_days: float | None = None
-        start = finish = actual_start = actual_finish = None
-        remaining = None
-        duration_type = None
-        if time is None:
-            findings.add("duration", "the task has no task time (IfcTaskTime); its duration is taken as 0",
-                         task, identification)
-        else:
-            duration_type = time.DurationType
-            start, finish = parse_date(time.ScheduleStart), parse_date(time.ScheduleFinish)
-            actual_start, actual_finish = parse_date(time.ActualStart), parse_date(time.ActualFinish)
-            status = parse_date(time.StatusTime)
-            if status is not None:
-                dated_statuses.add(status)
-            early_start = parse_date(time.EarlyStart) or start
-            early_finish = parse_date(time.EarlyFinish) or finish
-            file_dates.append({"id": identification, "start": early_start, "finish": early_finish})
-            if time.ScheduleDuration:
-                parsed = parse_duration(time.ScheduleDuration)
-                if parsed is None:
-                    findings.add("duration", f"the duration '{time.ScheduleDuration}' is not an ISO 8601 duration",
-                                 task, identification)
-                elif duration_type == "ELAPSEDTIME":
-                    elapsed = parsed.sign * (parsed.weeks * 7 + parsed.days + (parsed.hours + parsed.minutes / 60
-                                                                              + parsed.seconds / 3600) / 24)
-                    if start is not None and calendar is not None:
-                        duration_days = calendar.count(start, start + dt.timedelta(days=max(0, int(np.ceil(elapsed)) - 1)))
-                    else:
-                        duration_days = elapsed * (calendar.workdays_per_week if calendar else 5) / 7
-                    findings.add("duration", f"the duration '{time.ScheduleDuration}' is elapsed time; it is taken "
-                                             f"as the {duration_days:g} work days it covers", task, identification)
-                else:
-                    if duration_type not in ("WORKTIME",):
-                        findings.add("duration", "the duration type is not given; the duration is read as work time",
-                                     task, identification)
-                    duration_days = _work_days(parsed, calendar, findings, task, identification, "duration")
-            if duration_days is None and start is not None and finish is not None:
-                if calendar is not None:
-                    duration_days = calendar.count(start, finish)
-                else:
-                    duration_days = int(np.busday_count(start, finish + dt.timedelta(days=1)))
-                findings.add("duration", f"the duration is taken from the scheduled dates {start} to {finish}: "
-                                         f"{duration_days:g} work days", task, identification)
-            if time.RemainingTime:
-                parsed = parse_duration(time.RemainingTime)
-                if parsed is not None:
-                    remaining = _work_days(parsed, calendar, findings, task, identification, "remaining time")
-        if duration_days is None:
-            if time is not None:
-                findings.add("duration", "the task has neither a duration nor scheduled dates; its duration is "
-                                         "taken as 0", task, identification)
-            duration_days = 0
-        duration = _whole(duration_days, findings, task, identification, "duration")
-        if duration < 0:
-            findings.add("duration", "a negative duration is taken as 0", task, identification)
-            duration = 0
-        if task.IsMilestone and duration > 0:
-            findings.add("milestone", f"a milestone with a duration of {duration} work days: taken as 0",
-                         task, identification)
-            duration = 0
-        kind = _text(facts.get("Kind"))
-        if kind not in ACTIVITY_KINDS:
-            if kind:
-                findings.add("kind", f"the kind '{kind}' is not one of {', '.join(ACTIVITY_KINDS)}", task,
-                             identification)
-            kind = "task"
-            if task.IsMilestone:
-                kind = "finish_milestone" if task.id() in has_predecessor else "start_milestone"
-        if kind != "task" and duration > 0:
-            kind = "task"
-        constraint = _text(facts.get("Constraint"))
-        constraint_date = parse_date(facts.get("ConstraintDate"))
-        if constraint and constraint not in CONSTRAINTS:
-            findings.add("constraint", f"the constraint '{constraint}' is not one of {', '.join(CONSTRAINTS)}; "
-                                       "it is left out", task, identification)
-            constraint = ""
-        if constraint and constraint_date is None:
-            findings.add("constraint", "a constraint without its date is left out", task, identification)
-            constraint = ""
-        wbs = _text(facts.get("WorkBreakdownCode"))
-        if not wbs and task.id() in parent:
-            wbs = _text(parent[task.id()].Identification)
-        remaining_text = ""
-        if actual_finish is not None:
-            remaining_text = "0"
-            if actual_start is None and kind == "task" and duration > 0:
-                findings.add("progress", "an actual finish without an actual start: the start is taken as the "
-                                         "finish", task, identification)
-                actual_start = actual_finish
-        elif remaining is not None:
-            remaining_text = str(max(0, _whole(remaining, findings, task, identification, "remaining time")))
-        if actual_start is not None and actual_finish is None and not remaining_text:
-            if duration > 0:
-                findings.add("progress", "a started task without a remaining time: its remaining duration is "
-                                         "taken as its duration", task, identification)
-                remaining_text = str(duration)
-        rows.append({
-            "id": identification, "name": _text(task.Name), "duration": str(duration),
-            "calendar": calendar.name if calendar is not None else "", "wbs": wbs, "kind": kind,
-            "constraint": constraint, "constraint_date": constraint_date.isoformat() if constraint else "",
-            "party": _text(facts.get("Party")), "risk": "",
-            "actual_start": actual_start.isoformat() if actual_start else "",
-            "actual_finish": actual_finish.isoformat() if actual_finish else "",
-            "remaining": remaining_text,
-        })
-        durations[task.id()] = duration
+        times = _task_times(task, identification, calendar, findings)
+        if times.present:
+            if times.status is not None:
+                dated_statuses.add(times.status)
+            file_dates.append({"id": identification, "start": times.early_start, "finish": times.early_finish})
+        row = _activity_row(task, identification, calendar, ours.get(task.id(), {}), times, parent,
+                            has_predecessor, findings)
+        rows.append(row)
+        durations[task.id()] = int(row["duration"])
+    return rows, file_dates, dated_statuses, durations
 
-    # lags (need the predecessors' durations for ratio lags)
-    for row, (rel, pred, succ) in zip(link_rows, raw_lags):
-        lag_time = rel.TimeLag
-        if lag_time is None:
-            continue
-        value = lag_time.LagValue
-        subject = f"{row['pred']}>{row['succ']}"
-        calendar = task_calendar.get(succ.id())
-        if value is None:
-            continue
-        if value.is_a("IfcRatioMeasure") or value.is_a("IfcNormalisedRatioMeasure") or value.is_a("IfcPositiveRatioMeasure"):
-            lag = float(value.wrappedValue) * durations.get(pred.id(), 0)
-            findings.add("lag", f"a lag of {float(value.wrappedValue):g} of the predecessor's duration is taken as "
-                                f"{lag:g} work days", rel, subject)
-        else:
-            parsed = parse_duration(_text(value))
-            if parsed is None:
-                findings.add("lag", f"the lag '{_text(value)}' is not an ISO 8601 duration; it is taken as 0", rel, subject)
-                continue
-            if lag_time.DurationType == "ELAPSEDTIME":
-                elapsed = parsed.sign * (parsed.weeks * 7 + parsed.days)
-                lag = elapsed * (calendar.workdays_per_week if calendar is not None else 5) / 7
-                findings.add("lag", f"the lag '{_text(value)}' is elapsed time; it is taken as {lag:g} work days", rel,
-                             subject)
-            else:
-                lag = _work_days(parsed, calendar, findings, rel, subject, "lag")
-                if lag is None:
-                    continue
-        row["lag"] = _whole(lag, findings, rel, subject, "lag")
-    for row in link_rows:
-        row["lag"] = str(row["lag"])
 
-    schedule_facts = {k: (v.isoformat() if isinstance(v, dt.date) else v)
-                      for k, v in ours.get(schedule.id(), {}).items()}
+# -- the reader ------------------------------------------------------------------------------------
+def _work_schedule_read(schedule, schedule_facts: dict, calendars: dict[str, CalendarRead], rows: list[dict],
+                        link_rows: list[dict], file_dates: list[dict], dated_statuses: set[dt.date],
+                        findings: Findings) -> WorkScheduleRead:
+    """The tables of the read: the data date is our property set's, else the tasks' StatusTime
+    when they all give the same one."""
     data_date = parse_date(schedule_facts.get("DataDate"))
     if data_date is None and len(dated_statuses) == 1:
         data_date = next(iter(dated_statuses))
@@ -711,6 +809,48 @@ def read_work_schedule(path: str | Path, *, work_schedule: str | None = None) ->
                             dates_frame, findings.frame(), parse_date(schedule.StartTime))
 
 
+def read_work_schedule(path: str | Path, *, work_schedule: str | None = None) -> WorkScheduleRead:
+    """Read one IFC work schedule into case-format tables.
+
+    Parameters
+    ----------
+    path:
+        The .ifc file.
+    work_schedule:
+        Name, Identification or GlobalId of the work schedule when the file holds several.
+
+    Returns
+    -------
+    WorkScheduleRead
+
+    Raises
+    ------
+    CaseError
+        When the file is not IFC, holds no (or no such) work schedule, a task's
+        Identification repeats, or the schedule has no task.
+    IfcExtraMissing
+        When ifcopenshell is not installed.
+    """
+    path = Path(path)
+    model, schedule = _open_schedule(path, work_schedule)
+    findings = Findings()
+    controls = _assigned_controls(model)
+    children, parent = _nested(model)
+    ours = _psets_named(model, SCHEDULING_PSET)
+    tasks, seen = _schedule_tasks(schedule, children, path)
+    leaves = _leaf_tasks(tasks, children, findings)
+    calendars, task_calendar = _read_calendars(leaves, schedule, controls, parent, findings)
+    ids = _task_ids(leaves, findings, path)
+    link_rows, raw_lags, has_predecessor = _read_links(model, ids, seen, findings)
+    rows, file_dates, dated_statuses, durations = _read_activities(leaves, ids, task_calendar, ours, parent,
+                                                                    has_predecessor, findings)
+    link_rows = _with_lags(link_rows, raw_lags, durations, task_calendar, findings)
+    schedule_facts = {k: (v.isoformat() if isinstance(v, dt.date) else v)
+                      for k, v in ours.get(schedule.id(), {}).items()}
+    return _work_schedule_read(schedule, schedule_facts, calendars, rows, link_rows, file_dates, dated_statuses,
+                               findings)
+
+
 # -- into the case -------------------------------------------------------------------------------------
 def _case_calendar(case, name: str) -> CalendarRead | None:
     table = case.calendars
@@ -719,13 +859,9 @@ def _case_calendar(case, name: str) -> CalendarRead | None:
         return None
     from ..calendars import parse_workdays
 
-    read = CalendarRead(name=name, weekmask=parse_workdays(found["workdays"].iloc[0]))
-    exceptions = case.calendar_exceptions
-    own = exceptions[exceptions["calendar"] == name]
-    for day, working, reason in zip(own["date"], own["working"], own["reason"]):
-        date = pd.Timestamp(day).date()
-        (read.extra_workdays if bool(working) else read.holidays)[date] = str(reason)
-    return read
+    holidays, extra_workdays = case_calendar_days(case, name)
+    return CalendarRead(name=name, weekmask=parse_workdays(found["workdays"].iloc[0]), holidays=holidays,
+                        extra_workdays=extra_workdays)
 
 
 def _place_calendars(case, calendars: dict[str, CalendarRead], findings: Findings
@@ -775,6 +911,133 @@ def _toml_text(value: str) -> str:
 
 
 _FOLDER_NAME = re.compile(r"^[^./\\][^/\\]*$")
+
+
+def _check_options(root: Path, folder: str, kind: str | None, replace: bool) -> tuple[Path, str]:
+    """The snapshot folder to write and the snapshot's kind. Refused: a folder that is not a
+    plain name, one that exists (unless ``replace``), a kind other than baseline or update."""
+    if not _FOLDER_NAME.match(folder or ""):
+        raise CaseError(Problem(file="snapshots/", message=f"'{folder}' is not a folder name",
+                                fix="give --snapshot a plain name such as 2025-06-30"))
+    target = root / "snapshots" / folder
+    if target.exists() and not replace:
+        raise CaseError(Problem(file=f"snapshots/{folder}", message="the snapshot folder exists",
+                                fix="choose another --snapshot, or give --replace to replace it"))
+    kind = kind or ("baseline" if folder == "baseline" else "update")
+    if kind not in ("baseline", "update"):
+        raise CaseError(Problem(file=f"snapshots/{folder}", message=f"the kind '{kind}' is not baseline or update",
+                                fix="give --kind baseline or --kind update"))
+    return target, kind
+
+
+def _resolve_data_date(data_date: dt.date | str | None, read: WorkScheduleRead, kind: str,
+                       model_path: Path) -> dt.date:
+    """The data date given (a date or ``YYYY-MM-DD``), else the file's, else for a baseline the
+    work schedule's StartTime; refused when there is none."""
+    if isinstance(data_date, str):
+        try:
+            data_date = dt.date.fromisoformat(data_date)
+        except ValueError:
+            raise CaseError(Problem(file=str(model_path), message=f"the data date '{data_date}' is not a date",
+                                    fix="write it as YYYY-MM-DD")) from None
+    if data_date is None:
+        data_date = read.data_date
+    if data_date is None and kind == "baseline":
+        data_date = read.start_time
+    if data_date is None:
+        raise CaseError(Problem(file=str(model_path), message="the file does not say the data date of the programme",
+                                fix="give it with --data-date YYYY-MM-DD"))
+    return data_date
+
+
+def _check_other_snapshots(case, folder: str, data_date: dt.date, label: str) -> None:
+    """Refused when another snapshot of the case has the same data date, or the label as its
+    label or folder."""
+    for snap in case.snapshots:
+        if snap.folder == folder:
+            continue
+        if snap.data_date == data_date:
+            raise CaseError(Problem(file=f"snapshots/{folder}", message=f"the data date {data_date} is also the data "
+                                                                       f"date of '{snap.folder}'",
+                                    fix="give another --data-date, or --replace that snapshot"))
+        if label in (snap.label, snap.folder):
+            raise CaseError(Problem(file=f"snapshots/{folder}", message=f"the label '{label}' is also used by "
+                                                                       f"'{snap.folder}'",
+                                    fix="give another --label"))
+
+
+def _check_actual_dates(activities: pd.DataFrame, data_date: dt.date, model_path: Path) -> None:
+    """Refused when a task's actual start or finish is on or after the data date (the first 50
+    such dates named)."""
+    problems = []
+    for identification, start, finish in zip(activities["id"], activities["actual_start"],
+                                             activities["actual_finish"]):
+        for what, value in (("actual start", start), ("actual finish", finish)):
+            if value and dt.date.fromisoformat(value) >= data_date:
+                problems.append(Problem(file=str(model_path), message=f"the task '{identification}' has an {what} "
+                                                                      f"{value} on or after the data date {data_date}",
+                                        fix="give the data date with --data-date, or correct the task's task time"))
+    if problems:
+        raise CaseError(problems[:50])
+
+
+def _calendar_files(root: Path, added: list[CalendarRead]) -> dict[str, bytes]:
+    """calendars.csv, and calendar_exceptions.csv when they have exceptions, with the calendars
+    ``added`` appended (no file when no calendar is added)."""
+    files: dict[str, bytes] = {}
+    if not added:
+        return files
+    files["calendars.csv"] = _append_rows(root / "calendars.csv", ["calendar", "workdays"],
+                                          [{"calendar": c.name, "workdays": c.workdays} for c in added])
+    rows = []
+    for calendar in added:
+        for day, reason in sorted(calendar.holidays.items()):
+            rows.append({"calendar": calendar.name, "date": day.isoformat(), "working": "no", "reason": reason})
+        for day, reason in sorted(calendar.extra_workdays.items()):
+            rows.append({"calendar": calendar.name, "date": day.isoformat(), "working": "yes", "reason": reason})
+    if rows:
+        files["calendar_exceptions.csv"] = _append_rows(root / "calendar_exceptions.csv",
+                                                        ["calendar", "date", "working", "reason"], rows)
+    return files
+
+
+def _snapshot_files(label: str, data_date: dt.date, kind: str, activities: pd.DataFrame,
+                    links: pd.DataFrame) -> dict[str, bytes]:
+    """The files of the snapshot folder, by name: snapshot.toml, activities.csv and links.csv."""
+    snapshot_toml = (f"label = {_toml_text(label)}\ndata_date = {data_date.isoformat()}\n"
+                     f"kind = {_toml_text(kind)}\n").encode("utf-8")
+    return {
+        "snapshot.toml": snapshot_toml,
+        "activities.csv": csv_bytes(activities),
+        "links.csv": csv_bytes(links),
+    }
+
+
+def _compare_dates(file_dates: pd.DataFrame, result, findings: Findings) -> None:
+    """A finding for each activity (the first 50, then their count) whose dates in the file
+    differ from the early dates of the toolkit's critical path method (``result``)."""
+    compared = file_dates.dropna(subset=["start", "finish"], how="all").set_index("id")
+    if not len(compared):
+        return
+    ours = result.activities.set_index("id")[["early_start", "early_finish"]]
+    joined = compared.join(ours, how="inner")
+    differ = joined[(joined["start"] != joined["early_start"]) | (joined["finish"] != joined["early_finish"])]
+    for identification, row in differ.head(50).iterrows():
+        findings.add("dates_differ", f"the file schedules it {_day(row['start'])} to {_day(row['finish'])}; the "
+                                     f"toolkit's critical path method gives {_day(row['early_start'])} to "
+                                     f"{_day(row['early_finish'])}", subject=str(identification))
+    if len(differ) > 50:
+        findings.add("dates_differ", f"{len(differ) - 50} more activities whose dates differ")
+
+
+def _write_import(root: Path, target: Path, files: dict[str, bytes], snapshot_files: dict[str, bytes]) -> list[Path]:
+    """Write the case's calendar files, then the snapshot folder (built under a temporary name
+    and moved into place whole); returns the paths written."""
+    written = [write_bytes(root / name, content) for name, content in files.items()]
+    with replace_directory(target) as building:
+        for name, content in snapshot_files.items():
+            (building / name).write_bytes(content)
+    return written + [target / name for name in snapshot_files]
 
 
 def import_work_schedule(
@@ -836,100 +1099,26 @@ def import_work_schedule(
     case = load_case(Path(case_path))
     root = case_folder(case)
     model_path = Path(model_path)
-    if not _FOLDER_NAME.match(folder or ""):
-        raise CaseError(Problem(file="snapshots/", message=f"'{folder}' is not a folder name",
-                                fix="give --snapshot a plain name such as 2025-06-30"))
-    target = root / "snapshots" / folder
-    if target.exists() and not replace:
-        raise CaseError(Problem(file=f"snapshots/{folder}", message="the snapshot folder exists",
-                                fix="choose another --snapshot, or give --replace to replace it"))
-    kind = kind or ("baseline" if folder == "baseline" else "update")
-    if kind not in ("baseline", "update"):
-        raise CaseError(Problem(file=f"snapshots/{folder}", message=f"the kind '{kind}' is not baseline or update",
-                                fix="give --kind baseline or --kind update"))
+    target, kind = _check_options(root, folder, kind, replace)
     read = read_work_schedule(model_path, work_schedule=work_schedule)
     findings = Findings()
     findings.rows.extend(read.findings.to_dict("records"))
-    if isinstance(data_date, str):
-        try:
-            data_date = dt.date.fromisoformat(data_date)
-        except ValueError:
-            raise CaseError(Problem(file=str(model_path), message=f"the data date '{data_date}' is not a date",
-                                    fix="write it as YYYY-MM-DD")) from None
-    if data_date is None:
-        data_date = read.data_date
-    if data_date is None and kind == "baseline":
-        data_date = read.start_time
-    if data_date is None:
-        raise CaseError(Problem(file=str(model_path), message="the file does not say the data date of the programme",
-                                fix="give it with --data-date YYYY-MM-DD"))
+    data_date = _resolve_data_date(data_date, read, kind, model_path)
     label = label or str(read.facts.get("SnapshotLabel") or "") or folder
-    for snap in case.snapshots:
-        if snap.folder == folder:
-            continue
-        if snap.data_date == data_date:
-            raise CaseError(Problem(file=f"snapshots/{folder}", message=f"the data date {data_date} is also the data "
-                                                                       f"date of '{snap.folder}'",
-                                    fix="give another --data-date, or --replace that snapshot"))
-        if label in (snap.label, snap.folder):
-            raise CaseError(Problem(file=f"snapshots/{folder}", message=f"the label '{label}' is also used by "
-                                                                       f"'{snap.folder}'",
-                                    fix="give another --label"))
+    _check_other_snapshots(case, folder, data_date, label)
     activities = read.activities.copy()
-    problems = []
-    for row, (identification, start, finish) in enumerate(zip(activities["id"], activities["actual_start"],
-                                                              activities["actual_finish"])):
-        for what, value in (("actual start", start), ("actual finish", finish)):
-            if value and dt.date.fromisoformat(value) >= data_date:
-                problems.append(Problem(file=str(model_path), message=f"the task '{identification}' has an {what} "
-                                                                      f"{value} on or after the data date {data_date}",
-                                        fix="give the data date with --data-date, or correct the task's task time"))
-    if problems:
-        raise CaseError(problems[:50])
+    _check_actual_dates(activities, data_date, model_path)
     names, added = _place_calendars(case, read.calendars, findings)
     activities["calendar"] = activities["calendar"].map(lambda c: names.get(c, c) if c else "")
-    files: dict[str, bytes] = {}
-    if added:
-        files["calendars.csv"] = _append_rows(root / "calendars.csv", ["calendar", "workdays"],
-                                              [{"calendar": c.name, "workdays": c.workdays} for c in added])
-        rows = []
-        for calendar in added:
-            for day, reason in sorted(calendar.holidays.items()):
-                rows.append({"calendar": calendar.name, "date": day.isoformat(), "working": "no", "reason": reason})
-            for day, reason in sorted(calendar.extra_workdays.items()):
-                rows.append({"calendar": calendar.name, "date": day.isoformat(), "working": "yes", "reason": reason})
-        if rows:
-            files["calendar_exceptions.csv"] = _append_rows(root / "calendar_exceptions.csv",
-                                                            ["calendar", "date", "working", "reason"], rows)
-    snapshot_toml = (f"label = {_toml_text(label)}\ndata_date = {data_date.isoformat()}\n"
-                     f"kind = {_toml_text(kind)}\n").encode("utf-8")
+    files = _calendar_files(root, added)
+    snapshot_files = _snapshot_files(label, data_date, kind, activities, read.links)
     base = f"snapshots/{folder}"
-    snapshot_files = {
-        "snapshot.toml": snapshot_toml,
-        "activities.csv": csv_bytes(activities),
-        "links.csv": csv_bytes(read.links),
-    }
     copies = ["baseline"] if folder != "baseline" else []
     checked = validate_in_copy(root, {**files, **{f"{base}/{k}": v for k, v in snapshot_files.items()}}, copies)
-    result = schedule(checked, folder)
-    compared = read.file_dates.dropna(subset=["start", "finish"], how="all").set_index("id")
-    if len(compared):
-        ours = result.activities.set_index("id")[["early_start", "early_finish"]]
-        joined = compared.join(ours, how="inner")
-        differ = joined[(joined["start"] != joined["early_start"]) | (joined["finish"] != joined["early_finish"])]
-        for identification, row in differ.head(50).iterrows():
-            findings.add("dates_differ", f"the file schedules it {_day(row['start'])} to {_day(row['finish'])}; the "
-                                         f"toolkit's critical path method gives {_day(row['early_start'])} to "
-                                         f"{_day(row['early_finish'])}", subject=str(identification))
-        if len(differ) > 50:
-            findings.add("dates_differ", f"{len(differ) - 50} more activities whose dates differ")
+    _compare_dates(read.file_dates, schedule(checked, folder), findings)
     findings_frame = findings.frame()
     snapshot_files[FINDINGS_FILE] = csv_bytes(findings_frame)
-    written = [write_bytes(root / name, content) for name, content in files.items()]
-    with replace_directory(target) as building:
-        for name, content in snapshot_files.items():
-            (building / name).write_bytes(content)
-    written += [target / name for name in snapshot_files]
+    written = _write_import(root, target, files, snapshot_files)
     return ScheduleImport(read, target, data_date, label, kind, tuple(c.name for c in added), findings_frame,
                           tuple(written))
 
