@@ -24,7 +24,7 @@ import numpy as np
 import pandas as pd
 
 __all__ = ["EPOCH", "NO_DAY", "to_days", "to_dates", "table_dates", "iso_dates", "day_to_date", "iso_date", "json_int",
-           "json_cell", "json_records", "text_cell", "split_ids", "join_ids", "LIST_SEPARATOR"]
+           "json_cell", "json_records", "list_cells", "text_cell", "split_ids", "join_ids", "LIST_SEPARATOR"]
 
 #: Day number 0.
 EPOCH = np.datetime64("1970-01-01", "D")
@@ -282,6 +282,34 @@ def json_records(frame: pd.DataFrame) -> list[dict[str, Any]]:
     """
     columns = [str(c) for c in frame.columns]
     return [dict(zip(columns, map(json_cell, row))) for row in frame.itertuples(index=False, name=None)]
+
+
+def list_cells(frame: pd.DataFrame) -> pd.DataFrame:
+    """A result table for a CSV file: every cell that holds a list of ids written as one
+    cell (:func:`join_ids`), so that no cell shows Python's ``['A', 'B']``.
+
+    Parameters
+    ----------
+    frame : pandas.DataFrame
+
+    Returns
+    -------
+    pandas.DataFrame
+        A copy where some column held lists; else ``frame`` itself.
+
+    Examples
+    --------
+    >>> list_cells(pd.DataFrame({"events": [["E1", "E2"], []], "days": [3, 0]}))["events"].tolist()
+    ['E1;E2', '']
+    """
+    listed = [c for c in frame.columns if frame[c].dtype == object
+              and frame[c].map(lambda v: isinstance(v, (list, tuple, np.ndarray))).any()]
+    if not listed:
+        return frame
+    out = frame.copy()
+    for column in listed:
+        out[column] = [join_ids(v) if isinstance(v, (list, tuple, np.ndarray)) else v for v in out[column]]
+    return out
 
 
 def text_cell(value: Any) -> str:

@@ -19,6 +19,7 @@ import pandas as pd
 from .calendars import CalendarSet, build_calendars
 from .case import load_case, summarise
 from .cpm import prepare
+from .convert import list_cells
 from .output import output_folder, write_csv
 
 __all__ = ["run_demo"]
@@ -106,11 +107,7 @@ def _retrospective(case, folder: Path, out_dir: Path, echo) -> list[Path]:
         result = windows.analyse(case)
         (folder / "windows.json").write_text(json.dumps(result.to_json(), indent=2), encoding="utf-8")
         write_csv(folder / "windows.csv", result.table, date_format="%Y-%m-%d")
-        charges = result.charges
-        for column in ("concurrent_with", "events", "parties"):
-            if column in charges:
-                charges[column] = charges[column].map(lambda v: "; ".join(v) if isinstance(v, list) else v)
-        write_csv(folder / "windows_charges.csv", charges)
+        write_csv(folder / "windows_charges.csv", list_cells(result.charges))
         written += [out_dir / "windows.json", out_dir / "windows.csv", out_dir / "windows_charges.csv"]
         echo(f"Windows analysis: {len(result.windows)} windows, total movement {result.total_movement_days} days")
     if case.asbuilt_snapshot is not None:
@@ -131,7 +128,7 @@ def _modelled(case, folder: Path, out_dir: Path, echo) -> list[Path]:
     if len(case.events):
         impact = impacted.analyse(case)
         (folder / "impacted.json").write_text(json.dumps(impact.to_json(), indent=2), encoding="utf-8")
-        write_csv(folder / "impacted_events.csv", impact.events, date_format="%Y-%m-%d")
+        write_csv(folder / "impacted_events.csv", list_cells(impact.events), date_format="%Y-%m-%d")
         assessed = tia.analyse(case)
         (folder / "tia.json").write_text(json.dumps(assessed.to_json(), indent=2), encoding="utf-8")
         written += [out_dir / "impacted.json", out_dir / "impacted_events.csv", out_dir / "tia.json"]

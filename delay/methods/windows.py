@@ -79,6 +79,7 @@ from ..errors import CaseError, Problem, ReconciliationError
 from ..events import CONCURRENT, activity_risk, attributions, completion_activity, events_naming, match_events
 from ..ledger import CHARGE_COLUMNS as TRACE_COLUMNS
 from ..ledger import ledger_number, logic_late_finish, split_days, trace_charges
+from ..convert import join_ids
 from ..memo import remembered
 from ..model import PARTIES, Case, Snapshot
 
@@ -244,13 +245,15 @@ class WindowsResult:
             if len(w.revisions):
                 frames.append(pd.DataFrame({
                     "window": w.number, "start": w.start, "end": w.end, "source": w.revisions["kind"],
-                    "activity": [", ".join(a) for a in w.revisions["activities"]],
+                    "activity": [join_ids(a) for a in w.revisions["activities"]],
                     "work_days": w.revisions["work_days"], "days": w.revisions["days"], "counted": True,
                     "events": w.revisions["events"], "party": w.revisions["party"], "basis": w.revisions["basis"],
                 }))
         if not frames:
             return pd.DataFrame(columns=["window", "start", "end", "source", *CHARGE_COLUMNS])
-        return pd.concat(frames, ignore_index=True)
+        charges = pd.concat(frames, ignore_index=True)
+        charges["level"] = charges["level"].astype("Int64")  # blank for a revision, which has no level
+        return charges
 
     def to_json(self) -> dict:
         return {
