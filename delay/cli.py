@@ -159,7 +159,7 @@ def schedule(case, snapshot, output_format, progress, float_to, lag_calendar):
     loaded = _load(case)
     result = run_schedule(loaded, snapshot, _schedule_settings(loaded, progress, float_to, lag_calendar))
     if output_format == "json":
-        click.echo(json.dumps(result.to_json(), indent=2))
+        click.echo(result.to_json_text(indent=2))  # json.dumps(result.to_json()) to the byte, from whole columns
         return
     frame = _schedule_rows(result)
     if output_format == "csv":

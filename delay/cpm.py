@@ -34,6 +34,7 @@ from __future__ import annotations
 
 import dataclasses
 import datetime as dt
+import json
 import weakref
 from dataclasses import dataclass, field
 from functools import cached_property
@@ -47,7 +48,7 @@ from .calendars import CalendarSet, build_calendars, to_days
 from .errors import CaseError, Problem
 from .model import ACTIVITY_KINDS, CONSTRAINTS, Case, ScheduleSettings, Snapshot
 from .network import LINK_CODES, Network, build_network, compile_network
-from .output import json_date, json_int
+from .output import iso_dates, json_bool_cells, json_date_cells, json_int_cells, json_records, json_text_cells
 
 __all__ = [
     "schedule",
@@ -759,29 +760,58 @@ class ScheduleResult:
             seen.add(nxt)
         return [str(self.ids[i]) for i in reversed(chain)]
 
+    def _json_cells(self, text: bool) -> dict[str, object]:
+        """The columns of the JSON form, whole: as JSON text (``text``) or as values."""
+        complete = self.status == COMPLETE
+        days = self._days
+        names = ("early_start", "early_finish", "late_start", "late_finish")
+        if text:
+            cells: dict[str, object] = {"id": json_text_cells(self.ids.tolist())}
+            cells.update((name, json_date_cells(days[name])) for name in names)
+            cells["total_float"] = json_int_cells(self.total_float, complete)
+            cells["free_float"] = json_int_cells(self.free_float, complete)
+            cells["critical"] = json_bool_cells(self.critical)
+            return cells
+        cells = {"id": self.ids.tolist()}
+        cells.update((name, iso_dates(days[name]).tolist()) for name in names)
+        for name, values in (("total_float", self.total_float), ("free_float", self.free_float)):
+            column = np.asarray(values, dtype=object)
+            column[complete] = None
+            cells[name] = column.tolist()
+        cells["critical"] = self.critical.tolist()
+        return cells
+
+    def _json_head(self) -> dict:
+        return {"snapshot": self.snapshot, "data_date": self.data_date.isoformat(),
+                "completion": self.completion.isoformat()}
+
     def to_json(self) -> dict:
-        """The JSON form of the ``delay schedule`` command."""
-        frame = self.activities
-        rows = []
-        for record in frame.itertuples(index=False):
-            rows.append(
-                {
-                    "id": record.id,
-                    "early_start": json_date(record.early_start),
-                    "early_finish": json_date(record.early_finish),
-                    "late_start": json_date(record.late_start),
-                    "late_finish": json_date(record.late_finish),
-                    "total_float": json_int(record.total_float),
-                    "free_float": json_int(record.free_float),
-                    "critical": bool(record.critical),
-                }
-            )
-        return {
-            "snapshot": self.snapshot,
-            "data_date": self.data_date.isoformat(),
-            "completion": self.completion.isoformat(),
-            "activities": rows,
-        }
+        """The JSON form of the ``delay schedule`` command: ``snapshot``, ``data_date``,
+        ``completion`` and per activity (network order) its ``id``, early and late start and
+        finish (ISO dates; ``None`` where there is none), ``total_float`` and
+        ``free_float`` (work days; ``None`` for a complete activity) and ``critical``."""
+        cells = self._json_cells(text=False)
+        keys = list(cells)
+        rows = [dict(zip(keys, values)) for values in zip(*cells.values())]
+        return {**self._json_head(), "activities": rows}
+
+    def to_json_text(self, indent: int = 2) -> str:
+        """``json.dumps(self.to_json(), indent=indent)``, the same text to the byte, made
+        from whole columns (each distinct date formatted once) instead of per-activity
+        objects: what ``delay schedule --format json`` prints.
+
+        Parameters
+        ----------
+        indent : int
+            Spaces per level.
+
+        Returns
+        -------
+        str
+        """
+        head = json.dumps(self._json_head(), indent=indent)
+        rows = json_records(self._json_cells(text=True), indent=indent, level=1)
+        return head[:-2] + ",\n" + " " * indent + '"activities": ' + rows + "\n}"
 
 
 def day_to_date(day: int) -> dt.date:
