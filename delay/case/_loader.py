@@ -560,9 +560,13 @@ class _Loader:
         kind, type_codes = columns.coded_choices(p, table, "type", LINK_TYPES, default="FS", upper=True,
                                                  what="link type")
         lag = columns.integers(p, table, "lag", unit="work days (negative for a lead)", default=0)
+        ends = None  # the pair of activity numbers, where every link's ends are known
+        if ids is not None and not ((pred_at < 0) | (succ_at < 0))[~(no_pred | no_succ)].any():
+            ends = pred_at.astype(np.int64) * max(len(nodes), 1) + succ_at
         columns.duplicates(p, table, ["pred", "succ"], "pred",
                            lambda i: f"the link {pred.iat[i]}>{succ.iat[i]}",
-                           "keep one link from a predecessor to a successor", skip=no_pred | no_succ)
+                           "keep one link from a predecessor to a successor", skip=no_pred | no_succ,
+                           codes=ends)
         sound = ids is not None and not bad.any() and len(nodes) == len(ids) and bool((type_codes >= 0).all())
         network = None
         if sound:
@@ -895,7 +899,7 @@ class _Loader:
         columns.duplicates(p, table, ["id"], "id", lambda i: f"the fragnet activity id '{ids.iat[i]}'",
                            "give every fragnet activity a different id", skip=no_id)
         if self.all_activity_ids is not None:
-            clash = ~no_id & ids.isin(self.all_activity_ids).to_numpy()
+            clash = ~no_id & columns.member(ids, self.all_activity_ids)
             p.flag(table, clash, "id", "the id '{value}' is already an activity of the programme",
                    "give the inserted activity an id of its own")
         duration = columns.integers(p, table, "duration", unit="work days", minimum=0,
@@ -929,7 +933,7 @@ class _Loader:
             for column, role in (("pred", "predecessor"), ("succ", "successor")):
                 own = [activity in self.fragnet_ids.get(event, ()) for event, activity
                        in zip(events.tolist(), frame[column].tolist())]
-                known = np.asarray(own, dtype=bool) | frame[column].isin(programme).to_numpy()
+                known = np.asarray(own, dtype=bool) | columns.member(frame[column], programme)
                 p.flag(table, ~known & (frame[column] != "").to_numpy(), column,
                        f"the {role} '{{value}}' is neither a fragnet activity of this event "
                        "nor an activity of the programme",
