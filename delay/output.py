@@ -865,6 +865,7 @@ def write_output_file(target: str | Path, write: Callable[[str], object], *, cas
 
 # -- CSV outputs ------------------------------------------------------------------------------
 _FORMULA_START = frozenset("=+-@\t\r")
+_FORMULA_CELL = re.compile(r"\n[=+\-@\t\r]")  # a cell (after the first) that may start a formula
 _PLAIN_NUMBER = re.compile(r"[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?\Z")
 
 
@@ -909,6 +910,12 @@ def csv_safe(frame: pd.DataFrame) -> pd.DataFrame:
         if not (pd.api.types.is_object_dtype(series.dtype) or pd.api.types.is_string_dtype(series.dtype)):
             continue
         column = series.to_numpy(dtype=object, copy=True)
+        try:  # one search over the joined column: most columns have no cell to neutralise
+            joined = "\n".join(column.tolist())
+        except TypeError:  # a cell that is not text (a blank): look cell by cell
+            joined = None
+        if joined is not None and joined[:1] not in _FORMULA_START and not _FORMULA_CELL.search(joined):
+            continue
         starts = np.fromiter((isinstance(v, str) and v[:1] in _FORMULA_START for v in column), dtype=bool,
                              count=len(column))
         if starts.any():
