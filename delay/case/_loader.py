@@ -68,6 +68,9 @@ class _SnapshotFacts:
     #: Codes found while checking the tables, handed to the Snapshot (``Snapshot.derived``)
     #: so that the engine need not look the same text up again.
     derived: dict = field(default_factory=dict)
+    #: The activity ids as an index (first occurrences), its hash table built once for the
+    #: links' look-ups and the registers' (``None`` until the activities are checked).
+    id_index: pd.Index | None = None
 
 
 def load(path: Path, *, keep_uncorrected: bool = False) -> Loaded:
@@ -417,10 +420,12 @@ class _Loader:
         activities = facts.source.activities
         if columns.require_columns(self.problems, activities):
             facts.activities = self.check_activities(activities, facts.data_date, facts.derived)
+        if facts.activities is not None:
+            facts.id_index = pd.Index(facts.activities["id"].drop_duplicates())
         links = facts.source.links
         if columns.require_columns(self.problems, links):
             ids = facts.activities["id"] if facts.activities is not None else None
-            facts.links = self.check_links(links, ids, facts.derived)
+            facts.links = self.check_links(links, ids, facts.derived, facts.id_index)
 
     def check_activities(self, table: RawTable, data_date: dt.date | None,
                          derived: dict | None = None) -> pd.DataFrame:
@@ -531,7 +536,8 @@ class _Loader:
         remaining = remaining.where(~complete, 0.0)
         return start, finish, remaining
 
-    def check_links(self, table: RawTable, ids: pd.Series | None, derived: dict | None = None) -> pd.DataFrame:
+    def check_links(self, table: RawTable, ids: pd.Series | None, derived: dict | None = None,
+                    nodes: pd.Index | None = None) -> pd.DataFrame:
         """Type and check one snapshot's links; codes found go into ``derived``
         (``type_codes`` by LINK_TYPES and, when every link is sound, ``link_numbers``: the
         activity rows of each link's ends, and, when there is no loop, ``network``: the
@@ -546,7 +552,8 @@ class _Loader:
         bad = no_pred | no_succ
         if ids is not None:
             fix = "add the activity to this snapshot's activities or correct the id"
-            nodes = pd.Index(ids.drop_duplicates())
+            if nodes is None:
+                nodes = pd.Index(ids.drop_duplicates())
             unknown, pred_at = columns.coded_references(
                 p, table, "pred", nodes, "the predecessor '{value}' is not an activity of this snapshot", fix)
             bad |= unknown
@@ -603,7 +610,10 @@ class _Loader:
 
     def collect_activity_ids(self) -> None:
         frames = [f.activities["id"] for f in self.snapshots if f.activities is not None]
-        if frames:
+        indexes = [f.id_index for f in self.snapshots if f.id_index is not None]
+        if len(frames) == 1 and len(indexes) == 1:  # one programme: its index, hash table and all
+            self.all_activity_ids = indexes[0]
+        elif frames:
             self.all_activity_ids = pd.Index(pd.concat(frames, ignore_index=True).unique())
         elif not self.snapshots:
             self.all_activity_ids = pd.Index([], dtype="str")
