@@ -81,7 +81,7 @@ def longest_path_length(activities, links) -> int:
     return nx.dag_longest_path_length(graph, weight="weight")
 
 
-@settings(max_examples=25, deadline=None)
+@settings(max_examples=15, deadline=None)
 @given(networks(link_types=("FS",), lags=(0, 3), calendars=("5d",)))
 def test_both_ways_give_the_networkx_completion(network):
     activities, links = network
@@ -93,7 +93,7 @@ def test_both_ways_give_the_networkx_completion(network):
     assert plain[0].completion == compiled[0].completion == expected
 
 
-@settings(max_examples=40, deadline=None)
+@settings(max_examples=30, deadline=None)
 @given(networks())
 def test_plain_and_compiled_loops_give_the_same_schedule(network):
     activities, links = network
@@ -105,7 +105,7 @@ def test_plain_and_compiled_loops_give_the_same_schedule(network):
     np.testing.assert_array_equal(plain[5], compiled[5])
 
 
-@settings(max_examples=25, deadline=None)
+@settings(max_examples=15, deadline=None)
 @given(networks(link_types=("FS",), lags=(0, 3)))
 def test_redundant_links_the_same_both_ways(network):
     from delay.checks.redundancy import redundant_links

@@ -1068,15 +1068,19 @@ def _names_asbuilt(text: pd.Series) -> np.ndarray:
 def _empty(name: str) -> pd.DataFrame:
     """The table ``name`` with no rows, its stable columns typed."""
     data = {}
+    empty: dict[object, pd.Series] = {}  # one empty column per type, shared (copy-on-write)
     for column in COLUMNS[name]:
         if column in columns.DATE_COLUMNS.get(name, ()):
-            data[column] = pd.Series([], dtype=columns.DATE_DTYPE)
+            dtype = columns.DATE_DTYPE
         elif column in columns.INTEGER_COLUMNS.get(name, ()):
-            data[column] = pd.Series([], dtype=np.int64)
+            dtype = np.int64
         elif column in columns.NUMBER_COLUMNS.get(name, ()):
-            data[column] = pd.Series([], dtype=np.float64)
+            dtype = np.float64
         elif column in columns.BOOLEAN_COLUMNS.get(name, ()):
-            data[column] = pd.Series([], dtype=bool)
+            dtype = bool
         else:
-            data[column] = pd.Series([], dtype="str")
+            dtype = "str"
+        if dtype not in empty:
+            empty[dtype] = pd.Series([], dtype=dtype)
+        data[column] = empty[dtype]
     return pd.DataFrame(data)
