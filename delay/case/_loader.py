@@ -158,6 +158,16 @@ class _Loader:
         table = self.source.tables.get(name)
         return table if columns.require_columns(self.problems, table) else None
 
+    def absent(self, name: str) -> bool:
+        """Whether the case does not have the optional file ``name`` (its stand-in is empty)."""
+        table = self.source.tables.get(name)
+        return table is not None and not table.present and not len(table)
+
+    def optional(self, name: str) -> RawTable | None:
+        """:meth:`usable` for an optional file; ``None`` too when the case does not have it:
+        its checks would find nothing, and the caller records its empty table at once."""
+        return None if self.absent(name) else self.usable(name)
+
     # ------------------------------------------------------------------ settings
 
     def read_settings(self) -> None:
@@ -234,7 +244,7 @@ class _Loader:
         return text.where(text != "", self.default_calendar).astype("str")
 
     def check_calendar_exceptions(self) -> None:
-        table = self.usable("calendar_exceptions")
+        table = self.optional("calendar_exceptions")
         if table is None:
             self.tables["calendar_exceptions"] = _empty("calendar_exceptions")
             return
@@ -389,7 +399,7 @@ class _Loader:
     # ------------------------------------------------------------------ corrections
 
     def apply_corrections(self) -> None:
-        table = self.usable("corrections")
+        table = self.optional("corrections")
         if table is None:
             self.tables["corrections"] = _empty("corrections")
             return
@@ -704,9 +714,11 @@ class _Loader:
     # ------------------------------------------------------------------ registers
 
     def check_events(self) -> None:
-        table = self.usable("events")
+        table = self.optional("events")
         if table is None:
             self.tables["events"] = _empty("events")
+            if self.absent("events"):  # no register: no event for the other files to name
+                self.event_ids = []
             return
         p = self.problems
         frame = table.frame
@@ -795,7 +807,7 @@ class _Loader:
 
     def check_attributions(self) -> None:
         """attributions.csv (case-format v2): the analyst's attribution of a window's charge."""
-        table = self.usable("attributions")
+        table = self.optional("attributions")
         if table is None:
             self.tables["attributions"] = _empty("attributions")
             return
@@ -887,7 +899,7 @@ class _Loader:
                 "last in the baseline is then taken)", row=row, column=column)
 
     def check_fragnets(self) -> None:
-        table = self.usable("fragnets")
+        table = self.optional("fragnets")
         if table is None:
             self.tables["fragnets"] = _empty("fragnets")
             return
@@ -921,7 +933,7 @@ class _Loader:
                                                            "calendar": calendar})
 
     def check_fragnet_links(self) -> None:
-        table = self.usable("fragnet_links")
+        table = self.optional("fragnet_links")
         if table is None:
             self.tables["fragnet_links"] = _empty("fragnet_links")
             return
@@ -961,7 +973,7 @@ class _Loader:
         self.tables["fragnet_links"] = columns.assemble(table, {"type": kind, "lag": lag})
 
     def check_elements(self) -> None:
-        table = self.usable("elements")
+        table = self.optional("elements")
         if table is None:
             self.tables["elements"] = _empty("elements")
             return
@@ -981,9 +993,11 @@ class _Loader:
         self.tables["elements"] = columns.assemble(table, typed)
 
     def check_sections(self) -> None:
-        table = self.usable("sections")
+        table = self.optional("sections")
         if table is None:
             self.tables["sections"] = _empty("sections")
+            if self.absent("sections"):
+                self.section_ids = []
             return
         p = self.problems
         ids = table.frame["section"]
@@ -1006,7 +1020,7 @@ class _Loader:
             table, {"contract_completion": completion, "liquidated_damages_per_day": rate})
 
     def check_extensions(self) -> None:
-        table = self.usable("extensions_granted")
+        table = self.optional("extensions_granted")
         if table is None:
             self.tables["extensions_granted"] = _empty("extensions_granted")
             return
@@ -1032,7 +1046,7 @@ class _Loader:
                                                                      "days": days})
 
     def check_prolongation_rates(self) -> None:
-        table = self.usable("prolongation_rates")
+        table = self.optional("prolongation_rates")
         if table is None:
             self.tables["prolongation_rates"] = _empty("prolongation_rates")
             return
