@@ -78,20 +78,15 @@ def write_register(folder: Path, count: int, seed: int) -> dict[str, int]:
     return {kind: int((kinds == kind).sum()) for kind in ("extend", "hold", "fragnet")}
 
 
-def main() -> None:
-    parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
-    parser.add_argument("--activities", type=int, default=10_000)
-    parser.add_argument("--events", type=int, default=200)
-    parser.add_argument("--repeat", type=int, default=3)
-    args = parser.parse_args()
+def measure(activities: int = 10_000, events: int = 200, repeat: int = 3) -> dict:
+    """The impacted as-planned analysis beside its peer (two full schedules from the case
+    tables per event) and its floor (as many completions of the prepared model), in seconds
+    (medians of ``repeat``), on a synthetic case and register written here."""
     with tempfile.TemporaryDirectory() as tmp:
         folder = Path(tmp) / "case"
-        synthesise(folder, args.activities, seed=11)
-        kinds = write_register(folder, args.events, seed=12)
+        synthesise(folder, activities, seed=11)
+        kinds = write_register(folder, events, seed=12)
         case = load_case(folder)
-    print(f"{len(case.baseline.activities)} activities, {len(case.baseline.links)} links; "
-          f"{len(case.events)} events ({kinds['extend']} extend, {kinds['hold']} hold, "
-          f"{kinds['fragnet']} fragnet with {len(case.fragnets)} inserted activities)")
     runs = 2 * len(case.events)
     analyse(case)  # compile the kernels once
     schedule(case)
@@ -101,24 +96,42 @@ def main() -> None:
             schedule(case)
 
     model = prepare(case)
-    measure = model.completion_day if hasattr(model, "completion_day") else model.run
+    measure_one = model.completion_day if hasattr(model, "completion_day") else model.run
 
     def floor_runs():
         for _ in range(runs):
-            measure()
+            measure_one()
 
-    peer = median_time(peer_runs, args.repeat)
-    method = median_time(lambda: forget(case) or analyse(case), args.repeat)
-    floor = median_time(floor_runs, args.repeat)
+    peer = median_time(peer_runs, repeat)
+    method = median_time(lambda: forget(case) or analyse(case), repeat)
+    floor = median_time(floor_runs, repeat)
     result = analyse(case)
+    return {"activities": len(case.baseline.activities), "links": len(case.baseline.links),
+            "events": len(case.events), "kinds": kinds, "fragnet_activities": len(case.fragnets), "runs": runs,
+            "peer": peer, "method": method, "floor": floor, "base": result.completion_base,
+            "cumulative": result.completion_cumulative, "total_days": result.total_days,
+            "largest": int(result.events["alone_days"].max())}
+
+
+def main() -> None:
+    parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    parser.add_argument("--activities", type=int, default=10_000)
+    parser.add_argument("--events", type=int, default=200)
+    parser.add_argument("--repeat", type=int, default=3)
+    args = parser.parse_args()
+    found = measure(args.activities, args.events, args.repeat)
+    kinds, runs, peer, method, floor = found["kinds"], found["runs"], found["peer"], found["method"], found["floor"]
+    print(f"{found['activities']} activities, {found['links']} links; "
+          f"{found['events']} events ({kinds['extend']} extend, {kinds['hold']} hold, "
+          f"{kinds['fragnet']} fragnet with {found['fragnet_activities']} inserted activities)")
     print(f"peer: {runs} full schedules from the case tables : {peer:7.2f} s   "
           f"({1000 * peer / runs:6.1f} ms each)")
     print(f"impacted as-planned, {runs} what-if runs + parties : {method:7.2f} s   "
           f"({1000 * method / runs:6.1f} ms per run)   ratio to peer = {method / peer:5.2f}x")
     print(f"floor: {runs} completions of the prepared model    : {floor:7.2f} s   "
           f"({1000 * floor / runs:6.1f} ms each)   ratio to peer = {floor / peer:5.2f}x")
-    print(f"completion {result.completion_base} -> {result.completion_cumulative}: {result.total_days} calendar "
-          f"days cumulative; the largest impact alone {int(result.events['alone_days'].max())} days")
+    print(f"completion {found['base']} -> {found['cumulative']}: {found['total_days']} calendar "
+          f"days cumulative; the largest impact alone {found['largest']} days")
 
 
 if __name__ == "__main__":

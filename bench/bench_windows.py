@@ -26,19 +26,14 @@ from delay.synth import synthesise  # noqa: E402
 from timing import median_time  # noqa: E402
 
 
-def main() -> None:
-    parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
-    parser.add_argument("--activities", type=int, default=10_000)
-    parser.add_argument("--updates", type=int, default=24)
-    parser.add_argument("--repeat", type=int, default=3)
-    args = parser.parse_args()
+def measure(activities: int = 10_000, updates: int = 24, repeat: int = 3) -> dict:
+    """The windows analysis with and without half-steps beside its peer (every snapshot
+    scheduled once), in seconds (medians of ``repeat``), on a synthetic case written here."""
     with tempfile.TemporaryDirectory() as tmp:
         folder = Path(tmp) / "case"
-        synthesise(folder, args.activities, updates=args.updates, seed=7)
+        synthesise(folder, activities, updates=updates, seed=7)
         case = load_case(folder)
     snapshots = list(case.snapshots) + [case.asbuilt_snapshot]
-    print(f"{len(case.baseline.activities)} activities, {len(case.baseline.links)} links, "
-          f"{len(case.updates)} updates + as-built: {len(snapshots) - 1} windows")
     analyse(case)  # compile the kernels once
 
     def plain():
@@ -49,16 +44,31 @@ def main() -> None:
         forget(case)  # results are remembered per case: measure the analysis, not the memory
         return analyse(case, half_step=half_step)
 
-    peer = median_time(plain, args.repeat)
-    with_half = median_time(lambda: fresh(True), args.repeat)
-    without = median_time(lambda: fresh(False), args.repeat)
+    peer = median_time(plain, repeat)
+    with_half = median_time(lambda: fresh(True), repeat)
+    without = median_time(lambda: fresh(False), repeat)
     result = analyse(case)
-    revisions = sum(len(w.revisions) for w in result.windows)
+    return {"activities": len(case.baseline.activities), "links": len(case.baseline.links),
+            "updates": len(case.updates), "windows": len(result.windows), "peer": peer, "with_half": with_half,
+            "without": without, "revisions": sum(len(w.revisions) for w in result.windows),
+            "movement": result.total_movement_days}
+
+
+def main() -> None:
+    parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    parser.add_argument("--activities", type=int, default=10_000)
+    parser.add_argument("--updates", type=int, default=24)
+    parser.add_argument("--repeat", type=int, default=3)
+    args = parser.parse_args()
+    found = measure(args.activities, args.updates, args.repeat)
+    peer, with_half, without = found["peer"], found["with_half"], found["without"]
+    print(f"{found['activities']} activities, {found['links']} links, {found['updates']} updates + as-built: "
+          f"{found['windows']} windows")
     print(f"peer: schedule every snapshot once         : {peer:7.2f} s")
     print(f"windows analysis with half-steps            : {with_half:7.2f} s   ratio to peer = {with_half / peer:5.1f}x"
-          f"   ({revisions} revision steps charged)")
+          f"   ({found['revisions']} revision steps charged)")
     print(f"windows analysis without half-steps         : {without:7.2f} s   ratio to peer = {without / peer:5.1f}x")
-    print(f"total movement {result.total_movement_days} calendar days over {len(result.windows)} windows; "
+    print(f"total movement {found['movement']} calendar days over {found['windows']} windows; "
           "every window reconciled")
 
 

@@ -1,10 +1,15 @@
-"""Compiled inner loops of the CPM engine (numba).
+"""The inner loops of the CPM engine: plain Python, compiled by numba on large networks.
 
 The forward and backward passes visit activities in topological order and their links
 through compressed adjacency arrays. A level-at-a-time numpy formulation costs a fixed
 overhead per level, which is ruinous on deep networks (a long chain of 60,000 activities has
-60,000 levels); these loops cost a few nanoseconds per link whatever the shape. Everything
-that is not a pass over the logic stays in numpy in :mod:`delay.cpm`.
+60,000 levels); compiled, these loops cost a few nanoseconds per link whatever the shape.
+Everything that is not a pass over the logic stays in numpy in :mod:`delay.cpm`.
+
+Each loop is one plain function wrapped in a :class:`delay._jit.Kernel`: it runs as Python
+on a small network (no numba start-up for a six-activity case) and compiled, with numba's
+on-disk cache, on a large one or in a long analysis (see :mod:`delay._jit`). The helpers it
+calls are marked :func:`delay._jit.jitable` and compiled with it.
 
 Calendar look-ups inside the loops use the flat tables of
 :class:`delay.calendars.CalendarSet`; a look-up outside the tables returns
@@ -15,7 +20,11 @@ the pass again.
 from __future__ import annotations
 
 import numpy as np
-from numba import njit
+
+from ._jit import Kernel, jitable
+
+__all__ = ["OK", "TOO_EARLY", "TOO_LATE", "order_and_layout", "forward_pass", "backward_pass", "mark_upstream",
+           "compressed_rows", "link_gaps"]
 
 OK = 0
 TOO_EARLY = 1  # a look-up fell before the tables: grow them backwards and run again
@@ -34,8 +43,8 @@ _HIGH = np.iinfo(np.int64).max
 # order) on every link was measured 5-8 % slower.
 
 
-@njit(cache=True, inline="always")
-def _day_of(c, k, table):  # pragma: no cover - compiled
+@jitable
+def _day_of(c, k, table):
     """Day number of work-day index ``k`` on calendar ``c``."""
     row = 3 + 4 * c
     position = k + table[row]
@@ -46,8 +55,8 @@ def _day_of(c, k, table):  # pragma: no cover - compiled
     return table[table[row + 2] + position]
 
 
-@njit(cache=True, inline="always")
-def _start_index(c, day, table):  # pragma: no cover - compiled
+@jitable
+def _start_index(c, day, table):
     """Index of the first work day on or after ``day`` on calendar ``c``."""
     t = day - table[2]
     if t < 0:
@@ -58,8 +67,8 @@ def _start_index(c, day, table):  # pragma: no cover - compiled
     return table[table[row + 1] + t] - table[row]
 
 
-@njit(cache=True, inline="always")
-def _bound_across(point, f, lag, lag_on_pred, from_calendar, to_calendar, table):  # pragma: no cover
+@jitable
+def _bound_across(point, f, lag, lag_on_pred, from_calendar, to_calendar, table):
     """The boundary, on the successor's calendar, that a link sets from the predecessor's
     ``point`` (read as a finish when ``f`` is 1), lag included; ``_LOW``/``_HIGH`` when a
     look-up falls outside the tables."""
@@ -73,8 +82,8 @@ def _bound_across(point, f, lag, lag_on_pred, from_calendar, to_calendar, table)
     return value + lag
 
 
-@njit(cache=True, inline="always")
-def _latest_across(target, f, lag, lag_on_pred, successor_calendar, predecessor_calendar, table):  # pragma: no cover
+@jitable
+def _latest_across(target, f, lag, lag_on_pred, successor_calendar, predecessor_calendar, table):
     """The latest predecessor point (its calendar, read as a finish when ``f`` is 1) for
     which the link still allows the successor's ``target``; ``_LOW``/``_HIGH`` as above."""
     g = 1 - f
@@ -88,9 +97,9 @@ def _latest_across(target, f, lag, lag_on_pred, successor_calendar, predecessor_
     return value - g - lag if lag_on_pred else value - g
 
 
-@njit(cache=True)
+@Kernel
 def order_and_layout(n, pred, succ, link_type, lag, out_ptr, out_link, order, rank, f_ptr, f_pred, f_type, f_lag,
-                     f_link, b_ptr, b_succ, b_type, b_lag, b_link):  # pragma: no cover - compiled
+                     f_link, b_ptr, b_succ, b_type, b_lag, b_link):
     """A topological order and the links laid out for the passes, in one sweep; fills the
     arrays given and returns how many activities were placed (fewer than ``n``: a loop).
 
@@ -161,8 +170,8 @@ def order_and_layout(n, pred, succ, link_type, lag, out_ptr, out_link, order, ra
     return n
 
 
-@njit(cache=True, inline="always")
-def _reads_as_finish(point_kind, reads_finish):  # pragma: no cover - compiled
+@jitable
+def _reads_as_finish(point_kind, reads_finish):
     """Whether a link reads its predecessor's point as a finish (the end of its date): a
     milestone's own kind decides; a task's point is its finish for FS and FF links."""
     if point_kind == 0:
@@ -170,18 +179,18 @@ def _reads_as_finish(point_kind, reads_finish):  # pragma: no cover - compiled
     return 1 if point_kind == 2 else 0
 
 
-@njit(cache=True, inline="always")
-def _links_ignored(status, progress_override):  # pragma: no cover - compiled
+@jitable
+def _links_ignored(status, progress_override):
     """Whether the links into an activity of this status are ignored: it is complete, or
     in progress when progress overrides logic."""
     return status == 2 or (progress_override and status == 1)
 
 
-@njit(cache=True)
+@Kernel
 def forward_pass(f_ptr, f_pred, f_type, f_lag, f_link, order, progress_override, lag_on_pred, with_floats,
                  status, point_kind, calendar, lower, upper, duration, start_read_fixed, known_finish, table,
                  early_finish_t, start_read_t, early_finish, start_read, remaining_start, finish_day,
-                 relative_float, link_free_float):  # pragma: no cover - compiled
+                 relative_float, link_free_float):
     """Early dates, activities by topological position (see :func:`order_and_layout`).
 
     By position ``i`` (activity ``order[i]``): ``status``, ``point_kind`` and ``calendar``
@@ -278,11 +287,11 @@ def forward_pass(f_ptr, f_pred, f_type, f_lag, f_link, order, progress_override,
     return OK
 
 
-@njit(cache=True)
+@Kernel
 def backward_pass(b_ptr, b_succ, b_type, b_lag, order, progress_override, lag_on_pred, status, point_kind,
                   calendar, late_upper, pin_late, duration, early_finish_t, link_free_float, end_bound,
                   completion_bound, table, late_start_t, late_finish_t, late_start, late_finish, total_float,
-                  free_float):  # pragma: no cover - compiled
+                  free_float):
     """Late dates, total and free float, activities by topological position.
 
     By position: ``status``, ``point_kind``, ``calendar``, ``early_finish_t`` and
@@ -341,8 +350,8 @@ def backward_pass(b_ptr, b_succ, b_type, b_lag, order, progress_override, lag_on
     return OK
 
 
-@njit(cache=True)
-def mark_upstream(f_ptr, f_pred, f_type, f_link, usable, driving_only, status, relative_float, on):  # pragma: no cover
+@Kernel
+def mark_upstream(f_ptr, f_pred, f_type, f_link, usable, driving_only, status, relative_float, on):
     """Marks (``on``, by position) every activity from which a chain of links reaches a
     marked one: links where ``usable`` (by link number) is true or, with ``driving_only``,
     driving links a path from the data date can run through (relative float 0, in the
@@ -362,8 +371,8 @@ def mark_upstream(f_ptr, f_pred, f_type, f_link, usable, driving_only, status, r
             on[p] = True
 
 
-@njit(cache=True)
-def compressed_rows(n, keys):  # pragma: no cover - compiled
+@Kernel
+def compressed_rows(n, keys):
     """Counting sort of link numbers by key: (ptr, links) with links of key v in
     links[ptr[v]:ptr[v + 1]], in input order."""
     ptr = np.zeros(n + 1, dtype=np.int64)
@@ -380,9 +389,9 @@ def compressed_rows(n, keys):  # pragma: no cover - compiled
     return ptr, links
 
 
-@njit(cache=True)
+@Kernel
 def link_gaps(f_ptr, f_pred, f_type, f_lag, f_link, lag_on_pred, point_kind, start_read, early_finish,
-              calendar, table, gaps):  # pragma: no cover - compiled
+              calendar, table, gaps):
     """Per link (by link number), how far the successor's point (``start_read`` or
     ``early_finish``) lies after the bound the link sets, in the successor's work days;
     every link counts, whatever the activities' status."""

@@ -27,34 +27,17 @@ from typing import Iterable, Mapping, Sequence
 
 import numpy as np
 
+from .convert import to_dates, to_days
 from .errors import DateBoundError
 from .model import FIRST_DATE, LAST_DATE, WEEKDAYS
 
-__all__ = ["WorkCalendar", "CalendarSet", "build_calendars", "to_days", "to_dates", "parse_workdays",
+__all__ = ["WorkCalendar", "CalendarSet", "build_calendars", "parse_workdays",
            "HORIZON_FIRST_DAY", "HORIZON_LAST_DAY"]
 
-_EPOCH = np.datetime64("1970-01-01", "D")
 #: The horizon grows no further than a year beyond the dates a case may hold: a look-up a
 #: few days past them still works, and one further raises DateBoundError (day numbers).
 HORIZON_FIRST_DAY = int(np.datetime64(FIRST_DATE, "D").astype(np.int64)) - 366
 HORIZON_LAST_DAY = int(np.datetime64(LAST_DATE, "D").astype(np.int64)) + 366
-
-
-def to_days(dates) -> np.ndarray:
-    """Day numbers (``int64`` days since 1970-01-01) of dates or arrays of dates."""
-    array = np.asarray(dates)
-    if array.dtype.kind == "M":
-        return array.astype("datetime64[D]").astype(np.int64)
-    if array.dtype.kind in "iu":
-        return array.astype(np.int64)
-    if array.dtype == object or array.dtype.kind in "US":
-        return np.asarray(array, dtype="datetime64[D]").astype(np.int64)
-    raise TypeError(f"cannot read dates of dtype {array.dtype}")
-
-
-def to_dates(days) -> np.ndarray:
-    """``datetime64[D]`` dates of day numbers."""
-    return np.asarray(days, dtype=np.int64).astype("datetime64[D]")
 
 
 def parse_workdays(text: str) -> tuple[bool, ...]:

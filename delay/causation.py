@@ -753,7 +753,8 @@ def time_impact_causation(case: Case, result, concurrency: str | None = None,
 
 def _baseline_completion(case: Case) -> dt.date:
     """The planned finish of the project's completion activity (the baseline's)."""
-    from .cpm import calendars_of, day_to_date, prepare
+    from .convert import day_to_date
+    from .cpm import calendars_of, prepare
     from .events import completion_activity
 
     result = prepare(case, case.baseline, calendars=calendars_of(case)).run()

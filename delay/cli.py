@@ -171,19 +171,21 @@ def schedule(case, snapshot, output_format, progress, float_to, lag_calendar):
     loaded = _load(case)
     result = run_schedule(loaded, snapshot, _schedule_settings(loaded, progress, float_to, lag_calendar))
     if output_format == "json":
-        click.echo(json.dumps(result.to_json(), indent=2))
+        click.echo(result.to_json_text(indent=2))  # json.dumps(result.to_json()) to the byte, from whole columns
         return
     frame = _schedule_rows(result)
     if output_format == "csv":
         from .cpm import _find
         from .output import csv_text
 
-        frame = _with_unknown_columns(frame, _find(loaded, snapshot))
+        frame = _with_unknown_columns(frame, _find(loaded, snapshot)).rename(columns={"id": "activity"})
         click.echo(csv_text(frame, date_format="%Y-%m-%d"), nl=False)
         return
+    from .convert import text_cell
+
     columns = ["id", "name", "status", "early_start", "early_finish", "late_start", "late_finish",
                "total_float", "free_float", "critical", "driving"]
-    rows = [[_cell(v) for v in row] for row in frame[columns].itertuples(index=False)]
+    rows = [[text_cell(v) for v in row] for row in frame[columns].itertuples(index=False)]
     _print_table(f"{result.snapshot}: data date {result.data_date}, completion {result.completion}",
                  [c.replace("_", " ") for c in columns], rows)
     click.echo(f"Completion: {result.completion}  (driving path of {len(result.driving_path())} activities)")
@@ -213,18 +215,6 @@ def _with_unknown_columns(frame, snap):
     extra = activities[["id", *unknown]].drop_duplicates("id")
     extra = extra.rename(columns={c: f"{c} (input)" for c in unknown if c in frame.columns})
     return frame.merge(extra, on="id", how="left", sort=False)
-
-
-def _cell(value):
-    import pandas as pd
-
-    if value is None or (not isinstance(value, (str, bool)) and pd.isna(value)):
-        return ""
-    if isinstance(value, pd.Timestamp):
-        return value.date().isoformat()
-    if isinstance(value, bool):
-        return "yes" if value else ""
-    return value
 
 
 @cli.command()

@@ -17,14 +17,17 @@ result table can hold (numpy and pandas scalars, missing values, dates of every 
 from __future__ import annotations
 
 import datetime as dt
+import json
 import math
-from typing import Any, Iterable
+from json.encoder import encode_basestring_ascii
+from typing import Any, Iterable, Mapping
 
 import numpy as np
 import pandas as pd
 
 __all__ = ["EPOCH", "NO_DAY", "to_days", "to_dates", "table_dates", "iso_dates", "day_to_date", "iso_date", "json_int",
-           "json_cell", "json_records", "list_cells", "text_cell", "split_ids", "join_ids", "LIST_SEPARATOR"]
+           "json_cell", "json_records", "json_date_cells", "json_text_cells", "json_int_cells",
+           "json_bool_cells", "json_rows_text", "list_cells", "text_cell", "split_ids", "split_id_column", "join_ids", "LIST_SEPARATOR"]
 
 #: Day number 0.
 EPOCH = np.datetime64("1970-01-01", "D")
@@ -115,30 +118,6 @@ def table_dates(days) -> np.ndarray:
     '2025-01-06T00:00:00'
     """
     return to_dates(days).astype("datetime64[s]")
-
-
-def iso_dates(days) -> np.ndarray:
-    """ISO ``YYYY-MM-DD`` text of day numbers, blank for :data:`NO_DAY`.
-
-    Parameters
-    ----------
-    days : array-like of int
-        Day numbers.
-
-    Returns
-    -------
-    numpy.ndarray
-        ``object`` array of ``str``.
-
-    Examples
-    --------
-    >>> iso_dates([20094, NO_DAY]).tolist()
-    ['2025-01-06', '']
-    """
-    dates = to_dates(days)
-    text = np.datetime_as_string(dates).astype(object)
-    text[np.isnat(dates)] = ""
-    return text
 
 
 def day_to_date(day: int) -> dt.date:
@@ -371,6 +350,28 @@ def split_ids(text) -> list[str]:
     return ids
 
 
+def split_id_column(text: pd.Series) -> pd.Series:
+    """:func:`split_ids` for a whole column at once: one entry per id named in a cell,
+    indexed by its row's label (repeats kept, blanks dropped), as the loader checks them.
+
+    Parameters
+    ----------
+    text : pandas.Series of str
+        Cells of ``;``-separated ids.
+
+    Returns
+    -------
+    pandas.Series of str
+
+    Examples
+    --------
+    >>> split_id_column(pd.Series(["A; B", "", "C;;C"])).tolist()
+    ['A', 'B', 'C', 'C']
+    """
+    parts = text.str.split(LIST_SEPARATOR).explode().str.strip()
+    return parts[parts.notna() & (parts != "")]
+
+
 def join_ids(values: Iterable) -> str:
     """Ids written in one cell, :data:`LIST_SEPARATOR` between them (the inverse of
     :func:`split_ids` for ids without ``;``).
@@ -392,3 +393,183 @@ def join_ids(values: Iterable) -> str:
     ['A1', 'A2']
     """
     return LIST_SEPARATOR.join(str(v) for v in values)
+
+
+# -- JSON of whole columns --------------------------------------------------------------------
+# A table of n rows and k columns becomes JSON through k whole-column conversions and one
+# join, not n * k Python calls: each column is turned into its cells' JSON text at once
+# (dates once per distinct day), and the rows are laid out as json.dumps(..., indent=...)
+# lays them out, so that the text is the same to the byte.
+def _distinct_texts(values, missing, blank, format_values) -> np.ndarray:
+    """Per cell, the text ``format_values`` gives for its value, each distinct value
+    formatted once (a table of the whole span where it is short, else of the distinct
+    values); ``blank`` where ``missing``. One take from the table fills the column."""
+    values = np.asarray(values, dtype=np.int64)
+    given = ~missing
+    if not given.any():
+        return np.full(values.shape, blank, dtype=object)
+    present = values[given]
+    low, high = int(present.min()), int(present.max())
+    if high - low <= 4 * present.size + 4096:  # every value of the span: no sort
+        distinct, at = np.arange(low, high + 1, dtype=np.int64), values - low
+    else:
+        distinct, inverse = np.unique(present, return_inverse=True)
+        at = np.zeros(values.shape, dtype=np.int64)
+        at[given] = inverse
+    table = np.empty(distinct.size + 1, dtype=object)
+    table[:-1] = format_values(distinct).astype(object)
+    table[-1] = blank
+    return table[np.where(given, at, distinct.size)]
+
+
+def _day_texts(days, quoted: bool) -> np.ndarray:
+    """Per cell, the ISO date of a day number (quoted for JSON), ``None`` (``null``) for
+    ``NO_DAY``; each distinct day formatted once, by numpy."""
+    def dates(distinct):
+        texts = np.datetime_as_string(distinct.astype("datetime64[D]"), unit="D")
+        return np.char.add(np.char.add('"', texts), '"') if quoted else texts
+
+    days = np.asarray(days, dtype=np.int64)
+    return _distinct_texts(days, days == NO_DAY, "null" if quoted else None, dates)
+
+
+def iso_dates(days) -> np.ndarray:
+    """ISO dates ``YYYY-MM-DD`` (``object`` array of str, ``None`` for :data:`NO_DAY`)
+    of day numbers (days since 1970-01-01), each distinct day formatted once.
+
+    Parameters
+    ----------
+    days : array of int64
+        Day numbers; the least int64 (``NO_DAY``) for no date.
+
+    Returns
+    -------
+    numpy.ndarray of object, the shape of ``days``
+
+    Examples
+    --------
+    >>> iso_dates([20089, -(2**63), 20089]).tolist()
+    ['2025-01-01', None, '2025-01-01']
+    """
+    return _day_texts(days, quoted=False)
+
+
+def json_date_cells(days) -> np.ndarray:
+    """The JSON text of date cells (``"2025-01-01"`` or ``null``) of day numbers, each
+    distinct day formatted once (see :func:`iso_dates`).
+
+    Parameters
+    ----------
+    days : array of int64
+        Day numbers, ``NO_DAY`` for no date.
+
+    Returns
+    -------
+    numpy.ndarray of object (str)
+
+    Examples
+    --------
+    >>> json_date_cells([20089, -(2**63)]).tolist()
+    ['"2025-01-01"', 'null']
+    """
+    return _day_texts(days, quoted=True)
+
+
+def json_text_cells(values) -> np.ndarray:
+    """The JSON text of text cells (``None`` as ``null``), escaped as :func:`json.dumps`
+    escapes them (``ensure_ascii``).
+
+    Parameters
+    ----------
+    values : sequence of str or None
+
+    Returns
+    -------
+    numpy.ndarray of object (str)
+    """
+    items = list(values)
+    if all(type(v) is str for v in items):
+        return np.fromiter(map(encode_basestring_ascii, items), dtype=object, count=len(items))
+    return np.fromiter(("null" if v is None else encode_basestring_ascii(str(v)) for v in items), dtype=object,
+                       count=len(items))
+
+
+def json_int_cells(values, missing=None) -> np.ndarray:
+    """The JSON text of whole-number cells; ``null`` where ``missing`` is true. Each
+    distinct number is formatted once.
+
+    Parameters
+    ----------
+    values : array of int
+    missing : array of bool, optional
+
+    Returns
+    -------
+    numpy.ndarray of object (str)
+
+    Examples
+    --------
+    >>> json_int_cells([3, -1, 3], [False, False, True]).tolist()
+    ['3', '-1', 'null']
+    """
+    values = np.asarray(values, dtype=np.int64)
+    missing = np.zeros(values.shape, dtype=bool) if missing is None else np.asarray(missing, dtype=bool)
+    return _distinct_texts(values, missing, "null", lambda distinct: distinct.astype(str))
+
+
+def json_bool_cells(values) -> np.ndarray:
+    """The JSON text (``true``/``false``) of boolean cells.
+
+    Parameters
+    ----------
+    values : array of bool
+
+    Returns
+    -------
+    numpy.ndarray of object (str)
+    """
+    return np.where(np.asarray(values, dtype=bool), "true", "false").astype(object)
+
+
+def json_rows_text(columns: Mapping[str, np.ndarray], indent: int = 2, level: int = 1) -> str:
+    """A list of records as :func:`json.dumps` with ``indent`` writes it, from whole columns.
+
+    Parameters
+    ----------
+    columns : mapping of key to array of str
+        Each record's keys in order, and per key the JSON text of every record's cell
+        (:func:`json_text_cells`, :func:`json_int_cells`, :func:`json_date_cells`,
+        :func:`json_bool_cells`). All of the same length.
+    indent : int
+        Spaces per level, as for :func:`json.dumps`.
+    level : int
+        The nesting level at which the list stands (1: a value of the top-level object).
+
+    Returns
+    -------
+    str
+        ``[`` ... ``]``, the same text as ``json.dumps`` gives for the list at that level.
+
+    Examples
+    --------
+    >>> import json, numpy as np
+    >>> text = json_rows_text({"id": json_text_cells(["A"]), "days": json_int_cells([3])}, level=0)
+    >>> text == json.dumps([{"id": "A", "days": 3}], indent=2)
+    True
+    """
+    keys = list(columns)
+    count = len(columns[keys[0]]) if keys else 0
+    if not count:
+        return "[]"
+    outer = "\n" + " " * (indent * (level + 1))
+    inner = "\n" + " " * (indent * (level + 2))
+    pieces = np.empty((count, 2 * len(keys) + 1), dtype=object)
+    first = "{" + inner + json.dumps(keys[0]) + ": "
+    pieces[:, 0] = "," + outer + first
+    pieces[0, 0] = outer + first
+    for number, key in enumerate(keys):
+        if number:
+            pieces[:, 2 * number] = "," + inner + json.dumps(key) + ": "
+        pieces[:, 2 * number + 1] = columns[key]
+    pieces[:, -1] = outer + "}"
+    return "[" + "".join(pieces.ravel().tolist()) + "\n" + " " * (indent * level) + "]"

@@ -34,6 +34,7 @@ from __future__ import annotations
 
 import dataclasses
 import datetime as dt
+import json
 import weakref
 from dataclasses import dataclass, field
 from functools import cached_property
@@ -43,11 +44,12 @@ import numpy as np
 import pandas as pd
 
 from .bounds import check_finish_days, check_late_days, grow_within_bounds
-from .calendars import CalendarSet, build_calendars, to_days
+from .calendars import CalendarSet, build_calendars
+from .convert import NO_DAY, day_to_date, table_dates, to_days
 from .errors import CaseError, Problem
 from .model import ACTIVITY_KINDS, CONSTRAINTS, Case, ScheduleSettings, Snapshot
 from .network import LINK_CODES, Network, build_network, compile_network
-from .output import json_date, json_int
+from .convert import iso_dates, json_bool_cells, json_date_cells, json_int_cells, json_rows_text, json_text_cells
 
 __all__ = [
     "schedule",
@@ -63,8 +65,6 @@ __all__ = [
     "START_MILESTONE",
     "FINISH_MILESTONE",
     "STATUS_NAMES",
-    "NO_DAY",
-    "day_to_date",
 ]
 
 #: Total float (work days) at or below which an activity is near-critical.
@@ -83,7 +83,6 @@ _KIND_BY_POSITION = np.array([KIND_CODES[k] for k in ACTIVITY_KINDS], dtype=np.i
 _CONSTRAINT_BY_POSITION = np.array([0] + [CONSTRAINT_CODES[c] for c in CONSTRAINTS], dtype=np.int8)
 
 _FAR = np.int64(1) << 40  # beyond any boundary; "no bound"
-NO_DAY = np.iinfo(np.int64).min  # "no date" in day-number arrays
 
 
 def _days_or_none(column: pd.Series) -> np.ndarray:
@@ -326,7 +325,7 @@ class ScheduleModel:
 
     def completion(self) -> dt.date:
         """Completion date from the forward pass alone (see :meth:`completion_day`)."""
-        return _date(self.completion_day())
+        return day_to_date(self.completion_day())
 
     def work_dates(self) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
         """``(status, start day, finish day)`` of every activity from the forward pass alone:
@@ -555,11 +554,11 @@ class ScheduleResult:
     @property
     def completion(self) -> dt.date:
         """The latest early finish date over all activities."""
-        return _date(self.completion_day)
+        return day_to_date(self.completion_day)
 
     @property
     def data_date(self) -> dt.date:
-        return _date(self.model.data_day)
+        return day_to_date(self.model.data_day)
 
     @property
     def settings(self) -> ScheduleSettings:
@@ -660,7 +659,7 @@ class ScheduleResult:
             }
         )
         for name, days in self._days.items():
-            frame[name] = _to_datetime(days)
+            frame[name] = table_dates(days)
         frame["total_float"] = pd.array(np.where(complete, 0, self.total_float), dtype="Int64")
         frame.loc[complete, "total_float"] = pd.NA
         frame["free_float"] = pd.array(np.where(complete, 0, self.free_float), dtype="Int64")
@@ -771,44 +770,58 @@ class ScheduleResult:
             seen.add(nxt)
         return [str(self.ids[i]) for i in reversed(chain)]
 
+    def _json_cells(self, text: bool) -> dict[str, object]:
+        """The columns of the JSON form, whole: as JSON text (``text``) or as values."""
+        complete = self.status == COMPLETE
+        days = self._days
+        names = ("early_start", "early_finish", "late_start", "late_finish")
+        if text:
+            cells: dict[str, object] = {"activity": json_text_cells(self.ids.tolist())}
+            cells.update((name, json_date_cells(days[name])) for name in names)
+            cells["total_float"] = json_int_cells(self.total_float, complete)
+            cells["free_float"] = json_int_cells(self.free_float, complete)
+            cells["critical"] = json_bool_cells(self.critical)
+            return cells
+        cells = {"activity": self.ids.tolist()}
+        cells.update((name, iso_dates(days[name]).tolist()) for name in names)
+        for name, values in (("total_float", self.total_float), ("free_float", self.free_float)):
+            column = np.asarray(values, dtype=object)
+            column[complete] = None
+            cells[name] = column.tolist()
+        cells["critical"] = self.critical.tolist()
+        return cells
+
+    def _json_head(self) -> dict:
+        return {"snapshot": self.model.folder, "label": self.snapshot,
+                "data_date": self.data_date.isoformat(), "completion": self.completion.isoformat()}
+
     def to_json(self) -> dict:
-        """The JSON form of the ``delay schedule`` command."""
-        frame = self.activities
-        rows = []
-        for record in frame.itertuples(index=False):
-            rows.append(
-                {
-                    "id": record.id,
-                    "early_start": json_date(record.early_start),
-                    "early_finish": json_date(record.early_finish),
-                    "late_start": json_date(record.late_start),
-                    "late_finish": json_date(record.late_finish),
-                    "total_float": json_int(record.total_float),
-                    "free_float": json_int(record.free_float),
-                    "critical": bool(record.critical),
-                }
-            )
-        return {
-            "snapshot": self.model.folder,
-            "label": self.snapshot,
-            "data_date": self.data_date.isoformat(),
-            "completion": self.completion.isoformat(),
-            "activities": rows,
-        }
+        """The JSON form of the ``delay schedule`` command: ``snapshot``, ``data_date``,
+        ``completion`` and per activity (network order) its id (``activity``), early and late start and
+        finish (ISO dates; ``None`` where there is none), ``total_float`` and
+        ``free_float`` (work days; ``None`` for a complete activity) and ``critical``."""
+        cells = self._json_cells(text=False)
+        keys = list(cells)
+        rows = [dict(zip(keys, values)) for values in zip(*cells.values())]
+        return {**self._json_head(), "activities": rows}
 
+    def to_json_text(self, indent: int = 2) -> str:
+        """``json.dumps(self.to_json(), indent=indent)``, the same text to the byte, made
+        from whole columns (each distinct date formatted once) instead of per-activity
+        objects: what ``delay schedule --format json`` prints.
 
-def day_to_date(day: int) -> dt.date:
-    """The date of a day number (days since 1970-01-01)."""
-    return dt.date(1970, 1, 1) + dt.timedelta(days=int(day))
+        Parameters
+        ----------
+        indent : int
+            Spaces per level.
 
-
-_date = day_to_date
-
-
-def _to_datetime(days: np.ndarray) -> np.ndarray:
-    values = np.asarray(days, dtype=np.int64).astype("datetime64[D]")
-    values[np.asarray(days) == NO_DAY] = np.datetime64("NaT")
-    return values.astype("datetime64[s]")
+        Returns
+        -------
+        str
+        """
+        head = json.dumps(self._json_head(), indent=indent)
+        rows = json_rows_text(self._json_cells(text=True), indent=indent, level=1)
+        return head[:-2] + ",\n" + " " * indent + '"activities": ' + rows + "\n}"
 
 
 # -- from the case ----------------------------------------------------------------------------

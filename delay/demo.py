@@ -69,9 +69,9 @@ def run_demo(case_path: Path, out_dir: Path, echo: Callable[[str], None] = print
         snapshots = list(case.snapshots) + ([case.asbuilt_snapshot] if case.asbuilt_snapshot else [])
         for snap in snapshots:
             result = prepare(case, snap, calendars=calendars).run()
-            frame = result.activities
+            frame = result.activities.rename(columns={"id": "activity"})  # the outputs' name for it
             write_csv(schedules / f"{snap.folder}.csv", frame, date_format="%Y-%m-%d")
-            (schedules / f"{snap.folder}.json").write_text(json.dumps(result.to_json(), indent=2), encoding="utf-8")
+            (schedules / f"{snap.folder}.json").write_text(result.to_json_text(indent=2) + "\n", encoding="utf-8")
             written += [out_dir / "schedules" / f"{snap.folder}.csv", out_dir / "schedules" / f"{snap.folder}.json"]
             trend.append({
                 "snapshot": snap.folder, "label": snap.label, "kind": snap.kind,

@@ -94,7 +94,8 @@ import pandas as pd
 from .causation import METHODS, Causation, class_totals, causation
 from .contract import completion_in_force, grants, whole_works_section
 from .convert import iso_date, json_records, split_ids
-from .cpm import NO_DAY, ScheduleResult, calendars_of, day_to_date, prepare
+from .convert import NO_DAY, day_to_date
+from .cpm import ScheduleResult, calendars_of, prepare
 from .errors import CaseError, Problem
 from .events import completion_activity
 from .memo import remembered

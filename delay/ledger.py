@@ -64,7 +64,8 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
-from .cpm import NO_DAY, TASK, ScheduleResult
+from .convert import NO_DAY
+from .cpm import TASK, ScheduleResult
 from .errors import ReconciliationError
 from .tracing import explore
 

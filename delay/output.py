@@ -56,10 +56,11 @@ import tempfile
 import threading
 import time
 from pathlib import Path
-from typing import Callable, Iterable, Iterator, Mapping
+from typing import TYPE_CHECKING, Callable, Iterable, Iterator, Mapping
 
-import numpy as np
-import pandas as pd
+if TYPE_CHECKING:  # numpy and pandas are imported where a table is written, not at start-up
+    import numpy as np
+    import pandas as pd
 
 __all__ = [
     "TOOL",
@@ -91,6 +92,12 @@ __all__ = [
     "copy_csv",
     "json_date",
     "json_int",
+    "json_text_cells",
+    "json_int_cells",
+    "json_bool_cells",
+    "json_date_cells",
+    "iso_dates",
+    "json_records",
 ]
 
 #: The name the marker file carries; a folder whose marker names another tool is not ours.
@@ -858,6 +865,7 @@ def write_output_file(target: str | Path, write: Callable[[str], object], *, cas
 
 # -- CSV outputs ------------------------------------------------------------------------------
 _FORMULA_START = frozenset("=+-@\t\r")
+_FORMULA_CELL = re.compile(r"\n[=+\-@\t\r]")  # a cell (after the first) that may start a formula
 _PLAIN_NUMBER = re.compile(r"[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?\Z")
 
 
@@ -893,12 +901,21 @@ def csv_safe(frame: pd.DataFrame) -> pd.DataFrame:
     pandas.DataFrame
         A copy; numbers, dates and blanks unchanged (their columns keep their types).
     """
+    import numpy as np
+    import pandas as pd
+
     out = frame.copy()
     for position in range(frame.shape[1]):
         series = frame.iloc[:, position]
         if not (pd.api.types.is_object_dtype(series.dtype) or pd.api.types.is_string_dtype(series.dtype)):
             continue
         column = series.to_numpy(dtype=object, copy=True)
+        try:  # one search over the joined column: most columns have no cell to neutralise
+            joined = "\n".join(column.tolist())
+        except TypeError:  # a cell that is not text (a blank): look cell by cell
+            joined = None
+        if joined is not None and joined[:1] not in _FORMULA_START and not _FORMULA_CELL.search(joined):
+            continue
         starts = np.fromiter((isinstance(v, str) and v[:1] in _FORMULA_START for v in column), dtype=bool,
                              count=len(column))
         if starts.any():
@@ -952,14 +969,3 @@ def copy_csv(source: str | Path, target: str | Path) -> Path:
     writer = csv.writer(buffer, lineterminator="\n")
     writer.writerows([[neutralise(cell) for cell in row] for row in rows])
     return write_bytes(target, buffer.getvalue().encode("utf-8"))
-
-
-# -- JSON cells -------------------------------------------------------------------------------
-def json_date(value) -> str | None:
-    """A date cell of a result table for JSON: ISO ``YYYY-MM-DD``, ``None`` when blank."""
-    return None if pd.isna(value) else pd.Timestamp(value).date().isoformat()
-
-
-def json_int(value) -> int | None:
-    """A whole-number cell of a result table for JSON, ``None`` when blank."""
-    return None if pd.isna(value) else int(value)

@@ -107,7 +107,8 @@ def synthetic_network(activities: int, links_per_activity: float = 2.5, seed: in
 
 def _actual_run(activities: pd.DataFrame, links: pd.DataFrame, rng):
     """Actual start and finish days of a simulated execution (our engine, scaled durations)."""
-    from .cpm import NO_DAY, ScheduleModel
+    from .convert import NO_DAY
+    from .cpm import ScheduleModel
     from .model import ScheduleSettings
 
     calendars = CalendarSet({

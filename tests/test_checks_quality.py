@@ -24,7 +24,8 @@ from casewriter import write_case
 from delay.case import load_case
 from delay.checks import contract_completion_in_force, metric_list, quality_metrics
 from delay.checks.quality import METRIC_COLUMNS, METRIC_KEYS, invalid_date_mask
-from delay.cpm import COMPLETE, IN_PROGRESS, NO_DAY, NOT_STARTED
+from delay.convert import NO_DAY
+from delay.cpm import COMPLETE, IN_PROGRESS, NOT_STARTED
 
 
 def task(activity_id, duration, **extra):

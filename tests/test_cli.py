@@ -133,8 +133,8 @@ def test_schedule_json_contract(tmp_path):
     assert set(payload) == {"snapshot", "label", "data_date", "completion", "activities"}
     assert payload["snapshot"] == "baseline"
     assert set(payload["activities"][0]) == {
-        "id", "early_start", "early_finish", "late_start", "late_finish", "total_float", "free_float", "critical"}
-    by_id = {a["id"]: a for a in payload["activities"]}
+        "activity", "early_start", "early_finish", "late_start", "late_finish", "total_float", "free_float", "critical"}
+    by_id = {a["activity"]: a for a in payload["activities"]}
     # Hand-worked (case-format time convention, 5-day calendar from Monday 2025-01-06):
     # A occupies Mon 6 .. Wed 8, B Thu 9 .. Fri 10, the finish milestone is dated Fri 10.
     assert by_id["A"]["early_start"] == "2025-01-06" and by_id["A"]["early_finish"] == "2025-01-08"
@@ -180,7 +180,7 @@ def test_demo_on_a_small_case_writes_its_outputs_whole(tmp_path):
     (out / "schedules" / "baseline.csv").write_text("an earlier run's file", encoding="utf-8")
     result = run("demo", "--case", root, "--out", out)  # the folder of an earlier run
     assert result.exit_code == 0, result.output
-    assert (out / "schedules" / "baseline.csv").read_text(encoding="utf-8").startswith("id,")
+    assert (out / "schedules" / "baseline.csv").read_text(encoding="utf-8").startswith("activity,")
     marker = json.loads((out / "delay-output.json").read_text(encoding="utf-8"))
     assert marker["id"] != earlier["id"], "the output folder is replaced whole"
     assert "schedules/baseline.csv" in marker["files"] and "report/report.html" in marker["files"]

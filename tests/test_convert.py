@@ -36,7 +36,7 @@ def test_day_numbers_agree_with_the_standard_library_ordinals(date):
 
 def test_no_day_is_a_missing_date_everywhere():
     assert np.isnat(to_dates([NO_DAY])[0]) and np.isnat(table_dates([NO_DAY])[0])
-    assert iso_dates([NO_DAY]).tolist() == [""]
+    assert iso_dates([NO_DAY]).tolist() == [None]
     assert to_days(pd.to_datetime(pd.Series([None]))).tolist() == [NO_DAY]
     for missing in (None, np.nan, pd.NaT, pd.NA, np.datetime64("NaT")):
         assert iso_date(missing) is None and json_cell(missing) is None and text_cell(missing) == ""

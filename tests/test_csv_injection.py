@@ -154,7 +154,7 @@ def test_no_csv_of_demo_or_report_holds_a_cell_a_spreadsheet_would_run(outputs):
 def test_negative_floats_stay_plain_numbers(outputs):
     rows = cells(outputs / "demo" / "schedules" / "baseline.csv")
     header, body = rows[0], rows[1:]
-    floats = {row[header.index("id")]: row[header.index("total_float")] for row in body}
+    floats = {row[header.index("activity")]: row[header.index("total_float")] for row in body}
     assert floats["A"] == "-2" and floats["B"] == "-2"
     assert not any(cell.startswith("'-") and PLAIN_NUMBER.match(cell[1:]) for p in (outputs / "report").rglob("*.csv")
                    for row in cells(p) for cell in row), "a number never gets the apostrophe"

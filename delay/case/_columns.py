@@ -8,11 +8,14 @@ so that later checks can still run on the rest).
 from __future__ import annotations
 
 import datetime as dt
+import re
+import warnings
 from typing import Callable, Iterable
 
 import numpy as np
 import pandas as pd
 
+from delay.convert import split_id_column
 from delay.case._dialect import ISO_DATE
 from delay.case._problems import Problems, RawTable
 from delay.model import COLUMNS, FIRST_DATE, LARGEST_DAYS, LAST_DATE
@@ -35,8 +38,8 @@ __all__ = [
     "choices",
     "duplicates",
     "references",
+    "member",
     "id_lists",
-    "split_ids",
     "assemble",
 ]
 
@@ -189,13 +192,43 @@ def parse_numbers(text: pd.Series, decimal: str = ".") -> np.ndarray:
     return pd.to_numeric(text, errors="coerce").to_numpy(dtype=np.float64)
 
 
+_DIGITS_AND_LINES = str.maketrans("", "", "0123456789\n")
+_LONG_DIGITS = re.compile(r"[0-9]{16}")
+
+
+def _plain_integers(cells: np.ndarray, empty: np.ndarray) -> np.ndarray | None:
+    """The values (``float64``, ``NaN`` for a blank) of a text column whose every non-blank
+    cell is a plain whole number (an optional leading minus and at most 15 digits), read in
+    one pass over the joined text; ``None`` when any cell is anything else (the general
+    reader then decides, cell by cell, what it is)."""
+    given = cells[~empty]
+    joined = "\n".join(given.tolist())
+    signs = joined.translate(_DIGITS_AND_LINES)
+    if (signs.count("-") != len(signs) or joined.count("\n-") + joined.startswith("-") != len(signs)
+            or "-\n" in joined or joined.endswith("-") or _LONG_DIGITS.search(joined)):
+        return None
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        try:
+            parsed = np.fromstring(joined, dtype=np.int64, sep="\n")
+        except (ValueError, DeprecationWarning):
+            return None
+    if parsed.size != given.size:
+        return None
+    values = np.full(cells.size, np.nan)
+    values[~empty] = parsed
+    return values
+
+
 def _numbers(text: pd.Series, decimal: str = ".") -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     """(values, blank mask, not-a-number mask) of a text column."""
     empty = empty_cells(text)
     if empty.all():
         nothing = np.zeros(len(text), dtype=bool)
         return np.full(len(text), np.nan), empty, nothing
-    values = parse_numbers(text.where(~empty), decimal)
+    values = _plain_integers(text.to_numpy(dtype=object), empty)
+    if values is None:
+        values = parse_numbers(text.where(~empty), decimal)
     not_number = ~empty & ~np.isfinite(values)
     values = np.where(not_number, np.nan, values)
     return values, empty, not_number
@@ -323,13 +356,17 @@ def _combined(table: RawTable, columns: list[str]) -> pd.Series:
 
 
 def duplicates(problems: Problems, table: RawTable, columns: list[str], column: str,
-               describe: Callable[[int], str], fix: str, skip: np.ndarray | None = None) -> None:
+               describe: Callable[[int], str], fix: str, skip: np.ndarray | None = None,
+               codes: np.ndarray | None = None) -> None:
     """Flag every row whose ``columns`` repeat an earlier row's.
 
     ``describe(position)`` names the repeated thing (``"activity id 'A'"``); the message
     adds the row of the first occurrence. Rows where ``skip`` is true are ignored.
+    ``codes``, when given, is one whole number per row standing for its ``columns`` (equal
+    exactly where they are equal: the link ends' activity numbers, say), compared instead
+    of the text.
     """
-    key = _combined(table, columns)
+    key = _combined(table, columns) if codes is None else pd.Series(np.asarray(codes, dtype=np.int64))
     if skip is not None:
         key = key.where(~skip)
     repeated = key.duplicated(keep="first").to_numpy() & key.notna().to_numpy()
@@ -345,11 +382,24 @@ def duplicates(problems: Problems, table: RawTable, columns: list[str], column: 
     problems.flag(table, repeated, column, message, fix)
 
 
+def member(values: pd.Series, known) -> np.ndarray:
+    """Mask of the cells of ``values`` found in ``known``.
+
+    Against an index of unique values (the case's activity ids) the index's own hash
+    table, built once, is used; nothing is built for an empty column.
+    """
+    if not len(values):
+        return np.zeros(0, dtype=bool)
+    if isinstance(known, pd.Index) and known.is_unique:
+        return known.get_indexer(values) >= 0
+    return values.isin(known).to_numpy()
+
+
 def references(problems: Problems, table: RawTable, column: str, known, message: Text,
                fix: Text) -> np.ndarray:
     """Flag non-blank cells of ``column`` not in ``known``; returns the mask of them."""
     text = table.frame[column]
-    unknown = ~empty_cells(text) & ~text.isin(known).to_numpy()
+    unknown = ~empty_cells(text) & ~member(text, known)
     problems.flag(table, unknown, column, message, fix)
     return unknown
 
@@ -365,20 +415,16 @@ def coded_references(problems: Problems, table: RawTable, column: str, known: pd
     return unknown, codes
 
 
-def split_ids(text: pd.Series) -> pd.Series:
-    """Split ``;``-separated ids; one entry per id, indexed by the row's position."""
-    parts = text.str.split(";").explode().str.strip()
-    return parts[parts.notna() & (parts != "")]
-
-
 def id_lists(problems: Problems, table: RawTable, column: str, known, where: str,
              fix: str) -> None:
     """Flag rows of ``column`` (``;``-separated ids) naming an id not in ``known``.
 
     The message reads "'X' is not in {where}" (or "'X', 'Y' are not in {where}").
     """
-    parts = split_ids(table.frame[column])
-    unknown = parts[~parts.isin(known)]
+    if not len(table):
+        return
+    parts = split_id_column(table.frame[column])
+    unknown = parts[~member(parts, known)]
     if unknown.empty:
         return
     names = unknown.groupby(level=0).agg(list)

@@ -68,6 +68,9 @@ class _SnapshotFacts:
     #: Codes found while checking the tables, handed to the Snapshot (``Snapshot.derived``)
     #: so that the engine need not look the same text up again.
     derived: dict = field(default_factory=dict)
+    #: The activity ids as an index (first occurrences), its hash table built once for the
+    #: links' look-ups and the registers' (``None`` until the activities are checked).
+    id_index: pd.Index | None = None
 
 
 def load(path: Path, *, keep_uncorrected: bool = False) -> Loaded:
@@ -155,6 +158,16 @@ class _Loader:
         table = self.source.tables.get(name)
         return table if columns.require_columns(self.problems, table) else None
 
+    def absent(self, name: str) -> bool:
+        """Whether the case does not have the optional file ``name`` (its stand-in is empty)."""
+        table = self.source.tables.get(name)
+        return table is not None and not table.present and not len(table)
+
+    def optional(self, name: str) -> RawTable | None:
+        """:meth:`usable` for an optional file; ``None`` too when the case does not have it:
+        its checks would find nothing, and the caller records its empty table at once."""
+        return None if self.absent(name) else self.usable(name)
+
     # ------------------------------------------------------------------ settings
 
     def read_settings(self) -> None:
@@ -231,7 +244,7 @@ class _Loader:
         return text.where(text != "", self.default_calendar).astype("str")
 
     def check_calendar_exceptions(self) -> None:
-        table = self.usable("calendar_exceptions")
+        table = self.optional("calendar_exceptions")
         if table is None:
             self.tables["calendar_exceptions"] = _empty("calendar_exceptions")
             return
@@ -386,7 +399,7 @@ class _Loader:
     # ------------------------------------------------------------------ corrections
 
     def apply_corrections(self) -> None:
-        table = self.usable("corrections")
+        table = self.optional("corrections")
         if table is None:
             self.tables["corrections"] = _empty("corrections")
             return
@@ -417,10 +430,12 @@ class _Loader:
         activities = facts.source.activities
         if columns.require_columns(self.problems, activities):
             facts.activities = self.check_activities(activities, facts.data_date, facts.derived)
+        if facts.activities is not None:
+            facts.id_index = pd.Index(facts.activities["id"].drop_duplicates())
         links = facts.source.links
         if columns.require_columns(self.problems, links):
             ids = facts.activities["id"] if facts.activities is not None else None
-            facts.links = self.check_links(links, ids, facts.derived)
+            facts.links = self.check_links(links, ids, facts.derived, facts.id_index)
 
     def check_activities(self, table: RawTable, data_date: dt.date | None,
                          derived: dict | None = None) -> pd.DataFrame:
@@ -531,7 +546,8 @@ class _Loader:
         remaining = remaining.where(~complete, 0.0)
         return start, finish, remaining
 
-    def check_links(self, table: RawTable, ids: pd.Series | None, derived: dict | None = None) -> pd.DataFrame:
+    def check_links(self, table: RawTable, ids: pd.Series | None, derived: dict | None = None,
+                    nodes: pd.Index | None = None) -> pd.DataFrame:
         """Type and check one snapshot's links; codes found go into ``derived``
         (``type_codes`` by LINK_TYPES and, when every link is sound, ``link_numbers``: the
         activity rows of each link's ends, and, when there is no loop, ``network``: the
@@ -546,7 +562,8 @@ class _Loader:
         bad = no_pred | no_succ
         if ids is not None:
             fix = "add the activity to this snapshot's activities or correct the id"
-            nodes = pd.Index(ids.drop_duplicates())
+            if nodes is None:
+                nodes = pd.Index(ids.drop_duplicates())
             unknown, pred_at = columns.coded_references(
                 p, table, "pred", nodes, "the predecessor '{value}' is not an activity of this snapshot", fix)
             bad |= unknown
@@ -560,9 +577,13 @@ class _Loader:
         kind, type_codes = columns.coded_choices(p, table, "type", LINK_TYPES, default="FS", upper=True,
                                                  what="link type")
         lag = columns.integers(p, table, "lag", unit="work days (negative for a lead)", default=0)
+        ends = None  # the pair of activity numbers, where every link's ends are known
+        if ids is not None and not ((pred_at < 0) | (succ_at < 0))[~(no_pred | no_succ)].any():
+            ends = pred_at.astype(np.int64) * max(len(nodes), 1) + succ_at
         columns.duplicates(p, table, ["pred", "succ"], "pred",
                            lambda i: f"the link {pred.iat[i]}>{succ.iat[i]}",
-                           "keep one link from a predecessor to a successor", skip=no_pred | no_succ)
+                           "keep one link from a predecessor to a successor", skip=no_pred | no_succ,
+                           codes=ends)
         sound = ids is not None and not bad.any() and len(nodes) == len(ids) and bool((type_codes >= 0).all())
         network = None
         if sound:
@@ -599,7 +620,10 @@ class _Loader:
 
     def collect_activity_ids(self) -> None:
         frames = [f.activities["id"] for f in self.snapshots if f.activities is not None]
-        if frames:
+        indexes = [f.id_index for f in self.snapshots if f.id_index is not None]
+        if len(frames) == 1 and len(indexes) == 1:  # one programme: its index, hash table and all
+            self.all_activity_ids = indexes[0]
+        elif frames:
             self.all_activity_ids = pd.Index(pd.concat(frames, ignore_index=True).unique())
         elif not self.snapshots:
             self.all_activity_ids = pd.Index([], dtype="str")
@@ -690,9 +714,11 @@ class _Loader:
     # ------------------------------------------------------------------ registers
 
     def check_events(self) -> None:
-        table = self.usable("events")
+        table = self.optional("events")
         if table is None:
             self.tables["events"] = _empty("events")
+            if self.absent("events"):  # no register: no event for the other files to name
+                self.event_ids = []
             return
         p = self.problems
         frame = table.frame
@@ -781,7 +807,7 @@ class _Loader:
 
     def check_attributions(self) -> None:
         """attributions.csv (case-format v2): the analyst's attribution of a window's charge."""
-        table = self.usable("attributions")
+        table = self.optional("attributions")
         if table is None:
             self.tables["attributions"] = _empty("attributions")
             return
@@ -873,7 +899,7 @@ class _Loader:
                 "last in the baseline is then taken)", row=row, column=column)
 
     def check_fragnets(self) -> None:
-        table = self.usable("fragnets")
+        table = self.optional("fragnets")
         if table is None:
             self.tables["fragnets"] = _empty("fragnets")
             return
@@ -895,7 +921,7 @@ class _Loader:
         columns.duplicates(p, table, ["id"], "id", lambda i: f"the fragnet activity id '{ids.iat[i]}'",
                            "give every fragnet activity a different id", skip=no_id)
         if self.all_activity_ids is not None:
-            clash = ~no_id & ids.isin(self.all_activity_ids).to_numpy()
+            clash = ~no_id & columns.member(ids, self.all_activity_ids)
             p.flag(table, clash, "id", "the id '{value}' is already an activity of the programme",
                    "give the inserted activity an id of its own")
         duration = columns.integers(p, table, "duration", unit="work days", minimum=0,
@@ -907,7 +933,7 @@ class _Loader:
                                                            "calendar": calendar})
 
     def check_fragnet_links(self) -> None:
-        table = self.usable("fragnet_links")
+        table = self.optional("fragnet_links")
         if table is None:
             self.tables["fragnet_links"] = _empty("fragnet_links")
             return
@@ -929,7 +955,7 @@ class _Loader:
             for column, role in (("pred", "predecessor"), ("succ", "successor")):
                 own = [activity in self.fragnet_ids.get(event, ()) for event, activity
                        in zip(events.tolist(), frame[column].tolist())]
-                known = np.asarray(own, dtype=bool) | frame[column].isin(programme).to_numpy()
+                known = np.asarray(own, dtype=bool) | columns.member(frame[column], programme)
                 p.flag(table, ~known & (frame[column] != "").to_numpy(), column,
                        f"the {role} '{{value}}' is neither a fragnet activity of this event "
                        "nor an activity of the programme",
@@ -947,7 +973,7 @@ class _Loader:
         self.tables["fragnet_links"] = columns.assemble(table, {"type": kind, "lag": lag})
 
     def check_elements(self) -> None:
-        table = self.usable("elements")
+        table = self.optional("elements")
         if table is None:
             self.tables["elements"] = _empty("elements")
             return
@@ -967,9 +993,11 @@ class _Loader:
         self.tables["elements"] = columns.assemble(table, typed)
 
     def check_sections(self) -> None:
-        table = self.usable("sections")
+        table = self.optional("sections")
         if table is None:
             self.tables["sections"] = _empty("sections")
+            if self.absent("sections"):
+                self.section_ids = []
             return
         p = self.problems
         ids = table.frame["section"]
@@ -992,7 +1020,7 @@ class _Loader:
             table, {"contract_completion": completion, "liquidated_damages_per_day": rate})
 
     def check_extensions(self) -> None:
-        table = self.usable("extensions_granted")
+        table = self.optional("extensions_granted")
         if table is None:
             self.tables["extensions_granted"] = _empty("extensions_granted")
             return
@@ -1018,7 +1046,7 @@ class _Loader:
                                                                      "days": days})
 
     def check_prolongation_rates(self) -> None:
-        table = self.usable("prolongation_rates")
+        table = self.optional("prolongation_rates")
         if table is None:
             self.tables["prolongation_rates"] = _empty("prolongation_rates")
             return
@@ -1054,15 +1082,19 @@ def _names_asbuilt(text: pd.Series) -> np.ndarray:
 def _empty(name: str) -> pd.DataFrame:
     """The table ``name`` with no rows, its stable columns typed."""
     data = {}
+    empty: dict[object, pd.Series] = {}  # one empty column per type, shared (copy-on-write)
     for column in COLUMNS[name]:
         if column in columns.DATE_COLUMNS.get(name, ()):
-            data[column] = pd.Series([], dtype=columns.DATE_DTYPE)
+            dtype = columns.DATE_DTYPE
         elif column in columns.INTEGER_COLUMNS.get(name, ()):
-            data[column] = pd.Series([], dtype=np.int64)
+            dtype = np.int64
         elif column in columns.NUMBER_COLUMNS.get(name, ()):
-            data[column] = pd.Series([], dtype=np.float64)
+            dtype = np.float64
         elif column in columns.BOOLEAN_COLUMNS.get(name, ()):
-            data[column] = pd.Series([], dtype=bool)
+            dtype = bool
         else:
-            data[column] = pd.Series([], dtype="str")
+            dtype = "str"
+        if dtype not in empty:
+            empty[dtype] = pd.Series([], dtype=dtype)
+        data[column] = empty[dtype]
     return pd.DataFrame(data)

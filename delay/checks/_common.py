@@ -28,8 +28,6 @@ __all__ = [
     "scheduled",
     "model_of",
     "contract_completion_in_force",
-    "jsonable",
-    "frame_records",
     "link_keys",
 ]
 
@@ -104,44 +102,3 @@ def contract_completion_in_force(case: Case, at: dt.date | None = None) -> dt.da
 def link_keys(pred: np.ndarray, succ: np.ndarray) -> list[str]:
     """Links written ``pred>succ``, the case format's key of a link (corrections.csv)."""
     return [f"{p}>{s}" for p, s in zip(pred, succ)]
-
-
-def jsonable(value: Any) -> Any:
-    """A value ready for ``json.dumps``: numpy scalars to Python, dates to ISO text,
-    missing values (NaN, NaT, NA) to ``None``."""
-    if value is None:
-        return None
-    if isinstance(value, (str, bool)):
-        return value
-    if isinstance(value, (np.bool_,)):
-        return bool(value)
-    if isinstance(value, (int, np.integer)):
-        return int(value)
-    if isinstance(value, (float, np.floating)):
-        return None if math.isnan(value) else float(value)
-    if isinstance(value, pd.Timestamp):
-        return None if pd.isna(value) else value.date().isoformat()
-    if isinstance(value, np.datetime64):
-        return None if np.isnat(value) else str(value.astype("datetime64[D]"))
-    if isinstance(value, dt.datetime):
-        return value.date().isoformat()
-    if isinstance(value, dt.date):
-        return value.isoformat()
-    if isinstance(value, dict):
-        return {str(k): jsonable(v) for k, v in value.items()}
-    if isinstance(value, (list, tuple, np.ndarray)):
-        return [jsonable(v) for v in value]
-    if value is pd.NA or value is pd.NaT:
-        return None
-    try:
-        if pd.isna(value):
-            return None
-    except (TypeError, ValueError):
-        pass
-    return str(value)
-
-
-def frame_records(frame: pd.DataFrame) -> list[dict[str, Any]]:
-    """A DataFrame's rows as JSON-ready dictionaries (column order kept)."""
-    columns = list(frame.columns)
-    return [{c: jsonable(v) for c, v in zip(columns, row)} for row in frame.itertuples(index=False)]

@@ -1,4 +1,5 @@
-"""Compiled loops of the redundant-link check (numba).
+"""The loops of the redundant-link check: plain Python, compiled by numba on large networks
+(:class:`delay._jit.Kernel`).
 
 The links searched are the finish-to-start links with a lag of zero or more, held as a
 compressed adjacency by predecessor: the links out of activity ``v`` are
@@ -9,13 +10,17 @@ Everything else stays in numpy in :mod:`delay.checks.redundancy`.
 from __future__ import annotations
 
 import numpy as np
-from numba import njit
+
+from .._jit import sized
+
+__all__ = ["NO_PATH", "reach_chunk", "mark_implied", "longest_implied_lag", "two_link_paths"]
 
 NO_PATH = np.int64(-(1 << 60))  # "no path" in the longest implied lag
 
 
-@njit(cache=True)
-def reach_chunk(order, out_ptr, out_succ, target_column, first_column, words, reach):  # pragma: no cover
+# work: every link's words
+@sized(lambda a: (a[0].size + a[2].size) * a[5])
+def reach_chunk(order, out_ptr, out_succ, target_column, first_column, words, reach):
     """Descendants of every activity, restricted to ``words * 64`` target columns.
 
     ``reach[v]`` gets bit ``c - first_column`` for every target column ``c`` of an activity
@@ -35,9 +40,10 @@ def reach_chunk(order, out_ptr, out_succ, target_column, first_column, words, re
                 reach[v, column >> 6] |= np.uint64(1) << np.uint64(column & 63)
 
 
-@njit(cache=True)
+# work: links times successors, per word
+@sized(lambda a: a[2].size * (1 + a[2].size // max(a[0], 1)) * a[6])
 def mark_implied(n, out_ptr, out_succ, out_link, target_column, first_column, words, reach,
-                 implied, via):  # pragma: no cover
+                 implied, via):
     """Links ``u -> w`` (``w`` in this chunk of columns) for which another successor ``x``
     of ``u`` reaches ``w``: the link is implied by the path through ``x``."""
     width = words * 64
@@ -59,9 +65,10 @@ def mark_implied(n, out_ptr, out_succ, out_link, target_column, first_column, wo
                     break
 
 
-@njit(cache=True)
+# work: a stretch of the order per target
+@sized(lambda a: a[0].size * (1 + a[7].size))
 def longest_implied_lag(order, rank, out_ptr, out_succ, out_link, lag, duration, targets,
-                        group_ptr, group_links, pred, best, via):  # pragma: no cover
+                        group_ptr, group_links, pred, best, via):
     """The longest implied lag of an alternative path, for links with a positive lag.
 
     For each target activity ``w = targets[t]`` and its links ``group_links[group_ptr[t]:
@@ -112,8 +119,9 @@ def longest_implied_lag(order, rank, out_ptr, out_succ, out_link, lag, duration,
             gap[order[position]] = NO_PATH
 
 
-@njit(cache=True)
-def two_link_paths(out_ptr, out_succ, out_link, lag, duration, keys, key_links, n, implied, via):  # pragma: no cover
+# work: links times successors
+@sized(lambda a: a[1].size * (1 + a[1].size // max(a[7], 1)))
+def two_link_paths(out_ptr, out_succ, out_link, lag, duration, keys, key_links, n, implied, via):
     """Links ``u -> y`` implied by a path of two links ``u -> x -> y`` whose implied lag
     (lag + duration of ``x`` + lag) is at least the link's own lag. ``keys`` are the sorted
     ``u * n + y`` of the links searched, ``key_links`` their link numbers."""

@@ -40,7 +40,8 @@ import numpy as np
 import pandas as pd
 
 from ..model import Case, Snapshot
-from ._common import frame_records, resolve, scheduled
+from ..convert import json_records, text_cell
+from ._common import resolve, scheduled
 
 __all__ = ["Comparison", "compare", "CHANGE_KINDS", "CHANGE_COLUMNS", "REVISION_ORDER", "REVISION_KINDS"]
 
@@ -95,23 +96,11 @@ class Comparison:
     def to_json(self) -> dict:
         return {"earlier_snapshot": self.earlier_folder, "earlier_label": self.earlier,
                 "later_snapshot": self.later_folder, "later_label": self.later, "counts": self.counts(),
-                "changes": frame_records(self.changes)}
+                "changes": json_records(self.changes)}
 
 
 def _text(values) -> np.ndarray:
-    return np.asarray([_cell(v) for v in values], dtype=object)
-
-
-def _cell(value) -> str:
-    if value is None:
-        return ""
-    if isinstance(value, (float, np.floating)):
-        return "" if np.isnan(value) else f"{value:g}"
-    if isinstance(value, (np.datetime64, pd.Timestamp)):
-        return "" if pd.isna(value) else pd.Timestamp(value).date().isoformat()
-    if value is pd.NaT:
-        return ""
-    return str(value)
+    return np.asarray([text_cell(v) for v in values], dtype=object)
 
 
 def compare(case: Case, earlier: str | Snapshot, later: str | Snapshot) -> Comparison:
@@ -227,7 +216,7 @@ def _constraint(kind, date) -> str:
     kind = "" if kind is None or (isinstance(kind, float) and np.isnan(kind)) else str(kind)
     if not kind:
         return ""
-    return f"{kind} {_cell(date)}".strip()
+    return f"{kind} {text_cell(date)}".strip()
 
 
 def _link_numbers(first: Snapshot, second: Snapshot) -> tuple[np.ndarray, np.ndarray]:

@@ -26,7 +26,8 @@ import numpy as np
 import pandas as pd
 
 from ..model import Case, Snapshot
-from ._common import frame_records, ordered_snapshots, resolve
+from ..convert import json_records
+from ._common import ordered_snapshots, resolve
 
 __all__ = ["ElementChecks", "element_checks", "DUPLICATE_TOLERANCE_METRES", "BOX_COLUMNS"]
 
@@ -69,10 +70,10 @@ class ElementChecks:
             groups.append({"elements": [str(i) for i in group["element"]], "classification": str(first["classification"]),
                            "box": [float(first[c]) for c in BOX_COLUMNS]})
         return {
-            "unlinked_elements": {"count": len(self.unlinked_elements), "items": frame_records(self.unlinked_elements),
+            "unlinked_elements": {"count": len(self.unlinked_elements), "items": json_records(self.unlinked_elements),
                                   "note": "elements whose wbs matches no activity of any snapshot"},
             "unmodelled_activities": {"count": len(self.unmodelled_activities),
-                                      "items": frame_records(self.unmodelled_activities),
+                                      "items": json_records(self.unmodelled_activities),
                                       "note": self.note or "activities with a wbs that no element carries"},
             "duplicates": {"count": len(groups), "copies": int(len(self.duplicates) - len(groups)), "groups": groups,
                            "duplicate_ids": "checked at load",

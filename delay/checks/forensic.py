@@ -49,9 +49,11 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
-from ..cpm import COMPLETE, FINISH_MILESTONE, NO_DAY, START_MILESTONE, STATUS_NAMES, TASK
+from ..convert import NO_DAY, table_dates
+from ..cpm import COMPLETE, FINISH_MILESTONE, START_MILESTONE, STATUS_NAMES, TASK
 from ..model import Case, Snapshot
-from ._common import frame_records, model_of, previous_snapshot, resolve, scheduled
+from ..convert import json_records
+from ._common import model_of, previous_snapshot, resolve, scheduled
 from . import redundancy
 
 __all__ = ["DataCheck", "data_checks", "DATA_CHECK_KEYS", "ITEM_COLUMNS"]
@@ -95,7 +97,7 @@ class DataCheck:
 
     def to_json(self) -> dict:
         return {"key": self.key, "title": self.title, "status": self.status, "count": self.count,
-                "note": self.note, "items": frame_records(self.items)}
+                "note": self.note, "items": json_records(self.items)}
 
 
 def _frame(key: str, data: dict | pd.DataFrame | None) -> pd.DataFrame:
@@ -247,10 +249,6 @@ def _aligned_actuals(snap: Snapshot, earlier: Snapshot):
     return now, present, pairs
 
 
-def _dates(values: np.ndarray) -> pd.Series:
-    return pd.Series(values.astype("datetime64[s]"))
-
-
 def _actual_date_changes(snap: Snapshot, earlier: Snapshot | None) -> DataCheck:
     title = "Actual dates changed since the previous snapshot"
     if earlier is None:
@@ -263,7 +261,7 @@ def _actual_date_changes(snap: Snapshot, earlier: Snapshot | None) -> DataCheck:
         rows = np.flatnonzero(changed)
         parts.append(pd.DataFrame({
             "activity": now["id"].to_numpy(dtype=object)[rows], "column": column, "earlier_snapshot": earlier.folder,
-            "earlier_value": _dates(previous[rows]), "later_value": _dates(current[rows]), "_row": rows,
+            "earlier_value": table_dates(previous[rows]), "later_value": table_dates(current[rows]), "_row": rows,
         }))
     items = pd.concat(parts, ignore_index=True).sort_values(["_row", "column"], kind="stable")
     note = f"against '{earlier.label}'"
@@ -284,9 +282,9 @@ def _retrospective_edits(snap: Snapshot, earlier: Snapshot | None) -> DataCheck:
         entered = ~np.isnat(current) & (current < limit) & (np.isnat(previous) | (current != previous))
         rows = np.flatnonzero(entered)
         parts.append(pd.DataFrame({
-            "activity": now["id"].to_numpy(dtype=object)[rows], "column": column, "value": _dates(current[rows]),
+            "activity": now["id"].to_numpy(dtype=object)[rows], "column": column, "value": table_dates(current[rows]),
             "earlier_snapshot": earlier.folder, "earlier_data_date": pd.Timestamp(earlier.data_date),
-            "earlier_value": _dates(previous[rows]), "_row": rows,
+            "earlier_value": table_dates(previous[rows]), "_row": rows,
         }))
     items = pd.concat(parts, ignore_index=True).sort_values(["_row", "column"], kind="stable")
     absent = int((~present).sum())
@@ -314,17 +312,11 @@ def _out_of_sequence(snap: Snapshot, result) -> DataCheck:
     finish = model.actual_finish[net.pred[rows]]
     items = _frame("out_of_sequence", {
         "pred": net.ids[net.pred[rows]], "succ": net.ids[net.succ[rows]], "lag": net.lag[rows],
-        "succ_actual_start": _dates(_as_dates(model.actual_start[net.succ[rows]])),
-        "pred_actual_finish": _dates(_as_dates(finish)),
+        "succ_actual_start": table_dates(model.actual_start[net.succ[rows]]),
+        "pred_actual_finish": table_dates(finish),
     })
     return DataCheck("out_of_sequence", "Out-of-sequence progress", CHECKED, items,
                      "successors started before a finish-to-start predecessor (lag >= 0) finished")
-
-
-def _as_dates(days: np.ndarray) -> np.ndarray:
-    values = np.asarray(days, dtype=np.int64).astype("datetime64[D]")
-    values[np.asarray(days) == NO_DAY] = np.datetime64("NaT")
-    return values
 
 
 def _redundant(case: Case, snap: Snapshot) -> DataCheck:

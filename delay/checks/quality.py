@@ -86,10 +86,10 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
-from ..cpm import COMPLETE, NO_DAY, NOT_STARTED, ScheduleResult, TASK, day_to_date
-from ..calendars import to_days
+from ..convert import NO_DAY, day_to_date, json_cell, to_days
+from ..cpm import COMPLETE, NOT_STARTED, ScheduleResult, TASK
 from ..model import Case, Snapshot
-from ._common import contract_completion_in_force, jsonable, link_keys, model_of, resolve, scheduled
+from ._common import contract_completion_in_force, link_keys, model_of, resolve, scheduled
 
 __all__ = [
     "Metric",
@@ -142,8 +142,8 @@ class Metric:
 
     def to_json(self) -> dict:
         return {
-            "key": self.key, "title": self.title, "count": jsonable(self.count),
-            "denominator": jsonable(self.denominator), "percent": jsonable(self.percent),
+            "key": self.key, "title": self.title, "count": json_cell(self.count),
+            "denominator": json_cell(self.denominator), "percent": json_cell(self.percent),
             "threshold": self.threshold, "passed": self.passed,
             "activities": list(self.activities), "unit": self.unit, "note": self.note,
         }

@@ -21,6 +21,8 @@ import pandas as pd
 from ..errors import CaseError, Problem
 
 __all__ = [
+    "ifc_text",
+    "ifc_value",
     "csv_bytes",
     "FINDING_COLUMNS",
     "Findings",
@@ -102,6 +104,30 @@ class IsoDuration:
     @property
     def has_time_parts(self) -> bool:
         return bool(self.hours or self.minutes or self.seconds)
+
+
+def ifc_value(value):
+    """The plain value of an IFC attribute: a measure or label entity's ``wrappedValue``,
+    anything else as it is (``None`` stays ``None``)."""
+    if value is None:
+        return None
+    return value.wrappedValue if hasattr(value, "wrappedValue") else value
+
+
+def ifc_text(value) -> str:
+    """An IFC attribute as text: blank for none, a whole float without ``.0``, stripped.
+
+    Examples
+    --------
+    >>> ifc_text(None), ifc_text(3.0), ifc_text("  Level 1 ")
+    ('', '3', 'Level 1')
+    """
+    value = ifc_value(value)
+    if value is None:
+        return ""
+    if isinstance(value, float) and value.is_integer():
+        return str(int(value))
+    return str(value).strip()
 
 
 def parse_duration(text: str) -> IsoDuration | None:

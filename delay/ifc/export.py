@@ -61,7 +61,8 @@ import pandas as pd
 from ..cpm import FINISH_MILESTONE
 from ..errors import CaseError, Problem
 from ..model import Case, Snapshot
-from ..output import check_file_target, copy_csv, json_date, write_output_file
+from ..convert import iso_date
+from ..output import check_file_target, copy_csv, write_output_file
 from ._common import (
     ELEMENT_PSET,
     SCHEDULING_PSET,
@@ -500,7 +501,7 @@ def _write_tasks(writer: _Writer, snap: Snapshot, result, data_time: str) -> tup
                              Status=str(columns["status"][k]))
         tasks[identification] = task
         calendar_of.setdefault(str(row.calendar), []).append(task)
-        constraint_date = json_date(row.constraint_date)
+        constraint_date = iso_date(row.constraint_date)
         writer.pset(SCHEDULING_PSET, {
             "Kind": ("IfcLabel", str(row.kind)),
             "Constraint": ("IfcLabel", str(row.constraint or "")),

@@ -63,7 +63,7 @@ import pandas as pd
 
 from ..model import COLUMNS
 from ..output import OutputRefused, write_together
-from ._common import Findings, case_folder, csv_bytes, open_model, sha256_of, validate_in_copy
+from ._common import ifc_text, Findings, case_folder, csv_bytes, open_model, sha256_of, validate_in_copy
 
 __all__ = [
     "ModelRead",
@@ -126,22 +126,12 @@ class ModelImport:
 
 
 # -- reading --------------------------------------------------------------------------------------
-def _text(value) -> str:
-    if value is None:
-        return ""
-    if hasattr(value, "wrappedValue"):
-        value = value.wrappedValue
-    if isinstance(value, float) and value.is_integer():
-        return str(int(value))
-    return str(value).strip()
-
-
 def _property_value(prop) -> str:
     if prop.is_a("IfcPropertySingleValue"):
-        return _text(prop.NominalValue)
+        return ifc_text(prop.NominalValue)
     if prop.is_a("IfcPropertyEnumeratedValue"):
         values = prop.EnumerationValues or ()
-        return _text(values[0]) if values else ""
+        return ifc_text(values[0]) if values else ""
     return ""
 
 
@@ -176,7 +166,7 @@ def _classification_system(reference) -> str:
     source = reference
     while source is not None and seen < 50:
         if source.is_a("IfcClassification"):
-            return _text(source.Name)
+            return ifc_text(source.Name)
         source = getattr(source, "ReferencedSource", None)
         seen += 1
     return ""
@@ -185,8 +175,8 @@ def _classification_system(reference) -> str:
 def _reference_code(reference) -> str:
     for attribute in ("Identification", "ItemReference"):  # IFC 4, IFC 2x3
         if hasattr(reference, attribute) and getattr(reference, attribute):
-            return _text(getattr(reference, attribute))
-    return _text(getattr(reference, "Name", None))
+            return ifc_text(getattr(reference, attribute))
+    return ifc_text(getattr(reference, "Name", None))
 
 
 def _classifications(model) -> dict[int, list[tuple[str, str]]]:
@@ -235,7 +225,7 @@ def _storeys_and_zones(model):
 
 
 def _storey_name(storey) -> str:
-    return _text(storey.Name) or _text(getattr(storey, "LongName", None))
+    return ifc_text(storey.Name) or ifc_text(getattr(storey, "LongName", None))
 
 
 def _level(element, contained, referenced, parent) -> str:
@@ -267,7 +257,7 @@ def _zone(element, contained, referenced) -> str:
         zones.insert(0, holder)
     names = []
     for zone in zones:
-        name = _text(zone.Name) or _text(getattr(zone, "LongName", None))
+        name = ifc_text(zone.Name) or ifc_text(getattr(zone, "LongName", None))
         if name and name not in names:
             names.append(name)
     return "; ".join(names)
@@ -429,17 +419,17 @@ def _task_code(element, builders: dict[int, list], activity_wbs: dict[str, str],
     a task that is no activity of the baseline, and tasks of several codes, are findings."""
     codes = []
     for task in builders.get(element.id(), ()):
-        activity = _text(task.Identification)
+        activity = ifc_text(task.Identification)
         if activity in activity_wbs and activity_wbs[activity]:
             codes.append(activity_wbs[activity])
         elif activity:
             findings.add("task_not_in_baseline",
                          f"the task '{activity}' that builds it is not an activity of the baseline "
-                         "(or has no wbs there)", element, _text(element.Name))
+                         "(or has no wbs there)", element, ifc_text(element.Name))
     distinct = list(dict.fromkeys(codes))
     if len(distinct) > 1:
         findings.add("several_codes", f"the tasks that build it carry several wbs codes "
-                                      f"({', '.join(distinct)}); the first is taken", element, _text(element.Name))
+                                      f"({', '.join(distinct)}); the first is taken", element, ifc_text(element.Name))
     return distinct[0] if distinct else ""
 
 
@@ -471,10 +461,10 @@ def _element_box(element, boxes: dict[int, np.ndarray], children: dict[int, list
     if box is None:
         if element.Representation is None:
             findings.add("no_geometry", "the element has no shape representation; it is written without a box",
-                         element, _text(element.Name))
+                         element, ifc_text(element.Name))
         else:
             findings.add("geometry_failed", "the element's geometry could not be processed; it is written "
-                                            "without a box", element, _text(element.Name))
+                                            "without a box", element, ifc_text(element.Name))
     return box
 
 
@@ -489,7 +479,7 @@ def _element_row(element, global_id: str, wbs: str, class_code: str, source: str
         dx, dy, dz = (float(v) for v in np.round(high - low, _DECIMALS))
     contained, referenced = relations.contained, relations.referenced
     return {
-        "id": global_id, "name": _text(element.Name), "wbs": wbs, "classification": class_code,
+        "id": global_id, "name": ifc_text(element.Name), "wbs": wbs, "classification": class_code,
         "x": x, "y": y, "z": z, "dx": dx, "dy": dy, "dz": dz,
         "level": _level(element, contained, referenced, relations.parent),
         "zone": _zone(element, contained, referenced),
@@ -508,7 +498,7 @@ def _element_rows(physical: list, relations: _Relations, property_key: tuple[str
         global_id = str(element.GlobalId)
         if global_id in seen:
             findings.add("duplicate_global_id", "the GlobalId is used twice in the model; the first is kept",
-                         element, _text(element.Name))
+                         element, ifc_text(element.Name))
             continue
         seen.add(global_id)
         pairs = _own_or_type(element.id(), relations.classes, relations.types)
@@ -520,7 +510,7 @@ def _element_rows(physical: list, relations: _Relations, property_key: tuple[str
         if not wbs:
             findings.add("no_code", "no work breakdown code (property, classification or building task); "
                                     "the element is not written - give --code-property or --code-classification, "
-                                    "or assign it to the task that builds it", element, _text(element.Name))
+                                    "or assign it to the task that builds it", element, ifc_text(element.Name))
             continue
         rows.append(_element_row(element, global_id, wbs, class_code, source, box, relations))
     return rows

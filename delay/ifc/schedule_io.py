@@ -58,6 +58,8 @@ from ..errors import CaseError, Problem
 from ..model import ACTIVITY_KINDS, COLUMNS, CONSTRAINTS, WEEKDAYS
 from ..output import replace_directory, write_bytes
 from ._common import (
+    ifc_text,
+    ifc_value,
     SCHEDULING_PSET,
     Findings,
     IsoDuration,
@@ -189,21 +191,6 @@ class ScheduleImport:
 
 
 # -- small readers ---------------------------------------------------------------------------------
-def _value(value):
-    if value is None:
-        return None
-    return value.wrappedValue if hasattr(value, "wrappedValue") else value
-
-
-def _text(value) -> str:
-    value = _value(value)
-    if value is None:
-        return ""
-    if isinstance(value, float) and value.is_integer():
-        return str(int(value))
-    return str(value).strip()
-
-
 def _psets_named(model, name: str) -> dict[int, dict[str, object]]:
     """Values of the property set ``name`` by entity id of the object it defines."""
     found: dict[int, dict[str, object]] = {}
@@ -216,7 +203,7 @@ def _psets_named(model, name: str) -> dict[int, dict[str, object]]:
             values = {}
             for prop in pset.HasProperties or ():
                 if prop.is_a("IfcPropertySingleValue"):
-                    values[prop.Name] = _value(prop.NominalValue)
+                    values[prop.Name] = ifc_value(prop.NominalValue)
             for obj in rel.RelatedObjects or ():
                 found.setdefault(obj.id(), {}).update(values)
     return found
@@ -275,23 +262,23 @@ def _dates_of(work_time, pattern, limit_first: dt.date, limit_last: dt.date,
                             days.append(dt.date(year, int(month), int(day)))
                         except ValueError:
                             continue
-            findings.add("calendar", f"the recurring {what} '{_text(work_time.Name)}' is written out for the years "
-                                     f"{limit_first.year} to {limit_last.year}", calendar, _text(calendar.Name))
+            findings.add("calendar", f"the recurring {what} '{ifc_text(work_time.Name)}' is written out for the years "
+                                     f"{limit_first.year} to {limit_last.year}", calendar, ifc_text(calendar.Name))
             return sorted(days)
-        findings.add("calendar", f"the undated {what} '{_text(work_time.Name)}' ({recurrence or 'no pattern'}) "
-                                 "cannot be mapped to dates; it is left out", calendar, _text(calendar.Name))
+        findings.add("calendar", f"the undated {what} '{ifc_text(work_time.Name)}' ({recurrence or 'no pattern'}) "
+                                 "cannot be mapped to dates; it is left out", calendar, ifc_text(calendar.Name))
         return []
     if start is None or finish is None:
-        findings.add("calendar", f"the {what} '{_text(work_time.Name)}' has only one end date; it is taken as a "
-                                 "single day", calendar, _text(calendar.Name))
+        findings.add("calendar", f"the {what} '{ifc_text(work_time.Name)}' has only one end date; it is taken as a "
+                                 "single day", calendar, ifc_text(calendar.Name))
         start = finish = start or finish
     if finish < start:
-        findings.add("calendar", f"the {what} '{_text(work_time.Name)}' ends before it starts; it is left out",
-                     calendar, _text(calendar.Name))
+        findings.add("calendar", f"the {what} '{ifc_text(work_time.Name)}' ends before it starts; it is left out",
+                     calendar, ifc_text(calendar.Name))
         return []
     if (finish - start).days > 3660:
-        findings.add("calendar", f"the {what} '{_text(work_time.Name)}' spans more than ten years; it is cut "
-                                 "to ten years", calendar, _text(calendar.Name))
+        findings.add("calendar", f"the {what} '{ifc_text(work_time.Name)}' spans more than ten years; it is cut "
+                                 "to ten years", calendar, ifc_text(calendar.Name))
         finish = start + dt.timedelta(days=3660)
     days = [start + dt.timedelta(days=k) for k in range((finish - start).days + 1)]
     if recurrence in (None, "DAILY"):
@@ -299,8 +286,8 @@ def _dates_of(work_time, pattern, limit_first: dt.date, limit_last: dt.date,
     if recurrence == "WEEKLY" and pattern.WeekdayComponent:
         weekdays = {int(d) - 1 for d in pattern.WeekdayComponent}
         return [d for d in days if d.weekday() in weekdays]
-    findings.add("calendar", f"the {what} '{_text(work_time.Name)}' recurs {recurrence}, which is not mapped; "
-                             "every day of its dates is taken", calendar, _text(calendar.Name))
+    findings.add("calendar", f"the {what} '{ifc_text(work_time.Name)}' recurs {recurrence}, which is not mapped; "
+                             "every day of its dates is taken", calendar, ifc_text(calendar.Name))
     return days
 
 
@@ -309,7 +296,7 @@ def read_calendar(calendar, findings: Findings, first: dt.date, last: dt.date) -
 
     ``first`` and ``last`` bound the years over which a yearly exception is written out.
     """
-    name = _text(calendar.Name) or _text(calendar.Identification) or f"ifc-{calendar.id()}"
+    name = ifc_text(calendar.Name) or ifc_text(calendar.Identification) or f"ifc-{calendar.id()}"
     mask = [False] * 7
     dated_working = []
     hours = None
@@ -326,7 +313,7 @@ def read_calendar(calendar, findings: Findings, first: dt.date, last: dt.date) -
                 if 1 <= int(day) <= 7:
                     mask[int(day) - 1] = True
         else:
-            findings.add("calendar", f"the working time '{_text(work_time.Name)}' recurs {recurrence}, which "
+            findings.add("calendar", f"the working time '{ifc_text(work_time.Name)}' recurs {recurrence}, which "
                                      "is not mapped; it is left out", calendar, name)
             continue
         if pattern is not None and pattern.TimePeriods:
@@ -347,11 +334,11 @@ def read_calendar(calendar, findings: Findings, first: dt.date, last: dt.date) -
         for day in _dates_of(work_time, work_time.RecurrencePattern, first, last, findings,
                              "working time", calendar):
             if not mask[day.weekday()]:
-                result.extra_workdays[day] = _text(work_time.Name)
+                result.extra_workdays[day] = ifc_text(work_time.Name)
     for work_time in calendar.ExceptionTimes or ():
         for day in _dates_of(work_time, work_time.RecurrencePattern, first, last, findings,
                              "exception time", calendar):
-            result.holidays[day] = _text(work_time.Name)
+            result.holidays[day] = ifc_text(work_time.Name)
             result.extra_workdays.pop(day, None)
     if not any(result.weekmask) and not result.extra_workdays:
         findings.add("calendar", "the calendar has no work day; Monday to Friday is taken", calendar, name)
@@ -366,13 +353,13 @@ def _pick_schedule(model, wanted: str | None, path: Path):
                                 fix="export the programme as an IFC work schedule"))
     if wanted is not None:
         for schedule in schedules:
-            if wanted in (_text(schedule.Name), _text(schedule.Identification), str(schedule.GlobalId)):
+            if wanted in (ifc_text(schedule.Name), ifc_text(schedule.Identification), str(schedule.GlobalId)):
                 return schedule
-        names = ", ".join(f"'{_text(s.Name) or s.GlobalId}'" for s in schedules)
+        names = ", ".join(f"'{ifc_text(s.Name) or s.GlobalId}'" for s in schedules)
         raise CaseError(Problem(file=str(path), message=f"no work schedule '{wanted}' in the file (it holds {names})",
                                 fix="name one of them with --work-schedule"))
     if len(schedules) > 1:
-        names = ", ".join(f"'{_text(s.Name) or s.GlobalId}'" for s in schedules)
+        names = ", ".join(f"'{ifc_text(s.Name) or s.GlobalId}'" for s in schedules)
         raise CaseError(Problem(file=str(path), message=f"the file holds {len(schedules)} work schedules ({names})",
                                 fix="choose one with --work-schedule NAME"))
     return schedules[0]
@@ -423,7 +410,7 @@ def _schedule_tasks(schedule, children: dict[int, list], path: Path) -> tuple[li
         tasks.append(task)
         stack.extend(reversed(children.get(task.id(), [])))
     if not tasks:
-        raise CaseError(Problem(file=str(path), message=f"the work schedule '{_text(schedule.Name)}' has no task",
+        raise CaseError(Problem(file=str(path), message=f"the work schedule '{ifc_text(schedule.Name)}' has no task",
                                 fix="assign its tasks to it (IfcRelAssignsToControl)"))
     return tasks, seen
 
@@ -433,7 +420,7 @@ def _leaf_tasks(tasks: list, children: dict[int, list], findings: Findings) -> l
     leaves = [t for t in tasks if not children.get(t.id())]
     for summary in (t for t in tasks if children.get(t.id())):
         findings.add("summary_task", f"a summary task of {len(children[summary.id()])} tasks: its tasks are read, "
-                                     "it is not an activity", summary, _text(summary.Identification))
+                                     "it is not an activity", summary, ifc_text(summary.Identification))
     return leaves
 
 
@@ -504,11 +491,11 @@ def _task_ids(leaves: list, findings: Findings, path: Path) -> dict[int, str]:
     used: dict[str, object] = {}
     problems = []
     for task in leaves:
-        identification = _text(task.Identification)
+        identification = ifc_text(task.Identification)
         if not identification:
             identification = str(task.GlobalId)
             findings.add("no_identification", "the task has no Identification; its GlobalId is its id", task,
-                         _text(task.Name))
+                         ifc_text(task.Name))
         if identification in used:
             problems.append(Problem(file=str(path), message=f"the task Identification '{identification}' is used by "
                                                             f"#{used[identification].id()} and #{task.id()}",
@@ -538,14 +525,14 @@ def _read_links(model, ids: dict[int, str], seen: set[int], findings: Findings
             continue  # another work schedule's link
         if not (in_pred and in_succ):
             findings.add("link", "a link to or from a summary task or a task outside the work schedule is "
-                                 "left out", rel, f"{_text(pred.Identification)}>{_text(succ.Identification)}")
+                                 "left out", rel, f"{ifc_text(pred.Identification)}>{ifc_text(succ.Identification)}")
             continue
         kind = rel.SequenceType
         link_type = SEQUENCE_TYPES.get(kind or "")
         if link_type is None:
             link_type = "FS"
             findings.add("link", f"the sequence type {kind or 'not given'} "
-                                 f"({_text(rel.UserDefinedSequenceType) or 'no user-defined type'}) is read as FS",
+                                 f"({ifc_text(rel.UserDefinedSequenceType) or 'no user-defined type'}) is read as FS",
                          rel, f"{ids[pred.id()]}>{ids[succ.id()]}")
         key = (ids[pred.id()], ids[succ.id()])
         if key[0] == key[1]:
@@ -576,14 +563,14 @@ def _lag_days(rel, predecessor_duration: int, calendar: CalendarRead | None, fin
         findings.add("lag", f"a lag of {float(value.wrappedValue):g} of the predecessor's duration is taken as "
                             f"{lag:g} work days", rel, subject)
         return lag
-    parsed = parse_duration(_text(value))
+    parsed = parse_duration(ifc_text(value))
     if parsed is None:
-        findings.add("lag", f"the lag '{_text(value)}' is not an ISO 8601 duration; it is taken as 0", rel, subject)
+        findings.add("lag", f"the lag '{ifc_text(value)}' is not an ISO 8601 duration; it is taken as 0", rel, subject)
         return None
     if lag_time.DurationType == "ELAPSEDTIME":
         elapsed = parsed.sign * (parsed.weeks * 7 + parsed.days)
         lag = elapsed * (calendar.workdays_per_week if calendar is not None else 5) / 7
-        findings.add("lag", f"the lag '{_text(value)}' is elapsed time; it is taken as {lag:g} work days", rel,
+        findings.add("lag", f"the lag '{ifc_text(value)}' is elapsed time; it is taken as {lag:g} work days", rel,
                      subject)
         return lag
     return _work_days(parsed, calendar, findings, rel, subject, "lag")
@@ -695,7 +682,7 @@ def _activity_kind(task, facts: dict, duration: int, has_predecessor: set[int], 
                    findings: Findings) -> str:
     """The activity's kind: our property set's, else from IsMilestone (a start milestone when
     nothing precedes it); anything with a duration is a task."""
-    kind = _text(facts.get("Kind"))
+    kind = ifc_text(facts.get("Kind"))
     if kind not in ACTIVITY_KINDS:
         if kind:
             findings.add("kind", f"the kind '{kind}' is not one of {', '.join(ACTIVITY_KINDS)}", task,
@@ -711,7 +698,7 @@ def _activity_kind(task, facts: dict, duration: int, has_predecessor: set[int], 
 def _activity_constraint(task, facts: dict, identification: str, findings: Findings) -> tuple[str, dt.date | None]:
     """The constraint of our property set and its date; an unknown one, or one without its
     date, is left out (a finding)."""
-    constraint = _text(facts.get("Constraint"))
+    constraint = ifc_text(facts.get("Constraint"))
     constraint_date = parse_date(facts.get("ConstraintDate"))
     if constraint and constraint not in CONSTRAINTS:
         findings.add("constraint", f"the constraint '{constraint}' is not one of {', '.join(CONSTRAINTS)}; "
@@ -752,16 +739,16 @@ def _activity_row(task, identification: str, calendar: CalendarRead | None, fact
     duration = _whole_duration(times, task, identification, findings)
     kind = _activity_kind(task, facts, duration, has_predecessor, identification, findings)
     constraint, constraint_date = _activity_constraint(task, facts, identification, findings)
-    wbs = _text(facts.get("WorkBreakdownCode"))
+    wbs = ifc_text(facts.get("WorkBreakdownCode"))
     if not wbs and task.id() in parent:
-        wbs = _text(parent[task.id()].Identification)
+        wbs = ifc_text(parent[task.id()].Identification)
     actual_start, remaining_text = _progress(times, kind, duration, task, identification, findings)
     actual_finish = times.actual_finish
     return {
-        "id": identification, "name": _text(task.Name), "duration": str(duration),
+        "id": identification, "name": ifc_text(task.Name), "duration": str(duration),
         "calendar": calendar.name if calendar is not None else "", "wbs": wbs, "kind": kind,
         "constraint": constraint, "constraint_date": constraint_date.isoformat() if constraint else "",
-        "party": _text(facts.get("Party")), "risk": "",
+        "party": ifc_text(facts.get("Party")), "risk": "",
         "actual_start": actual_start.isoformat() if actual_start else "",
         "actual_finish": actual_finish.isoformat() if actual_finish else "",
         "remaining": remaining_text,
@@ -805,7 +792,7 @@ def _work_schedule_read(schedule, schedule_facts: dict, calendars: dict[str, Cal
     dates_frame = pd.DataFrame(file_dates, columns=["id", "start", "finish"])
     for column in ("start", "finish"):
         dates_frame[column] = pd.to_datetime(dates_frame[column])
-    return WorkScheduleRead(_text(schedule.Name), activities, links, calendars, data_date, schedule_facts,
+    return WorkScheduleRead(ifc_text(schedule.Name), activities, links, calendars, data_date, schedule_facts,
                             dates_frame, findings.frame(), parse_date(schedule.StartTime))
 
 

@@ -54,7 +54,8 @@ from typing import Sequence
 import numpy as np
 import pandas as pd
 
-from ..cpm import COMPLETE, NO_DAY, ScheduleModel, calendars_of, day_to_date, prepare
+from ..convert import NO_DAY, day_to_date
+from ..cpm import COMPLETE, ScheduleModel, calendars_of, prepare
 from ..errors import CaseError, Problem, ReconciliationError
 from ..convert import split_ids
 from ..events import completion_activity

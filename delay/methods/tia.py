@@ -46,7 +46,8 @@ from dataclasses import dataclass, field
 import numpy as np
 import pandas as pd
 
-from ..cpm import NO_DAY, calendars_of, day_to_date, prepare
+from ..convert import NO_DAY, day_to_date
+from ..cpm import calendars_of, prepare
 from ..errors import ReconciliationError
 from ..convert import split_ids
 from ..memo import remembered

@@ -73,7 +73,8 @@ import numpy as np
 import pandas as pd
 
 from ..calendars import CalendarSet
-from ..cpm import COMPLETE, NO_DAY, ScheduleModel, ScheduleResult, calendars_of, day_to_date, prepare
+from ..convert import NO_DAY, day_to_date
+from ..cpm import COMPLETE, ScheduleModel, ScheduleResult, calendars_of, prepare
 from ..network import build_network
 from ..errors import CaseError, Problem, ReconciliationError
 from ..events import CONCURRENT, activity_risk, attributions, completion_activity, events_naming, match_events
