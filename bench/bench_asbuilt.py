@@ -18,12 +18,13 @@ from pathlib import Path
 sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
 sys.path.insert(0, str(Path(__file__).resolve().parent))
 
-from delay.case import load_case  # noqa: E402
-from delay.cpm import schedule  # noqa: E402
-from delay.memo import forget  # noqa: E402
-from delay.methods.asbuilt import compare  # noqa: E402
-from delay.synth import synthesise  # noqa: E402
-from timing import median_time  # noqa: E402
+from timing import median_time
+
+from delay.case import load_case
+from delay.cpm import schedule
+from delay.memo import forget
+from delay.methods.asbuilt import compare
+from delay.synth import synthesise
 
 
 def main() -> None:
@@ -34,8 +35,10 @@ def main() -> None:
     with tempfile.TemporaryDirectory() as tmp:
         synthesise(Path(tmp) / "case", args.activities, updates=1, seed=3)
         case = load_case(Path(tmp) / "case")
-    print(f"{len(case.baseline.activities)} activities, {len(case.baseline.links)} links, one update and the "
-          "as-built record")
+    print(
+        f"{len(case.baseline.activities)} activities, {len(case.baseline.links)} links, one update and the "
+        "as-built record"
+    )
     schedule(case)  # the kernels compiled once
 
     def peer():
@@ -51,8 +54,10 @@ def main() -> None:
     result = compare(case)
     print(f"peer: schedule the baseline and the as-built : {plain:7.2f} s")
     print(f"as-planned versus as-built                  : {took:7.2f} s   ratio to peer = {took / plain:5.1f}x")
-    print(f"{len(result.critical_path)} activities on the as-built critical path; completion variance "
-          f"{result.completion_variance_days} calendar days")
+    print(
+        f"{len(result.critical_path)} activities on the as-built critical path; completion variance "
+        f"{result.completion_variance_days} calendar days"
+    )
 
 
 if __name__ == "__main__":

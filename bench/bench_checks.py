@@ -61,8 +61,9 @@ def searched_network(activities: int, seed: int):
     index = pd.Index(table["id"])
     pred = index.get_indexer(links["pred"]).astype(np.int64)
     succ = index.get_indexer(links["succ"]).astype(np.int64)
-    network = build_network(table["id"].to_numpy(dtype=object), pred, succ, np.zeros(pred.size, np.int8),
-                            np.zeros(pred.size, np.int64))
+    network = build_network(
+        table["id"].to_numpy(dtype=object), pred, succ, np.zeros(pred.size, np.int8), np.zeros(pred.size, np.int64)
+    )
     graph = nx.DiGraph()
     graph.add_nodes_from(range(len(table)))
     graph.add_edges_from(zip(pred.tolist(), succ.tolist()))
@@ -85,12 +86,16 @@ def main() -> None:
 
         start = time.perf_counter()
         root = synthesise(folder / "case", args.activities, updates=2, seed=args.seed, elements=args.elements)
-        print(f"synthetic case of {args.activities} activities, {args.elements} elements: "
-              f"{time.perf_counter() - start:.1f} s to write")
+        print(
+            f"synthetic case of {args.activities} activities, {args.elements} elements: "
+            f"{time.perf_counter() - start:.1f} s to write"
+        )
         load_seconds, case = timed(load_case, root)
         snap = case.snapshot("u02")
-        print(f"loaded in {load_seconds:.2f} s: {len(snap.activities_table)} activities, "
-              f"{len(snap.links_table)} links in u02")
+        print(
+            f"loaded in {load_seconds:.2f} s: {len(snap.activities_table)} activities, "
+            f"{len(snap.links_table)} links in u02"
+        )
 
         # Everything for one snapshot from cold (its schedules included).
         cold, _ = timed(check_snapshot, case, "u02")
@@ -107,8 +112,14 @@ def main() -> None:
         peer_small, reduced = timed(nx.transitive_reduction, graph)
         expected = np.array([not reduced.has_edge(p, q) for p, q in zip(network.pred.tolist(), network.succ.tolist())])
         agree = bool((found.redundant == expected).all())
-        rows.append((f"redundant links, {args.peer_activities} activities", ours_small,
-                     "networkx.transitive_reduction", peer_small))
+        rows.append(
+            (
+                f"redundant links, {args.peer_activities} activities",
+                ours_small,
+                "networkx.transitive_reduction",
+                peer_small,
+            )
+        )
         model = model_of(case, snap)
         ours_large, large = timed(redundant_links, model.network, model.duration, repeat=3)
         rows.append((f"redundant links, {model.network.size} activities", ours_large, "", None))
@@ -129,10 +140,17 @@ def main() -> None:
 
         elements = case.elements
         element_seconds, element_result = timed(element_checks, case, "u02", repeat=3)
-        peer_seconds, _ = timed(lambda: elements.duplicated(["classification", "x", "y", "z", "dx", "dy", "dz"],
-                                                            keep=False).sum(), repeat=3)
-        rows.append((f"element checks, {len(elements)} elements", element_seconds,
-                     "pandas duplicated (exact copies only)", peer_seconds))
+        peer_seconds, _ = timed(
+            lambda: elements.duplicated(["classification", "x", "y", "z", "dx", "dy", "dz"], keep=False).sum(), repeat=3
+        )
+        rows.append(
+            (
+                f"element checks, {len(elements)} elements",
+                element_seconds,
+                "pandas duplicated (exact copies only)",
+                peer_seconds,
+            )
+        )
 
         width = max(len(r[0]) for r in rows)
         print(f"{'family':<{width}}  {'ours':>8}  {'peer':>8}  {'ratio':>7}  peer")
@@ -141,13 +159,17 @@ def main() -> None:
                 print(f"{name:<{width}}  {ours:8.3f}")
             else:
                 print(f"{name:<{width}}  {ours:8.3f}  {peer:8.3f}  {ours / peer:7.3g}  {peer_name}")
-        print(f"\nredundant links found: {int(large.redundant.sum())} of {model.network.link_count} links "
-              f"(exact: {large.exact}); on the peer programme ours and networkx agree link by link: {agree}")
+        print(
+            f"\nredundant links found: {int(large.redundant.sum())} of {model.network.link_count} links "
+            f"(exact: {large.exact}); on the peer programme ours and networkx agree link by link: {agree}"
+        )
         counts = {c.key: c.count for c in checks}
         print(f"data checks: {counts}")
         print(f"comparison: {comparison.counts()}")
-        print(f"elements: {len(element_result.unlinked_elements)} unlinked, "
-              f"{len(element_result.duplicate_groups())} duplicate groups")
+        print(
+            f"elements: {len(element_result.unlinked_elements)} unlinked, "
+            f"{len(element_result.duplicate_groups())} duplicate groups"
+        )
         print("(ratio = ours / peer: below 1 we are faster; the peers do less, see the docstring)")
     finally:
         shutil.rmtree(folder, ignore_errors=True)

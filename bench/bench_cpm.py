@@ -44,10 +44,11 @@ import networkx as nx
 sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
 sys.path.insert(0, str(Path(__file__).resolve().parent))
 
-from delay.case import load_case  # noqa: E402
-from delay.cpm import prepare, schedule  # noqa: E402
-from delay.synth import synthesise  # noqa: E402
-from timing import median_time  # noqa: E402
+from timing import median_time
+
+from delay.case import load_case
+from delay.cpm import prepare, schedule
+from delay.synth import synthesise
 
 
 def per_node_cpm(graph: nx.DiGraph, duration: dict) -> dict:
@@ -92,8 +93,12 @@ def per_node_cpm(graph: nx.DiGraph, duration: dict) -> dict:
 def main() -> None:
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     parser.add_argument("--activities", type=int, default=100_000)
-    parser.add_argument("--links-per-activity", type=float, default=2.9,
-                        help="2.9 gives about 250,000 distinct links for 100,000 activities")
+    parser.add_argument(
+        "--links-per-activity",
+        type=float,
+        default=2.9,
+        help="2.9 gives about 250,000 distinct links for 100,000 activities",
+    )
     parser.add_argument("--repeat", type=int, default=5)
     args = parser.parse_args()
 
@@ -107,15 +112,16 @@ def main() -> None:
         print(f"loaded in {time.perf_counter() - start:.2f} s")
         snap = case.baseline
         activities, links = snap.activities, snap.links
-        print(f"network: {len(activities)} activities, {len(links)} links, "
-              f"link types {links['type'].value_counts().to_dict()}, calendars {sorted(activities['calendar'].unique())}")
+        print(
+            f"network: {len(activities)} activities, {len(links)} links, "
+            f"link types {links['type'].value_counts().to_dict()}, calendars {sorted(activities['calendar'].unique())}"
+        )
 
         # the peers' graphs are built outside the timing
         duration = dict(zip(activities["id"], activities["duration"].astype(int)))
         fs_graph = nx.DiGraph()
         fs_graph.add_nodes_from(activities["id"])
-        fs_graph.add_weighted_edges_from(
-            (p, s, duration[p]) for p, s in zip(links["pred"], links["succ"]))
+        fs_graph.add_weighted_edges_from((p, s, duration[p]) for p, s in zip(links["pred"], links["succ"]))
         typed_graph = nx.DiGraph()
         typed_graph.add_nodes_from(activities["id"])
         for p, s, t, lag in zip(links["pred"], links["succ"], links["type"], links["lag"]):
@@ -194,28 +200,42 @@ def main() -> None:
 
     peak = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024
     print()
-    print(f"ours, first schedule after loading, driving path  : {first_time * 1000:9.1f} ms"
-          "   (compile from the loaded case, both passes, floats, driving flags and path)")
-    print(f"ours, the same with the network compiled anew     : {compile_time * 1000:9.1f} ms"
-          "   (topological sort and pass layout inside the timing)")
+    print(
+        f"ours, first schedule after loading, driving path  : {first_time * 1000:9.1f} ms"
+        "   (compile from the loaded case, both passes, floats, driving flags and path)"
+    )
+    print(
+        f"ours, the same with the network compiled anew     : {compile_time * 1000:9.1f} ms"
+        "   (topological sort and pass layout inside the timing)"
+    )
     print(f"ours, the same again (the compiled arrays kept)    : {ours_time * 1000:9.1f} ms")
     print(f"ours, the same from bare tables (no loader codes)  : {tables_time * 1000:9.1f} ms")
     print(f"ours, the same and the result DataFrame            : {table_time * 1000:9.1f} ms")
     print(f"ours, both passes + floats on the compiled model   : {passes_time * 1000:9.1f} ms")
-    for name, peer, ratio in (("peer (a) networkx dag_longest_path_length (FS only)", peer_a, ratio_a),
-                              ("peer (b) per-node CPM over networkx topological_sort", peer_b,
-                               statistics.median(ratio_b))):
-        print(f"{name}: {peer * 1000:9.1f} ms   ratio peer/ours = {ratio:6.1f}x after loading, "
-              f"{peer / compile_time:5.1f}x network compiled anew, {peer / ours_time:5.1f}x arrays kept, "
-              f"{peer / tables_time:5.1f}x from bare tables")
-    print("peer (b) / ours after loading, each repetition   : "
-          + " ".join(f"{r:.1f}" for r in ratio_b) + f"  (lowest {min(ratio_b):.1f}x)")
+    for name, peer, ratio in (
+        ("peer (a) networkx dag_longest_path_length (FS only)", peer_a, ratio_a),
+        ("peer (b) per-node CPM over networkx topological_sort", peer_b, statistics.median(ratio_b)),
+    ):
+        print(
+            f"{name}: {peer * 1000:9.1f} ms   ratio peer/ours = {ratio:6.1f}x after loading, "
+            f"{peer / compile_time:5.1f}x network compiled anew, {peer / ours_time:5.1f}x arrays kept, "
+            f"{peer / tables_time:5.1f}x from bare tables"
+        )
+    print(
+        "peer (b) / ours after loading, each repetition   : "
+        + " ".join(f"{r:.1f}" for r in ratio_b)
+        + f"  (lowest {min(ratio_b):.1f}x)"
+    )
     # the what-if's peer: a full schedule from the case tables (bare: everything read from
     # the tables' text); beside it, the first schedule after loading
-    for name, took in (("what-if re-schedule, completion (one longer duration)", what_if_time),
-                       ("what-if re-schedule, all dates and floats           ", what_if_full_time)):
-        print(f"{name}: {took * 1000:7.1f} ms   {tables_time / took:5.1f}x faster than a full schedule from the "
-              f"case tables, {first_time / took:4.1f}x than the first schedule after loading")
+    for name, took in (
+        ("what-if re-schedule, completion (one longer duration)", what_if_time),
+        ("what-if re-schedule, all dates and floats           ", what_if_full_time),
+    ):
+        print(
+            f"{name}: {took * 1000:7.1f} ms   {tables_time / took:5.1f}x faster than a full schedule from the "
+            f"case tables, {first_time / took:4.1f}x than the first schedule after loading"
+        )
     print(f"peak resident memory                               : {peak:9.0f} MiB")
 
 

@@ -28,12 +28,13 @@ import pandas as pd
 sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
 sys.path.insert(0, str(Path(__file__).resolve().parent))
 
-from delay.case import load_case  # noqa: E402
-from delay.cpm import prepare, schedule  # noqa: E402
-from delay.memo import forget  # noqa: E402
-from delay.methods.impacted import analyse  # noqa: E402
-from delay.synth import synthesise  # noqa: E402
-from timing import median_time  # noqa: E402
+from timing import median_time
+
+from delay.case import load_case
+from delay.cpm import prepare, schedule
+from delay.memo import forget
+from delay.methods.impacted import analyse
+from delay.synth import synthesise
 
 
 def write_register(folder: Path, count: int, seed: int) -> dict[str, int]:
@@ -55,26 +56,55 @@ def write_register(folder: Path, count: int, seed: int) -> dict[str, int]:
         finish = first_start + dt.timedelta(days=int(rng.integers(0, 20)))
         start = min(start, finish)
         kind = str(kinds[number])
-        events.append({"id": event_id, "title": f"Synthetic event {number + 1}", "party": parties[number],
-                       "start": start.isoformat(), "finish": finish.isoformat(),
-                       "activities": ";".join(affected["id"]), "impact": kind,
-                       "days": int(rng.integers(1, 16)) if kind == "extend" else ""})
+        events.append(
+            {
+                "id": event_id,
+                "title": f"Synthetic event {number + 1}",
+                "party": parties[number],
+                "start": start.isoformat(),
+                "finish": finish.isoformat(),
+                "activities": ";".join(affected["id"]),
+                "impact": kind,
+                "days": int(rng.integers(1, 16)) if kind == "extend" else "",
+            }
+        )
         if kind == "fragnet":
             size = int(rng.integers(2, 4))
             ids = [f"{event_id}-N{k + 1}" for k in range(size)]
             for k, activity in enumerate(ids):
-                fragnets.append({"event": event_id, "id": activity, "name": f"Inserted work {k + 1}",
-                                 "duration": int(rng.integers(1, 11))})
+                fragnets.append(
+                    {
+                        "event": event_id,
+                        "id": activity,
+                        "name": f"Inserted work {k + 1}",
+                        "duration": int(rng.integers(1, 11)),
+                    }
+                )
             for pred, succ in zip(ids, ids[1:]):
-                fragnet_links.append({"event": event_id, "pred": pred, "succ": succ,
-                                      "type": str(rng.choice(["FS", "SS"])), "lag": int(rng.integers(0, 3))})
+                fragnet_links.append(
+                    {
+                        "event": event_id,
+                        "pred": pred,
+                        "succ": succ,
+                        "type": str(rng.choice(["FS", "SS"])),
+                        "lag": int(rng.integers(0, 3)),
+                    }
+                )
             for target in affected["id"]:
-                fragnet_links.append({"event": event_id, "pred": ids[-1], "succ": target,
-                                      "type": str(rng.choice(["FS", "FF"])), "lag": 0})
+                fragnet_links.append(
+                    {
+                        "event": event_id,
+                        "pred": ids[-1],
+                        "succ": target,
+                        "type": str(rng.choice(["FS", "FF"])),
+                        "lag": 0,
+                    }
+                )
     pd.DataFrame(events).to_csv(folder / "events.csv", index=False)
     pd.DataFrame(fragnets, columns=["event", "id", "name", "duration"]).to_csv(folder / "fragnets.csv", index=False)
     pd.DataFrame(fragnet_links, columns=["event", "pred", "succ", "type", "lag"]).to_csv(
-        folder / "fragnet_links.csv", index=False)
+        folder / "fragnet_links.csv", index=False
+    )
     return {kind: int((kinds == kind).sum()) for kind in ("extend", "hold", "fragnet")}
 
 
@@ -106,11 +136,21 @@ def measure(activities: int = 10_000, events: int = 200, repeat: int = 3) -> dic
     method = median_time(lambda: forget(case) or analyse(case), repeat)
     floor = median_time(floor_runs, repeat)
     result = analyse(case)
-    return {"activities": len(case.baseline.activities), "links": len(case.baseline.links),
-            "events": len(case.events), "kinds": kinds, "fragnet_activities": len(case.fragnets), "runs": runs,
-            "peer": peer, "method": method, "floor": floor, "base": result.completion_base,
-            "cumulative": result.completion_cumulative, "total_days": result.total_days,
-            "largest": int(result.events["alone_days"].max())}
+    return {
+        "activities": len(case.baseline.activities),
+        "links": len(case.baseline.links),
+        "events": len(case.events),
+        "kinds": kinds,
+        "fragnet_activities": len(case.fragnets),
+        "runs": runs,
+        "peer": peer,
+        "method": method,
+        "floor": floor,
+        "base": result.completion_base,
+        "cumulative": result.completion_cumulative,
+        "total_days": result.total_days,
+        "largest": int(result.events["alone_days"].max()),
+    }
 
 
 def main() -> None:
@@ -121,17 +161,24 @@ def main() -> None:
     args = parser.parse_args()
     found = measure(args.activities, args.events, args.repeat)
     kinds, runs, peer, method, floor = found["kinds"], found["runs"], found["peer"], found["method"], found["floor"]
-    print(f"{found['activities']} activities, {found['links']} links; "
-          f"{found['events']} events ({kinds['extend']} extend, {kinds['hold']} hold, "
-          f"{kinds['fragnet']} fragnet with {found['fragnet_activities']} inserted activities)")
-    print(f"peer: {runs} full schedules from the case tables : {peer:7.2f} s   "
-          f"({1000 * peer / runs:6.1f} ms each)")
-    print(f"impacted as-planned, {runs} what-if runs + parties : {method:7.2f} s   "
-          f"({1000 * method / runs:6.1f} ms per run)   ratio to peer = {method / peer:5.2f}x")
-    print(f"floor: {runs} completions of the prepared model    : {floor:7.2f} s   "
-          f"({1000 * floor / runs:6.1f} ms each)   ratio to peer = {floor / peer:5.2f}x")
-    print(f"completion {found['base']} -> {found['cumulative']}: {found['total_days']} calendar "
-          f"days cumulative; the largest impact alone {found['largest']} days")
+    print(
+        f"{found['activities']} activities, {found['links']} links; "
+        f"{found['events']} events ({kinds['extend']} extend, {kinds['hold']} hold, "
+        f"{kinds['fragnet']} fragnet with {found['fragnet_activities']} inserted activities)"
+    )
+    print(f"peer: {runs} full schedules from the case tables : {peer:7.2f} s   ({1000 * peer / runs:6.1f} ms each)")
+    print(
+        f"impacted as-planned, {runs} what-if runs + parties : {method:7.2f} s   "
+        f"({1000 * method / runs:6.1f} ms per run)   ratio to peer = {method / peer:5.2f}x"
+    )
+    print(
+        f"floor: {runs} completions of the prepared model    : {floor:7.2f} s   "
+        f"({1000 * floor / runs:6.1f} ms each)   ratio to peer = {floor / peer:5.2f}x"
+    )
+    print(
+        f"completion {found['base']} -> {found['cumulative']}: {found['total_days']} calendar "
+        f"days cumulative; the largest impact alone {found['largest']} days"
+    )
 
 
 if __name__ == "__main__":

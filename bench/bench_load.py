@@ -22,10 +22,10 @@ import numpy as np
 import pandas as pd
 
 sys.path.insert(0, str(Path(__file__).resolve().parent.parent / "tests"))
-from casewriter import write_large_case  # noqa: E402  (the test helper writes the case)
+from casewriter import write_large_case
 
-from delay.case import load_case  # noqa: E402
-from delay.graph import find_loop  # noqa: E402
+from delay.case import load_case
+from delay.graph import find_loop
 
 ACTIVITIES = 50_000
 LINKS = 120_000
@@ -59,17 +59,18 @@ def measure(activities: int = ACTIVITIES, links: int = LINKS, runs: int = RUNS) 
         for _ in range(runs):  # alternating, so that a drift of the machine touches both
             loads.append(median_time(lambda: load_case(root), 1))
             reads.append(median_time(plain_read, 1))
-    return {"load": statistics.median(loads), "peer": statistics.median(reads),
-            "ratio": statistics.median(a / b for a, b in zip(loads, reads))}
+    return {
+        "load": statistics.median(loads),
+        "peer": statistics.median(reads),
+        "ratio": statistics.median(a / b for a, b in zip(loads, reads)),
+    }
 
 
 def main() -> None:
     found = measure()
     load, peer = found["load"], found["peer"]
-    print(f"load_case, {ACTIVITIES:,} activities / {LINKS:,} links: {load:.3f} s "
-          f"(median of {RUNS})")
-    print(f"peer pandas.read_csv of the same files:             {peer:.3f} s "
-          f"(median of {RUNS})")
+    print(f"load_case, {ACTIVITIES:,} activities / {LINKS:,} links: {load:.3f} s (median of {RUNS})")
+    print(f"peer pandas.read_csv of the same files:             {peer:.3f} s (median of {RUNS})")
     print(f"ratio load_case / read_csv: {found['ratio']:.1f}")
 
     rng = np.random.default_rng(1)
@@ -85,9 +86,11 @@ def main() -> None:
     graph.add_edges_from(zip(src.tolist(), dst.tolist()))
     ours = median_time(lambda: find_loop(nodes, src, dst))
     reference = median_time(lambda: nx.is_directed_acyclic_graph(graph))
-    print(f"find_loop, {nodes:,} nodes / {len(src):,} edges (acyclic): {ours:.3f} s; "
-          f"networkx.is_directed_acyclic_graph: {reference:.3f} s; "
-          f"ratio {ours / reference:.2f}")
+    print(
+        f"find_loop, {nodes:,} nodes / {len(src):,} edges (acyclic): {ours:.3f} s; "
+        f"networkx.is_directed_acyclic_graph: {reference:.3f} s; "
+        f"ratio {ours / reference:.2f}"
+    )
 
 
 if __name__ == "__main__":

@@ -73,26 +73,34 @@ def measure(name: str, case_path: Path, work: Path, size_target_mb: float | None
             frame = table.frame.copy()
             for column in frame.columns:
                 if frame[column].dtype == object and frame[column].map(lambda v: isinstance(v, (list, tuple))).any():
-                    frame[column] = frame[column].map(lambda v: "; ".join(map(str, v)) if isinstance(v, (list, tuple)) else v)
+                    frame[column] = frame[column].map(
+                        lambda v: "; ".join(map(str, v)) if isinstance(v, (list, tuple)) else v
+                    )
             frame.to_excel(writer, sheet_name=table.key, index=False)
     peer = time.perf_counter() - started
 
     page = _size(out / "report.html")
     library = len(get_plotlyjs().encode("utf-8"))
     folder = _size(out)
-    print(f"\n{name}: {len(case.baseline.activities):,} activities, {len(case.snapshots)} programmes"
-          f"{' and an as-built record' if case.asbuilt_snapshot is not None else ''}, {len(case.elements):,} elements,"
-          f" {len(content.tables)} tables")
+    print(
+        f"\n{name}: {len(case.baseline.activities):,} activities, {len(case.snapshots)} programmes"
+        f"{' and an as-built record' if case.asbuilt_snapshot is not None else ''}, {len(case.elements):,} elements,"
+        f" {len(content.tables)} tables"
+    )
     print(f"  load the case           {loaded:7.2f} s")
     print(f"  analyses alone (peer)   {analyses:7.2f} s")
     line = f"  whole build             {whole:7.2f} s   ({whole / analyses:.2f} x the analyses)"
     if time_target_s is not None:
         line += f"   target under {time_target_s:.0f} s: {'met' if whole < time_target_s else 'NOT met'}"
     print(line)
-    print(f"  workbook                {ours:7.2f} s   (pandas.to_excel of the same frames: {peer:.2f} s, "
-          f"ratio {ours / peer:.2f})")
-    print(f"  report.html             {page / MB:7.2f} MB  (plotly.js alone: {library / MB:.2f} MB, "
-          f"ratio {page / library:.2f})")
+    print(
+        f"  workbook                {ours:7.2f} s   (pandas.to_excel of the same frames: {peer:.2f} s, "
+        f"ratio {ours / peer:.2f})"
+    )
+    print(
+        f"  report.html             {page / MB:7.2f} MB  (plotly.js alone: {library / MB:.2f} MB, "
+        f"ratio {page / library:.2f})"
+    )
     print(f"  tables.xlsx             {_size(out / 'tables.xlsx') / MB:7.2f} MB")
     print(f"  tables/*.csv            {_size(out / 'tables') / MB:7.2f} MB")
     line = f"  whole folder            {folder / MB:7.2f} MB"
@@ -115,8 +123,9 @@ def main() -> None:
         compute(load_case(DEMO), "impacted")
         measure("demo", DEMO, work, 15, 20)
         if not arguments.demo_only:
-            root = synthesise(work / "synthetic", arguments.activities, 2.5, arguments.updates, arguments.seed,
-                              arguments.elements)
+            root = synthesise(
+                work / "synthetic", arguments.activities, 2.5, arguments.updates, arguments.seed, arguments.elements
+            )
             measure("synthetic", root, work, 40, None)
     finally:
         shutil.rmtree(work, ignore_errors=True)

@@ -18,12 +18,13 @@ from pathlib import Path
 sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
 sys.path.insert(0, str(Path(__file__).resolve().parent))
 
-from delay.case import load_case  # noqa: E402
-from delay.cpm import schedule  # noqa: E402
-from delay.memo import forget  # noqa: E402
-from delay.methods.windows import analyse  # noqa: E402
-from delay.synth import synthesise  # noqa: E402
-from timing import median_time  # noqa: E402
+from timing import median_time
+
+from delay.case import load_case
+from delay.cpm import schedule
+from delay.memo import forget
+from delay.methods.windows import analyse
+from delay.synth import synthesise
 
 
 def measure(activities: int = 10_000, updates: int = 24, repeat: int = 3) -> dict:
@@ -48,10 +49,17 @@ def measure(activities: int = 10_000, updates: int = 24, repeat: int = 3) -> dic
     with_half = median_time(lambda: fresh(True), repeat)
     without = median_time(lambda: fresh(False), repeat)
     result = analyse(case)
-    return {"activities": len(case.baseline.activities), "links": len(case.baseline.links),
-            "updates": len(case.updates), "windows": len(result.windows), "peer": peer, "with_half": with_half,
-            "without": without, "revisions": sum(len(w.revisions) for w in result.windows),
-            "movement": result.total_movement_days}
+    return {
+        "activities": len(case.baseline.activities),
+        "links": len(case.baseline.links),
+        "updates": len(case.updates),
+        "windows": len(result.windows),
+        "peer": peer,
+        "with_half": with_half,
+        "without": without,
+        "revisions": sum(len(w.revisions) for w in result.windows),
+        "movement": result.total_movement_days,
+    }
 
 
 def main() -> None:
@@ -62,14 +70,17 @@ def main() -> None:
     args = parser.parse_args()
     found = measure(args.activities, args.updates, args.repeat)
     peer, with_half, without = found["peer"], found["with_half"], found["without"]
-    print(f"{found['activities']} activities, {found['links']} links, {found['updates']} updates + as-built: "
-          f"{found['windows']} windows")
+    print(
+        f"{found['activities']} activities, {found['links']} links, {found['updates']} updates + as-built: "
+        f"{found['windows']} windows"
+    )
     print(f"peer: schedule every snapshot once         : {peer:7.2f} s")
-    print(f"windows analysis with half-steps            : {with_half:7.2f} s   ratio to peer = {with_half / peer:5.1f}x"
-          f"   ({found['revisions']} revision steps charged)")
+    print(
+        f"windows analysis with half-steps            : {with_half:7.2f} s   ratio to peer = {with_half / peer:5.1f}x"
+        f"   ({found['revisions']} revision steps charged)"
+    )
     print(f"windows analysis without half-steps         : {without:7.2f} s   ratio to peer = {without / peer:5.1f}x")
-    print(f"total movement {found['movement']} calendar days over {found['windows']} windows; "
-          "every window reconciled")
+    print(f"total movement {found['movement']} calendar days over {found['windows']} windows; every window reconciled")
 
 
 if __name__ == "__main__":

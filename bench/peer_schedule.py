@@ -32,8 +32,9 @@ DAY_NAMES = ("Mon", "Tue", "Wed", "Thu", "Fri", "Sat", "Sun")
 def work_dates(case: Path, calendar: str, first: dt.date, count: int) -> list[dt.date]:
     """The first ``count`` work dates of ``calendar`` from ``first`` on."""
     with (case / "calendars.csv").open(newline="", encoding="utf-8-sig") as handle:
-        weekdays = {row["calendar"]: {DAY_NAMES.index(d) for d in row["workdays"].split()}
-                    for row in csv.DictReader(handle)}[calendar]
+        weekdays = {
+            row["calendar"]: {DAY_NAMES.index(d) for d in row["workdays"].split()} for row in csv.DictReader(handle)
+        }[calendar]
     off, extra = set(), set()
     exceptions = case / "calendar_exceptions.csv"
     if exceptions.exists():
@@ -115,12 +116,29 @@ def main(case: Path) -> None:
     def finish_date(start, finish):
         return dates[max(finish - 1, start)].isoformat()
 
-    rows = [{"id": node, "early_start": start_date(es[node]), "early_finish": finish_date(es[node], ef[node]),
-             "late_start": start_date(ls[node]), "late_finish": finish_date(ls[node], lf[node]),
-             "total_float": lf[node] - ef[node], "free_float": free[node], "critical": lf[node] - ef[node] <= 0}
-            for node in ids]
-    json.dump({"snapshot": facts.get("label", "baseline"), "data_date": data_date.isoformat(),
-               "completion": dates[max(end - 1, 0)].isoformat(), "activities": rows}, sys.stdout, indent=2)
+    rows = [
+        {
+            "id": node,
+            "early_start": start_date(es[node]),
+            "early_finish": finish_date(es[node], ef[node]),
+            "late_start": start_date(ls[node]),
+            "late_finish": finish_date(ls[node], lf[node]),
+            "total_float": lf[node] - ef[node],
+            "free_float": free[node],
+            "critical": lf[node] - ef[node] <= 0,
+        }
+        for node in ids
+    ]
+    json.dump(
+        {
+            "snapshot": facts.get("label", "baseline"),
+            "data_date": data_date.isoformat(),
+            "completion": dates[max(end - 1, 0)].isoformat(),
+            "activities": rows,
+        },
+        sys.stdout,
+        indent=2,
+    )
     sys.stdout.write("\n")
 
 

@@ -104,8 +104,9 @@ def alternate(ours: list[str], peer: list[str] | None, repeat: int, out: Path) -
             peers.append(run_child(peer, out)[0])
     found = {"ours": statistics.median(times), "memory": max(memory), "times": times}
     if peer:
-        found.update(peer=statistics.median(peers), ratio=statistics.median(p / o for p, o in zip(peers, times)),
-                     peers=peers)
+        found.update(
+            peer=statistics.median(peers), ratio=statistics.median(p / o for p, o in zip(peers, times)), peers=peers
+        )
     return found
 
 
@@ -130,6 +131,7 @@ def machine() -> dict:
 
 def whole_processes(folder: Path, repeat: int, demo_repeat: int) -> list[dict]:
     from casewriter import write_case
+
     from delay.synth import synthesise
 
     rows = []
@@ -138,30 +140,65 @@ def whole_processes(folder: Path, repeat: int, demo_repeat: int) -> list[dict]:
     print("writing the 100,002-activity case ...", flush=True)
     synthesise(big, 100_002, links_per_activity=2.17, seed=0)
     links = sum(1 for _ in open(big / "snapshots" / "baseline" / "links.csv", encoding="utf-8")) - 1
-    found = alternate(delay + ["schedule", str(big), "--format", "json"],
-                      [sys.executable, str(HERE / "peer_schedule.py"), str(big)], repeat, folder / "out.json")
-    rows.append({"what": f"`delay schedule` of 100,002 activities / {links:,} links, `--format json`",
-                 "ours": f"{found['ours']:.2f} s, {found['memory']:.0f} MiB",
-                 "peer": f"plain script (csv, networkx, json.dump): {found['peer']:.2f} s",
-                 "ratio": f"{found['ratio']:.1f}x faster", "target": "at least 5x faster",
-                 "met": found["ratio"] >= 5, "detail": found})
-    rows.append({"what": "peak memory of that `delay schedule`", "ours": f"{found['memory']:.0f} MiB", "peer": "",
-                 "ratio": "", "target": "under 400 MiB", "met": found["memory"] < 400, "detail": {}})
+    found = alternate(
+        delay + ["schedule", str(big), "--format", "json"],
+        [sys.executable, str(HERE / "peer_schedule.py"), str(big)],
+        repeat,
+        folder / "out.json",
+    )
+    rows.append(
+        {
+            "what": f"`delay schedule` of 100,002 activities / {links:,} links, `--format json`",
+            "ours": f"{found['ours']:.2f} s, {found['memory']:.0f} MiB",
+            "peer": f"plain script (csv, networkx, json.dump): {found['peer']:.2f} s",
+            "ratio": f"{found['ratio']:.1f}x faster",
+            "target": "at least 5x faster",
+            "met": found["ratio"] >= 5,
+            "detail": found,
+        }
+    )
+    rows.append(
+        {
+            "what": "peak memory of that `delay schedule`",
+            "ours": f"{found['memory']:.0f} MiB",
+            "peer": "",
+            "ratio": "",
+            "target": "under 400 MiB",
+            "met": found["memory"] < 400,
+            "detail": {},
+        }
+    )
     print(f"  {rows[0]['ours']} vs {found['peer']:.2f} s: {found['ratio']:.1f}x", flush=True)
 
     six = write_case(folder / "six", activities=SIX_ACTIVITIES, links=SIX_LINKS)
     found = alternate(delay + ["schedule", str(six), "--format", "json"], None, max(repeat, 5), folder / "six.json")
     floor = alternate([sys.executable, "-c", "import pandas"], None, max(repeat, 5), folder / "floor.txt")
-    rows.append({"what": "`delay schedule` of a six-activity case (start-up)", "ours": f"{found['ours']:.2f} s",
-                 "peer": f"`python -c \"import pandas\"` alone: {floor['ours']:.2f} s",
-                 "ratio": f"{found['ours'] / floor['ours']:.1f}x importing pandas", "target": "under 0.6 s",
-                 "met": found["ours"] < 0.6, "detail": found})
+    rows.append(
+        {
+            "what": "`delay schedule` of a six-activity case (start-up)",
+            "ours": f"{found['ours']:.2f} s",
+            "peer": f'`python -c "import pandas"` alone: {floor["ours"]:.2f} s',
+            "ratio": f"{found['ours'] / floor['ours']:.1f}x importing pandas",
+            "target": "under 0.6 s",
+            "met": found["ours"] < 0.6,
+            "detail": found,
+        }
+    )
     print(f"  six activities: {found['ours']:.2f} s", flush=True)
 
     out = folder / "demo-out"
     found = alternate(delay + ["demo", "--out", str(out)], None, demo_repeat, folder / "demo.txt")
-    rows.append({"what": "`delay demo`", "ours": f"{found['ours']:.1f} s", "peer": "", "ratio": "",
-                 "target": "under 10 s", "met": found["ours"] < 10, "detail": found})
+    rows.append(
+        {
+            "what": "`delay demo`",
+            "ours": f"{found['ours']:.1f} s",
+            "peer": "",
+            "ratio": "",
+            "target": "under 10 s",
+            "met": found["ours"] < 10,
+            "detail": found,
+        }
+    )
     print(f"  demo: {found['ours']:.1f} s", flush=True)
     return rows
 
@@ -175,45 +212,80 @@ def in_process(repeat: int) -> list[dict]:
     print("windows, 10,000 activities x 24 updates ...", flush=True)
     found = bench_windows.measure(10_000, 24, repeat)
     ratio = found["with_half"] / found["peer"]
-    rows.append({"what": f"windows, {found['activities']:,} activities x {found['updates']} updates + as-built, "
-                         "half-steps", "ours": f"{found['with_half']:.2f} s",
-                 "peer": f"every snapshot scheduled once: {found['peer']:.2f} s", "ratio": f"{ratio:.1f}x the peer",
-                 "target": "at most 15x the peer", "met": ratio <= 15, "detail": found})
+    rows.append(
+        {
+            "what": f"windows, {found['activities']:,} activities x {found['updates']} updates + as-built, half-steps",
+            "ours": f"{found['with_half']:.2f} s",
+            "peer": f"every snapshot scheduled once: {found['peer']:.2f} s",
+            "ratio": f"{ratio:.1f}x the peer",
+            "target": "at most 15x the peer",
+            "met": ratio <= 15,
+            "detail": found,
+        }
+    )
     print("impacted as-planned, 200 events ...", flush=True)
     found = bench_impacted.measure(10_000, 200, repeat)
     faster = found["peer"] / found["method"]
     to_floor = found["method"] / found["floor"]
-    rows.append({"what": f"impacted as-planned, {found['events']} events on {found['activities']:,} activities",
-                 "ours": f"{found['method']:.2f} s",
-                 "peer": f"{found['runs']} full schedules: {found['peer']:.2f} s", "ratio": f"{faster:.1f}x faster" if faster >= 1 else f"{1 / faster:.1f}x slower",
-                 "target": "at least 2x faster", "met": faster >= 2, "detail": found})
-    rows.append({"what": "impacted as-planned against its floor", "ours": f"{found['method']:.2f} s",
-                 "peer": f"{found['runs']} completions of the prepared model: {found['floor']:.2f} s",
-                 "ratio": f"{to_floor:.1f}x the floor", "target": "within 2x the floor", "met": to_floor <= 2,
-                 "detail": {}})
+    rows.append(
+        {
+            "what": f"impacted as-planned, {found['events']} events on {found['activities']:,} activities",
+            "ours": f"{found['method']:.2f} s",
+            "peer": f"{found['runs']} full schedules: {found['peer']:.2f} s",
+            "ratio": f"{faster:.1f}x faster" if faster >= 1 else f"{1 / faster:.1f}x slower",
+            "target": "at least 2x faster",
+            "met": faster >= 2,
+            "detail": found,
+        }
+    )
+    rows.append(
+        {
+            "what": "impacted as-planned against its floor",
+            "ours": f"{found['method']:.2f} s",
+            "peer": f"{found['runs']} completions of the prepared model: {found['floor']:.2f} s",
+            "ratio": f"{to_floor:.1f}x the floor",
+            "target": "within 2x the floor",
+            "met": to_floor <= 2,
+            "detail": {},
+        }
+    )
     print("load_case, 50,000 activities / 120,000 links ...", flush=True)
     found = bench_load.measure(runs=max(repeat, 3))
-    rows.append({"what": "`load_case`, 50,000 activities / 120,000 links", "ours": f"{found['load']:.3f} s",
-                 "peer": f"`pandas.read_csv` of the same files: {found['peer']:.3f} s",
-                 "ratio": f"{found['ratio']:.1f}x read_csv", "target": "at most 2x read_csv",
-                 "met": found["ratio"] <= 2, "detail": found})
+    rows.append(
+        {
+            "what": "`load_case`, 50,000 activities / 120,000 links",
+            "ours": f"{found['load']:.3f} s",
+            "peer": f"`pandas.read_csv` of the same files: {found['peer']:.3f} s",
+            "ratio": f"{found['ratio']:.1f}x read_csv",
+            "target": "at most 2x read_csv",
+            "met": found["ratio"] <= 2,
+            "detail": found,
+        }
+    )
     return rows
 
 
 def report(rows: list[dict], facts: dict, options: str) -> str:
-    lines = ["# Speed of the toolkit", "",
-             f"Measured {dt.datetime.now().strftime('%Y-%m-%d %H:%M')} by `python bench/run.py {options}`.".rstrip(),
-             "",
-             f"Machine: {facts['cores']} cores ({facts['cpu']}), Python {facts['python']}; "
-             + ", ".join(f"{name} {version}" for name, version in facts["versions"].items()) + ".",
-             "Whole processes are fresh child processes started alternately with their peer; each "
-             "figure is a median, each ratio the median of the pairs' ratios. The machine is shared, "
-             "so figures move from run to run; the ratios are what to compare.", "",
-             "| what the user runs | ours | peer in the same run | ratio | target | met |",
-             "|---|---|---|---|---|---|"]
+    lines = [
+        "# Speed of the toolkit",
+        "",
+        f"Measured {dt.datetime.now().strftime('%Y-%m-%d %H:%M')} by `python bench/run.py {options}`.".rstrip(),
+        "",
+        f"Machine: {facts['cores']} cores ({facts['cpu']}), Python {facts['python']}; "
+        + ", ".join(f"{name} {version}" for name, version in facts["versions"].items())
+        + ".",
+        "Whole processes are fresh child processes started alternately with their peer; each "
+        "figure is a median, each ratio the median of the pairs' ratios. The machine is shared, "
+        "so figures move from run to run; the ratios are what to compare.",
+        "",
+        "| what the user runs | ours | peer in the same run | ratio | target | met |",
+        "|---|---|---|---|---|---|",
+    ]
     for row in rows:
-        lines.append(f"| {row['what']} | {row['ours']} | {row['peer'] or '—'} | {row['ratio'] or '—'} | "
-                     f"{row['target']} | {'met' if row['met'] else 'not met'} |")
+        lines.append(
+            f"| {row['what']} | {row['ours']} | {row['peer'] or '—'} | {row['ratio'] or '—'} | "
+            f"{row['target']} | {'met' if row['met'] else 'not met'} |"
+        )
     return "\n".join(lines) + "\n"
 
 
@@ -235,9 +307,15 @@ def main() -> None:
             rows += in_process(1 if args.quick else 3)
     finally:
         shutil.rmtree(folder, ignore_errors=True)
-    options = " ".join(part for part in (f"--repeat {args.repeat}" if args.repeat != 5 and not args.quick else "",
-                                         "--quick" if args.quick else "", f"--only {args.only}" if args.only else "")
-                       if part)
+    options = " ".join(
+        part
+        for part in (
+            f"--repeat {args.repeat}" if args.repeat != 5 and not args.quick else "",
+            "--quick" if args.quick else "",
+            f"--only {args.only}" if args.only else "",
+        )
+        if part
+    )
     text = report(rows, facts, options)
     print()
     print(text)

@@ -14,4 +14,3 @@ def median_time(function, repeat: int) -> float:
         function()
         times.append(time.perf_counter() - start)
     return statistics.median(times)
-

@@ -45,8 +45,7 @@ LARGE = 20_000
 BUDGET = 200_000
 
 _MODES = ("auto", "python", "compiled")
-_state = {"mode": os.environ.get("DELAY_KERNELS", "auto").strip().lower() or "auto", "spent": 0,
-          "compiled": False}
+_state = {"mode": os.environ.get("DELAY_KERNELS", "auto").strip().lower() or "auto", "spent": 0, "compiled": False}
 if _state["mode"] not in _MODES:
     _state["mode"] = "auto"
 _lock = threading.Lock()

@@ -23,8 +23,17 @@ import numpy as np
 
 from ._jit import Kernel, jitable
 
-__all__ = ["OK", "TOO_EARLY", "TOO_LATE", "order_and_layout", "forward_pass", "backward_pass", "mark_upstream",
-           "compressed_rows", "link_gaps"]
+__all__ = [
+    "OK",
+    "TOO_EARLY",
+    "TOO_LATE",
+    "order_and_layout",
+    "forward_pass",
+    "backward_pass",
+    "mark_upstream",
+    "compressed_rows",
+    "link_gaps",
+]
 
 OK = 0
 TOO_EARLY = 1  # a look-up fell before the tables: grow them backwards and run again
@@ -98,8 +107,27 @@ def _latest_across(target, f, lag, lag_on_pred, successor_calendar, predecessor_
 
 
 @Kernel
-def order_and_layout(n, pred, succ, link_type, lag, out_ptr, out_link, order, rank, f_ptr, f_pred, f_type, f_lag,
-                     f_link, b_ptr, b_succ, b_type, b_lag, b_link):
+def order_and_layout(
+    n,
+    pred,
+    succ,
+    link_type,
+    lag,
+    out_ptr,
+    out_link,
+    order,
+    rank,
+    f_ptr,
+    f_pred,
+    f_type,
+    f_lag,
+    f_link,
+    b_ptr,
+    b_succ,
+    b_type,
+    b_lag,
+    b_link,
+):
     """A topological order and the links laid out for the passes, in one sweep; fills the
     arrays given and returns how many activities were placed (fewer than ``n``: a loop).
 
@@ -187,10 +215,34 @@ def _links_ignored(status, progress_override):
 
 
 @Kernel
-def forward_pass(f_ptr, f_pred, f_type, f_lag, f_link, order, progress_override, lag_on_pred, with_floats,
-                 status, point_kind, calendar, lower, upper, duration, start_read_fixed, known_finish, table,
-                 early_finish_t, start_read_t, early_finish, start_read, remaining_start, finish_day,
-                 relative_float, link_free_float):
+def forward_pass(
+    f_ptr,
+    f_pred,
+    f_type,
+    f_lag,
+    f_link,
+    order,
+    progress_override,
+    lag_on_pred,
+    with_floats,
+    status,
+    point_kind,
+    calendar,
+    lower,
+    upper,
+    duration,
+    start_read_fixed,
+    known_finish,
+    table,
+    early_finish_t,
+    start_read_t,
+    early_finish,
+    start_read,
+    remaining_start,
+    finish_day,
+    relative_float,
+    link_free_float,
+):
     """Early dates, activities by topological position (see :func:`order_and_layout`).
 
     By position ``i`` (activity ``order[i]``): ``status``, ``point_kind`` and ``calendar``
@@ -229,8 +281,15 @@ def forward_pass(f_ptr, f_pred, f_type, f_lag, f_link, order, progress_override,
                 reads_finish = t == 0 or t == 2
                 point = early_finish_t[p] if reads_finish else start_read_t[p]
                 if calendar[p] != c:
-                    value = _bound_across(point, _reads_as_finish(point_kind[p], reads_finish), f_lag[j],
-                                          lag_on_pred, calendar[p], c, table)
+                    value = _bound_across(
+                        point,
+                        _reads_as_finish(point_kind[p], reads_finish),
+                        f_lag[j],
+                        lag_on_pred,
+                        calendar[p],
+                        c,
+                        table,
+                    )
                     if value == _LOW:
                         return TOO_EARLY
                     if value == _HIGH:
@@ -288,10 +347,32 @@ def forward_pass(f_ptr, f_pred, f_type, f_lag, f_link, order, progress_override,
 
 
 @Kernel
-def backward_pass(b_ptr, b_succ, b_type, b_lag, order, progress_override, lag_on_pred, status, point_kind,
-                  calendar, late_upper, pin_late, duration, early_finish_t, link_free_float, end_bound,
-                  completion_bound, table, late_start_t, late_finish_t, late_start, late_finish, total_float,
-                  free_float):
+def backward_pass(
+    b_ptr,
+    b_succ,
+    b_type,
+    b_lag,
+    order,
+    progress_override,
+    lag_on_pred,
+    status,
+    point_kind,
+    calendar,
+    late_upper,
+    pin_late,
+    duration,
+    early_finish_t,
+    link_free_float,
+    end_bound,
+    completion_bound,
+    table,
+    late_start_t,
+    late_finish_t,
+    late_start,
+    late_finish,
+    total_float,
+    free_float,
+):
     """Late dates, total and free float, activities by topological position.
 
     By position: ``status``, ``point_kind``, ``calendar``, ``early_finish_t`` and
@@ -324,8 +405,9 @@ def backward_pass(b_ptr, b_succ, b_type, b_lag, order, progress_override, lag_on
                 continue  # the link reads the actual start, which is past
             q = late_finish_t[s] if t >= 2 else late_start_t[s]
             if calendar[s] != c:
-                value = _latest_across(q, _reads_as_finish(point_kind[i], reads_finish), b_lag[j], lag_on_pred,
-                                       calendar[s], c, table)
+                value = _latest_across(
+                    q, _reads_as_finish(point_kind[i], reads_finish), b_lag[j], lag_on_pred, calendar[s], c, table
+                )
                 if value == _LOW:
                     return TOO_EARLY
                 if value == _HIGH:
@@ -390,8 +472,9 @@ def compressed_rows(n, keys):
 
 
 @Kernel
-def link_gaps(f_ptr, f_pred, f_type, f_lag, f_link, lag_on_pred, point_kind, start_read, early_finish,
-              calendar, table, gaps):
+def link_gaps(
+    f_ptr, f_pred, f_type, f_lag, f_link, lag_on_pred, point_kind, start_read, early_finish, calendar, table, gaps
+):
     """Per link (by link number), how far the successor's point (``start_read`` or
     ``early_finish``) lies after the bound the link sets, in the successor's work days;
     every link counts, whatever the activities' status."""
@@ -405,8 +488,9 @@ def link_gaps(f_ptr, f_pred, f_type, f_lag, f_link, lag_on_pred, point_kind, sta
             point = early_finish[p] if reads_finish else start_read[p]
             target = early_finish[i] if t >= 2 else start_read[i]
             if calendar[p] != c:
-                bound = _bound_across(point, _reads_as_finish(point_kind[p], reads_finish), f_lag[j], lag_on_pred,
-                                      calendar[p], c, table)
+                bound = _bound_across(
+                    point, _reads_as_finish(point_kind[p], reads_finish), f_lag[j], lag_on_pred, calendar[p], c, table
+                )
                 if bound == _LOW:
                     return TOO_EARLY
                 if bound == _HIGH:

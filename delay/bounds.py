@@ -20,8 +20,15 @@ import numpy as np
 from .errors import DateBoundError, Problem
 from .model import FIRST_DATE, LAST_DATE
 
-__all__ = ["FIRST_DAY", "LAST_DAY", "grow_within_bounds", "check_finish_days", "check_late_days",
-           "runaway_error", "driving_chain"]
+__all__ = [
+    "FIRST_DAY",
+    "LAST_DAY",
+    "grow_within_bounds",
+    "check_finish_days",
+    "check_late_days",
+    "runaway_error",
+    "driving_chain",
+]
 
 #: Day numbers (days since 1970-01-01) of the first and last date the toolkit computes.
 FIRST_DAY = int(np.datetime64(FIRST_DATE, "D").astype(np.int64))
@@ -109,25 +116,30 @@ def runaway_error(model, earlier: bool) -> DateBoundError:
     ids = net.ids
     duration = np.asarray(model.duration)
     durations = _largest([(int(duration[v]), str(ids[v])) for v in chain], "work days")
-    lags = _largest([(int(net.lag[k]), f"{ids[net.pred[k]]}>{ids[net.succ[k]]}") for k in links],
-                    "work days")
+    lags = _largest([(int(net.lag[k]), f"{ids[net.pred[k]]}>{ids[net.succ[k]]}") for k in links], "work days")
     total = sum(int(duration[v]) for v in chain) + sum(max(0, int(net.lag[k])) for k in links)
     where = f"snapshot '{model.label}'" if model.label else "the snapshot"
     side = "before 1900-01-01" if earlier else "after 2200-12-31"
     if earlier:
-        message = (f"the late dates would fall {side}, outside the dates the toolkit works "
-                   f"with: the logic behind a finish constraint is too long")
+        message = (
+            f"the late dates would fall {side}, outside the dates the toolkit works "
+            f"with: the logic behind a finish constraint is too long"
+        )
     else:
-        message = (f"the schedule would run {side}, outside the dates the toolkit works with: "
-                   f"activity '{ids[far]}' ends a chain of {len(chain):,} "
-                   f"{'activity' if len(chain) == 1 else 'activities'} holding about "
-                   f"{total:,} work days")
+        message = (
+            f"the schedule would run {side}, outside the dates the toolkit works with: "
+            f"activity '{ids[far]}' ends a chain of {len(chain):,} "
+            f"{'activity' if len(chain) == 1 else 'activities'} holding about "
+            f"{total:,} work days"
+        )
     if durations:
         message += f"; its longest durations are {durations}"
     if lags:
         message += f"; its longest lags are {lags}"
-    fix = ("check these durations and lags (a value in the wrong unit or with an extra digit), "
-           "or the days a what-if or an event adds to them")
+    fix = (
+        "check these durations and lags (a value in the wrong unit or with an extra digit), "
+        "or the days a what-if or an event adds to them"
+    )
     column = "duration" if durations or not lags else "lag"
     return DateBoundError(earlier, Problem(file=where, message=message, fix=fix, column=column))
 

@@ -23,7 +23,7 @@ a date is its day number since 1970-01-01 (``int64``).
 
 from __future__ import annotations
 
-from typing import Iterable, Mapping, Sequence
+from collections.abc import Iterable, Mapping, Sequence
 
 import numpy as np
 
@@ -31,8 +31,7 @@ from .convert import to_dates, to_days
 from .errors import DateBoundError
 from .model import FIRST_DATE, LAST_DATE, WEEKDAYS
 
-__all__ = ["WorkCalendar", "CalendarSet", "build_calendars", "parse_workdays",
-           "HORIZON_FIRST_DAY", "HORIZON_LAST_DAY"]
+__all__ = ["WorkCalendar", "CalendarSet", "build_calendars", "parse_workdays", "HORIZON_FIRST_DAY", "HORIZON_LAST_DAY"]
 
 #: The horizon grows no further than a year beyond the dates a case may hold: a look-up a
 #: few days past them still works, and one further raises DateBoundError (day numbers).
@@ -52,7 +51,6 @@ def parse_workdays(text: str) -> tuple[bool, ...]:
             raise ValueError(f"unknown weekday '{token}' (use {' '.join(WEEKDAYS)})")
         mask[WEEKDAYS.index(key)] = True
     return tuple(mask)
-
 
 
 def _widened(first: int, last: int, low: int, high: int) -> tuple[int, int]:
@@ -77,8 +75,11 @@ def _further(first: int, last: int, span: int, earlier: bool, later: bool) -> tu
     the horizon's bounds; :class:`DateBoundError` when a side asked for is at its bound."""
     if (earlier and first <= HORIZON_FIRST_DAY) or (later and last >= HORIZON_LAST_DAY):
         raise DateBoundError(earlier=earlier and first <= HORIZON_FIRST_DAY)
-    return (max(first - span, HORIZON_FIRST_DAY) if earlier else first,
-            min(last + span, HORIZON_LAST_DAY) if later else last)
+    return (
+        max(first - span, HORIZON_FIRST_DAY) if earlier else first,
+        min(last + span, HORIZON_LAST_DAY) if later else last,
+    )
+
 
 class WorkCalendar:
     """One work calendar over a horizon that grows on demand.
@@ -138,11 +139,19 @@ class WorkCalendar:
         self._build(first, last)
 
     @classmethod
-    def from_weekdays(cls, name, workdays="Mon Tue Wed Thu Fri", holidays=(), extra_workdays=(),
-                      start=None, end=None, anchor=None) -> "WorkCalendar":
+    def from_weekdays(
+        cls, name, workdays="Mon Tue Wed Thu Fri", holidays=(), extra_workdays=(), start=None, end=None, anchor=None
+    ) -> WorkCalendar:
         """A calendar from a weekday list such as ``"Mon Tue Wed Thu Fri"``."""
-        return cls(name, parse_workdays(workdays), holidays, extra_workdays,
-                   anchor=anchor if anchor is not None else start, start=start, end=end)
+        return cls(
+            name,
+            parse_workdays(workdays),
+            holidays,
+            extra_workdays,
+            anchor=anchor if anchor is not None else start,
+            start=start,
+            end=end,
+        )
 
     # -- horizon -------------------------------------------------------------------------
     def _build(self, first: int, last: int) -> None:
@@ -177,8 +186,7 @@ class WorkCalendar:
                 raise ValueError(f"calendar '{self.name}' has no work day that early")
             if hi_pos >= self._work_days.size and not any(self.weekmask):
                 raise ValueError(f"calendar '{self.name}' has no work day that late")
-            self._grow_days(*_further(self.first_day, self.last_day, span, lo_pos < 0,
-                                      hi_pos >= self._work_days.size))
+            self._grow_days(*_further(self.first_day, self.last_day, span, lo_pos < 0, hi_pos >= self._work_days.size))
 
     # -- conversions -----------------------------------------------------------------------
     def start_index_days(self, days: np.ndarray) -> np.ndarray:
@@ -221,7 +229,9 @@ class WorkCalendar:
         counts ``(end, start]`` for reversed arguments since numpy 1.25, which can differ by
         one day; the difference of indices is what the engine's arithmetic needs.)
         """
-        return (self.start_index_days(to_days(end_dates)) - self.start_index_days(to_days(start_dates))).astype(np.int32)
+        return (self.start_index_days(to_days(end_dates)) - self.start_index_days(to_days(start_dates))).astype(
+            np.int32
+        )
 
     def is_workday(self, dates) -> np.ndarray:
         """Whether each date is a work day."""
@@ -244,7 +254,9 @@ class CalendarSet:
     flat: calendar ``c``'s entries follow calendar ``c - 1``'s.
     """
 
-    def __init__(self, calendars: Mapping[str, WorkCalendar], held: Mapping[int, tuple[int, tuple[int, ...]]] | None = None):
+    def __init__(
+        self, calendars: Mapping[str, WorkCalendar], held: Mapping[int, tuple[int, tuple[int, ...]]] | None = None
+    ):
         self.names = tuple(calendars)
         self.calendars = tuple(calendars[n] for n in self.names)
         self.number = {name: i for i, name in enumerate(self.names)}
@@ -253,7 +265,7 @@ class CalendarSet:
         #: Calendars derived by holding work (see :meth:`with_held_days`): number to
         #: ``(base calendar number, held day numbers)``.
         self.held = dict(held or {})
-        self._derived: dict[tuple, "CalendarSet"] = {}
+        self._derived: dict[tuple, CalendarSet] = {}
         first = min(c.first_day for c in self.calendars)
         last = max(c.last_day for c in self.calendars)
         self._cover(first, last)
@@ -300,9 +312,14 @@ class CalendarSet:
             before_at = head + self._stride * np.arange(count, dtype=np.int64)
             work_at = head + self._before.size + self._work_offset
             rows = np.stack([self._anchor_before, before_at, work_at, self._work_count], axis=1)
-            self._table = np.concatenate([
-                np.array([count, self._stride, self.first_day], dtype=np.int64), rows.ravel(),
-                self._before.astype(np.int64), self._work_days.astype(np.int64)])
+            self._table = np.concatenate(
+                [
+                    np.array([count, self._stride, self.first_day], dtype=np.int64),
+                    rows.ravel(),
+                    self._before.astype(np.int64),
+                    self._work_days.astype(np.int64),
+                ]
+            )
             self._table.flags.writeable = False
         return self._table
 
@@ -311,7 +328,7 @@ class CalendarSet:
         itself and no held days unless it was derived by :meth:`with_held_days`."""
         return self.held.get(int(number), (int(number), ()))
 
-    def with_held_days(self, requests: Sequence[tuple[int, Iterable[int]]]) -> tuple["CalendarSet", list[int]]:
+    def with_held_days(self, requests: Sequence[tuple[int, Iterable[int]]]) -> tuple[CalendarSet, list[int]]:
         """A set with a derived calendar for each request: calendar ``c`` less the held days.
 
         A hold stops an activity's work for a period whatever its calendar says (a
@@ -360,10 +377,14 @@ class CalendarSet:
                 name = f"{calendar.name} held {_ranges(days)}"
                 held_days = np.asarray(days, dtype=np.int64)
                 calendars[name] = WorkCalendar(
-                    name, calendar.weekmask, holidays=np.union1d(calendar.holidays, held_days),
-                    extra_workdays=np.setdiff1d(calendar.extra_workdays, held_days), anchor=calendar.anchor,
+                    name,
+                    calendar.weekmask,
+                    holidays=np.union1d(calendar.holidays, held_days),
+                    extra_workdays=np.setdiff1d(calendar.extra_workdays, held_days),
+                    anchor=calendar.anchor,
                     start=min(calendar.first_day, int(held_days.min())),
-                    end=max(calendar.last_day, int(held_days.max())))
+                    end=max(calendar.last_day, int(held_days.max())),
+                )
                 held[len(calendars) - 1] = (base, days)
             found = self._derived[key] = CalendarSet(calendars, held)
         known = {value: number for number, value in found.held.items()}
@@ -394,8 +415,7 @@ class CalendarSet:
             if not (too_early.any() or too_late.any()):
                 break
             span = self.last_day - self.first_day + 1
-            self._cover(*_further(self.first_day, self.last_day, span, bool(too_early.any()),
-                                  bool(too_late.any())))
+            self._cover(*_further(self.first_day, self.last_day, span, bool(too_early.any()), bool(too_late.any())))
         else:
             raise ValueError("a work-day index lies beyond every calendar's work days")
         return self._work_days[self._work_offset[which] + position]
@@ -445,4 +465,3 @@ def build_calendars(case, anchor=None) -> dict[str, WorkCalendar]:
             anchor=anchor,
         )
     return result
-

@@ -39,7 +39,8 @@ of more than one party) is treated:
   impacts alone (for the windows analysis, the charges each party's path carries; the
   collapsed as-built, which measures no impact alone, shares them equally), each share
   then classified by its cause's party (an employer share is compensable, a neutral share
-  excusable only, a contractor share culpable). Whole days are kept by the largest remainder method (Hamilton's method): each
+  excusable only, a contractor share culpable). Whole days are kept by the largest remainder method (Hamilton's
+  method): each
   cause takes the whole part of its quota, and the days left over go one each to the
   largest fractional remainders; equal remainders go to the *earlier cause* - the event
   inserted first in the chronological order (start, finish, register row), for the windows
@@ -55,7 +56,8 @@ an extension is granted only to the extent the employer delay is predicted to re
 total float on the paths it affects below zero; the float is not reserved to either
 party). Compensable days are counted whether or not they reach beyond the completion date
 in force (core principle 8, as recalled, allows the contractor the cost of employer delay
-to a realistic planned completion earlier than the contract date; the contract governs). Every method below honours it: the windows analysis charges only the driving path,
+to a realistic planned completion earlier than the contract date; the contract governs). Every method below
+honours it: the windows analysis charges only the driving path,
 float absorbed off it is charged nothing; the impacted and time impact analyses take each
 event's *increment* in the chronological cumulative run, so the earlier event consumes the
 float first and a later one is charged only the delay left when the float is gone.
@@ -148,15 +150,15 @@ critical path beside the "literal" concurrency of events in time).
 from __future__ import annotations
 
 import datetime as dt
+from collections.abc import Iterable, Sequence
 from dataclasses import dataclass
 from fractions import Fraction
-from typing import Iterable, Sequence
 
 import numpy as np
 import pandas as pd
 
-from .errors import CaseError, Problem, ReconciliationError
 from .convert import join_ids
+from .errors import CaseError, Problem, ReconciliationError
 from .events import CONCURRENT, unexplained_risk
 from .model import PARTIES, Case
 
@@ -194,9 +196,25 @@ CONCURRENCY_RULES = ("time_not_money", "apportion")
 
 #: Columns of every causation table, in order.
 CAUSATION_COLUMNS = [
-    "method", "step", "window", "snapshot", "event", "party", "basis", "activities", "work_days", "days",
-    "alone_days", "causes", "concurrent_with", "concurrent_days", "excusable_days", "compensable_days",
-    "culpable_days", "classification", "arose_on",
+    "method",
+    "step",
+    "window",
+    "snapshot",
+    "event",
+    "party",
+    "basis",
+    "activities",
+    "work_days",
+    "days",
+    "alone_days",
+    "causes",
+    "concurrent_with",
+    "concurrent_days",
+    "excusable_days",
+    "compensable_days",
+    "culpable_days",
+    "classification",
+    "arose_on",
 ]
 
 _EXCUSING = {"employer", "neutral"}
@@ -277,9 +295,12 @@ def class_totals(table: pd.DataFrame) -> dict[str, int]:
     if not len(table):
         return {"excusable_days": 0, "compensable_days": 0, "culpable_delay_days": 0, "acceleration_days": 0}
     contractor = int(table["culpable_days"].sum())
-    return {"excusable_days": int(table["excusable_days"].sum()),
-            "compensable_days": max(0, int(table["compensable_days"].sum())),
-            "culpable_delay_days": max(0, contractor), "acceleration_days": max(0, -contractor)}
+    return {
+        "excusable_days": int(table["excusable_days"].sum()),
+        "compensable_days": max(0, int(table["compensable_days"].sum())),
+        "culpable_delay_days": max(0, contractor),
+        "acceleration_days": max(0, -contractor),
+    }
 
 
 # -- classification ---------------------------------------------------------------------------
@@ -371,13 +392,23 @@ def classify_days(causes: Sequence[tuple[str, object]], days: int, concurrency: 
     if len(parties) == 1 or concurrency == "time_not_money" or days == 0:
         excusable = days if parties & _EXCUSING else 0
         compensable = days if parties == {"employer"} else 0
-        return {"excusable": excusable, "compensable": compensable, "culpable": days - excusable,
-                "concurrent": concurrent, "apportioned": False}
+        return {
+            "excusable": excusable,
+            "compensable": compensable,
+            "culpable": days - excusable,
+            "concurrent": concurrent,
+            "apportioned": False,
+        }
     shares = largest_remainder(days, [weight for _, weight in causes])
     compensable = sum(s for (party, _), s in zip(causes, shares) if party == "employer")
     excusable = sum(s for (party, _), s in zip(causes, shares) if party in _EXCUSING)
-    return {"excusable": excusable, "compensable": compensable, "culpable": days - excusable,
-            "concurrent": concurrent, "apportioned": True}
+    return {
+        "excusable": excusable,
+        "compensable": compensable,
+        "culpable": days - excusable,
+        "concurrent": concurrent,
+        "apportioned": True,
+    }
 
 
 def _label(days: int, excusable: int, compensable: int, culpable: int, apportioned: bool) -> str:
@@ -400,11 +431,16 @@ def _ordered_parties(parties: Iterable[str]) -> list[str]:
 
 def _row(method: str, step: str, days: int, split: dict, **values) -> dict:
     row = {column: None for column in CAUSATION_COLUMNS}
-    row.update(method=method, step=step, days=int(days), excusable_days=int(split["excusable"]),
-               compensable_days=int(split["compensable"]), culpable_days=int(split["culpable"]),
-               concurrent_days=int(split["concurrent"]),
-               classification=_label(days, split["excusable"], split["compensable"], split["culpable"],
-                                     split["apportioned"]))
+    row.update(
+        method=method,
+        step=step,
+        days=int(days),
+        excusable_days=int(split["excusable"]),
+        compensable_days=int(split["compensable"]),
+        culpable_days=int(split["culpable"]),
+        concurrent_days=int(split["concurrent"]),
+        classification=_label(days, split["excusable"], split["compensable"], split["culpable"], split["apportioned"]),
+    )
     row.update(values)
     return row
 
@@ -417,8 +453,17 @@ def causation_frame(rows: list[dict]) -> pd.DataFrame:
     for column in ("window", "alone_days", "work_days"):
         frame[column] = frame[column].astype("Int64")
     frame["arose_on"] = pd.to_datetime(frame["arose_on"]).astype("datetime64[s]")
-    for column in ("step", "snapshot", "event", "party", "basis", "activities", "causes", "concurrent_with",
-                   "classification"):
+    for column in (
+        "step",
+        "snapshot",
+        "event",
+        "party",
+        "basis",
+        "activities",
+        "causes",
+        "concurrent_with",
+        "classification",
+    ):
         frame[column] = frame[column].fillna("").astype(object)
     return frame
 
@@ -426,9 +471,14 @@ def causation_frame(rows: list[dict]) -> pd.DataFrame:
 def _concurrency_of(case: Case, concurrency: str | None) -> str:
     rule = concurrency or case.settings.analysis.concurrency
     if rule not in CONCURRENCY_RULES:
-        raise CaseError(Problem(file="case.toml", column="concurrency",
-                                message=f"unknown concurrency rule '{rule}' in [analysis]",
-                                fix="use time_not_money or apportion"))
+        raise CaseError(
+            Problem(
+                file="case.toml",
+                column="concurrency",
+                message=f"unknown concurrency rule '{rule}' in [analysis]",
+                fix="use time_not_money or apportion",
+            )
+        )
     return rule
 
 
@@ -453,24 +503,35 @@ def reconcile(table: pd.DataFrame, explained_days: int, where: str) -> None:
     broken = np.flatnonzero((split != table["days"]).to_numpy())
     if broken.size:
         row = table.iloc[int(broken[0])]
-        raise ReconciliationError(f"{where}, {row['step']}", {
-            "excusable + culpable": int(split.iloc[int(broken[0])]), "days": int(row["days"])})
+        raise ReconciliationError(
+            f"{where}, {row['step']}",
+            {"excusable + culpable": int(split.iloc[int(broken[0])]), "days": int(row["days"])},
+        )
     excusable = table["excusable_days"].to_numpy()
     compensable = table["compensable_days"].to_numpy()
     outside = np.flatnonzero(np.abs(compensable) > np.abs(excusable))
     if outside.size:
         row = table.iloc[int(outside[0])]
-        raise ReconciliationError(f"{where}, {row['step']}", {
-            "compensable days": int(row["compensable_days"]), "excusable days": int(row["excusable_days"])})
+        raise ReconciliationError(
+            f"{where}, {row['step']}",
+            {"compensable days": int(row["compensable_days"]), "excusable days": int(row["excusable_days"])},
+        )
     classified = int(split.sum())
     if classified != int(explained_days) or int(table["days"].sum()) != int(explained_days):
-        raise ReconciliationError(where, {"classified days": classified, "days charged": int(table["days"].sum()),
-                                          "delay explained": int(explained_days)})
+        raise ReconciliationError(
+            where,
+            {
+                "classified days": classified,
+                "days charged": int(table["days"].sum()),
+                "delay explained": int(explained_days),
+            },
+        )
     totals = class_totals(table)
     identity = totals["excusable_days"] + totals["culpable_delay_days"] - totals["acceleration_days"]
     if identity != int(explained_days):
-        raise ReconciliationError(where, {"excusable + culpable delay - acceleration": identity,
-                                          "delay explained": int(explained_days)})
+        raise ReconciliationError(
+            where, {"excusable + culpable delay - acceleration": identity, "delay explained": int(explained_days)}
+        )
 
 
 # -- windows ------------------------------------------------------------------------------------
@@ -521,21 +582,47 @@ def _windows_rows(windows, rule: str) -> list[dict]:
             for party, weight in causes + parallel:
                 merged[party] = merged.get(party, Fraction(0)) + weight
             split = classify_days(list(merged.items()), int(charge["days"]), rule)
-            rows.append(_row("windows", f"{where}: progress", int(charge["days"]), split, window=w.number,
-                             snapshot=w.end, event=join_ids(charge["events"]), party=charge["party"],
-                             basis=charge["basis"], activities=str(charge["activity"]),
-                             work_days=int(charge["work_days"]), causes=join_ids(merged),
-                             concurrent_with=join_ids(names), arose_on=last_day))
+            rows.append(
+                _row(
+                    "windows",
+                    f"{where}: progress",
+                    int(charge["days"]),
+                    split,
+                    window=w.number,
+                    snapshot=w.end,
+                    event=join_ids(charge["events"]),
+                    party=charge["party"],
+                    basis=charge["basis"],
+                    activities=str(charge["activity"]),
+                    work_days=int(charge["work_days"]),
+                    causes=join_ids(merged),
+                    concurrent_with=join_ids(names),
+                    arose_on=last_day,
+                )
+            )
         for revision in w.revisions.itertuples(index=False):
             if int(revision.days) == 0:
                 continue
             causes = [(p, 1) for p in revision.parties]
             split = classify_days(causes, int(revision.days), rule)
-            rows.append(_row("windows", f"{where}: revision ({revision.kind})", int(revision.days), split,
-                             window=w.number, snapshot=w.end, event=join_ids(revision.events), party=revision.party,
-                             basis=revision.basis, activities=join_ids(revision.activities),
-                             work_days=int(revision.work_days), causes=join_ids(revision.parties),
-                             concurrent_with="", arose_on=last_day))
+            rows.append(
+                _row(
+                    "windows",
+                    f"{where}: revision ({revision.kind})",
+                    int(revision.days),
+                    split,
+                    window=w.number,
+                    snapshot=w.end,
+                    event=join_ids(revision.events),
+                    party=revision.party,
+                    basis=revision.basis,
+                    activities=join_ids(revision.activities),
+                    work_days=int(revision.work_days),
+                    causes=join_ids(revision.parties),
+                    concurrent_with="",
+                    arose_on=last_day,
+                )
+            )
     return rows
 
 
@@ -562,15 +649,20 @@ def windows_causation(case: Case, result, concurrency: str | None = None, sectio
     windows = result.windows if section is None else result.sections[section]
     table = causation_frame(_windows_rows(windows, rule))
     explained = (windows[-1].completion_end - windows[0].completion_start).days if windows else 0
-    what = "the total movement of completion over the windows" if section is None else (
-        f"the total movement of section {section}'s completion over the windows")
+    what = (
+        "the total movement of completion over the windows"
+        if section is None
+        else (f"the total movement of section {section}'s completion over the windows")
+    )
     reconcile(table, explained, "causation of the windows analysis" + (f", section {section}" if section else ""))
-    notes = ("Charges on the driving chain only, in work days of the ledger calendar: float absorbed off it is "
-             "charged nothing (float is shared, first come, first served), and an activity that only carried an "
-             "earlier delay is charged nothing.",
-             "Lateness is measured against late dates by logic alone: milestone constraints change no figure.",
-             "A counted charge beside a parallel path of another party in a concurrency group is concurrent with it; "
-             "charges no event explains go to the activity's risk, else the unexplained-risk setting.")
+    notes = (
+        "Charges on the driving chain only, in work days of the ledger calendar: float absorbed off it is "
+        "charged nothing (float is shared, first come, first served), and an activity that only carried an "
+        "earlier delay is charged nothing.",
+        "Lateness is measured against late dates by logic alone: milestone constraints change no figure.",
+        "A counted charge beside a parallel path of another party in a concurrency group is concurrent with it; "
+        "charges no event explains go to the activity's risk, else the unexplained-risk setting.",
+    )
     planned = windows[0].completion_start if windows else result.first_completion
     return Causation("windows", table, explained, what, planned, rule, notes)
 
@@ -637,8 +729,9 @@ def sequence_rows(events: pd.DataFrame, concurrency: str, method: str) -> list[d
                 causes_here = [i] + here
                 partners += [c for c in here if c not in partners]
                 causes_seen += [c for c in here if c not in causes_seen]
-                part = classify_days([(parties[c], max(int(alone[c]), 0)) for c in causes_here], reach - position,
-                                     concurrency)
+                part = classify_days(
+                    [(parties[c], max(int(alone[c]), 0)) for c in causes_here], reach - position, concurrency
+                )
                 for key in ("excusable", "compensable", "culpable", "concurrent"):
                     split[key] += part[key]
                 split["apportioned"] |= part["apportioned"]
@@ -650,22 +743,41 @@ def sequence_rows(events: pd.DataFrame, concurrency: str, method: str) -> list[d
         partners.sort()
         row = events.iloc[i]
         cause_parties = _ordered_parties(parties[c] for c in causes_seen)
-        rows.append(_row(method, row["step"], days, split, snapshot=row["snapshot"], event=names[i],
-                         party=parties[i], basis="event", activities=row["activities"], alone_days=int(alone[i]),
-                         causes=join_ids(cause_parties), concurrent_with=join_ids(names[c] for c in partners),
-                         arose_on=row["arose_on"]))
+        rows.append(
+            _row(
+                method,
+                row["step"],
+                days,
+                split,
+                snapshot=row["snapshot"],
+                event=names[i],
+                party=parties[i],
+                basis="event",
+                activities=row["activities"],
+                alone_days=int(alone[i]),
+                causes=join_ids(cause_parties),
+                concurrent_with=join_ids(names[c] for c in partners),
+                arose_on=row["arose_on"],
+            )
+        )
     return rows
 
 
 def _run_frame(frame: pd.DataFrame, snapshot: str, label: str) -> pd.DataFrame:
     activities = [a if isinstance(a, str) else join_ids(a) for a in frame["activities"]]
-    return pd.DataFrame({
-        "event": frame["event"].to_numpy(dtype=object), "party": frame["party"].to_numpy(dtype=object),
-        "activities": activities, "alone_days": frame["alone_days"].to_numpy(dtype=np.int64),
-        "days": frame["increment_days"].to_numpy(dtype=np.int64), "arose_on": pd.to_datetime(frame["start"]),
-        "until": pd.to_datetime(frame["finish"]),
-        "step": [f"insertion {k} into {label}" for k in range(1, len(frame) + 1)], "snapshot": snapshot,
-    })
+    return pd.DataFrame(
+        {
+            "event": frame["event"].to_numpy(dtype=object),
+            "party": frame["party"].to_numpy(dtype=object),
+            "activities": activities,
+            "alone_days": frame["alone_days"].to_numpy(dtype=np.int64),
+            "days": frame["increment_days"].to_numpy(dtype=np.int64),
+            "arose_on": pd.to_datetime(frame["start"]),
+            "until": pd.to_datetime(frame["finish"]),
+            "step": [f"insertion {k} into {label}" for k in range(1, len(frame) + 1)],
+            "snapshot": snapshot,
+        }
+    )
 
 
 def _residual_row(case: Case, method: str, snapshot: str, step: str, days: int, rule: str, arose_on) -> dict:
@@ -674,11 +786,29 @@ def _residual_row(case: Case, method: str, snapshot: str, step: str, days: int, 
     if days >= 0:
         party = unexplained_risk(case)
         split = classify_days([(party, 1)], days, rule)
-        return _row(method, step, days, split, snapshot=snapshot, party=UNEXPLAINED, basis="residual",
-                    causes=party, arose_on=arose_on)
+        return _row(
+            method,
+            step,
+            days,
+            split,
+            snapshot=snapshot,
+            party=UNEXPLAINED,
+            basis="residual",
+            causes=party,
+            arose_on=arose_on,
+        )
     split = classify_days([("contractor", 1)], days, rule)
-    return _row(method, step, days, split, snapshot=snapshot, party=RECOVERY, basis="recovery",
-                causes="contractor", arose_on=arose_on)
+    return _row(
+        method,
+        step,
+        days,
+        split,
+        snapshot=snapshot,
+        party=RECOVERY,
+        basis="recovery",
+        causes="contractor",
+        arose_on=arose_on,
+    )
 
 
 def impacted_causation(case: Case, result, concurrency: str | None = None, section: str | None = None) -> Causation:
@@ -696,25 +826,41 @@ def impacted_causation(case: Case, result, concurrency: str | None = None, secti
     run = result.run if section is None else result.sections[section]
     rows = sequence_rows(_run_frame(run.events, result.base, result.base), rule, "impacted")
     if run.residual_days:
-        rows.append(_residual_row(case, "impacted", result.base,
-                                  f"residual: {run.target} finished {run.actual_completion.isoformat()}, against "
-                                  f"{run.completion_cumulative.isoformat()} with every event inserted",
-                                  run.residual_days, rule, run.completion_cumulative))
+        rows.append(
+            _residual_row(
+                case,
+                "impacted",
+                result.base,
+                f"residual: {run.target} finished {run.actual_completion.isoformat()}, against "
+                f"{run.completion_cumulative.isoformat()} with every event inserted",
+                run.residual_days,
+                rule,
+                run.completion_cumulative,
+            )
+        )
     table = causation_frame(rows)
     explained = int(run.explained_days)
     reconcile(table, explained, f"causation of the impacted as-planned analysis on {result.base}, at {run.target}")
-    notes = ("Each event's days are its increment in the chronological cumulative run: an earlier event "
-             "consumes float first (float is shared, first come, first served).",
-             "Events are concurrent only when their periods overlap and each alone would have delayed completion "
-             "that far; impacts alone need not add up.",
-             "The method measures the plan's response to the events, not what happened; the residual row is the "
-             "difference from the actual completion.")
-    return Causation("impacted", table, explained, "the actual less the planned completion (the events' "
-                     f"increments on {result.base} and the residual)", run.completion_base, rule, notes)
+    notes = (
+        "Each event's days are its increment in the chronological cumulative run: an earlier event "
+        "consumes float first (float is shared, first come, first served).",
+        "Events are concurrent only when their periods overlap and each alone would have delayed completion "
+        "that far; impacts alone need not add up.",
+        "The method measures the plan's response to the events, not what happened; the residual row is the "
+        "difference from the actual completion.",
+    )
+    return Causation(
+        "impacted",
+        table,
+        explained,
+        f"the actual less the planned completion (the events' increments on {result.base} and the residual)",
+        run.completion_base,
+        rule,
+        notes,
+    )
 
 
-def time_impact_causation(case: Case, result, concurrency: str | None = None,
-                          section: str | None = None) -> Causation:
+def time_impact_causation(case: Case, result, concurrency: str | None = None, section: str | None = None) -> Causation:
     """The causation table of a time impact analysis
     (:class:`delay.methods.tia.TimeImpactResult`): per programme, one row per event
     inserted into it (its increment), concurrency in time within the programme's run, and
@@ -734,21 +880,37 @@ def time_impact_causation(case: Case, result, concurrency: str | None = None,
         if len(run):
             rows += sequence_rows(_run_frame(run, update.snapshot, update.snapshot), rule, "tia")
         if int(update.residual_days):
-            rows.append(_residual_row(
-                case, "tia", update.snapshot,
-                f"residual of {update.snapshot}: {update.next_snapshot} finishes "
-                f"{update.next_completion.isoformat()}, against {update.completion_after.isoformat()} impacted",
-                int(update.residual_days), rule, update.next_data_date))
+            rows.append(
+                _residual_row(
+                    case,
+                    "tia",
+                    update.snapshot,
+                    f"residual of {update.snapshot}: {update.next_snapshot} finishes "
+                    f"{update.next_completion.isoformat()}, against {update.completion_after.isoformat()} impacted",
+                    int(update.residual_days),
+                    rule,
+                    update.next_data_date,
+                )
+            )
     table = causation_frame(rows)
     explained = int(trace.explained_days)
     reconcile(table, explained, f"causation of the time impact analysis, at {trace.target}")
-    notes = ("Each event's days are its increment in the programme it was inserted into (the last before it "
-             "began); events are concurrent only when their periods overlap and each alone would have delayed "
-             "completion that far.",
-             "Each programme's residual (the next programme's completion less its impacted one) is delay no event "
-             "explains, or the contractor's recovery; with the residuals the rows add up to the actual delay.")
-    return Causation("tia", table, explained, "the actual less the planned completion (increments and residuals)",
-                     trace.planned_completion, rule, notes)
+    notes = (
+        "Each event's days are its increment in the programme it was inserted into (the last before it "
+        "began); events are concurrent only when their periods overlap and each alone would have delayed "
+        "completion that far.",
+        "Each programme's residual (the next programme's completion less its impacted one) is delay no event "
+        "explains, or the contractor's recovery; with the residuals the rows add up to the actual delay.",
+    )
+    return Causation(
+        "tia",
+        table,
+        explained,
+        "the actual less the planned completion (increments and residuals)",
+        trace.planned_completion,
+        rule,
+        notes,
+    )
 
 
 def _baseline_completion(case: Case) -> dt.date:
@@ -763,8 +925,9 @@ def _baseline_completion(case: Case) -> dt.date:
 
 
 # -- collapsed as-built -------------------------------------------------------------------------
-def collapsed_causation(case: Case, result, concurrency: str | None = None,
-                        planned_completion: dt.date | None = None) -> Causation:
+def collapsed_causation(
+    case: Case, result, concurrency: str | None = None, planned_completion: dt.date | None = None
+) -> Causation:
     """The causation table of a collapsed as-built analysis
     (:class:`delay.methods.collapsed.CollapsedResult`): one row per party, a row of days
     concurrent between parties and a row of unexplained days (see the module docstring).
@@ -809,37 +972,79 @@ def collapsed_causation(case: Case, result, concurrency: str | None = None,
     rows = []
     for p in parties:
         split = classify_days([(p, 1)], sole[p], rule)
-        rows.append(_row("collapsed", f"but for the {p}'s events", sole[p], split, event=join_ids(events_of[p]),
-                         party=p, alone_days=but_for[p], causes=p, arose_on=earliest(events_of[p])))
+        rows.append(
+            _row(
+                "collapsed",
+                f"but for the {p}'s events",
+                sole[p],
+                split,
+                event=join_ids(events_of[p]),
+                party=p,
+                alone_days=but_for[p],
+                causes=p,
+                arose_on=earliest(events_of[p]),
+            )
+        )
     involved = [p for p in parties if events_of[p]]
     if concurrent_days:
-        involved.sort(key=lambda p: (earliest(events_of[p]) is None, earliest(events_of[p]) or pd.Timestamp.max,
-                                     PARTIES.index(p)))
+        involved.sort(
+            key=lambda p: (earliest(events_of[p]) is None, earliest(events_of[p]) or pd.Timestamp.max, PARTIES.index(p))
+        )
         causes = [(p, 1) for p in involved] or [(unexplained_risk(case), 1)]
         split = classify_days(causes, concurrent_days, rule)
         events = [e for p in involved for e in events_of[p]]
-        rows.append(_row("collapsed", "but for every event, not for any one party's", concurrent_days, split,
-                         event=join_ids(events), party=CONCURRENT if len(involved) > 1 else (involved or [UNEXPLAINED])[0],
-                         causes=join_ids(p for p, _ in causes), concurrent_with=join_ids(involved),
-                         arose_on=earliest(events)))
+        rows.append(
+            _row(
+                "collapsed",
+                "but for every event, not for any one party's",
+                concurrent_days,
+                split,
+                event=join_ids(events),
+                party=CONCURRENT if len(involved) > 1 else (involved or [UNEXPLAINED])[0],
+                causes=join_ids(p for p, _ in causes),
+                concurrent_with=join_ids(involved),
+                arose_on=earliest(events),
+            )
+        )
     if unexplained:
         split = classify_days([(unexplained_risk(case), 1)], unexplained, rule)
-        rows.append(_row("collapsed", "not taken out by any event", unexplained, split, party=UNEXPLAINED,
-                         basis="unexplained", causes=unexplained_risk(case)))
+        rows.append(
+            _row(
+                "collapsed",
+                "not taken out by any event",
+                unexplained,
+                split,
+                party=UNEXPLAINED,
+                basis="unexplained",
+                causes=unexplained_risk(case),
+            )
+        )
     table = causation_frame(rows)
     reconcile(table, delay, "causation of the collapsed as-built analysis")
-    notes = ("But-for days (alone_days) need not add up; the rows add up to the actual less the planned completion "
-             "by construction: sole days, days concurrent between parties, and days no event explains.",)
+    notes = (
+        "But-for days (alone_days) need not add up; the rows add up to the actual less the planned completion "
+        "by construction: sole days, days concurrent between parties, and days no event explains.",
+    )
     if not getattr(result, "reproduced", True):
-        notes += ("The as-built model does not reproduce the actual dates; the difference is among the days no "
-                  "event explains.",)
-    return Causation("collapsed", table, delay, "the actual less the planned completion", planned, rule,
-                     notes + tuple(getattr(result, "notes", ()))[:1])
+        notes += (
+            "The as-built model does not reproduce the actual dates; the difference is among the days no "
+            "event explains.",
+        )
+    return Causation(
+        "collapsed",
+        table,
+        delay,
+        "the actual less the planned completion",
+        planned,
+        rule,
+        notes + tuple(getattr(result, "notes", ()))[:1],
+    )
 
 
 # -- any method -----------------------------------------------------------------------------------
-def causation(case: Case, method: str, result=None, concurrency: str | None = None,
-              section: str | None = None) -> Causation:
+def causation(
+    case: Case, method: str, result=None, concurrency: str | None = None, section: str | None = None
+) -> Causation:
     """The causation table of one method, running the method when ``result`` is not given.
 
     Parameters
@@ -861,8 +1066,9 @@ def causation(case: Case, method: str, result=None, concurrency: str | None = No
     >>> table = causation(load_case("case_demo"), "impacted").table   # doctest: +SKIP
     """
     if method not in METHODS:
-        raise CaseError(Problem(file="--method", message=f"unknown method '{method}'",
-                                fix=f"choose among: {', '.join(METHODS)}"))
+        raise CaseError(
+            Problem(file="--method", message=f"unknown method '{method}'", fix=f"choose among: {', '.join(METHODS)}")
+        )
     if result is None:
         from importlib import import_module
 

@@ -19,7 +19,6 @@ from pathlib import Path
 import click
 
 from . import __version__
-
 from .commands import ALIASES, all_commands
 from .commands.common import FORMAT, reports_input_errors
 from .commands.common import load_case_argument as _load
@@ -62,8 +61,14 @@ def cli():
 
 @cli.command()
 @click.argument("case", type=click.Path(exists=True, file_okay=True, dir_okay=True))
-@click.option("--format", "output_format", type=click.Choice(["table", "json"]), default="table",
-              show_default=True, help="How to print the summary.")
+@click.option(
+    "--format",
+    "output_format",
+    type=click.Choice(["table", "json"]),
+    default="table",
+    show_default=True,
+    help="How to print the summary.",
+)
 @reports_input_errors
 def validate(case, output_format):
     """Check a case and summarise it.
@@ -89,14 +94,22 @@ def _print_summary(summary: dict) -> None:
     snapshots = list(summary.get("snapshots", []))
     if summary.get("asbuilt_snapshot"):
         snapshots.append(summary["asbuilt_snapshot"])
-    rows = [[s.get("folder"), s.get("label"), s.get("kind"), s.get("data_date"), s.get("activities"), s.get("links")]
-            for s in snapshots]
+    rows = [
+        [s.get("folder"), s.get("label"), s.get("kind"), s.get("data_date"), s.get("activities"), s.get("links")]
+        for s in snapshots
+    ]
     _print_table("Snapshots", ["folder", "label", "kind", "data date", "activities", "links"], rows)
-    counts = [[key.replace("_", " "), value] for key, value in summary.items()
-              if isinstance(value, int) and not isinstance(value, bool)]
+    counts = [
+        [key.replace("_", " "), value]
+        for key, value in summary.items()
+        if isinstance(value, int) and not isinstance(value, bool)
+    ]
     if counts:
         _print_table("Records", ["record", "count"], counts)
-    click.echo(f"Completion activity: {summary.get('completion_activity') or 'not named (the finish milestone that finishes last in the baseline)'}")
+    click.echo(
+        "Completion activity: "
+        + (summary.get("completion_activity") or "not named (the finish milestone that finishes last in the baseline)")
+    )
     click.echo(f"Unexplained slippage carried by: {summary.get('unexplained_risk', '')}")
     click.echo(f"Preferred method: {summary.get('preferred_method') or 'none named'}")
     click.echo(f"Analyst's opinion (opinion.md): {'given' if summary.get('opinion') else 'none'}")
@@ -116,11 +129,20 @@ def _print_dialects(dialects: list) -> None:
             delimiter = f"{_DELIMITER_WORDS.get(d.get('delimiter'), d.get('delimiter'))} ({d.get('delimiter_source')})"
             encoding = f"{d.get('encoding')} ({d.get('encoding_source')})"
         renamed = ", ".join(f"{k} -> {v}" for k, v in d.get("renamed", {}).items())
-        rows.append([d.get("file"), delimiter, encoding, d.get("date_format"), d.get("decimal"),
-                     f"headers read as: {renamed}" if renamed else ""])
+        rows.append(
+            [
+                d.get("file"),
+                delimiter,
+                encoding,
+                d.get("date_format"),
+                d.get("decimal"),
+                f"headers read as: {renamed}" if renamed else "",
+            ]
+        )
     if rows:  # "note" is a column that wraps (commands.common.WIDE_COLUMNS)
-        _print_table("How the files were read", ["file", "delimiter", "encoding", "date format", "decimal",
-                                                 "note"], rows)
+        _print_table(
+            "How the files were read", ["file", "delimiter", "encoding", "date format", "decimal", "note"], rows
+        )
 
 
 @cli.command()
@@ -149,15 +171,26 @@ def _schedule_settings(case, progress, float_to, lag_calendar):
 
 @cli.command()
 @click.argument("case", type=click.Path(exists=True))
-@click.option("--snapshot", default="baseline", show_default=True,
-              help="Folder name under snapshots/ or label; 'asbuilt' for the as-built record.")
+@click.option(
+    "--snapshot",
+    default="baseline",
+    show_default=True,
+    help="Folder name under snapshots/ or label; 'asbuilt' for the as-built record.",
+)
 @click.option("--format", "output_format", type=FORMAT, default="table", show_default=True)
-@click.option("--progress", type=click.Choice(["retained_logic", "progress_override"]),
-              help="Override how out-of-sequence progress is scheduled.")
-@click.option("--float-to", type=click.Choice(["project_finish", "contract_completion"]),
-              help="Override where the backward pass starts.")
-@click.option("--lag-calendar", type=click.Choice(["successor", "predecessor"]),
-              help="Override whose calendar counts a lag.")
+@click.option(
+    "--progress",
+    type=click.Choice(["retained_logic", "progress_override"]),
+    help="Override how out-of-sequence progress is scheduled.",
+)
+@click.option(
+    "--float-to",
+    type=click.Choice(["project_finish", "contract_completion"]),
+    help="Override where the backward pass starts.",
+)
+@click.option(
+    "--lag-calendar", type=click.Choice(["successor", "predecessor"]), help="Override whose calendar counts a lag."
+)
 @reports_input_errors
 def schedule(case, snapshot, output_format, progress, float_to, lag_calendar):
     """Schedule one snapshot by the critical path method.
@@ -183,11 +216,25 @@ def schedule(case, snapshot, output_format, progress, float_to, lag_calendar):
         return
     from .convert import text_cell
 
-    columns = ["id", "name", "status", "early_start", "early_finish", "late_start", "late_finish",
-               "total_float", "free_float", "critical", "driving"]
+    columns = [
+        "id",
+        "name",
+        "status",
+        "early_start",
+        "early_finish",
+        "late_start",
+        "late_finish",
+        "total_float",
+        "free_float",
+        "critical",
+        "driving",
+    ]
     rows = [[text_cell(v) for v in row] for row in frame[columns].itertuples(index=False)]
-    _print_table(f"{result.snapshot}: data date {result.data_date}, completion {result.completion}",
-                 [c.replace("_", " ") for c in columns], rows)
+    _print_table(
+        f"{result.snapshot}: data date {result.data_date}, completion {result.completion}",
+        [c.replace("_", " ") for c in columns],
+        rows,
+    )
     click.echo(f"Completion: {result.completion}  (driving path of {len(result.driving_path())} activities)")
 
 
@@ -221,10 +268,20 @@ def _with_unknown_columns(frame, snap):
 @click.argument("out", type=click.Path())
 @click.option("--activities", type=click.IntRange(2, 5_000_000), required=True, help="Number of activities.")
 @click.option("--links-per-activity", type=click.FloatRange(1.0, 20.0), default=2.5, show_default=True)
-@click.option("--updates", type=click.IntRange(0, 240), default=0, show_default=True,
-              help="Monthly progress updates to write (with an as-built record when > 0).")
-@click.option("--elements", type=click.IntRange(0, 5_000_000), default=0, show_default=True,
-              help="Model elements to write, linked to the activities by wbs.")
+@click.option(
+    "--updates",
+    type=click.IntRange(0, 240),
+    default=0,
+    show_default=True,
+    help="Monthly progress updates to write (with an as-built record when > 0).",
+)
+@click.option(
+    "--elements",
+    type=click.IntRange(0, 5_000_000),
+    default=0,
+    show_default=True,
+    help="Model elements to write, linked to the activities by wbs.",
+)
 @click.option("--seed", type=int, default=0, show_default=True, help="Random seed; same seed, same case.")
 @reports_input_errors
 def synth(out, activities, links_per_activity, updates, elements, seed):
@@ -244,11 +301,22 @@ def _demo_case() -> Path:
 
 
 @cli.command()
-@click.option("--out", "out_dir", type=click.Path(), default="out/demo", show_default=True,
-              help="Folder for the outputs: new, empty or an earlier output of the toolkit (replaced whole "
-                   "when the run succeeds); never the case folder, inside it or above it.")
-@click.option("--case", "case_path", type=click.Path(exists=True), default=None,
-              help="Another case to run instead of the bundled demo.")
+@click.option(
+    "--out",
+    "out_dir",
+    type=click.Path(),
+    default="out/demo",
+    show_default=True,
+    help="Folder for the outputs: new, empty or an earlier output of the toolkit (replaced whole "
+    "when the run succeeds); never the case folder, inside it or above it.",
+)
+@click.option(
+    "--case",
+    "case_path",
+    type=click.Path(exists=True),
+    default=None,
+    help="Another case to run instead of the bundled demo.",
+)
 @reports_input_errors
 def demo(out_dir, case_path):
     """Run everything the toolkit can do on the bundled invented demo project.

@@ -18,8 +18,8 @@ choosing a method, both as recalled).
 from __future__ import annotations
 
 import dataclasses
+from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
-from typing import Mapping, Sequence
 
 import pandas as pd
 
@@ -29,20 +29,29 @@ from .memo import remembered
 from .methods import METHOD_TITLES
 from .model import Case
 
-__all__ = ["compare_methods", "sensitivity", "available_methods", "disagreements", "why_they_differ",
-           "MethodComparison", "METHOD_TITLES", "DISAGREEMENT_DAYS", "HEADLINE_DAYS"]
+__all__ = [
+    "compare_methods",
+    "sensitivity",
+    "available_methods",
+    "disagreements",
+    "why_they_differ",
+    "MethodComparison",
+    "METHOD_TITLES",
+    "DISAGREEMENT_DAYS",
+    "HEADLINE_DAYS",
+]
 
 
 #: What each method measures: the sentence the explanation uses for it.
 MEASURES = {
     "windows": "follows the contemporaneous updates, so it charges what actually moved the forecast "
-               "completion, progress and re-planning included",
+    "completion, progress and re-planning included",
     "impacted": "adds the register's events to the plan alone, at their real dates, ignoring progress and "
-                "delays no event describes (the residual is the difference from what happened)",
+    "delays no event describes (the residual is the difference from what happened)",
     "tia": "adds each event to the programme current before it began, so each event is measured against the "
-           "programme of its own time, and reconciles each programme with the next through its residual",
+    "programme of its own time, and reconciles each programme with the next through its residual",
     "collapsed": "takes the events out of the as-built record, so it depends on the as-built logic "
-                 "reproducing the actual dates",
+    "reproducing the actual dates",
 }
 PARTY_ORDER = ("employer", "contractor", "neutral", "concurrent", "unexplained", "recovery")
 
@@ -53,8 +62,11 @@ DISAGREEMENT_DAYS = 10
 
 #: The headline figures counted in days, with their names in words, in the order they are
 #: compared.
-HEADLINE_DAYS = {"eot_days": "extension of time", "compensable_days": "compensable days",
-                 "ld_days": "days of liquidated damages"}
+HEADLINE_DAYS = {
+    "eot_days": "extension of time",
+    "compensable_days": "compensable days",
+    "ld_days": "days of liquidated damages",
+}
 
 
 def available_methods(case: Case) -> list[str]:
@@ -82,9 +94,13 @@ class MethodComparison:
 
     def to_json(self) -> dict:
         records = json_records
-        return {"methods": list(self.methods), "by_party": records(self.by_party),
-                "by_event": records(self.by_event), "headline": records(self.headline),
-                "explanation": list(self.explanation)}
+        return {
+            "methods": list(self.methods),
+            "by_party": records(self.by_party),
+            "by_event": records(self.by_event),
+            "headline": records(self.headline),
+            "explanation": list(self.explanation),
+        }
 
 
 def _party_days(result: Entitlement) -> dict[str, int]:
@@ -120,8 +136,14 @@ def _group_rows(results: Mapping[str, Entitlement], methods: Sequence[str]) -> l
     if not len(group) or not int(group["days"].sum()):
         return []
     events = str(group["event"].iloc[0]).replace(";", ", ")
-    return [{"event": "concurrent group", "party": "concurrent", "title": f"days concurrent between parties ({events})",
-             **{m: (int(group["days"].sum()) if m == "collapsed" else 0) for m in methods}}]
+    return [
+        {
+            "event": "concurrent group",
+            "party": "concurrent",
+            "title": f"days concurrent between parties ({events})",
+            **{m: (int(group["days"].sum()) if m == "collapsed" else 0) for m in methods},
+        }
+    ]
 
 
 def compare_methods(case: Case, results: Mapping[str, Entitlement] | None = None) -> MethodComparison:
@@ -150,23 +172,43 @@ def compare_methods(case: Case, results: Mapping[str, Entitlement] | None = None
         assessed = assess(case, list(methods))
         results = {m: assessed.method(m) for m in methods}
     party = {m: _party_days(results[m]) for m in methods}
-    rows = [{"party": p, **{m: party[m].get(p, 0) for m in methods}} for p in PARTY_ORDER
-            if any(party[m].get(p, 0) for m in methods)]
+    rows = [
+        {"party": p, **{m: party[m].get(p, 0) for m in methods}}
+        for p in PARTY_ORDER
+        if any(party[m].get(p, 0) for m in methods)
+    ]
     by_party = pd.DataFrame(rows, columns=["party", *methods])
     events = case.events
     event_days = {m: _event_days(results[m]) for m in methods}
     by_event = pd.DataFrame(
-        [{"event": e, "party": p, "title": t, **{m: event_days[m].get(e, 0) for m in methods}}
-         for e, p, t in zip(events["id"], events["party"], events["title"])] + _group_rows(results, methods),
-        columns=["event", "party", "title", *methods])
-    headline = pd.DataFrame([{
-        "method": m, "eot_days": results[m].eot_days, "revised_completion": results[m].revised_completion,
-        "compensable_days": results[m].compensable_days, "prolongation_cost": results[m].prolongation_cost,
-        "culpable_delay_days": results[m].culpable_delay_days, "acceleration_days": results[m].acceleration_days,
-        "ld_days": results[m].ld_days, "ld_exposure": results[m].ld_exposure,
-        "concurrent_days": results[m].concurrent_days, "explained_days": results[m].causation.explained_days,
-    } for m in methods])
-    return MethodComparison(methods, by_party, by_event, headline, tuple(_explain(methods, by_party, headline, results)))
+        [
+            {"event": e, "party": p, "title": t, **{m: event_days[m].get(e, 0) for m in methods}}
+            for e, p, t in zip(events["id"], events["party"], events["title"])
+        ]
+        + _group_rows(results, methods),
+        columns=["event", "party", "title", *methods],
+    )
+    headline = pd.DataFrame(
+        [
+            {
+                "method": m,
+                "eot_days": results[m].eot_days,
+                "revised_completion": results[m].revised_completion,
+                "compensable_days": results[m].compensable_days,
+                "prolongation_cost": results[m].prolongation_cost,
+                "culpable_delay_days": results[m].culpable_delay_days,
+                "acceleration_days": results[m].acceleration_days,
+                "ld_days": results[m].ld_days,
+                "ld_exposure": results[m].ld_exposure,
+                "concurrent_days": results[m].concurrent_days,
+                "explained_days": results[m].causation.explained_days,
+            }
+            for m in methods
+        ]
+    )
+    return MethodComparison(
+        methods, by_party, by_event, headline, tuple(_explain(methods, by_party, headline, results))
+    )
 
 
 def _explain(methods, by_party: pd.DataFrame, headline: pd.DataFrame, results) -> list[str]:
@@ -179,40 +221,56 @@ def _explain(methods, by_party: pd.DataFrame, headline: pd.DataFrame, results) -
         if eot[high] == eot[low]:
             lines.append(f"All {len(methods)} methods give the same extension of time, {int(eot[high])} days.")
         else:
-            lines.append(f"The extension of time ranges from {int(eot[low])} days ({METHOD_TITLES[low]}) to "
-                         f"{int(eot[high])} days ({METHOD_TITLES[high]}).")
+            lines.append(
+                f"The extension of time ranges from {int(eot[low])} days ({METHOD_TITLES[low]}) to "
+                f"{int(eot[high])} days ({METHOD_TITLES[high]})."
+            )
     for row in by_party.itertuples(index=False):
         values = {m: int(getattr(row, m)) for m in methods}
         if len(methods) > 1 and max(values.values()) != min(values.values()):
             most = max(values, key=values.get)
             least = min(values, key=values.get)
-            lines.append(f"Delay carried by {row.party}: {values[most]} days by {METHOD_TITLES[most]}, "
-                         f"{values[least]} by {METHOD_TITLES[least]}.")
+            lines.append(
+                f"Delay carried by {row.party}: {values[most]} days by {METHOD_TITLES[most]}, "
+                f"{values[least]} by {METHOD_TITLES[least]}."
+            )
     for m in methods:
         explained = results[m].causation
-        lines.append(f"{METHOD_TITLES[m].capitalize()} {MEASURES[m]}; it explains {explained.explained_days} days "
-                     f"({explained.explains}).")
+        lines.append(
+            f"{METHOD_TITLES[m].capitalize()} {MEASURES[m]}; it explains {explained.explained_days} days "
+            f"({explained.explains})."
+        )
         for row in by_party.itertuples(index=False):
             days = int(getattr(row, m))
             if row.party == "unexplained" and days:
-                lines.append(f"By {METHOD_TITLES[m]}, {days} days are delay no event explains (carried by the "
-                             "unexplained-risk setting).")
+                lines.append(
+                    f"By {METHOD_TITLES[m]}, {days} days are delay no event explains (carried by the "
+                    "unexplained-risk setting)."
+                )
             if row.party == "recovery" and days:
-                lines.append(f"By {METHOD_TITLES[m]}, the works finished {-days} days earlier than the method's "
-                             "model of the events predicted: the contractor's recovery, counted against its "
-                             "culpable delay first (or events modelled larger than they were).")
+                lines.append(
+                    f"By {METHOD_TITLES[m]}, the works finished {-days} days earlier than the method's "
+                    "model of the events predicted: the contractor's recovery, counted against its "
+                    "culpable delay first (or events modelled larger than they were)."
+                )
         if results[m].acceleration_days:
-            lines.append(f"By {METHOD_TITLES[m]}, the contractor's net recovery is {results[m].acceleration_days} days "
-                         "of acceleration: shown, and not taken off the extension of time.")
+            lines.append(
+                f"By {METHOD_TITLES[m]}, the contractor's net recovery is {results[m].acceleration_days} days "
+                "of acceleration: shown, and not taken off the extension of time."
+            )
     collapsed = results.get("collapsed")
     if collapsed is not None:
         for note in collapsed.causation.notes:
             if "does not reproduce" in note:
-                lines.append("The collapsed as-built figures carry the error of an as-built model that does not "
-                             "reproduce every actual date; see its mismatches.")
+                lines.append(
+                    "The collapsed as-built figures carry the error of an as-built model that does not "
+                    "reproduce every actual date; see its mismatches."
+                )
                 break
-    lines.append("Which method suits the dispute, and whether its assumptions hold on these records, is for the "
-                 "analyst's professional judgement under the contract and the applicable law.")
+    lines.append(
+        "Which method suits the dispute, and whether its assumptions hold on these records, is for the "
+        "analyst's professional judgement under the contract and the applicable law."
+    )
     return lines
 
 
@@ -251,11 +309,21 @@ def disagreements(comparison: MethodComparison, threshold: int = DISAGREEMENT_DA
     for figure, words in HEADLINE_DAYS.items():
         low, low_days, high, high_days = _spread(comparison, figure)
         if high_days - low_days > threshold:
-            found.append({"figure": words, "difference": high_days - low_days, "low": low, "high": high,
-                          "low_days": low_days, "high_days": high_days, "sentence": (
-                              f"The methods differ by {high_days - low_days} days on the {words} ({low_days} days "
-                              f"by {METHOD_TITLES[low]}, {high_days} by {METHOD_TITLES[high]}), more than the "
-                              f"{threshold} days this report flags.")})
+            found.append(
+                {
+                    "figure": words,
+                    "difference": high_days - low_days,
+                    "low": low,
+                    "high": high,
+                    "low_days": low_days,
+                    "high_days": high_days,
+                    "sentence": (
+                        f"The methods differ by {high_days - low_days} days on the {words} ({low_days} days "
+                        f"by {METHOD_TITLES[low]}, {high_days} by {METHOD_TITLES[high]}), more than the "
+                        f"{threshold} days this report flags."
+                    ),
+                }
+            )
     return found
 
 
@@ -281,22 +349,33 @@ def why_they_differ(comparison: MethodComparison) -> tuple[str, ...]:
     figure = max(spreads, key=lambda f: spreads[f][3] - spreads[f][1])  # the first on a tie
     low, low_days, high, high_days = spreads[figure]
     if high_days == low_days:
-        return (f"All {len(methods)} methods give the same extension of time, compensable days and days of liquidated "
-                f"damages ({spreads['eot_days'][1]}, {spreads['compensable_days'][1]} and {spreads['ld_days'][1]}).",)
-    return (f"The methods differ most on the {HEADLINE_DAYS[figure]}: from {low_days} days by {METHOD_TITLES[low]} "
-            f"to {high_days} by {METHOD_TITLES[high]}.",
-            f"The {METHOD_TITLES[high]} {MEASURES[high]}; the {METHOD_TITLES[low]} {MEASURES[low]}.")
+        return (
+            f"All {len(methods)} methods give the same extension of time, compensable days and days of liquidated "
+            f"damages ({spreads['eot_days'][1]}, {spreads['compensable_days'][1]} and {spreads['ld_days'][1]}).",
+        )
+    return (
+        f"The methods differ most on the {HEADLINE_DAYS[figure]}: from {low_days} days by {METHOD_TITLES[low]} "
+        f"to {high_days} by {METHOD_TITLES[high]}.",
+        f"The {METHOD_TITLES[high]} {MEASURES[high]}; the {METHOD_TITLES[low]} {MEASURES[low]}.",
+    )
 
 
 def _with_progress(case: Case, progress: str) -> Case:
     """The case under another progress mode (one variant per case, kept with it)."""
 
     def variant() -> Case:
-        settings = dataclasses.replace(case.settings, schedule=dataclasses.replace(case.settings.schedule,
-                                                                                       progress=progress))
-        return Case(root=case.root, settings=settings, tables={n: case.table(n) for n in case._tables},
-                    snapshots=case.snapshots, asbuilt_snapshot=case.asbuilt_snapshot, corrections=case.corrections,
-                    input_files=case.input_files)
+        settings = dataclasses.replace(
+            case.settings, schedule=dataclasses.replace(case.settings.schedule, progress=progress)
+        )
+        return Case(
+            root=case.root,
+            settings=settings,
+            tables={n: case.table(n) for n in case._tables},
+            snapshots=case.snapshots,
+            asbuilt_snapshot=case.asbuilt_snapshot,
+            corrections=case.corrections,
+            input_files=case.input_files,
+        )
 
     return remembered(case, ("with progress", progress), variant)
 
@@ -335,8 +414,18 @@ def _sensitivity(case: Case, methods: list[str]) -> pd.DataFrame:
             figures = (e.eot_days, e.compensable_days, e.ld_days, e.ld_exposure, e.concurrent_days)
             if name == "as set":
                 base[m] = figures
-            rows.append({"method": m, "variant": name, "progress": mode, "concurrency": rule,
-                         "eot_days": e.eot_days, "compensable_days": e.compensable_days,
-                         "ld_days": e.ld_days, "ld_exposure": e.ld_exposure,
-                         "concurrent_days": e.concurrent_days, "changed": figures != base[m]})
+            rows.append(
+                {
+                    "method": m,
+                    "variant": name,
+                    "progress": mode,
+                    "concurrency": rule,
+                    "eot_days": e.eot_days,
+                    "compensable_days": e.compensable_days,
+                    "ld_days": e.ld_days,
+                    "ld_exposure": e.ld_exposure,
+                    "concurrent_days": e.concurrent_days,
+                    "changed": figures != base[m],
+                }
+            )
     return pd.DataFrame(rows)

@@ -65,8 +65,9 @@ def grants(case: Case, section: str | None = None, at: dt.date | None = None) ->
     return rows
 
 
-def completion_in_force(case: Case, section: str | None = None, at: dt.date | None = None
-                        ) -> tuple[dt.date, int, dt.date]:
+def completion_in_force(
+    case: Case, section: str | None = None, at: dt.date | None = None
+) -> tuple[dt.date, int, dt.date]:
     """``(contract completion, days granted, completion in force)`` for the whole works
     (``section=None``) or one section, counting the grants made on or before ``at``.
 

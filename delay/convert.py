@@ -19,15 +19,37 @@ from __future__ import annotations
 import datetime as dt
 import json
 import math
+from collections.abc import Iterable, Mapping
 from json.encoder import encode_basestring_ascii
-from typing import Any, Iterable, Mapping
+from typing import Any
 
 import numpy as np
 import pandas as pd
 
-__all__ = ["EPOCH", "NO_DAY", "to_days", "to_dates", "table_dates", "iso_dates", "day_to_date", "iso_date", "json_int",
-           "json_cell", "json_records", "json_date_cells", "json_text_cells", "json_int_cells",
-           "json_bool_cells", "json_rows_text", "list_cells", "text_cell", "split_ids", "split_id_column", "join_ids", "LIST_SEPARATOR"]
+__all__ = [
+    "EPOCH",
+    "NO_DAY",
+    "to_days",
+    "to_dates",
+    "table_dates",
+    "iso_dates",
+    "day_to_date",
+    "iso_date",
+    "json_int",
+    "json_cell",
+    "json_records",
+    "json_date_cells",
+    "json_text_cells",
+    "json_int_cells",
+    "json_bool_cells",
+    "json_rows_text",
+    "list_cells",
+    "text_cell",
+    "split_ids",
+    "split_id_column",
+    "join_ids",
+    "LIST_SEPARATOR",
+]
 
 #: Day number 0.
 EPOCH = np.datetime64("1970-01-01", "D")
@@ -281,8 +303,11 @@ def list_cells(frame: pd.DataFrame) -> pd.DataFrame:
     >>> list_cells(pd.DataFrame({"events": [["E1", "E2"], []], "days": [3, 0]}))["events"].tolist()
     ['E1;E2', '']
     """
-    listed = [c for c in frame.columns if frame[c].dtype == object
-              and frame[c].map(lambda v: isinstance(v, (list, tuple, np.ndarray))).any()]
+    listed = [
+        c
+        for c in frame.columns
+        if frame[c].dtype == object and frame[c].map(lambda v: isinstance(v, (list, tuple, np.ndarray))).any()
+    ]
     if not listed:
         return frame
     out = frame.copy()
@@ -425,6 +450,7 @@ def _distinct_texts(values, missing, blank, format_values) -> np.ndarray:
 def _day_texts(days, quoted: bool) -> np.ndarray:
     """Per cell, the ISO date of a day number (quoted for JSON), ``None`` (``null``) for
     ``NO_DAY``; each distinct day formatted once, by numpy."""
+
     def dates(distinct):
         texts = np.datetime_as_string(distinct.astype("datetime64[D]"), unit="D")
         return np.char.add(np.char.add('"', texts), '"') if quoted else texts
@@ -490,8 +516,9 @@ def json_text_cells(values) -> np.ndarray:
     items = list(values)
     if all(type(v) is str for v in items):
         return np.fromiter(map(encode_basestring_ascii, items), dtype=object, count=len(items))
-    return np.fromiter(("null" if v is None else encode_basestring_ascii(str(v)) for v in items), dtype=object,
-                       count=len(items))
+    return np.fromiter(
+        ("null" if v is None else encode_basestring_ascii(str(v)) for v in items), dtype=object, count=len(items)
+    )
 
 
 def json_int_cells(values, missing=None) -> np.ndarray:

@@ -36,20 +36,30 @@ import dataclasses
 import datetime as dt
 import json
 import weakref
+from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, field
 from functools import cached_property
-from typing import Mapping, Sequence
 
 import numpy as np
 import pandas as pd
 
 from .bounds import check_finish_days, check_late_days, grow_within_bounds
 from .calendars import CalendarSet, build_calendars
-from .convert import NO_DAY, day_to_date, table_dates, to_days
+from .convert import (
+    NO_DAY,
+    day_to_date,
+    iso_dates,
+    json_bool_cells,
+    json_date_cells,
+    json_int_cells,
+    json_rows_text,
+    json_text_cells,
+    table_dates,
+    to_days,
+)
 from .errors import CaseError, Problem
 from .model import ACTIVITY_KINDS, CONSTRAINTS, Case, ScheduleSettings, Snapshot
 from .network import LINK_CODES, Network, build_network, compile_network
-from .convert import iso_dates, json_bool_cells, json_date_cells, json_int_cells, json_rows_text, json_text_cells
 
 __all__ = [
     "schedule",
@@ -138,7 +148,7 @@ class ScheduleModel:
         add_activities: pd.DataFrame | None = None,
         add_links: pd.DataFrame | None = None,
         settings: ScheduleSettings | None = None,
-    ) -> "ScheduleModel":
+    ) -> ScheduleModel:
         """A variant of this model.
 
         Parameters
@@ -178,8 +188,18 @@ class ScheduleModel:
         net = self.network
         arrays = {
             name: getattr(self, name)
-            for name in ("names", "calendar", "duration", "remaining", "actual_start", "actual_finish",
-                         "kind", "constraint", "constraint_day", "start_bound")
+            for name in (
+                "names",
+                "calendar",
+                "duration",
+                "remaining",
+                "actual_start",
+                "actual_finish",
+                "kind",
+                "constraint",
+                "constraint_day",
+                "start_bound",
+            )
         }
         new_ids: list = []
         if add_activities is not None and len(add_activities):
@@ -198,7 +218,9 @@ class ScheduleModel:
                 if mask.any():
                     bounds[mask] = to_days(given[mask].to_numpy(dtype="datetime64[D]"))
             extra = {
-                "names": add["name"].astype(str).to_numpy(dtype=object) if "name" in add else np.asarray(new_ids, dtype=object),
+                "names": add["name"].astype(str).to_numpy(dtype=object)
+                if "name" in add
+                else np.asarray(new_ids, dtype=object),
                 "calendar": np.asarray(cal_numbers, dtype=np.int64),
                 "duration": add["duration"].to_numpy(dtype=np.int64),
                 "remaining": np.full(k, np.nan),
@@ -238,8 +260,10 @@ class ScheduleModel:
             where = numbers(list(hold))
             requests = []
             for v, periods in zip(where, hold.values()):
-                days = [np.arange(int(to_days(np.datetime64(first, "D"))), int(to_days(np.datetime64(last, "D"))) + 1)
-                        for first, last in periods]
+                days = [
+                    np.arange(int(to_days(np.datetime64(first, "D"))), int(to_days(np.datetime64(last, "D"))) + 1)
+                    for first, last in periods
+                ]
                 requests.append((int(arrays["calendar"][v]), np.concatenate(days) if days else np.empty(0, np.int64)))
             calendars, held = self.calendars.with_held_days(requests)
             if calendars is not self.calendars:
@@ -262,7 +286,7 @@ class ScheduleModel:
             changes["settings"] = settings
         return dataclasses.replace(self, **changes)
 
-    def restricted(self, keep: np.ndarray) -> "ScheduleModel":
+    def restricted(self, keep: np.ndarray) -> ScheduleModel:
         """The model of some of its activities and the links between them.
 
         Parameters
@@ -281,15 +305,28 @@ class ScheduleModel:
         net = self.network
         number = np.cumsum(keep) - 1
         links = keep[net.pred] & keep[net.succ]
-        network = build_network(net.ids[keep], number[net.pred[links]], number[net.succ[links]],
-                                net.link_type[links], net.lag[links])
-        arrays = {name: getattr(self, name)[keep] for name in (
-            "names", "calendar", "duration", "remaining", "actual_start", "actual_finish", "kind", "constraint",
-            "constraint_day", "start_bound")}
+        network = build_network(
+            net.ids[keep], number[net.pred[links]], number[net.succ[links]], net.link_type[links], net.lag[links]
+        )
+        arrays = {
+            name: getattr(self, name)[keep]
+            for name in (
+                "names",
+                "calendar",
+                "duration",
+                "remaining",
+                "actual_start",
+                "actual_finish",
+                "kind",
+                "constraint",
+                "constraint_day",
+                "start_bound",
+            )
+        }
         order = self.link_order if self.link_order is not None else np.arange(net.link_count)
         return dataclasses.replace(self, network=network, link_order=order[links], **arrays)
 
-    def logic_only(self, end_day: int) -> "ScheduleModel":
+    def logic_only(self, end_day: int) -> ScheduleModel:
         """The model for late dates by logic alone, its backward pass starting from ``end_day``.
 
         The ``latest_finish``, ``fixed_start`` and ``fixed_finish`` constraints are taken out
@@ -314,7 +351,7 @@ class ScheduleModel:
         return dataclasses.replace(self, constraint=code, contract_completion_day=int(end_day), settings=settings)
 
     # -- scheduling ------------------------------------------------------------------------
-    def run(self) -> "ScheduleResult":
+    def run(self) -> ScheduleResult:
         """Forward and backward passes, floats and driving links. See the module docstring."""
         return _run(self)
 
@@ -471,15 +508,37 @@ def _run(model: ScheduleModel, forward_only: bool = False):
     known_finish[rows] = np.where(has_finish[rows], model.actual_finish[rows], model.actual_start[rows])
     with_floats = not forward_only
     early_finish_t, start_read_t, early_finish, start_read, remaining_start, finish_day = (
-        np.empty(n, dtype=np.int64) for _ in range(6))
+        np.empty(n, dtype=np.int64) for _ in range(6)
+    )
     relative_float = np.empty(net.link_count if with_floats else 0, dtype=np.int64)
     link_free_float_t = np.empty(n if with_floats else 0, dtype=np.int64)
     while True:
         link_free_float_t.fill(_FAR)
         code = _kernels.forward_pass(
-            *layout.forward, layout.f_link, order, override, lag_on_pred, with_floats, status_t, point_t, cal_t,
-            lower, upper, duration, start_read_fixed, known_finish, table(), early_finish_t, start_read_t,
-            early_finish, start_read, remaining_start, finish_day, relative_float, link_free_float_t)
+            *layout.forward,
+            layout.f_link,
+            order,
+            override,
+            lag_on_pred,
+            with_floats,
+            status_t,
+            point_t,
+            cal_t,
+            lower,
+            upper,
+            duration,
+            start_read_fixed,
+            known_finish,
+            table(),
+            early_finish_t,
+            start_read_t,
+            early_finish,
+            start_read,
+            remaining_start,
+            finish_day,
+            relative_float,
+            link_free_float_t,
+        )
         if code == _kernels.OK:
             break
         grow_within_bounds(model, cals, code == _kernels.TOO_EARLY)
@@ -500,9 +559,28 @@ def _run(model: ScheduleModel, forward_only: bool = False):
     end_bound, completion_bound = finish_index_on(end_day), finish_index_on(completion_day)
     while True:
         code = _kernels.backward_pass(
-            *layout.backward, order, override, lag_on_pred, status_t, point_t, cal_t, late_upper_extra, pin_late,
-            duration, early_finish_t, link_free_float_t, end_bound, completion_bound, table(), late_start_t,
-            late_finish_t, late_start, late_finish, total_float, free_float)
+            *layout.backward,
+            order,
+            override,
+            lag_on_pred,
+            status_t,
+            point_t,
+            cal_t,
+            late_upper_extra,
+            pin_late,
+            duration,
+            early_finish_t,
+            link_free_float_t,
+            end_bound,
+            completion_bound,
+            table(),
+            late_start_t,
+            late_finish_t,
+            late_start,
+            late_finish,
+            total_float,
+            free_float,
+        )
         if code == _kernels.OK:
             break
         grow_within_bounds(model, cals, code == _kernels.TOO_EARLY)
@@ -705,8 +783,16 @@ class ScheduleResult:
         gaps = np.empty(net.link_count, dtype=np.int64)
         while True:
             code = _kernels.link_gaps(
-                *layout.forward, layout.f_link, self.settings.lag_calendar == "predecessor", self.point[order],
-                self.early_start_read[order], self.early_finish[order], model.calendar[order], cals.table(), gaps)
+                *layout.forward,
+                layout.f_link,
+                self.settings.lag_calendar == "predecessor",
+                self.point[order],
+                self.early_start_read[order],
+                self.early_finish[order],
+                model.calendar[order],
+                cals.table(),
+                gaps,
+            )
             if code == _kernels.OK:
                 return gaps
             cals.grow(earlier=code == _kernels.TOO_EARLY)
@@ -731,8 +817,17 @@ class ScheduleResult:
         from ._kernels import mark_upstream
 
         layout = net.passes
-        mark_upstream(layout.f_ptr, layout.f_pred, layout.f_type, layout.f_link, on, True, self.status[net.order],
-                      self.stream_float, on)
+        mark_upstream(
+            layout.f_ptr,
+            layout.f_pred,
+            layout.f_type,
+            layout.f_link,
+            on,
+            True,
+            self.status[net.order],
+            self.stream_float,
+            on,
+        )
         return net.order[np.flatnonzero(on)]  # by position: in logic order
 
     def driving_path(self) -> list[str]:
@@ -792,8 +887,12 @@ class ScheduleResult:
         return cells
 
     def _json_head(self) -> dict:
-        return {"snapshot": self.model.folder, "label": self.snapshot,
-                "data_date": self.data_date.isoformat(), "completion": self.completion.isoformat()}
+        return {
+            "snapshot": self.model.folder,
+            "label": self.snapshot,
+            "data_date": self.data_date.isoformat(),
+            "completion": self.completion.isoformat(),
+        }
 
     def to_json(self) -> dict:
         """The JSON form of the ``delay schedule`` command: ``snapshot``, ``data_date``,
@@ -825,8 +924,12 @@ class ScheduleResult:
 
 
 # -- from the case ----------------------------------------------------------------------------
-def prepare(case: Case, snapshot: str | Snapshot = "baseline", settings: ScheduleSettings | None = None,
-            calendars: CalendarSet | None = None) -> ScheduleModel:
+def prepare(
+    case: Case,
+    snapshot: str | Snapshot = "baseline",
+    settings: ScheduleSettings | None = None,
+    calendars: CalendarSet | None = None,
+) -> ScheduleModel:
     """Compile one snapshot of a case for scheduling.
 
     Parameters
@@ -885,8 +988,9 @@ def _compile_snapshot(snap: Snapshot, calendars: CalendarSet) -> dict:
     source = f"snapshots/{snap.folder}/links.csv" if snap.kind != "asbuilt" else "asbuilt.csv"
     network = given.get("network")  # compiled by the loader's loop check
     if network is None:
-        network = compile_network(activities, links, source=source, link_numbers=snap.link_numbers,
-                                  type_codes=given.get("type_codes"))
+        network = compile_network(
+            activities, links, source=source, link_numbers=snap.link_numbers, type_codes=given.get("type_codes")
+        )
     names, cal = given.get("calendar_codes", (None, None))
     if names == calendars.names:
         cal = np.asarray(cal, dtype=np.int64)
@@ -894,9 +998,15 @@ def _compile_snapshot(snap: Snapshot, calendars: CalendarSet) -> dict:
         cal = pd.Index(calendars.names).get_indexer(activities["calendar"]).astype(np.int64)
     if (cal < 0).any():
         row = int(np.flatnonzero(cal < 0)[0])
-        raise CaseError(Problem(file=f"snapshots/{snap.folder}/activities.csv", row=row + 2, column="calendar",
-                                message=f"unknown calendar '{activities['calendar'].iloc[row]}'",
-                                fix="define it in calendars.csv"))
+        raise CaseError(
+            Problem(
+                file=f"snapshots/{snap.folder}/activities.csv",
+                row=row + 2,
+                column="calendar",
+                message=f"unknown calendar '{activities['calendar'].iloc[row]}'",
+                fix="define it in calendars.csv",
+            )
+        )
     if "kind_codes" in given:
         kind = _KIND_BY_POSITION[np.maximum(given["kind_codes"], 0)]
     else:
@@ -904,8 +1014,9 @@ def _compile_snapshot(snap: Snapshot, calendars: CalendarSet) -> dict:
     if "constraint_codes" in given:
         constraint = _CONSTRAINT_BY_POSITION[given["constraint_codes"] + 1]
     else:
-        constraint = np.maximum(pd.Index(list(CONSTRAINT_CODES)).get_indexer(activities["constraint"].fillna("")),
-                                0).astype(np.int8)
+        constraint = np.maximum(
+            pd.Index(list(CONSTRAINT_CODES)).get_indexer(activities["constraint"].fillna("")), 0
+        ).astype(np.int8)
     arrays = {
         "network": network,
         "calendar_names": calendars.names,
@@ -926,7 +1037,7 @@ def _compile_snapshot(snap: Snapshot, calendars: CalendarSet) -> dict:
     return arrays
 
 
-_CALENDARS: "weakref.WeakKeyDictionary[Case, CalendarSet]" = weakref.WeakKeyDictionary()
+_CALENDARS: weakref.WeakKeyDictionary[Case, CalendarSet] = weakref.WeakKeyDictionary()
 
 
 def calendars_of(case: Case) -> CalendarSet:
@@ -941,11 +1052,18 @@ def _find(case: Case, name: str) -> Snapshot:
     try:
         return case.snapshot(name)
     except KeyError as error:
-        raise CaseError(Problem(file="snapshots/", message=str(error.args[0]),
-                                fix="name a folder under snapshots/ or a snapshot's label")) from None
+        raise CaseError(
+            Problem(
+                file="snapshots/",
+                message=str(error.args[0]),
+                fix="name a folder under snapshots/ or a snapshot's label",
+            )
+        ) from None
 
 
-def schedule(case: Case, snapshot: str | Snapshot = "baseline", settings: ScheduleSettings | None = None) -> ScheduleResult:
+def schedule(
+    case: Case, snapshot: str | Snapshot = "baseline", settings: ScheduleSettings | None = None
+) -> ScheduleResult:
     """Schedule one snapshot of a case by the critical path method.
 
     Parameters

@@ -11,22 +11,27 @@ Each capability adds its outputs here as it is built.
 from __future__ import annotations
 
 import json
+from collections.abc import Callable
 from pathlib import Path
-from typing import Callable
 
 import pandas as pd
 
 from .calendars import CalendarSet, build_calendars
 from .case import load_case, summarise
-from .cpm import prepare
 from .convert import list_cells
+from .cpm import prepare
 from .output import output_folder, write_csv
 
 __all__ = ["run_demo"]
 
 
-def run_demo(case_path: Path, out_dir: Path, echo: Callable[[str], None] = print, *,
-             extra: Callable[[object, Path, Path], list[Path]] | None = None) -> list[Path]:
+def run_demo(
+    case_path: Path,
+    out_dir: Path,
+    echo: Callable[[str], None] = print,
+    *,
+    extra: Callable[[object, Path, Path], list[Path]] | None = None,
+) -> list[Path]:
     """Run the demo on ``case_path``, writing into ``out_dir``; returns the files written.
 
     Parameters
@@ -50,8 +55,7 @@ def run_demo(case_path: Path, out_dir: Path, echo: Callable[[str], None] = print
     case = load_case(case_path)
     echo(f"Loaded {case.settings.project.name}: {len(case.snapshots)} snapshots")
     written: list[Path] = []
-    with output_folder(out_dir, case_root=case.root, inputs=case.input_files, what="demo",
-                       option=" (--out)") as folder:
+    with output_folder(out_dir, case_root=case.root, inputs=case.input_files, what="demo", option=" (--out)") as folder:
         summary = summarise(case)
         summary["root"] = Path(case.root).resolve().name  # the case by its name, never a path of the machine
         (folder / "case_summary.json").write_text(json.dumps(summary, indent=2), encoding="utf-8")
@@ -73,12 +77,17 @@ def run_demo(case_path: Path, out_dir: Path, echo: Callable[[str], None] = print
             write_csv(schedules / f"{snap.folder}.csv", frame, date_format="%Y-%m-%d")
             (schedules / f"{snap.folder}.json").write_text(result.to_json_text(indent=2) + "\n", encoding="utf-8")
             written += [out_dir / "schedules" / f"{snap.folder}.csv", out_dir / "schedules" / f"{snap.folder}.json"]
-            trend.append({
-                "snapshot": snap.folder, "label": snap.label, "kind": snap.kind,
-                "data_date": snap.data_date.isoformat(), "completion": result.completion.isoformat(),
-                "critical_activities": int(frame["critical"].sum()),
-                "driving_path_length": len(result.driving_path()),
-            })
+            trend.append(
+                {
+                    "snapshot": snap.folder,
+                    "label": snap.label,
+                    "kind": snap.kind,
+                    "data_date": snap.data_date.isoformat(),
+                    "completion": result.completion.isoformat(),
+                    "critical_activities": int(frame["critical"].sum()),
+                    "driving_path_length": len(result.driving_path()),
+                }
+            )
             echo(f"  {snap.label:<24} data date {snap.data_date}  completion {result.completion}")
         write_csv(folder / "completion_by_snapshot.csv", pd.DataFrame(trend))
         written.append(out_dir / "completion_by_snapshot.csv")
@@ -92,7 +101,10 @@ def run_demo(case_path: Path, out_dir: Path, echo: Callable[[str], None] = print
             ifc_files = demo_outputs(case, folder)
             written += [out_dir / p.relative_to(folder) for p in ifc_files]
             if ifc_files:
-                echo(f"IFC: the demo model imported and the baseline exported as a work schedule ({len(ifc_files)} files)")
+                echo(
+                    "IFC: the demo model imported and the baseline exported as a work schedule "
+                    f"({len(ifc_files)} files)"
+                )
         if extra is not None:
             written += extra(case, folder, out_dir)
     return written
@@ -132,15 +144,19 @@ def _modelled(case, folder: Path, out_dir: Path, echo) -> list[Path]:
         assessed = tia.analyse(case)
         (folder / "tia.json").write_text(json.dumps(assessed.to_json(), indent=2), encoding="utf-8")
         written += [out_dir / "impacted.json", out_dir / "impacted_events.csv", out_dir / "tia.json"]
-        echo(f"Impacted as-planned: the events add {impact.total_days} days to the plan (residual "
-             f"{impact.residual_days:+d}); time impact: increments {assessed.total_days} days, residuals "
-             f"{assessed.trace.residual_days:+d}, {assessed.explained_days} days in all")
+        echo(
+            f"Impacted as-planned: the events add {impact.total_days} days to the plan (residual "
+            f"{impact.residual_days:+d}); time impact: increments {assessed.total_days} days, residuals "
+            f"{assessed.trace.residual_days:+d}, {assessed.explained_days} days in all"
+        )
         if case.asbuilt_snapshot is not None:
             butfor = collapsed.analyse(case)
             (folder / "collapsed.json").write_text(json.dumps(butfor.to_json(), indent=2), encoding="utf-8")
             written.append(out_dir / "collapsed.json")
-            echo(f"Collapsed as-built: the model {'reproduces' if butfor.reproduced else 'does not fully reproduce'} "
-                 "the actual dates; but-for completions written")
+            echo(
+                f"Collapsed as-built: the model {'reproduces' if butfor.reproduced else 'does not fully reproduce'} "
+                "the actual dates; but-for completions written"
+            )
         written += _entitlement(case, folder, out_dir, echo)
     return written
 
@@ -158,6 +174,8 @@ def _entitlement(case, folder: Path, out_dir: Path, echo) -> list[Path]:
     write_csv(folder / "sensitivity.csv", sensitivity(case, methods))
     for m in methods:
         e = assessed.method(m)
-        echo(f"  {m:<10} extension of time {e.eot_days} days (revised completion {e.revised_completion}), "
-             f"compensable {e.compensable_days}, days of damages {e.ld_days}, acceleration {e.acceleration_days}")
+        echo(
+            f"  {m:<10} extension of time {e.eot_days} days (revised completion {e.revised_completion}), "
+            f"compensable {e.compensable_days}, days of damages {e.ld_days}, acceleration {e.acceleration_days}"
+        )
     return [out_dir / "entitlement.json", out_dir / "comparison.json", out_dir / "sensitivity.csv"]

@@ -19,7 +19,8 @@ The figures (dates are calendar dates, days calendar days)
 - *Extension of time* = max(0, completion with only excusable delays - completion in
   force), and never more than the excusable days: a baseline that already finishes after
   the date in force gives no extension by itself (the contractor's own programme overran
-  the contract date; those days stay culpable - common practice). Float is shared, first come, first served: the baseline's margin before the
+  the contract date; those days stay culpable - common practice). Float is shared, first come, first served: the
+  baseline's margin before the
   contract date (terminal float) is taken up by the first delays whatever their cause, and
   an extension already granted is not granted again: the extension is measured against
   the contract completion date then in force (SCL Delay and Disruption Protocol, 2nd
@@ -28,7 +29,8 @@ The figures (dates are calendar dates, days calendar days)
   *revised completion* is the completion in force plus the extension of time.
 - *Days of liquidated damages* (``ld_days``) = max(0, actual or forecast completion -
   revised completion): the days liquidated damages may be levied for (not to be confused
-  with the causation table's ``culpable_days``, the contractor's part of each row). The actual completion is the as-built record's;
+  with the causation table's ``culpable_days``, the contractor's part of each row). The actual completion is the
+  as-built record's;
   without one, the last update's forecast. Beside it, from the causation table
   (:func:`delay.causation.class_totals`): ``excusable_days`` (employer and neutral, net),
   ``culpable_delay_days`` (the contractor's net delay, when positive) and
@@ -85,21 +87,19 @@ from __future__ import annotations
 
 import dataclasses
 import datetime as dt
+from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, field
-from typing import Mapping, Sequence
 
 import numpy as np
 import pandas as pd
 
-from .causation import METHODS, Causation, class_totals, causation
+from .causation import METHODS, Causation, causation, class_totals
 from .contract import completion_in_force, grants, whole_works_section
-from .convert import iso_date, json_records, split_ids
-from .convert import NO_DAY, day_to_date
+from .convert import NO_DAY, day_to_date, iso_date, json_records, split_ids
 from .cpm import ScheduleResult, calendars_of, prepare
 from .errors import CaseError, Problem
 from .events import completion_activity
 from .memo import remembered
-from .methods import METHOD_TITLES
 from .model import Case
 
 __all__ = [
@@ -117,15 +117,41 @@ __all__ = [
 ]
 
 SECTION_COLUMNS = [
-    "section", "name", "completion_activity", "whole_works", "contract_completion", "granted_days",
-    "completion_in_force", "planned_completion", "excusable_days", "completion_with_excusable_delays", "eot_days",
-    "revised_completion", "actual_completion", "compensable_days", "prolongation_cost", "culpable_delay_days",
-    "acceleration_days", "ld_days", "liquidated_damages_per_day", "ld_exposure", "ld_capped",
-    "concurrent_days", "note",
+    "section",
+    "name",
+    "completion_activity",
+    "whole_works",
+    "contract_completion",
+    "granted_days",
+    "completion_in_force",
+    "planned_completion",
+    "excusable_days",
+    "completion_with_excusable_delays",
+    "eot_days",
+    "revised_completion",
+    "actual_completion",
+    "compensable_days",
+    "prolongation_cost",
+    "culpable_delay_days",
+    "acceleration_days",
+    "ld_days",
+    "liquidated_damages_per_day",
+    "ld_exposure",
+    "ld_capped",
+    "concurrent_days",
+    "note",
 ]
-EVENT_COLUMNS = ["event", "title", "party", "notified", "claimed_days", "assessed_days", "excusable_days",
-                 "compensable_days", "note"]
-
+EVENT_COLUMNS = [
+    "event",
+    "title",
+    "party",
+    "notified",
+    "claimed_days",
+    "assessed_days",
+    "excusable_days",
+    "compensable_days",
+    "note",
+]
 
 
 # -- the contract's figures -------------------------------------------------------------------
@@ -163,20 +189,36 @@ def prolongation_build_up(case: Case, rows: pd.DataFrame) -> pd.DataFrame:
             continue
         key = -1
         if day is not None and not pd.isna(day):
-            inside = np.flatnonzero(((rates["from"] <= pd.Timestamp(day)) & (rates["to"] >= pd.Timestamp(day))).to_numpy())
+            inside = np.flatnonzero(
+                ((rates["from"] <= pd.Timestamp(day)) & (rates["to"] >= pd.Timestamp(day))).to_numpy()
+            )
             key = int(inside[0]) if inside.size else -1
         found[key] = found.get(key, 0) + int(days)
     out = []
     for key in sorted(found, key=lambda k: (k < 0, k)):
         if key < 0:
-            out.append({"from": None, "to": None, "source": "case.toml [commercial] prolongation_cost_per_day",
-                        "cost_per_day": flat, "days": found[key], "cost": round(found[key] * flat, 2)})
+            out.append(
+                {
+                    "from": None,
+                    "to": None,
+                    "source": "case.toml [commercial] prolongation_cost_per_day",
+                    "cost_per_day": flat,
+                    "days": found[key],
+                    "cost": round(found[key] * flat, 2),
+                }
+            )
         else:
             rate = float(rates["cost_per_day"].iloc[key])
-            out.append({"from": pd.Timestamp(rates["from"].iloc[key]).date(),
-                        "to": pd.Timestamp(rates["to"].iloc[key]).date(),
-                        "source": f"prolongation_rates.csv row {key + 2}", "cost_per_day": rate,
-                        "days": found[key], "cost": round(found[key] * rate, 2)})
+            out.append(
+                {
+                    "from": pd.Timestamp(rates["from"].iloc[key]).date(),
+                    "to": pd.Timestamp(rates["to"].iloc[key]).date(),
+                    "source": f"prolongation_rates.csv row {key + 2}",
+                    "cost_per_day": rate,
+                    "days": found[key],
+                    "cost": round(found[key] * rate, 2),
+                }
+            )
     return pd.DataFrame(out, columns=columns)
 
 
@@ -196,8 +238,9 @@ def liquidated_damages(case: Case, ld_days: int, rate: float) -> tuple[float, bo
     return round(amount, 2), False
 
 
-def _figures(case: Case, *, planned: dt.date, in_force: dt.date, actual: dt.date, rate: float,
-             rows: pd.DataFrame) -> dict:
+def _figures(
+    case: Case, *, planned: dt.date, in_force: dt.date, actual: dt.date, rate: float, rows: pd.DataFrame
+) -> dict:
     totals = class_totals(rows)
     excusable = totals["excusable_days"]
     with_excusable = planned + dt.timedelta(days=int(excusable))
@@ -206,12 +249,19 @@ def _figures(case: Case, *, planned: dt.date, in_force: dt.date, actual: dt.date
     culpable = max(0, (actual - revised).days)
     amount, capped = liquidated_damages(case, culpable, rate)
     return {
-        "planned_completion": planned, "excusable_days": int(excusable),
-        "completion_with_excusable_delays": with_excusable, "eot_days": eot, "revised_completion": revised,
-        "actual_completion": actual, "compensable_days": totals["compensable_days"],
+        "planned_completion": planned,
+        "excusable_days": int(excusable),
+        "completion_with_excusable_delays": with_excusable,
+        "eot_days": eot,
+        "revised_completion": revised,
+        "actual_completion": actual,
+        "compensable_days": totals["compensable_days"],
         "prolongation_cost": prolongation_cost(case, rows) if len(rows) else 0.0,
-        "culpable_delay_days": totals["culpable_delay_days"], "acceleration_days": totals["acceleration_days"],
-        "ld_days": culpable, "liquidated_damages_per_day": float(rate), "ld_exposure": amount,
+        "culpable_delay_days": totals["culpable_delay_days"],
+        "acceleration_days": totals["acceleration_days"],
+        "ld_days": culpable,
+        "liquidated_damages_per_day": float(rate),
+        "ld_exposure": amount,
         "ld_capped": capped,
         "concurrent_days": int(rows["concurrent_days"].sum()) if len(rows) else 0,
     }
@@ -314,15 +364,31 @@ class EntitlementResult:
     @property
     def summary(self) -> pd.DataFrame:
         """One row per method: the whole works' figures."""
-        columns = ["method", "completion_in_force", "planned_completion", "excusable_days", "eot_days",
-                   "revised_completion", "actual_completion", "compensable_days", "prolongation_cost",
-                   "culpable_delay_days", "acceleration_days", "ld_days", "ld_exposure", "ld_capped",
-                   "concurrent_days"]
+        columns = [
+            "method",
+            "completion_in_force",
+            "planned_completion",
+            "excusable_days",
+            "eot_days",
+            "revised_completion",
+            "actual_completion",
+            "compensable_days",
+            "prolongation_cost",
+            "culpable_delay_days",
+            "acceleration_days",
+            "ld_days",
+            "ld_exposure",
+            "ld_capped",
+            "concurrent_days",
+        ]
         return pd.DataFrame([{c: getattr(m, c) for c in columns} for m in self.methods], columns=columns)
 
     def to_json(self) -> dict:
-        return {"currency": self.currency, "concurrency": self.concurrency,
-                "methods": [m.to_json() for m in self.methods]}
+        return {
+            "currency": self.currency,
+            "concurrency": self.concurrency,
+            "methods": [m.to_json() for m in self.methods],
+        }
 
 
 # -- schedules used for sections and for the actual completion ------------------------------------
@@ -358,10 +424,16 @@ def _section_base(case: Case, section) -> dict:
     rate = section["liquidated_damages_per_day"]
     rate = float(rate) if pd.notna(rate) else float(case.settings.commercial.liquidated_damages_per_day)
     whole = whole_works_section(case) == str(section["section"])
-    return {"section": section["section"], "name": section["name"],
-            "completion_activity": section["completion_activity"], "whole_works": whole,
-            "contract_completion": contract, "granted_days": granted, "completion_in_force": in_force,
-            "liquidated_damages_per_day": rate}
+    return {
+        "section": section["section"],
+        "name": section["name"],
+        "completion_activity": section["completion_activity"],
+        "whole_works": whole,
+        "contract_completion": contract,
+        "granted_days": granted,
+        "completion_in_force": in_force,
+        "liquidated_damages_per_day": rate,
+    }
 
 
 def _section_row(base: dict, **values) -> dict:
@@ -371,7 +443,7 @@ def _section_row(base: dict, **values) -> dict:
     return row
 
 
-def _sections(case: Case, method: str, result, rule: str, whole: "Entitlement") -> pd.DataFrame:
+def _sections(case: Case, method: str, result, rule: str, whole: Entitlement) -> pd.DataFrame:
     """Every section's figures: the whole-works section's are the whole works'; the others'
     come from the method's own trace of the section's milestone (see the module docstring)."""
     schedules = _Schedules(case)
@@ -389,14 +461,22 @@ def _sections(case: Case, method: str, result, rule: str, whole: "Entitlement") 
             continue
         traced = getattr(result, "sections", {}) or {}
         if method == "collapsed" or name not in traced:
-            why = ("the collapsed as-built measures the whole works only: no entitlement for the section"
-                   if method == "collapsed" else "the section milestone is not in every programme: not assessed")
+            why = (
+                "the collapsed as-built measures the whole works only: no entitlement for the section"
+                if method == "collapsed"
+                else "the section milestone is not in every programme: not assessed"
+            )
             out.append(_section_row(base, planned_completion=planned, actual_completion=actual, note=why))
             continue
         table_of = causation(case, method, result, rule, section=name)
-        figures = _figures(case, planned=table_of.planned_completion, in_force=base["completion_in_force"],
-                           actual=actual or table_of.planned_completion, rate=base["liquidated_damages_per_day"],
-                           rows=table_of.table)
+        figures = _figures(
+            case,
+            planned=table_of.planned_completion,
+            in_force=base["completion_in_force"],
+            actual=actual or table_of.planned_completion,
+            rate=base["liquidated_damages_per_day"],
+            rows=table_of.table,
+        )
         out.append(_section_row(base, **figures, note=f"traced to {section['completion_activity']}"))
     return pd.DataFrame(out, columns=SECTION_COLUMNS, dtype=object)
 
@@ -415,8 +495,11 @@ def _event_table(case: Case, method: str, table: pd.DataFrame, collapsed_result=
             assessed = None if pd.isna(value) else int(value)
             excusable = None if assessed is None else (assessed if event.party in ("employer", "neutral") else 0)
             compensable = None if assessed is None else (assessed if event.party == "employer" else 0)
-            note = "but-for days of the event alone: need not add up" if assessed is not None else (
-                "not scored: " + str(found["note"].iloc[0]) if len(found) else "not scored")
+            note = (
+                "but-for days of the event alone: need not add up"
+                if assessed is not None
+                else ("not scored: " + str(found["note"].iloc[0]) if len(found) else "not scored")
+            )
         else:
             mine = table[[event.id in split_ids(e) for e in table["event"]]] if len(table) else table
             assessed = int(mine["days"].sum()) if len(mine) else 0
@@ -424,9 +507,19 @@ def _event_table(case: Case, method: str, table: pd.DataFrame, collapsed_result=
             compensable = int(mine["compensable_days"].sum()) if len(mine) else 0
             if method == "windows" and len(mine) and any(";" in str(e) for e in mine["event"]):
                 note = "charges matched to several events are shown against each: need not add up"
-        rows.append({"event": event.id, "title": event.title, "party": event.party, "notified": notified,
-                     "claimed_days": claimed, "assessed_days": assessed, "excusable_days": excusable,
-                     "compensable_days": compensable, "note": note})
+        rows.append(
+            {
+                "event": event.id,
+                "title": event.title,
+                "party": event.party,
+                "notified": notified,
+                "claimed_days": claimed,
+                "assessed_days": assessed,
+                "excusable_days": excusable,
+                "compensable_days": compensable,
+                "note": note,
+            }
+        )
     return pd.DataFrame(rows, columns=EVENT_COLUMNS, dtype=object)
 
 
@@ -441,8 +534,11 @@ def _run_method(case: Case, method: str):
     elif method == "collapsed":
         from .methods.collapsed import analyse
     else:
-        raise CaseError(Problem(file="--method", message=f"unknown method '{method}'",
-                                fix=f"choose among: {', '.join(METHODS)}, all"))
+        raise CaseError(
+            Problem(
+                file="--method", message=f"unknown method '{method}'", fix=f"choose among: {', '.join(METHODS)}, all"
+            )
+        )
     return analyse(case)
 
 
@@ -480,8 +576,11 @@ def entitlement(case: Case, method: str, result=None, concurrency: str | None = 
     if result is None:
         result = _run_method(case, method)
     rule = concurrency or case.settings.analysis.concurrency
-    found = remembered(case, ("entitlement", method, rule, id(result)),
-                       lambda: (result, _entitlement(case, method, result, concurrency)))
+    found = remembered(
+        case,
+        ("entitlement", method, rule, id(result)),
+        lambda: (result, _entitlement(case, method, result, concurrency)),
+    )
     if found[0] is result:  # the same result object, not another that took its id
         return found[1]
     return _entitlement(case, method, result, concurrency)
@@ -494,28 +593,52 @@ def _entitlement(case: Case, method: str, result, concurrency: str | None) -> En
     contract, granted, in_force = completion_in_force(case)
     commercial = case.settings.commercial
     actual = _actual_completion(case, method, result)
-    figures = _figures(case, planned=table_of.planned_completion, in_force=in_force, actual=actual,
-                       rate=float(commercial.liquidated_damages_per_day), rows=table)
+    figures = _figures(
+        case,
+        planned=table_of.planned_completion,
+        in_force=in_force,
+        actual=actual,
+        rate=float(commercial.liquidated_damages_per_day),
+        rows=table,
+    )
     notes = list(table_of.notes)
     notes.append("Sections' figures overlap each other and the whole works': never add them.")
     if figures["acceleration_days"]:
-        notes.append(f"The contractor's net recovery of {figures['acceleration_days']} days is acceleration: it "
-                     "is shown, and it does not cut the extension of time.")
+        notes.append(
+            f"The contractor's net recovery of {figures['acceleration_days']} days is acceleration: it "
+            "is shown, and it does not cut the extension of time."
+        )
     if method in ("impacted", "tia"):
-        notes.append("The actual completion is the as-built record's" if case.asbuilt_snapshot is not None
-                     else "The completion compared is the last update's forecast (no as-built record)")
+        notes.append(
+            "The actual completion is the as-built record's"
+            if case.asbuilt_snapshot is not None
+            else "The completion compared is the last update's forecast (no as-built record)"
+        )
     prolongation = prolongation_build_up(case, table)
-    whole = Entitlement(method=method, currency=commercial.currency, concurrency=rule, contract_completion=contract,
-                        granted_days=granted, completion_in_force=in_force, **figures, causation=table_of,
-                        sections=pd.DataFrame(columns=SECTION_COLUMNS),
-                        events=_event_table(case, method, table, result if method == "collapsed" else None),
-                        grants=grants(case).rename(columns={"id": "grant"}), prolongation=prolongation,
-                        notes=tuple(notes))
+    whole = Entitlement(
+        method=method,
+        currency=commercial.currency,
+        concurrency=rule,
+        contract_completion=contract,
+        granted_days=granted,
+        completion_in_force=in_force,
+        **figures,
+        causation=table_of,
+        sections=pd.DataFrame(columns=SECTION_COLUMNS),
+        events=_event_table(case, method, table, result if method == "collapsed" else None),
+        grants=grants(case).rename(columns={"id": "grant"}),
+        prolongation=prolongation,
+        notes=tuple(notes),
+    )
     return dataclasses.replace(whole, sections=_sections(case, method, result, rule, whole))
 
 
-def assess(case: Case, methods: Sequence[str] = METHODS, results: Mapping[str, object] | None = None,
-           concurrency: str | None = None) -> EntitlementResult:
+def assess(
+    case: Case,
+    methods: Sequence[str] = METHODS,
+    results: Mapping[str, object] | None = None,
+    concurrency: str | None = None,
+) -> EntitlementResult:
     """The entitlement under each of ``methods`` (default all four).
 
     Parameters

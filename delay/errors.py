@@ -22,9 +22,12 @@ def _one_line(text: str) -> str:
     its escape, so that a problem quoting a cell stays one plain line."""
     if text.isprintable():
         return text
-    return "".join(character if character.isprintable() or character == " "
-                   or unicodedata.category(character) not in ("Cc", "Zl", "Zp")
-                   else repr(character)[1:-1] for character in text)
+    return "".join(
+        character
+        if character.isprintable() or character == " " or unicodedata.category(character) not in ("Cc", "Zl", "Zp")
+        else repr(character)[1:-1]
+        for character in text
+    )
 
 
 @dataclass(frozen=True)
@@ -92,10 +95,10 @@ class DateBoundError(CaseError):
             side = "before 1900-01-01" if earlier else "after 2200-12-31"
             problems = Problem(
                 file="the schedule",
-                message=f"a computed date would fall {side}, outside the dates the toolkit "
-                        "works with",
+                message=f"a computed date would fall {side}, outside the dates the toolkit works with",
                 fix="check the durations, lags and event days of the case for a value keyed "
-                    "in the wrong unit or with an extra digit")
+                "in the wrong unit or with an extra digit",
+            )
         super().__init__(problems)
 
 

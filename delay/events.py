@@ -44,13 +44,13 @@ from __future__ import annotations
 
 import datetime as dt
 import weakref
-from typing import Iterable, Sequence
+from collections.abc import Iterable, Sequence
 
 import numpy as np
 import pandas as pd
 
-from .model import PARTIES, Case, Snapshot
 from .convert import split_ids
+from .model import PARTIES, Case, Snapshot
 
 __all__ = [
     "BASES",
@@ -142,11 +142,15 @@ def activity_risk(snapshot: Snapshot, ids: Iterable[str]) -> list[str]:
     risk = snapshot.derived.get("risk_by_id")
     if risk is None:  # looked up once per snapshot
         activities = snapshot.activities_table
-        values = (activities["risk"].fillna("").astype(str).str.strip() if "risk" in activities
-                  else pd.Series([""] * len(activities)))
+        values = (
+            activities["risk"].fillna("").astype(str).str.strip()
+            if "risk" in activities
+            else pd.Series([""] * len(activities))
+        )
         values = values.where(values.isin(PARTIES), "")
-        risk = snapshot.derived["risk_by_id"] = pd.Series(values.to_numpy(dtype=object),
-                                                          index=activities["id"].to_numpy(dtype=object))
+        risk = snapshot.derived["risk_by_id"] = pd.Series(
+            values.to_numpy(dtype=object), index=activities["id"].to_numpy(dtype=object)
+        )
     if not ids:
         return []
     return list(risk.reindex(ids).fillna("").to_numpy(dtype=object))
@@ -166,8 +170,9 @@ def _overlapping(case: Case, first: dt.date | None, last: dt.date | None) -> np.
     return keep
 
 
-def match_events(case: Case, activities: Sequence[str], first: dt.date | None, last: dt.date | None,
-                 snapshot: Snapshot | None = None) -> pd.DataFrame:
+def match_events(
+    case: Case, activities: Sequence[str], first: dt.date | None, last: dt.date | None, snapshot: Snapshot | None = None
+) -> pd.DataFrame:
     """The events that explain a charge on each activity in a period, and the charge's party.
 
     Parameters
@@ -250,12 +255,20 @@ def attributions(case: Case) -> pd.DataFrame:
             folder = window
         event = str(getattr(record, "event", "") or "")
         party = party_of.get(event, "") if event else str(getattr(record, "party", "") or "")
-        rows.append({"window": window, "folder": folder, "activity": str(record.activity), "event": event,
-                     "party": party, "reason": str(getattr(record, "reason", "") or "")})
+        rows.append(
+            {
+                "window": window,
+                "folder": folder,
+                "activity": str(record.activity),
+                "event": event,
+                "party": party,
+                "reason": str(getattr(record, "reason", "") or ""),
+            }
+        )
     return pd.DataFrame(rows, columns=columns)
 
 
-_COMPLETION: "weakref.WeakKeyDictionary[Case, str]" = weakref.WeakKeyDictionary()
+_COMPLETION: weakref.WeakKeyDictionary[Case, str] = weakref.WeakKeyDictionary()
 
 
 def completion_activity(case: Case) -> str:

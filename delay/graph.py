@@ -188,4 +188,4 @@ def find_loop(n: int, src: np.ndarray, dst: np.ndarray) -> list[int] | None:
         path.append(node)
         # Every remaining node has a remaining successor; take the first one.
         node = int(targets[start[node]])
-    return path[first_seen[node]:]
+    return path[first_seen[node] :]

@@ -80,8 +80,17 @@ __all__ = [
 ]
 
 #: Columns of a traced chain's charges (:func:`trace_charges`).
-CHARGE_COLUMNS = ["activity", "name", "work_days", "level", "counted", "inherited", "driving_predecessor",
-                  "group", "concurrent_with"]
+CHARGE_COLUMNS = [
+    "activity",
+    "name",
+    "work_days",
+    "level",
+    "counted",
+    "inherited",
+    "driving_predecessor",
+    "group",
+    "concurrent_with",
+]
 
 
 def ledger_number(result: ScheduleResult, activity: str) -> int:
@@ -162,13 +171,17 @@ def _spans(result: ScheduleResult) -> np.ndarray:
     rows = np.flatnonzero(known)
     if rows.size:
         cals = model.calendars
-        span[rows] = (cals.finish_index_days(model.calendar[rows], finish[rows]) + 1
-                      - cals.start_index_days(model.calendar[rows], start[rows]))
+        span[rows] = (
+            cals.finish_index_days(model.calendar[rows], finish[rows])
+            + 1
+            - cals.start_index_days(model.calendar[rows], start[rows])
+        )
     return np.where((result.point == TASK) & (model.kind == TASK), np.maximum(span, 0), 0)
 
 
-def _level(after: ScheduleResult, ledger: int, now: np.ndarray, late: np.ndarray, early: np.ndarray,
-           start: bool) -> np.ndarray:
+def _level(
+    after: ScheduleResult, ledger: int, now: np.ndarray, late: np.ndarray, early: np.ndarray, start: bool
+) -> np.ndarray:
     """``max(0, now - late) + min(0, now - early)`` in ledger work days; NaN without a late
     date."""
     known = late != NO_DAY
@@ -205,8 +218,14 @@ def levels(after: ScheduleResult, before: ScheduleResult, late_before: np.ndarra
         return np.where(present, values[safe], NO_DAY)
 
     finish = _level(after, ledger, after.finish_day, aligned(late_before[0]), aligned(before.finish_day), False)
-    start = _level(after, ledger, after.day_array("early_start"), aligned(late_before[1]),
-                   aligned(before.day_array("early_start")), True)
+    start = _level(
+        after,
+        ledger,
+        after.day_array("early_start"),
+        aligned(late_before[1]),
+        aligned(before.day_array("early_start")),
+        True,
+    )
     change = np.where(present, _spans(after) - _spans(before)[safe], 0)
     return Levels(finish, start, position, change)
 
@@ -221,15 +240,16 @@ def _gap_change(after: ScheduleResult, before: ScheduleResult, link: int, before
     pred = int(before_number[net.pred[link]])
     if succ < 0 or pred < 0:
         return None
-    links = other.in_link[other.in_ptr[succ]:other.in_ptr[succ + 1]]
+    links = other.in_link[other.in_ptr[succ] : other.in_ptr[succ + 1]]
     same = links[(other.pred[links] == pred) & (other.link_type[links] == net.link_type[link])]
     if not same.size:
         return None
     return int(after.link_gaps[link]) - int(before.link_gaps[int(same[0])])
 
 
-def trace_charges(after: ScheduleResult, before: ScheduleResult, late_before: np.ndarray, target: str,
-                  stop: np.ndarray, ledger: int) -> pd.DataFrame:
+def trace_charges(
+    after: ScheduleResult, before: ScheduleResult, late_before: np.ndarray, target: str, stop: np.ndarray, ledger: int
+) -> pd.DataFrame:
     """The charges of the movement of ``target`` along its driving chain in ``after``.
 
     Parameters
@@ -320,8 +340,9 @@ def trace_charges(after: ScheduleResult, before: ScheduleResult, late_before: np
     counted = set(chain)
     total = sum(charge[v] for v in chain)
     if chain and round(total) != round(level[k]):
-        raise ReconciliationError(f"the driving chain of {target}", {"charges": round(total),
-                                                                     "movement": round(level[k])})
+        raise ReconciliationError(
+            f"the driving chain of {target}", {"charges": round(total), "movement": round(level[k])}
+        )
     off = [v for v in nodes if v not in counted and v not in graph.stopped]
     for v in off:
         charge[v] = 0.0 if inherited(v) else raw[v]
@@ -330,12 +351,19 @@ def trace_charges(after: ScheduleResult, before: ScheduleResult, late_before: np
     rows = []
     for v in chain + off:
         chosen = parent.get(v)
-        rows.append({
-            "activity": str(ids[v]), "name": after.model.names[v], "work_days": int(round(charge[v])),
-            "level": int(round(out[v])), "counted": v in counted, "inherited": bool(carried.get(v, inherited(v))),
-            "driving_predecessor": str(ids[chosen[0]]) if chosen is not None else "",
-            "group": group_number.get(v), "concurrent_with": sorted(str(ids[x]) for x in concurrent.get(v, ())),
-        })
+        rows.append(
+            {
+                "activity": str(ids[v]),
+                "name": after.model.names[v],
+                "work_days": int(round(charge[v])),
+                "level": int(round(out[v])),
+                "counted": v in counted,
+                "inherited": bool(carried.get(v, inherited(v))),
+                "driving_predecessor": str(ids[chosen[0]]) if chosen is not None else "",
+                "group": group_number.get(v),
+                "concurrent_with": sorted(str(ids[x]) for x in concurrent.get(v, ())),
+            }
+        )
     frame = pd.DataFrame(rows, columns=CHARGE_COLUMNS)
     frame["group"] = frame["group"].astype("Int64")
     return frame
@@ -473,8 +501,10 @@ def split_days(first_day: int, last_day: int, steps, result: ScheduleResult, led
     cals = result.model.calendars
     start, end = (int(x) for x in cals.finish_index_days(np.array([ledger, ledger]), np.array([first_day, last_day])))
     if int(steps.sum()) != end - start:
-        raise ReconciliationError("the work-day ledger", {"work days of the steps": int(steps.sum()),
-                                                          "work days between the completions": end - start})
+        raise ReconciliationError(
+            "the work-day ledger",
+            {"work days of the steps": int(steps.sum()), "work days between the completions": end - start},
+        )
     if not steps.size:
         return steps
     positions = start + np.cumsum(steps)

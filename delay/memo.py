@@ -12,13 +12,14 @@ never write into them. The memory goes with the case: the store is keyed weakly 
 from __future__ import annotations
 
 import weakref
-from typing import Callable, Hashable, TypeVar
+from collections.abc import Callable, Hashable
+from typing import TypeVar
 
 __all__ = ["remembered", "forget"]
 
 T = TypeVar("T")
 
-_STORE: "weakref.WeakKeyDictionary[object, dict[Hashable, object]]" = weakref.WeakKeyDictionary()
+_STORE: weakref.WeakKeyDictionary[object, dict[Hashable, object]] = weakref.WeakKeyDictionary()
 
 
 def remembered(case, key: Hashable, compute: Callable[[], T]) -> T:

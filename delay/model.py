@@ -17,10 +17,11 @@ Column types after loading
 from __future__ import annotations
 
 import datetime as dt
+from collections.abc import Mapping
 from dataclasses import dataclass, field
 from functools import cached_property
 from pathlib import Path
-from typing import Literal, Mapping
+from typing import Literal
 
 import numpy as np
 import pandas as pd
@@ -71,25 +72,60 @@ COLUMNS: dict[str, tuple[str, ...]] = {
     "calendars": ("calendar", "workdays"),
     "calendar_exceptions": ("calendar", "date", "working", "reason"),
     "activities": (
-        "id", "name", "duration", "calendar", "wbs", "kind", "constraint",
-        "constraint_date", "party", "risk", "actual_start", "actual_finish", "remaining",
+        "id",
+        "name",
+        "duration",
+        "calendar",
+        "wbs",
+        "kind",
+        "constraint",
+        "constraint_date",
+        "party",
+        "risk",
+        "actual_start",
+        "actual_finish",
+        "remaining",
     ),
     "links": ("pred", "succ", "type", "lag"),
     "asbuilt": ("id", "actual_start", "actual_finish", "source"),
     "corrections": ("snapshot", "table", "key", "column", "value", "reason"),
     "attributions": ("window", "activity", "event", "party", "reason"),
     "events": (
-        "id", "title", "party", "start", "finish", "activities", "impact", "days",
-        "evidence", "notified", "claimed_days", "tia_update", "asbuilt_activities",
+        "id",
+        "title",
+        "party",
+        "start",
+        "finish",
+        "activities",
+        "impact",
+        "days",
+        "evidence",
+        "notified",
+        "claimed_days",
+        "tia_update",
+        "asbuilt_activities",
     ),
     "fragnets": ("event", "id", "name", "duration", "calendar", "wbs"),
     "fragnet_links": ("event", "pred", "succ", "type", "lag"),
     "elements": (
-        "id", "name", "wbs", "classification", "x", "y", "z", "dx", "dy", "dz",
-        "level", "zone",
+        "id",
+        "name",
+        "wbs",
+        "classification",
+        "x",
+        "y",
+        "z",
+        "dx",
+        "dy",
+        "dz",
+        "level",
+        "zone",
     ),
     "sections": (
-        "section", "name", "completion_activity", "contract_completion",
+        "section",
+        "name",
+        "completion_activity",
+        "contract_completion",
         "liquidated_damages_per_day",
     ),
     "extensions_granted": ("id", "granted_on", "days", "section", "events", "reason"),
@@ -321,8 +357,7 @@ class Case:
     ):
         tables = dict(tables)
         for name in _VERSION_2_TABLES:
-            tables.setdefault(name, pd.DataFrame(
-                {column: pd.Series([], dtype="str") for column in COLUMNS[name]}))
+            tables.setdefault(name, pd.DataFrame({column: pd.Series([], dtype="str") for column in COLUMNS[name]}))
         missing = set(_TABLE_DOCS) - set(tables)
         if missing:
             raise ValueError(f"tables missing: {sorted(missing)}")

@@ -76,7 +76,7 @@ class Network:
     rank: np.ndarray
     out_ptr: np.ndarray
     out_link: np.ndarray
-    passes: "PassLayout"
+    passes: PassLayout
 
     @property
     def size(self) -> int:
@@ -121,8 +121,17 @@ class Network:
         on[self.rank[np.asarray(activities, dtype=np.int64)]] = True
         usable = np.ones(self.link_count, dtype=bool) if links is None else np.asarray(links, dtype=bool)
         layout = self.passes
-        mark_upstream(layout.f_ptr, layout.f_pred, layout.f_type, layout.f_link, usable, False,
-                      np.empty(0, dtype=np.int8), np.empty(0, dtype=np.int64), on)
+        mark_upstream(
+            layout.f_ptr,
+            layout.f_pred,
+            layout.f_type,
+            layout.f_link,
+            usable,
+            False,
+            np.empty(0, dtype=np.int8),
+            np.empty(0, dtype=np.int64),
+            on,
+        )
         found = np.zeros(self.size, dtype=bool)
         found[self.order] = on
         return found
@@ -137,15 +146,16 @@ class Network:
     def successor_count(self) -> np.ndarray:
         return np.bincount(self.pred, minlength=self.size)
 
-    def with_lags(self, lag) -> "Network":
+    def with_lags(self, lag) -> Network:
         """The same network with other lags (one per link, in link order)."""
         lag = np.ascontiguousarray(lag, dtype=np.int64)
         layout = self.passes
         number = _layout_number(self.size, lag)
         if number != layout.f_lag.dtype:
             return build_network(self.ids, self.pred, self.succ, self.link_type, lag)
-        passes = dataclasses.replace(layout, f_lag=lag[layout.f_link].astype(number),
-                                     b_lag=lag[layout.b_link].astype(number))
+        passes = dataclasses.replace(
+            layout, f_lag=lag[layout.f_link].astype(number), b_lag=lag[layout.b_link].astype(number)
+        )
         return dataclasses.replace(self, lag=lag, passes=passes)
 
     def extended(self, new_ids=(), pred=(), succ=(), link_type=(), lag=(), source="fragnet"):
@@ -243,21 +253,42 @@ def sorted_network(ids, pred, succ, link_type, lag) -> Network | None:
     order = np.empty(n, dtype=np.int64)
     rank = np.empty(n, dtype=np.int64)
     layout = dict(
-        f_ptr=np.empty(n + 1, dtype=np.int64), f_pred=np.empty(m, dtype=number), f_type=np.empty(m, dtype=np.int8),
-        f_lag=np.empty(m, dtype=number), f_link=np.empty(m, dtype=number), b_ptr=np.empty(n + 1, dtype=np.int64),
-        b_succ=np.empty(m, dtype=number), b_type=np.empty(m, dtype=np.int8), b_lag=np.empty(m, dtype=number),
-        b_link=np.empty(m, dtype=number))
+        f_ptr=np.empty(n + 1, dtype=np.int64),
+        f_pred=np.empty(m, dtype=number),
+        f_type=np.empty(m, dtype=np.int8),
+        f_lag=np.empty(m, dtype=number),
+        f_link=np.empty(m, dtype=number),
+        b_ptr=np.empty(n + 1, dtype=np.int64),
+        b_succ=np.empty(m, dtype=number),
+        b_type=np.empty(m, dtype=np.int8),
+        b_lag=np.empty(m, dtype=number),
+        b_link=np.empty(m, dtype=number),
+    )
     link_type = np.ascontiguousarray(link_type, dtype=np.int8)
     placed = order_and_layout(n, pred, succ, link_type, lag, out_ptr, out_link, order, rank, *layout.values())
     if placed < n:
         return None
-    return Network(ids=ids, pred=pred, succ=succ, link_type=link_type, lag=lag, order=order, rank=rank,
-                   out_ptr=out_ptr, out_link=out_link, passes=PassLayout(**layout))
+    return Network(
+        ids=ids,
+        pred=pred,
+        succ=succ,
+        link_type=link_type,
+        lag=lag,
+        order=order,
+        rank=rank,
+        out_ptr=out_ptr,
+        out_link=out_link,
+        passes=PassLayout(**layout),
+    )
 
 
-def compile_network(activities: pd.DataFrame, links: pd.DataFrame, source: str = "links.csv",
-                    link_numbers: tuple[np.ndarray, np.ndarray] | None = None,
-                    type_codes: np.ndarray | None = None) -> Network:
+def compile_network(
+    activities: pd.DataFrame,
+    links: pd.DataFrame,
+    source: str = "links.csv",
+    link_numbers: tuple[np.ndarray, np.ndarray] | None = None,
+    type_codes: np.ndarray | None = None,
+) -> Network:
     """Compile an activities table and a links table (case-format columns) to a Network.
 
     Parameters
@@ -309,9 +340,15 @@ def compile_network(activities: pd.DataFrame, links: pd.DataFrame, source: str =
     codes = pd.Index(LINK_TYPES).get_indexer(links["type"]) if type_codes is None else np.asarray(type_codes)
     if (codes < 0).any():
         row = int(np.flatnonzero(codes < 0)[0])
-        raise CaseError(Problem(file=source, row=row + 2, column="type",
-                                message=f"unknown link type '{links['type'].iloc[row]}'",
-                                fix="use FS, SS, FF or SF"))
+        raise CaseError(
+            Problem(
+                file=source,
+                row=row + 2,
+                column="type",
+                message=f"unknown link type '{links['type'].iloc[row]}'",
+                fix="use FS, SS, FF or SF",
+            )
+        )
     link_type = codes.astype(np.int8)
     lag = links["lag"].to_numpy(dtype=np.int64)
     return build_network(ids, pred, succ, link_type, lag, source)

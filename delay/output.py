@@ -55,11 +55,11 @@ import signal
 import tempfile
 import threading
 import time
+from collections.abc import Callable, Iterable, Iterator, Mapping
 from pathlib import Path
-from typing import TYPE_CHECKING, Callable, Iterable, Iterator, Mapping
+from typing import TYPE_CHECKING
 
 if TYPE_CHECKING:  # numpy and pandas are imported where a table is written, not at start-up
-    import numpy as np
     import pandas as pd
 
 __all__ = [
@@ -90,14 +90,6 @@ __all__ = [
     "csv_text",
     "write_csv",
     "copy_csv",
-    "json_date",
-    "json_int",
-    "json_text_cells",
-    "json_int_cells",
-    "json_bool_cells",
-    "json_date_cells",
-    "iso_dates",
-    "json_records",
 ]
 
 #: The name the marker file carries; a folder whose marker names another tool is not ours.
@@ -149,8 +141,10 @@ class OutputFailed(Exception):
         self.target, self.error = str(target), error
 
     def __str__(self) -> str:
-        return (f"{self.target}: cannot be written ({_reason(self.error)}) - {_os_fix(self.error)}; nothing "
-                "half-written was left and an earlier output is unchanged")
+        return (
+            f"{self.target}: cannot be written ({_reason(self.error)}) - {_os_fix(self.error)}; nothing "
+            "half-written was left and an earlier output is unchanged"
+        )
 
 
 class Interrupted(BaseException):
@@ -174,7 +168,9 @@ class Interrupted(BaseException):
 
     def __str__(self) -> str:
         what = "by Ctrl-C" if self.signum == signal.SIGINT else f"by signal {signal.Signals(self.signum).name}"
-        return f"interrupted {what}: the run was stopped; nothing is left half-written and earlier outputs are unchanged"
+        return (
+            f"interrupted {what}: the run was stopped; nothing is left half-written and earlier outputs are unchanged"
+        )
 
 
 def _reason(error: OSError) -> str:
@@ -211,7 +207,7 @@ _deferral = _Deferral()
 _pending: list[int] = []
 
 
-def _on_signal(signum, frame):  # noqa: ARG001 - the signal module's signature
+def _on_signal(signum, _frame):  # the signal module's signature
     if _deferral.depth:
         _pending.append(signum)
         return
@@ -388,10 +384,17 @@ def mark_folder(folder: str | Path, what: str) -> str:
 def _write_marker(folder: Path, facts: dict) -> None:
     from . import __version__
 
-    facts = {"tool": TOOL, "version": __version__, "id": facts["id"], "what": facts.get("what", "output"),
-             "note": ("Written by the delay toolkit. The next run may replace this folder whole; a file added "
-                      "here by hand stops that, so nothing of yours is ever lost."),
-             "files": facts.get("files", [])}
+    facts = {
+        "tool": TOOL,
+        "version": __version__,
+        "id": facts["id"],
+        "what": facts.get("what", "output"),
+        "note": (
+            "Written by the delay toolkit. The next run may replace this folder whole; a file added "
+            "here by hand stops that, so nothing of yours is ever lost."
+        ),
+        "files": facts.get("files", []),
+    }
     (folder / MARKER).write_text(json.dumps(facts, indent=2) + "\n", encoding="utf-8")
 
 
@@ -457,25 +460,41 @@ def _guard(real: Path, shown: str, case_root, inputs: Iterable, *, option: str) 
         inputs, root = [root, *inputs], None
     sources = [(Path(item).name, _real(item)) for item in inputs]
     if any(real == source for _, source in sources):
-        raise OutputRefused(shown, "this is an input file; the toolkit never writes over its inputs",
-                            f"give another path{option}")
+        raise OutputRefused(
+            shown, "this is an input file; the toolkit never writes over its inputs", f"give another path{option}"
+        )
     if root is not None:
         if real == root:
             raise OutputRefused(shown, "this is the case folder itself", f"give a new folder outside the case{option}")
         if real.is_relative_to(root):
-            raise OutputRefused(shown, "this is inside the case folder; the toolkit never writes into its inputs",
-                                f"give a path outside the case{option}")
+            raise OutputRefused(
+                shown,
+                "this is inside the case folder; the toolkit never writes into its inputs",
+                f"give a path outside the case{option}",
+            )
         if root.is_relative_to(real):
-            raise OutputRefused(shown, "this folder holds the case folder; replacing it would lose the case",
-                                f"give a new folder outside the case{option}")
+            raise OutputRefused(
+                shown,
+                "this folder holds the case folder; replacing it would lose the case",
+                f"give a new folder outside the case{option}",
+            )
     for name, source in sources:
         if source.is_relative_to(real):
-            raise OutputRefused(shown, f"this folder holds the input file {name}; the toolkit never replaces its "
-                                       "inputs", f"give a new folder{option}")
+            raise OutputRefused(
+                shown,
+                f"this folder holds the input file {name}; the toolkit never replaces its inputs",
+                f"give a new folder{option}",
+            )
 
 
-def check_folder_target(target: str | Path, *, case_root: str | Path | None = None, inputs: Iterable = (),
-                        earlier: bool = True, option: str = "") -> Path:
+def check_folder_target(
+    target: str | Path,
+    *,
+    case_root: str | Path | None = None,
+    inputs: Iterable = (),
+    earlier: bool = True,
+    option: str = "",
+) -> Path:
     """Check that an output folder may be written at ``target`` (see the module docstring).
 
     Parameters
@@ -520,14 +539,23 @@ def check_folder_target(target: str | Path, *, case_root: str | Path | None = No
     foreign = _foreign(real, set(marker["files"]))
     if foreign:
         more = f" and {len(foreign) - 1} more" if len(foreign) > 1 else ""
-        raise OutputRefused(shown, f"this earlier output now also holds {foreign[0]}{more}, which the toolkit did "
-                                   "not write; replacing the folder would lose it",
-                            f"move it out of the folder, or give another folder{option}")
+        raise OutputRefused(
+            shown,
+            f"this earlier output now also holds {foreign[0]}{more}, which the toolkit did "
+            "not write; replacing the folder would lose it",
+            f"move it out of the folder, or give another folder{option}",
+        )
     return real
 
 
-def check_file_target(target: str | Path, *, case_root: str | Path | None = None, inputs: Iterable = (),
-                      recognise: Callable[[Path], bool] | None = None, option: str = "") -> Path:
+def check_file_target(
+    target: str | Path,
+    *,
+    case_root: str | Path | None = None,
+    inputs: Iterable = (),
+    recognise: Callable[[Path], bool] | None = None,
+    option: str = "",
+) -> Path:
     """Check that an output file may be written at ``target``: new, or a file the toolkit
     wrote (``recognise(path)`` says so); never an input, the case folder or inside it.
 
@@ -556,8 +584,9 @@ def check_file_target(target: str | Path, *, case_root: str | Path | None = None
     if real.is_dir():
         raise OutputRefused(shown, "this is a folder, not a file", f"give the path of a new file{option}")
     if real.exists() and not (recognise is not None and recognise(real)):
-        raise OutputRefused(shown, "the file exists and this toolkit did not write it",
-                            f"give the path of a new file{option}")
+        raise OutputRefused(
+            shown, "the file exists and this toolkit did not write it", f"give the path of a new file{option}"
+        )
     return real
 
 
@@ -621,8 +650,14 @@ def _discard(path: Path) -> None:
 
 
 @contextlib.contextmanager
-def output_folder(target: str | Path, *, case_root: str | Path | None = None, inputs: Iterable = (),
-                  what: str = "output", option: str = "") -> Iterator[Path]:
+def output_folder(
+    target: str | Path,
+    *,
+    case_root: str | Path | None = None,
+    inputs: Iterable = (),
+    what: str = "output",
+    option: str = "",
+) -> Iterator[Path]:
     """Build an output folder under a temporary name; on success it replaces ``target`` whole.
 
     The target is checked by :func:`check_folder_target` on entry and again before the
@@ -681,6 +716,7 @@ def new_folder(target: str | Path, *, option: str = "") -> Iterator[Path]:
     OutputRefused, OutputFailed
         As :func:`output_folder`.
     """
+
     def check() -> Path:
         return check_folder_target(target, earlier=False, option=option)
 
@@ -836,9 +872,16 @@ def write_together(files: Mapping[str | Path, bytes]) -> tuple[Path, ...]:
     return tuple(temporaries)
 
 
-def write_output_file(target: str | Path, write: Callable[[str], object], *, case_root=None, inputs: Iterable = (),
-                      recognise: Callable[[Path], bool] | None = None, suffix: str = ".part",
-                      option: str = "") -> Path:
+def write_output_file(
+    target: str | Path,
+    write: Callable[[str], object],
+    *,
+    case_root=None,
+    inputs: Iterable = (),
+    recognise: Callable[[Path], bool] | None = None,
+    suffix: str = ".part",
+    option: str = "",
+) -> Path:
     """Check ``target`` with :func:`check_file_target`, then write it through a temporary
     file (:func:`write_through`).
 
@@ -916,8 +959,9 @@ def csv_safe(frame: pd.DataFrame) -> pd.DataFrame:
             joined = None
         if joined is not None and joined[:1] not in _FORMULA_START and not _FORMULA_CELL.search(joined):
             continue
-        starts = np.fromiter((isinstance(v, str) and v[:1] in _FORMULA_START for v in column), dtype=bool,
-                             count=len(column))
+        starts = np.fromiter(
+            (isinstance(v, str) and v[:1] in _FORMULA_START for v in column), dtype=bool, count=len(column)
+        )
         if starts.any():
             column[starts] = [_safe_cell(v) for v in column[starts]]
             out.isetitem(position, pd.Series(column, index=series.index, name=series.name, dtype=object))

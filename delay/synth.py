@@ -23,17 +23,31 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from .convert import iso_dates
 from .calendars import CalendarSet, WorkCalendar, parse_workdays
+from .convert import iso_dates
 from .network import LINK_CODES, build_network
 from .output import check_folder_target, new_folder
 
 __all__ = ["synthesise", "synthetic_network"]
 
 START = dt.date(2026, 1, 5)  # a Monday
-HOLIDAYS = ["2026-04-03", "2026-04-06", "2026-05-01", "2026-12-25", "2026-12-28",
-            "2027-01-01", "2027-03-26", "2027-03-29", "2027-12-27", "2027-12-28",
-            "2028-01-03", "2028-04-14", "2028-04-17", "2028-12-25", "2028-12-26"]
+HOLIDAYS = [
+    "2026-04-03",
+    "2026-04-06",
+    "2026-05-01",
+    "2026-12-25",
+    "2026-12-28",
+    "2027-01-01",
+    "2027-03-26",
+    "2027-03-29",
+    "2027-12-27",
+    "2027-12-28",
+    "2028-01-03",
+    "2028-04-14",
+    "2028-04-17",
+    "2028-12-25",
+    "2028-12-26",
+]
 
 
 def synthetic_network(activities: int, links_per_activity: float = 2.5, seed: int = 0):
@@ -96,10 +110,18 @@ def synthetic_network(activities: int, links_per_activity: float = 2.5, seed: in
     for k, i in enumerate(picks):
         constraint[i] = "earliest_start"
         constraint_date[i] = (START + dt.timedelta(days=int(i // 8) + 7 * (k % 3))).isoformat()
-    activities_table = pd.DataFrame({
-        "id": ids, "name": names, "duration": duration, "calendar": calendar, "wbs": wbs,
-        "kind": kind, "constraint": constraint, "constraint_date": constraint_date,
-    })
+    activities_table = pd.DataFrame(
+        {
+            "id": ids,
+            "name": names,
+            "duration": duration,
+            "calendar": calendar,
+            "wbs": wbs,
+            "kind": kind,
+            "constraint": constraint,
+            "constraint_date": constraint_date,
+        }
+    )
     links_table = pd.DataFrame({"pred": ids[pred], "succ": ids[succ], "type": link_type, "lag": lag})
     links_table = links_table.sort_values(["succ", "pred"], kind="stable").reset_index(drop=True)
     return activities_table, links_table
@@ -111,29 +133,39 @@ def _actual_run(activities: pd.DataFrame, links: pd.DataFrame, rng):
     from .cpm import ScheduleModel
     from .model import ScheduleSettings
 
-    calendars = CalendarSet({
-        "5d": WorkCalendar("5d", parse_workdays("Mon Tue Wed Thu Fri"), HOLIDAYS, anchor=START),
-        "7d": WorkCalendar("7d", parse_workdays("Mon Tue Wed Thu Fri Sat Sun"), anchor=START),
-    })
+    calendars = CalendarSet(
+        {
+            "5d": WorkCalendar("5d", parse_workdays("Mon Tue Wed Thu Fri"), HOLIDAYS, anchor=START),
+            "7d": WorkCalendar("7d", parse_workdays("Mon Tue Wed Thu Fri Sat Sun"), anchor=START),
+        }
+    )
     index = pd.Index(activities["id"])
     pred = index.get_indexer(links["pred"]).astype(np.int64)
     succ = index.get_indexer(links["succ"]).astype(np.int64)
     n = len(activities)
     network = build_network(
-        activities["id"].to_numpy(dtype=object), pred, succ,
-        links["type"].map(LINK_CODES).to_numpy(dtype=np.int8), links["lag"].to_numpy(dtype=np.int64),
+        activities["id"].to_numpy(dtype=object),
+        pred,
+        succ,
+        links["type"].map(LINK_CODES).to_numpy(dtype=np.int8),
+        links["lag"].to_numpy(dtype=np.int64),
     )
     duration = activities["duration"].to_numpy(dtype=np.int64)
     factor = rng.choice([1.0, 1.0, 1.0, 1.2, 1.5, 2.0], n)
     actual_duration = np.where(duration > 0, np.maximum(1, np.round(duration * factor)), 0).astype(np.int64)
     kinds = {"task": 0, "start_milestone": 1, "finish_milestone": 2}
     model = ScheduleModel(
-        network=network, calendars=calendars, names=activities["name"].to_numpy(dtype=object),
+        network=network,
+        calendars=calendars,
+        names=activities["name"].to_numpy(dtype=object),
         calendar=activities["calendar"].map(calendars.number).to_numpy(dtype=np.int64),
-        duration=actual_duration, remaining=np.full(n, np.nan),
-        actual_start=np.full(n, NO_DAY, dtype=np.int64), actual_finish=np.full(n, NO_DAY, dtype=np.int64),
+        duration=actual_duration,
+        remaining=np.full(n, np.nan),
+        actual_start=np.full(n, NO_DAY, dtype=np.int64),
+        actual_finish=np.full(n, NO_DAY, dtype=np.int64),
         kind=activities["kind"].map(kinds).to_numpy(dtype=np.int8),
-        constraint=np.zeros(n, dtype=np.int8), constraint_day=np.full(n, NO_DAY, dtype=np.int64),
+        constraint=np.zeros(n, dtype=np.int8),
+        constraint_day=np.full(n, NO_DAY, dtype=np.int64),
         start_bound=np.full(n, NO_DAY, dtype=np.int64),
         data_day=int(np.datetime64(START, "D").astype(np.int64)),
         contract_completion_day=int(np.datetime64(START, "D").astype(np.int64)) + 3650,
@@ -143,8 +175,14 @@ def _actual_run(activities: pd.DataFrame, links: pd.DataFrame, rng):
     return result.day_array("early_start"), result.day_array("early_finish"), calendars, result
 
 
-def synthesise(out: str | Path, activities: int, links_per_activity: float = 2.5, updates: int = 0,
-               seed: int = 0, elements: int = 0) -> Path:
+def synthesise(
+    out: str | Path,
+    activities: int,
+    links_per_activity: float = 2.5,
+    updates: int = 0,
+    seed: int = 0,
+    elements: int = 0,
+) -> Path:
     """Write a valid random case folder to ``out`` (which must not exist or be empty).
 
     Parameters
@@ -185,10 +223,12 @@ def synthesise(out: str | Path, activities: int, links_per_activity: float = 2.5
             'lag_calendar = "successor"\nfloat_to = "project_finish"\n',
             encoding="utf-8",
         )
-        pd.DataFrame({"calendar": ["5d", "7d"], "workdays": ["Mon Tue Wed Thu Fri", "Mon Tue Wed Thu Fri Sat Sun"]}
-                     ).to_csv(tmp / "calendars.csv", index=False)
-        pd.DataFrame({"calendar": "5d", "date": HOLIDAYS, "working": "no", "reason": "public holiday"}
-                     ).to_csv(tmp / "calendar_exceptions.csv", index=False)
+        pd.DataFrame(
+            {"calendar": ["5d", "7d"], "workdays": ["Mon Tue Wed Thu Fri", "Mon Tue Wed Thu Fri Sat Sun"]}
+        ).to_csv(tmp / "calendars.csv", index=False)
+        pd.DataFrame({"calendar": "5d", "date": HOLIDAYS, "working": "no", "reason": "public holiday"}).to_csv(
+            tmp / "calendar_exceptions.csv", index=False
+        )
         _write_snapshot(tmp / "snapshots" / "baseline", "Baseline", START, "baseline", acts, links)
         data_dates = []
         month = START.replace(day=1)
@@ -229,8 +269,9 @@ def synthesise(out: str | Path, activities: int, links_per_activity: float = 2.5
                     gone = int(rng.choice(waiting))
                     deleted[gone] = True
                 waiting_ids = set(acts["id"].to_numpy()[~(done | started)])
-                movable = np.flatnonzero(current_links["succ"].isin(waiting_ids).to_numpy()
-                                         & (current_links["type"] != "SF").to_numpy())
+                movable = np.flatnonzero(
+                    current_links["succ"].isin(waiting_ids).to_numpy() & (current_links["type"] != "SF").to_numpy()
+                )
                 if movable.size:
                     change = rng.choice(movable, size=max(1, movable.size // 500), replace=False)
                     current_links.loc[current_links.index[change], "lag"] += 1
@@ -240,25 +281,31 @@ def synthesise(out: str | Path, activities: int, links_per_activity: float = 2.5
             table.loc[revised, "remaining"] = revised_remaining[revised].astype(int).astype(str).to_numpy()
             kept_ids = set(acts["id"].to_numpy()[~deleted])
             kept_links = current_links[current_links["pred"].isin(kept_ids) & current_links["succ"].isin(kept_ids)]
-            _write_snapshot(tmp / "snapshots" / f"u{k:02d}", f"Update {k:02d}", data_date, "update",
-                            table[~deleted], kept_links)
+            _write_snapshot(
+                tmp / "snapshots" / f"u{k:02d}", f"Update {k:02d}", data_date, "update", table[~deleted], kept_links
+            )
         if updates:
             kept = ~deleted
-            pd.DataFrame({
-                "id": acts["id"][kept],
-                "actual_start": np.where(acts["duration"] > 0, iso_dates(start_day), iso_dates(finish_day))[kept],
-                "actual_finish": iso_dates(finish_day)[kept], "source": "simulated record",
-            }).to_csv(tmp / "asbuilt.csv", index=False)
+            pd.DataFrame(
+                {
+                    "id": acts["id"][kept],
+                    "actual_start": np.where(acts["duration"] > 0, iso_dates(start_day), iso_dates(finish_day))[kept],
+                    "actual_finish": iso_dates(finish_day)[kept],
+                    "source": "simulated record",
+                }
+            ).to_csv(tmp / "asbuilt.csv", index=False)
         if elements:
             _write_elements(tmp / "elements.csv", acts, elements, rng)
     return out
 
 
-def _write_snapshot(folder: Path, label: str, data_date: dt.date, kind: str, activities: pd.DataFrame,
-                    links: pd.DataFrame) -> None:
+def _write_snapshot(
+    folder: Path, label: str, data_date: dt.date, kind: str, activities: pd.DataFrame, links: pd.DataFrame
+) -> None:
     folder.mkdir(parents=True, exist_ok=True)
     (folder / "snapshot.toml").write_text(
-        f'label = "{label}"\ndata_date = {data_date.isoformat()}\nkind = "{kind}"\n', encoding="utf-8")
+        f'label = "{label}"\ndata_date = {data_date.isoformat()}\nkind = "{kind}"\n', encoding="utf-8"
+    )
     activities.to_csv(folder / "activities.csv", index=False)
     links.to_csv(folder / "links.csv", index=False)
 
@@ -268,10 +315,19 @@ def _write_elements(path: Path, activities: pd.DataFrame, count: int, rng) -> No
     wbs = codes[np.arange(count) % codes.size]
     side = int(np.ceil(np.sqrt(count / 10)))
     k = np.arange(count)
-    pd.DataFrame({
-        "id": [f"E{i:06d}" for i in k], "name": [f"Element {i}" for i in k], "wbs": wbs,
-        "classification": np.where(k % 3 == 0, "column", np.where(k % 3 == 1, "slab", "wall")),
-        "x": (k % side) * 6.0, "y": ((k // side) % side) * 6.0, "z": (k // (side * side)) * 3.5,
-        "dx": 5.0, "dy": 5.0, "dz": 3.0,
-        "level": [f"L{int(z)}" for z in k // (side * side)], "zone": [f"Z{int(x) // 4}" for x in k % side],
-    }).to_csv(path, index=False)
+    pd.DataFrame(
+        {
+            "id": [f"E{i:06d}" for i in k],
+            "name": [f"Element {i}" for i in k],
+            "wbs": wbs,
+            "classification": np.where(k % 3 == 0, "column", np.where(k % 3 == 1, "slab", "wall")),
+            "x": (k % side) * 6.0,
+            "y": ((k // side) % side) * 6.0,
+            "z": (k // (side * side)) * 3.5,
+            "dx": 5.0,
+            "dy": 5.0,
+            "dz": 3.0,
+            "level": [f"L{int(z)}" for z in k // (side * side)],
+            "zone": [f"Z{int(x) // 4}" for x in k % side],
+        }
+    ).to_csv(path, index=False)

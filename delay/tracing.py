@@ -34,7 +34,7 @@ def driving_predecessors(result: ScheduleResult, activity: int) -> list[tuple[in
     date, a constraint, or it is an open start).
     """
     net = result.model.network
-    links = net.in_link[net.in_ptr[activity]:net.in_ptr[activity + 1]]
+    links = net.in_link[net.in_ptr[activity] : net.in_ptr[activity + 1]]
     if not links.size:
         return []
     status = result.status[activity]

@@ -132,7 +132,7 @@ class Section:
     blocks: list = field(default_factory=list)
     available: bool = True
 
-    def not_shown(self, reason: str) -> "Section":
+    def not_shown(self, reason: str) -> Section:
         """Mark the section not available and say why.
 
         Parameters

@@ -14,8 +14,8 @@ plain lines, and anything else is a fault of the toolkit.
 
 from __future__ import annotations
 
+from collections.abc import Sequence
 from dataclasses import dataclass
-from typing import Sequence
 
 from delay.comparison import compare_methods
 from delay.entitlement import assess
@@ -125,15 +125,21 @@ def resolve_methods(case: Case, methods: str | Sequence[str] | None) -> tuple[li
                 reasons.append("The windows analysis is left out: the case holds one programme only.")
                 continue
             if method in ("collapsed", "asbuilt") and case.asbuilt_snapshot is None:
-                reasons.append(f"The {METHOD_NAMES[method]} is left out: the case has no as-built record "
-                               "(asbuilt.csv).")
+                reasons.append(
+                    f"The {METHOD_NAMES[method]} is left out: the case has no as-built record (asbuilt.csv)."
+                )
                 continue
             chosen.append(method)
         return chosen, reasons
     unknown = [m for m in methods if m not in REPORT_METHODS]
     if unknown:
-        raise CaseError(Problem(file="--methods", message=f"unknown method '{unknown[0]}'",
-                                fix=f"choose among: {', '.join(REPORT_METHODS)} (comma separated), or all"))
+        raise CaseError(
+            Problem(
+                file="--methods",
+                message=f"unknown method '{unknown[0]}'",
+                fix=f"choose among: {', '.join(REPORT_METHODS)} (comma separated), or all",
+            )
+        )
     return [m for m in REPORT_METHODS if m in methods], []
 
 
@@ -166,12 +172,21 @@ def compute(case: Case, methods: str | Sequence[str] | None = None, title: str |
         comparison = compare_methods(case, {m: entitlement.method(m) for m in entitled})
     ctx = Context(case, chosen, results, entitlement, comparison)
     sections = [
-        summary_section.section(ctx, left_out), money_section.section(ctx), quality_section.section(ctx),
-        windows_section.section(ctx), impacted_section.section(ctx), tia_section.section(ctx),
-        collapsed_section.section(ctx), comparison_section.section(ctx), asbuilt_section.section(ctx),
-        timeline_section.section(ctx), inputs_section.section(ctx, title), Section("manifest", "Manifest"),
+        summary_section.section(ctx, left_out),
+        money_section.section(ctx),
+        quality_section.section(ctx),
+        windows_section.section(ctx),
+        impacted_section.section(ctx),
+        tia_section.section(ctx),
+        collapsed_section.section(ctx),
+        comparison_section.section(ctx),
+        asbuilt_section.section(ctx),
+        timeline_section.section(ctx),
+        inputs_section.section(ctx, title),
+        Section("manifest", "Manifest"),
     ]
     if [s.key for s in sections] != [key for key, _ in SECTIONS]:
         raise AssertionError("the sections are not in the order of SECTIONS")
-    return ReportContent(case=case, title=title, methods=chosen, sections=sections, tables=ctx.tables,
-                         left_out=left_out)
+    return ReportContent(
+        case=case, title=title, methods=chosen, sections=sections, tables=ctx.tables, left_out=left_out
+    )

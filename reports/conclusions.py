@@ -25,19 +25,25 @@ from delay.comparison import disagreements
 
 from .context import METHOD_NAMES, Context
 
-__all__ = ["warnings_of", "extension_beyond_overrun", "unexplained_days", "events_left_alone",
-           "collapsed_model", "tia_warnings"]
+__all__ = [
+    "warnings_of",
+    "extension_beyond_overrun",
+    "unexplained_days",
+    "events_left_alone",
+    "collapsed_model",
+    "tia_warnings",
+]
 
 #: The reason, per method, for an extension beyond the overrun that acceleration does not explain.
 _METHOD_REASON = {
     "windows": "the windows charge each window's movement as it happened, and the contractor's gains in some "
-               "windows net against its delays in others",
+    "windows net against its delays in others",
     "impacted": "the method measures the events in the plan, not what happened on site: the works finished "
-                "earlier than its model of the events",
+    "earlier than its model of the events",
     "tia": "the method measures each event in the programme of its time, not what happened on site: the works "
-           "finished earlier than its model of the events",
+    "finished earlier than its model of the events",
     "collapsed": "the but-for days are measured on the as-built model, and the model's error is among the days no "
-                 "event explains",
+    "event explains",
 }
 
 
@@ -67,19 +73,27 @@ def extension_beyond_overrun(item, *, actual_word: str = "actual") -> str | None
     if item.eot_days <= 0 or excess <= 0:
         return None
     if overrun > 0:
-        start = (f"{_name(item.method)}: the extension of time, {_days(item.eot_days)}, is more than the "
-                 f"{_days(overrun)} by which the works overran the completion in force "
-                 f"({item.completion_in_force.isoformat()})")
+        start = (
+            f"{_name(item.method)}: the extension of time, {_days(item.eot_days)}, is more than the "
+            f"{_days(overrun)} by which the works overran the completion in force "
+            f"({item.completion_in_force.isoformat()})"
+        )
     else:
-        start = (f"{_name(item.method)}: the works finished {_days(-overrun)} before the completion in force "
-                 f"({item.completion_in_force.isoformat()}), yet the extension of time is {_days(item.eot_days)}")
-    text = (f"{start}, so its revised completion, {item.revised_completion.isoformat()}, falls after the "
-            f"{actual_word} completion, {item.actual_completion.isoformat()}.")
+        start = (
+            f"{_name(item.method)}: the works finished {_days(-overrun)} before the completion in force "
+            f"({item.completion_in_force.isoformat()}), yet the extension of time is {_days(item.eot_days)}"
+        )
+    text = (
+        f"{start}, so its revised completion, {item.revised_completion.isoformat()}, falls after the "
+        f"{actual_word} completion, {item.actual_completion.isoformat()}."
+    )
     accelerated = min(excess, int(item.acceleration_days))
     if accelerated:
         share = f"All {_days(excess)}" if accelerated == excess else f"{accelerated} of the {_days(excess)}"
-        text += (f" {share} of the difference are the contractor's acceleration (its net recovery of "
-                 f"{_days(int(item.acceleration_days))}), which is shown and does not cut the extension.")
+        text += (
+            f" {share} of the difference are the contractor's acceleration (its net recovery of "
+            f"{_days(int(item.acceleration_days))}), which is shown and does not cut the extension."
+        )
     if excess > accelerated:
         text += f" The other {_days(excess - accelerated)}: {_METHOD_REASON[item.method]}."
     return text
@@ -115,8 +129,10 @@ def unexplained_days(item) -> str | None:
     if len(gains):
         parts.append(f"{_days(-int(gains.sum()))} of gain charged to events")
     if recovery.any() and int(days[recovery].sum()):
-        parts.append(f"{_days(-int(days[recovery].sum()))} of recovery (the works finished earlier than its model of "
-                     "the events predicted: the contractor's recovery, or events modelled larger than they were)")
+        parts.append(
+            f"{_days(-int(days[recovery].sum()))} of recovery (the works finished earlier than its model of "
+            "the events predicted: the contractor's recovery, or events modelled larger than they were)"
+        )
     return f"{_name(item.method)}: " + "; ".join(parts) + "." if parts else None
 
 
@@ -135,10 +151,12 @@ def collapsed_model(result) -> str | None:
     if result.reproduced:
         return None
     count = len(result.mismatches)
-    return (f"Collapsed as-built: the as-built model does not reproduce the actual dates of {count} "
-            f"activit{'y' if count == 1 else 'ies'} (modelled completion {result.modelled_completion.isoformat()}, "
-            f"actual {result.actual_completion.isoformat()}); its but-for figures carry that error. The activities "
-            "and the reasons are listed in its section.")
+    return (
+        f"Collapsed as-built: the as-built model does not reproduce the actual dates of {count} "
+        f"activit{'y' if count == 1 else 'ies'} (modelled completion {result.modelled_completion.isoformat()}, "
+        f"actual {result.actual_completion.isoformat()}); its but-for figures carry that error. The activities "
+        "and the reasons are listed in its section."
+    )
 
 
 def events_left_alone(method: str, result) -> list[str]:
@@ -169,10 +187,15 @@ def events_left_alone(method: str, result) -> list[str]:
     if untouched:
         which = " and ".join([", ".join(untouched[:-1]), untouched[-1]] if len(untouched) > 1 else untouched)
         one = len(untouched) == 1
-        verb, its, score = ("leaves", "its", "it scores less than its period suggests") if one else (
-            "leave", "their", "they score less than their periods suggest")
-        found.append(f"{_name(method)}: {which} {verb} some of {its} activities alone (a hold stops only work the "
-                     f"programme has in its period), so {score}; the events table says which.")
+        verb, its, score = (
+            ("leaves", "its", "it scores less than its period suggests")
+            if one
+            else ("leave", "their", "they score less than their periods suggest")
+        )
+        found.append(
+            f"{_name(method)}: {which} {verb} some of {its} activities alone (a hold stops only work the "
+            f"programme has in its period), so {score}; the events table says which."
+        )
     return found
 
 
@@ -188,8 +211,11 @@ def tia_warnings(result) -> list[str]:
     list of str
         One sentence per warning, naming its event.
     """
-    return [f"Time impact analysis, {row.event}: {warning}." for row in result.events.itertuples(index=False)
-            for warning in row.warnings]
+    return [
+        f"Time impact analysis, {row.event}: {warning}."
+        for row in result.events.itertuples(index=False)
+        for warning in row.warnings
+    ]
 
 
 def warnings_of(ctx: Context) -> list[str]:
@@ -212,8 +238,10 @@ def warnings_of(ctx: Context) -> list[str]:
         found += [d["sentence"] for d in disagreements(ctx.comparison)]
     unexplained = [text for item in ctx.entitled if (text := unexplained_days(item))]
     if any("no event explains" in text for text in unexplained):
-        unexplained.append("Who carries days no event explains is set by an activity's risk column, else by "
-                           f"[analysis] unexplained_risk (here: {ctx.case.settings.analysis.unexplained_risk}).")
+        unexplained.append(
+            "Who carries days no event explains is set by an activity's risk column, else by "
+            f"[analysis] unexplained_risk (here: {ctx.case.settings.analysis.unexplained_risk})."
+        )
     found += unexplained
     if "collapsed" in ctx.results and (text := collapsed_model(ctx.results["collapsed"])):
         found.append(text)

@@ -15,8 +15,8 @@ from typing import Any
 import pandas as pd
 
 from delay.cpm import calendars_of, prepare
-from delay.model import Case
 from delay.methods import METHOD_TITLES
+from delay.model import Case
 
 from .blocks import Paragraph, Section, TableBlock
 from .sections import method_title
@@ -103,8 +103,7 @@ class Context:
     comparison: :class:`delay.comparison.MethodComparison` of the same methods, or ``None``.
     """
 
-    def __init__(self, case: Case, methods: list[str], results: dict[str, Any], entitlement=None,
-                 comparison=None):
+    def __init__(self, case: Case, methods: list[str], results: dict[str, Any], entitlement=None, comparison=None):
         self.case = case
         self.methods = methods
         self.results = results
@@ -130,8 +129,18 @@ class Context:
         """The case's currency (``[commercial] currency``)."""
         return self.case.settings.commercial.currency
 
-    def table(self, key: str, title: str, section: str, frame: pd.DataFrame, *, note: str = "",
-              labels: dict | None = None, style: str = "", build_up: BuildUp | None = None) -> TableBlock:
+    def table(
+        self,
+        key: str,
+        title: str,
+        section: str,
+        frame: pd.DataFrame,
+        *,
+        note: str = "",
+        labels: dict | None = None,
+        style: str = "",
+        build_up: BuildUp | None = None,
+    ) -> TableBlock:
         """Register a table of the report and return the block that shows it.
 
         Parameters
@@ -151,8 +160,15 @@ class Context:
         """
         if any(t.key == key for t in self.tables):
             raise ValueError(f"two tables named {key}")
-        table = ReportTable(key=key, title=title, section=section, frame=frame.reset_index(drop=True),
-                            labels=labels or {}, note=note, build_up=build_up)
+        table = ReportTable(
+            key=key,
+            title=title,
+            section=section,
+            frame=frame.reset_index(drop=True),
+            labels=labels or {},
+            note=note,
+            build_up=build_up,
+        )
         self.tables.append(table)
         return TableBlock(table, style=style)
 
@@ -192,7 +208,9 @@ class Context:
         """
         section = Section(method, method_title(method))
         if method not in self.results:
-            return section.not_shown(f"The {METHOD_NAMES[method]} was not run for this report (see the methods "
-                                     "chosen in the inputs section)."), None
+            return section.not_shown(
+                f"The {METHOD_NAMES[method]} was not run for this report (see the methods "
+                "chosen in the inputs section)."
+            ), None
         section.blocks.append(Paragraph(explanation))
         return section, self.results[method]

@@ -46,17 +46,30 @@ import json
 import os
 import platform
 import re
+from collections.abc import Callable
 from dataclasses import dataclass, field
 from pathlib import Path
-from typing import Any, Callable
+from typing import Any
 
 import numpy as np
 
 from delay.errors import CaseError, ReconciliationError
 from delay.output import MARKER, OS_LITTER, read_marker
 
-__all__ = ["make_manifest", "record_outputs", "input_files", "read_manifest", "verify", "Verification",
-           "Difference", "VerifyError", "MANIFEST", "FORMAT", "MAX_BYTES", "MAX_DEPTH"]
+__all__ = [
+    "make_manifest",
+    "record_outputs",
+    "input_files",
+    "read_manifest",
+    "verify",
+    "Verification",
+    "Difference",
+    "VerifyError",
+    "MANIFEST",
+    "FORMAT",
+    "MAX_BYTES",
+    "MAX_DEPTH",
+]
 
 MANIFEST = "manifest.json"
 FORMAT = "delay-report-manifest/3"
@@ -183,8 +196,7 @@ def _relative_location(root: Path, out_dir: Path) -> str | None:
     return Path(os.path.relpath(root, out_dir)).as_posix()
 
 
-def make_manifest(content, out_dir: Path, created: dt.datetime | None = None, *,
-                  output_id: str = "") -> dict[str, Any]:
+def make_manifest(content, out_dir: Path, created: dt.datetime | None = None, *, output_id: str = "") -> dict[str, Any]:
     """The manifest of a report of ``content`` that will be at ``out_dir``, without its
     ``outputs`` (:func:`record_outputs` adds them once the files are written).
 
@@ -204,7 +216,7 @@ def make_manifest(content, out_dir: Path, created: dt.datetime | None = None, *,
 
     case = content.case
     root = Path(os.path.realpath(case.root))
-    created = created or dt.datetime.now(dt.timezone.utc)
+    created = created or dt.datetime.now(dt.UTC)
     settings = case.settings
     return {
         "format": FORMAT,
@@ -212,18 +224,34 @@ def make_manifest(content, out_dir: Path, created: dt.datetime | None = None, *,
         "output_id": output_id,
         "created": created.isoformat(timespec="seconds"),
         "environment": _environment(),
-        "case": {"path": root.name, "form": "folder" if root.is_dir() else "workbook",
-                 "relative_to_report": _relative_location(root, Path(os.path.realpath(out_dir))),
-                 "project": settings.project.name},
+        "case": {
+            "path": root.name,
+            "form": "folder" if root.is_dir() else "workbook",
+            "relative_to_report": _relative_location(root, Path(os.path.realpath(out_dir))),
+            "project": settings.project.name,
+        },
         "options": {"methods": list(content.methods), "title": content.title},
-        "settings": _plain({part: dataclasses.asdict(getattr(settings, part))
-                            for part in ("project", "schedule", "commercial", "analysis")}
-                           | {"extra": dict(settings.extra)}),
+        "settings": _plain(
+            {
+                part: dataclasses.asdict(getattr(settings, part))
+                for part in ("project", "schedule", "commercial", "analysis")
+            }
+            | {"extra": dict(settings.extra)}
+        ),
         "inputs": input_files(case),
         "outputs": [],
-        "tables": [{"key": t.key, "title": t.title, "section": t.section, "rows": int(len(t.frame)),
-                    "columns": t.columns, "file": f"tables/{t.key}.csv", "sha256": t.fingerprint()}
-                   for t in content.tables],
+        "tables": [
+            {
+                "key": t.key,
+                "title": t.title,
+                "section": t.section,
+                "rows": int(len(t.frame)),
+                "columns": t.columns,
+                "file": f"tables/{t.key}.csv",
+                "sha256": t.fingerprint(),
+            }
+            for t in content.tables
+        ],
     }
 
 
@@ -259,8 +287,10 @@ def record_outputs(manifest: dict, folder: Path) -> dict:
         ``manifest`` with ``outputs``: every file now in ``folder`` (all but the manifest,
         the marker and operating-system litter), with its size and SHA-256.
     """
-    outputs = [{"path": name, "bytes": path.stat().st_size, "sha256": _sha256(path)}
-               for name, path in _report_files(folder).items()]
+    outputs = [
+        {"path": name, "bytes": path.stat().st_size, "sha256": _sha256(path)}
+        for name, path in _report_files(folder).items()
+    ]
     return manifest | {"outputs": outputs}
 
 
@@ -320,6 +350,7 @@ class _Schema:
         def check(value, where):
             if not isinstance(value, str) or not regex.match(value):
                 self.fail(where, f"is not {what}")
+
         return check
 
     def items(self, check: Callable, unique: str | None = None) -> Callable:
@@ -334,6 +365,7 @@ class _Schema:
                 names = [item[unique] for item in value]
                 if len(set(names)) != len(names):
                     self.fail(where, f"names one {unique} twice")
+
         return run
 
     def relative_path(self, value, where: str) -> None:
@@ -375,33 +407,64 @@ class _Schema:
         found = manifest.get("format")
         if found != FORMAT:
             if isinstance(found, str) and found.startswith("delay-report-manifest/"):
-                raise VerifyError(self.shown, f"the manifest is of format '{found[:40]}', made by another version "
-                                              f"of the toolkit (this one reads '{FORMAT}')",
-                                  "make the report again with this version")
+                raise VerifyError(
+                    self.shown,
+                    f"the manifest is of format '{found[:40]}', made by another version "
+                    f"of the toolkit (this one reads '{FORMAT}')",
+                    "make the report again with this version",
+                )
             self.fail("", "is not a report manifest of this toolkit (no 'format' of its own)")
         case = manifest.get("case")
         name = case.get("path") if isinstance(case, dict) else None
         entry = {"path": self.relative_path, "bytes": self.count, "sha256": self.pattern(_HEX64, "a SHA-256")}
-        self.object(manifest, "", {
-            "format": self.text,
-            "tool": lambda v, w: self.object(v, w, {"name": self.text, "version": self.text}),
-            "output_id": self.pattern(_HEX32, "the id of the report's marker (32 hex digits)"),
-            "created": self.text,
-            "environment": lambda v, w: [self.text(x, f"{w}.{k}") for k, x in self._mapping(v, w).items()],
-            "case": lambda v, w: self.object(v, w, {
-                "path": self.name, "form": self.pattern(re.compile(r"(folder|workbook)\Z"), "folder or workbook"),
-                "relative_to_report": lambda x, y: self.location(x, y, str(name)), "project": self.text}),
-            "options": lambda v, w: self.object(v, w, {
-                "methods": self.items(self.pattern(re.compile("(" + "|".join(_METHODS) + r")\Z"), "a method")),
-                "title": self.optional_text}),
-            "settings": self.anything,
-            "inputs": self.items(lambda v, w: self.object(v, w, entry), unique="path"),
-            "outputs": self.items(lambda v, w: self.object(v, w, entry), unique="path"),
-            "tables": self.items(lambda v, w: self.object(v, w, {
-                "key": self.pattern(_KEY, "a table key"), "title": self.text, "section": self.text,
-                "rows": self.count, "columns": self.items(self.text), "file": self.relative_path,
-                "sha256": self.pattern(_HEX64, "a SHA-256")}), unique="key"),
-        })
+        self.object(
+            manifest,
+            "",
+            {
+                "format": self.text,
+                "tool": lambda v, w: self.object(v, w, {"name": self.text, "version": self.text}),
+                "output_id": self.pattern(_HEX32, "the id of the report's marker (32 hex digits)"),
+                "created": self.text,
+                "environment": lambda v, w: [self.text(x, f"{w}.{k}") for k, x in self._mapping(v, w).items()],
+                "case": lambda v, w: self.object(
+                    v,
+                    w,
+                    {
+                        "path": self.name,
+                        "form": self.pattern(re.compile(r"(folder|workbook)\Z"), "folder or workbook"),
+                        "relative_to_report": lambda x, y: self.location(x, y, str(name)),
+                        "project": self.text,
+                    },
+                ),
+                "options": lambda v, w: self.object(
+                    v,
+                    w,
+                    {
+                        "methods": self.items(self.pattern(re.compile("(" + "|".join(_METHODS) + r")\Z"), "a method")),
+                        "title": self.optional_text,
+                    },
+                ),
+                "settings": self.anything,
+                "inputs": self.items(lambda v, w: self.object(v, w, entry), unique="path"),
+                "outputs": self.items(lambda v, w: self.object(v, w, entry), unique="path"),
+                "tables": self.items(
+                    lambda v, w: self.object(
+                        v,
+                        w,
+                        {
+                            "key": self.pattern(_KEY, "a table key"),
+                            "title": self.text,
+                            "section": self.text,
+                            "rows": self.count,
+                            "columns": self.items(self.text),
+                            "file": self.relative_path,
+                            "sha256": self.pattern(_HEX64, "a SHA-256"),
+                        },
+                    ),
+                    unique="key",
+                ),
+            },
+        )
         self._agree(manifest)
 
     def _mapping(self, value, where: str) -> dict:
@@ -419,8 +482,9 @@ class _Schema:
             written = outputs.get(table["file"])
             if written is None or written["sha256"] != table["sha256"]:
                 self.fail(where, "has a fingerprint that is not the hash recorded for its file among the outputs")
-        if manifest["case"]["form"] == "workbook" and any(i["path"] != manifest["case"]["path"]
-                                                          for i in manifest["inputs"]):
+        if manifest["case"]["form"] == "workbook" and any(
+            i["path"] != manifest["case"]["path"] for i in manifest["inputs"]
+        ):
             self.fail("inputs", "names a file other than the workbook of a workbook case")
 
 
@@ -444,13 +508,18 @@ def read_manifest(folder: str | Path) -> dict:
     path = Path(folder) / MANIFEST
     shown = path.as_posix()
     if path.is_symlink() or not path.is_file():
-        raise VerifyError(shown, "there is no manifest.json in this folder" if not path.is_symlink()
-                          else "the manifest is a link, not the file the report wrote",
-                          "give the folder that delay report wrote")
+        raise VerifyError(
+            shown,
+            "there is no manifest.json in this folder"
+            if not path.is_symlink()
+            else "the manifest is a link, not the file the report wrote",
+            "give the folder that delay report wrote",
+        )
     size = path.stat().st_size
     if size > MAX_BYTES:
-        raise VerifyError(shown, f"the manifest is {size:,} bytes; a report's manifest is at most {MAX_BYTES:,}",
-                          _REMAKE)
+        raise VerifyError(
+            shown, f"the manifest is {size:,} bytes; a report's manifest is at most {MAX_BYTES:,}", _REMAKE
+        )
     with open(path, "rb") as handle:
         data = handle.read(MAX_BYTES + 1)
     try:
@@ -461,13 +530,17 @@ def read_manifest(folder: str | Path) -> dict:
         raise VerifyError(shown, f"the manifest is more than {MAX_BYTES:,} bytes", _REMAKE)
     depth = _depth(text)
     if depth > MAX_DEPTH:
-        raise VerifyError(shown, f"the manifest nests {depth:,} levels deep; a report's manifest nests at most "
-                                 f"{MAX_DEPTH}", _REMAKE)
+        raise VerifyError(
+            shown, f"the manifest nests {depth:,} levels deep; a report's manifest nests at most {MAX_DEPTH}", _REMAKE
+        )
     try:
         manifest = json.loads(text, object_pairs_hook=_no_repeats)
     except json.JSONDecodeError as error:
-        raise VerifyError(shown, f"the manifest is not readable as JSON ({error.msg} at line {error.lineno}, "
-                                 f"column {error.colno})", _REMAKE) from None
+        raise VerifyError(
+            shown,
+            f"the manifest is not readable as JSON ({error.msg} at line {error.lineno}, column {error.colno})",
+            _REMAKE,
+        ) from None
     except (ValueError, RecursionError) as error:
         raise VerifyError(shown, f"the manifest is not readable as JSON ({str(error)[:120]})", _REMAKE) from None
     _Schema(shown).check(manifest)
@@ -511,12 +584,15 @@ class Verification:
         out = list(self.notes)
         if self.confirmed:
             files = "input file" if self.inputs == 1 else "input files"
-            out.append(f"Confirmed: {self.inputs} {files} unchanged, the {self.outputs} files of the report as "
-                       f"written, and all {self.tables} tables reproduced from the case at {self.case}.")
+            out.append(
+                f"Confirmed: {self.inputs} {files} unchanged, the {self.outputs} files of the report as "
+                f"written, and all {self.tables} tables reproduced from the case at {self.case}."
+            )
         else:
             out += [str(d) for d in self.differences]
-            out.append(f"{len(self.differences)} difference(s) found: the report in {self.folder} does not match "
-                       "its inputs.")
+            out.append(
+                f"{len(self.differences)} difference(s) found: the report in {self.folder} does not match its inputs."
+            )
         return out
 
 
@@ -539,8 +615,11 @@ def _check_outputs(folder: Path, manifest: dict) -> list[Difference]:
         elif path.is_symlink() or not path.is_file():
             differences.append(Difference(kind, name, "it is no longer a plain file"))
         elif path.stat().st_size != item["bytes"] or _sha256(path) != item["sha256"]:
-            detail = ("it no longer matches the fingerprint made with the report" if name in tables
-                      else "its content is not what the report wrote")
+            detail = (
+                "it no longer matches the fingerprint made with the report"
+                if name in tables
+                else "its content is not what the report wrote"
+            )
             differences.append(Difference(kind, name, detail))
     for name in sorted(set(present) - set(recorded)):
         differences.append(Difference("output added", name, "the report did not write it"))
@@ -554,12 +633,18 @@ def _locate_case(folder: Path, manifest: dict, given: str | Path | None) -> Path
     else:
         location = case["relative_to_report"]
         if location is None:
-            raise VerifyError(folder / MANIFEST, f"the report does not record where the case '{case['path']}' was "
-                                                 "(it shared no folder with the report)", "give its folder with --case")
+            raise VerifyError(
+                folder / MANIFEST,
+                f"the report does not record where the case '{case['path']}' was (it shared no folder with the report)",
+                "give its folder with --case",
+            )
         root, shown = Path(os.path.realpath(folder)) / location, location
         if not os.path.lexists(root):
-            raise VerifyError(folder / MANIFEST, f"the case '{case['path']}' is not at {location} beside the report",
-                              "give its folder with --case")
+            raise VerifyError(
+                folder / MANIFEST,
+                f"the case '{case['path']}' is not at {location} beside the report",
+                "give its folder with --case",
+            )
     if not ((root.is_dir() and (root / "case.toml").is_file()) or root.is_file()):
         raise VerifyError(shown, "there is no case here (no case.toml)", "give the case folder with --case")
     return root
@@ -579,8 +664,9 @@ def _check_inputs(root: Path, manifest: dict, case) -> list[Difference]:
         else:
             file = base / name
             if not Path(os.path.realpath(file)).is_relative_to(inside):
-                differences.append(Difference("input outside the case", name, "a link out of the case folder; "
-                                                                              "not read"))
+                differences.append(
+                    Difference("input outside the case", name, "a link out of the case folder; not read")
+                )
                 continue
         if file is None or not file.is_file():
             differences.append(Difference("input missing", name))
@@ -646,8 +732,7 @@ def verify(folder: str | Path, case_path: str | Path | None = None) -> Verificat
     if version != __version__:
         notes.append(f"note: the report was made by version {version[:40]}; this is version {__version__}")
     differences = _check_outputs(folder, manifest)
-    counts = {"tables": len(manifest["tables"]), "inputs": len(manifest["inputs"]),
-              "outputs": len(manifest["outputs"])}
+    counts = {"tables": len(manifest["tables"]), "inputs": len(manifest["inputs"]), "outputs": len(manifest["outputs"])}
     try:
         case = load_case(root)
     except CaseError as error:

@@ -43,8 +43,13 @@ def environment():
     """
     from jinja2 import Environment, PackageLoader, StrictUndefined
 
-    return Environment(loader=PackageLoader("reports", "templates"), autoescape=True,
-                       undefined=StrictUndefined, trim_blocks=True, lstrip_blocks=True)
+    return Environment(
+        loader=PackageLoader("reports", "templates"),
+        autoescape=True,
+        undefined=StrictUndefined,
+        trim_blocks=True,
+        lstrip_blocks=True,
+    )
 
 
 def _numeric(series: pd.Series) -> bool:
@@ -53,19 +58,21 @@ def _numeric(series: pd.Series) -> bool:
     if pd.api.types.is_numeric_dtype(series):
         return True
     values = [v for v in series.tolist()[:200] if v is not None and not (isinstance(v, float) and np.isnan(v))]
-    return bool(values) and all(isinstance(v, (int, float, np.integer, np.floating)) and not isinstance(v, bool)
-                                for v in values)
+    return bool(values) and all(
+        isinstance(v, (int, float, np.integer, np.floating)) and not isinstance(v, bool) for v in values
+    )
 
 
 def _rows(table: ReportTable) -> tuple[list[list[str]], list[str]]:
     """The page's rows of ``table`` (at most ``shown_rows``) and a class for each: ``total``
     for the total rows of a :class:`~reports.tables.BuildUp`, after each group."""
     frame = table.frame
-    shown = frame.iloc[:table.shown_rows]
+    shown = frame.iloc[: table.shown_rows]
     money = [c in MONEY_COLUMNS for c in shown.columns]
     columns = [shown[c].tolist() for c in shown.columns]
-    rows = [[display_value(v, money=m) for v, m in zip(row, money)] for row in zip(*columns)] if len(shown.columns) \
-        else []
+    rows = (
+        [[display_value(v, money=m) for v, m in zip(row, money)] for row in zip(*columns)] if len(shown.columns) else []
+    )
     classes = [""] * len(rows)
     build_up = table.build_up
     if build_up is None or not build_up.totals or len(shown) < len(frame):
@@ -101,12 +108,25 @@ def table_view(table: ReportTable, style: str = "") -> dict[str, Any]:
     groups = [list(range(len(headings)))]
     if style == "matrix" and len(headings) > MATRIX_COLUMNS + 1:
         rest = list(range(1, len(headings)))
-        groups = [[0] + rest[k:k + MATRIX_COLUMNS] for k in range(0, len(rest), MATRIX_COLUMNS)]
-    parts = [{"headings": [headings[k] for k in group], "numeric": [numeric[k] for k in group],
-              "rows": [[row[k] for k in group] for row in rows], "classes": classes} for group in groups]
+        groups = [[0] + rest[k : k + MATRIX_COLUMNS] for k in range(0, len(rest), MATRIX_COLUMNS)]
+    parts = [
+        {
+            "headings": [headings[k] for k in group],
+            "numeric": [numeric[k] for k in group],
+            "rows": [[row[k] for k in group] for row in rows],
+            "classes": classes,
+        }
+        for group in groups
+    ]
     return {
-        "kind": "table", "key": table.key, "title": table.title, "note": table.note, "style": style,
-        "parts": parts, "total": len(frame), "shown": min(len(frame), table.shown_rows),
+        "kind": "table",
+        "key": table.key,
+        "title": table.title,
+        "note": table.note,
+        "style": style,
+        "parts": parts,
+        "total": len(frame),
+        "shown": min(len(frame), table.shown_rows),
         "collapsed": len(frame) > COLLAPSE_ROWS and style not in ("matrix", "folded", "headline"),
     }
 
@@ -119,8 +139,12 @@ def _block_view(block) -> dict[str, Any] | Any:
     if isinstance(block, TableBlock):
         return table_view(block.table, block.style)
     if isinstance(block, FigureBlock):
-        return {"kind": "figure", "key": block.key, "caption": block.caption,
-                "html": Markup(figure_html(block.figure, _figure_id(block.key)))}
+        return {
+            "kind": "figure",
+            "key": block.key,
+            "caption": block.caption,
+            "html": Markup(figure_html(block.figure, _figure_id(block.key))),
+        }
     if isinstance(block, TimelineBlock):
         return {"kind": "timeline", "html": Markup(timeline_html(block.timeline, element_id="element-timeline"))}
     if isinstance(block, Group):
@@ -138,22 +162,52 @@ def _manifest_section(section: Section, manifest: dict) -> dict[str, Any]:
         ("Case", manifest.get("case", {}).get("path", "")),
         ("Methods", ", ".join(manifest.get("options", {}).get("methods", [])) or "(none)"),
         ("Environment", ", ".join(f"{k} {v}" for k, v in manifest.get("environment", {}).items())),
-        ("To check this report", "run  delay verify <this folder>: it re-runs the analysis from the inputs named "
-                                 "here and confirms every table, or lists what differs."),
+        (
+            "To check this report",
+            "run  delay verify <this folder>: it re-runs the analysis from the inputs named "
+            "here and confirms every table, or lists what differs.",
+        ),
     )
     inputs = [[i["path"], f"{i['bytes']:,}", i["sha256"]] for i in manifest.get("inputs", [])]
     tables = [[t["key"], t["title"], str(t["rows"]), t["sha256"]] for t in manifest.get("tables", [])]
     blocks = [
         {"kind": "facts", "rows": facts},
-        {"kind": "table", "key": "manifest_inputs", "title": "Input files and their SHA-256", "note": "",
-         "style": "hashes", "parts": [{"headings": ["file", "bytes", "SHA-256"], "numeric": [False, True, False],
-                                       "rows": inputs, "classes": [""] * len(inputs)}],
-         "total": len(inputs), "shown": len(inputs), "collapsed": len(inputs) > COLLAPSE_ROWS},
-        {"kind": "table", "key": "manifest_tables", "title": "Fingerprint of each table (SHA-256 of its canonical CSV)",
-         "note": "The canonical CSV of each table is tables/<table>.csv beside this page.", "style": "hashes",
-         "parts": [{"headings": ["table", "title", "rows", "SHA-256"], "numeric": [False, False, True, False],
-                    "rows": tables, "classes": [""] * len(tables)}],
-         "total": len(tables), "shown": len(tables), "collapsed": len(tables) > COLLAPSE_ROWS},
+        {
+            "kind": "table",
+            "key": "manifest_inputs",
+            "title": "Input files and their SHA-256",
+            "note": "",
+            "style": "hashes",
+            "parts": [
+                {
+                    "headings": ["file", "bytes", "SHA-256"],
+                    "numeric": [False, True, False],
+                    "rows": inputs,
+                    "classes": [""] * len(inputs),
+                }
+            ],
+            "total": len(inputs),
+            "shown": len(inputs),
+            "collapsed": len(inputs) > COLLAPSE_ROWS,
+        },
+        {
+            "kind": "table",
+            "key": "manifest_tables",
+            "title": "Fingerprint of each table (SHA-256 of its canonical CSV)",
+            "note": "The canonical CSV of each table is tables/<table>.csv beside this page.",
+            "style": "hashes",
+            "parts": [
+                {
+                    "headings": ["table", "title", "rows", "SHA-256"],
+                    "numeric": [False, False, True, False],
+                    "rows": tables,
+                    "classes": [""] * len(tables),
+                }
+            ],
+            "total": len(tables),
+            "shown": len(tables),
+            "collapsed": len(tables) > COLLAPSE_ROWS,
+        },
     ]
     return {"key": section.key, "title": section.title, "available": True, "blocks": blocks}
 
@@ -178,16 +232,23 @@ def render_html(content: ReportContent, manifest: dict) -> str:
         if section.key == "manifest":
             sections.append(_manifest_section(section, manifest))
             continue
-        sections.append({"key": section.key, "title": section.title, "available": section.available,
-                         "blocks": [_block_view(b) for b in section.blocks]})
+        sections.append(
+            {
+                "key": section.key,
+                "title": section.title,
+                "available": section.available,
+                "blocks": [_block_view(b) for b in section.blocks],
+            }
+        )
     template = environment().get_template("report.html.j2")
     plotly_js = get_plotlyjs()
     if "</script" in plotly_js.lower():  # never expected; would end the script element early
         raise ValueError("plotly.js holds '</script': it cannot be inlined safely")
     return template.render(
-        title=content.title, project=content.case.settings.project.name, sections=sections,
-        created=manifest.get("created", ""), version=manifest.get("tool", {}).get("version", ""),
+        title=content.title,
+        project=content.case.settings.project.name,
+        sections=sections,
+        created=manifest.get("created", ""),
+        version=manifest.get("tool", {}).get("version", ""),
         plotly_js=Markup(plotly_js),
     )
-
-

@@ -70,8 +70,9 @@ PLANNED_BAR = MappingProxyType({"fill": "#E3F1FA", "line": "#0072B2", "pattern":
 BUILT_BAR = MappingProxyType({"fill": "#0072B2", "line": "#0072B2", "pattern": ""})
 
 #: The colour of each party's days in the chart of each window's delay by party.
-PARTY_COLOURS = MappingProxyType({"employer": "#0072B2", "contractor": "#D55E00", "neutral": "#BBBBBB",
-                                  "concurrent": "#5A5A5A"})
+PARTY_COLOURS = MappingProxyType(
+    {"employer": "#0072B2", "contractor": "#D55E00", "neutral": "#BBBBBB", "concurrent": "#5A5A5A"}
+)
 
 #: Outline of the elements of activities delayed by an event.
 HIGHLIGHT_COLOUR = "#000000"

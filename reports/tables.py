@@ -34,10 +34,10 @@ import hashlib
 import io
 import math
 import re
+from collections.abc import Iterable, Mapping, Sequence
 from dataclasses import dataclass, field
 from functools import cached_property
 from pathlib import Path
-from typing import Iterable, Mapping, Sequence
 
 import numpy as np
 import pandas as pd
@@ -63,8 +63,17 @@ __all__ = [
 EXCEL_CELL_LIMIT = 32_767
 
 #: Columns that hold sums of money: the page shows them with two decimals.
-MONEY_COLUMNS = frozenset({"prolongation_cost", "ld_exposure", "cost", "cost_per_day", "damages_before_cap", "cap",
-                           "liquidated_damages_per_day"})
+MONEY_COLUMNS = frozenset(
+    {
+        "prolongation_cost",
+        "ld_exposure",
+        "cost",
+        "cost_per_day",
+        "damages_before_cap",
+        "cap",
+        "liquidated_damages_per_day",
+    }
+)
 
 #: Column headings in plain words, for the page and the workbook (the CSV keeps the names).
 LABELS: dict[str, str] = {
@@ -361,7 +370,7 @@ class ReportTable:
     labels: Mapping[str, str] = field(default_factory=dict)
     note: str = ""
     shown_rows: int = 1000
-    build_up: "BuildUp | None" = None
+    build_up: BuildUp | None = None
 
     def __post_init__(self):
         if not (0 < len(self.key) <= 31) or not self.key.replace("_", "").isalnum():
@@ -521,7 +530,7 @@ def _excel_value(value):
     text = str(value)
     if len(text) > EXCEL_CELL_LIMIT:
         cut = " ... (cut at the workbook's cell limit: see the CSV file)"
-        text = text[:EXCEL_CELL_LIMIT - len(cut)] + cut
+        text = text[: EXCEL_CELL_LIMIT - len(cut)] + cut
     return text
 
 
@@ -591,12 +600,14 @@ class _Sheets:
         extra = table.build_up.recomputed(table.columns) if table.build_up is not None else []
         headings = headings + [f"{label_of(c, table.labels)} (formula)" for c in extra]
         widths = [_width(values, h) for values, h in zip(columns, headings)] + [
-            _width(columns[table.columns.index(c)], h) for c, h in zip(extra, headings[len(columns):])]
+            _width(columns[table.columns.index(c)], h) for c, h in zip(extra, headings[len(columns) :])
+        ]
         for number, width in enumerate(widths, start=1):
             sheet.column_dimensions[get_column_letter(number)].width = width
         sheet.freeze_panes = "A2"
-        rows = len(table.frame) + (len(table.build_up.groups(table.frame)) if table.build_up and
-                                   table.build_up.totals else 0)
+        rows = len(table.frame) + (
+            len(table.build_up.groups(table.frame)) if table.build_up and table.build_up.totals else 0
+        )
         if headings:
             sheet.auto_filter.ref = f"A1:{get_column_letter(len(headings))}{max(1, rows + 1)}"
         sheet.append([self.cell(sheet, h, font=self.bold, alignment=self.wrapped) for h in headings])
@@ -612,9 +623,11 @@ class _Sheets:
             sheet.append(row)
 
 
-_FORMULA_NOTE = ("The columns marked (formula) recompute the figures beside them and their totals: openpyxl, "
-                 "which writes this workbook, stores a formula without its result, so the values are written "
-                 "beside the formulas.")
+_FORMULA_NOTE = (
+    "The columns marked (formula) recompute the figures beside them and their totals: openpyxl, "
+    "which writes this workbook, stores a formula without its result, so the values are written "
+    "beside the formulas."
+)
 
 
 def _build_up_rows(sheets: _Sheets, sheet, table: ReportTable, columns: list[list], extra: list[str]):
@@ -638,16 +651,21 @@ def _build_up_rows(sheets: _Sheets, sheet, table: ReportTable, columns: list[lis
     for first, stop in build_up.groups(frame):
         for k in range(first, stop):
             number += 1
-            row = [sheets.cell(sheet, v) if isinstance(v, str) and v.startswith("=") else v
-                   for v in (values[k] for values in columns)]
+            row = [
+                sheets.cell(sheet, v) if isinstance(v, str) and v.startswith("=") else v
+                for v in (values[k] for values in columns)
+            ]
             for column in extra:
                 if column in build_up.products:
                     formula = "=" + "*".join(ref(p, number) for p in build_up.products[column])
                 elif column in build_up.capped:
                     figure, cap = build_up.capped[column]
                     limit = frame[cap].iloc[k]
-                    formula = (f"=MIN({ref(figure, number)},{value_letter[cap]}{number})"
-                               if not _missing(limit) and float(limit) > 0 else f"={ref(figure, number)}")
+                    formula = (
+                        f"=MIN({ref(figure, number)},{value_letter[cap]}{number})"
+                        if not _missing(limit) and float(limit) > 0
+                        else f"={ref(figure, number)}"
+                    )
                 else:
                     row.append(None)
                     continue
@@ -669,8 +687,7 @@ def _build_up_rows(sheets: _Sheets, sheet, table: ReportTable, columns: list[lis
         yield row
 
 
-def write_workbook(tables: Sequence[ReportTable], path: Path, *, title: str = "",
-                   caution: str = "") -> Path:
+def write_workbook(tables: Sequence[ReportTable], path: Path, *, title: str = "", caution: str = "") -> Path:
     """Write every table as a sheet of one xlsx workbook at ``path``.
 
     A first sheet ``contents`` lists the sheets with their titles and sections. Each table's

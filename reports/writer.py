@@ -19,8 +19,8 @@ report, and a failed or interrupted run leaves whatever was there before.
 from __future__ import annotations
 
 import json
+from collections.abc import Callable, Sequence
 from pathlib import Path
-from typing import Callable, Sequence
 
 from delay.model import Case
 from delay.output import check_folder_target, finish_marker, mark_folder, output_folder
@@ -30,7 +30,16 @@ from .manifest import MANIFEST, make_manifest, record_outputs
 from .page import render_html
 from .tables import write_csv_files, write_workbook
 
-__all__ = ["build", "demo_report", "demo_title", "write_report", "content_of", "REPORT_FILE", "WORKBOOK_FILE", "TABLES_FOLDER"]
+__all__ = [
+    "build",
+    "demo_report",
+    "demo_title",
+    "write_report",
+    "content_of",
+    "REPORT_FILE",
+    "WORKBOOK_FILE",
+    "TABLES_FOLDER",
+]
 
 REPORT_FILE = "report.html"
 WORKBOOK_FILE = "tables.xlsx"
@@ -78,8 +87,14 @@ def write_report(content: ReportContent, folder: Path, location: Path) -> Path:
     return folder
 
 
-def build(case: Case | str | Path, out_dir: str | Path, methods: str | Sequence[str] | None = None,
-          title: str | None = None, *, echo: Callable[[str], None] | None = None) -> Path:
+def build(
+    case: Case | str | Path,
+    out_dir: str | Path,
+    methods: str | Sequence[str] | None = None,
+    title: str | None = None,
+    *,
+    echo: Callable[[str], None] | None = None,
+) -> Path:
     """Write the report of ``case`` into ``out_dir`` (replaced whole).
 
     Parameters
@@ -123,8 +138,7 @@ def build(case: Case | str | Path, out_dir: str | Path, methods: str | Sequence[
     return out
 
 
-def demo_report(case: Case | str | Path, out_dir: str | Path, *,
-                echo: Callable[[str], None] | None = None) -> Path:
+def demo_report(case: Case | str | Path, out_dir: str | Path, *, echo: Callable[[str], None] | None = None) -> Path:
     """The full report of the demo case (every method the case supports) into ``out_dir``.
 
     This is what ``delay demo`` writes beside its other outputs.

@@ -9,28 +9,32 @@ from __future__ import annotations
 
 import base64
 import contextlib
+import importlib.util
 import os
 import shutil
+from collections.abc import Iterator, Sequence
 from pathlib import Path
-from typing import Iterator, Sequence
 
 import pytest
 
 CHROMIUM = os.environ.get("CHROMIUM", "/usr/bin/chromium")
 ARGUMENTS = [
-    "--no-sandbox", "--disable-gpu", "--disable-background-networking",
-    "--disable-component-update", "--disable-sync", "--no-first-run",
+    "--no-sandbox",
+    "--disable-gpu",
+    "--disable-background-networking",
+    "--disable-component-update",
+    "--disable-sync",
+    "--no-first-run",
     # WebGL without a graphics card: Chromium's software renderer
-    "--use-angle=swiftshader", "--enable-unsafe-swiftshader",
+    "--use-angle=swiftshader",
+    "--enable-unsafe-swiftshader",
 ]
 
 
 def require_browser() -> None:
     """Fail on CI, skip elsewhere, when playwright or Chromium is missing."""
     reason = None
-    try:
-        import playwright.sync_api  # noqa: F401
-    except ImportError:
+    if importlib.util.find_spec("playwright") is None:
         reason = "the Python package playwright is not installed (pip install playwright)"
     if reason is None and not (Path(CHROMIUM).exists() or shutil.which(CHROMIUM)):
         reason = f"Chromium is not installed at {CHROMIUM} (apt-get install chromium)"
@@ -63,8 +67,14 @@ class Page:
         self.page.on("console", lambda m: self.errors.append(m.text) if m.type == "error" else None)
         self.page.on("pageerror", lambda e: self.errors.append(f"uncaught: {e}"))
         # offline: any request that is not for a local file is an error
-        self.page.route("**/*", lambda route: route.continue_() if route.request.url.startswith("file:")
-                        else (self.errors.append(f"network request: {route.request.url}"), route.abort()))
+        self.page.route(
+            "**/*",
+            lambda route: (
+                route.continue_()
+                if route.request.url.startswith("file:")
+                else (self.errors.append(f"network request: {route.request.url}"), route.abort())
+            ),
+        )
         self.page.goto(Path(path).resolve().as_uri())
 
     def close(self) -> None:
@@ -113,12 +123,17 @@ def _with_pixels(page, pngs: Sequence[bytes], function_js: str, argument=None):
 
 def pixel_share(page, png: bytes, test_js: str) -> float:
     """Share of the pixels of a PNG for which ``test_js`` (a JS expression in r, g, b) holds."""
-    return _with_pixels(page, [png], """([pixels], test) => {
+    return _with_pixels(
+        page,
+        [png],
+        """([pixels], test) => {
         const check = new Function("r", "g", "b", "return " + test + ";");
         let hits = 0;
         for (let k = 0; k < pixels.length; k += 4) if (check(pixels[k], pixels[k + 1], pixels[k + 2])) hits++;
         return hits / (pixels.length / 4);
-    }""", test_js)
+    }""",
+        test_js,
+    )
 
 
 #: A pixel "painted" in the timeline's 3D views: its darkest channel below 190. The white
@@ -135,7 +150,10 @@ def painted_share(page, locator) -> float:
 
 def image_difference(page, first: bytes, second: bytes) -> float:
     """Mean absolute difference of two PNGs of the same size, per channel, 0 to 255."""
-    return _with_pixels(page, [first, second], """([one, two]) => {
+    return _with_pixels(
+        page,
+        [first, second],
+        """([one, two]) => {
         if (one.length !== two.length) throw new Error("the images differ in size");
         let total = 0, count = 0;
         for (let k = 0; k < one.length; k += 4) {
@@ -143,13 +161,18 @@ def image_difference(page, first: bytes, second: bytes) -> float:
             count += 3;
         }
         return total / count;
-    }""")
+    }""",
+    )
 
 
 def grey_statistics(page, png: bytes) -> tuple[float, float]:
     """Mean and standard deviation of the lightness (0 to 255, the mean of r, g and b) of
     the pixels of a PNG."""
-    return tuple(_with_pixels(page, [png], """([pixels]) => {
+    return tuple(
+        _with_pixels(
+            page,
+            [png],
+            """([pixels]) => {
         let sum = 0, squares = 0, count = 0;
         for (let k = 0; k < pixels.length; k += 4) {
             const grey = (pixels[k] + pixels[k + 1] + pixels[k + 2]) / 3;
@@ -157,7 +180,9 @@ def grey_statistics(page, png: bytes) -> tuple[float, float]:
         }
         const mean = sum / count;
         return [mean, Math.sqrt(Math.max(0, squares / count - mean * mean))];
-    }"""))
+    }""",
+        )
+    )
 
 
 def drag(page, x: float, y: float, dx: float, dy: float, steps: int = 10) -> None:
@@ -190,14 +215,20 @@ def printed(page, width: int, *, settle: int = 500) -> Iterator[None]:
 
 def set_slider(page, frame: int) -> None:
     """Move the element timeline's slider to ``frame`` and wait until it is drawn."""
-    page.evaluate("""frame => {
+    page.evaluate(
+        """frame => {
         const slider = document.querySelector('.element-timeline [data-role="slider"]');
         slider.value = String(frame);
         slider.dispatchEvent(new Event("input", {bubbles: true}));
-    }""", frame)
+    }""",
+        frame,
+    )
     # software WebGL on a loaded machine can hold the page's thread for many seconds
-    page.wait_for_function("frame => document.querySelector('.element-timeline').dataset.frame === String(frame)",
-                           arg=frame, timeout=120_000)
+    page.wait_for_function(
+        "frame => document.querySelector('.element-timeline').dataset.frame === String(frame)",
+        arg=frame,
+        timeout=120_000,
+    )
     wait_until_drawn(page)
 
 
@@ -212,18 +243,22 @@ def set_top_level(page, *, keys: Sequence[str] = (), option: str | None = None) 
     for key in keys:
         page.keyboard.press(key)
     top = int(control.input_value())
-    page.wait_for_function("top => document.querySelector('.element-timeline').dataset.topLevel === String(top)",
-                           arg=top, timeout=120_000)
+    page.wait_for_function(
+        "top => document.querySelector('.element-timeline').dataset.topLevel === String(top)", arg=top, timeout=120_000
+    )
     wait_until_drawn(page)
     return top
 
 
 def wait_until_drawn(page) -> None:
     """Wait until the element timeline has drawn the week and levels it shows."""
-    page.wait_for_function("""() => {
+    page.wait_for_function(
+        """() => {
         const root = document.querySelector('.element-timeline');
         return root.dataset.drawn === root.dataset.frame + ":" + root.dataset.topLevel;
-    }""", timeout=120_000)
+    }""",
+        timeout=120_000,
+    )
     page.wait_for_timeout(150)  # WebGL paints on the next animation frames
 
 
@@ -233,8 +268,11 @@ def play_then_pause(page) -> None:
     set_slider(page, 0)
     page.click('.element-timeline [data-role="play"]')
     # software WebGL (SwiftShader) takes about a second to draw a week of the demo model
-    page.wait_for_function("() => +document.querySelector('.element-timeline [data-role=\"slider\"]').value >= 1",
-                           timeout=30_000, polling=100)
+    page.wait_for_function(
+        "() => +document.querySelector('.element-timeline [data-role=\"slider\"]').value >= 1",
+        timeout=30_000,
+        polling=100,
+    )
     page.click('.element-timeline [data-role="play"]')
     assert page.inner_text('.element-timeline [data-role="play"]') == "Play"
 

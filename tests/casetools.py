@@ -63,14 +63,20 @@ def rename_activities(source: Path, target: Path, prefix: str) -> Path:
     def many(value: str) -> str:
         return ";".join(one(v.strip()) for v in value.split(";")) if value else value
 
-    columns = {"activities.csv": {"id": one}, "links.csv": {"pred": one, "succ": one},
-               "asbuilt.csv": {"id": one}, "events.csv": {"activities": many, "asbuilt_activities": many},
-               "fragnet_links.csv": {"pred": one, "succ": one}, "fragnets.csv": {"id": one},
-               "attributions.csv": {"activity": one}, "sections.csv": {"completion_activity": one}}
+    columns = {
+        "activities.csv": {"id": one},
+        "links.csv": {"pred": one, "succ": one},
+        "asbuilt.csv": {"id": one},
+        "events.csv": {"activities": many, "asbuilt_activities": many},
+        "fragnet_links.csv": {"pred": one, "succ": one},
+        "fragnets.csv": {"id": one},
+        "attributions.csv": {"activity": one},
+        "sections.csv": {"completion_activity": one},
+    }
     for path in target.rglob("*.csv"):
         rules = columns.get(path.name)
         if rules:
-            _rewrite(path, lambda row: {k: (rules[k](v) if k in rules else v) for k, v in row.items()})
+            _rewrite(path, lambda row, rules=rules: {k: (rules[k](v) if k in rules else v) for k, v in row.items()})
     corrections = target / "corrections.csv"
     if corrections.exists():
         _rewrite(corrections, lambda row: {**row, "key": ">".join(one(k) for k in row["key"].split(">"))})
@@ -95,7 +101,7 @@ def add_milestone_constraints(source: Path, target: Path, offset: int) -> Path:
         with links.open(encoding="utf-8-sig", newline="") as handle:
             has_pred = {row["succ"] for row in csv.DictReader(handle)}
 
-        def constrain(row: dict) -> dict:
+        def constrain(row: dict, has_pred=has_pred) -> dict:
             milestone = row.get("kind") == "finish_milestone" or (row.get("duration") == "0" and row["id"] in has_pred)
             if milestone and not row.get("constraint"):
                 return {**row, "constraint": "latest_finish", "constraint_date": date}

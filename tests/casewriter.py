@@ -17,8 +17,9 @@ data date out of snapshot.toml. Optional files are written only when their rows 
 from __future__ import annotations
 
 import csv
+from collections.abc import Iterable, Mapping
 from pathlib import Path
-from typing import Any, Iterable, Mapping
+from typing import Any
 
 DEFAULT_CALENDARS = [
     {"calendar": "5d", "workdays": "Mon Tue Wed Thu Fri"},
@@ -113,8 +114,7 @@ def write_case(
     """
     root = Path(root)
     sections: dict[str, Mapping[str, Any]] = {
-        "project": {"name": name, "contract_start": start, "contract_completion": completion,
-                    **(project or {})},
+        "project": {"name": name, "contract_start": start, "contract_completion": completion, **(project or {})},
         "schedule": {"default_calendar": "5d", **(schedule or {})},
     }
     if commercial:
@@ -126,9 +126,7 @@ def write_case(
     write_toml(root / "case.toml", sections)
     write_csv(root / "calendars.csv", calendars or DEFAULT_CALENDARS, ["calendar", "workdays"])
     if exceptions is not None:
-        write_csv(
-            root / "calendar_exceptions.csv", exceptions, ["calendar", "date", "working", "reason"]
-        )
+        write_csv(root / "calendar_exceptions.csv", exceptions, ["calendar", "date", "working", "reason"])
     link_columns = ["pred", "succ", "type", "lag"]
     activity_columns = ["id", "name", "duration"]
     base = root / "snapshots" / "baseline"
@@ -139,10 +137,12 @@ def write_case(
         folder_path = root / "snapshots" / folder
         rows = spec.get("activities", activities)
         link_rows = spec.get("links", links)
-        facts = {"label": spec.get("label", folder), "data_date": spec.get("data_date"),
-                 "kind": spec.get("kind", "update")}
-        write_toml(folder_path / "snapshot.toml",
-                   {"": {k: v for k, v in facts.items() if v is not None}})
+        facts = {
+            "label": spec.get("label", folder),
+            "data_date": spec.get("data_date"),
+            "kind": spec.get("kind", "update"),
+        }
+        write_toml(folder_path / "snapshot.toml", {"": {k: v for k, v in facts.items() if v is not None}})
         write_csv(folder_path / "activities.csv", rows, _columns(rows, activity_columns))
         write_csv(folder_path / "links.csv", link_rows, _columns(link_rows, link_columns))
     for file_name, rows in (files or {}).items():
@@ -167,8 +167,9 @@ def _columns(rows: Iterable[Mapping[str, Any]], required: list[str]) -> list[str
     return columns
 
 
-def write_large_case(root: Path, *, activities: int = 50_000, links: int = 120_000,
-                     seed: int = 1, update: bool = False) -> Path:
+def write_large_case(
+    root: Path, *, activities: int = 50_000, links: int = 120_000, seed: int = 1, update: bool = False
+) -> Path:
     """Write a large valid case (an invented programme) for load tests and benchmarks.
 
     Activity ``i`` is ``A000i``; every link runs from a lower to a higher number (so there
@@ -180,22 +181,28 @@ def write_large_case(root: Path, *, activities: int = 50_000, links: int = 120_0
 
     rng = random.Random(seed)
     root = Path(root)
-    write_toml(root / "case.toml", {
-        "project": {"name": "Large generated case", "contract_start": "2025-01-06",
-                    "contract_completion": "2027-12-17"},
-        "schedule": {"default_calendar": "5d"},
-    })
+    write_toml(
+        root / "case.toml",
+        {
+            "project": {
+                "name": "Large generated case",
+                "contract_start": "2025-01-06",
+                "contract_completion": "2027-12-17",
+            },
+            "schedule": {"default_calendar": "5d"},
+        },
+    )
     write_csv(root / "calendars.csv", DEFAULT_CALENDARS, ["calendar", "workdays"])
     ids = [f"A{i:06d}" for i in range(activities)]
     calendars = ["", "5d", "7d"]
-    rows = [[ids[i], f"Activity {i}", rng.randint(0, 20), calendars[i % 3], f"W{i % 500}"]
-            for i in range(activities)]
+    rows = [[ids[i], f"Activity {i}", rng.randint(0, 20), calendars[i % 3], f"W{i % 500}"] for i in range(activities)]
     pairs: set[tuple[int, int]] = set()
     while len(pairs) < links:
         first = rng.randrange(activities - 1)
         pairs.add((first, min(activities - 1, first + rng.randint(1, 60))))
-    link_rows = [[ids[a], ids[b], ("FS", "FS", "FS", "SS", "FF")[(a + b) % 5], rng.randint(-2, 5)]
-                 for a, b in sorted(pairs)]
+    link_rows = [
+        [ids[a], ids[b], ("FS", "FS", "FS", "SS", "FF")[(a + b) % 5], rng.randint(-2, 5)] for a, b in sorted(pairs)
+    ]
 
     def write_snapshot(folder: str, facts: Mapping[str, Any], activity_rows, header):
         base = root / "snapshots" / folder
@@ -209,8 +216,12 @@ def write_large_case(root: Path, *, activities: int = 50_000, links: int = 120_0
             writer.writerow(["pred", "succ", "type", "lag"])
             writer.writerows(link_rows)
 
-    write_snapshot("baseline", {"label": "Baseline", "data_date": "2025-01-06", "kind": "baseline"},
-                   rows, ["id", "name", "duration", "calendar", "wbs"])
+    write_snapshot(
+        "baseline",
+        {"label": "Baseline", "data_date": "2025-01-06", "kind": "baseline"},
+        rows,
+        ["id", "name", "duration", "calendar", "wbs"],
+    )
     if update:
         finished = activities // 5
         progress = []
@@ -222,8 +233,10 @@ def write_large_case(root: Path, *, activities: int = 50_000, links: int = 120_0
             else:
                 extra = ["", "", ""]
             progress.append(row + extra)
-        write_snapshot("update_01", {"label": "Update 01", "data_date": "2025-07-07",
-                                     "kind": "update"}, progress,
-                       ["id", "name", "duration", "calendar", "wbs", "actual_start",
-                        "actual_finish", "remaining"])
+        write_snapshot(
+            "update_01",
+            {"label": "Update 01", "data_date": "2025-07-07", "kind": "update"},
+            progress,
+            ["id", "name", "duration", "calendar", "wbs", "actual_start", "actual_finish", "remaining"],
+        )
     return root

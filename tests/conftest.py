@@ -10,12 +10,12 @@ from __future__ import annotations
 
 import dataclasses
 import tempfile
+from collections.abc import Mapping
 from pathlib import Path
-from typing import Any, Mapping
+from typing import Any
 
 import pandas as pd
 import pytest
-
 from casewriter import write_case
 
 DATE_COLUMNS = ("early_start", "early_finish", "late_start", "late_finish")

@@ -31,9 +31,9 @@ import json
 
 import pandas as pd
 import pytest
+from casewriter import write_case
 from click.testing import CliRunner
 
-from casewriter import write_case
 from delay.case import load_case
 from delay.cli import cli
 from delay.errors import CaseError
@@ -91,10 +91,15 @@ def progressed(row, actual_start=None, actual_finish=None, remaining=None):
 #   F: gap 0 and no duration in both: it only carried the delay, 0.
 #   1 + 3 + 1 + 0 = 5 = completion variance; on the 7-day ledger the calendar days are the same.
 # Per month: 2025-01 1 (running total 1), 2025-02 4 (running total 5).
-BASELINE = [task("A", 3), task("B", 4), task("C", 3), task("D", 2), task("E", 3),
-            {"id": "F", "name": "Completion", "duration": 0, "kind": "finish_milestone"}]
-LINKS = [link("A", "B"), link("B", "C"), link("C", "F"), link("A", "D"), link("D", "F"),
-         link("A", "E"), link("E", "C")]
+BASELINE = [
+    task("A", 3),
+    task("B", 4),
+    task("C", 3),
+    task("D", 2),
+    task("E", 3),
+    {"id": "F", "name": "Completion", "duration": 0, "kind": "finish_milestone"},
+]
+LINKS = [link("A", "B"), link("B", "C"), link("C", "F"), link("A", "D"), link("D", "F"), link("A", "E"), link("E", "C")]
 ASBUILT = [
     {"id": "A", "actual_start": "2025-01-27", "actual_finish": "2025-01-30", "source": "daily diary"},
     {"id": "B", "actual_start": "2025-02-01", "actual_finish": "2025-02-06", "source": "daily diary"},
@@ -107,12 +112,24 @@ ASBUILT = [
 
 def as_built_case(root):
     a, b, c, d, e, f = BASELINE
-    update = [progressed(a, "2025-01-27", "2025-01-30"), progressed(b, "2025-02-01", None, 3), progressed(c),
-              progressed(d, "2025-01-31", "2025-02-01"), progressed(e), progressed(f)]
-    write_case(root, activities=BASELINE, links=LINKS, start="2025-01-27", completion="2025-02-14",
-               schedule={"default_calendar": "7d"},
-               snapshots={"U1": {"data_date": "2025-02-02", "activities": update}},
-               files={"asbuilt.csv": ASBUILT})
+    update = [
+        progressed(a, "2025-01-27", "2025-01-30"),
+        progressed(b, "2025-02-01", None, 3),
+        progressed(c),
+        progressed(d, "2025-01-31", "2025-02-01"),
+        progressed(e),
+        progressed(f),
+    ]
+    write_case(
+        root,
+        activities=BASELINE,
+        links=LINKS,
+        start="2025-01-27",
+        completion="2025-02-14",
+        schedule={"default_calendar": "7d"},
+        snapshots={"U1": {"data_date": "2025-02-02", "activities": update}},
+        files={"asbuilt.csv": ASBUILT},
+    )
     return root
 
 
@@ -144,10 +161,17 @@ def test_planned_against_actual_per_activity(result):
     problems = []
     for activity, (ps, pf, ast, af, sv, fv, pd_, ad, dv) in expected.items():
         row = table.loc[activity]
-        got = (row["planned_start"], row["planned_finish"], row["actual_start"], row["actual_finish"],
-               int(row["start_variance_days"]), int(row["finish_variance_days"]),
-               int(row["planned_duration"]), int(row["actual_duration"]),
-               int(row["duration_variance_work_days"]))
+        got = (
+            row["planned_start"],
+            row["planned_finish"],
+            row["actual_start"],
+            row["actual_finish"],
+            int(row["start_variance_days"]),
+            int(row["finish_variance_days"]),
+            int(row["planned_duration"]),
+            int(row["actual_duration"]),
+            int(row["duration_variance_work_days"]),
+        )
         want = (stamp(ps), stamp(pf), stamp(ast), stamp(af), sv, fv, pd_, ad, dv)
         if tuple(pd.Timestamp(g) if i < 4 else g for i, g in enumerate(got)) != want:
             problems.append(f"{activity}: expected {want}, got {got}")
@@ -178,8 +202,9 @@ def test_accrued_days_per_month_add_up(result):
 
 def test_case_without_as_built_record_is_a_case_error(tmp_path):
     # as-built doc, compare Raises: "CaseError: the case has no as-built record."
-    write_case(tmp_path / "plain", activities=BASELINE, links=LINKS, start="2025-01-27",
-               schedule={"default_calendar": "7d"})
+    write_case(
+        tmp_path / "plain", activities=BASELINE, links=LINKS, start="2025-01-27", schedule={"default_calendar": "7d"}
+    )
     with pytest.raises(CaseError):
         compare(load_case(tmp_path / "plain"))
 
@@ -192,17 +217,28 @@ def test_asbuilt_json(tmp_path):
     assert data["planned_completion"] == "2025-02-05"
     assert data["actual_completion"] == "2025-02-10"
     assert data["completion_variance_days"] == 5
-    path = [(r["activity"], r["driving_predecessor"], r["gap_work_days"], r["work_days"], r["delay_days"],
-             r["period"]) for r in data["critical_path"]]
-    assert path == [("A", None, None, 1, 1, "2025-01"), ("B", "A", 1, 3, 3, "2025-02"),
-                    ("C", "B", 1, 1, 1, "2025-02"), ("F", "C", 0, 0, 0, "2025-02")]
-    assert [(r["period"], r["delay_days"], r["work_days"], r["cumulative_days"]) for r in data["periods"]] == \
-        [("2025-01", 1, 1, 1), ("2025-02", 4, 4, 5)]
+    path = [
+        (r["activity"], r["driving_predecessor"], r["gap_work_days"], r["work_days"], r["delay_days"], r["period"])
+        for r in data["critical_path"]
+    ]
+    assert path == [
+        ("A", None, None, 1, 1, "2025-01"),
+        ("B", "A", 1, 3, 3, "2025-02"),
+        ("C", "B", 1, 1, 1, "2025-02"),
+        ("F", "C", 0, 0, 0, "2025-02"),
+    ]
+    assert [(r["period"], r["delay_days"], r["work_days"], r["cumulative_days"]) for r in data["periods"]] == [
+        ("2025-01", 1, 1, 1),
+        ("2025-02", 4, 4, 5),
+    ]
     activities = {r["activity"]: r for r in data["activities"]}
     assert activities["E"]["planned_finish"] == "2025-02-01"
     assert activities["E"]["actual_finish"] == "2025-02-10"
-    assert (activities["E"]["start_variance_days"], activities["E"]["finish_variance_days"],
-            activities["E"]["duration_variance_work_days"]) == (6, 9, 3)
+    assert (
+        activities["E"]["start_variance_days"],
+        activities["E"]["finish_variance_days"],
+        activities["E"]["duration_variance_work_days"],
+    ) == (6, 9, 3)
     # 7-day calendar: the work-day variances equal the calendar-day ones
     assert (activities["E"]["start_variance_work_days"], activities["E"]["finish_variance_work_days"]) == (6, 9)
 
@@ -222,9 +258,21 @@ def test_asbuilt_json(tmp_path):
 #   January, was the shutdown).
 # Variances of B: start Dec 15 (k5) -> Dec 17 (k7): 2 work days, 2 calendar days; finish Dec 19
 #   (k9) -> Jan 06 (k11): 2 work days but 18 calendar days.
-SHUTDOWN = [{"calendar": "5d", "date": f"{day}", "working": "no", "reason": "winter shutdown"}
-            for day in ("2025-12-22", "2025-12-23", "2025-12-24", "2025-12-25", "2025-12-26", "2025-12-29",
-                        "2025-12-30", "2025-12-31", "2026-01-01", "2026-01-02")]
+SHUTDOWN = [
+    {"calendar": "5d", "date": f"{day}", "working": "no", "reason": "winter shutdown"}
+    for day in (
+        "2025-12-22",
+        "2025-12-23",
+        "2025-12-24",
+        "2025-12-25",
+        "2025-12-26",
+        "2025-12-29",
+        "2025-12-30",
+        "2025-12-31",
+        "2026-01-01",
+        "2026-01-02",
+    )
+]
 
 
 def finish_milestone(activity_id="F"):
@@ -232,8 +280,14 @@ def finish_milestone(activity_id="F"):
 
 
 def built_case(root, baseline, links, asbuilt, start, files=None):
-    write_case(root, activities=baseline, links=links, start=start, completion="2026-06-30",
-               files={"asbuilt.csv": asbuilt, **(files or {})})
+    write_case(
+        root,
+        activities=baseline,
+        links=links,
+        start=start,
+        completion="2026-06-30",
+        files={"asbuilt.csv": asbuilt, **(files or {})},
+    )
     return load_case(root)
 
 
@@ -242,18 +296,27 @@ def record(activity, start, finish):
 
 
 def test_a_delay_carried_across_a_shutdown_falls_where_it_arose(tmp_path):
-    case = built_case(tmp_path / "case", [task("A", 5), task("B", 5), finish_milestone()],
-                      [link("A", "B"), link("B", "F")],
-                      [record("A", "2025-12-08", "2025-12-16"), record("B", "2025-12-17", "2026-01-06"),
-                       record("F", "2026-01-06", "2026-01-06")], "2025-12-08",
-                      files={"calendar_exceptions.csv": SHUTDOWN})
+    case = built_case(
+        tmp_path / "case",
+        [task("A", 5), task("B", 5), finish_milestone()],
+        [link("A", "B"), link("B", "F")],
+        [
+            record("A", "2025-12-08", "2025-12-16"),
+            record("B", "2025-12-17", "2026-01-06"),
+            record("F", "2026-01-06", "2026-01-06"),
+        ],
+        "2025-12-08",
+        files={"calendar_exceptions.csv": SHUTDOWN},
+    )
     result = compare(case)
     assert result.completion_variance_days == 18
     path = result.critical_path.set_index("activity")
     assert {a: int(path.loc[a, "work_days"]) for a in "ABF"} == {"A": 2, "B": 0, "F": 0}
     assert {a: int(path.loc[a, "delay_days"]) for a in "ABF"} == {"A": 18, "B": 0, "F": 0}
     assert [(r.period, int(r.delay_days), int(r.work_days)) for r in result.periods.itertuples()] == [
-        ("2025-12", 18, 2), ("2026-01", 0, 0)]
+        ("2025-12", 18, 2),
+        ("2026-01", 0, 0),
+    ]
     b = result.activities.set_index("id").loc["B"]
     assert (int(b["start_variance_work_days"]), int(b["start_variance_days"])) == (2, 2)
     assert (int(b["finish_variance_work_days"]), int(b["finish_variance_days"])) == (2, 18)
@@ -269,11 +332,18 @@ def test_a_delay_carried_across_a_shutdown_falls_where_it_arose(tmp_path):
 # Levels: P 0 (on time); R k5 - k4 = 1 (3 work days late, 2 of them its own float); F 1.
 # Contributions: P 0, R 1 (only the slip beyond its float), F 0.  Calendar: Jan 10 -> Jan 13, 3.
 def test_only_the_slip_beyond_the_float_counts(tmp_path):
-    case = built_case(tmp_path / "case", [task("P", 2), task("Q", 3), task("R", 1), finish_milestone()],
-                      [link("P", "Q"), link("Q", "F"), link("P", "R"), link("R", "F")],
-                      [record("P", "2025-01-06", "2025-01-07"), record("Q", "2025-01-08", "2025-01-10"),
-                       record("R", "2025-01-08", "2025-01-13"), record("F", "2025-01-13", "2025-01-13")],
-                      "2025-01-06")
+    case = built_case(
+        tmp_path / "case",
+        [task("P", 2), task("Q", 3), task("R", 1), finish_milestone()],
+        [link("P", "Q"), link("Q", "F"), link("P", "R"), link("R", "F")],
+        [
+            record("P", "2025-01-06", "2025-01-07"),
+            record("Q", "2025-01-08", "2025-01-10"),
+            record("R", "2025-01-08", "2025-01-13"),
+            record("F", "2025-01-13", "2025-01-13"),
+        ],
+        "2025-01-06",
+    )
     result = compare(case)
     path = result.critical_path.set_index("activity")
     assert list(result.critical_path["activity"]) == ["P", "R", "F"]
@@ -289,10 +359,17 @@ def test_only_the_slip_beyond_the_float_counts(tmp_path):
 #   shrank: a gain); B -1, kept its gap and duration: 0; F 0.  Calendar: Jan 13 (k5) back one
 #   work day to Jan 10 (k4): -3 days, in January.
 def test_a_real_gain_is_a_negative_contribution(tmp_path):
-    case = built_case(tmp_path / "case", [task("A", 3), task("B", 3), finish_milestone()],
-                      [link("A", "B"), link("B", "F")],
-                      [record("A", "2025-01-06", "2025-01-07"), record("B", "2025-01-08", "2025-01-10"),
-                       record("F", "2025-01-10", "2025-01-10")], "2025-01-06")
+    case = built_case(
+        tmp_path / "case",
+        [task("A", 3), task("B", 3), finish_milestone()],
+        [link("A", "B"), link("B", "F")],
+        [
+            record("A", "2025-01-06", "2025-01-07"),
+            record("B", "2025-01-08", "2025-01-10"),
+            record("F", "2025-01-10", "2025-01-10"),
+        ],
+        "2025-01-06",
+    )
     result = compare(case)
     assert result.completion_variance_days == -3
     path = result.critical_path.set_index("activity")
@@ -306,11 +383,18 @@ def test_a_five_day_task_over_a_weekend_is_not_late_in_work_days(tmp_path):
     # the same dates: on time in both units. B5 after P with a lag of 2 work days: planned Mon
     # Jan 13 (k5) - Fri Jan 17 (k9), built Thu Jan 16 (k8) - Wed Jan 22 (k12): 3 work days late at
     # both ends, which is 3 and 5 calendar days.
-    case = built_case(tmp_path / "case", [task("P", 3), task("A", 5), task("B", 5), finish_milestone()],
-                      [link("P", "A"), link("A", "F"), link("P", "B", lag=2), link("B", "F")],
-                      [record("P", "2025-01-06", "2025-01-08"), record("A", "2025-01-09", "2025-01-15"),
-                       record("B", "2025-01-16", "2025-01-22"), record("F", "2025-01-22", "2025-01-22")],
-                      "2025-01-06")
+    case = built_case(
+        tmp_path / "case",
+        [task("P", 3), task("A", 5), task("B", 5), finish_milestone()],
+        [link("P", "A"), link("A", "F"), link("P", "B", lag=2), link("B", "F")],
+        [
+            record("P", "2025-01-06", "2025-01-08"),
+            record("A", "2025-01-09", "2025-01-15"),
+            record("B", "2025-01-16", "2025-01-22"),
+            record("F", "2025-01-22", "2025-01-22"),
+        ],
+        "2025-01-06",
+    )
     table = compare(case).activities.set_index("id")
     a, b = table.loc["A"], table.loc["B"]
     assert (int(a["start_variance_work_days"]), int(a["finish_variance_work_days"])) == (0, 0)

@@ -21,17 +21,29 @@ import os
 from pathlib import Path
 from types import SimpleNamespace
 
-import pytest
-
 import browser as browser_support
-from browser import (Page, chromium, drag, image_difference, painted_share, pixel_share, play_then_pause,
-                     require_browser, save_screenshot, set_slider, set_top_level, state_mismatches)
+import pytest
+from browser import (
+    Page,
+    chromium,
+    drag,
+    image_difference,
+    painted_share,
+    pixel_share,
+    play_then_pause,
+    require_browser,
+    save_screenshot,
+    set_slider,
+    set_top_level,
+    state_mismatches,
+)
+from test_element_timeline import small_case
+
 from delay.case import load_case
 from delay.cpm import schedule
 from delay.errors import CaseError
 from delay.synth import synthesise
 from reports.element_timeline import element_states, standalone_html
-from test_element_timeline import small_case
 
 DEMO = Path(__file__).resolve().parents[1] / "case_demo"
 
@@ -94,9 +106,15 @@ def _small_expectations(folder: Path):
     # to 2025-02-10; at frames 1, 2, 4 (01-13, 01-20, 02-03): E1 planned 2, 2, 2 and built
     # 3, 2, 2; E2 planned 1, 1, 2 and built 3, 1, 3; E4 (unlinked) 4 throughout.
     checks = {
-        ("E1", 1): (2, 3), ("E1", 2): (2, 2), ("E1", 4): (2, 2),
-        ("E2", 1): (1, 3), ("E2", 2): (1, 1), ("E2", 4): (2, 3),
-        ("E4", 1): (4, 4), ("E4", 2): (4, 4), ("E4", 4): (4, 4),
+        ("E1", 1): (2, 3),
+        ("E1", 2): (2, 2),
+        ("E1", 4): (2, 2),
+        ("E2", 1): (1, 3),
+        ("E2", 2): (1, 1),
+        ("E2", 4): (2, 3),
+        ("E4", 1): (4, 4),
+        ("E4", 2): (4, 4),
+        ("E4", 4): (4, 4),
     }
     hover = {"E1": ("footing", {"A"}, "2025-01-06"), "E2": ("column", {"B", "C"}, "2025-01-13")}
     return case, rows, 6, checks, hover, ["E4"]
@@ -105,11 +123,11 @@ def _small_expectations(folder: Path):
 def _computed_expectations(case, rows: list[dict]):
     """Expected weeks and states worked out from the case's input dates (see module doc)."""
     base = schedule(case, "baseline").activities
-    planned_dates = {i: (s.date(), f.date()) for i, s, f in
-                     zip(base["id"], base["early_start"], base["early_finish"])}
+    planned_dates = {i: (s.date(), f.date()) for i, s, f in zip(base["id"], base["early_start"], base["early_finish"])}
     record = case.asbuilt_snapshot.activities
-    built_dates = {i: (s.date(), f.date()) for i, s, f in
-                   zip(record["id"], record["actual_start"], record["actual_finish"])}
+    built_dates = {
+        i: (s.date(), f.date()) for i, s, f in zip(record["id"], record["actual_start"], record["actual_finish"])
+    }
     wbs_of = dict(zip(record["id"], record["wbs"]))
     wbs_of.update(zip(case.baseline.activities["id"], case.baseline.activities["wbs"]))
 
@@ -127,8 +145,7 @@ def _computed_expectations(case, rows: list[dict]):
         codes[row["id"]] = {f: _expected_codes(weeks[f], planned, built) for f in frames}
     # three elements: one late at a chosen date, one in progress, one unlinked (or the last)
     late = next((i for i, c in codes.items() if any(b == 3 for _, b in c.values())), rows[0]["id"])
-    going = next((i for i, c in codes.items() if i != late and any(1 in pair for pair in c.values())),
-                 rows[1]["id"])
+    going = next((i for i, c in codes.items() if i != late and any(1 in pair for pair in c.values())), rows[1]["id"])
     unlinked = [i for i, c in codes.items() if all(pair == (4, 4) for pair in c.values())]
     third = unlinked[0] if unlinked else rows[-1]["id"]
     checks = {(ident, f): codes[ident][f] for ident in (late, going, third) for f in frames}
@@ -148,13 +165,16 @@ def _begun(case, rows: list[dict]):
     record = case.asbuilt_snapshot.activities
     wbs_of = dict(zip(record["id"], record["wbs"]))
     wbs_of.update(zip(case.baseline.activities["id"], case.baseline.activities["wbs"]))
-    starts = {"planned": dict(zip(base["id"], (d.date() for d in base["early_start"]))),
-              "built": dict(zip(record["id"], (d.date() for d in record["actual_start"])))}
+    starts = {
+        "planned": dict(zip(base["id"], (d.date() for d in base["early_start"]))),
+        "built": dict(zip(record["id"], (d.date() for d in record["actual_start"]))),
+    }
     finishes = [d.date() for d in list(base["early_finish"]) + list(record["actual_finish"])]
     begun = {}
     for row in rows:
-        found = {view: [day for a, day in dates.items() if wbs_of.get(a) == row["wbs"]]
-                 for view, dates in starts.items()}
+        found = {
+            view: [day for a, day in dates.items() if wbs_of.get(a) == row["wbs"]] for view, dates in starts.items()
+        }
         begun[row["id"]] = tuple(min(found[view]) if found[view] else None for view in ("planned", "built"))
     weeks = _mondays(min(min(d.values()) for d in starts.values()), max(finishes))
     return begun, weeks
@@ -196,9 +216,20 @@ def opened(request, browser, tmp_path_factory):
     path.write_text(standalone_html(element_states(case), "Element timeline"), encoding="utf-8")
     page = Page(browser, path)
     page.page.wait_for_selector(".element-timeline[data-ready=true]", timeout=120_000)
-    yield SimpleNamespace(name=request.param, page=page.page, errors=page.errors, folder=folder,
-                          rows=rows, drawn=_drawn_positions(rows), weeks=weeks, checks=checks,
-                          hover=hover, unlinked=unlinked, begun=begun, mondays=mondays)
+    yield SimpleNamespace(
+        name=request.param,
+        page=page.page,
+        errors=page.errors,
+        folder=folder,
+        rows=rows,
+        drawn=_drawn_positions(rows),
+        weeks=weeks,
+        checks=checks,
+        hover=hover,
+        unlinked=unlinked,
+        begun=begun,
+        mondays=mondays,
+    )
     page.close()
 
 
@@ -224,8 +255,7 @@ def test_both_views_are_drawn(opened):
 
 
 def test_one_slider_step_per_week(opened):
-    slider = opened.page.eval_on_selector('.element-timeline [data-role="slider"]',
-                                          "s => [s.min, s.max, s.step]")
+    slider = opened.page.eval_on_selector('.element-timeline [data-role="slider"]', "s => [s.min, s.max, s.step]")
     assert slider == ["0", str(opened.weeks - 1), "1"], f"expected {opened.weeks} weekly steps"
     _no_errors(opened)
 
@@ -360,8 +390,10 @@ def test_the_building_rises_from_an_empty_site(opened):
         if _webgl(page):
             shares.append(painted_share(page, plot))
     if shares:
-        print(f"\n{opened.name}: painted share of the 3D views at weeks {frames}: "
-              + ", ".join(f"{share:.1%}" for share in shares))
+        print(
+            f"\n{opened.name}: painted share of the 3D views at weeks {frames}: "
+            + ", ".join(f"{share:.1%}" for share in shares)
+        )
         # the painted share of the view grows week by week (a little give for antialiasing)
         assert all(later >= earlier - 0.002 for earlier, later in zip(shares, shares[1:])), shares
         assert shares[-1] > shares[0] + 0.01, shares
@@ -387,15 +419,18 @@ def test_the_level_filter_changes_what_is_painted(opened):
     order = sorted(lowest, key=lambda name: (lowest[name], name))
     options = page.eval_on_selector_all('.element-timeline [data-role="levels"] option', "os => os.map(o => o.value)")
     assert len(options) == len(order) and page.eval_on_selector(
-        '.element-timeline [data-role="levels"]', "s => s.value") == str(len(order) - 1)  # every level to start
+        '.element-timeline [data-role="levels"]', "s => s.value"
+    ) == str(len(order) - 1)  # every level to start
     every = painted_share(page, plot) if _webgl(page) else None
     # by keyboard: Home on the focused control chooses the lowest level
     assert set_top_level(page, keys=["Home"]) == 0
     assert _solid_triangles(page) == _expected_solid(opened, last, {order[0]})
     if every is not None:
         lowest_only = painted_share(page, plot)
-        print(f"\n{opened.name}: painted share in the last week, every level {every:.1%}, "
-              f"the lowest level only {lowest_only:.1%}")
+        print(
+            f"\n{opened.name}: painted share in the last week, every level {every:.1%}, "
+            f"the lowest level only {lowest_only:.1%}"
+        )
         assert lowest_only < every - 0.005
     # as a mouse would: the second level, then every level again
     if len(order) > 1:
@@ -413,14 +448,19 @@ def _scene_images(page) -> list[bytes]:
         const r = div.getBoundingClientRect(), size = div._fullLayout._size;
         return ["scene", "scene2"].map(name => {
             const d = div._fullLayout[name].domain;
-            return {x: r.left + window.scrollX + size.l + d.x[0] * size.w, y: r.top + window.scrollY + size.t + (1 - d.y[1]) * size.h,
+            return {x: r.left + window.scrollX + size.l + d.x[0] * size.w,
+                    y: r.top + window.scrollY + size.t + (1 - d.y[1]) * size.h,
                     width: (d.x[1] - d.x[0]) * size.w, height: (d.y[1] - d.y[0]) * size.h};
         });
     }""")
     width = int(min(b["width"] for b in boxes)) - 2
     height = int(min(b["height"] for b in boxes)) - 2
-    return [page.screenshot(full_page=True, clip={"x": round(b["x"]) + 1, "y": round(b["y"]) + 1,
-                                                  "width": width, "height": height}) for b in boxes]
+    return [
+        page.screenshot(
+            full_page=True, clip={"x": round(b["x"]) + 1, "y": round(b["y"]) + 1, "width": width, "height": height}
+        )
+        for b in boxes
+    ]
 
 
 def _cameras(page) -> list[dict]:
@@ -459,7 +499,9 @@ def test_the_cameras_stay_in_step_when_either_view_is_dragged(opened):
         left, right = _scene_images(page)
         alike = image_difference(page, left, right)
         turned = image_difference(page, before[0], left)
-        print(f"\n{opened.name}: mean pixel difference, left against right scene {alike:.2f}, "
-              f"left scene before against after the turn {turned:.2f}")
+        print(
+            f"\n{opened.name}: mean pixel difference, left against right scene {alike:.2f}, "
+            f"left scene before against after the turn {turned:.2f}"
+        )
         assert alike < turned / 4, (alike, turned)
     _no_errors(opened)

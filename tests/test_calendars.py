@@ -15,11 +15,10 @@ from __future__ import annotations
 import datetime as dt
 
 import numpy as np
-import pytest
+from casewriter import write_case
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from casewriter import write_case
 from delay.calendars import WorkCalendar, build_calendars
 
 WEEKDAY_NAMES = ("Mon", "Tue", "Wed", "Thu", "Fri", "Sat", "Sun")
@@ -70,6 +69,7 @@ def make_calendar(workdays, holidays=(), extra_workdays=()):
 # ---------------------------------------------------------------------------------------
 # strategies
 
+
 @st.composite
 def weekday_sets(draw):
     """A non-empty set of weekdays, written in a random order (the order must not matter)."""
@@ -107,9 +107,7 @@ def calendars(draw, with_extra=True):
 
 def date_arrays(min_size=1, max_size=40):
     days = st.integers(int(QUERY_FIRST), int(QUERY_LAST))
-    near = st.integers(
-        int(np.datetime64("2024-06-01").astype(int)), int(np.datetime64("2026-06-30").astype(int))
-    )
+    near = st.integers(int(np.datetime64("2024-06-01").astype(int)), int(np.datetime64("2026-06-30").astype(int)))
     return st.lists(st.one_of(days, near), min_size=min_size, max_size=max_size).map(
         lambda values: np.array(values, dtype="int64").astype("datetime64[D]")
     )
@@ -120,6 +118,7 @@ PROPERTY_SETTINGS = settings(max_examples=60, deadline=None)
 
 # ---------------------------------------------------------------------------------------
 # conversions against numpy
+
 
 @PROPERTY_SETTINGS
 @given(calendars(), date_arrays())
@@ -156,11 +155,7 @@ def test_offset_round_trip_matches_busday_offset(calendar_spec, dates, data):
     calendar = make_calendar(workdays, holidays, extra)
     reference = reference_calendar(workdays, holidays, extra)
     offsets = np.array(
-        data.draw(
-            st.lists(
-                st.integers(-MAX_OFFSET, MAX_OFFSET), min_size=dates.size, max_size=dates.size
-            )
-        ),
+        data.draw(st.lists(st.integers(-MAX_OFFSET, MAX_OFFSET), min_size=dates.size, max_size=dates.size)),
         dtype="int64",
     )
     # Reference: numpy busday_offset(d, n, roll="forward").
@@ -191,9 +186,7 @@ def test_count_matches_busday_count(calendar_spec, starts, ends):
     # Index differences count the same work days: the days skipped by rolling each date
     # forward are non-working, so [start, end) and [roll(start), roll(end)) hold the same
     # work days (consequence of the numpy definitions above).
-    np.testing.assert_array_equal(
-        calendar.start_index(ends).astype(np.int64) - calendar.start_index(starts), expected
-    )
+    np.testing.assert_array_equal(calendar.start_index(ends).astype(np.int64) - calendar.start_index(starts), expected)
 
 
 @PROPERTY_SETTINGS
@@ -214,27 +207,24 @@ def test_date_of_is_inverse_of_start_index_on_work_days(calendar_spec, data):
     calendar = make_calendar(workdays, holidays)
     # Reference: numpy busday_offset from a fixed anchor gives a run of consecutive work days.
     anchor = np.datetime64(data.draw(far_dates))
-    steps = np.array(data.draw(st.lists(st.integers(-MAX_OFFSET, MAX_OFFSET), min_size=1,
-                                        max_size=30)), dtype="int64")
-    work_days = np.busday_offset(anchor, steps, roll="forward", weekmask=workdays,
-                                 holidays=np.array(holidays, dtype="datetime64[D]"))
+    steps = np.array(data.draw(st.lists(st.integers(-MAX_OFFSET, MAX_OFFSET), min_size=1, max_size=30)), dtype="int64")
+    work_days = np.busday_offset(
+        anchor, steps, roll="forward", weekmask=workdays, holidays=np.array(holidays, dtype="datetime64[D]")
+    )
     indices = calendar.start_index(work_days)
     np.testing.assert_array_equal(calendar.date_of(indices), work_days)
     # On a work day, rolling backward and forward give the same day (numpy: both rolls of a
     # business day return it unchanged).
     np.testing.assert_array_equal(calendar.finish_index(work_days), indices)
     # Index differences are the offsets' differences (busday_offset counts work days).
-    np.testing.assert_array_equal(
-        indices.astype(np.int64) - indices[0], steps - steps[0]
-    )
+    np.testing.assert_array_equal(indices.astype(np.int64) - indices[0], steps - steps[0])
 
 
 def test_result_types_follow_the_api_contract():
     # API contract: work-day indices are int32 arrays, is_workday a bool array, date_of
     # datetime64[D]; the shape follows the input.
     calendar = make_calendar("Mon Tue Wed Thu Fri")
-    dates = np.array([["2025-01-06", "2025-01-11"], ["1960-02-29", "2090-07-04"]],
-                     dtype="datetime64[D]")
+    dates = np.array([["2025-01-06", "2025-01-11"], ["1960-02-29", "2090-07-04"]], dtype="datetime64[D]")
     assert calendar.start_index(dates).dtype == np.int32
     assert calendar.finish_index(dates).dtype == np.int32
     assert calendar.is_workday(dates).dtype == np.bool_
@@ -244,6 +234,7 @@ def test_result_types_follow_the_api_contract():
 
 # ---------------------------------------------------------------------------------------
 # fixed examples (worked by hand from a 2025 wall calendar; 2025-01-06 is a Monday)
+
 
 def test_five_day_week_with_holiday_and_extra_working_day_by_hand():
     calendar = WorkCalendar.from_weekdays(
@@ -255,21 +246,17 @@ def test_five_day_week_with_holiday_and_extra_working_day_by_hand():
     days = np.arange(np.datetime64("2025-01-13"), np.datetime64("2025-01-21"))
     # By hand: Mon 13 yes, Tue 14 yes, Wed 15 holiday, Thu 16 yes, Fri 17 yes, Sat 18 extra
     # working day, Sun 19 no, Mon 20 yes.
-    np.testing.assert_array_equal(
-        calendar.is_workday(days), [True, True, False, True, True, True, False, True]
-    )
+    np.testing.assert_array_equal(calendar.is_workday(days), [True, True, False, True, True, True, False, True])
     # By hand: work days in [Mon 13, Mon 20) = 13, 14, 16, 17, 18 = 5.
     assert int(calendar.count(days[:1], days[-1:])[0]) == 5
     # By hand: the first work day on or after Wed 15 is Thu 16; on or after Sun 19 is Mon 20.
     np.testing.assert_array_equal(
-        calendar.date_of(calendar.start_index(np.array(["2025-01-15", "2025-01-19"],
-                                                        dtype="datetime64[D]"))),
+        calendar.date_of(calendar.start_index(np.array(["2025-01-15", "2025-01-19"], dtype="datetime64[D]"))),
         np.array(["2025-01-16", "2025-01-20"], dtype="datetime64[D]"),
     )
     # By hand: the last work day on or before Wed 15 is Tue 14; on or before Sun 19 is Sat 18.
     np.testing.assert_array_equal(
-        calendar.date_of(calendar.finish_index(np.array(["2025-01-15", "2025-01-19"],
-                                                         dtype="datetime64[D]"))),
+        calendar.date_of(calendar.finish_index(np.array(["2025-01-15", "2025-01-19"], dtype="datetime64[D]"))),
         np.array(["2025-01-14", "2025-01-18"], dtype="datetime64[D]"),
     )
     # By hand: count is negative when the end comes first: [Mon 20, Mon 13) -> -5.
@@ -300,9 +287,7 @@ def test_horizon_grows_decades_either_way_without_clipping():
             np.busday_offset(dates, 0, roll="forward", busdaycal=reference),
         )
     # Work days from 1955 to 2100 counted by the calendar and by numpy busday_count.
-    np.testing.assert_array_equal(
-        calendar.count(early, late), np.busday_count(early, late, busdaycal=reference)
-    )
+    np.testing.assert_array_equal(calendar.count(early, late), np.busday_count(early, late, busdaycal=reference))
     # An index taken before growth keeps meaning the same day after growth (round trip).
     index_2025 = calendar.start_index(inside)
     calendar.start_index(np.array(["1900-01-01", "2150-01-01"], dtype="datetime64[D]"))
@@ -313,6 +298,7 @@ def test_horizon_grows_decades_either_way_without_clipping():
 
 # ---------------------------------------------------------------------------------------
 # build_calendars from a case
+
 
 def test_build_calendars_applies_exceptions_to_their_own_calendar(tmp_path):
     from delay.case import load_case  # the loader is a separate module; only this test needs it
@@ -344,9 +330,7 @@ def test_build_calendars_applies_exceptions_to_their_own_calendar(tmp_path):
     days = np.arange(np.datetime64("2024-12-01"), np.datetime64("2026-02-01"))
     for name, reference in references.items():
         calendar = calendars[name]
-        np.testing.assert_array_equal(
-            calendar.is_workday(days), np.is_busday(days, busdaycal=reference), err_msg=name
-        )
+        np.testing.assert_array_equal(calendar.is_workday(days), np.is_busday(days, busdaycal=reference), err_msg=name)
         np.testing.assert_array_equal(
             calendar.date_of(calendar.start_index(days)),
             np.busday_offset(days, 0, roll="forward", busdaycal=reference),

@@ -11,19 +11,18 @@ column) and, through the command line, exit 2 and no traceback.
 from __future__ import annotations
 
 import copy
-import datetime as dt
 import subprocess
 import sys
 import zipfile
 
 import openpyxl
 import pytest
-
 from casewriter import write_case, write_text
+from test_case_support import ACTIVITIES, FILES, UPDATE, make_case, problem_at, problems_of
+
 from delay.case import load_case, write_workbook
 from delay.cpm import prepare, schedule
 from delay.errors import CaseError
-from test_case_support import ACTIVITIES, FILES, UPDATE, make_case, problem_at, problems_of
 
 BASE = "snapshots/baseline/activities.csv"
 BASE_LINKS = "snapshots/baseline/links.csv"
@@ -59,47 +58,47 @@ def test_csv_dates_on_the_bounds_are_accepted(tmp_path, value):
 
 def test_event_ending_far_in_the_future(tmp_path):
     # A hold to 9999-12-31: refused on loading, before any method models it.
-    root = make_case(tmp_path, files=file_with("events.csv", 0, impact="hold",
-                                               finish="9999-12-31", days=""))
+    root = make_case(tmp_path, files=file_with("events.csv", 0, impact="hold", finish="9999-12-31", days=""))
     problem_at(root, "events.csv", 2, "finish", "outside 1900-01-01 to 2200-12-31")
 
 
 def test_case_toml_date_outside_the_bounds(tmp_path):
     root = make_case(tmp_path, completion="2300-01-01")
-    problem_at(root, "case.toml", None, "project.contract_completion",
-               "must be a date from 1900-01-01 to 2200-12-31")
+    problem_at(root, "case.toml", None, "project.contract_completion", "must be a date from 1900-01-01 to 2200-12-31")
 
 
 def test_data_date_outside_the_bounds(tmp_path):
     update = copy.deepcopy(UPDATE)
     update["u1"]["data_date"] = "2250-01-06"
     root = make_case(tmp_path, snapshots=update)
-    problem_at(root, "snapshots/u1/snapshot.toml", None, "data_date",
-               "outside 1900-01-01 to 2200-12-31")
+    problem_at(root, "snapshots/u1/snapshot.toml", None, "data_date", "outside 1900-01-01 to 2200-12-31")
 
 
 # ----------------------------------------------------------------- days
 
 
-@pytest.mark.parametrize("file, column, value, row, words", [
-    (BASE, "duration", 36_501, 2, "too large"),
-    (BASE_LINKS, "lag", 36_501, 2, "out of range"),
-    (BASE_LINKS, "lag", -36_501, 2, "out of range"),
-    ("events.csv", "days", 36_501, 2, "too large"),
-    ("events.csv", "days", 100_000_000, 2, "too large"),
-    ("events.csv", "claimed_days", 36_501, 2, "too large"),
-    ("extensions_granted.csv", "days", 10_000_000, 2, "too large"),
-    ("extensions_granted.csv", "days", -36_501, 2, "below -36500"),
-    ("fragnets.csv", "duration", 36_501, 2, "too large"),
-    ("fragnet_links.csv", "lag", 36_501, 2, "out of range"),
-])
+@pytest.mark.parametrize(
+    "file, column, value, row, words",
+    [
+        (BASE, "duration", 36_501, 2, "too large"),
+        (BASE_LINKS, "lag", 36_501, 2, "out of range"),
+        (BASE_LINKS, "lag", -36_501, 2, "out of range"),
+        ("events.csv", "days", 36_501, 2, "too large"),
+        ("events.csv", "days", 100_000_000, 2, "too large"),
+        ("events.csv", "claimed_days", 36_501, 2, "too large"),
+        ("extensions_granted.csv", "days", 10_000_000, 2, "too large"),
+        ("extensions_granted.csv", "days", -36_501, 2, "below -36500"),
+        ("fragnets.csv", "duration", 36_501, 2, "too large"),
+        ("fragnet_links.csv", "lag", 36_501, 2, "out of range"),
+    ],
+)
 def test_days_beyond_the_largest(tmp_path, file, column, value, row, words):
     if file == BASE:
-        root = make_case(tmp_path, activities=rows_with(ACTIVITIES, 0, duration=value),
-                         snapshots={})
+        root = make_case(tmp_path, activities=rows_with(ACTIVITIES, 0, duration=value), snapshots={})
     elif file == BASE_LINKS:
-        root = make_case(tmp_path, links=[{"pred": "A", "succ": "B", "lag": value},
-                                          {"pred": "B", "succ": "M"}], snapshots={})
+        root = make_case(
+            tmp_path, links=[{"pred": "A", "succ": "B", "lag": value}, {"pred": "B", "succ": "M"}], snapshots={}
+        )
     else:
         root = make_case(tmp_path, files=file_with(file, 0, **{column: value}))
     problem = problem_at(root, file, row, column, words)
@@ -114,8 +113,7 @@ def test_remaining_beyond_the_largest(tmp_path):
 
 
 def test_largest_days_are_accepted(tmp_path):
-    case = load_case(make_case(tmp_path, activities=rows_with(ACTIVITIES, 0, duration=36_500),
-                               snapshots={}))
+    case = load_case(make_case(tmp_path, activities=rows_with(ACTIVITIES, 0, duration=36_500), snapshots={}))
     # 36,500 work days of a Mon-Fri calendar from 2025-01-06 end in about 2164: in bounds.
     assert schedule(case).completion.year == 2164
 
@@ -134,8 +132,7 @@ def test_toml_nested_a_hundred_thousand_deep(tmp_path):
 def test_toml_dotted_key_five_thousand_deep(tmp_path):
     root = make_case(tmp_path)
     deep = ".".join(["k"] * 5_000)
-    write_text(root, "snapshots/u1/snapshot.toml",
-               f'label = "Update 01"\ndata_date = 2025-02-03\n{deep} = 1\n')
+    write_text(root, "snapshots/u1/snapshot.toml", f'label = "Update 01"\ndata_date = 2025-02-03\n{deep} = 1\n')
     problem_at(root, "snapshots/u1/snapshot.toml", None, None, "levels deep")
 
 
@@ -224,16 +221,20 @@ def test_rows_are_counted_across_pieces():
 def test_update_folder_named_asbuilt(tmp_path):
     update = {"asbuilt": copy.deepcopy(UPDATE["u1"])}
     root = make_case(tmp_path, snapshots=update)
-    problem = problem_at(root, "snapshots/asbuilt", None, None,
-                         "'asbuilt' is kept for the as-built record")
+    problem = problem_at(root, "snapshots/asbuilt", None, None, "'asbuilt' is kept for the as-built record")
     assert "asbuilt.csv" in problem.fix
 
 
 def test_update_labelled_as_built(tmp_path):
     update = copy.deepcopy(UPDATE)
     update["u1"]["label"] = "As-built"
-    problem_at(make_case(tmp_path, snapshots=update), "snapshots/u1/snapshot.toml", None,
-               "label", "kept for the as-built record")
+    problem_at(
+        make_case(tmp_path, snapshots=update),
+        "snapshots/u1/snapshot.toml",
+        None,
+        "label",
+        "kept for the as-built record",
+    )
 
 
 def test_update_folder_named_baseline_in_a_workbook(tmp_path):
@@ -264,8 +265,16 @@ def test_in_progress_without_remaining_in_a_workbook(tmp_path):
 
 
 def test_in_progress_remaining_cleared_by_a_correction(tmp_path):
-    corrections = [{"snapshot": "u1", "table": "activities", "key": "B", "column": "remaining",
-                    "value": "", "reason": "remaining not reported"}]
+    corrections = [
+        {
+            "snapshot": "u1",
+            "table": "activities",
+            "key": "B",
+            "column": "remaining",
+            "value": "",
+            "reason": "remaining not reported",
+        }
+    ]
     root = make_case(tmp_path, files={"corrections.csv": corrections})
     problem = problem_at(root, U1, 3, "remaining", "no remaining duration")
     assert "corrections.csv row 2" in problem.message
@@ -275,8 +284,7 @@ def test_in_progress_remaining_cleared_by_a_correction(tmp_path):
 
 
 def long_chain(count, duration=36_500, lag=0):
-    activities = [{"id": f"W{i:03d}", "name": f"Stage {i}", "duration": duration}
-                  for i in range(count)]
+    activities = [{"id": f"W{i:03d}", "name": f"Stage {i}", "duration": duration} for i in range(count)]
     links = [{"pred": f"W{i:03d}", "succ": f"W{i + 1:03d}", "lag": lag} for i in range(count - 1)]
     return activities, links
 
@@ -291,18 +299,17 @@ def test_chain_running_past_2200_is_one_problem(tmp_path):
     (problem,) = info.value.problems
     assert problem.file == "snapshot 'Baseline'" and problem.column == "duration"
     assert "after 2200-12-31" in problem.message
-    assert "activity 'W002' ends a chain of 3 activities holding about 109,500 work days" \
-        in problem.message
-    assert "W000 (36,500 work days), W001 (36,500 work days), W002 (36,500 work days)" \
-        in problem.message
+    assert "activity 'W002' ends a chain of 3 activities holding about 109,500 work days" in problem.message
+    assert "W000 (36,500 work days), W001 (36,500 work days), W002 (36,500 work days)" in problem.message
 
 
 def test_chain_of_three_hundred_never_overflows(tmp_path):
     # 300 x 36,500 work days would reach the year 44,000, past what a date type holds.
     activities, links = long_chain(300)
     root = write_case(tmp_path / "case", activities=activities, links=links)
-    result = subprocess.run([sys.executable, "-m", "delay.cli", "schedule", str(root)],
-                            capture_output=True, text=True, timeout=300)
+    result = subprocess.run(
+        [sys.executable, "-m", "delay.cli", "schedule", str(root)], capture_output=True, text=True, timeout=300
+    )
     assert result.returncode == 2, result.stderr
     assert "Traceback" not in result.stderr and "Overflow" not in result.stderr
     assert "activity 'W299' ends a chain of 300 activities" in result.stderr
@@ -329,19 +336,32 @@ def test_what_if_that_runs_past_2200(tmp_path):
     with pytest.raises(CaseError) as info:
         model.what_if(extend={"W000": 36_500}).run()
     # The durations named are those scheduled: as given plus what the what-if adds.
-    assert "a chain of 1 activity holding about 73,000 work days" in \
-        info.value.problems[0].message
+    assert "a chain of 1 activity holding about 73,000 work days" in info.value.problems[0].message
 
 
 def test_late_dates_before_1900(tmp_path):
     # A finish milestone that must finish by 1900-06-01 behind 36,500 work days of work:
     # its late dates would run back to the 1760s.
-    activities = [{"id": "A", "name": "Long work", "duration": 36_500},
-                  {"id": "M", "name": "Done", "duration": 0, "kind": "finish_milestone",
-                   "constraint": "latest_finish", "constraint_date": "1900-06-01"}]
-    case = load_case(write_case(tmp_path / "case", activities=activities,
-                                links=[{"pred": "A", "succ": "M"}], start="1900-01-01",
-                                completion="1900-12-31"))
+    activities = [
+        {"id": "A", "name": "Long work", "duration": 36_500},
+        {
+            "id": "M",
+            "name": "Done",
+            "duration": 0,
+            "kind": "finish_milestone",
+            "constraint": "latest_finish",
+            "constraint_date": "1900-06-01",
+        },
+    ]
+    case = load_case(
+        write_case(
+            tmp_path / "case",
+            activities=activities,
+            links=[{"pred": "A", "succ": "M"}],
+            start="1900-01-01",
+            completion="1900-12-31",
+        )
+    )
     with pytest.raises(CaseError) as info:
         schedule(case)
     assert "before 1900-01-01" in info.value.problems[0].message

@@ -23,14 +23,14 @@ from pathlib import Path
 import openpyxl
 import pandas.testing as pdt
 import pytest
-from click.testing import CliRunner
-
 from casewriter import write_text
+from click.testing import CliRunner
+from test_case_support import make_case, problem_at
+
 from delay.case import load_case, summarise, write_workbook
 from delay.case._columns import DATE_COLUMNS, INTEGER_COLUMNS, NUMBER_COLUMNS
 from delay.cli import cli
 from delay.model import COLUMNS
-from test_case_support import make_case, problem_at
 
 DEMO = Path(__file__).resolve().parents[1] / "case_demo"
 
@@ -149,10 +149,10 @@ def test_the_export_is_what_a_continental_spreadsheet_writes(demo_and_export):
 
 def test_export_loads_to_the_same_tables_as_the_demo(demo_and_export):
     demo, export, _ = demo_and_export
-    assert [(s.folder, s.label, s.kind, s.data_date) for s in export.snapshots] == \
-        [(s.folder, s.label, s.kind, s.data_date) for s in demo.snapshots]
-    for mine, theirs in zip(export.snapshots + (export.asbuilt_snapshot,),
-                            demo.snapshots + (demo.asbuilt_snapshot,)):
+    assert [(s.folder, s.label, s.kind, s.data_date) for s in export.snapshots] == [
+        (s.folder, s.label, s.kind, s.data_date) for s in demo.snapshots
+    ]
+    for mine, theirs in zip(export.snapshots + (export.asbuilt_snapshot,), demo.snapshots + (demo.asbuilt_snapshot,)):
         pdt.assert_frame_equal(mine.activities, theirs.activities)
         pdt.assert_frame_equal(mine.links, theirs.links)
     for name in COLUMNS:
@@ -163,8 +163,10 @@ def test_export_loads_to_the_same_tables_as_the_demo(demo_and_export):
     # applied as the same date (the as-built snapshot above is the demo's).
     iso = export.corrections[2].corrected
     assert (iso, demo.corrections[2].corrected) == ("30/06/2026", "2026-06-30")
-    as_demo = [dataclasses.replace(c, corrected=c.corrected.replace(iso, "2026-06-30"),
-                                   original=_iso(c.original)) for c in export.corrections]
+    as_demo = [
+        dataclasses.replace(c, corrected=c.corrected.replace(iso, "2026-06-30"), original=_iso(c.original))
+        for c in export.corrections
+    ]
     assert as_demo == list(demo.corrections)
     table = export.table("corrections")
     pdt.assert_frame_equal(table.replace({"30/06/2026": "2026-06-30"}), demo.table("corrections"))
@@ -197,14 +199,14 @@ def test_validate_prints_the_dialect(demo_and_export):
     result = CliRunner().invoke(cli, ["validate", str(root), "--format", "json"])
     summary = json.loads(result.output)
     first = summary["input"][0]
-    assert (first["delimiter"], first["encoding"], first["date_format"]) == (";", "cp1252",
-                                                                          "%d/%m/%Y")
+    assert (first["delimiter"], first["encoding"], first["date_format"]) == (";", "cp1252", "%d/%m/%Y")
 
 
 def test_demo_itself_is_read_as_utf8_with_commas():
     demo = load_case(DEMO)
-    assert {(d.delimiter, d.encoding, d.encoding_source, d.date_format)
-            for d in demo.input_dialects} == {(",", "UTF-8", "default", "%Y-%m-%d")}
+    assert {(d.delimiter, d.encoding, d.encoding_source, d.date_format) for d in demo.input_dialects} == {
+        (",", "UTF-8", "default", "%Y-%m-%d")
+    }
     assert summarise(demo)["input"][0]["delimiter_source"] == "detected"
 
 
@@ -213,8 +215,11 @@ def test_demo_itself_is_read_as_utf8_with_commas():
 
 def test_headers_match_ignoring_case_and_spaces(tmp_path):
     root = make_case(tmp_path, snapshots={})
-    write_text(root, "snapshots/baseline/activities.csv",
-               " ID ,Name,DURATION,Kind\nA,Drive,3,\nB,Cast,2,\nM,Done,0,finish_milestone\n")
+    write_text(
+        root,
+        "snapshots/baseline/activities.csv",
+        " ID ,Name,DURATION,Kind\nA,Drive,3,\nB,Cast,2,\nM,Done,0,finish_milestone\n",
+    )
     case = load_case(root)
     assert case.baseline.activities["id"].tolist() == ["A", "B", "M"]
 
@@ -261,15 +266,22 @@ def test_cp1252_without_a_declaration_is_one_problem(tmp_path):
     root = make_case(tmp_path, snapshots={})
     text = "id,name,duration,kind\nA,Spundwände,3,\nB,Kopfbalken,2,\nM,Fertig,0,finish_milestone\n"
     (root / "snapshots/baseline/activities.csv").write_bytes(text.encode("cp1252"))
-    problem = problem_at(root, "snapshots/baseline/activities.csv", None, None,
-                         "not UTF-8 text (byte 31")  # 22 bytes of header, "A,Spundw", then the 31st
+    problem = problem_at(
+        root, "snapshots/baseline/activities.csv", None, None, "not UTF-8 text (byte 31"
+    )  # 22 bytes of header, "A,Spundw", then the 31st
     assert 'encoding = "cp1252"' in problem.fix
 
 
 def test_date_in_another_format_names_the_format(tmp_path):
-    root = make_case(tmp_path, files={"prolongation_rates.csv": [
-        {"from": "06.01.2025", "to": "30.06.2025", "cost_per_day": "2500"},
-        {"from": "01.07.2025", "to": "31/12/2025", "cost_per_day": "2800"}]})
+    root = make_case(
+        tmp_path,
+        files={
+            "prolongation_rates.csv": [
+                {"from": "06.01.2025", "to": "30.06.2025", "cost_per_day": "2500"},
+                {"from": "01.07.2025", "to": "31/12/2025", "cost_per_day": "2800"},
+            ]
+        },
+    )
     text = (root / "case.toml").read_text(encoding="utf-8")
     write_text(root, "case.toml", text + '[input]\ndate_format = "%d.%m.%Y"\n')
     problem = problem_at(root, "prolongation_rates.csv", 3, "to", "'31/12/2025' is not a date")
@@ -278,9 +290,11 @@ def test_date_in_another_format_names_the_format(tmp_path):
 
 def test_iso_dates_are_read_whatever_the_format(tmp_path):
     # elements.csv (boxes with decimal points) is left out: [input] applies to every file.
-    root = make_case(tmp_path, files={"prolongation_rates.csv": [
-        {"from": "06/01/2025", "to": "2025-06-30", "cost_per_day": "2500,5"}]},
-        drop=("elements.csv",))
+    root = make_case(
+        tmp_path,
+        files={"prolongation_rates.csv": [{"from": "06/01/2025", "to": "2025-06-30", "cost_per_day": "2500,5"}]},
+        drop=("elements.csv",),
+    )
     text = (root / "case.toml").read_text(encoding="utf-8")
     write_text(root, "case.toml", text + '[input]\ndate_format = "%d/%m/%Y"\ndecimal = ","\n')
     rates = load_case(root).prolongation_rates
@@ -291,24 +305,28 @@ def test_iso_dates_are_read_whatever_the_format(tmp_path):
 
 def test_a_point_under_a_decimal_comma_is_never_read_as_one(tmp_path):
     # "2.800" in a decimal-comma export is two thousand eight hundred, not 2.8: refused.
-    root = make_case(tmp_path, files={"prolongation_rates.csv": [
-        {"from": "2025-01-06", "to": "2025-06-30", "cost_per_day": "2.800"}]},
-        drop=("elements.csv",))
+    root = make_case(
+        tmp_path,
+        files={"prolongation_rates.csv": [{"from": "2025-01-06", "to": "2025-06-30", "cost_per_day": "2.800"}]},
+        drop=("elements.csv",),
+    )
     text = (root / "case.toml").read_text(encoding="utf-8")
     write_text(root, "case.toml", text + '[input]\ndecimal = ","\n')
-    problem = problem_at(root, "prolongation_rates.csv", 2, "cost_per_day",
-                         "'2.800' is not a number")
+    problem = problem_at(root, "prolongation_rates.csv", 2, "cost_per_day", "'2.800' is not a number")
     assert "decimal comma and no thousands separator" in problem.fix
 
 
-@pytest.mark.parametrize("setting, words", [
-    ('delimiter = ":"', "the delimiter ':' is not one"),
-    ('encoding = "ebcdic-cp-be"', "the encoding 'ebcdic-cp-be' is not one"),
-    ('date_format = "%d/%m/%y"', "four-digit year"),
-    ('date_format = "%d/%m"', "must give the day"),
-    ('decimal = ";"', "is not . or ,"),
-    ('quoting = "all"', "'quoting' is not a setting of [input]"),
-])
+@pytest.mark.parametrize(
+    "setting, words",
+    [
+        ('delimiter = ":"', "the delimiter ':' is not one"),
+        ('encoding = "ebcdic-cp-be"', "the encoding 'ebcdic-cp-be' is not one"),
+        ('date_format = "%d/%m/%y"', "four-digit year"),
+        ('date_format = "%d/%m"', "must give the day"),
+        ('decimal = ";"', "is not . or ,"),
+        ('quoting = "all"', "'quoting' is not a setting of [input]"),
+    ],
+)
 def test_bad_input_setting(tmp_path, setting, words):
     root = make_case(tmp_path)
     text = (root / "case.toml").read_text(encoding="utf-8")
@@ -317,14 +335,22 @@ def test_bad_input_setting(tmp_path, setting, words):
     problem_at(root, "case.toml", None, key, words)
 
 
-@pytest.mark.parametrize("mapping, key, words", [
-    ('[input.columns.activites]\n"Ref" = "id"\n', "input.columns.activites",
-     "'activites' is not a table"),
-    ('[input.columns.activities]\n"Ref" = "code"\n', "input.columns.activities.Ref",
-     "'code' is not a column of activities"),
-    ('[input.columns.activities]\n"Ref" = "id"\n" REF " = "name"\n',
-     "input.columns.activities. REF ", "mapped twice"),
-])
+@pytest.mark.parametrize(
+    "mapping, key, words",
+    [
+        ('[input.columns.activites]\n"Ref" = "id"\n', "input.columns.activites", "'activites' is not a table"),
+        (
+            '[input.columns.activities]\n"Ref" = "code"\n',
+            "input.columns.activities.Ref",
+            "'code' is not a column of activities",
+        ),
+        (
+            '[input.columns.activities]\n"Ref" = "id"\n" REF " = "name"\n',
+            "input.columns.activities. REF ",
+            "mapped twice",
+        ),
+    ],
+)
 def test_bad_column_mapping(tmp_path, mapping, key, words):
     root = make_case(tmp_path)
     text = (root / "case.toml").read_text(encoding="utf-8")
@@ -336,10 +362,8 @@ def test_two_headers_read_as_one_column(tmp_path):
     root = make_case(tmp_path, snapshots={})
     text = (root / "case.toml").read_text(encoding="utf-8")
     write_text(root, "case.toml", text + '[input.columns.activities]\n"Ref" = "id"\n')
-    write_text(root, "snapshots/baseline/activities.csv",
-               "Ref,ID,name,duration\nA,A,Drive,3\nB,B,Cast,2\nM,M,Done,0\n")
-    problem_at(root, "snapshots/baseline/activities.csv", 1, "id",
-               "the columns 'Ref' and 'ID' are both read as 'id'")
+    write_text(root, "snapshots/baseline/activities.csv", "Ref,ID,name,duration\nA,A,Drive,3\nB,B,Cast,2\nM,M,Done,0\n")
+    problem_at(root, "snapshots/baseline/activities.csv", 1, "id", "the columns 'Ref' and 'ID' are both read as 'id'")
 
 
 def test_workbook_maps_headers_from_its_case_sheet(tmp_path):

@@ -63,8 +63,7 @@ def test_it_is_version_2():
     assert DOC.startswith("# Case format, version 2\n")
 
 
-@pytest.mark.parametrize("table", [t for t in COLUMNS if t not in ("activities", "links")]
-                         + ["activities", "links"])
+@pytest.mark.parametrize("table", [t for t in COLUMNS if t not in ("activities", "links")] + ["activities", "links"])
 def test_every_column_of_every_file_is_documented(table):
     text = section(f"{table}.csv")
     missing = [c for c in COLUMNS[table] if f"`{c}`" not in text]
@@ -73,8 +72,15 @@ def test_every_column_of_every_file_is_documented(table):
 
 def test_every_file_the_loader_reads_is_in_the_folder_tree():
     tree = code_block(section("A case folder"), "")
-    for name in ("case.toml", "calendars.csv", "snapshot.toml", "activities.csv", "links.csv",
-                 OPINION_NAME, *(f"{n}.csv" for n in OPTIONAL_FILES)):
+    for name in (
+        "case.toml",
+        "calendars.csv",
+        "snapshot.toml",
+        "activities.csv",
+        "links.csv",
+        OPINION_NAME,
+        *(f"{n}.csv" for n in OPTIONAL_FILES),
+    ):
         assert re.search(rf"\b{re.escape(name)}\b", tree), name
     assert WORKBOOK_NAME in section("The workbook form")
 
@@ -108,14 +114,24 @@ def test_snapshot_toml_example_names_every_key():
 
 def test_workbook_sheets_and_their_columns():
     text = section("The workbook form")
-    for name in ("`case`", "`key`", "`value`", "`snapshots`", "`label`", "`data_date`",
-                 "`kind`", "`folder`", "`activities`", "`links`", "`snapshot`",
-                 "`attributions`"):
+    for name in (
+        "`case`",
+        "`key`",
+        "`value`",
+        "`snapshots`",
+        "`label`",
+        "`data_date`",
+        "`kind`",
+        "`folder`",
+        "`activities`",
+        "`links`",
+        "`snapshot`",
+        "`attributions`",
+    ):
         assert name in text, name
 
 
-@pytest.mark.parametrize("values", [LINK_TYPES, ACTIVITY_KINDS, CONSTRAINTS, PARTIES, IMPACTS,
-                                    METHODS])
+@pytest.mark.parametrize("values", [LINK_TYPES, ACTIVITY_KINDS, CONSTRAINTS, PARTIES, IMPACTS, METHODS])
 def test_every_choice_is_documented(values):
     for value in values:
         assert f"`{value}`" in DOC or f'"{value}"' in DOC, value
@@ -123,10 +139,18 @@ def test_every_choice_is_documented(values):
 
 def test_every_limit_is_documented():
     text = section("Limits")
-    for figure in (f"{LARGEST_DAYS:,}", FIRST_DATE.isoformat(), LAST_DATE.isoformat(),
-                   f"{LARGEST_TOML:,}", f"{DEEPEST_TOML}", f"{LARGEST_SETTING_PARTS} parts",
-                   f"{LARGEST_WORKBOOK:,}", f"{LARGEST_ENTRIES:,}", f"{LARGEST_SHEET_ROWS:,}",
-                   f"{LARGEST_OPINION:,}"):
+    for figure in (
+        f"{LARGEST_DAYS:,}",
+        FIRST_DATE.isoformat(),
+        LAST_DATE.isoformat(),
+        f"{LARGEST_TOML:,}",
+        f"{DEEPEST_TOML}",
+        f"{LARGEST_SETTING_PARTS} parts",
+        f"{LARGEST_WORKBOOK:,}",
+        f"{LARGEST_ENTRIES:,}",
+        f"{LARGEST_SHEET_ROWS:,}",
+        f"{LARGEST_OPINION:,}",
+    ):
         assert figure in text, figure
     assert f"at most {MAX_PROBLEMS_PER_FILE} a file" in section("Problems and exit status")
 

@@ -29,14 +29,44 @@ from delay.cli import cli
 DEMO = Path(__file__).resolve().parents[1] / "case_demo"
 KEPT_SNAPSHOTS = ("baseline", "2026-01-31", "2026-03-31", "2026-06-30")
 
-FUZZ = settings(max_examples=10, deadline=dt.timedelta(seconds=20), database=None,
-                suppress_health_check=[HealthCheck.too_slow, HealthCheck.data_too_large])
+FUZZ = settings(
+    max_examples=10,
+    deadline=dt.timedelta(seconds=20),
+    database=None,
+    suppress_health_check=[HealthCheck.too_slow, HealthCheck.data_too_large],
+)
 
 # Values a hostile or careless file might hold in a cell.
-NASTY = ["", " ", "9999-12-31", "0001-01-01", "2025-02-30", "-1", "1e308", "-1e308", "nan",
-         "inf", "36501", "100000000", "=HYPERLINK(\"x\")", "\x00", "\ufeff", "é", "\u202e",
-         "A;B;;C", "FS 99999999", "asbuilt", "baseline", '"', "x" * 5000, "1,5", "0x10",
-         "\r", "[[[[[[", "a.b.c.d.e.f.g.h.i.j"]
+NASTY = [
+    "",
+    " ",
+    "9999-12-31",
+    "0001-01-01",
+    "2025-02-30",
+    "-1",
+    "1e308",
+    "-1e308",
+    "nan",
+    "inf",
+    "36501",
+    "100000000",
+    '=HYPERLINK("x")',
+    "\x00",
+    "\ufeff",
+    "é",
+    "\u202e",
+    "A;B;;C",
+    "FS 99999999",
+    "asbuilt",
+    "baseline",
+    '"',
+    "x" * 5000,
+    "1,5",
+    "0x10",
+    "\r",
+    "[[[[[[",
+    "a.b.c.d.e.f.g.h.i.j",
+]
 
 
 @pytest.fixture(scope="module")
@@ -61,9 +91,9 @@ def mutate(data: bytes, operations: list[tuple[str, float, bytes]]) -> bytes:
         if operation == "insert":
             data = data[:at] + payload + data[at:]
         elif operation == "overwrite":
-            data = data[:at] + payload + data[at + len(payload):]
+            data = data[:at] + payload + data[at + len(payload) :]
         elif operation == "delete":
-            data = data[:at] + data[at + 1 + len(payload):]
+            data = data[:at] + data[at + 1 + len(payload) :]
         elif operation == "truncate":
             data = data[:at]
         elif operation == "duplicate line":
@@ -94,7 +124,8 @@ def check_no_traceback(root: Path) -> None:
     """
     result = CliRunner().invoke(cli, ["validate", str(root)])
     assert result.exception is None or isinstance(result.exception, SystemExit), (
-        f"{type(result.exception).__name__}: {result.exception}")
+        f"{type(result.exception).__name__}: {result.exception}"
+    )
     assert result.exit_code in (0, 2), result.output
     assert "Traceback" not in result.output
     if result.exit_code == 2:
@@ -148,10 +179,18 @@ def test_random_mutations_of_one_file(template, data):
 @given(data=st.data())
 def test_nasty_values_in_cells(template, data):
     names = [n for n in case_files(template) if n.endswith(".csv")]
-    chosen = data.draw(st.lists(st.tuples(st.sampled_from(names),
-                                          st.floats(min_value=0, max_value=1, allow_nan=False),
-                                          st.sampled_from(NASTY) | st.text(max_size=30)),
-                                min_size=1, max_size=5), label="cells")
+    chosen = data.draw(
+        st.lists(
+            st.tuples(
+                st.sampled_from(names),
+                st.floats(min_value=0, max_value=1, allow_nan=False),
+                st.sampled_from(NASTY) | st.text(max_size=30),
+            ),
+            min_size=1,
+            max_size=5,
+        ),
+        label="cells",
+    )
     folder, root = fresh_copy(template)
     try:
         for name, where, value in chosen:

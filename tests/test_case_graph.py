@@ -127,12 +127,15 @@ def test_large_graph_against_networkx():
     assert_is_cycle(loop, cycle_src, cycle_dst)
 
 
-@pytest.mark.parametrize("n, src, dst", [
-    (3, [0, 1], [1]),          # lengths differ
-    (3, [0, 3], [1, 2]),       # node out of range
-    (3, [0.5], [1.0]),         # not integers
-    (3, [-1], [0]),            # negative node
-])
+@pytest.mark.parametrize(
+    "n, src, dst",
+    [
+        (3, [0, 1], [1]),  # lengths differ
+        (3, [0, 3], [1, 2]),  # node out of range
+        (3, [0.5], [1.0]),  # not integers
+        (3, [-1], [0]),  # negative node
+    ],
+)
 def test_bad_input_is_refused(n, src, dst):
     with pytest.raises(ValueError):
         find_loop(n, np.array(src), np.array(dst))

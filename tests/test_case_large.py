@@ -12,10 +12,10 @@ import shutil
 
 import networkx as nx
 import pytest
-
 from casewriter import write_large_case
-from delay.case import load_case, summarise
 from test_case_support import problems_of
+
+from delay.case import load_case, summarise
 
 
 @pytest.fixture(scope="module")
@@ -27,7 +27,9 @@ def test_large_case_loads_with_every_row(large_root):
     case = load_case(large_root)
     summary = summarise(case)
     assert [(s["folder"], s["activities"], s["links"]) for s in summary["snapshots"]] == [
-        ("baseline", 50_000, 120_000), ("update_01", 50_000, 120_000)]
+        ("baseline", 50_000, 120_000),
+        ("update_01", 50_000, 120_000),
+    ]
     baseline = case.baseline.activities
     assert baseline["id"].is_unique
     # Every third activity has a blank calendar, which becomes the default "5d":
@@ -52,8 +54,7 @@ def test_large_case_loop_is_found_and_matches_networkx(large_root, tmp_path):
     assert not nx.is_directed_acyclic_graph(graph)
     copy_root = tmp_path / "case"
     shutil.copytree(large_root, copy_root)
-    with (copy_root / "snapshots" / "baseline" / "links.csv").open("a", newline="",
-                                                                   encoding="utf-8") as handle:
+    with (copy_root / "snapshots" / "baseline" / "links.csv").open("a", newline="", encoding="utf-8") as handle:
         csv.writer(handle).writerow(["A049999", "A000000", "FS", 0])
     problems = problems_of(copy_root)
     assert len(problems) == 1

@@ -15,12 +15,12 @@ from pathlib import Path
 
 import numpy as np
 import pandas as pd
-from pandas.api import types
-
 from casewriter import write_text
+from pandas.api import types
+from test_case_support import ACTIVITIES, FILES, LINKS, UPDATE, make_case, problem_at
+
 from delay.case import load_case, summarise
 from delay.model import COLUMNS, CaseSettings
-from test_case_support import ACTIVITIES, FILES, LINKS, UPDATE, make_case, problem_at
 
 
 def test_column_types_follow_the_model(tmp_path):
@@ -50,10 +50,15 @@ def test_blank_cells_take_the_formats_defaults(tmp_path):
     # type blank -> FS (lower case accepted); lag blank -> 0.
     activities = copy.deepcopy(ACTIVITIES)
     activities[1]["calendar"] = "5d"
-    links = [{"pred": "A", "succ": "B", "type": "", "lag": ""},
-             {"pred": "B", "succ": "M", "type": "ss", "lag": "2"}]
-    root = make_case(tmp_path, activities=activities, links=links, snapshots={},
-                     schedule={"default_calendar": "7d"}, drop=("asbuilt.csv",))
+    links = [{"pred": "A", "succ": "B", "type": "", "lag": ""}, {"pred": "B", "succ": "M", "type": "ss", "lag": "2"}]
+    root = make_case(
+        tmp_path,
+        activities=activities,
+        links=links,
+        snapshots={},
+        schedule={"default_calendar": "7d"},
+        drop=("asbuilt.csv",),
+    )
     case = load_case(root)
     baseline = case.baseline.activities
     assert baseline["calendar"].tolist() == ["7d", "5d", "7d"]
@@ -88,10 +93,12 @@ def test_blank_lines_do_not_shift_row_numbers(tmp_path):
 
 
 def test_settings(tmp_path):
-    root = make_case(tmp_path, schedule={"progress": "progress_override", "float_to":
-                                         "contract_completion", "night_shift": True},
-                     commercial={"currency": "GBP", "liquidated_damages_per_day": 1200},
-                     analysis={"half_step": False})
+    root = make_case(
+        tmp_path,
+        schedule={"progress": "progress_override", "float_to": "contract_completion", "night_shift": True},
+        commercial={"currency": "GBP", "liquidated_damages_per_day": 1200},
+        analysis={"half_step": False},
+    )
     with (root / "case.toml").open("a", encoding="utf-8") as handle:
         handle.write('\n[reporting]\nlogo = "quay.png"\n')
     settings = load_case(root).settings
@@ -112,8 +119,10 @@ def test_settings(tmp_path):
 def test_snapshots_run_baseline_first_then_by_data_date(tmp_path):
     # Folder names sort the other way round from the data dates on purpose.
     update = copy.deepcopy(UPDATE)
-    snapshots = {"a_late": {**update["u1"], "data_date": "2025-04-07", "label": "Update 02"},
-                 "z_early": {**update["u1"], "data_date": "2025-02-03", "label": "Update 01"}}
+    snapshots = {
+        "a_late": {**update["u1"], "data_date": "2025-04-07", "label": "Update 02"},
+        "z_early": {**update["u1"], "data_date": "2025-02-03", "label": "Update 01"},
+    }
     case = load_case(make_case(tmp_path, snapshots=snapshots))
     assert [s.folder for s in case.snapshots] == ["baseline", "z_early", "a_late"]
     assert [s.label for s in case.snapshots] == ["Baseline", "Update 01", "Update 02"]
@@ -153,8 +162,7 @@ def test_asbuilt_keeps_the_last_updates_dates_for_activities_it_omits(tmp_path):
     rows = FILES["asbuilt.csv"][1:]
     frame = load_case(make_case(tmp_path, files={"asbuilt.csv": rows})).asbuilt_snapshot.activities
     a = frame.set_index("id").loc["A"]
-    assert (a["actual_start"], a["actual_finish"]) == (pd.Timestamp("2025-01-06"),
-                                                       pd.Timestamp("2025-01-08"))
+    assert (a["actual_start"], a["actual_finish"]) == (pd.Timestamp("2025-01-06"), pd.Timestamp("2025-01-08"))
 
 
 def test_asbuilt_without_updates_builds_on_the_baseline(tmp_path):
@@ -168,8 +176,9 @@ def test_no_asbuilt_file_no_asbuilt_snapshot(tmp_path):
 
 
 def corrections(*rows):
-    return {"corrections.csv": [dict(zip(("snapshot", "table", "key", "column", "value",
-                                          "reason"), row)) for row in rows]}
+    return {
+        "corrections.csv": [dict(zip(("snapshot", "table", "key", "column", "value", "reason"), row)) for row in rows]
+    }
 
 
 def test_corrections_are_applied_and_recorded(tmp_path):
@@ -187,8 +196,7 @@ def test_corrections_are_applied_and_recorded(tmp_path):
     baseline_links = case.baseline.links[["pred", "succ", "type", "lag"]].values.tolist()
     assert baseline_links == [["A", "B", "FS", 0], ["A", "M", "FF", 0]]
     assert case.asbuilt.set_index("id").loc["B", "actual_finish"] == pd.Timestamp("2025-02-13")
-    found = [(c.snapshot, c.table, c.key, c.column, c.original, c.corrected, c.row)
-             for c in case.corrections]
+    found = [(c.snapshot, c.table, c.key, c.column, c.original, c.corrected, c.row) for c in case.corrections]
     assert found == [
         ("Update 01", "activities", "B", "remaining", "1", "2", 2),
         ("Update 01", "links", "A>B", "lag", "", "1", 3),
@@ -222,9 +230,15 @@ def test_input_files_lists_every_file_read(tmp_path):
     root = make_case(tmp_path)
     case = load_case(root)
     read = {p.relative_to(root).as_posix() for p in case.input_files}
-    expected = {"case.toml", "calendars.csv"} | {
-        f"snapshots/{folder}/{name}" for folder in ("baseline", "u1")
-        for name in ("snapshot.toml", "activities.csv", "links.csv")} | set(FILES)
+    expected = (
+        {"case.toml", "calendars.csv"}
+        | {
+            f"snapshots/{folder}/{name}"
+            for folder in ("baseline", "u1")
+            for name in ("snapshot.toml", "activities.csv", "links.csv")
+        }
+        | set(FILES)
+    )
     assert read == expected
 
 
@@ -243,17 +257,36 @@ def test_summary(tmp_path):
     assert summary["contract_start"] == "2025-01-06"
     assert summary["contract_completion"] == "2025-12-19"
     assert summary["snapshots"] == [
-        {"folder": "baseline", "label": "Baseline", "kind": "baseline",
-         "data_date": "2025-01-06", "activities": 3, "links": 2},
-        {"folder": "u1", "label": "Update 01", "kind": "update",
-         "data_date": "2025-02-03", "activities": 3, "links": 2},
+        {
+            "folder": "baseline",
+            "label": "Baseline",
+            "kind": "baseline",
+            "data_date": "2025-01-06",
+            "activities": 3,
+            "links": 2,
+        },
+        {
+            "folder": "u1",
+            "label": "Update 01",
+            "kind": "update",
+            "data_date": "2025-02-03",
+            "activities": 3,
+            "links": 2,
+        },
     ]
     assert summary["asbuilt"] is True
     assert summary["asbuilt_snapshot"]["data_date"] == "2025-02-18"
     # Counts of the rows written in test_case_support.FILES.
-    assert (summary["events"], summary["fragnets"], summary["fragnet_links"],
-            summary["elements"], summary["sections"], summary["extensions"],
-            summary["corrections"], summary["calendars"]) == (2, 1, 2, 1, 1, 1, 1, 2)
+    assert (
+        summary["events"],
+        summary["fragnets"],
+        summary["fragnet_links"],
+        summary["elements"],
+        summary["sections"],
+        summary["extensions"],
+        summary["corrections"],
+        summary["calendars"],
+    ) == (2, 1, 2, 1, 1, 1, 1, 2)
 
 
 def test_links_default_case(tmp_path):
@@ -293,16 +326,16 @@ def test_codes_found_while_loading_equal_the_tables_text(tmp_path):
     activities[1]["calendar"] = ""
     activities[1]["constraint"] = "latest_finish"
     activities[1]["constraint_date"] = "2026-03-31"
-    links = [{"pred": "A", "succ": "B", "type": "", "lag": ""},
-             {"pred": "B", "succ": "M", "type": "ff", "lag": "2"}]
+    links = [{"pred": "A", "succ": "B", "type": "", "lag": ""}, {"pred": "B", "succ": "M", "type": "ff", "lag": "2"}]
     root = make_case(tmp_path, activities=activities, links=links, snapshots={}, drop=("asbuilt.csv",))
     case = load_case(root)
     from delay.cpm import calendars_of
 
     calendars = calendars_of(case)
     for snapshot in case.snapshots:
-        assert {"calendar_codes", "kind_codes", "constraint_codes", "type_codes", "link_numbers",
-                "network"} <= set(snapshot.derived)
+        assert {"calendar_codes", "kind_codes", "constraint_codes", "type_codes", "link_numbers", "network"} <= set(
+            snapshot.derived
+        )
         bare = dataclasses.replace(snapshot, derived={})
         _same_arrays(_engine_arrays(snapshot, calendars), _engine_arrays(bare, calendars))
     assert case.baseline.derived["type_codes"].tolist() == [0, 2]  # FS, FF by LINK_TYPES

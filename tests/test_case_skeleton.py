@@ -46,8 +46,7 @@ def test_skeleton_loads_as_a_valid_case(tmp_path):
     assert case.settings.project.contract_completion == dt.date(2026, 2, 27)
     assert [s.folder for s in case.snapshots] == ["baseline"]
     assert case.baseline.data_date == dt.date(2025, 3, 3)
-    assert case.baseline.activities[["id", "duration", "kind"]].values.tolist() == [
-        ["START", 0, "start_milestone"]]
+    assert case.baseline.activities[["id", "duration", "kind"]].values.tolist() == [["START", 0, "start_milestone"]]
     assert case.asbuilt_snapshot is None and case.events.empty
 
 
@@ -78,14 +77,13 @@ def test_case_toml_gives_every_setting_with_a_comment(tmp_path):
         # A setting whose default is "none given" cannot be written in TOML (which has no
         # null): the skeleton gives it as a commented example line under its section.
         # So is a table to fill in (``[input] columns``, empty by default).
-        commented = {f.name for f in fields
-                     if f.default is None or f.default_factory is not dataclasses.MISSING}
+        commented = {f.name for f in fields if f.default is None or f.default_factory is not dataclasses.MISSING}
         given = {f.name for f in fields} - commented
         assert set(values.get(section.name, {})) == given, section.name
         block = text.split(f"[{section.name}]\n", 1)[1].split("\n[", 1)[0]
         for field in fields:
             if field.name in commented:
-                line = next(l for l in block.splitlines() if l.startswith(f"# {field.name} = "))
+                line = next(lk for lk in block.splitlines() if lk.startswith(f"# {field.name} = "))
                 example = tomllib.loads(line[2:].split("#", 1)[0])
                 assert set(example) == {field.name}, line
     setting_lines = [line for line in text.splitlines() if "=" in line and not line.startswith("#")]

@@ -8,14 +8,13 @@ u1 has data date Monday 2025-02-03: A finished, B in progress with 1 day to go.
 
 from __future__ import annotations
 
-import hashlib
-
 import copy
+import hashlib
 from pathlib import Path
 
 import pytest
-
 from casewriter import write_case
+
 from delay.case import load_case
 from delay.errors import CaseError, Problem
 
@@ -28,8 +27,7 @@ ACTIVITIES = [
 ]
 LINKS = [{"pred": "A", "succ": "B"}, {"pred": "B", "succ": "M"}]
 UPDATE_ACTIVITIES = [
-    {**ACTIVITIES[0], "actual_start": "2025-01-06", "actual_finish": "2025-01-08",
-     "remaining": 0},
+    {**ACTIVITIES[0], "actual_start": "2025-01-06", "actual_finish": "2025-01-08", "remaining": 0},
     {**ACTIVITIES[1], "actual_start": "2025-01-09", "actual_finish": "", "remaining": 1},
     {**ACTIVITIES[2], "actual_start": "", "actual_finish": "", "remaining": ""},
 ]
@@ -45,32 +43,67 @@ FILES = {
         {"id": "M", "actual_start": "", "actual_finish": "2025-02-17", "source": "certificate"},
     ],
     "events.csv": [
-        {"id": "E1", "title": "Late capping beam drawings", "party": "employer",
-         "start": "2025-01-13", "finish": "2025-01-17", "activities": "B", "impact": "extend",
-         "days": 3, "evidence": "RFI 7", "notified": "2025-01-14", "claimed_days": 4},
-        {"id": "E2", "title": "Redesign of anchors", "party": "employer",
-         "start": "2025-01-20", "finish": "2025-01-24", "activities": "", "impact": "fragnet",
-         "days": "", "evidence": "", "notified": "", "claimed_days": ""},
+        {
+            "id": "E1",
+            "title": "Late capping beam drawings",
+            "party": "employer",
+            "start": "2025-01-13",
+            "finish": "2025-01-17",
+            "activities": "B",
+            "impact": "extend",
+            "days": 3,
+            "evidence": "RFI 7",
+            "notified": "2025-01-14",
+            "claimed_days": 4,
+        },
+        {
+            "id": "E2",
+            "title": "Redesign of anchors",
+            "party": "employer",
+            "start": "2025-01-20",
+            "finish": "2025-01-24",
+            "activities": "",
+            "impact": "fragnet",
+            "days": "",
+            "evidence": "",
+            "notified": "",
+            "claimed_days": "",
+        },
     ],
     "fragnets.csv": [
-        {"event": "E2", "id": "F1", "name": "Install new anchors", "duration": 4,
-         "calendar": "", "wbs": "W2"},
+        {"event": "E2", "id": "F1", "name": "Install new anchors", "duration": 4, "calendar": "", "wbs": "W2"},
     ],
     "fragnet_links.csv": [
         {"event": "E2", "pred": "A", "succ": "F1", "type": "", "lag": ""},
         {"event": "E2", "pred": "F1", "succ": "B", "type": "FS", "lag": 0},
     ],
     "elements.csv": [
-        {"id": "EL1", "name": "Sheet pile bay 1", "wbs": "W1", "classification": "Pr_20",
-         "x": 0, "y": 0, "z": -12, "dx": 10, "dy": 0.6, "dz": 14, "level": "L0", "zone": "Z1"},
+        {
+            "id": "EL1",
+            "name": "Sheet pile bay 1",
+            "wbs": "W1",
+            "classification": "Pr_20",
+            "x": 0,
+            "y": 0,
+            "z": -12,
+            "dx": 10,
+            "dy": 0.6,
+            "dz": 14,
+            "level": "L0",
+            "zone": "Z1",
+        },
     ],
     "sections.csv": [
-        {"section": "S1", "name": "Quay wall", "completion_activity": "M",
-         "contract_completion": "2025-10-31", "liquidated_damages_per_day": 1500},
+        {
+            "section": "S1",
+            "name": "Quay wall",
+            "completion_activity": "M",
+            "contract_completion": "2025-10-31",
+            "liquidated_damages_per_day": 1500,
+        },
     ],
     "extensions_granted.csv": [
-        {"id": "X1", "granted_on": "2025-03-03", "days": 5, "section": "S1", "events": "E1",
-         "reason": "first award"},
+        {"id": "X1", "granted_on": "2025-03-03", "days": 5, "section": "S1", "events": "E1", "reason": "first award"},
     ],
     "prolongation_rates.csv": [
         {"from": "2025-01-06", "to": "2025-06-30", "cost_per_day": 2500},
@@ -79,8 +112,7 @@ FILES = {
 }
 
 
-def make_case(tmp_path: Path, *, files: dict | None = None, drop: tuple[str, ...] = (),
-              **overrides) -> Path:
+def make_case(tmp_path: Path, *, files: dict | None = None, drop: tuple[str, ...] = (), **overrides) -> Path:
     """Write the full valid case, with ``files`` replacing or adding optional files and
     ``drop`` naming optional files to leave out; other keywords go to ``write_case``."""
     all_files = copy.deepcopy(FILES)
@@ -121,8 +153,11 @@ def _digest(root: Path) -> dict:
         return {}
     if root.is_file():
         return {root.name: hashlib.sha256(root.read_bytes()).hexdigest()}
-    return {str(p.relative_to(root)): hashlib.sha256(p.read_bytes()).hexdigest()
-            for p in sorted(root.rglob("*")) if p.is_file()}
+    return {
+        str(p.relative_to(root)): hashlib.sha256(p.read_bytes()).hexdigest()
+        for p in sorted(root.rglob("*"))
+        if p.is_file()
+    }
 
 
 def _command_line_refuses(root: Path, problem: Problem) -> None:

@@ -12,10 +12,7 @@ import copy
 
 import pandas as pd
 import pytest
-
 from casewriter import write_csv, write_text, write_toml
-from delay.case import load_case
-from delay.errors import MAX_PROBLEMS_PER_FILE
 from test_case_support import (
     ACTIVITIES,
     FILES,
@@ -25,6 +22,9 @@ from test_case_support import (
     problem_at,
     problems_of,
 )
+
+from delay.case import load_case
+from delay.errors import MAX_PROBLEMS_PER_FILE
 
 BASE = "snapshots/baseline/activities.csv"
 BASE_LINKS = "snapshots/baseline/links.csv"
@@ -99,8 +99,9 @@ def test_bad_toml_names_the_file(tmp_path):
 
 
 def test_blank_activity_id(tmp_path):
-    root = make_case(tmp_path, activities=with_row(ACTIVITIES, 1, id=""),
-                     links=[{"pred": "A", "succ": "M"}], snapshots={})
+    root = make_case(
+        tmp_path, activities=with_row(ACTIVITIES, 1, id=""), links=[{"pred": "A", "succ": "M"}], snapshots={}
+    )
     problem_at(root, BASE, 3, "id", "no id")
 
 
@@ -148,8 +149,7 @@ def test_milestone_kind_with_duration(tmp_path):
 
 
 def test_constraint_without_date(tmp_path):
-    root = make_case(tmp_path, activities=with_row(ACTIVITIES, 1, constraint="latest_finish"),
-                     snapshots={})
+    root = make_case(tmp_path, activities=with_row(ACTIVITIES, 1, constraint="latest_finish"), snapshots={})
     problem_at(root, BASE, 3, "constraint_date", "has no date")
 
 
@@ -166,10 +166,20 @@ def test_constraint_date_without_constraint(tmp_path):
 
 
 def test_snapshot_without_activities(tmp_path):
-    root = make_case(tmp_path, activities=[], links=[], snapshots={},
-                     files={"asbuilt.csv": [], "events.csv": [], "fragnets.csv": [],
-                            "fragnet_links.csv": [], "sections.csv": [],
-                            "extensions_granted.csv": []})
+    root = make_case(
+        tmp_path,
+        activities=[],
+        links=[],
+        snapshots={},
+        files={
+            "asbuilt.csv": [],
+            "events.csv": [],
+            "fragnets.csv": [],
+            "fragnet_links.csv": [],
+            "sections.csv": [],
+            "extensions_granted.csv": [],
+        },
+    )
     write_text(root, BASE, "id,name,duration\n")
     problem_at(root, BASE, None, None, "no activities")
 
@@ -185,8 +195,7 @@ def test_actual_finish_before_actual_start(tmp_path):
 def test_actual_finish_one_day_before_start(tmp_path):
     # The boundary: B started 2025-01-09; a finish on 2025-01-08 is a day too early.
     update = update_with(1, actual_finish="2025-01-08", remaining=0)
-    problem_at(make_case(tmp_path, snapshots=update), U1, 3, "actual_finish",
-               "before the actual start")
+    problem_at(make_case(tmp_path, snapshots=update), U1, 3, "actual_finish", "before the actual start")
 
 
 def test_one_day_task_starts_and_finishes_on_the_same_date(tmp_path):
@@ -297,10 +306,19 @@ def test_logic_loop_names_every_activity_in_order(tmp_path):
     # Activities A, B, C, D; links A>B, B>C, C>A form a loop, D hangs off C. Walking the
     # links from A gives A -> B -> C and back to A (worked out by hand).
     activities = [{"id": i, "name": i, "duration": 1} for i in "ABCD"]
-    links = [{"pred": "A", "succ": "B"}, {"pred": "B", "succ": "C"},
-             {"pred": "C", "succ": "D"}, {"pred": "C", "succ": "A"}]
-    root = make_case(tmp_path, activities=activities, links=links, snapshots={},
-                     drop=("asbuilt.csv", "sections.csv", "extensions_granted.csv"))
+    links = [
+        {"pred": "A", "succ": "B"},
+        {"pred": "B", "succ": "C"},
+        {"pred": "C", "succ": "D"},
+        {"pred": "C", "succ": "A"},
+    ]
+    root = make_case(
+        tmp_path,
+        activities=activities,
+        links=links,
+        snapshots={},
+        drop=("asbuilt.csv", "sections.csv", "extensions_granted.csv"),
+    )
     problem = problem_at(root, BASE_LINKS, 2, "pred", "logic loop")
     assert problem.message == "logic loop: A -> B -> C -> A"
 
@@ -352,8 +370,9 @@ def test_second_baseline(tmp_path):
 
 def test_no_baseline(tmp_path):
     root = make_case(tmp_path)
-    write_toml(root / "snapshots/baseline/snapshot.toml",
-               {"": {"label": "Plan", "data_date": "2025-01-06", "kind": "update"}})
+    write_toml(
+        root / "snapshots/baseline/snapshot.toml", {"": {"label": "Plan", "data_date": "2025-01-06", "kind": "update"}}
+    )
     problem_at(root, "snapshots", None, None, "no baseline")
 
 
@@ -406,8 +425,10 @@ def test_unparseable_date_in_activities(tmp_path, column):
 
 def test_unparseable_date_in_case_toml(tmp_path):
     root = make_case(tmp_path, start="6 January 2025")  # written as a TOML string
-    write_toml(root / "snapshots/baseline/snapshot.toml",
-               {"": {"label": "Baseline", "data_date": "2025-01-06", "kind": "baseline"}})
+    write_toml(
+        root / "snapshots/baseline/snapshot.toml",
+        {"": {"label": "Baseline", "data_date": "2025-01-06", "kind": "baseline"}},
+    )
     problem_at(root, "case.toml", None, "project.contract_start", "must be a date")
 
 
@@ -428,8 +449,7 @@ def test_bad_setting_value(tmp_path):
 
 def test_missing_project_name(tmp_path):
     root = make_case(tmp_path)
-    write_text(root, "case.toml",
-               "[project]\ncontract_start = 2025-01-06\ncontract_completion = 2025-12-19\n")
+    write_text(root, "case.toml", "[project]\ncontract_start = 2025-01-06\ncontract_completion = 2025-12-19\n")
     problem_at(root, "case.toml", None, "project.name", "missing")
 
 
@@ -444,15 +464,19 @@ def test_default_calendar_not_defined(tmp_path):
 
 
 def test_bad_workday_token(tmp_path):
-    calendars = [{"calendar": "5d", "workdays": "Mon Tue Wed Thu Fry"},
-                 {"calendar": "7d", "workdays": "Mon Tue Wed Thu Fri Sat Sun"}]
+    calendars = [
+        {"calendar": "5d", "workdays": "Mon Tue Wed Thu Fry"},
+        {"calendar": "7d", "workdays": "Mon Tue Wed Thu Fri Sat Sun"},
+    ]
     root = make_case(tmp_path, calendars=calendars)
     problem_at(root, "calendars.csv", 2, "workdays", "not a weekday")
 
 
 def test_duplicate_calendar_name(tmp_path):
-    calendars = [{"calendar": "5d", "workdays": "Mon Tue Wed Thu Fri"},
-                 {"calendar": "5d", "workdays": "Mon Tue Wed Thu"}]
+    calendars = [
+        {"calendar": "5d", "workdays": "Mon Tue Wed Thu Fri"},
+        {"calendar": "5d", "workdays": "Mon Tue Wed Thu"},
+    ]
     root = make_case(tmp_path, calendars=calendars)
     problem_at(root, "calendars.csv", 3, "calendar", "given twice")
 
@@ -486,8 +510,7 @@ def test_event_may_name_an_activity_of_an_update_only(tmp_path):
     # the update only, so the event may name it.
     update = copy.deepcopy(UPDATE)
     update["u1"]["activities"].append({"id": "N", "name": "New work", "duration": 2})
-    case = load_case(make_case(tmp_path, snapshots=update, files=events_with(0, activities="N"),
-                               drop=("asbuilt.csv",)))
+    case = load_case(make_case(tmp_path, snapshots=update, files=events_with(0, activities="N"), drop=("asbuilt.csv",)))
     assert case.events["activities"].iat[0] == "N"
 
 
@@ -601,8 +624,7 @@ def test_asbuilt_blank_finish_names_its_row(tmp_path):
 
 
 def test_asbuilt_unknown_activity(tmp_path):
-    rows = FILES["asbuilt.csv"] + [{"id": "Q", "actual_start": "2025-01-06",
-                                    "actual_finish": "2025-01-07"}]
+    rows = FILES["asbuilt.csv"] + [{"id": "Q", "actual_start": "2025-01-06", "actual_finish": "2025-01-07"}]
     root = make_case(tmp_path, files={"asbuilt.csv": rows})
     problem_at(root, "asbuilt.csv", 5, "id", "'Q' is not in the last snapshot")
 
@@ -618,59 +640,56 @@ def test_asbuilt_dates_may_run_past_the_data_date(tmp_path):
 
 
 def corrections(*rows):
-    return {"corrections.csv": [dict(zip(("snapshot", "table", "key", "column", "value",
-                                          "reason"), row)) for row in rows]}
+    return {
+        "corrections.csv": [dict(zip(("snapshot", "table", "key", "column", "value", "reason"), row)) for row in rows]
+    }
 
 
 def test_correction_names_unknown_snapshot(tmp_path):
-    root = make_case(tmp_path, files=corrections(("Update 09", "activities", "B", "remaining",
-                                                  "2", "diary")))
+    root = make_case(tmp_path, files=corrections(("Update 09", "activities", "B", "remaining", "2", "diary")))
     problem_at(root, "corrections.csv", 2, "snapshot", "no snapshot 'Update 09'")
 
 
 def test_correction_names_unknown_activity(tmp_path):
-    root = make_case(tmp_path, files=corrections(("u1", "activities", "B7", "remaining",
-                                                  "2", "diary")))
+    root = make_case(tmp_path, files=corrections(("u1", "activities", "B7", "remaining", "2", "diary")))
     problem_at(root, "corrections.csv", 2, "key", "no activity 'B7'")
 
 
 def test_correction_names_unknown_column(tmp_path):
-    root = make_case(tmp_path, files=corrections(("u1", "activities", "B", "remainder",
-                                                  "2", "diary")))
+    root = make_case(tmp_path, files=corrections(("u1", "activities", "B", "remainder", "2", "diary")))
     problem_at(root, "corrections.csv", 2, "column", "no column 'remainder'")
 
 
 def test_correction_names_unknown_link(tmp_path):
-    root = make_case(tmp_path, files=corrections(("Update 01", "links", "A>M", "delete", "",
-                                                  "not in the programme")))
+    root = make_case(tmp_path, files=corrections(("Update 01", "links", "A>M", "delete", "", "not in the programme")))
     problem_at(root, "corrections.csv", 2, "key", "no link A>M")
 
 
 def test_correction_names_unknown_table(tmp_path):
-    root = make_case(tmp_path, files=corrections(("u1", "calendars", "5d", "workdays", "Mon",
-                                                  "")))
+    root = make_case(tmp_path, files=corrections(("u1", "calendars", "5d", "workdays", "Mon", "")))
     problem_at(root, "corrections.csv", 2, "table", "not a table")
 
 
 def test_correction_adds_a_link_that_exists(tmp_path):
-    root = make_case(tmp_path, files=corrections(("baseline", "links", "A>B", "add", "FS 0",
-                                                  "")))
+    root = make_case(tmp_path, files=corrections(("baseline", "links", "A>B", "add", "FS 0", "")))
     problem_at(root, "corrections.csv", 2, "key", "already exists")
 
 
 def test_correction_adding_a_loop_is_reported_at_the_correction(tmp_path):
     # M>A closes the loop A -> B -> M -> A; the added link has no row in links.csv, so
     # the problem names the correction's row. (The loop's first link is A>B on row 2.)
-    root = make_case(tmp_path, snapshots={},
-                     files=corrections(("baseline", "links", "M>A", "add", "FS 0", "test")),
-                     drop=("asbuilt.csv",))
+    root = make_case(
+        tmp_path,
+        snapshots={},
+        files=corrections(("baseline", "links", "M>A", "add", "FS 0", "test")),
+        drop=("asbuilt.csv",),
+    )
     problem = problem_at(root, BASE_LINKS, 2, "pred", "logic loop")
     assert problem.message == "logic loop: A -> B -> M -> A"
 
 
 def test_bad_value_set_by_a_correction_says_so(tmp_path):
-    root = make_case(tmp_path, files=corrections(("u1", "activities", "B", "remaining",
-                                                  "-4", "typo")))
+    root = make_case(tmp_path, files=corrections(("u1", "activities", "B", "remaining", "-4", "typo")))
     problem = problem_at(root, U1, 3, "remaining", "below 0")
     assert "corrections.csv row 2" in problem.message
 
@@ -679,9 +698,13 @@ def test_bad_value_set_by_a_correction_says_so(tmp_path):
 
 
 def test_all_problems_of_all_files_in_one_error(tmp_path):
-    root = make_case(tmp_path, activities=with_row(ACTIVITIES, 0, duration=-1),
-                     links=with_row(LINKS, 1, type="XX"), snapshots={},
-                     files=events_with(0, party="owner"))
+    root = make_case(
+        tmp_path,
+        activities=with_row(ACTIVITIES, 0, duration=-1),
+        links=with_row(LINKS, 1, type="XX"),
+        snapshots={},
+        files=events_with(0, party="owner"),
+    )
     where = {(p.file, p.row, p.column) for p in problems_of(root)}
     assert {(BASE, 2, "duration"), (BASE_LINKS, 3, "type"), ("events.csv", 2, "party")} <= where
 
@@ -690,9 +713,20 @@ def test_problems_per_file_are_capped(tmp_path):
     # 60 activities with a negative duration: at most MAX_PROBLEMS_PER_FILE lines for the
     # file, the last of which says how many more there are (60 - 49 = 11 by hand).
     rows = [{"id": f"A{i}", "name": "x", "duration": -1} for i in range(60)]
-    root = make_case(tmp_path, activities=rows, links=[], snapshots={},
-                     drop=("asbuilt.csv", "events.csv", "fragnets.csv", "fragnet_links.csv",
-                           "sections.csv", "extensions_granted.csv"))
+    root = make_case(
+        tmp_path,
+        activities=rows,
+        links=[],
+        snapshots={},
+        drop=(
+            "asbuilt.csv",
+            "events.csv",
+            "fragnets.csv",
+            "fragnet_links.csv",
+            "sections.csv",
+            "extensions_granted.csv",
+        ),
+    )
     found = [p for p in problems_of(root) if p.file == BASE]
     assert len(found) == MAX_PROBLEMS_PER_FILE == 50
     assert [p.row for p in found[:3]] == [2, 3, 4]

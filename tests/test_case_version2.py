@@ -14,20 +14,30 @@ import datetime as dt
 
 import openpyxl
 import pytest
-
 from casewriter import write_text
+from test_case_support import ACTIVITIES, FILES, UPDATE, make_case, problem_at
+
 from delay.case import load_case, summarise, write_workbook
 from delay.model import COLUMNS
-from test_case_support import ACTIVITIES, FILES, UPDATE, make_case, problem_at
 
 BASE = "snapshots/baseline/activities.csv"
 U1 = "snapshots/u1/activities.csv"
 
 ATTRIBUTIONS = [
-    {"window": "Update 01", "activity": "B", "event": "E1", "party": "",
-     "reason": "the drawings of E1 held the capping beam (RFI 7)"},
-    {"window": "asbuilt", "activity": "A", "event": "", "party": "Employer",
-     "reason": "late possession of the quay, site diary 2025-01-06"},
+    {
+        "window": "Update 01",
+        "activity": "B",
+        "event": "E1",
+        "party": "",
+        "reason": "the drawings of E1 held the capping beam (RFI 7)",
+    },
+    {
+        "window": "asbuilt",
+        "activity": "A",
+        "event": "",
+        "party": "Employer",
+        "reason": "late possession of the quay, site diary 2025-01-06",
+    },
 ]
 
 
@@ -100,8 +110,9 @@ def test_completion_activity_of_the_baseline(tmp_path):
 
 def test_completion_activity_not_in_the_baseline(tmp_path):
     root = make_case(tmp_path, project={"completion_activity": "HANDOVER"})
-    problem = problem_at(root, "case.toml", None, "project.completion_activity",
-                         "'HANDOVER' is not an activity of the baseline")
+    problem = problem_at(
+        root, "case.toml", None, "project.completion_activity", "'HANDOVER' is not an activity of the baseline"
+    )
     assert "leave project.completion_activity out" in problem.fix
 
 
@@ -161,10 +172,8 @@ def test_asbuilt_activities_not_in_the_as_built_record(tmp_path):
 
 
 def test_asbuilt_activities_without_an_as_built_record(tmp_path):
-    root = make_case(tmp_path, files=events_with(0, asbuilt_activities="Z1;Z2"),
-                     drop=("asbuilt.csv",))
-    problem_at(root, "events.csv", 2, "asbuilt_activities",
-               "'Z1', 'Z2' are not in the last update ('Update 01')")
+    root = make_case(tmp_path, files=events_with(0, asbuilt_activities="Z1;Z2"), drop=("asbuilt.csv",))
+    problem_at(root, "events.csv", 2, "asbuilt_activities", "'Z1', 'Z2' are not in the last update ('Update 01')")
 
 
 # ----------------------------------------------------------------- attributions.csv
@@ -187,17 +196,20 @@ def test_no_attributions_file_gives_an_empty_table(tmp_path):
     assert case.attributions.empty and summarise(case)["attributions"] == 0
 
 
-@pytest.mark.parametrize("changes, row, column, words", [
-    ({"window": "Baseline"}, 2, "window", "begins the first window and ends none"),
-    ({"window": "Update 09"}, 2, "window", "'Update 09' is not a snapshot"),
-    ({"window": ""}, 2, "window", "names no window"),
-    ({"activity": "F1"}, 2, "activity", "'F1' is not in the snapshot 'Update 01'"),
-    ({"activity": ""}, 2, "activity", "names no activity"),
-    ({"event": "E9"}, 2, "event", "'E9' is not in events.csv"),
-    ({"party": "contractor"}, 2, "party", "both an event and a party"),
-    ({"event": ""}, 2, "event", "neither an event nor a party"),
-    ({"reason": ""}, 2, "reason", "gives no reason"),
-])
+@pytest.mark.parametrize(
+    "changes, row, column, words",
+    [
+        ({"window": "Baseline"}, 2, "window", "begins the first window and ends none"),
+        ({"window": "Update 09"}, 2, "window", "'Update 09' is not a snapshot"),
+        ({"window": ""}, 2, "window", "names no window"),
+        ({"activity": "F1"}, 2, "activity", "'F1' is not in the snapshot 'Update 01'"),
+        ({"activity": ""}, 2, "activity", "names no activity"),
+        ({"event": "E9"}, 2, "event", "'E9' is not in events.csv"),
+        ({"party": "contractor"}, 2, "party", "both an event and a party"),
+        ({"event": ""}, 2, "event", "neither an event nor a party"),
+        ({"reason": ""}, 2, "reason", "gives no reason"),
+    ],
+)
 def test_broken_attribution(tmp_path, changes, row, column, words):
     root = make_case(tmp_path, files=attributions_with(0, **changes))
     problem_at(root, "attributions.csv", row, column, words)
@@ -231,8 +243,7 @@ def test_attributions_sheet_of_the_workbook(tmp_path):
 
 def test_attributions_sheet_with_a_problem(tmp_path):
     folder = make_case(tmp_path, files=attributions_with(1, activity="Q"))
-    book = write_workbook(make_case(tmp_path / "good", files=attributions_with()),
-                          tmp_path / "book" / "case.xlsx")
+    book = write_workbook(make_case(tmp_path / "good", files=attributions_with()), tmp_path / "book" / "case.xlsx")
     workbook = openpyxl.load_workbook(book)
     sheet = workbook["attributions"]
     header = [cell.value for cell in sheet[1]]
@@ -282,18 +293,29 @@ def test_opinion_not_utf8(tmp_path):
 
 
 def test_summary_names_the_version_2_settings(tmp_path):
-    case = load_case(make_case(tmp_path, project={"completion_activity": "M"},
-                               report={"preferred_method": "tia"},
-                               analysis={"unexplained_risk": "neutral"}))
+    case = load_case(
+        make_case(
+            tmp_path,
+            project={"completion_activity": "M"},
+            report={"preferred_method": "tia"},
+            analysis={"unexplained_risk": "neutral"},
+        )
+    )
     summary = summarise(case)
-    assert (summary["completion_activity"], summary["preferred_method"],
-            summary["unexplained_risk"]) == ("M", "tia", "neutral")
+    assert (summary["completion_activity"], summary["preferred_method"], summary["unexplained_risk"]) == (
+        "M",
+        "tia",
+        "neutral",
+    )
 
 
 def test_workbook_case_sheet_carries_the_version_2_settings(tmp_path):
-    folder = make_case(tmp_path, project={"completion_activity": "M"},
-                       report={"preferred_method": "collapsed"},
-                       analysis={"unexplained_risk": "employer"})
+    folder = make_case(
+        tmp_path,
+        project={"completion_activity": "M"},
+        report={"preferred_method": "collapsed"},
+        analysis={"unexplained_risk": "employer"},
+    )
     case = load_case(write_workbook(folder, tmp_path / "book" / "case.xlsx"))
     assert case.settings.project.completion_activity == "M"
     assert case.settings.report.preferred_method == "collapsed"

@@ -12,11 +12,11 @@ import datetime as dt
 import openpyxl
 import pandas.testing as pdt
 import pytest
+from test_case_support import make_case, problem_at
 
 from delay.case import load_case, write_workbook
 from delay.errors import CaseError
 from delay.model import COLUMNS
-from test_case_support import make_case, problem_at
 
 
 def hand_built_workbook(path, links=(("Baseline", "A", "B", "", None), ("Baseline", "B", "M", "FF", 1))):
@@ -38,13 +38,11 @@ def hand_built_workbook(path, links=(("Baseline", "A", "B", "", None), ("Baselin
     snapshots.append(["Baseline", dt.datetime(2025, 1, 6), "baseline"])
     snapshots.append(["Update 01", dt.datetime(2025, 2, 3), "update"])
     activities = book.create_sheet("activities")
-    activities.append(["snapshot", "id", "name", "duration", "kind", "actual_start",
-                       "actual_finish", "remaining"])
+    activities.append(["snapshot", "id", "name", "duration", "kind", "actual_start", "actual_finish", "remaining"])
     activities.append(["Baseline", "A", "Excavate", 3, None, None, None, None])
     activities.append(["Baseline", "B", "Foundations", 2.0, None, None, None, None])
     activities.append(["Baseline", "M", "Ready", 0, "finish_milestone", None, None, None])
-    activities.append(["Update 01", "A", "Excavate", 3, None, dt.datetime(2025, 1, 6),
-                       dt.datetime(2025, 1, 8), 0])
+    activities.append(["Update 01", "A", "Excavate", 3, None, dt.datetime(2025, 1, 6), dt.datetime(2025, 1, 8), 0])
     activities.append(["Update 01", "B", "Foundations", 2, None, dt.datetime(2025, 1, 9), None, 1])
     activities.append(["Update 01", "M", "Ready", 0, "finish_milestone", None, None, None])
     sheet = book.create_sheet("links")
@@ -67,7 +65,9 @@ def test_hand_built_workbook_loads(tmp_path):
     assert case.settings.analysis.half_step is False
     # Without a folder column, a snapshot's folder is its label.
     assert [(s.folder, s.kind, s.data_date) for s in case.snapshots] == [
-        ("Baseline", "baseline", dt.date(2025, 1, 6)), ("Update 01", "update", dt.date(2025, 2, 3))]
+        ("Baseline", "baseline", dt.date(2025, 1, 6)),
+        ("Update 01", "update", dt.date(2025, 2, 3)),
+    ]
     baseline = case.baseline.activities
     assert baseline["duration"].tolist() == [3, 2, 0]  # 2.0 in the sheet is 2 work days
     assert list(baseline.columns) == list(COLUMNS["activities"])
@@ -87,14 +87,16 @@ def test_folder_holding_only_the_workbook(tmp_path):
 
 def test_workbook_problem_names_sheet_and_sheet_row(tmp_path):
     # Links sheet: row 1 header, row 2 A>B, row 3 B>Q where Q is not an activity.
-    path = hand_built_workbook(tmp_path / "case.xlsx",
-                               links=(("Baseline", "A", "B", "", None), ("Baseline", "B", "Q", "", None)))
+    path = hand_built_workbook(
+        tmp_path / "case.xlsx", links=(("Baseline", "A", "B", "", None), ("Baseline", "B", "Q", "", None))
+    )
     problem_at(path, "case.xlsx:links", 3, "succ", "'Q' is not an activity")
 
 
 def test_workbook_row_naming_unknown_snapshot(tmp_path):
-    path = hand_built_workbook(tmp_path / "case.xlsx",
-                               links=(("Baseline", "A", "B", "", None), ("Update 7", "B", "M", "", None)))
+    path = hand_built_workbook(
+        tmp_path / "case.xlsx", links=(("Baseline", "A", "B", "", None), ("Update 7", "B", "M", "", None))
+    )
     problem_at(path, "case.xlsx:links", 3, "snapshot", "'Update 7' is not in the snapshots sheet")
 
 
@@ -116,8 +118,9 @@ def test_workbook_missing_sheet(tmp_path):
 
 def assert_same_case(left, right):
     assert left.settings == right.settings
-    assert [(s.folder, s.label, s.kind, s.data_date) for s in left.snapshots] == \
-        [(s.folder, s.label, s.kind, s.data_date) for s in right.snapshots]
+    assert [(s.folder, s.label, s.kind, s.data_date) for s in left.snapshots] == [
+        (s.folder, s.label, s.kind, s.data_date) for s in right.snapshots
+    ]
     for a, b in zip(left.snapshots, right.snapshots):
         pdt.assert_frame_equal(a.activities, b.activities)
         pdt.assert_frame_equal(a.links, b.links)
@@ -126,23 +129,43 @@ def assert_same_case(left, right):
     else:
         assert left.asbuilt_snapshot.data_date == right.asbuilt_snapshot.data_date
         pdt.assert_frame_equal(left.asbuilt_snapshot.activities, right.asbuilt_snapshot.activities)
-    for name in ("calendars", "calendar_exceptions", "asbuilt", "corrections", "events",
-                 "fragnets", "fragnet_links", "elements", "sections", "extensions_granted",
-                 "prolongation_rates"):
+    for name in (
+        "calendars",
+        "calendar_exceptions",
+        "asbuilt",
+        "corrections",
+        "events",
+        "fragnets",
+        "fragnet_links",
+        "elements",
+        "sections",
+        "extensions_granted",
+        "prolongation_rates",
+    ):
         pdt.assert_frame_equal(left.table(name), right.table(name), obj=name)
-    assert [(c.snapshot, c.key, c.column, c.original, c.corrected) for c in left.corrections] \
-        == [(c.snapshot, c.key, c.column, c.original, c.corrected) for c in right.corrections]
+    assert [(c.snapshot, c.key, c.column, c.original, c.corrected) for c in left.corrections] == [
+        (c.snapshot, c.key, c.column, c.original, c.corrected) for c in right.corrections
+    ]
 
 
 def test_folder_and_its_workbook_give_the_same_tables(tmp_path):
     corrections = [
-        {"snapshot": "Update 01", "table": "activities", "key": "B", "column": "remaining",
-         "value": "2", "reason": "diary"},
-        {"snapshot": "baseline", "table": "links", "key": "A>M", "column": "add", "value": "FS 0",
-         "reason": "logic"},
+        {
+            "snapshot": "Update 01",
+            "table": "activities",
+            "key": "B",
+            "column": "remaining",
+            "value": "2",
+            "reason": "diary",
+        },
+        {"snapshot": "baseline", "table": "links", "key": "A>M", "column": "add", "value": "FS 0", "reason": "logic"},
     ]
-    root = make_case(tmp_path, files={"corrections.csv": corrections},
-                     schedule={"lag_calendar": "predecessor"}, commercial={"currency": "USD"})
+    root = make_case(
+        tmp_path,
+        files={"corrections.csv": corrections},
+        schedule={"lag_calendar": "predecessor"},
+        commercial={"currency": "USD"},
+    )
     folder_case = load_case(root)
     path = write_workbook(folder_case, tmp_path / "out" / "case.xlsx")
     workbook_case = load_case(path)
@@ -165,8 +188,16 @@ def test_workbook_cells_are_real_dates(tmp_path):
     assert snapshots[2][1].date() == dt.date(2025, 2, 3) and snapshots[2][3] == "u1"
     case_rows = dict(list(book["case"].iter_rows(values_only=True))[1:])
     assert case_rows["project.contract_start"].date() == dt.date(2025, 1, 6)
-    assert set(book.sheetnames) >= {"case", "snapshots", "activities", "links", "calendars",
-                                    "events", "prolongation_rates", "extensions_granted"}
+    assert set(book.sheetnames) >= {
+        "case",
+        "snapshots",
+        "activities",
+        "links",
+        "calendars",
+        "events",
+        "prolongation_rates",
+        "extensions_granted",
+    }
     book.close()
 
 

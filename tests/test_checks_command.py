@@ -8,9 +8,8 @@ from __future__ import annotations
 
 import json
 
-from click.testing import CliRunner
-
 from casewriter import write_case, write_text
+from click.testing import CliRunner
 
 from delay.checks import DATA_CHECK_KEYS, METRIC_KEYS
 from delay.commands.check import COMMANDS, check
@@ -23,14 +22,22 @@ def task(activity_id, duration, **extra):
 def small_case(root):
     # START -> A -> B -> FINISH, with a lead on A -> B: the leads metric fails (none are
     # allowed, DCMA-EA PAM 200.1 (2012) section 4, as recalled).
-    activities = [{"id": "START", "name": "Start", "duration": 0, "kind": "start_milestone"}, task("A", 3),
-                  task("B", 3), {"id": "FINISH", "name": "Finish", "duration": 0, "kind": "finish_milestone"}]
+    activities = [
+        {"id": "START", "name": "Start", "duration": 0, "kind": "start_milestone"},
+        task("A", 3),
+        task("B", 3),
+        {"id": "FINISH", "name": "Finish", "duration": 0, "kind": "finish_milestone"},
+    ]
     links = [{"pred": "START", "succ": "A"}, {"pred": "A", "succ": "B", "lag": -1}, {"pred": "B", "succ": "FINISH"}]
     progress = [dict(a) for a in activities]
     progress[0]["actual_start"] = "2025-01-06"
     progress[1].update(actual_start="2025-01-06", remaining=1)
-    return write_case(root, activities=activities, links=links,
-                      snapshots={"u01": {"data_date": "2025-01-08", "activities": progress, "label": "Update 01"}})
+    return write_case(
+        root,
+        activities=activities,
+        links=links,
+        snapshots={"u01": {"data_date": "2025-01-08", "activities": progress, "label": "Update 01"}},
+    )
 
 
 def run(*args):
@@ -76,8 +83,11 @@ def test_compare_two_snapshots(tmp_path):
     # work went from the planned 3 days to 1: four progress rows.
     assert data["counts"]["progress"] == 4
     assert [(c["activity"], c["field"], c["after"]) for c in data["changes"]] == [
-        ("START", "actual_start", "2025-01-06"), ("START", "actual_finish", "2025-01-06"),
-        ("A", "actual_start", "2025-01-06"), ("A", "remaining", "1")]
+        ("START", "actual_start", "2025-01-06"),
+        ("START", "actual_finish", "2025-01-06"),
+        ("A", "actual_start", "2025-01-06"),
+        ("A", "remaining", "1"),
+    ]
 
 
 def test_tables(tmp_path):

@@ -31,7 +31,6 @@ link A -> E deleted, E -> H added; B -> C lag 0 -> 1, G -> H FS 0 -> SS 1, H -> 
 from __future__ import annotations
 
 import pytest
-
 from casewriter import write_case
 
 from delay.case import load_case
@@ -50,20 +49,68 @@ def link(pred, succ, kind="FS", lag=0):
 START = {"id": "START", "name": "Start", "duration": 0, "kind": "start_milestone"}
 FINISH = {"id": "FINISH", "name": "Finish", "duration": 0, "kind": "finish_milestone"}
 
-BASELINE = [START, task("A", 5), task("B", 5, "Foundations"), task("C", 5), task("D", 5), task("E", 4),
-            task("F", 3), task("G", 2), task("H", 6), task("M", 0, "Handover"), FINISH]
-BASELINE_LINKS = [link("START", "M"), link("M", "FINISH"), link("START", "A"), link("A", "B"), link("B", "C"), link("C", "FINISH"), link("START", "D"),
-                  link("D", "FINISH"), link("START", "E"), link("A", "E"), link("E", "FINISH"),
-                  link("START", "F"), link("F", "FINISH"), link("START", "G"), link("G", "H"),
-                  link("H", "FINISH")]
-UPDATE = [dict(START, actual_start="2025-01-06"), task("A", 5, actual_start="2025-01-06", actual_finish="2025-01-10"),
-          task("B", 7, "Foundations and ground beams"), task("C", 5, remaining=8), task("E", 4, calendar="7d"),
-          task("F", 3, constraint="earliest_start", constraint_date="2025-01-20"), task("G", 2), task("H", 6),
-          task("N", 3, "New works"), task("M", 0, "Handover", kind="finish_milestone"), FINISH]
-UPDATE_LINKS = [link("START", "M"), link("M", "FINISH"), link("START", "A"), link("A", "B"), link("B", "C", lag=1), link("C", "FINISH"), link("START", "E"),
-                link("E", "FINISH"), link("START", "F"), link("F", "FINISH"), link("START", "G"),
-                link("G", "H", "SS", 1), link("H", "FINISH", lag=2), link("B", "N"), link("N", "FINISH"),
-                link("E", "H")]
+BASELINE = [
+    START,
+    task("A", 5),
+    task("B", 5, "Foundations"),
+    task("C", 5),
+    task("D", 5),
+    task("E", 4),
+    task("F", 3),
+    task("G", 2),
+    task("H", 6),
+    task("M", 0, "Handover"),
+    FINISH,
+]
+BASELINE_LINKS = [
+    link("START", "M"),
+    link("M", "FINISH"),
+    link("START", "A"),
+    link("A", "B"),
+    link("B", "C"),
+    link("C", "FINISH"),
+    link("START", "D"),
+    link("D", "FINISH"),
+    link("START", "E"),
+    link("A", "E"),
+    link("E", "FINISH"),
+    link("START", "F"),
+    link("F", "FINISH"),
+    link("START", "G"),
+    link("G", "H"),
+    link("H", "FINISH"),
+]
+UPDATE = [
+    dict(START, actual_start="2025-01-06"),
+    task("A", 5, actual_start="2025-01-06", actual_finish="2025-01-10"),
+    task("B", 7, "Foundations and ground beams"),
+    task("C", 5, remaining=8),
+    task("E", 4, calendar="7d"),
+    task("F", 3, constraint="earliest_start", constraint_date="2025-01-20"),
+    task("G", 2),
+    task("H", 6),
+    task("N", 3, "New works"),
+    task("M", 0, "Handover", kind="finish_milestone"),
+    FINISH,
+]
+UPDATE_LINKS = [
+    link("START", "M"),
+    link("M", "FINISH"),
+    link("START", "A"),
+    link("A", "B"),
+    link("B", "C", lag=1),
+    link("C", "FINISH"),
+    link("START", "E"),
+    link("E", "FINISH"),
+    link("START", "F"),
+    link("F", "FINISH"),
+    link("START", "G"),
+    link("G", "H", "SS", 1),
+    link("H", "FINISH", lag=2),
+    link("B", "N"),
+    link("N", "FINISH"),
+    link("E", "H"),
+]
 
 # kind, activity, pred, succ, field, before, after, end added or deleted, driving earlier, driving later
 EXPECTED = [
@@ -95,9 +142,14 @@ EXPECTED = [
 
 @pytest.fixture
 def case(tmp_path):
-    root = write_case(tmp_path, activities=BASELINE, links=BASELINE_LINKS,
-                      snapshots={"u01": {"data_date": "2025-01-13", "activities": UPDATE, "links": UPDATE_LINKS,
-                                         "label": "Update 01"}})
+    root = write_case(
+        tmp_path,
+        activities=BASELINE,
+        links=BASELINE_LINKS,
+        snapshots={
+            "u01": {"data_date": "2025-01-13", "activities": UPDATE, "links": UPDATE_LINKS, "label": "Update 01"}
+        },
+    )
     return load_case(root)
 
 
@@ -134,9 +186,21 @@ def test_revisions_one_step_at_a_time(case):
     assert steps["deletions"]["activity"].tolist() == ["D"]
     assert steps["additions"]["activity"].tolist() == ["N"]
     assert list(zip(steps["durations"]["kind"], steps["durations"]["activity"])) == [
-        ("duration_changed", "B"), ("remaining_changed", "C"), ("kind_changed", "M")]
+        ("duration_changed", "B"),
+        ("remaining_changed", "C"),
+        ("kind_changed", "M"),
+    ]
     assert [f"{p}>{s}" for p, s in zip(steps["logic"]["pred"], steps["logic"]["succ"])] == [
-        "START>D", "D>FINISH", "A>E", "B>N", "N>FINISH", "E>H", "B>C", "G>H", "H>FINISH"]
+        "START>D",
+        "D>FINISH",
+        "A>E",
+        "B>N",
+        "N>FINISH",
+        "E>H",
+        "B>C",
+        "G>H",
+        "H>FINISH",
+    ]
     assert steps["calendars"]["activity"].tolist() == ["E"]
     assert steps["constraints"]["activity"].tolist() == ["F"]
     # Progress and names are not revisions.
@@ -158,6 +222,15 @@ def test_the_json_form(case):
     assert (data["earlier_snapshot"], data["later_snapshot"]) == ("baseline", "u01")
     assert data["counts"]["link_changed"] == 3
     assert data["changes"][0] == {
-        "kind": "activity_deleted", "activity": "D", "pred": "", "succ": "", "field": "", "before": "Work D",
-        "after": "", "end_added_or_deleted": False, "driving_earlier": False, "driving_later": False,
-        "touches_driving_path": False}
+        "kind": "activity_deleted",
+        "activity": "D",
+        "pred": "",
+        "succ": "",
+        "field": "",
+        "before": "Work D",
+        "after": "",
+        "end_added_or_deleted": False,
+        "driving_earlier": False,
+        "driving_later": False,
+        "touches_driving_path": False,
+    }

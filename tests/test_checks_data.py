@@ -19,7 +19,6 @@ import networkx as nx
 import numpy as np
 import pandas as pd
 import pytest
-
 from casewriter import write_case
 
 from delay.case import load_case
@@ -62,8 +61,11 @@ def _plain(value):
 
 
 def test_every_check_is_reported_with_its_columns(tmp_path):
-    root = write_case(tmp_path, activities=[start_milestone(), task("A", 1), finish_milestone()],
-                      links=[link("START", "A"), link("A", "FINISH")])
+    root = write_case(
+        tmp_path,
+        activities=[start_milestone(), task("A", 1), finish_milestone()],
+        links=[link("START", "A"), link("A", "FINISH")],
+    )
     found = data_checks(load_case(root))
     assert tuple(c.key for c in found) == DATA_CHECK_KEYS
     for check in found:
@@ -72,16 +74,23 @@ def test_every_check_is_reported_with_its_columns(tmp_path):
 
 # -- open ends --------------------------------------------------------------------------------
 
+
 def test_open_ends_other_than_the_project_start_and_finish(tmp_path):
     # START -> A -> B -> C -> FINISH; X follows A and leads nowhere; Y has no predecessor.
     # Y and START both start on 2025-01-06: the milestone is taken as the project start.
-    activities = [start_milestone(), task("A", 2), task("B", 2), task("C", 2), task("X", 1), task("Y", 1),
-                  finish_milestone()]
-    links = [link("START", "A"), link("A", "B"), link("B", "C"), link("C", "FINISH"), link("A", "X"),
-             link("Y", "C")]
+    activities = [
+        start_milestone(),
+        task("A", 2),
+        task("B", 2),
+        task("C", 2),
+        task("X", 1),
+        task("Y", 1),
+        finish_milestone(),
+    ]
+    links = [link("START", "A"), link("A", "B"), link("B", "C"), link("C", "FINISH"), link("A", "X"), link("Y", "C")]
     found = checks_of(write_case(tmp_path, activities=activities, links=links))["open_ends"]
     # Reference: networkx degrees, less the project's two ends.
-    graph = nx.DiGraph([(l["pred"], l["succ"]) for l in links])
+    graph = nx.DiGraph([(lk["pred"], lk["succ"]) for lk in links])
     no_pred = {v for v in graph if graph.in_degree(v) == 0} - {"START"}
     no_succ = {v for v in graph if graph.out_degree(v) == 0} - {"FINISH"}
     assert (no_pred, no_succ) == ({"Y"}, {"X"})
@@ -91,26 +100,49 @@ def test_open_ends_other_than_the_project_start_and_finish(tmp_path):
 
 # -- dangling starts and finishes -----------------------------------------------------------
 
+
 def test_dangling_starts_and_finishes(tmp_path):
     # B's only predecessor link is FF: nothing drives its start. C's only successor link
     # is SS: nothing follows its finish. M is a finish milestone reached by FF only: a
     # milestone is one point and any link drives it, so it is not listed.
-    activities = [start_milestone(), task("A", 3), task("B", 3), task("C", 3), task("D", 3),
-                  finish_milestone("M"), finish_milestone()]
-    links = [link("START", "A"), link("A", "B", "FF"), link("B", "FINISH"), link("START", "C"),
-             link("C", "D", "SS"), link("D", "FINISH"), link("A", "M", "FF"), link("M", "FINISH")]
+    activities = [
+        start_milestone(),
+        task("A", 3),
+        task("B", 3),
+        task("C", 3),
+        task("D", 3),
+        finish_milestone("M"),
+        finish_milestone(),
+    ]
+    links = [
+        link("START", "A"),
+        link("A", "B", "FF"),
+        link("B", "FINISH"),
+        link("START", "C"),
+        link("C", "D", "SS"),
+        link("D", "FINISH"),
+        link("A", "M", "FF"),
+        link("M", "FINISH"),
+    ]
     found = checks_of(write_case(tmp_path, activities=activities, links=links))["dangling"]
     assert rows(found, "activity", "dangling") == [("B", "start"), ("C", "finish")]
 
 
 # -- actual date changes and retrospective edits ------------------------------------------
 
+
 def progress_case(tmp_path):
     # Baseline: START -> T1 (5) -> T2 (5) -> FINISH; T3 (5) and T5 (5) in parallel.
-    activities = [start_milestone(), task("T1", 5), task("T2", 5), task("T3", 5), task("T5", 5),
-                  finish_milestone()]
-    links = [link("START", "T1"), link("T1", "T2"), link("T2", "FINISH"), link("START", "T3"),
-             link("T3", "FINISH"), link("START", "T5"), link("T5", "FINISH")]
+    activities = [start_milestone(), task("T1", 5), task("T2", 5), task("T3", 5), task("T5", 5), finish_milestone()]
+    links = [
+        link("START", "T1"),
+        link("T1", "T2"),
+        link("T2", "FINISH"),
+        link("START", "T3"),
+        link("T3", "FINISH"),
+        link("START", "T5"),
+        link("T5", "FINISH"),
+    ]
 
     def update(changes):
         table = [dict(a) for a in activities]
@@ -120,9 +152,14 @@ def progress_case(tmp_path):
 
     start = {"actual_start": "2025-01-06"}
     # Update 1, data date 2025-01-20: T1 done 01-06..01-10; T2 and T5 started 01-13.
-    first = update({"START": start, "T1": {"actual_start": "2025-01-06", "actual_finish": "2025-01-10"},
-                    "T2": {"actual_start": "2025-01-13", "remaining": 2},
-                    "T5": {"actual_start": "2025-01-13", "remaining": 3}})
+    first = update(
+        {
+            "START": start,
+            "T1": {"actual_start": "2025-01-06", "actual_finish": "2025-01-10"},
+            "T2": {"actual_start": "2025-01-13", "remaining": 2},
+            "T5": {"actual_start": "2025-01-13", "remaining": 3},
+        }
+    )
     # Update 2, data date 2025-02-03:
     # - T1's finish now reads 01-09 (reported as 01-10 before): changed, and entered for a
     #   day before update 1's data date that update 1 reported otherwise: retrospective;
@@ -130,12 +167,23 @@ def progress_case(tmp_path):
     # - T3 started 01-16, before update 1's data date, which showed it not started:
     #   retrospective (not a change: there was no earlier date to change);
     # - T5's actual start is cleared: changed (to nothing), not retrospective.
-    second = update({"START": start, "T1": {"actual_start": "2025-01-06", "actual_finish": "2025-01-09"},
-                     "T2": {"actual_start": "2025-01-13", "actual_finish": "2025-01-21"},
-                     "T3": {"actual_start": "2025-01-16", "remaining": 2}})
-    return write_case(tmp_path, activities=activities, links=links, snapshots={
-        "u01": {"data_date": "2025-01-20", "activities": first, "label": "Update 1"},
-        "u02": {"data_date": "2025-02-03", "activities": second, "label": "Update 2"}})
+    second = update(
+        {
+            "START": start,
+            "T1": {"actual_start": "2025-01-06", "actual_finish": "2025-01-09"},
+            "T2": {"actual_start": "2025-01-13", "actual_finish": "2025-01-21"},
+            "T3": {"actual_start": "2025-01-16", "remaining": 2},
+        }
+    )
+    return write_case(
+        tmp_path,
+        activities=activities,
+        links=links,
+        snapshots={
+            "u01": {"data_date": "2025-01-20", "activities": first, "label": "Update 1"},
+            "u02": {"data_date": "2025-02-03", "activities": second, "label": "Update 2"},
+        },
+    )
 
 
 def test_actual_dates_changed_between_updates(tmp_path):
@@ -171,11 +219,18 @@ def test_future_actuals_are_checked_at_load(tmp_path):
     bad = [dict(a) for a in activities]
     bad[1].update(actual_start="2025-01-13", remaining=3)
     with pytest.raises(CaseError, match="on or after the data date"):
-        load_case(write_case(tmp_path / "bad", activities=activities, links=links,
-                             snapshots={"u01": {"data_date": "2025-01-13", "activities": bad}}))
+        load_case(
+            write_case(
+                tmp_path / "bad",
+                activities=activities,
+                links=links,
+                snapshots={"u01": {"data_date": "2025-01-13", "activities": bad}},
+            )
+        )
 
 
 # -- out-of-sequence progress ---------------------------------------------------------------
+
 
 def test_out_of_sequence_progress(tmp_path):
     # Update at 2025-01-20:
@@ -189,23 +244,31 @@ def test_out_of_sequence_progress(tmp_path):
     #   so tasks starting 01-06 are in sequence.
     names = ["A", "B", "C", "D", "E", "F", "G", "H"]
     activities = [start_milestone()] + [task(n, 5) for n in names] + [finish_milestone()]
-    links = [link("START", n) for n in ("A", "C", "E", "G")] + [
-        link("A", "B"), link("C", "D"), link("E", "F", lag=-2), link("G", "H")] + [
-        link(n, "FINISH") for n in ("B", "D", "F", "H")]
+    links = (
+        [link("START", n) for n in ("A", "C", "E", "G")]
+        + [link("A", "B"), link("C", "D"), link("E", "F", lag=-2), link("G", "H")]
+        + [link(n, "FINISH") for n in ("B", "D", "F", "H")]
+    )
     progress = [dict(a) for a in activities]
-    facts = {"START": {"actual_start": "2025-01-06"},
-             "A": {"actual_start": "2025-01-06", "remaining": 2},
-             "B": {"actual_start": "2025-01-13", "remaining": 3},
-             "C": {"actual_start": "2025-01-06", "actual_finish": "2025-01-10"},
-             "D": {"actual_start": "2025-01-10", "remaining": 1},
-             "E": {"actual_start": "2025-01-06", "actual_finish": "2025-01-14"},
-             "F": {"actual_start": "2025-01-13", "remaining": 1},
-             "G": {"actual_start": "2025-01-06", "actual_finish": "2025-01-10"},
-             "H": {"actual_start": "2025-01-13", "remaining": 2}}
+    facts = {
+        "START": {"actual_start": "2025-01-06"},
+        "A": {"actual_start": "2025-01-06", "remaining": 2},
+        "B": {"actual_start": "2025-01-13", "remaining": 3},
+        "C": {"actual_start": "2025-01-06", "actual_finish": "2025-01-10"},
+        "D": {"actual_start": "2025-01-10", "remaining": 1},
+        "E": {"actual_start": "2025-01-06", "actual_finish": "2025-01-14"},
+        "F": {"actual_start": "2025-01-13", "remaining": 1},
+        "G": {"actual_start": "2025-01-06", "actual_finish": "2025-01-10"},
+        "H": {"actual_start": "2025-01-13", "remaining": 2},
+    }
     for row in progress:
         row.update(facts.get(row["id"], {}))
-    root = write_case(tmp_path, activities=activities, links=links,
-                      snapshots={"u01": {"data_date": "2025-01-20", "activities": progress}})
+    root = write_case(
+        tmp_path,
+        activities=activities,
+        links=links,
+        snapshots={"u01": {"data_date": "2025-01-20", "activities": progress}},
+    )
     found = checks_of(root, "u01")["out_of_sequence"]
     assert rows(found, "pred", "succ", "succ_actual_start", "pred_actual_finish") == [
         ("A", "B", "2025-01-13", None),
@@ -215,6 +278,7 @@ def test_out_of_sequence_progress(tmp_path):
 
 # -- redundant links --------------------------------------------------------------------------
 
+
 def redundancy_case():
     # A (2) -> B (3) -> C (1) with A -> C lag 0: implied by the path through B: redundant.
     # D -> E (5) -> F with D -> F lag 10: the path implies 0 + 5 + 0 = 5 < 10: kept.
@@ -222,15 +286,49 @@ def redundancy_case():
     # J -SS-> K -> L with J -> L: the path holds an SS link: kept.
     # M -> N (lag -1, a lead) -> O with M -> O: the path holds a lead: kept.
     # P -> Q -> R -> S with P -> S: a path of three links: redundant (every length searched).
-    durations = {"A": 2, "B": 3, "C": 1, "D": 1, "E": 5, "F": 1, "G": 1, "H": 5, "I": 1, "J": 1, "K": 1, "L": 1,
-                 "M": 1, "N": 1, "O": 1, "P": 1, "Q": 1, "R": 1, "S": 1}
+    durations = {
+        "A": 2,
+        "B": 3,
+        "C": 1,
+        "D": 1,
+        "E": 5,
+        "F": 1,
+        "G": 1,
+        "H": 5,
+        "I": 1,
+        "J": 1,
+        "K": 1,
+        "L": 1,
+        "M": 1,
+        "N": 1,
+        "O": 1,
+        "P": 1,
+        "Q": 1,
+        "R": 1,
+        "S": 1,
+    }
     activities = [task(a, d) for a, d in durations.items()]
-    links = [link("A", "B"), link("B", "C"), link("A", "C"),
-             link("D", "E"), link("E", "F"), link("D", "F", lag=10),
-             link("G", "H"), link("H", "I"), link("G", "I", lag=5),
-             link("J", "K", "SS"), link("K", "L"), link("J", "L"),
-             link("M", "N", lag=-1), link("N", "O"), link("M", "O"),
-             link("P", "Q"), link("Q", "R"), link("R", "S"), link("P", "S")]
+    links = [
+        link("A", "B"),
+        link("B", "C"),
+        link("A", "C"),
+        link("D", "E"),
+        link("E", "F"),
+        link("D", "F", lag=10),
+        link("G", "H"),
+        link("H", "I"),
+        link("G", "I", lag=5),
+        link("J", "K", "SS"),
+        link("K", "L"),
+        link("J", "L"),
+        link("M", "N", lag=-1),
+        link("N", "O"),
+        link("M", "O"),
+        link("P", "Q"),
+        link("Q", "R"),
+        link("R", "S"),
+        link("P", "S"),
+    ]
     return activities, links
 
 
@@ -309,7 +407,7 @@ def test_redundant_links_with_lags_match_longest_paths(seed):
                 continue
             between = (nx.descendants(graph, x) | {x}) & (nx.ancestors(graph, w) | {w})
             sub = graph.subgraph(between).copy()
-            for a, b, data in sub.edges(data=True):
+            for _a, b, data in sub.edges(data=True):
                 data["weight"] = data["lag"] + (0 if b == w else int(duration[b]))
             # Every activity of the sub-graph lies on a path from x to w and no weight is
             # negative, so its longest path runs from x to w.
@@ -323,24 +421,40 @@ def test_redundant_links_with_lags_match_longest_paths(seed):
 
 # -- corrections --------------------------------------------------------------------------------
 
+
 def test_corrections_are_listed_with_the_original_value(tmp_path):
     activities = [start_milestone(), task("A", 5), finish_milestone()]
     links = [link("START", "A"), link("A", "FINISH")]
     progress = [dict(a) for a in activities]
     progress[0]["actual_start"] = "2025-01-06"
     progress[1].update(actual_start="2025-01-06", remaining=2)
-    root = write_case(tmp_path, activities=activities, links=links,
-                      snapshots={"u01": {"data_date": "2025-01-08", "activities": progress, "label": "Update 1"}},
-                      files={"corrections.csv": [{"snapshot": "Update 1", "table": "activities", "key": "A",
-                                                  "column": "remaining", "value": "4",
-                                                  "reason": "progress report gives 4 days"}]})
+    root = write_case(
+        tmp_path,
+        activities=activities,
+        links=links,
+        snapshots={"u01": {"data_date": "2025-01-08", "activities": progress, "label": "Update 1"}},
+        files={
+            "corrections.csv": [
+                {
+                    "snapshot": "Update 1",
+                    "table": "activities",
+                    "key": "A",
+                    "column": "remaining",
+                    "value": "4",
+                    "reason": "progress report gives 4 days",
+                }
+            ]
+        },
+    )
     found = checks_of(root, "u01")["corrections"]
     assert rows(found, "table", "key", "column", "original", "corrected", "row") == [
-        ("activities", "A", "remaining", "2", "4", 2)]
+        ("activities", "A", "remaining", "2", "4", 2)
+    ]
     assert checks_of(root, "baseline")["corrections"].count == 0
 
 
 # -- a synthetic programme ----------------------------------------------------------------
+
 
 def test_synthetic_case_against_references(tmp_path):
     # A random valid case (delay.synth) with two updates. References: networkx degrees for
@@ -368,7 +482,9 @@ def test_synthetic_case_against_references(tmp_path):
         assert (set(logic.activities), logic.denominator) == (no_logic, int(task.sum()))
         json.dumps(check_snapshot(case, snap))
     merged = case.snapshot("u01").activities.merge(case.snapshot("u02").activities, on="id", suffixes=("_a", "_b"))
-    moved = sum(int(((merged[f"{c}_a"] != merged[f"{c}_b"]) & merged[f"{c}_b"].notna()).sum())
-                for c in ("actual_start", "actual_finish"))
+    moved = sum(
+        int(((merged[f"{c}_a"] != merged[f"{c}_b"]) & merged[f"{c}_b"].notna()).sum())
+        for c in ("actual_start", "actual_finish")
+    )
     progress = compare(case, "u01", "u02").of("progress")
     assert int((progress["field"] != "remaining").sum()) == moved

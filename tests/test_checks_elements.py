@@ -16,7 +16,6 @@ import sys
 from pathlib import Path
 
 import pytest
-
 from casewriter import write_case
 
 from delay.case import load_case
@@ -26,22 +25,32 @@ DEMO = Path(__file__).resolve().parent.parent / "case_demo"
 
 
 def element(element_id, wbs, classification, x, y=0.0, z=0.0, dx=0.9, dy=0.1, dz=2.1):
-    return {"id": element_id, "name": f"Element {element_id}", "wbs": wbs, "classification": classification,
-            "x": x, "y": y, "z": z, "dx": dx, "dy": dy, "dz": dz}
+    return {
+        "id": element_id,
+        "name": f"Element {element_id}",
+        "wbs": wbs,
+        "classification": classification,
+        "x": x,
+        "y": y,
+        "z": z,
+        "dx": dx,
+        "dy": dy,
+        "dz": dz,
+    }
 
 
 ELEMENTS = [
     element("E1", "W1", "door", 5.0),
-    element("E2", "W1", "door", 5.0),             # an exact copy of E1
-    element("E3", "W1", "door", 5.0008),          # 0.8 mm off: the same place
-    element("E4", "W1", "door", 5.0020),          # 1.2 mm from E3, 2 mm from E1: apart
-    element("E5", "W1", "window", 5.0),           # same box, another classification
-    element("E6", "W9", "door", 20.0),            # wbs W9: no activity has it
-    element("E7", "W1", "column", 0.00249),       # 0.02 mm either side of 2.5 mm,
-    element("E8", "W1", "column", 0.00251),       # a cell boundary of the search grid
-    element("E9", "W1", "slab", 10.0),            # E9 ~ E10 ~ E11, each 0.9 mm from the
-    element("E10", "W1", "slab", 10.0009),        # next: one group, although E9 and E11
-    element("E11", "W1", "slab", 10.0018),        # are 1.8 mm apart
+    element("E2", "W1", "door", 5.0),  # an exact copy of E1
+    element("E3", "W1", "door", 5.0008),  # 0.8 mm off: the same place
+    element("E4", "W1", "door", 5.0020),  # 1.2 mm from E3, 2 mm from E1: apart
+    element("E5", "W1", "window", 5.0),  # same box, another classification
+    element("E6", "W9", "door", 20.0),  # wbs W9: no activity has it
+    element("E7", "W1", "column", 0.00249),  # 0.02 mm either side of 2.5 mm,
+    element("E8", "W1", "column", 0.00251),  # a cell boundary of the search grid
+    element("E9", "W1", "slab", 10.0),  # E9 ~ E10 ~ E11, each 0.9 mm from the
+    element("E10", "W1", "slab", 10.0009),  # next: one group, although E9 and E11
+    element("E11", "W1", "slab", 10.0018),  # are 1.8 mm apart
     {**element("E12", "W1", "door", 5.0), "dz": ""},  # no complete box: not compared
 ]
 
@@ -50,11 +59,12 @@ ELEMENTS = [
 def case(tmp_path):
     activities = [
         {"id": "A", "name": "Doors", "duration": 2, "wbs": "W1"},
-        {"id": "B", "name": "Roof", "duration": 2, "wbs": "W2"},   # no element carries W2
+        {"id": "B", "name": "Roof", "duration": 2, "wbs": "W2"},  # no element carries W2
         {"id": "C", "name": "Handover", "duration": 0, "wbs": ""},  # no wbs: not judged
     ]
-    root = write_case(tmp_path, activities=activities, links=[{"pred": "A", "succ": "B"}],
-                      files={"elements.csv": ELEMENTS})
+    root = write_case(
+        tmp_path, activities=activities, links=[{"pred": "A", "succ": "B"}], files={"elements.csv": ELEMENTS}
+    )
     return load_case(root)
 
 
@@ -65,7 +75,8 @@ def brute_force_groups(rows):
     group = {r["id"]: {r["id"]} for r in boxes}
     for a, b in itertools.combinations(boxes, 2):
         if a["classification"] == b["classification"] and all(
-                abs(float(a[c]) - float(b[c])) <= 0.001 + 1e-9 for c in ("x", "y", "z", "dx", "dy", "dz")):
+            abs(float(a[c]) - float(b[c])) <= 0.001 + 1e-9 for c in ("x", "y", "z", "dx", "dy", "dz")
+        ):
             merged = group[a["id"]] | group[b["id"]]
             for member in merged:
                 group[member] = merged
@@ -98,6 +109,7 @@ def test_no_elements_is_not_applicable(tmp_path):
 
 # -- the demo case ---------------------------------------------------------------------------
 
+
 @pytest.fixture(scope="module")
 def demo(tmp_path_factory):
     """The demo case folder: case_demo/ when it has been generated, else generated from
@@ -108,8 +120,9 @@ def demo(tmp_path_factory):
     if not script.exists():
         pytest.skip("the demo case and its generator are not there yet")
     out = tmp_path_factory.mktemp("demo") / "case"
-    subprocess.run([sys.executable, str(script), "--output", str(out), "--no-self-check"], check=True,
-                   capture_output=True)
+    subprocess.run(
+        [sys.executable, str(script), "--output", str(out), "--no-self-check"], check=True, capture_output=True
+    )
     return out
 
 
@@ -133,15 +146,27 @@ def test_demo_retrospective_edits_exactly(demo):
     for snap in case.updates:
         checks = {c.key: c for c in data_checks(case, snap)}
         for row in checks["actual_date_changes"].items.itertuples(index=False):
-            changes.append((row.activity, row.column, row.earlier_snapshot, snap.folder,
-                            str(row.earlier_value.date()), str(row.later_value.date())))
+            changes.append(
+                (
+                    row.activity,
+                    row.column,
+                    row.earlier_snapshot,
+                    snap.folder,
+                    str(row.earlier_value.date()),
+                    str(row.later_value.date()),
+                )
+            )
         for row in checks["retrospective_edits"].items.itertuples(index=False):
             edits.append((row.activity, row.column, snap.folder, str(row.value.date())))
-    assert changes == [(k["activity"], k["column"], k["first_reported_in"], k["changed_in"], k["first_value"],
-                        k["changed_value"]) for k in known]
+    assert changes == [
+        (k["activity"], k["column"], k["first_reported_in"], k["changed_in"], k["first_value"], k["changed_value"])
+        for k in known
+    ]
     assert edits == [(k["activity"], k["column"], k["changed_in"], k["changed_value"]) for k in known]
     if case.asbuilt_snapshot is not None:
         checks = {c.key: c for c in data_checks(case, "asbuilt")}
-        restored = [(r.activity, r.column, str(r.later_value.date()))
-                    for r in checks["actual_date_changes"].items.itertuples(index=False)]
+        restored = [
+            (r.activity, r.column, str(r.later_value.date()))
+            for r in checks["actual_date_changes"].items.itertuples(index=False)
+        ]
         assert restored == [(k["activity"], k["column"], k["asbuilt_value"]) for k in known]

@@ -18,7 +18,6 @@ import datetime as dt
 
 import numpy as np
 import pytest
-
 from casewriter import write_case
 
 from delay.case import load_case
@@ -58,10 +57,11 @@ def metrics_of(root, snapshot="baseline"):
 
 
 def replace_link(links, pred, succ, **changes):
-    return [dict(l, **changes) if (l["pred"], l["succ"]) == (pred, succ) else l for l in links]
+    return [dict(lk, **changes) if (lk["pred"], lk["succ"]) == (pred, succ) else lk for lk in links]
 
 
 # -- 1 logic: at most 5 % of incomplete tasks without a predecessor or a successor -----------
+
 
 def test_logic_passes_at_one_in_twenty_one(tmp_path):
     # 20 chained tasks plus X, which follows T01 and has no successor. Incomplete tasks
@@ -90,16 +90,17 @@ def test_logic_fails_at_two_in_twenty_two(tmp_path):
 
 # -- 2-4 leads (none), lags (at most 5 %), relationship types (at least 90 % FS) -------------
 
+
 def relationship_case(extra_start_to_start=False):
     # Links into incomplete tasks (the assessment's "predecessor relationships of
     # incomplete tasks", as recalled): START->T01, T01->T02 ... T19->T20: 20 links.
     # T20->FINISH runs into a milestone and is not counted, although it carries a lag.
     activities, links = chain(20, 2)
-    links = replace_link(links, "T05", "T06", lag=-1)          # a lead
-    links = replace_link(links, "T10", "T11", lag=3)           # a lag
+    links = replace_link(links, "T05", "T06", lag=-1)  # a lead
+    links = replace_link(links, "T10", "T11", lag=3)  # a lag
     links = replace_link(links, "T12", "T13", type="SS")
     links = replace_link(links, "T14", "T15", type="FF")
-    links = replace_link(links, "T20", "FINISH", lag=5)        # into a milestone: not counted
+    links = replace_link(links, "T20", "FINISH", lag=5)  # into a milestone: not counted
     if extra_start_to_start:
         links = replace_link(links, "T16", "T17", type="SS")
     return activities, links
@@ -140,8 +141,12 @@ def test_relationships_into_complete_tasks_are_left_out(tmp_path):
             row["actual_start"] = "2025-01-06"
         if row["id"] == "T01":
             row.update(actual_start="2025-01-06", actual_finish="2025-01-07")
-    root = write_case(tmp_path, activities=activities, links=links,
-                      snapshots={"u01": {"data_date": "2025-01-13", "activities": progress}})
+    root = write_case(
+        tmp_path,
+        activities=activities,
+        links=links,
+        snapshots={"u01": {"data_date": "2025-01-13", "activities": progress}},
+    )
     found = metrics_of(root, "u01")
     assert (found["lags"].count, found["lags"].denominator, found["lags"].percent) == (1, 19, 5.26)
     assert found["lags"].passed is False
@@ -149,6 +154,7 @@ def test_relationships_into_complete_tasks_are_left_out(tmp_path):
 
 
 # -- 5 hard constraints: at most 5 % of incomplete tasks -----------------------------------
+
 
 def test_hard_constraints_pass_at_one_in_twenty(tmp_path):
     # T03 latest_finish (hard); T07 earliest_start (soft, not counted). 1 / 20 = 5 %: pass.
@@ -168,8 +174,12 @@ def test_hard_constraints_fail_and_milestones_are_left_out(tmp_path):
     # T11 fixed_finish (its own early finish, 2025-01-20, k = 10). FINISH carries a
     # latest_finish but is a milestone, outside the task count. 3 / 20 = 15 %: fail.
     activities, links = chain(20, 1)
-    dates = {"T03": ("latest_finish", "2025-12-31"), "T09": ("fixed_start", "2025-01-16"),
-             "T11": ("fixed_finish", "2025-01-20"), "FINISH": ("latest_finish", "2025-12-31")}
+    dates = {
+        "T03": ("latest_finish", "2025-12-31"),
+        "T09": ("fixed_start", "2025-01-16"),
+        "T11": ("fixed_finish", "2025-01-20"),
+        "FINISH": ("latest_finish", "2025-12-31"),
+    }
     for row in activities:
         if row["id"] in dates:
             row.update(constraint=dates[row["id"]][0], constraint_date=dates[row["id"]][1])
@@ -179,6 +189,7 @@ def test_hard_constraints_fail_and_milestones_are_left_out(tmp_path):
 
 
 # -- 6 high float: at most 5 % of incomplete tasks with total float above 44 work days ------
+
 
 def float_case(extra=False):
     # The chain T01..T20 of 3 days each is 60 work days long and critical. B (15 days)
@@ -209,14 +220,19 @@ def test_high_float_fails_at_two_in_twenty_three(tmp_path):
 
 # -- 7 negative float: none -------------------------------------------------------------------
 
+
 def test_negative_float_from_a_latest_finish_that_cannot_be_met(tmp_path):
     # START -> T1 (5) -> T2 (5) -> T3 (5) -> FINISH; T2 must finish by 2025-01-15 (k = 7,
     # late finish boundary 8) but finishes on 2025-01-17 (early finish boundary 10):
     # T2 total float 8 - 10 = -2; T1's late finish is T2's late start 8 - 5 = 3 against an
     # early finish of 5: -2; T3 finishes the project: 0. Count 2 of 3 tasks: fail.
-    activities = [start_milestone(), task("T1", 5),
-                  task("T2", 5, constraint="latest_finish", constraint_date="2025-01-15"),
-                  task("T3", 5), finish_milestone()]
+    activities = [
+        start_milestone(),
+        task("T1", 5),
+        task("T2", 5, constraint="latest_finish", constraint_date="2025-01-15"),
+        task("T3", 5),
+        finish_milestone(),
+    ]
     links = [link("START", "T1"), link("T1", "T2"), link("T2", "T3"), link("T3", "FINISH")]
     negative = metrics_of(write_case(tmp_path, activities=activities, links=links))["negative_float"]
     assert (negative.count, negative.denominator, negative.passed) == (2, 3, False)
@@ -225,6 +241,7 @@ def test_negative_float_from_a_latest_finish_that_cannot_be_met(tmp_path):
 
 
 # -- 8 high duration: at most 5 % of incomplete tasks planned above 44 work days -----------
+
 
 def test_high_duration_boundary(tmp_path):
     # T01 is 45 days (above 44), T02 44 (not above), T03..T20 one day: 1 / 20 = 5 %: pass.
@@ -250,6 +267,7 @@ def test_high_duration_fails_above_five_percent(tmp_path):
 
 
 # -- 9 invalid dates: none ---------------------------------------------------------------------
+
 
 def test_invalid_date_rule_on_arrays():
     # Data day D. Row 0: not started, forecast start D - 1 (invalid). Row 1: not started,
@@ -278,13 +296,18 @@ def test_invalid_dates_none_in_a_valid_update(tmp_path):
             row.update(actual_start="2025-01-06", actual_finish="2025-01-07")
         if row["id"] == "T02":
             row.update(actual_start="2025-01-08", remaining=1)
-    root = write_case(tmp_path, activities=activities, links=links,
-                      snapshots={"u01": {"data_date": "2025-01-13", "activities": progress}})
+    root = write_case(
+        tmp_path,
+        activities=activities,
+        links=links,
+        snapshots={"u01": {"data_date": "2025-01-13", "activities": progress}},
+    )
     invalid = metrics_of(root, "u01")["invalid_dates"]
     assert (invalid.count, invalid.denominator, invalid.passed) == (0, 20, True)
 
 
 # -- 10 resources: reported only; "not applicable" without resource data -----------------
+
 
 def test_resources_not_applicable_without_resource_data(tmp_path):
     activities, links = chain(3, 1)
@@ -306,6 +329,7 @@ def test_resources_counted_when_given(tmp_path):
 
 # -- 11 missed activities (at most 5 %) and 14 baseline execution index (at least 0.95) ---
 
+
 def execution_case(tmp_path, data_date, finished):
     # Baseline: START -> T1 .. T10 (5 days each) -> FINISH, and T11 (30 days) in parallel.
     # Baseline finishes (numpy.busday_offset from 2025-01-06): T1 01-10, T2 01-17, T3 01-24,
@@ -321,8 +345,12 @@ def execution_case(tmp_path, data_date, finished):
         if row["id"] in finished:
             start, finish, remaining = finished[row["id"]]
             row.update(actual_start=start, actual_finish=finish, remaining=remaining)
-    return write_case(tmp_path, activities=activities, links=links,
-                      snapshots={"u01": {"data_date": data_date, "activities": progress}})
+    return write_case(
+        tmp_path,
+        activities=activities,
+        links=links,
+        snapshots={"u01": {"data_date": data_date, "activities": progress}},
+    )
 
 
 def test_missed_activities_and_baseline_execution_index_fail(tmp_path):
@@ -331,10 +359,17 @@ def test_missed_activities_and_baseline_execution_index_fail(tmp_path):
     # started: missed T2, T3, T4, T5 = 4 / 5 = 80 %: fail.
     # BEI counts every baseline task complete, also T11 finished ahead of its 02-14 baseline
     # finish: T1, T2, T3, T11 = 4 of 5 due = 0.80 < 0.95: fail.
-    root = execution_case(tmp_path, "2025-02-10", {
-        "T1": ("2025-01-06", "2025-01-10", None), "T2": ("2025-01-13", "2025-01-20", None),
-        "T3": ("2025-01-21", "2025-01-29", None), "T4": ("2025-01-30", None, 3),
-        "T11": ("2025-01-06", "2025-02-05", None)})
+    root = execution_case(
+        tmp_path,
+        "2025-02-10",
+        {
+            "T1": ("2025-01-06", "2025-01-10", None),
+            "T2": ("2025-01-13", "2025-01-20", None),
+            "T3": ("2025-01-21", "2025-01-29", None),
+            "T4": ("2025-01-30", None, 3),
+            "T11": ("2025-01-06", "2025-02-05", None),
+        },
+    )
     assert str(np.busday_offset("2025-01-06", 29)) == "2025-02-14"  # T11's baseline finish
     found = metrics_of(root, "u01")
     missed = found["missed_activities"]
@@ -348,8 +383,9 @@ def test_missed_activities_and_baseline_execution_index_fail(tmp_path):
 def test_missed_activities_and_baseline_execution_index_pass(tmp_path):
     # Data date 2025-01-20: due T1 (01-10) and T2 (01-17), both finished on time: missed
     # 0 / 2 = 0 %: pass; BEI 2 / 2 = 1.00: pass.
-    root = execution_case(tmp_path, "2025-01-20", {
-        "T1": ("2025-01-06", "2025-01-10", None), "T2": ("2025-01-13", "2025-01-17", None)})
+    root = execution_case(
+        tmp_path, "2025-01-20", {"T1": ("2025-01-06", "2025-01-10", None), "T2": ("2025-01-13", "2025-01-17", None)}
+    )
     found = metrics_of(root, "u01")
     assert (found["missed_activities"].count, found["missed_activities"].denominator) == (0, 2)
     assert found["missed_activities"].passed is True
@@ -365,6 +401,7 @@ def test_baseline_execution_not_applicable_on_the_baseline(tmp_path):
 
 
 # -- 12 critical path test: completion moves by the delay added (common practice) ----------
+
 
 def test_critical_path_test_passes_on_a_continuous_path(tmp_path):
     # START -> T1 (5) -> T2 (5) -> FINISH; T1 is the first critical task of the driving
@@ -382,8 +419,12 @@ def test_critical_path_test_fails_when_a_constraint_breaks_the_path(tmp_path):
     # (605 days from 2025-01-06) finishes on busday_offset(2025-01-06, 604) = 2027-04-30
     # and that is the new completion: busday_count(2025-01-17, 2027-04-30) = 595 work days,
     # not 600: fail, and T1 is named.
-    activities = [start_milestone(), task("T1", 5),
-                  task("T2", 5, constraint="fixed_start", constraint_date="2025-01-13"), finish_milestone()]
+    activities = [
+        start_milestone(),
+        task("T1", 5),
+        task("T2", 5, constraint="fixed_start", constraint_date="2025-01-13"),
+        finish_milestone(),
+    ]
     links = [link("START", "T1"), link("T1", "T2"), link("T2", "FINISH")]
     new_finish = np.busday_offset("2025-01-06", 604)
     assert str(new_finish) == "2027-04-30"
@@ -396,6 +437,7 @@ def test_critical_path_test_fails_when_a_constraint_breaks_the_path(tmp_path):
 
 # -- 13 critical path length index: at least 0.95 ------------------------------------------
 
+
 def cpli_case(tmp_path, completion, extensions=None):
     # START -> T1 (20 days) -> FINISH from 2025-01-06: forecast completion
     # busday_offset(2025-01-06, 19) = 2025-01-31. Critical path length: work days
@@ -405,8 +447,14 @@ def cpli_case(tmp_path, completion, extensions=None):
     files = {}
     if extensions:
         files["extensions_granted.csv"] = extensions
-        files["sections.csv"] = [{"section": "S1", "name": "Part of the works", "completion_activity": "T1",
-                                  "contract_completion": completion}]
+        files["sections.csv"] = [
+            {
+                "section": "S1",
+                "name": "Part of the works",
+                "completion_activity": "T1",
+                "contract_completion": completion,
+            }
+        ]
     return write_case(tmp_path, activities=activities, links=links, completion=completion, files=files)
 
 
@@ -415,9 +463,14 @@ def test_cpli_against_the_contract_completion_in_force(tmp_path):
     # section) on 2025-01-03, before the baseline's data date = 2025-01-31; 100 days granted
     # for section S1 (whose milestone is T1, not the project's completion) do not count. Work
     # days to it: busday_count(2025-01-06, 2025-02-01) = 20. CPLI = 20 / 20 = 1.00 >= 0.95: pass.
-    root = cpli_case(tmp_path, "2025-01-24", extensions=[
-        {"id": "E1", "granted_on": "2025-01-03", "days": 7, "section": ""},
-        {"id": "E2", "granted_on": "2025-01-03", "days": 100, "section": "S1"}])
+    root = cpli_case(
+        tmp_path,
+        "2025-01-24",
+        extensions=[
+            {"id": "E1", "granted_on": "2025-01-03", "days": 7, "section": ""},
+            {"id": "E2", "granted_on": "2025-01-03", "days": 100, "section": "S1"},
+        ],
+    )
     case = load_case(root)
     assert str(contract_completion_in_force(case)) == "2025-01-31"
     cpli = {m.key: m for m in metric_list(case)}["cpli"]
@@ -430,8 +483,9 @@ def test_cpli_uses_the_completion_in_force_at_the_data_date(tmp_path):
     # uses its data date. The 7 days granted on 2025-01-10 are not yet in force at the
     # baseline's data date 2025-01-06: CPLI 15 / 20 = 0.75, as without the extension; after every
     # grant the completion in force is 2025-01-31.
-    root = cpli_case(tmp_path, "2025-01-24", extensions=[
-        {"id": "E1", "granted_on": "2025-01-10", "days": 7, "section": ""}])
+    root = cpli_case(
+        tmp_path, "2025-01-24", extensions=[{"id": "E1", "granted_on": "2025-01-10", "days": 7, "section": ""}]
+    )
     case = load_case(root)
     assert str(contract_completion_in_force(case)) == "2025-01-31"
     assert str(contract_completion_in_force(case, at=dt.date(2025, 1, 6))) == "2025-01-24"
@@ -446,8 +500,17 @@ def test_a_grant_naming_the_whole_works_section_is_the_whole_works(tmp_path):
     root = cpli_case(tmp_path, "2025-01-24")
     from casewriter import write_csv
 
-    write_csv(root / "sections.csv", [{"section": "W", "name": "The whole of the works",
-                                       "completion_activity": "FINISH", "contract_completion": "2025-01-24"}])
+    write_csv(
+        root / "sections.csv",
+        [
+            {
+                "section": "W",
+                "name": "The whole of the works",
+                "completion_activity": "FINISH",
+                "contract_completion": "2025-01-24",
+            }
+        ],
+    )
     write_csv(root / "extensions_granted.csv", [{"id": "E1", "granted_on": "2025-01-03", "days": 7, "section": "W"}])
     assert str(contract_completion_in_force(load_case(root))) == "2025-01-31"
 
@@ -469,6 +532,7 @@ def test_cpli_boundary_passes_at_ninety_five_hundredths(tmp_path):
 
 
 # -- the table as a whole ------------------------------------------------------------------
+
 
 def test_every_metric_in_order_with_stable_columns(tmp_path):
     activities, links = chain(3, 1)

@@ -13,9 +13,9 @@ import json
 from pathlib import Path
 
 import pytest
+from casewriter import write_case, write_csv
 from click.testing import CliRunner
 
-from casewriter import write_case, write_csv
 from delay.cli import cli
 
 ACTIVITIES = [
@@ -36,8 +36,11 @@ def run(*args):
 
 
 def digest(folder: Path) -> dict[str, str]:
-    return {str(p.relative_to(folder)): hashlib.sha256(p.read_bytes()).hexdigest()
-            for p in sorted(folder.rglob("*")) if p.is_file()}
+    return {
+        str(p.relative_to(folder)): hashlib.sha256(p.read_bytes()).hexdigest()
+        for p in sorted(folder.rglob("*"))
+        if p.is_file()
+    }
 
 
 def test_help_reads_like_a_manual():
@@ -61,16 +64,28 @@ BROKEN = {
     # name: (change to the rows, file, row, column) - rows counted as in a spreadsheet
     "unknown link type": (
         lambda rows, links: links.__setitem__(1, {**links[1], "type": "XX"}),
-        "snapshots/baseline/links.csv", 3, "type"),
+        "snapshots/baseline/links.csv",
+        3,
+        "type",
+    ),
     "negative duration": (
         lambda rows, links: rows.__setitem__(2, {**rows[2], "duration": -1}),
-        "snapshots/baseline/activities.csv", 4, "duration"),
+        "snapshots/baseline/activities.csv",
+        4,
+        "duration",
+    ),
     "link to unknown activity": (
         lambda rows, links: links.__setitem__(2, {**links[2], "succ": "NOPE"}),
-        "snapshots/baseline/links.csv", 4, "succ"),
+        "snapshots/baseline/links.csv",
+        4,
+        "succ",
+    ),
     "logic loop": (
         lambda rows, links: links.append({"pred": "B", "succ": "A", "type": "FS", "lag": 0}),
-        "snapshots/baseline/links.csv", None, None),
+        "snapshots/baseline/links.csv",
+        None,
+        None,
+    ),
 }
 
 
@@ -84,8 +99,11 @@ def test_bad_input_exits_2_with_plain_lines_and_writes_nothing(tmp_path, name, c
     root = write_case(tmp_path / "case", activities=rows, links=links)
     before = digest(root)
     out = tmp_path / "out"
-    args = {"validate": ("validate", root), "schedule": ("schedule", root),
-            "demo": ("demo", "--case", root, "--out", out)}[command]
+    args = {
+        "validate": ("validate", root),
+        "schedule": ("schedule", root),
+        "demo": ("demo", "--case", root, "--out", out),
+    }[command]
     result = CliRunner().invoke(cli, [str(a) for a in args])
     assert result.exit_code == 2, result.output
     assert "Traceback" not in result.output
@@ -133,7 +151,15 @@ def test_schedule_json_contract(tmp_path):
     assert set(payload) == {"snapshot", "label", "data_date", "completion", "activities"}
     assert payload["snapshot"] == "baseline"
     assert set(payload["activities"][0]) == {
-        "activity", "early_start", "early_finish", "late_start", "late_finish", "total_float", "free_float", "critical"}
+        "activity",
+        "early_start",
+        "early_finish",
+        "late_start",
+        "late_finish",
+        "total_float",
+        "free_float",
+        "critical",
+    }
     by_id = {a["activity"]: a for a in payload["activities"]}
     # Hand-worked (case-format time convention, 5-day calendar from Monday 2025-01-06):
     # A occupies Mon 6 .. Wed 8, B Thu 9 .. Fri 10, the finish milestone is dated Fri 10.
@@ -217,14 +243,27 @@ def test_former_command_names_run_the_command_they_became(tmp_path):
     # names still run, give the same output, and --help lists each command once
     # A occupies Mon 6 .. Wed 8 Jan 2025, B Thu 9 .. Fri 10; the as-built record has B two
     # days late, and one event of the employer's lengthens it by two days
-    events = [{"id": "E1", "title": "Late pour permit", "party": "employer", "start": "2025-01-09",
-               "finish": "2025-01-14", "activities": "B", "impact": "extend", "days": 2}]
-    asbuilt = [{"id": "START", "actual_start": "2025-01-06", "actual_finish": "2025-01-06"},
-               {"id": "A", "actual_start": "2025-01-06", "actual_finish": "2025-01-08"},
-               {"id": "B", "actual_start": "2025-01-09", "actual_finish": "2025-01-14"},
-               {"id": "END", "actual_start": "2025-01-14", "actual_finish": "2025-01-14"}]
-    root = write_case(tmp_path / "case", activities=ACTIVITIES, links=LINKS,
-                      files={"events.csv": events, "asbuilt.csv": asbuilt})
+    events = [
+        {
+            "id": "E1",
+            "title": "Late pour permit",
+            "party": "employer",
+            "start": "2025-01-09",
+            "finish": "2025-01-14",
+            "activities": "B",
+            "impact": "extend",
+            "days": 2,
+        }
+    ]
+    asbuilt = [
+        {"id": "START", "actual_start": "2025-01-06", "actual_finish": "2025-01-06"},
+        {"id": "A", "actual_start": "2025-01-06", "actual_finish": "2025-01-08"},
+        {"id": "B", "actual_start": "2025-01-09", "actual_finish": "2025-01-14"},
+        {"id": "END", "actual_start": "2025-01-14", "actual_finish": "2025-01-14"},
+    ]
+    root = write_case(
+        tmp_path / "case", activities=ACTIVITIES, links=LINKS, files={"events.csv": events, "asbuilt.csv": asbuilt}
+    )
     for old, new in (("impact", "impacted"), ("butfor", "collapsed")):
         before, after = run(old, root, "--format", "json"), run(new, root, "--format", "json")
         assert after.exit_code == 0, after.output

@@ -31,8 +31,8 @@ The progress mode cannot matter here: nothing is out of sequence.
 from __future__ import annotations
 
 import pytest
-
 from casewriter import write_case
+
 from delay.case import load_case
 from delay.comparison import available_methods, compare_methods, sensitivity
 
@@ -47,17 +47,42 @@ def case(tmp_path):
         {"id": "B", "name": "Path B", "duration": 5, "calendar": "7d"},
         {"id": "F", "name": "Finish", "duration": 0, "kind": "finish_milestone", "calendar": "7d"},
     ]
-    links = [{"pred": "START", "succ": "A"}, {"pred": "START", "succ": "B"},
-             {"pred": "A", "succ": "F"}, {"pred": "B", "succ": "F"}]
+    links = [
+        {"pred": "START", "succ": "A"},
+        {"pred": "START", "succ": "B"},
+        {"pred": "A", "succ": "F"},
+        {"pred": "B", "succ": "F"},
+    ]
     root = write_case(
-        tmp_path / "case", activities=activities, links=links, start="2025-01-06", completion="2025-01-10",
-        schedule={"default_calendar": "7d"}, calendars=[SEVEN],
+        tmp_path / "case",
+        activities=activities,
+        links=links,
+        start="2025-01-06",
+        completion="2025-01-10",
+        schedule={"default_calendar": "7d"},
+        calendars=[SEVEN],
         files={
             "events.csv": [
-                {"id": "E1", "title": "Late drawings", "party": "employer", "start": "2025-01-06",
-                 "finish": "2025-01-08", "activities": "A", "impact": "extend", "days": 3},
-                {"id": "C1", "title": "Slow gang", "party": "contractor", "start": "2025-01-07",
-                 "finish": "2025-01-09", "activities": "B", "impact": "extend", "days": 3},
+                {
+                    "id": "E1",
+                    "title": "Late drawings",
+                    "party": "employer",
+                    "start": "2025-01-06",
+                    "finish": "2025-01-08",
+                    "activities": "A",
+                    "impact": "extend",
+                    "days": 3,
+                },
+                {
+                    "id": "C1",
+                    "title": "Slow gang",
+                    "party": "contractor",
+                    "start": "2025-01-07",
+                    "finish": "2025-01-09",
+                    "activities": "B",
+                    "impact": "extend",
+                    "days": 3,
+                },
             ],
             "asbuilt.csv": [
                 {"id": "START", "actual_start": "2025-01-06", "actual_finish": "2025-01-06"},

@@ -17,8 +17,20 @@ import pandas as pd
 from hypothesis import given
 from hypothesis import strategies as st
 
-from delay.convert import (NO_DAY, day_to_date, iso_date, iso_dates, join_ids, json_cell, json_records, split_ids,
-                           table_dates, text_cell, to_dates, to_days)
+from delay.convert import (
+    NO_DAY,
+    day_to_date,
+    iso_date,
+    iso_dates,
+    join_ids,
+    json_cell,
+    json_records,
+    split_ids,
+    table_dates,
+    text_cell,
+    to_dates,
+    to_days,
+)
 
 ORDINAL_OF_DAY_0 = dt.date(1970, 1, 1).toordinal()  # 719163, standard library
 
@@ -43,24 +55,41 @@ def test_no_day_is_a_missing_date_everywhere():
 
 
 def test_dates_of_every_kind_read_the_same():
-    kinds = (dt.date(2025, 1, 6), dt.datetime(2025, 1, 6, 17, 30), pd.Timestamp("2025-01-06 08:00"),
-             np.datetime64("2025-01-06"), np.datetime64("2025-01-06T12:00:00"), "2025-01-06")
+    kinds = (
+        dt.date(2025, 1, 6),
+        dt.datetime(2025, 1, 6, 17, 30),
+        pd.Timestamp("2025-01-06 08:00"),
+        np.datetime64("2025-01-06"),
+        np.datetime64("2025-01-06T12:00:00"),
+        "2025-01-06",
+    )
     assert {iso_date(v) for v in kinds} == {"2025-01-06"}
     assert {text_cell(v) for v in kinds} == {"2025-01-06"}
 
 
 def test_json_cells_are_what_json_dumps_accepts():
-    frame = pd.DataFrame({"when": pd.to_datetime(["2025-01-06", None]), "days": pd.array([3, None], dtype="Int64"),
-                          "share": [0.5, np.nan], "ok": np.array([True, False]), "ids": [["A", "B"], []]})
+    frame = pd.DataFrame(
+        {
+            "when": pd.to_datetime(["2025-01-06", None]),
+            "days": pd.array([3, None], dtype="Int64"),
+            "share": [0.5, np.nan],
+            "ok": np.array([True, False]),
+            "ids": [["A", "B"], []],
+        }
+    )
     records = json_records(frame)
     assert json.loads(json.dumps(records)) == [
         {"when": "2025-01-06", "days": 3, "share": 0.5, "ok": True, "ids": ["A", "B"]},
-        {"when": None, "days": None, "share": None, "ok": False, "ids": []}]
+        {"when": None, "days": None, "share": None, "ok": False, "ids": []},
+    ]
     assert type(json_cell(np.int64(2))) is int and type(json_cell(np.float32(0.5))) is float
 
 
-ID = st.text(alphabet=st.characters(blacklist_characters=";", blacklist_categories=("Cs", "Zs", "Zl", "Zp", "Cc")),
-             min_size=1, max_size=8)
+ID = st.text(
+    alphabet=st.characters(blacklist_characters=";", blacklist_categories=("Cs", "Zs", "Zl", "Zp", "Cc")),
+    min_size=1,
+    max_size=8,
+)
 
 
 @given(st.lists(ID, unique=True, max_size=6))

@@ -27,11 +27,10 @@ from pathlib import Path
 import networkx as nx
 import numpy as np
 import pandas as pd
-from hypothesis import given, settings
-from hypothesis import strategies as st
-
 from casewriter import write_case
 from conftest import activity_table, schedule_case
+from hypothesis import given, settings
+from hypothesis import strategies as st
 
 DATA_DATE = np.datetime64("2025-01-06")  # casewriter's default start: a Monday
 FIVE_DAY = "Mon Tue Wed Thu Fri"
@@ -48,14 +47,15 @@ def networks(draw, link_types=("FS",), lags=(0, 0), max_activities=10, max_durat
     pairs = [(i, j) for i in range(count) for j in range(i + 1, count)]
     chosen = draw(st.lists(st.sampled_from(pairs), unique=True, max_size=2 * count)) if pairs else []
     links = [
-        {"pred": labels[i], "succ": labels[j], "type": draw(st.sampled_from(link_types)),
-         "lag": draw(st.integers(*lags))}
+        {
+            "pred": labels[i],
+            "succ": labels[j],
+            "type": draw(st.sampled_from(link_types)),
+            "lag": draw(st.integers(*lags)),
+        }
         for i, j in chosen
     ]
-    activities = [
-        {"id": labels[n], "name": f"Work {labels[n]}", "duration": durations[n]}
-        for n in range(count)
-    ]
+    activities = [{"id": labels[n], "name": f"Work {labels[n]}", "duration": durations[n]} for n in range(count)]
     row_order = draw(st.permutations(range(count)))
     return [activities[n] for n in row_order], links
 
@@ -95,6 +95,7 @@ def link_bound(kind, lag, pred_start, pred_finish, duration):
 
 # ---------------------------------------------------------------------------------------
 
+
 @PROPERTY_SETTINGS
 @given(networks(lags=(0, 3)))
 def test_completion_equals_networkx_longest_path(network):
@@ -122,8 +123,7 @@ def test_early_and_late_dates_satisfy_every_link_and_are_tight(network):
         assert early_finish[activity] - early_start[activity] == days
         assert late_finish[activity] - late_start[activity] == days
     # Completion is the latest early finish date (rule 5).
-    assert result.completion == np.busday_offset(
-        DATA_DATE, completion - 1, weekmask=FIVE_DAY).item()
+    assert result.completion == np.busday_offset(DATA_DATE, completion - 1, weekmask=FIVE_DAY).item()
     # Forward pass: every link holds on early dates, nothing starts before the data date,
     # and each activity is held either by the data date or by one of its links (else it
     # could start earlier: it would not be the EARLY start).
@@ -161,7 +161,8 @@ def test_float_inequalities(network):
         assert row["total_float"] >= row["free_float"] >= 0, activity
         # Rule 6: total float = late finish - early finish in work days (numpy reference).
         assert row["total_float"] == np.busday_count(
-            np.datetime64(row["early_finish"], "D"), np.datetime64(row["late_finish"], "D"),
+            np.datetime64(row["early_finish"], "D"),
+            np.datetime64(row["late_finish"], "D"),
             weekmask=FIVE_DAY,
         ), activity
         assert bool(row["critical"]) == (row["total_float"] <= 0), activity
@@ -197,8 +198,7 @@ def test_driving_path_runs_from_data_date_to_completion_at_zero_float(network):
     for row in links:
         pred, succ = row["pred"], row["succ"]
         if pred in on_path and succ in on_path:
-            bound = link_bound(row["type"], row["lag"], early_start[pred], early_finish[pred],
-                               duration[succ])
+            bound = link_bound(row["type"], row["lag"], early_start[pred], early_finish[pred], duration[succ])
             if early_start[succ] == bound:  # a driving link
                 fed[succ] = True
                 feeds[pred] = True
@@ -214,8 +214,7 @@ def test_fs_network_lengthening_never_advances_completion(network, data):
     before = schedule_case(activities=activities, links=links).completion
     target = data.draw(st.sampled_from([row["id"] for row in activities]))
     extra = data.draw(st.integers(1, 5))
-    longer = [dict(row, duration=row["duration"] + extra) if row["id"] == target else row
-              for row in activities]
+    longer = [dict(row, duration=row["duration"] + extra) if row["id"] == target else row for row in activities]
     after = schedule_case(activities=longer, links=links).completion
     assert after >= before
     # And by exactly what networkx says (reference: dag_longest_path_length).
@@ -230,19 +229,20 @@ def test_fs_network_shortening_a_non_critical_activity_keeps_completion(network,
     activities, links = network
     result = schedule_case(activities=activities, links=links)
     table = activity_table(result)
-    candidates = [row["id"] for row in activities
-                  if not bool(table.loc[row["id"], "critical"]) and row["duration"] >= 2]
+    candidates = [
+        row["id"] for row in activities if not bool(table.loc[row["id"], "critical"]) and row["duration"] >= 2
+    ]
     if not candidates:
         return  # every activity is critical or already one day long: nothing to shorten
     target = data.draw(st.sampled_from(candidates))
     cut = data.draw(st.integers(1, dict((r["id"], r["duration"]) for r in activities)[target] - 1))
-    shorter = [dict(row, duration=row["duration"] - cut) if row["id"] == target else row
-               for row in activities]
+    shorter = [dict(row, duration=row["duration"] - cut) if row["id"] == target else row for row in activities]
     assert schedule_case(activities=shorter, links=links).completion == result.completion
 
 
 # ---------------------------------------------------------------------------------------
 # Reverse and normal effect of an activity's duration under SS / FF links (hand-worked)
+
 
 def _completion_with(b_duration, links):
     activities = [
@@ -250,8 +250,7 @@ def _completion_with(b_duration, links):
         {"id": "B", "name": "Backfill", "duration": b_duration},
         {"id": "C", "name": "Reinstate", "duration": 8},
     ]
-    return schedule_case(activities=activities, links=links,
-                         schedule={"default_calendar": "7d"}).completion
+    return schedule_case(activities=activities, links=links, schedule={"default_calendar": "7d"}).completion
 
 
 def test_reverse_critical_activity_lengthening_shortens_the_project():
@@ -263,8 +262,7 @@ def test_reverse_critical_activity_lengthening_shortens_the_project():
     #   d = 4: ES_B 6, C 6..13 -> completion day 13 = 2025-01-19.
     #   d = 6: ES_B 4, C 4..11 -> completion day 11 = 2025-01-17 (two days EARLIER).
     #   d = 2: ES_B 8, C 8..15 -> completion day 15 = 2025-01-21 (shorter B, later finish).
-    links = [{"pred": "A", "succ": "B", "type": "FF", "lag": 0},
-             {"pred": "B", "succ": "C", "type": "SS", "lag": 0}]
+    links = [{"pred": "A", "succ": "B", "type": "FF", "lag": 0}, {"pred": "B", "succ": "C", "type": "SS", "lag": 0}]
     assert _completion_with(4, links) == dt.date(2025, 1, 19)
     assert _completion_with(6, links) == dt.date(2025, 1, 17)
     assert _completion_with(2, links) == dt.date(2025, 1, 21)
@@ -277,8 +275,7 @@ def test_normal_activity_under_ss_in_and_ff_out_lengthening_delays_the_project()
     #   EF = max(8, d+2). Completion = day max(10, d+2, 8) - 1.
     #   d = 4: C EF 8; completion from A: day 9 = 2025-01-15.
     #   d = 12: C EF 14 -> day 13 = 2025-01-19.  d = 14: C EF 16 -> day 15 = 2025-01-21.
-    links = [{"pred": "A", "succ": "B", "type": "SS", "lag": 0},
-             {"pred": "B", "succ": "C", "type": "FF", "lag": 2}]
+    links = [{"pred": "A", "succ": "B", "type": "SS", "lag": 0}, {"pred": "B", "succ": "C", "type": "FF", "lag": 2}]
     assert _completion_with(4, links) == dt.date(2025, 1, 15)
     assert _completion_with(12, links) == dt.date(2025, 1, 19)
     assert _completion_with(14, links) == dt.date(2025, 1, 21)
@@ -309,4 +306,5 @@ def test_other_lags_on_a_compiled_network_match_networkx(network, data):
     assert result.completion == expected.item()
     rebuilt = schedule_case(activities=activities, links=changed)
     assert activity_table(result)[["early_start", "early_finish", "total_float"]].equals(
-        activity_table(rebuilt)[["early_start", "early_finish", "total_float"]])
+        activity_table(rebuilt)[["early_start", "early_finish", "total_float"]]
+    )

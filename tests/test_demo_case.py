@@ -98,8 +98,12 @@ def test_demo_case_exercises_case_format_version_2():
     events = rows("events.csv")
     # a hold on work already in progress when it begins: the activity started before the
     # hold's first day and finished after its last
-    assert any(built[a]["actual_start"] < e["start"] and built[a]["actual_finish"] > e["finish"]
-               for e in events if e["impact"] == "hold" for a in e["activities"].split(";"))
+    assert any(
+        built[a]["actual_start"] < e["start"] and built[a]["actual_finish"] > e["finish"]
+        for e in events
+        if e["impact"] == "hold"
+        for a in e["activities"].split(";")
+    )
     # every fragnet is absent from the as-built record, which shows the work in the
     # activities that asbuilt_activities names
     fragnet_ids = {f["event"]: set() for f in rows("fragnets.csv")}
@@ -128,28 +132,28 @@ def _generator():
     return module
 
 
-@pytest.mark.parametrize("start, duration, first, finish, moved", [
-    # in progress when the hold begins: Thu 8 and Fri 9 January worked, no work from Mon 12
-    # to Wed 21 (the hold), the other three days on Thu 22, Fri 23 and Mon 26
-    ("2026-01-08", 5, "2026-01-08", "2026-01-26", True),
-    # due to start inside the hold (Wed 14): starts Thu 22, three days to Mon 26
-    ("2026-01-14", 3, "2026-01-22", "2026-01-26", True),
-    # finished before the hold (Mon 5 to Fri 9): no effect
-    ("2026-01-05", 5, "2026-01-05", "2026-01-09", False),
-    # starts after the hold (Thu 22, two days): no effect
-    ("2026-01-22", 2, "2026-01-22", "2026-01-23", False),
-])
-def test_the_generators_hold_stops_work_from_its_first_to_its_last_day(start, duration, first,
-                                                                      finish, moved):
+@pytest.mark.parametrize(
+    "start, duration, first, finish, moved",
+    [
+        # in progress when the hold begins: Thu 8 and Fri 9 January worked, no work from Mon 12
+        # to Wed 21 (the hold), the other three days on Thu 22, Fri 23 and Mon 26
+        ("2026-01-08", 5, "2026-01-08", "2026-01-26", True),
+        # due to start inside the hold (Wed 14): starts Thu 22, three days to Mon 26
+        ("2026-01-14", 3, "2026-01-22", "2026-01-26", True),
+        # finished before the hold (Mon 5 to Fri 9): no effect
+        ("2026-01-05", 5, "2026-01-05", "2026-01-09", False),
+        # starts after the hold (Thu 22, two days): no effect
+        ("2026-01-22", 2, "2026-01-22", "2026-01-23", False),
+    ],
+)
+def test_the_generators_hold_stops_work_from_its_first_to_its_last_day(start, duration, first, finish, moved):
     """The generator's own simulation of a hold (case-format v2: no work from the hold's
     start to its finish, both inclusive), hand-worked above on a Monday-to-Friday calendar
     and checked against numpy's business-day functions with the hold's days as holidays."""
     generate = _generator()
     hold = generate.Hold("EV", dt.date(2026, 1, 12), dt.date(2026, 1, 21), frozenset({"A"}))
-    cal = generate.WorkCalendar("five", "Mon Tue Wed Thu Fri", [], [],
-                                (dt.date(2025, 12, 1), dt.date(2026, 3, 31)))
-    begin, end, holds = generate.work_around(cal, cal.on_or_after(dt.date.fromisoformat(start)),
-                                             duration, [hold])
+    cal = generate.WorkCalendar("five", "Mon Tue Wed Thu Fri", [], [], (dt.date(2025, 12, 1), dt.date(2026, 3, 31)))
+    begin, end, holds = generate.work_around(cal, cal.on_or_after(dt.date.fromisoformat(start)), duration, [hold])
     assert (cal.date(begin).isoformat(), cal.date(end - 1).isoformat()) == (first, finish)
     assert (holds == [hold]) is moved
     stopped = np.arange(np.datetime64("2026-01-12"), np.datetime64("2026-01-22"))
@@ -184,18 +188,23 @@ def test_workbook_form_loads_to_the_same_tables(demo, tmp_path):
             continue
         _same(demo.table(name), other.table(name), name)
     assert [(c.record, c.original, c.corrected) for c in demo.corrections] == [
-        (c.record, c.original, c.corrected) for c in other.corrections]
+        (c.record, c.original, c.corrected) for c in other.corrections
+    ]
 
 
 def _digest(folder: Path) -> dict:
-    return {str(p.relative_to(folder)): hashlib.sha256(p.read_bytes()).hexdigest()
-            for p in sorted(folder.rglob("*")) if p.is_file() and p.suffix != ".py"}
+    return {
+        str(p.relative_to(folder)): hashlib.sha256(p.read_bytes()).hexdigest()
+        for p in sorted(folder.rglob("*"))
+        if p.is_file() and p.suffix != ".py"
+    }
 
 
 def test_generator_reproduces_the_committed_case(tmp_path):
     out = tmp_path / "again"
-    done = subprocess.run([sys.executable, str(DEMO / "generate.py"), "--output", str(out)],
-                          capture_output=True, text=True, timeout=300)
+    done = subprocess.run(
+        [sys.executable, str(DEMO / "generate.py"), "--output", str(out)], capture_output=True, text=True, timeout=300
+    )
     assert done.returncode == 0, done.stdout + done.stderr
     # model/ holds the demo's IFC model, made by its own script from the generated elements;
     # scenario/ holds the tables the generator reads

@@ -29,24 +29,31 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 import pytest
-
 from casewriter import write_case
+
 from delay.case import load_case
 from delay.synth import synthesise
 from reports.element_timeline import (
-    COMPLETE, IN_PROGRESS, LATE, NOT_STARTED, UNLINKED, element_states, figure_2d, figure_3d,
-    standalone_html, timeline_html,
+    COMPLETE,
+    IN_PROGRESS,
+    LATE,
+    NOT_STARTED,
+    UNLINKED,
+    element_states,
+    figure_2d,
+    figure_3d,
+    standalone_html,
+    timeline_html,
 )
 from reports.element_timeline.scene import ROLES_3D, box_levels, drawn_parts
-from reports.palette import STATE_COLOURS, HIGHLIGHT_COLOUR
+from reports.palette import HIGHLIGHT_COLOUR, STATE_COLOURS
 
 ACTIVITIES = [
     {"id": "A", "name": "Foundations", "duration": 5, "wbs": "W1"},
     {"id": "B", "name": "Frame", "duration": 10, "wbs": "W2"},
     {"id": "C", "name": "Roof", "duration": 3, "wbs": "W2"},
 ]
-LINKS = [{"pred": "A", "succ": "B", "type": "FS", "lag": 0},
-         {"pred": "B", "succ": "C", "type": "FS", "lag": 0}]
+LINKS = [{"pred": "A", "succ": "B", "type": "FS", "lag": 0}, {"pred": "B", "succ": "C", "type": "FS", "lag": 0}]
 UPDATE = [
     {**ACTIVITIES[0], "actual_start": "2025-01-06", "actual_finish": "2025-01-14", "remaining": 0},
     {**ACTIVITIES[1], "actual_start": "2025-01-15", "actual_finish": "", "remaining": 8},
@@ -58,28 +65,88 @@ ASBUILT = [
     {"id": "C", "actual_start": "2025-02-05", "actual_finish": "2025-02-07", "source": "site diary"},
 ]
 ELEMENTS = [
-    {"id": "E1", "name": "Footing", "wbs": "W1", "classification": "footing",
-     "x": 0, "y": 0, "z": 0, "dx": 4, "dy": 4, "dz": 1, "level": "00", "zone": "A"},
-    {"id": "E2", "name": "Column", "wbs": "W2", "classification": "column",
-     "x": 1, "y": 1, "z": 1, "dx": 0.5, "dy": 0.5, "dz": 3, "level": "00", "zone": "A"},
-    {"id": "E3", "name": "Roof slab", "wbs": "W2", "classification": "slab",
-     "x": 0, "y": 0, "z": 4, "dx": 4, "dy": 4, "dz": 0.3, "level": "01", "zone": "A"},
-    {"id": "E4", "name": "Flagpole", "wbs": "W9", "classification": "fixture",
-     "x": 6, "y": 0, "z": 0, "dx": 0.2, "dy": 0.2, "dz": 6, "level": "00", "zone": "B"},
+    {
+        "id": "E1",
+        "name": "Footing",
+        "wbs": "W1",
+        "classification": "footing",
+        "x": 0,
+        "y": 0,
+        "z": 0,
+        "dx": 4,
+        "dy": 4,
+        "dz": 1,
+        "level": "00",
+        "zone": "A",
+    },
+    {
+        "id": "E2",
+        "name": "Column",
+        "wbs": "W2",
+        "classification": "column",
+        "x": 1,
+        "y": 1,
+        "z": 1,
+        "dx": 0.5,
+        "dy": 0.5,
+        "dz": 3,
+        "level": "00",
+        "zone": "A",
+    },
+    {
+        "id": "E3",
+        "name": "Roof slab",
+        "wbs": "W2",
+        "classification": "slab",
+        "x": 0,
+        "y": 0,
+        "z": 4,
+        "dx": 4,
+        "dy": 4,
+        "dz": 0.3,
+        "level": "01",
+        "zone": "A",
+    },
+    {
+        "id": "E4",
+        "name": "Flagpole",
+        "wbs": "W9",
+        "classification": "fixture",
+        "x": 6,
+        "y": 0,
+        "z": 0,
+        "dx": 0.2,
+        "dy": 0.2,
+        "dz": 6,
+        "level": "00",
+        "zone": "B",
+    },
 ]
-EVENTS = [{"id": "EV1", "title": "Late roof sheeting delivery", "party": "employer",
-           "start": "2025-01-20", "finish": "2025-01-24", "activities": "C", "impact": "extend",
-           "days": 2}]
+EVENTS = [
+    {
+        "id": "EV1",
+        "title": "Late roof sheeting delivery",
+        "party": "employer",
+        "start": "2025-01-20",
+        "finish": "2025-01-24",
+        "activities": "C",
+        "impact": "extend",
+        "days": 2,
+    }
+]
 
 
 def small_case(root: Path, *, asbuilt: bool = True, elements=ELEMENTS):
     files = {"elements.csv": elements, "events.csv": EVENTS}
     if asbuilt:
         files["asbuilt.csv"] = ASBUILT
-    write_case(root, activities=ACTIVITIES, links=LINKS,
-               snapshots={"u01": {"label": "Update 01", "data_date": "2025-01-20",
-                                  "activities": UPDATE}},
-               files=files)
+    write_case(
+        root,
+        activities=ACTIVITIES,
+        links=LINKS,
+        snapshots={"u01": {"label": "Update 01", "data_date": "2025-01-20", "activities": UPDATE}},
+        files=files,
+    )
     return load_case(root)
 
 
@@ -108,8 +175,14 @@ def test_element_dates_are_earliest_start_and_latest_finish_of_the_wbs(small):
     assert (table.loc["E1", "planned_start"], table.loc["E1", "planned_finish"]) == (d("2025-01-06"), d("2025-01-10"))
     assert (table.loc["E1", "actual_start"], table.loc["E1", "actual_finish"]) == (d("2025-01-06"), d("2025-01-14"))
     for element in ("E2", "E3"):
-        assert (table.loc[element, "planned_start"], table.loc[element, "planned_finish"]) == (d("2025-01-13"), d("2025-01-29"))
-        assert (table.loc[element, "actual_start"], table.loc[element, "actual_finish"]) == (d("2025-01-15"), d("2025-02-07"))
+        assert (table.loc[element, "planned_start"], table.loc[element, "planned_finish"]) == (
+            d("2025-01-13"),
+            d("2025-01-29"),
+        )
+        assert (table.loc[element, "actual_start"], table.loc[element, "actual_finish"]) == (
+            d("2025-01-15"),
+            d("2025-02-07"),
+        )
         assert table.loc[element, "activities"] == "B;C"
     assert pd.isna(table.loc["E4", "planned_start"]) and pd.isna(table.loc["E4", "actual_finish"])
     assert not table.loc["E4", "linked_as_planned"] and not table.loc["E4", "linked_as_built"]
@@ -119,8 +192,7 @@ def test_element_dates_are_earliest_start_and_latest_finish_of_the_wbs(small):
 def test_frames_are_the_mondays_of_the_project(small):
     # first start Monday 2025-01-06; last finish Friday 2025-02-07 (as built); the first
     # Monday after it is 2025-02-10: six Mondays in all (counted on a calendar by hand).
-    expected = [d(x) for x in ("2025-01-06", "2025-01-13", "2025-01-20", "2025-01-27",
-                               "2025-02-03", "2025-02-10")]
+    expected = [d(x) for x in ("2025-01-06", "2025-01-13", "2025-01-20", "2025-01-27", "2025-02-03", "2025-02-10")]
     assert list(small.frames["date"]) == expected
     assert list(small.frames["frame"]) == list(range(6))
     assert all(x.weekday() == 0 for x in small.frames["date"])
@@ -268,8 +340,9 @@ def test_the_title_names_the_as_built_record(small):
 
 def test_programmes_can_be_given_as_tables(tmp_path):
     case = small_case(tmp_path / "case")
-    planned = pd.DataFrame({"id": ["A", "B", "C"], "early_start": ["2025-02-03"] * 3,
-                            "early_finish": ["2025-02-07"] * 3})
+    planned = pd.DataFrame(
+        {"id": ["A", "B", "C"], "early_start": ["2025-02-03"] * 3, "early_finish": ["2025-02-07"] * 3}
+    )
     timeline = element_states(case, planned=planned, planned_source="a what-if")
     assert timeline.elements.set_index("id").loc["E1", "planned_start"] == d("2025-02-03")
     assert "a what-if" in timeline.title
@@ -284,8 +357,9 @@ def test_a_case_without_elements_is_refused(tmp_path):
 
 
 def _payload_of(fragment: str) -> dict:
-    text = re.search(r'<script type="application/json" data-role="timeline-data">(.*?)</script>',
-                     fragment, re.S).group(1)
+    text = re.search(r'<script type="application/json" data-role="timeline-data">(.*?)</script>', fragment, re.S).group(
+        1
+    )
     return json.loads(text)
 
 
@@ -383,21 +457,21 @@ def test_synthetic_case_frames_and_states(tmp_path):
 # applied to linear RGB (recalled from memory). sRGB transfer and XYZ matrix from IEC
 # 61966-2-1; CIE 1976 L*a*b* with the D65 white (CIE 15).
 _DICHROMACY = {
-    "protanopia": [[0.152286, 1.052583, -0.204868], [0.114503, 0.786281, 0.099216],
-                   [-0.003882, -0.048116, 1.051998]],
-    "deuteranopia": [[0.367322, 0.860646, -0.227968], [0.280085, 0.672501, 0.047413],
-                     [-0.011820, 0.042940, 0.968881]],
-    "tritanopia": [[1.255528, -0.076749, -0.178779], [-0.078411, 0.930809, 0.147602],
-                   [0.004733, 0.691367, 0.303900]],
+    "protanopia": [[0.152286, 1.052583, -0.204868], [0.114503, 0.786281, 0.099216], [-0.003882, -0.048116, 1.051998]],
+    "deuteranopia": [[0.367322, 0.860646, -0.227968], [0.280085, 0.672501, 0.047413], [-0.011820, 0.042940, 0.968881]],
+    "tritanopia": [[1.255528, -0.076749, -0.178779], [-0.078411, 0.930809, 0.147602], [0.004733, 0.691367, 0.303900]],
 }
 
 
 def _lab(colour: str, matrix) -> np.ndarray:
-    rgb = np.array([int(colour[k:k + 2], 16) for k in (1, 3, 5)]) / 255
+    rgb = np.array([int(colour[k : k + 2], 16) for k in (1, 3, 5)]) / 255
     linear = np.where(rgb <= 0.04045, rgb / 12.92, ((rgb + 0.055) / 1.055) ** 2.4)
     linear = np.clip(np.asarray(matrix) @ linear, 0, 1)
-    xyz = np.array([[0.4124, 0.3576, 0.1805], [0.2126, 0.7152, 0.0722],
-                    [0.0193, 0.1192, 0.9505]]) @ linear / np.array([0.95047, 1.0, 1.08883])
+    xyz = (
+        np.array([[0.4124, 0.3576, 0.1805], [0.2126, 0.7152, 0.0722], [0.0193, 0.1192, 0.9505]])
+        @ linear
+        / np.array([0.95047, 1.0, 1.08883])
+    )
     f = np.where(xyz > (6 / 29) ** 3, np.cbrt(xyz), xyz / (3 * (6 / 29) ** 2) + 4 / 29)
     return np.array([116 * f[1] - 16, 500 * (f[0] - f[1]), 200 * (f[1] - f[2])])
 
@@ -425,10 +499,12 @@ def test_html_size_for_five_thousand_elements(tmp_path):
     # the colour-only frames of the plain plotly figure for comparison: one byte per corner,
     # per view, per week, base64 (4/3)
     one_frame = 2 * 8 * int(timeline.elements["drawn_in_3d"].sum()) * 4 / 3
-    print(f"\n5,000 elements, {frames} weekly frames: fragment {len(fragment) / 1e6:.2f} MB, "
-          f"standalone page {len(page) / 1e6:.2f} MB (plotly.js included); largest parts: "
-          + ", ".join(f"{k} {v / 1e6:.2f} MB" for k, v in sorted(parts.items(), key=lambda kv: -kv[1])[:4])
-          + f"; a plotly figure with colour frames would need about {one_frame * frames / 1e6:.0f} MB")
+    print(
+        f"\n5,000 elements, {frames} weekly frames: fragment {len(fragment) / 1e6:.2f} MB, "
+        f"standalone page {len(page) / 1e6:.2f} MB (plotly.js included); largest parts: "
+        + ", ".join(f"{k} {v / 1e6:.2f} MB" for k, v in sorted(parts.items(), key=lambda kv: -kv[1])[:4])
+        + f"; a plotly figure with colour frames would need about {one_frame * frames / 1e6:.0f} MB"
+    )
     # ceiling from the design: per element six box numbers, one hover text of a few hundred
     # characters and a few runs per view; far below the 40 MB allowed for the whole report
     assert len(fragment) < 8 * 1024 * 1024

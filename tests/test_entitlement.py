@@ -47,17 +47,17 @@ from fractions import Fraction
 
 import pandas as pd
 import pytest
+from casewriter import write_case
 from click.testing import CliRunner
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from casewriter import write_case
+from delay import causation as causation_module
 from delay.case import load_case
+from delay.causation import classify_days, largest_remainder, reconcile
 from delay.commands.entitlement import entitlement as entitlement_command
 from delay.entitlement import assess, completion_in_force, prolongation_rate
 from delay.errors import ReconciliationError
-from delay import causation as causation_module
-from delay.causation import classify_days, largest_remainder, reconcile
 
 SEVEN_DAY = {"default_calendar": "7d"}
 ALL = ("windows", "impacted", "tia", "collapsed")
@@ -80,8 +80,17 @@ def record(activity_id, start, finish):
 
 
 def event(event_id, party, start, finish, activities, days, **extra):
-    return {"id": event_id, "title": f"Event {event_id}", "party": party, "start": start, "finish": finish,
-            "activities": activities, "impact": "extend", "days": days, **extra}
+    return {
+        "id": event_id,
+        "title": f"Event {event_id}",
+        "party": party,
+        "start": start,
+        "finish": finish,
+        "activities": activities,
+        "impact": "extend",
+        "days": days,
+        **extra,
+    }
 
 
 def day(text):
@@ -90,10 +99,16 @@ def day(text):
 
 def whole_works(entitlement):
     """The headline figures of one method's entitlement."""
-    return {"excusable": entitlement.excusable_days, "eot": entitlement.eot_days,
-            "revised": entitlement.revised_completion, "compensable": entitlement.compensable_days,
-            "prolongation": entitlement.prolongation_cost, "culpable": entitlement.ld_days,
-            "damages": entitlement.ld_exposure, "concurrent": entitlement.concurrent_days}
+    return {
+        "excusable": entitlement.excusable_days,
+        "eot": entitlement.eot_days,
+        "revised": entitlement.revised_completion,
+        "compensable": entitlement.compensable_days,
+        "prolongation": entitlement.prolongation_cost,
+        "culpable": entitlement.ld_days,
+        "damages": entitlement.ld_exposure,
+        "concurrent": entitlement.concurrent_days,
+    }
 
 
 def rows_by_event(entitlement):
@@ -122,21 +137,40 @@ def rows_by_event(entitlement):
 # The register gives EV1's notification (Jan 09) and claim (5 days): shown beside the 3
 #   days assessed.
 def critical_case(root):
-    write_case(root, activities=[task("A", 5), task("B", 5), finish_milestone()], links=[link("A", "B"), link("B", "F")],
-               completion="2025-01-15", schedule=SEVEN_DAY,
-               commercial={"prolongation_cost_per_day": 1000, "liquidated_damages_per_day": 500},
-               files={"events.csv": [event("EV1", "employer", "2025-01-06", "2025-01-08", "A", 3,
-                                           notified="2025-01-09", claimed_days=5)],
-                      "asbuilt.csv": [record("A", "2025-01-06", "2025-01-13"), record("B", "2025-01-14", "2025-01-18"),
-                                      record("F", "2025-01-18", "2025-01-18")]})
+    write_case(
+        root,
+        activities=[task("A", 5), task("B", 5), finish_milestone()],
+        links=[link("A", "B"), link("B", "F")],
+        completion="2025-01-15",
+        schedule=SEVEN_DAY,
+        commercial={"prolongation_cost_per_day": 1000, "liquidated_damages_per_day": 500},
+        files={
+            "events.csv": [
+                event("EV1", "employer", "2025-01-06", "2025-01-08", "A", 3, notified="2025-01-09", claimed_days=5)
+            ],
+            "asbuilt.csv": [
+                record("A", "2025-01-06", "2025-01-13"),
+                record("B", "2025-01-14", "2025-01-18"),
+                record("F", "2025-01-18", "2025-01-18"),
+            ],
+        },
+    )
     return load_case(root)
 
 
 @pytest.mark.parametrize("method", ALL)
 def test_event_on_the_critical_path(tmp_path, method):
     result = assess(critical_case(tmp_path / "case"), [method]).method(method)
-    assert whole_works(result) == {"excusable": 3, "eot": 3, "revised": day("2025-01-18"), "compensable": 3,
-                                   "prolongation": 3000.0, "culpable": 0, "damages": 0.0, "concurrent": 0}
+    assert whole_works(result) == {
+        "excusable": 3,
+        "eot": 3,
+        "revised": day("2025-01-18"),
+        "compensable": 3,
+        "prolongation": 3000.0,
+        "culpable": 0,
+        "damages": 0.0,
+        "concurrent": 0,
+    }
     assert result.completion_in_force == day("2025-01-15")
     assert result.planned_completion == day("2025-01-15")
     assert result.actual_completion == day("2025-01-18")
@@ -161,9 +195,15 @@ def test_event_on_the_critical_path(tmp_path, method):
 #     No as-built record and no update: the forecast completion compared is the
 #     baseline's, Jan 10 -> culpable 0.
 def float_case(root, events):
-    write_case(root, activities=[task("A", 5), task("B", 2), finish_milestone()], links=[link("A", "F"), link("B", "F")],
-               completion="2025-01-10", schedule=SEVEN_DAY, commercial={"prolongation_cost_per_day": 100},
-               files={"events.csv": events})
+    write_case(
+        root,
+        activities=[task("A", 5), task("B", 2), finish_milestone()],
+        links=[link("A", "F"), link("B", "F")],
+        completion="2025-01-10",
+        schedule=SEVEN_DAY,
+        commercial={"prolongation_cost_per_day": 100},
+        files={"events.csv": events},
+    )
     return load_case(root)
 
 
@@ -171,21 +211,42 @@ def float_case(root, events):
 def test_event_within_float_gives_no_extension(tmp_path, method):
     case = float_case(tmp_path / "case", [event("EV2", "employer", "2025-01-08", "2025-01-09", "B", 2)])
     result = assess(case, [method]).method(method)
-    assert whole_works(result) == {"excusable": 0, "eot": 0, "revised": day("2025-01-10"), "compensable": 0,
-                                   "prolongation": 0.0, "culpable": 0, "damages": 0.0, "concurrent": 0}
+    assert whole_works(result) == {
+        "excusable": 0,
+        "eot": 0,
+        "revised": day("2025-01-10"),
+        "compensable": 0,
+        "prolongation": 0.0,
+        "culpable": 0,
+        "damages": 0.0,
+        "concurrent": 0,
+    }
     row = rows_by_event(result).loc["EV2"]
     assert (int(row["days"]), int(row["alone_days"]), row["classification"]) == (0, 0, "no delay")
 
 
 def test_float_is_first_come_first_served(tmp_path):
-    case = float_case(tmp_path / "case", [event("EV1", "contractor", "2025-01-06", "2025-01-07", "B", 2),
-                                          event("EV2", "employer", "2025-01-08", "2025-01-09", "B", 2)])
+    case = float_case(
+        tmp_path / "case",
+        [
+            event("EV1", "contractor", "2025-01-06", "2025-01-07", "B", 2),
+            event("EV2", "employer", "2025-01-08", "2025-01-09", "B", 2),
+        ],
+    )
     result = assess(case, ["impacted"]).method("impacted")
     rows = rows_by_event(result)
     assert (int(rows.loc["EV1", "days"]), rows.loc["EV1", "classification"]) == (0, "no delay")
     assert (int(rows.loc["EV2", "days"]), rows.loc["EV2", "classification"]) == (1, "compensable")
-    assert whole_works(result) == {"excusable": 1, "eot": 1, "revised": day("2025-01-11"), "compensable": 1,
-                                   "prolongation": 100.0, "culpable": 0, "damages": 0.0, "concurrent": 0}
+    assert whole_works(result) == {
+        "excusable": 1,
+        "eot": 1,
+        "revised": day("2025-01-11"),
+        "compensable": 1,
+        "prolongation": 100.0,
+        "culpable": 0,
+        "damages": 0.0,
+        "concurrent": 0,
+    }
 
 
 # =======================================================================================
@@ -205,11 +266,21 @@ def test_float_is_first_come_first_served(tmp_path):
 #   compensable), EV2 2 (neutral: excusable).  Rounding down alone would have given EV1 1.
 #   Excusable still 6, compensable 2 (prolongation 2 x 100 = 200).
 def parallel_case(root, concurrency):
-    write_case(root, activities=[task("A", 5), task("B", 5), finish_milestone()], links=[link("A", "F"), link("B", "F")],
-               completion="2025-01-10", schedule=SEVEN_DAY, commercial={"prolongation_cost_per_day": 100},
-               analysis={"concurrency": concurrency},
-               files={"events.csv": [event("EV1", "employer", "2025-01-06", "2025-01-09", "A", 4),
-                                     event("EV2", "neutral", "2025-01-07", "2025-01-12", "B", 6)]})
+    write_case(
+        root,
+        activities=[task("A", 5), task("B", 5), finish_milestone()],
+        links=[link("A", "F"), link("B", "F")],
+        completion="2025-01-10",
+        schedule=SEVEN_DAY,
+        commercial={"prolongation_cost_per_day": 100},
+        analysis={"concurrency": concurrency},
+        files={
+            "events.csv": [
+                event("EV1", "employer", "2025-01-06", "2025-01-09", "A", 4),
+                event("EV2", "neutral", "2025-01-07", "2025-01-12", "B", 6),
+            ]
+        },
+    )
     return load_case(root)
 
 
@@ -220,8 +291,16 @@ def test_two_events_on_parallel_paths(tmp_path):
     assert [int(rows.loc[e, "concurrent_days"]) for e in ("EV1", "EV2")] == [4, 0]
     assert rows.loc["EV1", "concurrent_with"] == "EV2" and rows.loc["EV2", "concurrent_with"] == "EV1"
     assert [rows.loc[e, "classification"] for e in ("EV1", "EV2")] == ["excusable", "excusable"]
-    assert whole_works(result) == {"excusable": 6, "eot": 6, "revised": day("2025-01-16"), "compensable": 0,
-                                   "prolongation": 0.0, "culpable": 0, "damages": 0.0, "concurrent": 4}
+    assert whole_works(result) == {
+        "excusable": 6,
+        "eot": 6,
+        "revised": day("2025-01-16"),
+        "compensable": 0,
+        "prolongation": 0.0,
+        "culpable": 0,
+        "damages": 0.0,
+        "concurrent": 4,
+    }
 
 
 def test_two_events_on_parallel_paths_apportioned(tmp_path):
@@ -229,8 +308,16 @@ def test_two_events_on_parallel_paths_apportioned(tmp_path):
     row = rows_by_event(result).loc["EV1"]
     assert (int(row["excusable_days"]), int(row["compensable_days"]), int(row["culpable_days"])) == (4, 2, 0)
     assert row["classification"] == "apportioned"
-    assert whole_works(result) == {"excusable": 6, "eot": 6, "revised": day("2025-01-16"), "compensable": 2,
-                                   "prolongation": 200.0, "culpable": 0, "damages": 0.0, "concurrent": 4}
+    assert whole_works(result) == {
+        "excusable": 6,
+        "eot": 6,
+        "revised": day("2025-01-16"),
+        "compensable": 2,
+        "prolongation": 200.0,
+        "culpable": 0,
+        "damages": 0.0,
+        "concurrent": 4,
+    }
 
 
 # =======================================================================================
@@ -261,13 +348,26 @@ def test_two_events_on_parallel_paths_apportioned(tmp_path):
 #   Excusable 4: with excusable delays Jan 14, EoT 4, revised Jan 14; actual Jan 17:
 #   culpable 3, damages 3 x 1000 = 3000; compensable 4, prolongation 4 x 200 = 800.
 def concurrent_case(root, concurrency):
-    write_case(root, activities=[task("A", 5), task("B", 5), finish_milestone()], links=[link("A", "F"), link("B", "F")],
-               completion="2025-01-10", schedule=SEVEN_DAY, analysis={"concurrency": concurrency},
-               commercial={"prolongation_cost_per_day": 200, "liquidated_damages_per_day": 1000},
-               files={"events.csv": [event("EV1", "employer", "2025-01-06", "2025-01-12", "A", 7),
-                                     event("EV2", "contractor", "2025-01-07", "2025-01-13", "B", 7)],
-                      "asbuilt.csv": [record("A", "2025-01-06", "2025-01-17"), record("B", "2025-01-06", "2025-01-17"),
-                                      record("F", "2025-01-17", "2025-01-17")]})
+    write_case(
+        root,
+        activities=[task("A", 5), task("B", 5), finish_milestone()],
+        links=[link("A", "F"), link("B", "F")],
+        completion="2025-01-10",
+        schedule=SEVEN_DAY,
+        analysis={"concurrency": concurrency},
+        commercial={"prolongation_cost_per_day": 200, "liquidated_damages_per_day": 1000},
+        files={
+            "events.csv": [
+                event("EV1", "employer", "2025-01-06", "2025-01-12", "A", 7),
+                event("EV2", "contractor", "2025-01-07", "2025-01-13", "B", 7),
+            ],
+            "asbuilt.csv": [
+                record("A", "2025-01-06", "2025-01-17"),
+                record("B", "2025-01-06", "2025-01-17"),
+                record("F", "2025-01-17", "2025-01-17"),
+            ],
+        },
+    )
     return load_case(root)
 
 
@@ -275,16 +375,32 @@ def concurrent_case(root, concurrency):
 def test_concurrent_employer_and_contractor_time_not_money(tmp_path, method):
     result = assess(concurrent_case(tmp_path / "case", "time_not_money"), [method]).method(method)
     assert result.concurrency == "time_not_money"
-    assert whole_works(result) == {"excusable": 7, "eot": 7, "revised": day("2025-01-17"), "compensable": 0,
-                                   "prolongation": 0.0, "culpable": 0, "damages": 0.0, "concurrent": 7}
+    assert whole_works(result) == {
+        "excusable": 7,
+        "eot": 7,
+        "revised": day("2025-01-17"),
+        "compensable": 0,
+        "prolongation": 0.0,
+        "culpable": 0,
+        "damages": 0.0,
+        "concurrent": 7,
+    }
     assert result.causation.explained_days == 7
 
 
 @pytest.mark.parametrize("method", ALL)
 def test_concurrent_employer_and_contractor_apportioned(tmp_path, method):
     result = assess(concurrent_case(tmp_path / "case", "apportion"), [method]).method(method)
-    assert whole_works(result) == {"excusable": 4, "eot": 4, "revised": day("2025-01-14"), "compensable": 4,
-                                   "prolongation": 800.0, "culpable": 3, "damages": 3000.0, "concurrent": 7}
+    assert whole_works(result) == {
+        "excusable": 4,
+        "eot": 4,
+        "revised": day("2025-01-14"),
+        "compensable": 4,
+        "prolongation": 800.0,
+        "culpable": 3,
+        "damages": 3000.0,
+        "concurrent": 7,
+    }
     table = result.causation.table
     assert int(table["culpable_days"].sum()) == 3
 
@@ -293,8 +409,11 @@ def test_concurrent_rows_name_each_other(tmp_path):
     result = assess(concurrent_case(tmp_path / "case", "time_not_money"), ["impacted", "windows"])
     rows = rows_by_event(result.method("impacted"))
     assert (int(rows.loc["EV1", "days"]), rows.loc["EV1", "concurrent_with"]) == (7, "EV2")
-    assert (int(rows.loc["EV2", "days"]), int(rows.loc["EV2", "alone_days"]), rows.loc["EV2", "concurrent_with"]) \
-        == (0, 7, "EV1")
+    assert (int(rows.loc["EV2", "days"]), int(rows.loc["EV2", "alone_days"]), rows.loc["EV2", "concurrent_with"]) == (
+        0,
+        7,
+        "EV1",
+    )
     assert rows.loc["EV1", "causes"] == "employer;contractor"
     windows = result.method("windows").causation.table
     assert len(windows) == 1  # the counted charge on A; B is its parallel path
@@ -326,40 +445,88 @@ def test_concurrent_rows_name_each_other(tmp_path):
 #   the contractor: A 5 days, B Jan 11-18, F Jan 18: 2; every event: 5 = D; overlap 0;
 #   sole 3 and 2); a section is not assessed (entitlement doc).
 def section_case(root):
-    write_case(root, activities=[task("A", 5), finish_milestone("M1"), task("B", 5), finish_milestone()],
-               links=[link("A", "M1"), link("A", "B"), link("B", "F")], completion="2025-01-15", schedule=SEVEN_DAY,
-               commercial={"liquidated_damages_per_day": 1000},
-               files={"events.csv": [event("EV1", "contractor", "2025-01-06", "2025-01-07", "A", 2),
-                                     event("EV2", "employer", "2025-01-12", "2025-01-14", "B", 3)],
-                      "sections.csv": [{"section": "S1", "name": "Car park", "completion_activity": "M1",
-                                        "contract_completion": "2025-01-10", "liquidated_damages_per_day": 500},
-                                       {"section": "S2", "name": "The rest", "completion_activity": "F",
-                                        "contract_completion": "2025-01-15", "liquidated_damages_per_day": ""}],
-                      "asbuilt.csv": [record("A", "2025-01-06", "2025-01-12"), record("M1", "2025-01-12", "2025-01-12"),
-                                      record("B", "2025-01-13", "2025-01-20"), record("F", "2025-01-20", "2025-01-20")]})
+    write_case(
+        root,
+        activities=[task("A", 5), finish_milestone("M1"), task("B", 5), finish_milestone()],
+        links=[link("A", "M1"), link("A", "B"), link("B", "F")],
+        completion="2025-01-15",
+        schedule=SEVEN_DAY,
+        commercial={"liquidated_damages_per_day": 1000},
+        files={
+            "events.csv": [
+                event("EV1", "contractor", "2025-01-06", "2025-01-07", "A", 2),
+                event("EV2", "employer", "2025-01-12", "2025-01-14", "B", 3),
+            ],
+            "sections.csv": [
+                {
+                    "section": "S1",
+                    "name": "Car park",
+                    "completion_activity": "M1",
+                    "contract_completion": "2025-01-10",
+                    "liquidated_damages_per_day": 500,
+                },
+                {
+                    "section": "S2",
+                    "name": "The rest",
+                    "completion_activity": "F",
+                    "contract_completion": "2025-01-15",
+                    "liquidated_damages_per_day": "",
+                },
+            ],
+            "asbuilt.csv": [
+                record("A", "2025-01-06", "2025-01-12"),
+                record("M1", "2025-01-12", "2025-01-12"),
+                record("B", "2025-01-13", "2025-01-20"),
+                record("F", "2025-01-20", "2025-01-20"),
+            ],
+        },
+    )
     return load_case(root)
 
 
 @pytest.mark.parametrize("method", ["windows", "impacted", "tia"])
 def test_section_with_its_own_damages_rate(tmp_path, method):
     result = assess(section_case(tmp_path / "case"), [method]).method(method)
-    assert whole_works(result) == {"excusable": 3, "eot": 3, "revised": day("2025-01-18"), "compensable": 3,
-                                   "prolongation": 0.0, "culpable": 2, "damages": 2000.0, "concurrent": 0}
+    assert whole_works(result) == {
+        "excusable": 3,
+        "eot": 3,
+        "revised": day("2025-01-18"),
+        "compensable": 3,
+        "prolongation": 0.0,
+        "culpable": 2,
+        "damages": 2000.0,
+        "concurrent": 0,
+    }
     sections = result.sections.set_index("section")
     one = sections.loc["S1"]
     assert (one["planned_completion"], one["completion_in_force"], one["actual_completion"]) == (
-        day("2025-01-10"), day("2025-01-10"), day("2025-01-12"))
+        day("2025-01-10"),
+        day("2025-01-10"),
+        day("2025-01-12"),
+    )
     assert (one["excusable_days"], one["eot_days"], one["revised_completion"]) == (0, 0, day("2025-01-10"))
     assert (one["ld_days"], one["liquidated_damages_per_day"], one["ld_exposure"]) == (2, 500.0, 1000.0)
     two = sections.loc["S2"]
     assert (two["eot_days"], two["ld_days"], two["liquidated_damages_per_day"], two["ld_exposure"]) == (
-        3, 2, 1000.0, 2000.0)
+        3,
+        2,
+        1000.0,
+        2000.0,
+    )
 
 
 def test_collapsed_assesses_the_whole_works_not_the_sections(tmp_path):
     result = assess(section_case(tmp_path / "case"), ["collapsed"]).method("collapsed")
-    assert whole_works(result) == {"excusable": 3, "eot": 3, "revised": day("2025-01-18"), "compensable": 3,
-                                   "prolongation": 0.0, "culpable": 2, "damages": 2000.0, "concurrent": 0}
+    assert whole_works(result) == {
+        "excusable": 3,
+        "eot": 3,
+        "revised": day("2025-01-18"),
+        "compensable": 3,
+        "prolongation": 0.0,
+        "culpable": 2,
+        "damages": 2000.0,
+        "concurrent": 0,
+    }
     one = result.sections.set_index("section").loc["S1"]
     assert one["eot_days"] is None and one["ld_exposure"] is None
     assert one["actual_completion"] == day("2025-01-12")
@@ -382,24 +549,62 @@ def test_collapsed_assesses_the_whole_works_not_the_sections(tmp_path):
 #   (case format v2): a grant naming it (X3, 3 days) counts for the whole works, and its row
 #   is the whole works'.
 def granted_case(root, whole_works_grant=False):
-    grants = [{"id": "X1", "granted_on": "2025-01-20", "days": 5, "section": "", "events": "EV1",
-               "reason": "Late access"},
-              {"id": "X2", "granted_on": "2025-01-21", "days": 10, "section": "S1", "events": "EV1",
-               "reason": "Late access, the section"}]
+    grants = [
+        {"id": "X1", "granted_on": "2025-01-20", "days": 5, "section": "", "events": "EV1", "reason": "Late access"},
+        {
+            "id": "X2",
+            "granted_on": "2025-01-21",
+            "days": 10,
+            "section": "S1",
+            "events": "EV1",
+            "reason": "Late access, the section",
+        },
+    ]
     if whole_works_grant:
-        grants.append({"id": "X3", "granted_on": "2025-01-22", "days": 3, "section": "S2", "events": "EV1",
-                       "reason": "Late access, the whole of the works"})
-    write_case(root, activities=[task("A", 5), finish_milestone("M1"), task("B", 5), finish_milestone()],
-               links=[link("A", "M1"), link("A", "B"), link("B", "F")],
-               completion="2025-01-15", schedule=SEVEN_DAY, commercial={"liquidated_damages_per_day": 1000},
-               files={"events.csv": [event("EV1", "employer", "2025-01-06", "2025-01-12", "A", 7)],
-                      "sections.csv": [{"section": "S1", "name": "Car park", "completion_activity": "M1",
-                                        "contract_completion": "2025-01-10", "liquidated_damages_per_day": 300},
-                                       {"section": "S2", "name": "The whole of the works", "completion_activity": "F",
-                                        "contract_completion": "2025-01-15", "liquidated_damages_per_day": 1000}],
-                      "extensions_granted.csv": grants,
-                      "asbuilt.csv": [record("A", "2025-01-06", "2025-01-17"), record("M1", "2025-01-17", "2025-01-17"),
-                                      record("B", "2025-01-18", "2025-01-22"), record("F", "2025-01-22", "2025-01-22")]})
+        grants.append(
+            {
+                "id": "X3",
+                "granted_on": "2025-01-22",
+                "days": 3,
+                "section": "S2",
+                "events": "EV1",
+                "reason": "Late access, the whole of the works",
+            }
+        )
+    write_case(
+        root,
+        activities=[task("A", 5), finish_milestone("M1"), task("B", 5), finish_milestone()],
+        links=[link("A", "M1"), link("A", "B"), link("B", "F")],
+        completion="2025-01-15",
+        schedule=SEVEN_DAY,
+        commercial={"liquidated_damages_per_day": 1000},
+        files={
+            "events.csv": [event("EV1", "employer", "2025-01-06", "2025-01-12", "A", 7)],
+            "sections.csv": [
+                {
+                    "section": "S1",
+                    "name": "Car park",
+                    "completion_activity": "M1",
+                    "contract_completion": "2025-01-10",
+                    "liquidated_damages_per_day": 300,
+                },
+                {
+                    "section": "S2",
+                    "name": "The whole of the works",
+                    "completion_activity": "F",
+                    "contract_completion": "2025-01-15",
+                    "liquidated_damages_per_day": 1000,
+                },
+            ],
+            "extensions_granted.csv": grants,
+            "asbuilt.csv": [
+                record("A", "2025-01-06", "2025-01-17"),
+                record("M1", "2025-01-17", "2025-01-17"),
+                record("B", "2025-01-18", "2025-01-22"),
+                record("F", "2025-01-22", "2025-01-22"),
+            ],
+        },
+    )
     return load_case(root)
 
 
@@ -412,15 +617,24 @@ def test_an_extension_already_granted(tmp_path, method):
     result = assess(case, [method]).method(method)
     assert (result.granted_days, result.completion_in_force) == (5, day("2025-01-20"))
     assert (result.excusable_days, result.eot_days, result.revised_completion, result.ld_days) == (
-        7, 2, day("2025-01-22"), 0)
+        7,
+        2,
+        day("2025-01-22"),
+        0,
+    )
     assert list(result.grants["grant"]) == ["X1"]
     sections = result.sections.set_index("section")
     whole = sections.loc["S2"]
     assert bool(whole["whole_works"]) and (whole["eot_days"], whole["revised_completion"]) == (2, day("2025-01-22"))
     if method != "collapsed":
         one = sections.loc["S1"]
-        assert (one["granted_days"], one["completion_in_force"], one["eot_days"], one["revised_completion"],
-                one["ld_days"]) == (10, day("2025-01-20"), 0, day("2025-01-20"), 0)
+        assert (
+            one["granted_days"],
+            one["completion_in_force"],
+            one["eot_days"],
+            one["revised_completion"],
+            one["ld_days"],
+        ) == (10, day("2025-01-20"), 0, day("2025-01-20"), 0)
 
 
 @pytest.mark.parametrize("method", ALL)
@@ -434,8 +648,15 @@ def test_a_grant_for_the_whole_works_section_is_the_whole_works(tmp_path, method
     assert (result.eot_days, result.revised_completion) == (0, day("2025-01-23"))
     assert list(result.grants["grant"]) == ["X1", "X3"]
     whole = result.sections.set_index("section").loc["S2"]
-    for column in ("granted_days", "completion_in_force", "excusable_days", "eot_days", "revised_completion",
-                   "ld_days", "ld_exposure"):
+    for column in (
+        "granted_days",
+        "completion_in_force",
+        "excusable_days",
+        "eot_days",
+        "revised_completion",
+        "ld_days",
+        "ld_exposure",
+    ):
         assert whole[column] == getattr(result, column), column
 
 
@@ -450,14 +671,31 @@ def test_a_grant_for_the_whole_works_section_is_the_whole_works(tmp_path, method
 def capped_case(root, cap):
     # S1 is marked by its own milestone M1 (after A, beside F; F, last in the file, is the
     # completion activity on the tie), so that it is a section of its own.
-    write_case(root, activities=[task("A", 5), finish_milestone("M1"), finish_milestone()],
-               links=[link("A", "M1"), link("A", "F")], completion="2025-01-10",
-               schedule=SEVEN_DAY, commercial={"liquidated_damages_per_day": 1000, "liquidated_damages_cap": cap},
-               files={"events.csv": [event("EV1", "contractor", "2025-01-06", "2025-01-14", "A", 9)],
-                      "sections.csv": [{"section": "S1", "name": "All", "completion_activity": "M1",
-                                        "contract_completion": "2025-01-10", "liquidated_damages_per_day": 500}],
-                      "asbuilt.csv": [record("A", "2025-01-06", "2025-01-19"), record("M1", "2025-01-19", "2025-01-19"),
-                                      record("F", "2025-01-19", "2025-01-19")]})
+    write_case(
+        root,
+        activities=[task("A", 5), finish_milestone("M1"), finish_milestone()],
+        links=[link("A", "M1"), link("A", "F")],
+        completion="2025-01-10",
+        schedule=SEVEN_DAY,
+        commercial={"liquidated_damages_per_day": 1000, "liquidated_damages_cap": cap},
+        files={
+            "events.csv": [event("EV1", "contractor", "2025-01-06", "2025-01-14", "A", 9)],
+            "sections.csv": [
+                {
+                    "section": "S1",
+                    "name": "All",
+                    "completion_activity": "M1",
+                    "contract_completion": "2025-01-10",
+                    "liquidated_damages_per_day": 500,
+                }
+            ],
+            "asbuilt.csv": [
+                record("A", "2025-01-06", "2025-01-19"),
+                record("M1", "2025-01-19", "2025-01-19"),
+                record("F", "2025-01-19", "2025-01-19"),
+            ],
+        },
+    )
     return load_case(root)
 
 
@@ -477,14 +715,26 @@ def test_a_baseline_late_against_the_contract_gives_no_extension_by_itself(tmp_p
     # Jan 12.  Excusable 2: with excusable delays Jan 12; Jan 12 - Jan 07 = 5, but the
     # extension is never more than the excusable days (entitlement doc): EoT 2, revised
     # Jan 09; actual Jan 12: culpable 3 (the baseline's own overrun), 3 x 1000 = 3000.
-    write_case(tmp_path / "case", activities=[task("A", 5), finish_milestone()], links=[link("A", "F")],
-               completion="2025-01-07", schedule=SEVEN_DAY, commercial={"liquidated_damages_per_day": 1000},
-               files={"events.csv": [event("EV1", "employer", "2025-01-06", "2025-01-07", "A", 2)],
-                      "asbuilt.csv": [record("A", "2025-01-06", "2025-01-12"), record("F", "2025-01-12", "2025-01-12")]})
+    write_case(
+        tmp_path / "case",
+        activities=[task("A", 5), finish_milestone()],
+        links=[link("A", "F")],
+        completion="2025-01-07",
+        schedule=SEVEN_DAY,
+        commercial={"liquidated_damages_per_day": 1000},
+        files={
+            "events.csv": [event("EV1", "employer", "2025-01-06", "2025-01-07", "A", 2)],
+            "asbuilt.csv": [record("A", "2025-01-06", "2025-01-12"), record("F", "2025-01-12", "2025-01-12")],
+        },
+    )
     result = assess(load_case(tmp_path / "case"), ["impacted"]).method("impacted")
     assert result.completion_with_excusable_delays == day("2025-01-12")
     assert (result.eot_days, result.revised_completion, result.ld_days, result.ld_exposure) == (
-        2, day("2025-01-09"), 3, 3000.0)
+        2,
+        day("2025-01-09"),
+        3,
+        3000.0,
+    )
 
 
 def test_a_cap_of_zero_means_no_cap(tmp_path):
@@ -511,18 +761,29 @@ def test_a_cap_of_zero_means_no_cap(tmp_path):
 #     Window 2 (U1 -> as-built, data date Feb 20, last day Feb 19): A complete at U1 (the
 #       trace stops there, zero); B's lateness 19 - 16 = 3: 3 days at 200.
 #     Cost 2 x 100 + 3 x 200 = 800; compensable 5.
-RATES = [{"from": "2025-01-01", "to": "2025-01-31", "cost_per_day": 100},
-         {"from": "2025-02-01", "to": "2025-02-28", "cost_per_day": 200}]
+RATES = [
+    {"from": "2025-01-01", "to": "2025-01-31", "cost_per_day": 100},
+    {"from": "2025-02-01", "to": "2025-02-28", "cost_per_day": 200},
+]
 
 
 def test_prolongation_across_two_rate_periods_impacted(tmp_path):
-    write_case(tmp_path / "case", activities=[task("A", 5), task("B", 5), task("C", 5), finish_milestone()],
-               links=[link("A", "B"), link("B", "C"), link("C", "F")], completion="2025-01-20", schedule=SEVEN_DAY,
-               commercial={"prolongation_cost_per_day": 50},
-               files={"events.csv": [event("EV1", "employer", "2025-01-06", "2025-01-07", "A", 2),
-                                     event("EV2", "employer", "2025-02-03", "2025-02-05", "B", 3),
-                                     event("EV3", "employer", "2025-03-10", "2025-03-10", "C", 1)],
-                      "prolongation_rates.csv": RATES})
+    write_case(
+        tmp_path / "case",
+        activities=[task("A", 5), task("B", 5), task("C", 5), finish_milestone()],
+        links=[link("A", "B"), link("B", "C"), link("C", "F")],
+        completion="2025-01-20",
+        schedule=SEVEN_DAY,
+        commercial={"prolongation_cost_per_day": 50},
+        files={
+            "events.csv": [
+                event("EV1", "employer", "2025-01-06", "2025-01-07", "A", 2),
+                event("EV2", "employer", "2025-02-03", "2025-02-05", "B", 3),
+                event("EV3", "employer", "2025-03-10", "2025-03-10", "C", 1),
+            ],
+            "prolongation_rates.csv": RATES,
+        },
+    )
     case = load_case(tmp_path / "case")
     assert [prolongation_rate(case, d) for d in ("2025-01-06", "2025-02-03", "2025-03-10")] == [100.0, 200.0, 50.0]
     result = assess(case, ["impacted"]).method("impacted")
@@ -531,20 +792,38 @@ def test_prolongation_across_two_rate_periods_impacted(tmp_path):
 
 def test_prolongation_across_two_rate_periods_windows(tmp_path):
     a, b, f = task("A", 20), task("B", 20), finish_milestone()
-    update = [{**a, "actual_start": "2025-01-06", "actual_finish": "2025-01-27"},
-              {**b, "actual_start": None, "actual_finish": None}, {**f, "actual_start": None, "actual_finish": None}]
-    write_case(tmp_path / "case", activities=[a, b, f], links=[link("A", "B"), link("B", "F")],
-               completion="2025-02-14", schedule=SEVEN_DAY, commercial={"prolongation_cost_per_day": 50},
-               snapshots={"U1": {"data_date": "2025-01-28", "activities": update}},
-               files={"events.csv": [event("EV1", "employer", "2025-01-06", "2025-01-27", "A", 2),
-                                     event("EV2", "employer", "2025-02-03", "2025-02-19", "B", 3)],
-                      "prolongation_rates.csv": RATES,
-                      "asbuilt.csv": [record("A", "2025-01-06", "2025-01-27"), record("B", "2025-01-28", "2025-02-19"),
-                                      record("F", "2025-02-19", "2025-02-19")]})
+    update = [
+        {**a, "actual_start": "2025-01-06", "actual_finish": "2025-01-27"},
+        {**b, "actual_start": None, "actual_finish": None},
+        {**f, "actual_start": None, "actual_finish": None},
+    ]
+    write_case(
+        tmp_path / "case",
+        activities=[a, b, f],
+        links=[link("A", "B"), link("B", "F")],
+        completion="2025-02-14",
+        schedule=SEVEN_DAY,
+        commercial={"prolongation_cost_per_day": 50},
+        snapshots={"U1": {"data_date": "2025-01-28", "activities": update}},
+        files={
+            "events.csv": [
+                event("EV1", "employer", "2025-01-06", "2025-01-27", "A", 2),
+                event("EV2", "employer", "2025-02-03", "2025-02-19", "B", 3),
+            ],
+            "prolongation_rates.csv": RATES,
+            "asbuilt.csv": [
+                record("A", "2025-01-06", "2025-01-27"),
+                record("B", "2025-01-28", "2025-02-19"),
+                record("F", "2025-02-19", "2025-02-19"),
+            ],
+        },
+    )
     result = assess(load_case(tmp_path / "case"), ["windows"]).method("windows")
     table = result.causation.table
     assert list(zip(table["window"].astype(int), table["activities"], table["days"].astype(int))) == [
-        (1, "A", 2), (2, "B", 3)]
+        (1, "A", 2),
+        (2, "B", 3),
+    ]
     assert list(table["arose_on"].dt.date) == [day("2025-01-27"), day("2025-02-19")]
     assert (result.compensable_days, result.prolongation_cost) == (5, 800.0)
 
@@ -560,24 +839,35 @@ def test_prolongation_across_two_rate_periods_windows(tmp_path):
 #   compensable 3, EoT 3.  Without an event: the unexplained-risk setting, contractor ->
 #   culpable 3, EoT 0.
 #   The forecast completion compared (no as-built record) is U1's, Jan 18.
-@pytest.mark.parametrize("events, expected", [
-    ([event("EV1", "employer", "2025-01-08", "2025-01-09", "B", 3)], ("employer", "compensable", 3, 3, 0)),
-    ([], ("contractor", "culpable", 0, 0, 3)),
-])
+@pytest.mark.parametrize(
+    "events, expected",
+    [
+        ([event("EV1", "employer", "2025-01-08", "2025-01-09", "B", 3)], ("employer", "compensable", 3, 3, 0)),
+        ([], ("contractor", "culpable", 0, 0, 3)),
+    ],
+)
 def test_windows_revision_charge_parties(tmp_path, events, expected):
     a, b, f = task("A", 5), task("B", 5), finish_milestone()
-    update = [{**a, "actual_start": "2025-01-06", "actual_finish": "2025-01-10"}, {**b, "duration": 8},
-              {**f}]
+    update = [{**a, "actual_start": "2025-01-06", "actual_finish": "2025-01-10"}, {**b, "duration": 8}, {**f}]
     files = {"events.csv": events} if events else {}
-    write_case(tmp_path / "case", activities=[a, b, f], links=[link("A", "B"), link("B", "F")],
-               completion="2025-01-15", schedule=SEVEN_DAY,
-               snapshots={"U1": {"data_date": "2025-01-11", "activities": update}}, files=files)
+    write_case(
+        tmp_path / "case",
+        activities=[a, b, f],
+        links=[link("A", "B"), link("B", "F")],
+        completion="2025-01-15",
+        schedule=SEVEN_DAY,
+        snapshots={"U1": {"data_date": "2025-01-11", "activities": update}},
+        files=files,
+    )
     result = assess(load_case(tmp_path / "case"), ["windows"]).method("windows")
     table = result.causation.table
     assert len(table) == 1
     row = table.iloc[0]
     assert (row["step"], row["activities"], int(row["days"])) == (
-        "window 1 (baseline to U1): revision (durations)", "B", 3)
+        "window 1 (baseline to U1): revision (durations)",
+        "B",
+        3,
+    )
     party, classification, eot, compensable, culpable = expected
     assert (row["party"], row["classification"]) == (party, classification)
     assert (result.eot_days, result.compensable_days, result.ld_days) == (eot, compensable, culpable)
@@ -598,10 +888,18 @@ def test_windows_revision_charge_parties(tmp_path, events, expected):
 #   culpable days 2.
 @pytest.mark.parametrize("method", ["collapsed", "impacted"])
 def test_delay_no_event_explains(tmp_path, method):
-    write_case(tmp_path / "case", activities=[task("A", 5), finish_milestone()], links=[link("A", "F")],
-               completion="2025-01-10", schedule=SEVEN_DAY, commercial={"liquidated_damages_per_day": 100},
-               files={"events.csv": [event("EV1", "employer", "2025-01-06", "2025-01-08", "A", 3)],
-                      "asbuilt.csv": [record("A", "2025-01-06", "2025-01-15"), record("F", "2025-01-15", "2025-01-15")]})
+    write_case(
+        tmp_path / "case",
+        activities=[task("A", 5), finish_milestone()],
+        links=[link("A", "F")],
+        completion="2025-01-10",
+        schedule=SEVEN_DAY,
+        commercial={"liquidated_damages_per_day": 100},
+        files={
+            "events.csv": [event("EV1", "employer", "2025-01-06", "2025-01-08", "A", 3)],
+            "asbuilt.csv": [record("A", "2025-01-06", "2025-01-15"), record("F", "2025-01-15", "2025-01-15")],
+        },
+    )
     result = assess(load_case(tmp_path / "case"), [method]).method(method)
     assert (result.excusable_days, result.eot_days, result.revised_completion) == (3, 3, day("2025-01-13"))
     assert (result.ld_days, result.ld_exposure) == (2, 200.0)
@@ -632,8 +930,9 @@ def test_broken_reconciliation_raises(tmp_path, monkeypatch):
 
 def test_a_row_that_does_not_split_raises():
     # 4 days split into 3 excusable + 0 culpable: one day is lost.
-    table = pd.DataFrame([{"step": "a step", "days": 4, "excusable_days": 3, "compensable_days": 0,
-                           "culpable_days": 0}])
+    table = pd.DataFrame(
+        [{"step": "a step", "days": 4, "excusable_days": 3, "compensable_days": 0, "culpable_days": 0}]
+    )
     with pytest.raises(ReconciliationError) as error:
         reconcile(table, 4, "a table")
     assert error.value.figures == {"excusable + culpable": 3, "days": 4}
@@ -648,9 +947,13 @@ def test_classification_of_a_day_by_its_causes():
     for party, (excusable, compensable, culpable) in one.items():
         split = classify_days([(party, 1)], 1, "time_not_money")
         assert (split["excusable"], split["compensable"], split["culpable"]) == (excusable, compensable, culpable)
-    for causes, expected in [(["employer", "contractor"], (1, 0, 0)), (["employer", "neutral"], (1, 0, 0)),
-                             (["neutral", "contractor"], (1, 0, 0)), (["employer", "employer"], (1, 1, 0)),
-                             (["contractor", "contractor"], (0, 0, 1))]:
+    for causes, expected in [
+        (["employer", "contractor"], (1, 0, 0)),
+        (["employer", "neutral"], (1, 0, 0)),
+        (["neutral", "contractor"], (1, 0, 0)),
+        (["employer", "employer"], (1, 1, 0)),
+        (["contractor", "contractor"], (0, 0, 1)),
+    ]:
         split = classify_days([(p, 1) for p in causes], 1, "time_not_money")
         assert (split["excusable"], split["compensable"], split["culpable"]) == expected, causes
     with pytest.raises(ValueError):  # days always have a cause: the methods name the unexplained risk
@@ -670,8 +973,9 @@ def test_largest_remainder_worked_examples():
 
 
 @settings(max_examples=200, deadline=None)
-@given(st.integers(min_value=-200, max_value=200),
-       st.lists(st.integers(min_value=0, max_value=50), min_size=1, max_size=6))
+@given(
+    st.integers(min_value=-200, max_value=200), st.lists(st.integers(min_value=0, max_value=50), min_size=1, max_size=6)
+)
 def test_largest_remainder_keeps_the_total_and_the_quota(total, weights):
     # Balinski and Young (1982), as recalled: Hamilton's method always satisfies quota: each
     # share is its exact quota rounded down or up, and the shares add up to the whole.
@@ -691,14 +995,28 @@ def test_command_json_shape(tmp_path):
     assert run.exit_code == 0, run.output
     data = json.loads(run.output)
     assert [m["method"] for m in data["methods"]] == list(ALL)
-    required = {"method", "eot_days", "revised_completion", "compensable_days", "prolongation_cost",
-                "ld_days", "ld_exposure", "concurrent_days", "sections"}
+    required = {
+        "method",
+        "eot_days",
+        "revised_completion",
+        "compensable_days",
+        "prolongation_cost",
+        "ld_days",
+        "ld_exposure",
+        "concurrent_days",
+        "sections",
+    }
     for method in data["methods"]:
         assert required <= set(method)
         # Case 1 worked by hand: EoT 3, revised 2025-01-18, compensable 3 at 1000/day.
-        assert (method["eot_days"], method["revised_completion"], method["compensable_days"],
-                method["prolongation_cost"], method["ld_days"], method["ld_exposure"]) == (
-            3, "2025-01-18", 3, 3000.0, 0, 0.0)
+        assert (
+            method["eot_days"],
+            method["revised_completion"],
+            method["compensable_days"],
+            method["prolongation_cost"],
+            method["ld_days"],
+            method["ld_exposure"],
+        ) == (3, "2025-01-18", 3, 3000.0, 0, 0.0)
 
 
 def test_command_one_method_as_a_table(tmp_path):
@@ -744,6 +1062,7 @@ def synthetic_case_with_events(folder, activities, updates, seed):
     import random
 
     from casewriter import write_csv
+
     from delay.synth import synthesise
 
     root = synthesise(folder / "case", activities, updates=updates, seed=seed)
@@ -754,19 +1073,37 @@ def synthetic_case_with_events(folder, activities, updates, seed):
     events = []
     for k in range(rng.randint(2, 6)):
         begins = start + dt.timedelta(days=rng.randint(0, 120))
-        events.append(event(f"EV{k + 1}", rng.choice(["employer", "contractor", "neutral"]), begins.isoformat(),
-                            (begins + dt.timedelta(days=rng.randint(0, 10))).isoformat(),
-                            ";".join(rng.sample(tasks, rng.randint(1, 2))), rng.randint(1, 15)))
+        events.append(
+            event(
+                f"EV{k + 1}",
+                rng.choice(["employer", "contractor", "neutral"]),
+                begins.isoformat(),
+                (begins + dt.timedelta(days=rng.randint(0, 10))).isoformat(),
+                ";".join(rng.sample(tasks, rng.randint(1, 2))),
+                rng.randint(1, 15),
+            )
+        )
     write_csv(root / "events.csv", events)
     milestones = [a for a, d in zip(baseline["id"], baseline["duration"]) if int(d) == 0]
-    write_csv(root / "sections.csv", [
-        {"section": f"S{i + 1}", "name": f"Section {i + 1}", "completion_activity": m,
-         "contract_completion": (start + dt.timedelta(days=60 * (i + 1))).isoformat(),
-         "liquidated_damages_per_day": 100 * (i + 1)} for i, m in enumerate(milestones[-2:])])
+    write_csv(
+        root / "sections.csv",
+        [
+            {
+                "section": f"S{i + 1}",
+                "name": f"Section {i + 1}",
+                "completion_activity": m,
+                "contract_completion": (start + dt.timedelta(days=60 * (i + 1))).isoformat(),
+                "liquidated_damages_per_day": 100 * (i + 1),
+            }
+            for i, m in enumerate(milestones[-2:])
+        ],
+    )
     text = (root / "case.toml").read_text(encoding="utf-8")
-    (root / "case.toml").write_text(text + "\n[commercial]\nliquidated_damages_per_day = 250\n"
-                                    "liquidated_damages_cap = 5000\nprolongation_cost_per_day = 40\n",
-                                    encoding="utf-8")
+    (root / "case.toml").write_text(
+        text + "\n[commercial]\nliquidated_damages_per_day = 250\n"
+        "liquidated_damages_cap = 5000\nprolongation_cost_per_day = 40\n",
+        encoding="utf-8",
+    )
     return load_case(root)
 
 
@@ -792,9 +1129,12 @@ def test_properties_on_synthetic_cases(activities, updates, seed):
                 assert ((table["excusable_days"] + table["culpable_days"]) == table["days"]).all(), method
                 assert int(table["days"].sum()) == result.causation.explained_days, method
                 delay = table[table["days"] >= 0]
-                assert ((delay["compensable_days"] >= 0) & (delay["compensable_days"] <= delay["excusable_days"])
-                        & (delay["excusable_days"] <= delay["days"])
-                        & (delay["concurrent_days"] <= delay["days"])).all(), method
+                assert (
+                    (delay["compensable_days"] >= 0)
+                    & (delay["compensable_days"] <= delay["excusable_days"])
+                    & (delay["excusable_days"] <= delay["days"])
+                    & (delay["concurrent_days"] <= delay["days"])
+                ).all(), method
                 assert result.eot_days >= 0
                 assert result.revised_completion == result.completion_in_force + dt.timedelta(days=result.eot_days)
                 assert result.ld_days == max(0, (result.actual_completion - result.revised_completion).days)
@@ -825,19 +1165,35 @@ def test_properties_on_synthetic_cases(activities, updates, seed):
 #     4 days split 4 : 6 (impacts alone) by largest remainder: quotas 1.6 and 2.4, whole parts
 #     1 and 2, the day left to the larger remainder (0.6, EV1): employer 2 (compensable),
 #     contractor 2 (culpable); with 5-6: excusable 2, compensable 2, culpable delay 4.
-@pytest.mark.parametrize("start, finish, rule, expected", [
-    ("2025-02-10", "2025-02-12", "time_not_money", (4, 4, 2, 0)),
-    ("2025-02-10", "2025-02-12", "apportion", (4, 4, 2, 0)),
-    ("2025-01-07", "2025-01-09", "time_not_money", (4, 0, 2, 4)),
-    ("2025-01-07", "2025-01-09", "apportion", (2, 2, 4, 4)),
-])
+@pytest.mark.parametrize(
+    "start, finish, rule, expected",
+    [
+        ("2025-02-10", "2025-02-12", "time_not_money", (4, 4, 2, 0)),
+        ("2025-02-10", "2025-02-12", "apportion", (4, 4, 2, 0)),
+        ("2025-01-07", "2025-01-09", "time_not_money", (4, 0, 2, 4)),
+        ("2025-01-07", "2025-01-09", "apportion", (2, 2, 4, 4)),
+    ],
+)
 def test_concurrency_needs_the_periods_to_overlap(tmp_path, start, finish, rule, expected):
-    write_case(tmp_path / "case", activities=[task("A", 5), task("B", 5), finish_milestone()],
-               links=[link("A", "F"), link("B", "F")], completion="2025-01-10", schedule=SEVEN_DAY,
-               analysis={"concurrency": rule},
-               files={"events.csv": [event("EV1", "employer", "2025-01-06", "2025-01-08", "A", 4),
-                                     event("EV2", "contractor", start, finish, "B", 6)]})
+    write_case(
+        tmp_path / "case",
+        activities=[task("A", 5), task("B", 5), finish_milestone()],
+        links=[link("A", "F"), link("B", "F")],
+        completion="2025-01-10",
+        schedule=SEVEN_DAY,
+        analysis={"concurrency": rule},
+        files={
+            "events.csv": [
+                event("EV1", "employer", "2025-01-06", "2025-01-08", "A", 4),
+                event("EV2", "contractor", start, finish, "B", 6),
+            ]
+        },
+    )
     result = assess(load_case(tmp_path / "case"), ["impacted"]).method("impacted")
-    assert (result.excusable_days, result.compensable_days, result.culpable_delay_days,
-            result.concurrent_days) == expected
+    assert (
+        result.excusable_days,
+        result.compensable_days,
+        result.culpable_delay_days,
+        result.concurrent_days,
+    ) == expected
     assert result.causation.explained_days == 6

@@ -15,16 +15,15 @@ import subprocess
 import sys
 from pathlib import Path
 
+import ifcopenshell
+import ifcopenshell.util.element
 import numpy as np
 import pandas as pd
 import pytest
 
-ifcopenshell = pytest.importorskip("ifcopenshell")
-import ifcopenshell.util.element  # noqa: E402
-
-from delay.case import load_case  # noqa: E402
-from delay.checks import element_checks  # noqa: E402
-from delay.ifc import demo_outputs, import_model  # noqa: E402
+from delay.case import load_case
+from delay.checks import element_checks
+from delay.ifc import demo_outputs, import_model
 
 DEMO = Path(__file__).resolve().parent.parent / "case_demo"
 MODEL = DEMO / "model" / "tessaly_wharf.ifc"
@@ -32,8 +31,12 @@ OPTIONS = json.loads((DEMO / "model" / "import_options.json").read_text(encoding
 
 
 def test_the_generator_reproduces_the_committed_model(tmp_path):
-    done = subprocess.run([sys.executable, str(DEMO / "model" / "make_model.py"), "--output", str(tmp_path)],
-                          capture_output=True, text=True, timeout=300)
+    done = subprocess.run(
+        [sys.executable, str(DEMO / "model" / "make_model.py"), "--output", str(tmp_path)],
+        capture_output=True,
+        text=True,
+        timeout=300,
+    )
     assert done.returncode == 0, done.stdout + done.stderr
     assert (tmp_path / "tessaly_wharf.ifc").read_bytes() == MODEL.read_bytes()
     assert (tmp_path / "import_options.json").read_bytes() == (DEMO / "model" / "import_options.json").read_bytes()
@@ -47,22 +50,26 @@ def imported(tmp_path_factory):
     (copy / "elements.csv").unlink()
     result = import_model(MODEL, copy, **OPTIONS)
     model = ifcopenshell.open(str(MODEL))
-    tags = {e.GlobalId: ifcopenshell.util.element.get_psets(e)["TW_ProjectCodes"]["AssetTag"]
-            for e in model.by_type("IfcElement")}
+    tags = {
+        e.GlobalId: ifcopenshell.util.element.get_psets(e)["TW_ProjectCodes"]["AssetTag"]
+        for e in model.by_type("IfcElement")
+    }
     return copy, result, tags
 
 
 def test_the_model_imports_to_the_demo_elements(imported):
     copy, result, tags = imported
-    demo = pd.read_csv(DEMO / "elements.csv", dtype={"wbs": str, "level": str, "zone": str},
-                       keep_default_na=False).set_index("id")
+    demo = pd.read_csv(
+        DEMO / "elements.csv", dtype={"wbs": str, "level": str, "zone": str}, keep_default_na=False
+    ).set_index("id")
     table = result.read.elements
     assert len(table) == len(demo) and result.read.findings.empty
     table = table.assign(tag=table["id"].map(tags)).set_index("tag")
     assert set(table.index) == set(demo.index)
     boxes = ["x", "y", "z", "dx", "dy", "dz"]
-    np.testing.assert_allclose(table.loc[demo.index, boxes].to_numpy(float), demo[boxes].to_numpy(float),
-                               atol=0.001)  # to the millimetre
+    np.testing.assert_allclose(
+        table.loc[demo.index, boxes].to_numpy(float), demo[boxes].to_numpy(float), atol=0.001
+    )  # to the millimetre
     for column in ("name", "wbs", "classification", "level", "zone"):
         assert list(table.loc[demo.index, column]) == list(demo[column]), column
 
@@ -79,15 +86,23 @@ def test_the_element_checks_find_the_planted_defects_in_the_model(imported):
 def test_demo_outputs_export_and_read_back_the_baseline(tmp_path):
     written = demo_outputs(load_case(DEMO), tmp_path)
     names = sorted(p.name for p in written)
-    assert names == ["baseline_schedule.ifc", "element_checks.json", "elements_findings.csv",
-                     "elements_from_model.csv", "schedule_round_trip.json"]
+    assert names == [
+        "baseline_schedule.ifc",
+        "element_checks.json",
+        "elements_findings.csv",
+        "elements_from_model.csv",
+        "schedule_round_trip.json",
+    ]
     assert all(p.is_file() for p in written)
     summary = json.loads((tmp_path / "ifc" / "schedule_round_trip.json").read_text(encoding="utf-8"))
     baseline = load_case(DEMO).baseline
-    assert (summary["read_back_activities"], summary["read_back_links"]) == (len(baseline.activities),
-                                                                           len(baseline.links))
+    assert (summary["read_back_activities"], summary["read_back_links"]) == (
+        len(baseline.activities),
+        len(baseline.links),
+    )
     assert summary["same_activities"] and summary["differences"] == []
     exported = ifcopenshell.open(str(tmp_path / "ifc" / "baseline_schedule.ifc"))
     assert len(exported.by_type("IfcTask")) == len(baseline.activities)
     assert not exported.by_type("IfcBuildingElementProxy") or all(
-        p.ObjectType != "placeholder from elements.csv" for p in exported.by_type("IfcBuildingElementProxy"))
+        p.ObjectType != "placeholder from elements.csv" for p in exported.by_type("IfcBuildingElementProxy")
+    )

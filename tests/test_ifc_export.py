@@ -16,20 +16,18 @@ from __future__ import annotations
 
 import shutil
 
+import ifcopenshell
+import ifcopenshell.validate
 import numpy as np
 import pandas as pd
 import pytest
+from casewriter import write_case
 from click.testing import CliRunner
 
-from casewriter import write_case
-
-ifcopenshell = pytest.importorskip("ifcopenshell")
-import ifcopenshell.validate  # noqa: E402
-
-from delay.case import load_case  # noqa: E402
-from delay.commands.ifc import export_ifc  # noqa: E402
-from delay.cpm import schedule  # noqa: E402
-from delay.ifc import export_schedule, import_model, import_work_schedule, read_model  # noqa: E402
+from delay.case import load_case
+from delay.commands.ifc import export_ifc
+from delay.cpm import schedule
+from delay.ifc import export_schedule, import_model, import_work_schedule, read_model
 
 # Hand-worked (5-day calendar from Monday 2025-01-06): A 3 days 01-06..01-08, B 2 days FS
 # 01-09..01-10 (critical), C 1 day from the start 01-06, free until B's finish: open end to
@@ -42,18 +40,68 @@ SMALL = [
     {"id": "F", "name": "Finish", "duration": 0, "kind": "finish_milestone", "wbs": "1"},
 ]
 SMALL_LINKS = [
-    {"pred": "S", "succ": "A", "type": "FS", "lag": 0}, {"pred": "A", "succ": "B", "type": "FS", "lag": 0},
-    {"pred": "S", "succ": "C", "type": "FS", "lag": 0}, {"pred": "B", "succ": "F", "type": "FS", "lag": 0},
+    {"pred": "S", "succ": "A", "type": "FS", "lag": 0},
+    {"pred": "A", "succ": "B", "type": "FS", "lag": 0},
+    {"pred": "S", "succ": "C", "type": "FS", "lag": 0},
+    {"pred": "B", "succ": "F", "type": "FS", "lag": 0},
 ]
 ELEMENTS = [  # boxes in metres; W-2 spans storeys 00 to 01
-    {"id": "W-1", "name": "Wall 1", "wbs": "3.1", "classification": "WALL", "x": 0, "y": 0, "z": 0, "dx": 6,
-     "dy": 0.2, "dz": 3, "level": "00", "zone": "A"},
-    {"id": "W-2", "name": "Wall 2", "wbs": "3.1", "classification": "WALL", "x": 5.8, "y": 0, "z": 0, "dx": 0.2,
-     "dy": 4, "dz": 6.5, "level": "00-01", "zone": "A"},
-    {"id": "R-1", "name": "Roof slab", "wbs": "3.2", "classification": "SLAB", "x": 0, "y": 0, "z": 3.25,
-     "dx": 6, "dy": 4, "dz": 0.3, "level": "01", "zone": ""},
-    {"id": "P-1", "name": "Gully", "wbs": "8.1", "classification": "DRAIN", "x": 2.5, "y": -1.25, "z": -0.6,
-     "dx": 0.45, "dy": 0.45, "dz": 0.6, "level": "", "zone": "external"},
+    {
+        "id": "W-1",
+        "name": "Wall 1",
+        "wbs": "3.1",
+        "classification": "WALL",
+        "x": 0,
+        "y": 0,
+        "z": 0,
+        "dx": 6,
+        "dy": 0.2,
+        "dz": 3,
+        "level": "00",
+        "zone": "A",
+    },
+    {
+        "id": "W-2",
+        "name": "Wall 2",
+        "wbs": "3.1",
+        "classification": "WALL",
+        "x": 5.8,
+        "y": 0,
+        "z": 0,
+        "dx": 0.2,
+        "dy": 4,
+        "dz": 6.5,
+        "level": "00-01",
+        "zone": "A",
+    },
+    {
+        "id": "R-1",
+        "name": "Roof slab",
+        "wbs": "3.2",
+        "classification": "SLAB",
+        "x": 0,
+        "y": 0,
+        "z": 3.25,
+        "dx": 6,
+        "dy": 4,
+        "dz": 0.3,
+        "level": "01",
+        "zone": "",
+    },
+    {
+        "id": "P-1",
+        "name": "Gully",
+        "wbs": "8.1",
+        "classification": "DRAIN",
+        "x": 2.5,
+        "y": -1.25,
+        "z": -0.6,
+        "dx": 0.45,
+        "dy": 0.45,
+        "dz": 0.6,
+        "level": "",
+        "zone": "external",
+    },
 ]
 
 
@@ -77,22 +125,36 @@ def test_exported_file_is_valid_ifc4_with_dates_floats_and_assignments(tmp_path)
     times = task_times(model)
     a, c = times["A"], times["C"]
     assert (a.ScheduleStart[:10], a.ScheduleFinish[:10], a.LateStart[:10], a.LateFinish[:10]) == (
-        "2025-01-06", "2025-01-08", "2025-01-06", "2025-01-08")
+        "2025-01-06",
+        "2025-01-08",
+        "2025-01-06",
+        "2025-01-08",
+    )
     assert (a.TotalFloat, a.FreeFloat, a.IsCritical, a.ScheduleDuration, a.DurationType) == (
-        "P0D", "P0D", True, "P3D", "WORKTIME")
+        "P0D",
+        "P0D",
+        True,
+        "P3D",
+        "WORKTIME",
+    )
     assert (c.TotalFloat, c.FreeFloat, c.IsCritical, c.LateStart[:10]) == ("P4D", "P4D", False, "2025-01-10")
     assert (c.EarlyStart, c.EarlyFinish) == (c.ScheduleStart, c.ScheduleFinish)
     milestone = [t for t in model.by_type("IfcTask") if t.Identification == "F"][0]
     assert milestone.IsMilestone and milestone.TaskTime.ScheduleStart[:10] == "2025-01-10"
-    sequences = {(r.RelatingProcess.Identification, r.RelatedProcess.Identification): r.SequenceType
-                 for r in model.by_type("IfcRelSequence")}
+    sequences = {
+        (r.RelatingProcess.Identification, r.RelatedProcess.Identification): r.SequenceType
+        for r in model.by_type("IfcRelSequence")
+    }
     assert sequences[("A", "B")] == "FINISH_START" and len(sequences) == 4
     # each element is the output of the tasks sharing its wbs (IfcRelAssignsToProduct)
-    builds = {r.RelatingProduct.Tag: sorted(t.Identification for t in r.RelatedObjects)
-              for r in model.by_type("IfcRelAssignsToProduct")}
+    builds = {
+        r.RelatingProduct.Tag: sorted(t.Identification for t in r.RelatedObjects)
+        for r in model.by_type("IfcRelAssignsToProduct")
+    }
     assert builds == {"W-1": ["A"], "W-2": ["A"], "R-1": ["B"], "P-1": ["C"]}
-    assert all(p.is_a("IfcBuildingElementProxy") for p in (r.RelatingProduct for r in
-                                                              model.by_type("IfcRelAssignsToProduct")))
+    assert all(
+        p.is_a("IfcBuildingElementProxy") for p in (r.RelatingProduct for r in model.by_type("IfcRelAssignsToProduct"))
+    )
     schedules = model.by_type("IfcWorkSchedule")
     assert len(schedules) == 1 and schedules[0].PredefinedType == "BASELINE"
 
@@ -104,10 +166,17 @@ def test_placeholders_carry_the_boxes_levels_and_zones(tmp_path):
     back = read.elements.set_index("name")
     for element in ELEMENTS:
         row = back.loc[element["name"]]
-        np.testing.assert_allclose([row[c] for c in ("x", "y", "z", "dx", "dy", "dz")],
-                                   [element[c] for c in ("x", "y", "z", "dx", "dy", "dz")], atol=0.001)
+        np.testing.assert_allclose(
+            [row[c] for c in ("x", "y", "z", "dx", "dy", "dz")],
+            [element[c] for c in ("x", "y", "z", "dx", "dy", "dz")],
+            atol=0.001,
+        )
         assert (row["wbs"], row["classification"], row["level"], row["zone"]) == (
-            element["wbs"], element["classification"], element["level"], element["zone"]), element["id"]
+            element["wbs"],
+            element["classification"],
+            element["level"],
+            element["zone"],
+        ), element["id"]
 
 
 def test_an_imported_model_is_referenced_by_global_id(tmp_path):
@@ -117,7 +186,9 @@ def test_an_imported_model_is_referenced_by_global_id(tmp_path):
     root = write_case(tmp_path / "case", activities=ACTIVITIES, links=LINKS)
     import_model(tmp_path / "model.ifc", root, code_property="TestCodes.WorkPackage", classification="Uniclass 2015")
     result = export_schedule(load_case(root), "baseline", tmp_path / "scheduled.ifc")
-    assert result.model == (tmp_path / "model.ifc").resolve() and result.placeholders == 0 and result.model_elements == 8
+    assert (
+        result.model == (tmp_path / "model.ifc").resolve() and result.placeholders == 0 and result.model_elements == 8
+    )
     model = ifcopenshell.open(str(tmp_path / "scheduled.ifc"))
     builds = {}
     for rel in model.by_type("IfcRelAssignsToProduct"):
@@ -136,19 +207,36 @@ def test_an_imported_model_is_referenced_by_global_id(tmp_path):
 ROUND_TRIP = [
     {"id": "S", "name": "Start", "duration": 0, "kind": "start_milestone", "wbs": "1", "party": "employer"},
     {"id": "A", "name": "Excavate", "duration": 4, "calendar": "5d", "wbs": "2.1", "party": "contractor"},
-    {"id": "B", "name": "Cure", "duration": 3, "calendar": "7d", "wbs": "2.2", "constraint": "earliest_start",
-     "constraint_date": "2025-01-15"},
+    {
+        "id": "B",
+        "name": "Cure",
+        "duration": 3,
+        "calendar": "7d",
+        "wbs": "2.2",
+        "constraint": "earliest_start",
+        "constraint_date": "2025-01-15",
+    },
     {"id": "C", "name": "Backfill", "duration": 2, "wbs": "2.3"},
-    {"id": "D", "name": "Slab", "duration": 5, "wbs": "3.1", "constraint": "latest_finish",
-     "constraint_date": "2025-02-28"},
+    {
+        "id": "D",
+        "name": "Slab",
+        "duration": 5,
+        "wbs": "3.1",
+        "constraint": "latest_finish",
+        "constraint_date": "2025-02-28",
+    },
     {"id": "Z", "name": "Inspection", "duration": 0, "wbs": "9"},  # a zero-duration task: a finish milestone
     {"id": "F", "name": "Complete", "duration": 0, "kind": "finish_milestone", "wbs": "1"},
 ]
 ROUND_TRIP_LINKS = [
-    {"pred": "S", "succ": "A", "type": "FS", "lag": 0}, {"pred": "A", "succ": "B", "type": "SS", "lag": 2},
-    {"pred": "A", "succ": "C", "type": "FS", "lag": -1}, {"pred": "B", "succ": "D", "type": "FF", "lag": 3},
-    {"pred": "C", "succ": "D", "type": "SF", "lag": 4}, {"pred": "D", "succ": "F", "type": "FS", "lag": 0},
-    {"pred": "C", "succ": "Z", "type": "FS", "lag": 0}, {"pred": "Z", "succ": "F", "type": "FS", "lag": 0},
+    {"pred": "S", "succ": "A", "type": "FS", "lag": 0},
+    {"pred": "A", "succ": "B", "type": "SS", "lag": 2},
+    {"pred": "A", "succ": "C", "type": "FS", "lag": -1},
+    {"pred": "B", "succ": "D", "type": "FF", "lag": 3},
+    {"pred": "C", "succ": "D", "type": "SF", "lag": 4},
+    {"pred": "D", "succ": "F", "type": "FS", "lag": 0},
+    {"pred": "C", "succ": "Z", "type": "FS", "lag": 0},
+    {"pred": "Z", "succ": "F", "type": "FS", "lag": 0},
 ]
 PROGRESS = [dict(r) for r in ROUND_TRIP]
 for _row in PROGRESS:
@@ -168,8 +256,13 @@ EXCEPTIONS = [
 
 @pytest.mark.parametrize("folder", ["baseline", "update_01"])
 def test_round_trip_gives_the_same_schedule(tmp_path, folder):
-    root = write_case(tmp_path / "case", activities=ROUND_TRIP, links=ROUND_TRIP_LINKS, exceptions=EXCEPTIONS,
-                      snapshots={"update_01": {"data_date": "2025-01-17", "activities": PROGRESS}})
+    root = write_case(
+        tmp_path / "case",
+        activities=ROUND_TRIP,
+        links=ROUND_TRIP_LINKS,
+        exceptions=EXCEPTIONS,
+        snapshots={"update_01": {"data_date": "2025-01-17", "activities": PROGRESS}},
+    )
     original = load_case(root)
     export_schedule(original, folder, tmp_path / "programme.ifc")
     again = tmp_path / "again"
@@ -193,8 +286,9 @@ def test_command_writes_the_file_and_refuses_an_unknown_snapshot(tmp_path):
     done = runner.invoke(export_ifc, [str(root), str(tmp_path / "out.ifc")], catch_exceptions=False)
     assert done.exit_code == 0, done.output
     assert "5 tasks" in done.output and (tmp_path / "out.ifc").is_file()
-    failed = runner.invoke(export_ifc, [str(root), str(tmp_path / "other.ifc"), "--snapshot", "nope"],
-                           catch_exceptions=False)
+    failed = runner.invoke(
+        export_ifc, [str(root), str(tmp_path / "other.ifc"), "--snapshot", "nope"], catch_exceptions=False
+    )
     assert failed.exit_code == 2 and "nope" in failed.output and "Traceback" not in failed.output
     assert not (tmp_path / "other.ifc").exists()
     assert not [p for p in tmp_path.iterdir() if p.name.endswith(".part.ifc")]

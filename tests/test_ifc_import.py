@@ -23,32 +23,30 @@ from __future__ import annotations
 import hashlib
 from pathlib import Path
 
+import ifcopenshell
+import ifcopenshell.api
+import ifcopenshell.api.aggregate
+import ifcopenshell.api.classification
+import ifcopenshell.api.context
+import ifcopenshell.api.feature
+import ifcopenshell.api.geometry
+import ifcopenshell.api.project
+import ifcopenshell.api.pset
+import ifcopenshell.api.root
+import ifcopenshell.api.sequence
+import ifcopenshell.api.spatial
+import ifcopenshell.api.type
+import ifcopenshell.api.unit
 import numpy as np
 import pandas as pd
 import pytest
+from casewriter import write_case, write_csv
 from click.testing import CliRunner
 
-from casewriter import write_case, write_csv
-
-ifcopenshell = pytest.importorskip("ifcopenshell")
-import ifcopenshell.api  # noqa: E402
-import ifcopenshell.api.aggregate  # noqa: E402
-import ifcopenshell.api.classification  # noqa: E402
-import ifcopenshell.api.context  # noqa: E402
-import ifcopenshell.api.feature  # noqa: E402
-import ifcopenshell.api.geometry  # noqa: E402
-import ifcopenshell.api.project  # noqa: E402
-import ifcopenshell.api.pset  # noqa: E402
-import ifcopenshell.api.root  # noqa: E402
-import ifcopenshell.api.sequence  # noqa: E402
-import ifcopenshell.api.spatial  # noqa: E402
-import ifcopenshell.api.type  # noqa: E402
-import ifcopenshell.api.unit  # noqa: E402
-
-from delay.case import load_case  # noqa: E402
-from delay.checks import element_checks  # noqa: E402
-from delay.commands.ifc import import_ifc  # noqa: E402
-from delay.ifc import import_model, read_model  # noqa: E402
+from delay.case import load_case
+from delay.checks import element_checks
+from delay.commands.ifc import import_ifc
+from delay.ifc import import_model, read_model
 
 MILLIMETRE = 0.001  # metres: the tolerance of every box check ("to the millimetre")
 
@@ -81,8 +79,9 @@ class ModelBuilder:
         self.project = api.root.create_entity(self.model, ifc_class="IfcProject", name="Test project")
         api.unit.assign_unit(self.model)  # millimetres (the API's default length unit)
         model_context = api.context.add_context(self.model, context_type="Model")
-        self.body = api.context.add_context(self.model, context_type="Model", context_identifier="Body",
-                                            target_view="MODEL_VIEW", parent=model_context)
+        self.body = api.context.add_context(
+            self.model, context_type="Model", context_identifier="Body", target_view="MODEL_VIEW", parent=model_context
+        )
         site = api.root.create_entity(self.model, ifc_class="IfcSite", name="Site")
         self.building = api.root.create_entity(self.model, ifc_class="IfcBuilding", name="Building")
         api.aggregate.assign_object(self.model, relating_object=self.project, products=[site])
@@ -96,12 +95,14 @@ class ModelBuilder:
         self.uniclass = api.classification.add_classification(self.model, classification="Uniclass 2015")
         self.groups = api.classification.add_classification(self.model, classification="Project element groups")
 
-    def element(self, ifc_class, name, storey="00", matrix=None, representation=None, code=None,
-                uniclass=None, group=None):
+    def element(
+        self, ifc_class, name, storey="00", matrix=None, representation=None, code=None, uniclass=None, group=None
+    ):
         api = ifcopenshell.api
         element = api.root.create_entity(self.model, ifc_class=ifc_class, name=name)
-        api.geometry.edit_object_placement(self.model, product=element,
-                                           matrix=matrix if matrix is not None else np.eye(4))
+        api.geometry.edit_object_placement(
+            self.model, product=element, matrix=matrix if matrix is not None else np.eye(4)
+        )
         if representation is not None:
             api.geometry.assign_representation(self.model, product=element, representation=representation)
         api.spatial.assign_container(self.model, relating_structure=self.storeys[storey], products=[element])
@@ -109,27 +110,40 @@ class ModelBuilder:
             pset = api.pset.add_pset(self.model, product=element, name="TestCodes")
             api.pset.edit_pset(self.model, pset=pset, properties={"WorkPackage": code})
         if uniclass:
-            api.classification.add_reference(self.model, products=[element], identification=uniclass,
-                                             name=uniclass, classification=self.uniclass)
+            api.classification.add_reference(
+                self.model, products=[element], identification=uniclass, name=uniclass, classification=self.uniclass
+            )
         if group:
-            api.classification.add_reference(self.model, products=[element], identification=group, name=group,
-                                             classification=self.groups)
+            api.classification.add_reference(
+                self.model, products=[element], identification=group, name=group, classification=self.groups
+            )
         return element
 
     def wall(self, length, height, thickness):
-        return ifcopenshell.api.geometry.add_wall_representation(self.model, context=self.body, length=length,
-                                                                 height=height, thickness=thickness)
+        return ifcopenshell.api.geometry.add_wall_representation(
+            self.model, context=self.body, length=length, height=height, thickness=thickness
+        )
 
     def column_shape(self, width_mm, depth_mm, height_mm):
         """An extruded rectangle written directly in file units (mm), centred on the origin."""
         f = self.model
         profile = f.create_entity("IfcRectangleProfileDef", ProfileType="AREA", XDim=width_mm, YDim=depth_mm)
-        solid = f.create_entity("IfcExtrudedAreaSolid", SweptArea=profile,
-                                Position=f.create_entity("IfcAxis2Placement3D",
-                                                         Location=f.create_entity("IfcCartesianPoint", [0., 0., 0.])),
-                                ExtrudedDirection=f.create_entity("IfcDirection", [0., 0., 1.]), Depth=height_mm)
-        return f.create_entity("IfcShapeRepresentation", ContextOfItems=self.body, RepresentationIdentifier="Body",
-                               RepresentationType="SweptSolid", Items=[solid])
+        solid = f.create_entity(
+            "IfcExtrudedAreaSolid",
+            SweptArea=profile,
+            Position=f.create_entity(
+                "IfcAxis2Placement3D", Location=f.create_entity("IfcCartesianPoint", [0.0, 0.0, 0.0])
+            ),
+            ExtrudedDirection=f.create_entity("IfcDirection", [0.0, 0.0, 1.0]),
+            Depth=height_mm,
+        )
+        return f.create_entity(
+            "IfcShapeRepresentation",
+            ContextOfItems=self.body,
+            RepresentationIdentifier="Body",
+            RepresentationType="SweptSolid",
+            Items=[solid],
+        )
 
 
 def build_model(path: Path) -> dict[str, str]:
@@ -138,17 +152,38 @@ def build_model(path: Path) -> dict[str, str]:
     api = ifcopenshell.api
     ids = {}
     # Wall along x from the origin: box x 0..6, y 0..0.2, z 0..3.
-    south = b.element("IfcWall", "South wall", matrix=placement(0, 0, 0), representation=b.wall(6.0, 3.0, 0.2),
-                      code="3.00.1", uniclass="EF_25_10", group="WALL")
+    south = b.element(
+        "IfcWall",
+        "South wall",
+        matrix=placement(0, 0, 0),
+        representation=b.wall(6.0, 3.0, 0.2),
+        code="3.00.1",
+        uniclass="EF_25_10",
+        group="WALL",
+    )
     # Wall rotated 90 degrees about z at (6, 0, 0): local x runs along world +y, local y along
     # world -x, so the 4.0 x 0.2 profile covers x 5.8..6.0, y 0..4.0; z 0..3.
-    east = b.element("IfcWall", "East wall", matrix=placement(6, 0, 0, 90), representation=b.wall(4.0, 3.0, 0.2),
-                     code="3.00.1", uniclass="EF_25_10", group="WALL")
+    east = b.element(
+        "IfcWall",
+        "East wall",
+        matrix=placement(6, 0, 0, 90),
+        representation=b.wall(4.0, 3.0, 0.2),
+        code="3.00.1",
+        uniclass="EF_25_10",
+        group="WALL",
+    )
     # Slab on level 01: the 6 x 4 polyline at z = 3.0, 0.25 deep upwards: box z 3.0..3.25.
-    slab_shape = api.geometry.add_slab_representation(b.model, context=b.body, depth=0.25,
-                                                      polyline=[(0, 0), (6, 0), (6, 4), (0, 4), (0, 0)])
-    slab = b.element("IfcSlab", "Slab level 01", storey="01", matrix=placement(0, 0, 3.0), representation=slab_shape,
-                     uniclass="SS_20_05")
+    slab_shape = api.geometry.add_slab_representation(
+        b.model, context=b.body, depth=0.25, polyline=[(0, 0), (6, 0), (6, 4), (0, 4), (0, 0)]
+    )
+    slab = b.element(
+        "IfcSlab",
+        "Slab level 01",
+        storey="01",
+        matrix=placement(0, 0, 3.0),
+        representation=slab_shape,
+        uniclass="SS_20_05",
+    )
     # Columns of a type that carries the code: 400 x 400 mm centred on (2, 2) and (4, 2),
     # 3000 mm high: boxes x 1.8..2.2 / 3.8..4.2, y 1.8..2.2, z 0..3.
     column_type = api.root.create_entity(b.model, ifc_class="IfcColumnType", name="C400")
@@ -156,15 +191,26 @@ def build_model(path: Path) -> dict[str, str]:
     api.pset.edit_pset(b.model, pset=type_pset, properties={"WorkPackage": "3.00.3"})
     columns = []
     for key, x in (("column_1", 2.0), ("column_2", 4.0)):
-        column = b.element("IfcColumn", f"Column {key[-1]}", matrix=placement(x, 2.0, 0.0),
-                           representation=b.column_shape(400.0, 400.0, 3000.0), uniclass="EF_20_10")
+        column = b.element(
+            "IfcColumn",
+            f"Column {key[-1]}",
+            matrix=placement(x, 2.0, 0.0),
+            representation=b.column_shape(400.0, 400.0, 3000.0),
+            uniclass="EF_20_10",
+        )
         columns.append(column)
         ids[key] = column.GlobalId
     api.type.assign_type(b.model, related_objects=columns, relating_type=column_type)
     # A door and its copy in the same place: box x 1.0..1.9, y 0.075..0.125, z 0..2.1.
     for key in ("door", "door_copy"):
-        door = b.element("IfcDoor", "Door D1", matrix=placement(1.0, 0.075, 0.0), representation=b.wall(0.9, 2.1, 0.05),
-                         code="3.00.4", uniclass="EF_25_30")
+        door = b.element(
+            "IfcDoor",
+            "Door D1",
+            matrix=placement(1.0, 0.075, 0.0),
+            representation=b.wall(0.9, 2.1, 0.05),
+            code="3.00.4",
+            uniclass="EF_25_30",
+        )
         ids[key] = door.GlobalId
     # A beam with geometry and no code, a covering with a code and no geometry, an opening.
     beam = b.element("IfcBeam", "Beam without a code", matrix=placement(0, 0, 2.8), representation=b.wall(6, 0.2, 0.2))
@@ -172,15 +218,21 @@ def build_model(path: Path) -> dict[str, str]:
     opening = api.root.create_entity(b.model, ifc_class="IfcOpeningElement", name="Opening")
     # The slab is built by the task SLAB-01 (IfcRelAssignsToProduct): its code comes from the baseline.
     work_schedule = api.sequence.add_work_schedule(b.model, name="Construction")
-    task = api.sequence.add_task(b.model, work_schedule=work_schedule, name="Slab level 01",
-                                 identification="SLAB-01", predefined_type="CONSTRUCTION")
+    task = api.sequence.add_task(
+        b.model,
+        work_schedule=work_schedule,
+        name="Slab level 01",
+        identification="SLAB-01",
+        predefined_type="CONSTRUCTION",
+    )
     api.sequence.assign_product(b.model, relating_product=slab, related_object=task)
     # A spatial zone referencing the two walls.
     zone = api.root.create_entity(b.model, ifc_class="IfcSpatialZone", name="Zone A")
     api.spatial.reference_structure(b.model, products=[south, east], relating_structure=zone)
     api.feature.add_feature(b.model, feature=opening, element=south)  # an opening has a host (IfcRelVoidsElement)
-    ids.update(south=south.GlobalId, east=east.GlobalId, slab=slab.GlobalId, beam=beam.GlobalId,
-               covering=covering.GlobalId)
+    ids.update(
+        south=south.GlobalId, east=east.GlobalId, slab=slab.GlobalId, beam=beam.GlobalId, covering=covering.GlobalId
+    )
     b.model.write(str(path))
     return ids
 
@@ -212,19 +264,28 @@ EXPECTED_BOXES = {  # x, y, z, dx, dy, dz in metres, as worked in build_model's 
 def test_boxes_codes_storeys_and_classifications(built):
     path, case, ids = built
     baseline = load_case(case).baseline.activities
-    read = read_model(path, code_property="TestCodes.WorkPackage", classification="Uniclass 2015",
-                      activity_wbs=dict(zip(baseline["id"], baseline["wbs"])))
+    read = read_model(
+        path,
+        code_property="TestCodes.WorkPackage",
+        classification="Uniclass 2015",
+        activity_wbs=dict(zip(baseline["id"], baseline["wbs"])),
+    )
     assert read.schema == "IFC4"
     assert read.length_unit_in_metres == pytest.approx(0.001)  # the API's default: millimetres
     table = read.elements
     for key, expected in EXPECTED_BOXES.items():
         np.testing.assert_allclose(box_of(table, ids[key]), expected, atol=MILLIMETRE, err_msg=key)
     rows = table.set_index("id")
-    expected_codes = {"south": ("3.00.1", "property"), "east": ("3.00.1", "property"),
-                      "column_1": ("3.00.3", "property"), "column_2": ("3.00.3", "property"),  # from the type
-                      "door": ("3.00.4", "property"), "door_copy": ("3.00.4", "property"),
-                      "slab": ("3.01.2", "task"),  # the baseline's wbs of SLAB-01
-                      "covering": ("3.00.5", "property")}
+    expected_codes = {
+        "south": ("3.00.1", "property"),
+        "east": ("3.00.1", "property"),
+        "column_1": ("3.00.3", "property"),
+        "column_2": ("3.00.3", "property"),  # from the type
+        "door": ("3.00.4", "property"),
+        "door_copy": ("3.00.4", "property"),
+        "slab": ("3.01.2", "task"),  # the baseline's wbs of SLAB-01
+        "covering": ("3.00.5", "property"),
+    }
     for key, (wbs, source) in expected_codes.items():
         assert (rows.loc[ids[key], "wbs"], rows.loc[ids[key], "code_source"]) == (wbs, source), key
     assert rows.loc[ids["slab"], "level"] == "01" and rows.loc[ids["south"], "level"] == "00"
@@ -257,12 +318,41 @@ def test_the_element_checks_find_the_duplicated_door(built):
 
 def test_merge_keeps_other_rows_and_replaces_same_ids(built):
     path, case, ids = built
-    write_csv(case / "elements.csv", [
-        {"id": "OLD-1", "name": "Kept from before", "wbs": "3.00.1", "classification": "X", "x": "1.5", "y": "",
-         "z": "", "dx": "", "dy": "", "dz": "", "level": "00", "zone": "", "note": "analyst's note"},
-        {"id": ids["south"], "name": "Stale row", "wbs": "9.9", "classification": "", "x": "99", "y": "99",
-         "z": "99", "dx": "1", "dy": "1", "dz": "1", "level": "", "zone": "", "note": "replaced"},
-    ])
+    write_csv(
+        case / "elements.csv",
+        [
+            {
+                "id": "OLD-1",
+                "name": "Kept from before",
+                "wbs": "3.00.1",
+                "classification": "X",
+                "x": "1.5",
+                "y": "",
+                "z": "",
+                "dx": "",
+                "dy": "",
+                "dz": "",
+                "level": "00",
+                "zone": "",
+                "note": "analyst's note",
+            },
+            {
+                "id": ids["south"],
+                "name": "Stale row",
+                "wbs": "9.9",
+                "classification": "",
+                "x": "99",
+                "y": "99",
+                "z": "99",
+                "dx": "1",
+                "dy": "1",
+                "dz": "1",
+                "level": "",
+                "zone": "",
+                "note": "replaced",
+            },
+        ],
+    )
     result = import_model(path, case, code_property="TestCodes.WorkPackage", classification="Uniclass 2015")
     assert (result.replaced, result.added) == (1, 7)  # 8 elements with a code, one already there
     table = pd.read_csv(case / "elements.csv", dtype=str, keep_default_na=False)
@@ -291,42 +381,71 @@ def test_unit_scale_of_a_model_in_feet(tmp_path):
     foot = api.unit.add_conversion_based_unit(model, name="foot")
     api.unit.assign_unit(model, units=[foot])
     context = api.context.add_context(model, context_type="Model")
-    body = api.context.add_context(model, context_type="Model", context_identifier="Body",
-                                   target_view="MODEL_VIEW", parent=context)
+    body = api.context.add_context(
+        model, context_type="Model", context_identifier="Body", target_view="MODEL_VIEW", parent=context
+    )
     storey = api.root.create_entity(model, ifc_class="IfcBuildingStorey", name="Ground")
     wall = api.root.create_entity(model, ifc_class="IfcWall", name="Imperial wall")
-    profile = model.create_entity("IfcRectangleProfileDef", ProfileType="AREA", XDim=10.0, YDim=2.0,
-                                  Position=model.create_entity("IfcAxis2Placement2D", Location=model.create_entity(
-                                      "IfcCartesianPoint", [5.0, 1.0])))
-    solid = model.create_entity("IfcExtrudedAreaSolid", SweptArea=profile, Position=model.create_entity(
-        "IfcAxis2Placement3D", Location=model.create_entity("IfcCartesianPoint", [0., 0., 0.])),
-        ExtrudedDirection=model.create_entity("IfcDirection", [0., 0., 1.]), Depth=12.0)
-    shape = model.create_entity("IfcShapeRepresentation", ContextOfItems=body, RepresentationIdentifier="Body",
-                                RepresentationType="SweptSolid", Items=[solid])
+    profile = model.create_entity(
+        "IfcRectangleProfileDef",
+        ProfileType="AREA",
+        XDim=10.0,
+        YDim=2.0,
+        Position=model.create_entity(
+            "IfcAxis2Placement2D", Location=model.create_entity("IfcCartesianPoint", [5.0, 1.0])
+        ),
+    )
+    solid = model.create_entity(
+        "IfcExtrudedAreaSolid",
+        SweptArea=profile,
+        Position=model.create_entity(
+            "IfcAxis2Placement3D", Location=model.create_entity("IfcCartesianPoint", [0.0, 0.0, 0.0])
+        ),
+        ExtrudedDirection=model.create_entity("IfcDirection", [0.0, 0.0, 1.0]),
+        Depth=12.0,
+    )
+    shape = model.create_entity(
+        "IfcShapeRepresentation",
+        ContextOfItems=body,
+        RepresentationIdentifier="Body",
+        RepresentationType="SweptSolid",
+        Items=[solid],
+    )
     wall.Representation = model.create_entity("IfcProductDefinitionShape", Representations=[shape])
-    wall.ObjectPlacement = model.create_entity("IfcLocalPlacement", RelativePlacement=model.create_entity(
-        "IfcAxis2Placement3D", Location=model.create_entity("IfcCartesianPoint", [5.0, 1.0, 0.0])))
+    wall.ObjectPlacement = model.create_entity(
+        "IfcLocalPlacement",
+        RelativePlacement=model.create_entity(
+            "IfcAxis2Placement3D", Location=model.create_entity("IfcCartesianPoint", [5.0, 1.0, 0.0])
+        ),
+    )
     api.spatial.assign_container(model, relating_structure=storey, products=[wall])
     pset = api.pset.add_pset(model, product=wall, name="Codes")
     api.pset.edit_pset(model, pset=pset, properties={"WBS": "1.1"})
     model.write(str(tmp_path / "feet.ifc"))
     read = read_model(tmp_path / "feet.ifc", code_property="Codes.WBS")
     assert read.length_unit_in_metres == pytest.approx(0.3048)
-    np.testing.assert_allclose(box_of(read.elements, wall.GlobalId), (1.524, 0.3048, 0.0, 3.048, 0.6096, 3.6576),
-                               atol=MILLIMETRE)
+    np.testing.assert_allclose(
+        box_of(read.elements, wall.GlobalId), (1.524, 0.3048, 0.0, 3.048, 0.6096, 3.6576), atol=MILLIMETRE
+    )
     assert read.elements.iloc[0]["level"] == "Ground"
 
 
 def _digest(folder: Path) -> dict[str, str]:
-    return {str(p.relative_to(folder)): hashlib.sha256(p.read_bytes()).hexdigest()
-            for p in sorted(folder.rglob("*")) if p.is_file()}
+    return {
+        str(p.relative_to(folder)): hashlib.sha256(p.read_bytes()).hexdigest()
+        for p in sorted(folder.rglob("*"))
+        if p.is_file()
+    }
 
 
 def test_command_prints_findings_and_refuses_a_broken_file(built, tmp_path):
     path, case, ids = built
     runner = CliRunner()
-    done = runner.invoke(import_ifc, [str(path), str(case), "--code-property", "TestCodes.WorkPackage",
-                                      "--classification", "Uniclass 2015"], catch_exceptions=False)
+    done = runner.invoke(
+        import_ifc,
+        [str(path), str(case), "--code-property", "TestCodes.WorkPackage", "--classification", "Uniclass 2015"],
+        catch_exceptions=False,
+    )
     assert done.exit_code == 0, done.output
     assert "no_code" in done.output and "8 written" in done.output
     before = _digest(case)

@@ -32,25 +32,22 @@ day 5 = 03-11 (03-10 is the holiday), day 7 = 03-13, day 9 = 03-17, day 10 = 03-
 
 from __future__ import annotations
 
+import ifcopenshell
+import ifcopenshell.api
+import ifcopenshell.api.control
+import ifcopenshell.api.project
+import ifcopenshell.api.pset
+import ifcopenshell.api.root
+import ifcopenshell.api.sequence
 import numpy as np
 import pandas as pd
-import pytest
+from casewriter import write_case
 from click.testing import CliRunner
 
-from casewriter import write_case
-
-ifcopenshell = pytest.importorskip("ifcopenshell")
-import ifcopenshell.api  # noqa: E402
-import ifcopenshell.api.control  # noqa: E402
-import ifcopenshell.api.project  # noqa: E402
-import ifcopenshell.api.pset  # noqa: E402
-import ifcopenshell.api.root  # noqa: E402
-import ifcopenshell.api.sequence  # noqa: E402
-
-from delay.case import load_case  # noqa: E402
-from delay.commands.ifc import import_ifc_schedule  # noqa: E402
-from delay.cpm import schedule  # noqa: E402
-from delay.ifc import import_work_schedule, read_work_schedule  # noqa: E402
+from delay.case import load_case
+from delay.commands.ifc import import_ifc_schedule
+from delay.cpm import schedule
+from delay.ifc import import_work_schedule, read_work_schedule
 
 HOLIDAYS = ["2025-03-10"]
 
@@ -70,29 +67,42 @@ def build_schedule(path, progress: bool = False, extra=None):
     week = api.sequence.add_work_time(model, work_calendar=calendar, time_type="WorkingTimes")
     api.sequence.edit_work_time(model, work_time=week, attributes={"Name": "Weekdays"})
     pattern = api.sequence.assign_recurrence_pattern(model, parent=week, recurrence_type="WEEKLY")
-    api.sequence.edit_recurrence_pattern(model, recurrence_pattern=pattern,
-                                         attributes={"WeekdayComponent": [1, 2, 3, 4, 5]})
+    api.sequence.edit_recurrence_pattern(
+        model, recurrence_pattern=pattern, attributes={"WeekdayComponent": [1, 2, 3, 4, 5]}
+    )
     api.sequence.add_time_period(model, recurrence_pattern=pattern, start_time="08:00:00", end_time="12:00:00")
     api.sequence.add_time_period(model, recurrence_pattern=pattern, start_time="13:00:00", end_time="17:00:00")
     holiday = api.sequence.add_work_time(model, work_calendar=calendar, time_type="ExceptionTimes")
-    api.sequence.edit_work_time(model, work_time=holiday,
-                                attributes={"Name": "Test holiday", "Start": "2025-03-10", "Finish": "2025-03-10"})
+    api.sequence.edit_work_time(
+        model, work_time=holiday, attributes={"Name": "Test holiday", "Start": "2025-03-10", "Finish": "2025-03-10"}
+    )
     summary = api.sequence.add_task(model, work_schedule=schedule_entity, name="Structure", identification="S1")
     tasks = {}
     for identification, name, duration, parent in (
-            ("M0", "Start", "P0D", None), ("A", "Excavate", "P5D", None), ("B", "Pour", "P3D", summary),
-            ("C", "Cure", "P2D", summary), ("D", "Finish works", "PT16H", None), ("M1", "Complete", "P0D", None),
-            ("X", "Permit", None, None)):
+        ("M0", "Start", "P0D", None),
+        ("A", "Excavate", "P5D", None),
+        ("B", "Pour", "P3D", summary),
+        ("C", "Cure", "P2D", summary),
+        ("D", "Finish works", "PT16H", None),
+        ("M1", "Complete", "P0D", None),
+        ("X", "Permit", None, None),
+    ):
         if parent is None:
-            task = api.sequence.add_task(model, work_schedule=schedule_entity, name=name, identification=identification,
-                                         predefined_type="CONSTRUCTION")
+            task = api.sequence.add_task(
+                model,
+                work_schedule=schedule_entity,
+                name=name,
+                identification=identification,
+                predefined_type="CONSTRUCTION",
+            )
         else:
             task = api.sequence.add_task(model, parent_task=parent, name=name, predefined_type="CONSTRUCTION")
             task.Identification = identification  # the API numbers nested tasks after their parent
         time = api.sequence.add_task_time(model, task=task)
         if duration is not None:
-            api.sequence.edit_task_time(model, task_time=time, attributes={"ScheduleDuration": duration,
-                                                                           "DurationType": "WORKTIME"})
+            api.sequence.edit_task_time(
+                model, task_time=time, attributes={"ScheduleDuration": duration, "DurationType": "WORKTIME"}
+            )
         if identification.startswith("M"):
             api.sequence.edit_task(model, task=task, attributes={"IsMilestone": True})
         tasks[identification] = task
@@ -102,8 +112,9 @@ def build_schedule(path, progress: bool = False, extra=None):
     api.control.assign_control(model, relating_control=calendar, related_objects=list(tasks.values()))
 
     def link(pred, succ, kind, lag=None):
-        rel = api.sequence.assign_sequence(model, relating_process=tasks[pred], related_process=tasks[succ],
-                                           sequence_type=kind)
+        rel = api.sequence.assign_sequence(
+            model, relating_process=tasks[pred], related_process=tasks[succ], sequence_type=kind
+        )
         if lag is not None:
             api.sequence.assign_lag_time(model, rel_sequence=rel, lag_value=lag, duration_type="WORKTIME")
 
@@ -117,9 +128,13 @@ def build_schedule(path, progress: bool = False, extra=None):
     if progress:
         # Update of Monday 2025-03-17: A done 03-03 to 03-07, C done 03-04 to 03-05, B started
         # 03-13 with 2 days to go; every task's status assessed on the data date.
-        for identification, start, finish in (("A", "2025-03-03", "2025-03-07"), ("C", "2025-03-04", "2025-03-05"),
-                                              ("M0", "2025-03-03", "2025-03-03"), ("X", "2025-03-03", "2025-03-04"),
-                                              ("B", "2025-03-13", None)):
+        for identification, start, finish in (
+            ("A", "2025-03-03", "2025-03-07"),
+            ("C", "2025-03-04", "2025-03-05"),
+            ("M0", "2025-03-03", "2025-03-03"),
+            ("X", "2025-03-03", "2025-03-04"),
+            ("B", "2025-03-13", None),
+        ):
             time = tasks[identification].TaskTime
             time.ActualStart = f"{start}T08:00:00"
             if finish:
@@ -135,8 +150,9 @@ def build_schedule(path, progress: bool = False, extra=None):
 
 def empty_case(root):
     """A case whose baseline the import replaces."""
-    return write_case(root, activities=[{"id": "S", "name": "Start", "duration": 0, "kind": "start_milestone"}],
-                      start="2025-03-03")
+    return write_case(
+        root, activities=[{"id": "S", "name": "Start", "duration": 0, "kind": "start_milestone"}], start="2025-03-03"
+    )
 
 
 def test_read_maps_tasks_durations_links_lags_and_calendar(tmp_path):
@@ -146,13 +162,26 @@ def test_read_maps_tasks_durations_links_lags_and_calendar(tmp_path):
     # and take its Identification as wbs
     assert list(activities.index) == ["B", "C", "M0", "A", "D", "M1", "X"]
     assert dict(activities["duration"]) == {"M0": "0", "A": "5", "B": "3", "C": "2", "D": "2", "M1": "0", "X": "2"}
-    assert dict(activities["kind"]) == {"M0": "start_milestone", "A": "task", "B": "task", "C": "task", "D": "task",
-                                        "M1": "finish_milestone", "X": "task"}
+    assert dict(activities["kind"]) == {
+        "M0": "start_milestone",
+        "A": "task",
+        "B": "task",
+        "C": "task",
+        "D": "task",
+        "M1": "finish_milestone",
+        "X": "task",
+    }
     assert (activities.loc["B", "wbs"], activities.loc["C", "wbs"], activities.loc["A", "wbs"]) == ("S1", "S1", "")
     links = {(r.pred, r.succ): (r.type, r.lag) for r in read.links.itertuples()}
-    assert links == {("M0", "A"): ("FS", "0"), ("A", "B"): ("FS", "2"), ("A", "C"): ("SS", "1"),
-                     ("B", "D"): ("FS", "0"), ("C", "D"): ("FS", "-1"), ("D", "M1"): ("FS", "0"),
-                     ("C", "M1"): ("FF", "0")}
+    assert links == {
+        ("M0", "A"): ("FS", "0"),
+        ("A", "B"): ("FS", "2"),
+        ("A", "C"): ("SS", "1"),
+        ("B", "D"): ("FS", "0"),
+        ("C", "D"): ("FS", "-1"),
+        ("D", "M1"): ("FS", "0"),
+        ("C", "M1"): ("FF", "0"),
+    }
     calendar = read.calendars["Site week"]
     assert calendar.workdays == "Mon Tue Wed Thu Fri" and calendar.hours_per_day == 8.0
     assert {d.isoformat(): r for d, r in calendar.holidays.items()} == {"2025-03-10": "Test holiday"}
@@ -172,13 +201,21 @@ def test_imported_baseline_schedules_as_worked_by_hand(tmp_path):
     assert list(exceptions["date"].dt.strftime("%Y-%m-%d")) == HOLIDAYS and not exceptions["working"].any()
     table = schedule(loaded, "baseline").activities.set_index("id")
     expected = {  # (early start, early finish, total float, free float) as worked in the docstring
-        "A": (day(0), day(4), 0, 0), "B": (day(7), day(9), 0, 0), "C": (day(1), day(2), 8, 8),
-        "D": (day(10), day(11), 0, 0), "M1": (day(11), day(11), 0, 0), "X": (day(0), day(1), 10, 10),
+        "A": (day(0), day(4), 0, 0),
+        "B": (day(7), day(9), 0, 0),
+        "C": (day(1), day(2), 8, 8),
+        "D": (day(10), day(11), 0, 0),
+        "M1": (day(11), day(11), 0, 0),
+        "X": (day(0), day(1), 10, 10),
     }
     for identification, (start, finish, total, free) in expected.items():
         row = table.loc[identification]
         assert (row["early_start"], row["early_finish"], row["total_float"], row["free_float"]) == (
-            start, finish, total, free), identification
+            start,
+            finish,
+            total,
+            free,
+        ), identification
     assert str(schedule(loaded, "baseline").completion) == "2025-03-19"
 
 
@@ -209,18 +246,21 @@ def test_bad_schedules_exit_2_and_write_nothing(tmp_path):
 
     path = build_schedule(tmp_path / "twice.ifc", extra=twice)
     runner = CliRunner()
-    done = runner.invoke(import_ifc_schedule, [str(path), str(case), "--snapshot", "baseline", "--replace"],
-                         catch_exceptions=False)
+    done = runner.invoke(
+        import_ifc_schedule, [str(path), str(case), "--snapshot", "baseline", "--replace"], catch_exceptions=False
+    )
     assert done.exit_code == 2
     assert "Identification 'A'" in done.output and "Traceback" not in done.output
     # an update whose actual dates are not before the data date given
     good = build_schedule(tmp_path / "update.ifc", progress=True)
-    done = runner.invoke(import_ifc_schedule, [str(good), str(case), "--snapshot", "2025-03-05",
-                                               "--data-date", "2025-03-05"], catch_exceptions=False)
+    done = runner.invoke(
+        import_ifc_schedule,
+        [str(good), str(case), "--snapshot", "2025-03-05", "--data-date", "2025-03-05"],
+        catch_exceptions=False,
+    )
     assert done.exit_code == 2 and "on or after the data date" in done.output
     # an existing folder is not replaced without --replace
-    done = runner.invoke(import_ifc_schedule, [str(good), str(case), "--snapshot", "baseline"],
-                         catch_exceptions=False)
+    done = runner.invoke(import_ifc_schedule, [str(good), str(case), "--snapshot", "baseline"], catch_exceptions=False)
     assert done.exit_code == 2 and "--replace" in done.output
     assert sorted(p.name for p in (case / "snapshots").iterdir()) == before
     assert not (case / "calendar_exceptions.csv").exists()

@@ -46,11 +46,11 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 import pytest
+from casewriter import write_case, write_csv
 from click.testing import CliRunner
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from casewriter import write_case, write_csv
 from delay.case import load_case
 from delay.commands.modelled import impacted
 from delay.cpm import ScheduleModel, prepare, schedule
@@ -75,8 +75,16 @@ def link(pred, succ, kind="FS", lag=0):
 
 
 def event(event_id, party, start, finish, activities, impact_kind, days=None):
-    return {"id": event_id, "title": f"Event {event_id}", "party": party, "start": start, "finish": finish,
-            "activities": activities, "impact": impact_kind, "days": days}
+    return {
+        "id": event_id,
+        "title": f"Event {event_id}",
+        "party": party,
+        "start": start,
+        "finish": finish,
+        "activities": activities,
+        "impact": impact_kind,
+        "days": days,
+    }
 
 
 def day(text):
@@ -108,13 +116,14 @@ def invoke(*args):
 #   Total 3 = 0 + 3.
 CHAIN = [task("A", 5), task("B", 5), task("X", 3), finish_milestone()]
 CHAIN_LINKS = [link("A", "B"), link("B", "F"), link("X", "F")]
-CHAIN_EVENTS = [event("E1", "employer", "2025-01-09", "2025-01-10", "B", "extend", 3),
-                event("E2", "employer", "2025-01-07", "2025-01-08", "X", "extend", 7)]
+CHAIN_EVENTS = [
+    event("E1", "employer", "2025-01-09", "2025-01-10", "B", "extend", 3),
+    event("E2", "employer", "2025-01-07", "2025-01-08", "X", "extend", 7),
+]
 
 
 def chain_case(root):
-    write_case(root, activities=CHAIN, links=CHAIN_LINKS, schedule=SEVEN_DAY,
-               files={"events.csv": CHAIN_EVENTS})
+    write_case(root, activities=CHAIN, links=CHAIN_LINKS, schedule=SEVEN_DAY, files={"events.csv": CHAIN_EVENTS})
     return root
 
 
@@ -163,13 +172,16 @@ def test_chronological_run_of_critical_and_float_events(tmp_path):
 #   employer [E1] alone 5, increments 5 (chronological);  contractor [E2] alone 2, increments 0.
 PARALLEL = [task("A", 10), task("B", 8), finish_milestone()]
 PARALLEL_LINKS = [link("A", "F"), link("B", "F")]
-PARALLEL_EVENTS = [event("E1", "employer", "2025-01-07", "2025-01-09", "A", "extend", 5),
-                   event("E2", "contractor", "2025-01-08", "2025-01-10", "B", "extend", 4)]
+PARALLEL_EVENTS = [
+    event("E1", "employer", "2025-01-07", "2025-01-09", "A", "extend", 5),
+    event("E2", "contractor", "2025-01-08", "2025-01-10", "B", "extend", 4),
+]
 
 
 def parallel_case(root):
-    write_case(root, activities=PARALLEL, links=PARALLEL_LINKS, schedule=SEVEN_DAY,
-               files={"events.csv": PARALLEL_EVENTS})
+    write_case(
+        root, activities=PARALLEL, links=PARALLEL_LINKS, schedule=SEVEN_DAY, files={"events.csv": PARALLEL_EVENTS}
+    )
     return root
 
 
@@ -207,26 +219,48 @@ def test_cli_json_chronological(tmp_path):
     # no as-built record and no programme after the baseline: nothing says what happened, so
     # the analysis is prospective and the impacted completion stands, with no residual
     # (impacted doc)
-    assert {k: data[k] for k in ("method", "base", "target", "completion_base", "completion_cumulative",
-                                 "actual_completion", "total_days", "residual_days", "explained_days")} == {
-        "method": "impacted", "base": "baseline", "target": "F", "completion_base": "2025-01-15",
-        "completion_cumulative": "2025-01-20", "actual_completion": "2025-01-20", "total_days": 5,
-        "residual_days": 0, "explained_days": 5}
+    assert {
+        k: data[k]
+        for k in (
+            "method",
+            "base",
+            "target",
+            "completion_base",
+            "completion_cumulative",
+            "actual_completion",
+            "total_days",
+            "residual_days",
+            "explained_days",
+        )
+    } == {
+        "method": "impacted",
+        "base": "baseline",
+        "target": "F",
+        "completion_base": "2025-01-15",
+        "completion_cumulative": "2025-01-20",
+        "actual_completion": "2025-01-20",
+        "total_days": 5,
+        "residual_days": 0,
+        "explained_days": 5,
+    }
     assert any("prospective" in note for note in data["notes"])
-    assert [{k: e[k] for k in ("event", "party", "alone_days", "increment_days", "completion_after")}
-            for e in data["events"]] == [
+    assert [
+        {k: e[k] for k in ("event", "party", "alone_days", "increment_days", "completion_after")}
+        for e in data["events"]
+    ] == [
         {"event": "E1", "party": "employer", "alone_days": 5, "increment_days": 5, "completion_after": "2025-01-20"},
         {"event": "E2", "party": "contractor", "alone_days": 2, "increment_days": 0, "completion_after": "2025-01-20"},
     ]
 
 
 def test_cli_order_as_listed(tmp_path):
-    run = invoke(parallel_case(tmp_path / "case"), "--events", "E2,E1", "--order", "as-listed",
-                 "--format", "json")
+    run = invoke(parallel_case(tmp_path / "case"), "--events", "E2,E1", "--order", "as-listed", "--format", "json")
     assert run.exit_code == 0, run.output
     data = json.loads(run.stdout)
     assert [(e["event"], e["increment_days"], e["completion_after"]) for e in data["events"]] == [
-        ("E2", 2, "2025-01-17"), ("E1", 3, "2025-01-20")]
+        ("E2", 2, "2025-01-17"),
+        ("E1", 3, "2025-01-20"),
+    ]
     assert data["total_days"] == 5
 
 
@@ -273,13 +307,16 @@ def test_cli_unknown_base_is_a_plain_input_error(tmp_path):
 # Per party: employer [E1] alone 5, increments 5; contractor [E2] alone 5, increments 0.
 # (Either delay alone would have moved completion 5 days: concurrent delay, common practice.)
 CONCURRENT = [task("A", 10), task("B", 10), finish_milestone()]
-CONCURRENT_EVENTS = [event("E1", "employer", "2025-01-08", "2025-01-12", "A", "extend", 5),
-                     event("E2", "contractor", "2025-01-09", "2025-01-13", "B", "extend", 5)]
+CONCURRENT_EVENTS = [
+    event("E1", "employer", "2025-01-08", "2025-01-12", "A", "extend", 5),
+    event("E2", "contractor", "2025-01-09", "2025-01-13", "B", "extend", 5),
+]
 
 
 def concurrent_case(root):
-    write_case(root, activities=CONCURRENT, links=PARALLEL_LINKS, schedule=SEVEN_DAY,
-               files={"events.csv": CONCURRENT_EVENTS})
+    write_case(
+        root, activities=CONCURRENT, links=PARALLEL_LINKS, schedule=SEVEN_DAY, files={"events.csv": CONCURRENT_EVENTS}
+    )
     return root
 
 
@@ -330,17 +367,24 @@ def test_cli_table_shows_per_party_rows_and_the_cautions(tmp_path):
 #   chain would give B EF >= 9 < 10, no delay; SS read as FS would give N2 ES 7, EF 13,
 #   B EF 14, +4; FF read as FS would give B ES 12, EF 17, +7.
 FRAGNET_EVENTS = [event("G", "employer", "2025-01-09", "2025-01-20", "B", "fragnet")]
-FRAGNETS = [{"event": "G", "id": "N1", "name": "Redesign of the opening", "duration": 4},
-            {"event": "G", "id": "N2", "name": "Rework of the opening", "duration": 6}]
-FRAGNET_LINKS = [{"event": "G", "pred": "N1", "succ": "N2", "type": "SS", "lag": 2},
-                 {"event": "G", "pred": "N2", "succ": "B", "type": "FF", "lag": 1}]
+FRAGNETS = [
+    {"event": "G", "id": "N1", "name": "Redesign of the opening", "duration": 4},
+    {"event": "G", "id": "N2", "name": "Rework of the opening", "duration": 6},
+]
+FRAGNET_LINKS = [
+    {"event": "G", "pred": "N1", "succ": "N2", "type": "SS", "lag": 2},
+    {"event": "G", "pred": "N2", "succ": "B", "type": "FF", "lag": 1},
+]
 
 
 def fragnet_case(root):
-    write_case(root, activities=[task("A", 5), task("B", 5), finish_milestone()],
-               links=[link("A", "B"), link("B", "F")], schedule=SEVEN_DAY,
-               files={"events.csv": FRAGNET_EVENTS, "fragnets.csv": FRAGNETS,
-                      "fragnet_links.csv": FRAGNET_LINKS})
+    write_case(
+        root,
+        activities=[task("A", 5), task("B", 5), finish_milestone()],
+        links=[link("A", "B"), link("B", "F")],
+        schedule=SEVEN_DAY,
+        files={"events.csv": FRAGNET_EVENTS, "fragnets.csv": FRAGNETS, "fragnet_links.csv": FRAGNET_LINKS},
+    )
     return root
 
 
@@ -379,9 +423,12 @@ def test_fragnet_activity_without_predecessor_starts_at_the_event_start(tmp_path
 #   its three days fall on the next work days after the hold: Mon Jan 13 - Wed Jan 15 (days
 #   5-7), F Wed Jan 15.  Alone: Jan 15 - Jan 10 = 5 calendar days; work days 7 - 4 = 3.
 def hold_case(root, first="2025-01-07", last="2025-01-10"):
-    write_case(root, activities=[task("P", 2), task("A", 3), finish_milestone()],
-               links=[link("P", "A"), link("A", "F")],
-               files={"events.csv": [event("H", "employer", first, last, "A", "hold")]})
+    write_case(
+        root,
+        activities=[task("P", 2), task("A", 3), finish_milestone()],
+        links=[link("P", "A"), link("A", "F")],
+        files={"events.csv": [event("H", "employer", first, last, "A", "hold")]},
+    )
     return root
 
 
@@ -424,12 +471,18 @@ def test_hold_on_work_planned_to_finish_before_it(tmp_path):
 #   start bound on a started activity was ignored: +0.)
 def test_hold_on_work_in_progress(tmp_path):
     p, a, f = task("P", 2), task("A", 5), finish_milestone()
-    update = [{**p, "actual_start": "2025-01-06", "actual_finish": "2025-01-07", "remaining": None},
-              {**a, "actual_start": "2025-01-08", "actual_finish": None, "remaining": 2},
-              {**f, "actual_start": None, "actual_finish": None, "remaining": None}]
-    write_case(tmp_path / "case", activities=[p, a, f], links=[link("P", "A"), link("A", "F")],
-               snapshots={"u1": {"data_date": "2025-01-13", "activities": update}},
-               files={"events.csv": [event("H", "contractor", "2025-01-14", "2025-01-15", "A", "hold")]})
+    update = [
+        {**p, "actual_start": "2025-01-06", "actual_finish": "2025-01-07", "remaining": None},
+        {**a, "actual_start": "2025-01-08", "actual_finish": None, "remaining": 2},
+        {**f, "actual_start": None, "actual_finish": None, "remaining": None},
+    ]
+    write_case(
+        tmp_path / "case",
+        activities=[p, a, f],
+        links=[link("P", "A"), link("A", "F")],
+        snapshots={"u1": {"data_date": "2025-01-13", "activities": update}},
+        files={"events.csv": [event("H", "contractor", "2025-01-14", "2025-01-15", "A", "hold")]},
+    )
     result = analyse(load_case(tmp_path / "case"), base="u1")
     row = by_event(result).loc["H"]
     assert result.completion_base == day("2025-01-14")
@@ -449,11 +502,18 @@ def test_hold_on_work_in_progress(tmp_path):
 # (Added to the original duration only, the given remaining 8 would still govern: +0.)
 def in_progress_case(root):
     a, f = task("A", 10), finish_milestone()
-    update = [{**a, "actual_start": "2025-01-06", "actual_finish": None, "remaining": 8},
-              {**f, "actual_start": None, "actual_finish": None, "remaining": None}]
-    write_case(root, activities=[a, f], links=[link("A", "F")], schedule=SEVEN_DAY,
-               snapshots={"u1": {"data_date": "2025-01-10", "label": "Update 1", "activities": update}},
-               files={"events.csv": [event("E", "employer", "2025-01-12", "2025-01-14", "A", "extend", 3)]})
+    update = [
+        {**a, "actual_start": "2025-01-06", "actual_finish": None, "remaining": 8},
+        {**f, "actual_start": None, "actual_finish": None, "remaining": None},
+    ]
+    write_case(
+        root,
+        activities=[a, f],
+        links=[link("A", "F")],
+        schedule=SEVEN_DAY,
+        snapshots={"u1": {"data_date": "2025-01-10", "label": "Update 1", "activities": update}},
+        files={"events.csv": [event("E", "employer", "2025-01-12", "2025-01-14", "A", "extend", 3)]},
+    )
     return root
 
 
@@ -495,8 +555,11 @@ def test_broken_increments_raise_reconciliation_error(tmp_path, monkeypatch):
     measured = {"base": 0}
 
     def is_base(model):
-        return (model.network.size == base.network.size and np.array_equal(model.duration, base.duration)
-                and np.array_equal(model.start_bound, base.start_bound))
+        return (
+            model.network.size == base.network.size
+            and np.array_equal(model.duration, base.duration)
+            and np.array_equal(model.start_bound, base.start_bound)
+        )
 
     def late_on_first_base_measurement(model) -> int:
         if not is_base(model):
@@ -530,7 +593,8 @@ def test_broken_increments_raise_reconciliation_error(tmp_path, monkeypatch):
     span = (outcome.completion_cumulative - outcome.completion_base).days
     assert increments == outcome.total_days == span, (
         f"no ReconciliationError, yet the increments add to {increments} while total_days is "
-        f"{outcome.total_days} (base measured {measured['base']} times)")
+        f"{outcome.total_days} (base measured {measured['base']} times)"
+    )
     assert outcome.events["completion_after"].iloc[-1] == outcome.completion_cumulative
 
 
@@ -564,18 +628,37 @@ def synthetic_register(rng, activities, count):
         start = dt.date(2026, 1, 5) + dt.timedelta(days=int(rng.integers(0, 60)))
         finish = start + dt.timedelta(days=int(rng.integers(0, 20)))
         kind = ("extend", "hold", "fragnet")[number % 3]
-        events.append({"id": event_id, "title": f"Event {number}", "party": ("employer", "contractor")[number % 2],
-                       "start": start.isoformat(), "finish": finish.isoformat(), "activities": ";".join(targets),
-                       "impact": kind, "days": int(rng.integers(1, 9)) if kind == "extend" else None})
+        events.append(
+            {
+                "id": event_id,
+                "title": f"Event {number}",
+                "party": ("employer", "contractor")[number % 2],
+                "start": start.isoformat(),
+                "finish": finish.isoformat(),
+                "activities": ";".join(targets),
+                "impact": kind,
+                "days": int(rng.integers(1, 9)) if kind == "extend" else None,
+            }
+        )
         if kind == "fragnet":
             first, second = f"{event_id}-1", f"{event_id}-2"
-            fragnets += [{"event": event_id, "id": first, "name": "Inserted 1", "duration": int(rng.integers(1, 9))},
-                         {"event": event_id, "id": second, "name": "Inserted 2", "duration": int(rng.integers(1, 9))}]
-            fragnet_links.append({"event": event_id, "pred": first, "succ": second,
-                                  "type": str(rng.choice(["FS", "SS"])), "lag": int(rng.integers(0, 3))})
+            fragnets += [
+                {"event": event_id, "id": first, "name": "Inserted 1", "duration": int(rng.integers(1, 9))},
+                {"event": event_id, "id": second, "name": "Inserted 2", "duration": int(rng.integers(1, 9))},
+            ]
+            fragnet_links.append(
+                {
+                    "event": event_id,
+                    "pred": first,
+                    "succ": second,
+                    "type": str(rng.choice(["FS", "SS"])),
+                    "lag": int(rng.integers(0, 3)),
+                }
+            )
             for target in targets:
-                fragnet_links.append({"event": event_id, "pred": second, "succ": target,
-                                      "type": str(rng.choice(["FS", "FF"])), "lag": 0})
+                fragnet_links.append(
+                    {"event": event_id, "pred": second, "succ": target, "type": str(rng.choice(["FS", "FF"])), "lag": 0}
+                )
     return events, fragnets, fragnet_links
 
 
@@ -616,18 +699,32 @@ def events_written_into_the_programme(folder, events, fragnets, fragnet_links):
         activities.loc[target, "calendar"] = name
     pd.concat([calendars, pd.DataFrame(new_calendars)]).to_csv(folder / "calendars.csv", index=False)
     pd.concat([exceptions, pd.DataFrame(new_exceptions, columns=exceptions.columns)]).to_csv(
-        folder / "calendar_exceptions.csv", index=False)
+        folder / "calendar_exceptions.csv", index=False
+    )
     activities = activities.reset_index()
     starts = {row["id"]: row["start"] for row in events}
     with_predecessor = {link["succ"] for link in fragnet_links}
-    added = pd.DataFrame([{"id": f["id"], "name": f["name"], "duration": str(f["duration"]), "calendar": "",
-                           "wbs": "", "kind": "task",
-                           "constraint": "" if f["id"] in with_predecessor else "earliest_start",
-                           "constraint_date": "" if f["id"] in with_predecessor else starts[f["event"]]}
-                          for f in fragnets], columns=activities.columns)
+    added = pd.DataFrame(
+        [
+            {
+                "id": f["id"],
+                "name": f["name"],
+                "duration": str(f["duration"]),
+                "calendar": "",
+                "wbs": "",
+                "kind": "task",
+                "constraint": "" if f["id"] in with_predecessor else "earliest_start",
+                "constraint_date": "" if f["id"] in with_predecessor else starts[f["event"]],
+            }
+            for f in fragnets
+        ],
+        columns=activities.columns,
+    )
     pd.concat([activities, added]).to_csv(base / "activities.csv", index=False)
-    extra_links = pd.DataFrame([{"pred": k["pred"], "succ": k["succ"], "type": k["type"], "lag": str(k["lag"])}
-                                for k in fragnet_links], columns=links.columns)
+    extra_links = pd.DataFrame(
+        [{"pred": k["pred"], "succ": k["succ"], "type": k["type"], "lag": str(k["lag"])} for k in fragnet_links],
+        columns=links.columns,
+    )
     pd.concat([links, extra_links]).to_csv(base / "links.csv", index=False)
 
 

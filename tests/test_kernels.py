@@ -28,10 +28,10 @@ import networkx as nx
 import numpy as np
 import pandas as pd
 import pytest
+from casewriter import write_case
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from casewriter import write_case
 from delay._jit import kernel_mode
 
 ROOT = Path(__file__).resolve().parent.parent
@@ -47,10 +47,24 @@ def networks(draw, link_types=("FS", "SS", "FF", "SF"), lags=(-2, 4), calendars=
     labels = draw(st.permutations([f"W{n:02d}" for n in range(count)]))
     pairs = [(i, j) for i in range(count) for j in range(i + 1, count)]
     chosen = draw(st.lists(st.sampled_from(pairs), unique=True, max_size=2 * count)) if pairs else []
-    links = [{"pred": labels[i], "succ": labels[j], "type": draw(st.sampled_from(link_types)),
-              "lag": draw(st.integers(*lags))} for i, j in chosen]
-    activities = [{"id": labels[n], "name": f"Work {labels[n]}", "duration": durations[n],
-                   "calendar": draw(st.sampled_from(calendars))} for n in range(count)]
+    links = [
+        {
+            "pred": labels[i],
+            "succ": labels[j],
+            "type": draw(st.sampled_from(link_types)),
+            "lag": draw(st.integers(*lags)),
+        }
+        for i, j in chosen
+    ]
+    activities = [
+        {
+            "id": labels[n],
+            "name": f"Work {labels[n]}",
+            "duration": durations[n],
+            "calendar": draw(st.sampled_from(calendars)),
+        }
+        for n in range(count)
+    ]
     order = draw(st.permutations(range(count)))
     return [activities[n] for n in order], links
 
@@ -66,8 +80,14 @@ def schedule_both(activities, links):
         for mode in ("python", "compiled"):
             with kernel_mode(mode):
                 result = schedule(load_case(root))
-                results[mode] = (result, result.activities, result.links, result.driving_path(),
-                                 result.longest_path(), result.link_gaps.copy())
+                results[mode] = (
+                    result,
+                    result.activities,
+                    result.links,
+                    result.driving_path(),
+                    result.longest_path(),
+                    result.link_gaps.copy(),
+                )
     return results["python"], results["compiled"]
 
 
@@ -121,8 +141,12 @@ def test_redundant_links_the_same_both_ways(network):
         with kernel_mode(mode):
             exact = redundant_links(net, duration)
             approximate = redundant_links(net, duration, exact_limit=0)
-        found[mode] = (exact.redundant.tolist(), exact.via.tolist(), approximate.redundant.tolist(),
-                       approximate.via.tolist())
+        found[mode] = (
+            exact.redundant.tolist(),
+            exact.via.tolist(),
+            approximate.redundant.tolist(),
+            approximate.via.tolist(),
+        )
     assert found["python"] == found["compiled"]
     # a link implied by a two-link path through another activity (the approximate search)
     # is implied in the exact one too
@@ -162,12 +186,20 @@ def _child_env(**extra) -> dict:
 def test_a_small_case_schedules_without_numba(tmp_path):
     # The start-up promise: `delay schedule` of six activities never imports numba.
     root = write_case(tmp_path / "case", activities=SIX, links=SIX_LINKS)
-    code = ("import sys\n"
-            "from delay.cli import cli\n"
-            "cli(['schedule', sys.argv[1], '--format', 'json'], standalone_mode=False)\n"
-            "print('numba' in sys.modules, file=sys.stderr)\n")
-    done = subprocess.run([sys.executable, "-c", code, str(root)], capture_output=True, text=True,
-                          env=_child_env(), cwd=tmp_path, timeout=300)
+    code = (
+        "import sys\n"
+        "from delay.cli import cli\n"
+        "cli(['schedule', sys.argv[1], '--format', 'json'], standalone_mode=False)\n"
+        "print('numba' in sys.modules, file=sys.stderr)\n"
+    )
+    done = subprocess.run(
+        [sys.executable, "-c", code, str(root)],
+        capture_output=True,
+        text=True,
+        env=_child_env(),
+        cwd=tmp_path,
+        timeout=300,
+    )
     assert done.returncode == 0, done.stderr
     assert done.stderr.strip() == "False"
     assert json.loads(done.stdout)["completion"] == "2025-01-20"
@@ -194,19 +226,32 @@ def test_compiled_loops_go_to_the_user_cache_when_the_package_is_read_only(tmp_p
         path.chmod(0o555 if path.is_dir() else 0o444)
     root = write_case(tmp_path / "case", activities=SIX, links=SIX_LINKS)
     cache = tmp_path / "cache"
-    code = ("import sys, delay\n"
-            "assert delay.__file__.startswith(sys.argv[2]), delay.__file__\n"
-            "from delay.case import load_case\n"
-            "from delay.cpm import schedule\n"
-            "from delay._jit import compiled_in_use\n"
-            "result = schedule(load_case(sys.argv[1]))\n"
-            "print(result.completion, compiled_in_use())\n")
-    env = _child_env(DELAY_KERNELS="compiled", PYTHONPATH=str(package), XDG_CACHE_HOME=str(cache),
-                     HOME=str(tmp_path / "home"), PYTHONDONTWRITEBYTECODE="1")
+    code = (
+        "import sys, delay\n"
+        "assert delay.__file__.startswith(sys.argv[2]), delay.__file__\n"
+        "from delay.case import load_case\n"
+        "from delay.cpm import schedule\n"
+        "from delay._jit import compiled_in_use\n"
+        "result = schedule(load_case(sys.argv[1]))\n"
+        "print(result.completion, compiled_in_use())\n"
+    )
+    env = _child_env(
+        DELAY_KERNELS="compiled",
+        PYTHONPATH=str(package),
+        XDG_CACHE_HOME=str(cache),
+        HOME=str(tmp_path / "home"),
+        PYTHONDONTWRITEBYTECODE="1",
+    )
     try:
         for _ in range(2):  # compiled into the user's cache, then read back from it
-            done = subprocess.run([*prefix, sys.executable, "-c", code, str(root), str(package)],
-                                  capture_output=True, text=True, env=env, cwd=tmp_path, timeout=600)
+            done = subprocess.run(
+                [*prefix, sys.executable, "-c", code, str(root), str(package)],
+                capture_output=True,
+                text=True,
+                env=env,
+                cwd=tmp_path,
+                timeout=600,
+            )
             assert done.returncode == 0, done.stderr
             assert done.stderr == ""  # silently: no warning, no error
             assert done.stdout.split() == ["2025-01-20", "True"]

@@ -28,10 +28,10 @@ from pathlib import Path
 
 import pytest
 from click.testing import CliRunner
+from test_report import write_small_case
 
 from delay import output
 from delay.cli import cli
-from test_report import write_small_case
 
 # the small case of the report's tests (its working is in tests/test_report.py)
 small_case = write_small_case
@@ -224,8 +224,9 @@ def test_operating_system_litter_does_not_block_a_replacement(case, tmp_path):
 
 
 def test_stale_temporaries_of_a_dead_run_are_removed_and_a_set_aside_output_put_back(case, tmp_path):
-    dead = subprocess.run([sys.executable, "-c", "import os; print(os.getpid())"], capture_output=True,
-                          text=True, check=True)
+    dead = subprocess.run(
+        [sys.executable, "-c", "import os; print(os.getpid())"], capture_output=True, text=True, check=True
+    )
     pid = int(dead.stdout)
     out = tmp_path / "r"
     assert run("report", case, "--out", out, "--methods", "impacted").exit_code == 0
@@ -260,15 +261,24 @@ def test_folder_and_file_modes_follow_the_umask(case, tmp_path, mask):
         os.umask(previous)
     for folder in (tmp_path / "r", tmp_path / "r" / "tables", tmp_path / "fresh", tmp_path / "synthetic"):
         assert folder.stat().st_mode & 0o777 == 0o777 & ~mask, folder
-    for file in (tmp_path / "r" / "report.html", tmp_path / "r" / "tables.xlsx", tmp_path / "fresh" / "case.toml",
-                 tmp_path / "schedule.ifc"):
+    for file in (
+        tmp_path / "r" / "report.html",
+        tmp_path / "r" / "tables.xlsx",
+        tmp_path / "fresh" / "case.toml",
+        tmp_path / "schedule.ifc",
+    ):
         assert file.stat().st_mode & 0o777 == 0o666 & ~mask, file
 
 
 # -- signals ----------------------------------------------------------------------------------------
 def _delay(*args, **kwargs):
-    return subprocess.Popen([sys.executable, "-m", "delay.cli", *map(str, args)], stdout=subprocess.PIPE,
-                            stderr=subprocess.PIPE, text=True, **kwargs)
+    return subprocess.Popen(
+        [sys.executable, "-m", "delay.cli", *map(str, args)],
+        stdout=subprocess.PIPE,
+        stderr=subprocess.PIPE,
+        text=True,
+        **kwargs,
+    )
 
 
 def _wait_for_temporary(process, folder: Path, name: str, timeout: float = 120.0) -> None:
@@ -284,8 +294,7 @@ def _wait_for_temporary(process, folder: Path, name: str, timeout: float = 120.0
 
 
 @pytest.mark.parametrize("signum", [signal.SIGINT, signal.SIGTERM])
-def test_a_signal_while_the_report_is_written_exits_with_one_line_and_leaves_the_earlier_report(case, tmp_path,
-                                                                                              signum):
+def test_a_signal_while_the_report_is_written_exits_with_one_line_and_leaves_the_earlier_report(case, tmp_path, signum):
     out = tmp_path / "r"
     assert run("report", case, "--out", out).exit_code == 0
     earlier = digest(out)
@@ -319,8 +328,9 @@ def _mount_tmpfs(folder: Path, size: str) -> None:
     folder.mkdir()
     if os.geteuid() != 0 or shutil.which("mount") is None:
         pytest.skip("mounting a small tmpfs needs root and mount(8); this machine allows neither")
-    done = subprocess.run(["mount", "-t", "tmpfs", "-o", f"size={size}", "tmpfs", str(folder)], capture_output=True,
-                          text=True)
+    done = subprocess.run(
+        ["mount", "-t", "tmpfs", "-o", f"size={size}", "tmpfs", str(folder)], capture_output=True, text=True
+    )
     if done.returncode != 0:
         pytest.skip(f"this machine does not allow mounting a tmpfs ({done.stderr.strip()})")
 

@@ -31,9 +31,9 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 import pytest
+from casewriter import write_case
 from click.testing import CliRunner
 
-from casewriter import write_case
 from delay.cli import cli
 from reports.builder import SECTIONS, compute, resolve_methods
 from reports.tables import ReportTable, canonical_csv, canonical_value, fingerprint, write_workbook
@@ -48,29 +48,72 @@ ACTIVITIES = [
     {"id": "END", "name": "Completion", "duration": 0, "kind": "finish_milestone", "wbs": "2"},
 ]
 LINKS = [{"pred": "START", "succ": "A"}, {"pred": "A", "succ": "B"}, {"pred": "B", "succ": "END"}]
-UPDATE = [dict(ACTIVITIES[0], actual_start="2025-01-06"),
-          dict(ACTIVITIES[1], actual_start="2025-01-06", actual_finish="2025-01-10"),
-          ACTIVITIES[2], ACTIVITIES[3]]
-EVENTS = [{"id": "E1", "title": "Late drawings for the slab", "party": "employer", "start": "2025-01-13",
-           "finish": "2025-01-22", "activities": "B", "impact": "extend", "days": 3}]
-ASBUILT = [{"id": "START", "actual_start": "2025-01-06", "actual_finish": "2025-01-06"},
-           {"id": "A", "actual_start": "2025-01-06", "actual_finish": "2025-01-10"},
-           {"id": "B", "actual_start": "2025-01-13", "actual_finish": "2025-01-22"},
-           {"id": "END", "actual_start": "2025-01-22", "actual_finish": "2025-01-22"}]
+UPDATE = [
+    dict(ACTIVITIES[0], actual_start="2025-01-06"),
+    dict(ACTIVITIES[1], actual_start="2025-01-06", actual_finish="2025-01-10"),
+    ACTIVITIES[2],
+    ACTIVITIES[3],
+]
+EVENTS = [
+    {
+        "id": "E1",
+        "title": "Late drawings for the slab",
+        "party": "employer",
+        "start": "2025-01-13",
+        "finish": "2025-01-22",
+        "activities": "B",
+        "impact": "extend",
+        "days": 3,
+    }
+]
+ASBUILT = [
+    {"id": "START", "actual_start": "2025-01-06", "actual_finish": "2025-01-06"},
+    {"id": "A", "actual_start": "2025-01-06", "actual_finish": "2025-01-10"},
+    {"id": "B", "actual_start": "2025-01-13", "actual_finish": "2025-01-22"},
+    {"id": "END", "actual_start": "2025-01-22", "actual_finish": "2025-01-22"},
+]
 ELEMENTS = [
-    {"id": "E-1", "name": "Footing", "wbs": "1", "classification": "SUB", "x": 0, "y": 0, "z": 0,
-     "dx": 1, "dy": 1, "dz": 1, "level": "00", "zone": "A"},
-    {"id": "E-2", "name": "Slab", "wbs": "2", "classification": "FRM", "x": 0, "y": 0, "z": 1,
-     "dx": 2, "dy": 2, "dz": 0.3, "level": "00", "zone": "A"},
+    {
+        "id": "E-1",
+        "name": "Footing",
+        "wbs": "1",
+        "classification": "SUB",
+        "x": 0,
+        "y": 0,
+        "z": 0,
+        "dx": 1,
+        "dy": 1,
+        "dz": 1,
+        "level": "00",
+        "zone": "A",
+    },
+    {
+        "id": "E-2",
+        "name": "Slab",
+        "wbs": "2",
+        "classification": "FRM",
+        "x": 0,
+        "y": 0,
+        "z": 1,
+        "dx": 2,
+        "dy": 2,
+        "dz": 0.3,
+        "level": "00",
+        "zone": "A",
+    },
 ]
 
 
 def write_small_case(root: Path) -> Path:
     return write_case(
-        root, activities=ACTIVITIES, links=LINKS, completion="2025-01-17",
+        root,
+        activities=ACTIVITIES,
+        links=LINKS,
+        completion="2025-01-17",
         commercial={"currency": "EUR", "prolongation_cost_per_day": 100, "liquidated_damages_per_day": 50},
         snapshots={"u01": {"label": "Update 01", "data_date": "2025-01-13", "activities": UPDATE}},
-        files={"events.csv": EVENTS, "asbuilt.csv": ASBUILT, "elements.csv": ELEMENTS})
+        files={"events.csv": EVENTS, "asbuilt.csv": ASBUILT, "elements.csv": ELEMENTS},
+    )
 
 
 def run(*args):
@@ -98,8 +141,13 @@ def small_report(tmp_path_factory):
 # -- the folder ---------------------------------------------------------------------------------
 def test_the_folder_holds_the_page_the_workbook_the_tables_and_the_manifest(small_report):
     _, case, out = small_report
-    assert sorted(p.name for p in out.iterdir()) == ["delay-output.json", "manifest.json", "report.html", "tables",
-                                                     "tables.xlsx"]
+    assert sorted(p.name for p in out.iterdir()) == [
+        "delay-output.json",
+        "manifest.json",
+        "report.html",
+        "tables",
+        "tables.xlsx",
+    ]
     manifest = json.loads((out / "manifest.json").read_text(encoding="utf-8"))
     listed = {t["key"] for t in manifest["tables"]}
     assert listed == {p.stem for p in (out / "tables").glob("*.csv")}
@@ -166,14 +214,19 @@ def test_impacted_event_alone_and_cumulative_match_the_hand_working(small_report
 def test_windows_and_as_built_match_the_hand_working(small_report):
     out = small_report[2]
     windows = rows_of(out, "windows")
-    assert [(w["start"], w["end"], w["movement_days"]) for w in windows] == [("baseline", "u01", "0"),
-                                                                            ("u01", "asbuilt", "5")]
+    assert [(w["start"], w["end"], w["movement_days"]) for w in windows] == [
+        ("baseline", "u01", "0"),
+        ("u01", "asbuilt", "5"),
+    ]
     trend = rows_of(out, "completion_trend")
     assert [t["completion"] for t in trend] == ["2025-01-17", "2025-01-17", "2025-01-22"]
     path = {r["id"]: r for r in rows_of(out, "driving_path_activities")}
     assert set(path) == {"START", "A", "B", "END"}  # one chain: every activity drives
     assert (path["B"]["planned_finish"], path["B"]["actual_finish"], path["B"]["finish_variance_days"]) == (
-        "2025-01-17", "2025-01-22", "5")
+        "2025-01-17",
+        "2025-01-22",
+        "5",
+    )
     party = {r["party"]: r for r in rows_of(out, "collapsed_by_party")}
     assert (party["employer"]["but_for_completion"], party["employer"]["days_earlier"]) == ("2025-01-17", "5")
 
@@ -192,19 +245,19 @@ def test_an_activity_named_like_a_script_is_text_in_the_page(small_report):
 
 # -- canonical form -------------------------------------------------------------------------------
 def test_canonical_csv_written_out_by_hand():
-    frame = pd.DataFrame({
-        "id": ["A", "B, C"],
-        "date": pd.to_datetime(["2025-01-06", None]),
-        "days": pd.array([3, None], dtype="Int64"),
-        "rate": [0.1, 1e-7],
-        "flag": [True, False],
-        "ids": [["X", "Y"], []],
-    })
+    frame = pd.DataFrame(
+        {
+            "id": ["A", "B, C"],
+            "date": pd.to_datetime(["2025-01-06", None]),
+            "days": pd.array([3, None], dtype="Int64"),
+            "rate": [0.1, 1e-7],
+            "flag": [True, False],
+            "ids": [["X", "Y"], []],
+        }
+    )
     # by hand: dates ISO, NaT and <NA> empty, floats as repr (0.1, 1e-07), booleans true/false,
     # lists joined by ";", a field with a comma quoted (csv.QUOTE_MINIMAL)
-    expected = ("id,date,days,rate,flag,ids\n"
-                "A,2025-01-06,3,0.1,true,X;Y\n"
-                '"B, C",,,1e-07,false,\n')
+    expected = 'id,date,days,rate,flag,ids\nA,2025-01-06,3,0.1,true,X;Y\n"B, C",,,1e-07,false,\n'
     assert canonical_csv(frame) == expected
     assert fingerprint(frame) == hashlib.sha256(expected.encode("utf-8")).hexdigest()
     assert canonical_value(dt.datetime(2025, 1, 6, 12, 30)) == "2025-01-06T12:30:00"
@@ -215,9 +268,18 @@ def test_the_workbook_has_a_sheet_per_table_dates_as_dates_and_widths(tmp_path):
     from openpyxl import load_workbook
 
     tables = [
-        ReportTable("first", "First table", "summary", pd.DataFrame({
-            "activity": ["A", "=SUM(1)"], "planned_finish": pd.to_datetime(["2025-01-10", "2025-01-17"]),
-            "days": [5, 3]})),
+        ReportTable(
+            "first",
+            "First table",
+            "summary",
+            pd.DataFrame(
+                {
+                    "activity": ["A", "=SUM(1)"],
+                    "planned_finish": pd.to_datetime(["2025-01-10", "2025-01-17"]),
+                    "days": [5, 3],
+                }
+            ),
+        ),
         ReportTable("second", "Second", "windows", pd.DataFrame({"when": [dt.date(2025, 2, 3)], "note": ["x" * 80]})),
     ]
     path = write_workbook(tables, tmp_path / "t.xlsx", title="Report", caution="Not legal advice.")
@@ -266,19 +328,27 @@ def test_a_module_that_fails_to_import_stops_the_report_instead_of_leaving_a_sec
     # import raise ImportError) before the report builder is imported.
     import subprocess
 
-    script = ("import sys; sys.modules['delay.methods.collapsed'] = None\n"
-              "try:\n    import reports.builder\nexcept ImportError as error:\n    print('ImportError', error)\n"
-              "else:\n    print('imported')\n")
-    done = subprocess.run([sys.executable, "-c", script], capture_output=True, text=True, timeout=120,
-                          cwd=Path(__file__).resolve().parents[1])
+    script = (
+        "import sys; sys.modules['delay.methods.collapsed'] = None\n"
+        "try:\n    import reports.builder\nexcept ImportError as error:\n    print('ImportError', error)\n"
+        "else:\n    print('imported')\n"
+    )
+    done = subprocess.run(
+        [sys.executable, "-c", script],
+        capture_output=True,
+        text=True,
+        timeout=120,
+        cwd=Path(__file__).resolve().parents[1],
+    )
     assert done.stdout.startswith("ImportError") and "delay.methods.collapsed" in done.stdout, done.stdout + done.stderr
 
 
 # -- the command line ---------------------------------------------------------------------------------
 def test_report_command_writes_the_folder_with_the_title_escaped(tmp_path):
     root = write_small_case(tmp_path / "case")
-    result = run("report", root, "--out", tmp_path / "out", "--methods", "impacted,asbuilt",
-                 "--title", "Claim <b>review</b>")
+    result = run(
+        "report", root, "--out", tmp_path / "out", "--methods", "impacted,asbuilt", "--title", "Claim <b>review</b>"
+    )
     assert result.exit_code == 0, result.output
     page = (tmp_path / "out" / "report.html").read_text(encoding="utf-8")
     assert "<title>Claim &lt;b&gt;review&lt;/b&gt;</title>" in page
@@ -292,8 +362,9 @@ def test_bad_input_exits_2_with_plain_lines_and_writes_nothing(tmp_path, change)
     root = write_small_case(tmp_path / "case")
     arguments = ["report", root, "--out", tmp_path / "out"]
     if change == "broken link":
-        (root / "snapshots" / "baseline" / "links.csv").write_text("pred,succ,type,lag\nA,NOPE,FS,0\n",
-                                                                   encoding="utf-8")
+        (root / "snapshots" / "baseline" / "links.csv").write_text(
+            "pred,succ,type,lag\nA,NOPE,FS,0\n", encoding="utf-8"
+        )
         where = "snapshots/baseline/links.csv"
     else:
         arguments += ["--methods", "windows,guesswork"]
@@ -342,8 +413,9 @@ def test_verify_confirms_an_unchanged_report_and_lists_a_tampered_input(tmp_path
     activities = root / "snapshots" / "baseline" / "activities.csv"
     text = activities.read_text(encoding="utf-8")
     assert "B,<script>alert(1)</script>,5" in text
-    activities.write_text(text.replace("B,<script>alert(1)</script>,5", "B,<script>alert(1)</script>,7"),
-                          encoding="utf-8")
+    activities.write_text(
+        text.replace("B,<script>alert(1)</script>,5", "B,<script>alert(1)</script>,7"), encoding="utf-8"
+    )
     changed = run("verify", out)
     assert changed.exit_code == 1
     lines = changed.output.splitlines()

@@ -14,13 +14,22 @@ import re
 from types import SimpleNamespace
 
 import pytest
-
-from browser import (Page, chromium, grey_statistics, play_then_pause, printed, require_browser, save_screenshot,
-                     set_slider, state_mismatches)
-from reports.builder import SECTIONS
-from reports.writer import demo_report
+from browser import (
+    Page,
+    chromium,
+    grey_statistics,
+    play_then_pause,
+    printed,
+    require_browser,
+    save_screenshot,
+    set_slider,
+    state_mismatches,
+)
 from test_browser_timeline import _computed_expectations, _demo_or_synthetic, _drawn_positions
 from test_report import SCRIPT, write_small_case
+
+from reports.builder import SECTIONS
+from reports.writer import demo_report
 
 #: A4 landscape is 297 mm wide; the report prints with 10 mm margins: 277 mm at 96 px per inch
 A4_LANDSCAPE_CONTENT_PX = int(277 / 25.4 * 96)  # 1046
@@ -42,8 +51,16 @@ def demo(browser, tmp_path_factory):
     page = Page(browser, out / "report.html")
     page.page.wait_for_selector(".element-timeline[data-ready=true]", timeout=120_000)
     page.page.wait_for_function("() => document.documentElement.dataset.reportReady === 'true'")
-    yield SimpleNamespace(page=page.page, errors=page.errors, folder=folder, out=out, rows=rows,
-                          drawn=_drawn_positions(rows), weeks=weeks, checks=checks)
+    yield SimpleNamespace(
+        page=page.page,
+        errors=page.errors,
+        folder=folder,
+        out=out,
+        rows=rows,
+        drawn=_drawn_positions(rows),
+        weeks=weeks,
+        checks=checks,
+    )
     page.close()
 
 
@@ -59,13 +76,29 @@ def test_no_console_errors_and_every_section_present(demo):
         assert heading.endswith(title), (key, heading)
     available = {key: flag for key, _, flag in found}
     # the demo case has every record a report needs; the method comparison is not in this version
-    for key in ("summary", "quality", "windows", "impacted", "tia", "collapsed", "asbuilt", "timeline",
-                "inputs", "manifest"):
+    for key in (
+        "summary",
+        "quality",
+        "windows",
+        "impacted",
+        "tia",
+        "collapsed",
+        "asbuilt",
+        "timeline",
+        "inputs",
+        "manifest",
+    ):
         assert available[key] == "yes", key
     charts = demo.page.evaluate("""() => Array.from(document.querySelectorAll('figure.chart .js-plotly-plot'))
         .map(div => [div.closest('figure').dataset.figure, div.data.length, div._fullLayout ? 1 : 0])""")
-    assert {name for name, _, _ in charts} >= {"days_by_method", "completion_trend", "window_movements",
-                                               "impacted_steps", "tia_steps", "planned_against_built"}
+    assert {name for name, _, _ in charts} >= {
+        "days_by_method",
+        "completion_trend",
+        "window_movements",
+        "impacted_steps",
+        "tia_steps",
+        "planned_against_built",
+    }
     assert all(traces >= 1 and drawn for _, traces, drawn in charts)
     _no_errors(demo)
 
@@ -125,10 +158,13 @@ def _tables_fit_a4(page) -> None:
 
 
 def _boxes_of(page, figure: str, selector: str) -> list[dict]:
-    return page.evaluate("""([figure, selector]) => Array.from(
+    return page.evaluate(
+        """([figure, selector]) => Array.from(
         document.querySelectorAll(`[data-figure="${figure}"] ${selector}`))
         .map(e => e.getBoundingClientRect()).filter(r => r.width > 0 && r.height > 0)
-        .map(r => ({left: r.left, top: r.top, right: r.right, bottom: r.bottom}))""", [figure, selector])
+        .map(r => ({left: r.left, top: r.top, right: r.right, bottom: r.bottom}))""",
+        [figure, selector],
+    )
 
 
 def _overlap(a: dict, b: dict) -> bool:
@@ -165,18 +201,28 @@ def _chart_prints_on_a4_in_greyscale(page, name: str) -> None:
     page.evaluate(f"""() => document.querySelector('[data-figure="{name}"]').style.filter = "grayscale(1)" """)
     statistics = []
     for trace in range(2):  # the bar traces: as planned, then as built
-        bars = page.evaluate("""([figure, trace]) => {
+        bars = page.evaluate(
+            """([figure, trace]) => {
             const layer = document.querySelectorAll(`[data-figure="${figure}"] .barlayer .trace`)[trace];
             return Array.from(layer.querySelectorAll(".point path")).map(p => p.getBoundingClientRect())
                 .map(r => ({x: r.left + window.scrollX, y: r.top + window.scrollY, width: r.width, height: r.height}));
-        }""", [name, trace])
+        }""",
+            [name, trace],
+        )
         widest = max(bars, key=lambda b: b["width"])
         assert widest["width"] > 8 and widest["height"] > 4, widest
-        clip = {"x": widest["x"] + 2, "y": widest["y"] + 2, "width": widest["width"] - 4, "height": widest["height"] - 4}
+        clip = {
+            "x": widest["x"] + 2,
+            "y": widest["y"] + 2,
+            "width": widest["width"] - 4,
+            "height": widest["height"] - 4,
+        }
         statistics.append(grey_statistics(page, page.screenshot(full_page=True, clip=clip)))
     (planned_mean, planned_spread), (built_mean, built_spread) = statistics
-    print(f"\ngreyscale print: planned bar lightness {planned_mean:.0f} (spread {planned_spread:.0f}), "
-          f"actual bar {built_mean:.0f} (spread {built_spread:.0f})")
+    print(
+        f"\ngreyscale print: planned bar lightness {planned_mean:.0f} (spread {planned_spread:.0f}), "
+        f"actual bar {built_mean:.0f} (spread {built_spread:.0f})"
+    )
     # (two plain blues, sky #56B4E9 and deep #0072B2, come out at 164 and 94 under the
     # weights 0.2126 r + 0.7152 g + 0.0722 b of grayscale() in the W3C Filter Effects
     # specification, worked by hand: 70 apart; these bars must be more than 90 apart, and
@@ -240,10 +286,13 @@ def first_page(browser, demo):
 
 
 def _box(page, selector: str) -> dict:
-    return page.evaluate("""selector => {
+    return page.evaluate(
+        """selector => {
         const r = document.querySelector(selector).getBoundingClientRect();
         return {top: r.top + window.scrollY, bottom: r.bottom + window.scrollY, height: r.height};
-    }""", selector)
+    }""",
+        selector,
+    )
 
 
 def test_the_headline_the_reasons_and_the_opinion_are_seen_without_scrolling(first_page, demo):
@@ -279,13 +328,17 @@ def test_the_warnings_the_demo_needs_are_on_its_first_page(first_page, demo):
     late = [r["method"] for r in headline if r["revised_completion"] > actual]
     assert late, "the demo has a revised completion after the actual completion"
     for method in late:
-        assert any(t.startswith(method.split(" (")[0].capitalize() + ": the extension of time")
-                   and "falls after the actual completion" in t for t in texts), method
+        assert any(
+            t.startswith(method.split(" (")[0].capitalize() + ": the extension of time")
+            and "falls after the actual completion" in t
+            for t in texts
+        ), method
     extensions = [int(r["eot_days"]) for r in headline]
     if max(extensions) - min(extensions) > 10:
         assert any(f"differ by {max(extensions) - min(extensions)} days on the extension of time" in t for t in texts)
-    assert any("no event explains" in t for t in texts) and any("does not reproduce the actual dates" in t
-                                                                 for t in texts)
+    assert any("no event explains" in t for t in texts) and any(
+        "does not reproduce the actual dates" in t for t in texts
+    )
     assert warnings[0][1] < 900  # they start above the fold
     _no_errors(first_page)
 
@@ -335,8 +388,9 @@ def test_the_grants_are_listed_and_the_forecast_chart_steps_at_each(demo):
 
 
 def test_a_hostile_opinion_is_shown_as_text_and_runs_nothing(browser, tmp_path):
-    from reports.writer import build
     from test_report_conclusions import HOSTILE_OPINION
+
+    from reports.writer import build
 
     root = write_small_case(tmp_path / "case")
     (root / "opinion.md").write_text(HOSTILE_OPINION, encoding="utf-8")

@@ -18,13 +18,18 @@ from types import SimpleNamespace
 
 import pandas as pd
 import pytest
+from test_report import rows_of, write_small_case
 
 from delay.comparison import DISAGREEMENT_DAYS, MethodComparison, disagreements, why_they_differ
-from reports.conclusions import (collapsed_model, events_left_alone, extension_beyond_overrun, tia_warnings,
-                                 unexplained_days)
+from reports.conclusions import (
+    collapsed_model,
+    events_left_alone,
+    extension_beyond_overrun,
+    tia_warnings,
+    unexplained_days,
+)
 from reports.opinion import render_opinion, safe_link
 from reports.writer import build
-from test_report import rows_of, write_small_case
 
 #: An opinion.md written to do harm: a script, an image whose error handler runs script, links
 #: to javascript: (plain, in capitals, with a tab, as an entity, as a reference), a data: page,
@@ -62,8 +67,13 @@ class _Markup(HTMLParser):
 
 def _entitlement(**figures):
     """An Entitlement's figures as delay.entitlement names them (no method run)."""
-    base = dict(method="collapsed", eot_days=0, acceleration_days=0, completion_in_force=dt.date(2026, 6, 26),
-                actual_completion=dt.date(2026, 7, 2))
+    base = dict(
+        method="collapsed",
+        eot_days=0,
+        acceleration_days=0,
+        completion_in_force=dt.date(2026, 6, 26),
+        actual_completion=dt.date(2026, 7, 2),
+    )
     base.update(figures)
     item = SimpleNamespace(**base)
     item.overrun_days = (item.actual_completion - item.completion_in_force).days
@@ -87,15 +97,20 @@ def test_an_extension_beyond_the_overrun_is_explained_by_the_acceleration():
     assert extension_beyond_overrun(_entitlement(eot_days=5)) is None
     assert extension_beyond_overrun(_entitlement(eot_days=0)) is None
     # works finished 3 days before the date in force: any extension is beyond the overrun
-    early = extension_beyond_overrun(_entitlement(eot_days=2, actual_completion=dt.date(2026, 6, 23)),
-                                     actual_word="forecast")
+    early = extension_beyond_overrun(
+        _entitlement(eot_days=2, actual_completion=dt.date(2026, 6, 23)), actual_word="forecast"
+    )
     assert "finished 3 days before the completion in force" in early and "forecast completion, 2026-06-23" in early
 
 
 def test_days_no_event_explains_gains_and_recovery_are_named():
-    table = pd.DataFrame({"party": ["contractor", "contractor", "employer", "recovery", "unexplained"],
-                          "basis": ["unexplained", "unexplained", "event", "recovery", "residual"],
-                          "days": [2, -8, 20, -18, 19]})
+    table = pd.DataFrame(
+        {
+            "party": ["contractor", "contractor", "employer", "recovery", "unexplained"],
+            "basis": ["unexplained", "unexplained", "event", "recovery", "residual"],
+            "days": [2, -8, 20, -18, 19],
+        }
+    )
     text = unexplained_days(SimpleNamespace(method="tia", causation=SimpleNamespace(table=table)))
     # delay no event explains: 2 (contractor, unexplained) + 19 (residual) = 21; gains 8; recovery 18
     assert text.startswith("Time impact analysis: 21 days of delay that no event explains; 8 days of gain")
@@ -105,31 +120,50 @@ def test_days_no_event_explains_gains_and_recovery_are_named():
 
 
 def test_events_not_scored_or_applied_in_part_and_programmes_that_show_an_event_are_named():
-    events = pd.DataFrame({"event": ["E1", "E2", "E3"], "applied": ["", "not in Baseline: X9", ""],
-                           "effect": ["", "", "alone: A: no effect on this programme"],
-                           "warnings": [["Update 02 already shows A 5 work days later"], [], []]})
+    events = pd.DataFrame(
+        {
+            "event": ["E1", "E2", "E3"],
+            "applied": ["", "not in Baseline: X9", ""],
+            "effect": ["", "", "alone: A: no effect on this programme"],
+            "warnings": [["Update 02 already shows A 5 work days later"], [], []],
+        }
+    )
     found = events_left_alone("impacted", SimpleNamespace(events=events))
-    assert found == ["Impacted as-planned: E2 is applied only in part (not in Baseline: X9).",
-                     "Impacted as-planned: E3 leaves some of its activities alone (a hold stops only work the "
-                     "programme has in its period), so it scores less than its period suggests; the events table "
-                     "says which."]
+    assert found == [
+        "Impacted as-planned: E2 is applied only in part (not in Baseline: X9).",
+        "Impacted as-planned: E3 leaves some of its activities alone (a hold stops only work the "
+        "programme has in its period), so it scores less than its period suggests; the events table "
+        "says which.",
+    ]
     assert tia_warnings(SimpleNamespace(events=events)) == [
-        "Time impact analysis, E1: Update 02 already shows A 5 work days later."]
-    by_event = pd.DataFrame({"event": ["E1", "E2"], "days_earlier": pd.array([3, None], dtype="Int64"),
-                             "note": ["", "nothing of it is in the as-built record"]})
+        "Time impact analysis, E1: Update 02 already shows A 5 work days later."
+    ]
+    by_event = pd.DataFrame(
+        {
+            "event": ["E1", "E2"],
+            "days_earlier": pd.array([3, None], dtype="Int64"),
+            "note": ["", "nothing of it is in the as-built record"],
+        }
+    )
     assert events_left_alone("collapsed", SimpleNamespace(by_event=by_event)) == [
-        "Collapsed as-built: E2 is not scored: nothing of it is in the as-built record."]
-    model = SimpleNamespace(reproduced=False, mismatches=pd.DataFrame({"activity": ["A", "B"]}),
-                            modelled_completion=dt.date(2025, 2, 3), actual_completion=dt.date(2025, 2, 1))
-    assert "does not reproduce the actual dates of 2 activities (modelled completion 2025-02-03, actual 2025-02-01)" \
+        "Collapsed as-built: E2 is not scored: nothing of it is in the as-built record."
+    ]
+    model = SimpleNamespace(
+        reproduced=False,
+        mismatches=pd.DataFrame({"activity": ["A", "B"]}),
+        modelled_completion=dt.date(2025, 2, 3),
+        actual_completion=dt.date(2025, 2, 1),
+    )
+    assert (
+        "does not reproduce the actual dates of 2 activities (modelled completion 2025-02-03, actual 2025-02-01)"
         in collapsed_model(model)
+    )
     assert collapsed_model(SimpleNamespace(reproduced=True)) is None
 
 
 def _comparison(eot, compensable, culpable) -> MethodComparison:
     methods = ("windows", "impacted", "collapsed")
-    headline = pd.DataFrame({"method": methods, "eot_days": eot, "compensable_days": compensable,
-                             "ld_days": culpable})
+    headline = pd.DataFrame({"method": methods, "eot_days": eot, "compensable_days": compensable, "ld_days": culpable})
     return MethodComparison(methods, pd.DataFrame(), pd.DataFrame(), headline, ())
 
 
@@ -138,9 +172,12 @@ def test_methods_that_disagree_by_more_than_the_threshold_are_named():
     found = disagreements(_comparison([0, 4, 12], [20, 29, 3], [6, 6, 0]))
     # extensions 0 to 12: 12 > 10; compensable 3 to 29: 26 > 10; culpable 0 to 6: not flagged
     assert [(d["figure"], d["difference"], d["low"], d["high"]) for d in found] == [
-        ("extension of time", 12, "windows", "collapsed"), ("compensable days", 26, "collapsed", "impacted")]
-    assert found[0]["sentence"].startswith("The methods differ by 12 days on the extension of time (0 days by "
-                                           "windows analysis, 12 by collapsed as-built)")
+        ("extension of time", 12, "windows", "collapsed"),
+        ("compensable days", 26, "collapsed", "impacted"),
+    ]
+    assert found[0]["sentence"].startswith(
+        "The methods differ by 12 days on the extension of time (0 days by windows analysis, 12 by collapsed as-built)"
+    )
     assert disagreements(_comparison([0, 4, 10], [1, 2, 3], [0, 0, 0])) == []  # 10 is not more than 10
     reasons = why_they_differ(_comparison([0, 4, 12], [20, 29, 3], [6, 6, 0]))
     assert len(reasons) == 2 and reasons[0].startswith("The methods differ most on the compensable days: from 3 days")
@@ -148,10 +185,21 @@ def test_methods_that_disagree_by_more_than_the_threshold_are_named():
 
 
 def test_safe_links_are_http_mailto_or_relative():
-    assert [safe_link(a) for a in ("https://example.org", "http://x", "mailto:a@b.c", "notes/a.html", "#part",
-                                   "?q=1")] == [True] * 6
-    assert [safe_link(a) for a in ("javascript:x", "JAVASCRIPT:x", "java\tscript:x", " javascript:x",
-                                   "vbscript:x", "data:text/html,x", "file:///etc/passwd")] == [False] * 7
+    assert [
+        safe_link(a) for a in ("https://example.org", "http://x", "mailto:a@b.c", "notes/a.html", "#part", "?q=1")
+    ] == [True] * 6
+    assert [
+        safe_link(a)
+        for a in (
+            "javascript:x",
+            "JAVASCRIPT:x",
+            "java\tscript:x",
+            " javascript:x",
+            "vbscript:x",
+            "data:text/html,x",
+            "file:///etc/passwd",
+        )
+    ] == [False] * 7
 
 
 def test_a_hostile_opinion_renders_to_inert_markup():
@@ -173,7 +221,7 @@ def test_the_opinion_and_the_method_relied_on_are_on_the_first_page(tmp_path):
     (root / "case.toml").write_text(text + '\n[report]\npreferred_method = "tia"\n', encoding="utf-8")
     out = build(root, tmp_path / "report")
     page = (out / "report.html").read_text(encoding="utf-8")
-    first = page.split('<div class="group first-page">', 1)[1].split('<h3>Dates and extensions', 1)[0]
+    first = page.split('<div class="group first-page">', 1)[1].split("<h3>Dates and extensions", 1)[0]
     assert "I rely on the <strong>time impact analysis</strong>." in first
     assert "Method relied on: the time impact analysis ([report] preferred_method)." in first
     headline = {r["method"]: r for r in rows_of(out, "headline")}
@@ -190,7 +238,7 @@ def small_without_opinion(tmp_path_factory):
 
 def test_without_an_opinion_the_first_page_says_none_was_given(small_without_opinion):
     page = (small_without_opinion / "report.html").read_text(encoding="utf-8")
-    first = page.split('<div class="group first-page">', 1)[1].split('<h3>Dates and extensions', 1)[0]
+    first = page.split('<div class="group first-page">', 1)[1].split("<h3>Dates and extensions", 1)[0]
     assert "No opinion was given: the case has no opinion.md." in first
     assert "The analyst names no method relied on ([report] preferred_method of case.toml)." in first
     # the small case's time impact analysis inserts E1 into the baseline (the last programme

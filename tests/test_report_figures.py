@@ -7,22 +7,25 @@ draws is what these arrays say. Expected values are restated from the inputs giv
 from __future__ import annotations
 
 import datetime as dt
+import itertools
 
 import numpy as np
 import pandas as pd
 import pytest
+from test_element_timeline import _DICHROMACY, _lab
 
 from reports import figures
-import itertools
-
 from reports.palette import BUILT_BAR, PARTY_COLOURS, PLANNED_BAR, STATE_COLOURS
-from test_element_timeline import _DICHROMACY, _lab
 
 
 def test_completion_trend_draws_each_programme_and_the_reference_lines():
-    trend = pd.DataFrame({"label": ["Baseline", "Update <1>"],
-                          "data_date": [dt.date(2025, 1, 6), dt.date(2025, 2, 3)],
-                          "completion": [dt.date(2025, 6, 30), dt.date(2025, 7, 14)]})
+    trend = pd.DataFrame(
+        {
+            "label": ["Baseline", "Update <1>"],
+            "data_date": [dt.date(2025, 1, 6), dt.date(2025, 2, 3)],
+            "completion": [dt.date(2025, 6, 30), dt.date(2025, 7, 14)],
+        }
+    )
     figure = figures.completion_trend(trend, contract_in_force=dt.date(2025, 7, 1), planned=dt.date(2025, 6, 30))
     (line,) = figure.data
     assert list(line.x) == ["2025-01-06", "2025-02-03"] and list(line.y) == ["2025-06-30", "2025-07-14"]
@@ -33,14 +36,23 @@ def test_completion_trend_draws_each_programme_and_the_reference_lines():
 
 
 def test_completion_trend_steps_the_date_in_force_at_each_grant():
-    trend = pd.DataFrame({"label": ["Baseline", "Update 01"], "data_date": [dt.date(2025, 1, 6), dt.date(2025, 3, 3)],
-                          "completion": [dt.date(2025, 6, 30), dt.date(2025, 7, 14)]})
+    trend = pd.DataFrame(
+        {
+            "label": ["Baseline", "Update 01"],
+            "data_date": [dt.date(2025, 1, 6), dt.date(2025, 3, 3)],
+            "completion": [dt.date(2025, 6, 30), dt.date(2025, 7, 14)],
+        }
+    )
     # a contract completion of 2025-06-27 and one grant of 10 days on 2025-02-10: in force
     # 2025-06-27 until then, 2025-07-07 from then (datetime arithmetic: 27 June + 10 days)
     assert dt.date(2025, 6, 27) + dt.timedelta(days=10) == dt.date(2025, 7, 7)
-    in_force = pd.DataFrame({"date": [dt.date(2025, 1, 6), dt.date(2025, 2, 10), dt.date(2025, 3, 3)],
-                             "completion_in_force": [dt.date(2025, 6, 27), dt.date(2025, 7, 7), dt.date(2025, 7, 7)],
-                             "grant": ["", "G-1 +10 days", ""]})
+    in_force = pd.DataFrame(
+        {
+            "date": [dt.date(2025, 1, 6), dt.date(2025, 2, 10), dt.date(2025, 3, 3)],
+            "completion_in_force": [dt.date(2025, 6, 27), dt.date(2025, 7, 7), dt.date(2025, 7, 7)],
+            "grant": ["", "G-1 +10 days", ""],
+        }
+    )
     figure = figures.completion_trend(trend, planned=dt.date(2025, 6, 30), in_force=in_force)
     forecast, steps = figure.data
     assert steps.name == "contract completion in force" and steps.line.shape == "hv"  # held until the next grant
@@ -50,10 +62,22 @@ def test_completion_trend_steps_the_date_in_force_at_each_grant():
 
 
 def test_window_parties_stack_delays_above_and_gains_below_zero():
-    windows = pd.DataFrame({"window": [1, 2], "start": ["Baseline", "U1"], "end": ["U1", "U2"],
-                            "movement_days": [12, -1], "employer_days": [12, 0], "employer_gain_days": [0, 0],
-                            "contractor_days": [2, 1], "contractor_gain_days": [-2, -2], "neutral_days": [0, 0],
-                            "neutral_gain_days": [0, 0], "concurrent_days": [0, 0], "concurrent_gain_days": [0, 0]})
+    windows = pd.DataFrame(
+        {
+            "window": [1, 2],
+            "start": ["Baseline", "U1"],
+            "end": ["U1", "U2"],
+            "movement_days": [12, -1],
+            "employer_days": [12, 0],
+            "employer_gain_days": [0, 0],
+            "contractor_days": [2, 1],
+            "contractor_gain_days": [-2, -2],
+            "neutral_days": [0, 0],
+            "neutral_gain_days": [0, 0],
+            "concurrent_days": [0, 0],
+            "concurrent_gain_days": [0, 0],
+        }
+    )
     figure = figures.window_parties(windows)
     assert figure.layout.barmode == "relative"  # stacked: positives up from zero, negatives down
     names = [t.name for t in figure.data]
@@ -75,8 +99,15 @@ def test_party_colours_stay_apart_for_colour_blind_readers(vision):
 
 
 def test_window_movements_stack_progress_and_revisions():
-    windows = pd.DataFrame({"window": [1, 2], "start": ["baseline", "u01"], "end": ["u01", "u02"],
-                            "progress_days": [3, 6], "revision_days": [0, -2]})
+    windows = pd.DataFrame(
+        {
+            "window": [1, 2],
+            "start": ["baseline", "u01"],
+            "end": ["u01", "u02"],
+            "progress_days": [3, 6],
+            "revision_days": [0, -2],
+        }
+    )
     figure = figures.window_movements(windows)
     progress, revisions = figure.data
     assert list(progress.x) == ["1", "2"] and list(progress.y) == [3, 6] and list(revisions.y) == [0, -2]
@@ -85,13 +116,15 @@ def test_window_movements_stack_progress_and_revisions():
 
 
 def test_completion_steps_are_a_staircase_with_impacts_alone_beside_it():
-    steps = pd.DataFrame({
-        "run": ["baseline"] * 3,
-        "step": ["before any event", "EV1", "EV2"],
-        "completion": [dt.date(2025, 6, 30), dt.date(2025, 7, 7), dt.date(2025, 7, 7)],
-        "alone": [None, dt.date(2025, 7, 7), dt.date(2025, 7, 2)],
-        "title": ["base", "Rain", "Late <drawings>"],
-    })
+    steps = pd.DataFrame(
+        {
+            "run": ["baseline"] * 3,
+            "step": ["before any event", "EV1", "EV2"],
+            "completion": [dt.date(2025, 6, 30), dt.date(2025, 7, 7), dt.date(2025, 7, 7)],
+            "alone": [None, dt.date(2025, 7, 7), dt.date(2025, 7, 2)],
+            "title": ["base", "Rain", "Late <drawings>"],
+        }
+    )
     figure = figures.completion_steps(steps)
     stairs, alone = figure.data
     assert stairs.line.shape == "hv"  # each step holds until the next event
@@ -106,14 +139,18 @@ def test_completion_steps_are_a_staircase_with_impacts_alone_beside_it():
 
 
 def _three_activities() -> pd.DataFrame:
-    return pd.DataFrame({
-        "wbs": ["1", "1", "2"], "id": ["A", "M", "B"], "name": ["Dig", "Handover", "<b>Pour</b>"],
-        "planned_start": pd.to_datetime(["2025-01-06", "2025-01-17", "2025-01-13"]),
-        "planned_finish": pd.to_datetime(["2025-01-10", "2025-01-17", "2025-01-17"]),
-        "actual_start": pd.to_datetime(["2025-01-06", "2025-01-22", "2025-01-13"]),
-        "actual_finish": pd.to_datetime(["2025-01-14", "2025-01-22", None]),
-        "milestone": [False, True, False],
-    })
+    return pd.DataFrame(
+        {
+            "wbs": ["1", "1", "2"],
+            "id": ["A", "M", "B"],
+            "name": ["Dig", "Handover", "<b>Pour</b>"],
+            "planned_start": pd.to_datetime(["2025-01-06", "2025-01-17", "2025-01-13"]),
+            "planned_finish": pd.to_datetime(["2025-01-10", "2025-01-17", "2025-01-17"]),
+            "actual_start": pd.to_datetime(["2025-01-06", "2025-01-22", "2025-01-13"]),
+            "actual_finish": pd.to_datetime(["2025-01-14", "2025-01-22", None]),
+            "milestone": [False, True, False],
+        }
+    )
 
 
 def test_planned_against_built_bars_run_from_start_to_the_end_of_the_finish_date():
@@ -163,9 +200,13 @@ def test_the_legend_sits_between_the_title_and_the_date_ticks():
 
 
 def test_gantt_order_puts_the_path_first_then_the_rest_by_start():
-    activities = pd.DataFrame({"id": ["A", "B", "C", "D", "E"],
-                               "planned_start": pd.to_datetime(["2025-01-13", None, "2025-01-06", "2025-01-06", None]),
-                               "actual_start": pd.to_datetime([None, "2025-01-08", None, None, "2025-01-20"])})
+    activities = pd.DataFrame(
+        {
+            "id": ["A", "B", "C", "D", "E"],
+            "planned_start": pd.to_datetime(["2025-01-13", None, "2025-01-06", "2025-01-06", None]),
+            "actual_start": pd.to_datetime([None, "2025-01-08", None, None, "2025-01-20"]),
+        }
+    )
     # path E, A; the others by start: C and D both 01-06 (then by id), B 01-08 (its actual
     # start, having no planned one)
     ordered = figures.gantt_order(activities, ["E", "A"])
@@ -188,26 +229,41 @@ def test_planned_and_actual_bars_stay_apart_in_greyscale(vision):
 
 
 def test_days_by_method_groups_three_figures_per_method():
-    summary = pd.DataFrame({"method": ["windows analysis", "impacted as-planned"], "eot_days": [10, 7],
-                            "compensable_days": [4, 7], "ld_days": [3, 0]})
+    summary = pd.DataFrame(
+        {
+            "method": ["windows analysis", "impacted as-planned"],
+            "eot_days": [10, 7],
+            "compensable_days": [4, 7],
+            "ld_days": [3, 0],
+        }
+    )
     figure = figures.days_by_method(summary)
-    assert [t.name for t in figure.data] == ["extension of time", "compensable days (time and money)",
-                                             "days of liquidated damages"]
+    assert [t.name for t in figure.data] == [
+        "extension of time",
+        "compensable days (time and money)",
+        "days of liquidated damages",
+    ]
     assert [list(t.y) for t in figure.data] == [[10, 7], [4, 7], [3, 0]]
     assert figure.layout.barmode == "group" and figure.data[2].marker.color == STATE_COLOURS[3]
 
 
 def test_but_for_days_leave_out_a_party_not_scored():
-    by_party = pd.DataFrame({"party": ["employer", "contractor", "all"],
-                             "days_earlier": pd.array([5, None, 8], dtype="Int64")})
+    by_party = pd.DataFrame(
+        {"party": ["employer", "contractor", "all"], "days_earlier": pd.array([5, None, 8], dtype="Int64")}
+    )
     (bars,) = figures.but_for_days(by_party).data
     assert list(bars.x) == ["employer events", "all events"] and list(bars.y) == [5, 8]
     assert list(bars.marker.color) == [STATE_COLOURS[2], STATE_COLOURS[4]]
 
 
 def test_a_figure_fragment_carries_no_plotly_js_and_no_raw_case_text():
-    trend = pd.DataFrame({"label": ["</script><script>alert(1)</script>"], "data_date": [dt.date(2025, 1, 6)],
-                          "completion": [dt.date(2025, 6, 30)]})
+    trend = pd.DataFrame(
+        {
+            "label": ["</script><script>alert(1)</script>"],
+            "data_date": [dt.date(2025, 1, 6)],
+            "completion": [dt.date(2025, 6, 30)],
+        }
+    )
     fragment = figures.figure_html(figures.completion_trend(trend), "figure-test")
     assert 'id="figure-test"' in fragment and "Plotly.newPlot" in fragment
     assert "<script>alert" not in fragment and len(fragment) < 20_000

@@ -22,12 +22,12 @@ import re
 from pathlib import Path
 
 import pytest
-
 from casewriter import write_case
+from test_report import ACTIVITIES, ASBUILT, LINKS, UPDATE, rows_of, write_small_case
+
 from delay.case import load_case
 from reports.sections.windows import in_force_steps
 from reports.writer import build
-from test_report import ACTIVITIES, ASBUILT, LINKS, UPDATE, rows_of, write_small_case
 
 ROOT = Path(__file__).resolve().parents[1]
 DEMO = ROOT / "case_demo"
@@ -109,8 +109,9 @@ def _formula_checks(sheet) -> list[tuple[str, int, float, float]]:
             if formula.value is None:
                 continue
             assert formula.data_type == "f", (heading, row, formula.value)  # a formula, not text
-            checks.append((heading, row, float(_evaluate(sheet, formula.value)),
-                           float(sheet.cell(row=row, column=source).value)))
+            checks.append(
+                (heading, row, float(_evaluate(sheet, formula.value)), float(sheet.cell(row=row, column=source).value))
+            )
     return checks
 
 
@@ -151,8 +152,10 @@ def test_the_demo_prolongation_totals_are_the_first_page_figures(demo, demo_book
     totals = {}
     for number, row in enumerate(rows, start=2):
         if str(row[0]).startswith("total, "):
-            totals[row[0][len("total, "):]] = (row[headings.index("compensable days")],
-                                              _evaluate(sheet, sheet.cell(row=number, column=formula).value))
+            totals[row[0][len("total, ") :]] = (
+                row[headings.index("compensable days")],
+                _evaluate(sheet, sheet.cell(row=number, column=formula).value),
+            )
     headline = {r["method"]: r for r in rows_of(demo, "headline")}
     for method, row in headline.items():
         compensable, cost = int(row["compensable_days"]), float(row["prolongation_cost"])
@@ -199,7 +202,8 @@ def test_the_demo_grants_are_listed_with_the_completion_in_force_from_their_date
         granted = list(csv.DictReader(handle))
     listed = rows_of(demo, "extensions_granted")
     assert [(r["grant"], r["granted_on"], r["days"]) for r in listed] == [
-        (g["id"], g["granted_on"], g["days"]) for g in granted]
+        (g["id"], g["granted_on"], g["days"]) for g in granted
+    ]
     assert [r["events"] for r in listed] == [g["events"] for g in granted]
     # by hand: the contract completion 2026-05-29 (case.toml), + 21 days from 2025-08-22 is
     # 2026-06-19, + 7 more from 2026-03-20 is 2026-06-26; both grants name section 2, the
@@ -214,8 +218,11 @@ def test_the_completion_in_force_steps_at_each_demo_grant():
     steps = in_force_steps(load_case(DEMO), dt.date(2025, 3, 3), dt.date(2026, 7, 3))
     # the same working as above: a step on each granted_on date, flat in between
     assert [(r.date, r.completion_in_force) for r in steps.itertuples()] == [
-        (dt.date(2025, 3, 3), dt.date(2026, 5, 29)), (dt.date(2025, 8, 22), dt.date(2026, 6, 19)),
-        (dt.date(2026, 3, 20), dt.date(2026, 6, 26)), (dt.date(2026, 7, 3), dt.date(2026, 6, 26))]
+        (dt.date(2025, 3, 3), dt.date(2026, 5, 29)),
+        (dt.date(2025, 8, 22), dt.date(2026, 6, 19)),
+        (dt.date(2026, 3, 20), dt.date(2026, 6, 26)),
+        (dt.date(2026, 7, 3), dt.date(2026, 6, 26)),
+    ]
     assert list(steps["grant"]) == ["", "EOT-01 +21 days", "EOT-02 +7 days", ""]
 
 
@@ -228,15 +235,19 @@ def test_the_small_case_prolongation_is_five_days_at_the_flat_rate(tmp_path):
     out = build(write_small_case(tmp_path / "case"), tmp_path / "report")
     rows = rows_of(out, "prolongation_build_up")
     assert [(r["method"], r["days"], r["cost_per_day"], r["cost"]) for r in rows] == [
-        (m, "5", "100.0", "500.0") for m in ("windows analysis", "impacted as-planned", "time impact analysis",
-                                             "collapsed as-built")]
+        (m, "5", "100.0", "500.0")
+        for m in ("windows analysis", "impacted as-planned", "time impact analysis", "collapsed as-built")
+    ]
     assert {r["source"] for r in rows} == {"case.toml [commercial] prolongation_cost_per_day"}
     sheet = load_workbook(out / "tables.xlsx")["prolongation_build_up"]
     headings, values = _sheet_rows(sheet)
     assert headings[-2:] == ["compensable days (formula)", "cost (EUR) (formula)"]
     # one row and one total row per method: 8 rows under the headings
-    assert [v[0] for v in values] == [x for m in ("windows analysis", "impacted as-planned", "time impact analysis",
-                                                  "collapsed as-built") for x in (m, f"total, {m}")]
+    assert [v[0] for v in values] == [
+        x
+        for m in ("windows analysis", "impacted as-planned", "time impact analysis", "collapsed as-built")
+        for x in (m, f"total, {m}")
+    ]
     assert sheet["I2"].value == "=F2*E2" and sheet["I3"].value == "=SUM(I2:I2)" and sheet["H3"].value == "=SUM(F2:F2)"
     assert [_evaluate(sheet, sheet.cell(row=r, column=9).value) for r in (2, 3)] == [500.0, 500.0]
     page = (out / "report.html").read_text(encoding="utf-8")
@@ -250,17 +261,38 @@ def test_a_cap_that_bites_is_recomputed_by_min(tmp_path):
     from openpyxl import load_workbook
 
     root = write_case(
-        tmp_path / "case", activities=ACTIVITIES, links=LINKS, completion="2025-01-17",
-        commercial={"currency": "EUR", "prolongation_cost_per_day": 100, "liquidated_damages_per_day": 50,
-                    "liquidated_damages_cap": 200},
+        tmp_path / "case",
+        activities=ACTIVITIES,
+        links=LINKS,
+        completion="2025-01-17",
+        commercial={
+            "currency": "EUR",
+            "prolongation_cost_per_day": 100,
+            "liquidated_damages_per_day": 50,
+            "liquidated_damages_cap": 200,
+        },
         snapshots={"u01": {"label": "Update 01", "data_date": "2025-01-13", "activities": UPDATE}},
-        files={"events.csv": [{"id": "E1", "title": "Slow slab", "party": "contractor", "start": "2025-01-13",
-                               "finish": "2025-01-22", "activities": "B", "impact": "extend", "days": 3}],
-               "asbuilt.csv": ASBUILT})
+        files={
+            "events.csv": [
+                {
+                    "id": "E1",
+                    "title": "Slow slab",
+                    "party": "contractor",
+                    "start": "2025-01-13",
+                    "finish": "2025-01-22",
+                    "activities": "B",
+                    "impact": "extend",
+                    "days": 3,
+                }
+            ],
+            "asbuilt.csv": ASBUILT,
+        },
+    )
     out = build(root, tmp_path / "report", methods="windows,impacted")
     rows = rows_of(out, "damages_build_up")
-    assert [(r["ld_days"], r["damages_before_cap"], r["cap"], r["ld_exposure"], r["ld_capped"]) for r in rows] \
-        == [("5", "250.0", "200.0", "200.0", "true")] * 2
+    assert [(r["ld_days"], r["damages_before_cap"], r["cap"], r["ld_exposure"], r["ld_capped"]) for r in rows] == [
+        ("5", "250.0", "200.0", "200.0", "true")
+    ] * 2
     sheet = load_workbook(out / "tables.xlsx")["damages_build_up"]
     headings, _ = _sheet_rows(sheet)
     exposure = headings.index("liquidated damages (EUR) (formula)") + 1

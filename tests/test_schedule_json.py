@@ -13,9 +13,9 @@ import json
 
 import pandas as pd
 import pytest
+from casewriter import write_case
 from click.testing import CliRunner
 
-from casewriter import write_case
 from delay.cli import cli
 from delay.convert import iso_dates, json_bool_cells, json_date_cells, json_int_cells, json_rows_text, json_text_cells
 
@@ -44,7 +44,10 @@ SIX_LINKS = [
 # days of D's calendar before D's late finish Mon 20, so Thu 16, start Wed 15; its floats
 # Wed 8 -> Thu 16 on its 7-day calendar: 8 days, free too (D is not held by B).
 EXPECTED = {
-    "snapshot": "baseline", "label": "Baseline", "data_date": "2025-01-06", "completion": "2025-01-20",
+    "snapshot": "baseline",
+    "label": "Baseline",
+    "data_date": "2025-01-06",
+    "completion": "2025-01-20",
     "activities": [
         ["START", "2025-01-06", "2025-01-06", "2025-01-06", "2025-01-06", 0, 0, True],
         ["A", "2025-01-06", "2025-01-08", "2025-01-06", "2025-01-08", 0, 0, True],
@@ -72,6 +75,7 @@ def test_six_activities_the_same_text_as_json_dumps(tmp_path):
 
 def _by_cell(result) -> list[dict]:
     """The records recomputed from the result table, one cell at a time."""
+
     def date(value):
         return None if pd.isna(value) else pd.Timestamp(value).date().isoformat()
 
@@ -80,10 +84,18 @@ def _by_cell(result) -> list[dict]:
 
     rows = []
     for record in result.activities.to_dict("records"):
-        rows.append({"activity": record["id"], "early_start": date(record["early_start"]),
-                     "early_finish": date(record["early_finish"]), "late_start": date(record["late_start"]),
-                     "late_finish": date(record["late_finish"]), "total_float": number(record["total_float"]),
-                     "free_float": number(record["free_float"]), "critical": bool(record["critical"])})
+        rows.append(
+            {
+                "activity": record["id"],
+                "early_start": date(record["early_start"]),
+                "early_finish": date(record["early_finish"]),
+                "late_start": date(record["late_start"]),
+                "late_finish": date(record["late_finish"]),
+                "total_float": number(record["total_float"]),
+                "free_float": number(record["free_float"]),
+                "critical": bool(record["critical"]),
+            }
+        )
     return rows
 
 
@@ -108,14 +120,20 @@ def test_json_of_a_synthetic_case_against_a_cell_by_cell_recomputation(tmp_path,
 
 def test_column_encoders_match_json_dumps():
     days = [0, 20089, -(2**63), 20089, 2932896]  # 1970-01-01, 2025-01-01, none, again, 9999-12-31
-    assert iso_dates(days).tolist() == [dt.date(1970, 1, 1).isoformat(), "2025-01-01", None, "2025-01-01",
-                                        "9999-12-31"]
+    assert iso_dates(days).tolist() == [dt.date(1970, 1, 1).isoformat(), "2025-01-01", None, "2025-01-01", "9999-12-31"]
     texts = ["A", 'quote " and \\ slash', "Ünïcode – dash", "line\nbreak"]
-    columns = {"id": json_text_cells(texts), "day": json_date_cells(days[:4]),
-               "float": json_int_cells([3, -2, 0, 10**12], [False, False, True, False]),
-               "on": json_bool_cells([True, False, True, False])}
-    expected = [{"id": t, "day": d, "float": f, "on": o} for t, d, f, o in zip(
-        texts, ["1970-01-01", "2025-01-01", None, "2025-01-01"], [3, -2, None, 10**12], [True, False, True, False])]
+    columns = {
+        "id": json_text_cells(texts),
+        "day": json_date_cells(days[:4]),
+        "float": json_int_cells([3, -2, 0, 10**12], [False, False, True, False]),
+        "on": json_bool_cells([True, False, True, False]),
+    }
+    expected = [
+        {"id": t, "day": d, "float": f, "on": o}
+        for t, d, f, o in zip(
+            texts, ["1970-01-01", "2025-01-01", None, "2025-01-01"], [3, -2, None, 10**12], [True, False, True, False]
+        )
+    ]
     for level in (0, 1, 3):
         for indent in (2, 4):
             text = json_rows_text(columns, indent=indent, level=level)

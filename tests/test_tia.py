@@ -71,9 +71,9 @@ from __future__ import annotations
 import datetime as dt
 import json
 
+from casewriter import write_case
 from click.testing import CliRunner
 
-from casewriter import write_case
 from delay.case import load_case
 from delay.commands.modelled import tia
 from delay.methods.tia import analyse
@@ -91,8 +91,16 @@ def progressed(row, actual_start=None, actual_finish=None, remaining=None):
 
 
 def event(event_id, party, start, finish, activities, days):
-    return {"id": event_id, "title": f"Event {event_id}", "party": party, "start": start, "finish": finish,
-            "activities": activities, "impact": "extend", "days": days}
+    return {
+        "id": event_id,
+        "title": f"Event {event_id}",
+        "party": party,
+        "start": start,
+        "finish": finish,
+        "activities": activities,
+        "impact": "extend",
+        "days": days,
+    }
 
 
 EVENTS = [
@@ -103,18 +111,39 @@ EVENTS = [
 ]
 
 
-ASBUILT = [{"id": "A", "actual_start": "2025-01-06", "actual_finish": "2025-01-18"},
-           {"id": "C", "actual_start": "2025-01-06", "actual_finish": "2025-01-17"},
-           {"id": "F", "actual_start": "2025-01-18", "actual_finish": "2025-01-18"}]
+ASBUILT = [
+    {"id": "A", "actual_start": "2025-01-06", "actual_finish": "2025-01-18"},
+    {"id": "C", "actual_start": "2025-01-06", "actual_finish": "2025-01-17"},
+    {"id": "F", "actual_start": "2025-01-18", "actual_finish": "2025-01-18"},
+]
 
 
 def two_update_case(root, events=EVENTS):
-    write_case(root, activities=[A, C, F], links=LINKS, schedule=SEVEN_DAY, snapshots={
-        "u1": {"data_date": "2025-01-11", "activities": [
-            progressed(A, "2025-01-06", None, 5), progressed(C, "2025-01-06", None, 6), progressed(F)]},
-        "u2": {"data_date": "2025-01-14", "activities": [
-            progressed(A, "2025-01-06", None, 4), progressed(C, "2025-01-06", None, 2), progressed(F)]},
-    }, files={"events.csv": events, "asbuilt.csv": ASBUILT})
+    write_case(
+        root,
+        activities=[A, C, F],
+        links=LINKS,
+        schedule=SEVEN_DAY,
+        snapshots={
+            "u1": {
+                "data_date": "2025-01-11",
+                "activities": [
+                    progressed(A, "2025-01-06", None, 5),
+                    progressed(C, "2025-01-06", None, 6),
+                    progressed(F),
+                ],
+            },
+            "u2": {
+                "data_date": "2025-01-14",
+                "activities": [
+                    progressed(A, "2025-01-06", None, 4),
+                    progressed(C, "2025-01-06", None, 2),
+                    progressed(F),
+                ],
+            },
+        },
+        files={"events.csv": events, "asbuilt.csv": ASBUILT},
+    )
     return root
 
 
@@ -127,12 +156,20 @@ def test_events_go_into_the_last_programme_before_they_began(tmp_path):
     events = result.events.set_index("event")
     assert list(result.events["event"]) == ["E0", "E3", "E1", "E2"]
     assert dict(events["update"]) == {"E0": "baseline", "E3": "u1", "E1": "u1", "E2": "u1"}
-    assert dict(events["completion_before"]) == {"E0": day("2025-01-15"), "E3": day("2025-01-16"),
-                                                 "E1": day("2025-01-16"), "E2": day("2025-01-16")}
+    assert dict(events["completion_before"]) == {
+        "E0": day("2025-01-15"),
+        "E3": day("2025-01-16"),
+        "E1": day("2025-01-16"),
+        "E2": day("2025-01-16"),
+    }
     assert dict(events["alone_days"]) == {"E0": 1, "E3": 1, "E1": 2, "E2": 3}
     assert dict(events["increment_days"]) == {"E0": 1, "E3": 1, "E1": 1, "E2": 2}
-    assert dict(events["completion_after"]) == {"E0": day("2025-01-16"), "E3": day("2025-01-17"),
-                                                "E1": day("2025-01-18"), "E2": day("2025-01-20")}
+    assert dict(events["completion_after"]) == {
+        "E0": day("2025-01-16"),
+        "E3": day("2025-01-17"),
+        "E1": day("2025-01-18"),
+        "E2": day("2025-01-20"),
+    }
     assert result.total_days == 5
 
 
@@ -140,10 +177,16 @@ def test_each_programme_reconciles_with_the_next(tmp_path):
     result = analyse(load_case(two_update_case(tmp_path / "case")))
     updates = result.updates.set_index("snapshot")
     assert list(updates.index) == ["baseline", "u1", "u2"]
-    assert dict(updates["completion_before"]) == {"baseline": day("2025-01-15"), "u1": day("2025-01-16"),
-                                                  "u2": day("2025-01-17")}
-    assert dict(updates["completion_after"]) == {"baseline": day("2025-01-16"), "u1": day("2025-01-20"),
-                                                 "u2": day("2025-01-17")}
+    assert dict(updates["completion_before"]) == {
+        "baseline": day("2025-01-15"),
+        "u1": day("2025-01-16"),
+        "u2": day("2025-01-17"),
+    }
+    assert dict(updates["completion_after"]) == {
+        "baseline": day("2025-01-16"),
+        "u1": day("2025-01-20"),
+        "u2": day("2025-01-17"),
+    }
     assert dict(updates["increment_days"]) == {"baseline": 1, "u1": 4, "u2": 0}
     assert dict(updates["next_snapshot"]) == {"baseline": "u1", "u1": "u2", "u2": "asbuilt"}
     assert dict(updates["residual_days"]) == {"baseline": 0, "u1": -3, "u2": 1}
@@ -205,15 +248,49 @@ def test_cli_json(tmp_path):
     assert run.exit_code == 0, run.output
     data = json.loads(run.stdout)
     assert (data["method"], data["planned_completion"], data["actual_completion"], data["explained_days"]) == (
-        "tia", "2025-01-15", "2025-01-18", 3)
-    assert [{k: u[k] for k in ("snapshot", "completion_before", "completion_after", "increment_days",
-                                "next_snapshot", "residual_days")} for u in data["updates"]] == [
-        {"snapshot": "baseline", "completion_before": "2025-01-15", "completion_after": "2025-01-16",
-         "increment_days": 1, "next_snapshot": "u1", "residual_days": 0},
-        {"snapshot": "u1", "completion_before": "2025-01-16", "completion_after": "2025-01-20",
-         "increment_days": 4, "next_snapshot": "u2", "residual_days": -3},
-        {"snapshot": "u2", "completion_before": "2025-01-17", "completion_after": "2025-01-17",
-         "increment_days": 0, "next_snapshot": "asbuilt", "residual_days": 1},
+        "tia",
+        "2025-01-15",
+        "2025-01-18",
+        3,
+    )
+    assert [
+        {
+            k: u[k]
+            for k in (
+                "snapshot",
+                "completion_before",
+                "completion_after",
+                "increment_days",
+                "next_snapshot",
+                "residual_days",
+            )
+        }
+        for u in data["updates"]
+    ] == [
+        {
+            "snapshot": "baseline",
+            "completion_before": "2025-01-15",
+            "completion_after": "2025-01-16",
+            "increment_days": 1,
+            "next_snapshot": "u1",
+            "residual_days": 0,
+        },
+        {
+            "snapshot": "u1",
+            "completion_before": "2025-01-16",
+            "completion_after": "2025-01-20",
+            "increment_days": 4,
+            "next_snapshot": "u2",
+            "residual_days": -3,
+        },
+        {
+            "snapshot": "u2",
+            "completion_before": "2025-01-17",
+            "completion_after": "2025-01-17",
+            "increment_days": 0,
+            "next_snapshot": "asbuilt",
+            "residual_days": 1,
+        },
     ]
     assert [{k: e[k] for k in ("event", "update", "increment_days", "alone_days")} for e in data["events"]] == [
         {"event": "E0", "update": "baseline", "increment_days": 1, "alone_days": 1},
@@ -244,8 +321,9 @@ def test_cli_table_with_the_cautions(tmp_path):
 
 def test_cli_bad_case_is_a_plain_input_error(tmp_path):
     root = two_update_case(tmp_path / "case")
-    (root / "events.csv").write_text("id,title,party,start,finish\nE1,Bad,nobody,2025-01-13,2025-01-13\n",
-                                     encoding="utf-8")
+    (root / "events.csv").write_text(
+        "id,title,party,start,finish\nE1,Bad,nobody,2025-01-13,2025-01-13\n", encoding="utf-8"
+    )
     run = CliRunner().invoke(tia, [str(root)])
     assert run.exit_code == 2
     assert "events.csv" in run.stderr and "party" in run.stderr

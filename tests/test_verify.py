@@ -25,12 +25,12 @@ from pathlib import Path
 
 import pytest
 from click.testing import CliRunner
+from test_output_policy import small_case
 
 from delay.cli import cli
 from delay.output import MARKER
 from reports.manifest import FORMAT, MAX_BYTES, MAX_DEPTH, _relative_location
 from reports.writer import build
-from test_output_policy import small_case
 
 PROJECT = Path(__file__).resolve().parent.parent
 
@@ -100,6 +100,7 @@ def _set(path: str, value):
         else:
             where[int(last) if last.isdigit() else last] = value
         return manifest
+
     return change
 
 
@@ -157,13 +158,16 @@ def test_a_manifest_nested_200000_deep_is_refused_without_recursing(project, whe
     assert_unreadable(run("verify", report), "nests 200,0", f"at most {MAX_DEPTH}")
 
 
-@pytest.mark.parametrize("content, words", [
-    (b"{", "not readable as JSON"),
-    (b"\xff\xfe{}", "not UTF-8"),
-    (b'{"format": "delay-report-manifest/2", "format": "again"}', "given twice"),
-    (b'{"format": "' + FORMAT.encode() + b'", "rows": 1' + b"0" * 5000 + b"}", "not readable as JSON"),
-    (b"", "not readable as JSON"),
-])
+@pytest.mark.parametrize(
+    "content, words",
+    [
+        (b"{", "not readable as JSON"),
+        (b"\xff\xfe{}", "not UTF-8"),
+        (b'{"format": "delay-report-manifest/2", "format": "again"}', "given twice"),
+        (b'{"format": "' + FORMAT.encode() + b'", "rows": 1' + b"0" * 5000 + b"}", "not readable as JSON"),
+        (b"", "not readable as JSON"),
+    ],
+)
 def test_a_manifest_that_is_not_json_is_one_line(project, content, words):
     report = project / "report"
     (report / "manifest.json").write_bytes(content)
@@ -214,10 +218,12 @@ def test_an_input_linked_out_of_the_case_is_not_read_and_no_hash_is_printed(proj
 # -- the report's own files -------------------------------------------------------------------------
 def test_an_edited_page_is_found(project):
     page = project / "report" / "report.html"
-    page.write_text(page.read_text(encoding="utf-8").replace("Dig the foundations", "Dig the footings"),
-                    encoding="utf-8")
+    page.write_text(
+        page.read_text(encoding="utf-8").replace("Dig the foundations", "Dig the footings"), encoding="utf-8"
+    )
     assert differences(run("verify", project / "report")) == [
-        "output changed: report.html (its content is not what the report wrote)"]
+        "output changed: report.html (its content is not what the report wrote)"
+    ]
 
 
 def test_a_number_changed_in_the_workbook_is_found(project):
@@ -240,7 +246,8 @@ def test_a_number_changed_in_the_workbook_is_found(project):
     assert changed, "the workbook holds a number"
     book.save(path)
     assert differences(run("verify", project / "report")) == [
-        "output changed: tables.xlsx (its content is not what the report wrote)"]
+        "output changed: tables.xlsx (its content is not what the report wrote)"
+    ]
 
 
 def test_a_forged_table_file_missing_files_and_the_marker_are_found(project, pristine):
@@ -252,8 +259,9 @@ def test_a_forged_table_file_missing_files_and_the_marker_are_found(project, pri
     lines = differences(run("verify", report))
     assert "output added: tables/x.csv (the report did not write it)" in lines
     assert "output missing: tables.xlsx (missing)" in lines
-    assert f"table file changed: tables/{first.name} (it no longer matches the fingerprint made with the report)" \
-        in lines
+    assert (
+        f"table file changed: tables/{first.name} (it no longer matches the fingerprint made with the report)" in lines
+    )
     assert len(lines) == 3
     # the marker: removed, or taken from another report
     (report / MARKER).unlink()
@@ -261,8 +269,9 @@ def test_a_forged_table_file_missing_files_and_the_marker_are_found(project, pri
     other = json.loads((pristine / "report" / MARKER).read_text(encoding="utf-8"))
     other["id"] = "f" * 32
     (report / MARKER).write_text(json.dumps(other), encoding="utf-8")
-    assert "output changed: delay-output.json (its id is not the one the manifest records)" in \
-        differences(run("verify", report))
+    assert "output changed: delay-output.json (its id is not the one the manifest records)" in differences(
+        run("verify", report)
+    )
 
 
 def test_every_difference_is_one_line_of_a_known_kind(project):
@@ -304,8 +313,12 @@ def test_a_workbook_case_is_verified_from_its_workbook(tmp_path):
     workbook = write_workbook(folder, tmp_path / "project" / "case.xlsx")
     build(workbook, tmp_path / "project" / "report", methods="impacted")
     manifest = manifest_of(tmp_path / "project" / "report")
-    assert manifest["case"] == {"path": "case.xlsx", "form": "workbook", "relative_to_report": "../case.xlsx",
-                                "project": "Test case"}  # casewriter's project name
+    assert manifest["case"] == {
+        "path": "case.xlsx",
+        "form": "workbook",
+        "relative_to_report": "../case.xlsx",
+        "project": "Test case",
+    }  # casewriter's project name
     assert [i["path"] for i in manifest["inputs"]] == ["case.xlsx"]
     (tmp_path / "project").rename(tmp_path / "moved")
     result = run("verify", tmp_path / "moved" / "report")
@@ -314,8 +327,9 @@ def test_a_workbook_case_is_verified_from_its_workbook(tmp_path):
 
 def test_the_manifest_records_every_dependency_version(project):
     environment = manifest_of(project / "report")["environment"]
-    required = [re.split(r"[\s<>=!~;\[(]", r, maxsplit=1)[0] for r in metadata.requires("delay-toolkit")
-                if "extra ==" not in r]
+    required = [
+        re.split(r"[\s<>=!~;\[(]", r, maxsplit=1)[0] for r in metadata.requires("delay-toolkit") if "extra ==" not in r
+    ]
     assert "numba" in required and "pandas" in required
     for name in required:
         assert environment[name] == metadata.version(name), name

@@ -40,9 +40,9 @@ import json
 
 import pandas as pd
 import pytest
+from casewriter import write_case
 from click.testing import CliRunner
 
-from casewriter import write_case
 from delay.case import load_case
 from delay.cli import cli
 from delay.errors import CaseError
@@ -109,8 +109,14 @@ SINGLE_CHAIN_LINKS = [link("A", "B"), link("B", "C"), link("C", "F")]
 def single_chain_case(root, files=None):
     a, b, c, f = SINGLE_CHAIN
     update = [progressed(a, "2025-01-06", "2025-01-12"), progressed(b), progressed(c), progressed(f)]
-    write_case(root, activities=SINGLE_CHAIN, links=SINGLE_CHAIN_LINKS, schedule=SEVEN_DAY,
-               snapshots={"U1": {"data_date": "2025-01-13", "activities": update}}, files=files)
+    write_case(
+        root,
+        activities=SINGLE_CHAIN,
+        links=SINGLE_CHAIN_LINKS,
+        schedule=SEVEN_DAY,
+        snapshots={"U1": {"data_date": "2025-01-13", "activities": update}},
+        files=files,
+    )
     return load_case(root)
 
 
@@ -148,8 +154,12 @@ def test_five_day_calendar_charges_in_work_days(tmp_path):
     base = [task("A", 3), task("B", 2), finish_milestone()]
     a, b, f = base
     update = [progressed(a, "2025-01-06", "2025-01-09"), progressed(b), progressed(f)]
-    write_case(tmp_path / "case", activities=base, links=[link("A", "B"), link("B", "F")],
-               snapshots={"U1": {"data_date": "2025-01-10", "activities": update}})
+    write_case(
+        tmp_path / "case",
+        activities=base,
+        links=[link("A", "B"), link("B", "F")],
+        snapshots={"U1": {"data_date": "2025-01-10", "activities": update}},
+    )
     window = only_window(analyse(load_case(tmp_path / "case"), half_step=True))
     assert window.completion_start == day("2025-01-10")
     assert window.completion_end == day("2025-01-13")
@@ -174,10 +184,19 @@ def test_five_day_calendar_charges_in_work_days(tmp_path):
 def test_float_absorbed_is_not_charged(tmp_path):
     base = [task("A", 5), task("B", 2), task("C", 5), finish_milestone()]
     a, b, c, f = base
-    update = [progressed(a, "2025-01-06", "2025-01-10"), progressed(b, "2025-01-06", "2025-01-10"),
-              progressed(c), progressed(f)]
-    write_case(tmp_path / "case", activities=base, links=[link("A", "C"), link("C", "F"), link("B", "F")],
-               schedule=SEVEN_DAY, snapshots={"U1": {"data_date": "2025-01-11", "activities": update}})
+    update = [
+        progressed(a, "2025-01-06", "2025-01-10"),
+        progressed(b, "2025-01-06", "2025-01-10"),
+        progressed(c),
+        progressed(f),
+    ]
+    write_case(
+        tmp_path / "case",
+        activities=base,
+        links=[link("A", "C"), link("C", "F"), link("B", "F")],
+        schedule=SEVEN_DAY,
+        snapshots={"U1": {"data_date": "2025-01-11", "activities": update}},
+    )
     window = only_window(analyse(load_case(tmp_path / "case"), half_step=True))
     assert window.completion_start == window.completion_end == day("2025-01-15")
     assert (window.movement_days, window.progress_days, window.revision_days) == (0, 0, 0)
@@ -202,11 +221,21 @@ def test_float_absorbed_is_not_charged(tmp_path):
 def test_non_critical_path_becomes_critical(tmp_path):
     base = [task("A", 5), task("B", 3), task("C", 5), task("D", 4), finish_milestone()]
     a, b, c, d, f = base
-    update = [progressed(a, "2025-01-06", "2025-01-10"), progressed(b, "2025-01-06", "2025-01-13"),
-              progressed(c, "2025-01-11", None, 2), progressed(d), progressed(f)]
+    update = [
+        progressed(a, "2025-01-06", "2025-01-10"),
+        progressed(b, "2025-01-06", "2025-01-13"),
+        progressed(c, "2025-01-11", None, 2),
+        progressed(d),
+        progressed(f),
+    ]
     links = [link("A", "C"), link("C", "F"), link("B", "D"), link("D", "F")]
-    write_case(tmp_path / "case", activities=base, links=links, schedule=SEVEN_DAY,
-               snapshots={"U1": {"data_date": "2025-01-14", "activities": update}})
+    write_case(
+        tmp_path / "case",
+        activities=base,
+        links=links,
+        schedule=SEVEN_DAY,
+        snapshots={"U1": {"data_date": "2025-01-14", "activities": update}},
+    )
     window = only_window(analyse(load_case(tmp_path / "case"), half_step=True))
     assert window.completion_start == day("2025-01-15")
     assert window.completion_end == day("2025-01-17")
@@ -232,8 +261,13 @@ def test_gain_is_a_negative_charge(tmp_path):
     base = [task("A", 5), task("B", 5), finish_milestone()]
     a, b, f = base
     update = [progressed(a, "2025-01-06", "2025-01-08"), progressed(b), progressed(f)]
-    write_case(tmp_path / "case", activities=base, links=[link("A", "B"), link("B", "F")],
-               schedule=SEVEN_DAY, snapshots={"U1": {"data_date": "2025-01-09", "activities": update}})
+    write_case(
+        tmp_path / "case",
+        activities=base,
+        links=[link("A", "B"), link("B", "F")],
+        schedule=SEVEN_DAY,
+        snapshots={"U1": {"data_date": "2025-01-09", "activities": update}},
+    )
     window = only_window(analyse(load_case(tmp_path / "case"), half_step=True))
     assert window.completion_end == day("2025-01-13")
     assert (window.movement_days, window.progress_days, window.revision_days) == (-2, -2, 0)
@@ -260,11 +294,20 @@ def test_gain_is_a_negative_charge(tmp_path):
 def test_two_concurrent_driving_paths(tmp_path):
     base = [task("P", 2), task("A", 5), task("B", 5), finish_milestone()]
     p, a, b, f = base
-    update = [progressed(p, "2025-01-06", "2025-01-07"), progressed(a, "2025-01-08", None, 2),
-              progressed(b, "2025-01-08", None, 2), progressed(f)]
+    update = [
+        progressed(p, "2025-01-06", "2025-01-07"),
+        progressed(a, "2025-01-08", None, 2),
+        progressed(b, "2025-01-08", None, 2),
+        progressed(f),
+    ]
     links = [link("P", "A"), link("P", "B"), link("A", "F"), link("B", "F")]
-    write_case(tmp_path / "case", activities=base, links=links, schedule=SEVEN_DAY,
-               snapshots={"U1": {"data_date": "2025-01-13", "activities": update}})
+    write_case(
+        tmp_path / "case",
+        activities=base,
+        links=links,
+        schedule=SEVEN_DAY,
+        snapshots={"U1": {"data_date": "2025-01-13", "activities": update}},
+    )
     window = only_window(analyse(load_case(tmp_path / "case"), half_step=True))
     assert window.completion_end == day("2025-01-14")
     assert (window.movement_days, window.progress_days, window.revision_days) == (2, 2, 0)
@@ -296,12 +339,15 @@ def test_two_concurrent_driving_paths(tmp_path):
 def test_window_delay_entirely_from_revisions(tmp_path):
     base = [task("A", 5), task("B", 5), task("C", 3), finish_milestone()]
     a, b, c, f = base
-    update = [progressed(a, "2025-01-06", "2025-01-10"), progressed({**b, "duration": 8}),
-              progressed(c), progressed(f)]
+    update = [progressed(a, "2025-01-06", "2025-01-10"), progressed({**b, "duration": 8}), progressed(c), progressed(f)]
     links = [link("A", "B"), link("A", "C"), link("B", "F"), link("C", "F")]
-    write_case(tmp_path / "case", activities=base, links=links, schedule=SEVEN_DAY,
-               snapshots={"U1": {"data_date": "2025-01-11", "activities": update,
-                                 "links": links + [link("C", "B")]}})
+    write_case(
+        tmp_path / "case",
+        activities=base,
+        links=links,
+        schedule=SEVEN_DAY,
+        snapshots={"U1": {"data_date": "2025-01-11", "activities": update, "links": links + [link("C", "B")]}},
+    )
     window = only_window(analyse(load_case(tmp_path / "case"), half_step=True))
     assert window.completion_start == window.completion_half == day("2025-01-15")
     assert window.completion_end == day("2025-01-21")
@@ -338,11 +384,22 @@ def test_window_delay_entirely_from_revisions(tmp_path):
 def several_updates_case(root):
     a, b, c, f = SINGLE_CHAIN
     u1 = [progressed(a, "2025-01-06", "2025-01-12"), progressed(b), progressed(c), progressed(f)]
-    u2 = [progressed(a, "2025-01-06", "2025-01-12"), progressed(b, "2025-01-13", "2025-01-19"),
-          progressed(c), progressed(f)]
-    write_case(root, activities=SINGLE_CHAIN, links=SINGLE_CHAIN_LINKS, schedule=SEVEN_DAY,
-               snapshots={"U1": {"data_date": "2025-01-13", "activities": u1},
-                          "U2": {"data_date": "2025-01-20", "activities": u2}})
+    u2 = [
+        progressed(a, "2025-01-06", "2025-01-12"),
+        progressed(b, "2025-01-13", "2025-01-19"),
+        progressed(c),
+        progressed(f),
+    ]
+    write_case(
+        root,
+        activities=SINGLE_CHAIN,
+        links=SINGLE_CHAIN_LINKS,
+        schedule=SEVEN_DAY,
+        snapshots={
+            "U1": {"data_date": "2025-01-13", "activities": u1},
+            "U2": {"data_date": "2025-01-20", "activities": u2},
+        },
+    )
     return root
 
 
@@ -353,8 +410,7 @@ def test_consecutive_windows_add_up_to_the_total(tmp_path):
     assert (first.movement_days, second.movement_days) == (2, 2)
     assert (second.completion_start, second.completion_end) == (day("2025-01-22"), day("2025-01-24"))
     assert result.total_movement_days == 4
-    assert {x: int(charges_by_activity(first).loc[x, "days"]) for x in "ABCF"} == \
-        {"A": 2, "B": 0, "C": 0, "F": 0}
+    assert {x: int(charges_by_activity(first).loc[x, "days"]) for x in "ABCF"} == {"A": 2, "B": 0, "C": 0, "F": 0}
     second_charges = charges_by_activity(second)
     assert {x: int(second_charges.loc[x, "days"]) for x in "BCF"} == {"B": 2, "C": 0, "F": 0}
     assert "A" not in second_charges.index or int(second_charges.loc["A", "days"]) == 0
@@ -400,16 +456,23 @@ def out_of_sequence_case(root, progress_mode):
     base = [task("A", 5), task("B", 5), finish_milestone()]
     a, b, f = base
     update = [progressed(a, "2025-01-06", None, 2), progressed(b, "2025-01-08", None, 4), progressed(f)]
-    write_case(root, activities=base, links=[link("A", "B"), link("B", "F")],
-               schedule={**SEVEN_DAY, "progress": progress_mode},
-               snapshots={"U1": {"data_date": "2025-01-09", "activities": update}})
+    write_case(
+        root,
+        activities=base,
+        links=[link("A", "B"), link("B", "F")],
+        schedule={**SEVEN_DAY, "progress": progress_mode},
+        snapshots={"U1": {"data_date": "2025-01-09", "activities": update}},
+    )
     return load_case(root)
 
 
-@pytest.mark.parametrize("mode, completion, movement, b_charge", [
-    ("retained_logic", "2025-01-14", -1, -1),
-    ("progress_override", "2025-01-12", -3, -3),
-])
+@pytest.mark.parametrize(
+    "mode, completion, movement, b_charge",
+    [
+        ("retained_logic", "2025-01-14", -1, -1),
+        ("progress_override", "2025-01-12", -3, -3),
+    ],
+)
 def test_out_of_sequence_progress(tmp_path, mode, completion, movement, b_charge):
     window = only_window(analyse(out_of_sequence_case(tmp_path / "case", mode), half_step=True))
     assert window.completion_start == day("2025-01-15")
@@ -436,12 +499,20 @@ def test_out_of_sequence_progress(tmp_path, mode, completion, movement, b_charge
 #   -3 + 6 = 3 = revision effect.
 def deleted_added_case(root):
     a, b, c, f = [task("A", 5), task("B", 3), task("C", 5), finish_milestone()]
-    update = [progressed(a, "2025-01-06", "2025-01-10"), progressed(c), progressed(task("D", 6)),
-              progressed(f)]
-    write_case(root, activities=[a, b, c, f], links=[link("A", "B"), link("B", "C"), link("C", "F")],
-               schedule=SEVEN_DAY,
-               snapshots={"U1": {"data_date": "2025-01-11", "activities": update,
-                                 "links": [link("A", "D"), link("D", "C"), link("C", "F")]}})
+    update = [progressed(a, "2025-01-06", "2025-01-10"), progressed(c), progressed(task("D", 6)), progressed(f)]
+    write_case(
+        root,
+        activities=[a, b, c, f],
+        links=[link("A", "B"), link("B", "C"), link("C", "F")],
+        schedule=SEVEN_DAY,
+        snapshots={
+            "U1": {
+                "data_date": "2025-01-11",
+                "activities": update,
+                "links": [link("A", "D"), link("D", "C"), link("C", "F")],
+            }
+        },
+    )
     return load_case(root)
 
 
@@ -492,28 +563,68 @@ def test_half_step_keeps_deleted_activity_unprogressed(tmp_path):
 #       C to the unexplained-risk setting (default contractor), basis "unexplained".
 #   EV5 neutral names D and starts on Jan 15, the data date that ends the window: it matches.
 EVENTS = [
-    {"id": "EV1", "title": "Late access to the site", "party": "employer",
-     "start": "2025-01-06", "finish": "2025-01-08", "activities": "A"},
-    {"id": "EV2", "title": "Design change to the footings", "party": "employer",
-     "start": "2025-01-09", "finish": "2025-01-11", "activities": "B"},
-    {"id": "EV3", "title": "Crane breakdown", "party": "contractor",
-     "start": "2025-01-10", "finish": "2025-01-11", "activities": "B"},
-    {"id": "EV4", "title": "Instruction on finishes", "party": "employer",
-     "start": "2025-01-20", "finish": "2025-01-22", "activities": "C"},
-    {"id": "EV5", "title": "Exceptional rainfall", "party": "neutral",
-     "start": "2025-01-15", "finish": "2025-01-16", "activities": "D"},
+    {
+        "id": "EV1",
+        "title": "Late access to the site",
+        "party": "employer",
+        "start": "2025-01-06",
+        "finish": "2025-01-08",
+        "activities": "A",
+    },
+    {
+        "id": "EV2",
+        "title": "Design change to the footings",
+        "party": "employer",
+        "start": "2025-01-09",
+        "finish": "2025-01-11",
+        "activities": "B",
+    },
+    {
+        "id": "EV3",
+        "title": "Crane breakdown",
+        "party": "contractor",
+        "start": "2025-01-10",
+        "finish": "2025-01-11",
+        "activities": "B",
+    },
+    {
+        "id": "EV4",
+        "title": "Instruction on finishes",
+        "party": "employer",
+        "start": "2025-01-20",
+        "finish": "2025-01-22",
+        "activities": "C",
+    },
+    {
+        "id": "EV5",
+        "title": "Exceptional rainfall",
+        "party": "neutral",
+        "start": "2025-01-15",
+        "finish": "2025-01-16",
+        "activities": "D",
+    },
 ]
 
 
 def events_case(root):
     base = [task("A", 2), task("B", 2), task("C", 2), task("D", 2), finish_milestone()]
     a, b, c, d, f = base
-    update = [progressed(a, "2025-01-06", "2025-01-08"), progressed(b, "2025-01-09", "2025-01-11"),
-              progressed(c, "2025-01-12", "2025-01-14"), progressed(d), progressed(f)]
+    update = [
+        progressed(a, "2025-01-06", "2025-01-08"),
+        progressed(b, "2025-01-09", "2025-01-11"),
+        progressed(c, "2025-01-12", "2025-01-14"),
+        progressed(d),
+        progressed(f),
+    ]
     links = [link("A", "B"), link("B", "C"), link("C", "D"), link("D", "F")]
-    write_case(root, activities=base, links=links, schedule=SEVEN_DAY,
-               snapshots={"U1": {"data_date": "2025-01-15", "activities": update}},
-               files={"events.csv": EVENTS})
+    write_case(
+        root,
+        activities=base,
+        links=links,
+        schedule=SEVEN_DAY,
+        snapshots={"U1": {"data_date": "2025-01-15", "activities": update}},
+        files={"events.csv": EVENTS},
+    )
     return root
 
 
@@ -569,8 +680,20 @@ def test_windows_json(tmp_path):
     assert {"windows", "total_movement_days", "target", "ledger_calendar", "sections"} <= set(data)
     assert (data["total_movement_days"], data["target"], data["ledger_calendar"]) == (3, "F", "7d")
     (window,) = data["windows"]
-    assert {"start", "end", "completion_start", "completion_end", "movement_days", "movement_work_days",
-            "progress_days", "revision_days", "by_party_days", "charged", "revisions", "sentence"} <= set(window)
+    assert {
+        "start",
+        "end",
+        "completion_start",
+        "completion_end",
+        "movement_days",
+        "movement_work_days",
+        "progress_days",
+        "revision_days",
+        "by_party_days",
+        "charged",
+        "revisions",
+        "sentence",
+    } <= set(window)
     assert (window["start"], window["end"]) == ("baseline", "U1")
     assert (window["completion_start"], window["completion_end"]) == ("2025-01-13", "2025-01-16")
     assert (window["movement_days"], window["movement_work_days"]) == (3, 3)
@@ -580,11 +703,25 @@ def test_windows_json(tmp_path):
     charged = {e["activity"]: e for e in window["charged"] if e["days"] != 0}
     assert set(charged) == {"A", "B", "C"}
     assert {k: charged["A"][k] for k in ("work_days", "days", "counted", "events", "party", "basis")} == {
-        "work_days": 1, "days": 1, "counted": True, "events": ["EV1"], "party": "employer", "basis": "event"}
+        "work_days": 1,
+        "days": 1,
+        "counted": True,
+        "events": ["EV1"],
+        "party": "employer",
+        "basis": "event",
+    }
     assert {k: charged["B"][k] for k in ("days", "events", "party", "basis")} == {
-        "days": 1, "events": ["EV2", "EV3"], "party": "concurrent", "basis": "event"}
+        "days": 1,
+        "events": ["EV2", "EV3"],
+        "party": "concurrent",
+        "basis": "event",
+    }
     assert {k: charged["C"][k] for k in ("days", "events", "party", "basis")} == {
-        "days": 1, "events": [], "party": "contractor", "basis": "unexplained"}
+        "days": 1,
+        "events": [],
+        "party": "contractor",
+        "basis": "unexplained",
+    }
     # the counted charges add up to the progress effect (the issue's `counted` flag)
     assert sum(e["days"] for e in window["charged"] if e["counted"]) == window["progress_days"]
     assert window["by_party_days"] == {"employer": 1, "contractor": 1, "concurrent": 1}
@@ -599,9 +736,15 @@ def test_windows_json_revisions_and_boundaries(tmp_path):
     (window,) = json.loads(run.output)["windows"]
     revisions = {e["kind"]: e for e in window["revisions"]}
     assert {k: revisions["deletions"][k] for k in ("activities", "work_days", "days")} == {
-        "activities": ["B"], "work_days": -3, "days": -3}
+        "activities": ["B"],
+        "work_days": -3,
+        "days": -3,
+    }
     assert {k: revisions["additions"][k] for k in ("activities", "work_days", "days")} == {
-        "activities": ["D"], "work_days": 6, "days": 6}
+        "activities": ["D"],
+        "work_days": 6,
+        "days": 6,
+    }
     assert sum(e["days"] for e in window["revisions"]) == 3
     # Case 8 through --windows baseline,U2: one window of 4 days.
     root = several_updates_case(tmp_path / "several")

@@ -29,8 +29,8 @@ from __future__ import annotations
 import datetime as dt
 
 import pandas as pd
-
 from casewriter import finish_milestone, link, progressed, task, write_case
+
 from delay.case import load_case
 from delay.causation import class_totals, windows_causation
 from delay.entitlement import assess
@@ -70,15 +70,26 @@ def chain_case(root, constrained=False, files=None, risk=""):
         a = {**a, "constraint": "latest_finish", "constraint_date": "2025-01-07"}
         f = {**f, "constraint": "latest_finish", "constraint_date": "2025-01-08"}
     update = [progressed(a, "2025-01-06", "2025-01-09"), progressed(b), progressed(f)]
-    write_case(root, activities=[a, b, f], links=[link("A", "B"), link("B", "F")], completion="2025-01-10",
-               snapshots={"U1": {"data_date": "2025-01-10", "activities": update}}, files=files)
+    write_case(
+        root,
+        activities=[a, b, f],
+        links=[link("A", "B"), link("B", "F")],
+        completion="2025-01-10",
+        snapshots={"U1": {"data_date": "2025-01-10", "activities": update}},
+        files=files,
+    )
     return load_case(root)
 
 
 def figures(window):
     frame = window.charges
-    return (window.movement_days, window.movement_work_days, window.progress_days, window.revision_days,
-            sorted(zip(frame["activity"], frame["work_days"], frame["days"], frame["party"])))
+    return (
+        window.movement_days,
+        window.movement_work_days,
+        window.progress_days,
+        window.revision_days,
+        sorted(zip(frame["activity"], frame["work_days"], frame["days"], frame["party"])),
+    )
 
 
 def test_one_late_activity_is_charged_alone(tmp_path):
@@ -110,7 +121,10 @@ def test_milestone_constraints_change_no_figure(tmp_path):
 def test_an_employer_risk_activity_is_charged_to_the_employer(tmp_path):
     found = charges(only(analyse(chain_case(tmp_path / "case", risk="employer"))))
     assert (found.loc["A", "party"], found.loc["A", "basis"], list(found.loc["A", "events"])) == (
-        "employer", "risk", [])
+        "employer",
+        "risk",
+        [],
+    )
     plain = charges(only(analyse(chain_case(tmp_path / "plain"))))
     assert (plain.loc["A", "party"], plain.loc["A", "basis"]) == ("contractor", "unexplained")
 
@@ -132,17 +146,28 @@ def test_the_unexplained_risk_setting(tmp_path):
 # contractor (unexplained).  An attribution of B, which only carried A's delay, is listed
 # with its 0 days.
 def test_an_attribution_overrides_the_rule(tmp_path):
-    files = {"attributions.csv": [
-        {"window": "U1", "activity": "A", "event": "", "party": "employer",
-         "reason": "Instruction AI-3 suspended the work"},
-        {"window": "U1", "activity": "B", "event": "", "party": "employer", "reason": "B is not charged"}]}
+    files = {
+        "attributions.csv": [
+            {
+                "window": "U1",
+                "activity": "A",
+                "event": "",
+                "party": "employer",
+                "reason": "Instruction AI-3 suspended the work",
+            },
+            {"window": "U1", "activity": "B", "event": "", "party": "employer", "reason": "B is not charged"},
+        ]
+    }
     result = analyse(chain_case(tmp_path / "case", files=files))
     found = charges(only(result))
     assert (found.loc["A", "party"], found.loc["A", "basis"]) == ("employer", "analyst")
     assert (found.loc["A", "rule_party"], found.loc["A", "rule_basis"]) == ("contractor", "unexplained")
     listed = result.attributions.set_index("activity")
     assert (listed.loc["A", "rule_party"], listed.loc["A", "party"], int(listed.loc["A", "days"])) == (
-        "contractor", "employer", 3)
+        "contractor",
+        "employer",
+        3,
+    )
     assert int(listed.loc["B", "days"]) == 0
 
 
@@ -166,8 +191,13 @@ def test_an_attribution_overrides_the_rule(tmp_path):
 def test_a_weekend_on_another_calendar_goes_to_the_cause(tmp_path):
     a, c, f = task("A", 3), task("C", 3, calendar="7d"), finish_milestone()
     update = [progressed(a, "2025-01-06", "2025-01-10"), progressed(c), progressed(f)]
-    write_case(tmp_path / "case", activities=[a, c, f], links=[link("A", "C"), link("C", "F")],
-               completion="2025-01-10", snapshots={"U1": {"data_date": "2025-01-11", "activities": update}})
+    write_case(
+        tmp_path / "case",
+        activities=[a, c, f],
+        links=[link("A", "C"), link("C", "F")],
+        completion="2025-01-10",
+        snapshots={"U1": {"data_date": "2025-01-11", "activities": update}},
+    )
     window = only(analyse(load_case(tmp_path / "case")))
     assert (window.completion_start, window.completion_end) == (day("2025-01-10"), day("2025-01-13"))
     assert (window.movement_days, window.movement_work_days) == (3, 1)
@@ -191,9 +221,14 @@ def test_a_weekend_on_another_calendar_goes_to_the_cause(tmp_path):
 def test_a_start_to_start_link_passes_on_the_start(tmp_path):
     a, b, f = task("A", 5), task("B", 3), finish_milestone()
     update = [progressed(a, "2025-01-06", "2025-01-11"), progressed(b, "2025-01-08", None, 1), progressed(f)]
-    write_case(tmp_path / "case", activities=[a, b, f], links=[link("A", "B", "SS", 2), link("B", "F")],
-               schedule=SEVEN_DAY, completion="2025-01-10",
-               snapshots={"U1": {"data_date": "2025-01-12", "activities": update}})
+    write_case(
+        tmp_path / "case",
+        activities=[a, b, f],
+        links=[link("A", "B", "SS", 2), link("B", "F")],
+        schedule=SEVEN_DAY,
+        completion="2025-01-10",
+        snapshots={"U1": {"data_date": "2025-01-12", "activities": update}},
+    )
     window = only(analyse(load_case(tmp_path / "case")))
     assert window.movement_days == 2
     found = charges(window)
@@ -220,16 +255,37 @@ def test_a_real_recovery_is_acceleration(tmp_path):
     a, b, f = task("A", 5), task("B", 5), finish_milestone()
     u1 = [progressed(a, "2025-01-06", "2025-01-12"), progressed(b), progressed(f)]
     u2 = [progressed(a, "2025-01-06", "2025-01-12"), progressed(b, "2025-01-13", None, 2), progressed(f)]
-    write_case(tmp_path / "case", activities=[a, b, f], links=[link("A", "B"), link("B", "F")], schedule=SEVEN_DAY,
-               completion="2025-01-15", commercial={"liquidated_damages_per_day": 100},
-               snapshots={"U1": {"data_date": "2025-01-13", "activities": u1},
-                          "U2": {"data_date": "2025-01-15", "activities": u2}},
-               files={"events.csv": [{"id": "EV1", "title": "Late access", "party": "employer",
-                                      "start": "2025-01-06", "finish": "2025-01-12", "activities": "A",
-                                      "impact": "extend", "days": 2}],
-                      "asbuilt.csv": [{"id": "A", "actual_start": "2025-01-06", "actual_finish": "2025-01-12"},
-                                      {"id": "B", "actual_start": "2025-01-13", "actual_finish": "2025-01-16"},
-                                      {"id": "F", "actual_start": "2025-01-16", "actual_finish": "2025-01-16"}]})
+    write_case(
+        tmp_path / "case",
+        activities=[a, b, f],
+        links=[link("A", "B"), link("B", "F")],
+        schedule=SEVEN_DAY,
+        completion="2025-01-15",
+        commercial={"liquidated_damages_per_day": 100},
+        snapshots={
+            "U1": {"data_date": "2025-01-13", "activities": u1},
+            "U2": {"data_date": "2025-01-15", "activities": u2},
+        },
+        files={
+            "events.csv": [
+                {
+                    "id": "EV1",
+                    "title": "Late access",
+                    "party": "employer",
+                    "start": "2025-01-06",
+                    "finish": "2025-01-12",
+                    "activities": "A",
+                    "impact": "extend",
+                    "days": 2,
+                }
+            ],
+            "asbuilt.csv": [
+                {"id": "A", "actual_start": "2025-01-06", "actual_finish": "2025-01-12"},
+                {"id": "B", "actual_start": "2025-01-13", "actual_finish": "2025-01-16"},
+                {"id": "F", "actual_start": "2025-01-16", "actual_finish": "2025-01-16"},
+            ],
+        },
+    )
     case = load_case(tmp_path / "case")
     result = analyse(case)
     assert [w.movement_days for w in result.windows] == [2, -1, 0]
@@ -239,8 +295,7 @@ def test_a_real_recovery_is_acceleration(tmp_path):
     totals = class_totals(windows_causation(case, result).table)
     assert totals == {"excusable_days": 2, "compensable_days": 2, "culpable_delay_days": 0, "acceleration_days": 1}
     entitlement = assess(case, ["windows"], results={"windows": result}).method("windows")
-    assert (entitlement.eot_days, entitlement.revised_completion, entitlement.ld_days) == (
-        2, day("2025-01-17"), 0)
+    assert (entitlement.eot_days, entitlement.revised_completion, entitlement.ld_days) == (2, day("2025-01-17"), 0)
     assert entitlement.acceleration_days == 1
     assert entitlement.eot_days <= entitlement.overrun_days + entitlement.acceleration_days
 
@@ -258,18 +313,54 @@ def test_a_real_recovery_is_acceleration(tmp_path):
 #   charged to C (EV2, contractor): nothing of A's, nothing proportional.
 def test_a_section_is_traced_to_its_own_milestone(tmp_path):
     a, f, c, m = task("A", 5), finish_milestone(), task("C", 2), finish_milestone("M1")
-    update = [progressed(a, "2025-01-06", None, 1), progressed(f), progressed(c, "2025-01-06", "2025-01-09"),
-              progressed(m, "2025-01-09", "2025-01-09")]
-    events = [{"id": "EV1", "title": "Late access", "party": "employer", "start": "2025-01-06",
-               "finish": "2025-01-11", "activities": "A", "impact": "extend", "days": 1},
-              {"id": "EV2", "title": "Slow gang", "party": "contractor", "start": "2025-01-06",
-               "finish": "2025-01-09", "activities": "C", "impact": "extend", "days": 2}]
-    write_case(tmp_path / "case", activities=[a, f, c, m], links=[link("A", "F"), link("C", "M1")],
-               schedule=SEVEN_DAY, completion="2025-01-10",
-               snapshots={"U1": {"data_date": "2025-01-11", "activities": update}},
-               files={"events.csv": events,
-                      "sections.csv": [{"section": "S1", "name": "Car park", "completion_activity": "M1",
-                                        "contract_completion": "2025-01-07", "liquidated_damages_per_day": 100}]})
+    update = [
+        progressed(a, "2025-01-06", None, 1),
+        progressed(f),
+        progressed(c, "2025-01-06", "2025-01-09"),
+        progressed(m, "2025-01-09", "2025-01-09"),
+    ]
+    events = [
+        {
+            "id": "EV1",
+            "title": "Late access",
+            "party": "employer",
+            "start": "2025-01-06",
+            "finish": "2025-01-11",
+            "activities": "A",
+            "impact": "extend",
+            "days": 1,
+        },
+        {
+            "id": "EV2",
+            "title": "Slow gang",
+            "party": "contractor",
+            "start": "2025-01-06",
+            "finish": "2025-01-09",
+            "activities": "C",
+            "impact": "extend",
+            "days": 2,
+        },
+    ]
+    write_case(
+        tmp_path / "case",
+        activities=[a, f, c, m],
+        links=[link("A", "F"), link("C", "M1")],
+        schedule=SEVEN_DAY,
+        completion="2025-01-10",
+        snapshots={"U1": {"data_date": "2025-01-11", "activities": update}},
+        files={
+            "events.csv": events,
+            "sections.csv": [
+                {
+                    "section": "S1",
+                    "name": "Car park",
+                    "completion_activity": "M1",
+                    "contract_completion": "2025-01-07",
+                    "liquidated_damages_per_day": 100,
+                }
+            ],
+        },
+    )
     case = load_case(tmp_path / "case")
     result = analyse(case)
     whole = only(result)
@@ -281,8 +372,7 @@ def test_a_section_is_traced_to_its_own_milestone(tmp_path):
     table = windows_causation(case, result, section="S1").table
     assert class_totals(table)["culpable_delay_days"] == 2 and class_totals(table)["excusable_days"] == 0
     one = assess(case, ["windows"], results={"windows": result}).method("windows").sections.set_index("section")
-    assert (one.loc["S1", "excusable_days"], one.loc["S1", "ld_days"], one.loc["S1", "ld_exposure"]) == (
-        0, 2, 200.0)
+    assert (one.loc["S1", "excusable_days"], one.loc["S1", "ld_days"], one.loc["S1", "ld_exposure"]) == (0, 2, 200.0)
 
 
 # =======================================================================================
@@ -299,12 +389,21 @@ def test_a_section_is_traced_to_its_own_milestone(tmp_path):
 #   D 3, F 0.  Nothing of A's reached completion; no one is credited a gain.
 def test_float_taken_up_is_not_a_gain(tmp_path):
     a, x, b, d, f = task("A", 2), task("X", 6), task("B", 2), task("D", 2), finish_milestone()
-    update = [progressed(a, "2025-01-06", "2025-01-08"), progressed(x, "2025-01-09", "2025-01-14"),
-              progressed(b, "2025-01-09", "2025-01-11"), progressed(d, "2025-01-12", None, 2), progressed(f)]
-    write_case(tmp_path / "case", activities=[a, x, b, d, f],
-               links=[link("A", "X"), link("X", "F"), link("A", "B"), link("B", "D"), link("D", "F")],
-               schedule=SEVEN_DAY, completion="2025-01-13",
-               snapshots={"U1": {"data_date": "2025-01-15", "activities": update}})
+    update = [
+        progressed(a, "2025-01-06", "2025-01-08"),
+        progressed(x, "2025-01-09", "2025-01-14"),
+        progressed(b, "2025-01-09", "2025-01-11"),
+        progressed(d, "2025-01-12", None, 2),
+        progressed(f),
+    ]
+    write_case(
+        tmp_path / "case",
+        activities=[a, x, b, d, f],
+        links=[link("A", "X"), link("X", "F"), link("A", "B"), link("B", "D"), link("D", "F")],
+        schedule=SEVEN_DAY,
+        completion="2025-01-13",
+        snapshots={"U1": {"data_date": "2025-01-15", "activities": update}},
+    )
     window = only(analyse(load_case(tmp_path / "case")))
     assert window.movement_days == 3
     found = charges(window)
@@ -317,8 +416,10 @@ def test_float_taken_up_is_not_a_gain(tmp_path):
 # 9. The window's JSON has a flag for the counted charges and a sentence
 def test_the_window_in_words(tmp_path):
     window = only(analyse(chain_case(tmp_path / "case", risk="employer")))
-    assert window.sentence == ("Window 1 (Baseline to U1): completion moved 3 days later; A drove it by 3 days "
-                               "(no event; the activity is employer risk).")
+    assert window.sentence == (
+        "Window 1 (Baseline to U1): completion moved 3 days later; A drove it by 3 days "
+        "(no event; the activity is employer risk)."
+    )
     data = window.to_json()
     assert sum(c["days"] for c in data["charged"] if c["counted"]) == data["progress_days"] == 3
     assert data["by_party_days"] == {"employer": 3}

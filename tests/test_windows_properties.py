@@ -34,6 +34,7 @@ from pathlib import Path
 
 import numpy as np
 import pytest
+from casetools import add_milestone_constraints, rename_activities, shift_dates
 from hypothesis import HealthCheck, example, given, settings
 from hypothesis import strategies as st
 
@@ -45,10 +46,8 @@ from delay.errors import ReconciliationError
 from delay.events import completion_activity
 from delay.methods.windows import analyse
 from delay.synth import synthesise
-from casetools import add_milestone_constraints, rename_activities, shift_dates
 
-PROPERTY_SETTINGS = settings(max_examples=6, deadline=None,
-                             suppress_health_check=[HealthCheck.too_slow])
+PROPERTY_SETTINGS = settings(max_examples=6, deadline=None, suppress_health_check=[HealthCheck.too_slow])
 
 
 def synthetic_case(folder: Path, activities: int, updates: int, seed: int):
@@ -56,8 +55,7 @@ def synthetic_case(folder: Path, activities: int, updates: int, seed: int):
 
 
 @PROPERTY_SETTINGS
-@given(activities=st.integers(30, 150), updates=st.integers(2, 5), seed=st.integers(0, 10_000),
-       half_step=st.booleans())
+@given(activities=st.integers(30, 150), updates=st.integers(2, 5), seed=st.integers(0, 10_000), half_step=st.booleans())
 @example(activities=150, updates=5, seed=11, half_step=True)
 @example(activities=30, updates=2, seed=7, half_step=False)
 def test_windows_reconcile_on_synthetic_cases(activities, updates, seed, half_step):
@@ -67,8 +65,10 @@ def test_windows_reconcile_on_synthetic_cases(activities, updates, seed, half_st
         boundaries = list(case.snapshots) + [case.asbuilt_snapshot]
         assert len(result.windows) == len(boundaries) - 1 == updates + 1
         target = completion_activity(case)
-        completions = {s.folder: schedule(case, snapshot=s.folder).activities.set_index("id")
-                       .loc[target, "early_finish"].date() for s in boundaries}
+        completions = {
+            s.folder: schedule(case, snapshot=s.folder).activities.set_index("id").loc[target, "early_finish"].date()
+            for s in boundaries
+        }
         for window in result.windows:
             where = f"window {window.number} ({window.start} to {window.end})"
             assert window.completion_start == completions[window.start], where
@@ -87,8 +87,10 @@ def test_windows_reconcile_on_synthetic_cases(activities, updates, seed, half_st
         assert result.total_movement_days == (last - first).days
         assert sum(w.movement_days for w in result.windows) == result.total_movement_days
         totals = class_totals(windows_causation(case, result).table)
-        assert (totals["excusable_days"] + totals["culpable_delay_days"] - totals["acceleration_days"]
-                == result.total_movement_days)
+        assert (
+            totals["excusable_days"] + totals["culpable_delay_days"] - totals["acceleration_days"]
+            == result.total_movement_days
+        )
 
 
 def _figures(result) -> list:
@@ -96,19 +98,37 @@ def _figures(result) -> list:
     and revision in work days and calendar days, with its party."""
     out = []
     for window in result.windows:
-        out.append((window.number, window.movement_days, window.movement_work_days, window.progress_days,
-                    window.revision_days))
+        out.append(
+            (window.number, window.movement_days, window.movement_work_days, window.progress_days, window.revision_days)
+        )
         charges = window.charges
-        out.append(sorted(zip(charges["activity"], charges["work_days"].astype(int), charges["days"].astype(int),
-                              charges["counted"].astype(bool), charges["party"])))
-        out.append(sorted(zip(window.revisions["kind"], window.revisions["work_days"].astype(int),
-                              window.revisions["days"].astype(int))))
+        out.append(
+            sorted(
+                zip(
+                    charges["activity"],
+                    charges["work_days"].astype(int),
+                    charges["days"].astype(int),
+                    charges["counted"].astype(bool),
+                    charges["party"],
+                )
+            )
+        )
+        out.append(
+            sorted(
+                zip(
+                    window.revisions["kind"],
+                    window.revisions["work_days"].astype(int),
+                    window.revisions["days"].astype(int),
+                )
+            )
+        )
     return out
 
 
 @PROPERTY_SETTINGS
-@given(activities=st.integers(30, 120), updates=st.integers(2, 4), seed=st.integers(0, 10_000),
-       offset=st.integers(-40, 40))
+@given(
+    activities=st.integers(30, 120), updates=st.integers(2, 4), seed=st.integers(0, 10_000), offset=st.integers(-40, 40)
+)
 @example(activities=80, updates=3, seed=5, offset=-20)
 def test_milestone_constraints_change_no_figure(activities, updates, seed, offset):
     # A latest_finish on every finish milestone of every programme (some met, some not,
@@ -116,14 +136,14 @@ def test_milestone_constraints_change_no_figure(activities, updates, seed, offse
     # measured against late dates by logic alone, so no figure may move.
     with tempfile.TemporaryDirectory(prefix="windows-case-") as folder:
         plain = synthetic_case(Path(folder), activities, updates, seed)
-        constrained = load_case(add_milestone_constraints(Path(folder) / "case", Path(folder) / "constrained",
-                                                          offset))
+        constrained = load_case(add_milestone_constraints(Path(folder) / "case", Path(folder) / "constrained", offset))
         assert _figures(analyse(constrained)) == _figures(analyse(plain))
 
 
 @PROPERTY_SETTINGS
-@given(activities=st.integers(30, 100), updates=st.integers(2, 4), seed=st.integers(0, 10_000),
-       weeks=st.integers(-3, 3))
+@given(
+    activities=st.integers(30, 100), updates=st.integers(2, 4), seed=st.integers(0, 10_000), weeks=st.integers(-3, 3)
+)
 def test_a_week_later_or_renamed_changes_no_figure(activities, updates, seed, weeks):
     # Every date of every file shifted by whole weeks (weekdays and holidays kept), and every
     # activity renamed: the same facts, so the same figures (ids mapped back).
@@ -133,8 +153,12 @@ def test_a_week_later_or_renamed_changes_no_figure(activities, updates, seed, we
         renamed = load_case(rename_activities(Path(folder) / "case", Path(folder) / "renamed", "R-"))
         expected = _figures(analyse(plain))
         assert _figures(analyse(shifted)) == expected
-        back = [[(a[2:], *rest) for a, *rest in entry] if isinstance(entry, list) and entry and
-                isinstance(entry[0], tuple) and len(entry[0]) == 5 else entry for entry in _figures(analyse(renamed))]
+        back = [
+            [(a[2:], *rest) for a, *rest in entry]
+            if isinstance(entry, list) and entry and isinstance(entry[0], tuple) and len(entry[0]) == 5
+            else entry
+            for entry in _figures(analyse(renamed))
+        ]
         assert back == expected
 
 

@@ -27,8 +27,16 @@ ROOT = Path(__file__).resolve().parents[1]
 #: The ``--section`` that photographs the window at the top of the page.
 FIRST_PAGE = "first-page"
 CHROMIUM = os.environ.get("CHROMIUM", "/usr/bin/chromium")
-ARGUMENTS = ["--no-sandbox", "--disable-gpu", "--disable-background-networking", "--disable-component-update",
-             "--disable-sync", "--no-first-run", "--use-angle=swiftshader", "--enable-unsafe-swiftshader"]
+ARGUMENTS = [
+    "--no-sandbox",
+    "--disable-gpu",
+    "--disable-background-networking",
+    "--disable-component-update",
+    "--disable-sync",
+    "--no-first-run",
+    "--use-angle=swiftshader",
+    "--enable-unsafe-swiftshader",
+]
 
 
 def take(report: Path, out: Path, *, section: str, week: float, width: int, height: int) -> Path:
@@ -62,24 +70,37 @@ def take(report: Path, out: Path, *, section: str, week: float, width: int, heig
             page = browser.new_page(viewport={"width": width, "height": height}, device_scale_factor=1)
             page.on("console", lambda m: problems.append(m.text) if m.type == "error" else None)
             page.on("pageerror", lambda e: problems.append(f"uncaught: {e}"))
-            page.route("**/*", lambda route: route.continue_() if route.request.url.startswith("file:")
-                       else (problems.append(f"network request: {route.request.url}"), route.abort()))
+            page.route(
+                "**/*",
+                lambda route: (
+                    route.continue_()
+                    if route.request.url.startswith("file:")
+                    else (problems.append(f"network request: {route.request.url}"), route.abort())
+                ),
+            )
             page.goto(report.resolve().as_uri())
             page.wait_for_function("() => document.documentElement.dataset.reportReady === 'true'")
             if page.locator(".element-timeline").count():
                 page.wait_for_selector(".element-timeline[data-ready=true]", timeout=120_000)
                 frames = int(page.eval_on_selector('.element-timeline [data-role="slider"]', "s => +s.max")) + 1
                 frame = max(0, min(frames - 1, round(week * (frames - 1))))
-                page.evaluate("""frame => {
+                page.evaluate(
+                    """frame => {
                     const slider = document.querySelector('.element-timeline [data-role="slider"]');
                     slider.value = String(frame);
                     slider.dispatchEvent(new Event("input", {bubbles: true}));
-                }""", frame)
+                }""",
+                    frame,
+                )
                 # the timeline marks the week and levels it has drawn in data-drawn
-                page.wait_for_function("""f => {
+                page.wait_for_function(
+                    """f => {
                     const root = document.querySelector('.element-timeline');
                     return root.dataset.frame === String(f) && root.dataset.drawn === f + ":" + root.dataset.topLevel;
-                }""", arg=frame, timeout=120_000)
+                }""",
+                    arg=frame,
+                    timeout=120_000,
+                )
                 page.wait_for_timeout(500)  # software WebGL paints on the next animation frames
             out.parent.mkdir(parents=True, exist_ok=True)
             if section == FIRST_PAGE:
@@ -89,8 +110,11 @@ def take(report: Path, out: Path, *, section: str, week: float, width: int, heig
                 box = page.locator(f"#{section}").bounding_box()
                 if box is None:
                     raise SystemExit(f"the report has no section '{section}'")
-                page.screenshot(path=str(out), full_page=True,
-                                clip={"x": 0, "y": box["y"], "width": width, "height": min(box["height"], height)})
+                page.screenshot(
+                    path=str(out),
+                    full_page=True,
+                    clip={"x": 0, "y": box["y"], "width": width, "height": min(box["height"], height)},
+                )
         finally:
             browser.close()
     if problems:
@@ -103,8 +127,11 @@ def main() -> None:
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     parser.add_argument("--report", type=Path, help="a report folder (default: build the demo report)")
     parser.add_argument("--out", type=Path, default=ROOT / "docs" / "report.png")
-    parser.add_argument("--section", default=FIRST_PAGE,
-                        help=f"{FIRST_PAGE} (the window at the top of the page), or a section's id to photograph")
+    parser.add_argument(
+        "--section",
+        default=FIRST_PAGE,
+        help=f"{FIRST_PAGE} (the window at the top of the page), or a section's id to photograph",
+    )
     parser.add_argument("--week", type=float, default=0.6, help="how far through the project, 0 to 1")
     parser.add_argument("--width", type=int, default=1280)
     parser.add_argument("--height", type=int, default=900)
@@ -120,8 +147,14 @@ def main() -> None:
         temporary = Path(tempfile.mkdtemp(prefix="report-screenshot-"))
         report = demo_report(ROOT / "case_demo", temporary / "report", echo=print)
     try:
-        path = take(Path(report) / "report.html", arguments.out, section=arguments.section, week=arguments.week,
-                    width=arguments.width, height=arguments.height)
+        path = take(
+            Path(report) / "report.html",
+            arguments.out,
+            section=arguments.section,
+            week=arguments.week,
+            width=arguments.width,
+            height=arguments.height,
+        )
         print(f"Wrote {path} ({path.stat().st_size:,} bytes)")
     finally:
         if temporary is not None:

@@ -24,6 +24,7 @@ from __future__ import annotations
 
 import argparse
 import csv
+import importlib.util
 import json
 import os
 import sys
@@ -41,23 +42,43 @@ STOREYS = ["B1", "00", "01", "02", "03", "04", "05", "RF"]
 
 # classification of the demo case -> (IFC class, PredefinedType or None)
 IFC_CLASSES = {
-    "SUB-PILE": ("IfcPile", "BORED"), "SUB-CAP": ("IfcFooting", "PILE_CAP"),
-    "SUB-PIT": ("IfcFooting", "PAD_FOOTING"), "SUB-PILED-WALL": ("IfcWall", "NOTDEFINED"),
-    "SUB-WALL": ("IfcWall", "SOLIDWALL"), "SUB-SLAB": ("IfcSlab", "BASESLAB"), "SUB-RAMP": ("IfcRamp", "STRAIGHT_RUN_RAMP"),
-    "FRM-COLUMNS": ("IfcColumn", "COLUMN"), "FRM-CORE": ("IfcWall", "SHEAR"), "FRM-SLAB": ("IfcSlab", "FLOOR"),
-    "FRM-STAIR": ("IfcStair", "STRAIGHT_RUN_STAIR"), "ENV-PANEL": ("IfcPlate", "CURTAIN_PANEL"),
-    "ENV-PARAPET": ("IfcWall", "PARAPET"), "ENV-ROOF": ("IfcCovering", "ROOFING"),
-    "ENV-SHOPFRONT": ("IfcCurtainWall", "NOTDEFINED"), "ENV-WINDOW": ("IfcWindow", "WINDOW"),
-    "EXT-CROSSING": ("IfcCivilElement", None), "EXT-LIGHT": ("IfcLightFixture", "POINTSOURCE"),
-    "EXT-MANHOLE": ("IfcDistributionChamberElement", "MANHOLE"), "EXT-PAVING": ("IfcCivilElement", None),
-    "EXT-PLANTING": ("IfcGeographicElement", "TERRAIN"), "EXT-WALL": ("IfcWall", "NOTDEFINED"),
-    "FIT-BARRIER": ("IfcBuildingElementProxy", "ELEMENT"), "FIT-CEILING": ("IfcCovering", "CEILING"),
-    "FIT-DECK": ("IfcCovering", "FLOORING"), "FIT-DOOR": ("IfcDoor", "DOOR"), "FIT-KITCHEN": ("IfcFurniture", "NOTDEFINED"),
-    "FIT-MARKING": ("IfcCovering", "FLOORING"), "FIT-PARTITION": ("IfcWall", "PARTITIONING"),
-    "LFT-CAR": ("IfcTransportElement", "ELEVATOR"), "SRV-PLANT": ("IfcUnitaryEquipment", "AIRHANDLER"),
-    "SRV-RISER": ("IfcDistributionElement", None), "SRV-SWITCH": ("IfcElectricDistributionBoard", "SWITCHBOARD"),
-    "SRV-ZONE": ("IfcDistributionElement", None), "TMP-CRANE": ("IfcBuildingElementProxy", "ELEMENT"),
-    "TMP-CRANEBASE": ("IfcFooting", "PAD_FOOTING"), "TMP-HOIST": ("IfcBuildingElementProxy", "ELEMENT"),
+    "SUB-PILE": ("IfcPile", "BORED"),
+    "SUB-CAP": ("IfcFooting", "PILE_CAP"),
+    "SUB-PIT": ("IfcFooting", "PAD_FOOTING"),
+    "SUB-PILED-WALL": ("IfcWall", "NOTDEFINED"),
+    "SUB-WALL": ("IfcWall", "SOLIDWALL"),
+    "SUB-SLAB": ("IfcSlab", "BASESLAB"),
+    "SUB-RAMP": ("IfcRamp", "STRAIGHT_RUN_RAMP"),
+    "FRM-COLUMNS": ("IfcColumn", "COLUMN"),
+    "FRM-CORE": ("IfcWall", "SHEAR"),
+    "FRM-SLAB": ("IfcSlab", "FLOOR"),
+    "FRM-STAIR": ("IfcStair", "STRAIGHT_RUN_STAIR"),
+    "ENV-PANEL": ("IfcPlate", "CURTAIN_PANEL"),
+    "ENV-PARAPET": ("IfcWall", "PARAPET"),
+    "ENV-ROOF": ("IfcCovering", "ROOFING"),
+    "ENV-SHOPFRONT": ("IfcCurtainWall", "NOTDEFINED"),
+    "ENV-WINDOW": ("IfcWindow", "WINDOW"),
+    "EXT-CROSSING": ("IfcCivilElement", None),
+    "EXT-LIGHT": ("IfcLightFixture", "POINTSOURCE"),
+    "EXT-MANHOLE": ("IfcDistributionChamberElement", "MANHOLE"),
+    "EXT-PAVING": ("IfcCivilElement", None),
+    "EXT-PLANTING": ("IfcGeographicElement", "TERRAIN"),
+    "EXT-WALL": ("IfcWall", "NOTDEFINED"),
+    "FIT-BARRIER": ("IfcBuildingElementProxy", "ELEMENT"),
+    "FIT-CEILING": ("IfcCovering", "CEILING"),
+    "FIT-DECK": ("IfcCovering", "FLOORING"),
+    "FIT-DOOR": ("IfcDoor", "DOOR"),
+    "FIT-KITCHEN": ("IfcFurniture", "NOTDEFINED"),
+    "FIT-MARKING": ("IfcCovering", "FLOORING"),
+    "FIT-PARTITION": ("IfcWall", "PARTITIONING"),
+    "LFT-CAR": ("IfcTransportElement", "ELEVATOR"),
+    "SRV-PLANT": ("IfcUnitaryEquipment", "AIRHANDLER"),
+    "SRV-RISER": ("IfcDistributionElement", None),
+    "SRV-SWITCH": ("IfcElectricDistributionBoard", "SWITCHBOARD"),
+    "SRV-ZONE": ("IfcDistributionElement", None),
+    "TMP-CRANE": ("IfcBuildingElementProxy", "ELEMENT"),
+    "TMP-CRANEBASE": ("IfcFooting", "PAD_FOOTING"),
+    "TMP-HOIST": ("IfcBuildingElementProxy", "ELEMENT"),
 }
 
 
@@ -93,8 +114,9 @@ def build(elements_csv: Path = ELEMENTS):
     project = api.root.create_entity(model, ifc_class="IfcProject", name="Tessaly Wharf, Brennholm (fictitious)")
     api.unit.assign_unit(model)  # millimetres
     model_context = api.context.add_context(model, context_type="Model")
-    body = api.context.add_context(model, context_type="Model", context_identifier="Body", target_view="MODEL_VIEW",
-                                   parent=model_context)
+    body = api.context.add_context(
+        model, context_type="Model", context_identifier="Body", target_view="MODEL_VIEW", parent=model_context
+    )
     site = api.root.create_entity(model, ifc_class="IfcSite", name="Former harbour yard, Brennholm")
     building = api.root.create_entity(model, ifc_class="IfcBuilding", name="Tessaly Wharf")
     api.aggregate.assign_object(model, relating_object=project, products=[site])
@@ -106,11 +128,15 @@ def build(elements_csv: Path = ELEMENTS):
     def local(location, relative_to=None, turned=False):
         axes = {}
         if turned:  # a quarter turn about z: local x along world y
-            axes = {"Axis": model.create_entity("IfcDirection", [0.0, 0.0, 1.0]),
-                    "RefDirection": model.create_entity("IfcDirection", [0.0, 1.0, 0.0])}
-        return model.create_entity("IfcLocalPlacement", PlacementRelTo=relative_to,
-                                   RelativePlacement=model.create_entity("IfcAxis2Placement3D", Location=point(*location),
-                                                                         **axes))
+            axes = {
+                "Axis": model.create_entity("IfcDirection", [0.0, 0.0, 1.0]),
+                "RefDirection": model.create_entity("IfcDirection", [0.0, 1.0, 0.0]),
+            }
+        return model.create_entity(
+            "IfcLocalPlacement",
+            PlacementRelTo=relative_to,
+            RelativePlacement=model.create_entity("IfcAxis2Placement3D", Location=point(*location), **axes),
+        )
 
     site.ObjectPlacement = local((0, 0, 0))
     building.ObjectPlacement = local((0, 0, 0), site.ObjectPlacement)
@@ -137,8 +163,13 @@ def build(elements_csv: Path = ELEMENTS):
     for row in rows:
         ifc_class, predefined = IFC_CLASSES[row["classification"]]
         attributes = {"PredefinedType": predefined} if predefined else {}
-        element = model.create_entity(ifc_class, GlobalId=ifcopenshell.guid.compress(uuid.uuid5(NAMESPACE, row["id"]).hex),
-                                      Name=row["name"], Tag=row["id"], **attributes)
+        element = model.create_entity(
+            ifc_class,
+            GlobalId=ifcopenshell.guid.compress(uuid.uuid5(NAMESPACE, row["id"]).hex),
+            Name=row["name"],
+            Tag=row["id"],
+            **attributes,
+        )
         level = row["level"]
         spans = level not in storeys
         storey = storeys[level] if not spans else None
@@ -152,15 +183,29 @@ def build(elements_csv: Path = ELEMENTS):
         else:
             placement = local((x, y, z - base), (storey or building).ObjectPlacement)
             size_x, size_y = dx, dy
-        profile = model.create_entity("IfcRectangleProfileDef", ProfileType="AREA", XDim=size_x, YDim=size_y,
-                                      Position=model.create_entity("IfcAxis2Placement2D",
-                                                                   Location=model.create_entity(
-                                                                       "IfcCartesianPoint", [size_x / 2, size_y / 2])))
-        solid = model.create_entity("IfcExtrudedAreaSolid", SweptArea=profile,
-                                    Position=model.create_entity("IfcAxis2Placement3D", Location=point(0, 0, 0)),
-                                    ExtrudedDirection=model.create_entity("IfcDirection", [0.0, 0.0, 1.0]), Depth=dz)
-        shape = model.create_entity("IfcShapeRepresentation", ContextOfItems=body, RepresentationIdentifier="Body",
-                                    RepresentationType="SweptSolid", Items=[solid])
+        profile = model.create_entity(
+            "IfcRectangleProfileDef",
+            ProfileType="AREA",
+            XDim=size_x,
+            YDim=size_y,
+            Position=model.create_entity(
+                "IfcAxis2Placement2D", Location=model.create_entity("IfcCartesianPoint", [size_x / 2, size_y / 2])
+            ),
+        )
+        solid = model.create_entity(
+            "IfcExtrudedAreaSolid",
+            SweptArea=profile,
+            Position=model.create_entity("IfcAxis2Placement3D", Location=point(0, 0, 0)),
+            ExtrudedDirection=model.create_entity("IfcDirection", [0.0, 0.0, 1.0]),
+            Depth=dz,
+        )
+        shape = model.create_entity(
+            "IfcShapeRepresentation",
+            ContextOfItems=body,
+            RepresentationIdentifier="Body",
+            RepresentationType="SweptSolid",
+            Items=[solid],
+        )
         element.ObjectPlacement = placement
         element.Representation = model.create_entity("IfcProductDefinitionShape", Representations=[shape])
         if spans:
@@ -184,8 +229,9 @@ def build(elements_csv: Path = ELEMENTS):
     for name, members in zoned.items():
         api.spatial.reference_structure(model, products=members, relating_structure=zones[name])
     for code, members in classified.items():
-        references[code] = api.classification.add_reference(model, products=members, identification=code, name=code,
-                                                            classification=system)
+        references[code] = api.classification.add_reference(
+            model, products=members, identification=code, name=code, classification=system
+        )
     # GlobalIds of everything else, stable from run to run: class and order of creation.
     counts: dict[str, int] = {}
     for entity in model.by_type("IfcRoot"):
@@ -193,7 +239,8 @@ def build(elements_csv: Path = ELEMENTS):
             continue
         counts[entity.is_a()] = counts.get(entity.is_a(), 0) + 1
         entity.GlobalId = ifcopenshell.guid.compress(
-            uuid.uuid5(NAMESPACE, f"{entity.is_a()}:{counts[entity.is_a()]}").hex)
+            uuid.uuid5(NAMESPACE, f"{entity.is_a()}:{counts[entity.is_a()]}").hex
+        )
     for history in model.by_type("IfcOwnerHistory"):
         history.CreationDate = 1738281600  # 2025-01-31
         history.LastModifiedDate = None
@@ -221,9 +268,7 @@ def main(argv=None) -> int:
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     parser.add_argument("--output", type=Path, default=HERE, help="folder to write into (default: this folder)")
     args = parser.parse_args(argv)
-    try:
-        import ifcopenshell  # noqa: F401
-    except ImportError:
+    if importlib.util.find_spec("ifcopenshell") is None:
         print("install the ifc extra: pip install .[ifc]", file=sys.stderr)
         return 2
     path = write(args.output)

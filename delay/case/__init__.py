@@ -108,8 +108,7 @@ def summarise(case: Case) -> dict[str, Any]:
         "contract_completion": project.contract_completion.isoformat(),
         "snapshots": [_snapshot_summary(s) for s in case.snapshots],
         "asbuilt": case.asbuilt_snapshot is not None,
-        "asbuilt_snapshot": (_snapshot_summary(case.asbuilt_snapshot)
-                             if case.asbuilt_snapshot is not None else None),
+        "asbuilt_snapshot": (_snapshot_summary(case.asbuilt_snapshot) if case.asbuilt_snapshot is not None else None),
         "completion_activity": project.completion_activity,
         "unexplained_risk": case.settings.analysis.unexplained_risk,
         "preferred_method": case.settings.report.preferred_method,

@@ -10,14 +10,14 @@ from __future__ import annotations
 import datetime as dt
 import re
 import warnings
-from typing import Callable, Iterable
+from collections.abc import Callable, Iterable
 
 import numpy as np
 import pandas as pd
 
-from delay.convert import split_id_column
 from delay.case._dialect import ISO_DATE
 from delay.case._problems import Problems, RawTable
+from delay.convert import split_id_column
 from delay.model import COLUMNS, FIRST_DATE, LARGEST_DAYS, LAST_DATE
 
 __all__ = [
@@ -110,9 +110,12 @@ def require_columns(problems: Problems, table: RawTable | None) -> bool:
     missing = [c for c in REQUIRED_COLUMNS[table.name] if c not in table.frame.columns]
     for column in missing:
         problems.add(
-            table.file, f"the required column '{column}' is missing",
+            table.file,
+            f"the required column '{column}' is missing",
             f"add a column '{column}' to the header row (row 1); the file's columns are "
-            + ", ".join(COLUMNS[table.name]), row=1, column=column,
+            + ", ".join(COLUMNS[table.name]),
+            row=1,
+            column=column,
         )
     if missing:
         return False
@@ -129,16 +132,16 @@ def blank(table: RawTable, column: str) -> np.ndarray:
     return empty_cells(table.frame[column])
 
 
-def required_cells(problems: Problems, table: RawTable, column: str, message: Text,
-                   fix: Text) -> np.ndarray:
+def required_cells(problems: Problems, table: RawTable, column: str, message: Text, fix: Text) -> np.ndarray:
     """Flag blank cells of ``column``; returns the mask of blank cells."""
     empty = blank(table, column)
     problems.flag(table, empty, column, message, fix)
     return empty
 
 
-def dates(problems: Problems, table: RawTable, column: str, *, required: Text | None = None,
-          fix_required: Text = "") -> pd.Series:
+def dates(
+    problems: Problems, table: RawTable, column: str, *, required: Text | None = None, fix_required: Text = ""
+) -> pd.Series:
     """``column`` as dates (``NaT`` for blank); text that is not a date is a problem.
 
     ``required``, when given, is the message for a blank cell.
@@ -148,14 +151,22 @@ def dates(problems: Problems, table: RawTable, column: str, *, required: Text | 
     parsed = parse_dates(text, table.date_format)
     example = dt.date(2025, 3, 31).strftime(table.date_format)
     shown = "YYYY-MM-DD" if table.date_format == ISO_DATE else f"{table.date_format} ([input] of case.toml)"
-    problems.flag(table, ~empty & parsed.isna().to_numpy(), column,
-                  "'{value}' is not a date",
-                  f"write the date as {shown}, for example {example}")
+    problems.flag(
+        table,
+        ~empty & parsed.isna().to_numpy(),
+        column,
+        "'{value}' is not a date",
+        f"write the date as {shown}, for example {example}",
+    )
     values = parsed.to_numpy()
     outside = ~np.isnat(values) & ((values < _FIRST) | (values > _LAST))
-    problems.flag(table, outside, column,
-                  f"the date '{{value}}' is outside {FIRST_DATE} to {LAST_DATE}, the dates "
-                  "the toolkit works with", "check the year of the date")
+    problems.flag(
+        table,
+        outside,
+        column,
+        f"the date '{{value}}' is outside {FIRST_DATE} to {LAST_DATE}, the dates the toolkit works with",
+        "check the year of the date",
+    )
     if outside.any():
         parsed = parsed.where(~outside)
     if required is not None:
@@ -169,14 +180,12 @@ def parse_dates(text: pd.Series, date_format: str = ISO_DATE) -> pd.Series:
     and corrections may use it)."""
     empty = empty_cells(text)
     if empty.all():
-        return pd.Series(np.full(len(text), np.datetime64("NaT"), dtype=DATE_DTYPE),
-                         index=text.index, name=text.name)
+        return pd.Series(np.full(len(text), np.datetime64("NaT"), dtype=DATE_DTYPE), index=text.index, name=text.name)
     parsed = pd.to_datetime(text.where(~empty), format=date_format, errors="coerce")
     if date_format != ISO_DATE:
         again = parsed.isna().to_numpy() & ~empty
         if again.any():
-            parsed = parsed.where(~again, pd.to_datetime(text.where(again), format=ISO_DATE,
-                                                         errors="coerce"))
+            parsed = parsed.where(~again, pd.to_datetime(text.where(again), format=ISO_DATE, errors="coerce"))
     return parsed.astype(DATE_DTYPE)
 
 
@@ -204,8 +213,13 @@ def _plain_integers(cells: np.ndarray, empty: np.ndarray) -> np.ndarray | None:
     given = cells[~empty]
     joined = "\n".join(given.tolist())
     signs = joined.translate(_DIGITS_AND_LINES)
-    if (signs.count("-") != len(signs) or joined.count("\n-") + joined.startswith("-") != len(signs)
-            or "-\n" in joined or joined.endswith("-") or _LONG_DIGITS.search(joined)):
+    if (
+        signs.count("-") != len(signs)
+        or joined.count("\n-") + joined.startswith("-") != len(signs)
+        or "-\n" in joined
+        or joined.endswith("-")
+        or _LONG_DIGITS.search(joined)
+    ):
         return None
     with warnings.catch_warnings():
         warnings.simplefilter("error")
@@ -234,9 +248,16 @@ def _numbers(text: pd.Series, decimal: str = ".") -> tuple[np.ndarray, np.ndarra
     return values, empty, not_number
 
 
-def integers(problems: Problems, table: RawTable, column: str, *, unit: str,
-             default: int | None = None, minimum: int | None = None,
-             required: Text | None = None) -> pd.Series:
+def integers(
+    problems: Problems,
+    table: RawTable,
+    column: str,
+    *,
+    unit: str,
+    default: int | None = None,
+    minimum: int | None = None,
+    required: Text | None = None,
+) -> pd.Series:
     """``column`` as ``int64`` whole numbers.
 
     Blank cells take ``default``; when ``default`` is ``None`` a blank is a problem with
@@ -244,35 +265,50 @@ def integers(problems: Problems, table: RawTable, column: str, *, unit: str,
     ``minimum`` is a problem. Bad cells become ``default`` (or 0) in the result.
     """
     values, empty, not_number = _numbers(table.frame[column], table.decimal)
-    problems.flag(table, not_number, column, "'{value}' is not a number",
-                  f"write a whole number of {unit}")
+    problems.flag(table, not_number, column, "'{value}' is not a number", f"write a whole number of {unit}")
     fraction = ~empty & ~not_number & (np.floor(values) != values)
-    problems.flag(table, fraction, column, "'{value}' is not a whole number",
-                  f"give a whole number of {unit}")
+    problems.flag(table, fraction, column, "'{value}' is not a whole number", f"give a whole number of {unit}")
     bad = not_number | fraction
     huge = ~empty & ~bad & (np.abs(np.nan_to_num(values)) > LARGEST_WHOLE_NUMBER)
     signed = minimum is None or minimum < 0
-    problems.flag(table, huge, column, "'{value}' is too large" if not signed
-                  else "'{value}' is out of range",
-                  f"give at most {LARGEST_WHOLE_NUMBER:,} {unit}" if not signed else
-                  f"give from -{LARGEST_WHOLE_NUMBER:,} to {LARGEST_WHOLE_NUMBER:,} {unit}")
+    problems.flag(
+        table,
+        huge,
+        column,
+        "'{value}' is too large" if not signed else "'{value}' is out of range",
+        f"give at most {LARGEST_WHOLE_NUMBER:,} {unit}"
+        if not signed
+        else f"give from -{LARGEST_WHOLE_NUMBER:,} to {LARGEST_WHOLE_NUMBER:,} {unit}",
+    )
     bad |= huge
     if minimum is not None:
         low = ~empty & ~bad & (values < minimum)
-        problems.flag(table, low, column, f"{column} {{value}} is below {minimum}",
-                      f"give {minimum} or more {unit}")
+        problems.flag(table, low, column, f"{column} {{value}} is below {minimum}", f"give {minimum} or more {unit}")
         bad |= low
     if default is None:
-        problems.flag(table, empty, column, required or f"the {column} is missing",
-                      f"give the {column} as a whole number of {unit}")
+        problems.flag(
+            table,
+            empty,
+            column,
+            required or f"the {column} is missing",
+            f"give the {column} as a whole number of {unit}",
+        )
     fill = 0 if default is None else default
     result = np.where(empty | bad, fill, np.nan_to_num(values)).astype(np.int64)
     return pd.Series(result, index=table.frame.index, name=column)
 
 
-def numbers(problems: Problems, table: RawTable, column: str, *, unit: str = "",
-            whole: bool = False, minimum: float | None = None, maximum: float | None = None,
-            required: Text | None = None) -> pd.Series:
+def numbers(
+    problems: Problems,
+    table: RawTable,
+    column: str,
+    *,
+    unit: str = "",
+    whole: bool = False,
+    minimum: float | None = None,
+    maximum: float | None = None,
+    required: Text | None = None,
+) -> pd.Series:
     """``column`` as ``float64`` (``NaN`` for blank).
 
     ``whole`` makes a fraction a problem; ``minimum`` a smaller value, ``maximum`` a
@@ -280,8 +316,11 @@ def numbers(problems: Problems, table: RawTable, column: str, *, unit: str = "",
     """
     values, empty, not_number = _numbers(table.frame[column], table.decimal)
     what = f"a whole number of {unit}" if whole else (f"a number of {unit}" if unit else "a number")
-    mark = (", with a decimal comma and no thousands separator ([input] of case.toml)"
-            if table.decimal == "," and not whole else "")
+    mark = (
+        ", with a decimal comma and no thousands separator ([input] of case.toml)"
+        if table.decimal == "," and not whole
+        else ""
+    )
     problems.flag(table, not_number, column, "'{value}' is not a number", f"write {what}{mark}")
     bad = not_number.copy()
     if whole:
@@ -290,13 +329,11 @@ def numbers(problems: Problems, table: RawTable, column: str, *, unit: str = "",
         bad |= fraction
     if minimum is not None:
         low = ~empty & ~bad & (values < minimum)
-        problems.flag(table, low, column, f"{column} {{value}} is below {minimum:g}",
-                      f"give {minimum:g} or more")
+        problems.flag(table, low, column, f"{column} {{value}} is below {minimum:g}", f"give {minimum:g} or more")
         bad |= low
     if maximum is not None:
         high = ~empty & ~bad & (np.nan_to_num(values) > maximum)
-        problems.flag(table, high, column, "'{value}' is too large",
-                      f"give at most {maximum:,g} {unit}".rstrip())
+        problems.flag(table, high, column, "'{value}' is too large", f"give at most {maximum:,g} {unit}".rstrip())
         bad |= high
     if required is not None:
         problems.flag(table, empty, column, required, f"give {what}")
@@ -304,21 +341,38 @@ def numbers(problems: Problems, table: RawTable, column: str, *, unit: str = "",
     return pd.Series(result, index=table.frame.index, name=column, dtype=np.float64)
 
 
-def choices(problems: Problems, table: RawTable, column: str, allowed: Iterable[str], *,
-            default: str | None = None, upper: bool = False, what: str = "value",
-            required: Text | None = None) -> pd.Series:
+def choices(
+    problems: Problems,
+    table: RawTable,
+    column: str,
+    allowed: Iterable[str],
+    *,
+    default: str | None = None,
+    upper: bool = False,
+    what: str = "value",
+    required: Text | None = None,
+) -> pd.Series:
     """``column`` as one of ``allowed`` (compared without regard to case).
 
     Blank cells take ``default`` (or stay blank, or are a problem when ``required``).
     Values are stored in the case of ``allowed``. See :func:`coded_choices`.
     """
-    return coded_choices(problems, table, column, allowed, default=default, upper=upper, what=what,
-                         required=required)[0]
+    return coded_choices(problems, table, column, allowed, default=default, upper=upper, what=what, required=required)[
+        0
+    ]
 
 
-def coded_choices(problems: Problems, table: RawTable, column: str, allowed: Iterable[str], *,
-                  default: str | None = None, upper: bool = False, what: str = "value",
-                  required: Text | None = None) -> tuple[pd.Series, np.ndarray]:
+def coded_choices(
+    problems: Problems,
+    table: RawTable,
+    column: str,
+    allowed: Iterable[str],
+    *,
+    default: str | None = None,
+    upper: bool = False,
+    what: str = "value",
+    required: Text | None = None,
+) -> tuple[pd.Series, np.ndarray]:
     """:func:`choices`, and each cell's position in ``allowed`` (``-1`` for a blank without
     default or an unknown value), found in the same look-up.
 
@@ -338,8 +392,7 @@ def coded_choices(problems: Problems, table: RawTable, column: str, allowed: Ite
         normal = text.copy()
         normal[other] = changed
     unknown = other & (codes < 0)
-    problems.flag(table, unknown, column, f"'{{value}}' is not a known {what}",
-                  "use one of: " + ", ".join(allowed))
+    problems.flag(table, unknown, column, f"'{{value}}' is not a known {what}", "use one of: " + ", ".join(allowed))
     if required is not None:
         problems.flag(table, empty, column, required, "use one of: " + ", ".join(allowed))
     if default is not None:
@@ -355,9 +408,16 @@ def _combined(table: RawTable, columns: list[str]) -> pd.Series:
     return key
 
 
-def duplicates(problems: Problems, table: RawTable, columns: list[str], column: str,
-               describe: Callable[[int], str], fix: str, skip: np.ndarray | None = None,
-               codes: np.ndarray | None = None) -> None:
+def duplicates(
+    problems: Problems,
+    table: RawTable,
+    columns: list[str],
+    column: str,
+    describe: Callable[[int], str],
+    fix: str,
+    skip: np.ndarray | None = None,
+    codes: np.ndarray | None = None,
+) -> None:
     """Flag every row whose ``columns`` repeat an earlier row's.
 
     ``describe(position)`` names the repeated thing (``"activity id 'A'"``); the message
@@ -395,8 +455,7 @@ def member(values: pd.Series, known) -> np.ndarray:
     return values.isin(known).to_numpy()
 
 
-def references(problems: Problems, table: RawTable, column: str, known, message: Text,
-               fix: Text) -> np.ndarray:
+def references(problems: Problems, table: RawTable, column: str, known, message: Text, fix: Text) -> np.ndarray:
     """Flag non-blank cells of ``column`` not in ``known``; returns the mask of them."""
     text = table.frame[column]
     unknown = ~empty_cells(text) & ~member(text, known)
@@ -404,8 +463,9 @@ def references(problems: Problems, table: RawTable, column: str, known, message:
     return unknown
 
 
-def coded_references(problems: Problems, table: RawTable, column: str, known: pd.Index, message: Text,
-                     fix: Text) -> tuple[np.ndarray, np.ndarray]:
+def coded_references(
+    problems: Problems, table: RawTable, column: str, known: pd.Index, message: Text, fix: Text
+) -> tuple[np.ndarray, np.ndarray]:
     """:func:`references` against an index of unique ``known`` values, and each cell's
     position in it (``-1`` for a blank or unknown cell), found in the same look-up."""
     text = table.frame[column]
@@ -415,8 +475,7 @@ def coded_references(problems: Problems, table: RawTable, column: str, known: pd
     return unknown, codes
 
 
-def id_lists(problems: Problems, table: RawTable, column: str, known, where: str,
-             fix: str) -> None:
+def id_lists(problems: Problems, table: RawTable, column: str, known, where: str, fix: str) -> None:
     """Flag rows of ``column`` (``;``-separated ids) naming an id not in ``known``.
 
     The message reads "'X' is not in {where}" (or "'X', 'Y' are not in {where}").

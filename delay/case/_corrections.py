@@ -44,8 +44,9 @@ def _link_text(frame: pd.DataFrame, position: int) -> str:
     return f"{(kind or 'FS').upper()} {lag or '0'}"
 
 
-def apply_corrections(corrections: RawTable, targets: dict[str, CorrectionTarget],
-                      problems: Problems) -> list[Correction]:
+def apply_corrections(
+    corrections: RawTable, targets: dict[str, CorrectionTarget], problems: Problems
+) -> list[Correction]:
     """Apply every row of ``corrections`` to the tables of ``targets``.
 
     Parameters
@@ -83,19 +84,19 @@ def apply_corrections(corrections: RawTable, targets: dict[str, CorrectionTarget
         target = targets.get(ASBUILT if snapshot.lower() == ASBUILT else snapshot)
         if target is None:
             if snapshot.lower() == ASBUILT:
-                report("there is no asbuilt.csv to correct", "add asbuilt.csv or remove the row",
-                       "snapshot")
+                report("there is no asbuilt.csv to correct", "add asbuilt.csv or remove the row", "snapshot")
             else:
-                report(f"there is no snapshot '{snapshot}'",
-                       f"name a snapshot by its folder or label ({known}), or asbuilt", "snapshot")
+                report(
+                    f"there is no snapshot '{snapshot}'",
+                    f"name a snapshot by its folder or label ({known}), or asbuilt",
+                    "snapshot",
+                )
             continue
         if table_name not in ("activities", "links"):
-            report(f"'{cell['table']}' is not a table that can be corrected",
-                   "write activities or links", "table")
+            report(f"'{cell['table']}' is not a table that can be corrected", "write activities or links", "table")
             continue
         if target.asbuilt and table_name == "links":
-            report("the as-built record has no links", "correct the links of a snapshot instead",
-                   "table")
+            report("the as-built record has no links", "correct the links of a snapshot instead", "table")
             continue
         if not key:
             report("the key is blank", "give the activity id, or PRED>SUCC for a link", "key")
@@ -107,14 +108,19 @@ def apply_corrections(corrections: RawTable, targets: dict[str, CorrectionTarget
 
         if table_name == "activities":
             if column == "id":
-                report("an activity's id cannot be corrected",
-                       "correct the id in the snapshot's own file, or correct other columns",
-                       "column")
+                report(
+                    "an activity's id cannot be corrected",
+                    "correct the id in the snapshot's own file, or correct other columns",
+                    "column",
+                )
                 continue
             allowed = list(COLUMNS[table.name]) + [c for c in table.frame.columns]
             if column not in allowed:
-                report(f"there is no column '{column}' in the activities of {record}",
-                       "use one of: " + ", ".join(dict.fromkeys(allowed)), "column")
+                report(
+                    f"there is no column '{column}' in the activities of {record}",
+                    "use one of: " + ", ".join(dict.fromkeys(allowed)),
+                    "column",
+                )
                 continue
             index = id_positions.get(id(table))
             if index is None:
@@ -125,46 +131,51 @@ def apply_corrections(corrections: RawTable, targets: dict[str, CorrectionTarget
                 id_positions[id(table)] = index
             at = index.get(key)
             if at is None:
-                report(f"there is no activity '{key}' in {record}",
-                       "check the activity id in the key column", "key")
+                report(f"there is no activity '{key}' in {record}", "check the activity id in the key column", "key")
                 continue
             table.ensure_columns([column])
             original = table.frame[column].iat[at]
             table.frame.loc[at, column] = value
             where = table.where(at)
             problems.corrected_cells[(where[0], where[1], column)] = row
-            applied.append(Correction(target.label, "activities", key, column, original, value,
-                                      reason, row))
+            applied.append(Correction(target.label, "activities", key, column, original, value, reason, row))
             continue
 
         # links
         parts = [part.strip() for part in key.split(">")]
         if len(parts) != 2 or not all(parts):
-            report(f"'{key}' is not a link key", "write the link as PRED>SUCC, e.g. A100>A110",
-                   "key")
+            report(f"'{key}' is not a link key", "write the link as PRED>SUCC, e.g. A100>A110", "key")
             continue
         pred, succ = parts
         link_key = f"{pred}>{succ}"
         links = table.frame
-        matches = np.flatnonzero(((links["pred"] == pred) & (links["succ"] == succ)).to_numpy()) \
-            if len(links) else np.zeros(0, dtype=np.int64)
+        matches = (
+            np.flatnonzero(((links["pred"] == pred) & (links["succ"] == succ)).to_numpy())
+            if len(links)
+            else np.zeros(0, dtype=np.int64)
+        )
         action = column.lower()
         if action == "delete":
             if not matches.size:
-                report(f"there is no link {link_key} in {record}",
-                       "check the key (PRED>SUCC) against the snapshot's links", "key")
+                report(
+                    f"there is no link {link_key} in {record}",
+                    "check the key (PRED>SUCC) against the snapshot's links",
+                    "key",
+                )
                 continue
             at = int(matches[0])
             original = _link_text(links, at)
             keep = np.ones(len(links), dtype=bool)
             keep[at] = False
             table.keep(keep)
-            applied.append(Correction(target.label, "links", link_key, "delete", original, "",
-                                      reason, row))
+            applied.append(Correction(target.label, "links", link_key, "delete", original, "", reason, row))
         elif action == "add":
             if matches.size:
-                report(f"the link {link_key} already exists in {record}",
-                       "correct its type or lag instead of adding it", "key")
+                report(
+                    f"the link {link_key} already exists in {record}",
+                    "correct its type or lag instead of adding it",
+                    "key",
+                )
                 continue
             tokens = value.split()
             kind = tokens[0].upper() if tokens else "FS"
@@ -174,8 +185,11 @@ def apply_corrections(corrections: RawTable, targets: dict[str, CorrectionTarget
             except ValueError:
                 lag_ok = False
             if len(tokens) > 2 or kind not in LINK_TYPES or not lag_ok:
-                report(f"'{value}' is not a link type and lag",
-                       "write the type and the lag in work days, e.g. FS 0 or SS -2", "value")
+                report(
+                    f"'{value}' is not a link type and lag",
+                    "write the type and the lag in work days, e.g. FS 0 or SS -2",
+                    "value",
+                )
                 continue
             new_row = {c: "" for c in links.columns}
             new_row.update({"pred": pred, "succ": succ, "type": kind, "lag": lag})
@@ -184,22 +198,25 @@ def apply_corrections(corrections: RawTable, targets: dict[str, CorrectionTarget
             table.rows = np.append(table.rows, next_code)
             table.origins[next_code] = (file, row)
             next_code -= 1
-            applied.append(Correction(target.label, "links", link_key, "add", "",
-                                      f"{kind} {lag}", reason, row))
+            applied.append(Correction(target.label, "links", link_key, "add", "", f"{kind} {lag}", reason, row))
         else:
             if column in ("pred", "succ"):
-                report("a link's activities cannot be corrected",
-                       "delete the link and add the corrected one", "column")
+                report("a link's activities cannot be corrected", "delete the link and add the corrected one", "column")
                 continue
             allowed = list(COLUMNS["links"]) + [c for c in links.columns]
             if column not in allowed:
-                report(f"there is no column '{column}' in the links of {record}",
-                       "use one of: " + ", ".join(dict.fromkeys(allowed + ["delete", "add"])),
-                       "column")
+                report(
+                    f"there is no column '{column}' in the links of {record}",
+                    "use one of: " + ", ".join(dict.fromkeys(allowed + ["delete", "add"])),
+                    "column",
+                )
                 continue
             if not matches.size:
-                report(f"there is no link {link_key} in {record}",
-                       "check the key (PRED>SUCC) against the snapshot's links", "key")
+                report(
+                    f"there is no link {link_key} in {record}",
+                    "check the key (PRED>SUCC) against the snapshot's links",
+                    "key",
+                )
                 continue
             at = int(matches[0])
             table.ensure_columns([column])
@@ -207,6 +224,5 @@ def apply_corrections(corrections: RawTable, targets: dict[str, CorrectionTarget
             table.frame.loc[at, column] = value
             where = table.where(at)
             problems.corrected_cells[(where[0], where[1], column)] = row
-            applied.append(Correction(target.label, "links", link_key, column, original, value,
-                                      reason, row))
+            applied.append(Correction(target.label, "links", link_key, column, original, value, reason, row))
     return applied

@@ -26,8 +26,9 @@ from __future__ import annotations
 import codecs
 import datetime as dt
 import re
+from collections.abc import Callable, Mapping
 from dataclasses import dataclass, field
-from typing import Any, Callable, Mapping
+from typing import Any
 
 from delay.model import COLUMNS, InputSettings
 
@@ -52,8 +53,11 @@ ENCODINGS = ("utf-8", "cp1252", "utf-16", "utf-16-le", "utf-16-be")
 ISO_DATE = "%Y-%m-%d"
 #: The directives a date format may use: day, month (number or name), four-digit year.
 _DATE_DIRECTIVES = set("dmbBY%")
-_BOMS = ((codecs.BOM_UTF8, "utf-8-sig", "utf-8"), (codecs.BOM_UTF16_LE, "utf-16", "utf-16-le"),
-         (codecs.BOM_UTF16_BE, "utf-16", "utf-16-be"))
+_BOMS = (
+    (codecs.BOM_UTF8, "utf-8-sig", "utf-8"),
+    (codecs.BOM_UTF16_LE, "utf-16", "utf-16-le"),
+    (codecs.BOM_UTF16_BE, "utf-16", "utf-16-be"),
+)
 #: Extra columns a workbook's sheets hold beside a table's own.
 _SHEET_COLUMNS = {"activities": ("snapshot",), "links": ("snapshot",)}
 
@@ -79,10 +83,16 @@ class Dialect:
 
     def as_dict(self) -> dict[str, Any]:
         """The dialect as a dictionary ready for ``json.dumps``."""
-        return {"file": self.file, "delimiter": self.delimiter,
-                "delimiter_source": self.delimiter_source, "encoding": self.encoding,
-                "encoding_source": self.encoding_source, "date_format": self.date_format,
-                "decimal": self.decimal, "renamed": dict(self.renamed)}
+        return {
+            "file": self.file,
+            "delimiter": self.delimiter,
+            "delimiter_source": self.delimiter_source,
+            "encoding": self.encoding,
+            "encoding_source": self.encoding_source,
+            "date_format": self.date_format,
+            "decimal": self.decimal,
+            "renamed": dict(self.renamed),
+        }
 
 
 class DecodeProblem(ValueError):
@@ -118,36 +128,46 @@ def _parse_columns(given: Any, report: Report) -> dict[str, dict[str, str]]:
     """``[input.columns]``: per table, the file's header (matched by :func:`header_key`)
     to the case format's column."""
     if not isinstance(given, dict):
-        report("input.columns", "input.columns must be a section of tables",
-               'write [input.columns.activities] and below it "Your header" = "id"')
+        report(
+            "input.columns",
+            "input.columns must be a section of tables",
+            'write [input.columns.activities] and below it "Your header" = "id"',
+        )
         return {}
     mapping: dict[str, dict[str, str]] = {}
     for table, headers in given.items():
         key = f"input.columns.{table}"
         if table not in COLUMNS:
-            report(key, f"'{table}' is not a table of the case",
-                   "use one of: " + ", ".join(COLUMNS))
+            report(key, f"'{table}' is not a table of the case", "use one of: " + ", ".join(COLUMNS))
             continue
         if not isinstance(headers, dict):
-            report(key, f"{key} must be a section of headers",
-                   f'write [{key}] and below it "Your header" = "{COLUMNS[table][0]}"')
+            report(
+                key,
+                f"{key} must be a section of headers",
+                f'write [{key}] and below it "Your header" = "{COLUMNS[table][0]}"',
+            )
             continue
         known = COLUMNS[table] + _SHEET_COLUMNS.get(table, ())
         ours: dict[str, str] = {}
         for header, column in headers.items():
             where = f"{key}.{header}"
             if not isinstance(column, str) or column.strip() not in known:
-                report(where, f"{column!r} is not a column of {table}",
-                       "map the header to one of: " + ", ".join(known))
+                report(where, f"{column!r} is not a column of {table}", "map the header to one of: " + ", ".join(known))
                 continue
             column = column.strip()
             if header_key(header) in ours:
-                report(where, f"the header '{header}' is mapped twice (ignoring case and spaces)",
-                       "keep one mapping for each header")
+                report(
+                    where,
+                    f"the header '{header}' is mapped twice (ignoring case and spaces)",
+                    "keep one mapping for each header",
+                )
                 continue
             if column in ours.values():
-                report(where, f"two headers are mapped to the column '{column}'",
-                       "map one header of the file to each column")
+                report(
+                    where,
+                    f"two headers are mapped to the column '{column}'",
+                    "map one header of the file to each column",
+                )
                 continue
             ours[header_key(header)] = column
         mapping[table] = ours
@@ -173,30 +193,42 @@ def parse_input(given: Any, report: Report) -> InputSettings:
     if given is None:
         return InputSettings()
     if not isinstance(given, dict):
-        report("input", "'input' must be a section of settings",
-               "write [input] on a line of its own and its settings below it")
+        report(
+            "input",
+            "'input' must be a section of settings",
+            "write [input] on a line of its own and its settings below it",
+        )
         return InputSettings()
     values: dict[str, Any] = {}
     for name, value in given.items():
         key = f"input.{name}"
         if name == "delimiter":
             if value not in DELIMITERS:
-                report(key, f"the delimiter {value!r} is not one the toolkit reads",
-                       'write delimiter = ";" (or ",", "\\t", "|"), or leave it out to detect it')
+                report(
+                    key,
+                    f"the delimiter {value!r} is not one the toolkit reads",
+                    'write delimiter = ";" (or ",", "\\t", "|"), or leave it out to detect it',
+                )
             else:
                 values[name] = DELIMITERS[value]
         elif name == "encoding":
             codec = _codec(value)
             if codec is None:
-                report(key, f"the encoding {value!r} is not one the toolkit reads",
-                       "write one of: " + ", ".join(f'"{e}"' for e in ENCODINGS))
+                report(
+                    key,
+                    f"the encoding {value!r} is not one the toolkit reads",
+                    "write one of: " + ", ".join(f'"{e}"' for e in ENCODINGS),
+                )
             else:
                 values[name] = codec
         elif name == "date_format":
             why = _valid_date_format(value) if isinstance(value, str) else "must be text"
             if why:
-                report(key, f"the date format {value!r} {why}",
-                       'write it as date_format = "%d/%m/%Y" (or "%d.%m.%Y", "%Y-%m-%d")')
+                report(
+                    key,
+                    f"the date format {value!r} {why}",
+                    'write it as date_format = "%d/%m/%Y" (or "%d.%m.%Y", "%Y-%m-%d")',
+                )
             else:
                 values[name] = value
         elif name == "decimal":
@@ -207,8 +239,11 @@ def parse_input(given: Any, report: Report) -> InputSettings:
         elif name == "columns":
             values[name] = _parse_columns(value, report)
         else:
-            report(key, f"'{name}' is not a setting of [input]",
-                   "use delimiter, encoding, date_format, decimal or [input.columns.TABLE]")
+            report(
+                key,
+                f"'{name}' is not a setting of [input]",
+                "use delimiter, encoding, date_format, decimal or [input.columns.TABLE]",
+            )
     return InputSettings(**values)
 
 
@@ -234,7 +269,7 @@ def decode(data: bytes, declared: str | None) -> tuple[str, str, str]:
     DecodeProblem
         When the bytes are not text in that encoding; its message says where.
     """
-    for mark, codec, name in _BOMS:
+    for mark, _codec, name in _BOMS:
         if data.startswith(mark):
             encoding, source = name, "detected"
             break
@@ -244,8 +279,7 @@ def decode(data: bytes, declared: str | None) -> tuple[str, str, str]:
     try:
         text = data.decode(codec)
     except UnicodeDecodeError as error:
-        raise DecodeProblem(f"the file is not {encoding} text (byte {error.start + 1:,} "
-                            f"cannot be read)") from None
+        raise DecodeProblem(f"the file is not {encoding} text (byte {error.start + 1:,} cannot be read)") from None
     if text.startswith("\ufeff"):
         text = text[1:]
     return text, encoding, source

@@ -50,7 +50,7 @@ _OPEN = np.zeros(256, dtype=np.int64)
 _OPEN[[ord("["), ord("{")]] = 1
 _OPEN[[ord("]"), ord("}")]] = -1
 _DIGIT = np.zeros(256, dtype=bool)
-_DIGIT[ord("0"):ord("9") + 1] = True
+_DIGIT[ord("0") : ord("9") + 1] = True
 
 
 def toml_depth(text: str) -> int:
@@ -109,15 +109,19 @@ def check_toml(data: bytes, file: str, problems: Problems) -> bool:
         ``False`` when the file is too large or nests too deeply (one problem recorded).
     """
     if len(data) > LARGEST_TOML:
-        problems.add(file, f"the file is {len(data):,} bytes, more than the {LARGEST_TOML:,} "
-                           "bytes (1 MiB) a settings file may hold",
-                     "keep only the settings of the case format in it")
+        problems.add(
+            file,
+            f"the file is {len(data):,} bytes, more than the {LARGEST_TOML:,} bytes (1 MiB) a settings file may hold",
+            "keep only the settings of the case format in it",
+        )
         return False
     depth = toml_depth(data.decode("utf-8", "replace"))
     if depth > DEEPEST_TOML:
-        problems.add(file, f"the settings nest {depth:,} levels deep, more than the "
-                           f"{DEEPEST_TOML} levels a settings file may use",
-                     "write each setting as key = value under its [section]")
+        problems.add(
+            file,
+            f"the settings nest {depth:,} levels deep, more than the {DEEPEST_TOML} levels a settings file may use",
+            "write each setting as key = value under its [section]",
+        )
         return False
     return True
 
@@ -167,22 +171,33 @@ def check_workbook(path: Path, name: str, problems: Problems) -> bool:
         with zipfile.ZipFile(path) as archive:
             entries = archive.infolist()
             if len(entries) > LARGEST_ENTRIES:
-                problems.add(name, f"the workbook holds {len(entries):,} parts, more than "
-                                   f"the {LARGEST_ENTRIES:,} a case workbook may hold", fix)
+                problems.add(
+                    name,
+                    f"the workbook holds {len(entries):,} parts, more than "
+                    f"the {LARGEST_ENTRIES:,} a case workbook may hold",
+                    fix,
+                )
                 return False
             unpacked = sum(entry.file_size for entry in entries)
             if unpacked > LARGEST_WORKBOOK:
-                problems.add(name, f"the workbook unpacks to {unpacked:,} bytes, more than "
-                                   f"the {LARGEST_WORKBOOK:,} bytes (512 MiB) a case workbook "
-                                   "may hold", fix)
+                problems.add(
+                    name,
+                    f"the workbook unpacks to {unpacked:,} bytes, more than "
+                    f"the {LARGEST_WORKBOOK:,} bytes (512 MiB) a case workbook "
+                    "may hold",
+                    fix,
+                )
                 return False
             for entry in entries:
                 if _SHEET.match(entry.filename):
                     rows = _sheet_rows(archive, entry)
                     if rows > LARGEST_SHEET_ROWS:
-                        problems.add(name, f"a sheet ({entry.filename}) has {rows:,} rows, more "
-                                           f"than the {LARGEST_SHEET_ROWS:,} a sheet may hold",
-                                     fix)
+                        problems.add(
+                            name,
+                            f"a sheet ({entry.filename}) has {rows:,} rows, more "
+                            f"than the {LARGEST_SHEET_ROWS:,} a sheet may hold",
+                            fix,
+                        )
                         return False
     except Exception:  # a damaged archive raises many kinds (zip, zlib, EOF, OS errors)
         return True  # openpyxl's own message then names the fault

@@ -8,9 +8,9 @@ already known to be bad are turned into :class:`~delay.errors.Problem` records, 
 from __future__ import annotations
 
 from collections import Counter
+from collections.abc import Callable
 from dataclasses import dataclass, field
 from pathlib import Path
-from typing import Callable
 
 import numpy as np
 import pandas as pd
@@ -56,8 +56,7 @@ class RawTable:
         """Add each missing column of ``columns`` as a blank column."""
         for column in columns:
             if column not in self.frame.columns:
-                self.frame[column] = pd.Series([""] * len(self.frame), dtype="str",
-                                               index=self.frame.index)
+                self.frame[column] = pd.Series([""] * len(self.frame), dtype="str", index=self.frame.index)
 
     def keep(self, mask: np.ndarray) -> None:
         """Keep only the rows where ``mask`` is true."""
@@ -86,8 +85,7 @@ class Problems:
             return sum(self._found.values())
         return self._found[file]
 
-    def add(self, file: str, message: str, fix: str = "", row: int | None = None,
-            column: str | None = None) -> None:
+    def add(self, file: str, message: str, fix: str = "", row: int | None = None, column: str | None = None) -> None:
         """Record one problem."""
         self._found[file] += 1
         if self._found[file] > MAX_PROBLEMS_PER_FILE:
@@ -106,8 +104,7 @@ class Problems:
         """Count ``count`` further problems of ``file`` that will not be listed."""
         self._found[file] += count
 
-    def flag(self, table: RawTable, mask, column: str | None, message: Message,
-             fix: Message = "") -> int:
+    def flag(self, table: RawTable, mask, column: str | None, message: Message, fix: Message = "") -> int:
         """Record a problem for every row of ``table`` where ``mask`` is true.
 
         ``message`` and ``fix`` are text, in which ``{value}`` stands for the row's cell in
@@ -150,10 +147,12 @@ class Problems:
             if found > MAX_PROBLEMS_PER_FILE:
                 shown = MAX_PROBLEMS_PER_FILE - 1
                 problems = problems[:shown]
-                problems.append(Problem(
-                    file=file,
-                    message=f"{found - shown} more problems in this file are not listed",
-                    fix="fix the problems listed above and check the case again",
-                ))
+                problems.append(
+                    Problem(
+                        file=file,
+                        message=f"{found - shown} more problems in this file are not listed",
+                        fix="fix the problems listed above and check the case again",
+                    )
+                )
             listed.extend(problems)
         raise CaseError(listed)

@@ -11,10 +11,10 @@ from typing import Any
 from delay.case._problems import Problems
 from delay.case._source import SettingsSource
 from delay.model import (
-    AnalysisSettings,
-    CaseSettings,
     FIRST_DATE,
     LAST_DATE,
+    AnalysisSettings,
+    CaseSettings,
     CommercialSettings,
     InputSettings,
     ProjectSettings,
@@ -108,7 +108,7 @@ def _convert(cls: type, name: str, value: Any) -> tuple[Any, str | None]:
         return None, "must be text in double quotes"
     value = value.strip() if name == "completion_activity" else value
     if name == "currency" and not re.fullmatch(r"[A-Z]{3}", value):
-        return None, "must be a three-letter ISO 4217 currency code such as \"EUR\""
+        return None, 'must be a three-letter ISO 4217 currency code such as "EUR"'
     return value, None
 
 
@@ -124,8 +124,9 @@ def _example(cls: type, name: str) -> str:
     }.get(hint, f'{name} = "..."')
 
 
-def parse_settings(source: SettingsSource, problems: Problems,
-                   input_settings: InputSettings | None = None) -> CaseSettings | None:
+def parse_settings(
+    source: SettingsSource, problems: Problems, input_settings: InputSettings | None = None
+) -> CaseSettings | None:
     """Build :class:`CaseSettings` from the settings as read, recording every problem.
 
     Parameters
@@ -157,15 +158,17 @@ def parse_settings(source: SettingsSource, problems: Problems,
         if section not in SETTINGS_SECTIONS:
             extra[section] = value
         elif not isinstance(value, dict):
-            report(section, f"'{section}' must be a section of settings",
-                   f"write [{section}] on a line of its own and its settings below it")
+            report(
+                section,
+                f"'{section}' must be a section of settings",
+                f"write [{section}] on a line of its own and its settings below it",
+            )
     for section, cls in SETTINGS_SECTIONS.items():
         given = source.values.get(section, {})
         if not isinstance(given, dict):
             continue
         names = [f.name for f in dataclasses.fields(cls)]
-        defaults = {f.name for f in dataclasses.fields(cls)
-                    if f.default is not dataclasses.MISSING}
+        defaults = {f.name for f in dataclasses.fields(cls) if f.default is not dataclasses.MISSING}
         unknown = {k: v for k, v in given.items() if k not in names}
         if unknown:
             extra.setdefault(section, {}).update(unknown)
@@ -175,14 +178,12 @@ def parse_settings(source: SettingsSource, problems: Problems,
             key = f"{section}.{name}"
             if name not in given:
                 if name not in defaults:
-                    report(key, f"the setting {key} is missing",
-                           f"add it under [{section}]: {_example(cls, name)}")
+                    report(key, f"the setting {key} is missing", f"add it under [{section}]: {_example(cls, name)}")
                     section_ok = False
                 continue
             value, error = _convert(cls, name, given[name])
             if error:
-                report(key, f"{key} {error} (found {given[name]!r})",
-                       f"write it as {_example(cls, name)}")
+                report(key, f"{key} {error} (found {given[name]!r})", f"write it as {_example(cls, name)}")
                 section_ok = False
             else:
                 arguments[name] = value
@@ -190,9 +191,11 @@ def parse_settings(source: SettingsSource, problems: Problems,
             built[section] = cls(**arguments)
     project = built.get("project")
     if project is not None and project.contract_completion < project.contract_start:
-        report("project.contract_completion",
-               "the contract completion date is before the contract start date",
-               "check both dates in [project]")
+        report(
+            "project.contract_completion",
+            "the contract completion date is before the contract start date",
+            "check both dates in [project]",
+        )
     if problems.count(file) > found_before or project is None:
         return None
     return CaseSettings(

@@ -13,9 +13,10 @@ import io
 import re
 import tomllib
 import warnings
+from collections.abc import Callable
 from dataclasses import dataclass, field
 from pathlib import Path
-from typing import Any, Callable
+from typing import Any
 
 import numpy as np
 import pandas as pd
@@ -142,9 +143,17 @@ def _needs_strip(data: bytes, delimiter: str = ",") -> bool:
     return bool(edges[octets[spaces - 1]].any() or edges[octets[spaces + 1]].any())
 
 
-def _make_table(name: str, file: str, header: list[str], body: pd.DataFrame, rows: np.ndarray,
-                problems: Problems, path: Path | None = None, strip: bool = True,
-                settings: InputSettings | None = None) -> tuple[RawTable | None, dict[str, str]]:
+def _make_table(
+    name: str,
+    file: str,
+    header: list[str],
+    body: pd.DataFrame,
+    rows: np.ndarray,
+    problems: Problems,
+    path: Path | None = None,
+    strip: bool = True,
+    settings: InputSettings | None = None,
+) -> tuple[RawTable | None, dict[str, str]]:
     """Name the columns of ``body`` from ``header``, strip cells and drop blank rows.
 
     Headers are matched ignoring case and surrounding spaces, through ``[input.columns]``
@@ -165,17 +174,22 @@ def _make_table(name: str, file: str, header: list[str], body: pd.DataFrame, row
         body[number] = column
         if not column_name:
             if len(body) and (column != "").any():
-                problems.add(file, f"column {number + 1} has values but no name in the header row",
-                             "give the column a name in row 1, or delete it", row=1)
+                problems.add(
+                    file,
+                    f"column {number + 1} has values but no name in the header row",
+                    "give the column a name in row 1, or delete it",
+                    row=1,
+                )
                 usable = False
             continue
         if column_name in seen:
             first, this = seen[column_name], given[number]
-            message = (f"the column '{column_name}' appears twice in the header row"
-                       if first == this == column_name else
-                       f"the columns '{first}' and '{this}' are both read as '{column_name}'")
-            problems.add(file, message, "keep one column of that name", row=1,
-                         column=column_name)
+            message = (
+                f"the column '{column_name}' appears twice in the header row"
+                if first == this == column_name
+                else f"the columns '{first}' and '{this}' are both read as '{column_name}'"
+            )
+            problems.add(file, message, "keep one column of that name", row=1, column=column_name)
             usable = False
             continue
         seen[column_name] = given[number]
@@ -194,22 +208,32 @@ def _make_table(name: str, file: str, header: list[str], body: pd.DataFrame, row
         frame = frame.iloc[0:0]
         rows = rows[:0]
     frame = frame.reset_index(drop=True)
-    return RawTable(name=name, file=file, frame=frame, rows=np.asarray(rows, dtype=np.int64),
-                    path=path, date_format=settings.date_format,
-                    decimal=settings.decimal), renamed
+    return RawTable(
+        name=name,
+        file=file,
+        frame=frame,
+        rows=np.asarray(rows, dtype=np.int64),
+        path=path,
+        date_format=settings.date_format,
+        decimal=settings.decimal,
+    ), renamed
 
 
 _DELIMITER_NAMES = {",": "comma", ";": "semicolon", "\t": "tab", "|": "vertical bar"}
 
 
 def _encoding_name(encoding: str) -> str:
-    return encoding.upper().replace("-LE", " LE").replace("-BE", " BE") \
-        if encoding.startswith("utf") else encoding
+    return encoding.upper().replace("-LE", " LE").replace("-BE", " BE") if encoding.startswith("utf") else encoding
 
 
-def read_csv_table(path: Path, name: str, file: str, problems: Problems,
-                   settings: InputSettings | None = None,
-                   dialects: list[Dialect] | None = None) -> RawTable | None:
+def read_csv_table(
+    path: Path,
+    name: str,
+    file: str,
+    problems: Problems,
+    settings: InputSettings | None = None,
+    dialects: list[Dialect] | None = None,
+) -> RawTable | None:
     """Read one CSV file of the case into a :class:`RawTable` of strings.
 
     The file is read in the dialect of ``settings`` (``[input]`` of case.toml: encoding,
@@ -221,51 +245,74 @@ def read_csv_table(path: Path, name: str, file: str, problems: Problems,
     try:
         data = path.read_bytes()
     except OSError as error:
-        problems.add(file, f"the file cannot be read ({error.strerror or error})",
-                     "check that the file exists and may be read")
+        problems.add(
+            file, f"the file cannot be read ({error.strerror or error})", "check that the file exists and may be read"
+        )
         return None
     try:
         text, encoding, encoding_source = decode(data, settings.encoding)
     except DecodeProblem as error:
-        problems.add(file, str(error).replace(f"not {settings.encoding or 'utf-8'}",
-                                              f"not {_encoding_name(settings.encoding or 'utf-8')}"),
-                     "save it as CSV in UTF-8 encoding, or name its encoding in [input] of "
-                     'case.toml (e.g. encoding = "cp1252")')
+        problems.add(
+            file,
+            str(error).replace(
+                f"not {settings.encoding or 'utf-8'}", f"not {_encoding_name(settings.encoding or 'utf-8')}"
+            ),
+            'save it as CSV in UTF-8 encoding, or name its encoding in [input] of case.toml (e.g. encoding = "cp1252")',
+        )
         return None
     line_end = text.find("\n")
-    delimiter = settings.delimiter or detect_delimiter(text[:line_end if line_end >= 0 else None])
+    delimiter = settings.delimiter or detect_delimiter(text[: line_end if line_end >= 0 else None])
     separator = _DELIMITER_NAMES[delimiter]
     try:
         cells = pd.read_csv(
-            io.StringIO(text), sep=delimiter, header=None, dtype=str, na_filter=False,
-            skip_blank_lines=False, index_col=False, quotechar='"',
+            io.StringIO(text),
+            sep=delimiter,
+            header=None,
+            dtype=str,
+            na_filter=False,
+            skip_blank_lines=False,
+            index_col=False,
+            quotechar='"',
         )
     except pd.errors.EmptyDataError:
-        problems.add(file, "the file is empty",
-                     "give at least the header row: " + ",".join(COLUMNS[name]), row=1)
+        problems.add(file, "the file is empty", "give at least the header row: " + ",".join(COLUMNS[name]), row=1)
         return None
     except pd.errors.ParserError as error:
         found = re.search(r"line (\d+), saw (\d+)", str(error))
         if found:
-            problems.add(file, f"this row has {found.group(2)} cells, more than the header row",
-                         f"remove the extra cells or quote a value that contains a {separator}",
-                         row=int(found.group(1)))
+            problems.add(
+                file,
+                f"this row has {found.group(2)} cells, more than the header row",
+                f"remove the extra cells or quote a value that contains a {separator}",
+                row=int(found.group(1)),
+            )
         else:
-            problems.add(file, f"the file cannot be read as CSV ({error})",
-                         f"check the quoting of values that contain a {separator} or a line break")
+            problems.add(
+                file,
+                f"the file cannot be read as CSV ({error})",
+                f"check the quoting of values that contain a {separator} or a line break",
+            )
         return None
     header = cells.iloc[0].tolist() if len(cells) else []
     body = cells.iloc[1:]
     rows = np.arange(2, len(cells) + 1, dtype=np.int64)
     raw = data if encoding == "utf-8" else text.encode("utf-8")
-    table, renamed = _make_table(name, file, header, body, rows, problems, path,
-                                 strip=_needs_strip(raw, delimiter), settings=settings)
+    table, renamed = _make_table(
+        name, file, header, body, rows, problems, path, strip=_needs_strip(raw, delimiter), settings=settings
+    )
     if dialects is not None:
-        dialects.append(Dialect(
-            file=file, delimiter=delimiter,
-            delimiter_source="declared" if settings.delimiter else "detected",
-            encoding=_encoding_name(encoding), encoding_source=encoding_source,
-            date_format=settings.date_format, decimal=settings.decimal, renamed=renamed))
+        dialects.append(
+            Dialect(
+                file=file,
+                delimiter=delimiter,
+                delimiter_source="declared" if settings.delimiter else "detected",
+                encoding=_encoding_name(encoding),
+                encoding_source=encoding_source,
+                date_format=settings.date_format,
+                decimal=settings.decimal,
+                renamed=renamed,
+            )
+        )
     return table
 
 
@@ -308,16 +355,21 @@ def _read_toml(path: Path, file: str, problems: Problems) -> dict[str, Any] | No
         text = data.decode("utf-8")
         return tomllib.loads(text[1:] if text.startswith("\ufeff") else text)
     except tomllib.TOMLDecodeError as error:
-        problems.add(file, f"the file is not valid TOML: {error}",
-                     "write each setting as key = value; put text in double quotes, dates as YYYY-MM-DD")
+        problems.add(
+            file,
+            f"the file is not valid TOML: {error}",
+            "write each setting as key = value; put text in double quotes, dates as YYYY-MM-DD",
+        )
     except UnicodeDecodeError:
         problems.add(file, "the file is not UTF-8 text", "save it in UTF-8 encoding")
     except RecursionError:  # beyond what toml_depth foresaw: still one line
-        problems.add(file, "the settings nest too deeply to be read",
-                     "write each setting as key = value under its [section]")
+        problems.add(
+            file, "the settings nest too deeply to be read", "write each setting as key = value under its [section]"
+        )
     except OSError as error:
-        problems.add(file, f"the file cannot be read ({error.strerror or error})",
-                     "check that the file exists and may be read")
+        problems.add(
+            file, f"the file cannot be read ({error.strerror or error})", "check that the file exists and may be read"
+        )
     return None
 
 
@@ -327,8 +379,11 @@ def _read_folder(root: Path, problems: Problems) -> CaseSource:
     def required_file(relative: str) -> Path | None:
         path = root / relative
         if not path.is_file():
-            problems.add(relative, f"the required file {relative} is missing",
-                         f"create {relative} (see the case-format description; `delay new` writes a skeleton)")
+            problems.add(
+                relative,
+                f"the required file {relative} is missing",
+                f"create {relative} (see the case-format description; `delay new` writes a skeleton)",
+            )
             return None
         source.input_files.append(path)
         return path
@@ -348,8 +403,11 @@ def _read_folder(root: Path, problems: Problems) -> CaseSource:
 
     snapshots_dir = root / "snapshots"
     if not snapshots_dir.is_dir():
-        problems.add("snapshots", "the folder snapshots/ is missing",
-                     "create snapshots/baseline/ with snapshot.toml, activities.csv and links.csv")
+        problems.add(
+            "snapshots",
+            "the folder snapshots/ is missing",
+            "create snapshots/baseline/ with snapshot.toml, activities.csv and links.csv",
+        )
         source.snapshots_found = False
     else:
         folders = sorted(p for p in snapshots_dir.iterdir() if p.is_dir() and not p.name.startswith("."))
@@ -358,8 +416,7 @@ def _read_folder(root: Path, problems: Problems) -> CaseSource:
             meta_file = f"{base}/snapshot.toml"
             path = required_file(meta_file)
             facts = _read_toml(path, meta_file, problems) if path is not None else None
-            snap = SnapshotSource(folder=folder.name, facts=facts, file=meta_file,
-                                  locate=_toml_locator(meta_file))
+            snap = SnapshotSource(folder=folder.name, facts=facts, file=meta_file, locate=_toml_locator(meta_file))
             for name in ("activities", "links"):
                 relative = f"{base}/{name}.csv"
                 path = required_file(relative)
@@ -390,8 +447,7 @@ def _input_settings(settings: SettingsSource, problems: Problems) -> InputSettin
 
 def _empty_table(name: str, file: str) -> RawTable:
     frame = pd.DataFrame(columns=list(COLUMNS[name]), dtype="str")  # one block: a third of the cost
-    return RawTable(name=name, file=file, frame=frame, rows=np.zeros(0, dtype=np.int64),
-                    present=False)
+    return RawTable(name=name, file=file, frame=frame, rows=np.zeros(0, dtype=np.int64), present=False)
 
 
 # --------------------------------------------------------------------------- workbook form
@@ -411,33 +467,48 @@ def _sheet_cells(sheet) -> tuple[list[str], list[list[Any]], list[int]]:
         body.append(list(values))
         rows.append(number)
     # Trailing header cells without a name and without values are not columns.
-    while header and not header[-1].strip() and all(
-        len(r) < len(header) or r[len(header) - 1] is None for r in body
-    ):
+    while header and not header[-1].strip() and all(len(r) < len(header) or r[len(header) - 1] is None for r in body):
         header.pop()
     return header, body, rows
 
 
-def _sheet_table(workbook, name: str, label: str, problems: Problems,
-                 source: CaseSource) -> RawTable | None:
+def _sheet_table(workbook, name: str, label: str, problems: Problems, source: CaseSource) -> RawTable | None:
     header, body, rows = _sheet_cells(workbook[name])
     width = len(header)
     for values, row in zip(body, rows):
         extra = [v for v in values[width:] if v is not None and cell_text(v).strip()]
         if extra:
-            problems.add(label, "this row has values to the right of the last named column",
-                         "give the column a name in row 1, or delete the values", row=row)
+            problems.add(
+                label,
+                "this row has values to the right of the last named column",
+                "give the column a name in row 1, or delete the values",
+                row=row,
+            )
             return None
     comma = source.input.decimal == ","
-    cells = [[cell_text(v, comma).strip() for v in (values[:width] + [None] * (width - len(values)))]
-             for values in body]
-    frame = pd.DataFrame(cells, columns=range(width), dtype="str") if cells else pd.DataFrame(
-        {n: pd.Series([], dtype="str") for n in range(width)})
-    table, renamed = _make_table(name, label, header, frame, np.asarray(rows, dtype=np.int64),
-                                 problems, strip=False, settings=source.input)
-    source.dialects.append(Dialect(
-        file=label, delimiter="", delimiter_source="sheet", encoding="", encoding_source="sheet",
-        date_format=source.input.date_format, decimal=source.input.decimal, renamed=renamed))
+    cells = [
+        [cell_text(v, comma).strip() for v in (values[:width] + [None] * (width - len(values)))] for values in body
+    ]
+    frame = (
+        pd.DataFrame(cells, columns=range(width), dtype="str")
+        if cells
+        else pd.DataFrame({n: pd.Series([], dtype="str") for n in range(width)})
+    )
+    table, renamed = _make_table(
+        name, label, header, frame, np.asarray(rows, dtype=np.int64), problems, strip=False, settings=source.input
+    )
+    source.dialects.append(
+        Dialect(
+            file=label,
+            delimiter="",
+            delimiter_source="sheet",
+            encoding="",
+            encoding_source="sheet",
+            date_format=source.input.date_format,
+            decimal=source.input.decimal,
+            renamed=renamed,
+        )
+    )
     return table
 
 
@@ -453,16 +524,18 @@ def _read_workbook_quietly(path: Path, problems: Problems) -> CaseSource:
     import openpyxl  # imported here: only the workbook form needs it
 
     name = path.name
-    source = CaseSource(root=path, workbook=True, settings=None, tables={}, snapshots=[],
-                        input_files=[path])
+    source = CaseSource(root=path, workbook=True, settings=None, tables={}, snapshots=[], input_files=[path])
     if not check_workbook(path, name, problems):
         source.snapshots_found = False  # nothing more is read: the one problem says why
         return source
     try:
         workbook = openpyxl.load_workbook(path, read_only=True, data_only=True)
     except Exception as error:  # openpyxl raises many kinds for a damaged file
-        problems.add(name, f"the workbook cannot be opened ({error})",
-                     "save it again from the spreadsheet program as an .xlsx workbook")
+        problems.add(
+            name,
+            f"the workbook cannot be opened ({error})",
+            "save it again from the spreadsheet program as an .xlsx workbook",
+        )
         source.snapshots_found = False
         return source
     try:
@@ -473,8 +546,11 @@ def _read_workbook_quietly(path: Path, problems: Problems) -> CaseSource:
 
         def required_sheet(sheet: str) -> bool:
             if sheet not in sheets:
-                problems.add(name, f"the required sheet '{sheet}' is missing",
-                             f"add a sheet named '{sheet}' (see the case-format description)")
+                problems.add(
+                    name,
+                    f"the required sheet '{sheet}' is missing",
+                    f"add a sheet named '{sheet}' (see the case-format description)",
+                )
                 return False
             return True
 
@@ -484,19 +560,18 @@ def _read_workbook_quietly(path: Path, problems: Problems) -> CaseSource:
                 source.input = _input_settings(source.settings, problems)
         source.tables["calendars"] = (
             _sheet_table(workbook, "calendars", label("calendars"), problems, source)
-            if required_sheet("calendars") else None
+            if required_sheet("calendars")
+            else None
         )
         source.snapshots_found = required_sheet("snapshots")
         if source.snapshots_found:
             source.snapshots = _read_snapshots_sheet(workbook, label, problems)
             for table_name in ("activities", "links"):
                 if required_sheet(table_name):
-                    _split_snapshot_sheet(workbook, table_name, label(table_name), source,
-                                          problems)
+                    _split_snapshot_sheet(workbook, table_name, label(table_name), source, problems)
         for table_name in OPTIONAL_FILES:
             if table_name in sheets:
-                source.tables[table_name] = _sheet_table(workbook, table_name, label(table_name),
-                                                         problems, source)
+                source.tables[table_name] = _sheet_table(workbook, table_name, label(table_name), problems, source)
             else:
                 source.tables[table_name] = _empty_table(table_name, label(table_name))
     finally:
@@ -524,9 +599,12 @@ def _read_case_sheet(sheet, file: str, problems: Problems) -> SettingsSource | N
     header, body, rows = _sheet_cells(sheet)
     header = _known_headers(header, ("key", "value"))
     if "key" not in header or "value" not in header:
-        problems.add(file, "the sheet needs the columns 'key' and 'value' in row 1",
-                     "write key in A1 and value in B1, then one setting per row, e.g. project.name",
-                     row=1)
+        problems.add(
+            file,
+            "the sheet needs the columns 'key' and 'value' in row 1",
+            "write key in A1 and value in B1, then one setting per row, e.g. project.name",
+            row=1,
+        )
         return None
     key_at, value_at = header.index("key"), header.index("value")
     values: dict[str, Any] = {}
@@ -537,8 +615,13 @@ def _read_case_sheet(sheet, file: str, problems: Problems) -> SettingsSource | N
         if not key:
             continue
         if key in where:
-            problems.add(file, f"the setting '{key}' is given twice (first on row {where[key]})",
-                         "keep one row for each setting", row=row, column="key")
+            problems.add(
+                file,
+                f"the setting '{key}' is given twice (first on row {where[key]})",
+                "keep one row for each setting",
+                row=row,
+                column="key",
+            )
             continue
         where[key] = row
         value = _native(cells[value_at])
@@ -547,17 +630,25 @@ def _read_case_sheet(sheet, file: str, problems: Problems) -> SettingsSource | N
         # A header named in input.columns may itself hold a dot: it is the fourth part.
         parts = key.split(".", 3) if key.startswith("input.columns.") else key.split(".")
         if len(parts) > LARGEST_SETTING_PARTS:
-            problems.add(file, f"the setting name has {len(parts):,} parts, more than the "
-                               f"{LARGEST_SETTING_PARTS} a setting may have",
-                         "name the setting section.name, e.g. project.name", row=row,
-                         column="key")
+            problems.add(
+                file,
+                f"the setting name has {len(parts):,} parts, more than the {LARGEST_SETTING_PARTS} a setting may have",
+                "name the setting section.name, e.g. project.name",
+                row=row,
+                column="key",
+            )
             continue
         target = values
         for part in parts[:-1]:
             existing = target.setdefault(part, {})
             if not isinstance(existing, dict):
-                problems.add(file, f"'{key}' conflicts with the setting '{part}'",
-                             "use keys of the form section.name", row=row, column="key")
+                problems.add(
+                    file,
+                    f"'{key}' conflicts with the setting '{part}'",
+                    "use keys of the form section.name",
+                    row=row,
+                    column="key",
+                )
                 break
             target = existing
         else:
@@ -575,8 +666,13 @@ def _read_snapshots_sheet(workbook, label, problems: Problems) -> list[SnapshotS
     header = _known_headers(header, ("label", "data_date", "kind", "folder"))
     missing = [c for c in ("label", "data_date") if c not in header]
     for column in missing:
-        problems.add(file, f"the required column '{column}' is missing",
-                     f"add a column '{column}' to row 1", row=1, column=column)
+        problems.add(
+            file,
+            f"the required column '{column}' is missing",
+            f"add a column '{column}' to row 1",
+            row=1,
+            column=column,
+        )
     if missing:
         return []
     snapshots: list[SnapshotSource] = []
@@ -589,27 +685,39 @@ def _read_snapshots_sheet(workbook, label, problems: Problems) -> list[SnapshotS
                 facts[column] = value
         folder = str(facts.pop("folder", "") or facts.get("label", "")).strip()
         if not folder:
-            problems.add(file, "the snapshot has neither a label nor a folder name",
-                         "give each snapshot a label", row=row, column="label")
+            problems.add(
+                file,
+                "the snapshot has neither a label nor a folder name",
+                "give each snapshot a label",
+                row=row,
+                column="label",
+            )
             continue
-        snapshots.append(SnapshotSource(
-            folder=folder, facts=facts, file=file,
-            locate=lambda key, _row=row: (_row, key),
-        ))
+        snapshots.append(
+            SnapshotSource(
+                folder=folder,
+                facts=facts,
+                file=file,
+                locate=lambda key, _row=row: (_row, key),
+            )
+        )
     return snapshots
 
 
-def _split_snapshot_sheet(workbook, name: str, file: str, source: CaseSource,
-                          problems: Problems) -> None:
+def _split_snapshot_sheet(workbook, name: str, file: str, source: CaseSource, problems: Problems) -> None:
     """Split the activities or links sheet by its leading ``snapshot`` column."""
     snapshots = source.snapshots
     table = _sheet_table(workbook, name, file, problems, source)
     if table is None:
         return
     if "snapshot" not in table.frame.columns:
-        problems.add(file, "the required column 'snapshot' is missing",
-                     "add a first column 'snapshot' naming the snapshot of each row", row=1,
-                     column="snapshot")
+        problems.add(
+            file,
+            "the required column 'snapshot' is missing",
+            "add a first column 'snapshot' naming the snapshot of each row",
+            row=1,
+            column="snapshot",
+        )
         return
     by_name: dict[str, SnapshotSource] = {}
     for snap in snapshots:
@@ -618,11 +726,20 @@ def _split_snapshot_sheet(workbook, name: str, file: str, source: CaseSource,
         by_name.setdefault(str(snap.facts.get("label", "")), snap)
     names = table.frame["snapshot"]
     known = names.isin(list(by_name))
-    problems.flag(table, ~known & (names != ""), "snapshot",
-                  "the snapshot '{value}' is not in the snapshots sheet",
-                  "add it to the snapshots sheet or correct the name")
-    problems.flag(table, names == "", "snapshot", "the row names no snapshot",
-                  "write the snapshot's folder name or label in the snapshot column")
+    problems.flag(
+        table,
+        ~known & (names != ""),
+        "snapshot",
+        "the snapshot '{value}' is not in the snapshots sheet",
+        "add it to the snapshots sheet or correct the name",
+    )
+    problems.flag(
+        table,
+        names == "",
+        "snapshot",
+        "the row names no snapshot",
+        "write the snapshot's folder name or label in the snapshot column",
+    )
     owner = names.map({n: snap.folder for n, snap in by_name.items()}).fillna("")
     stable = set(COLUMNS[name])
     for snap in snapshots:
@@ -631,8 +748,18 @@ def _split_snapshot_sheet(workbook, name: str, file: str, source: CaseSource,
         # A column the sheet has for another snapshot's sake is not part of this one.
         unused = [c for c in frame.columns if c not in stable and not (frame[c] != "").any()]
         frame = frame.drop(columns=unused)
-        setattr(snap, name, RawTable(name=name, file=file, frame=frame, rows=table.rows[mask],
-                                     date_format=table.date_format, decimal=table.decimal))
+        setattr(
+            snap,
+            name,
+            RawTable(
+                name=name,
+                file=file,
+                frame=frame,
+                rows=table.rows[mask],
+                date_format=table.date_format,
+                decimal=table.decimal,
+            ),
+        )
 
 
 # --------------------------------------------------------------------------- opinion
@@ -647,25 +774,31 @@ def _read_opinion(source: CaseSource, folder: Path, problems: Problems) -> None:
     try:
         size = path.stat().st_size
         if size > LARGEST_OPINION:
-            problems.add(OPINION_NAME,
-                         f"the file is {size:,} bytes, more than the {LARGEST_OPINION:,} bytes "
-                         "(256 KiB) an opinion may hold",
-                         "shorten the opinion, or refer to a separate document from it")
+            problems.add(
+                OPINION_NAME,
+                f"the file is {size:,} bytes, more than the {LARGEST_OPINION:,} bytes (256 KiB) an opinion may hold",
+                "shorten the opinion, or refer to a separate document from it",
+            )
             return
         data = path.read_bytes()
     except OSError as error:
-        problems.add(OPINION_NAME, f"the file cannot be read ({error.strerror or error})",
-                     "check that the file may be read")
+        problems.add(
+            OPINION_NAME, f"the file cannot be read ({error.strerror or error})", "check that the file may be read"
+        )
         return
     try:
         text = data.decode("utf-8-sig")
     except UnicodeDecodeError as error:
-        problems.add(OPINION_NAME, f"the file is not UTF-8 text (byte {error.start + 1})",
-                     "save it as plain text in UTF-8 encoding")
+        problems.add(
+            OPINION_NAME,
+            f"the file is not UTF-8 text (byte {error.start + 1})",
+            "save it as plain text in UTF-8 encoding",
+        )
         return
     if "\x00" in text:
-        problems.add(OPINION_NAME, "the file holds a NUL character, so it is not text",
-                     "save the opinion as plain Markdown text")
+        problems.add(
+            OPINION_NAME, "the file holds a NUL character, so it is not text", "save the opinion as plain Markdown text"
+        )
         return
     source.opinion = text
 
@@ -686,9 +819,15 @@ def open_source(path: Path, problems: Problems) -> CaseSource | None:
     if path.is_file():
         if path.suffix.lower() == ".xlsx":
             return _read_workbook(path, problems)
-        problems.add(str(path), "this is neither a case folder nor an .xlsx workbook",
-                     "give the case folder (the one holding case.toml) or the case.xlsx workbook")
+        problems.add(
+            str(path),
+            "this is neither a case folder nor an .xlsx workbook",
+            "give the case folder (the one holding case.toml) or the case.xlsx workbook",
+        )
         return None
-    problems.add(str(path), "there is no case folder or workbook at this path",
-                 "check the path; `delay new FOLDER` writes an empty case to start from")
+    problems.add(
+        str(path),
+        "there is no case folder or workbook at this path",
+        "check the path; `delay new FOLDER` writes an empty case to start from",
+    )
     return None

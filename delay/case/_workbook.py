@@ -5,8 +5,9 @@ from __future__ import annotations
 import datetime as dt
 import os
 import tempfile
+from collections.abc import Iterator
 from pathlib import Path
-from typing import Any, Iterator
+from typing import Any
 
 import pandas as pd
 
@@ -36,8 +37,7 @@ def _typed(table_name: str, column: str, text: str, table: RawTable) -> Any:
         return None
     if column in columns.DATE_COLUMNS.get(table_name, ()):
         return columns.parse_dates(pd.Series([text]), table.date_format).iat[0].date()
-    if column in columns.INTEGER_COLUMNS.get(table_name, ()) or column in columns.NUMBER_COLUMNS.get(
-            table_name, ()):
+    if column in columns.INTEGER_COLUMNS.get(table_name, ()) or column in columns.NUMBER_COLUMNS.get(table_name, ()):
         number = float(columns.parse_numbers(pd.Series([text]), table.decimal)[0])
         return int(number) if number.is_integer() else number
     return text
@@ -82,8 +82,7 @@ class _SheetWriter:
             if table is None:
                 continue
             frame = table.frame
-            cells = [frame[c].tolist() if c in frame.columns else [""] * len(frame)
-                     for c in header]
+            cells = [frame[c].tolist() if c in frame.columns else [""] * len(frame) for c in header]
             converters = [(c, c in columns.DATE_COLUMNS.get(name, ())) for c in header]
             for values in zip(*cells) if cells else ():
                 row = [label] if leading else []
@@ -93,8 +92,7 @@ class _SheetWriter:
                 sheet.append(row)
 
 
-def write_workbook_file(case: Case, settings_values: dict[str, Any],
-                        uncorrected: dict[str, Any], path: Path) -> Path:
+def write_workbook_file(case: Case, settings_values: dict[str, Any], uncorrected: dict[str, Any], path: Path) -> Path:
     """Write the workbook; the tables come from ``uncorrected`` (the files as read)."""
     import openpyxl
 
@@ -114,11 +112,9 @@ def write_workbook_file(case: Case, settings_values: dict[str, Any],
     for snap in case.snapshots:
         sheet.append([snap.label, writer.value(sheet, snap.data_date), snap.kind, snap.folder])
 
-    raw_snapshots = {folder: (activities, links)
-                     for folder, activities, links in uncorrected["snapshots"]}
+    raw_snapshots = {folder: (activities, links) for folder, activities, links in uncorrected["snapshots"]}
     order = [snap.folder for snap in case.snapshots]
-    writer.table("activities", "activities",
-                 [(folder, raw_snapshots[folder][0]) for folder in order])
+    writer.table("activities", "activities", [(folder, raw_snapshots[folder][0]) for folder in order])
     writer.table("links", "links", [(folder, raw_snapshots[folder][1]) for folder in order])
     tables = uncorrected["tables"]
     for name in ("calendars",) + OPTIONAL_FILES:

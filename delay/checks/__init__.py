@@ -33,8 +33,8 @@ from typing import Any
 from ..model import Case, Snapshot
 from ._common import contract_completion_in_force, ordered_snapshots, resolve, scheduled
 from .changes import CHANGE_COLUMNS, CHANGE_KINDS, REVISION_KINDS, REVISION_ORDER, Comparison, compare
-from .forensic import DATA_CHECK_KEYS, DataCheck, data_checks
 from .elements import ElementChecks, element_checks
+from .forensic import DATA_CHECK_KEYS, DataCheck, data_checks
 from .quality import METRIC_COLUMNS, METRIC_KEYS, Metric, metric_list, quality_metrics
 from .redundancy import Redundancy, redundant_links
 
@@ -134,6 +134,5 @@ def _run_all(case: Case) -> dict[str, Any]:
         "project": case.settings.project.name,
         "completion_in_force": contract_completion_in_force(case).isoformat(),
         "snapshots": [check_snapshot(case, snap) for snap in snapshots],
-        "comparisons": [compare(case, earlier, later).to_json()
-                        for earlier, later in zip(snapshots, snapshots[1:])],
+        "comparisons": [compare(case, earlier, later).to_json() for earlier, later in zip(snapshots, snapshots[1:])],
     }

@@ -9,12 +9,9 @@ for as long as the case lives (the store is a weak mapping: it goes with the cas
 from __future__ import annotations
 
 import datetime as dt
-import math
 import weakref
-from typing import Any
 
 import numpy as np
-import pandas as pd
 
 from ..contract import completion_in_force
 from ..cpm import ScheduleModel, ScheduleResult, calendars_of, prepare
@@ -31,8 +28,8 @@ __all__ = [
     "link_keys",
 ]
 
-_MODELS: "weakref.WeakKeyDictionary[Case, dict[str, ScheduleModel]]" = weakref.WeakKeyDictionary()
-_RESULTS: "weakref.WeakKeyDictionary[Case, dict[str, ScheduleResult]]" = weakref.WeakKeyDictionary()
+_MODELS: weakref.WeakKeyDictionary[Case, dict[str, ScheduleModel]] = weakref.WeakKeyDictionary()
+_RESULTS: weakref.WeakKeyDictionary[Case, dict[str, ScheduleResult]] = weakref.WeakKeyDictionary()
 
 
 def resolve(case: Case, snapshot: str | Snapshot) -> Snapshot:
@@ -48,9 +45,13 @@ def resolve(case: Case, snapshot: str | Snapshot) -> Snapshot:
     try:
         return case.snapshot(str(snapshot))
     except KeyError as error:
-        raise CaseError(Problem(file="snapshots/", message=str(error.args[0]),
-                                fix="name a folder under snapshots/, a snapshot's label, "
-                                    "or asbuilt")) from None
+        raise CaseError(
+            Problem(
+                file="snapshots/",
+                message=str(error.args[0]),
+                fix="name a folder under snapshots/, a snapshot's label, or asbuilt",
+            )
+        ) from None
 
 
 def ordered_snapshots(case: Case) -> list[Snapshot]:

@@ -42,8 +42,7 @@ def reach_chunk(order, out_ptr, out_succ, target_column, first_column, words, re
 
 # work: links times successors, per word
 @sized(lambda a: a[2].size * (1 + a[2].size // max(a[0], 1)) * a[6])
-def mark_implied(n, out_ptr, out_succ, out_link, target_column, first_column, words, reach,
-                 implied, via):
+def mark_implied(n, out_ptr, out_succ, out_link, target_column, first_column, words, reach, implied, via):
     """Links ``u -> w`` (``w`` in this chunk of columns) for which another successor ``x``
     of ``u`` reaches ``w``: the link is implied by the path through ``x``."""
     width = words * 64
@@ -67,8 +66,9 @@ def mark_implied(n, out_ptr, out_succ, out_link, target_column, first_column, wo
 
 # work: a stretch of the order per target
 @sized(lambda a: a[0].size * (1 + a[7].size))
-def longest_implied_lag(order, rank, out_ptr, out_succ, out_link, lag, duration, targets,
-                        group_ptr, group_links, pred, best, via):
+def longest_implied_lag(
+    order, rank, out_ptr, out_succ, out_link, lag, duration, targets, group_ptr, group_links, pred, best, via
+):
     """The longest implied lag of an alternative path, for links with a positive lag.
 
     For each target activity ``w = targets[t]`` and its links ``group_links[group_ptr[t]:

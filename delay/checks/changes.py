@@ -39,15 +39,26 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
-from ..model import Case, Snapshot
 from ..convert import json_records, text_cell
+from ..model import Case, Snapshot
 from ._common import resolve, scheduled
 
 __all__ = ["Comparison", "compare", "CHANGE_KINDS", "CHANGE_COLUMNS", "REVISION_ORDER", "REVISION_KINDS"]
 
-CHANGE_KINDS = ("activity_deleted", "activity_added", "name_changed", "duration_changed", "remaining_changed",
-                "kind_changed", "calendar_changed", "constraint_changed", "link_deleted", "link_added", "link_changed",
-                "progress")
+CHANGE_KINDS = (
+    "activity_deleted",
+    "activity_added",
+    "name_changed",
+    "duration_changed",
+    "remaining_changed",
+    "kind_changed",
+    "calendar_changed",
+    "constraint_changed",
+    "link_deleted",
+    "link_added",
+    "link_changed",
+    "progress",
+)
 #: The steps in which a windows analysis applies a window's revisions, in order.
 REVISION_ORDER = ("deletions", "additions", "durations", "logic", "calendars", "constraints")
 #: The kinds of change each revision step applies.
@@ -59,8 +70,19 @@ REVISION_KINDS: dict[str, tuple[str, ...]] = {
     "calendars": ("calendar_changed",),
     "constraints": ("constraint_changed",),
 }
-CHANGE_COLUMNS = ("kind", "activity", "pred", "succ", "field", "before", "after", "end_added_or_deleted",
-                  "driving_earlier", "driving_later", "touches_driving_path")
+CHANGE_COLUMNS = (
+    "kind",
+    "activity",
+    "pred",
+    "succ",
+    "field",
+    "before",
+    "after",
+    "end_added_or_deleted",
+    "driving_earlier",
+    "driving_later",
+    "touches_driving_path",
+)
 
 
 @dataclass(frozen=True)
@@ -94,9 +116,14 @@ class Comparison:
         return {kind: int(found.get(kind, 0)) for kind in CHANGE_KINDS}
 
     def to_json(self) -> dict:
-        return {"earlier_snapshot": self.earlier_folder, "earlier_label": self.earlier,
-                "later_snapshot": self.later_folder, "later_label": self.later, "counts": self.counts(),
-                "changes": json_records(self.changes)}
+        return {
+            "earlier_snapshot": self.earlier_folder,
+            "earlier_label": self.earlier,
+            "later_snapshot": self.later_folder,
+            "later_label": self.later,
+            "counts": self.counts(),
+            "changes": json_records(self.changes),
+        }
 
 
 def _text(values) -> np.ndarray:
@@ -139,16 +166,33 @@ def compare(case: Case, earlier: str | Snapshot, later: str | Snapshot) -> Compa
     parts: list[pd.DataFrame] = []
 
     def activity_rows(kind: str, ids, field: str, before, after) -> None:
-        parts.append(pd.DataFrame({"kind": kind, "activity": np.asarray(ids, dtype=object), "pred": "", "succ": "",
-                                   "field": field, "before": _text(before), "after": _text(after),
-                                   "end_added_or_deleted": False}))
+        parts.append(
+            pd.DataFrame(
+                {
+                    "kind": kind,
+                    "activity": np.asarray(ids, dtype=object),
+                    "pred": "",
+                    "succ": "",
+                    "field": field,
+                    "before": _text(before),
+                    "after": _text(after),
+                    "end_added_or_deleted": False,
+                }
+            )
+        )
 
     deleted = np.flatnonzero(in_b < 0)
     added = np.flatnonzero(in_a < 0)
-    activity_rows("activity_deleted", a["id"].to_numpy(dtype=object)[deleted], "", a["name"].to_numpy()[deleted],
-                  [""] * deleted.size)
-    activity_rows("activity_added", b["id"].to_numpy(dtype=object)[added], "", [""] * added.size,
-                  b["name"].to_numpy()[added])
+    activity_rows(
+        "activity_deleted",
+        a["id"].to_numpy(dtype=object)[deleted],
+        "",
+        a["name"].to_numpy()[deleted],
+        [""] * deleted.size,
+    )
+    activity_rows(
+        "activity_added", b["id"].to_numpy(dtype=object)[added], "", [""] * added.size, b["name"].to_numpy()[added]
+    )
 
     # Activities in both, in the later snapshot's order.
     later_rows = np.flatnonzero(in_a >= 0)
@@ -189,9 +233,13 @@ def compare(case: Case, earlier: str | Snapshot, later: str | Snapshot) -> Compa
     kind_b = pd.Series(kind_b, dtype=object).fillna("").to_numpy()
     same_date = (pd.isna(date_a) & pd.isna(date_b)) | (date_a == date_b)
     changed = np.flatnonzero((kind_a != kind_b) | ~same_date)
-    activity_rows("constraint_changed", ids[changed], "constraint",
-                  [_constraint(kind_a[i], date_a[i]) for i in changed],
-                  [_constraint(kind_b[i], date_b[i]) for i in changed])
+    activity_rows(
+        "constraint_changed",
+        ids[changed],
+        "constraint",
+        [_constraint(kind_a[i], date_a[i]) for i in changed],
+        [_constraint(kind_b[i], date_b[i]) for i in changed],
+    )
 
     parts.extend(_link_changes(first, second, set(a["id"].to_numpy()[deleted]) | set(b["id"].to_numpy()[added])))
     parts.append(_progress(a, b, in_a))
@@ -208,8 +256,7 @@ def compare(case: Case, earlier: str | Snapshot, later: str | Snapshot) -> Compa
         succ_on = path.get_indexer(changes["succ"].to_numpy(dtype=object)) >= 0
         changes[column] = np.where(is_link, pred_on & succ_on, activity_on)
     changes["touches_driving_path"] = changes["driving_earlier"] | changes["driving_later"]
-    return Comparison(first.label, second.label, first.folder, second.folder,
-                      changes[list(CHANGE_COLUMNS)].copy())
+    return Comparison(first.label, second.label, first.folder, second.folder, changes[list(CHANGE_COLUMNS)].copy())
 
 
 def _constraint(kind, date) -> str:
@@ -250,8 +297,18 @@ def _link_changes(first: Snapshot, second: Snapshot, changed_activities: set) ->
         pred = frame["pred"].to_numpy(dtype=object)[where]
         succ = frame["succ"].to_numpy(dtype=object)[where]
         ends = np.asarray([p in changed_activities or s in changed_activities for p, s in zip(pred, succ)], dtype=bool)
-        return pd.DataFrame({"kind": kind, "activity": "", "pred": pred, "succ": succ, "field": field,
-                             "before": before, "after": after, "end_added_or_deleted": ends})
+        return pd.DataFrame(
+            {
+                "kind": kind,
+                "activity": "",
+                "pred": pred,
+                "succ": succ,
+                "field": field,
+                "before": before,
+                "after": after,
+                "end_added_or_deleted": ends,
+            }
+        )
 
     deleted = np.flatnonzero(in_b < 0)
     added = np.flatnonzero(in_a < 0)
@@ -264,8 +321,14 @@ def _link_changes(first: Snapshot, second: Snapshot, changed_activities: set) ->
     return [
         rows("link_deleted", la, deleted, _link_text(la, deleted), np.full(deleted.size, "", dtype=object), "link"),
         rows("link_added", lb, added, np.full(added.size, "", dtype=object), _link_text(lb, added), "link"),
-        rows("link_changed", lb, both[changed], _link_text(la, earlier_rows[changed]), _link_text(lb, both[changed]),
-             field[changed]),
+        rows(
+            "link_changed",
+            lb,
+            both[changed],
+            _link_text(la, earlier_rows[changed]),
+            _link_text(lb, both[changed]),
+            field[changed],
+        ),
     ]
 
 
@@ -278,14 +341,26 @@ def _progress(a: pd.DataFrame, b: pd.DataFrame, in_a: np.ndarray) -> pd.DataFram
     positions = []
     for column in ("actual_start", "actual_finish"):
         after = b[column].to_numpy(dtype="datetime64[D]")
-        before = np.where(present, a[column].to_numpy(dtype="datetime64[D]")[rows] if len(a) else after,
-                          np.datetime64("NaT"))
+        before = np.where(
+            present, a[column].to_numpy(dtype="datetime64[D]")[rows] if len(a) else after, np.datetime64("NaT")
+        )
         new = ~np.isnat(after) & (np.isnat(before) | (after != before))
         cleared = np.isnat(after) & ~np.isnat(before)
         where = np.flatnonzero(new | cleared)
-        frames.append(pd.DataFrame({"kind": "progress", "activity": ids[where], "pred": "", "succ": "",
-                                    "field": column, "before": _text(before[where]), "after": _text(after[where]),
-                                    "end_added_or_deleted": False}))
+        frames.append(
+            pd.DataFrame(
+                {
+                    "kind": "progress",
+                    "activity": ids[where],
+                    "pred": "",
+                    "succ": "",
+                    "field": column,
+                    "before": _text(before[where]),
+                    "after": _text(after[where]),
+                    "end_added_or_deleted": False,
+                }
+            )
+        )
         positions.append(where)
     in_progress = ~pd.isna(b["actual_start"].to_numpy()) & pd.isna(b["actual_finish"].to_numpy())
     remaining_b = b["remaining"].to_numpy(dtype=float)
@@ -295,9 +370,20 @@ def _progress(a: pd.DataFrame, b: pd.DataFrame, in_a: np.ndarray) -> pd.DataFram
     left_a = np.where(present, np.where(np.isnan(remaining_a) & ~started_a, duration_a, remaining_a), np.nan)
     changed = in_progress & ~(left_a == remaining_b)
     where = np.flatnonzero(changed)
-    frames.append(pd.DataFrame({"kind": "progress", "activity": ids[where], "pred": "", "succ": "",
-                                "field": "remaining", "before": _text(left_a[where]), "after": _text(remaining_b[where]),
-                                "end_added_or_deleted": False}))
+    frames.append(
+        pd.DataFrame(
+            {
+                "kind": "progress",
+                "activity": ids[where],
+                "pred": "",
+                "succ": "",
+                "field": "remaining",
+                "before": _text(left_a[where]),
+                "after": _text(remaining_b[where]),
+                "end_added_or_deleted": False,
+            }
+        )
+    )
     positions.append(where)
     frame = pd.concat(frames, ignore_index=True)
     order = np.argsort(np.concatenate(positions), kind="stable")

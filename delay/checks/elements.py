@@ -25,8 +25,8 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
-from ..model import Case, Snapshot
 from ..convert import json_records
+from ..model import Case, Snapshot
 from ._common import ordered_snapshots, resolve
 
 __all__ = ["ElementChecks", "element_checks", "DUPLICATE_TOLERANCE_METRES", "BOX_COLUMNS"]
@@ -67,17 +67,31 @@ class ElementChecks:
         groups = []
         for _, group in self.duplicates.groupby("group", sort=True):
             first = group.iloc[0]
-            groups.append({"elements": [str(i) for i in group["element"]], "classification": str(first["classification"]),
-                           "box": [float(first[c]) for c in BOX_COLUMNS]})
+            groups.append(
+                {
+                    "elements": [str(i) for i in group["element"]],
+                    "classification": str(first["classification"]),
+                    "box": [float(first[c]) for c in BOX_COLUMNS],
+                }
+            )
         return {
-            "unlinked_elements": {"count": len(self.unlinked_elements), "items": json_records(self.unlinked_elements),
-                                  "note": "elements whose wbs matches no activity of any snapshot"},
-            "unmodelled_activities": {"count": len(self.unmodelled_activities),
-                                      "items": json_records(self.unmodelled_activities),
-                                      "note": self.note or "activities with a wbs that no element carries"},
-            "duplicates": {"count": len(groups), "copies": int(len(self.duplicates) - len(groups)), "groups": groups,
-                           "duplicate_ids": "checked at load",
-                           "note": "same classification and the same box within 1 mm"},
+            "unlinked_elements": {
+                "count": len(self.unlinked_elements),
+                "items": json_records(self.unlinked_elements),
+                "note": "elements whose wbs matches no activity of any snapshot",
+            },
+            "unmodelled_activities": {
+                "count": len(self.unmodelled_activities),
+                "items": json_records(self.unmodelled_activities),
+                "note": self.note or "activities with a wbs that no element carries",
+            },
+            "duplicates": {
+                "count": len(groups),
+                "copies": int(len(self.duplicates) - len(groups)),
+                "groups": groups,
+                "duplicate_ids": "checked at load",
+                "note": "same classification and the same box within 1 mm",
+            },
         }
 
 
@@ -130,8 +144,9 @@ def element_checks(case: Case, snapshot: str | Snapshot | None = None) -> Elemen
         unmodelled = pd.concat(rows, ignore_index=True).drop_duplicates(["activity", "wbs"], keep="first")
     else:
         unmodelled = pd.DataFrame({c: pd.Series([], dtype=object) for c in ("activity", "name", "wbs", "snapshot")})
-    return ElementChecks(unlinked.reset_index(drop=True), unmodelled.reset_index(drop=True),
-                         _duplicates(elements), note)
+    return ElementChecks(
+        unlinked.reset_index(drop=True), unmodelled.reset_index(drop=True), _duplicates(elements), note
+    )
 
 
 def _duplicates(elements: pd.DataFrame) -> pd.DataFrame:
@@ -166,10 +181,22 @@ def _duplicates(elements: pd.DataFrame) -> pd.DataFrame:
     representatives = rows[first_of == rows]
     rep_codes = pd.factorize(classification[representatives])[0].astype(np.int64)
     millimetres = box[representatives] * 1000.0
-    multipliers = np.array([0x9E3779B97F4A7C15, 0xC2B2AE3D27D4EB4F, 0x165667B19E3779F9, 0x27D4EB2F165667C5,
-                            0x85EBCA77C2B2AE63, 0xFF51AFD7ED558CCD, 0xC4CEB9FE1A85EC53], dtype=np.uint64)
-    cells = [np.floor(millimetres / _CELL_MILLIMETRES).astype(np.int64),
-             np.floor(millimetres / _CELL_MILLIMETRES + 0.5).astype(np.int64)]
+    multipliers = np.array(
+        [
+            0x9E3779B97F4A7C15,
+            0xC2B2AE3D27D4EB4F,
+            0x165667B19E3779F9,
+            0x27D4EB2F165667C5,
+            0x85EBCA77C2B2AE63,
+            0xFF51AFD7ED558CCD,
+            0xC4CEB9FE1A85EC53,
+        ],
+        dtype=np.uint64,
+    )
+    cells = [
+        np.floor(millimetres / _CELL_MILLIMETRES).astype(np.int64),
+        np.floor(millimetres / _CELL_MILLIMETRES + 0.5).astype(np.int64),
+    ]
     limit = DUPLICATE_TOLERANCE_METRES + _MEASURE_SLACK
     with np.errstate(over="ignore"):
         base = rep_codes.astype(np.uint64) * multipliers[6]
@@ -187,8 +214,7 @@ def _duplicates(elements: pd.DataFrame) -> pd.DataFrame:
                 for a in range(len(members)):
                     for b in range(a + 1, len(members)):
                         i, j = int(members[a]), int(members[b])
-                        if classification[i] == classification[j] and \
-                                (np.abs(box[i] - box[j]) <= limit).all():
+                        if classification[i] == classification[j] and (np.abs(box[i] - box[j]) <= limit).all():
                             join(i, j)
     roots = np.asarray([find(i) for i in range(n)])
     sizes = np.bincount(roots, minlength=n)

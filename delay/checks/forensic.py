@@ -49,17 +49,24 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
-from ..convert import NO_DAY, table_dates
+from ..convert import NO_DAY, json_records, table_dates
 from ..cpm import COMPLETE, FINISH_MILESTONE, START_MILESTONE, STATUS_NAMES, TASK
 from ..model import Case, Snapshot
-from ..convert import json_records
-from ._common import model_of, previous_snapshot, resolve, scheduled
 from . import redundancy
+from ._common import model_of, previous_snapshot, resolve, scheduled
 
 __all__ = ["DataCheck", "data_checks", "DATA_CHECK_KEYS", "ITEM_COLUMNS"]
 
-DATA_CHECK_KEYS = ("open_ends", "dangling", "actual_date_changes", "future_actuals", "retrospective_edits",
-                   "out_of_sequence", "redundant_links", "corrections")
+DATA_CHECK_KEYS = (
+    "open_ends",
+    "dangling",
+    "actual_date_changes",
+    "future_actuals",
+    "retrospective_edits",
+    "out_of_sequence",
+    "redundant_links",
+    "corrections",
+)
 
 #: Columns of each check's items.
 ITEM_COLUMNS: dict[str, tuple[str, ...]] = {
@@ -96,8 +103,14 @@ class DataCheck:
         return int(len(self.items))
 
     def to_json(self) -> dict:
-        return {"key": self.key, "title": self.title, "status": self.status, "count": self.count,
-                "note": self.note, "items": json_records(self.items)}
+        return {
+            "key": self.key,
+            "title": self.title,
+            "status": self.status,
+            "count": self.count,
+            "note": self.note,
+            "items": json_records(self.items),
+        }
 
 
 def _frame(key: str, data: dict | pd.DataFrame | None) -> pd.DataFrame:
@@ -137,9 +150,13 @@ def data_checks(case: Case, snapshot: str | Snapshot = "baseline") -> tuple[Data
         _open_ends(snap, result, start_number, finish_number),
         _dangling(snap, result, start_number, finish_number),
         _actual_date_changes(snap, earlier),
-        DataCheck("future_actuals", "Actual dates in the future of their data date", AT_LOAD,
-                  _frame("future_actuals", {}),
-                  "the loader refuses an actual date on or after its snapshot's data date"),
+        DataCheck(
+            "future_actuals",
+            "Actual dates in the future of their data date",
+            AT_LOAD,
+            _frame("future_actuals", {}),
+            "the loader refuses an actual date on or after its snapshot's data date",
+        ),
         _retrospective_edits(snap, earlier),
         _out_of_sequence(snap, result),
         _redundant(case, snap),
@@ -188,12 +205,18 @@ def _open_ends(snap: Snapshot, result, start_number: int, finish_number: int) ->
     if finish_number >= 0:
         no_succ[finish_number] = False
     rows = np.flatnonzero(no_pred | no_succ)
-    missing = np.where(no_pred[rows] & no_succ[rows], "predecessor and successor",
-                       np.where(no_pred[rows], "predecessor", "successor")).astype(object)
-    items = _frame("open_ends", {
-        "activity": net.ids[rows], "name": result.model.names[rows], "status": STATUS_NAMES[result.status[rows]],
-        "missing": missing,
-    })
+    missing = np.where(
+        no_pred[rows] & no_succ[rows], "predecessor and successor", np.where(no_pred[rows], "predecessor", "successor")
+    ).astype(object)
+    items = _frame(
+        "open_ends",
+        {
+            "activity": net.ids[rows],
+            "name": result.model.names[rows],
+            "status": STATUS_NAMES[result.status[rows]],
+            "missing": missing,
+        },
+    )
     ends = []
     if start_number >= 0:
         ends.append(f"project start {net.ids[start_number]}")
@@ -218,14 +241,25 @@ def _dangling(snap: Snapshot, result, start_number: int, finish_number: int) -> 
     if finish_number >= 0:
         finish_open[finish_number] = False
     rows = np.flatnonzero(start_open | finish_open)
-    side = np.where(start_open[rows] & finish_open[rows], "start and finish",
-                    np.where(start_open[rows], "start", "finish")).astype(object)
-    items = _frame("dangling", {
-        "activity": net.ids[rows], "name": result.model.names[rows], "status": STATUS_NAMES[result.status[rows]],
-        "dangling": side,
-    })
-    return DataCheck("dangling", "Dangling starts and finishes", CHECKED, items,
-                     "a start needs an FS or SS link into it, a finish an FS or FF link out of it")
+    side = np.where(
+        start_open[rows] & finish_open[rows], "start and finish", np.where(start_open[rows], "start", "finish")
+    ).astype(object)
+    items = _frame(
+        "dangling",
+        {
+            "activity": net.ids[rows],
+            "name": result.model.names[rows],
+            "status": STATUS_NAMES[result.status[rows]],
+            "dangling": side,
+        },
+    )
+    return DataCheck(
+        "dangling",
+        "Dangling starts and finishes",
+        CHECKED,
+        items,
+        "a start needs an FS or SS link into it, a finish an FS or FF link out of it",
+    )
 
 
 _ACTUAL_COLUMNS = ("actual_start", "actual_finish")
@@ -242,8 +276,11 @@ def _aligned_actuals(snap: Snapshot, earlier: Snapshot):
     pairs = {}
     for column in _ACTUAL_COLUMNS:
         current = now[column].to_numpy(dtype="datetime64[D]")
-        previous = before[column].to_numpy(dtype="datetime64[D]")[rows] if len(before) else \
-            np.full(len(now), np.datetime64("NaT"), dtype="datetime64[D]")
+        previous = (
+            before[column].to_numpy(dtype="datetime64[D]")[rows]
+            if len(before)
+            else np.full(len(now), np.datetime64("NaT"), dtype="datetime64[D]")
+        )
         previous = np.where(present, previous, np.datetime64("NaT"))
         pairs[column] = (current, previous)
     return now, present, pairs
@@ -252,17 +289,30 @@ def _aligned_actuals(snap: Snapshot, earlier: Snapshot):
 def _actual_date_changes(snap: Snapshot, earlier: Snapshot | None) -> DataCheck:
     title = "Actual dates changed since the previous snapshot"
     if earlier is None:
-        return DataCheck("actual_date_changes", title, CHECKED, _frame("actual_date_changes", {}),
-                         "no earlier snapshot to compare with")
+        return DataCheck(
+            "actual_date_changes",
+            title,
+            CHECKED,
+            _frame("actual_date_changes", {}),
+            "no earlier snapshot to compare with",
+        )
     now, present, pairs = _aligned_actuals(snap, earlier)
     parts = []
     for column, (current, previous) in pairs.items():
         changed = present & ~np.isnat(previous) & (np.isnat(current) | (current != previous))
         rows = np.flatnonzero(changed)
-        parts.append(pd.DataFrame({
-            "activity": now["id"].to_numpy(dtype=object)[rows], "column": column, "earlier_snapshot": earlier.folder,
-            "earlier_value": table_dates(previous[rows]), "later_value": table_dates(current[rows]), "_row": rows,
-        }))
+        parts.append(
+            pd.DataFrame(
+                {
+                    "activity": now["id"].to_numpy(dtype=object)[rows],
+                    "column": column,
+                    "earlier_snapshot": earlier.folder,
+                    "earlier_value": table_dates(previous[rows]),
+                    "later_value": table_dates(current[rows]),
+                    "_row": rows,
+                }
+            )
+        )
     items = pd.concat(parts, ignore_index=True).sort_values(["_row", "column"], kind="stable")
     note = f"against '{earlier.label}'"
     if snap.kind == "asbuilt":
@@ -273,19 +323,32 @@ def _actual_date_changes(snap: Snapshot, earlier: Snapshot | None) -> DataCheck:
 def _retrospective_edits(snap: Snapshot, earlier: Snapshot | None) -> DataCheck:
     title = "Actual dates entered after their period (retrospective edits)"
     if earlier is None or earlier.kind != "update":
-        return DataCheck("retrospective_edits", title, CHECKED, _frame("retrospective_edits", {}),
-                         "no earlier progress update to compare with")
+        return DataCheck(
+            "retrospective_edits",
+            title,
+            CHECKED,
+            _frame("retrospective_edits", {}),
+            "no earlier progress update to compare with",
+        )
     now, present, pairs = _aligned_actuals(snap, earlier)
     limit = np.datetime64(earlier.data_date, "D")
     parts = []
     for column, (current, previous) in pairs.items():
         entered = ~np.isnat(current) & (current < limit) & (np.isnat(previous) | (current != previous))
         rows = np.flatnonzero(entered)
-        parts.append(pd.DataFrame({
-            "activity": now["id"].to_numpy(dtype=object)[rows], "column": column, "value": table_dates(current[rows]),
-            "earlier_snapshot": earlier.folder, "earlier_data_date": pd.Timestamp(earlier.data_date),
-            "earlier_value": table_dates(previous[rows]), "_row": rows,
-        }))
+        parts.append(
+            pd.DataFrame(
+                {
+                    "activity": now["id"].to_numpy(dtype=object)[rows],
+                    "column": column,
+                    "value": table_dates(current[rows]),
+                    "earlier_snapshot": earlier.folder,
+                    "earlier_data_date": pd.Timestamp(earlier.data_date),
+                    "earlier_value": table_dates(previous[rows]),
+                    "_row": rows,
+                }
+            )
+        )
     items = pd.concat(parts, ignore_index=True).sort_values(["_row", "column"], kind="stable")
     absent = int((~present).sum())
     note = f"dates before the data date {earlier.data_date} of '{earlier.label}' that it did not report"
@@ -310,13 +373,23 @@ def _out_of_sequence(snap: Snapshot, result) -> DataCheck:
     wrong = started & (~pred_finished | (pred_point > succ_point))
     rows = fs[wrong]
     finish = model.actual_finish[net.pred[rows]]
-    items = _frame("out_of_sequence", {
-        "pred": net.ids[net.pred[rows]], "succ": net.ids[net.succ[rows]], "lag": net.lag[rows],
-        "succ_actual_start": table_dates(model.actual_start[net.succ[rows]]),
-        "pred_actual_finish": table_dates(finish),
-    })
-    return DataCheck("out_of_sequence", "Out-of-sequence progress", CHECKED, items,
-                     "successors started before a finish-to-start predecessor (lag >= 0) finished")
+    items = _frame(
+        "out_of_sequence",
+        {
+            "pred": net.ids[net.pred[rows]],
+            "succ": net.ids[net.succ[rows]],
+            "lag": net.lag[rows],
+            "succ_actual_start": table_dates(model.actual_start[net.succ[rows]]),
+            "pred_actual_finish": table_dates(finish),
+        },
+    )
+    return DataCheck(
+        "out_of_sequence",
+        "Out-of-sequence progress",
+        CHECKED,
+        items,
+        "successors started before a finish-to-start predecessor (lag >= 0) finished",
+    )
 
 
 def _redundant(case: Case, snap: Snapshot) -> DataCheck:
@@ -325,26 +398,55 @@ def _redundant(case: Case, snap: Snapshot) -> DataCheck:
     limit = redundancy.EXACT_REDUNDANCY_LIMIT
     found = redundancy.redundant_links(net, model.duration, exact_limit=limit)
     rows = np.flatnonzero(found.redundant)
-    items = _frame("redundant_links", {
-        "pred": net.ids[net.pred[rows]], "succ": net.ids[net.succ[rows]], "lag": net.lag[rows],
-        "via": net.ids[found.via[rows]],
-    })
+    items = _frame(
+        "redundant_links",
+        {
+            "pred": net.ids[net.pred[rows]],
+            "succ": net.ids[net.succ[rows]],
+            "lag": net.lag[rows],
+            "via": net.ids[found.via[rows]],
+        },
+    )
     if found.exact:
-        return DataCheck("redundant_links", "Redundant links", CHECKED, items,
-                         "finish-to-start links implied by a path of finish-to-start links with lags >= 0 "
-                         "(every path length searched)")
-    return DataCheck("redundant_links", "Redundant links", BOUNDED, items,
-                     f"bounded: only paths of two links were searched, as the programme has {net.size} "
-                     f"activities (every path length is searched up to {limit})")
+        return DataCheck(
+            "redundant_links",
+            "Redundant links",
+            CHECKED,
+            items,
+            "finish-to-start links implied by a path of finish-to-start links with lags >= 0 "
+            "(every path length searched)",
+        )
+    return DataCheck(
+        "redundant_links",
+        "Redundant links",
+        BOUNDED,
+        items,
+        f"bounded: only paths of two links were searched, as the programme has {net.size} "
+        f"activities (every path length is searched up to {limit})",
+    )
 
 
 def _corrections(case: Case, snap: Snapshot) -> DataCheck:
     name = "asbuilt" if snap.kind == "asbuilt" else snap.label
     own = [c for c in case.corrections if c.snapshot == name]
-    items = _frame("corrections", {
-        "table": [c.table for c in own], "key": [c.key for c in own], "column": [c.column for c in own],
-        "original": [c.original for c in own], "corrected": [c.corrected for c in own],
-        "reason": [c.reason for c in own], "row": [c.row for c in own],
-    } if own else {})
-    return DataCheck("corrections", "Disclosed corrections applied on load", LISTED, items,
-                     "corrections.csv rows for this snapshot, with the value each replaced")
+    items = _frame(
+        "corrections",
+        {
+            "table": [c.table for c in own],
+            "key": [c.key for c in own],
+            "column": [c.column for c in own],
+            "original": [c.original for c in own],
+            "corrected": [c.corrected for c in own],
+            "reason": [c.reason for c in own],
+            "row": [c.row for c in own],
+        }
+        if own
+        else {},
+    )
+    return DataCheck(
+        "corrections",
+        "Disclosed corrections applied on load",
+        LISTED,
+        items,
+        "corrections.csv rows for this snapshot, with the value each replaced",
+    )

@@ -87,7 +87,7 @@ import numpy as np
 import pandas as pd
 
 from ..convert import NO_DAY, day_to_date, json_cell, to_days
-from ..cpm import COMPLETE, NOT_STARTED, ScheduleResult, TASK
+from ..cpm import COMPLETE, NOT_STARTED, TASK, ScheduleResult
 from ..model import Case, Snapshot
 from ._common import contract_completion_in_force, link_keys, model_of, resolve, scheduled
 
@@ -105,11 +105,34 @@ __all__ = [
     "invalid_date_mask",
 ]
 
-METRIC_KEYS = ("logic", "leads", "lags", "relationship_types", "hard_constraints", "high_float",
-               "negative_float", "high_duration", "invalid_dates", "resources", "missed_activities",
-               "critical_path_test", "cpli", "bei")
-METRIC_COLUMNS = ("key", "title", "count", "denominator", "percent", "threshold", "passed",
-                  "activities", "unit", "note")
+METRIC_KEYS = (
+    "logic",
+    "leads",
+    "lags",
+    "relationship_types",
+    "hard_constraints",
+    "high_float",
+    "negative_float",
+    "high_duration",
+    "invalid_dates",
+    "resources",
+    "missed_activities",
+    "critical_path_test",
+    "cpli",
+    "bei",
+)
+METRIC_COLUMNS = (
+    "key",
+    "title",
+    "count",
+    "denominator",
+    "percent",
+    "threshold",
+    "passed",
+    "activities",
+    "unit",
+    "note",
+)
 
 #: Total float above this many work days is high float (DCMA-EA PAM 200.1 (2012), as recalled).
 HIGH_FLOAT_DAYS = 44
@@ -142,10 +165,16 @@ class Metric:
 
     def to_json(self) -> dict:
         return {
-            "key": self.key, "title": self.title, "count": json_cell(self.count),
-            "denominator": json_cell(self.denominator), "percent": json_cell(self.percent),
-            "threshold": self.threshold, "passed": self.passed,
-            "activities": list(self.activities), "unit": self.unit, "note": self.note,
+            "key": self.key,
+            "title": self.title,
+            "count": json_cell(self.count),
+            "denominator": json_cell(self.denominator),
+            "percent": json_cell(self.percent),
+            "threshold": self.threshold,
+            "passed": self.passed,
+            "activities": list(self.activities),
+            "unit": self.unit,
+            "note": self.note,
         }
 
 
@@ -153,20 +182,50 @@ def _percent(count: int, denominator: int) -> float | None:
     return None if not denominator else round(100.0 * count / denominator, 2)
 
 
-def _share(key: str, title: str, offending: np.ndarray, ids, denominator: int, *, at_most: float | None,
-           unit: str = "activities", note: str = "", threshold: str | None = None) -> Metric:
+def _share(
+    key: str,
+    title: str,
+    offending: np.ndarray,
+    ids,
+    denominator: int,
+    *,
+    at_most: float | None,
+    unit: str = "activities",
+    note: str = "",
+    threshold: str | None = None,
+) -> Metric:
     """A count-over-denominator metric: ``at_most`` percent, or ``None`` for 'none at all'."""
     count = int(np.count_nonzero(offending))
     listed = tuple(str(i) for i in np.asarray(ids, dtype=object)[offending])
     if not denominator:
-        return Metric(key, title, count, 0, None, threshold or _limit_text(at_most), None, listed, unit,
-                      note or f"not applicable: there are no {_population(unit)}")
+        return Metric(
+            key,
+            title,
+            count,
+            0,
+            None,
+            threshold or _limit_text(at_most),
+            None,
+            listed,
+            unit,
+            note or f"not applicable: there are no {_population(unit)}",
+        )
     if at_most is None:
         passed = count == 0
     else:
         passed = count * 100 <= at_most * denominator
-    return Metric(key, title, count, int(denominator), _percent(count, denominator),
-                  threshold or _limit_text(at_most), passed, listed, unit, note)
+    return Metric(
+        key,
+        title,
+        count,
+        int(denominator),
+        _percent(count, denominator),
+        threshold or _limit_text(at_most),
+        passed,
+        listed,
+        unit,
+        note,
+    )
 
 
 def _population(unit: str) -> str:
@@ -228,42 +287,95 @@ def metric_list(case: Case, snapshot: str | Snapshot = "baseline") -> list[Metri
     # 1 logic
     has_pred = np.bincount(net.succ, minlength=net.size) > 0
     has_succ = np.bincount(net.pred, minlength=net.size) > 0
-    metrics.append(_share("logic", "Missing logic", incomplete_task & ~(has_pred & has_succ), ids, tasks_left,
-                          at_most=5))
+    metrics.append(
+        _share("logic", "Missing logic", incomplete_task & ~(has_pred & has_succ), ids, tasks_left, at_most=5)
+    )
 
     # 2-4 relationships into incomplete tasks
     relationship = incomplete_task[net.succ]
     keys = np.asarray(link_keys(ids[net.pred], ids[net.succ]), dtype=object)
     links_counted = int(relationship.sum())
-    metrics.append(_share("leads", "Leads (negative lags)", relationship & (net.lag < 0), keys, links_counted,
-                          at_most=None, unit="links"))
-    metrics.append(_share("lags", "Lags (positive lags)", relationship & (net.lag > 0), keys, links_counted,
-                          at_most=5, unit="links"))
+    metrics.append(
+        _share(
+            "leads",
+            "Leads (negative lags)",
+            relationship & (net.lag < 0),
+            keys,
+            links_counted,
+            at_most=None,
+            unit="links",
+        )
+    )
+    metrics.append(
+        _share(
+            "lags", "Lags (positive lags)", relationship & (net.lag > 0), keys, links_counted, at_most=5, unit="links"
+        )
+    )
     metrics.append(_relationship_types(relationship, net.link_type, keys, links_counted))
 
     # 5 hard constraints
     constraint = table["constraint"].fillna("").to_numpy(dtype=object)
-    metrics.append(_share("hard_constraints", "Hard constraints",
-                          incomplete_task & np.isin(constraint, HARD_CONSTRAINTS), ids, tasks_left, at_most=5))
+    metrics.append(
+        _share(
+            "hard_constraints",
+            "Hard constraints",
+            incomplete_task & np.isin(constraint, HARD_CONSTRAINTS),
+            ids,
+            tasks_left,
+            at_most=5,
+        )
+    )
 
     # 6-7 float
     total_float = result.total_float
-    metrics.append(_share("high_float", f"High float (> {HIGH_FLOAT_DAYS} work days)",
-                          incomplete_task & (total_float > HIGH_FLOAT_DAYS), ids, tasks_left, at_most=5))
-    metrics.append(_share("negative_float", "Negative float", incomplete_task & (total_float < 0), ids,
-                          tasks_left, at_most=None))
+    metrics.append(
+        _share(
+            "high_float",
+            f"High float (> {HIGH_FLOAT_DAYS} work days)",
+            incomplete_task & (total_float > HIGH_FLOAT_DAYS),
+            ids,
+            tasks_left,
+            at_most=5,
+        )
+    )
+    metrics.append(
+        _share("negative_float", "Negative float", incomplete_task & (total_float < 0), ids, tasks_left, at_most=None)
+    )
 
     # 8 high duration (planned duration)
     duration = table["duration"].to_numpy()
-    metrics.append(_share("high_duration", f"High duration (> {HIGH_DURATION_DAYS} work days)",
-                          incomplete_task & (duration > HIGH_DURATION_DAYS), ids, tasks_left, at_most=5))
+    metrics.append(
+        _share(
+            "high_duration",
+            f"High duration (> {HIGH_DURATION_DAYS} work days)",
+            incomplete_task & (duration > HIGH_DURATION_DAYS),
+            ids,
+            tasks_left,
+            at_most=5,
+        )
+    )
 
     # 9 invalid dates
-    invalid = task & invalid_date_mask(model.data_day, status, result.day_array("early_start"),
-                                       result.day_array("early_finish"), model.actual_start, model.actual_finish)
-    metrics.append(_share("invalid_dates", "Invalid dates", invalid, ids, int(task.sum()), at_most=None,
-                          note="actual dates on or after the data date are also refused when the case "
-                               "is loaded; the engine never forecasts work before the data date"))
+    invalid = task & invalid_date_mask(
+        model.data_day,
+        status,
+        result.day_array("early_start"),
+        result.day_array("early_finish"),
+        model.actual_start,
+        model.actual_finish,
+    )
+    metrics.append(
+        _share(
+            "invalid_dates",
+            "Invalid dates",
+            invalid,
+            ids,
+            int(task.sum()),
+            at_most=None,
+            note="actual dates on or after the data date are also refused when the case "
+            "is loaded; the engine never forecasts work before the data date",
+        )
+    )
 
     # 10 resources
     metrics.append(_resources(table, incomplete_task, ids, tasks_left))
@@ -287,15 +399,40 @@ def _relationship_types(relationship: np.ndarray, link_type: np.ndarray, keys: n
     count = int(finish_to_start.sum())
     others = tuple(str(k) for k in keys[relationship & (link_type != 0)])
     if not counted:
-        return Metric("relationship_types", "Relationship types (finish-to-start share)", count, 0, None,
-                      ">= 90% FS", None, others, "links", "not applicable: there are no links into incomplete tasks")
-    return Metric("relationship_types", "Relationship types (finish-to-start share)", count, counted,
-                  _percent(count, counted), ">= 90% FS", count * 100 >= 90 * counted, others, "links",
-                  "count is the finish-to-start links; the list gives the other links")
+        return Metric(
+            "relationship_types",
+            "Relationship types (finish-to-start share)",
+            count,
+            0,
+            None,
+            ">= 90% FS",
+            None,
+            others,
+            "links",
+            "not applicable: there are no links into incomplete tasks",
+        )
+    return Metric(
+        "relationship_types",
+        "Relationship types (finish-to-start share)",
+        count,
+        counted,
+        _percent(count, counted),
+        ">= 90% FS",
+        count * 100 >= 90 * counted,
+        others,
+        "links",
+        "count is the finish-to-start links; the list gives the other links",
+    )
 
 
-def invalid_date_mask(data_day: int, status: np.ndarray, early_start: np.ndarray, early_finish: np.ndarray,
-                      actual_start: np.ndarray, actual_finish: np.ndarray) -> np.ndarray:
+def invalid_date_mask(
+    data_day: int,
+    status: np.ndarray,
+    early_start: np.ndarray,
+    early_finish: np.ndarray,
+    actual_start: np.ndarray,
+    actual_finish: np.ndarray,
+) -> np.ndarray:
     """Activities with an invalid date at the data date (all arrays shape ``(n,)``).
 
     A forecast (early) start of work not started, or a forecast finish of work not complete,
@@ -308,21 +445,41 @@ def invalid_date_mask(data_day: int, status: np.ndarray, early_start: np.ndarray
     forecast_start_early = not_started & (early_start != NO_DAY) & (early_start < data_day)
     forecast_finish_early = incomplete & (early_finish != NO_DAY) & (early_finish < data_day)
     actual_late = ((actual_start != NO_DAY) & (actual_start >= data_day)) | (
-        (actual_finish != NO_DAY) & (actual_finish >= data_day))
+        (actual_finish != NO_DAY) & (actual_finish >= data_day)
+    )
     return forecast_start_early | forecast_finish_early | actual_late
 
 
 def _resources(table: pd.DataFrame, incomplete_task: np.ndarray, ids, tasks_left: int) -> Metric:
     title = "Resources"
     if "resources" not in table.columns:
-        return Metric("resources", title, None, None, None, "-", None, (), "activities",
-                      "not applicable: the case holds no resource data (no 'resources' column)")
+        return Metric(
+            "resources",
+            title,
+            None,
+            None,
+            None,
+            "-",
+            None,
+            (),
+            "activities",
+            "not applicable: the case holds no resource data (no 'resources' column)",
+        )
     blank = table["resources"].fillna("").astype(str).str.strip().to_numpy() == ""
     metric = _share("resources", title, incomplete_task & blank, ids, tasks_left, at_most=None, threshold="-")
     # The assessment publishes no threshold for resources: the count is reported only.
-    return Metric(metric.key, metric.title, metric.count, metric.denominator, metric.percent, "-", None,
-                  metric.activities, metric.unit,
-                  "incomplete tasks whose 'resources' cell is blank; no published threshold, reported only")
+    return Metric(
+        metric.key,
+        metric.title,
+        metric.count,
+        metric.denominator,
+        metric.percent,
+        "-",
+        None,
+        metric.activities,
+        metric.unit,
+        "incomplete tasks whose 'resources' cell is blank; no published threshold, reported only",
+    )
 
 
 def _baseline_execution(case: Case, snap: Snapshot, result: ScheduleResult, table: pd.DataFrame):
@@ -347,23 +504,47 @@ def _baseline_execution(case: Case, snap: Snapshot, result: ScheduleResult, tabl
     note = ""
     if deleted:
         note = f"{deleted} baseline task(s) due by the data date are not in this snapshot and are left out"
-    missed_metric = _share("missed_activities", "Missed activities", missed, base_ids, due_count, at_most=5,
-                           note=note or ("" if due_count else "not applicable: no baseline task was due "
-                                                              "before the data date"))
+    missed_metric = _share(
+        "missed_activities",
+        "Missed activities",
+        missed,
+        base_ids,
+        due_count,
+        at_most=5,
+        note=note or ("" if due_count else "not applicable: no baseline task was due before the data date"),
+    )
     completed = int((base_task & finished).sum())
     title = "Baseline execution index"
     if not due_count:
-        bei = Metric("bei", title, completed, 0, None, ">= 0.95", None, (), "activities",
-                     "not applicable: no baseline task was due before the data date")
+        bei = Metric(
+            "bei",
+            title,
+            completed,
+            0,
+            None,
+            ">= 0.95",
+            None,
+            (),
+            "activities",
+            "not applicable: no baseline task was due before the data date",
+        )
     else:
         index = completed / due_count
         bei_note = f"BEI {index:.2f}: {completed} baseline task(s) complete of {due_count} due"
         if note:
             bei_note += f"; {note}"
-        bei = Metric("bei", title, completed, due_count, _percent(completed, due_count), ">= 0.95",
-                     completed * 100 >= 95 * due_count,
-                     tuple(str(i) for i in base_ids[missed]) if completed * 100 < 95 * due_count else (),
-                     "activities", bei_note)
+        bei = Metric(
+            "bei",
+            title,
+            completed,
+            due_count,
+            _percent(completed, due_count),
+            ">= 0.95",
+            completed * 100 >= 95 * due_count,
+            tuple(str(i) for i in base_ids[missed]) if completed * 100 < 95 * due_count else (),
+            "activities",
+            bei_note,
+        )
     return missed_metric, bei
 
 
@@ -383,16 +564,38 @@ def _critical_path_length_index(case: Case, result: ScheduleResult) -> Metric:
     to_contract = start_index(contract_day + 1) - start_index(data_day)
     title = "Critical path length index"
     if length <= 0:
-        return Metric("cpli", title, None, None, None, ">= 0.95", None, (), "activities",
-                      "not applicable: no work remains after the data date")
+        return Metric(
+            "cpli",
+            title,
+            None,
+            None,
+            None,
+            ">= 0.95",
+            None,
+            (),
+            "activities",
+            "not applicable: no work remains after the data date",
+        )
     index = to_contract / length
     passed = to_contract * 100 >= 95 * length
-    note = (f"CPLI {index:.2f}: {length} work days from the data date {result.data_date} to the forecast "
-            f"completion {result.completion}; {to_contract} to the contract completion in force {in_force} "
-            f"(total float {to_contract - length} work days)")
+    note = (
+        f"CPLI {index:.2f}: {length} work days from the data date {result.data_date} to the forecast "
+        f"completion {result.completion}; {to_contract} to the contract completion in force {in_force} "
+        f"(total float {to_contract - length} work days)"
+    )
     offending = () if passed else tuple(result.driving_path())
-    return Metric("cpli", title, to_contract, length, _percent(to_contract, length), ">= 0.95", passed,
-                  offending, "activities", note)
+    return Metric(
+        "cpli",
+        title,
+        to_contract,
+        length,
+        _percent(to_contract, length),
+        ">= 0.95",
+        passed,
+        offending,
+        "activities",
+        note,
+    )
 
 
 def _critical_path_test(case: Case, snap: Snapshot, result: ScheduleResult) -> Metric:
@@ -406,8 +609,18 @@ def _critical_path_test(case: Case, snap: Snapshot, result: ScheduleResult) -> M
     if not candidates.size:
         candidates = numbers[usable]
     if not candidates.size:
-        return Metric("critical_path_test", title, None, None, None, threshold, None, (), "activities",
-                      "not applicable: the driving path holds no task with work remaining")
+        return Metric(
+            "critical_path_test",
+            title,
+            None,
+            None,
+            None,
+            threshold,
+            None,
+            (),
+            "activities",
+            "not applicable: the driving path holds no task with work remaining",
+        )
     chosen = int(candidates[0])
     chosen_id = str(model.network.ids[chosen])
     delayed_day = model_of(case, snap).what_if(extend={chosen_id: CRITICAL_PATH_TEST_DELAY}).completion_day()
@@ -424,9 +637,20 @@ def _critical_path_test(case: Case, snap: Snapshot, result: ScheduleResult) -> M
         passed = abs(moved - CRITICAL_PATH_TEST_DELAY) <= MIXED_CALENDAR_TOLERANCE * CRITICAL_PATH_TEST_DELAY
         rule = f"within {MIXED_CALENDAR_TOLERANCE:.0%} (the driving path mixes calendars)"
     calendar_name = cals.names[model.calendar[chosen]]
-    note = (f"{chosen_id} lengthened by {CRITICAL_PATH_TEST_DELAY} work days: completion moved from "
-            f"{result.completion} to {day_to_date(delayed_day)}, {moved} work days of calendar '{calendar_name}'; "
-            f"it must move {rule} by the delay")
-    return Metric("critical_path_test", title, moved, CRITICAL_PATH_TEST_DELAY,
-                  _percent(moved, CRITICAL_PATH_TEST_DELAY), threshold, passed,
-                  () if passed else (chosen_id,), "activities", note)
+    note = (
+        f"{chosen_id} lengthened by {CRITICAL_PATH_TEST_DELAY} work days: completion moved from "
+        f"{result.completion} to {day_to_date(delayed_day)}, {moved} work days of calendar '{calendar_name}'; "
+        f"it must move {rule} by the delay"
+    )
+    return Metric(
+        "critical_path_test",
+        title,
+        moved,
+        CRITICAL_PATH_TEST_DELAY,
+        _percent(moved, CRITICAL_PATH_TEST_DELAY),
+        threshold,
+        passed,
+        () if passed else (chosen_id,),
+        "activities",
+        note,
+    )

@@ -64,8 +64,12 @@ def _out_adjacency(n: int, pred: np.ndarray, succ: np.ndarray, links: np.ndarray
     return ptr, np.ascontiguousarray(succ[by_pred]), np.ascontiguousarray(by_pred)
 
 
-def redundant_links(network: Network, duration: np.ndarray, exact_limit: int = EXACT_REDUNDANCY_LIMIT,
-                    bit_budget_words: int = BIT_BUDGET_WORDS) -> Redundancy:
+def redundant_links(
+    network: Network,
+    duration: np.ndarray,
+    exact_limit: int = EXACT_REDUNDANCY_LIMIT,
+    bit_budget_words: int = BIT_BUDGET_WORDS,
+) -> Redundancy:
     """Find the redundant finish-to-start links of a network.
 
     Parameters
@@ -106,8 +110,18 @@ def redundant_links(network: Network, duration: np.ndarray, exact_limit: int = E
     if not exact:
         keys = pred[searched] * np.int64(n) + succ[searched]
         order = np.argsort(keys)
-        _kernels.two_link_paths(out_ptr, out_succ, out_link, lag, duration, np.ascontiguousarray(keys[order]),
-                                np.ascontiguousarray(searched[order]), n, redundant, via)
+        _kernels.two_link_paths(
+            out_ptr,
+            out_succ,
+            out_link,
+            lag,
+            duration,
+            np.ascontiguousarray(keys[order]),
+            np.ascontiguousarray(searched[order]),
+            n,
+            redundant,
+            via,
+        )
         return Redundancy(redundant, via, exact)
 
     indegree = np.bincount(succ[searched], minlength=n)
@@ -121,8 +135,9 @@ def redundant_links(network: Network, duration: np.ndarray, exact_limit: int = E
     for first_word in range(0, total_words, words):
         reach = np.zeros((n, words), dtype=np.uint64)
         _kernels.reach_chunk(order, out_ptr, out_succ, target_column, first_word * 64, words, reach)
-        _kernels.mark_implied(n, out_ptr, out_succ, out_link, target_column, first_word * 64, words, reach,
-                              implied, via)
+        _kernels.mark_implied(
+            n, out_ptr, out_succ, out_link, target_column, first_word * 64, words, reach, implied, via
+        )
     # A link of lag 0 is implied by any path; one with a positive lag needs a path whose
     # implied lag is at least its own.
     positive = np.flatnonzero(implied & (lag > 0))
@@ -133,9 +148,21 @@ def redundant_links(network: Network, duration: np.ndarray, exact_limit: int = E
         group_ptr = np.append(starts, grouped.size).astype(np.int64)
         best = np.full(m, _kernels.NO_PATH, dtype=np.int64)
         through = np.full(m, -1, dtype=np.int64)
-        _kernels.longest_implied_lag(order, np.ascontiguousarray(network.rank, dtype=np.int64), out_ptr, out_succ,
-                                     out_link, lag, duration, ends.astype(np.int64), group_ptr,
-                                     np.ascontiguousarray(grouped, dtype=np.int64), pred, best, through)
+        _kernels.longest_implied_lag(
+            order,
+            np.ascontiguousarray(network.rank, dtype=np.int64),
+            out_ptr,
+            out_succ,
+            out_link,
+            lag,
+            duration,
+            ends.astype(np.int64),
+            group_ptr,
+            np.ascontiguousarray(grouped, dtype=np.int64),
+            pred,
+            best,
+            through,
+        )
         enough = best[positive] >= lag[positive]
         redundant[positive] = enough
         via[positive] = np.where(enough, through[positive], -1)

@@ -16,15 +16,26 @@ SHOWN = 20
 
 @click.command("check")
 @click.argument("case", type=click.Path(exists=True))
-@click.option("--snapshot", default=None, metavar="LABEL",
-              help="Folder name under snapshots/ or label; 'asbuilt' for the as-built record. "
-                   "Default: the baseline.")
-@click.option("--all", "all_snapshots", is_flag=True,
-              help="Check every snapshot: baseline, updates, then the as-built record.")
-@click.option("--compare", nargs=2, metavar="A B", default=None,
-              help="List every change from snapshot A to snapshot B instead.")
-@click.option("--format", "output_format", type=click.Choice(["table", "json"]), default="table",
-              show_default=True, help="How to print the findings.")
+@click.option(
+    "--snapshot",
+    default=None,
+    metavar="LABEL",
+    help="Folder name under snapshots/ or label; 'asbuilt' for the as-built record. Default: the baseline.",
+)
+@click.option(
+    "--all", "all_snapshots", is_flag=True, help="Check every snapshot: baseline, updates, then the as-built record."
+)
+@click.option(
+    "--compare", nargs=2, metavar="A B", default=None, help="List every change from snapshot A to snapshot B instead."
+)
+@click.option(
+    "--format",
+    "output_format",
+    type=click.Choice(["table", "json"]),
+    default="table",
+    show_default=True,
+    help="How to print the findings.",
+)
 @reports_input_errors
 def check(case, snapshot, all_snapshots, compare, output_format):
     """Check that the programmes are fit to use, and what changed between them.
@@ -49,12 +60,14 @@ def check(case, snapshot, all_snapshots, compare, output_format):
     JSON (--format json):
       one snapshot   {"snapshot", "metrics": [...], "data_checks": [...], "elements": {...}}
       --all          {"snapshots": [one object per snapshot, as above]}
-      --compare      {"earlier_snapshot", "earlier_label", "later_snapshot", "later_label", "counts": {...}, "changes": [...]}
+      --compare      {"earlier_snapshot", "earlier_label", "later_snapshot", "later_label", "counts": {...},
+          "changes": [...]}
 
     A failed metric is a finding about the records, not an error: the exit status is 0.
     It is 2, with one line per problem, only when the case or the options are invalid.
     """
-    from ..checks import check_snapshot, compare as compare_snapshots
+    from ..checks import check_snapshot
+    from ..checks import compare as compare_snapshots
     from ..checks._common import ordered_snapshots
 
     if all_snapshots and snapshot:
@@ -108,22 +121,39 @@ def _blank(value) -> str:
 
 
 def _print_findings(found: dict) -> None:
-    head = (f"{found['label']} ({found['snapshot']}): data date {found['data_date']}, forecast completion "
-            f"{found['completion']}, contract completion in force {found['completion_in_force']}")
+    head = (
+        f"{found['label']} ({found['snapshot']}): data date {found['data_date']}, forecast completion "
+        f"{found['completion']}, contract completion in force {found['completion_in_force']}"
+    )
     click.echo(head)
     rows = []
     for metric in found["metrics"]:
         percent = "" if metric["percent"] is None else f"{metric['percent']:g}%"
-        rows.append([metric["key"], _blank(metric["count"]), _blank(metric["denominator"]), percent,
-                     metric["threshold"], _verdict(metric["passed"]), _listed(metric["activities"])])
-    print_table("Schedule quality (DCMA-EA PAM 200.1, 2012, section 4; thresholds as recalled)",
-                ["metric", "count", "of", "percent", "threshold", "result", "offending"], rows)
+        rows.append(
+            [
+                metric["key"],
+                _blank(metric["count"]),
+                _blank(metric["denominator"]),
+                percent,
+                metric["threshold"],
+                _verdict(metric["passed"]),
+                _listed(metric["activities"]),
+            ]
+        )
+    print_table(
+        "Schedule quality (DCMA-EA PAM 200.1, 2012, section 4; thresholds as recalled)",
+        ["metric", "count", "of", "percent", "threshold", "result", "offending"],
+        rows,
+    )
     for metric in found["metrics"]:
         if metric["note"]:
             click.echo(f"  {metric['key']}: {metric['note']}")
 
-    print_table("Data checks", ["check", "status", "count", "title"],
-                [[c["key"], c["status"], c["count"], c["title"]] for c in found["data_checks"]])
+    print_table(
+        "Data checks",
+        ["check", "status", "count", "title"],
+        [[c["key"], c["status"], c["count"], c["title"]] for c in found["data_checks"]],
+    )
     for data_check in found["data_checks"]:
         if data_check["note"]:
             click.echo(f"  {data_check['key']}: {data_check['note']}")
@@ -139,20 +169,35 @@ def _print_findings(found: dict) -> None:
 
     elements = found["elements"]
     duplicates = elements["duplicates"]
-    print_table("Model elements", ["check", "count", "items"], [
-        ["unlinked elements", elements["unlinked_elements"]["count"],
-         _listed([i["element"] for i in elements["unlinked_elements"]["items"]])],
-        ["unmodelled activities", elements["unmodelled_activities"]["count"],
-         _listed([i["activity"] for i in elements["unmodelled_activities"]["items"]])],
-        ["duplicate groups", duplicates["count"],
-         _listed([" = ".join(g["elements"]) for g in duplicates["groups"]], 4)],
-        ["duplicate ids", "", duplicates["duplicate_ids"]],
-    ])
+    print_table(
+        "Model elements",
+        ["check", "count", "items"],
+        [
+            [
+                "unlinked elements",
+                elements["unlinked_elements"]["count"],
+                _listed([i["element"] for i in elements["unlinked_elements"]["items"]]),
+            ],
+            [
+                "unmodelled activities",
+                elements["unmodelled_activities"]["count"],
+                _listed([i["activity"] for i in elements["unmodelled_activities"]["items"]]),
+            ],
+            [
+                "duplicate groups",
+                duplicates["count"],
+                _listed([" = ".join(g["elements"]) for g in duplicates["groups"]], 4),
+            ],
+            ["duplicate ids", "", duplicates["duplicate_ids"]],
+        ],
+    )
 
 
 def _print_comparison(comparison) -> None:
-    click.echo(f"Changes from '{comparison.earlier}' ({comparison.earlier_folder}) to '{comparison.later}' "
-               f"({comparison.later_folder})")
+    click.echo(
+        f"Changes from '{comparison.earlier}' ({comparison.earlier_folder}) to '{comparison.later}' "
+        f"({comparison.later_folder})"
+    )
     print_table("Changes by kind", ["kind", "count"], [[k, v] for k, v in comparison.counts().items()])
     frame = comparison.changes
     columns = ["kind", "activity", "pred", "succ", "field", "before", "after", "touches_driving_path"]

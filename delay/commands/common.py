@@ -18,8 +18,21 @@ EXIT_INPUT = 2
 FORMAT = click.Choice(["table", "csv", "json"])
 
 #: Columns of free text: they wrap at a width of their own so the others keep theirs.
-WIDE_COLUMNS = {"name", "title", "label", "reason", "note", "notes", "removed", "events", "activities",
-                "concurrent with", "offending", "applied", "not_scored"}
+WIDE_COLUMNS = {
+    "name",
+    "title",
+    "label",
+    "reason",
+    "note",
+    "notes",
+    "removed",
+    "events",
+    "activities",
+    "concurrent with",
+    "offending",
+    "applied",
+    "not_scored",
+}
 
 
 def _fail(lines: list[str]) -> None:
@@ -42,8 +55,11 @@ def reports_input_errors(command):
             lines.append(f"{len(error.problems)} problem(s) found; nothing was written.")
             _fail(lines)
         except ReconciliationError as error:
-            click.echo(f"error: {error} - the analysis was stopped; nothing was written. Please report this "
-                       "with the case, it is a fault of the toolkit or a record it cannot reconcile", err=True)
+            click.echo(
+                f"error: {error} - the analysis was stopped; nothing was written. Please report this "
+                "with the case, it is a fault of the toolkit or a record it cannot reconcile",
+                err=True,
+            )
             sys.exit(1)
         except (OutputRefused, OutputFailed) as error:
             _fail([f"error: {error}"])
@@ -87,5 +103,3 @@ def load_case_argument(case_path: str):
     from ..case import load_case
 
     return load_case(Path(case_path))
-
-

@@ -10,8 +10,10 @@ from .common import load_case_argument, print_table, reports_input_errors
 
 __all__ = ["entitlement", "COMMANDS", "applicable_methods"]
 
-CAUTION = ("Results depend on the records and on the method chosen; they are not legal advice. "
-           "The contract, the applicable law and the analyst's professional judgement govern.")
+CAUTION = (
+    "Results depend on the records and on the method chosen; they are not legal advice. "
+    "The contract, the applicable law and the analyst's professional judgement govern."
+)
 
 METHOD_CHOICES = ["windows", "impacted", "tia", "collapsed", "all"]
 
@@ -48,9 +50,14 @@ def _text(value) -> str:
 
 @click.command()
 @click.argument("case", type=click.Path(exists=True))
-@click.option("--method", type=click.Choice(METHOD_CHOICES), default="all", show_default=True,
-              help="The method whose causation table the entitlement rests on; all: every method the case "
-                   "supports (windows needs two programmes, collapsed an as-built record).")
+@click.option(
+    "--method",
+    type=click.Choice(METHOD_CHOICES),
+    default="all",
+    show_default=True,
+    help="The method whose causation table the entitlement rests on; all: every method the case "
+    "supports (windows needs two programmes, collapsed an as-built record).",
+)
 @click.option("--format", "output_format", type=click.Choice(["table", "json"]), default="table", show_default=True)
 @reports_input_errors
 def entitlement(case, method, output_format):
@@ -91,53 +98,119 @@ def entitlement(case, method, output_format):
         click.echo(json.dumps(result.to_json(), indent=2))
         return
     currency = result.currency
-    figures = [("contract completion in force", lambda m: m.completion_in_force),
-               ("planned completion", lambda m: m.planned_completion),
-               ("excusable days", lambda m: m.excusable_days),
-               ("extension of time (days)", lambda m: m.eot_days),
-               ("revised completion", lambda m: m.revised_completion),
-               ("actual or forecast completion", lambda m: m.actual_completion),
-               ("compensable days", lambda m: m.compensable_days),
-               (f"prolongation cost ({currency})", lambda m: _text(m.prolongation_cost)),
-               ("culpable delay (the contractor's net delay)", lambda m: m.culpable_delay_days),
-               ("acceleration (the contractor's net recovery)", lambda m: m.acceleration_days),
-               ("days of liquidated damages (past the revised completion)", lambda m: m.ld_days),
-               (f"liquidated damages ({currency})",
-                lambda m: _text(m.ld_exposure) + (" (capped)" if m.ld_capped else "")),
-               ("concurrent days", lambda m: m.concurrent_days)]
-    print_table(f"Entitlement per method (calendar days; concurrency {result.concurrency})",
-                ["figure", *[m.method for m in result.methods]],
-                [[name, *[_text(value(m)) for m in result.methods]] for name, value in figures])
+    figures = [
+        ("contract completion in force", lambda m: m.completion_in_force),
+        ("planned completion", lambda m: m.planned_completion),
+        ("excusable days", lambda m: m.excusable_days),
+        ("extension of time (days)", lambda m: m.eot_days),
+        ("revised completion", lambda m: m.revised_completion),
+        ("actual or forecast completion", lambda m: m.actual_completion),
+        ("compensable days", lambda m: m.compensable_days),
+        (f"prolongation cost ({currency})", lambda m: _text(m.prolongation_cost)),
+        ("culpable delay (the contractor's net delay)", lambda m: m.culpable_delay_days),
+        ("acceleration (the contractor's net recovery)", lambda m: m.acceleration_days),
+        ("days of liquidated damages (past the revised completion)", lambda m: m.ld_days),
+        (f"liquidated damages ({currency})", lambda m: _text(m.ld_exposure) + (" (capped)" if m.ld_capped else "")),
+        ("concurrent days", lambda m: m.concurrent_days),
+    ]
+    print_table(
+        f"Entitlement per method (calendar days; concurrency {result.concurrency})",
+        ["figure", *[m.method for m in result.methods]],
+        [[name, *[_text(value(m)) for m in result.methods]] for name, value in figures],
+    )
     for m in result.methods:
         if len(m.sections):
-            print_table(f"{m.method}: sections (never add them to each other or to the whole works)",
-                        ["section", "milestone", "in force", "planned", "excusable", "extension", "revised",
-                         "actual or forecast", "compensable", "prolongation cost", "damages days", "damages", "note"],
-                        [[s["section"], s["completion_activity"], _text(s["completion_in_force"]),
-                          _text(s["planned_completion"]), _text(s["excusable_days"]), _text(s["eot_days"]),
-                          _text(s["revised_completion"]), _text(s["actual_completion"]),
-                          _text(s["compensable_days"]), _text(s["prolongation_cost"]), _text(s["ld_days"]),
-                          _text(s["ld_exposure"]) + (" (capped)" if s["ld_capped"] else ""), _text(s["note"])]
-                         for s in m.sections.to_dict("records")])
+            print_table(
+                f"{m.method}: sections (never add them to each other or to the whole works)",
+                [
+                    "section",
+                    "milestone",
+                    "in force",
+                    "planned",
+                    "excusable",
+                    "extension",
+                    "revised",
+                    "actual or forecast",
+                    "compensable",
+                    "prolongation cost",
+                    "damages days",
+                    "damages",
+                    "note",
+                ],
+                [
+                    [
+                        s["section"],
+                        s["completion_activity"],
+                        _text(s["completion_in_force"]),
+                        _text(s["planned_completion"]),
+                        _text(s["excusable_days"]),
+                        _text(s["eot_days"]),
+                        _text(s["revised_completion"]),
+                        _text(s["actual_completion"]),
+                        _text(s["compensable_days"]),
+                        _text(s["prolongation_cost"]),
+                        _text(s["ld_days"]),
+                        _text(s["ld_exposure"]) + (" (capped)" if s["ld_capped"] else ""),
+                        _text(s["note"]),
+                    ]
+                    for s in m.sections.to_dict("records")
+                ],
+            )
         table = m.causation.table
         shown = table[(table["days"] != 0) | (table["concurrent_with"] != "")]
-        print_table(f"{m.method}: causation ({m.causation.explained_days} days: {m.causation.explains})",
-                    ["step", "event", "party", "activities", "days", "alone (need not add up)", "concurrent with", "excusable",
-                     "compensable", "culpable", "classification"],
-                    [[r.step, r.event, r.party, r.activities, r.days, _text(r.alone_days), r.concurrent_with,
-                      r.excusable_days, r.compensable_days, r.culpable_days, r.classification]
-                     for r in shown.itertuples(index=False)])
+        print_table(
+            f"{m.method}: causation ({m.causation.explained_days} days: {m.causation.explains})",
+            [
+                "step",
+                "event",
+                "party",
+                "activities",
+                "days",
+                "alone (need not add up)",
+                "concurrent with",
+                "excusable",
+                "compensable",
+                "culpable",
+                "classification",
+            ],
+            [
+                [
+                    r.step,
+                    r.event,
+                    r.party,
+                    r.activities,
+                    r.days,
+                    _text(r.alone_days),
+                    r.concurrent_with,
+                    r.excusable_days,
+                    r.compensable_days,
+                    r.culpable_days,
+                    r.classification,
+                ]
+                for r in shown.itertuples(index=False)
+            ],
+        )
         if len(m.events):
-            print_table(f"{m.method}: events, claimed beside assessed",
-                        ["event", "party", "notified", "claimed", "assessed", "excusable", "compensable", "note"],
-                        [[e["event"], e["party"], _text(e["notified"]), _text(e["claimed_days"]),
-                          _text(e["assessed_days"]), _text(e["excusable_days"]), _text(e["compensable_days"]),
-                          e["note"]] for e in m.events.to_dict("records")])
+            print_table(
+                f"{m.method}: events, claimed beside assessed",
+                ["event", "party", "notified", "claimed", "assessed", "excusable", "compensable", "note"],
+                [
+                    [
+                        e["event"],
+                        e["party"],
+                        _text(e["notified"]),
+                        _text(e["claimed_days"]),
+                        _text(e["assessed_days"]),
+                        _text(e["excusable_days"]),
+                        _text(e["compensable_days"]),
+                        e["note"],
+                    ]
+                    for e in m.events.to_dict("records")
+                ],
+            )
     for line in reasons:
         click.echo(line)
     click.echo(f"Impacts alone and but-for days need not add up; the classified days do. {CAUTION}")
-
-
 
 
 @click.command()
@@ -163,15 +236,44 @@ def compare(case, output_format):
         click.echo(json.dumps(payload, indent=2))
         return
     methods = list(result.methods)
-    print_table("Days of delay to completion per party (each method's column adds up to what it explains)",
-                ["party", *methods], result.by_party.values.tolist())
-    print_table("Days per event (a day explained by several events counts against each)",
-                ["event", "party", *methods], result.by_event.drop(columns="title").values.tolist())
-    print_table("Sensitivity of the headline figures",
-                ["method", "variant", "progress", "concurrency", "extension of time", "compensable", "damages days",
-                 "damages", "changed"],
-                [[r.method, r.variant, r.progress, r.concurrency, r.eot_days, r.compensable_days, r.ld_days,
-                  f"{r.ld_exposure:,.2f}", "yes" if r.changed else ""] for r in table.itertuples()])
+    print_table(
+        "Days of delay to completion per party (each method's column adds up to what it explains)",
+        ["party", *methods],
+        result.by_party.values.tolist(),
+    )
+    print_table(
+        "Days per event (a day explained by several events counts against each)",
+        ["event", "party", *methods],
+        result.by_event.drop(columns="title").values.tolist(),
+    )
+    print_table(
+        "Sensitivity of the headline figures",
+        [
+            "method",
+            "variant",
+            "progress",
+            "concurrency",
+            "extension of time",
+            "compensable",
+            "damages days",
+            "damages",
+            "changed",
+        ],
+        [
+            [
+                r.method,
+                r.variant,
+                r.progress,
+                r.concurrency,
+                r.eot_days,
+                r.compensable_days,
+                r.ld_days,
+                f"{r.ld_exposure:,.2f}",
+                "yes" if r.changed else "",
+            ]
+            for r in table.itertuples()
+        ],
+    )
     for line in result.explanation:
         click.echo(line)
 

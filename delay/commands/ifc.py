@@ -35,8 +35,11 @@ def _print_findings(findings, title: str, output_format: str) -> None:
     if output_format == "json" or not len(findings):
         return
     shown = findings.head(_SHOWN_FINDINGS)
-    print_table(title, ["kind", "entity", "subject", "message"],
-                [[r.kind, r.entity, r.subject, r.message] for r in shown.itertuples(index=False)])
+    print_table(
+        title,
+        ["kind", "entity", "subject", "message"],
+        [[r.kind, r.entity, r.subject, r.message] for r in shown.itertuples(index=False)],
+    )
     if len(findings) > _SHOWN_FINDINGS:
         click.echo(f"... and {len(findings) - _SHOWN_FINDINGS} more findings.")
 
@@ -47,8 +50,15 @@ def _progress_bar(description: str):
     from rich.progress import BarColumn, MofNCompleteColumn, Progress, TextColumn, TimeRemainingColumn
 
     console = Console(stderr=True)
-    progress = Progress(TextColumn("{task.description}"), BarColumn(), MofNCompleteColumn(), TimeRemainingColumn(),
-                        console=console, transient=True, disable=not console.is_terminal)
+    progress = Progress(
+        TextColumn("{task.description}"),
+        BarColumn(),
+        MofNCompleteColumn(),
+        TimeRemainingColumn(),
+        console=console,
+        transient=True,
+        disable=not console.is_terminal,
+    )
     task = progress.add_task(description, total=None)
     return progress, (lambda total: progress.update(task, total=total)), (lambda n: progress.advance(task, n))
 
@@ -56,13 +66,26 @@ def _progress_bar(description: str):
 @click.command("import-ifc")
 @click.argument("model", type=click.Path(dir_okay=False))
 @click.argument("case", type=click.Path(exists=True))
-@click.option("--code-property", metavar="PSET.NAME", default=None,
-              help="The property that carries each element's work breakdown code, e.g. Pset_Codes.WBS.")
-@click.option("--classification", "classification", metavar="SYSTEM", default=None,
-              help="The classification system (IfcClassification Name) for the classification column, when the "
-                   "model uses several.")
-@click.option("--code-classification", metavar="SYSTEM", default=None,
-              help="A classification system whose reference is the work breakdown code.")
+@click.option(
+    "--code-property",
+    metavar="PSET.NAME",
+    default=None,
+    help="The property that carries each element's work breakdown code, e.g. Pset_Codes.WBS.",
+)
+@click.option(
+    "--classification",
+    "classification",
+    metavar="SYSTEM",
+    default=None,
+    help="The classification system (IfcClassification Name) for the classification column, when the "
+    "model uses several.",
+)
+@click.option(
+    "--code-classification",
+    metavar="SYSTEM",
+    default=None,
+    help="A classification system whose reference is the work breakdown code.",
+)
 @click.option("--format", "output_format", type=click.Choice(["table", "json"]), default="table", show_default=True)
 @needs_ifc_extra
 @reports_input_errors
@@ -85,40 +108,72 @@ def import_ifc(model, case, code_property, classification, code_classification, 
 
     progress, on_total, advance = _progress_bar("Reading element geometry")
     with progress:
-        result = import_model(Path(model), Path(case), code_property=code_property, classification=classification,
-                              code_classification=code_classification, progress=advance, on_total=on_total)
+        result = import_model(
+            Path(model),
+            Path(case),
+            code_property=code_property,
+            classification=classification,
+            code_classification=code_classification,
+            progress=advance,
+            on_total=on_total,
+        )
     read = result.read
     summary = {
-        "model": str(model), "schema": read.schema, "length_unit_in_metres": read.length_unit_in_metres,
-        "physical_elements": read.physical_elements, "elements_written": int(len(read.elements)),
-        "replaced": result.replaced, "added": result.added, "elements_in_case": int(len(result.elements)),
-        "findings": read.findings.to_dict("records"), "written": [str(p) for p in result.written],
+        "model": str(model),
+        "schema": read.schema,
+        "length_unit_in_metres": read.length_unit_in_metres,
+        "physical_elements": read.physical_elements,
+        "elements_written": int(len(read.elements)),
+        "replaced": result.replaced,
+        "added": result.added,
+        "elements_in_case": int(len(result.elements)),
+        "findings": read.findings.to_dict("records"),
+        "written": [str(p) for p in result.written],
     }
     if output_format == "json":
         click.echo(json.dumps(summary, indent=2))
         return
     _print_findings(read.findings, "Findings (not errors)", output_format)
     counts = read.findings["kind"].value_counts().to_dict() if len(read.findings) else {}
-    click.echo(f"Read {read.physical_elements} physical elements from {model} ({read.schema}, length unit "
-               f"{read.length_unit_in_metres:g} m): {len(read.elements)} written, {result.replaced} replaced, "
-               f"{result.added} added; elements.csv now holds {len(result.elements)} elements.")
+    click.echo(
+        f"Read {read.physical_elements} physical elements from {model} ({read.schema}, length unit "
+        f"{read.length_unit_in_metres:g} m): {len(read.elements)} written, {result.replaced} replaced, "
+        f"{result.added} added; elements.csv now holds {len(result.elements)} elements."
+    )
     if counts:
-        click.echo("Findings: " + ", ".join(f"{k} {v}" for k, v in counts.items())
-                   + f" (see {Path(case) / 'elements_findings.csv'}).")
+        click.echo(
+            "Findings: "
+            + ", ".join(f"{k} {v}" for k, v in counts.items())
+            + f" (see {Path(case) / 'elements_findings.csv'})."
+        )
 
 
 @click.command("import-ifc-schedule")
 @click.argument("model", type=click.Path(dir_okay=False))
 @click.argument("case", type=click.Path(exists=True))
-@click.option("--snapshot", "folder", required=True, metavar="FOLDER",
-              help="The snapshot folder to write under snapshots/ (e.g. 2025-06-30, or baseline).")
-@click.option("--data-date", default=None, metavar="YYYY-MM-DD",
-              help="The snapshot's data date; default the one the file gives.")
+@click.option(
+    "--snapshot",
+    "folder",
+    required=True,
+    metavar="FOLDER",
+    help="The snapshot folder to write under snapshots/ (e.g. 2025-06-30, or baseline).",
+)
+@click.option(
+    "--data-date", default=None, metavar="YYYY-MM-DD", help="The snapshot's data date; default the one the file gives."
+)
 @click.option("--label", default=None, help="The snapshot's label; default the folder name.")
-@click.option("--kind", type=click.Choice(["baseline", "update"]), default=None,
-              help="Default: baseline for the folder 'baseline', else update.")
-@click.option("--work-schedule", default=None, metavar="NAME",
-              help="Which IfcWorkSchedule (Name, Identification or GlobalId) when the file holds several.")
+@click.option(
+    "--kind",
+    type=click.Choice(["baseline", "update"]),
+    default=None,
+    help="Default: baseline for the folder 'baseline', else update.",
+)
+@click.option(
+    "--work-schedule",
+    default=None,
+    metavar="NAME",
+    help="Which IfcWorkSchedule (Name, Identification or GlobalId) when the file holds several.",
+)
 @click.option("--replace", is_flag=True, help="Replace the snapshot folder when it exists.")
 @click.option("--format", "output_format", type=click.Choice(["table", "json"]), default="table", show_default=True)
 @needs_ifc_extra
@@ -136,33 +191,64 @@ def import_ifc_schedule(model, case, folder, data_date, label, kind, work_schedu
     """
     from ..ifc import import_work_schedule
 
-    result = import_work_schedule(Path(model), Path(case), folder, data_date=data_date, label=label, kind=kind,
-                                  work_schedule=work_schedule, replace=replace)
+    result = import_work_schedule(
+        Path(model),
+        Path(case),
+        folder,
+        data_date=data_date,
+        label=label,
+        kind=kind,
+        work_schedule=work_schedule,
+        replace=replace,
+    )
     if output_format == "json":
-        click.echo(json.dumps({
-            "snapshot": folder, "label": result.label, "kind": result.kind,
-            "data_date": result.data_date.isoformat(), "work_schedule": result.read.name,
-            "activities": int(len(result.read.activities)), "links": int(len(result.read.links)),
-            "calendars_added": list(result.calendars_added), "findings": result.findings.to_dict("records"),
-            "written": [str(p) for p in result.written],
-        }, indent=2))
+        click.echo(
+            json.dumps(
+                {
+                    "snapshot": folder,
+                    "label": result.label,
+                    "kind": result.kind,
+                    "data_date": result.data_date.isoformat(),
+                    "work_schedule": result.read.name,
+                    "activities": int(len(result.read.activities)),
+                    "links": int(len(result.read.links)),
+                    "calendars_added": list(result.calendars_added),
+                    "findings": result.findings.to_dict("records"),
+                    "written": [str(p) for p in result.written],
+                },
+                indent=2,
+            )
+        )
         return
     _print_findings(result.findings, "Findings (not errors)", output_format)
-    click.echo(f"Wrote snapshots/{folder} ({result.kind}, data date {result.data_date}) from the work schedule "
-               f"'{result.read.name}': {len(result.read.activities)} activities, {len(result.read.links)} links"
-               + (f"; calendars added: {', '.join(result.calendars_added)}" if result.calendars_added else "") + ".")
+    click.echo(
+        f"Wrote snapshots/{folder} ({result.kind}, data date {result.data_date}) from the work schedule "
+        f"'{result.read.name}': {len(result.read.activities)} activities, {len(result.read.links)} links"
+        + (f"; calendars added: {', '.join(result.calendars_added)}" if result.calendars_added else "")
+        + "."
+    )
 
 
 @click.command("export-ifc")
 @click.argument("case", type=click.Path(exists=True))
 @click.argument("out", type=click.Path())
-@click.option("--snapshot", default="baseline", show_default=True,
-              help="Folder name under snapshots/ or label; 'asbuilt' for the as-built record.")
-@click.option("--model", "model_path", type=click.Path(dir_okay=False, exists=True), default=None,
-              help="An IFC 4 model to add the schedule to (default: the model the elements were imported from, "
-                   "when it is still there).")
-@click.option("--placeholders", is_flag=True,
-              help="Write placeholders from elements.csv even when the imported model is there.")
+@click.option(
+    "--snapshot",
+    default="baseline",
+    show_default=True,
+    help="Folder name under snapshots/ or label; 'asbuilt' for the as-built record.",
+)
+@click.option(
+    "--model",
+    "model_path",
+    type=click.Path(dir_okay=False, exists=True),
+    default=None,
+    help="An IFC 4 model to add the schedule to (default: the model the elements were imported from, "
+    "when it is still there).",
+)
+@click.option(
+    "--placeholders", is_flag=True, help="Write placeholders from elements.csv even when the imported model is there."
+)
 @click.option("--format", "output_format", type=click.Choice(["table", "json"]), default="table", show_default=True)
 @needs_ifc_extra
 @reports_input_errors
@@ -180,20 +266,30 @@ def export_ifc(case, out, snapshot, model_path, placeholders, output_format):
     from ..ifc import export_schedule
 
     loaded = load_case_argument(case)
-    result = export_schedule(loaded, snapshot, Path(out), model=Path(model_path) if model_path else None,
-                             use_imported_model=not placeholders)
-    facts = {"path": str(result.path), "tasks": result.tasks, "links": result.links, "calendars": result.calendars,
-             "model": str(result.model) if result.model else None, "model_elements": result.model_elements,
-             "placeholders": result.placeholders, "assignments": result.assignments,
-             "findings": result.findings.to_dict("records")}
+    result = export_schedule(
+        loaded, snapshot, Path(out), model=Path(model_path) if model_path else None, use_imported_model=not placeholders
+    )
+    facts = {
+        "path": str(result.path),
+        "tasks": result.tasks,
+        "links": result.links,
+        "calendars": result.calendars,
+        "model": str(result.model) if result.model else None,
+        "model_elements": result.model_elements,
+        "placeholders": result.placeholders,
+        "assignments": result.assignments,
+        "findings": result.findings.to_dict("records"),
+    }
     if output_format == "json":
         click.echo(json.dumps(facts, indent=2))
         return
     _print_findings(result.findings, "Findings (not errors)", output_format)
     where = f"added to a copy of {result.model}" if result.model else "with placeholders from elements.csv"
-    click.echo(f"Wrote {out}: {result.tasks} tasks, {result.links} links, {result.calendars} calendars, {where}; "
-               f"{result.assignments} elements assigned to the tasks that build them "
-               f"({result.model_elements} model elements, {result.placeholders} placeholders).")
+    click.echo(
+        f"Wrote {out}: {result.tasks} tasks, {result.links} links, {result.calendars} calendars, {where}; "
+        f"{result.assignments} elements assigned to the tasks that build them "
+        f"({result.model_elements} model elements, {result.placeholders} placeholders)."
+    )
 
 
 COMMANDS = (import_ifc, import_ifc_schedule, export_ifc)

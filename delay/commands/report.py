@@ -11,15 +11,23 @@ from .common import EXIT_INPUT, load_case_argument, reports_input_errors
 
 __all__ = ["report", "verify", "COMMANDS"]
 
-METHODS_HELP = ("Methods to run, comma separated, among windows, impacted, tia, collapsed, asbuilt; default all "
-                "that the case supports (windows needs two programmes; collapsed and asbuilt an as-built record).")
+METHODS_HELP = (
+    "Methods to run, comma separated, among windows, impacted, tia, collapsed, asbuilt; default all "
+    "that the case supports (windows needs two programmes; collapsed and asbuilt an as-built record)."
+)
 
 
 @click.command()
 @click.argument("case", type=click.Path(exists=True))
-@click.option("--out", "out_dir", type=click.Path(), default="out/report", show_default=True,
-              help="Folder for the report: new, empty, or an earlier output of the toolkit (replaced whole); "
-                   "never the case folder, inside it or above it.")
+@click.option(
+    "--out",
+    "out_dir",
+    type=click.Path(),
+    default="out/report",
+    show_default=True,
+    help="Folder for the report: new, empty, or an earlier output of the toolkit (replaced whole); "
+    "never the case folder, inside it or above it.",
+)
 @click.option("--methods", default=None, metavar="M1,M2,...", help=METHODS_HELP)
 @click.option("--title", default=None, help="Title of the report (default: 'Delay analysis: <project name>').")
 @reports_input_errors
@@ -58,8 +66,13 @@ def report(case, out_dir, methods, title):
 
 @click.command()
 @click.argument("directory", type=click.Path(exists=True, file_okay=False))
-@click.option("--case", "case_path", type=click.Path(exists=True), default=None,
-              help="The case folder or workbook, when it has moved since the report was made.")
+@click.option(
+    "--case",
+    "case_path",
+    type=click.Path(exists=True),
+    default=None,
+    help="The case folder or workbook, when it has moved since the report was made.",
+)
 @reports_input_errors
 def verify(directory, case_path):
     """Check a report folder against the inputs it was made from.

@@ -8,15 +8,21 @@ import click
 
 from .common import load_case_argument, print_table, reports_input_errors
 
-CAUTION = ("Results depend on the records and on the method chosen; they are not legal advice. "
-           "The contract, the applicable law and the analyst's professional judgement govern.")
+CAUTION = (
+    "Results depend on the records and on the method chosen; they are not legal advice. "
+    "The contract, the applicable law and the analyst's professional judgement govern."
+)
 
 
 @click.command()
 @click.argument("case", type=click.Path(exists=True))
-@click.option("--windows", "boundaries", default=None, metavar="L1,L2,...",
-              help="Boundary snapshots (folder names or labels), earliest first; default every snapshot "
-                   "and the as-built record.")
+@click.option(
+    "--windows",
+    "boundaries",
+    default=None,
+    metavar="L1,L2,...",
+    help="Boundary snapshots (folder names or labels), earliest first; default every snapshot and the as-built record.",
+)
 @click.option("--no-half-step", is_flag=True, help="Do not split windows into progress and revision effects.")
 @click.option("--format", "output_format", type=click.Choice(["table", "json"]), default="table", show_default=True)
 @reports_input_errors
@@ -43,31 +49,85 @@ def windows(case, boundaries, no_half_step, output_format):
     if output_format == "json":
         click.echo(json.dumps(result.to_json(), indent=2))
         return
-    rows = [[w.number, w.start, w.end, w.completion_start, w.completion_end, w.movement_days,
-             w.movement_work_days, w.progress_days, w.revision_days,
-             ", ".join(f"{p} {d:+d}" for p, d in w.by_party_days.items())] for w in result.windows]
-    print_table(f"Windows, traced to {result.target} (calendar days; work days of calendar "
-                f"'{result.ledger_calendar}'; positive is delay)",
-                ["window", "from", "to", "completion before", "completion after", "movement",
-                 "movement (work days)", "progress", "revisions", "by party"], rows)
+    rows = [
+        [
+            w.number,
+            w.start,
+            w.end,
+            w.completion_start,
+            w.completion_end,
+            w.movement_days,
+            w.movement_work_days,
+            w.progress_days,
+            w.revision_days,
+            ", ".join(f"{p} {d:+d}" for p, d in w.by_party_days.items()),
+        ]
+        for w in result.windows
+    ]
+    print_table(
+        f"Windows, traced to {result.target} (calendar days; work days of calendar "
+        f"'{result.ledger_calendar}'; positive is delay)",
+        [
+            "window",
+            "from",
+            "to",
+            "completion before",
+            "completion after",
+            "movement",
+            "movement (work days)",
+            "progress",
+            "revisions",
+            "by party",
+        ],
+        rows,
+    )
     for w in result.windows:
         counted = w.counted
-        lines = [[r.activity, r.name, r.work_days, r.days, ", ".join(r.events), r.party, r.basis,
-                  ", ".join(r.concurrent_with)] for r in counted.itertuples()]
-        lines += [[f"({r.kind})", ", ".join(r.activities[:6]) + (" ..." if len(r.activities) > 6 else ""),
-                   r.work_days, r.days, ", ".join(r.events), r.party, r.basis, ""] for r in w.revisions.itertuples()]
+        lines = [
+            [
+                r.activity,
+                r.name,
+                r.work_days,
+                r.days,
+                ", ".join(r.events),
+                r.party,
+                r.basis,
+                ", ".join(r.concurrent_with),
+            ]
+            for r in counted.itertuples()
+        ]
+        lines += [
+            [
+                f"({r.kind})",
+                ", ".join(r.activities[:6]) + (" ..." if len(r.activities) > 6 else ""),
+                r.work_days,
+                r.days,
+                ", ".join(r.events),
+                r.party,
+                r.basis,
+                "",
+            ]
+            for r in w.revisions.itertuples()
+        ]
         if lines:
-            print_table(f"Window {w.number}: {w.start} to {w.end}",
-                        ["activity", "name", "work days", "days", "events", "party", "basis", "concurrent with"],
-                        lines)
+            print_table(
+                f"Window {w.number}: {w.start} to {w.end}",
+                ["activity", "name", "work days", "days", "events", "party", "basis", "concurrent with"],
+                lines,
+            )
         click.echo(w.sentence)
     click.echo(f"Total movement: {result.total_movement_days} calendar days. {CAUTION}")
 
 
 @click.command()
 @click.argument("case", type=click.Path(exists=True))
-@click.option("--period", type=click.Choice(["W", "M", "Q"]), default="M", show_default=True,
-              help="Period for the delay along the as-built critical path: week, month or quarter.")
+@click.option(
+    "--period",
+    type=click.Choice(["W", "M", "Q"]),
+    default="M",
+    show_default=True,
+    help="Period for the delay along the as-built critical path: week, month or quarter.",
+)
 @click.option("--format", "output_format", type=click.Choice(["table", "json"]), default="table", show_default=True)
 @reports_input_errors
 def asbuilt(case, period, output_format):
@@ -89,18 +149,48 @@ def asbuilt(case, period, output_format):
         click.echo(json.dumps(result.to_json(), indent=2))
         return
     path = result.critical_path
-    rows = [[r.activity, r.name, r.actual_start.date(), r.actual_finish.date(),
-             "" if r.planned_finish is None or str(r.planned_finish) == "NaT" else r.planned_finish.date(),
-             r.driving_predecessor, r.link, "" if str(r.gap_work_days) == "<NA>" else r.gap_work_days,
-             r.lateness_work_days, r.work_days, r.delay_days] for r in path.itertuples()]
-    print_table(f"As-built critical path to {result.target}",
-                ["activity", "name", "actual start", "actual finish", "planned finish", "driven by", "link",
-                 "gap (work days)", "late (work days)", "delay (work days)", "delay (days)"], rows)
-    print_table("Delay along the as-built critical path by period",
-                ["period", "delay days", "work days", "cumulative"],
-                [[r.period, r.delay_days, r.work_days, r.cumulative_days] for r in result.periods.itertuples()])
-    click.echo(f"Planned completion {result.planned_completion}, actual {result.actual_completion}: "
-               f"{result.completion_variance_days} calendar days late. {CAUTION}")
+    rows = [
+        [
+            r.activity,
+            r.name,
+            r.actual_start.date(),
+            r.actual_finish.date(),
+            "" if r.planned_finish is None or str(r.planned_finish) == "NaT" else r.planned_finish.date(),
+            r.driving_predecessor,
+            r.link,
+            "" if str(r.gap_work_days) == "<NA>" else r.gap_work_days,
+            r.lateness_work_days,
+            r.work_days,
+            r.delay_days,
+        ]
+        for r in path.itertuples()
+    ]
+    print_table(
+        f"As-built critical path to {result.target}",
+        [
+            "activity",
+            "name",
+            "actual start",
+            "actual finish",
+            "planned finish",
+            "driven by",
+            "link",
+            "gap (work days)",
+            "late (work days)",
+            "delay (work days)",
+            "delay (days)",
+        ],
+        rows,
+    )
+    print_table(
+        "Delay along the as-built critical path by period",
+        ["period", "delay days", "work days", "cumulative"],
+        [[r.period, r.delay_days, r.work_days, r.cumulative_days] for r in result.periods.itertuples()],
+    )
+    click.echo(
+        f"Planned completion {result.planned_completion}, actual {result.actual_completion}: "
+        f"{result.completion_variance_days} calendar days late. {CAUTION}"
+    )
 
 
 @click.command()
@@ -125,15 +215,26 @@ def collapsed(case, output_format):
     if output_format == "json":
         click.echo(json.dumps(result.to_json(), indent=2))
         return
-    click.echo(f"Actual completion {result.actual_completion}; the as-built model "
-               f"{'reproduces every actual date' if result.reproduced else 'does not reproduce every actual date'}.")
+    click.echo(
+        f"Actual completion {result.actual_completion}; the as-built model "
+        f"{'reproduces every actual date' if result.reproduced else 'does not reproduce every actual date'}."
+    )
     if len(result.mismatches):
-        print_table("Activities the as-built model does not place on their actual dates",
-                    list(result.mismatches.columns), [[text_cell(v) for v in row] for row in result.mismatches.itertuples(index=False)])
-    print_table("But for each party's events", list(result.by_party.columns),
-                [[text_cell(v) for v in row] for row in result.by_party.itertuples(index=False)])
-    print_table("But for each event alone", list(result.by_event.columns),
-                [[text_cell(v) for v in row] for row in result.by_event.itertuples(index=False)])
+        print_table(
+            "Activities the as-built model does not place on their actual dates",
+            list(result.mismatches.columns),
+            [[text_cell(v) for v in row] for row in result.mismatches.itertuples(index=False)],
+        )
+    print_table(
+        "But for each party's events",
+        list(result.by_party.columns),
+        [[text_cell(v) for v in row] for row in result.by_party.itertuples(index=False)],
+    )
+    print_table(
+        "But for each event alone",
+        list(result.by_event.columns),
+        [[text_cell(v) for v in row] for row in result.by_event.itertuples(index=False)],
+    )
     for note in result.notes:
         click.echo(note)
     click.echo(CAUTION)

@@ -30,6 +30,12 @@ IfcLagTime, IfcWorkCalendar, IfcRelAssignsToProduct.
 
 from __future__ import annotations
 
+import importlib
+
+# The modules import ifcopenshell only inside their functions, so these imports work without it.
+from .export import demo_outputs, export_schedule
+from .import_model import import_model, read_model
+from .schedule_io import import_work_schedule, read_work_schedule
 
 __all__ = [
     "IfcExtraMissing",
@@ -66,13 +72,11 @@ def require_ifcopenshell():
         ``ifcopenshell.util.unit`` imported.
     """
     try:
-        import ifcopenshell
-        import ifcopenshell.geom  # noqa: F401
-        import ifcopenshell.guid  # noqa: F401
-        import ifcopenshell.util.unit  # noqa: F401
+        for part in ("ifcopenshell.geom", "ifcopenshell.guid", "ifcopenshell.util.unit"):
+            importlib.import_module(part)
+        return importlib.import_module("ifcopenshell")
     except ImportError as error:
         raise IfcExtraMissing(str(error)) from None
-    return ifcopenshell
 
 
 def available() -> bool:
@@ -82,9 +86,3 @@ def available() -> bool:
     except IfcExtraMissing:
         return False
     return True
-
-
-# The modules import ifcopenshell only inside their functions, so these imports work without it.
-from .export import demo_outputs, export_schedule  # noqa: E402
-from .import_model import import_model, read_model  # noqa: E402
-from .schedule_io import import_work_schedule, read_work_schedule  # noqa: E402

@@ -12,9 +12,9 @@ import io
 import re
 import shutil
 import tempfile
+from collections.abc import Iterable, Mapping
 from dataclasses import dataclass
 from pathlib import Path
-from typing import Iterable, Mapping
 
 import pandas as pd
 
@@ -60,8 +60,9 @@ class Findings:
         if entity is not None:
             label = f"#{entity.id()} {entity.is_a()}"
             global_id = str(getattr(entity, "GlobalId", "") or "")
-        self.rows.append({"kind": kind, "entity": label, "global_id": global_id,
-                          "subject": str(subject or ""), "message": message})
+        self.rows.append(
+            {"kind": kind, "entity": label, "global_id": global_id, "subject": str(subject or ""), "message": message}
+        )
 
     def frame(self) -> pd.DataFrame:
         return pd.DataFrame(self.rows, columns=list(FINDING_COLUMNS)).astype(str)
@@ -178,23 +179,33 @@ def open_model(path: str | Path):
     ifcopenshell = require_ifcopenshell()
     path = Path(path)
     if not path.is_file():
-        raise CaseError(Problem(file=str(path), message="the IFC file does not exist",
-                                fix="give the path of the .ifc file"))
+        raise CaseError(
+            Problem(file=str(path), message="the IFC file does not exist", fix="give the path of the .ifc file")
+        )
     try:
         return ifcopenshell.open(str(path))
     except Exception as error:  # ifcopenshell raises several kinds for a broken file
         detail = str(error).strip().splitlines()[0] if str(error).strip() else type(error).__name__
-        raise CaseError(Problem(file=str(path), message=f"cannot be read as an IFC file ({detail})",
-                                fix="export the model again as an IFC file (STEP physical file, .ifc)")) from None
+        raise CaseError(
+            Problem(
+                file=str(path),
+                message=f"cannot be read as an IFC file ({detail})",
+                fix="export the model again as an IFC file (STEP physical file, .ifc)",
+            )
+        ) from None
 
 
 def case_folder(case) -> Path:
     """The folder of a loaded case; a workbook case cannot take files written beside it."""
     root = Path(case.root)
     if root.is_file() or not (root / "case.toml").is_file():
-        raise CaseError(Problem(
-            file=str(root), message="the IFC commands write into a case folder, and this case is a workbook",
-            fix="use the case in folder form (case.toml, calendars.csv, snapshots/...)"))
+        raise CaseError(
+            Problem(
+                file=str(root),
+                message="the IFC commands write into a case folder, and this case is a workbook",
+                fix="use the case in folder form (case.toml, calendars.csv, snapshots/...)",
+            )
+        )
     return root
 
 

@@ -58,10 +58,10 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
+from ..convert import iso_date
 from ..cpm import FINISH_MILESTONE
 from ..errors import CaseError, Problem
 from ..model import Case, Snapshot
-from ..convert import iso_date
 from ..output import check_file_target, copy_csv, write_output_file
 from ._common import (
     ELEMENT_PSET,
@@ -73,8 +73,16 @@ from ._common import (
     work_days_duration,
 )
 
-__all__ = ["ScheduleExport", "export_schedule", "demo_outputs", "written_by_toolkit", "WRITTEN_BY", "START_TIME",
-           "FINISH_TIME", "SEQUENCE_ENUM"]
+__all__ = [
+    "ScheduleExport",
+    "export_schedule",
+    "demo_outputs",
+    "written_by_toolkit",
+    "WRITTEN_BY",
+    "START_TIME",
+    "FINISH_TIME",
+    "SEQUENCE_ENUM",
+]
 
 #: Times of day written with the dates (common practice: a working day from 08:00 to 17:00).
 START_TIME = "08:00:00"
@@ -137,8 +145,9 @@ class _Writer:
         for prop_name, (kind, value) in values.items():
             if value is None or value == "":
                 continue
-            properties.append(self.model.create_entity("IfcPropertySingleValue", Name=prop_name,
-                                                       NominalValue=self.value(kind, value)))
+            properties.append(
+                self.model.create_entity("IfcPropertySingleValue", Name=prop_name, NominalValue=self.value(kind, value))
+            )
         if not properties or not objects:
             return None
         pset = self.rooted("IfcPropertySet", key, Name=name, HasProperties=properties)
@@ -156,29 +165,47 @@ def _new_file(ifcopenshell, writer_salt: str, project_name: str):
     angle = model.create_entity("IfcSIUnit", UnitType="PLANEANGLEUNIT", Name="RADIAN")
     units = model.create_entity("IfcUnitAssignment", Units=[length, area, volume, angle])
     origin = _placement_3d(model, (0.0, 0.0, 0.0))
-    context = model.create_entity("IfcGeometricRepresentationContext", ContextType="Model",
-                                  CoordinateSpaceDimension=3, Precision=1e-5, WorldCoordinateSystem=origin)
-    model.create_entity("IfcGeometricRepresentationSubContext", ContextIdentifier="Body", ContextType="Model",
-                        ParentContext=context, TargetView="MODEL_VIEW")
-    writer.rooted("IfcProject", ("project",), Name=project_name, RepresentationContexts=[context],
-                  UnitsInContext=units)
+    context = model.create_entity(
+        "IfcGeometricRepresentationContext",
+        ContextType="Model",
+        CoordinateSpaceDimension=3,
+        Precision=1e-5,
+        WorldCoordinateSystem=origin,
+    )
+    model.create_entity(
+        "IfcGeometricRepresentationSubContext",
+        ContextIdentifier="Body",
+        ContextType="Model",
+        ParentContext=context,
+        TargetView="MODEL_VIEW",
+    )
+    writer.rooted("IfcProject", ("project",), Name=project_name, RepresentationContexts=[context], UnitsInContext=units)
     return model, writer
 
 
 def _placement_3d(model, location):
-    return model.create_entity("IfcAxis2Placement3D",
-                               Location=model.create_entity("IfcCartesianPoint", [float(v) for v in location]))
+    return model.create_entity(
+        "IfcAxis2Placement3D", Location=model.create_entity("IfcCartesianPoint", [float(v) for v in location])
+    )
 
 
 def _body_context(model):
     for context in model.by_type("IfcGeometricRepresentationSubContext"):
         if context.ContextIdentifier == "Body":
             return context
-    contexts = [c for c in model.by_type("IfcGeometricRepresentationContext")
-                if not c.is_a("IfcGeometricRepresentationSubContext") and c.ContextType == "Model"]
+    contexts = [
+        c
+        for c in model.by_type("IfcGeometricRepresentationContext")
+        if not c.is_a("IfcGeometricRepresentationSubContext") and c.ContextType == "Model"
+    ]
     if contexts:
-        return model.create_entity("IfcGeometricRepresentationSubContext", ContextIdentifier="Body",
-                                   ContextType="Model", ParentContext=contexts[0], TargetView="MODEL_VIEW")
+        return model.create_entity(
+            "IfcGeometricRepresentationSubContext",
+            ContextIdentifier="Body",
+            ContextType="Model",
+            ParentContext=contexts[0],
+            TargetView="MODEL_VIEW",
+        )
     return None
 
 
@@ -202,28 +229,52 @@ class _Structure:
 
     def _building(self):
         if self.building is None:
-            site = self.writer.rooted("IfcSite", ("site",), Name="Site",
-                                      ObjectPlacement=self.model.create_entity(
-                                          "IfcLocalPlacement", RelativePlacement=_placement_3d(self.model, (0, 0, 0))))
-            self.building = self.writer.rooted("IfcBuilding", ("building",), Name="Building",
-                                               ObjectPlacement=self.model.create_entity(
-                                                   "IfcLocalPlacement", PlacementRelTo=site.ObjectPlacement,
-                                                   RelativePlacement=_placement_3d(self.model, (0, 0, 0))))
-            self.writer.rooted("IfcRelAggregates", ("project-site",), RelatingObject=self.project, RelatedObjects=[site])
-            self.writer.rooted("IfcRelAggregates", ("site-building",), RelatingObject=site,
-                               RelatedObjects=[self.building])
+            site = self.writer.rooted(
+                "IfcSite",
+                ("site",),
+                Name="Site",
+                ObjectPlacement=self.model.create_entity(
+                    "IfcLocalPlacement", RelativePlacement=_placement_3d(self.model, (0, 0, 0))
+                ),
+            )
+            self.building = self.writer.rooted(
+                "IfcBuilding",
+                ("building",),
+                Name="Building",
+                ObjectPlacement=self.model.create_entity(
+                    "IfcLocalPlacement",
+                    PlacementRelTo=site.ObjectPlacement,
+                    RelativePlacement=_placement_3d(self.model, (0, 0, 0)),
+                ),
+            )
+            self.writer.rooted(
+                "IfcRelAggregates", ("project-site",), RelatingObject=self.project, RelatedObjects=[site]
+            )
+            self.writer.rooted(
+                "IfcRelAggregates", ("site-building",), RelatingObject=site, RelatedObjects=[self.building]
+            )
         return self.building
 
     def storey(self, name: str, elevation_metres: float):
         if name not in self.storeys:
             building = self._building()
             elevation = elevation_metres / self.scale
-            placement = self.model.create_entity("IfcLocalPlacement", PlacementRelTo=building.ObjectPlacement,
-                                                 RelativePlacement=_placement_3d(self.model, (0, 0, elevation)))
-            storey = self.writer.rooted("IfcBuildingStorey", ("storey", name), Name=name, ObjectPlacement=placement,
-                                        Elevation=elevation, CompositionType="ELEMENT")
-            self.writer.rooted("IfcRelAggregates", ("building-storey", name), RelatingObject=building,
-                               RelatedObjects=[storey])
+            placement = self.model.create_entity(
+                "IfcLocalPlacement",
+                PlacementRelTo=building.ObjectPlacement,
+                RelativePlacement=_placement_3d(self.model, (0, 0, elevation)),
+            )
+            storey = self.writer.rooted(
+                "IfcBuildingStorey",
+                ("storey", name),
+                Name=name,
+                ObjectPlacement=placement,
+                Elevation=elevation,
+                CompositionType="ELEMENT",
+            )
+            self.writer.rooted(
+                "IfcRelAggregates", ("building-storey", name), RelatingObject=building, RelatedObjects=[storey]
+            )
             self.storeys[name] = storey
         return self.storeys[name]
 
@@ -242,12 +293,20 @@ class _Structure:
     def finish(self):
         for structure_id, elements in self.contained.items():
             structure = self.model.by_id(structure_id)
-            self.writer.rooted("IfcRelContainedInSpatialStructure", ("contained", str(structure.GlobalId)),
-                               RelatingStructure=structure, RelatedElements=elements)
+            self.writer.rooted(
+                "IfcRelContainedInSpatialStructure",
+                ("contained", str(structure.GlobalId)),
+                RelatingStructure=structure,
+                RelatedElements=elements,
+            )
         for structure_id, elements in self.referenced.items():
             structure = self.model.by_id(structure_id)
-            self.writer.rooted("IfcRelReferencedInSpatialStructure", ("referenced", str(structure.GlobalId)),
-                               RelatingStructure=structure, RelatedElements=elements)
+            self.writer.rooted(
+                "IfcRelReferencedInSpatialStructure",
+                ("referenced", str(structure.GlobalId)),
+                RelatingStructure=structure,
+                RelatedElements=elements,
+            )
 
 
 def _placeholder_storeys(structure: _Structure, levels: np.ndarray, boxes: np.ndarray, complete: np.ndarray) -> None:
@@ -265,38 +324,54 @@ def _placeholder_storeys(structure: _Structure, levels: np.ndarray, boxes: np.nd
 def _placeholder_global_id(writer: _Writer, element_id: str) -> str:
     """The element id itself when it is a GlobalId the file does not hold yet, else a stable
     GlobalId of our own."""
-    if (_GLOBAL_ID.match(element_id) and element_id not in writer.used
-            and model_by_guid(writer.model, element_id) is None):
+    if (
+        _GLOBAL_ID.match(element_id)
+        and element_id not in writer.used
+        and model_by_guid(writer.model, element_id) is None
+    ):
         writer.used.add(element_id)
         return element_id
     return writer.global_id("IfcBuildingElementProxy", element_id)
 
 
-def _box_shape(model, body, box: np.ndarray, complete: bool, unit_scale: float, findings: Findings,
-               element_id: str) -> tuple[object, object]:
+def _box_shape(
+    model, body, box: np.ndarray, complete: bool, unit_scale: float, findings: Findings, element_id: str
+) -> tuple[object, object]:
     """The placement of a box (at its low corner, in file units) and its body, an extruded
     rectangle; None for what a box without a corner or an extent cannot give (a finding)."""
     if not complete:
         findings.add("placeholder", "the element has no box; its placeholder has no shape", subject=element_id)
         return None, None
-    placement = model.create_entity("IfcLocalPlacement", RelativePlacement=_placement_3d(
-        model, tuple(box[:3] / unit_scale)))
+    placement = model.create_entity(
+        "IfcLocalPlacement", RelativePlacement=_placement_3d(model, tuple(box[:3] / unit_scale))
+    )
     dx, dy, dz = (float(v) / unit_scale for v in box[3:])
     if not (min(dx, dy, dz) > 0 and body is not None):
-        findings.add("placeholder", "the element's box has no extent; its placeholder has no shape",
-                     subject=element_id)
+        findings.add("placeholder", "the element's box has no extent; its placeholder has no shape", subject=element_id)
         return placement, None
     profile = model.create_entity(
-        "IfcRectangleProfileDef", ProfileType="AREA",
-        Position=model.create_entity("IfcAxis2Placement2D", Location=model.create_entity(
-            "IfcCartesianPoint", [dx / 2, dy / 2])), XDim=dx, YDim=dy)
-    solid = model.create_entity("IfcExtrudedAreaSolid", SweptArea=profile,
-                                Position=_placement_3d(model, (0.0, 0.0, 0.0)),
-                                ExtrudedDirection=model.create_entity("IfcDirection", [0.0, 0.0, 1.0]),
-                                Depth=dz)
-    shape = model.create_entity("IfcShapeRepresentation", ContextOfItems=body,
-                                RepresentationIdentifier="Body", RepresentationType="SweptSolid",
-                                Items=[solid])
+        "IfcRectangleProfileDef",
+        ProfileType="AREA",
+        Position=model.create_entity(
+            "IfcAxis2Placement2D", Location=model.create_entity("IfcCartesianPoint", [dx / 2, dy / 2])
+        ),
+        XDim=dx,
+        YDim=dy,
+    )
+    solid = model.create_entity(
+        "IfcExtrudedAreaSolid",
+        SweptArea=profile,
+        Position=_placement_3d(model, (0.0, 0.0, 0.0)),
+        ExtrudedDirection=model.create_entity("IfcDirection", [0.0, 0.0, 1.0]),
+        Depth=dz,
+    )
+    shape = model.create_entity(
+        "IfcShapeRepresentation",
+        ContextOfItems=body,
+        RepresentationIdentifier="Body",
+        RepresentationType="SweptSolid",
+        Items=[solid],
+    )
     return placement, model.create_entity("IfcProductDefinitionShape", Representations=[shape])
 
 
@@ -322,14 +397,20 @@ def _classify_placeholders(writer: _Writer, by_code: dict[str, list]) -> None:
     model = writer.model
     classification = model.create_entity("IfcClassification", Name="Element classification of the case")
     for code, products in by_code.items():
-        reference = model.create_entity("IfcClassificationReference", Identification=code, Name=code,
-                                        ReferencedSource=classification)
-        writer.rooted("IfcRelAssociatesClassification", ("classification", code), RelatedObjects=products,
-                      RelatingClassification=reference)
+        reference = model.create_entity(
+            "IfcClassificationReference", Identification=code, Name=code, ReferencedSource=classification
+        )
+        writer.rooted(
+            "IfcRelAssociatesClassification",
+            ("classification", code),
+            RelatedObjects=products,
+            RelatingClassification=reference,
+        )
 
 
-def _placeholders(writer: _Writer, structure: _Structure, rows: pd.DataFrame, findings: Findings,
-                  unit_scale: float) -> dict[str, object]:
+def _placeholders(
+    writer: _Writer, structure: _Structure, rows: pd.DataFrame, findings: Findings, unit_scale: float
+) -> dict[str, object]:
     """IfcBuildingElementProxy placeholders with their boxes, by element id."""
     model = writer.model
     body = _body_context(model)
@@ -343,19 +424,29 @@ def _placeholders(writer: _Writer, structure: _Structure, rows: pd.DataFrame, fi
     for number, row in enumerate(rows.itertuples(index=False)):
         element_id = str(row.id)
         global_id = _placeholder_global_id(writer, element_id)
-        placement, representation = _box_shape(model, body, boxes[number], complete[number], unit_scale, findings,
-                                                element_id)
-        proxy = model.create_entity("IfcBuildingElementProxy", GlobalId=global_id, Name=str(row.name) or element_id,
-                                    ObjectType="placeholder from elements.csv", ObjectPlacement=placement,
-                                    Representation=representation, Tag=element_id[:255])
+        placement, representation = _box_shape(
+            model, body, boxes[number], complete[number], unit_scale, findings, element_id
+        )
+        proxy = model.create_entity(
+            "IfcBuildingElementProxy",
+            GlobalId=global_id,
+            Name=str(row.name) or element_id,
+            ObjectType="placeholder from elements.csv",
+            ObjectPlacement=placement,
+            Representation=representation,
+            Tag=element_id[:255],
+        )
         made[element_id] = proxy
         _place_in_structure(structure, proxy, str(row.level), str(getattr(row, "zone", "")))
         code = str(getattr(row, "classification", ""))
         if code:
             by_code.setdefault(code, []).append(proxy)
-        writer.pset(ELEMENT_PSET, {"ElementId": ("IfcIdentifier", element_id),
-                                   "WorkBreakdownCode": ("IfcIdentifier", str(row.wbs))},
-                    [proxy], ("element-pset", element_id))
+        writer.pset(
+            ELEMENT_PSET,
+            {"ElementId": ("IfcIdentifier", element_id), "WorkBreakdownCode": ("IfcIdentifier", str(row.wbs))},
+            [proxy],
+            ("element-pset", element_id),
+        )
     _classify_placeholders(writer, by_code)
     return made
 
@@ -388,17 +479,29 @@ def _calendar(writer: _Writer, case: Case, name: str):
     workdays = table.loc[table["calendar"] == name, "workdays"].iloc[0]
     mask = parse_workdays(workdays)
     holidays, extra = case_calendar_days(case, name)
-    weekly = model.create_entity("IfcRecurrencePattern", RecurrenceType="WEEKLY",
-                                 WeekdayComponent=[k + 1 for k, on in enumerate(mask) if on])
+    weekly = model.create_entity(
+        "IfcRecurrencePattern", RecurrenceType="WEEKLY", WeekdayComponent=[k + 1 for k, on in enumerate(mask) if on]
+    )
     working = [model.create_entity("IfcWorkTime", Name=f"working weekdays: {workdays}", RecurrencePattern=weekly)]
     for first, last, reason in _day_ranges(extra):
-        working.append(model.create_entity("IfcWorkTime", Name=reason or "extra working day",
-                                           Start=first.isoformat(), Finish=last.isoformat()))
-    exception_times = [model.create_entity("IfcWorkTime", Name=reason or "holiday", Start=first.isoformat(),
-                                           Finish=last.isoformat())
-                       for first, last, reason in _day_ranges(holidays)]
-    return writer.rooted("IfcWorkCalendar", ("calendar", name), Name=name, Identification=name,
-                         WorkingTimes=working, ExceptionTimes=exception_times or None, PredefinedType="FIRSTSHIFT")
+        working.append(
+            model.create_entity(
+                "IfcWorkTime", Name=reason or "extra working day", Start=first.isoformat(), Finish=last.isoformat()
+            )
+        )
+    exception_times = [
+        model.create_entity("IfcWorkTime", Name=reason or "holiday", Start=first.isoformat(), Finish=last.isoformat())
+        for first, last, reason in _day_ranges(holidays)
+    ]
+    return writer.rooted(
+        "IfcWorkCalendar",
+        ("calendar", name),
+        Name=name,
+        Identification=name,
+        WorkingTimes=working,
+        ExceptionTimes=exception_times or None,
+        PredefinedType="FIRSTSHIFT",
+    )
 
 
 # -- the schedule --------------------------------------------------------------------------------------
@@ -411,27 +514,47 @@ def _work_schedule(writer: _Writer, case: Case, snap: Snapshot, result, data_tim
     facts and scheduling settings in our property set; returns the work schedule."""
     settings = result.settings
     project = writer.model.by_type("IfcProject")[0]
-    plan = writer.rooted("IfcWorkPlan", ("plan",), Name=case.settings.project.name, CreationDate=data_time,
-                         StartTime=date_time_text(snap.data_date, START_TIME), PredefinedType="PLANNED")
+    plan = writer.rooted(
+        "IfcWorkPlan",
+        ("plan",),
+        Name=case.settings.project.name,
+        CreationDate=data_time,
+        StartTime=date_time_text(snap.data_date, START_TIME),
+        PredefinedType="PLANNED",
+    )
     schedule = writer.rooted(
-        "IfcWorkSchedule", ("schedule",), Name=snap.label, Identification=snap.folder, CreationDate=data_time,
+        "IfcWorkSchedule",
+        ("schedule",),
+        Name=snap.label,
+        Identification=snap.folder,
+        CreationDate=data_time,
         Purpose=f"{snap.kind} programme scheduled by the critical path method",
         StartTime=date_time_text(snap.data_date, START_TIME),
-        FinishTime=date_time_text(result.completion, FINISH_TIME), PredefinedType=_SCHEDULE_TYPE.get(snap.kind, "PLANNED"))
+        FinishTime=date_time_text(result.completion, FINISH_TIME),
+        PredefinedType=_SCHEDULE_TYPE.get(snap.kind, "PLANNED"),
+    )
     writer.rooted("IfcRelDeclares", ("declares",), RelatingContext=project, RelatedDefinitions=[plan])
     writer.rooted("IfcRelAggregates", ("plan-schedule",), RelatingObject=plan, RelatedObjects=[schedule])
-    writer.pset(SCHEDULING_PSET, {
-        "DataDate": ("IfcDate", snap.data_date.isoformat()),
-        "SnapshotLabel": ("IfcLabel", snap.label),
-        "SnapshotFolder": ("IfcLabel", snap.folder),
-        "SnapshotKind": ("IfcLabel", snap.kind),
-        "Completion": ("IfcDate", result.completion.isoformat()),
-        "Progress": ("IfcLabel", settings.progress),
-        "LagCalendar": ("IfcLabel", settings.lag_calendar),
-        "FloatTo": ("IfcLabel", settings.float_to),
-        "DefaultCalendar": ("IfcLabel", settings.default_calendar),
-        "TimesOfDay": ("IfcText", f"starts at {START_TIME}, finishes at {FINISH_TIME}; only the dates carry meaning"),
-    }, [schedule], ("schedule-pset",))
+    writer.pset(
+        SCHEDULING_PSET,
+        {
+            "DataDate": ("IfcDate", snap.data_date.isoformat()),
+            "SnapshotLabel": ("IfcLabel", snap.label),
+            "SnapshotFolder": ("IfcLabel", snap.folder),
+            "SnapshotKind": ("IfcLabel", snap.kind),
+            "Completion": ("IfcDate", result.completion.isoformat()),
+            "Progress": ("IfcLabel", settings.progress),
+            "LagCalendar": ("IfcLabel", settings.lag_calendar),
+            "FloatTo": ("IfcLabel", settings.float_to),
+            "DefaultCalendar": ("IfcLabel", settings.default_calendar),
+            "TimesOfDay": (
+                "IfcText",
+                f"starts at {START_TIME}, finishes at {FINISH_TIME}; only the dates carry meaning",
+            ),
+        },
+        [schedule],
+        ("schedule-pset",),
+    )
     return schedule
 
 
@@ -446,8 +569,7 @@ def _scheduled_columns(result) -> tuple[dict[str, int], dict[str, list]]:
     return position, columns
 
 
-def _task_time_attributes(row, k: int, milestone: bool, columns: dict[str, list], point: int,
-                          data_time: str) -> dict:
+def _task_time_attributes(row, k: int, milestone: bool, columns: dict[str, list], point: int, data_time: str) -> dict:
     """The IfcTaskTime of one activity (``k``: its position in the schedule): duration, early
     and late dates, floats, actual dates and remaining time. A milestone's dates all carry the
     time of day of the boundary it sits on."""
@@ -496,20 +618,32 @@ def _write_tasks(writer: _Writer, snap: Snapshot, result, data_time: str) -> tup
         milestone = row.kind != "task" or int(row.duration) == 0
         attributes = _task_time_attributes(row, k, milestone, columns, int(result.point[k]), data_time)
         task_time = model.create_entity("IfcTaskTime", **attributes)
-        task = writer.rooted("IfcTask", ("task", identification), Name=str(row.name), Identification=identification,
-                             IsMilestone=bool(milestone), PredefinedType="CONSTRUCTION", TaskTime=task_time,
-                             Status=str(columns["status"][k]))
+        task = writer.rooted(
+            "IfcTask",
+            ("task", identification),
+            Name=str(row.name),
+            Identification=identification,
+            IsMilestone=bool(milestone),
+            PredefinedType="CONSTRUCTION",
+            TaskTime=task_time,
+            Status=str(columns["status"][k]),
+        )
         tasks[identification] = task
         calendar_of.setdefault(str(row.calendar), []).append(task)
         constraint_date = iso_date(row.constraint_date)
-        writer.pset(SCHEDULING_PSET, {
-            "Kind": ("IfcLabel", str(row.kind)),
-            "Constraint": ("IfcLabel", str(row.constraint or "")),
-            "ConstraintDate": ("IfcDate", constraint_date if row.constraint else None),
-            "Party": ("IfcLabel", str(row.party or "")),
-            "WorkBreakdownCode": ("IfcIdentifier", str(row.wbs or "")),
-            "Calendar": ("IfcLabel", str(row.calendar)),
-        }, [task], ("task-pset", identification))
+        writer.pset(
+            SCHEDULING_PSET,
+            {
+                "Kind": ("IfcLabel", str(row.kind)),
+                "Constraint": ("IfcLabel", str(row.constraint or "")),
+                "ConstraintDate": ("IfcDate", constraint_date if row.constraint else None),
+                "Party": ("IfcLabel", str(row.party or "")),
+                "WorkBreakdownCode": ("IfcIdentifier", str(row.wbs or "")),
+                "Calendar": ("IfcLabel", str(row.calendar)),
+            },
+            [task],
+            ("task-pset", identification),
+        )
     return tasks, calendar_of
 
 
@@ -520,9 +654,16 @@ def _write_links(writer: _Writer, links: pd.DataFrame, tasks: dict) -> int:
         time_lag = None
         if lag:
             time_lag = writer.model.create_entity(
-                "IfcLagTime", LagValue=writer.value("IfcDuration", work_days_duration(lag)), DurationType="WORKTIME")
-        writer.rooted("IfcRelSequence", ("link", str(row.pred), str(row.succ)), RelatingProcess=tasks[str(row.pred)],
-                      RelatedProcess=tasks[str(row.succ)], TimeLag=time_lag, SequenceType=SEQUENCE_ENUM[str(row.type)])
+                "IfcLagTime", LagValue=writer.value("IfcDuration", work_days_duration(lag)), DurationType="WORKTIME"
+            )
+        writer.rooted(
+            "IfcRelSequence",
+            ("link", str(row.pred), str(row.succ)),
+            RelatingProcess=tasks[str(row.pred)],
+            RelatedProcess=tasks[str(row.succ)],
+            TimeLag=time_lag,
+            SequenceType=SEQUENCE_ENUM[str(row.type)],
+        )
     return len(links)
 
 
@@ -533,12 +674,14 @@ def _write_schedule(writer: _Writer, case: Case, snap: Snapshot, result) -> tupl
     schedule = _work_schedule(writer, case, snap, result, data_time)
     tasks, calendar_of = _write_tasks(writer, snap, result, data_time)
     if tasks:
-        writer.rooted("IfcRelAssignsToControl", ("schedule-tasks",), RelatedObjects=list(tasks.values()),
-                      RelatingControl=schedule)
+        writer.rooted(
+            "IfcRelAssignsToControl", ("schedule-tasks",), RelatedObjects=list(tasks.values()), RelatingControl=schedule
+        )
     for name, members in calendar_of.items():
         calendar = _calendar(writer, case, name)
-        writer.rooted("IfcRelAssignsToControl", ("calendar-tasks", name), RelatedObjects=members,
-                      RelatingControl=calendar)
+        writer.rooted(
+            "IfcRelAssignsToControl", ("calendar-tasks", name), RelatedObjects=members, RelatingControl=calendar
+        )
     return tasks, _write_links(writer, snap.links, tasks), len(calendar_of)
 
 
@@ -630,11 +773,11 @@ def export_schedule(
     IfcExtraMissing
         When ifcopenshell is not installed.
     """
-    from . import require_ifcopenshell
     from ..cpm import _find, schedule
+    from . import require_ifcopenshell
     from .import_model import imported_model_path
 
-    ifcopenshell = require_ifcopenshell()
+    require_ifcopenshell()  # a clear message when the ifc extra is not installed
     import ifcopenshell.util.unit
 
     root = Path(case.root)
@@ -650,14 +793,19 @@ def export_schedule(
         model = Path(model)
         base = open_model(model)
         if base.schema != "IFC4":
-            raise CaseError(Problem(file=str(model), message=f"the model is {base.schema}; the schedule is written "
-                                                             "in IFC 4",
-                                    fix="export the model as IFC 4, or leave it out (placeholders are written)"))
+            raise CaseError(
+                Problem(
+                    file=str(model),
+                    message=f"the model is {base.schema}; the schedule is written in IFC 4",
+                    fix="export the model as IFC 4, or leave it out (placeholders are written)",
+                )
+            )
         writer = _Writer(ifcopenshell, base, salt)
         writer.used.update(str(e.GlobalId) for e in base.by_type("IfcRoot"))
         if not base.by_type("IfcProject"):
-            raise CaseError(Problem(file=str(model), message="the model has no IfcProject",
-                                    fix="export the whole model"))
+            raise CaseError(
+                Problem(file=str(model), message="the model has no IfcProject", fix="export the whole model")
+            )
     else:
         base, writer = _new_file(ifcopenshell, salt, case.settings.project.name)
     unit_scale = float(ifcopenshell.util.unit.calculate_unit_scale(base))
@@ -672,8 +820,10 @@ def export_schedule(
                 found[element_id] = entity
     missing = elements[~elements["id"].astype(str).isin(set(found))] if len(elements) else elements
     if model is not None and len(missing):
-        findings.add("placeholder", f"{len(missing)} element(s) of elements.csv are not in the model; "
-                                    "placeholders are written for them")
+        findings.add(
+            "placeholder",
+            f"{len(missing)} element(s) of elements.csv are not in the model; placeholders are written for them",
+        )
     made = _placeholders(writer, structure, missing, findings, unit_scale)
     structure.finish()
     tasks, link_count, calendar_count = _write_schedule(writer, case, snap, result)
@@ -688,16 +838,19 @@ def export_schedule(
         builders = by_wbs.get(wbs)
         if product is None or not builders:
             continue
-        writer.rooted("IfcRelAssignsToProduct", ("builds", element_id), RelatedObjects=builders,
-                      RelatingProduct=product)
+        writer.rooted(
+            "IfcRelAssignsToProduct", ("builds", element_id), RelatedObjects=builders, RelatingProduct=product
+        )
         assignments += 1
     unbuilt = int(sum(1 for w in elements["wbs"].astype(str) if w not in by_wbs)) if len(elements) else 0
     if unbuilt:
-        findings.add("assignment", f"{unbuilt} element(s) share their wbs with no activity of the snapshot; "
-                                   "no task builds them")
+        findings.add(
+            "assignment", f"{unbuilt} element(s) share their wbs with no activity of the snapshot; no task builds them"
+        )
     path = _write_file(base, Path(out_path), guard)
-    return ScheduleExport(path, len(tasks), link_count, calendar_count, len(found), len(made), assignments,
-                          model, findings.frame())
+    return ScheduleExport(
+        path, len(tasks), link_count, calendar_count, len(found), len(made), assignments, model, findings.frame()
+    )
 
 
 # -- demo ----------------------------------------------------------------------------------------------
@@ -767,8 +920,12 @@ def demo_outputs(case: Case, out_folder: str | Path) -> list[Path]:
         checks = element_checks(loaded)
         (out / "element_checks.json").write_text(json.dumps(checks.to_json(), indent=2), encoding="utf-8")
         exported = export_schedule(loaded, "baseline", out / "baseline_schedule.ifc")
-        written += [out / "elements_from_model.csv", out / "elements_findings.csv", out / "element_checks.json",
-                    exported.path]
+        written += [
+            out / "elements_from_model.csv",
+            out / "elements_findings.csv",
+            out / "element_checks.json",
+            exported.path,
+        ]
 
         again = Path(folder) / "again"  # the round trip needs the baseline only
         shutil.copytree(root, again, ignore=_only_the_baseline(root))

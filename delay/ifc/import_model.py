@@ -54,16 +54,16 @@ import datetime as dt
 import json
 import os
 from collections import defaultdict
+from collections.abc import Callable, Mapping
 from dataclasses import dataclass
 from pathlib import Path
-from typing import Callable, Mapping
 
 import numpy as np
 import pandas as pd
 
 from ..model import COLUMNS
 from ..output import OutputRefused, write_together
-from ._common import ifc_text, Findings, case_folder, csv_bytes, open_model, sha256_of, validate_in_copy
+from ._common import Findings, case_folder, csv_bytes, ifc_text, open_model, sha256_of, validate_in_copy
 
 __all__ = [
     "ModelRead",
@@ -140,7 +140,7 @@ def _split_property(code_property: str, pset_names) -> tuple[str, str] | None:
     (a property set name may itself hold a dot)."""
     for name in sorted(pset_names, key=len, reverse=True):
         if code_property.startswith(name + ".") and len(code_property) > len(name) + 1:
-            return name, code_property[len(name) + 1:]
+            return name, code_property[len(name) + 1 :]
     return None
 
 
@@ -350,8 +350,9 @@ def _physical_elements(model, findings: Findings) -> list:
     return physical
 
 
-def _code_property_key(code_property: str | None, psets: dict[int, list], type_psets: dict[int, list],
-                       findings: Findings) -> tuple[str, str] | None:
+def _code_property_key(
+    code_property: str | None, psets: dict[int, list], type_psets: dict[int, list], findings: Findings
+) -> tuple[str, str] | None:
     """``code_property`` split into the property set and property names of the file; None
     when it is not given, or matches no property set (a finding)."""
     property_key = None
@@ -359,8 +360,11 @@ def _code_property_key(code_property: str | None, psets: dict[int, list], type_p
         names = {p.Name for sets in (*psets.values(), *type_psets.values()) for p in sets if p.Name}
         property_key = _split_property(code_property, names)
         if property_key is None:
-            findings.add("no_code", f"no property set of the model matches '{code_property}' "
-                                    "(PSET.NAME, as the property set and property are named in the file)")
+            findings.add(
+                "no_code",
+                f"no property set of the model matches '{code_property}' "
+                "(PSET.NAME, as the property set and property are named in the file)",
+            )
     return property_key
 
 
@@ -373,18 +377,23 @@ def _element_types(model) -> dict[int, object]:
     return types
 
 
-def _check_classification_systems(classes: dict[int, list[tuple[str, str]]], classification: str | None,
-                                  findings: Findings) -> None:
+def _check_classification_systems(
+    classes: dict[int, list[tuple[str, str]]], classification: str | None, findings: Findings
+) -> None:
     """A finding when several systems could fill the classification column and none is chosen,
     or when the chosen system is not in the model."""
     systems = sorted({s for pairs in classes.values() for s, _ in pairs})
     if classification is None and len(systems) > 1:
-        findings.add("several_classification_systems",
-                     f"the model uses {len(systems)} classification systems ({', '.join(systems)}); "
-                     f"'{systems[0]}' fills the classification column - choose one with --classification")
+        findings.add(
+            "several_classification_systems",
+            f"the model uses {len(systems)} classification systems ({', '.join(systems)}); "
+            f"'{systems[0]}' fills the classification column - choose one with --classification",
+        )
     elif classification is not None and systems and classification.casefold() not in {s.casefold() for s in systems}:
-        findings.add("several_classification_systems",
-                     f"no classification system '{classification}' in the model (it has: {', '.join(systems)})")
+        findings.add(
+            "several_classification_systems",
+            f"no classification system '{classification}' in the model (it has: {', '.join(systems)})",
+        )
 
 
 # -- reading: each element ---------------------------------------------------------------------------
@@ -403,7 +412,8 @@ def _property_code(element, property_key: tuple[str, str] | None, relations: _Re
     pset_name, prop_name = property_key
     types = relations.types
     for pset in list(relations.psets.get(element.id(), ())) + (
-            relations.type_psets.get(types[element.id()].id(), []) if element.id() in types else []):
+        relations.type_psets.get(types[element.id()].id(), []) if element.id() in types else []
+    ):
         if pset.Name != pset_name:
             continue
         for prop in pset.HasProperties or ():
@@ -423,19 +433,32 @@ def _task_code(element, builders: dict[int, list], activity_wbs: dict[str, str],
         if activity in activity_wbs and activity_wbs[activity]:
             codes.append(activity_wbs[activity])
         elif activity:
-            findings.add("task_not_in_baseline",
-                         f"the task '{activity}' that builds it is not an activity of the baseline "
-                         "(or has no wbs there)", element, ifc_text(element.Name))
+            findings.add(
+                "task_not_in_baseline",
+                f"the task '{activity}' that builds it is not an activity of the baseline (or has no wbs there)",
+                element,
+                ifc_text(element.Name),
+            )
     distinct = list(dict.fromkeys(codes))
     if len(distinct) > 1:
-        findings.add("several_codes", f"the tasks that build it carry several wbs codes "
-                                      f"({', '.join(distinct)}); the first is taken", element, ifc_text(element.Name))
+        findings.add(
+            "several_codes",
+            f"the tasks that build it carry several wbs codes ({', '.join(distinct)}); the first is taken",
+            element,
+            ifc_text(element.Name),
+        )
     return distinct[0] if distinct else ""
 
 
-def _element_code(element, pairs: list[tuple[str, str]], relations: _Relations,
-                  property_key: tuple[str, str] | None, code_classification: str | None,
-                  activity_wbs: dict[str, str], findings: Findings) -> tuple[str, str]:
+def _element_code(
+    element,
+    pairs: list[tuple[str, str]],
+    relations: _Relations,
+    property_key: tuple[str, str] | None,
+    code_classification: str | None,
+    activity_wbs: dict[str, str],
+    findings: Findings,
+) -> tuple[str, str]:
     """The element's work breakdown code and its source: the code property, else the
     reference of the code classification (``pairs``: the element's and its type's), else the
     tasks that build it."""
@@ -448,8 +471,9 @@ def _element_code(element, pairs: list[tuple[str, str]], relations: _Relations,
     return wbs, source
 
 
-def _element_box(element, boxes: dict[int, np.ndarray], children: dict[int, list],
-                 findings: Findings) -> np.ndarray | None:
+def _element_box(
+    element, boxes: dict[int, np.ndarray], children: dict[int, list], findings: Findings
+) -> np.ndarray | None:
     """The element's box, else the box around its parts' boxes; None (a finding) when neither
     has geometry."""
     box = boxes.get(element.id())
@@ -460,16 +484,25 @@ def _element_box(element, boxes: dict[int, np.ndarray], children: dict[int, list
             box = np.concatenate([stacked[:, :3].min(axis=0), stacked[:, 3:].max(axis=0)])
     if box is None:
         if element.Representation is None:
-            findings.add("no_geometry", "the element has no shape representation; it is written without a box",
-                         element, ifc_text(element.Name))
+            findings.add(
+                "no_geometry",
+                "the element has no shape representation; it is written without a box",
+                element,
+                ifc_text(element.Name),
+            )
         else:
-            findings.add("geometry_failed", "the element's geometry could not be processed; it is written "
-                                            "without a box", element, ifc_text(element.Name))
+            findings.add(
+                "geometry_failed",
+                "the element's geometry could not be processed; it is written without a box",
+                element,
+                ifc_text(element.Name),
+            )
     return box
 
 
-def _element_row(element, global_id: str, wbs: str, class_code: str, source: str, box: np.ndarray | None,
-                 relations: _Relations) -> dict:
+def _element_row(
+    element, global_id: str, wbs: str, class_code: str, source: str, box: np.ndarray | None, relations: _Relations
+) -> dict:
     """One row of :data:`ELEMENT_COLUMNS`: the box rounded to the micrometre (NaN without one)."""
     if box is None:
         x = y = z = dx = dy = dz = np.nan
@@ -479,17 +512,32 @@ def _element_row(element, global_id: str, wbs: str, class_code: str, source: str
         dx, dy, dz = (float(v) for v in np.round(high - low, _DECIMALS))
     contained, referenced = relations.contained, relations.referenced
     return {
-        "id": global_id, "name": ifc_text(element.Name), "wbs": wbs, "classification": class_code,
-        "x": x, "y": y, "z": z, "dx": dx, "dy": dy, "dz": dz,
+        "id": global_id,
+        "name": ifc_text(element.Name),
+        "wbs": wbs,
+        "classification": class_code,
+        "x": x,
+        "y": y,
+        "z": z,
+        "dx": dx,
+        "dy": dy,
+        "dz": dz,
         "level": _level(element, contained, referenced, relations.parent),
         "zone": _zone(element, contained, referenced),
-        "ifc_class": element.is_a(), "code_source": source,
+        "ifc_class": element.is_a(),
+        "code_source": source,
     }
 
 
-def _element_rows(physical: list, relations: _Relations, property_key: tuple[str, str] | None,
-                  classification: str | None, code_classification: str | None, activity_wbs: dict[str, str],
-                  findings: Findings) -> list[dict]:
+def _element_rows(
+    physical: list,
+    relations: _Relations,
+    property_key: tuple[str, str] | None,
+    classification: str | None,
+    code_classification: str | None,
+    activity_wbs: dict[str, str],
+    findings: Findings,
+) -> list[dict]:
     """A row for each physical element that has a code, in file order; a repeated GlobalId
     and an element without a code are findings, and not written."""
     rows = []
@@ -497,20 +545,30 @@ def _element_rows(physical: list, relations: _Relations, property_key: tuple[str
     for element in physical:
         global_id = str(element.GlobalId)
         if global_id in seen:
-            findings.add("duplicate_global_id", "the GlobalId is used twice in the model; the first is kept",
-                         element, ifc_text(element.Name))
+            findings.add(
+                "duplicate_global_id",
+                "the GlobalId is used twice in the model; the first is kept",
+                element,
+                ifc_text(element.Name),
+            )
             continue
         seen.add(global_id)
         pairs = _own_or_type(element.id(), relations.classes, relations.types)
         own_pairs = relations.classes.get(element.id(), [])
         class_code = _pick(own_pairs, classification) or _pick(pairs, classification)
-        wbs, source = _element_code(element, pairs, relations, property_key, code_classification, activity_wbs,
-                                    findings)
+        wbs, source = _element_code(
+            element, pairs, relations, property_key, code_classification, activity_wbs, findings
+        )
         box = _element_box(element, relations.boxes, relations.children, findings)
         if not wbs:
-            findings.add("no_code", "no work breakdown code (property, classification or building task); "
-                                    "the element is not written - give --code-property or --code-classification, "
-                                    "or assign it to the task that builds it", element, ifc_text(element.Name))
+            findings.add(
+                "no_code",
+                "no work breakdown code (property, classification or building task); "
+                "the element is not written - give --code-property or --code-classification, "
+                "or assign it to the task that builds it",
+                element,
+                ifc_text(element.Name),
+            )
             continue
         rows.append(_element_row(element, global_id, wbs, class_code, source, box, relations))
     return rows
@@ -576,8 +634,7 @@ def read_model(
         on_total(sum(1 for e in physical if e.Representation is not None))
     boxes = _boxes(model, physical, progress, findings)
     relations = _Relations(psets, type_psets, types, classes, contained, referenced, parent, children, builders, boxes)
-    rows = _element_rows(physical, relations, property_key, classification, code_classification, activity_wbs,
-                         findings)
+    rows = _element_rows(physical, relations, property_key, classification, code_classification, activity_wbs, findings)
     frame = pd.DataFrame(rows, columns=list(ELEMENT_COLUMNS))
     for column in ("x", "y", "z", "dx", "dy", "dz"):
         frame[column] = frame[column].astype(np.float64)
@@ -676,9 +733,15 @@ def import_model(
     baseline = case.baseline.activities
     activity_wbs = dict(zip(baseline["id"].astype(str), baseline["wbs"].astype(str)))
     model_path = Path(model_path)
-    read = read_model(model_path, code_property=code_property, classification=classification,
-                      code_classification=code_classification, activity_wbs=activity_wbs,
-                      progress=progress, on_total=on_total)
+    read = read_model(
+        model_path,
+        code_property=code_property,
+        classification=classification,
+        code_classification=code_classification,
+        activity_wbs=activity_wbs,
+        progress=progress,
+        on_total=on_total,
+    )
     existing = _read_existing(root / "elements.csv")
     merged, replaced, added = merge_elements(existing, read.elements)
     elements_bytes = csv_bytes(merged)
@@ -702,11 +765,13 @@ def import_model(
         "code_classification": code_classification,
         "imported_on": dt.date.today().isoformat(),
     }
-    written = write_together({  # all three, or none: a full disk leaves the case as it was
-        root / FINDINGS_FILE: findings_bytes,
-        root / SOURCE_FILE: (json.dumps(source, indent=2) + "\n").encode("utf-8"),
-        root / "elements.csv": elements_bytes,
-    })
+    written = write_together(
+        {  # all three, or none: a full disk leaves the case as it was
+            root / FINDINGS_FILE: findings_bytes,
+            root / SOURCE_FILE: (json.dumps(source, indent=2) + "\n").encode("utf-8"),
+            root / "elements.csv": elements_bytes,
+        }
+    )
     return ModelImport(read, merged, replaced, added, written)
 
 
@@ -723,14 +788,21 @@ def _check_targets(model_path: Path, root: Path) -> None:
         target = root / name
         real = Path(os.path.realpath(target))
         if real == model:
-            raise OutputRefused(model_path, f"the model is the case's {name}, which the import writes",
-                                "give the path of the .ifc model")
+            raise OutputRefused(
+                model_path,
+                f"the model is the case's {name}, which the import writes",
+                "give the path of the .ifc model",
+            )
         if not real.is_relative_to(inside):
-            raise OutputRefused(target, "this is a link out of the case folder; the import writes only inside the case",
-                                "remove the link, or replace it with the file itself")
+            raise OutputRefused(
+                target,
+                "this is a link out of the case folder; the import writes only inside the case",
+                "remove the link, or replace it with the file itself",
+            )
         if real.is_dir():
-            raise OutputRefused(target, "this is a folder; the import writes a file of that name",
-                                "move the folder out of the case")
+            raise OutputRefused(
+                target, "this is a folder; the import writes a file of that name", "move the folder out of the case"
+            )
 
 
 def imported_model_path(case_root: Path) -> Path | None:

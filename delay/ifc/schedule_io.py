@@ -58,14 +58,14 @@ from ..errors import CaseError, Problem
 from ..model import ACTIVITY_KINDS, COLUMNS, CONSTRAINTS, WEEKDAYS
 from ..output import replace_directory, write_bytes
 from ._common import (
-    ifc_text,
-    ifc_value,
     SCHEDULING_PSET,
     Findings,
     IsoDuration,
     case_calendar_days,
     case_folder,
     csv_bytes,
+    ifc_text,
+    ifc_value,
     open_model,
     parse_date,
     parse_duration,
@@ -135,10 +135,19 @@ class CalendarRead:
         end = np.datetime64(last, "D") + 1
         weekly = 0
         if any(self.weekmask):
-            weekly = int(np.busday_count(np.datetime64(first, "D"), end, weekmask=list(self.weekmask),
-                                         holidays=[np.datetime64(d, "D") for d in self.holidays]))
-        extra = sum(1 for d in self.extra_workdays if first <= d <= last and not self.weekmask[d.weekday()]
-                    and d not in self.holidays)
+            weekly = int(
+                np.busday_count(
+                    np.datetime64(first, "D"),
+                    end,
+                    weekmask=list(self.weekmask),
+                    holidays=[np.datetime64(d, "D") for d in self.holidays],
+                )
+            )
+        extra = sum(
+            1
+            for d in self.extra_workdays
+            if first <= d <= last and not self.weekmask[d.weekday()] and d not in self.holidays
+        )
         return weekly + extra
 
 
@@ -243,12 +252,15 @@ def _time_of(text) -> float | None:
 def _work_time_dates(work_time) -> tuple[dt.date | None, dt.date | None]:
     """Start and finish of an IfcWorkTime (IFC 4: Start, Finish; IFC 4.3: StartDate, FinishDate)."""
     start = getattr(work_time, "Start", None) if hasattr(work_time, "Start") else getattr(work_time, "StartDate", None)
-    finish = getattr(work_time, "Finish", None) if hasattr(work_time, "Finish") else getattr(work_time, "FinishDate", None)
+    finish = (
+        getattr(work_time, "Finish", None) if hasattr(work_time, "Finish") else getattr(work_time, "FinishDate", None)
+    )
     return parse_date(start), parse_date(finish)
 
 
-def _dates_of(work_time, pattern, limit_first: dt.date, limit_last: dt.date,
-              findings: Findings, what: str, calendar) -> list[dt.date]:
+def _dates_of(
+    work_time, pattern, limit_first: dt.date, limit_last: dt.date, findings: Findings, what: str, calendar
+) -> list[dt.date]:
     """The dates a dated or recurring IfcWorkTime covers (both ends included)."""
     start, finish = _work_time_dates(work_time)
     recurrence = pattern.RecurrenceType if pattern is not None else None
@@ -262,23 +274,45 @@ def _dates_of(work_time, pattern, limit_first: dt.date, limit_last: dt.date,
                             days.append(dt.date(year, int(month), int(day)))
                         except ValueError:
                             continue
-            findings.add("calendar", f"the recurring {what} '{ifc_text(work_time.Name)}' is written out for the years "
-                                     f"{limit_first.year} to {limit_last.year}", calendar, ifc_text(calendar.Name))
+            findings.add(
+                "calendar",
+                f"the recurring {what} '{ifc_text(work_time.Name)}' is written out for the years "
+                f"{limit_first.year} to {limit_last.year}",
+                calendar,
+                ifc_text(calendar.Name),
+            )
             return sorted(days)
-        findings.add("calendar", f"the undated {what} '{ifc_text(work_time.Name)}' ({recurrence or 'no pattern'}) "
-                                 "cannot be mapped to dates; it is left out", calendar, ifc_text(calendar.Name))
+        findings.add(
+            "calendar",
+            f"the undated {what} '{ifc_text(work_time.Name)}' ({recurrence or 'no pattern'}) "
+            "cannot be mapped to dates; it is left out",
+            calendar,
+            ifc_text(calendar.Name),
+        )
         return []
     if start is None or finish is None:
-        findings.add("calendar", f"the {what} '{ifc_text(work_time.Name)}' has only one end date; it is taken as a "
-                                 "single day", calendar, ifc_text(calendar.Name))
+        findings.add(
+            "calendar",
+            f"the {what} '{ifc_text(work_time.Name)}' has only one end date; it is taken as a single day",
+            calendar,
+            ifc_text(calendar.Name),
+        )
         start = finish = start or finish
     if finish < start:
-        findings.add("calendar", f"the {what} '{ifc_text(work_time.Name)}' ends before it starts; it is left out",
-                     calendar, ifc_text(calendar.Name))
+        findings.add(
+            "calendar",
+            f"the {what} '{ifc_text(work_time.Name)}' ends before it starts; it is left out",
+            calendar,
+            ifc_text(calendar.Name),
+        )
         return []
     if (finish - start).days > 3660:
-        findings.add("calendar", f"the {what} '{ifc_text(work_time.Name)}' spans more than ten years; it is cut "
-                                 "to ten years", calendar, ifc_text(calendar.Name))
+        findings.add(
+            "calendar",
+            f"the {what} '{ifc_text(work_time.Name)}' spans more than ten years; it is cut to ten years",
+            calendar,
+            ifc_text(calendar.Name),
+        )
         finish = start + dt.timedelta(days=3660)
     days = [start + dt.timedelta(days=k) for k in range((finish - start).days + 1)]
     if recurrence in (None, "DAILY"):
@@ -286,8 +320,13 @@ def _dates_of(work_time, pattern, limit_first: dt.date, limit_last: dt.date,
     if recurrence == "WEEKLY" and pattern.WeekdayComponent:
         weekdays = {int(d) - 1 for d in pattern.WeekdayComponent}
         return [d for d in days if d.weekday() in weekdays]
-    findings.add("calendar", f"the {what} '{ifc_text(work_time.Name)}' recurs {recurrence}, which is not mapped; "
-                             "every day of its dates is taken", calendar, ifc_text(calendar.Name))
+    findings.add(
+        "calendar",
+        f"the {what} '{ifc_text(work_time.Name)}' recurs {recurrence}, which is not mapped; "
+        "every day of its dates is taken",
+        calendar,
+        ifc_text(calendar.Name),
+    )
     return days
 
 
@@ -313,8 +352,13 @@ def read_calendar(calendar, findings: Findings, first: dt.date, last: dt.date) -
                 if 1 <= int(day) <= 7:
                     mask[int(day) - 1] = True
         else:
-            findings.add("calendar", f"the working time '{ifc_text(work_time.Name)}' recurs {recurrence}, which "
-                                     "is not mapped; it is left out", calendar, name)
+            findings.add(
+                "calendar",
+                f"the working time '{ifc_text(work_time.Name)}' recurs {recurrence}, which "
+                "is not mapped; it is left out",
+                calendar,
+                name,
+            )
             continue
         if pattern is not None and pattern.TimePeriods:
             total = 0.0
@@ -325,19 +369,23 @@ def read_calendar(calendar, findings: Findings, first: dt.date, last: dt.date) -
             if total > 0:
                 hours = total
     if not calendar.WorkingTimes:
-        findings.add("calendar", "the calendar has no working times; every weekday Monday to Friday is taken "
-                                 "as a work day (common practice)", calendar, name)
+        findings.add(
+            "calendar",
+            "the calendar has no working times; every weekday Monday to Friday is taken "
+            "as a work day (common practice)",
+            calendar,
+            name,
+        )
         mask = [True] * 5 + [False] * 2
-    result = CalendarRead(name=name, weekmask=tuple(mask), hours_per_day=hours or HOURS_PER_WORK_DAY,
-                          global_id=str(calendar.GlobalId))
+    result = CalendarRead(
+        name=name, weekmask=tuple(mask), hours_per_day=hours or HOURS_PER_WORK_DAY, global_id=str(calendar.GlobalId)
+    )
     for work_time in dated_working:
-        for day in _dates_of(work_time, work_time.RecurrencePattern, first, last, findings,
-                             "working time", calendar):
+        for day in _dates_of(work_time, work_time.RecurrencePattern, first, last, findings, "working time", calendar):
             if not mask[day.weekday()]:
                 result.extra_workdays[day] = ifc_text(work_time.Name)
     for work_time in calendar.ExceptionTimes or ():
-        for day in _dates_of(work_time, work_time.RecurrencePattern, first, last, findings,
-                             "exception time", calendar):
+        for day in _dates_of(work_time, work_time.RecurrencePattern, first, last, findings, "exception time", calendar):
             result.holidays[day] = ifc_text(work_time.Name)
             result.extra_workdays.pop(day, None)
     if not any(result.weekmask) and not result.extra_workdays:
@@ -349,28 +397,45 @@ def read_calendar(calendar, findings: Findings, first: dt.date, last: dt.date) -
 def _pick_schedule(model, wanted: str | None, path: Path):
     schedules = list(model.by_type("IfcWorkSchedule"))
     if not schedules:
-        raise CaseError(Problem(file=str(path), message="the file holds no work schedule (IfcWorkSchedule)",
-                                fix="export the programme as an IFC work schedule"))
+        raise CaseError(
+            Problem(
+                file=str(path),
+                message="the file holds no work schedule (IfcWorkSchedule)",
+                fix="export the programme as an IFC work schedule",
+            )
+        )
     if wanted is not None:
         for schedule in schedules:
             if wanted in (ifc_text(schedule.Name), ifc_text(schedule.Identification), str(schedule.GlobalId)):
                 return schedule
         names = ", ".join(f"'{ifc_text(s.Name) or s.GlobalId}'" for s in schedules)
-        raise CaseError(Problem(file=str(path), message=f"no work schedule '{wanted}' in the file (it holds {names})",
-                                fix="name one of them with --work-schedule"))
+        raise CaseError(
+            Problem(
+                file=str(path),
+                message=f"no work schedule '{wanted}' in the file (it holds {names})",
+                fix="name one of them with --work-schedule",
+            )
+        )
     if len(schedules) > 1:
         names = ", ".join(f"'{ifc_text(s.Name) or s.GlobalId}'" for s in schedules)
-        raise CaseError(Problem(file=str(path), message=f"the file holds {len(schedules)} work schedules ({names})",
-                                fix="choose one with --work-schedule NAME"))
+        raise CaseError(
+            Problem(
+                file=str(path),
+                message=f"the file holds {len(schedules)} work schedules ({names})",
+                fix="choose one with --work-schedule NAME",
+            )
+        )
     return schedules[0]
 
 
-def _work_days(duration: IsoDuration, calendar: CalendarRead | None, findings: Findings, entity, subject: str,
-               what: str) -> float | None:
+def _work_days(
+    duration: IsoDuration, calendar: CalendarRead | None, findings: Findings, entity, subject: str, what: str
+) -> float | None:
     """Work days of a work-time duration; None for years or months (no fixed length)."""
     if duration.has_calendar_parts:
-        findings.add("duration", f"the {what} is given in years or months, which have no length in work days",
-                     entity, subject)
+        findings.add(
+            "duration", f"the {what} is given in years or months, which have no length in work days", entity, subject
+        )
         return None
     per_week = calendar.workdays_per_week if calendar is not None else 5
     per_day = calendar.hours_per_day if calendar is not None else HOURS_PER_WORK_DAY
@@ -392,8 +457,13 @@ def _open_schedule(path: Path, work_schedule: str | None):
     """The opened model and the work schedule chosen in it; an IFC 2x3 file is refused."""
     model = open_model(path)
     if model.schema == "IFC2X3":
-        raise CaseError(Problem(file=str(path), message="the file is IFC 2x3, whose work schedules are not read here",
-                                fix="export the programme as an IFC 4 work schedule"))
+        raise CaseError(
+            Problem(
+                file=str(path),
+                message="the file is IFC 2x3, whose work schedules are not read here",
+                fix="export the programme as an IFC 4 work schedule",
+            )
+        )
     return model, _pick_schedule(model, work_schedule, path)
 
 
@@ -410,8 +480,13 @@ def _schedule_tasks(schedule, children: dict[int, list], path: Path) -> tuple[li
         tasks.append(task)
         stack.extend(reversed(children.get(task.id(), [])))
     if not tasks:
-        raise CaseError(Problem(file=str(path), message=f"the work schedule '{ifc_text(schedule.Name)}' has no task",
-                                fix="assign its tasks to it (IfcRelAssignsToControl)"))
+        raise CaseError(
+            Problem(
+                file=str(path),
+                message=f"the work schedule '{ifc_text(schedule.Name)}' has no task",
+                fix="assign its tasks to it (IfcRelAssignsToControl)",
+            )
+        )
     return tasks, seen
 
 
@@ -419,8 +494,12 @@ def _leaf_tasks(tasks: list, children: dict[int, list], findings: Findings) -> l
     """The tasks that become activities (those with no nested task); each summary task is a finding."""
     leaves = [t for t in tasks if not children.get(t.id())]
     for summary in (t for t in tasks if children.get(t.id())):
-        findings.add("summary_task", f"a summary task of {len(children[summary.id()])} tasks: its tasks are read, "
-                                     "it is not an activity", summary, ifc_text(summary.Identification))
+        findings.add(
+            "summary_task",
+            f"a summary task of {len(children[summary.id()])} tasks: its tasks are read, it is not an activity",
+            summary,
+            ifc_text(summary.Identification),
+        )
     return leaves
 
 
@@ -456,8 +535,9 @@ def _calendar_entity(task, schedule, controls: dict[int, list], parent: dict[int
     return None
 
 
-def _read_calendars(leaves: list, schedule, controls: dict[int, list], parent: dict[int, object],
-                    findings: Findings) -> tuple[dict[str, CalendarRead], dict[int, CalendarRead | None]]:
+def _read_calendars(
+    leaves: list, schedule, controls: dict[int, list], parent: dict[int, object], findings: Findings
+) -> tuple[dict[str, CalendarRead], dict[int, CalendarRead | None]]:
     """The calendars the tasks are worked on, by name (each read once), and each task's
     calendar by entity id (None: the case's default calendar)."""
     first, last = _calendar_years(leaves)
@@ -473,8 +553,9 @@ def _read_calendars(leaves: list, schedule, controls: dict[int, list], parent: d
             read = read_calendar(entity, findings, first, last)
             if read.name in calendars:
                 read.name = f"{read.name}-{entity.id()}"
-                findings.add("calendar", f"two calendars share a name; this one is read as '{read.name}'",
-                             entity, read.name)
+                findings.add(
+                    "calendar", f"two calendars share a name; this one is read as '{read.name}'", entity, read.name
+                )
             by_entity[entity.id()] = read
             calendars[read.name] = read
         task_calendar[task.id()] = by_entity[entity.id()]
@@ -494,12 +575,18 @@ def _task_ids(leaves: list, findings: Findings, path: Path) -> dict[int, str]:
         identification = ifc_text(task.Identification)
         if not identification:
             identification = str(task.GlobalId)
-            findings.add("no_identification", "the task has no Identification; its GlobalId is its id", task,
-                         ifc_text(task.Name))
+            findings.add(
+                "no_identification", "the task has no Identification; its GlobalId is its id", task, ifc_text(task.Name)
+            )
         if identification in used:
-            problems.append(Problem(file=str(path), message=f"the task Identification '{identification}' is used by "
-                                                            f"#{used[identification].id()} and #{task.id()}",
-                                    fix="give every task of the work schedule its own Identification"))
+            problems.append(
+                Problem(
+                    file=str(path),
+                    message=f"the task Identification '{identification}' is used by "
+                    f"#{used[identification].id()} and #{task.id()}",
+                    fix="give every task of the work schedule its own Identification",
+                )
+            )
         used.setdefault(identification, task)
         ids[task.id()] = identification
     if problems:
@@ -508,8 +595,9 @@ def _task_ids(leaves: list, findings: Findings, path: Path) -> dict[int, str]:
 
 
 # -- the reader: links and lags --------------------------------------------------------------------
-def _read_links(model, ids: dict[int, str], seen: set[int], findings: Findings
-                ) -> tuple[list[dict], list[tuple], set[int]]:
+def _read_links(
+    model, ids: dict[int, str], seen: set[int], findings: Findings
+) -> tuple[list[dict], list[tuple], set[int]]:
     """The links between activities, each with a lag of 0 for now: the rows, the sequences they
     come from (``(rel, pred, succ)``, row by row, for the lags) and the entity ids of the tasks
     that have a predecessor. Links the case cannot hold are findings, and left out."""
@@ -524,16 +612,24 @@ def _read_links(model, ids: dict[int, str], seen: set[int], findings: Findings
         if not (in_pred or in_succ) and pred.id() not in seen and succ.id() not in seen:
             continue  # another work schedule's link
         if not (in_pred and in_succ):
-            findings.add("link", "a link to or from a summary task or a task outside the work schedule is "
-                                 "left out", rel, f"{ifc_text(pred.Identification)}>{ifc_text(succ.Identification)}")
+            findings.add(
+                "link",
+                "a link to or from a summary task or a task outside the work schedule is left out",
+                rel,
+                f"{ifc_text(pred.Identification)}>{ifc_text(succ.Identification)}",
+            )
             continue
         kind = rel.SequenceType
         link_type = SEQUENCE_TYPES.get(kind or "")
         if link_type is None:
             link_type = "FS"
-            findings.add("link", f"the sequence type {kind or 'not given'} "
-                                 f"({ifc_text(rel.UserDefinedSequenceType) or 'no user-defined type'}) is read as FS",
-                         rel, f"{ids[pred.id()]}>{ids[succ.id()]}")
+            findings.add(
+                "link",
+                f"the sequence type {kind or 'not given'} "
+                f"({ifc_text(rel.UserDefinedSequenceType) or 'no user-defined type'}) is read as FS",
+                rel,
+                f"{ids[pred.id()]}>{ids[succ.id()]}",
+            )
         key = (ids[pred.id()], ids[succ.id()])
         if key[0] == key[1]:
             findings.add("link", "a link from a task to itself is left out", rel, f"{key[0]}>{key[1]}")
@@ -548,8 +644,9 @@ def _read_links(model, ids: dict[int, str], seen: set[int], findings: Findings
     return link_rows, raw_lags, has_predecessor
 
 
-def _lag_days(rel, predecessor_duration: int, calendar: CalendarRead | None, findings: Findings,
-              subject: str) -> float | None:
+def _lag_days(
+    rel, predecessor_duration: int, calendar: CalendarRead | None, findings: Findings, subject: str
+) -> float | None:
     """Work days of a link's IfcLagTime (a ratio of the predecessor's duration, elapsed time or
     work time); None when the link keeps its lag of 0 (no lag, or one that cannot be read)."""
     lag_time = rel.TimeLag
@@ -558,10 +655,18 @@ def _lag_days(rel, predecessor_duration: int, calendar: CalendarRead | None, fin
     value = lag_time.LagValue
     if value is None:
         return None
-    if value.is_a("IfcRatioMeasure") or value.is_a("IfcNormalisedRatioMeasure") or value.is_a("IfcPositiveRatioMeasure"):
+    if (
+        value.is_a("IfcRatioMeasure")
+        or value.is_a("IfcNormalisedRatioMeasure")
+        or value.is_a("IfcPositiveRatioMeasure")
+    ):
         lag = float(value.wrappedValue) * predecessor_duration
-        findings.add("lag", f"a lag of {float(value.wrappedValue):g} of the predecessor's duration is taken as "
-                            f"{lag:g} work days", rel, subject)
+        findings.add(
+            "lag",
+            f"a lag of {float(value.wrappedValue):g} of the predecessor's duration is taken as {lag:g} work days",
+            rel,
+            subject,
+        )
         return lag
     parsed = parse_duration(ifc_text(value))
     if parsed is None:
@@ -570,14 +675,20 @@ def _lag_days(rel, predecessor_duration: int, calendar: CalendarRead | None, fin
     if lag_time.DurationType == "ELAPSEDTIME":
         elapsed = parsed.sign * (parsed.weeks * 7 + parsed.days)
         lag = elapsed * (calendar.workdays_per_week if calendar is not None else 5) / 7
-        findings.add("lag", f"the lag '{ifc_text(value)}' is elapsed time; it is taken as {lag:g} work days", rel,
-                     subject)
+        findings.add(
+            "lag", f"the lag '{ifc_text(value)}' is elapsed time; it is taken as {lag:g} work days", rel, subject
+        )
         return lag
     return _work_days(parsed, calendar, findings, rel, subject, "lag")
 
 
-def _with_lags(link_rows: list[dict], raw_lags: list[tuple], durations: dict[int, int],
-               task_calendar: dict[int, CalendarRead | None], findings: Findings) -> list[dict]:
+def _with_lags(
+    link_rows: list[dict],
+    raw_lags: list[tuple],
+    durations: dict[int, int],
+    task_calendar: dict[int, CalendarRead | None],
+    findings: Findings,
+) -> list[dict]:
     """The link rows with their lags in whole work days of the successor's calendar, as text."""
     rows = []
     for row, (rel, pred, succ) in zip(link_rows, raw_lags):
@@ -603,30 +714,39 @@ class _TaskTimes:
     early_finish: dt.date | None = None
 
 
-def _scheduled_duration(time, start: dt.date | None, calendar: CalendarRead | None, findings: Findings, task,
-                        identification: str) -> float | None:
+def _scheduled_duration(
+    time, start: dt.date | None, calendar: CalendarRead | None, findings: Findings, task, identification: str
+) -> float | None:
     """Work days of a task time's ScheduleDuration, elapsed time counted on the calendar from
     the scheduled start; None when it is not given or not read."""
     if not time.ScheduleDuration:
         return None
     parsed = parse_duration(time.ScheduleDuration)
     if parsed is None:
-        findings.add("duration", f"the duration '{time.ScheduleDuration}' is not an ISO 8601 duration",
-                     task, identification)
+        findings.add(
+            "duration", f"the duration '{time.ScheduleDuration}' is not an ISO 8601 duration", task, identification
+        )
         return None
     if time.DurationType == "ELAPSEDTIME":
-        elapsed = parsed.sign * (parsed.weeks * 7 + parsed.days + (parsed.hours + parsed.minutes / 60
-                                                                  + parsed.seconds / 3600) / 24)
+        elapsed = parsed.sign * (
+            parsed.weeks * 7 + parsed.days + (parsed.hours + parsed.minutes / 60 + parsed.seconds / 3600) / 24
+        )
         if start is not None and calendar is not None:
             duration_days = calendar.count(start, start + dt.timedelta(days=max(0, int(np.ceil(elapsed)) - 1)))
         else:
             duration_days = elapsed * (calendar.workdays_per_week if calendar else 5) / 7
-        findings.add("duration", f"the duration '{time.ScheduleDuration}' is elapsed time; it is taken "
-                                 f"as the {duration_days:g} work days it covers", task, identification)
+        findings.add(
+            "duration",
+            f"the duration '{time.ScheduleDuration}' is elapsed time; it is taken "
+            f"as the {duration_days:g} work days it covers",
+            task,
+            identification,
+        )
         return duration_days
     if time.DurationType not in ("WORKTIME",):
-        findings.add("duration", "the duration type is not given; the duration is read as work time",
-                     task, identification)
+        findings.add(
+            "duration", "the duration type is not given; the duration is read as work time", task, identification
+        )
     return _work_days(parsed, calendar, findings, task, identification, "duration")
 
 
@@ -635,22 +755,31 @@ def _task_times(task, identification: str, calendar: CalendarRead | None, findin
     between its scheduled dates (a finding)."""
     time = task.TaskTime
     if time is None:
-        findings.add("duration", "the task has no task time (IfcTaskTime); its duration is taken as 0",
-                     task, identification)
+        findings.add(
+            "duration", "the task has no task time (IfcTaskTime); its duration is taken as 0", task, identification
+        )
         return _TaskTimes()
     start, finish = parse_date(time.ScheduleStart), parse_date(time.ScheduleFinish)
-    times = _TaskTimes(present=True, actual_start=parse_date(time.ActualStart),
-                       actual_finish=parse_date(time.ActualFinish), status=parse_date(time.StatusTime),
-                       early_start=parse_date(time.EarlyStart) or start,
-                       early_finish=parse_date(time.EarlyFinish) or finish)
+    times = _TaskTimes(
+        present=True,
+        actual_start=parse_date(time.ActualStart),
+        actual_finish=parse_date(time.ActualFinish),
+        status=parse_date(time.StatusTime),
+        early_start=parse_date(time.EarlyStart) or start,
+        early_finish=parse_date(time.EarlyFinish) or finish,
+    )
     times.duration_days = _scheduled_duration(time, start, calendar, findings, task, identification)
     if times.duration_days is None and start is not None and finish is not None:
         if calendar is not None:
             times.duration_days = calendar.count(start, finish)
         else:
             times.duration_days = int(np.busday_count(start, finish + dt.timedelta(days=1)))
-        findings.add("duration", f"the duration is taken from the scheduled dates {start} to {finish}: "
-                                 f"{times.duration_days:g} work days", task, identification)
+        findings.add(
+            "duration",
+            f"the duration is taken from the scheduled dates {start} to {finish}: {times.duration_days:g} work days",
+            task,
+            identification,
+        )
     if time.RemainingTime:
         parsed = parse_duration(time.RemainingTime)
         if parsed is not None:
@@ -664,29 +793,34 @@ def _whole_duration(times: _TaskTimes, task, identification: str, findings: Find
     duration_days = times.duration_days
     if duration_days is None:
         if times.present:
-            findings.add("duration", "the task has neither a duration nor scheduled dates; its duration is "
-                                     "taken as 0", task, identification)
+            findings.add(
+                "duration",
+                "the task has neither a duration nor scheduled dates; its duration is taken as 0",
+                task,
+                identification,
+            )
         duration_days = 0
     duration = _whole(duration_days, findings, task, identification, "duration")
     if duration < 0:
         findings.add("duration", "a negative duration is taken as 0", task, identification)
         duration = 0
     if task.IsMilestone and duration > 0:
-        findings.add("milestone", f"a milestone with a duration of {duration} work days: taken as 0",
-                     task, identification)
+        findings.add(
+            "milestone", f"a milestone with a duration of {duration} work days: taken as 0", task, identification
+        )
         duration = 0
     return duration
 
 
-def _activity_kind(task, facts: dict, duration: int, has_predecessor: set[int], identification: str,
-                   findings: Findings) -> str:
+def _activity_kind(
+    task, facts: dict, duration: int, has_predecessor: set[int], identification: str, findings: Findings
+) -> str:
     """The activity's kind: our property set's, else from IsMilestone (a start milestone when
     nothing precedes it); anything with a duration is a task."""
     kind = ifc_text(facts.get("Kind"))
     if kind not in ACTIVITY_KINDS:
         if kind:
-            findings.add("kind", f"the kind '{kind}' is not one of {', '.join(ACTIVITY_KINDS)}", task,
-                         identification)
+            findings.add("kind", f"the kind '{kind}' is not one of {', '.join(ACTIVITY_KINDS)}", task, identification)
         kind = "task"
         if task.IsMilestone:
             kind = "finish_milestone" if task.id() in has_predecessor else "start_milestone"
@@ -701,8 +835,12 @@ def _activity_constraint(task, facts: dict, identification: str, findings: Findi
     constraint = ifc_text(facts.get("Constraint"))
     constraint_date = parse_date(facts.get("ConstraintDate"))
     if constraint and constraint not in CONSTRAINTS:
-        findings.add("constraint", f"the constraint '{constraint}' is not one of {', '.join(CONSTRAINTS)}; "
-                                   "it is left out", task, identification)
+        findings.add(
+            "constraint",
+            f"the constraint '{constraint}' is not one of {', '.join(CONSTRAINTS)}; it is left out",
+            task,
+            identification,
+        )
         constraint = ""
     if constraint and constraint_date is None:
         findings.add("constraint", "a constraint without its date is left out", task, identification)
@@ -710,8 +848,9 @@ def _activity_constraint(task, facts: dict, identification: str, findings: Findi
     return constraint, constraint_date
 
 
-def _progress(times: _TaskTimes, kind: str, duration: int, task, identification: str,
-              findings: Findings) -> tuple[dt.date | None, str]:
+def _progress(
+    times: _TaskTimes, kind: str, duration: int, task, identification: str, findings: Findings
+) -> tuple[dt.date | None, str]:
     """The actual start (an actual finish without one: the finish) and the remaining duration
     as text: 0 when finished, the file's remaining time, else a started task's duration."""
     actual_start, actual_finish, remaining = times.actual_start, times.actual_finish, times.remaining
@@ -719,21 +858,37 @@ def _progress(times: _TaskTimes, kind: str, duration: int, task, identification:
     if actual_finish is not None:
         remaining_text = "0"
         if actual_start is None and kind == "task" and duration > 0:
-            findings.add("progress", "an actual finish without an actual start: the start is taken as the "
-                                     "finish", task, identification)
+            findings.add(
+                "progress",
+                "an actual finish without an actual start: the start is taken as the finish",
+                task,
+                identification,
+            )
             actual_start = actual_finish
     elif remaining is not None:
         remaining_text = str(max(0, _whole(remaining, findings, task, identification, "remaining time")))
     if actual_start is not None and actual_finish is None and not remaining_text:
         if duration > 0:
-            findings.add("progress", "a started task without a remaining time: its remaining duration is "
-                                     "taken as its duration", task, identification)
+            findings.add(
+                "progress",
+                "a started task without a remaining time: its remaining duration is taken as its duration",
+                task,
+                identification,
+            )
             remaining_text = str(duration)
     return actual_start, remaining_text
 
 
-def _activity_row(task, identification: str, calendar: CalendarRead | None, facts: dict, times: _TaskTimes,
-                  parent: dict[int, object], has_predecessor: set[int], findings: Findings) -> dict[str, str]:
+def _activity_row(
+    task,
+    identification: str,
+    calendar: CalendarRead | None,
+    facts: dict,
+    times: _TaskTimes,
+    parent: dict[int, object],
+    has_predecessor: set[int],
+    findings: Findings,
+) -> dict[str, str]:
     """One row of activities.csv for a task, every cell text. The wbs is our property set's,
     else the Identification of the summary task it is nested in."""
     duration = _whole_duration(times, task, identification, findings)
@@ -745,19 +900,31 @@ def _activity_row(task, identification: str, calendar: CalendarRead | None, fact
     actual_start, remaining_text = _progress(times, kind, duration, task, identification, findings)
     actual_finish = times.actual_finish
     return {
-        "id": identification, "name": ifc_text(task.Name), "duration": str(duration),
-        "calendar": calendar.name if calendar is not None else "", "wbs": wbs, "kind": kind,
-        "constraint": constraint, "constraint_date": constraint_date.isoformat() if constraint else "",
-        "party": ifc_text(facts.get("Party")), "risk": "",
+        "id": identification,
+        "name": ifc_text(task.Name),
+        "duration": str(duration),
+        "calendar": calendar.name if calendar is not None else "",
+        "wbs": wbs,
+        "kind": kind,
+        "constraint": constraint,
+        "constraint_date": constraint_date.isoformat() if constraint else "",
+        "party": ifc_text(facts.get("Party")),
+        "risk": "",
         "actual_start": actual_start.isoformat() if actual_start else "",
         "actual_finish": actual_finish.isoformat() if actual_finish else "",
         "remaining": remaining_text,
     }
 
 
-def _read_activities(leaves: list, ids: dict[int, str], task_calendar: dict[int, CalendarRead | None],
-                     ours: dict[int, dict], parent: dict[int, object], has_predecessor: set[int],
-                     findings: Findings) -> tuple[list[dict], list[dict], set[dt.date], dict[int, int]]:
+def _read_activities(
+    leaves: list,
+    ids: dict[int, str],
+    task_calendar: dict[int, CalendarRead | None],
+    ours: dict[int, dict],
+    parent: dict[int, object],
+    has_predecessor: set[int],
+    findings: Findings,
+) -> tuple[list[dict], list[dict], set[dt.date], dict[int, int]]:
     """The activities' rows, the file's own dates of each timed task (``id, start, finish``),
     the distinct StatusTime dates, and each activity's duration by entity id (for ratio lags)."""
     rows, file_dates = [], []
@@ -771,17 +938,25 @@ def _read_activities(leaves: list, ids: dict[int, str], task_calendar: dict[int,
             if times.status is not None:
                 dated_statuses.add(times.status)
             file_dates.append({"id": identification, "start": times.early_start, "finish": times.early_finish})
-        row = _activity_row(task, identification, calendar, ours.get(task.id(), {}), times, parent,
-                            has_predecessor, findings)
+        row = _activity_row(
+            task, identification, calendar, ours.get(task.id(), {}), times, parent, has_predecessor, findings
+        )
         rows.append(row)
         durations[task.id()] = int(row["duration"])
     return rows, file_dates, dated_statuses, durations
 
 
 # -- the reader ------------------------------------------------------------------------------------
-def _work_schedule_read(schedule, schedule_facts: dict, calendars: dict[str, CalendarRead], rows: list[dict],
-                        link_rows: list[dict], file_dates: list[dict], dated_statuses: set[dt.date],
-                        findings: Findings) -> WorkScheduleRead:
+def _work_schedule_read(
+    schedule,
+    schedule_facts: dict,
+    calendars: dict[str, CalendarRead],
+    rows: list[dict],
+    link_rows: list[dict],
+    file_dates: list[dict],
+    dated_statuses: set[dt.date],
+    findings: Findings,
+) -> WorkScheduleRead:
     """The tables of the read: the data date is our property set's, else the tasks' StatusTime
     when they all give the same one."""
     data_date = parse_date(schedule_facts.get("DataDate"))
@@ -792,8 +967,17 @@ def _work_schedule_read(schedule, schedule_facts: dict, calendars: dict[str, Cal
     dates_frame = pd.DataFrame(file_dates, columns=["id", "start", "finish"])
     for column in ("start", "finish"):
         dates_frame[column] = pd.to_datetime(dates_frame[column])
-    return WorkScheduleRead(ifc_text(schedule.Name), activities, links, calendars, data_date, schedule_facts,
-                            dates_frame, findings.frame(), parse_date(schedule.StartTime))
+    return WorkScheduleRead(
+        ifc_text(schedule.Name),
+        activities,
+        links,
+        calendars,
+        data_date,
+        schedule_facts,
+        dates_frame,
+        findings.frame(),
+        parse_date(schedule.StartTime),
+    )
 
 
 def read_work_schedule(path: str | Path, *, work_schedule: str | None = None) -> WorkScheduleRead:
@@ -829,13 +1013,16 @@ def read_work_schedule(path: str | Path, *, work_schedule: str | None = None) ->
     calendars, task_calendar = _read_calendars(leaves, schedule, controls, parent, findings)
     ids = _task_ids(leaves, findings, path)
     link_rows, raw_lags, has_predecessor = _read_links(model, ids, seen, findings)
-    rows, file_dates, dated_statuses, durations = _read_activities(leaves, ids, task_calendar, ours, parent,
-                                                                    has_predecessor, findings)
+    rows, file_dates, dated_statuses, durations = _read_activities(
+        leaves, ids, task_calendar, ours, parent, has_predecessor, findings
+    )
     link_rows = _with_lags(link_rows, raw_lags, durations, task_calendar, findings)
-    schedule_facts = {k: (v.isoformat() if isinstance(v, dt.date) else v)
-                      for k, v in ours.get(schedule.id(), {}).items()}
-    return _work_schedule_read(schedule, schedule_facts, calendars, rows, link_rows, file_dates, dated_statuses,
-                               findings)
+    schedule_facts = {
+        k: (v.isoformat() if isinstance(v, dt.date) else v) for k, v in ours.get(schedule.id(), {}).items()
+    }
+    return _work_schedule_read(
+        schedule, schedule_facts, calendars, rows, link_rows, file_dates, dated_statuses, findings
+    )
 
 
 # -- into the case -------------------------------------------------------------------------------------
@@ -847,12 +1034,14 @@ def _case_calendar(case, name: str) -> CalendarRead | None:
     from ..calendars import parse_workdays
 
     holidays, extra_workdays = case_calendar_days(case, name)
-    return CalendarRead(name=name, weekmask=parse_workdays(found["workdays"].iloc[0]), holidays=holidays,
-                        extra_workdays=extra_workdays)
+    return CalendarRead(
+        name=name, weekmask=parse_workdays(found["workdays"].iloc[0]), holidays=holidays, extra_workdays=extra_workdays
+    )
 
 
-def _place_calendars(case, calendars: dict[str, CalendarRead], findings: Findings
-                     ) -> tuple[dict[str, str], list[CalendarRead]]:
+def _place_calendars(
+    case, calendars: dict[str, CalendarRead], findings: Findings
+) -> tuple[dict[str, str], list[CalendarRead]]:
     """The case calendar each read calendar becomes: an equal one of the same name, or a new
     one (renamed ``NAME-ifc`` when the case has a different calendar of that name)."""
     names: dict[str, str] = {}
@@ -873,8 +1062,12 @@ def _place_calendars(case, calendars: dict[str, CalendarRead], findings: Finding
                 break
             if existing.effective() == read.effective():
                 break
-            findings.add("calendar", f"the case has a different calendar named '{candidate}'; the file's calendar "
-                                     f"is read under another name", subject=name)
+            findings.add(
+                "calendar",
+                f"the case has a different calendar named '{candidate}'; the file's calendar "
+                f"is read under another name",
+                subject=name,
+            )
             candidate = f"{name}-ifc" if number == 1 else f"{name}-ifc{number}"
             number += 1
         names[name] = candidate
@@ -904,36 +1097,60 @@ def _check_options(root: Path, folder: str, kind: str | None, replace: bool) -> 
     """The snapshot folder to write and the snapshot's kind. Refused: a folder that is not a
     plain name, one that exists (unless ``replace``), a kind other than baseline or update."""
     if not _FOLDER_NAME.match(folder or ""):
-        raise CaseError(Problem(file="snapshots/", message=f"'{folder}' is not a folder name",
-                                fix="give --snapshot a plain name such as 2025-06-30"))
+        raise CaseError(
+            Problem(
+                file="snapshots/",
+                message=f"'{folder}' is not a folder name",
+                fix="give --snapshot a plain name such as 2025-06-30",
+            )
+        )
     target = root / "snapshots" / folder
     if target.exists() and not replace:
-        raise CaseError(Problem(file=f"snapshots/{folder}", message="the snapshot folder exists",
-                                fix="choose another --snapshot, or give --replace to replace it"))
+        raise CaseError(
+            Problem(
+                file=f"snapshots/{folder}",
+                message="the snapshot folder exists",
+                fix="choose another --snapshot, or give --replace to replace it",
+            )
+        )
     kind = kind or ("baseline" if folder == "baseline" else "update")
     if kind not in ("baseline", "update"):
-        raise CaseError(Problem(file=f"snapshots/{folder}", message=f"the kind '{kind}' is not baseline or update",
-                                fix="give --kind baseline or --kind update"))
+        raise CaseError(
+            Problem(
+                file=f"snapshots/{folder}",
+                message=f"the kind '{kind}' is not baseline or update",
+                fix="give --kind baseline or --kind update",
+            )
+        )
     return target, kind
 
 
-def _resolve_data_date(data_date: dt.date | str | None, read: WorkScheduleRead, kind: str,
-                       model_path: Path) -> dt.date:
+def _resolve_data_date(data_date: dt.date | str | None, read: WorkScheduleRead, kind: str, model_path: Path) -> dt.date:
     """The data date given (a date or ``YYYY-MM-DD``), else the file's, else for a baseline the
     work schedule's StartTime; refused when there is none."""
     if isinstance(data_date, str):
         try:
             data_date = dt.date.fromisoformat(data_date)
         except ValueError:
-            raise CaseError(Problem(file=str(model_path), message=f"the data date '{data_date}' is not a date",
-                                    fix="write it as YYYY-MM-DD")) from None
+            raise CaseError(
+                Problem(
+                    file=str(model_path),
+                    message=f"the data date '{data_date}' is not a date",
+                    fix="write it as YYYY-MM-DD",
+                )
+            ) from None
     if data_date is None:
         data_date = read.data_date
     if data_date is None and kind == "baseline":
         data_date = read.start_time
     if data_date is None:
-        raise CaseError(Problem(file=str(model_path), message="the file does not say the data date of the programme",
-                                fix="give it with --data-date YYYY-MM-DD"))
+        raise CaseError(
+            Problem(
+                file=str(model_path),
+                message="the file does not say the data date of the programme",
+                fix="give it with --data-date YYYY-MM-DD",
+            )
+        )
     return data_date
 
 
@@ -944,26 +1161,38 @@ def _check_other_snapshots(case, folder: str, data_date: dt.date, label: str) ->
         if snap.folder == folder:
             continue
         if snap.data_date == data_date:
-            raise CaseError(Problem(file=f"snapshots/{folder}", message=f"the data date {data_date} is also the data "
-                                                                       f"date of '{snap.folder}'",
-                                    fix="give another --data-date, or --replace that snapshot"))
+            raise CaseError(
+                Problem(
+                    file=f"snapshots/{folder}",
+                    message=f"the data date {data_date} is also the data date of '{snap.folder}'",
+                    fix="give another --data-date, or --replace that snapshot",
+                )
+            )
         if label in (snap.label, snap.folder):
-            raise CaseError(Problem(file=f"snapshots/{folder}", message=f"the label '{label}' is also used by "
-                                                                       f"'{snap.folder}'",
-                                    fix="give another --label"))
+            raise CaseError(
+                Problem(
+                    file=f"snapshots/{folder}",
+                    message=f"the label '{label}' is also used by '{snap.folder}'",
+                    fix="give another --label",
+                )
+            )
 
 
 def _check_actual_dates(activities: pd.DataFrame, data_date: dt.date, model_path: Path) -> None:
     """Refused when a task's actual start or finish is on or after the data date (the first 50
     such dates named)."""
     problems = []
-    for identification, start, finish in zip(activities["id"], activities["actual_start"],
-                                             activities["actual_finish"]):
+    for identification, start, finish in zip(activities["id"], activities["actual_start"], activities["actual_finish"]):
         for what, value in (("actual start", start), ("actual finish", finish)):
             if value and dt.date.fromisoformat(value) >= data_date:
-                problems.append(Problem(file=str(model_path), message=f"the task '{identification}' has an {what} "
-                                                                      f"{value} on or after the data date {data_date}",
-                                        fix="give the data date with --data-date, or correct the task's task time"))
+                problems.append(
+                    Problem(
+                        file=str(model_path),
+                        message=f"the task '{identification}' has an {what} "
+                        f"{value} on or after the data date {data_date}",
+                        fix="give the data date with --data-date, or correct the task's task time",
+                    )
+                )
     if problems:
         raise CaseError(problems[:50])
 
@@ -974,8 +1203,9 @@ def _calendar_files(root: Path, added: list[CalendarRead]) -> dict[str, bytes]:
     files: dict[str, bytes] = {}
     if not added:
         return files
-    files["calendars.csv"] = _append_rows(root / "calendars.csv", ["calendar", "workdays"],
-                                          [{"calendar": c.name, "workdays": c.workdays} for c in added])
+    files["calendars.csv"] = _append_rows(
+        root / "calendars.csv", ["calendar", "workdays"], [{"calendar": c.name, "workdays": c.workdays} for c in added]
+    )
     rows = []
     for calendar in added:
         for day, reason in sorted(calendar.holidays.items()):
@@ -983,16 +1213,19 @@ def _calendar_files(root: Path, added: list[CalendarRead]) -> dict[str, bytes]:
         for day, reason in sorted(calendar.extra_workdays.items()):
             rows.append({"calendar": calendar.name, "date": day.isoformat(), "working": "yes", "reason": reason})
     if rows:
-        files["calendar_exceptions.csv"] = _append_rows(root / "calendar_exceptions.csv",
-                                                        ["calendar", "date", "working", "reason"], rows)
+        files["calendar_exceptions.csv"] = _append_rows(
+            root / "calendar_exceptions.csv", ["calendar", "date", "working", "reason"], rows
+        )
     return files
 
 
-def _snapshot_files(label: str, data_date: dt.date, kind: str, activities: pd.DataFrame,
-                    links: pd.DataFrame) -> dict[str, bytes]:
+def _snapshot_files(
+    label: str, data_date: dt.date, kind: str, activities: pd.DataFrame, links: pd.DataFrame
+) -> dict[str, bytes]:
     """The files of the snapshot folder, by name: snapshot.toml, activities.csv and links.csv."""
-    snapshot_toml = (f"label = {_toml_text(label)}\ndata_date = {data_date.isoformat()}\n"
-                     f"kind = {_toml_text(kind)}\n").encode("utf-8")
+    snapshot_toml = (
+        f"label = {_toml_text(label)}\ndata_date = {data_date.isoformat()}\nkind = {_toml_text(kind)}\n"
+    ).encode()
     return {
         "snapshot.toml": snapshot_toml,
         "activities.csv": csv_bytes(activities),
@@ -1010,9 +1243,13 @@ def _compare_dates(file_dates: pd.DataFrame, result, findings: Findings) -> None
     joined = compared.join(ours, how="inner")
     differ = joined[(joined["start"] != joined["early_start"]) | (joined["finish"] != joined["early_finish"])]
     for identification, row in differ.head(50).iterrows():
-        findings.add("dates_differ", f"the file schedules it {_day(row['start'])} to {_day(row['finish'])}; the "
-                                     f"toolkit's critical path method gives {_day(row['early_start'])} to "
-                                     f"{_day(row['early_finish'])}", subject=str(identification))
+        findings.add(
+            "dates_differ",
+            f"the file schedules it {_day(row['start'])} to {_day(row['finish'])}; the "
+            f"toolkit's critical path method gives {_day(row['early_start'])} to "
+            f"{_day(row['early_finish'])}",
+            subject=str(identification),
+        )
     if len(differ) > 50:
         findings.add("dates_differ", f"{len(differ) - 50} more activities whose dates differ")
 
@@ -1106,8 +1343,9 @@ def import_work_schedule(
     findings_frame = findings.frame()
     snapshot_files[FINDINGS_FILE] = csv_bytes(findings_frame)
     written = _write_import(root, target, files, snapshot_files)
-    return ScheduleImport(read, target, data_date, label, kind, tuple(c.name for c in added), findings_frame,
-                          tuple(written))
+    return ScheduleImport(
+        read, target, data_date, label, kind, tuple(c.name for c in added), findings_frame, tuple(written)
+    )
 
 
 def _day(value) -> str:

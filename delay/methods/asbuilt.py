@@ -56,8 +56,8 @@ from ..convert import NO_DAY, day_to_date, iso_date, json_int, table_dates
 from ..cpm import calendars_of, prepare
 from ..errors import CaseError, Problem, ReconciliationError
 from ..events import completion_activity
-from ..memo import remembered
 from ..ledger import ledger_number, logic_late_finish, split_days, trace_charges
+from ..memo import remembered
 
 __all__ = ["compare", "AsBuiltResult", "PERIODS"]
 
@@ -93,27 +93,44 @@ class AsBuiltResult:
             "actual_completion": self.actual_completion.isoformat(),
             "completion_variance_days": self.completion_variance_days,
             "critical_path": [
-                {"activity": r.activity, "actual_start": iso_date(r.actual_start),
-                 "actual_finish": iso_date(r.actual_finish), "planned_finish": iso_date(r.planned_finish),
-                 "driving_predecessor": r.driving_predecessor or None, "link": r.link or None,
-                 "gap_work_days": json_int(r.gap_work_days), "lateness_work_days": json_int(r.lateness_work_days),
-                 "inherited": bool(r.inherited), "work_days": int(r.work_days), "delay_days": int(r.delay_days),
-                 "period": r.period}
+                {
+                    "activity": r.activity,
+                    "actual_start": iso_date(r.actual_start),
+                    "actual_finish": iso_date(r.actual_finish),
+                    "planned_finish": iso_date(r.planned_finish),
+                    "driving_predecessor": r.driving_predecessor or None,
+                    "link": r.link or None,
+                    "gap_work_days": json_int(r.gap_work_days),
+                    "lateness_work_days": json_int(r.lateness_work_days),
+                    "inherited": bool(r.inherited),
+                    "work_days": int(r.work_days),
+                    "delay_days": int(r.delay_days),
+                    "period": r.period,
+                }
                 for r in self.critical_path.itertuples(index=False)
             ],
             "periods": [
-                {"period": r.period, "delay_days": int(r.delay_days), "work_days": int(r.work_days),
-                 "cumulative_days": int(r.cumulative_days)}
+                {
+                    "period": r.period,
+                    "delay_days": int(r.delay_days),
+                    "work_days": int(r.work_days),
+                    "cumulative_days": int(r.cumulative_days),
+                }
                 for r in self.periods.itertuples(index=False)
             ],
             "activities": [
-                {"activity": r.id, "planned_start": iso_date(r.planned_start), "planned_finish": iso_date(r.planned_finish),
-                 "actual_start": iso_date(r.actual_start), "actual_finish": iso_date(r.actual_finish),
-                 "start_variance_days": json_int(r.start_variance_days),
-                 "start_variance_work_days": json_int(r.start_variance_work_days),
-                 "finish_variance_days": json_int(r.finish_variance_days),
-                 "finish_variance_work_days": json_int(r.finish_variance_work_days),
-                 "duration_variance_work_days": json_int(r.duration_variance_work_days)}
+                {
+                    "activity": r.id,
+                    "planned_start": iso_date(r.planned_start),
+                    "planned_finish": iso_date(r.planned_finish),
+                    "actual_start": iso_date(r.actual_start),
+                    "actual_finish": iso_date(r.actual_finish),
+                    "start_variance_days": json_int(r.start_variance_days),
+                    "start_variance_work_days": json_int(r.start_variance_work_days),
+                    "finish_variance_days": json_int(r.finish_variance_days),
+                    "finish_variance_work_days": json_int(r.finish_variance_work_days),
+                    "duration_variance_work_days": json_int(r.duration_variance_work_days),
+                }
                 for r in self.activities.itertuples(index=False)
             ],
         }
@@ -140,37 +157,61 @@ def _activity_table(planned, built) -> pd.DataFrame:
     actual_start_day = built.day_array("early_start")
     actual_finish_day = built.day_array("early_finish")
     cal = built.model.calendar
-    work_days = (calendars.finish_index_days(cal, actual_finish_day) + 1 - calendars.start_index_days(cal, actual_start_day))
+    work_days = (
+        calendars.finish_index_days(cal, actual_finish_day) + 1 - calendars.start_index_days(cal, actual_start_day)
+    )
     milestone = (built.point != 0) | (built.model.kind != 0)
-    actual = pd.DataFrame({
-        "id": built.ids, "name": built.model.names, "actual_start": table_dates(actual_start_day),
-        "actual_finish": table_dates(actual_finish_day),
-        "actual_duration": np.where(milestone, 0, np.maximum(work_days, 0)),
-        "_actual_start_index": _work_index(calendars, cal, actual_start_day, False),
-        "_actual_finish_index": _work_index(calendars, cal, actual_finish_day, True),
-    })
+    actual = pd.DataFrame(
+        {
+            "id": built.ids,
+            "name": built.model.names,
+            "actual_start": table_dates(actual_start_day),
+            "actual_finish": table_dates(actual_finish_day),
+            "actual_duration": np.where(milestone, 0, np.maximum(work_days, 0)),
+            "_actual_start_index": _work_index(calendars, cal, actual_start_day, False),
+            "_actual_finish_index": _work_index(calendars, cal, actual_finish_day, True),
+        }
+    )
     # the planned dates counted on the as-built calendar of each activity
     where = built.model.network.index_of(planned.ids)
     plan_cal = np.where(where >= 0, cal[np.maximum(where, 0)], planned.model.calendar)
-    plan = pd.DataFrame({
-        "id": planned.ids, "planned_start": table_dates(planned_start_day), "planned_finish": table_dates(planned_finish_day),
-        "planned_duration": planned.model.duration,
-        "_planned_start_index": _work_index(calendars, plan_cal, planned_start_day, False),
-        "_planned_finish_index": _work_index(calendars, plan_cal, planned_finish_day, True),
-    })
+    plan = pd.DataFrame(
+        {
+            "id": planned.ids,
+            "planned_start": table_dates(planned_start_day),
+            "planned_finish": table_dates(planned_finish_day),
+            "planned_duration": planned.model.duration,
+            "_planned_start_index": _work_index(calendars, plan_cal, planned_start_day, False),
+            "_planned_finish_index": _work_index(calendars, plan_cal, planned_finish_day, True),
+        }
+    )
     table = actual.merge(plan, on="id", how="outer", sort=False)
     order = pd.Index(list(built.ids) + list(pd.Index(planned.ids).difference(pd.Index(built.ids), sort=False)))
     table = table.set_index("id").reindex(order).rename_axis("id").reset_index()
     table["start_variance_days"] = (table["actual_start"] - table["planned_start"]).dt.days.astype("Int64")
     table["start_variance_work_days"] = (table["_actual_start_index"] - table["_planned_start_index"]).astype("Int64")
     table["finish_variance_days"] = (table["actual_finish"] - table["planned_finish"]).dt.days.astype("Int64")
-    table["finish_variance_work_days"] = (table["_actual_finish_index"]
-                                          - table["_planned_finish_index"]).astype("Int64")
+    table["finish_variance_work_days"] = (table["_actual_finish_index"] - table["_planned_finish_index"]).astype(
+        "Int64"
+    )
     table["duration_variance_work_days"] = (table["actual_duration"] - table["planned_duration"]).astype("Int64")
-    return table[["id", "name", "planned_start", "planned_finish", "planned_duration", "actual_start",
-                  "actual_finish", "actual_duration", "start_variance_days", "start_variance_work_days",
-                  "finish_variance_days", "finish_variance_work_days", "duration_variance_work_days"]
-                 ].reset_index(drop=True)
+    return table[
+        [
+            "id",
+            "name",
+            "planned_start",
+            "planned_finish",
+            "planned_duration",
+            "actual_start",
+            "actual_finish",
+            "actual_duration",
+            "start_variance_days",
+            "start_variance_work_days",
+            "finish_variance_days",
+            "finish_variance_work_days",
+            "duration_variance_work_days",
+        ]
+    ].reset_index(drop=True)
 
 
 def compare(case, period: str = "M") -> AsBuiltResult:
@@ -203,8 +244,13 @@ def compare(case, period: str = "M") -> AsBuiltResult:
     (2017), Part B, as-planned versus as-built windows analysis.
     """
     if case.asbuilt_snapshot is None:
-        raise CaseError(Problem(file="asbuilt.csv", message="the case has no as-built record",
-                                fix="add asbuilt.csv with the actual dates of every activity"))
+        raise CaseError(
+            Problem(
+                file="asbuilt.csv",
+                message="the case has no as-built record",
+                fix="add asbuilt.csv with the actual dates of every activity",
+            )
+        )
     return remembered(case, ("asbuilt", period), lambda: _compare(case, period))
 
 
@@ -216,9 +262,14 @@ def _compare(case, period: str) -> AsBuiltResult:
     k_plan = int(planned.model.network.index_of([target])[0])
     k_built = int(built.model.network.index_of([target])[0])
     if k_plan < 0 or k_built < 0:
-        raise CaseError(Problem(file="case.toml", column="completion_activity",
-                                message=f"the completion activity '{target}' is not in the baseline and the as-built record",
-                                fix="name an activity both have in [project] completion_activity"))
+        raise CaseError(
+            Problem(
+                file="case.toml",
+                column="completion_activity",
+                message=f"the completion activity '{target}' is not in the baseline and the as-built record",
+                fix="name an activity both have in [project] completion_activity",
+            )
+        )
     table = _activity_table(planned, built)
     planned_day, actual_day = int(planned.finish_day[k_plan]), int(built.finish_day[k_built])
     ledger = ledger_number(planned, target)
@@ -230,12 +281,22 @@ def _compare(case, period: str) -> AsBuiltResult:
     path = _path_table(built, table, chain, days, period)
     variance_total = actual_day - planned_day
     if int(path["delay_days"].sum()) != variance_total:
-        raise ReconciliationError("as-built critical path", {"contributions": int(path["delay_days"].sum()),
-                                                             "completion variance": variance_total})
+        raise ReconciliationError(
+            "as-built critical path",
+            {"contributions": int(path["delay_days"].sum()), "completion variance": variance_total},
+        )
     periods = path.groupby("period", sort=True)[["delay_days", "work_days"]].sum().reset_index()
     periods["cumulative_days"] = periods["delay_days"].cumsum()
-    return AsBuiltResult(table, path, periods, day_to_date(planned_day), day_to_date(actual_day), period,
-                         target=target, ledger_calendar=calendars.names[ledger])
+    return AsBuiltResult(
+        table,
+        path,
+        periods,
+        day_to_date(planned_day),
+        day_to_date(actual_day),
+        period,
+        target=target,
+        ledger_calendar=calendars.names[ledger],
+    )
 
 
 def _path_table(built, table: pd.DataFrame, chain: pd.DataFrame, days: np.ndarray, period: str) -> pd.DataFrame:
@@ -250,7 +311,7 @@ def _path_table(built, table: pd.DataFrame, chain: pd.DataFrame, days: np.ndarra
     for i, (v, p) in enumerate(zip(numbers, predecessors)):
         link, gap = "", pd.NA
         if p >= 0:
-            links = net.in_link[net.in_ptr[v]:net.in_ptr[v + 1]]
+            links = net.in_link[net.in_ptr[v] : net.in_ptr[v + 1]]
             links = links[net.pred[links] == p]
             if links.size:
                 e = int(links[np.argmin(np.abs(built.link_gaps[links]))])
@@ -258,17 +319,38 @@ def _path_table(built, table: pd.DataFrame, chain: pd.DataFrame, days: np.ndarra
                 link = _TYPE_NAMES[int(net.link_type[e])] + (f"{lag:+d}" if lag else "")
                 gap = int(built.link_gaps[e])
         finish = pd.Timestamp(table_dates(np.array([actual_finish[v]]))[0])
-        rows.append({
-            "activity": str(net.ids[v]), "name": built.model.names[v],
-            "actual_start": pd.Timestamp(table_dates(np.array([actual_start[v]]))[0]), "actual_finish": finish,
-            "planned_finish": planned_finish.get(str(net.ids[v]), pd.NaT),
-            "driving_predecessor": str(net.ids[p]) if p >= 0 else "", "link": link, "gap_work_days": gap,
-            "lateness_work_days": int(chain["level"].iloc[i]), "inherited": bool(chain["inherited"].iloc[i]),
-            "work_days": int(chain["work_days"].iloc[i]), "delay_days": int(days[i]),
-            "period": str(finish.to_period(period)),
-        })
-    columns = ["activity", "name", "actual_start", "actual_finish", "planned_finish", "driving_predecessor", "link",
-               "gap_work_days", "lateness_work_days", "inherited", "work_days", "delay_days", "period"]
+        rows.append(
+            {
+                "activity": str(net.ids[v]),
+                "name": built.model.names[v],
+                "actual_start": pd.Timestamp(table_dates(np.array([actual_start[v]]))[0]),
+                "actual_finish": finish,
+                "planned_finish": planned_finish.get(str(net.ids[v]), pd.NaT),
+                "driving_predecessor": str(net.ids[p]) if p >= 0 else "",
+                "link": link,
+                "gap_work_days": gap,
+                "lateness_work_days": int(chain["level"].iloc[i]),
+                "inherited": bool(chain["inherited"].iloc[i]),
+                "work_days": int(chain["work_days"].iloc[i]),
+                "delay_days": int(days[i]),
+                "period": str(finish.to_period(period)),
+            }
+        )
+    columns = [
+        "activity",
+        "name",
+        "actual_start",
+        "actual_finish",
+        "planned_finish",
+        "driving_predecessor",
+        "link",
+        "gap_work_days",
+        "lateness_work_days",
+        "inherited",
+        "work_days",
+        "delay_days",
+        "period",
+    ]
     path = pd.DataFrame(rows, columns=columns)
     path["gap_work_days"] = path["gap_work_days"].astype("Int64")
     return path

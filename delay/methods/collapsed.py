@@ -96,10 +96,10 @@ from dataclasses import dataclass, field
 import numpy as np
 import pandas as pd
 
-from ..events import asbuilt_activities, completion_activity
 from ..convert import NO_DAY, day_to_date, iso_date, json_int, table_dates
 from ..cpm import FINISH_MILESTONE, ScheduleResult, calendars_of, prepare
 from ..errors import CaseError, Problem
+from ..events import asbuilt_activities, completion_activity
 from ..memo import remembered
 from ..model import PARTIES, Case
 
@@ -117,10 +117,31 @@ BUT_FOR_NOTE = (
 
 MISMATCH_COLUMNS = ["activity", "actual_start", "actual_finish", "modelled_start", "modelled_finish", "reason"]
 PARTY_COLUMNS = ["party", "but_for_completion", "days_earlier", "work_days_earlier", "events", "not_scored"]
-EVENT_COLUMNS = ["event", "title", "party", "impact", "but_for_completion", "days_earlier", "work_days_earlier",
-                 "found_in_as_built", "removed", "note"]
-ACTIVITY_COLUMNS = ["activity", "name", "calendar", "actual_start", "actual_finish", "actual_duration",
-                    "held_by", "gap_work_days", "start_no_earlier", "modelled_start", "modelled_finish"]
+EVENT_COLUMNS = [
+    "event",
+    "title",
+    "party",
+    "impact",
+    "but_for_completion",
+    "days_earlier",
+    "work_days_earlier",
+    "found_in_as_built",
+    "removed",
+    "note",
+]
+ACTIVITY_COLUMNS = [
+    "activity",
+    "name",
+    "calendar",
+    "actual_start",
+    "actual_finish",
+    "actual_duration",
+    "held_by",
+    "gap_work_days",
+    "start_no_earlier",
+    "modelled_start",
+    "modelled_finish",
+]
 LINK_COLUMNS = ["pred", "succ", "type", "lag", "gap_work_days", "driving", "model_lag"]
 _TYPE_NAMES = np.array(["FS", "SS", "FF", "SF"], dtype=object)
 
@@ -178,22 +199,40 @@ class CollapsedResult:
             "actual_completion": self.actual_completion.isoformat(),
             "modelled_completion": self.modelled_completion.isoformat(),
             "mismatches": [
-                {"activity": r.activity, "actual_start": iso_date(r.actual_start), "actual_finish": iso_date(r.actual_finish),
-                 "modelled_start": iso_date(r.modelled_start), "modelled_finish": iso_date(r.modelled_finish),
-                 "reason": r.reason}
+                {
+                    "activity": r.activity,
+                    "actual_start": iso_date(r.actual_start),
+                    "actual_finish": iso_date(r.actual_finish),
+                    "modelled_start": iso_date(r.modelled_start),
+                    "modelled_finish": iso_date(r.modelled_finish),
+                    "reason": r.reason,
+                }
                 for r in self.mismatches.itertuples(index=False)
             ],
             "by_party": [
-                {"party": r.party, "but_for_completion": iso_date(r.but_for_completion),
-                 "days_earlier": json_int(r.days_earlier), "work_days_earlier": json_int(r.work_days_earlier),
-                 "events": list(r.events), "not_scored": list(r.not_scored)}
+                {
+                    "party": r.party,
+                    "but_for_completion": iso_date(r.but_for_completion),
+                    "days_earlier": json_int(r.days_earlier),
+                    "work_days_earlier": json_int(r.work_days_earlier),
+                    "events": list(r.events),
+                    "not_scored": list(r.not_scored),
+                }
                 for r in self.by_party.itertuples(index=False)
             ],
             "by_event": [
-                {"event": r.event, "title": r.title, "party": r.party, "impact": r.impact,
-                 "but_for_completion": iso_date(r.but_for_completion), "days_earlier": json_int(r.days_earlier),
-                 "work_days_earlier": json_int(r.work_days_earlier), "found_in_as_built": bool(r.found_in_as_built),
-                 "removed": r.removed, "note": r.note}
+                {
+                    "event": r.event,
+                    "title": r.title,
+                    "party": r.party,
+                    "impact": r.impact,
+                    "but_for_completion": iso_date(r.but_for_completion),
+                    "days_earlier": json_int(r.days_earlier),
+                    "work_days_earlier": json_int(r.work_days_earlier),
+                    "found_in_as_built": bool(r.found_in_as_built),
+                    "removed": r.removed,
+                    "note": r.note,
+                }
                 for r in self.by_event.itertuples(index=False)
             ],
             "notes": list(self.notes),
@@ -210,7 +249,7 @@ class _Removal:
     suspended: dict[int, list[tuple[int, int]]] = field(default_factory=dict)  # activity -> held work days
     fragnet: set[int] = field(default_factory=set)  # fragnet activities to remove
 
-    def add(self, other: "_Removal") -> None:
+    def add(self, other: _Removal) -> None:
         for v, days in other.shorten.items():
             self.shorten[v] = self.shorten.get(v, 0) + days
         for v, spans in other.holds.items():
@@ -313,8 +352,9 @@ class _AsBuiltModel:
         bounded = np.flatnonzero(self.open_start & (self.bound_gap > 0))
         bound = np.full(n, NO_DAY, dtype=np.int64)
         if bounded.size:
-            bound[bounded] = calendars.day_of(self.cal[bounded],
-                                              self.start_boundary[bounded] - self.finish_point[bounded])
+            bound[bounded] = calendars.day_of(
+                self.cal[bounded], self.start_boundary[bounded] - self.finish_point[bounded]
+            )
         self.start_bound = bound
         self.model = dataclasses.replace(model, start_bound=bound)
         self.result = self.model.run()
@@ -333,7 +373,7 @@ class _AsBuiltModel:
         gap = self.gap_of(v)
         if gap <= 0:
             return None
-        cal = self.cal[v:v + 1]
+        cal = self.cal[v : v + 1]
         first = int(self.calendars.start_index_days(cal, np.array([start_day]))[0])
         last = int(self.calendars.finish_index_days(cal, np.array([finish_day]))[0])
         boundary = int(self.start_boundary[v])
@@ -345,7 +385,7 @@ class _AsBuiltModel:
         two dates (inclusive), or None (a milestone has no work to hold)."""
         if self.actual_duration[v] <= 0:
             return None
-        cal = self.cal[v:v + 1]
+        cal = self.cal[v : v + 1]
         first = int(self.calendars.start_index_days(cal, np.array([start_day]))[0])
         last = int(self.calendars.finish_index_days(cal, np.array([finish_day]))[0])
         low = max(int(self.calendars.start_index_days(cal, np.array([self.actual_start[v]]))[0]), first)
@@ -375,7 +415,8 @@ class _AsBuiltModel:
             moved = where[self.open_start[where] & (bound[where] != NO_DAY)]
             if moved.size:
                 bound[moved] = self.calendars.day_of(
-                    self.cal[moved], self.start_boundary[moved] - off[moved] - self.finish_point[moved])
+                    self.cal[moved], self.start_boundary[moved] - off[moved] - self.finish_point[moved]
+                )
         if removal.fragnet:
             removed = np.zeros(net.size, dtype=bool)
             removed[list(removal.fragnet)] = True
@@ -385,8 +426,7 @@ class _AsBuiltModel:
             out_of = removed[net.pred] & ~into
             lag[into] = 0
             lag[out_of] -= self.original_lag[out_of]
-        model = dataclasses.replace(self.model, duration=duration, start_bound=bound,
-                                    network=net.with_lags(lag))
+        model = dataclasses.replace(self.model, duration=duration, start_bound=bound, network=net.with_lags(lag))
         return model.run()
 
 
@@ -416,38 +456,54 @@ def _mismatches(built: _AsBuiltModel) -> tuple[pd.DataFrame, np.ndarray]:
     order = built.model.link_order if built.model.link_order is not None else np.arange(net.link_count)
     for v in np.flatnonzero(wrong)[np.argsort(net.rank[np.flatnonzero(wrong)])]:
         calendar_name = cals.names[int(cal[v])]
-        links = net.in_link[net.in_ptr[v]:net.in_ptr[v + 1]]
+        links = net.in_link[net.in_ptr[v] : net.in_ptr[v + 1]]
         if start_off[v] or (finish_off[v] and not milestone[v]):
             which, day = ("start", built.actual_start[v]) if start_off[v] else ("finish", built.actual_finish[v])
             if milestone[v]:
                 which = "date"
-            reason = (f"its actual {which} {day_to_date(day).isoformat()} is not a work day of calendar "
-                      f"'{calendar_name}', so no schedule on that calendar can place it there")
+            reason = (
+                f"its actual {which} {day_to_date(day).isoformat()} is not a work day of calendar "
+                f"'{calendar_name}', so no schedule on that calendar can place it there"
+            )
         elif built.out_of_sequence[v]:
             tied = links[built.gaps[links] == built.least_gap[v]]
             link = int(tied[np.lexsort((order[tied], net.link_type[tied] != 0))][0])
-            reason = (f"out of sequence: it started {_plural(-int(built.least_gap[v]), 'work day')} before its "
-                      f"link {_link_words(net, link)} allows; the as-built logic is kept, so the model places it "
-                      f"later (a missing or wrong link? correct the logic in corrections.csv)")
+            reason = (
+                f"out of sequence: it started {_plural(-int(built.least_gap[v]), 'work day')} before its "
+                f"link {_link_words(net, link)} allows; the as-built logic is kept, so the model places it "
+                f"later (a missing or wrong link? correct the logic in corrections.csv)"
+            )
         else:
             pushed = links[result.driving_link[links] & wrong[net.pred[links]]]
             unfitted = links[built.unfitted[links]]
             if pushed.size:
                 link = int(pushed[np.lexsort((order[pushed], net.link_type[pushed] != 0))][0])
-                reason = (f"it follows {net.ids[net.pred[link]]} (link {_link_words(net, link)}), which the model "
-                          f"cannot place on its actual dates")
+                reason = (
+                    f"it follows {net.ids[net.pred[link]]} (link {_link_words(net, link)}), which the model "
+                    f"cannot place on its actual dates"
+                )
             elif unfitted.size:
-                reason = (f"the gap on its link {_link_words(net, int(unfitted[0]))} cannot be kept exactly as a "
-                          f"lag counted in the predecessor's work days (lag_calendar = predecessor)")
+                reason = (
+                    f"the gap on its link {_link_words(net, int(unfitted[0]))} cannot be kept exactly as a "
+                    f"lag counted in the predecessor's work days (lag_calendar = predecessor)"
+                )
             else:
                 reason = "the model places it on other dates than the as-built record; check its links"
-        rows.append({"activity": str(net.ids[v]), "actual_start": built.actual_start[v],
-                     "actual_finish": built.actual_finish[v], "modelled_start": modelled_start[v],
-                     "modelled_finish": modelled_finish[v], "reason": reason})
+        rows.append(
+            {
+                "activity": str(net.ids[v]),
+                "actual_start": built.actual_start[v],
+                "actual_finish": built.actual_finish[v],
+                "modelled_start": modelled_start[v],
+                "modelled_finish": modelled_finish[v],
+                "reason": reason,
+            }
+        )
     frame = pd.DataFrame(rows, columns=MISMATCH_COLUMNS)
     for column in MISMATCH_COLUMNS[1:5]:
-        frame[column] = table_dates(frame[column].to_numpy(dtype=np.int64)) if len(frame) else pd.Series(
-            [], dtype="datetime64[s]")
+        frame[column] = (
+            table_dates(frame[column].to_numpy(dtype=np.int64)) if len(frame) else pd.Series([], dtype="datetime64[s]")
+        )
     return frame, wrong
 
 
@@ -458,7 +514,7 @@ def _event_removal(built: _AsBuiltModel, shows: dict[str, list[str]], event) -> 
     impact = event.impact
     removal = _Removal()
     activities = list(shows.get(event.id, []))
-    given = "asbuilt_activities" in event._fields and bool(str(getattr(event, "asbuilt_activities") or "").strip())
+    given = "asbuilt_activities" in event._fields and bool(str(event.asbuilt_activities or "").strip())
     if impact == "fragnet":
         if not activities:
             return None, False, "", "the event has no activities in fragnets.csv, so there is nothing to take out"
@@ -467,13 +523,19 @@ def _event_removal(built: _AsBuiltModel, shows: dict[str, list[str]], event) -> 
         absent = [a for a, k in zip(activities, numbers) if k < 0]
         what = "the activities it shows in (asbuilt_activities)" if given else "its fragnet activities"
         if not present:
-            return None, False, "", (
-                f"{what} ({', '.join(activities)}) are not in the as-built record: the collapsed as-built can take "
-                "out only work that was recorded, so the event is reported, not scored (asbuilt_activities in "
-                "events.csv can name the recorded activities where it shows)")
+            return (
+                None,
+                False,
+                "",
+                (
+                    f"{what} ({', '.join(activities)}) are not in the as-built record: the collapsed as-built can take "
+                    "out only work that was recorded, so the event is reported, not scored (asbuilt_activities in "
+                    "events.csv can name the recorded activities where it shows)"
+                ),
+            )
         removal.fragnet = {int(k) for k in numbers if k >= 0}
         note = f"not in the as-built record, not taken out: {', '.join(absent)}" if absent else ""
-        removed = ("recorded activities removed (asbuilt_activities): " if given else "fragnet activities removed: ")
+        removed = "recorded activities removed (asbuilt_activities): " if given else "fragnet activities removed: "
         return removal, True, removed + ", ".join(present), note
     if impact not in ("extend", "hold"):
         return None, False, "", "the event gives no impact (extend, hold or fragnet), so there is nothing to take out"
@@ -505,13 +567,16 @@ def _event_removal(built: _AsBuiltModel, shows: dict[str, list[str]], event) -> 
         if inside is not None:
             removal.suspended[v] = [inside]
             held = inside[1] - inside[0] + 1
-            words.append(f"{activity} {int(built.actual_duration[v])} to {int(built.actual_duration[v]) - held} work "
-                         "days (work suspended)")
+            words.append(
+                f"{activity} {int(built.actual_duration[v])} to {int(built.actual_duration[v]) - held} work "
+                "days (work suspended)"
+            )
         if span is not None:
             removal.holds[v] = [span]
             held = "start-no-earlier bound" if built.open_start[v] else "gap"
-            words.append(f"{activity} {held} {built.gap_of(v)} to {built.gap_of(v) - (span[1] - span[0] + 1)} "
-                         "work days")
+            words.append(
+                f"{activity} {held} {built.gap_of(v)} to {built.gap_of(v) - (span[1] - span[0] + 1)} work days"
+            )
     return removal, True, ("shortened: " + ", ".join(words)) if words else "", "; ".join(notes)
 
 
@@ -552,8 +617,13 @@ def analyse(case: Case) -> CollapsedResult:
     edition (2017), Part B, collapsed as-built analysis.
     """
     if case.asbuilt_snapshot is None:
-        raise CaseError(Problem(file="asbuilt.csv", message="the case has no as-built record",
-                                fix="add asbuilt.csv with the actual dates of every activity"))
+        raise CaseError(
+            Problem(
+                file="asbuilt.csv",
+                message="the case has no as-built record",
+                fix="add asbuilt.csv with the actual dates of every activity",
+            )
+        )
     return remembered(case, ("collapsed",), lambda: _analyse(case))
 
 
@@ -575,9 +645,11 @@ class _ButFor:
         if day > self.modelled_day:
             # possible with start-to-start and finish-to-finish logic: a shorter activity can
             # hold its successors later (the reverse effect); reported, not hidden
-            self.later.append(f"but for {where}: completion {day_to_date(day).isoformat()}, later than the modelled "
-                              f"{day_to_date(self.modelled_day).isoformat()} (start-to-start / finish-to-finish logic "
-                              "lets a shorter activity hold its successors later)")
+            self.later.append(
+                f"but for {where}: completion {day_to_date(day).isoformat()}, later than the modelled "
+                f"{day_to_date(self.modelled_day).isoformat()} (start-to-start / finish-to-finish logic "
+                "lets a shorter activity hold its successors later)"
+            )
         work = self.modelled_index - int(self.default.finish_index_days(np.array([day]))[0])
         return pd.Timestamp(day_to_date(day)), self.modelled_day - day, work
 
@@ -606,28 +678,55 @@ def _by_event(case: Case, built: _AsBuiltModel, figures: _ButFor):
             scored.setdefault(event.party, []).append(event.id)
         else:
             unscored.setdefault(event.party, []).append(event.id)
-        rows.append({"event": event.id, "title": event.title, "party": event.party, "impact": event.impact,
-                     "but_for_completion": but_for, "days_earlier": earlier, "work_days_earlier": work,
-                     "found_in_as_built": found, "removed": removed, "note": note})
+        rows.append(
+            {
+                "event": event.id,
+                "title": event.title,
+                "party": event.party,
+                "impact": event.impact,
+                "but_for_completion": but_for,
+                "days_earlier": earlier,
+                "work_days_earlier": work,
+                "found_in_as_built": found,
+                "removed": removed,
+                "note": note,
+            }
+        )
     frame = _typed(pd.DataFrame(rows, columns=EVENT_COLUMNS))
     frame["found_in_as_built"] = frame["found_in_as_built"].astype(bool)
     return frame, by_party, scored, unscored, everything
 
 
-def _by_party(case: Case, figures: _ButFor, removals: dict, scored: dict, unscored: dict,
-              everything: _Removal) -> pd.DataFrame:
+def _by_party(
+    case: Case, figures: _ButFor, removals: dict, scored: dict, unscored: dict, everything: _Removal
+) -> pd.DataFrame:
     """But for each party's events together, then for every event (``party = "all"``)."""
     rows = []
     parties = [p for p in PARTIES if p in set(case.events["party"])]
     for party in parties:
         but_for, earlier, work = figures(removals.get(party), f"but for the {party}'s events")
-        rows.append({"party": party, "but_for_completion": but_for, "days_earlier": earlier,
-                     "work_days_earlier": work, "events": scored.get(party, []), "not_scored": unscored.get(party, [])})
+        rows.append(
+            {
+                "party": party,
+                "but_for_completion": but_for,
+                "days_earlier": earlier,
+                "work_days_earlier": work,
+                "events": scored.get(party, []),
+                "not_scored": unscored.get(party, []),
+            }
+        )
     any_scored = bool(scored)
     but_for, earlier, work = figures(everything if any_scored else None, "but for every event")
-    rows.append({"party": ALL_PARTIES, "but_for_completion": but_for, "days_earlier": earlier,
-                 "work_days_earlier": work, "events": [e for p in parties for e in scored.get(p, [])],
-                 "not_scored": [e for p in parties for e in unscored.get(p, [])]})
+    rows.append(
+        {
+            "party": ALL_PARTIES,
+            "but_for_completion": but_for,
+            "days_earlier": earlier,
+            "work_days_earlier": work,
+            "events": [e for p in parties for e in scored.get(p, [])],
+            "not_scored": [e for p in parties for e in unscored.get(p, [])],
+        }
+    )
     frame = _typed(pd.DataFrame(rows, columns=PARTY_COLUMNS))
     if any_scored:
         overall = frame["but_for_completion"].iloc[-1]
@@ -635,8 +734,10 @@ def _by_party(case: Case, figures: _ButFor, removals: dict, scored: dict, unscor
             if pd.notna(row.but_for_completion) and overall > row.but_for_completion:
                 figures.later.append(
                     f"but for every event the works finish {pd.Timestamp(overall).date().isoformat()}, later than "
-                    f"but for the {row.party}'s events alone ({pd.Timestamp(row.but_for_completion).date().isoformat()}): "
-                    "the reverse effect of start-to-start / finish-to-finish logic")
+                    f"but for the {row.party}'s events alone "
+                    f"({pd.Timestamp(row.but_for_completion).date().isoformat()}): "
+                    "the reverse effect of start-to-start / finish-to-finish logic"
+                )
     return frame
 
 
@@ -648,39 +749,61 @@ def _model_tables(built: _AsBuiltModel) -> tuple[pd.DataFrame, pd.DataFrame]:
     held_by[built.open_start & (built.bound_gap > 0)] = "start_no_earlier"
     held_by[built.out_of_sequence] = "out_of_sequence"
     gap = np.where(built.open_start, built.bound_gap, built.least_gap)
-    activities = pd.DataFrame({
-        "activity": net.ids.astype(object), "name": built.model.names,
-        "calendar": np.asarray(built.calendars.names, dtype=object)[built.cal],
-        "actual_start": table_dates(built.actual_start), "actual_finish": table_dates(built.actual_finish),
-        "actual_duration": built.actual_duration, "held_by": held_by, "gap_work_days": gap,
-        "start_no_earlier": table_dates(built.start_bound),
-        "modelled_start": table_dates(result.day_array("early_start")),
-        "modelled_finish": table_dates(result.day_array("early_finish")),
-    }, columns=ACTIVITY_COLUMNS)
-    links = pd.DataFrame({
-        "pred": net.ids[net.pred].astype(object), "succ": net.ids[net.succ].astype(object),
-        "type": _TYPE_NAMES[net.link_type], "lag": built.original_lag, "gap_work_days": built.gaps,
-        "driving": built.driving, "model_lag": built.fitted_lag,
-    }, columns=LINK_COLUMNS)
+    activities = pd.DataFrame(
+        {
+            "activity": net.ids.astype(object),
+            "name": built.model.names,
+            "calendar": np.asarray(built.calendars.names, dtype=object)[built.cal],
+            "actual_start": table_dates(built.actual_start),
+            "actual_finish": table_dates(built.actual_finish),
+            "actual_duration": built.actual_duration,
+            "held_by": held_by,
+            "gap_work_days": gap,
+            "start_no_earlier": table_dates(built.start_bound),
+            "modelled_start": table_dates(result.day_array("early_start")),
+            "modelled_finish": table_dates(result.day_array("early_finish")),
+        },
+        columns=ACTIVITY_COLUMNS,
+    )
+    links = pd.DataFrame(
+        {
+            "pred": net.ids[net.pred].astype(object),
+            "succ": net.ids[net.succ].astype(object),
+            "type": _TYPE_NAMES[net.link_type],
+            "lag": built.original_lag,
+            "gap_work_days": built.gaps,
+            "driving": built.driving,
+            "model_lag": built.fitted_lag,
+        },
+        columns=LINK_COLUMNS,
+    )
     return activities, links
 
 
-def _notes(mismatches: pd.DataFrame, by_event: pd.DataFrame, modelled_day: int, actual_day: int,
-           later: list[str]) -> list[str]:
-    notes = [BUT_FOR_NOTE,
-             "Each activity's gap after its driving predecessors is kept as lag on its driving links; an "
-             "activity with no predecessor that started after the project's actual start is held by a "
-             "start-no-earlier bound at its actual start instead.",
-             "Days earlier are measured from the modelled as-built completion, in calendar days."]
+def _notes(
+    mismatches: pd.DataFrame, by_event: pd.DataFrame, modelled_day: int, actual_day: int, later: list[str]
+) -> list[str]:
+    notes = [
+        BUT_FOR_NOTE,
+        "Each activity's gap after its driving predecessors is kept as lag on its driving links; an "
+        "activity with no predecessor that started after the project's actual start is held by a "
+        "start-no-earlier bound at its actual start instead.",
+        "Days earlier are measured from the modelled as-built completion, in calendar days.",
+    ]
     if len(mismatches):
         notes.append(
             f"The as-built model does not reproduce the actual dates of {len(mismatches)} "
             f"{'activity' if len(mismatches) == 1 else 'activities'}"
-            f" (modelled completion {day_to_date(modelled_day).isoformat()}, actual {day_to_date(actual_day).isoformat()}); "
-            "the but-for figures carry that error.")
+            f" (modelled completion {day_to_date(modelled_day).isoformat()}, "
+            f"actual {day_to_date(actual_day).isoformat()}); "
+            "the but-for figures carry that error."
+        )
     if not_found := by_event.loc[~by_event["found_in_as_built"], "event"].tolist():
-        notes.append("Events reported but not scored (nothing of theirs in the as-built record to take out): "
-                     + ", ".join(not_found) + ".")
+        notes.append(
+            "Events reported but not scored (nothing of theirs in the as-built record to take out): "
+            + ", ".join(not_found)
+            + "."
+        )
     return notes + later
 
 
@@ -689,8 +812,13 @@ def _analyse(case: Case) -> CollapsedResult:
     target = completion_activity(case)
     k = int(built.network.index_of([target])[0])
     if k < 0:
-        raise CaseError(Problem(file="asbuilt.csv", message=f"the completion activity '{target}' is not in the as-built "
-                                "record", fix="name an activity of the as-built record in [project] completion_activity"))
+        raise CaseError(
+            Problem(
+                file="asbuilt.csv",
+                message=f"the completion activity '{target}' is not in the as-built record",
+                fix="name an activity of the as-built record in [project] completion_activity",
+            )
+        )
     figures = _ButFor(built, k, built.calendars[case.settings.schedule.default_calendar])
     actual_day = int(built.recorded.finish_day[k])
     mismatches, _ = _mismatches(built)
@@ -699,7 +827,13 @@ def _analyse(case: Case) -> CollapsedResult:
     activities, links = _model_tables(built)
     notes = _notes(mismatches, by_event, figures.modelled_day, actual_day, figures.later)
     return CollapsedResult(
-        reproduced=not len(mismatches), mismatches=mismatches, actual_completion=day_to_date(actual_day),
-        modelled_completion=day_to_date(figures.modelled_day), by_party=by_party, by_event=by_event,
-        activities=activities, links=links, notes=tuple(notes),
+        reproduced=not len(mismatches),
+        mismatches=mismatches,
+        actual_completion=day_to_date(actual_day),
+        modelled_completion=day_to_date(figures.modelled_day),
+        by_party=by_party,
+        by_event=by_event,
+        activities=activities,
+        links=links,
+        notes=tuple(notes),
     )

@@ -48,26 +48,49 @@ what the events would have done to the plan, not what happened).
 from __future__ import annotations
 
 import datetime as dt
+from collections.abc import Sequence
 from dataclasses import dataclass, field
-from typing import Sequence
 
 import numpy as np
 import pandas as pd
 
-from ..convert import NO_DAY, day_to_date
+from ..convert import NO_DAY, day_to_date, split_ids
 from ..cpm import COMPLETE, ScheduleModel, calendars_of, prepare
 from ..errors import CaseError, Problem, ReconciliationError
-from ..convert import split_ids
 from ..events import completion_activity
 from ..memo import remembered
 from ..model import PARTIES, Case, Snapshot
 
-__all__ = ["analyse", "ImpactedResult", "ImpactedRun", "event_changes", "order_events", "apply_event",
-           "run_events", "EVENT_COLUMNS", "targets_of", "actual_finishes"]
+__all__ = [
+    "analyse",
+    "ImpactedResult",
+    "ImpactedRun",
+    "event_changes",
+    "order_events",
+    "apply_event",
+    "run_events",
+    "EVENT_COLUMNS",
+    "targets_of",
+    "actual_finishes",
+]
 
-EVENT_COLUMNS = ["event", "title", "party", "impact", "start", "finish", "activities", "alone_days",
-                 "alone_work_days", "completion_alone", "increment_days", "increment_work_days",
-                 "completion_after", "applied", "effect"]
+EVENT_COLUMNS = [
+    "event",
+    "title",
+    "party",
+    "impact",
+    "start",
+    "finish",
+    "activities",
+    "alone_days",
+    "alone_work_days",
+    "completion_alone",
+    "increment_days",
+    "increment_work_days",
+    "completion_after",
+    "applied",
+    "effect",
+]
 
 
 def order_events(case: Case, events: Sequence[str] | None = None, order: str = "chronological") -> pd.DataFrame:
@@ -85,8 +108,14 @@ def order_events(case: Case, events: Sequence[str] | None = None, order: str = "
         known = set(register["id"])
         unknown = [e for e in events if e not in known]
         if unknown:
-            raise CaseError(Problem(file="events.csv", column="id", message=f"no event '{unknown[0]}' in the register",
-                                    fix=f"choose among: {', '.join(register['id'])}"))
+            raise CaseError(
+                Problem(
+                    file="events.csv",
+                    column="id",
+                    message=f"no event '{unknown[0]}' in the register",
+                    fix=f"choose among: {', '.join(register['id'])}",
+                )
+            )
         position = {e: i for i, e in enumerate(events)}
         register = register[register["id"].isin(known & set(events))]
         register = register.assign(_listed=register["id"].map(position))
@@ -97,8 +126,9 @@ def order_events(case: Case, events: Sequence[str] | None = None, order: str = "
     elif order in ("as-listed", "as_listed"):
         register = register.sort_values("_listed", kind="stable")
     else:
-        raise CaseError(Problem(file="--order", message=f"unknown order '{order}'",
-                                fix="use chronological or as-listed"))
+        raise CaseError(
+            Problem(file="--order", message=f"unknown order '{order}'", fix="use chronological or as-listed")
+        )
     return register.drop(columns=["_row", "_listed"]).reset_index(drop=True)
 
 
@@ -167,13 +197,16 @@ def event_changes(case: Case, event: pd.Series, present: set[str], model: Schedu
         if fragnet is None:
             return changes
         ids = set(fragnet["id"])
-        known = [(p in ids or p in present) and (q in ids or q in present) for p, q in zip(links["pred"], links["succ"])]
+        known = [
+            (p in ids or p in present) and (q in ids or q in present) for p, q in zip(links["pred"], links["succ"])
+        ]
         usable = links[np.asarray(known, dtype=bool)] if len(links) else links
         missing += sorted({a for a in (*links["pred"], *links["succ"]) if a not in ids and a not in present})
         has_pred = {q for q in usable["succ"] if q in ids}
         start = pd.Timestamp(event["start"]).date() if pd.notna(event["start"]) else None
         changes["add_activities"] = fragnet.assign(
-            start_no_earlier=[None if i in has_pred else start for i in fragnet["id"]])
+            start_no_earlier=[None if i in has_pred else start for i in fragnet["id"]]
+        )
         changes["add_links"] = usable.reset_index(drop=True)
         changes["touches"] = named
     return changes
@@ -182,6 +215,7 @@ def event_changes(case: Case, event: pd.Series, present: set[str], model: Schedu
 def _fragnets(case: Case) -> dict[str, tuple[pd.DataFrame, pd.DataFrame]]:
     """Each fragnet event's activities (``id, name, duration, calendar``) and links
     (``pred, succ, type, lag``), grouped once per case."""
+
     def group() -> dict[str, tuple[pd.DataFrame, pd.DataFrame]]:
         activities = case.fragnets[["event", "id", "name", "duration", "calendar"]]
         links = case.fragnet_links[["event", "pred", "succ", "type", "lag"]]
@@ -193,8 +227,9 @@ def _fragnets(case: Case) -> dict[str, tuple[pd.DataFrame, pd.DataFrame]]:
     return remembered(case, ("fragnets by event",), group)
 
 
-def apply_event(model: ScheduleModel, case: Case, event: pd.Series, present: set[str]
-                ) -> tuple[ScheduleModel, list[str], list[str]]:
+def apply_event(
+    model: ScheduleModel, case: Case, event: pd.Series, present: set[str]
+) -> tuple[ScheduleModel, list[str], list[str]]:
     """``model`` with one event inserted, the named activities it could not find, and what
     the event leaves alone, in words (see :func:`event_changes`)."""
     changes = event_changes(case, event, present, model)
@@ -306,18 +341,34 @@ class ImpactedResult:
             "total_days": self.total_days,
             "residual_days": self.residual_days,
             "explained_days": self.explained_days,
-            "sections": [{"section": section, "target": run.target, "events": _event_json(run.events),
-                          "total_days": run.total_days, "residual_days": run.residual_days,
-                          "explained_days": run.explained_days}
-                         for section, run in self.sections.items()],
+            "sections": [
+                {
+                    "section": section,
+                    "target": run.target,
+                    "events": _event_json(run.events),
+                    "total_days": run.total_days,
+                    "residual_days": run.residual_days,
+                    "explained_days": run.explained_days,
+                }
+                for section, run in self.sections.items()
+            ],
             "notes": list(self.notes),
         }
 
 
 def _event_json(events: pd.DataFrame) -> list[dict]:
-    return [{"event": r.event, "party": r.party, "alone_days": int(r.alone_days), "increment_days": int(r.increment_days),
-             "completion_after": r.completion_after.isoformat(), "applied": r.applied, "effect": r.effect}
-            for r in events.itertuples(index=False)]
+    return [
+        {
+            "event": r.event,
+            "party": r.party,
+            "alone_days": int(r.alone_days),
+            "increment_days": int(r.increment_days),
+            "completion_after": r.completion_after.isoformat(),
+            "applied": r.applied,
+            "effect": r.effect,
+        }
+        for r in events.itertuples(index=False)
+    ]
 
 
 def _work_days(model: ScheduleModel, a: int, b: int) -> int:
@@ -340,8 +391,9 @@ class _Runs:
     model: ScheduleModel
 
 
-def _insert(case: Case, base: Snapshot, model: ScheduleModel, register: pd.DataFrame, label: str,
-            targets: Sequence[str]) -> _Runs:
+def _insert(
+    case: Case, base: Snapshot, model: ScheduleModel, register: pd.DataFrame, label: str, targets: Sequence[str]
+) -> _Runs:
     """Insert ``register``'s events into ``model``, alone and cumulatively, reading the
     targets' finishes from forward passes."""
     where = model.network.index_of(list(targets))
@@ -352,7 +404,7 @@ def _insert(case: Case, base: Snapshot, model: ScheduleModel, register: pd.DataF
     for _, event in register.iterrows():
         alone_model, missing, notes = apply_event(model, case, event, present)
         alone.append(_finish_of(alone_model.finish_days(), where))
-        added = {str(i) for i in cumulative.network.ids[model.network.size:]}
+        added = {str(i) for i in cumulative.network.ids[model.network.size :]}
         cumulative, _, cumulative_notes = apply_event(cumulative, case, event, present | added)
         cumulative_finish.append(_finish_of(cumulative.finish_days(), where))
         applied.append("" if not missing else f"not in {label}: {', '.join(missing)}")
@@ -361,8 +413,14 @@ def _insert(case: Case, base: Snapshot, model: ScheduleModel, register: pd.DataF
         words += [n for n in notes if n in cumulative_notes]
         effect.append("; ".join(words))
     shape = (len(register), len(targets))
-    return _Runs(base_finish, np.asarray(alone, dtype=np.int64).reshape(shape),
-                 np.asarray(cumulative_finish, dtype=np.int64).reshape(shape), applied, effect, cumulative)
+    return _Runs(
+        base_finish,
+        np.asarray(alone, dtype=np.int64).reshape(shape),
+        np.asarray(cumulative_finish, dtype=np.int64).reshape(shape),
+        applied,
+        effect,
+        cumulative,
+    )
 
 
 def _frame(register: pd.DataFrame, runs: _Runs, t: int, model: ScheduleModel) -> pd.DataFrame:
@@ -372,19 +430,31 @@ def _frame(register: pd.DataFrame, runs: _Runs, t: int, model: ScheduleModel) ->
     rows = []
     for i, (_, event) in enumerate(register.iterrows()):
         alone_day, before, now = int(runs.alone[i, t]), int(after[i]), int(after[i + 1])
-        rows.append({
-            "event": event["id"], "title": event["title"], "party": event["party"], "impact": event["impact"],
-            "start": event["start"], "finish": event["finish"], "activities": split_ids(event["activities"]),
-            "alone_days": alone_day - base, "alone_work_days": _work_days(model, base, alone_day),
-            "completion_alone": day_to_date(alone_day), "increment_days": now - before,
-            "increment_work_days": _work_days(model, before, now), "completion_after": day_to_date(now),
-            "applied": runs.applied[i], "effect": runs.effect[i],
-        })
+        rows.append(
+            {
+                "event": event["id"],
+                "title": event["title"],
+                "party": event["party"],
+                "impact": event["impact"],
+                "start": event["start"],
+                "finish": event["finish"],
+                "activities": split_ids(event["activities"]),
+                "alone_days": alone_day - base,
+                "alone_work_days": _work_days(model, base, alone_day),
+                "completion_alone": day_to_date(alone_day),
+                "increment_days": now - before,
+                "increment_work_days": _work_days(model, before, now),
+                "completion_after": day_to_date(now),
+                "applied": runs.applied[i],
+                "effect": runs.effect[i],
+            }
+        )
     return pd.DataFrame(rows, columns=EVENT_COLUMNS)
 
 
-def run_events(case: Case, base: Snapshot, model: ScheduleModel, register: pd.DataFrame, label: str,
-               targets: Sequence[str]) -> tuple[list[pd.DataFrame], np.ndarray, np.ndarray, ScheduleModel]:
+def run_events(
+    case: Case, base: Snapshot, model: ScheduleModel, register: pd.DataFrame, label: str, targets: Sequence[str]
+) -> tuple[list[pd.DataFrame], np.ndarray, np.ndarray, ScheduleModel]:
     """Impacts alone and the cumulative run of ``register`` on ``model``, at each target.
 
     Returns
@@ -413,14 +483,16 @@ def run_events(case: Case, base: Snapshot, model: ScheduleModel, register: pd.Da
             continue
         increments = int(frame["increment_days"].sum())
         if increments != int(final_full[t] - base_full[t]):
-            raise ReconciliationError(f"events inserted into {label}, at {targets[t]}",
-                                      {"sum of increments": increments,
-                                       "cumulative impact": int(final_full[t] - base_full[t])})
+            raise ReconciliationError(
+                f"events inserted into {label}, at {targets[t]}",
+                {"sum of increments": increments, "cumulative impact": int(final_full[t] - base_full[t])},
+            )
     return frames, base_full, final_full, runs.model
 
 
-def analyse(case: Case, base: str = "baseline", events: Sequence[str] | None = None,
-            order: str = "chronological") -> ImpactedResult:
+def analyse(
+    case: Case, base: str = "baseline", events: Sequence[str] | None = None, order: str = "chronological"
+) -> ImpactedResult:
     """Impacted as-planned analysis.
 
     Parameters
@@ -457,8 +529,9 @@ def analyse(case: Case, base: str = "baseline", events: Sequence[str] | None = N
     try:
         snapshot = case.snapshot(base)
     except KeyError:
-        raise CaseError(Problem(file="snapshots/", message=f"no snapshot '{base}'",
-                                fix="name a folder under snapshots/ or a label")) from None
+        raise CaseError(
+            Problem(file="snapshots/", message=f"no snapshot '{base}'", fix="name a folder under snapshots/ or a label")
+        ) from None
     register = order_events(case, events, order)
     key = ("impacted", snapshot.folder, tuple(register["id"]), order)
     return remembered(case, key, lambda: _analyse(case, snapshot, register, order))
@@ -469,24 +542,45 @@ def _analyse(case: Case, snapshot: Snapshot, register: pd.DataFrame, order: str)
     targets = targets_of(case)
     frames, base_full, final_full, _ = run_events(case, snapshot, model, register, snapshot.folder, targets)
     if frames[0] is None:
-        raise CaseError(Problem(file="case.toml", column="completion_activity",
-                                message=f"the completion activity '{targets[0]}' is not in snapshot '{snapshot.folder}'",
-                                fix="name an activity of the programme in [project] completion_activity"))
+        raise CaseError(
+            Problem(
+                file="case.toml",
+                column="completion_activity",
+                message=f"the completion activity '{targets[0]}' is not in snapshot '{snapshot.folder}'",
+                fix="name an activity of the programme in [project] completion_activity",
+            )
+        )
     # Without an as-built record and without a later programme than the base, nothing says
     # what happened: the analysis is prospective, and the impacted completion stands as the
     # forecast (no residual).
     prospective = case.asbuilt_snapshot is None and snapshot.folder == case.snapshots[-1].folder
     actual = final_full if prospective else actual_finishes(case, targets)
-    runs = [None if frame is None or actual[t] == NO_DAY else
-            ImpactedRun(targets[t], day_to_date(int(base_full[t])), day_to_date(int(final_full[t])),
-                        day_to_date(int(actual[t])), frame) for t, frame in enumerate(frames)]
+    runs = [
+        None
+        if frame is None or actual[t] == NO_DAY
+        else ImpactedRun(
+            targets[t],
+            day_to_date(int(base_full[t])),
+            day_to_date(int(final_full[t])),
+            day_to_date(int(actual[t])),
+            frame,
+        )
+        for t, frame in enumerate(frames)
+    ]
     whole = runs[0]
     if whole is None:
-        raise CaseError(Problem(file="asbuilt.csv", message=f"the completion activity '{targets[0]}' has no actual finish",
-                                fix="give it actual dates in the as-built record"))
-    sections = {str(section): runs[targets.index(str(milestone))]
-                for section, milestone in zip(case.sections["section"], case.sections["completion_activity"])
-                if runs[targets.index(str(milestone))] is not None}
+        raise CaseError(
+            Problem(
+                file="asbuilt.csv",
+                message=f"the completion activity '{targets[0]}' has no actual finish",
+                fix="give it actual dates in the as-built record",
+            )
+        )
+    sections = {
+        str(section): runs[targets.index(str(milestone))]
+        for section, milestone in zip(case.sections["section"], case.sections["completion_activity"])
+        if runs[targets.index(str(milestone))] is not None
+    }
     present = set(snapshot.activities["id"])
     k = int(model.network.index_of([targets[0]])[0])
     parties = []
@@ -496,17 +590,30 @@ def _analyse(case: Case, snapshot: Snapshot, register: pd.DataFrame, order: str)
             continue
         together = model
         for _, event in own.iterrows():
-            together, _, _ = apply_event(together, case, event, present | {
-                str(i) for i in together.network.ids[model.network.size:]})
+            together, _, _ = apply_event(
+                together, case, event, present | {str(i) for i in together.network.ids[model.network.size :]}
+            )
         day = int(together.finish_days()[k])
-        parties.append({"party": party, "events": list(own["id"]), "alone_days": day - int(base_full[0]),
-                        "increment_days": int(whole.events.loc[whole.events["party"] == party, "increment_days"].sum())})
+        parties.append(
+            {
+                "party": party,
+                "events": list(own["id"]),
+                "alone_days": day - int(base_full[0]),
+                "increment_days": int(whole.events.loc[whole.events["party"] == party, "increment_days"].sum()),
+            }
+        )
     by_party = pd.DataFrame(parties, columns=["party", "events", "alone_days", "increment_days"])
     notes = (
         "Impacts alone need not add up: events on parallel paths overlap and one event can hide another.",
         "Increments depend on the order of insertion; they add up exactly to the cumulative impact.",
         "The method measures the plan's response to the events at their real dates, not what happened; the "
         "residual is the actual completion less the impacted one.",
-    ) + (("No as-built record and no programme later than the base: the analysis is prospective, and the "
-          "completion with every event is the forecast (no residual).",) if prospective else ())
+    ) + (
+        (
+            "No as-built record and no programme later than the base: the analysis is prospective, and the "
+            "completion with every event is the forecast (no residual).",
+        )
+        if prospective
+        else ()
+    )
     return ImpactedResult(snapshot.folder, whole, by_party, order, notes, sections)

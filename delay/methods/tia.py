@@ -46,18 +46,28 @@ from dataclasses import dataclass, field
 import numpy as np
 import pandas as pd
 
-from ..convert import NO_DAY, day_to_date
+from ..convert import NO_DAY, day_to_date, split_ids
 from ..cpm import calendars_of, prepare
 from ..errors import ReconciliationError
-from ..convert import split_ids
 from ..memo import remembered
 from ..model import Case, Snapshot
 from .impacted import EVENT_COLUMNS, actual_finishes, event_changes, order_events, run_events, targets_of
 
 __all__ = ["analyse", "TimeImpactResult", "TimeImpactTrace", "current_programmes", "UPDATE_COLUMNS"]
 
-UPDATE_COLUMNS = ["snapshot", "label", "data_date", "events", "completion_before", "completion_after",
-                  "increment_days", "next_snapshot", "next_data_date", "next_completion", "residual_days"]
+UPDATE_COLUMNS = [
+    "snapshot",
+    "label",
+    "data_date",
+    "events",
+    "completion_before",
+    "completion_after",
+    "increment_days",
+    "next_snapshot",
+    "next_data_date",
+    "next_completion",
+    "residual_days",
+]
 
 
 @dataclass(frozen=True)
@@ -89,17 +99,32 @@ class TimeImpactTrace:
         return {
             "target": self.target,
             "updates": [
-                {"snapshot": r.snapshot, "label": r.label, "data_date": r.data_date.isoformat(),
-                 "events": list(r.events), "completion_before": r.completion_before.isoformat(),
-                 "completion_after": r.completion_after.isoformat(), "increment_days": int(r.increment_days),
-                 "next_snapshot": r.next_snapshot, "next_completion": r.next_completion.isoformat(),
-                 "residual_days": int(r.residual_days)}
+                {
+                    "snapshot": r.snapshot,
+                    "label": r.label,
+                    "data_date": r.data_date.isoformat(),
+                    "events": list(r.events),
+                    "completion_before": r.completion_before.isoformat(),
+                    "completion_after": r.completion_after.isoformat(),
+                    "increment_days": int(r.increment_days),
+                    "next_snapshot": r.next_snapshot,
+                    "next_completion": r.next_completion.isoformat(),
+                    "residual_days": int(r.residual_days),
+                }
                 for r in self.updates.itertuples(index=False)
             ],
             "events": [
-                {"event": r.event, "party": r.party, "update": r.update, "increment_days": int(r.increment_days),
-                 "alone_days": int(r.alone_days), "completion_after": r.completion_after.isoformat(),
-                 "applied": r.applied, "effect": r.effect, "warnings": list(r.warnings)}
+                {
+                    "event": r.event,
+                    "party": r.party,
+                    "update": r.update,
+                    "increment_days": int(r.increment_days),
+                    "alone_days": int(r.alone_days),
+                    "completion_after": r.completion_after.isoformat(),
+                    "applied": r.applied,
+                    "effect": r.effect,
+                    "warnings": list(r.warnings),
+                }
                 for r in self.events.itertuples(index=False)
             ],
             "planned_completion": self.planned_completion.isoformat(),
@@ -146,9 +171,12 @@ class TimeImpactResult:
         return self.trace.increment_days
 
     def to_json(self) -> dict:
-        return {"method": "tia", **self.trace.to_json(),
-                "sections": [{"section": section, **trace.to_json()} for section, trace in self.sections.items()],
-                "notes": list(self.notes)}
+        return {
+            "method": "tia",
+            **self.trace.to_json(),
+            "sections": [{"section": section, **trace.to_json()} for section, trace in self.sections.items()],
+            "notes": list(self.notes),
+        }
 
 
 def current_programmes(case: Case, register: pd.DataFrame) -> list[str]:
@@ -206,9 +234,11 @@ def _warnings(case: Case, event: pd.Series, current: Snapshot, previous: Snapsho
         slip = int(np.diff(calendar.finish_index_days(which, days))[0])
         size = _event_size(case, event, activity, current, now.model)
         if size > 0 and slip >= size:
-            found.append(f"{current.label} already shows {activity} {slip} work days later than {previous.label} "
-                         f"(the event adds {size}): inserting the event there may count its delay twice; "
-                         "tia_update can name the programme to insert it into")
+            found.append(
+                f"{current.label} already shows {activity} {slip} work days later than {previous.label} "
+                f"(the event adds {size}): inserting the event there may count its delay twice; "
+                "tia_update can name the programme to insert it into"
+            )
     return found
 
 
@@ -263,53 +293,75 @@ def _analyse(case: Case) -> TimeImpactResult:
         previous = snapshots[position - 1] if position else None
         warnings = [_warnings(case, event, snap, previous, schedules) for _, event in group.iterrows()]
         nxt = schedules(after) if after is not None else None
-        next_finish = (nxt.finish_day[np.maximum(nxt.model.network.index_of(targets), 0)] if nxt is not None
-                       else final_full)
+        next_finish = (
+            nxt.finish_day[np.maximum(nxt.model.network.index_of(targets), 0)] if nxt is not None else final_full
+        )
         for t in range(len(targets)):
             if frames[t] is None:
                 continue
             before = day_to_date(int(base_full[t]))
-            per_target_events[t].append(frames[t].assign(update=snap.folder, completion_before=before,
-                                                         warnings=warnings))
+            per_target_events[t].append(
+                frames[t].assign(update=snap.folder, completion_before=before, warnings=warnings)
+            )
             next_day = int(next_finish[t]) if after is not None else int(final_full[t])
             if after is None:  # no as-built record: the last update's own forecast is the end
                 next_day = int(base_full[t]) if not len(group) else int(final_full[t])
-            per_target_updates[t].append({
-                "snapshot": snap.folder, "label": snap.label, "data_date": snap.data_date,
-                "events": list(group["id"]), "completion_before": before,
-                "completion_after": day_to_date(int(final_full[t])),
-                "increment_days": int(final_full[t] - base_full[t]),
-                "next_snapshot": after.folder if after is not None else snap.folder,
-                "next_data_date": after.data_date if after is not None else snap.data_date,
-                "next_completion": day_to_date(next_day), "residual_days": next_day - int(final_full[t]),
-            })
+            per_target_updates[t].append(
+                {
+                    "snapshot": snap.folder,
+                    "label": snap.label,
+                    "data_date": snap.data_date,
+                    "events": list(group["id"]),
+                    "completion_before": before,
+                    "completion_after": day_to_date(int(final_full[t])),
+                    "increment_days": int(final_full[t] - base_full[t]),
+                    "next_snapshot": after.folder if after is not None else snap.folder,
+                    "next_data_date": after.data_date if after is not None else snap.data_date,
+                    "next_completion": day_to_date(next_day),
+                    "residual_days": next_day - int(final_full[t]),
+                }
+            )
     traces = []
     for t, target in enumerate(targets):
         if not per_target_updates[t] or actual[t] == NO_DAY:
             traces.append(None)
             continue
         columns = EVENT_COLUMNS + ["update", "completion_before", "warnings"]
-        events = pd.concat(per_target_events[t], ignore_index=True) if per_target_events[t] else pd.DataFrame(
-            columns=columns)
+        events = (
+            pd.concat(per_target_events[t], ignore_index=True)
+            if per_target_events[t]
+            else pd.DataFrame(columns=columns)
+        )
         updates = pd.DataFrame(per_target_updates[t], columns=UPDATE_COLUMNS)
         planned = updates["completion_before"].iloc[0]
         ended = updates["next_completion"].iloc[-1]
         trace = TimeImpactTrace(target, events, updates, planned, ended)
         if trace.increment_days + trace.residual_days != trace.explained_days:
-            raise ReconciliationError(f"time impact analysis at {target}", {
-                "increments + residuals": trace.increment_days + trace.residual_days,
-                "actual less planned completion": trace.explained_days})
+            raise ReconciliationError(
+                f"time impact analysis at {target}",
+                {
+                    "increments + residuals": trace.increment_days + trace.residual_days,
+                    "actual less planned completion": trace.explained_days,
+                },
+            )
         traces.append(trace)
     whole = traces[0]
-    sections = {str(section): traces[targets.index(str(milestone))]
-                for section, milestone in zip(case.sections["section"], case.sections["completion_activity"])
-                if traces[targets.index(str(milestone))] is not None}
+    sections = {
+        str(section): traces[targets.index(str(milestone))]
+        for section, milestone in zip(case.sections["section"], case.sections["completion_activity"])
+        if traces[targets.index(str(milestone))] is not None
+    }
     events = whole.events
-    by_party = (events.groupby("party", sort=False)[["alone_days", "increment_days"]].sum().reset_index()
-                if len(events) else pd.DataFrame(columns=["party", "alone_days", "increment_days"]))
-    notes = ("Each event is inserted into the last programme before it began (or the one tia_update names) and "
-             "measured against that programme's completion; increments add up within each programme, impacts "
-             "alone need not add up.",
-             "Each programme's residual, the next programme's completion less its impacted completion, reconciles "
-             "the increments with what happened.")
+    by_party = (
+        events.groupby("party", sort=False)[["alone_days", "increment_days"]].sum().reset_index()
+        if len(events)
+        else pd.DataFrame(columns=["party", "alone_days", "increment_days"])
+    )
+    notes = (
+        "Each event is inserted into the last programme before it began (or the one tia_update names) and "
+        "measured against that programme's completion; increments add up within each programme, impacts "
+        "alone need not add up.",
+        "Each programme's residual, the next programme's completion less its impacted completion, reconciles "
+        "the increments with what happened.",
+    )
     return TimeImpactResult(whole, by_party, notes, sections)

@@ -66,26 +66,32 @@ from __future__ import annotations
 
 import dataclasses
 import datetime as dt
+from collections.abc import Sequence
 from dataclasses import dataclass, field
-from typing import Sequence
 
 import numpy as np
 import pandas as pd
 
 from ..calendars import CalendarSet
-from ..convert import NO_DAY, day_to_date
+from ..convert import NO_DAY, day_to_date, join_ids
 from ..cpm import COMPLETE, ScheduleModel, ScheduleResult, calendars_of, prepare
-from ..network import build_network
 from ..errors import CaseError, Problem, ReconciliationError
 from ..events import CONCURRENT, activity_risk, attributions, completion_activity, events_naming, match_events
 from ..ledger import CHARGE_COLUMNS as TRACE_COLUMNS
 from ..ledger import ledger_number, logic_late_finish, split_days, trace_charges
-from ..convert import join_ids
 from ..memo import remembered
 from ..model import PARTIES, Case, Snapshot
+from ..network import build_network
 
-__all__ = ["analyse", "Window", "WindowsResult", "REVISION_KINDS", "half_step_snapshot", "CHARGE_COLUMNS",
-           "REVISION_COLUMNS"]
+__all__ = [
+    "analyse",
+    "Window",
+    "WindowsResult",
+    "REVISION_KINDS",
+    "half_step_snapshot",
+    "CHARGE_COLUMNS",
+    "REVISION_COLUMNS",
+]
 
 #: The order in which a window's revisions are applied and charged.
 REVISION_KINDS = ("deletions", "additions", "durations", "logic", "calendars", "constraints")
@@ -93,11 +99,29 @@ REVISION_KINDS = ("deletions", "additions", "durations", "logic", "calendars", "
 _PROGRESS_COLUMNS = ("actual_start", "actual_finish", "remaining")
 
 #: Columns of a window's progress charges.
-CHARGE_COLUMNS = TRACE_COLUMNS + ["days", "events", "parties", "party", "basis", "rule_party", "rule_basis",
-                                  "rule_events", "reason"]
+CHARGE_COLUMNS = TRACE_COLUMNS + [
+    "days",
+    "events",
+    "parties",
+    "party",
+    "basis",
+    "rule_party",
+    "rule_basis",
+    "rule_events",
+    "reason",
+]
 #: Columns of a window's revision charges.
-REVISION_COLUMNS = ["kind", "activities", "work_days", "days", "completion_after", "events", "parties", "party",
-                    "basis"]
+REVISION_COLUMNS = [
+    "kind",
+    "activities",
+    "work_days",
+    "days",
+    "completion_after",
+    "events",
+    "parties",
+    "party",
+    "basis",
+]
 
 
 @dataclass(frozen=True)
@@ -159,8 +183,10 @@ class Window:
         """Calendar days of the window's movement by the party of each counted charge and
         revision (``concurrent`` where events of several parties share one)."""
         out: dict[str, int] = {}
-        for party, days in zip(list(self.counted["party"]) + list(self.revisions["party"]),
-                               list(self.counted["days"]) + list(self.revisions["days"])):
+        for party, days in zip(
+            list(self.counted["party"]) + list(self.revisions["party"]),
+            list(self.counted["days"]) + list(self.revisions["days"]),
+        ):
             if int(days):
                 out[party] = out.get(party, 0) + int(days)
         order = list(PARTIES) + [CONCURRENT]
@@ -172,8 +198,9 @@ class Window:
         return _sentence(self)
 
     def to_json(self) -> dict:
-        charges = self.charges[(self.charges["work_days"] != 0) | (self.charges["days"] != 0)
-                               | self.charges["group"].notna()]
+        charges = self.charges[
+            (self.charges["work_days"] != 0) | (self.charges["days"] != 0) | self.charges["group"].notna()
+        ]
         return {
             "window": self.number,
             "start": self.start,
@@ -190,14 +217,29 @@ class Window:
             "by_party_days": self.by_party_days,
             "sentence": self.sentence,
             "charged": [
-                {"activity": r.activity, "work_days": int(r.work_days), "days": int(r.days), "counted": bool(r.counted),
-                 "inherited": bool(r.inherited), "events": list(r.events), "party": r.party, "basis": r.basis,
-                 "concurrent_with": list(r.concurrent_with)}
+                {
+                    "activity": r.activity,
+                    "work_days": int(r.work_days),
+                    "days": int(r.days),
+                    "counted": bool(r.counted),
+                    "inherited": bool(r.inherited),
+                    "events": list(r.events),
+                    "party": r.party,
+                    "basis": r.basis,
+                    "concurrent_with": list(r.concurrent_with),
+                }
                 for r in charges.itertuples(index=False)
             ],
             "revisions": [
-                {"kind": r.kind, "activities": list(r.activities), "work_days": int(r.work_days), "days": int(r.days),
-                 "events": list(r.events), "party": r.party, "basis": r.basis}
+                {
+                    "kind": r.kind,
+                    "activities": list(r.activities),
+                    "work_days": int(r.work_days),
+                    "days": int(r.days),
+                    "events": list(r.events),
+                    "party": r.party,
+                    "basis": r.basis,
+                }
                 for r in self.revisions.itertuples(index=False)
             ],
         }
@@ -225,15 +267,25 @@ class WindowsResult:
     @property
     def table(self) -> pd.DataFrame:
         """One row per window: boundaries, completions, movement and its split."""
-        rows = [{
-            "window": w.number, "start": w.start, "end": w.end, "start_data_date": w.start_data_date,
-            "end_data_date": w.end_data_date, "completion_start": w.completion_start,
-            "completion_half": w.completion_half, "completion_end": w.completion_end,
-            "movement_days": w.movement_days, "movement_work_days": w.movement_work_days,
-            "progress_days": w.progress_days, "revision_days": w.revision_days,
-            **{f"{party}_days": w.by_party_days.get(party, 0) for party in (*PARTIES, CONCURRENT)},
-            "sentence": w.sentence,
-        } for w in self.windows]
+        rows = [
+            {
+                "window": w.number,
+                "start": w.start,
+                "end": w.end,
+                "start_data_date": w.start_data_date,
+                "end_data_date": w.end_data_date,
+                "completion_start": w.completion_start,
+                "completion_half": w.completion_half,
+                "completion_end": w.completion_end,
+                "movement_days": w.movement_days,
+                "movement_work_days": w.movement_work_days,
+                "progress_days": w.progress_days,
+                "revision_days": w.revision_days,
+                **{f"{party}_days": w.by_party_days.get(party, 0) for party in (*PARTIES, CONCURRENT)},
+                "sentence": w.sentence,
+            }
+            for w in self.windows
+        ]
         return pd.DataFrame(rows)
 
     @property
@@ -244,12 +296,23 @@ class WindowsResult:
         for w in self.windows:
             frames.append(w.charges.assign(window=w.number, start=w.start, end=w.end, source="progress"))
             if len(w.revisions):
-                frames.append(pd.DataFrame({
-                    "window": w.number, "start": w.start, "end": w.end, "source": w.revisions["kind"],
-                    "activity": [join_ids(a) for a in w.revisions["activities"]],
-                    "work_days": w.revisions["work_days"], "days": w.revisions["days"], "counted": True,
-                    "events": w.revisions["events"], "party": w.revisions["party"], "basis": w.revisions["basis"],
-                }))
+                frames.append(
+                    pd.DataFrame(
+                        {
+                            "window": w.number,
+                            "start": w.start,
+                            "end": w.end,
+                            "source": w.revisions["kind"],
+                            "activity": [join_ids(a) for a in w.revisions["activities"]],
+                            "work_days": w.revisions["work_days"],
+                            "days": w.revisions["days"],
+                            "counted": True,
+                            "events": w.revisions["events"],
+                            "party": w.revisions["party"],
+                            "basis": w.revisions["basis"],
+                        }
+                    )
+                )
         if not frames:
             return pd.DataFrame(columns=["window", "start", "end", "source", *CHARGE_COLUMNS])
         charges = pd.concat(frames, ignore_index=True)
@@ -258,14 +321,26 @@ class WindowsResult:
 
     def to_json(self) -> dict:
         return {
-            "method": "windows", "target": self.target, "ledger_calendar": self.ledger_calendar,
+            "method": "windows",
+            "target": self.target,
+            "ledger_calendar": self.ledger_calendar,
             "half_step": self.half_step,
-            "windows": [w.to_json() for w in self.windows], "total_movement_days": self.total_movement_days,
-            "sections": [{"section": section, "target": windows[0].target if windows else "",
-                          "windows": [w.to_json() for w in windows]} for section, windows in self.sections.items()],
-            "attributions": [] if self.attributions is None else [
+            "windows": [w.to_json() for w in self.windows],
+            "total_movement_days": self.total_movement_days,
+            "sections": [
+                {
+                    "section": section,
+                    "target": windows[0].target if windows else "",
+                    "windows": [w.to_json() for w in windows],
+                }
+                for section, windows in self.sections.items()
+            ],
+            "attributions": []
+            if self.attributions is None
+            else [
                 {k: (list(v) if isinstance(v, list) else v) for k, v in row.items()}
-                for row in self.attributions.to_dict("records")],
+                for row in self.attributions.to_dict("records")
+            ],
         }
 
 
@@ -280,12 +355,20 @@ def _snapshots(case: Case, names: Sequence[str] | None) -> list[Snapshot]:
             chosen.append(case.snapshot(name))
         except KeyError:
             known = ", ".join(s.folder for s in sequence)
-            raise CaseError(Problem(file="--windows", message=f"no snapshot '{name}'",
-                                    fix=f"name boundary snapshots among: {known}")) from None
+            raise CaseError(
+                Problem(
+                    file="--windows", message=f"no snapshot '{name}'", fix=f"name boundary snapshots among: {known}"
+                )
+            ) from None
     positions = [sequence.index(s) for s in chosen]
     if len(chosen) < 2 or positions != sorted(set(positions)):
-        raise CaseError(Problem(file="--windows", message="window boundaries must be two or more snapshots in data-date order",
-                                fix="list the boundary snapshots from the earliest to the latest"))
+        raise CaseError(
+            Problem(
+                file="--windows",
+                message="window boundaries must be two or more snapshots in data-date order",
+                fix="list the boundary snapshots from the earliest to the latest",
+            )
+        )
     return chosen
 
 
@@ -293,10 +376,17 @@ def _started(activities: pd.DataFrame) -> np.ndarray:
     return (activities["actual_start"].notna() | activities["actual_finish"].notna()).to_numpy()
 
 
-def _variant(base: Snapshot, tag: str, label: str, data_date: dt.date, activities: pd.DataFrame,
-             links: pd.DataFrame) -> Snapshot:
-    return Snapshot(folder=f"{base.folder}~{tag}", label=label, data_date=data_date, kind="update",
-                    activities_table=activities.reset_index(drop=True), links_table=links.reset_index(drop=True))
+def _variant(
+    base: Snapshot, tag: str, label: str, data_date: dt.date, activities: pd.DataFrame, links: pd.DataFrame
+) -> Snapshot:
+    return Snapshot(
+        folder=f"{base.folder}~{tag}",
+        label=label,
+        data_date=data_date,
+        kind="update",
+        activities_table=activities.reset_index(drop=True),
+        links_table=links.reset_index(drop=True),
+    )
 
 
 def half_step_snapshot(start: Snapshot, end: Snapshot) -> Snapshot:
@@ -321,8 +411,14 @@ def half_step_snapshot(start: Snapshot, end: Snapshot) -> Snapshot:
         for column in _PROGRESS_COLUMNS:
             activities[column] = activities[column].astype(progress[column].dtype)
             activities.loc[rows, column] = progress.loc[ids, column].to_numpy()
-    return _variant(start, f"progress-to-{end.folder}", f"{start.label} progressed to {end.label}",
-                    end.data_date, activities, start.links)
+    return _variant(
+        start,
+        f"progress-to-{end.folder}",
+        f"{start.label} progressed to {end.label}",
+        end.data_date,
+        activities,
+        start.links,
+    )
 
 
 def _half_step_model(start: ScheduleModel, end: ScheduleModel) -> ScheduleModel:
@@ -332,10 +428,11 @@ def _half_step_model(start: ScheduleModel, end: ScheduleModel) -> ScheduleModel:
     in_end = end.network.index_of(start.network.ids)
     safe = np.maximum(in_end, 0)
     started = (in_end >= 0) & ((end.actual_start[safe] != NO_DAY) | (end.actual_finish[safe] != NO_DAY))
-    arrays = {name: np.where(started, getattr(end, name)[safe], getattr(start, name))
-              for name in ("actual_start", "actual_finish", "remaining")}
-    return dataclasses.replace(start, data_day=end.data_day, label=f"{start.label} progressed to {end.label}",
-                               **arrays)
+    arrays = {
+        name: np.where(started, getattr(end, name)[safe], getattr(start, name))
+        for name in ("actual_start", "actual_finish", "remaining")
+    }
+    return dataclasses.replace(start, data_day=end.data_day, label=f"{start.label} progressed to {end.label}", **arrays)
 
 
 class _Scheduler:
@@ -362,11 +459,24 @@ def _finishes(result: ScheduleResult, targets: Sequence[str]) -> np.ndarray:
     return np.where(where >= 0, result.finish_day[np.maximum(where, 0)], -1)
 
 
-_ARRAYS = ("names", "calendar", "duration", "remaining", "actual_start", "actual_finish", "kind", "constraint",
-           "constraint_day", "start_bound")
+_ARRAYS = (
+    "names",
+    "calendar",
+    "duration",
+    "remaining",
+    "actual_start",
+    "actual_finish",
+    "kind",
+    "constraint",
+    "constraint_day",
+    "start_bound",
+)
 #: The model arrays each revision kind takes from E.
-_KIND_ARRAYS = {"durations": ("duration", "remaining", "kind"), "calendars": ("calendar",),
-                "constraints": ("constraint", "constraint_day")}
+_KIND_ARRAYS = {
+    "durations": ("duration", "remaining", "kind"),
+    "calendars": ("calendar",),
+    "constraints": ("constraint", "constraint_day"),
+}
 
 
 class _Programme:
@@ -391,7 +501,7 @@ class _Programme:
         kept = (present.get_indexer(self.links[0]) >= 0) & (present.get_indexer(self.links[1]) >= 0)
         self.links = tuple(values[kept] for values in self.links)
 
-    def add(self, other: "_Programme", rows: np.ndarray) -> None:
+    def add(self, other: _Programme, rows: np.ndarray) -> None:
         self._network = None
         self.ids = np.concatenate([self.ids, other.ids[rows]])
         self.arrays = {name: np.concatenate([values, other.arrays[name][rows]]) for name, values in self.arrays.items()}
@@ -411,8 +521,9 @@ class _Programme:
             pred, succ = present.get_indexer(self.links[0]), present.get_indexer(self.links[1])
             self._network = build_network(self.ids, pred, succ, self.links[2], self.links[3])
         network = self._network
-        return dataclasses.replace(self.template, network=network, link_order=np.arange(network.link_count),
-                                   **self.arrays)
+        return dataclasses.replace(
+            self.template, network=network, link_order=np.arange(network.link_count), **self.arrays
+        )
 
 
 def _differs(a: np.ndarray, b: np.ndarray) -> np.ndarray:
@@ -430,7 +541,8 @@ def _changed_links(before, after, ids: pd.Index) -> list[str]:
     def keys(links) -> np.ndarray:
         pred, succ = ids.get_indexer(links[0]).astype(np.int64), ids.get_indexer(links[1]).astype(np.int64)
         return ((pred * width + succ) * 4 + np.asarray(links[2], dtype=np.int64)) * 200_003 + (
-            np.asarray(links[3], dtype=np.int64) + 100_001)
+            np.asarray(links[3], dtype=np.int64) + 100_001
+        )
 
     if all(len(b) == len(a) and np.array_equal(np.asarray(b), np.asarray(a)) for b, a in zip(before, after)):
         return []  # the same links in the same order: nothing to compare
@@ -439,8 +551,9 @@ def _changed_links(before, after, ids: pd.Index) -> list[str]:
     return sorted({f"{ids[p]}>{ids[q]}" for p, q in zip(ends // width, ends % width)})
 
 
-def _revision_steps(scheduler: _Scheduler, half_result: ScheduleResult, end_result: ScheduleResult,
-                    targets: Sequence[str]) -> list[tuple[str, list[str], np.ndarray]]:
+def _revision_steps(
+    scheduler: _Scheduler, half_result: ScheduleResult, end_result: ScheduleResult, targets: Sequence[str]
+) -> list[tuple[str, list[str], np.ndarray]]:
     """E's changes applied to H one kind at a time, on the engine's arrays: ``(kind,
     changed, finishes of the targets after it)`` per kind that changed something, then
     ``other`` when the steps do not end exactly at E."""
@@ -508,8 +621,9 @@ def _causes(case: Case, ids: Sequence[str], start: Snapshot, end: Snapshot) -> p
     return matched
 
 
-def _charge_frame(case: Case, traced: pd.DataFrame, days: np.ndarray, start: Snapshot, end: Snapshot,
-                  overrides: pd.DataFrame) -> pd.DataFrame:
+def _charge_frame(
+    case: Case, traced: pd.DataFrame, days: np.ndarray, start: Snapshot, end: Snapshot, overrides: pd.DataFrame
+) -> pd.DataFrame:
     """The traced charges with their calendar days, causes and any analyst's attribution."""
     frame = traced.reset_index(drop=True).copy()
     frame["days"] = days
@@ -533,8 +647,9 @@ def _charge_frame(case: Case, traced: pd.DataFrame, days: np.ndarray, start: Sna
     return frame[CHARGE_COLUMNS]
 
 
-def _revision_frame(case: Case, steps, work_days: np.ndarray, days: np.ndarray, start: Snapshot, end: Snapshot,
-                    overrides: pd.DataFrame) -> pd.DataFrame:
+def _revision_frame(
+    case: Case, steps, work_days: np.ndarray, days: np.ndarray, start: Snapshot, end: Snapshot, overrides: pd.DataFrame
+) -> pd.DataFrame:
     rows = []
     mine = overrides[overrides["folder"] == end.folder] if len(overrides) else overrides
     party_of = dict(zip(case.events["id"], case.events["party"]))
@@ -551,10 +666,19 @@ def _revision_frame(case: Case, steps, work_days: np.ndarray, days: np.ndarray, 
         if len(override):
             record = override.iloc[0]
             events, parties, basis = ([record["event"]] if record["event"] else []), [record["party"]], "analyst"
-        rows.append({"kind": kind, "activities": changed, "work_days": int(work), "days": int(calendar_days),
-                     "completion_after": day_to_date(int(finish)) if finish >= 0 else None, "events": events,
-                     "parties": parties, "party": parties[0] if len(parties) == 1 else CONCURRENT,
-                     "basis": basis})
+        rows.append(
+            {
+                "kind": kind,
+                "activities": changed,
+                "work_days": int(work),
+                "days": int(calendar_days),
+                "completion_after": day_to_date(int(finish)) if finish >= 0 else None,
+                "events": events,
+                "parties": parties,
+                "party": parties[0] if len(parties) == 1 else CONCURRENT,
+                "basis": basis,
+            }
+        )
     frame = pd.DataFrame(rows, columns=REVISION_COLUMNS)
     return frame[(frame["work_days"] != 0) | (frame["days"] != 0)].reset_index(drop=True)
 
@@ -584,8 +708,17 @@ class _Boundary:
         return self.late[target]
 
 
-def _window(case: Case, number: int, start: _Boundary, end: _Boundary, target: str, half_step: bool,
-            traced: ScheduleResult, steps, overrides: pd.DataFrame) -> Window | None:
+def _window(
+    case: Case,
+    number: int,
+    start: _Boundary,
+    end: _Boundary,
+    target: str,
+    half_step: bool,
+    traced: ScheduleResult,
+    steps,
+    overrides: pd.DataFrame,
+) -> Window | None:
     """One window for one target, or ``None`` when the target is missing from a boundary."""
     s_result, e_result = start.result, end.result
     late = start.late_finish(target)
@@ -595,17 +728,23 @@ def _window(case: Case, number: int, start: _Boundary, end: _Boundary, target: s
     if late is None or min(finish_s, finish_e, finish_h) < 0:
         return None
     ledger = ledger_number(s_result, target)
-    position = {name: _ledger_position(s_result, ledger, day)
-                for name, day in (("s", finish_s), ("h", finish_h), ("e", finish_e))}
+    position = {
+        name: _ledger_position(s_result, ledger, day)
+        for name, day in (("s", finish_s), ("h", finish_h), ("e", finish_e))
+    }
     in_start = s_result.model.network.index_of(traced.ids)  # complete at S: where the trace stops
     stop = (in_start >= 0) & (s_result.status[np.maximum(in_start, 0)] == COMPLETE)
     traced_charges = trace_charges(traced, s_result, late, target, stop, ledger)
     counted = traced_charges["counted"].astype(bool).to_numpy() if len(traced_charges) else np.zeros(0, bool)
     progress_work = position["h"] - position["s"]
     if int(traced_charges.loc[counted, "work_days"].sum()) != progress_work:
-        raise ReconciliationError(f"window {number} ({start.snapshot.folder} to {end.snapshot.folder}), {target}",
-                                  {"progress charges (work days)": int(traced_charges.loc[counted, "work_days"].sum()),
-                                   "progress effect (work days)": progress_work})
+        raise ReconciliationError(
+            f"window {number} ({start.snapshot.folder} to {end.snapshot.folder}), {target}",
+            {
+                "progress charges (work days)": int(traced_charges.loc[counted, "work_days"].sum()),
+                "progress effect (work days)": progress_work,
+            },
+        )
     revision_finish = [finish for _, _, finish in steps]
     revision_work = []
     previous = position["h"]
@@ -616,29 +755,50 @@ def _window(case: Case, number: int, start: _Boundary, end: _Boundary, target: s
     work_steps = list(traced_charges.loc[counted, "work_days"]) + revision_work
     days = split_days(int(finish_s), int(finish_e), work_steps, s_result, ledger)
     charge_days = np.zeros(len(traced_charges), dtype=np.int64)
-    charge_days[counted] = days[:int(counted.sum())]
+    charge_days[counted] = days[: int(counted.sum())]
     off = np.flatnonzero(~counted)
     for i in off:  # a parallel path's work days, stepped alone from S's completion
         work = int(traced_charges["work_days"].iloc[int(i)])
         charge_days[i] = _alone_days(s_result, ledger, position["s"], int(finish_s), work)
     charges = _charge_frame(case, traced_charges, charge_days, start.snapshot, end.snapshot, overrides)
-    revisions = _revision_frame(case, [(k, c, f) for k, c, f in steps], np.asarray(revision_work, dtype=np.int64),
-                                days[int(counted.sum()):], start.snapshot, end.snapshot, overrides)
+    revisions = _revision_frame(
+        case,
+        [(k, c, f) for k, c, f in steps],
+        np.asarray(revision_work, dtype=np.int64),
+        days[int(counted.sum()) :],
+        start.snapshot,
+        end.snapshot,
+        overrides,
+    )
     movement = int(finish_e - finish_s)
-    progress = int(days[:int(counted.sum())].sum())
+    progress = int(days[: int(counted.sum())].sum())
     if int(days.sum()) != movement:
-        raise ReconciliationError(f"window {number}, {target}", {"calendar days charged": int(days.sum()),
-                                                                 "movement": movement})
+        raise ReconciliationError(
+            f"window {number}, {target}", {"calendar days charged": int(days.sum()), "movement": movement}
+        )
     deleted = tuple(sorted(s_result.model.network.index.difference(e_result.model.network.index)))
     return Window(
-        number=number, start=start.snapshot.folder, end=end.snapshot.folder, start_label=start.snapshot.label,
-        end_label=end.snapshot.label, start_data_date=start.snapshot.data_date,
-        end_data_date=end.snapshot.data_date, target=target, completion_start=day_to_date(int(finish_s)),
-        completion_half=day_to_date(int(finish_h)) if half_step else None, completion_end=day_to_date(int(finish_e)),
-        movement_days=movement, movement_work_days=position["e"] - position["s"], progress_days=progress,
-        progress_work_days=progress_work, revision_days=movement - progress,
-        revision_work_days=position["e"] - position["h"], charges=charges, revisions=revisions,
-        deleted_in_end=deleted, titles=dict(zip(case.events["id"], case.events["title"])),
+        number=number,
+        start=start.snapshot.folder,
+        end=end.snapshot.folder,
+        start_label=start.snapshot.label,
+        end_label=end.snapshot.label,
+        start_data_date=start.snapshot.data_date,
+        end_data_date=end.snapshot.data_date,
+        target=target,
+        completion_start=day_to_date(int(finish_s)),
+        completion_half=day_to_date(int(finish_h)) if half_step else None,
+        completion_end=day_to_date(int(finish_e)),
+        movement_days=movement,
+        movement_work_days=position["e"] - position["s"],
+        progress_days=progress,
+        progress_work_days=progress_work,
+        revision_days=movement - progress,
+        revision_work_days=position["e"] - position["h"],
+        charges=charges,
+        revisions=revisions,
+        deleted_in_end=deleted,
+        titles=dict(zip(case.events["id"], case.events["title"])),
     )
 
 
@@ -695,8 +855,13 @@ def analyse(case: Case, windows: Sequence[str] | None = None, half_step: bool | 
 def _analyse(case: Case, windows: Sequence[str] | None, half_step: bool) -> WindowsResult:
     boundaries = _snapshots(case, windows)
     if len(boundaries) < 2:
-        raise CaseError(Problem(file="snapshots/", message="a windows analysis needs at least two snapshots",
-                                fix="add a progress update or an as-built record"))
+        raise CaseError(
+            Problem(
+                file="snapshots/",
+                message="a windows analysis needs at least two snapshots",
+                fix="add a progress update or an as-built record",
+            )
+        )
     scheduler = _Scheduler(case)
     target = completion_activity(case)
     sections = case.sections
@@ -717,29 +882,45 @@ def _analyse(case: Case, windows: Sequence[str] | None, half_step: bool) -> Wind
             found = _window(case, number, start, end, name, half_step, traced, own, overrides)
             if found is None:
                 if name == target:
-                    raise CaseError(Problem(
-                        file="case.toml", column="completion_activity",
-                        message=f"the completion activity '{name}' is not in snapshot '{start.snapshot.folder}' "
-                                f"or '{end.snapshot.folder}'",
-                        fix="name an activity every programme has in [project] completion_activity"))
+                    raise CaseError(
+                        Problem(
+                            file="case.toml",
+                            column="completion_activity",
+                            message=f"the completion activity '{name}' is not in snapshot '{start.snapshot.folder}' "
+                            f"or '{end.snapshot.folder}'",
+                            fix="name an activity every programme has in [project] completion_activity",
+                        )
+                    )
                 per_target[name] = None
                 continue
             if per_target[name] is not None:
                 if t == 0:
-                    found = dataclasses.replace(found, driving_start=tuple(start.result.driving_path()),
-                                                driving_half=tuple(traced.driving_path()) if half_step else (),
-                                                driving_end=tuple(end.result.driving_path()))
+                    found = dataclasses.replace(
+                        found,
+                        driving_start=tuple(start.result.driving_path()),
+                        driving_half=tuple(traced.driving_path()) if half_step else (),
+                        driving_end=tuple(end.result.driving_path()),
+                    )
                 per_target[name].append(found)
     out = per_target[target]
     first, last = out[0].completion_start, out[-1].completion_end
-    result = WindowsResult(tuple(out), bool(half_step), first, last, target=target,
-                           ledger_calendar=marks[0].result.model.calendars.names[ledger_number(marks[0].result, target)],
-                           sections={section: tuple(per_target[name]) for section, name in section_targets.items()
-                                     if per_target.get(name)},
-                           attributions=_attribution_table(out, overrides))
+    result = WindowsResult(
+        tuple(out),
+        bool(half_step),
+        first,
+        last,
+        target=target,
+        ledger_calendar=marks[0].result.model.calendars.names[ledger_number(marks[0].result, target)],
+        sections={
+            section: tuple(per_target[name]) for section, name in section_targets.items() if per_target.get(name)
+        },
+        attributions=_attribution_table(out, overrides),
+    )
     if sum(w.movement_days for w in out) != result.total_movement_days:
-        raise ReconciliationError("all windows", {"sum of windows": sum(w.movement_days for w in out),
-                                                  "total movement": result.total_movement_days})
+        raise ReconciliationError(
+            "all windows",
+            {"sum of windows": sum(w.movement_days for w in out), "total movement": result.total_movement_days},
+        )
     return result
 
 
@@ -750,9 +931,19 @@ def _attribution_table(windows: Sequence[Window], overrides: pd.DataFrame) -> pd
     for w in windows:
         charged = w.charges[w.charges["basis"] == "analyst"]
         for record in charged.itertuples(index=False):
-            rows.append({"window": w.number, "end": w.end, "activity": record.activity, "days": int(record.days),
-                         "rule_party": record.rule_party, "rule_events": list(record.rule_events),
-                         "party": record.party, "events": list(record.events), "reason": record.reason})
+            rows.append(
+                {
+                    "window": w.number,
+                    "end": w.end,
+                    "activity": record.activity,
+                    "days": int(record.days),
+                    "rule_party": record.rule_party,
+                    "rule_events": list(record.rule_events),
+                    "party": record.party,
+                    "events": list(record.events),
+                    "reason": record.reason,
+                }
+            )
     unused = []
     if len(overrides):
         used = {(r["end"], r["activity"]) for r in rows}
@@ -760,10 +951,19 @@ def _attribution_table(windows: Sequence[Window], overrides: pd.DataFrame) -> pd
             if (record.folder, record.activity) not in used:
                 unused.append(record)
     for record in unused:
-        rows.append({"window": None, "end": record.folder, "activity": record.activity, "days": 0,
-                     "rule_party": "", "rule_events": [], "party": record.party,
-                     "events": [record.event] if record.event else [],
-                     "reason": f"{record.reason} (no charge on this activity in that window: not applied)"})
+        rows.append(
+            {
+                "window": None,
+                "end": record.folder,
+                "activity": record.activity,
+                "days": 0,
+                "rule_party": "",
+                "rule_events": [],
+                "party": record.party,
+                "events": [record.event] if record.event else [],
+                "reason": f"{record.reason} (no charge on this activity in that window: not applied)",
+            }
+        )
     return pd.DataFrame(rows, columns=columns)
 
 
@@ -773,8 +973,11 @@ def _sentence(w: Window) -> str:
     head = f"Window {w.number} ({w.start_label} to {w.end_label})"
     if w.movement_days == 0 and not len(w.counted) and not (w.revisions["days"] != 0).any():
         return f"{head}: completion did not move."
-    moved = (f"completion moved {_days(w.movement_days)} {direction}" if w.movement_days
-             else "completion did not move overall")
+    moved = (
+        f"completion moved {_days(w.movement_days)} {direction}"
+        if w.movement_days
+        else "completion did not move overall"
+    )
     parts = []
     counted = w.counted.assign(size=lambda f: f["days"].abs()).sort_values("size", ascending=False, kind="stable")
     for record in counted.head(3).itertuples(index=False):
@@ -788,8 +991,10 @@ def _sentence(w: Window) -> str:
     for record in w.revisions.itertuples(index=False):
         if int(record.days):
             cause = _cause_words(record.events, record.party, record.basis, w.titles)
-            parts.append(f"re-planning ({record.kind}) {'added' if record.days > 0 else 'saved'} "
-                         f"{_days(int(record.days))} ({cause})")
+            parts.append(
+                f"re-planning ({record.kind}) {'added' if record.days > 0 else 'saved'} "
+                f"{_days(int(record.days))} ({cause})"
+            )
     return f"{head}: {moved}" + (f"; {'; '.join(parts)}." if parts else ".")
 
 

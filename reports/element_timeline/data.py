@@ -51,9 +51,9 @@ Example
 
 from __future__ import annotations
 
+from collections.abc import Iterable
 from dataclasses import dataclass
 from functools import cached_property
-from typing import Iterable
 
 import numpy as np
 import pandas as pd
@@ -80,7 +80,6 @@ NOT_STARTED, IN_PROGRESS, COMPLETE, LATE, UNLINKED = 0, 1, 2, 3, 4
 STATE_NAMES = ("not started", "in progress", "complete", "late against plan", "no linked activity")
 VIEWS = ("as_planned", "as_built")
 VIEW_TITLES = {"as_planned": "As planned", "as_built": "As built"}
-
 
 
 @dataclass(frozen=True, eq=False)
@@ -161,10 +160,13 @@ class ElementTimeline:
         d = self._days
         shape = (-1, 1) if np.ndim(day) == 2 else (-1,)
         return _state_codes(
-            view, day,
-            d["planned_start"].reshape(shape), d["planned_finish"].reshape(shape),
+            view,
+            day,
+            d["planned_start"].reshape(shape),
+            d["planned_finish"].reshape(shape),
             d["linked_as_planned"].reshape(shape),
-            d["actual_start"].reshape(shape), d["actual_finish"].reshape(shape),
+            d["actual_start"].reshape(shape),
+            d["actual_finish"].reshape(shape),
             d["linked_as_built"].reshape(shape),
         )
 
@@ -229,8 +231,11 @@ class ElementTimeline:
         if view == "as_built":
             thresholds += [d["actual_start"], _next_day(d["actual_finish"])]
         # the first frame on or after each date at which the state may change
-        breaks = np.stack([np.zeros(len(self.elements), dtype=np.int64)]
-                          + [np.searchsorted(frames, t, side="left") for t in thresholds], axis=1)
+        breaks = np.stack(
+            [np.zeros(len(self.elements), dtype=np.int64)]
+            + [np.searchsorted(frames, t, side="left") for t in thresholds],
+            axis=1,
+        )
         breaks = np.sort(np.minimum(breaks, count), axis=1)
         following = np.concatenate([breaks[:, 1:], np.full((breaks.shape[0], 1), count)], axis=1)
         lengths = following - breaks
@@ -239,8 +244,9 @@ class ElementTimeline:
         return codes, lengths
 
 
-def _state_codes(view, day, planned_start, planned_finish, linked_planned, actual_start,
-                 actual_finish, linked_built) -> np.ndarray:
+def _state_codes(
+    view, day, planned_start, planned_finish, linked_planned, actual_start, actual_finish, linked_built
+) -> np.ndarray:
     """The state codes of the module docstring, on whole arrays (broadcasting ``day``)."""
     planned = np.where(day < planned_start, NOT_STARTED, np.where(day <= planned_finish, IN_PROGRESS, COMPLETE))
     if view == "as_planned":
@@ -258,11 +264,15 @@ def _monday_on_or_before(day: int) -> int:
     return day - (day + 3) % 7  # day 4 (1970-01-05) is a Monday
 
 
-def element_states(case: Case, planned: ScheduleResult | pd.DataFrame | None = None,
-                   actual: ScheduleResult | pd.DataFrame | None = None, *,
-                   highlight: Iterable[str] | None = None,
-                   planned_source: str | None = None,
-                   actual_source: str | None = None) -> ElementTimeline:
+def element_states(
+    case: Case,
+    planned: ScheduleResult | pd.DataFrame | None = None,
+    actual: ScheduleResult | pd.DataFrame | None = None,
+    *,
+    highlight: Iterable[str] | None = None,
+    planned_source: str | None = None,
+    actual_source: str | None = None,
+) -> ElementTimeline:
     """Dates and weekly states of the case's model elements, as planned and as built.
 
     Parameters
@@ -335,25 +345,34 @@ def element_states(case: Case, planned: ScheduleResult | pd.DataFrame | None = N
     monday = _monday_on_or_before(first)
     after = _monday_on_or_before(last) + 7  # the first Monday after the last finish
     frame_days = np.arange(monday, after + 1, 7, dtype=np.int64)
-    frames = pd.DataFrame({"frame": np.arange(frame_days.size),
-                           "date": frame_days.astype("datetime64[D]").astype("datetime64[us]")})
+    frames = pd.DataFrame(
+        {"frame": np.arange(frame_days.size), "date": frame_days.astype("datetime64[D]").astype("datetime64[us]")}
+    )
 
     missing_planned = ~table["linked_as_planned"]
     missing_built = ~table["linked_as_built"]
     grey = missing_planned | missing_built
     unlinked = table.loc[grey, ["id", "name", "wbs", "classification", "level", "zone"]].copy()
-    unlinked["missing_from"] = np.where(missing_planned[grey] & missing_built[grey], "both views",
-                                        np.where(missing_planned[grey], "as planned", "as built"))
+    unlinked["missing_from"] = np.where(
+        missing_planned[grey] & missing_built[grey],
+        "both views",
+        np.where(missing_planned[grey], "as planned", "as built"),
+    )
     unlinked = unlinked.reset_index(drop=True)
     title = f"Element timeline: as planned ({planned_source}) against as built ({actual_source})"
-    return ElementTimeline(elements=table.reset_index(drop=True), frames=frames, unlinked=unlinked,
-                           planned_source=planned_source, actual_source=actual_source, title=title)
+    return ElementTimeline(
+        elements=table.reset_index(drop=True),
+        frames=frames,
+        unlinked=unlinked,
+        planned_source=planned_source,
+        actual_source=actual_source,
+        title=title,
+    )
 
 
 def _from_result(result: ScheduleResult) -> pd.DataFrame:
     frame = result.activities
-    return pd.DataFrame({"id": frame["id"].astype(str), "start": frame["early_start"],
-                         "finish": frame["early_finish"]})
+    return pd.DataFrame({"id": frame["id"].astype(str), "start": frame["early_start"], "finish": frame["early_finish"]})
 
 
 def _programme(source, what: str) -> pd.DataFrame:
@@ -362,16 +381,21 @@ def _programme(source, what: str) -> pd.DataFrame:
     if isinstance(source, pd.DataFrame):
         missing = [c for c in ("id", "early_start", "early_finish") if c not in source.columns]
         if missing:
-            raise ValueError(f"the {what} programme lacks the column(s) {', '.join(missing)}: "
-                             "give id, early_start and early_finish (and optionally wbs)")
-        frame = pd.DataFrame({"id": source["id"].astype(str),
-                              "start": pd.to_datetime(source["early_start"]),
-                              "finish": pd.to_datetime(source["early_finish"])})
+            raise ValueError(
+                f"the {what} programme lacks the column(s) {', '.join(missing)}: "
+                "give id, early_start and early_finish (and optionally wbs)"
+            )
+        frame = pd.DataFrame(
+            {
+                "id": source["id"].astype(str),
+                "start": pd.to_datetime(source["early_start"]),
+                "finish": pd.to_datetime(source["early_finish"]),
+            }
+        )
         if "wbs" in source.columns:
             frame["wbs"] = source["wbs"].fillna("").astype(str).to_numpy()
         return frame
-    raise TypeError(f"the {what} programme must be a ScheduleResult or a DataFrame, "
-                    f"not {type(source).__name__}")
+    raise TypeError(f"the {what} programme must be a ScheduleResult or a DataFrame, not {type(source).__name__}")
 
 
 def _describe(source) -> str:
@@ -384,13 +408,19 @@ def _default_actual(case: Case) -> tuple[pd.DataFrame, str]:
     record = case.asbuilt_snapshot
     if record is not None:
         acts = record.activities
-        return (pd.DataFrame({"id": acts["id"].astype(str), "start": acts["actual_start"],
-                              "finish": acts["actual_finish"]}), "the as-built record")
+        return (
+            pd.DataFrame(
+                {"id": acts["id"].astype(str), "start": acts["actual_start"], "finish": acts["actual_finish"]}
+            ),
+            "the as-built record",
+        )
     if case.updates:
         last = case.updates[-1]
-        return (_from_result(schedule(case, last.folder)),
-                f"{last.label} of {last.data_date.isoformat()}: actual dates where recorded, "
-                "forecast early dates otherwise")
+        return (
+            _from_result(schedule(case, last.folder)),
+            f"{last.label} of {last.data_date.isoformat()}: actual dates where recorded, "
+            "forecast early dates otherwise",
+        )
     return _from_result(schedule(case, "baseline")), "no progress recorded: baseline early dates"
 
 
@@ -415,8 +445,9 @@ def _dates_by_wbs(programme: pd.DataFrame, wbs_of: dict[str, str]) -> pd.DataFra
         frame["wbs"] = frame["id"].map(wbs_of).fillna("")
     frame = frame[(frame["wbs"] != "") & frame["start"].notna() & frame["finish"].notna()]
     grouped = frame.groupby("wbs", sort=False)
-    return pd.DataFrame({"start": grouped["start"].min(), "finish": grouped["finish"].max(),
-                         "ids": grouped["id"].agg(list)})
+    return pd.DataFrame(
+        {"start": grouped["start"].min(), "finish": grouped["finish"].max(), "ids": grouped["id"].agg(list)}
+    )
 
 
 def _linked_ids(wbs: pd.Series, planned: pd.DataFrame, actual: pd.DataFrame) -> np.ndarray:

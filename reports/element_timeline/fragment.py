@@ -21,13 +21,23 @@ import datetime as dt
 import hashlib
 import html
 import json
-from typing import Sequence
+from collections.abc import Sequence
 
 import numpy as np
 
 from .data import NOT_STARTED, STATE_NAMES, UNLINKED, VIEW_TITLES, VIEWS, ElementTimeline
-from .scene import (BOX_CORNERS, BOX_EDGES, BOX_TRIANGLES, LEGEND, PLAY_MILLISECONDS, ROLES_3D, base_2d, base_3d,
-                    box_levels, hover_texts)
+from .scene import (
+    BOX_CORNERS,
+    BOX_EDGES,
+    BOX_TRIANGLES,
+    LEGEND,
+    PLAY_MILLISECONDS,
+    ROLES_3D,
+    base_2d,
+    base_3d,
+    box_levels,
+    hover_texts,
+)
 from .script import SCRIPT, STYLE
 
 __all__ = ["timeline_html", "standalone_html"]
@@ -35,15 +45,21 @@ __all__ = ["timeline_html", "standalone_html"]
 
 def _encode_runs(runs: list[list[tuple[int, int]]]) -> str:
     """Runs as text: per element ``<code><frames in base 36>`` joined by ".", elements by ","."""
-    return ",".join(".".join(f"{code}{np.base_repr(length, 36).lower()}" for code, length in element)
-                    for element in runs)
+    return ",".join(
+        ".".join(f"{code}{np.base_repr(length, 36).lower()}" for code, length in element) for element in runs
+    )
 
 
 def _json_for_script(value) -> str:
     text = json.dumps(value, separators=(",", ":"), ensure_ascii=False, allow_nan=False)
     # inside <script> no "</" may appear; these escapes keep the JSON valid
-    return text.replace("&", "\\u0026").replace("<", "\\u003c").replace(">", "\\u003e") \
-        .replace("\u2028", "\\u2028").replace("\u2029", "\\u2029")
+    return (
+        text.replace("&", "\\u0026")
+        .replace("<", "\\u003c")
+        .replace(">", "\\u003e")
+        .replace("\u2028", "\\u2028")
+        .replace("\u2029", "\\u2029")
+    )
 
 
 def _plotly_json(value) -> object:
@@ -73,18 +89,27 @@ def _payload(timeline: ElementTimeline, views: Sequence[str]) -> dict:
         highlighted = timeline.elements["highlighted"].to_numpy(dtype=bool)
         levels, numbers = box_levels(timeline, drawn)
         payload["figure3d"] = {
-            "layout": _plotly_json(base["layout"]), "traces": _plotly_json(base["traces"]),
-            "roles": list(ROLES_3D), "drawn": drawn.tolist(),
+            "layout": _plotly_json(base["layout"]),
+            "traces": _plotly_json(base["traces"]),
+            "roles": list(ROLES_3D),
+            "drawn": drawn.tolist(),
             "boxes": [round(float(v), 3) for v in boxes.ravel()],
             "outlined": [n for n, row in enumerate(drawn.tolist()) if highlighted[row]],
-            "levels": levels, "box_levels": numbers.tolist(), "margin": base["margin"],
-            "corners": BOX_CORNERS, "triangles": BOX_TRIANGLES, "edges": BOX_EDGES,
+            "levels": levels,
+            "box_levels": numbers.tolist(),
+            "margin": base["margin"],
+            "corners": BOX_CORNERS,
+            "triangles": BOX_TRIANGLES,
+            "edges": BOX_EDGES,
         }
     if "2d" in views:
         base = base_2d(timeline, legend=False)
-        payload["figure2d"] = {"layout": _plotly_json(base["layout"]),
-                               "traces": _plotly_json(base["traces"]),
-                               "x": base["x"].tolist(), "y": base["y"].tolist()}
+        payload["figure2d"] = {
+            "layout": _plotly_json(base["layout"]),
+            "traces": _plotly_json(base["traces"]),
+            "x": base["x"].tolist(),
+            "y": base["y"].tolist(),
+        }
     return payload
 
 
@@ -96,7 +121,7 @@ def _legend_html() -> str:
             swatch = f'<span class="swatch" style="background:#FFFFFF;border:3px solid {colour}"></span>'
         else:
             swatch = f'<span class="swatch{kinds.get(code, "")}" style="background:{colour}"></span>'
-        items.append(f'<li>{swatch}<b>{html.escape(label)}</b>: {html.escape(meaning)}</li>')
+        items.append(f"<li>{swatch}<b>{html.escape(label)}</b>: {html.escape(meaning)}</li>")
     return '<ul class="legend">' + "".join(items) + "</ul>"
 
 
@@ -107,12 +132,15 @@ def _levels_html(timeline: ElementTimeline) -> str:
         return ""
     options = "".join(
         f'<option value="{k}"{" selected" if k == len(levels) - 1 else ""}>'
-        f'{html.escape(name)}{" (every level)" if k == len(levels) - 1 else ""}</option>'
-        for k, name in enumerate(levels))
-    return ('<div class="controls levels"><label>3D views: show levels up to '
-            f'<select data-role="levels">{options}</select></label>'
-            '<span class="hint">choose a lower level to see the work inside; drag either view to turn both'
-            '</span></div>')
+        f"{html.escape(name)}{' (every level)' if k == len(levels) - 1 else ''}</option>"
+        for k, name in enumerate(levels)
+    )
+    return (
+        '<div class="controls levels"><label>3D views: show levels up to '
+        f'<select data-role="levels">{options}</select></label>'
+        '<span class="hint">choose a lower level to see the work inside; drag either view to turn both'
+        "</span></div>"
+    )
 
 
 def _unlinked_html(timeline: ElementTimeline) -> str:
@@ -120,14 +148,18 @@ def _unlinked_html(timeline: ElementTimeline) -> str:
     if table.empty:
         return '<p class="unlinked" data-role="unlinked">Every element is linked to an activity.</p>'
     rows = "".join(
-        "<tr>" + "".join(f"<td>{html.escape(str(v))}</td>" for v in (r.id, r.name, r.wbs, r.classification,
-                                                                    r.missing_from)) + "</tr>"
-        for r in table.itertuples(index=False))
+        "<tr>"
+        + "".join(f"<td>{html.escape(str(v))}</td>" for v in (r.id, r.name, r.wbs, r.classification, r.missing_from))
+        + "</tr>"
+        for r in table.itertuples(index=False)
+    )
     noun = "element has" if len(table) == 1 else "elements have"
-    return (f'<details class="unlinked" data-role="unlinked" open><summary>{len(table)} {noun} no linked '
-            'activity in at least one view (shown grey)</summary><table><thead><tr><th>element</th>'
-            '<th>name</th><th>wbs</th><th>classification</th><th>no activity in</th></tr></thead>'
-            f'<tbody>{rows}</tbody></table></details>')
+    return (
+        f'<details class="unlinked" data-role="unlinked" open><summary>{len(table)} {noun} no linked '
+        "activity in at least one view (shown grey)</summary><table><thead><tr><th>element</th>"
+        "<th>name</th><th>wbs</th><th>classification</th><th>no activity in</th></tr></thead>"
+        f"<tbody>{rows}</tbody></table></details>"
+    )
 
 
 def _not_drawn_html(timeline: ElementTimeline) -> str:
@@ -135,12 +167,15 @@ def _not_drawn_html(timeline: ElementTimeline) -> str:
     if not missing:
         return ""
     shown = ", ".join(html.escape(m) for m in missing[:50]) + (" ..." if len(missing) > 50 else "")
-    return (f'<p class="not-drawn" data-role="not-drawn">{len(missing)} element(s) have no complete box '
-            f'(x, y, z, dx, dy, dz) and appear only in the view by level and zone: {shown}</p>')
+    return (
+        f'<p class="not-drawn" data-role="not-drawn">{len(missing)} element(s) have no complete box '
+        f"(x, y, z, dx, dy, dz) and appear only in the view by level and zone: {shown}</p>"
+    )
 
 
-def timeline_html(timeline: ElementTimeline, *, views: Sequence[str] = ("3d", "2d"),
-                  element_id: str | None = None) -> str:
+def timeline_html(
+    timeline: ElementTimeline, *, views: Sequence[str] = ("3d", "2d"), element_id: str | None = None
+) -> str:
     """The element timeline as an HTML fragment: a ``div`` with its data and a small script.
 
     The page that holds it must load plotly.js once (inline, for a self-contained report)
@@ -193,7 +228,7 @@ def timeline_html(timeline: ElementTimeline, *, views: Sequence[str] = ("3d", "2
         '<p class="status" data-role="status"></p>'
         f"{plots}{_unlinked_html(timeline)}{_not_drawn_html(timeline)}"
         f'<script type="application/json" data-role="timeline-data">{payload_json}</script>'
-        f'<script>{SCRIPT.replace("{id}", element_id)}</script>'
+        f"<script>{SCRIPT.replace('{id}', element_id)}</script>"
         "</div>"
     )
 
@@ -208,11 +243,11 @@ def standalone_html(timeline: ElementTimeline, title: str | None = None, **optio
 
     heading = html.escape(title or "Element timeline")
     return (
-        "<!DOCTYPE html>\n<html lang=\"en\"><head><meta charset=\"utf-8\">"
+        '<!DOCTYPE html>\n<html lang="en"><head><meta charset="utf-8">'
         f"<title>{heading}</title>"
         '<meta name="viewport" content="width=device-width, initial-scale=1">'
         f'<script type="text/javascript">{get_plotlyjs()}</script>'
-        "</head><body style=\"margin:1em\">"
-        f"<h1 style=\"font-family:system-ui,sans-serif;font-size:1.3em\">{heading}</h1>"
+        '</head><body style="margin:1em">'
+        f'<h1 style="font-family:system-ui,sans-serif;font-size:1.3em">{heading}</h1>'
         f"{timeline_html(timeline, **options)}</body></html>\n"
     )

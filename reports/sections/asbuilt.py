@@ -31,10 +31,21 @@ _EXPLAIN = (
     "from the completion activity, each activity to the predecessor that held it back. Each activity "
     "on it contributes how much later it finished, past its own float, than its driving predecessor "
     "had (by the windows rules), and that delay falls in the period of its actual finish: an "
-    "activity carried across a shutdown, or slipping into its own float, contributes nothing.")
+    "activity carried across a shutdown, or slipping into its own float, contributes nothing."
+)
 
-_COLUMNS = ["wbs", "id", "name", "on_paths", "planned_start", "planned_finish", "actual_start", "actual_finish",
-            "finish_variance_days", "milestone"]
+_COLUMNS = [
+    "wbs",
+    "id",
+    "name",
+    "on_paths",
+    "planned_start",
+    "planned_finish",
+    "actual_start",
+    "actual_finish",
+    "finish_variance_days",
+    "milestone",
+]
 
 
 def _wbs_key(code) -> tuple:
@@ -72,21 +83,45 @@ def driving_path_frame(ctx: Context, result) -> pd.DataFrame:
         if ident not in table.index:
             continue
         row = table.loc[ident]
-        paths = [p for p, flag in (("baseline driving path", ident in on_planned),
-                                   ("as-built critical path", ident in on_built)) if flag]
+        paths = [
+            p
+            for p, flag in (
+                ("baseline driving path", ident in on_planned),
+                ("as-built critical path", ident in on_built),
+            )
+            if flag
+        ]
         planned_duration = row["planned_duration"]
-        milestone = bool((pd.notna(planned_duration) and planned_duration == 0)
-                         or (pd.isna(planned_duration) and row["actual_duration"] == 0))
-        rows.append({"wbs": wbs.get(ident, ""), "id": ident, "name": row["name"], "on_paths": paths,
-                     "planned_start": row["planned_start"], "planned_finish": row["planned_finish"],
-                     "actual_start": row["actual_start"], "actual_finish": row["actual_finish"],
-                     "finish_variance_days": row["finish_variance_days"], "milestone": milestone})
+        milestone = bool(
+            (pd.notna(planned_duration) and planned_duration == 0)
+            or (pd.isna(planned_duration) and row["actual_duration"] == 0)
+        )
+        rows.append(
+            {
+                "wbs": wbs.get(ident, ""),
+                "id": ident,
+                "name": row["name"],
+                "on_paths": paths,
+                "planned_start": row["planned_start"],
+                "planned_finish": row["planned_finish"],
+                "actual_start": row["actual_start"],
+                "actual_finish": row["actual_finish"],
+                "finish_variance_days": row["finish_variance_days"],
+                "milestone": milestone,
+            }
+        )
     frame = pd.DataFrame(rows, columns=_COLUMNS)
     if len(frame):
-        order = sorted(range(len(frame)), key=lambda k: (
-            _wbs_key(frame["wbs"].iloc[k]),
-            pd.Timestamp(frame["planned_start"].iloc[k]) if pd.notna(frame["planned_start"].iloc[k])
-            else pd.Timestamp(frame["actual_start"].iloc[k]), frame["id"].iloc[k]))
+        order = sorted(
+            range(len(frame)),
+            key=lambda k: (
+                _wbs_key(frame["wbs"].iloc[k]),
+                pd.Timestamp(frame["planned_start"].iloc[k])
+                if pd.notna(frame["planned_start"].iloc[k])
+                else pd.Timestamp(frame["actual_start"].iloc[k]),
+                frame["id"].iloc[k],
+            ),
+        )
         frame = frame.iloc[order].reset_index(drop=True)
     return frame
 
@@ -108,31 +143,60 @@ def section(ctx: Context) -> Section:
         return asbuilt
     case = ctx.case
     blocks = asbuilt.blocks
-    blocks.append(Facts((("Planned completion", result.planned_completion.isoformat()),
-                         ("Actual completion", result.actual_completion.isoformat()),
-                         ("Completion variance", days_text(result.completion_variance_days)))))
+    blocks.append(
+        Facts(
+            (
+                ("Planned completion", result.planned_completion.isoformat()),
+                ("Actual completion", result.actual_completion.isoformat()),
+                ("Completion variance", days_text(result.completion_variance_days)),
+            )
+        )
+    )
     frame = driving_path_frame(ctx, result)
     drawn, note = frame, ""
     if len(frame) > CHART_ACTIVITIES:
         keep = frame["finish_variance_days"].abs().fillna(0).sort_values(ascending=False, kind="stable")
         drawn = frame.loc[sorted(keep.index[:CHART_ACTIVITIES])]
-        note = (f" The chart shows the {CHART_ACTIVITIES} of the {len(frame)} activities with the largest "
-                "finish variance; the table lists them all.")
-    data_dates = pd.DataFrame({"label": [s.label for s in case.updates],
-                               "data_date": [s.data_date for s in case.updates]})
+        note = (
+            f" The chart shows the {CHART_ACTIVITIES} of the {len(frame)} activities with the largest "
+            "finish variance; the table lists them all."
+        )
+    data_dates = pd.DataFrame(
+        {"label": [s.label for s in case.updates], "data_date": [s.data_date for s in case.updates]}
+    )
     if len(drawn):
-        blocks.append(FigureBlock("planned_against_built", planned_against_built(
-            drawn, critical_path=result.critical_path, data_dates=data_dates),
-            "Planned (baseline early dates, pale hatched bars) and actual (solid bars) dates of the activities on "
-            "the baseline driving path and the as-built critical path: the as-built critical path first, in path "
-            "order, then the other activities by start; dotted lines mark the data dates of the progress "
-            "updates." + note))
-    blocks.append(ctx.table("driving_path_activities", "Activities on the driving paths, planned and actual",
-                            "asbuilt", frame))
-    blocks.append(ctx.table("asbuilt_critical_path", "The as-built critical path", "asbuilt", result.critical_path,
-                            note="The contributions along the path add up to the completion variance."))
-    blocks.append(ctx.table("asbuilt_periods", "Delay along the as-built critical path by period", "asbuilt",
-                            result.periods, labels={"cumulative_days": "running total (calendar days)"}))
-    blocks.append(ctx.table("asbuilt_activities", "Every activity, planned against actual", "asbuilt",
-                            result.activities))
+        blocks.append(
+            FigureBlock(
+                "planned_against_built",
+                planned_against_built(drawn, critical_path=result.critical_path, data_dates=data_dates),
+                "Planned (baseline early dates, pale hatched bars) and actual (solid bars) dates of the activities on "
+                "the baseline driving path and the as-built critical path: the as-built critical path first, in path "
+                "order, then the other activities by start; dotted lines mark the data dates of the progress "
+                "updates." + note,
+            )
+        )
+    blocks.append(
+        ctx.table("driving_path_activities", "Activities on the driving paths, planned and actual", "asbuilt", frame)
+    )
+    blocks.append(
+        ctx.table(
+            "asbuilt_critical_path",
+            "The as-built critical path",
+            "asbuilt",
+            result.critical_path,
+            note="The contributions along the path add up to the completion variance.",
+        )
+    )
+    blocks.append(
+        ctx.table(
+            "asbuilt_periods",
+            "Delay along the as-built critical path by period",
+            "asbuilt",
+            result.periods,
+            labels={"cumulative_days": "running total (calendar days)"},
+        )
+    )
+    blocks.append(
+        ctx.table("asbuilt_activities", "Every activity, planned against actual", "asbuilt", result.activities)
+    )
     return asbuilt

@@ -21,7 +21,8 @@ _EXPLAIN = (
     "one party's events (or of one event) is then taken out and the works are scheduled again: "
     "but for those events, the works would have finished on the date shown. But-for figures need "
     "not add up: with delays on parallel paths, taking out either alone may move completion "
-    "little, while taking out both moves it a lot.")
+    "little, while taking out both moves it a lot."
+)
 
 
 def section(ctx: Context) -> Section:
@@ -40,23 +41,50 @@ def section(ctx: Context) -> Section:
     if result is None:
         return collapsed
     blocks = collapsed.blocks
-    blocks.append(Facts((
-        ("Actual completion", result.actual_completion.isoformat()),
-        ("Completion of the as-built model", result.modelled_completion.isoformat()),
-        ("The model reproduces the actual dates", "yes" if result.reproduced else
-         f"no: {len(result.mismatches)} activities differ (listed below)"),
-    )))
+    blocks.append(
+        Facts(
+            (
+                ("Actual completion", result.actual_completion.isoformat()),
+                ("Completion of the as-built model", result.modelled_completion.isoformat()),
+                (
+                    "The model reproduces the actual dates",
+                    "yes" if result.reproduced else f"no: {len(result.mismatches)} activities differ (listed below)",
+                ),
+            )
+        )
+    )
     if result.by_party["days_earlier"].notna().any():
-        blocks.append(FigureBlock("but_for_days", but_for_days(result.by_party),
-                                  "But-for days of each party's events and of all events: they need not add up."))
-    blocks.append(ctx.table("collapsed_by_party", "But for each party's events", "collapsed", result.by_party,
-                            note=result.notes[0] if result.notes else ""))
+        blocks.append(
+            FigureBlock(
+                "but_for_days",
+                but_for_days(result.by_party),
+                "But-for days of each party's events and of all events: they need not add up.",
+            )
+        )
+    blocks.append(
+        ctx.table(
+            "collapsed_by_party",
+            "But for each party's events",
+            "collapsed",
+            result.by_party,
+            note=result.notes[0] if result.notes else "",
+        )
+    )
     blocks.append(ctx.table("collapsed_by_event", "But for each event alone", "collapsed", result.by_event))
     if len(result.mismatches):
-        blocks.append(ctx.table("collapsed_mismatches", "Where the as-built model differs from the actual dates",
-                                "collapsed", result.mismatches))
+        blocks.append(
+            ctx.table(
+                "collapsed_mismatches",
+                "Where the as-built model differs from the actual dates",
+                "collapsed",
+                result.mismatches,
+            )
+        )
     for note in result.notes[1:]:
         blocks.append(Paragraph(note, style="small"))
-    blocks.append(causation_block(ctx, "collapsed", "collapsed_causation", "Causation of the collapsed as-built",
-                                  MODELLED_CAUSATION_COLUMNS))
+    blocks.append(
+        causation_block(
+            ctx, "collapsed", "collapsed_causation", "Causation of the collapsed as-built", MODELLED_CAUSATION_COLUMNS
+        )
+    )
     return collapsed

@@ -12,16 +12,30 @@ from ..context import Context
 __all__ = ["causation_block", "event_rows", "steps_frame", "MODELLED_CAUSATION_COLUMNS", "CAUSATION_NOTE"]
 
 #: Causation columns shown for the modelled methods (time impact adds ``snapshot``).
-MODELLED_CAUSATION_COLUMNS = ["step", "event", "party", "days", "alone_days", "causes", "concurrent_with",
-                              "concurrent_days", "excusable_days", "compensable_days", "culpable_days",
-                              "classification"]
+MODELLED_CAUSATION_COLUMNS = [
+    "step",
+    "event",
+    "party",
+    "days",
+    "alone_days",
+    "causes",
+    "concurrent_with",
+    "concurrent_days",
+    "excusable_days",
+    "compensable_days",
+    "culpable_days",
+    "classification",
+]
 
-CAUSATION_NOTE = ("Excusable days give time; compensable days (a part of the excusable days) give time and money; "
-                  "culpable days give neither. Excusable and culpable days add up to the days.")
+CAUSATION_NOTE = (
+    "Excusable days give time; compensable days (a part of the excusable days) give time and money; "
+    "culpable days give neither. Excusable and culpable days add up to the days."
+)
 
 
-def causation_block(ctx: Context, method: str, key: str, title: str, columns: list[str], *,
-                    only_charged: bool = False, style: str = "") -> TableBlock:
+def causation_block(
+    ctx: Context, method: str, key: str, title: str, columns: list[str], *, only_charged: bool = False, style: str = ""
+) -> TableBlock:
     """The causation table of a method, from its entitlement.
 
     Parameters
@@ -40,12 +54,14 @@ def causation_block(ctx: Context, method: str, key: str, title: str, columns: li
     table = ctx.entitlement.method(method).causation.table
     if only_charged and len(table):
         table = table[(table["days"] != 0) | (table["concurrent_with"].fillna("") != "")]
-    return ctx.table(key, title, method, table[[c for c in columns if c in table.columns]], note=CAUSATION_NOTE,
-                     style=style)
+    return ctx.table(
+        key, title, method, table[[c for c in columns if c in table.columns]], note=CAUSATION_NOTE, style=style
+    )
 
 
-def event_rows(events: pd.DataFrame, extra: list[str] = (), alone: list[str] = (),
-               increment: list[str] = ()) -> pd.DataFrame:
+def event_rows(
+    events: pd.DataFrame, extra: list[str] = (), alone: list[str] = (), increment: list[str] = ()
+) -> pd.DataFrame:
     """A modelled method's events for the report.
 
     Parameters
@@ -64,8 +80,19 @@ def event_rows(events: pd.DataFrame, extra: list[str] = (), alone: list[str] = (
     for record in events.itertuples(index=False):
         parts = [record.applied, record.effect, *getattr(record, "warnings", [])]
         notes.append("; ".join(p for p in parts if p))
-    columns = ["event", "title", "party", "impact", "start", *extra, "alone_days", *alone, "increment_days", *increment,
-               "completion_after"]
+    columns = [
+        "event",
+        "title",
+        "party",
+        "impact",
+        "start",
+        *extra,
+        "alone_days",
+        *alone,
+        "increment_days",
+        *increment,
+        "completion_after",
+    ]
     return events[columns].assign(notes=notes)
 
 

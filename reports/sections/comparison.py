@@ -17,7 +17,8 @@ __all__ = ["section"]
 
 _EXPLAIN = (
     "Different recognised methods can give different answers on the same facts. This section sets "
-    "the methods' figures side by side and explains in plain words why they differ.")
+    "the methods' figures side by side and explains in plain words why they differ."
+)
 
 
 def section(ctx: Context) -> Section:
@@ -40,13 +41,30 @@ def section(ctx: Context) -> Section:
     blocks.append(Paragraph(_EXPLAIN))
     for paragraph in result.explanation:
         blocks.append(Paragraph(str(paragraph)))
-    blocks.append(ctx.table(
-        "comparison_by_party", "Days of delay to completion per party, by method", "comparison", result.by_party,
-        note="Each method's column adds up to the delay that method explains."))
-    blocks.append(ctx.table(
-        "comparison_by_event", "Days per event, by method", "comparison", result.by_event,
-        note="A day explained by several events counts against each, so these columns need not add up."))
-    blocks.append(ctx.table(
-        "sensitivity", "Sensitivity of the headline figures to the progress mode and the concurrency rule",
-        "comparison", sensitivity(ctx.case, list(result.methods))))
+    blocks.append(
+        ctx.table(
+            "comparison_by_party",
+            "Days of delay to completion per party, by method",
+            "comparison",
+            result.by_party,
+            note="Each method's column adds up to the delay that method explains.",
+        )
+    )
+    blocks.append(
+        ctx.table(
+            "comparison_by_event",
+            "Days per event, by method",
+            "comparison",
+            result.by_event,
+            note="A day explained by several events counts against each, so these columns need not add up.",
+        )
+    )
+    blocks.append(
+        ctx.table(
+            "sensitivity",
+            "Sensitivity of the headline figures to the progress mode and the concurrency rule",
+            "comparison",
+            sensitivity(ctx.case, list(result.methods)),
+        )
+    )
     return comparison

@@ -24,7 +24,8 @@ _EXPLAIN = (
     "The increments of the cumulative run do add up, to the total impact. Each event is put in at "
     "its real dates; a hold stops the work it names for its period, and leaves alone work the plan "
     "has no work on then. The method measures the plan's response to the events, not what happened "
-    "on site: the residual, the actual completion less the impacted one, shows the difference.")
+    "on site: the residual, the actual completion less the impacted one, shows the difference."
+)
 
 
 def section(ctx: Context) -> Section:
@@ -45,24 +46,64 @@ def section(ctx: Context) -> Section:
     blocks = impacted.blocks
     if not len(result.events):
         blocks.append(Notice("The delay event register holds no events: nothing was inserted."))
-    blocks.append(Facts((("Programme impacted", result.base),
-                         ("Completion before any event", result.completion_base.isoformat()),
-                         ("Completion after every event", result.completion_cumulative.isoformat()),
-                         ("Total impact", days_text(result.total_days)),
-                         ("Actual completion", result.actual_completion.isoformat()),
-                         ("Residual (actual less impacted)", days_text(result.residual_days)))))
-    rows = [{"run": result.base, "step": "before any event", "completion": result.completion_base, "alone": None,
-             "title": "the programme before any event"}]
-    rows += [{"run": result.base, "step": r.event, "completion": r.completion_after, "alone": r.completion_alone,
-              "title": r.title} for r in result.events.itertuples(index=False)]
+    blocks.append(
+        Facts(
+            (
+                ("Programme impacted", result.base),
+                ("Completion before any event", result.completion_base.isoformat()),
+                ("Completion after every event", result.completion_cumulative.isoformat()),
+                ("Total impact", days_text(result.total_days)),
+                ("Actual completion", result.actual_completion.isoformat()),
+                ("Residual (actual less impacted)", days_text(result.residual_days)),
+            )
+        )
+    )
+    rows = [
+        {
+            "run": result.base,
+            "step": "before any event",
+            "completion": result.completion_base,
+            "alone": None,
+            "title": "the programme before any event",
+        }
+    ]
+    rows += [
+        {
+            "run": result.base,
+            "step": r.event,
+            "completion": r.completion_after,
+            "alone": r.completion_alone,
+            "title": r.title,
+        }
+        for r in result.events.itertuples(index=False)
+    ]
     chart = completion_steps(steps_frame(rows), title="Completion after each event")
-    blocks.append(FigureBlock("impacted_steps", chart,
-                              "The staircase is the cumulative run; hollow markers show each event alone."))
-    blocks.append(ctx.table("impacted_events", "Each event alone and in the cumulative run", "impacted",
-                            event_rows(result.events, ["finish"], ["alone_work_days", "completion_alone"],
-                                       ["increment_work_days"]), note=" ".join(result.notes)))
-    blocks.append(ctx.table("impacted_by_party", "Per party", "impacted", result.by_party,
-                            labels={"alone_days": "the party's events together, without the others"}))
-    blocks.append(causation_block(ctx, "impacted", "impacted_causation", "Causation of the impacted as-planned",
-                                  MODELLED_CAUSATION_COLUMNS))
+    blocks.append(
+        FigureBlock(
+            "impacted_steps", chart, "The staircase is the cumulative run; hollow markers show each event alone."
+        )
+    )
+    blocks.append(
+        ctx.table(
+            "impacted_events",
+            "Each event alone and in the cumulative run",
+            "impacted",
+            event_rows(result.events, ["finish"], ["alone_work_days", "completion_alone"], ["increment_work_days"]),
+            note=" ".join(result.notes),
+        )
+    )
+    blocks.append(
+        ctx.table(
+            "impacted_by_party",
+            "Per party",
+            "impacted",
+            result.by_party,
+            labels={"alone_days": "the party's events together, without the others"},
+        )
+    )
+    blocks.append(
+        causation_block(
+            ctx, "impacted", "impacted_causation", "Causation of the impacted as-planned", MODELLED_CAUSATION_COLUMNS
+        )
+    )
     return impacted

@@ -21,8 +21,7 @@ from ..context import CAUTIONS, METHOD_NAMES, Context
 
 __all__ = ["section", "docstring_part", "settings_frame"]
 
-_METHOD_MODULES = {"windows": windows, "impacted": impacted, "tia": tia, "collapsed": collapsed,
-                   "asbuilt": asbuilt}
+_METHOD_MODULES = {"windows": windows, "impacted": impacted, "tia": tia, "collapsed": collapsed, "asbuilt": asbuilt}
 
 
 def docstring_part(doc: str, heading: str) -> list[str]:
@@ -91,8 +90,12 @@ def settings_frame(case, methods: list[str], title: str) -> pd.DataFrame:
         for name, value in dataclasses.asdict(getattr(settings, part)).items():
             rows.append({"setting": f"{part}.{name}", "value": value})
     for name, value in dict(settings.extra).items():
-        rows.append({"setting": str(name), "value": value if isinstance(value, (str, int, float, bool, dt.date))
-                     else str(value)})
+        rows.append(
+            {
+                "setting": str(name),
+                "value": value if isinstance(value, (str, int, float, bool, dt.date)) else str(value),
+            }
+        )
     rows.append({"setting": "report.methods", "value": ", ".join(methods) or "(none)"})
     rows.append({"setting": "report.title", "value": title})
     return pd.DataFrame(rows, columns=["setting", "value"])
@@ -100,8 +103,7 @@ def settings_frame(case, methods: list[str], title: str) -> pd.DataFrame:
 
 def _corrections(case) -> pd.DataFrame:
     columns = ["record", "snapshot", "table", "key", "column", "original", "corrected", "reason", "row"]
-    return pd.DataFrame([{c: getattr(item, c) for c in columns}
-                         for item in case.corrections], columns=columns)
+    return pd.DataFrame([{c: getattr(item, c) for c in columns} for item in case.corrections], columns=columns)
 
 
 def section(ctx: Context, title: str) -> Section:
@@ -120,23 +122,45 @@ def section(ctx: Context, title: str) -> Section:
     case = ctx.case
     blocks = inputs.blocks
     opinion = case.opinion.strip()
-    blocks.append(Facts((
-        # the case by its folder's (or workbook's) name: the report names no path of the machine it was made on
-        ("Case", Path(case.root).resolve().name),
-        ("Programmes", f"{len(case.snapshots)} (baseline and {len(case.updates)} progress updates)"
-         + ("; an as-built record" if case.asbuilt_snapshot is not None else "; no as-built record")),
-        ("Delay events", str(len(case.events))),
-        ("Model elements", str(len(case.elements))),
-        ("Input files", f"{len(case.input_files)}, each with its SHA-256 in the manifest"),
-        ("The analyst's opinion", f"opinion.md, {len(opinion):,} characters (shown in the summary)" if opinion
-         else "none given (no opinion.md)"),
-    )))
-    blocks.append(ctx.table("settings", "Settings of the case and of this report", "inputs",
-                            settings_frame(case, ctx.methods, title)))
+    blocks.append(
+        Facts(
+            (
+                # the case by its folder's (or workbook's) name: the report names no path of the machine it was made on
+                ("Case", Path(case.root).resolve().name),
+                (
+                    "Programmes",
+                    f"{len(case.snapshots)} (baseline and {len(case.updates)} progress updates)"
+                    + ("; an as-built record" if case.asbuilt_snapshot is not None else "; no as-built record"),
+                ),
+                ("Delay events", str(len(case.events))),
+                ("Model elements", str(len(case.elements))),
+                ("Input files", f"{len(case.input_files)}, each with its SHA-256 in the manifest"),
+                (
+                    "The analyst's opinion",
+                    f"opinion.md, {len(opinion):,} characters (shown in the summary)"
+                    if opinion
+                    else "none given (no opinion.md)",
+                ),
+            )
+        )
+    )
+    blocks.append(
+        ctx.table(
+            "settings", "Settings of the case and of this report", "inputs", settings_frame(case, ctx.methods, title)
+        )
+    )
     corrections = _corrections(case)
-    blocks.append(ctx.table("corrections", "The analyst's disclosed corrections to the records", "inputs",
-                            corrections, note="Applied when the case is loaded, never written back to the input "
-                                              "files." if len(corrections) else "No corrections were made."))
+    blocks.append(
+        ctx.table(
+            "corrections",
+            "The analyst's disclosed corrections to the records",
+            "inputs",
+            corrections,
+            note="Applied when the case is loaded, never written back to the input files."
+            if len(corrections)
+            else "No corrections were made.",
+        )
+    )
     blocks.append(Paragraph("Methods", style="heading"))
     for method in ctx.methods:
         doc = _METHOD_MODULES[method].__doc__

@@ -29,18 +29,22 @@ __all__ = ["section", "rates_frame", "prolongation_frame", "damages_frame", "PRO
 PROLONGATION = BuildUp(products={"cost": ("days", "cost_per_day")}, totals=("days", "cost"), group="method")
 
 #: How liquidated damages are built up: days of liquidated damages x rate, then the cap where it is above 0.
-DAMAGES = BuildUp(products={"damages_before_cap": ("ld_days", "liquidated_damages_per_day")},
-                  capped={"ld_exposure": ("damages_before_cap", "cap")})
+DAMAGES = BuildUp(
+    products={"damages_before_cap": ("ld_days", "liquidated_damages_per_day")},
+    capped={"ld_exposure": ("damages_before_cap", "cap")},
+)
 
 _EXPLAIN = (
     "Prolongation is priced when the delay was caused: each method's compensable days are priced at the rate of "
     "the period of prolongation_rates.csv that holds the day their delay arose (a window's last day, an event's "
     "start), else at the flat rate of case.toml (SCL Delay and Disruption Protocol, 2nd edition (2017), core "
-    "principle 17, as recalled). Liquidated damages are the days of liquidated damages times the rate, limited to the cap when "
+    "principle 17, as recalled). Liquidated damages are the days of liquidated damages times the rate, "
+    "limited to the cap when "
     "the contract sets one; the cap applies to each figure on its own. Sums already paid are not deducted. In "
     "tables.xlsx the sheets prolongation_build_up and damages_build_up recompute every product, cap and total by "
     "formula, in the columns marked (formula) beside the values: the library that writes the workbook stores a "
-    "formula without its result, so a spreadsheet shows the formulas' results once it calculates.")
+    "formula without its result, so a spreadsheet shows the formulas' results once it calculates."
+)
 
 
 def rates_frame(case) -> pd.DataFrame:
@@ -57,12 +61,24 @@ def rates_frame(case) -> pd.DataFrame:
         prolongation_rates.csv (by its row), then the flat rate of case.toml.
     """
     rates = case.prolongation_rates.reset_index(drop=True)
-    rows = [{"from": pd.Timestamp(r["from"]).date(), "to": pd.Timestamp(r["to"]).date(),
-             "cost_per_day": float(r["cost_per_day"]), "source": f"prolongation_rates.csv row {k + 2}"}
-            for k, r in rates.iterrows()]
-    rows.append({"from": None, "to": None, "cost_per_day": float(case.settings.commercial.prolongation_cost_per_day),
-                 "source": "case.toml [commercial] prolongation_cost_per_day" +
-                           (", for a day outside every period above" if len(rates) else "")})
+    rows = [
+        {
+            "from": pd.Timestamp(r["from"]).date(),
+            "to": pd.Timestamp(r["to"]).date(),
+            "cost_per_day": float(r["cost_per_day"]),
+            "source": f"prolongation_rates.csv row {k + 2}",
+        }
+        for k, r in rates.iterrows()
+    ]
+    rows.append(
+        {
+            "from": None,
+            "to": None,
+            "cost_per_day": float(case.settings.commercial.prolongation_cost_per_day),
+            "source": "case.toml [commercial] prolongation_cost_per_day"
+            + (", for a day outside every period above" if len(rates) else ""),
+        }
+    )
     return pd.DataFrame(rows, columns=["from", "to", "cost_per_day", "source"])
 
 
@@ -79,8 +95,11 @@ def prolongation_frame(ctx: Context) -> pd.DataFrame:
         ``method`` (in words) and the columns of
         :func:`delay.entitlement.prolongation_build_up`, method by method.
     """
-    frames = [m.prolongation.assign(method=METHOD_NAMES[m.method]) for m in ctx.entitled
-              if m.prolongation is not None and len(m.prolongation)]
+    frames = [
+        m.prolongation.assign(method=METHOD_NAMES[m.method])
+        for m in ctx.entitled
+        if m.prolongation is not None and len(m.prolongation)
+    ]
     columns = ["method", "from", "to", "source", "cost_per_day", "days", "cost"]
     if not frames:
         return pd.DataFrame(columns=columns)
@@ -105,32 +124,60 @@ def damages_frame(ctx: Context) -> pd.DataFrame:
     cap = float(ctx.case.settings.commercial.liquidated_damages_cap)
     rows = []
     for item in ctx.entitled:
-        figures = [("the whole works", item.ld_days, item.liquidated_damages_per_day, item.ld_exposure,
-                    item.ld_capped)]
+        figures = [("the whole works", item.ld_days, item.liquidated_damages_per_day, item.ld_exposure, item.ld_capped)]
         for part in item.sections.itertuples(index=False):
             if not part.whole_works and part.ld_days is not None and not pd.isna(part.ld_days):
-                figures.append((f"section {part.section}", part.ld_days, part.liquidated_damages_per_day,
-                                part.ld_exposure, part.ld_capped))
+                figures.append(
+                    (
+                        f"section {part.section}",
+                        part.ld_days,
+                        part.liquidated_damages_per_day,
+                        part.ld_exposure,
+                        part.ld_capped,
+                    )
+                )
         for what, days, rate, exposure, capped in figures:
-            rows.append({"method": METHOD_NAMES[item.method], "applies_to": what, "ld_days": int(days),
-                         "liquidated_damages_per_day": float(rate),
-                         "damages_before_cap": round(int(days) * float(rate), 2), "cap": cap,
-                         "ld_exposure": float(exposure), "ld_capped": bool(capped)})
-    return pd.DataFrame(rows, columns=["method", "applies_to", "ld_days", "liquidated_damages_per_day",
-                                       "damages_before_cap", "cap", "ld_exposure", "ld_capped"])
+            rows.append(
+                {
+                    "method": METHOD_NAMES[item.method],
+                    "applies_to": what,
+                    "ld_days": int(days),
+                    "liquidated_damages_per_day": float(rate),
+                    "damages_before_cap": round(int(days) * float(rate), 2),
+                    "cap": cap,
+                    "ld_exposure": float(exposure),
+                    "ld_capped": bool(capped),
+                }
+            )
+    return pd.DataFrame(
+        rows,
+        columns=[
+            "method",
+            "applies_to",
+            "ld_days",
+            "liquidated_damages_per_day",
+            "damages_before_cap",
+            "cap",
+            "ld_exposure",
+            "ld_capped",
+        ],
+    )
 
 
 def _cap_sentence(frame: pd.DataFrame, cap: float, currency: str) -> str:
     if cap <= 0:
         return "The contract sets no cap on liquidated damages ([commercial] liquidated_damages_cap is 0)."
     bit = frame[frame["ld_capped"]]
-    text = (f"The cap of {money_text(cap, currency)} ([commercial] liquidated_damages_cap) applies to each figure on "
-            "its own")
+    text = (
+        f"The cap of {money_text(cap, currency)} ([commercial] liquidated_damages_cap) applies to each figure on "
+        "its own"
+    )
     if not len(bit):
         largest = frame["damages_before_cap"].max() if len(frame) else 0
         return text + f"; it limits none of them (the largest before the cap is {money_text(largest, currency)})."
-    limited = "; ".join(f"{r.method}, {r.applies_to}: {money_text(r.damages_before_cap, currency)}"
-                        for r in bit.itertuples(index=False))
+    limited = "; ".join(
+        f"{r.method}, {r.applies_to}: {money_text(r.damages_before_cap, currency)}" for r in bit.itertuples(index=False)
+    )
     return text + f"; it limits: {limited}."
 
 
@@ -152,25 +199,54 @@ def section(ctx: Context) -> Section:
     currency = ctx.currency
     blocks = money.blocks
     blocks.append(Paragraph(_EXPLAIN))
-    blocks.append(ctx.table("prolongation_rates", f"Rates of time-related cost per day ({currency}) and their "
-                            "sources", "money", rates_frame(ctx.case),
-                            labels={"from": "from", "to": "to", "cost_per_day": f"cost per day ({currency})"}))
+    blocks.append(
+        ctx.table(
+            "prolongation_rates",
+            f"Rates of time-related cost per day ({currency}) and their sources",
+            "money",
+            rates_frame(ctx.case),
+            labels={"from": "from", "to": "to", "cost_per_day": f"cost per day ({currency})"},
+        )
+    )
     build_up = prolongation_frame(ctx)
     none = [METHOD_NAMES[m.method] for m in ctx.entitled if not m.compensable_days]
     totals = "; ".join(f"{METHOD_NAMES[m.method]} {money_text(m.prolongation_cost, currency)}" for m in ctx.entitled)
-    blocks.append(ctx.table(
-        "prolongation_build_up", f"Prolongation cost: compensable days x the rate of their period ({currency})",
-        "money", build_up, build_up=PROLONGATION,
-        labels={"cost_per_day": f"rate per day ({currency})", "days": "compensable days", "cost": f"cost ({currency})",
-                "source": "source of the rate"},
-        note=(f"Each method's total is its prolongation cost: {totals}."
-              + (f" No compensable days, so no prolongation: {', '.join(none)}." if none else ""))))
+    blocks.append(
+        ctx.table(
+            "prolongation_build_up",
+            f"Prolongation cost: compensable days x the rate of their period ({currency})",
+            "money",
+            build_up,
+            build_up=PROLONGATION,
+            labels={
+                "cost_per_day": f"rate per day ({currency})",
+                "days": "compensable days",
+                "cost": f"cost ({currency})",
+                "source": "source of the rate",
+            },
+            note=(
+                f"Each method's total is its prolongation cost: {totals}."
+                + (f" No compensable days, so no prolongation: {', '.join(none)}." if none else "")
+            ),
+        )
+    )
     damages = damages_frame(ctx)
-    blocks.append(ctx.table(
-        "damages_build_up", f"Liquidated damages: days of liquidated damages x the rate, and the cap ({currency})", "money",
-        damages, build_up=DAMAGES,
-        labels={"applies_to": "applies to", "liquidated_damages_per_day": f"rate per day ({currency})",
-                "damages_before_cap": f"before the cap ({currency})", "cap": f"cap ({currency}; 0: none)",
-                "ld_exposure": f"liquidated damages ({currency})", "ld_capped": "the cap bit"},
-        note=_cap_sentence(damages, float(ctx.case.settings.commercial.liquidated_damages_cap), currency)))
+    blocks.append(
+        ctx.table(
+            "damages_build_up",
+            f"Liquidated damages: days of liquidated damages x the rate, and the cap ({currency})",
+            "money",
+            damages,
+            build_up=DAMAGES,
+            labels={
+                "applies_to": "applies to",
+                "liquidated_damages_per_day": f"rate per day ({currency})",
+                "damages_before_cap": f"before the cap ({currency})",
+                "cap": f"cap ({currency}; 0: none)",
+                "ld_exposure": f"liquidated damages ({currency})",
+                "ld_capped": "the cap bit",
+            },
+            note=_cap_sentence(damages, float(ctx.case.settings.commercial.liquidated_damages_cap), currency),
+        )
+    )
     return money

@@ -36,9 +36,14 @@ from ..opinion import render_opinion
 __all__ = ["section", "headline_frame", "grants_frame", "key_dates"]
 
 #: Headings of the headline table (money columns get the currency).
-_HEADLINE_LABELS = {"method": "method", "eot_days": "extension of time (days)", "revised_completion":
-                    "revised completion", "compensable_days": "compensable days", "ld_days": "days of liquidated damages",
-                    "acceleration_days": "acceleration (days)"}
+_HEADLINE_LABELS = {
+    "method": "method",
+    "eot_days": "extension of time (days)",
+    "revised_completion": "revised completion",
+    "compensable_days": "compensable days",
+    "ld_days": "days of liquidated damages",
+    "acceleration_days": "acceleration (days)",
+}
 
 
 def headline_frame(ctx: Context) -> pd.DataFrame:
@@ -56,13 +61,32 @@ def headline_frame(ctx: Context) -> pd.DataFrame:
         ``ld_days``, ``ld_exposure``, ``acceleration_days``.
     """
     preferred = ctx.case.settings.report.preferred_method
-    rows = [{"method": METHOD_NAMES[m.method] + (" (relied on by the analyst)" if m.method == preferred else ""),
-             "eot_days": m.eot_days, "revised_completion": m.revised_completion,
-             "compensable_days": m.compensable_days, "prolongation_cost": m.prolongation_cost,
-             "ld_days": m.ld_days, "ld_exposure": m.ld_exposure,
-             "acceleration_days": m.acceleration_days} for m in ctx.entitled]
-    return pd.DataFrame(rows, columns=["method", "eot_days", "revised_completion", "compensable_days",
-                                       "prolongation_cost", "ld_days", "ld_exposure", "acceleration_days"])
+    rows = [
+        {
+            "method": METHOD_NAMES[m.method] + (" (relied on by the analyst)" if m.method == preferred else ""),
+            "eot_days": m.eot_days,
+            "revised_completion": m.revised_completion,
+            "compensable_days": m.compensable_days,
+            "prolongation_cost": m.prolongation_cost,
+            "ld_days": m.ld_days,
+            "ld_exposure": m.ld_exposure,
+            "acceleration_days": m.acceleration_days,
+        }
+        for m in ctx.entitled
+    ]
+    return pd.DataFrame(
+        rows,
+        columns=[
+            "method",
+            "eot_days",
+            "revised_completion",
+            "compensable_days",
+            "prolongation_cost",
+            "ld_days",
+            "ld_exposure",
+            "acceleration_days",
+        ],
+    )
 
 
 def key_dates(ctx: Context) -> str:
@@ -94,8 +118,11 @@ def key_dates(ctx: Context) -> str:
         text += f"; with the {granted} days already granted, the date in force is {in_force.isoformat()}"
     if reached is not None:
         overrun = (reached - in_force).days
-        text += (f": {abs(overrun)} days {'of overrun past' if overrun >= 0 else 'before'} the date in force"
-                 if granted else f": {abs(overrun)} days {'of overrun past' if overrun >= 0 else 'before'} it")
+        text += (
+            f": {abs(overrun)} days {'of overrun past' if overrun >= 0 else 'before'} the date in force"
+            if granted
+            else f": {abs(overrun)} days {'of overrun past' if overrun >= 0 else 'before'} it"
+        )
     return text + "."
 
 
@@ -107,13 +134,19 @@ def _opinion(ctx: Context) -> Group:
         ran = "" if settings.preferred_method in ctx.results else " (not run in this report)"
         blocks.append(Paragraph(f"Method relied on: the {name}{ran} ([report] preferred_method).", style="lead"))
     else:
-        blocks.append(Paragraph("The analyst names no method relied on ([report] preferred_method of case.toml).",
-                                style="small"))
+        blocks.append(
+            Paragraph("The analyst names no method relied on ([report] preferred_method of case.toml).", style="small")
+        )
     if ctx.case.opinion.strip():
         blocks.append(Markdown(render_opinion(ctx.case.opinion)))
     else:
-        blocks.append(Notice("No opinion was given: the case has no opinion.md. The figures of this report are the "
-                             "methods' results alone.", style="placeholder"))
+        blocks.append(
+            Notice(
+                "No opinion was given: the case has no opinion.md. The figures of this report are the "
+                "methods' results alone.",
+                style="placeholder",
+            )
+        )
     return Group(tuple(blocks), style="column opinion")
 
 
@@ -121,37 +154,67 @@ def _conclusions(ctx: Context) -> Group:
     main = [Paragraph(key_dates(ctx), style="lead")]
     if ctx.entitlement is not None:
         currency = ctx.currency
-        labels = dict(_HEADLINE_LABELS, prolongation_cost=f"prolongation ({currency})",
-                      ld_exposure=f"liquidated damages ({currency})")
-        main.append(ctx.table("headline", "What each method concludes", "summary", headline_frame(ctx),
-                              labels=labels, style="headline"))
+        labels = dict(
+            _HEADLINE_LABELS,
+            prolongation_cost=f"prolongation ({currency})",
+            ld_exposure=f"liquidated damages ({currency})",
+        )
+        main.append(
+            ctx.table(
+                "headline",
+                "What each method concludes",
+                "summary",
+                headline_frame(ctx),
+                labels=labels,
+                style="headline",
+            )
+        )
         main.append(Sentences(why_they_differ(ctx.comparison), heading="Why the methods differ"))
     else:
         main.append(Notice("No method that assesses entitlement was run, so no extension of time or money is shown."))
     found = warnings_of(ctx)
-    warnings = Sentences(tuple(found) if found else ("None: no figure of this report needs a note of its own.",),
-                         heading="Points that need explaining", style="warnings")
-    return Group((Group((Group(tuple(main), style="column main"), _opinion(ctx)), style="conclusions"), warnings),
-                 style="first-page")
+    warnings = Sentences(
+        tuple(found) if found else ("None: no figure of this report needs a note of its own.",),
+        heading="Points that need explaining",
+        style="warnings",
+    )
+    return Group(
+        (Group((Group(tuple(main), style="column main"), _opinion(ctx)), style="conclusions"), warnings),
+        style="first-page",
+    )
 
 
 def _dates(ctx: Context) -> pd.DataFrame:
     case = ctx.case
     project = case.settings.project
     contract, granted, in_force = completion_in_force(case)
-    rows = [{"what": "contract start", "date": project.contract_start, "note": ""},
-            {"what": "contract completion", "date": project.contract_completion, "note": "as in the contract"},
-            {"what": "contract completion in force", "date": in_force,
-             "note": f"the contract completion plus {days_text(granted)} already granted"},
-            {"what": "planned completion", "date": ctx.completion(case.baseline),
-             "note": "the baseline programme's completion"}]
+    rows = [
+        {"what": "contract start", "date": project.contract_start, "note": ""},
+        {"what": "contract completion", "date": project.contract_completion, "note": "as in the contract"},
+        {
+            "what": "contract completion in force",
+            "date": in_force,
+            "note": f"the contract completion plus {days_text(granted)} already granted",
+        },
+        {
+            "what": "planned completion",
+            "date": ctx.completion(case.baseline),
+            "note": "the baseline programme's completion",
+        },
+    ]
     if case.updates:
         last = case.updates[-1]
-        rows.append({"what": "forecast completion", "date": ctx.completion(last),
-                     "note": f"{last.label}, data date {last.data_date.isoformat()}"})
+        rows.append(
+            {
+                "what": "forecast completion",
+                "date": ctx.completion(last),
+                "note": f"{last.label}, data date {last.data_date.isoformat()}",
+            }
+        )
     if case.asbuilt_snapshot is not None:
-        rows.append({"what": "actual completion", "date": ctx.completion(case.asbuilt_snapshot),
-                     "note": "the as-built record"})
+        rows.append(
+            {"what": "actual completion", "date": ctx.completion(case.asbuilt_snapshot), "note": "the as-built record"}
+        )
     return pd.DataFrame(rows, columns=["what", "date", "note"])
 
 
@@ -181,22 +244,36 @@ def grants_frame(case) -> pd.DataFrame:
         if section and section in names and pd.notna(names[section]):
             applies += f" ({names[section]})" if not whole_works else f" (section {section}, {names[section]})"
         in_force = completion_in_force(case, None if whole_works else section, at=granted_on)[2]
-        rows.append({"grant": grant.id, "granted_on": granted_on, "days": int(grant.days), "applies_to": applies,
-                     "events": "" if pd.isna(grant.events) else str(grant.events),
-                     "reason": "" if pd.isna(grant.reason) else str(grant.reason), "completion_in_force": in_force})
-    return pd.DataFrame(rows, columns=["grant", "granted_on", "days", "applies_to", "events", "reason",
-                                       "completion_in_force"])
+        rows.append(
+            {
+                "grant": grant.id,
+                "granted_on": granted_on,
+                "days": int(grant.days),
+                "applies_to": applies,
+                "events": "" if pd.isna(grant.events) else str(grant.events),
+                "reason": "" if pd.isna(grant.reason) else str(grant.reason),
+                "completion_in_force": in_force,
+            }
+        )
+    return pd.DataFrame(
+        rows, columns=["grant", "granted_on", "days", "applies_to", "events", "reason", "completion_in_force"]
+    )
 
 
 _FIGURES = (
-    ("contract completion in force", "completion_in_force"), ("planned completion", "planned_completion"),
+    ("contract completion in force", "completion_in_force"),
+    ("planned completion", "planned_completion"),
     ("excusable days (time)", "excusable_days"),
     ("completion with only the excusable delays", "completion_with_excusable_delays"),
-    ("extension of time (calendar days)", "eot_days"), ("revised completion date", "revised_completion"),
-    ("actual or forecast completion", "actual_completion"), ("compensable days (time and money)", "compensable_days"),
-    ("prolongation cost ({currency})", "prolongation_cost"), ("days of liquidated damages", "ld_days"),
+    ("extension of time (calendar days)", "eot_days"),
+    ("revised completion date", "revised_completion"),
+    ("actual or forecast completion", "actual_completion"),
+    ("compensable days (time and money)", "compensable_days"),
+    ("prolongation cost ({currency})", "prolongation_cost"),
+    ("days of liquidated damages", "ld_days"),
     ("acceleration days (the contractor's net recovery)", "acceleration_days"),
-    ("liquidated damages exposure ({currency})", "ld_exposure"), ("damages limited by the cap", "ld_capped"),
+    ("liquidated damages exposure ({currency})", "ld_exposure"),
+    ("damages limited by the cap", "ld_capped"),
     ("concurrent days", "concurrent_days"),
 )
 
@@ -210,34 +287,78 @@ def _entitlement_tables(ctx: Context) -> list:
     for item in ctx.entitled:
         data[item.method] += [item.causation.explained_days, item.causation.explains]
     labels = {m.method: METHOD_NAMES[m.method] for m in ctx.entitled} | {"figure": "figure"}
-    blocks = [ctx.table(
-        "entitlement_by_method", f"Extension of time and money per method (money in {currency})", "summary",
-        pd.DataFrame(data), labels=labels,
-        note=(f"Concurrency rule: {ctx.entitlement.concurrency.replace('_', ' ')}. Each method's classified "
-              "days add up to the delay it explains; impacts alone and but-for days need not add up. The "
-              "methods measure different things and their figures are not to be added."))]
-    chart = pd.DataFrame({"method": [METHOD_NAMES[m.method] for m in ctx.entitled],
-                          "eot_days": [m.eot_days for m in ctx.entitled],
-                          "compensable_days": [m.compensable_days for m in ctx.entitled],
-                          "ld_days": [m.ld_days for m in ctx.entitled]})
-    blocks.append(FigureBlock("days_by_method", days_by_method(chart, title="Days by method"),
-                              "Extension of time, compensable days and days of liquidated damages of each method."))
+    blocks = [
+        ctx.table(
+            "entitlement_by_method",
+            f"Extension of time and money per method (money in {currency})",
+            "summary",
+            pd.DataFrame(data),
+            labels=labels,
+            note=(
+                f"Concurrency rule: {ctx.entitlement.concurrency.replace('_', ' ')}. Each method's classified "
+                "days add up to the delay it explains; impacts alone and but-for days need not add up. The "
+                "methods measure different things and their figures are not to be added."
+            ),
+        )
+    ]
+    chart = pd.DataFrame(
+        {
+            "method": [METHOD_NAMES[m.method] for m in ctx.entitled],
+            "eot_days": [m.eot_days for m in ctx.entitled],
+            "compensable_days": [m.compensable_days for m in ctx.entitled],
+            "ld_days": [m.ld_days for m in ctx.entitled],
+        }
+    )
+    blocks.append(
+        FigureBlock(
+            "days_by_method",
+            days_by_method(chart, title="Days by method"),
+            "Extension of time, compensable days and days of liquidated damages of each method.",
+        )
+    )
     sections = [m.sections.assign(method=m.method) for m in ctx.entitled if len(m.sections)]
     if sections:
         frame = pd.concat(sections, ignore_index=True)
-        columns = ["method", "section", "name", "completion_activity", "completion_in_force", "planned_completion",
-                   "excusable_days", "eot_days", "revised_completion", "actual_completion", "compensable_days",
-                   "prolongation_cost", "ld_days", "ld_exposure", "note"]
+        columns = [
+            "method",
+            "section",
+            "name",
+            "completion_activity",
+            "completion_in_force",
+            "planned_completion",
+            "excusable_days",
+            "eot_days",
+            "revised_completion",
+            "actual_completion",
+            "compensable_days",
+            "prolongation_cost",
+            "ld_days",
+            "ld_exposure",
+            "note",
+        ]
         frame = frame[columns].assign(method=frame["method"].map(METHOD_NAMES))
-        blocks.append(ctx.table("entitlement_by_section", f"Sections (money in {currency})", "summary", frame,
-                                note="Sections' figures overlap each other and the whole works': never add them."))
+        blocks.append(
+            ctx.table(
+                "entitlement_by_section",
+                f"Sections (money in {currency})",
+                "summary",
+                frame,
+                note="Sections' figures overlap each other and the whole works': never add them.",
+            )
+        )
     events = [m.events.assign(method=m.method) for m in ctx.entitled if len(m.events)]
     if events:
         frame = pd.concat(events, ignore_index=True)
         frame = frame[["method"] + [c for c in frame.columns if c != "method"]]
-        blocks.append(ctx.table("entitlement_by_event", "Events: days claimed beside days assessed", "summary",
-                                frame.assign(method=frame["method"].map(METHOD_NAMES)),
-                                labels={"title": "event title"}))
+        blocks.append(
+            ctx.table(
+                "entitlement_by_event",
+                "Events: days claimed beside days assessed",
+                "summary",
+                frame.assign(method=frame["method"].map(METHOD_NAMES)),
+                labels={"title": "event title"},
+            )
+        )
     owners: dict[str, list[str]] = {}
     for item in ctx.entitled:
         for note in item.notes:
@@ -266,16 +387,29 @@ def section(ctx: Context, left_out: list[str] = ()) -> Section:
     for reason in left_out:
         blocks.append(Notice(reason))
     blocks.append(Paragraph("Dates and extensions already granted", style="heading"))
-    blocks.append(ctx.table("completion_dates", "Contract, planned, forecast and actual completion", "summary",
-                            _dates(ctx)))
+    blocks.append(
+        ctx.table("completion_dates", "Contract, planned, forecast and actual completion", "summary", _dates(ctx))
+    )
     grants = grants_frame(ctx.case)
-    blocks.append(ctx.table(
-        "extensions_granted", "Extensions of time already granted", "summary", grants,
-        labels={"days": "days granted (calendar days)", "applies_to": "applies to",
-                "completion_in_force": "completion in force from that day"},
-        note=("Each grant is in force from the day it was granted; the completion in force counts the grants made "
-              "on or before a date (extensions_granted.csv)." if len(grants) else
-              "No extension of time has been granted (extensions_granted.csv is absent or empty).")))
+    blocks.append(
+        ctx.table(
+            "extensions_granted",
+            "Extensions of time already granted",
+            "summary",
+            grants,
+            labels={
+                "days": "days granted (calendar days)",
+                "applies_to": "applies to",
+                "completion_in_force": "completion in force from that day",
+            },
+            note=(
+                "Each grant is in force from the day it was granted; the completion in force counts the grants made "
+                "on or before a date (extensions_granted.csv)."
+                if len(grants)
+                else "No extension of time has been granted (extensions_granted.csv is absent or empty)."
+            ),
+        )
+    )
     if ctx.entitlement is not None and any(m in ENTITLEMENT_METHODS for m in ctx.results):
         blocks.append(Paragraph("Figures per method", style="heading"))
         blocks += _entitlement_tables(ctx)

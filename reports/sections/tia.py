@@ -22,7 +22,8 @@ _EXPLAIN = (
     "that share a programme are inserted one after another; their increments add up within it. "
     "Each programme's residual, the next programme's completion less its impacted completion, "
     "reconciles the increments with what happened: a positive residual is delay no event explains, "
-    "a negative one recovery.")
+    "a negative one recovery."
+)
 
 
 def section(ctx: Context) -> Section:
@@ -45,23 +46,71 @@ def section(ctx: Context) -> Section:
         blocks.append(Notice("The delay event register holds no events: nothing was inserted."))
     rows = []
     for update in result.updates.itertuples(index=False):
-        rows.append({"run": update.snapshot, "step": "before", "completion": update.completion_before, "alone": None,
-                     "title": f"the update of {update.data_date.isoformat()} before its events"})
+        rows.append(
+            {
+                "run": update.snapshot,
+                "step": "before",
+                "completion": update.completion_before,
+                "alone": None,
+                "title": f"the update of {update.data_date.isoformat()} before its events",
+            }
+        )
         events = result.events[result.events["update"] == update.snapshot]
-        rows += [{"run": update.snapshot, "step": r.event, "completion": r.completion_after, "alone": r.completion_alone,
-                  "title": r.title} for r in events.itertuples(index=False)]
+        rows += [
+            {
+                "run": update.snapshot,
+                "step": r.event,
+                "completion": r.completion_after,
+                "alone": r.completion_alone,
+                "title": r.title,
+            }
+            for r in events.itertuples(index=False)
+        ]
     if rows:
-        blocks.append(FigureBlock("tia_steps", completion_steps(steps_frame(rows),
-                                                                title="Completion of each update after its events"),
-                                  "One staircase per update; hollow markers show each event alone."))
-    blocks.append(ctx.table("tia_updates", "Each programme: its events, impacted completion and residual", "tia",
-                            result.updates, labels={"increment_days": "increments of its events (calendar days)",
-                                                    "events": "events inserted"}))
-    blocks.append(ctx.table("tia_events", "Each event in the programme it was inserted into", "tia",
-                            event_rows(result.events, ["update", "completion_before"]), note=" ".join(result.notes)))
-    blocks.append(ctx.table("tia_by_party", "Per party", "tia", result.by_party,
-                            labels={"alone_days": "impacts alone of its events, summed (need not add up)",
-                                    "increment_days": "increments of its events (calendar days)"}))
-    blocks.append(causation_block(ctx, "tia", "tia_causation", "Causation of the time impact analysis",
-                                  ["step", "snapshot", *MODELLED_CAUSATION_COLUMNS[1:]]))
+        blocks.append(
+            FigureBlock(
+                "tia_steps",
+                completion_steps(steps_frame(rows), title="Completion of each update after its events"),
+                "One staircase per update; hollow markers show each event alone.",
+            )
+        )
+    blocks.append(
+        ctx.table(
+            "tia_updates",
+            "Each programme: its events, impacted completion and residual",
+            "tia",
+            result.updates,
+            labels={"increment_days": "increments of its events (calendar days)", "events": "events inserted"},
+        )
+    )
+    blocks.append(
+        ctx.table(
+            "tia_events",
+            "Each event in the programme it was inserted into",
+            "tia",
+            event_rows(result.events, ["update", "completion_before"]),
+            note=" ".join(result.notes),
+        )
+    )
+    blocks.append(
+        ctx.table(
+            "tia_by_party",
+            "Per party",
+            "tia",
+            result.by_party,
+            labels={
+                "alone_days": "impacts alone of its events, summed (need not add up)",
+                "increment_days": "increments of its events (calendar days)",
+            },
+        )
+    )
+    blocks.append(
+        causation_block(
+            ctx,
+            "tia",
+            "tia_causation",
+            "Causation of the time impact analysis",
+            ["step", "snapshot", *MODELLED_CAUSATION_COLUMNS[1:]],
+        )
+    )
     return tia

@@ -16,10 +16,26 @@ __all__ = ["section"]
 _EXPLAIN = (
     "The building model's elements take the colour of their work's state week by week, as planned "
     "(the baseline's early dates) and as built (the as-built record). Press Play, or move the "
-    "slider, to watch what should have been built against what was built.")
+    "slider, to watch what should have been built against what was built."
+)
 
-_COLUMNS = ["id", "name", "wbs", "classification", "level", "zone", "activities", "events", "highlighted",
-            "planned_start", "planned_finish", "actual_start", "actual_finish", "linked_as_planned", "linked_as_built"]
+_COLUMNS = [
+    "id",
+    "name",
+    "wbs",
+    "classification",
+    "level",
+    "zone",
+    "activities",
+    "events",
+    "highlighted",
+    "planned_start",
+    "planned_finish",
+    "actual_start",
+    "actual_finish",
+    "linked_as_planned",
+    "linked_as_built",
+]
 
 
 def section(ctx: Context) -> Section:
@@ -36,12 +52,19 @@ def section(ctx: Context) -> Section:
     """
     timeline_section = Section("timeline", "Element timeline")
     if not len(ctx.case.elements):
-        return timeline_section.not_shown("The case has no model elements (elements.csv is absent or empty): there "
-                                          "is no element timeline.")
+        return timeline_section.not_shown(
+            "The case has no model elements (elements.csv is absent or empty): there is no element timeline."
+        )
     timeline = element_states(ctx.case)
     timeline_section.blocks.append(Paragraph(_EXPLAIN))
     timeline_section.blocks.append(TimelineBlock(timeline))
-    timeline_section.blocks.append(ctx.table(
-        "element_dates", "Each element's dates as planned and as built", "timeline", timeline.elements[_COLUMNS],
-        note=f"{len(timeline.frames)} weekly frames from {timeline.frame_dates[0]} to {timeline.frame_dates[-1]}."))
+    timeline_section.blocks.append(
+        ctx.table(
+            "element_dates",
+            "Each element's dates as planned and as built",
+            "timeline",
+            timeline.elements[_COLUMNS],
+            note=f"{len(timeline.frames)} weekly frames from {timeline.frame_dates[0]} to {timeline.frame_dates[-1]}.",
+        )
+    )
     return timeline_section

@@ -40,13 +40,43 @@ _EXPLAIN = (
     "the completion activity's calendar: float used and weekends or shutdowns crossed are not delay, "
     "and an activity that only carried an earlier delay is charged nothing. Revisions are charged to "
     "each kind of change in turn. In every window the charges add up to the movement, to the day, "
-    "and the windows add up to the whole movement.")
+    "and the windows add up to the whole movement."
+)
 
-_CAUSATION_COLUMNS = ["window", "step", "activities", "event", "party", "days", "causes", "concurrent_with",
-                      "excusable_days", "compensable_days", "culpable_days", "classification"]
+_CAUSATION_COLUMNS = [
+    "window",
+    "step",
+    "activities",
+    "event",
+    "party",
+    "days",
+    "causes",
+    "concurrent_with",
+    "excusable_days",
+    "compensable_days",
+    "culpable_days",
+    "classification",
+]
 
-_LEDGER_COLUMNS = ["window", "start", "end", "source", "activity", "name", "level", "counted", "inherited",
-                   "driving_predecessor", "work_days", "days", "events", "party", "basis", "concurrent_with", "reason"]
+_LEDGER_COLUMNS = [
+    "window",
+    "start",
+    "end",
+    "source",
+    "activity",
+    "name",
+    "level",
+    "counted",
+    "inherited",
+    "driving_predecessor",
+    "work_days",
+    "days",
+    "events",
+    "party",
+    "basis",
+    "concurrent_with",
+    "reason",
+]
 
 
 def in_force_steps(case, first: dt.date, last: dt.date) -> pd.DataFrame:
@@ -114,17 +144,36 @@ def _trend(ctx: Context, result) -> list:
         first = result.windows[0]
         points.append((first.start, first.start_label, first.start_data_date, first.completion_start))
         points += [(w.end, w.end_label, w.end_data_date, w.completion_end) for w in result.windows]
-    trend = pd.DataFrame([{"snapshot": folder, "label": label, "kind": case.snapshot(folder).kind,
-                           "data_date": data_date, "completion": completion}
-                          for folder, label, data_date, completion in points],
-                         columns=["snapshot", "label", "kind", "data_date", "completion"])
+    trend = pd.DataFrame(
+        [
+            {
+                "snapshot": folder,
+                "label": label,
+                "kind": case.snapshot(folder).kind,
+                "data_date": data_date,
+                "completion": completion,
+            }
+            for folder, label, data_date, completion in points
+        ],
+        columns=["snapshot", "label", "kind", "data_date", "completion"],
+    )
     steps = in_force_steps(case, points[0][2], points[-1][2]) if points else None
-    caption = ("Forecast completion of each programme at its data date (the as-built record at its last day), "
-               "and the contract completion in force, stepping up on the day each extension was granted.")
-    return [FigureBlock("completion_trend", completion_trend(trend, planned=ctx.completion(case.baseline),
-                                                             in_force=steps), caption),
-            ctx.table("completion_trend", "Forecast completion at each programme", "windows", trend,
-                      labels={"snapshot": "programme folder"})]
+    caption = (
+        "Forecast completion of each programme at its data date (the as-built record at its last day), "
+        "and the contract completion in force, stepping up on the day each extension was granted."
+    )
+    return [
+        FigureBlock(
+            "completion_trend", completion_trend(trend, planned=ctx.completion(case.baseline), in_force=steps), caption
+        ),
+        ctx.table(
+            "completion_trend",
+            "Forecast completion at each programme",
+            "windows",
+            trend,
+            labels={"snapshot": "programme folder"},
+        ),
+    ]
 
 
 def section(ctx: Context) -> Section:
@@ -144,38 +193,91 @@ def section(ctx: Context) -> Section:
         return windows
     blocks = windows.blocks
     blocks += _trend(ctx, result)
-    blocks.append(Sentences(tuple(w.sentence for w in result.windows), heading="Window by window", ordered=True,
-                            style="story"))
+    blocks.append(
+        Sentences(tuple(w.sentence for w in result.windows), heading="Window by window", ordered=True, style="story")
+    )
     table = result.table
     if len(table):
-        blocks.append(FigureBlock("window_parties", window_parties(party_frame(result)),
-                                  "Each window's movement of completion by the party that carries it, stacked: "
-                                  "delays above zero, gains (the contractor's acceleration, recovery) below; the "
-                                  "diamond is the window's net movement."))
-        blocks.append(FigureBlock("window_movements", window_movements(table),
-                                  "Each window's movement of completion: progress and revisions."))
+        blocks.append(
+            FigureBlock(
+                "window_parties",
+                window_parties(party_frame(result)),
+                "Each window's movement of completion by the party that carries it, stacked: "
+                "delays above zero, gains (the contractor's acceleration, recovery) below; the "
+                "diamond is the window's net movement.",
+            )
+        )
+        blocks.append(
+            FigureBlock(
+                "window_movements",
+                window_movements(table),
+                "Each window's movement of completion: progress and revisions.",
+            )
+        )
     ledger = result.charges[[c for c in _LEDGER_COLUMNS if c in result.charges.columns]]
-    blocks.append(Folded(
-        f"The charge ledger: all {len(ledger)} charges of the {len(result.windows)} windows (open to read; printed "
-        "in full)",
-        (ctx.table("windows_ledger", "The charge ledger: every charge of every window", "windows", ledger,
-                   labels={"source": "progress or revision", "level": "level on the chain"},
-                   note="Progress charges along each window's driving chain (counted: on the chain that is charged; "
-                        "the others lie on tied paths beside it), then each kind of revision; the counted charges "
-                        "of a window add up to its movement.", style="folded"),)))
-    blocks.append(causation_block(ctx, "windows", "windows_causation",
-                                  "Causation in each window (charges other than zero)", _CAUSATION_COLUMNS,
-                                  only_charged=True))
-    blocks.append(ctx.table("windows", "Windows: movement of completion and its split", "windows", table,
-                            note=f"Total movement {days_text(result.total_movement_days)}, from "
-                                 f"{result.first_completion.isoformat()} to {result.last_completion.isoformat()}."))
+    blocks.append(
+        Folded(
+            f"The charge ledger: all {len(ledger)} charges of the {len(result.windows)} windows (open to read; printed "
+            "in full)",
+            (
+                ctx.table(
+                    "windows_ledger",
+                    "The charge ledger: every charge of every window",
+                    "windows",
+                    ledger,
+                    labels={"source": "progress or revision", "level": "level on the chain"},
+                    note="Progress charges along each window's driving chain (counted: on the chain that is charged; "
+                    "the others lie on tied paths beside it), then each kind of revision; the counted charges "
+                    "of a window add up to its movement.",
+                    style="folded",
+                ),
+            ),
+        )
+    )
+    blocks.append(
+        causation_block(
+            ctx,
+            "windows",
+            "windows_causation",
+            "Causation in each window (charges other than zero)",
+            _CAUSATION_COLUMNS,
+            only_charged=True,
+        )
+    )
+    blocks.append(
+        ctx.table(
+            "windows",
+            "Windows: movement of completion and its split",
+            "windows",
+            table,
+            note=f"Total movement {days_text(result.total_movement_days)}, from "
+            f"{result.first_completion.isoformat()} to {result.last_completion.isoformat()}.",
+        )
+    )
     if result.attributions is not None and len(result.attributions):
-        blocks.append(ctx.table("windows_attributions", "The analyst's attributions beside the rule", "windows",
-                                result.attributions, note="attributions.csv: applied in memory, each beside what "
-                                                          "the matching rule would have given."))
-    changes = pd.DataFrame([{
-        "window": w.number, "start": w.start, "end": w.end, "driving_start": len(w.driving_start),
-        "driving_end": len(w.driving_end), "joined": list(w.joined_driving_path), "left": list(w.left_driving_path),
-    } for w in result.windows], columns=["window", "start", "end", "driving_start", "driving_end", "joined", "left"])
+        blocks.append(
+            ctx.table(
+                "windows_attributions",
+                "The analyst's attributions beside the rule",
+                "windows",
+                result.attributions,
+                note="attributions.csv: applied in memory, each beside what the matching rule would have given.",
+            )
+        )
+    changes = pd.DataFrame(
+        [
+            {
+                "window": w.number,
+                "start": w.start,
+                "end": w.end,
+                "driving_start": len(w.driving_start),
+                "driving_end": len(w.driving_end),
+                "joined": list(w.joined_driving_path),
+                "left": list(w.left_driving_path),
+            }
+            for w in result.windows
+        ],
+        columns=["window", "start", "end", "driving_start", "driving_end", "joined", "left"],
+    )
     blocks.append(ctx.table("driving_path_changes", "Driving path changes in each window", "windows", changes))
     return windows
