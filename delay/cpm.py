@@ -39,6 +39,7 @@ import weakref
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, field
 from functools import cached_property
+from typing import NamedTuple
 
 import numpy as np
 import pandas as pd
@@ -353,12 +354,12 @@ class ScheduleModel:
     # -- scheduling ------------------------------------------------------------------------
     def run(self) -> ScheduleResult:
         """Forward and backward passes, floats and driving links. See the module docstring."""
-        return _run(self)
+        return _schedule(self)
 
     def completion_day(self) -> int:
         """Completion (day number) from the forward pass alone: what a what-if that only
         asks "when would the works finish?" needs, without late dates or floats."""
-        return _run(self, forward_only=True)
+        return _forward_completion(self)
 
     def completion(self) -> dt.date:
         """Completion date from the forward pass alone (see :meth:`completion_day`)."""
@@ -370,7 +371,7 @@ class ScheduleModel:
         it finishes (day numbers, network order). Computed once per model."""
         found = self.__dict__.get("_work_dates")
         if found is None:  # a frozen model: its dates never change
-            found = self.__dict__["_work_dates"] = _run(self, forward_only="dates")
+            found = self.__dict__["_work_dates"] = _forward_dates(self)
         return found
 
     def finish_days(self) -> np.ndarray:
@@ -381,98 +382,101 @@ class ScheduleModel:
         return self.work_dates()[2]
 
 
-def _run(model: ScheduleModel, forward_only: bool = False):
-    net = model.network
-    cals = model.calendars
-    settings = model.settings
-    n = net.size
-    cal = model.calendar
+class _Status(NamedTuple):
+    """What progress and the activity kinds make of each activity (network order)."""
 
-    # -- status and effective durations ---------------------------------------------------
+    status: np.ndarray  # NOT_STARTED, IN_PROGRESS or COMPLETE
+    has_start: np.ndarray  # an actual start is recorded
+    has_finish: np.ndarray  # an actual finish is recorded
+    given_milestone: np.ndarray  # the case calls it a milestone
+    point: np.ndarray  # the engine's kind: a task, or a start or finish milestone (a zero-duration task too)
+    duration: np.ndarray  # effective duration in work days: remaining when given, else planned; 0 for milestones
+
+    @property
+    def complete(self) -> np.ndarray:
+        return self.status == COMPLETE
+
+    @property
+    def start_ms(self) -> np.ndarray:
+        return self.point == START_MILESTONE
+
+    @property
+    def finish_ms(self) -> np.ndarray:
+        return self.point == FINISH_MILESTONE
+
+
+class _Bounds(NamedTuple):
+    """Boundaries (calendar-table indices) the passes respect, per activity."""
+
+    lower: np.ndarray  # the earliest start boundary (the data date, actual dates, start constraints)
+    upper: np.ndarray  # the latest start boundary (actual or pinned dates; _FAR for none)
+    duration: np.ndarray  # boundaries spanned: the effective duration, an actual span when complete
+    start_read_fixed: np.ndarray  # in progress: the boundary of its actual start
+    late_upper_extra: np.ndarray  # a latest finish (or a started fixed finish) for the backward pass
+    pin_late: np.ndarray  # a fixed date's finish boundary for the backward pass (-_FAR for none)
+
+
+def _status(model: ScheduleModel) -> _Status:
+    """Status and effective durations: complete with an actual finish (a milestone with
+    either actual date), in progress with an actual start only, else not started; a task of
+    no duration is a finish milestone when it has a predecessor, else a start milestone."""
     has_start = model.actual_start != NO_DAY
     has_finish = model.actual_finish != NO_DAY
     given_milestone = model.kind != TASK
-    status = np.full(n, NOT_STARTED, dtype=np.int8)
+    status = np.full(model.network.size, NOT_STARTED, dtype=np.int8)
     status[has_start] = IN_PROGRESS
     status[has_finish | (given_milestone & has_start)] = COMPLETE
-    complete = status == COMPLETE
-    in_progress = status == IN_PROGRESS
-    incomplete = ~complete
-
+    incomplete = status != COMPLETE
     remaining_given = ~np.isnan(model.remaining)
     effective = np.where(remaining_given & incomplete, np.nan_to_num(model.remaining).astype(np.int64), model.duration)
     effective = np.where(given_milestone, 0, effective)
-    has_pred = net.has_predecessor
+    has_pred = model.network.has_predecessor
     point = model.kind.astype(np.int8).copy()
     zero_task = (point == TASK) & (effective == 0)
     point[zero_task & has_pred] = FINISH_MILESTONE
     point[zero_task & ~has_pred] = START_MILESTONE
-    start_ms = point == START_MILESTONE
-    finish_ms = point == FINISH_MILESTONE
-    milestone = start_ms | finish_ms
-    # A point is read as a finish (end of its date) when it is a task's finish or a finish
-    # milestone; as a start otherwise.
+    return _Status(status, has_start, has_finish, given_milestone, point, effective.astype(np.int64))
+
+
+def _bounds(model: ScheduleModel, st: _Status) -> _Bounds:
+    """The boundaries of every activity from the data date, progress and constraints.
+
+    A point is read as a finish (the end of its date) when it is a task's finish or a
+    finish milestone, as a start otherwise; "on or after a day" is the first boundary of
+    that day's work, "on or before" the last.
+    """
+    cals, cal = model.calendars, model.calendar
+    n = model.network.size
+    start_ms, finish_ms = st.start_ms, st.finish_ms
 
     def lower_of(days: np.ndarray, where: np.ndarray) -> np.ndarray:
         """Boundary of 'dated on or after day' for each activity's start point."""
-        bound = cals.start_index_days(cal[where], days[where])
-        return bound + finish_ms[where]
+        return cals.start_index_days(cal[where], days[where]) + finish_ms[where]
 
     def upper_of(days: np.ndarray, where: np.ndarray) -> np.ndarray:
         """Boundary of 'dated on or before day' for each activity's finish point."""
-        bound = cals.finish_index_days(cal[where], days[where])
-        return bound + (~start_ms[where])
+        return cals.finish_index_days(cal[where], days[where]) + (~start_ms[where])
 
     every_calendar = np.arange(len(cals))
-
-    def lower_on(day: int) -> np.ndarray:
-        """:func:`lower_of` one day for every activity (looked up once per calendar)."""
-        return cals.start_index_days(every_calendar, np.full(every_calendar.size, day))[cal] + finish_ms
-
-    def finish_index_on(day: int) -> np.ndarray:
-        """Per calendar: index of the last work day on or before the day."""
-        return cals.finish_index_days(every_calendar, np.full(every_calendar.size, day))
-
-    # -- bounds on the start of remaining work (RS) -------------------------------------------
-    lower = lower_on(model.data_day)
+    data_day = np.full(every_calendar.size, model.data_day)
+    lower = cals.start_index_days(every_calendar, data_day)[cal] + finish_ms
     upper = np.full(n, _FAR, dtype=np.int64)
-    duration = effective.astype(np.int64).copy()
+    duration = st.duration.copy()
     start_read_fixed = np.zeros(n, dtype=np.int64)
+    _progress_bounds(model, st, lower, upper, duration, start_read_fixed)
 
-    # complete: actual dates as boundaries
-    rows = np.flatnonzero(complete)
-    if rows.size:
-        started = np.where(has_start[rows], model.actual_start[rows], model.actual_finish[rows])
-        finished = np.where(has_finish[rows], model.actual_finish[rows], model.actual_start[rows])
-        is_ms = milestone[rows] | given_milestone[rows]
-        ms_day = np.where(has_finish[rows], model.actual_finish[rows], model.actual_start[rows])
-        s_bound = cals.start_index_days(cal[rows], started)
-        f_bound = cals.finish_index_days(cal[rows], finished) + 1
-        ms_bound = np.where(
-            finish_ms[rows] | (model.kind[rows] == FINISH_MILESTONE),
-            cals.finish_index_days(cal[rows], ms_day) + 1,
-            cals.start_index_days(cal[rows], ms_day),
-        )
-        s_bound = np.where(is_ms, ms_bound, s_bound)
-        f_bound = np.where(is_ms, ms_bound, np.maximum(f_bound, s_bound))
-        lower[rows] = s_bound
-        upper[rows] = s_bound
-        duration[rows] = f_bound - s_bound
-    rows = np.flatnonzero(in_progress)
-    if rows.size:
-        start_read_fixed[rows] = cals.start_index_days(cal[rows], model.actual_start[rows])
-
-    not_started = status == NOT_STARTED
+    not_started = st.status == NOT_STARTED
+    incomplete = st.status != COMPLETE
     bound_rows = np.flatnonzero(not_started & (model.start_bound != NO_DAY))
     if bound_rows.size:
         lower[bound_rows] = np.maximum(lower[bound_rows], lower_of(model.start_bound, bound_rows))
-
     late_upper_extra = np.full(n, _FAR, dtype=np.int64)
     pin_late = np.full(n, -_FAR, dtype=np.int64)
     code = model.constraint
     rows = np.flatnonzero(not_started & (code == EARLIEST_START))
     if rows.size:
         lower[rows] = np.maximum(lower[rows], lower_of(model.constraint_day, rows))
+    in_progress = st.status == IN_PROGRESS
     rows = np.flatnonzero(incomplete & ((code == LATEST_FINISH) | (in_progress & (code == FIXED_FINISH))))
     if rows.size:
         late_upper_extra[rows] = upper_of(model.constraint_day, rows)
@@ -488,25 +492,61 @@ def _run(model: ScheduleModel, forward_only: bool = False):
         lower[rows] = pin
         upper[rows] = pin
         pin_late[rows] = pin + duration[rows]
+    return _Bounds(lower, upper, duration, start_read_fixed, late_upper_extra, pin_late)
 
-    # -- the passes, activities by topological position ------------------------------------------
-    # Each pass walks the activities in topological order and reads its links front to back
-    # (Network.passes). What a pass reads of a link's other end is held by position; what
-    # it reads and writes of the activity in hand, by activity number.
+
+def _progress_bounds(model, st: _Status, lower, upper, duration, start_read_fixed) -> None:
+    """Progress as boundaries, in place: a complete activity is held to its actual dates
+    (a milestone to its one date), an activity in progress reads its actual start."""
+    cals, cal = model.calendars, model.calendar
+    rows = np.flatnonzero(st.complete)
+    if rows.size:
+        has_start, has_finish = st.has_start[rows], st.has_finish[rows]
+        started = np.where(has_start, model.actual_start[rows], model.actual_finish[rows])
+        finished = np.where(has_finish, model.actual_finish[rows], model.actual_start[rows])
+        is_ms = st.start_ms[rows] | st.finish_ms[rows] | st.given_milestone[rows]
+        ms_day = np.where(has_finish, model.actual_finish[rows], model.actual_start[rows])
+        s_bound = cals.start_index_days(cal[rows], started)
+        f_bound = cals.finish_index_days(cal[rows], finished) + 1
+        ms_bound = np.where(
+            st.finish_ms[rows] | (model.kind[rows] == FINISH_MILESTONE),
+            cals.finish_index_days(cal[rows], ms_day) + 1,
+            cals.start_index_days(cal[rows], ms_day),
+        )
+        s_bound = np.where(is_ms, ms_bound, s_bound)
+        f_bound = np.where(is_ms, ms_bound, np.maximum(f_bound, s_bound))
+        lower[rows] = s_bound
+        upper[rows] = s_bound
+        duration[rows] = f_bound - s_bound
+    rows = np.flatnonzero(st.status == IN_PROGRESS)
+    if rows.size:
+        start_read_fixed[rows] = cals.start_index_days(cal[rows], model.actual_start[rows])
+
+
+class _Forward(NamedTuple):
+    """What the forward pass leaves: per activity in network order unless ``_t`` (by
+    topological position)."""
+
+    early_finish_t: np.ndarray
+    start_read: np.ndarray
+    early_finish: np.ndarray
+    remaining_start: np.ndarray
+    finish_day: np.ndarray  # the early finish as a day number
+    relative_float: np.ndarray  # per link (only with floats)
+    link_free_float_t: np.ndarray  # per activity by position (only with floats)
+
+
+def _forward(model: ScheduleModel, st: _Status, bounds: _Bounds, with_floats: bool) -> _Forward:
+    """The forward pass over the activities in topological order, reading each one's links
+    front to back (:attr:`Network.passes`); the calendar horizon grows and the pass runs
+    again when a date falls outside it."""
     from . import _kernels
 
-    layout = net.passes
-    order = net.order
-    table = cals.table
-    override = settings.progress == "progress_override"
-    lag_on_pred = settings.lag_calendar == "predecessor"
-    status_t = status[order]
-    point_t = point[order]
-    cal_t = cal[order]
+    net, cals, settings = model.network, model.calendars, model.settings
+    n, layout, order = net.size, net.passes, net.order
     known_finish = np.full(n, NO_DAY, dtype=np.int64)  # complete: the actual finish (milestone: its date)
-    rows = np.flatnonzero(complete)
-    known_finish[rows] = np.where(has_finish[rows], model.actual_finish[rows], model.actual_start[rows])
-    with_floats = not forward_only
+    rows = np.flatnonzero(st.complete)
+    known_finish[rows] = np.where(st.has_finish[rows], model.actual_finish[rows], model.actual_start[rows])
     early_finish_t, start_read_t, early_finish, start_read, remaining_start, finish_day = (
         np.empty(n, dtype=np.int64) for _ in range(6)
     )
@@ -518,18 +558,18 @@ def _run(model: ScheduleModel, forward_only: bool = False):
             *layout.forward,
             layout.f_link,
             order,
-            override,
-            lag_on_pred,
+            settings.progress == "progress_override",
+            settings.lag_calendar == "predecessor",
             with_floats,
-            status_t,
-            point_t,
-            cal_t,
-            lower,
-            upper,
-            duration,
-            start_read_fixed,
+            st.status[order],
+            st.point[order],
+            model.calendar[order],
+            bounds.lower,
+            bounds.upper,
+            bounds.duration,
+            bounds.start_read_fixed,
             known_finish,
-            table(),
+            cals.table(),
             early_finish_t,
             start_read_t,
             early_finish,
@@ -543,37 +583,46 @@ def _run(model: ScheduleModel, forward_only: bool = False):
             break
         grow_within_bounds(model, cals, code == _kernels.TOO_EARLY)
     check_finish_days(model, finish_day)
+    return _Forward(
+        early_finish_t, start_read, early_finish, remaining_start, finish_day, relative_float, link_free_float_t
+    )
 
-    # -- completion ---------------------------------------------------------------------------
-    completion_day = int(finish_day.max()) if n else model.data_day
-    if forward_only == "dates":
-        start_day = np.where(has_start, model.actual_start, cals.day_of(cal, start_read))
-        return status, start_day, finish_day
-    if forward_only:
-        return completion_day
 
-    # -- backward pass, total and free float ----------------------------------------------------
+def _backward(model: ScheduleModel, st: _Status, bounds: _Bounds, fwd: _Forward, completion_day: int):
+    """The backward pass to the float end (the completion, or the contract completion
+    date under ``float_to = "contract_completion"``): late start and finish, total and
+    free float (work days)."""
+    from . import _kernels
+
+    net, cals, settings = model.network, model.calendars, model.settings
+    n, order = net.size, net.order
+    every_calendar = np.arange(len(cals))
+
+    def finish_index_on(day: int) -> np.ndarray:
+        """Per calendar: index of the last work day on or before the day."""
+        return cals.finish_index_days(every_calendar, np.full(every_calendar.size, day))
+
     end_day = completion_day if settings.float_to == "project_finish" else model.contract_completion_day
     late_start, late_finish, total_float, free_float = (np.empty(n, dtype=np.int64) for _ in range(4))
     late_start_t, late_finish_t = np.empty(n, dtype=np.int64), np.empty(n, dtype=np.int64)
     end_bound, completion_bound = finish_index_on(end_day), finish_index_on(completion_day)
     while True:
         code = _kernels.backward_pass(
-            *layout.backward,
+            *net.passes.backward,
             order,
-            override,
-            lag_on_pred,
-            status_t,
-            point_t,
-            cal_t,
-            late_upper_extra,
-            pin_late,
-            duration,
-            early_finish_t,
-            link_free_float_t,
+            settings.progress == "progress_override",
+            settings.lag_calendar == "predecessor",
+            st.status[order],
+            st.point[order],
+            model.calendar[order],
+            bounds.late_upper_extra,
+            bounds.pin_late,
+            bounds.duration,
+            fwd.early_finish_t,
+            fwd.link_free_float_t,
             end_bound,
             completion_bound,
-            table(),
+            cals.table(),
             late_start_t,
             late_finish_t,
             late_start,
@@ -585,22 +634,52 @@ def _run(model: ScheduleModel, forward_only: bool = False):
             break
         grow_within_bounds(model, cals, code == _kernels.TOO_EARLY)
     check_late_days(model, cals, late_start)
+    return late_start, late_finish, total_float, free_float
+
+
+def _completion_of(model: ScheduleModel, fwd: _Forward) -> int:
+    """The completion day: the latest early finish (the data date of an empty network)."""
+    return int(fwd.finish_day.max()) if model.network.size else model.data_day
+
+
+def _schedule(model: ScheduleModel) -> ScheduleResult:
+    """Both passes: the dates, floats and driving links of :meth:`ScheduleModel.run`."""
+    st = _status(model)
+    bounds = _bounds(model, st)
+    fwd = _forward(model, st, bounds, with_floats=True)
+    completion_day = _completion_of(model, fwd)
+    late_start, late_finish, total_float, free_float = _backward(model, st, bounds, fwd, completion_day)
     return ScheduleResult(
         model=model,
-        status=status,
-        point=point,
-        duration=duration,
-        early_start_read=start_read,
-        remaining_start=remaining_start,
-        early_finish=early_finish,
+        status=st.status,
+        point=st.point,
+        duration=bounds.duration,
+        early_start_read=fwd.start_read,
+        remaining_start=fwd.remaining_start,
+        early_finish=fwd.early_finish,
         late_start=late_start,
         late_finish=late_finish,
         total_float=total_float,
         free_float=free_float,
-        stream_float=relative_float,
+        stream_float=fwd.relative_float,
         completion_day=completion_day,
-        finish_day=finish_day,
+        finish_day=fwd.finish_day,
     )
+
+
+def _forward_completion(model: ScheduleModel) -> int:
+    """The completion day from the forward pass alone (no floats)."""
+    st = _status(model)
+    return _completion_of(model, _forward(model, st, _bounds(model, st), with_floats=False))
+
+
+def _forward_dates(model: ScheduleModel) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """``(status, start day, finish day)`` from the forward pass alone: the actual start
+    where there is one, else the early start."""
+    st = _status(model)
+    fwd = _forward(model, st, _bounds(model, st), with_floats=False)
+    start_day = np.where(st.has_start, model.actual_start, model.calendars.day_of(model.calendar, fwd.start_read))
+    return st.status, start_day, fwd.finish_day
 
 
 @dataclass(frozen=True, eq=False)
