@@ -269,9 +269,9 @@ def decode(data: bytes, declared: str | None) -> tuple[str, str, str]:
     DecodeProblem
         When the bytes are not text in that encoding; its message says where.
     """
-    for mark, _codec, name in _BOMS:
+    for mark, bom_codec, name in _BOMS:
         if data.startswith(mark):
-            encoding, source = name, "detected"
+            codec, encoding, source = bom_codec, name, "detected"
             break
     else:
         codec = declared or "utf-8"

@@ -312,6 +312,8 @@ class _Loader:
     # ------------------------------------------------------------------ snapshots
 
     def read_snapshot_facts(self) -> None:
+        """Every snapshot's facts, checked, in order (:attr:`snapshots`); a folder name used
+        twice is reported and its second snapshot left out."""
         p = self.problems
         facts_list: list[_SnapshotFacts] = []
         seen_folders: dict[str, SnapshotSource] = {}
@@ -331,50 +333,61 @@ class _Loader:
             if facts is None:
                 facts_list.append(_SnapshotFacts(snap, snap.folder, snap.folder, None, None))
                 continue
+            facts_list.append(self._snapshot_facts(snap, facts))
+        self.snapshots = self._ordered_snapshots(facts_list)
 
-            def report(key: str, message: str, fix: str, snap=snap) -> None:
-                row, column = snap.locate(key)
-                p.add(snap.file, message, fix, row=row, column=column)
+    def _snapshot_facts(self, snap: SnapshotSource, facts: dict) -> _SnapshotFacts:
+        """One snapshot's label, data date and kind from its snapshot.toml (or workbook
+        row), each checked; a fact that cannot be used is reported and left out."""
+        p = self.problems
 
-            label = facts.get("label", snap.folder)
-            if not isinstance(label, str) or not label.strip():
-                report("label", "the label must be text", 'write label = "Update 03"')
-                label = snap.folder
-            label = label.strip()
-            data_date = None
-            if "data_date" not in facts:
+        def report(key: str, message: str, fix: str) -> None:
+            row, column = snap.locate(key)
+            p.add(snap.file, message, fix, row=row, column=column)
+
+        label = facts.get("label", snap.folder)
+        if not isinstance(label, str) or not label.strip():
+            report("label", "the label must be text", 'write label = "Update 03"')
+            label = snap.folder
+        label = label.strip()
+        data_date = None
+        if "data_date" not in facts:
+            report(
+                "data_date",
+                "the snapshot has no data date",
+                "add data_date = YYYY-MM-DD: the first day not yet reported (for the baseline, the planned start)",
+            )
+        else:
+            data_date = parse_date_value(facts["data_date"])
+            if data_date is None:
                 report(
                     "data_date",
-                    "the snapshot has no data date",
-                    "add data_date = YYYY-MM-DD: the first day not yet reported (for the baseline, the planned start)",
+                    f"the data date {facts['data_date']!r} is not a date",
+                    "write it as data_date = YYYY-MM-DD",
                 )
-            else:
-                data_date = parse_date_value(facts["data_date"])
-                if data_date is None:
-                    report(
-                        "data_date",
-                        f"the data date {facts['data_date']!r} is not a date",
-                        "write it as data_date = YYYY-MM-DD",
-                    )
-                elif not FIRST_DATE <= data_date <= LAST_DATE:
-                    report(
-                        "data_date",
-                        f"the data date {data_date} is outside {FIRST_DATE} to "
-                        f"{LAST_DATE}, the dates the toolkit works with",
-                        "check the year of the data date",
-                    )
-                    data_date = None
-            kind = facts.get("kind", "baseline" if snap.folder.lower() == "baseline" else "update")
-            if kind not in _SNAPSHOT_KINDS:
+            elif not FIRST_DATE <= data_date <= LAST_DATE:
                 report(
-                    "kind",
-                    f"the kind {kind!r} is not baseline or update",
-                    'write kind = "baseline" for the baseline, kind = "update" otherwise',
+                    "data_date",
+                    f"the data date {data_date} is outside {FIRST_DATE} to "
+                    f"{LAST_DATE}, the dates the toolkit works with",
+                    "check the year of the data date",
                 )
-                kind = None
-            self.check_reserved_names(snap, label, kind, report)
-            facts_list.append(_SnapshotFacts(snap, snap.folder, label, data_date, kind))
+                data_date = None
+        kind = facts.get("kind", "baseline" if snap.folder.lower() == "baseline" else "update")
+        if kind not in _SNAPSHOT_KINDS:
+            report(
+                "kind",
+                f"the kind {kind!r} is not baseline or update",
+                'write kind = "baseline" for the baseline, kind = "update" otherwise',
+            )
+            kind = None
+        self.check_reserved_names(snap, label, kind, report)
+        return _SnapshotFacts(snap, snap.folder, label, data_date, kind)
 
+    def _ordered_snapshots(self, facts_list: list[_SnapshotFacts]) -> list[_SnapshotFacts]:
+        """The snapshots in order, the baseline first, then by data date (undated last);
+        one baseline, distinct data dates after the baseline's, distinct labels."""
+        p = self.problems
         baselines = [f for f in facts_list if f.kind == "baseline"]
         if not baselines and self.source.snapshots_found and all(f.kind is not None for f in facts_list):
             if self.source.workbook:
@@ -446,7 +459,7 @@ class _Loader:
                     column=column,
                 )
             labels.setdefault(facts.label, facts)
-        self.snapshots = ordered
+        return ordered
 
     def check_reserved_names(self, snap: SnapshotSource, label: str, kind: str | None, report) -> None:
         """A snapshot may not take a name the case format keeps for something else:
