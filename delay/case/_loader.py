@@ -1044,6 +1044,29 @@ class _Loader:
         if table is None:
             self.tables["attributions"] = _empty("attributions")
             return
+        folder, no_activity = self._attribution_windows(table)
+        party = self._attribution_causes(table)
+        frame = table.frame
+        window, activity = frame["window"], frame["activity"]
+        key = folder + "\x1f" + activity
+        repeated = key.duplicated(keep="first").to_numpy() & (folder != "").to_numpy() & ~no_activity
+        first_row = {k: table.where(int(at))[1] for at, k in reversed(list(enumerate(key.tolist())))}
+        self.problems.flag(
+            table,
+            repeated,
+            "activity",
+            lambda i: (
+                f"the activity '{activity.iat[i]}' is attributed twice in the window "
+                f"ending '{window.iat[i]}' (first on row {first_row[key.iat[i]]})"
+            ),
+            "keep one attribution per window and activity",
+        )
+        self.tables["attributions"] = columns.assemble(table, {"party": party})
+
+    def _attribution_windows(self, table):
+        """The window and activity of each attribution checked: the snapshot that ends
+        the window (its folder per row, blank where none) and whether the activity cell is
+        blank."""
         p = self.problems
         frame = table.frame
         window, activity = frame["window"], frame["activity"]
@@ -1108,6 +1131,13 @@ class _Loader:
             lambda i: f"the activity '{activity.iat[i]}' is not in the snapshot '{window.iat[i]}' that ends the window",
             "name an activity of that snapshot, or correct the window",
         )
+        return folder, no_activity
+
+    def _attribution_causes(self, table):
+        """The event or party of each attribution checked (one of them, a known event, a
+        party of the case format) and its reason given; the parties read."""
+        p = self.problems
+        frame = table.frame
         event, party_text = frame["event"], frame["party"]
         has_event = ~columns.empty_cells(event)
         has_party = ~columns.empty_cells(party_text)
@@ -1143,20 +1173,7 @@ class _Loader:
             "the attribution gives no reason",
             "say why the charge is attributed so, with the record that shows it",
         )
-        key = folder + "\x1f" + activity
-        repeated = key.duplicated(keep="first").to_numpy() & (folder != "").to_numpy() & ~no_activity
-        first_row = {k: table.where(int(at))[1] for at, k in reversed(list(enumerate(key.tolist())))}
-        p.flag(
-            table,
-            repeated,
-            "activity",
-            lambda i: (
-                f"the activity '{activity.iat[i]}' is attributed twice in the window "
-                f"ending '{window.iat[i]}' (first on row {first_row[key.iat[i]]})"
-            ),
-            "keep one attribution per window and activity",
-        )
-        self.tables["attributions"] = columns.assemble(table, {"party": party})
+        return party
 
     def check_completion_activity(self) -> None:
         """``[project] completion_activity``, when given, must be an activity of the baseline."""
