@@ -97,6 +97,18 @@ def entitlement(case, method, output_format):
     if output_format == "json":
         click.echo(json.dumps(result.to_json(), indent=2))
         return
+    _print_figures(result)
+    for m in result.methods:
+        _print_sections(m)
+        _print_causation(m)
+        _print_events(m)
+    for line in reasons:
+        click.echo(line)
+    click.echo(f"Impacts alone and but-for days need not add up; the classified days do. {CAUTION}")
+
+
+def _print_figures(result) -> None:
+    """The headline figures of every method, one column per method."""
     currency = result.currency
     figures = [
         ("contract completion in force", lambda m: m.completion_in_force),
@@ -118,99 +130,107 @@ def entitlement(case, method, output_format):
         ["figure", *[m.method for m in result.methods]],
         [[name, *[_text(value(m)) for m in result.methods]] for name, value in figures],
     )
-    for m in result.methods:
-        if len(m.sections):
-            print_table(
-                f"{m.method}: sections (never add them to each other or to the whole works)",
-                [
-                    "section",
-                    "milestone",
-                    "in force",
-                    "planned",
-                    "excusable",
-                    "extension",
-                    "revised",
-                    "actual or forecast",
-                    "compensable",
-                    "prolongation cost",
-                    "damages days",
-                    "damages",
-                    "note",
-                ],
-                [
-                    [
-                        s["section"],
-                        s["completion_activity"],
-                        _text(s["completion_in_force"]),
-                        _text(s["planned_completion"]),
-                        _text(s["excusable_days"]),
-                        _text(s["eot_days"]),
-                        _text(s["revised_completion"]),
-                        _text(s["actual_completion"]),
-                        _text(s["compensable_days"]),
-                        _text(s["prolongation_cost"]),
-                        _text(s["ld_days"]),
-                        _text(s["ld_exposure"]) + (" (capped)" if s["ld_capped"] else ""),
-                        _text(s["note"]),
-                    ]
-                    for s in m.sections.to_dict("records")
-                ],
-            )
-        table = m.causation.table
-        shown = table[(table["days"] != 0) | (table["concurrent_with"] != "")]
+
+
+def _print_sections(m) -> None:
+    """A method's sections, when sections.csv names any."""
+    if len(m.sections):
         print_table(
-            f"{m.method}: causation ({m.causation.explained_days} days: {m.causation.explains})",
+            f"{m.method}: sections (never add them to each other or to the whole works)",
             [
-                "step",
-                "event",
-                "party",
-                "activities",
-                "days",
-                "alone (need not add up)",
-                "concurrent with",
+                "section",
+                "milestone",
+                "in force",
+                "planned",
                 "excusable",
+                "extension",
+                "revised",
+                "actual or forecast",
                 "compensable",
-                "culpable",
-                "classification",
+                "prolongation cost",
+                "damages days",
+                "damages",
+                "note",
             ],
             [
                 [
-                    r.step,
-                    r.event,
-                    r.party,
-                    r.activities,
-                    r.days,
-                    _text(r.alone_days),
-                    r.concurrent_with,
-                    r.excusable_days,
-                    r.compensable_days,
-                    r.culpable_days,
-                    r.classification,
+                    s["section"],
+                    s["completion_activity"],
+                    _text(s["completion_in_force"]),
+                    _text(s["planned_completion"]),
+                    _text(s["excusable_days"]),
+                    _text(s["eot_days"]),
+                    _text(s["revised_completion"]),
+                    _text(s["actual_completion"]),
+                    _text(s["compensable_days"]),
+                    _text(s["prolongation_cost"]),
+                    _text(s["ld_days"]),
+                    _text(s["ld_exposure"]) + (" (capped)" if s["ld_capped"] else ""),
+                    _text(s["note"]),
                 ]
-                for r in shown.itertuples(index=False)
+                for s in m.sections.to_dict("records")
             ],
         )
-        if len(m.events):
-            print_table(
-                f"{m.method}: events, claimed beside assessed",
-                ["event", "party", "notified", "claimed", "assessed", "excusable", "compensable", "note"],
+
+
+def _print_causation(m) -> None:
+    """A method's causation rows that carry days or a concurrency."""
+    table = m.causation.table
+    shown = table[(table["days"] != 0) | (table["concurrent_with"] != "")]
+    print_table(
+        f"{m.method}: causation ({m.causation.explained_days} days: {m.causation.explains})",
+        [
+            "step",
+            "event",
+            "party",
+            "activities",
+            "days",
+            "alone (need not add up)",
+            "concurrent with",
+            "excusable",
+            "compensable",
+            "culpable",
+            "classification",
+        ],
+        [
+            [
+                r.step,
+                r.event,
+                r.party,
+                r.activities,
+                r.days,
+                _text(r.alone_days),
+                r.concurrent_with,
+                r.excusable_days,
+                r.compensable_days,
+                r.culpable_days,
+                r.classification,
+            ]
+            for r in shown.itertuples(index=False)
+        ],
+    )
+
+
+def _print_events(m) -> None:
+    """A method's events: what the register claims beside what is assessed."""
+    if len(m.events):
+        print_table(
+            f"{m.method}: events, claimed beside assessed",
+            ["event", "party", "notified", "claimed", "assessed", "excusable", "compensable", "note"],
+            [
                 [
-                    [
-                        e["event"],
-                        e["party"],
-                        _text(e["notified"]),
-                        _text(e["claimed_days"]),
-                        _text(e["assessed_days"]),
-                        _text(e["excusable_days"]),
-                        _text(e["compensable_days"]),
-                        e["note"],
-                    ]
-                    for e in m.events.to_dict("records")
-                ],
-            )
-    for line in reasons:
-        click.echo(line)
-    click.echo(f"Impacts alone and but-for days need not add up; the classified days do. {CAUTION}")
+                    e["event"],
+                    e["party"],
+                    _text(e["notified"]),
+                    _text(e["claimed_days"]),
+                    _text(e["assessed_days"]),
+                    _text(e["excusable_days"]),
+                    _text(e["compensable_days"]),
+                    e["note"],
+                ]
+                for e in m.events.to_dict("records")
+            ],
+        )
 
 
 @click.command()
