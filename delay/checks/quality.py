@@ -284,6 +284,31 @@ def metric_list(case: Case, snapshot: str | Snapshot = "baseline") -> list[Metri
     tasks_left = int(incomplete_task.sum())
     metrics: list[Metric] = []
 
+    metrics.extend(_logic_metrics(net, ids, incomplete_task, tasks_left))
+    metrics.extend(_float_and_duration_metrics(table, result, ids, incomplete_task, tasks_left))
+    metrics.append(_invalid_dates_metric(model, result, status, task, ids))
+
+    # 10 resources
+    metrics.append(_resources(table, incomplete_task, ids, tasks_left))
+
+    # 11, 14 missed activities and baseline execution index
+    missed, bei = _baseline_execution(case, snap, result, table)
+    metrics.append(missed)
+
+    # 12 critical path test
+    metrics.append(_critical_path_test(case, snap, result))
+
+    # 13 critical path length index
+    metrics.append(_critical_path_length_index(case, result))
+    metrics.append(bei)
+    order = {key: i for i, key in enumerate(METRIC_KEYS)}
+    return sorted(metrics, key=lambda m: order[m.key])
+
+
+def _logic_metrics(net, ids: np.ndarray, incomplete_task: np.ndarray, tasks_left: int) -> list[Metric]:
+    """Metrics 1-4: missing logic, leads, lags and relationship types (links into
+    incomplete tasks)."""
+    metrics: list[Metric] = []
     # 1 logic
     has_pred = np.bincount(net.succ, minlength=net.size) > 0
     has_succ = np.bincount(net.pred, minlength=net.size) > 0
@@ -313,6 +338,13 @@ def metric_list(case: Case, snapshot: str | Snapshot = "baseline") -> list[Metri
     )
     metrics.append(_relationship_types(relationship, net.link_type, keys, links_counted))
 
+    return metrics
+
+
+def _float_and_duration_metrics(table, result, ids: np.ndarray, incomplete_task: np.ndarray, tasks_left: int):
+    """Metrics 5-8 over the incomplete tasks: hard constraints, high float, negative float,
+    high duration (work days)."""
+    metrics: list[Metric] = []
     # 5 hard constraints
     constraint = table["constraint"].fillna("").to_numpy(dtype=object)
     metrics.append(
@@ -355,7 +387,11 @@ def metric_list(case: Case, snapshot: str | Snapshot = "baseline") -> list[Metri
         )
     )
 
-    # 9 invalid dates
+    return metrics
+
+
+def _invalid_dates_metric(model, result, status: np.ndarray, task: np.ndarray, ids: np.ndarray) -> Metric:
+    """Metric 9: tasks with actual dates after the data date or forecasts before it."""
     invalid = task & invalid_date_mask(
         model.data_day,
         status,
@@ -364,34 +400,16 @@ def metric_list(case: Case, snapshot: str | Snapshot = "baseline") -> list[Metri
         model.actual_start,
         model.actual_finish,
     )
-    metrics.append(
-        _share(
-            "invalid_dates",
-            "Invalid dates",
-            invalid,
-            ids,
-            int(task.sum()),
-            at_most=None,
-            note="actual dates on or after the data date are also refused when the case "
-            "is loaded; the engine never forecasts work before the data date",
-        )
+    return _share(
+        "invalid_dates",
+        "Invalid dates",
+        invalid,
+        ids,
+        int(task.sum()),
+        at_most=None,
+        note="actual dates on or after the data date are also refused when the case "
+        "is loaded; the engine never forecasts work before the data date",
     )
-
-    # 10 resources
-    metrics.append(_resources(table, incomplete_task, ids, tasks_left))
-
-    # 11, 14 missed activities and baseline execution index
-    missed, bei = _baseline_execution(case, snap, result, table)
-    metrics.append(missed)
-
-    # 12 critical path test
-    metrics.append(_critical_path_test(case, snap, result))
-
-    # 13 critical path length index
-    metrics.append(_critical_path_length_index(case, result))
-    metrics.append(bei)
-    order = {key: i for i, key in enumerate(METRIC_KEYS)}
-    return sorted(metrics, key=lambda m: order[m.key])
 
 
 def _relationship_types(relationship: np.ndarray, link_type: np.ndarray, keys: np.ndarray, counted: int) -> Metric:
