@@ -162,7 +162,18 @@ def _plain(value, depth: int = 0):
 
 
 #: Recorded when the installed package's own list of dependencies cannot be read.
-_DEPENDENCIES = ("pandas", "numpy", "networkx", "plotly", "jinja2", "click", "rich", "openpyxl", "numba")
+_DEPENDENCIES = (
+    "pandas",
+    "numpy",
+    "networkx",
+    "plotly",
+    "jinja2",
+    "click",
+    "rich",
+    "markdown-it-py",
+    "openpyxl",
+    "numba",
+)
 
 
 def _environment() -> dict[str, str]:
