@@ -68,6 +68,7 @@ __all__ = [
     "calendars_of",
     "ScheduleModel",
     "ScheduleResult",
+    "ACTIVITY_ARRAYS",
     "NEAR_CRITICAL_DAYS",
     "NOT_STARTED",
     "IN_PROGRESS",
@@ -108,6 +109,22 @@ def _days_or_none(column: pd.Series) -> np.ndarray:
     days = values.astype(np.int64)
     days[np.isnat(values)] = NO_DAY
     return days
+
+
+#: The per-activity arrays of a :class:`ScheduleModel` (network order) that a what-if may
+#: change or a sub-network keeps.
+ACTIVITY_ARRAYS = (
+    "names",
+    "calendar",
+    "duration",
+    "remaining",
+    "actual_start",
+    "actual_finish",
+    "kind",
+    "constraint",
+    "constraint_day",
+    "start_bound",
+)
 
 
 @dataclass(frozen=True, eq=False)
@@ -187,21 +204,7 @@ class ScheduleModel:
         """
         changes: dict[str, object] = {}
         net = self.network
-        arrays = {
-            name: getattr(self, name)
-            for name in (
-                "names",
-                "calendar",
-                "duration",
-                "remaining",
-                "actual_start",
-                "actual_finish",
-                "kind",
-                "constraint",
-                "constraint_day",
-                "start_bound",
-            )
-        }
+        arrays = {name: getattr(self, name) for name in ACTIVITY_ARRAYS}
         new_ids: list = []
         if add_activities is not None and len(add_activities):
             add = add_activities
@@ -309,21 +312,7 @@ class ScheduleModel:
         network = build_network(
             net.ids[keep], number[net.pred[links]], number[net.succ[links]], net.link_type[links], net.lag[links]
         )
-        arrays = {
-            name: getattr(self, name)[keep]
-            for name in (
-                "names",
-                "calendar",
-                "duration",
-                "remaining",
-                "actual_start",
-                "actual_finish",
-                "kind",
-                "constraint",
-                "constraint_day",
-                "start_bound",
-            )
-        }
+        arrays = {name: getattr(self, name)[keep] for name in ACTIVITY_ARRAYS}
         order = self.link_order if self.link_order is not None else np.arange(net.link_count)
         return dataclasses.replace(self, network=network, link_order=order[links], **arrays)
 

@@ -74,7 +74,7 @@ import pandas as pd
 
 from ..calendars import CalendarSet
 from ..convert import NO_DAY, day_to_date, join_ids
-from ..cpm import COMPLETE, ScheduleModel, ScheduleResult, calendars_of, prepare
+from ..cpm import ACTIVITY_ARRAYS, COMPLETE, ScheduleModel, ScheduleResult, calendars_of, prepare
 from ..errors import CaseError, Problem, ReconciliationError
 from ..events import CONCURRENT, activity_risk, attributions, completion_activity, events_naming, match_events
 from ..ledger import CHARGE_COLUMNS as TRACE_COLUMNS
@@ -459,18 +459,6 @@ def _finishes(result: ScheduleResult, targets: Sequence[str]) -> np.ndarray:
     return np.where(where >= 0, result.finish_day[np.maximum(where, 0)], -1)
 
 
-_ARRAYS = (
-    "names",
-    "calendar",
-    "duration",
-    "remaining",
-    "actual_start",
-    "actual_finish",
-    "kind",
-    "constraint",
-    "constraint_day",
-    "start_bound",
-)
 #: The model arrays each revision kind takes from E.
 _KIND_ARRAYS = {
     "durations": ("duration", "remaining", "kind"),
@@ -487,7 +475,7 @@ class _Programme:
         self.template = model
         net = model.network
         self.ids = np.asarray(net.ids, dtype=object)
-        self.arrays = {name: np.asarray(getattr(model, name)) for name in _ARRAYS}
+        self.arrays = {name: np.asarray(getattr(model, name)) for name in ACTIVITY_ARRAYS}
         order = model.link_order if model.link_order is not None else np.arange(net.link_count)
         rows = np.argsort(order, kind="stable")  # links in their input order
         self.links = (net.ids[net.pred][rows], net.ids[net.succ][rows], net.link_type[rows], net.lag[rows])
