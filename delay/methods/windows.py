@@ -468,35 +468,54 @@ _KIND_ARRAYS = {
 
 
 class _Programme:
-    """A programme as the engine's arrays, keyed by activity id, with its links by ids: what
-    the revision steps change one kind at a time, with no tables rebuilt per step."""
+    """A programme as the engine's arrays, its activities and links by code: what the
+    revision steps change one kind at a time, with no tables rebuilt and no id looked up
+    per step. A code numbers an activity of either programme of a window (E's activities
+    first, in E's order, then H's activities that E does not have)."""
 
-    def __init__(self, model: ScheduleModel):
+    def __init__(self, model: ScheduleModel, codes: np.ndarray, size: int):
         self.template = model
         net = model.network
+        self.size = size  # the number of codes: every activity of both programmes
+        self.codes = np.asarray(codes, dtype=np.int64)
         self.ids = np.asarray(net.ids, dtype=object)
         self.arrays = {name: np.asarray(getattr(model, name)) for name in ACTIVITY_ARRAYS}
         order = model.link_order if model.link_order is not None else np.arange(net.link_count)
         rows = np.argsort(order, kind="stable")  # links in their input order
-        self.links = (net.ids[net.pred][rows], net.ids[net.succ][rows], net.link_type[rows], net.lag[rows])
+        self.links = (self.codes[net.pred[rows]], self.codes[net.succ[rows]], net.link_type[rows], net.lag[rows])
         self._network = None  # compiled again only when the activities or the links change
+
+    def _has(self, codes: np.ndarray) -> np.ndarray:
+        """Per code: whether this programme holds the activity."""
+        found = np.zeros(self.size, dtype=bool)
+        found[codes] = True
+        return found
+
+    def positions(self) -> np.ndarray:
+        """Per code: the activity's number in this programme, ``-1`` where it has none."""
+        found = np.full(self.size, -1, dtype=np.int64)
+        found[self.codes] = np.arange(self.codes.size)
+        return found
 
     def keep(self, mask: np.ndarray) -> None:
         self._network = None
-        self.ids = self.ids[mask]
+        self.codes, self.ids = self.codes[mask], self.ids[mask]
         self.arrays = {name: values[mask] for name, values in self.arrays.items()}
-        present = pd.Index(self.ids)
-        kept = (present.get_indexer(self.links[0]) >= 0) & (present.get_indexer(self.links[1]) >= 0)
+        present = self._has(self.codes)
+        kept = present[self.links[0]] & present[self.links[1]]
         self.links = tuple(values[kept] for values in self.links)
 
     def add(self, other: _Programme, rows: np.ndarray) -> None:
+        """Take the activities ``rows`` of ``other``, with its links that touch one of them
+        and join two activities this programme then holds."""
         self._network = None
+        added = self._has(other.codes[rows])
+        self.codes = np.concatenate([self.codes, other.codes[rows]])
         self.ids = np.concatenate([self.ids, other.ids[rows]])
         self.arrays = {name: np.concatenate([values, other.arrays[name][rows]]) for name, values in self.arrays.items()}
-        added = pd.Index(other.ids[rows])
-        present = pd.Index(self.ids)
-        touching = (added.get_indexer(other.links[0]) >= 0) | (added.get_indexer(other.links[1]) >= 0)
-        touching &= (present.get_indexer(other.links[0]) >= 0) & (present.get_indexer(other.links[1]) >= 0)
+        present = self._has(self.codes)
+        pred, succ = other.links[0], other.links[1]
+        touching = (added[pred] | added[succ]) & present[pred] & present[succ]
         self.links = tuple(np.concatenate([mine, theirs[touching]]) for mine, theirs in zip(self.links, other.links))
 
     def relink(self, links) -> None:
@@ -505,13 +524,19 @@ class _Programme:
 
     def model(self) -> ScheduleModel:
         if self._network is None:
-            present = pd.Index(self.ids)
-            pred, succ = present.get_indexer(self.links[0]), present.get_indexer(self.links[1])
+            position = self.positions()
+            pred, succ = position[self.links[0]], position[self.links[1]]
             self._network = build_network(self.ids, pred, succ, self.links[2], self.links[3])
         network = self._network
         return dataclasses.replace(
             self.template, network=network, link_order=np.arange(network.link_count), **self.arrays
         )
+
+    def finishes(self, targets: np.ndarray) -> np.ndarray:
+        """Finish day numbers of the target codes in the forward pass; ``-1`` for a target
+        this programme does not hold (or a code of ``-1``)."""
+        where = np.where(targets >= 0, self.positions()[np.maximum(targets, 0)], -1)
+        return np.where(where >= 0, self.model().finish_days()[np.maximum(where, 0)], -1)
 
 
 def _differs(a: np.ndarray, b: np.ndarray) -> np.ndarray:
@@ -521,22 +546,33 @@ def _differs(a: np.ndarray, b: np.ndarray) -> np.ndarray:
     return a != b
 
 
-def _changed_links(before, after, ids: pd.Index) -> list[str]:
+def _changed_links(before, after, names: np.ndarray) -> list[str]:
     """``pred>succ`` of every link that is in one of two link lists and not in the other
-    (same ends, type and lag), each once, sorted; ``ids`` holds every activity of both."""
-    width = np.int64(len(ids) + 1)
+    (same ends, type and lag), each once, sorted; the ends are codes, ``names`` their ids."""
+    width = np.int64(len(names) + 1)
 
     def keys(links) -> np.ndarray:
-        pred, succ = ids.get_indexer(links[0]).astype(np.int64), ids.get_indexer(links[1]).astype(np.int64)
+        pred, succ = np.asarray(links[0], dtype=np.int64), np.asarray(links[1], dtype=np.int64)
         return ((pred * width + succ) * 4 + np.asarray(links[2], dtype=np.int64)) * 200_003 + (
             np.asarray(links[3], dtype=np.int64) + 100_001
         )
 
     if all(len(b) == len(a) and np.array_equal(np.asarray(b), np.asarray(a)) for b, a in zip(before, after)):
         return []  # the same links in the same order: nothing to compare
-    moved = np.setxor1d(keys(before), keys(after))
+    # A link is in a programme once (the loader refuses a repeated link), so the keys of
+    # each side are distinct: sorted, each side's keys the other lacks are found by search.
+    first, second = np.sort(keys(before)), np.sort(keys(after))
+    moved = np.concatenate([_missing_from(first, second), _missing_from(second, first)])
     ends = moved // 200_003 // 4
-    return sorted({f"{ids[p]}>{ids[q]}" for p, q in zip(ends // width, ends % width)})
+    return sorted({f"{names[p]}>{names[q]}" for p, q in zip(ends // width, ends % width)})
+
+
+def _missing_from(values: np.ndarray, other: np.ndarray) -> np.ndarray:
+    """The values of a sorted array that a second sorted array lacks."""
+    if not other.size:
+        return values
+    at = np.minimum(np.searchsorted(other, values), other.size - 1)
+    return values[other[at] != values]
 
 
 def _revision_steps(
@@ -545,21 +581,29 @@ def _revision_steps(
     """E's changes applied to H one kind at a time, on the engine's arrays: ``(kind,
     changed, finishes of the targets after it)`` per kind that changed something, then
     ``other`` when the steps do not end exactly at E."""
-    current, end = _Programme(half_result.model), _Programme(end_result.model)
+    end_net, half_net = end_result.model.network, half_result.model.network
+    in_end = end_net.index.get_indexer(pd.Index(half_net.ids))  # the one look-up of ids per window
+    only_half = np.flatnonzero(in_end < 0)
+    size = end_net.size + only_half.size
+    half_codes = in_end.astype(np.int64)
+    half_codes[only_half] = end_net.size + np.arange(only_half.size)
+    names = np.concatenate([np.asarray(end_net.ids, dtype=object), np.asarray(half_net.ids, dtype=object)[only_half]])
+    current = _Programme(half_result.model, half_codes, size)
+    end = _Programme(end_result.model, np.arange(end_net.size), size)
+    target_codes = end_net.index_of(list(targets))
     steps: list[tuple[str, list[str], np.ndarray]] = []
 
     def step(kind: str, changed) -> None:
         if len(changed):
-            steps.append((kind, sorted(str(c) for c in changed), _finishes_on(current.model(), targets)))
+            steps.append((kind, sorted(str(c) for c in changed), current.finishes(target_codes)))
 
-    in_end = pd.Index(end.ids).get_indexer(current.ids)
     deleted = current.ids[in_end < 0]
     current.keep(in_end >= 0)
     step("deletions", deleted)
-    added = np.flatnonzero(pd.Index(current.ids).get_indexer(end.ids) < 0)
+    added = np.flatnonzero(~current._has(current.codes)[end.codes])
     current.add(end, added)
     step("additions", end.ids[added])
-    position = pd.Index(end.ids).get_indexer(current.ids)  # every current activity is in E now
+    position = current.codes  # every current activity is in E now: its code is its number in E
 
     def reassign(kind: str) -> None:
         changed = np.zeros(current.ids.size, dtype=bool)
@@ -570,7 +614,7 @@ def _revision_steps(
         step(kind, current.ids[changed])
 
     reassign("durations")
-    moved = _changed_links(current.links, end.links, end_result.model.network.index)
+    moved = _changed_links(current.links, end.links, names)
     if moved:
         current.relink(end.links)
     step("logic", moved)
@@ -580,12 +624,6 @@ def _revision_steps(
     if not steps or not np.array_equal(steps[-1][2], final):
         steps.append(("other", [], final))
     return steps
-
-
-def _finishes_on(model: ScheduleModel, targets: Sequence[str]) -> np.ndarray:
-    """Finish day numbers of the targets in a model's forward pass; ``-1`` for one not in it."""
-    where = model.network.index_of(list(targets))
-    return np.where(where >= 0, model.finish_days()[np.maximum(where, 0)], -1)
 
 
 def _risk_lookup(snapshots: Sequence[Snapshot], ids: Sequence[str]) -> list[str]:
