@@ -35,7 +35,7 @@ def load_case(path: str | Path) -> Case:
 
     Parameters
     ----------
-    path:
+    path : str or pathlib.Path
         A case folder (holding case.toml), a ``.xlsx`` workbook in the case's workbook
         form, or a folder holding only ``case.xlsx``.
 
@@ -79,7 +79,7 @@ def summarise(case: Case) -> dict[str, Any]:
 
     Parameters
     ----------
-    case:
+    case : Case
         A loaded case.
 
     Returns
@@ -139,10 +139,10 @@ def write_workbook(case_or_folder: Case | str | Path, path: str | Path) -> Path:
 
     Parameters
     ----------
-    case_or_folder:
+    case_or_folder : Case or str or pathlib.Path
         A loaded :class:`Case` (its files are read again from ``case.root``), or the path
         of a case folder or workbook.
-    path:
+    path : str or pathlib.Path
         Where to write the workbook.
 
     Returns

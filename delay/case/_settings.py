@@ -131,11 +131,11 @@ def parse_settings(
 
     Parameters
     ----------
-    source:
+    source : SettingsSource
         The nested mapping read from case.toml or the ``case`` sheet.
-    input_settings:
+    input_settings : InputSettings or None, optional
         ``[input]``, already read and checked with the files it describes.
-    problems:
+    problems : Problems
         Where problems are recorded; each names the file and the setting (``section.key``).
 
     Returns

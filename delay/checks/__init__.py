@@ -68,9 +68,9 @@ def check_snapshot(case: Case, snapshot: str | Snapshot = "baseline") -> dict[st
 
     Parameters
     ----------
-    case:
+    case : Case
         A loaded case.
-    snapshot:
+    snapshot : str or Snapshot, optional
         Folder name, label, ``"asbuilt"``, or a Snapshot.
 
     Returns
@@ -108,7 +108,7 @@ def run_all(case: Case) -> dict[str, Any]:
 
     Parameters
     ----------
-    case:
+    case : Case
         A loaded case.
 
     Returns

@@ -135,7 +135,7 @@ def compare(case: Case, earlier: str | Snapshot, later: str | Snapshot) -> Compa
 
     Parameters
     ----------
-    case:
+    case : Case
         A loaded case.
     earlier, later:
         Folder names, labels, ``"asbuilt"``, or :class:`~delay.model.Snapshot` objects.

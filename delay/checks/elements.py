@@ -100,9 +100,9 @@ def element_checks(case: Case, snapshot: str | Snapshot | None = None) -> Elemen
 
     Parameters
     ----------
-    case:
+    case : Case
         A loaded case.
-    snapshot:
+    snapshot : str or Snapshot or None, optional
         Whose activities are checked for a model element (folder, label, ``"asbuilt"`` or
         a Snapshot); ``None`` checks every snapshot's. Unlinked elements are always judged
         against the activities of every snapshot.

@@ -125,9 +125,9 @@ def data_checks(case: Case, snapshot: str | Snapshot = "baseline") -> tuple[Data
 
     Parameters
     ----------
-    case:
+    case : Case
         A loaded case.
-    snapshot:
+    snapshot : str or Snapshot, optional
         Folder name, label, ``"asbuilt"``, or a :class:`~delay.model.Snapshot`. Checks that
         compare records (changes, retrospective edits) compare it with the snapshot before
         it (baseline, updates by data date, then the as-built snapshot).

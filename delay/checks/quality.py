@@ -241,9 +241,9 @@ def quality_metrics(case: Case, snapshot: str | Snapshot = "baseline") -> pd.Dat
 
     Parameters
     ----------
-    case:
+    case : Case
         A loaded case.
-    snapshot:
+    snapshot : str or Snapshot, optional
         Folder name, label, ``"asbuilt"``, or a :class:`~delay.model.Snapshot`.
 
     Returns

@@ -74,13 +74,13 @@ def redundant_links(
 
     Parameters
     ----------
-    network:
+    network : Network
         The compiled logic (:class:`delay.network.Network`).
-    duration:
+    duration : numpy.ndarray
         Planned duration of each activity in work days, shape ``(n,)``.
-    exact_limit:
+    exact_limit : int, optional
         Largest number of activities searched exactly.
-    bit_budget_words:
+    bit_budget_words : int, optional
         Largest reachability table held at once, in 64-bit words.
 
     Returns
