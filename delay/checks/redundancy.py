@@ -44,12 +44,17 @@ BIT_BUDGET_WORDS = 8_000_000
 class Redundancy:
     """Which links are redundant.
 
-    Attributes
+    Parameters
     ----------
-    redundant: ``bool`` array, shape ``(m,)``, one per link of the network.
-    via: ``int64`` array, shape ``(m,)``: for a redundant link, the first activity after its
-        predecessor on a path that implies it; ``-1`` otherwise.
-    exact: whether every path length was searched (``False``: paths of two links only).
+    redundant : numpy.ndarray
+        ``bool`` array, shape ``(m,)``, one per link of the network, true for a redundant
+        link.
+    via : numpy.ndarray
+        ``int64`` array, shape ``(m,)``: for a redundant link, the activity number (position
+        in the network) of the first activity after its predecessor on a path that implies
+        it; ``-1`` otherwise.
+    exact : bool
+        Whether every path length was searched (``False``: paths of two links only).
     """
 
     redundant: np.ndarray
@@ -86,6 +91,13 @@ def redundant_links(
     Returns
     -------
     Redundancy
+        One flag and one ``via`` activity per link, in the network's link order, and
+        whether the search was exact (at most ``exact_limit`` activities).
+
+    References
+    ----------
+    A. V. Aho, M. R. Garey and J. D. Ullman, "The transitive reduction of a directed
+    graph", SIAM Journal on Computing 1(2), 1972.
 
     Examples
     --------
