@@ -159,6 +159,20 @@ def empty_cells(text: pd.Series) -> np.ndarray:
 
 
 def blank(table: RawTable, column: str) -> np.ndarray:
+    """Mask of the blank cells of ``column`` (:func:`empty_cells` of the table's column).
+
+    Parameters
+    ----------
+    table : RawTable
+        The table as read (all text).
+    column : str
+        One of its columns.
+
+    Returns
+    -------
+    numpy.ndarray
+        One boolean per row, true where the cell is ``""``.
+    """
     return empty_cells(table.frame[column])
 
 
@@ -564,11 +578,47 @@ def coded_choices(
     what: str = "value",
     required: Text | None = None,
 ) -> tuple[pd.Series, np.ndarray]:
-    """:func:`choices`, and each cell's position in ``allowed`` (``-1`` for a blank without
-    default or an unknown value), found in the same look-up.
+    """:func:`choices`, and each cell's position in ``allowed``, found in the same look-up.
 
     Cells already in the case of ``allowed`` are looked up as they are; only the others are
     changed to upper (or lower) case and looked up again.
+
+    Parameters
+    ----------
+    problems : Problems
+        Where the problems found are recorded.
+    table : RawTable
+        The table as read (all text).
+    column : str
+        The column read.
+    allowed : iterable of str
+        The values allowed, written as they are to be stored.
+    default : str or None, optional
+        The value of a blank cell (one of ``allowed``); ``None`` leaves it blank.
+    upper : bool, optional
+        Compare a cell not found as written in upper case (``True``) or lower case.
+    what : str, optional
+        What a value is, as the message names it.
+    required : str or callable or None, optional
+        The message for a blank cell; ``None`` lets a cell be blank.
+
+    Returns
+    -------
+    values : pandas.Series
+        As :func:`choices` returns them.
+    codes : numpy.ndarray
+        Each cell's position in ``allowed``; ``-1`` for a blank without default or an
+        unknown value.
+
+    Examples
+    --------
+    >>> import numpy as np, pandas as pd
+    >>> from delay.case._problems import Problems, RawTable
+    >>> table = RawTable("links", "links.csv", pd.DataFrame({"type": ["fs", "", "XX"]}), np.array([2, 3, 4]))
+    >>> problems = Problems()
+    >>> values, codes = coded_choices(problems, table, "type", ["FS", "SS", "FF", "SF"], default="FS", upper=True)
+    >>> values.tolist(), codes.tolist(), problems.count()
+    (['FS', 'FS', 'XX'], [0, 0, -1], 1)
     """
     allowed = tuple(allowed)
     index = pd.Index(allowed)
@@ -713,8 +763,30 @@ def references(problems: Problems, table: RawTable, column: str, known, message:
 def coded_references(
     problems: Problems, table: RawTable, column: str, known: pd.Index, message: Text, fix: Text
 ) -> tuple[np.ndarray, np.ndarray]:
-    """:func:`references` against an index of unique ``known`` values, and each cell's
-    position in it (``-1`` for a blank or unknown cell), found in the same look-up."""
+    """:func:`references` against an index of unique ``known`` values, and each cell's position in it.
+
+    Parameters
+    ----------
+    problems : Problems
+        Where the problems found are recorded.
+    table : RawTable
+        The table as read (all text).
+    column : str
+        The column checked.
+    known : pandas.Index
+        The values a cell may hold, unique.
+    message : str or callable
+        What is wrong, for each unknown cell (see :meth:`Problems.flag`).
+    fix : str or callable
+        What to do about it.
+
+    Returns
+    -------
+    unknown : numpy.ndarray
+        The mask of the non-blank cells not in ``known``.
+    codes : numpy.ndarray
+        Each cell's position in ``known``; ``-1`` for a blank or unknown cell.
+    """
     text = table.frame[column]
     codes = known.get_indexer(text)
     unknown = (codes < 0) & ~empty_cells(text)

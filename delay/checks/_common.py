@@ -126,6 +126,12 @@ def model_of(case: Case, snap: Snapshot) -> ScheduleModel:
     -------
     ScheduleModel
         :func:`delay.cpm.prepare` of the snapshot with the case's calendars.
+
+    Raises
+    ------
+    CaseError
+        When the snapshot's network cannot be compiled (a loop in its logic, an unknown
+        calendar); a loaded case has been checked for both.
     """
     models = _MODELS.setdefault(case, {})
     key = _key(snap)
@@ -148,6 +154,12 @@ def scheduled(case: Case, snap: Snapshot) -> ScheduleResult:
     -------
     ScheduleResult
         ``model_of(case, snap).run()``, kept for as long as the case lives.
+
+    Raises
+    ------
+    CaseError
+        When the snapshot's network cannot be compiled (a loop in its logic, an unknown
+        calendar); a loaded case has been checked for both.
     """
     results = _RESULTS.setdefault(case, {})
     key = _key(snap)
