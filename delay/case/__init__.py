@@ -35,7 +35,7 @@ def load_case(path: str | Path) -> Case:
 
     Parameters
     ----------
-    path:
+    path : str or pathlib.Path
         A case folder (holding case.toml), a ``.xlsx`` workbook in the case's workbook
         form, or a folder holding only ``case.xlsx``.
 
@@ -59,6 +59,26 @@ def load_case(path: str | Path) -> Case:
         format (dates outside 1900-01-01 to 2200-12-31, more than 36,500 days, settings
         files or workbooks too large or too deeply nested); it lists every problem found,
         at most :data:`delay.errors.MAX_PROBLEMS_PER_FILE` per file.
+
+    Examples
+    --------
+    >>> import tempfile
+    >>> from pathlib import Path
+    >>> from delay.synth import synthesise
+    >>> folder = tempfile.TemporaryDirectory()
+    >>> case = load_case(synthesise(Path(folder.name) / "case", activities=12, updates=1))
+    >>> [snap.folder for snap in case.snapshots], case.asbuilt_snapshot is not None
+    (['baseline', 'u01'], True)
+    >>> folder.cleanup()
+
+    A path with nothing to read is one problem:
+
+    >>> from delay.errors import CaseError
+    >>> try:
+    ...     load_case("no/such/case")
+    ... except CaseError as error:
+    ...     print(error.problems[0].message)
+    there is no case folder or workbook at this path
     """
     return _load(Path(path)).case
 
@@ -79,7 +99,7 @@ def summarise(case: Case) -> dict[str, Any]:
 
     Parameters
     ----------
-    case:
+    case : Case
         A loaded case.
 
     Returns
@@ -95,6 +115,18 @@ def summarise(case: Case) -> dict[str, Any]:
         from, ``date_format``, ``decimal`` and the ``renamed`` headers), and the counts
         ``calendars``, ``events``, ``fragnets`` (inserted activities), ``fragnet_links``,
         ``elements``, ``sections``, ``extensions``, ``corrections`` and ``attributions``.
+
+    Examples
+    --------
+    >>> import tempfile
+    >>> from pathlib import Path
+    >>> from delay.synth import synthesise
+    >>> folder = tempfile.TemporaryDirectory()
+    >>> case = load_case(synthesise(Path(folder.name) / "case", activities=12, updates=1))
+    >>> facts = summarise(case)
+    >>> facts["snapshots"][1]["folder"], facts["snapshots"][1]["activities"], facts["asbuilt"]
+    ('u01', 12, True)
+    >>> folder.cleanup()
     """
     project = case.settings.project
 
@@ -139,10 +171,10 @@ def write_workbook(case_or_folder: Case | str | Path, path: str | Path) -> Path:
 
     Parameters
     ----------
-    case_or_folder:
+    case_or_folder : Case or str or pathlib.Path
         A loaded :class:`Case` (its files are read again from ``case.root``), or the path
         of a case folder or workbook.
-    path:
+    path : str or pathlib.Path
         Where to write the workbook.
 
     Returns
@@ -154,6 +186,18 @@ def write_workbook(case_or_folder: Case | str | Path, path: str | Path) -> Path:
     ------
     CaseError
         When the case does not load; nothing is written then.
+
+    Examples
+    --------
+    >>> import tempfile
+    >>> from pathlib import Path
+    >>> from delay.synth import synthesise
+    >>> folder = tempfile.TemporaryDirectory()
+    >>> case = load_case(synthesise(Path(folder.name) / "case", activities=12, updates=1))
+    >>> workbook = write_workbook(case, Path(folder.name) / "case.xlsx")
+    >>> [snap.folder for snap in load_case(workbook).snapshots]
+    ['baseline', 'u01']
+    >>> folder.cleanup()
     """
     root = case_or_folder.root if isinstance(case_or_folder, Case) else Path(case_or_folder)
     loaded = _load(Path(root), keep_uncorrected=True)

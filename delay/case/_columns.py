@@ -102,8 +102,21 @@ Text = str | Callable[[int], str]
 def require_columns(problems: Problems, table: RawTable | None) -> bool:
     """Record a problem for each required column missing from ``table``'s header.
 
-    Returns ``True`` when the table can be checked further. Missing optional columns of
-    the format are added as blank columns.
+    When none is missing, the format's optional columns the table lacks are added to it as
+    blank columns (:meth:`RawTable.ensure_columns`).
+
+    Parameters
+    ----------
+    problems : Problems
+        Where the problems found are recorded.
+    table : RawTable or None
+        The table as read, or ``None`` when the file could not be read.
+
+    Returns
+    -------
+    bool
+        ``True`` when the table can be checked further; ``False`` when it is ``None`` or a
+        required column (:data:`REQUIRED_COLUMNS`) is missing.
     """
     if table is None:
         return False
@@ -124,16 +137,66 @@ def require_columns(problems: Problems, table: RawTable | None) -> bool:
 
 
 def empty_cells(text: pd.Series) -> np.ndarray:
-    """Mask of the blank cells of a text column (a numpy comparison: fast on big tables)."""
+    """Mask of the blank cells of a text column (a numpy comparison: fast on big tables).
+
+    Parameters
+    ----------
+    text : pandas.Series
+        A column of stripped text, blank as ``""``.
+
+    Returns
+    -------
+    numpy.ndarray
+        One boolean per cell, true where the cell is ``""``.
+
+    Examples
+    --------
+    >>> import pandas as pd
+    >>> empty_cells(pd.Series(["A", ""])).tolist()
+    [False, True]
+    """
     return text.to_numpy() == ""
 
 
 def blank(table: RawTable, column: str) -> np.ndarray:
+    """Mask of the blank cells of ``column`` (:func:`empty_cells` of the table's column).
+
+    Parameters
+    ----------
+    table : RawTable
+        The table as read (all text).
+    column : str
+        One of its columns.
+
+    Returns
+    -------
+    numpy.ndarray
+        One boolean per row, true where the cell is ``""``.
+    """
     return empty_cells(table.frame[column])
 
 
 def required_cells(problems: Problems, table: RawTable, column: str, message: Text, fix: Text) -> np.ndarray:
-    """Flag blank cells of ``column``; returns the mask of blank cells."""
+    """Flag blank cells of ``column``.
+
+    Parameters
+    ----------
+    problems : Problems
+        Where the problems found are recorded.
+    table : RawTable
+        The table as read (all text).
+    column : str
+        The column checked.
+    message : str or callable
+        What is wrong, for each blank cell (see :meth:`Problems.flag`).
+    fix : str or callable
+        What to do about it.
+
+    Returns
+    -------
+    numpy.ndarray
+        The mask of blank cells.
+    """
     empty = blank(table, column)
     problems.flag(table, empty, column, message, fix)
     return empty
@@ -144,7 +207,27 @@ def dates(
 ) -> pd.Series:
     """``column`` as dates (``NaT`` for blank); text that is not a date is a problem.
 
-    ``required``, when given, is the message for a blank cell.
+    Dates are read in the table's ``date_format`` (ISO ``YYYY-MM-DD`` is understood too). A
+    date outside :data:`~delay.model.FIRST_DATE` to :data:`~delay.model.LAST_DATE` is a
+    problem as well. Bad cells become ``NaT``.
+
+    Parameters
+    ----------
+    problems : Problems
+        Where the problems found are recorded.
+    table : RawTable
+        The table as read (all text).
+    column : str
+        The column read.
+    required : str or callable or None, optional
+        The message for a blank cell; ``None`` lets a cell be blank.
+    fix_required : str or callable, optional
+        What to do about a blank cell (default: fill in the date as YYYY-MM-DD).
+
+    Returns
+    -------
+    pandas.Series
+        The dates, of dtype :data:`DATE_DTYPE`.
     """
     text = table.frame[column]
     empty = empty_cells(text)
@@ -175,9 +258,29 @@ def dates(
 
 
 def parse_dates(text: pd.Series, date_format: str = ISO_DATE) -> pd.Series:
-    """Dates (``DATE_DTYPE``, ``NaT`` for a blank or unreadable cell) of a text column
-    written in ``date_format``; ISO ``YYYY-MM-DD`` is understood too (workbook date cells
-    and corrections may use it)."""
+    """Read a text column of dates written in ``date_format``.
+
+    ISO ``YYYY-MM-DD`` is understood too, whatever ``date_format`` is (workbook date cells
+    and corrections may use it). Nothing is recorded as a problem: see :func:`dates`.
+
+    Parameters
+    ----------
+    text : pandas.Series
+        A column of stripped text, blank as ``""``.
+    date_format : str, optional
+        A strptime format; ISO ``%Y-%m-%d`` by default.
+
+    Returns
+    -------
+    pandas.Series
+        The dates (:data:`DATE_DTYPE`), ``NaT`` for a blank or unreadable cell.
+
+    Examples
+    --------
+    >>> import pandas as pd
+    >>> parse_dates(pd.Series(["31/03/2025", "2025-04-01", "", "soon"]), "%d/%m/%Y").tolist()
+    [Timestamp('2025-03-31 00:00:00'), Timestamp('2025-04-01 00:00:00'), NaT, NaT]
+    """
     empty = empty_cells(text)
     if empty.all():
         return pd.Series(np.full(len(text), np.datetime64("NaT"), dtype=DATE_DTYPE), index=text.index, name=text.name)
@@ -190,10 +293,29 @@ def parse_dates(text: pd.Series, date_format: str = ISO_DATE) -> pd.Series:
 
 
 def parse_numbers(text: pd.Series, decimal: str = ".") -> np.ndarray:
-    """Numbers (``float64``, ``NaN`` for a blank or unreadable cell) of a text column.
+    """Read a text column of numbers written with the decimal mark ``decimal``.
 
     With the decimal mark ``","``, a cell holding a point is unreadable: it may be a
-    thousands separator (``2.800``), which must never be read as a decimal point.
+    thousands separator (``2.800``), which must never be read as a decimal point. Nothing
+    is recorded as a problem: see :func:`numbers` and :func:`integers`.
+
+    Parameters
+    ----------
+    text : pandas.Series
+        A column of stripped text.
+    decimal : str, optional
+        The decimal mark, ``"."`` (default) or ``","``.
+
+    Returns
+    -------
+    numpy.ndarray
+        The numbers (``float64``), ``NaN`` for a blank or unreadable cell.
+
+    Examples
+    --------
+    >>> import pandas as pd
+    >>> parse_numbers(pd.Series(["2,5", "2.800", ""]), ",").tolist()
+    [2.5, nan, nan]
     """
     if decimal == ",":
         point = text.str.contains(".", regex=False).to_numpy()
@@ -260,9 +382,43 @@ def integers(
 ) -> pd.Series:
     """``column`` as ``int64`` whole numbers.
 
-    Blank cells take ``default``; when ``default`` is ``None`` a blank is a problem with
-    the message ``required``. Text that is not a number, a fraction, or a value below
-    ``minimum`` is a problem. Bad cells become ``default`` (or 0) in the result.
+    Text that is not a number, a fraction, a value beyond
+    :data:`~delay.model.LARGEST_DAYS` either way, or a value below ``minimum`` is a
+    problem.
+
+    Parameters
+    ----------
+    problems : Problems
+        Where the problems found are recorded.
+    table : RawTable
+        The table as read (all text).
+    column : str
+        The column read.
+    unit : str
+        What the numbers count, as the advice names it (``"work days"``, say).
+    default : int or None, optional
+        The value of a blank cell; ``None`` makes a blank a problem.
+    minimum : int or None, optional
+        The smallest value allowed; ``None`` for no bound.
+    required : str or callable or None, optional
+        The message for a blank cell when ``default`` is ``None`` (default: the
+        ``column`` is missing).
+
+    Returns
+    -------
+    pandas.Series
+        The whole numbers (``int64``); blank and bad cells hold ``default`` (or 0).
+
+    Examples
+    --------
+    >>> import numpy as np, pandas as pd
+    >>> from delay.case._problems import Problems, RawTable
+    >>> table = RawTable("links", "links.csv", pd.DataFrame({"lag": ["2", "", "1.5"]}), np.array([2, 3, 4]))
+    >>> problems = Problems()
+    >>> integers(problems, table, "lag", unit="work days", default=0).tolist()
+    [2, 0, 0]
+    >>> problems.count()
+    1
     """
     values, empty, not_number = _numbers(table.frame[column], table.decimal)
     problems.flag(table, not_number, column, "'{value}' is not a number", f"write a whole number of {unit}")
@@ -311,8 +467,31 @@ def numbers(
 ) -> pd.Series:
     """``column`` as ``float64`` (``NaN`` for blank).
 
-    ``whole`` makes a fraction a problem; ``minimum`` a smaller value, ``maximum`` a
-    larger one; ``required`` (a message) a blank cell. Bad cells become ``NaN``.
+    Text that is not a number (in the table's decimal mark) is a problem.
+
+    Parameters
+    ----------
+    problems : Problems
+        Where the problems found are recorded.
+    table : RawTable
+        The table as read (all text).
+    column : str
+        The column read.
+    unit : str, optional
+        What the numbers count, as the advice names it.
+    whole : bool, optional
+        Make a fraction a problem.
+    minimum : float or None, optional
+        A smaller value is a problem; ``None`` for no bound.
+    maximum : float or None, optional
+        A larger value is a problem; ``None`` for no bound.
+    required : str or callable or None, optional
+        The message for a blank cell; ``None`` lets a cell be blank.
+
+    Returns
+    -------
+    pandas.Series
+        The numbers (``float64``); blank and bad cells are ``NaN``.
     """
     values, empty, not_number = _numbers(table.frame[column], table.decimal)
     what = f"a whole number of {unit}" if whole else (f"a number of {unit}" if unit else "a number")
@@ -354,8 +533,34 @@ def choices(
 ) -> pd.Series:
     """``column`` as one of ``allowed`` (compared without regard to case).
 
-    Blank cells take ``default`` (or stay blank, or are a problem when ``required``).
-    Values are stored in the case of ``allowed``. See :func:`coded_choices`.
+    An unknown value is a problem. See :func:`coded_choices`, which also returns each
+    cell's position in ``allowed``.
+
+    Parameters
+    ----------
+    problems : Problems
+        Where the problems found are recorded.
+    table : RawTable
+        The table as read (all text).
+    column : str
+        The column read.
+    allowed : iterable of str
+        The values allowed, written as they are to be stored.
+    default : str or None, optional
+        The value of a blank cell (one of ``allowed``); ``None`` leaves it blank.
+    upper : bool, optional
+        Compare a cell not found as written in upper case (``True``, for codes such as
+        ``FS``) or in lower case (``False``).
+    what : str, optional
+        What a value is, as the message names it (``"link type"``, say).
+    required : str or callable or None, optional
+        The message for a blank cell; ``None`` lets a cell be blank.
+
+    Returns
+    -------
+    pandas.Series
+        The values as text, in the case of ``allowed``; an unknown value is kept as
+        changed to upper (or lower) case.
     """
     return coded_choices(problems, table, column, allowed, default=default, upper=upper, what=what, required=required)[
         0
@@ -373,11 +578,47 @@ def coded_choices(
     what: str = "value",
     required: Text | None = None,
 ) -> tuple[pd.Series, np.ndarray]:
-    """:func:`choices`, and each cell's position in ``allowed`` (``-1`` for a blank without
-    default or an unknown value), found in the same look-up.
+    """:func:`choices`, and each cell's position in ``allowed``, found in the same look-up.
 
     Cells already in the case of ``allowed`` are looked up as they are; only the others are
     changed to upper (or lower) case and looked up again.
+
+    Parameters
+    ----------
+    problems : Problems
+        Where the problems found are recorded.
+    table : RawTable
+        The table as read (all text).
+    column : str
+        The column read.
+    allowed : iterable of str
+        The values allowed, written as they are to be stored.
+    default : str or None, optional
+        The value of a blank cell (one of ``allowed``); ``None`` leaves it blank.
+    upper : bool, optional
+        Compare a cell not found as written in upper case (``True``) or lower case.
+    what : str, optional
+        What a value is, as the message names it.
+    required : str or callable or None, optional
+        The message for a blank cell; ``None`` lets a cell be blank.
+
+    Returns
+    -------
+    values : pandas.Series
+        As :func:`choices` returns them.
+    codes : numpy.ndarray
+        Each cell's position in ``allowed``; ``-1`` for a blank without default or an
+        unknown value.
+
+    Examples
+    --------
+    >>> import numpy as np, pandas as pd
+    >>> from delay.case._problems import Problems, RawTable
+    >>> table = RawTable("links", "links.csv", pd.DataFrame({"type": ["fs", "", "XX"]}), np.array([2, 3, 4]))
+    >>> problems = Problems()
+    >>> values, codes = coded_choices(problems, table, "type", ["FS", "SS", "FF", "SF"], default="FS", upper=True)
+    >>> values.tolist(), codes.tolist(), problems.count()
+    (['FS', 'FS', 'XX'], [0, 0, -1], 1)
     """
     allowed = tuple(allowed)
     index = pd.Index(allowed)
@@ -420,11 +661,28 @@ def duplicates(
 ) -> None:
     """Flag every row whose ``columns`` repeat an earlier row's.
 
-    ``describe(position)`` names the repeated thing (``"activity id 'A'"``); the message
-    adds the row of the first occurrence. Rows where ``skip`` is true are ignored.
-    ``codes``, when given, is one whole number per row standing for its ``columns`` (equal
-    exactly where they are equal: the link ends' activity numbers, say), compared instead
-    of the text.
+    The message is ``describe(position)`` followed by "is given twice (first on row N)",
+    N being the spreadsheet row of the first occurrence.
+
+    Parameters
+    ----------
+    problems : Problems
+        Where the problems found are recorded.
+    table : RawTable
+        The table as read (all text).
+    columns : list of str
+        The columns that together must be unique.
+    column : str
+        The column the problems are reported in.
+    describe : callable
+        ``describe(position)`` names the repeated thing (``"activity id 'A'"``).
+    fix : str
+        What to do about a repeated row.
+    skip : numpy.ndarray or None, optional
+        One boolean per row; rows where it is true are ignored.
+    codes : numpy.ndarray or None, optional
+        One whole number per row standing for its ``columns`` (equal exactly where they
+        are equal: the link ends' activity numbers, say), compared instead of the text.
     """
     key = _combined(table, columns) if codes is None else pd.Series(np.asarray(codes, dtype=np.int64))
     if skip is not None:
@@ -447,6 +705,24 @@ def member(values: pd.Series, known) -> np.ndarray:
 
     Against an index of unique values (the case's activity ids) the index's own hash
     table, built once, is used; nothing is built for an empty column.
+
+    Parameters
+    ----------
+    values : pandas.Series
+        The cells looked up.
+    known : pandas.Index or collection of str
+        The values known.
+
+    Returns
+    -------
+    numpy.ndarray
+        One boolean per cell of ``values``, true where it is in ``known``.
+
+    Examples
+    --------
+    >>> import pandas as pd
+    >>> member(pd.Series(["A", "Z"]), pd.Index(["A", "B"])).tolist()
+    [True, False]
     """
     if not len(values):
         return np.zeros(0, dtype=bool)
@@ -456,7 +732,28 @@ def member(values: pd.Series, known) -> np.ndarray:
 
 
 def references(problems: Problems, table: RawTable, column: str, known, message: Text, fix: Text) -> np.ndarray:
-    """Flag non-blank cells of ``column`` not in ``known``; returns the mask of them."""
+    """Flag non-blank cells of ``column`` not in ``known``.
+
+    Parameters
+    ----------
+    problems : Problems
+        Where the problems found are recorded.
+    table : RawTable
+        The table as read (all text).
+    column : str
+        The column checked.
+    known : pandas.Index or collection of str
+        The values a cell may hold (see :func:`member`).
+    message : str or callable
+        What is wrong, for each unknown cell (see :meth:`Problems.flag`).
+    fix : str or callable
+        What to do about it.
+
+    Returns
+    -------
+    numpy.ndarray
+        The mask of the unknown cells.
+    """
     text = table.frame[column]
     unknown = ~empty_cells(text) & ~member(text, known)
     problems.flag(table, unknown, column, message, fix)
@@ -466,8 +763,30 @@ def references(problems: Problems, table: RawTable, column: str, known, message:
 def coded_references(
     problems: Problems, table: RawTable, column: str, known: pd.Index, message: Text, fix: Text
 ) -> tuple[np.ndarray, np.ndarray]:
-    """:func:`references` against an index of unique ``known`` values, and each cell's
-    position in it (``-1`` for a blank or unknown cell), found in the same look-up."""
+    """:func:`references` against an index of unique ``known`` values, and each cell's position in it.
+
+    Parameters
+    ----------
+    problems : Problems
+        Where the problems found are recorded.
+    table : RawTable
+        The table as read (all text).
+    column : str
+        The column checked.
+    known : pandas.Index
+        The values a cell may hold, unique.
+    message : str or callable
+        What is wrong, for each unknown cell (see :meth:`Problems.flag`).
+    fix : str or callable
+        What to do about it.
+
+    Returns
+    -------
+    unknown : numpy.ndarray
+        The mask of the non-blank cells not in ``known``.
+    codes : numpy.ndarray
+        Each cell's position in ``known``; ``-1`` for a blank or unknown cell.
+    """
     text = table.frame[column]
     codes = known.get_indexer(text)
     unknown = (codes < 0) & ~empty_cells(text)
@@ -479,6 +798,21 @@ def id_lists(problems: Problems, table: RawTable, column: str, known, where: str
     """Flag rows of ``column`` (``;``-separated ids) naming an id not in ``known``.
 
     The message reads "'X' is not in {where}" (or "'X', 'Y' are not in {where}").
+
+    Parameters
+    ----------
+    problems : Problems
+        Where the problems found are recorded.
+    table : RawTable
+        The table as read (all text).
+    column : str
+        The column of ``;``-separated ids.
+    known : pandas.Index or collection of str
+        The ids a list may name (see :func:`member`).
+    where : str
+        What ``known`` is, as the message names it (``"the baseline"``, say).
+    fix : str
+        What to do about an unknown id.
     """
     if not len(table):
         return
@@ -499,7 +833,22 @@ def id_lists(problems: Problems, table: RawTable, column: str, known, where: str
 
 
 def assemble(table: RawTable, typed: dict[str, pd.Series]) -> pd.DataFrame:
-    """The table with its stable columns in order (typed where given), then the rest as text."""
+    """The table with its stable columns in order (typed where given), then the rest as text.
+
+    Parameters
+    ----------
+    table : RawTable
+        The table as read; it must have every column of :data:`delay.model.COLUMNS` for
+        its name (see :func:`require_columns`).
+    typed : dict of str to pandas.Series
+        The typed columns, by name; the other columns are kept as text.
+
+    Returns
+    -------
+    pandas.DataFrame
+        The columns of :data:`delay.model.COLUMNS` in order, then the table's other
+        columns (unknown columns are kept), on a fresh ``RangeIndex``.
+    """
     frame = table.frame
     stable = COLUMNS[table.name]
     data = {}

@@ -28,8 +28,18 @@ ASBUILT = "asbuilt"
 class CorrectionTarget:
     """What a correction's ``snapshot`` cell may name.
 
-    ``label`` is stored in :attr:`Correction.snapshot`; ``activities`` is the as-built
-    record for the as-built target, which has no links.
+    Parameters
+    ----------
+    label : str
+        The name stored in :attr:`Correction.snapshot` for a correction of this target.
+    activities : RawTable or None
+        The activities as read (for the as-built target, the as-built record); ``None``
+        when the file could not be read.
+    links : RawTable or None
+        The links as read; ``None`` for the as-built target, which has no links, or when
+        the file could not be read.
+    asbuilt : bool, optional
+        ``True`` for the as-built target.
     """
 
     label: str

@@ -66,10 +66,26 @@ _SHEET_COLUMNS = {"activities": ("snapshot",), "links": ("snapshot",)}
 class Dialect:
     """What was read for one file: the facts ``delay validate`` prints.
 
-    ``delimiter_source`` and ``encoding_source`` say where each came from:
-    ``"declared"`` ([input] of case.toml), ``"detected"`` (the header row, or a byte-order
-    mark) or ``"default"``. ``renamed`` maps each header of the file that was read as
-    another name to that name.
+    Parameters
+    ----------
+    file : str
+        The file (or ``case.xlsx:sheet``) as problems name it.
+    delimiter : str
+        The delimiter the file was read with.
+    delimiter_source : str
+        Where it came from: ``"declared"`` ([input] of case.toml), ``"detected"`` (the
+        header row) or ``"default"``.
+    encoding : str
+        The encoding the file was read in.
+    encoding_source : str
+        Where it came from: ``"declared"``, ``"detected"`` (a byte-order mark) or
+        ``"default"``.
+    date_format : str
+        The strptime format its dates were read in.
+    decimal : str
+        Its decimal mark, ``"."`` or ``","``.
+    renamed : mapping of str to str, optional
+        Each header of the file that was read as another name, to that name.
     """
 
     file: str
@@ -82,7 +98,20 @@ class Dialect:
     renamed: Mapping[str, str] = field(default_factory=dict)
 
     def as_dict(self) -> dict[str, Any]:
-        """The dialect as a dictionary ready for ``json.dumps``."""
+        """The dialect as a dictionary ready for ``json.dumps``.
+
+        Returns
+        -------
+        dict
+            The fields by name (``file``, ``delimiter``, ``delimiter_source``,
+            ``encoding``, ``encoding_source``, ``date_format``, ``decimal``), and
+            ``renamed`` as a plain dict.
+
+        Examples
+        --------
+        >>> Dialect("links.csv", ";", "declared", "utf-8", "default", "%d/%m/%Y", ",").as_dict()["renamed"]
+        {}
+        """
         return {
             "file": self.file,
             "delimiter": self.delimiter,
@@ -100,7 +129,23 @@ class DecodeProblem(ValueError):
 
 
 def header_key(text: str) -> str:
-    """A header as it is matched: surrounding spaces off, case folded."""
+    """A header as it is matched: surrounding spaces off, case folded.
+
+    Parameters
+    ----------
+    text : str
+        A header as written in a file (anything else is turned into text first).
+
+    Returns
+    -------
+    str
+        The header stripped and case-folded.
+
+    Examples
+    --------
+    >>> header_key(" Task No ")
+    'task no'
+    """
     return str(text).strip().casefold()
 
 
@@ -177,11 +222,14 @@ def _parse_columns(given: Any, report: Report) -> dict[str, dict[str, str]]:
 def parse_input(given: Any, report: Report) -> InputSettings:
     """The ``[input]`` table of the settings, checked.
 
+    Each of ``delimiter``, ``encoding``, ``date_format``, ``decimal`` and
+    ``[input.columns.TABLE]`` is checked; any other key is a problem.
+
     Parameters
     ----------
-    given:
+    given : dict or None
         The ``input`` entry of the settings as read (``None`` when there is none).
-    report:
+    report : callable
         ``report(key, message, fix)`` records a problem with the setting ``key``.
 
     Returns
@@ -262,12 +310,30 @@ def decode(data: bytes, declared: str | None) -> tuple[str, str, str]:
     """The text of a file, the encoding it was read in and where that came from.
 
     A byte-order mark decides (UTF-8 or UTF-16), whatever is declared; otherwise the
-    declared encoding, else UTF-8.
+    declared encoding, else UTF-8. A leading byte-order mark is not part of the text.
+
+    Parameters
+    ----------
+    data : bytes
+        The file's contents.
+    declared : str or None
+        The encoding [input] of case.toml declares (a Python codec name), or ``None``.
+
+    Returns
+    -------
+    tuple of (str, str, str)
+        The text, the encoding's name, and where it came from (``"detected"``,
+        ``"declared"`` or ``"default"``).
 
     Raises
     ------
     DecodeProblem
         When the bytes are not text in that encoding; its message says where.
+
+    Examples
+    --------
+    >>> decode("id;name".encode("cp1252"), "cp1252")
+    ('id;name', 'cp1252', 'declared')
     """
     for mark, bom_codec, name in _BOMS:
         if data.startswith(mark):
@@ -286,8 +352,18 @@ def decode(data: bytes, declared: str | None) -> tuple[str, str, str]:
 
 
 def detect_delimiter(header_line: str) -> str:
-    """The delimiter of a CSV file from its header row: the candidate (``,`` ``;`` tab
-    ``|``) found most often outside quotes; ``,`` when none is there (a single column).
+    """The delimiter of a CSV file, detected from its header row.
+
+    Parameters
+    ----------
+    header_line : str
+        The file's first line.
+
+    Returns
+    -------
+    str
+        The candidate (``,`` ``;`` tab ``|``) found most often outside double quotes;
+        ``,`` when none is there (a single column).
 
     Examples
     --------
@@ -306,6 +382,29 @@ def rename_header(table: str, header: list[str], settings: InputSettings) -> tup
     Each header is matched ignoring case and surrounding spaces: first against
     ``[input.columns.TABLE]``, then against the table's own columns; any other header is
     kept as written (spaces taken off).
+
+    Parameters
+    ----------
+    table : str
+        The table's name in the case format (``"activities"``, ...).
+    header : list of str
+        The file's header row as read.
+    settings : InputSettings
+        The [input] settings of the case; their ``columns`` map headers to columns.
+
+    Returns
+    -------
+    names : list of str
+        The column name of each header, in order.
+    renamed : dict of str to str
+        Each header (spaces taken off) whose name differs from it, to that name.
+
+    Examples
+    --------
+    >>> from delay.model import InputSettings
+    >>> settings = InputSettings(columns={"activities": {"task no": "id"}})
+    >>> rename_header("activities", [" Task No ", "NAME", "extra"], settings)
+    (['id', 'name', 'extra'], {'Task No': 'id', 'NAME': 'name'})
     """
     mapped = settings.columns.get(table, {})
     own = {header_key(c): c for c in COLUMNS.get(table, ()) + _SHEET_COLUMNS.get(table, ())}

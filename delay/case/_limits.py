@@ -62,7 +62,7 @@ def toml_depth(text: str) -> int:
 
     Parameters
     ----------
-    text:
+    text : str
         The TOML text.
 
     Returns
@@ -96,11 +96,11 @@ def check_toml(data: bytes, file: str, problems: Problems) -> bool:
 
     Parameters
     ----------
-    data:
+    data : bytes
         The file's bytes (a UTF-8 byte-order mark already taken off or not).
-    file:
+    file : str
         The file's name in problems.
-    problems:
+    problems : Problems
         Where a problem is recorded.
 
     Returns
@@ -151,11 +151,11 @@ def check_workbook(path: Path, name: str, problems: Problems) -> bool:
 
     Parameters
     ----------
-    path:
+    path : pathlib.Path
         The workbook.
-    name:
+    name : str
         Its name in problems (``case.xlsx``).
-    problems:
+    problems : Problems
         Where a problem is recorded.
 
     Returns

@@ -49,7 +49,19 @@ _SNAPSHOT_KINDS = ("baseline", "update")
 
 @dataclass
 class Loaded:
-    """The result of :func:`load`: the case, and (on request) the tables as read."""
+    """The result of :func:`load`: the case, and (on request) the tables as read.
+
+    Parameters
+    ----------
+    case : Case
+        The loaded, corrected and checked case.
+    source : CaseSource
+        What was read from the case's files, before typing.
+    uncorrected : dict of str to object, optional
+        With ``keep_uncorrected``, copies of the tables as read, before corrections:
+        ``"tables"`` (the case-wide tables by name) and ``"snapshots"`` (a list of
+        (folder, activities, links)); empty otherwise.
+    """
 
     case: Case
     source: CaseSource
@@ -76,8 +88,24 @@ class _SnapshotFacts:
 def load(path: Path, *, keep_uncorrected: bool = False) -> Loaded:
     """Load and check the case at ``path``; see :func:`delay.case.load_case`.
 
-    ``keep_uncorrected`` keeps a copy of every table as read, before corrections, for
-    writing the case in another form.
+    Parameters
+    ----------
+    path : pathlib.Path
+        A case folder, a ``.xlsx`` workbook, or a folder holding only ``case.xlsx``.
+    keep_uncorrected : bool, optional
+        Keep a copy of every table as read, before corrections, for writing the case in
+        another form (:func:`delay.case.write_workbook`).
+
+    Returns
+    -------
+    Loaded
+        The case, what was read, and (with ``keep_uncorrected``) the uncorrected tables.
+
+    Raises
+    ------
+    CaseError
+        When anything in the case is missing or wrong; it lists every problem found, at
+        most :data:`delay.errors.MAX_PROBLEMS_PER_FILE` per file.
     """
     problems = Problems()
     source = open_source(Path(path), problems)

@@ -24,9 +24,37 @@ __all__ = ["RawTable", "Problems"]
 class RawTable:
     """A table as read, before typing: every cell is a stripped string (blank is ``""``).
 
-    ``rows`` holds, for each row of ``frame`` (by position), the spreadsheet row it came
-    from. A row added by a correction has a negative code there that ``origins`` maps to
-    the (file, row) of the correction that added it.
+    Parameters
+    ----------
+    name : str
+        The table's name in the case format (``"activities"``, ``"links"``, ...), the key
+        of :data:`delay.model.COLUMNS`.
+    file : str
+        The file (or ``case.xlsx:sheet``) as problems name it.
+    frame : pandas.DataFrame
+        The cells, all text.
+    rows : numpy.ndarray
+        For each row of ``frame`` (by position), the spreadsheet row it came from (the
+        header is row 1). A row added by a correction has a negative code here.
+    path : pathlib.Path or None, optional
+        The file on disk, when there is one.
+    origins : dict of int to (str, int), optional
+        For each negative code in ``rows``, the (file, row) of the correction that added
+        the row.
+    present : bool, optional
+        ``False`` for the empty stand-in of an optional file that the case does not have.
+    date_format : str, optional
+        How the file writes dates ([input] of case.toml): a strptime format; ISO dates are
+        understood too.
+    decimal : str, optional
+        The file's decimal mark, ``"."`` or ``","``.
+
+    Examples
+    --------
+    >>> import numpy as np, pandas as pd
+    >>> table = RawTable("links", "links.csv", pd.DataFrame({"pred": ["A"], "succ": ["B"]}), np.array([2]))
+    >>> len(table), table.where(0)
+    (1, ('links.csv', 2))
     """
 
     name: str
@@ -46,20 +74,48 @@ class RawTable:
         return len(self.frame)
 
     def where(self, position: int) -> tuple[str, int]:
-        """The (file, spreadsheet row) of the row at ``position``."""
+        """The (file, spreadsheet row) of the row at ``position``.
+
+        Parameters
+        ----------
+        position : int
+            The row's position in :attr:`frame` (0 for the first data row).
+
+        Returns
+        -------
+        tuple of (str, int)
+            This table's file and the row's spreadsheet row, or, for a row a correction
+            added, the file and row of that correction.
+        """
         row = int(self.rows[position])
         if row < 0:
             return self.origins[row]
         return self.file, row
 
     def ensure_columns(self, columns) -> None:
-        """Add each missing column of ``columns`` as a blank column."""
+        """Add each missing column of ``columns`` as a blank column.
+
+        Parameters
+        ----------
+        columns : iterable of str
+            The column names the table must have; those already there are left as they
+            are.
+        """
         for column in columns:
             if column not in self.frame.columns:
                 self.frame[column] = pd.Series([""] * len(self.frame), dtype="str", index=self.frame.index)
 
     def keep(self, mask: np.ndarray) -> None:
-        """Keep only the rows where ``mask`` is true."""
+        """Keep only the rows where ``mask`` is true.
+
+        :attr:`frame` is renumbered from 0; :attr:`rows` keeps each kept row's
+        spreadsheet row.
+
+        Parameters
+        ----------
+        mask : numpy.ndarray
+            One boolean per row of :attr:`frame`.
+        """
         self.frame = self.frame.loc[mask].reset_index(drop=True)
         self.rows = self.rows[mask]
 
@@ -68,7 +124,24 @@ Message = str | Callable[[int], str]
 
 
 class Problems:
-    """Every problem found so far, grouped by file."""
+    """Every problem found so far, grouped by file.
+
+    At most :data:`~delay.errors.MAX_PROBLEMS_PER_FILE` problems are kept per file; the
+    rest are counted. :meth:`raise_if_any` turns them into one
+    :class:`~delay.errors.CaseError`.
+
+    Examples
+    --------
+    >>> import numpy as np, pandas as pd
+    >>> table = RawTable("links", "links.csv", pd.DataFrame({"pred": ["A", ""]}), np.array([2, 3]))
+    >>> problems = Problems()
+    >>> problems.flag(table, table.frame["pred"].to_numpy() == "", "pred", "the predecessor is missing")
+    1
+    >>> problems.raise_if_any()
+    Traceback (most recent call last):
+    ...
+    delay.errors.CaseError: links.csv, row 3, column 'pred': the predecessor is missing
+    """
 
     def __init__(self) -> None:
         self._items: list[Problem] = []
@@ -80,13 +153,43 @@ class Problems:
         return bool(self._items)
 
     def count(self, file: str | None = None) -> int:
-        """How many problems were found (in ``file``, or in all files)."""
+        """How many problems were found (in ``file``, or in all files).
+
+        Parameters
+        ----------
+        file : str or None, optional
+            The file to count; ``None`` counts every file.
+
+        Returns
+        -------
+        int
+            The problems found, listed or not (beyond the per-file cap they are only
+            counted).
+        """
         if file is None:
             return sum(self._found.values())
         return self._found[file]
 
     def add(self, file: str, message: str, fix: str = "", row: int | None = None, column: str | None = None) -> None:
-        """Record one problem."""
+        """Record one problem.
+
+        Beyond :data:`~delay.errors.MAX_PROBLEMS_PER_FILE` problems in ``file`` the problem
+        is only counted. When the cell was set by a correction, the message says which row
+        of corrections.csv set it.
+
+        Parameters
+        ----------
+        file : str
+            The file (or ``case.xlsx:sheet``) the problem is in.
+        message : str
+            What is wrong, in plain words.
+        fix : str, optional
+            What the user should do.
+        row : int or None, optional
+            Spreadsheet row (header = 1), or ``None`` when the problem is not in a row.
+        column : str or None, optional
+            The column, or ``None``.
+        """
         self._found[file] += 1
         if self._found[file] > MAX_PROBLEMS_PER_FILE:
             return
@@ -97,18 +200,56 @@ class Problems:
         self._items.append(Problem(file=file, message=message, fix=fix, row=row, column=column))
 
     def full(self, file: str) -> bool:
-        """Whether ``file`` already has as many problems as can be listed."""
+        """Whether ``file`` already has as many problems as can be listed.
+
+        Parameters
+        ----------
+        file : str
+            The file (or ``case.xlsx:sheet``).
+
+        Returns
+        -------
+        bool
+            ``True`` when ``file`` has :data:`~delay.errors.MAX_PROBLEMS_PER_FILE`
+            problems or more.
+        """
         return self._found[file] >= MAX_PROBLEMS_PER_FILE
 
     def more(self, file: str, count: int) -> None:
-        """Count ``count`` further problems of ``file`` that will not be listed."""
+        """Count ``count`` further problems of ``file`` that will not be listed.
+
+        Parameters
+        ----------
+        file : str
+            The file (or ``case.xlsx:sheet``).
+        count : int
+            How many problems to add to its count.
+        """
         self._found[file] += count
 
     def flag(self, table: RawTable, mask, column: str | None, message: Message, fix: Message = "") -> int:
         """Record a problem for every row of ``table`` where ``mask`` is true.
 
-        ``message`` and ``fix`` are text, in which ``{value}`` stands for the row's cell in
-        ``column``, or functions of the row's position. Returns the number of bad rows.
+        Only as many messages are built as can still be listed; the other rows are counted.
+
+        Parameters
+        ----------
+        table : RawTable
+            The table checked.
+        mask : array_like of bool
+            One value per row of ``table``: true for a bad row.
+        column : str or None
+            The column the problems are in, or ``None``.
+        message : str or callable
+            What is wrong: text, in which ``{value}`` stands for the row's cell in
+            ``column``, or a function of the row's position returning the text.
+        fix : str or callable, optional
+            What to do, in the same forms as ``message``.
+
+        Returns
+        -------
+        int
+            The number of bad rows (listed or not).
         """
         mask = np.asarray(mask, dtype=bool)
         bad = np.flatnonzero(mask)
@@ -133,7 +274,13 @@ class Problems:
 
         Within a file the problems are sorted by row. A file with more problems than
         :data:`MAX_PROBLEMS_PER_FILE` lists the first ones and a last line saying how many
-        more there are, so that no file lists more than that many lines.
+        more there are, so that no file lists more than that many lines. Nothing happens
+        when no problem was found.
+
+        Raises
+        ------
+        CaseError
+            When at least one problem was recorded.
         """
         if not self._items:
             return

@@ -38,7 +38,26 @@ _DATE_TEXT = re.compile(r"^\d{4}-\d{2}-\d{2}$")
 
 
 def parse_date_value(value: Any) -> dt.date | None:
-    """A TOML or workbook date, or ISO text ``YYYY-MM-DD``; ``None`` when it is not one."""
+    """A TOML or workbook date, or ISO text ``YYYY-MM-DD``; ``None`` when it is not one.
+
+    Parameters
+    ----------
+    value : Any
+        A setting's value as read: a :class:`datetime.date`, a
+        :class:`datetime.datetime` (a workbook cell), text, or anything else.
+
+    Returns
+    -------
+    datetime.date or None
+        The date; ``None`` for a date-time with a time of day or a time zone, text that is
+        not an ISO date, or any other value.
+
+    Examples
+    --------
+    >>> import datetime as dt
+    >>> parse_date_value(" 2025-01-06 "), parse_date_value(dt.datetime(2025, 1, 6, 12)), parse_date_value(20250106)
+    (datetime.date(2025, 1, 6), None, None)
+    """
     if isinstance(value, dt.datetime):
         return value.date() if value.time() == dt.time(0) and value.tzinfo is None else None
     if isinstance(value, dt.date):
@@ -129,19 +148,27 @@ def parse_settings(
 ) -> CaseSettings | None:
     """Build :class:`CaseSettings` from the settings as read, recording every problem.
 
+    Each known section ([project], [schedule], [commercial], [analysis], [report]) is built
+    with its defaults for the settings not given; a required setting that is missing, a
+    value of the wrong kind, or a contract completion before the contract start is a
+    problem. Unknown sections and keys are kept in :attr:`CaseSettings.extra`.
+
     Parameters
     ----------
-    source:
-        The nested mapping read from case.toml or the ``case`` sheet.
-    input_settings:
-        ``[input]``, already read and checked with the files it describes.
-    problems:
+    source : SettingsSource
+        The settings read from case.toml or the ``case`` sheet: its ``values`` are the
+        nested mapping, its ``locate`` gives a setting's row and column.
+    problems : Problems
         Where problems are recorded; each names the file and the setting (``section.key``).
+    input_settings : InputSettings or None, optional
+        ``[input]``, already read and checked with the files it describes; ``None`` for
+        the defaults.
 
     Returns
     -------
     CaseSettings or None
-        ``None`` when a problem was found.
+        The settings; ``None`` when a problem was found in the file or [project] could not
+        be built.
     """
     file = source.file
     found_before = problems.count(file)

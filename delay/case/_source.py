@@ -74,8 +74,16 @@ OPTIONAL_FILES = (
 class SettingsSource:
     """The settings as read: nested mapping ``{section: {key: value}}``.
 
-    ``locate`` turns a dotted key (``"schedule.progress"``) into the (row, column) a
-    problem with it should name.
+    Parameters
+    ----------
+    values : dict of str to Any
+        The settings, ``{section: {key: value}}``, as TOML or the ``case`` sheet gives
+        them.
+    file : str
+        The file (``case.toml``) or sheet (``case.xlsx:case``) as problems name it.
+    locate : callable
+        Turns a dotted key (``"schedule.progress"``) into the (row, column) a problem
+        with it should name (row ``None`` for a TOML file).
     """
 
     values: dict[str, Any]
@@ -85,7 +93,26 @@ class SettingsSource:
 
 @dataclass
 class SnapshotSource:
-    """One snapshot as read: its snapshot.toml facts and its two tables."""
+    """One snapshot as read: its snapshot.toml facts and its two tables.
+
+    Parameters
+    ----------
+    folder : str
+        The snapshot's folder name under snapshots/ (the ``snapshot`` column of a
+        workbook).
+    facts : dict of str to Any or None
+        snapshot.toml (or the snapshot's row of the ``snapshots`` sheet) as read;
+        ``None`` when it could not be read.
+    file : str
+        That file or sheet, as problems name it.
+    locate : callable
+        Turns a dotted key (``"schedule.progress"``) into the (row, column) a problem
+        with it should name (row ``None`` for a TOML file).
+    activities : RawTable or None, optional
+        activities.csv as read; ``None`` when it could not be read.
+    links : RawTable or None, optional
+        links.csv as read; ``None`` when it could not be read.
+    """
 
     folder: str
     facts: dict[str, Any] | None  # None when snapshot.toml could not be read
@@ -97,7 +124,33 @@ class SnapshotSource:
 
 @dataclass
 class CaseSource:
-    """Everything read from a case folder or workbook, before typing and checking."""
+    """Everything read from a case folder or workbook, before typing and checking.
+
+    Parameters
+    ----------
+    root : pathlib.Path
+        The case folder, or the workbook's path.
+    workbook : bool
+        ``True`` for the workbook form.
+    settings : SettingsSource or None
+        case.toml or the ``case`` sheet; ``None`` when it could not be read.
+    tables : dict of str to RawTable or None
+        The case-wide tables by name (calendars and the optional files); ``None`` for one
+        that could not be read.
+    snapshots : list of SnapshotSource
+        The snapshots found.
+    input_files : list of pathlib.Path, optional
+        Every file read, for the report's manifest.
+    snapshots_found : bool, optional
+        ``False`` when the snapshots/ folder or the snapshots sheet is missing (already
+        reported).
+    opinion : str, optional
+        The analyst's opinion (opinion.md), ``""`` when there is none.
+    input : InputSettings, optional
+        ``[input]`` of the settings: the dialect the files are read in.
+    dialects : list of Dialect, optional
+        What was read for each CSV file or sheet, in reading order.
+    """
 
     root: Path
     workbook: bool
@@ -237,9 +290,30 @@ def read_csv_table(
     """Read one CSV file of the case into a :class:`RawTable` of strings.
 
     The file is read in the dialect of ``settings`` (``[input]`` of case.toml: encoding,
-    delimiter, header names; detected where not declared); what was read is appended to
-    ``dialects``. Returns ``None`` (with a problem recorded) when the file cannot be read
-    as a table.
+    delimiter, header names; detected where not declared). Nothing is typed here.
+
+    Parameters
+    ----------
+    path : pathlib.Path
+        The file.
+    name : str
+        The table's name in the case format (``"activities"``, ...).
+    file : str
+        The file as problems name it (``snapshots/baseline/activities.csv``).
+    problems : Problems
+        Where a problem is recorded.
+    settings : InputSettings or None, optional
+        The [input] settings; ``None`` for the defaults (UTF-8, delimiter detected, ISO
+        dates, decimal point).
+    dialects : list of Dialect or None, optional
+        When given, what was read for the file is appended to it.
+
+    Returns
+    -------
+    RawTable or None
+        The table (spreadsheet rows from 2); ``None``, with a problem recorded, when the
+        file cannot be read, is not text in its encoding, is empty, or is not a table
+        (a row with more cells than the header, broken quoting).
     """
     settings = settings or InputSettings()
     try:
@@ -317,8 +391,29 @@ def read_csv_table(
 
 
 def cell_text(value: Any, decimal_comma: bool = False) -> str:
-    """A workbook cell as the text a CSV file would hold for it (a number with a decimal
-    comma when ``decimal_comma``: the ``decimal`` of [input] applies to the sheet's text)."""
+    """A workbook cell as the text a CSV file would hold for it.
+
+    Parameters
+    ----------
+    value : Any
+        The cell's value as openpyxl reads it.
+    decimal_comma : bool, optional
+        Write a fraction with a decimal comma (the ``decimal`` of [input] applies to the
+        sheet's text as to a CSV file's).
+
+    Returns
+    -------
+    str
+        ``""`` for an empty cell, ``yes``/``no`` for a boolean, an ISO date for a date (a
+        date-time with a time of day as ``YYYY-MM-DD HH:MM:SS``), a whole float without
+        its ``.0``, else the value's text.
+
+    Examples
+    --------
+    >>> import datetime as dt
+    >>> [cell_text(v) for v in (None, True, 5.0, dt.datetime(2025, 3, 31))], cell_text(2.5, decimal_comma=True)
+    (['', 'yes', '5', '2025-03-31'], '2,5')
+    """
     if value is None:
         return ""
     if isinstance(value, str):
@@ -809,7 +904,21 @@ def _read_opinion(source: CaseSource, folder: Path, problems: Problems) -> None:
 def open_source(path: Path, problems: Problems) -> CaseSource | None:
     """Read the case at ``path`` (a folder, a workbook, or a folder holding only a workbook).
 
-    Returns ``None`` when there is nothing to read at all (the problem is recorded).
+    A folder without case.toml but with a ``case.xlsx`` is read as that workbook. Problems
+    in the files read are recorded, not raised.
+
+    Parameters
+    ----------
+    path : pathlib.Path
+        The case folder or workbook.
+    problems : Problems
+        Where problems are recorded.
+
+    Returns
+    -------
+    CaseSource or None
+        What was read; ``None``, with the problem recorded, when there is nothing at
+        ``path`` or it is a file that is not an ``.xlsx`` workbook.
     """
     path = Path(path)
     if path.is_dir():

@@ -93,7 +93,34 @@ class _SheetWriter:
 
 
 def write_workbook_file(case: Case, settings_values: dict[str, Any], uncorrected: dict[str, Any], path: Path) -> Path:
-    """Write the workbook; the tables come from ``uncorrected`` (the files as read)."""
+    """Write the workbook; the tables come from ``uncorrected`` (the files as read).
+
+    The sheets are ``case`` (``section.name`` / value rows; a list is written as
+    ``a, b``), ``snapshots`` (label, data_date, kind, folder, in the case's order),
+    ``activities`` and ``links`` (a leading ``snapshot`` column holding the folder), then
+    ``calendars`` and one sheet per optional file. Cells of date and number columns are
+    written as dates and numbers, read in the dialect of the file they came from. The file
+    is written under a temporary name in the same folder and moved into place, so a
+    failed write leaves no partial workbook.
+
+    Parameters
+    ----------
+    case : Case
+        The loaded case: the order and facts of its snapshots.
+    settings_values : dict of str to Any
+        The settings as read (nested ``{section: {key: value}}``).
+    uncorrected : dict of str to Any
+        The tables as read, before corrections: ``"snapshots"`` a list of (folder,
+        activities, links) and ``"tables"`` the case-wide tables by name (each a
+        :class:`RawTable` or ``None``).
+    path : pathlib.Path
+        Where to write the workbook; its folder is created when missing.
+
+    Returns
+    -------
+    pathlib.Path
+        ``path``.
+    """
     import openpyxl
 
     path = Path(path)

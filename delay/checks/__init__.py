@@ -68,9 +68,9 @@ def check_snapshot(case: Case, snapshot: str | Snapshot = "baseline") -> dict[st
 
     Parameters
     ----------
-    case:
+    case : Case
         A loaded case.
-    snapshot:
+    snapshot : str or Snapshot, optional
         Folder name, label, ``"asbuilt"``, or a Snapshot.
 
     Returns
@@ -86,7 +86,20 @@ def check_snapshot(case: Case, snapshot: str | Snapshot = "baseline") -> dict[st
     Raises
     ------
     CaseError
-        For an unknown snapshot.
+        For an unknown snapshot, or one that cannot be scheduled.
+
+    Examples
+    --------
+    >>> import tempfile
+    >>> from pathlib import Path
+    >>> from delay.synth import synthesise
+    >>> folder = tempfile.TemporaryDirectory()
+    >>> from delay.case import load_case
+    >>> case = load_case(synthesise(Path(folder.name) / "case", activities=12, updates=1))
+    >>> checks = check_snapshot(case, "u01")
+    >>> checks["kind"], len(checks["metrics"]), [c["key"] for c in checks["data_checks"]][:2]
+    ('update', 14, ['open_ends', 'dangling'])
+    >>> folder.cleanup()
     """
     snap = resolve(case, snapshot)
     result = scheduled(case, snap)
@@ -108,7 +121,7 @@ def run_all(case: Case) -> dict[str, Any]:
 
     Parameters
     ----------
-    case:
+    case : Case
         A loaded case.
 
     Returns
@@ -120,6 +133,24 @@ def run_all(case: Case) -> dict[str, Any]:
         :meth:`Comparison.to_json` of each snapshot against the one before it). Computed
         once per loaded case (``delay demo`` and the report both ask for it); each call
         hands out its own copy.
+
+    Raises
+    ------
+    CaseError
+        When a snapshot cannot be scheduled.
+
+    Examples
+    --------
+    >>> import tempfile
+    >>> from pathlib import Path
+    >>> from delay.synth import synthesise
+    >>> folder = tempfile.TemporaryDirectory()
+    >>> from delay.case import load_case
+    >>> case = load_case(synthesise(Path(folder.name) / "case", activities=12, updates=1))
+    >>> everything = run_all(case)
+    >>> [s["snapshot"] for s in everything["snapshots"]], len(everything["comparisons"])
+    (['baseline', 'u01', 'asbuilt'], 2)
+    >>> folder.cleanup()
     """
     import copy
 

@@ -35,6 +35,20 @@ _RESULTS: weakref.WeakKeyDictionary[Case, dict[str, ScheduleResult]] = weakref.W
 def resolve(case: Case, snapshot: str | Snapshot) -> Snapshot:
     """The snapshot named by folder or label (``"asbuilt"`` for the as-built record).
 
+    Parameters
+    ----------
+    case : Case
+        The loaded case.
+    snapshot : str or Snapshot
+        A folder name under snapshots/, a snapshot's label, ``"asbuilt"``, or a
+        :class:`Snapshot` (returned as it is).
+
+    Returns
+    -------
+    Snapshot
+        The snapshot; a folder name is matched before a label (see
+        :meth:`delay.model.Case.snapshot`).
+
     Raises
     ------
     CaseError
@@ -55,7 +69,18 @@ def resolve(case: Case, snapshot: str | Snapshot) -> Snapshot:
 
 
 def ordered_snapshots(case: Case) -> list[Snapshot]:
-    """Baseline, updates by data date, then the as-built snapshot when the case has one."""
+    """Baseline, updates by data date, then the as-built snapshot when the case has one.
+
+    Parameters
+    ----------
+    case : Case
+        The loaded case.
+
+    Returns
+    -------
+    list of Snapshot
+        The case's snapshots in that order.
+    """
     snapshots = list(case.snapshots)
     if case.asbuilt_snapshot is not None:
         snapshots.append(case.asbuilt_snapshot)
@@ -63,7 +88,21 @@ def ordered_snapshots(case: Case) -> list[Snapshot]:
 
 
 def previous_snapshot(case: Case, snap: Snapshot) -> Snapshot | None:
-    """The snapshot just before ``snap`` in :func:`ordered_snapshots` order, or ``None``."""
+    """The snapshot just before ``snap`` in :func:`ordered_snapshots` order.
+
+    Parameters
+    ----------
+    case : Case
+        The loaded case.
+    snap : Snapshot
+        One of the case's snapshots (or its as-built snapshot).
+
+    Returns
+    -------
+    Snapshot or None
+        The one before (for the as-built snapshot, the last update); ``None`` for the
+        first snapshot or a snapshot not of the case (matched by folder and kind).
+    """
     snapshots = ordered_snapshots(case)
     for position, other in enumerate(snapshots):
         if other.folder == snap.folder and other.kind == snap.kind:
@@ -72,7 +111,28 @@ def previous_snapshot(case: Case, snap: Snapshot) -> Snapshot | None:
 
 
 def model_of(case: Case, snap: Snapshot) -> ScheduleModel:
-    """The snapshot compiled once for scheduling (case settings, the case's calendars)."""
+    """The snapshot compiled once for scheduling (case settings, the case's calendars).
+
+    The model is kept for as long as the case lives; asking again returns the same one.
+
+    Parameters
+    ----------
+    case : Case
+        The loaded case.
+    snap : Snapshot
+        One of the case's snapshots (or its as-built snapshot).
+
+    Returns
+    -------
+    ScheduleModel
+        :func:`delay.cpm.prepare` of the snapshot with the case's calendars.
+
+    Raises
+    ------
+    CaseError
+        When the snapshot's network cannot be compiled (a loop in its logic, an unknown
+        calendar); a loaded case has been checked for both.
+    """
     models = _MODELS.setdefault(case, {})
     key = _key(snap)
     if key not in models:
@@ -81,7 +141,26 @@ def model_of(case: Case, snap: Snapshot) -> ScheduleModel:
 
 
 def scheduled(case: Case, snap: Snapshot) -> ScheduleResult:
-    """The schedule of a snapshot under the case's own settings, computed once per case."""
+    """The schedule of a snapshot under the case's own settings, computed once per case.
+
+    Parameters
+    ----------
+    case : Case
+        The loaded case.
+    snap : Snapshot
+        One of the case's snapshots (or its as-built snapshot).
+
+    Returns
+    -------
+    ScheduleResult
+        ``model_of(case, snap).run()``, kept for as long as the case lives.
+
+    Raises
+    ------
+    CaseError
+        When the snapshot's network cannot be compiled (a loop in its logic, an unknown
+        calendar); a loaded case has been checked for both.
+    """
     results = _RESULTS.setdefault(case, {})
     key = _key(snap)
     if key not in results:
@@ -94,12 +173,43 @@ def _key(snap: Snapshot) -> str:
 
 
 def contract_completion_in_force(case: Case, at: dt.date | None = None) -> dt.date:
-    """The contract completion date in force for the whole of the works at ``at`` (every
-    grant when ``None``): case.toml's ``contract_completion`` plus the calendar days of the
-    extensions granted by then for the whole works (:func:`delay.contract.completion_in_force`)."""
+    """The contract completion date in force for the whole of the works at ``at``.
+
+    Parameters
+    ----------
+    case : Case
+        The loaded case.
+    at : datetime.date or None, optional
+        Count the extensions granted on or before this date; ``None`` counts every grant.
+
+    Returns
+    -------
+    datetime.date
+        case.toml's ``contract_completion`` plus the calendar days of the extensions
+        granted by then for the whole works (:func:`delay.contract.completion_in_force`).
+    """
     return completion_in_force(case, at=at)[2]
 
 
 def link_keys(pred: np.ndarray, succ: np.ndarray) -> list[str]:
-    """Links written ``pred>succ``, the case format's key of a link (corrections.csv)."""
+    """Links written ``pred>succ``, the case format's key of a link (corrections.csv).
+
+    Parameters
+    ----------
+    pred : numpy.ndarray
+        The predecessors' activity ids.
+    succ : numpy.ndarray
+        The successors' activity ids, one per predecessor.
+
+    Returns
+    -------
+    list of str
+        One ``pred>succ`` key per link.
+
+    Examples
+    --------
+    >>> import numpy as np
+    >>> link_keys(np.array(["A", "B"]), np.array(["B", "C"]))
+    ['A>B', 'B>C']
+    """
     return [f"{p}>{s}" for p, s in zip(pred, succ)]

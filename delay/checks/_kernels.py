@@ -24,9 +24,27 @@ def reach_chunk(order, out_ptr, out_succ, target_column, first_column, words, re
     """Descendants of every activity, restricted to ``words * 64`` target columns.
 
     ``reach[v]`` gets bit ``c - first_column`` for every target column ``c`` of an activity
-    reachable from ``v`` by one link or more; ``reach`` is zero on entry, shape
-    ``(n, words)``. Activities are visited in reverse topological order, so each one's
-    successors are complete when it is reached.
+    reachable from ``v`` by one link or more. Activities are visited in reverse
+    topological order, so each one's successors are complete when it is reached.
+
+    Parameters
+    ----------
+    order : numpy.ndarray
+        ``int64``, shape ``(n,)``: the activity numbers in topological order.
+    out_ptr : numpy.ndarray
+        ``int64``, shape ``(n + 1,)``: where each activity's links start in ``out_succ``
+        and ``out_link``.
+    out_succ : numpy.ndarray
+        ``int64``: the successor of each link searched, grouped by predecessor.
+    target_column : numpy.ndarray
+        ``int64``, shape ``(n,)``: each activity's target column, ``-1`` for an activity
+        that is not a target.
+    first_column : int
+        The first target column of this chunk.
+    words : int
+        The chunk's width in 64-bit words.
+    reach : numpy.ndarray
+        ``uint64``, shape ``(n, words)``, zero on entry; filled in place.
     """
     width = words * 64
     for i in range(order.size - 1, -1, -1):
@@ -43,8 +61,35 @@ def reach_chunk(order, out_ptr, out_succ, target_column, first_column, words, re
 # work: links times successors, per word
 @sized(lambda a: a[2].size * (1 + a[2].size // max(a[0], 1)) * a[6])
 def mark_implied(n, out_ptr, out_succ, out_link, target_column, first_column, words, reach, implied, via):
-    """Links ``u -> w`` (``w`` in this chunk of columns) for which another successor ``x``
-    of ``u`` reaches ``w``: the link is implied by the path through ``x``."""
+    """Mark the links ``u -> w`` that a path through another successor of ``u`` implies.
+
+    For a link whose successor ``w`` has a target column in this chunk, the link is implied
+    when another successor ``x`` of ``u`` reaches ``w`` (its bit is set in ``reach[x]``).
+
+    Parameters
+    ----------
+    n : int
+        The number of activities.
+    out_ptr : numpy.ndarray
+        ``int64``, shape ``(n + 1,)``: where each activity's links start in ``out_succ``
+        and ``out_link``.
+    out_succ : numpy.ndarray
+        ``int64``: the successor of each link searched, grouped by predecessor.
+    out_link : numpy.ndarray
+        ``int64``: the link number of each entry of ``out_succ``.
+    target_column : numpy.ndarray
+        ``int64``, shape ``(n,)``: each activity's target column, ``-1`` for none.
+    first_column : int
+        The first target column of this chunk.
+    words : int
+        The chunk's width in 64-bit words.
+    reach : numpy.ndarray
+        ``uint64``, shape ``(n, words)``: :func:`reach_chunk` of the same chunk.
+    implied : numpy.ndarray
+        ``bool``, one per link of the network; set in place for each link implied.
+    via : numpy.ndarray
+        ``int64``, one per link; set in place to ``x`` for each link implied.
+    """
     width = words * 64
     for u in range(n):
         for j in range(out_ptr[u], out_ptr[u + 1]):
@@ -76,6 +121,39 @@ def longest_implied_lag(
     ``w`` along the longest path is found for every ``v`` ranked between the earliest
     predecessor and ``w``; ``best[link]`` is then the longest gap through a successor other
     than ``w`` itself (lag + duration of the successor + its gap), ``NO_PATH`` when none.
+    Lags and durations are work days, added without regard to calendars.
+
+    Parameters
+    ----------
+    order : numpy.ndarray
+        ``int64``, shape ``(n,)``: the activity numbers in topological order.
+    rank : numpy.ndarray
+        ``int64``, shape ``(n,)``: each activity's position in ``order``.
+    out_ptr : numpy.ndarray
+        ``int64``, shape ``(n + 1,)``: where each activity's links start in ``out_succ``
+        and ``out_link``.
+    out_succ : numpy.ndarray
+        ``int64``: the successor of each link searched, grouped by predecessor.
+    out_link : numpy.ndarray
+        ``int64``: the link number of each entry of ``out_succ``.
+    lag : numpy.ndarray
+        ``int64``, one per link: the lags in work days.
+    duration : numpy.ndarray
+        ``int64``, shape ``(n,)``: the planned durations in work days.
+    targets : numpy.ndarray
+        ``int64``: the successor activities of the links measured, each once.
+    group_ptr : numpy.ndarray
+        ``int64``, shape ``(targets.size + 1,)``: where each target's links start in
+        ``group_links``.
+    group_links : numpy.ndarray
+        ``int64``: the link numbers measured, grouped by target.
+    pred : numpy.ndarray
+        ``int64``, one per link: the predecessor activity numbers.
+    best : numpy.ndarray
+        ``int64``, one per link, ``NO_PATH`` on entry; set in place.
+    via : numpy.ndarray
+        ``int64``, one per link; set in place to the successor of the link's predecessor
+        through which the longest path runs (``-1`` when there is none).
     """
     n = order.size
     gap = np.full(n, NO_PATH, dtype=np.int64)
@@ -122,9 +200,35 @@ def longest_implied_lag(
 # work: links times successors
 @sized(lambda a: a[1].size * (1 + a[1].size // max(a[7], 1)))
 def two_link_paths(out_ptr, out_succ, out_link, lag, duration, keys, key_links, n, implied, via):
-    """Links ``u -> y`` implied by a path of two links ``u -> x -> y`` whose implied lag
-    (lag + duration of ``x`` + lag) is at least the link's own lag. ``keys`` are the sorted
-    ``u * n + y`` of the links searched, ``key_links`` their link numbers."""
+    """Mark the links ``u -> y`` implied by a path of two links ``u -> x -> y``.
+
+    A link is implied when the path's implied lag (lag + duration of ``x`` + lag, in work
+    days) is at least the link's own lag.
+
+    Parameters
+    ----------
+    out_ptr : numpy.ndarray
+        ``int64``, shape ``(n + 1,)``: where each activity's links start in ``out_succ``
+        and ``out_link``.
+    out_succ : numpy.ndarray
+        ``int64``: the successor of each link searched, grouped by predecessor.
+    out_link : numpy.ndarray
+        ``int64``: the link number of each entry of ``out_succ``.
+    lag : numpy.ndarray
+        ``int64``, one per link: the lags in work days.
+    duration : numpy.ndarray
+        ``int64``, shape ``(n,)``: the planned durations in work days.
+    keys : numpy.ndarray
+        ``int64``: the sorted ``u * n + y`` of the links searched.
+    key_links : numpy.ndarray
+        ``int64``: the link number of each key.
+    n : int
+        The number of activities.
+    implied : numpy.ndarray
+        ``bool``, one per link; set in place for each link implied.
+    via : numpy.ndarray
+        ``int64``, one per link; set in place to ``x`` for each link implied.
+    """
     for u in range(n):
         for j in range(out_ptr[u], out_ptr[u + 1]):
             x = out_succ[j]

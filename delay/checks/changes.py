@@ -87,9 +87,30 @@ CHANGE_COLUMNS = (
 
 @dataclass(frozen=True)
 class Comparison:
-    """Every change from snapshot ``earlier`` to snapshot ``later`` (labels; ``*_folder``
-    the folder names). ``changes`` has columns :data:`CHANGE_COLUMNS`, one row per change,
-    grouped by kind in :data:`CHANGE_KINDS` order."""
+    """Every change from snapshot ``earlier`` to snapshot ``later``, as :func:`compare` finds them.
+
+    Parameters
+    ----------
+    earlier : str
+        The earlier snapshot's label.
+    later : str
+        The later snapshot's label.
+    earlier_folder : str
+        The earlier snapshot's folder name.
+    later_folder : str
+        The later snapshot's folder name.
+    changes : pandas.DataFrame
+        Columns :data:`CHANGE_COLUMNS`, one row per change, grouped by kind in
+        :data:`CHANGE_KINDS` order (see the module docstring).
+
+    Examples
+    --------
+    >>> import pandas as pd
+    >>> rows = [("link_added", "", "A", "B", "link", "", "FS 0", False, False, True, True)]
+    >>> found = Comparison("Baseline", "June", "baseline", "2025-06", pd.DataFrame(rows, columns=CHANGE_COLUMNS))
+    >>> found.counts()["link_added"], len(found.revisions("logic")), len(found.of("activity_added"))
+    (1, 1, 0)
+    """
 
     earlier: str
     later: str
@@ -98,24 +119,71 @@ class Comparison:
     changes: pd.DataFrame
 
     def of(self, *kinds: str) -> pd.DataFrame:
-        """The changes of the given kinds (a copy; index renumbered)."""
+        """The changes of the given kinds (a copy; index renumbered).
+
+        Parameters
+        ----------
+        *kinds : str
+            Kinds of change, each one of :data:`CHANGE_KINDS`.
+
+        Returns
+        -------
+        pandas.DataFrame
+            The rows of :attr:`changes` of those kinds, in their order there.
+
+        Raises
+        ------
+        ValueError
+            When a kind is not one of :data:`CHANGE_KINDS`.
+        """
         unknown = set(kinds) - set(CHANGE_KINDS)
         if unknown:
             raise ValueError(f"unknown kind(s) of change: {', '.join(sorted(unknown))}")
         return self.changes[self.changes["kind"].isin(kinds)].reset_index(drop=True)
 
     def revisions(self, step: str) -> pd.DataFrame:
-        """The revisions a windows analysis applies at ``step`` (one of :data:`REVISION_ORDER`)."""
+        """The revisions a windows analysis applies at ``step``.
+
+        Parameters
+        ----------
+        step : str
+            One of :data:`REVISION_ORDER`; its kinds are :data:`REVISION_KINDS`.
+
+        Returns
+        -------
+        pandas.DataFrame
+            The changes of the step's kinds (see :meth:`of`).
+
+        Raises
+        ------
+        ValueError
+            When ``step`` is not one of :data:`REVISION_ORDER`.
+        """
         if step not in REVISION_KINDS:
             raise ValueError(f"unknown revision step '{step}' (use one of: {', '.join(REVISION_ORDER)})")
         return self.of(*REVISION_KINDS[step])
 
     def counts(self) -> dict[str, int]:
-        """Number of changes of each kind (every kind listed, zero included)."""
+        """Number of changes of each kind (every kind listed, zero included).
+
+        Returns
+        -------
+        dict of str to int
+            The count of each kind of :data:`CHANGE_KINDS`, in that order.
+        """
         found = self.changes["kind"].value_counts()
         return {kind: int(found.get(kind, 0)) for kind in CHANGE_KINDS}
 
     def to_json(self) -> dict:
+        """The comparison as a dictionary ready for ``json.dumps``.
+
+        Returns
+        -------
+        dict
+            ``earlier_snapshot`` and ``later_snapshot`` (folders), ``earlier_label`` and
+            ``later_label``, ``counts`` (:meth:`counts`) and ``changes`` (one object per
+            row of :attr:`changes`).
+        """
         return {
             "earlier_snapshot": self.earlier_folder,
             "earlier_label": self.earlier,
@@ -135,15 +203,19 @@ def compare(case: Case, earlier: str | Snapshot, later: str | Snapshot) -> Compa
 
     Parameters
     ----------
-    case:
+    case : Case
         A loaded case.
-    earlier, later:
-        Folder names, labels, ``"asbuilt"``, or :class:`~delay.model.Snapshot` objects.
+    earlier : str or Snapshot
+        The earlier snapshot: a folder name, a label, ``"asbuilt"``, or a
+        :class:`~delay.model.Snapshot`.
+    later : str or Snapshot
+        The later snapshot, in the same forms.
 
     Returns
     -------
     Comparison
-        See the module docstring for the kinds of change and the columns.
+        See the module docstring for the kinds of change and the columns. Durations are
+        in work days; each snapshot is scheduled once (and kept) to find its driving path.
 
     Raises
     ------

@@ -42,16 +42,30 @@ _MEASURE_SLACK = 1e-9  # metres: the decimal-to-binary error of coordinates read
 class ElementChecks:
     """Findings of the element checks.
 
-    Attributes
+    Parameters
     ----------
-    unlinked_elements: ``element, name, wbs, classification`` of elements whose wbs matches no
-        activity of any snapshot, in elements.csv order.
-    unmodelled_activities: ``activity, name, wbs, snapshot`` (the folder) of activities with a wbs that no
+    unlinked_elements : pandas.DataFrame
+        ``element, name, wbs, classification`` of elements whose wbs matches no activity
+        of any snapshot, in elements.csv order.
+    unmodelled_activities : pandas.DataFrame
+        ``activity, name, wbs, snapshot`` (the folder) of activities with a wbs that no
         element carries (the snapshot where the pair is first seen).
-    duplicates: ``group, id, name, classification, x, y, z, dx, dy, dz``: one row per
-        element of each group of suspected duplicates (groups numbered from 1 in file order
-        of their first element, which is taken as the original).
-    note: what the checks could not do (no elements in the case).
+    duplicates : pandas.DataFrame
+        ``group, element, name, classification, x, y, z, dx, dy, dz`` (box in metres):
+        one row per element of each group of suspected duplicates (groups numbered from 1
+        in file order of their first element, which is taken as the original).
+    note : str, optional
+        What the checks could not do (no elements in the case); ``""`` otherwise.
+
+    Examples
+    --------
+    >>> import pandas as pd
+    >>> box = dict(x=0.0, y=0.0, z=0.0, dx=1.0, dy=1.0, dz=3.0)
+    >>> copies = pd.DataFrame([dict(group=1, element="C1", name="column", classification="IfcColumn", **box),
+    ...                        dict(group=1, element="C1b", name="column", classification="IfcColumn", **box)])
+    >>> found = ElementChecks(pd.DataFrame(), pd.DataFrame(), copies)
+    >>> found.duplicate_groups()
+    [['C1', 'C1b']]
     """
 
     unlinked_elements: pd.DataFrame
@@ -60,10 +74,26 @@ class ElementChecks:
     note: str = ""
 
     def duplicate_groups(self) -> list[list[str]]:
-        """The ids of each group of suspected duplicates, original first."""
+        """The ids of each group of suspected duplicates, original first.
+
+        Returns
+        -------
+        list of list of str
+            One list of element ids per group, groups in number order.
+        """
         return [list(group["element"]) for _, group in self.duplicates.groupby("group", sort=True)]
 
     def to_json(self) -> dict:
+        """The findings as a dictionary ready for ``json.dumps`` (the form ``delay check`` prints).
+
+        Returns
+        -------
+        dict
+            ``unlinked_elements`` and ``unmodelled_activities`` (each ``count``, ``items``
+            and ``note``) and ``duplicates`` (``count`` of groups, ``copies`` beyond each
+            group's original, ``groups`` with their ``elements``, ``classification`` and
+            ``box``, and ``note``).
+        """
         groups = []
         for _, group in self.duplicates.groupby("group", sort=True):
             first = group.iloc[0]
@@ -100,9 +130,9 @@ def element_checks(case: Case, snapshot: str | Snapshot | None = None) -> Elemen
 
     Parameters
     ----------
-    case:
+    case : Case
         A loaded case.
-    snapshot:
+    snapshot : str or Snapshot or None, optional
         Whose activities are checked for a model element (folder, label, ``"asbuilt"`` or
         a Snapshot); ``None`` checks every snapshot's. Unlinked elements are always judged
         against the activities of every snapshot.
@@ -110,6 +140,7 @@ def element_checks(case: Case, snapshot: str | Snapshot | None = None) -> Elemen
     Returns
     -------
     ElementChecks
+        The unlinked elements, the unmodelled activities and the suspected duplicates.
 
     Raises
     ------

@@ -87,9 +87,27 @@ CHECKED, AT_LOAD, BOUNDED, LISTED = "checked", "checked at load", "bounded", "li
 class DataCheck:
     """One forensic check of a snapshot: what was found (``items``) and how far it looked.
 
-    ``status`` is ``"checked"``, ``"checked at load"`` (the loader refuses the defect, so
-    none can be present), ``"bounded"`` (the search was limited; ``note`` says how) or
-    ``"listed"`` (a list for the reader, not a defect).
+    Parameters
+    ----------
+    key : str
+        The check, one of :data:`DATA_CHECK_KEYS`.
+    title : str
+        Its title in plain words.
+    status : str
+        ``"checked"``, ``"checked at load"`` (the loader refuses the defect, so none can
+        be present), ``"bounded"`` (the search was limited; ``note`` says how) or
+        ``"listed"`` (a list for the reader, not a defect).
+    items : pandas.DataFrame
+        What was found, one row each, columns ``ITEM_COLUMNS[key]``.
+    note : str, optional
+        What the reader should know about the check's reach.
+
+    Examples
+    --------
+    >>> import pandas as pd
+    >>> check = DataCheck("open_ends", "Open ends", "checked", pd.DataFrame({"activity": ["A"]}))
+    >>> check.count, check.to_json()["items"]
+    (1, [{'activity': 'A'}])
     """
 
     key: str
@@ -100,9 +118,18 @@ class DataCheck:
 
     @property
     def count(self) -> int:
+        """The number of items found."""
         return int(len(self.items))
 
     def to_json(self) -> dict:
+        """The check as a dictionary ready for ``json.dumps`` (the form ``delay check`` prints).
+
+        Returns
+        -------
+        dict
+            ``key``, ``title``, ``status``, ``count``, ``note`` and ``items`` (one object
+            per row).
+        """
         return {
             "key": self.key,
             "title": self.title,
@@ -125,9 +152,9 @@ def data_checks(case: Case, snapshot: str | Snapshot = "baseline") -> tuple[Data
 
     Parameters
     ----------
-    case:
+    case : Case
         A loaded case.
-    snapshot:
+    snapshot : str or Snapshot, optional
         Folder name, label, ``"asbuilt"``, or a :class:`~delay.model.Snapshot`. Checks that
         compare records (changes, retrospective edits) compare it with the snapshot before
         it (baseline, updates by data date, then the as-built snapshot).

@@ -149,8 +149,36 @@ HARD_CONSTRAINTS = ("latest_finish", "fixed_start", "fixed_finish")
 
 @dataclass(frozen=True)
 class Metric:
-    """One metric's finding. ``activities`` lists the offending activity ids (links as
-    ``pred>succ`` when ``unit == "links"``); ``passed`` is ``None`` when not applicable."""
+    """One metric's finding.
+
+    Parameters
+    ----------
+    key : str
+        The metric, one of :data:`METRIC_KEYS`.
+    title : str
+        Its title in plain words.
+    count : int or None
+        What was counted (see the module docstring); ``None`` when nothing could be.
+    denominator : int or None
+        What it is counted against; ``0`` or ``None`` when not applicable.
+    percent : float or None
+        ``100 * count / denominator`` rounded to two places; ``None`` when not applicable.
+    threshold : str
+        The threshold as text (``"<= 5%"``, ``"0"``, ``"-"``, ...).
+    passed : bool or None
+        The verdict; ``None`` when not applicable.
+    activities : tuple of str, optional
+        The offending activity ids (links as ``pred>succ`` when ``unit == "links"``).
+    unit : str, optional
+        What ``activities`` lists: ``"activities"`` or ``"links"``.
+    note : str, optional
+        What the reader should know (why it is not applicable, a tolerance applied).
+
+    Examples
+    --------
+    >>> Metric("leads", "Leads (negative lags)", 1, 40, 2.5, "0", False, ("A>B",), "links").to_json()["activities"]
+    ['A>B']
+    """
 
     key: str
     title: str
@@ -164,6 +192,14 @@ class Metric:
     note: str = ""
 
     def to_json(self) -> dict:
+        """The metric as a dictionary ready for ``json.dumps`` (the form ``delay check`` prints).
+
+        Returns
+        -------
+        dict
+            The fields by name (:data:`METRIC_COLUMNS`), ``activities`` as a list and
+            numbers as plain Python numbers (``None`` for none).
+        """
         return {
             "key": self.key,
             "title": self.title,
@@ -241,9 +277,9 @@ def quality_metrics(case: Case, snapshot: str | Snapshot = "baseline") -> pd.Dat
 
     Parameters
     ----------
-    case:
+    case : Case
         A loaded case.
-    snapshot:
+    snapshot : str or Snapshot, optional
         Folder name, label, ``"asbuilt"``, or a :class:`~delay.model.Snapshot`.
 
     Returns
@@ -455,7 +491,43 @@ def invalid_date_mask(
 
     A forecast (early) start of work not started, or a forecast finish of work not complete,
     before the data date; or an actual start or finish on or after it. Day numbers are
-    ``int64`` days since 1970-01-01, :data:`delay.cpm.NO_DAY` for none.
+    ``int64`` calendar days since 1970-01-01, :data:`delay.cpm.NO_DAY` for none.
+
+    Parameters
+    ----------
+    data_day : int
+        The snapshot's data date as a day number.
+    status : numpy.ndarray
+        Each activity's status code (:data:`delay.cpm.NOT_STARTED`, ``IN_PROGRESS`` or
+        :data:`delay.cpm.COMPLETE`) at the data date.
+    early_start : numpy.ndarray
+        Forecast (early) starts, as day numbers.
+    early_finish : numpy.ndarray
+        Forecast (early) finishes, as day numbers.
+    actual_start : numpy.ndarray
+        Actual starts, as day numbers.
+    actual_finish : numpy.ndarray
+        Actual finishes, as day numbers.
+
+    Returns
+    -------
+    numpy.ndarray
+        One boolean per activity, true where a date is invalid.
+
+    Examples
+    --------
+    >>> import numpy as np
+    >>> from delay.cpm import COMPLETE, IN_PROGRESS, NO_DAY, NOT_STARTED
+    >>> data_day = 20269  # 2025-06-30
+    >>> invalid_date_mask(
+    ...     data_day,
+    ...     np.array([NOT_STARTED, IN_PROGRESS, COMPLETE]),
+    ...     early_start=np.array([20260, 20200, 20100]),  # the first is forecast to start before the data date
+    ...     early_finish=np.array([20280, 20290, 20150]),
+    ...     actual_start=np.array([NO_DAY, 20200, 20100]),
+    ...     actual_finish=np.array([NO_DAY, NO_DAY, 20270]),  # the third finished after the data date
+    ... ).tolist()
+    [True, False, True]
     """
     status = np.asarray(status)
     not_started = status == NOT_STARTED

@@ -44,12 +44,17 @@ BIT_BUDGET_WORDS = 8_000_000
 class Redundancy:
     """Which links are redundant.
 
-    Attributes
+    Parameters
     ----------
-    redundant: ``bool`` array, shape ``(m,)``, one per link of the network.
-    via: ``int64`` array, shape ``(m,)``: for a redundant link, the first activity after its
-        predecessor on a path that implies it; ``-1`` otherwise.
-    exact: whether every path length was searched (``False``: paths of two links only).
+    redundant : numpy.ndarray
+        ``bool`` array, shape ``(m,)``, one per link of the network, true for a redundant
+        link.
+    via : numpy.ndarray
+        ``int64`` array, shape ``(m,)``: for a redundant link, the activity number (position
+        in the network) of the first activity after its predecessor on a path that implies
+        it; ``-1`` otherwise.
+    exact : bool
+        Whether every path length was searched (``False``: paths of two links only).
     """
 
     redundant: np.ndarray
@@ -74,18 +79,25 @@ def redundant_links(
 
     Parameters
     ----------
-    network:
+    network : Network
         The compiled logic (:class:`delay.network.Network`).
-    duration:
+    duration : numpy.ndarray
         Planned duration of each activity in work days, shape ``(n,)``.
-    exact_limit:
+    exact_limit : int, optional
         Largest number of activities searched exactly.
-    bit_budget_words:
+    bit_budget_words : int, optional
         Largest reachability table held at once, in 64-bit words.
 
     Returns
     -------
     Redundancy
+        One flag and one ``via`` activity per link, in the network's link order, and
+        whether the search was exact (at most ``exact_limit`` activities).
+
+    References
+    ----------
+    A. V. Aho, M. R. Garey and J. D. Ullman, "The transitive reduction of a directed
+    graph", SIAM Journal on Computing 1(2), 1972.
 
     Examples
     --------

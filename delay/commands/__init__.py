@@ -17,7 +17,13 @@ ALIASES: dict[str, str] = {"impact": "impacted", "butfor": "collapsed"}
 
 
 def all_commands():
-    """Every command of every module in MODULES."""
+    """Every command of every module in MODULES.
+
+    Yields
+    ------
+    click.Command
+        Each module's ``COMMANDS``, module by module in :data:`MODULES` order.
+    """
     for name in MODULES:
         module = importlib.import_module(f"{__name__}.{name}")
         yield from module.COMMANDS

@@ -42,9 +42,24 @@ def _fail(lines: list[str]) -> None:
 
 
 def reports_input_errors(command):
-    """Turn input problems into plain lines on stderr and exit status 2: a bad case (one
-    line per problem and a count), an output the policy refuses, a failed write or any
-    other OSError (one line each)."""
+    """Turn input problems into plain lines on stderr and a non-zero exit, never a traceback.
+
+    A bad case (:class:`~delay.errors.CaseError`: one line per problem and a count), an
+    output the policy refuses, a failed write or any other :class:`OSError` (one line
+    each) exit with status 2 (:data:`EXIT_INPUT`). A
+    :class:`~delay.errors.ReconciliationError` (figures that do not add up: a fault of the
+    toolkit or a record it cannot reconcile) prints one line and exits with status 1.
+
+    Parameters
+    ----------
+    command : callable
+        A command function (below ``@click.command``).
+
+    Returns
+    -------
+    callable
+        The wrapped function, with the same name and docstring (``--help`` text).
+    """
 
     @functools.wraps(command)
     def wrapper(*args, **kwargs):
@@ -79,7 +94,23 @@ def _console():
 
 
 def print_table(title: str, columns: list[str], rows: list[list], out=None) -> None:
-    """A table that fits the terminal (rich); plain text beyond a few thousand rows."""
+    """Print a table that fits the terminal (rich); plain text beyond a few thousand rows.
+
+    Free-text columns (``name``, ``title``, ``note`` ...) wrap at 48 characters; the others
+    keep their width. Off a terminal the table is 200 characters wide.
+
+    Parameters
+    ----------
+    title : str
+        The table's title, printed above it.
+    columns : list of str
+        The column headings.
+    rows : list of list
+        The rows, one value per column; ``None`` prints as blank.
+    out : rich.console.Console or None, optional
+        Where to print the table; ``None`` for standard output. Beyond 3,000 rows the
+        plain text always goes to standard output.
+    """
     if len(rows) > 3000:
         widths = [max(len(c), *(len(str(r[i])) for r in rows)) for i, c in enumerate(columns)]
         click.echo(title)
@@ -99,7 +130,24 @@ def print_table(title: str, columns: list[str], rows: list[list], out=None) -> N
 
 
 def load_case_argument(case_path: str):
-    """Load the case named on the command line (a CaseError becomes plain lines, exit 2)."""
+    """Load the case named on the command line.
+
+    Parameters
+    ----------
+    case_path : str
+        The case folder or workbook as given on the command line.
+
+    Returns
+    -------
+    Case
+        The loaded case (:func:`delay.case.load_case`).
+
+    Raises
+    ------
+    CaseError
+        When the case does not load; under :func:`reports_input_errors` it becomes plain
+        lines and exit status 2.
+    """
     from ..case import load_case
 
     return load_case(Path(case_path))

@@ -19,8 +19,25 @@ METHOD_CHOICES = ["windows", "impacted", "tia", "collapsed", "all"]
 
 
 def applicable_methods(case) -> tuple[list[str], list[str]]:
-    """``(methods, reasons)``: the methods ``all`` runs on this case, and why any is left out
-    (a windows analysis needs two snapshots, a collapsed as-built an as-built record)."""
+    """The methods ``--method all`` runs on this case, and why any is left out.
+
+    A windows analysis needs two programmes (snapshots, the as-built one included), a
+    collapsed as-built an as-built record; the impacted and time impact analyses always
+    run.
+
+    Parameters
+    ----------
+    case : Case
+        The loaded case.
+
+    Returns
+    -------
+    methods : list of str
+        Of ``windows``, ``impacted``, ``tia`` and ``collapsed``, those that apply, in that
+        order.
+    reasons : list of str
+        One sentence for each method left out.
+    """
     methods, reasons = [], []
     if len(case.snapshots) + (case.asbuilt_snapshot is not None) >= 2:
         methods.append("windows")

@@ -16,7 +16,20 @@ _SHOWN_FINDINGS = 40
 
 
 def needs_ifc_extra(command):
-    """Without ifcopenshell: one plain line and exit status 2."""
+    """Without ifcopenshell: one plain line and exit status 2.
+
+    Parameters
+    ----------
+    command : callable
+        A command function that needs the IFC extra (ifcopenshell).
+
+    Returns
+    -------
+    callable
+        The wrapped function: when it raises :class:`delay.ifc.IfcExtraMissing`, the error
+        is printed on stderr as ``error: ...`` and the process exits with
+        :data:`~delay.commands.common.EXIT_INPUT` (2).
+    """
 
     @functools.wraps(command)
     def wrapper(*args, **kwargs):
