@@ -61,12 +61,12 @@ def apply_corrections(
 
     Parameters
     ----------
-    corrections:
+    corrections : RawTable
         corrections.csv as read (its required columns present).
-    targets:
+    targets : dict of str to CorrectionTarget
         Snapshot folder names and labels, and ``"asbuilt"``, mapped to their tables.
         Tables are changed in place.
-    problems:
+    problems : Problems
         Where a correction that names no existing snapshot, record or column is recorded.
 
     Returns

@@ -306,7 +306,20 @@ def quality_metrics(case: Case, snapshot: str | Snapshot = "baseline") -> pd.Dat
 
 
 def metric_list(case: Case, snapshot: str | Snapshot = "baseline") -> list[Metric]:
-    """:func:`quality_metrics` as a list of :class:`Metric` (for JSON and tables)."""
+    """:func:`quality_metrics` as a list of :class:`Metric` (for JSON and tables).
+
+    Parameters
+    ----------
+    case : Case
+        A loaded case.
+    snapshot : str or Snapshot, default "baseline"
+        The programme measured: a folder name, a label, ``"asbuilt"`` or a snapshot.
+
+    Returns
+    -------
+    list of Metric
+        The fourteen metrics in the order of :data:`METRIC_KEYS`.
+    """
     snap = resolve(case, snapshot)
     result = scheduled(case, snap)
     table = snap.activities_table
