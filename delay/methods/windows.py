@@ -651,16 +651,15 @@ def _charge_frame(
     case: Case, traced: pd.DataFrame, days: np.ndarray, start: Snapshot, end: Snapshot, overrides: pd.DataFrame
 ) -> pd.DataFrame:
     """The traced charges with their calendar days, causes and any analyst's attribution."""
-    frame = traced.reset_index(drop=True).copy()
-    frame["days"] = days
-    causes = _causes(case, list(frame["activity"]), start, end)
-    frame["events"] = causes["events"].to_numpy()
-    frame["parties"] = causes["parties"].to_numpy()
-    frame["party"] = causes["party"].to_numpy()
-    frame["basis"] = causes["basis"].to_numpy()
-    frame["rule_party"], frame["rule_basis"] = frame["party"], frame["basis"]
-    frame["rule_events"] = frame["events"]
-    frame["reason"] = ""
+    causes = _causes(case, traced["activity"].tolist(), start, end)
+    cells = {name: traced[name].to_numpy() for name in traced.columns}  # one table built, not one column at a time
+    cells["days"] = np.asarray(days)
+    for name in ("events", "parties", "party", "basis"):
+        cells[name] = causes[name].to_numpy()
+    for name in ("party", "basis", "events"):  # what the rules gave, kept beside an analyst's attribution
+        cells[f"rule_{name}"] = cells[name].copy()
+    cells["reason"] = np.full(len(traced), "", dtype=object)
+    frame = pd.DataFrame(cells)
     mine = overrides[overrides["folder"] == end.folder] if len(overrides) else overrides
     for record in mine.itertuples(index=False):
         rows = np.flatnonzero((frame["activity"] == record.activity).to_numpy())
