@@ -138,6 +138,8 @@ class Network:
 
     def index_of(self, ids) -> np.ndarray:
         """Activity numbers of ids; ``-1`` for an unknown id."""
+        if isinstance(ids, np.ndarray) and ids.shape == self.ids.shape and np.array_equal(ids, self.ids):
+            return np.arange(self.size)  # another schedule of the same activities: nothing to look up
         return self.index.get_indexer(pd.Index(list(ids) if not isinstance(ids, str) else [ids]))
 
     def predecessor_count(self) -> np.ndarray:
