@@ -471,6 +471,20 @@ def _placeholders(
 
 
 def model_by_guid(model, global_id: str):
+    """The entity of a model with a GlobalId, or None.
+
+    Parameters
+    ----------
+    model : ifcopenshell.file
+        An open model.
+    global_id : str
+        The GlobalId looked for.
+
+    Returns
+    -------
+    ifcopenshell.entity_instance or None
+        The entity; ``None`` when the model has none of that GlobalId.
+    """
     try:
         return model.by_guid(global_id)
     except RuntimeError:

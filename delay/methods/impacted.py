@@ -407,26 +407,32 @@ class ImpactedResult:
 
     @property
     def completion_base(self) -> dt.date:
+        """The whole works' completion in the base programme, before any event."""
         return self.run.completion_base
 
     @property
     def completion_cumulative(self) -> dt.date:
+        """The whole works' completion with every event inserted."""
         return self.run.completion_cumulative
 
     @property
     def actual_completion(self) -> dt.date:
+        """The whole works' actual completion (see :class:`ImpactedRun`)."""
         return self.run.actual_completion
 
     @property
     def total_days(self) -> int:
+        """The cumulative impact in calendar days: the increments' sum."""
         return self.run.total_days
 
     @property
     def residual_days(self) -> int:
+        """The actual less the impacted completion, in calendar days."""
         return self.run.residual_days
 
     @property
     def explained_days(self) -> int:
+        """The actual less the planned completion, in calendar days."""
         return self.run.explained_days
 
     def to_json(self) -> dict:

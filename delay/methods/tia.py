@@ -187,22 +187,27 @@ class TimeImpactResult:
 
     @property
     def events(self) -> pd.DataFrame:
+        """The whole works' event rows."""
         return self.trace.events
 
     @property
     def updates(self) -> pd.DataFrame:
+        """The whole works' rows per programme (:data:`UPDATE_COLUMNS`)."""
         return self.trace.updates
 
     @property
     def planned_completion(self) -> dt.date:
+        """The completion in the first programme, before any event."""
         return self.trace.planned_completion
 
     @property
     def actual_completion(self) -> dt.date:
+        """The as-built record's completion, else the last update's own."""
         return self.trace.actual_completion
 
     @property
     def explained_days(self) -> int:
+        """The actual less the planned completion, in calendar days."""
         return self.trace.explained_days
 
     @property
