@@ -88,7 +88,7 @@ class TimeImpactTrace:
         The target's finish in the first programme, before any event.
     actual_completion : datetime.date
         The last programme's ``next_completion``: the as-built record's finish, else the
-        last update's own.
+        last update's own (with the events inserted into it, when there are any).
     """
 
     target: str
@@ -202,7 +202,7 @@ class TimeImpactResult:
 
     @property
     def actual_completion(self) -> dt.date:
-        """The as-built record's completion, else the last update's own."""
+        """The as-built record's completion, else the last update's (its events inserted)."""
         return self.trace.actual_completion
 
     @property
