@@ -208,7 +208,7 @@ class Context:
         -------
         datetime.date
             The programme's completion from the forward pass of the critical path method
-        (:meth:`delay.cpm.ScheduleModel.completion`).
+            (:meth:`delay.cpm.ScheduleModel.completion`).
         """
         if snapshot.folder not in self._completions:
             if self._calendars is None:
