@@ -63,14 +63,20 @@ _RUNNERS = {
 class ReportContent:
     """Everything the report shows, before it is rendered.
 
-    Attributes
+    Parameters
     ----------
-    case: the loaded case.
-    title: the report's title.
-    methods: the methods asked for (after resolving defaults), in section order.
-    sections: in :data:`SECTIONS` order (the manifest section is filled in when rendering).
-    tables: every table shown, in page order; keys are unique.
-    left_out: why methods the case cannot support were left out (when none were named).
+    case : delay.model.Case
+        The loaded case.
+    title : str
+        The report's title.
+    methods : list of str
+        The methods asked for (after resolving defaults), in section order.
+    sections : list of reports.blocks.Section
+        In :data:`SECTIONS` order (the manifest section is filled in when rendering).
+    tables : list of reports.tables.ReportTable
+        Every table shown, in page order; keys are unique.
+    left_out : list of str
+        Why methods the case cannot support were left out (when none were named).
     """
 
     case: Case
@@ -81,11 +87,33 @@ class ReportContent:
     left_out: list[str]
 
     def fingerprints(self) -> dict[str, str]:
-        """The SHA-256 of each table's canonical CSV, by table key."""
+        """The fingerprint of every table.
+
+        Returns
+        -------
+        dict of str to str
+            Table key to the SHA-256 (hex) of its canonical CSV, in page order.
+        """
         return {t.key: t.fingerprint() for t in self.tables}
 
     def table(self, key: str) -> ReportTable:
-        """The table named ``key`` (:class:`KeyError` when there is none)."""
+        """The table named ``key``.
+
+        Parameters
+        ----------
+        key : str
+            A table key.
+
+        Returns
+        -------
+        reports.tables.ReportTable
+            The table.
+
+        Raises
+        ------
+        KeyError
+            When the report has no table of that key.
+        """
         for table in self.tables:
             if table.key == key:
                 return table
@@ -95,25 +123,30 @@ class ReportContent:
 def resolve_methods(case: Case, methods: str | Sequence[str] | None) -> tuple[list[str], list[str]]:
     """The methods to run and, for defaults left out, why.
 
-    ``None`` or ``"all"``: every method the case supports (a windows analysis needs two
-    programmes; the collapsed as-built and as planned against as built need an as-built
-    record). Names given are kept as given (in section order) and an unsupported one fails
-    in its method with the method's own message.
+    ``None``, an empty list or ``"all"``: every method the case supports (a windows analysis
+    needs two programmes; the collapsed as-built and as planned against as built need an
+    as-built record). Names given are kept (put in section order) and an unsupported one
+    fails in its method with the method's own message.
 
     Parameters
     ----------
-    case: a loaded case.
-    methods: names among :data:`REPORT_METHODS` (a list or a comma-separated text),
-        ``None`` or ``"all"``.
+    case : delay.model.Case
+        A loaded case.
+    methods : str or sequence of str or None
+        Names among :data:`REPORT_METHODS` (a list or a comma-separated text), ``None`` or
+        ``"all"``.
 
     Returns
     -------
-    tuple of list of str
-        The methods, in section order, and the reasons for the ones left out.
+    methods : list of str
+        The methods, in section order.
+    left_out : list of str
+        A sentence for each default left out, and why; empty when names were given.
 
     Raises
     ------
-    CaseError: an unknown method name.
+    delay.errors.CaseError
+        An unknown method name (``--methods``).
     """
     if isinstance(methods, str):
         methods = [m.strip() for m in methods.split(",") if m.strip()]
@@ -146,21 +179,41 @@ def resolve_methods(case: Case, methods: str | Sequence[str] | None) -> tuple[li
 def compute(case: Case, methods: str | Sequence[str] | None = None, title: str | None = None) -> ReportContent:
     """Run the report's analyses on ``case`` and gather every section, table and figure.
 
+    Nothing is written.
+
     Parameters
     ----------
-    case: a loaded case.
-    methods: names among :data:`REPORT_METHODS` (a list or a comma-separated text);
+    case : delay.model.Case
+        A loaded case.
+    methods : str or sequence of str, optional
+        Names among :data:`REPORT_METHODS` (a list or a comma-separated text);
         ``None`` or ``"all"``: every method the case supports.
-    title: the report's title (default "Delay analysis: <project name>").
+    title : str, optional
+        The report's title (default "Delay analysis: <project name>").
 
     Returns
     -------
     ReportContent
+        The sections in :data:`SECTIONS` order and every table they show.
 
     Raises
     ------
-    CaseError: an unknown method, or input a method cannot use.
-    ReconciliationError: figures of a method that do not add up (a fault of the toolkit).
+    delay.errors.CaseError
+        An unknown method, or input a method cannot use.
+    delay.errors.ReconciliationError
+        Figures of a method that do not add up (a fault of the toolkit).
+
+    Examples
+    --------
+    >>> import pathlib, tempfile
+    >>> from delay.case import load_case
+    >>> from delay.synth import synthesise
+    >>> folder = tempfile.TemporaryDirectory()
+    >>> case = load_case(synthesise(pathlib.Path(folder.name) / "case", 20, updates=2))
+    >>> content = compute(case, methods="windows,asbuilt")
+    >>> content.methods, [s.key for s in content.sections][:2]
+    (['windows', 'asbuilt'], ['summary', 'money'])
+    >>> folder.cleanup()
     """
     chosen, left_out = resolve_methods(case, methods)
     title = title or f"Delay analysis: {case.settings.project.name}"

@@ -61,12 +61,18 @@ def extension_beyond_overrun(item, *, actual_word: str = "actual") -> str | None
 
     Parameters
     ----------
-    item: a :class:`delay.entitlement.Entitlement`.
-    actual_word: ``"actual"``, or ``"forecast"`` when the case has no as-built record.
+    item : delay.entitlement.Entitlement
+        One method's entitlement (its extension, overrun, completions and acceleration,
+        in calendar days).
+    actual_word : str, default "actual"
+        ``"actual"``, or ``"forecast"`` when the case has no as-built record.
 
     Returns
     -------
     str or None
+        The sentence, with how much of the excess the contractor's acceleration explains
+        and the method's reason for the rest; ``None`` when the extension is not beyond
+        the overrun.
     """
     overrun = item.overrun_days
     excess = item.eot_days - max(0, overrun)
@@ -105,11 +111,13 @@ def unexplained_days(item) -> str | None:
 
     Parameters
     ----------
-    item: a :class:`delay.entitlement.Entitlement`.
+    item : delay.entitlement.Entitlement
+        One method's entitlement (its causation table is read).
 
     Returns
     -------
     str or None
+        The sentence (days in calendar days), or ``None`` when there is nothing to say.
     """
     table = item.causation.table
     if not len(table):
@@ -141,7 +149,8 @@ def collapsed_model(result) -> str | None:
 
     Parameters
     ----------
-    result: a :class:`delay.methods.collapsed.CollapsedResult`.
+    result : delay.methods.collapsed.CollapsedResult
+        The collapsed as-built result.
 
     Returns
     -------
@@ -165,13 +174,17 @@ def events_left_alone(method: str, result) -> list[str]:
 
     Parameters
     ----------
-    method: ``impacted``, ``tia`` or ``collapsed``.
-    result: the method's result (its ``events``, with ``applied`` and ``effect``; for the
+    method : str
+        ``impacted``, ``tia`` or ``collapsed``.
+    result : object
+        The method's result (its ``events``, with ``applied`` and ``effect``; for the
         collapsed as-built its ``by_event``, with ``days_earlier`` and ``note``).
 
     Returns
     -------
     list of str
+        One sentence per event not scored or applied only in part, then one for all the
+        events whose hold left work alone; empty when there are none.
     """
     found = []
     if method == "collapsed":
@@ -204,7 +217,8 @@ def tia_warnings(result) -> list[str]:
 
     Parameters
     ----------
-    result: a :class:`delay.methods.tia.TimeImpactResult` (its events' ``warnings``).
+    result : delay.methods.tia.TimeImpactResult
+        The time impact analysis (its events' ``warnings``).
 
     Returns
     -------
@@ -223,7 +237,8 @@ def warnings_of(ctx: Context) -> list[str]:
 
     Parameters
     ----------
-    ctx: the report's results (:class:`reports.context.Context`).
+    ctx : reports.context.Context
+        The report's results (:class:`reports.context.Context`).
 
     Returns
     -------

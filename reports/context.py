@@ -56,11 +56,13 @@ def days_text(n: int) -> str:
 
     Parameters
     ----------
-    n: a number of calendar days.
+    n : int
+        A number of calendar days.
 
     Returns
     -------
     str
+        ``"<n> calendar day"``, plural unless ``n`` is 1 or -1.
 
     Examples
     --------
@@ -75,12 +77,15 @@ def money_text(amount: float, currency: str) -> str:
 
     Parameters
     ----------
-    amount: the sum.
-    currency: its ISO 4217 code.
+    amount : float
+        The sum.
+    currency : str
+        Its ISO 4217 code.
 
     Returns
     -------
     str
+        The code, then the sum with thousands separators and two decimals.
 
     Examples
     --------
@@ -95,12 +100,16 @@ class Context:
 
     Parameters
     ----------
-    case: the loaded case.
-    methods: the methods run, in section order.
-    results: each method's result, by its name in :data:`REPORT_METHODS`.
-    entitlement: :class:`delay.entitlement.EntitlementResult` of the methods that assess
-        entitlement, or ``None`` when none of them ran.
-    comparison: :class:`delay.comparison.MethodComparison` of the same methods, or ``None``.
+    case : delay.model.Case
+        The loaded case.
+    methods : list of str
+        The methods run, in section order.
+    results : dict of str to object
+        Each method's result, by its name in :data:`REPORT_METHODS`.
+    entitlement : delay.entitlement.EntitlementResult, optional
+        The entitlement of the methods that assess it, or ``None`` when none of them ran.
+    comparison : delay.comparison.MethodComparison, optional
+        The comparison of the same methods, or ``None``.
     """
 
     def __init__(self, case: Case, methods: list[str], results: dict[str, Any], entitlement=None, comparison=None):
@@ -145,18 +154,33 @@ class Context:
 
         Parameters
         ----------
-        key, title, section, frame, note, labels, build_up: as for
-            :class:`reports.tables.ReportTable`.
-        style: the block's style (:class:`reports.blocks.TableBlock`).
+        key : str
+            The table's key (see :class:`reports.tables.ReportTable`).
+        title : str
+            Its caption.
+        section : str
+            The key of the section that shows it.
+        frame : pandas.DataFrame
+            Its rows (the index is dropped).
+        note : str, optional
+            A sentence under the caption.
+        labels : dict, optional
+            Headings in plain words for its columns.
+        style : str, optional
+            The block's style (:class:`reports.blocks.TableBlock`).
+        build_up : reports.tables.BuildUp, optional
+            How its money is built up.
 
         Returns
         -------
         reports.blocks.TableBlock
+            The block that shows the table.
 
         Raises
         ------
         ValueError
-            A key already registered: two tables of one report never share a name.
+            A key already registered (two tables of one report never share a name), or a key
+            :class:`reports.tables.ReportTable` refuses.
         """
         if any(t.key == key for t in self.tables):
             raise ValueError(f"two tables named {key}")
@@ -177,11 +201,14 @@ class Context:
 
         Parameters
         ----------
-        snapshot: a :class:`delay.model.Snapshot` of the case.
+        snapshot : delay.model.Snapshot
+            A snapshot of the case.
 
         Returns
         -------
         datetime.date
+            The programme's completion from the forward pass of the critical path method
+            (:meth:`delay.cpm.ScheduleModel.completion`).
         """
         if snapshot.folder not in self._completions:
             if self._calendars is None:
@@ -195,16 +222,19 @@ class Context:
 
         Parameters
         ----------
-        method: a name of :data:`REPORT_METHODS` (also the section's key); the title is the
-            method in words and its one-word name, the command that runs it alone.
-        explanation: the paragraph the section opens with when the method ran.
+        method : str
+            A name of :data:`REPORT_METHODS` (also the section's key); the title is the method
+            in words and its one-word name, the command that runs it alone.
+        explanation : str
+            The paragraph the section opens with when the method ran.
 
         Returns
         -------
-        tuple
-            The :class:`~reports.blocks.Section` and the method's result; when the method
-            did not run, the section says why and is marked not available, and the result
-            is ``None``.
+        section : reports.blocks.Section
+            The section; when the method did not run, it says why and is marked not
+            available.
+        result : object or None
+            The method's result, ``None`` when it did not run.
         """
         section = Section(method, method_title(method))
         if method not in self.results:

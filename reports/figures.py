@@ -106,14 +106,19 @@ def completion_trend(
 
     Parameters
     ----------
-    trend: one row per programme, in data-date order: ``label``, ``data_date``,
+    trend : pandas.DataFrame
+        One row per programme, in data-date order: ``label``, ``data_date``,
         ``completion`` (dates), optionally ``kind`` (``baseline``, ``update``, ``asbuilt``).
-    contract_in_force, planned: dates drawn as horizontal reference lines (the contract
+    contract_in_force, planned : datetime.date, optional
+        Dates drawn as horizontal reference lines (the contract
         completion in force, black dashes; the planned completion, grey dots).
-    in_force: the contract completion in force over time, in date order: ``date`` (from
+    in_force : pandas.DataFrame, optional
+        The contract completion in force over time, in date order: ``date`` (from
         when), ``completion_in_force`` and ``grant`` (the words at a step, ``""`` where
         none); drawn as a black dashed line that steps up at each grant (instead of the
         flat ``contract_in_force``).
+    title : str, optional
+        The figure's title (default "Forecast completion at each programme").
 
     Returns
     -------
@@ -180,8 +185,11 @@ def window_movements(windows: pd.DataFrame, *, title: str = "Movement of complet
 
     Parameters
     ----------
-    windows: one row per window: ``window``, ``start``, ``end`` (programme names),
+    windows : pandas.DataFrame
+        One row per window: ``window``, ``start``, ``end`` (programme names),
         ``progress_days``, ``revision_days`` (calendar days; positive is delay).
+    title : str, optional
+        The figure's title (default "Movement of completion in each window").
 
     Returns
     -------
@@ -241,10 +249,13 @@ def window_parties(windows: pd.DataFrame, *, title: str = "Each window's movemen
 
     Parameters
     ----------
-    windows: one row per window: ``window``, ``start``, ``end`` (programme labels),
+    windows : pandas.DataFrame
+        One row per window: ``window``, ``start``, ``end`` (programme labels),
         ``movement_days``, and per party of :data:`PARTIES_DRAWN` its delays
         ``<party>_days`` (zero or more) and its gains ``<party>_gain_days`` (zero or less),
         in calendar days.
+    title : str, optional
+        The figure's title (default "Each window's movement of completion, by party").
 
     Returns
     -------
@@ -316,10 +327,13 @@ def completion_steps(steps: pd.DataFrame, *, title: str = "Completion after each
 
     Parameters
     ----------
-    steps: one row per point, in run order: ``run`` (the programme the events are inserted
+    steps : pandas.DataFrame
+        One row per point, in run order: ``run`` (the programme the events are inserted
         into; one staircase per run), ``step`` (``"before any event"`` or the event id),
         ``completion`` (date after the step), optionally ``alone`` (completion with that
         event alone, drawn as a hollow marker) and ``title`` (hover text).
+    title : str, optional
+        The figure's title (default "Completion after each event").
 
     Returns
     -------
@@ -385,8 +399,10 @@ def gantt_order(activities: pd.DataFrame, critical_path=None) -> pd.DataFrame:
 
     Parameters
     ----------
-    activities: as for :func:`planned_against_built`.
-    critical_path: the as-built critical path in path order: the ``critical_path`` table of
+    activities : pandas.DataFrame
+        As for :func:`planned_against_built`.
+    critical_path : pandas.DataFrame or list of str, optional
+        The as-built critical path in path order: the ``critical_path`` table of
         :class:`delay.methods.asbuilt.AsBuiltResult` (its ``activity`` column) or a list of
         activity ids; ``None`` for none.
 
@@ -438,16 +454,21 @@ def planned_against_built(
 
     Parameters
     ----------
-    activities: one row per activity: ``wbs``, ``id``, ``name``, ``planned_start``,
+    activities : pandas.DataFrame
+        One row per activity: ``wbs``, ``id``, ``name``, ``planned_start``,
         ``planned_finish``, ``actual_start``, ``actual_finish`` (dates; a missing pair
         draws no bar) and ``milestone`` (bool). A bar runs from the start of its start date
         to the end of its finish date (work happens on both), so its length is
         ``finish - start + 1`` days.
-    critical_path: the as-built critical path in path order (the ``critical_path`` table
+    critical_path : pandas.DataFrame or list of str, optional
+        The as-built critical path in path order (the ``critical_path`` table
         of :func:`delay.methods.asbuilt.compare`, or a list of ids): its activities are
         drawn first, in path order, then the others by start (:func:`gantt_order`).
-    data_dates: ``label`` and ``data_date`` of each progress update, drawn as dotted
+    data_dates : pandas.DataFrame, optional
+        ``label`` and ``data_date`` of each progress update, drawn as dotted
         vertical lines, labelled under the plot.
+    title : str, optional
+        The figure's title (default "As-planned versus as-built, activities on the driving paths").
 
     Returns
     -------
@@ -586,8 +607,11 @@ def days_by_method(summary: pd.DataFrame, *, title: str = "Days by method"):
 
     Parameters
     ----------
-    summary: one row per method: ``method`` (its name in words), ``eot_days``,
+    summary : pandas.DataFrame
+        One row per method: ``method`` (its name in words), ``eot_days``,
         ``compensable_days``, ``ld_days`` (calendar days).
+    title : str, optional
+        The figure's title (default "Days by method").
 
     Returns
     -------
@@ -628,8 +652,11 @@ def but_for_days(by_party: pd.DataFrame, *, title: str = "How much earlier the w
 
     Parameters
     ----------
-    by_party: ``party`` and ``days_earlier`` (missing where nothing could be taken out;
+    by_party : pandas.DataFrame
+        ``party`` and ``days_earlier`` (missing where nothing could be taken out;
         such a party is left out of the chart).
+    title : str, optional
+        The figure's title (default "How much earlier the works would have finished").
 
     Returns
     -------
@@ -663,7 +690,28 @@ def but_for_days(by_party: pd.DataFrame, *, title: str = "How much earlier the w
 
 
 def figure_html(figure, element_id: str) -> str:
-    """The figure as an HTML fragment for a page that already holds plotly.js."""
+    """The figure as an HTML fragment for a page that already holds plotly.js.
+
+    Parameters
+    ----------
+    figure : plotly.graph_objects.Figure
+        The figure.
+    element_id : str
+        The ``id`` of the ``div`` that holds it.
+
+    Returns
+    -------
+    str
+        The ``div`` and the script that draws the figure in it (no plotly.js, no plotly
+        logo, resizing with the page).
+
+    Examples
+    --------
+    >>> import plotly.graph_objects as go
+    >>> fragment = figure_html(go.Figure(go.Bar(x=["A"], y=[3])), "figure-a")
+    >>> 'id="figure-a"' in fragment, "<script" in fragment, "<html" in fragment
+    (True, True, False)
+    """
     return figure.to_html(
         full_html=False, include_plotlyjs=False, div_id=element_id, config={"displaylogo": False, "responsive": True}
     )

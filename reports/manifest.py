@@ -94,9 +94,12 @@ class VerifyError(Exception):
 
     Parameters
     ----------
-    where: the file or folder concerned, as shown.
-    message: what is wrong.
-    fix: what to do.
+    where : str or pathlib.Path
+        The file or folder concerned, as shown.
+    message : str
+        What is wrong.
+    fix : str
+        What to do.
     """
 
     def __init__(self, where: str | Path, message: str, fix: str):
@@ -132,7 +135,8 @@ def input_files(case) -> list[dict[str, Any]]:
 
     Parameters
     ----------
-    case: a loaded case.
+    case : delay.model.Case
+        A loaded case.
 
     Returns
     -------
@@ -213,10 +217,14 @@ def make_manifest(content, out_dir: Path, created: dt.datetime | None = None, *,
 
     Parameters
     ----------
-    content: the report's content (:func:`reports.builder.compute`).
-    out_dir: where the report folder will be (the case is recorded relative to it).
-    created: the time of the run; default now (UTC).
-    output_id: the id of the report folder's marker.
+    content : reports.builder.ReportContent
+        The report's content (:func:`reports.builder.compute`).
+    out_dir : pathlib.Path
+        Where the report folder will be (the case is recorded relative to it).
+    created : datetime.datetime, optional
+        The time of the run; default now (UTC).
+    output_id : str, default ""
+        The id of the report folder's marker.
 
     Returns
     -------
@@ -289,8 +297,10 @@ def record_outputs(manifest: dict, folder: Path) -> dict:
 
     Parameters
     ----------
-    manifest: from :func:`make_manifest`.
-    folder: the report folder, every file written but the manifest.
+    manifest : dict
+        From :func:`make_manifest`.
+    folder : pathlib.Path
+        The report folder, every file written but the manifest.
 
     Returns
     -------
@@ -504,7 +514,8 @@ def read_manifest(folder: str | Path) -> dict:
 
     Parameters
     ----------
-    folder: a report folder.
+    folder : str or pathlib.Path
+        A report folder.
 
     Returns
     -------
@@ -561,10 +572,20 @@ def read_manifest(folder: str | Path) -> dict:
 # -- verify -----------------------------------------------------------------------------------
 @dataclass(frozen=True)
 class Difference:
-    """One thing that differs: ``kind`` (``output changed``, ``output missing``, ``output
-    added``, ``table file changed``, ``input changed``, ``input missing``, ``input added``,
-    ``input outside the case``, ``table differs``, ``table missing``, ``table new``, ``case
-    does not load``, ``analysis fails``), ``what`` it concerns and ``detail`` in words."""
+    """One thing that differs between a report folder and what it was made from.
+
+    Parameters
+    ----------
+    kind : str
+        ``output changed``, ``output missing``, ``output added``, ``table file changed``,
+        ``input changed``, ``input missing``, ``input added``, ``input outside the case``,
+        ``table differs``, ``table missing``, ``table new``, ``case does not load`` or
+        ``analysis fails``.
+    what : str
+        What it concerns (a file, a table key).
+    detail : str, optional
+        The difference in words.
+    """
 
     kind: str
     what: str
@@ -576,7 +597,25 @@ class Difference:
 
 @dataclass(frozen=True)
 class Verification:
-    """The outcome of :func:`verify`."""
+    """The outcome of :func:`verify`.
+
+    Parameters
+    ----------
+    folder : pathlib.Path
+        The report folder checked.
+    case : pathlib.Path
+        The case folder or workbook it was checked against.
+    differences : tuple of Difference
+        Everything that differs; empty when the report is confirmed.
+    tables : int
+        Tables the manifest lists.
+    inputs : int
+        Input files the manifest lists.
+    notes : tuple of str, optional
+        Notes that are not differences (a report made by another version).
+    outputs : int, default 0
+        Files of the report the manifest lists.
+    """
 
     folder: Path
     case: Path
@@ -588,10 +627,17 @@ class Verification:
 
     @property
     def confirmed(self) -> bool:
+        """True when nothing differs."""
         return not self.differences
 
     def lines(self) -> list[str]:
-        """One line per note and per difference, then the verdict."""
+        """The outcome in lines, as ``delay verify`` prints them.
+
+        Returns
+        -------
+        list of str
+            One line per note and per difference, then the verdict.
+        """
         out = list(self.notes)
         if self.confirmed:
             files = "input file" if self.inputs == 1 else "input files"
@@ -719,18 +765,35 @@ def verify(folder: str | Path, case_path: str | Path | None = None) -> Verificat
 
     Parameters
     ----------
-    folder: a folder written by :func:`reports.build`.
-    case_path: the case, when it is no longer where the manifest says.
+    folder : str or pathlib.Path
+        A folder written by :func:`reports.build`.
+    case_path : str or pathlib.Path, optional
+        The case, when it is no longer where the manifest says.
 
     Returns
     -------
     Verification
-        ``confirmed`` is true when nothing differs; ``differences`` lists the rest.
+        ``confirmed`` is true when nothing differs; ``differences`` lists the rest (a case
+        that no longer loads is a difference, not an error).
 
     Raises
     ------
-    VerifyError: no manifest, or one that is too large, too deep, unreadable or not of the
+    VerifyError
+        No manifest, or one that is too large, too deep, unreadable or not of the
         toolkit's layout; or no case where the manifest or ``case_path`` says.
+
+    Examples
+    --------
+    >>> import pathlib, tempfile
+    >>> from delay.case import load_case
+    >>> from delay.synth import synthesise
+    >>> from reports.writer import build
+    >>> folder = tempfile.TemporaryDirectory()
+    >>> case = load_case(synthesise(pathlib.Path(folder.name) / "case", 20, updates=2))
+    >>> report = build(case, pathlib.Path(folder.name) / "report", methods="windows")
+    >>> verify(report).confirmed
+    True
+    >>> folder.cleanup()
     """
     from delay import __version__
     from delay.case import load_case

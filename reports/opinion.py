@@ -35,20 +35,21 @@ _CONTROL = re.compile(r"[\x00-\x20\x7f]+")
 
 
 def safe_link(address: str) -> bool:
-    """Whether ``address`` may be a link of the opinion: ``http``, ``https``, ``mailto`` or
-    relative.
+    """Whether ``address`` may be a link of the opinion: ``http``, ``https``, ``mailto`` or relative.
 
     Blanks and control characters are taken out before the scheme is read, as browsers do
     (``java\\tscript:`` is ``javascript:``).
 
     Parameters
     ----------
-    address: a link's address as written in the Markdown (after markdown-it-py's
-        normalisation).
+    address : str
+        A link's address as written in the Markdown (after markdown-it-py's normalisation).
 
     Returns
     -------
     bool
+        True for a relative address (no scheme) or one whose scheme is in
+        :data:`LINK_SCHEMES`, in any case.
 
     Examples
     --------
@@ -92,17 +93,24 @@ def render_opinion(text: str) -> Markup:
 
     Parameters
     ----------
-    text: the analyst's Markdown (``Case.opinion``).
+    text : str
+        The analyst's Markdown (``Case.opinion``).
 
     Returns
     -------
     markupsafe.Markup
         HTML with no raw HTML of the text, no link outside :data:`LINK_SCHEMES` and
-        relative addresses, and no image.
+        relative addresses, and no image; headings three levels down.
 
     Examples
     --------
     >>> str(render_opinion("**Late** <script>x</script> [a](javascript:alert(1))"))
     '<p><strong>Late</strong> &lt;script&gt;x&lt;/script&gt; [a](javascript:alert(1))</p>\\n'
+    >>> str(render_opinion("# Opinion"))
+    '<h4>Opinion</h4>\\n'
+
+    References
+    ----------
+    CommonMark Spec, version 0.31.2 (2024), section 6.6 (raw HTML), as recalled.
     """
     return Markup(_parser().render(text))

@@ -91,8 +91,10 @@ def table_view(table: ReportTable, style: str = "") -> dict[str, Any]:
 
     Parameters
     ----------
-    table: the table.
-    style: its block's style (``matrix`` is cut into parts of :data:`MATRIX_COLUMNS`
+    table : reports.tables.ReportTable
+        The table.
+    style : str, default ""
+        Its block's style (``matrix`` is cut into parts of :data:`MATRIX_COLUMNS`
         programmes; ``folded`` and ``headline`` are never folded again).
 
     Returns
@@ -100,6 +102,13 @@ def table_view(table: ReportTable, style: str = "") -> dict[str, Any]:
     dict
         Headings and rows (total rows of a build-up included) in parts, the counts, and
         whether the table is folded.
+
+    Examples
+    --------
+    >>> from reports.tables import ReportTable
+    >>> view = table_view(ReportTable("eot", "Extension of time", "money", pd.DataFrame({"eot_days": [12]})))
+    >>> view["parts"][0]["headings"], view["parts"][0]["rows"], view["collapsed"]
+    (['extension of time (calendar days)'], [['12']], False)
     """
     frame = table.frame
     rows, classes = _rows(table)
@@ -217,8 +226,10 @@ def render_html(content: ReportContent, manifest: dict) -> str:
 
     Parameters
     ----------
-    content: from :func:`reports.builder.compute`.
-    manifest: the manifest written beside the page (its facts fill the manifest section).
+    content : reports.builder.ReportContent
+        From :func:`reports.builder.compute`.
+    manifest : dict
+        The manifest written beside the page (its facts fill the manifest section).
 
     Returns
     -------

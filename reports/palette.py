@@ -88,8 +88,18 @@ def discrete_colourscale(colours: tuple[str, ...] = STATE_COLOURS) -> list[list]
     middle of its own band of the scale, and the bands have hard edges (each colour is
     given at both ends of its band).
 
-    Example
+    Parameters
+    ----------
+    colours : tuple of str, default STATE_COLOURS
+        The colours, one per value, as CSS colour text.
+
+    Returns
     -------
+    list of list
+        ``[position, colour]`` pairs, two per colour, positions from 0 to 1.
+
+    Examples
+    --------
     >>> discrete_colourscale(("#000000", "#FFFFFF"))
     [[0.0, '#000000'], [0.5, '#000000'], [0.5, '#FFFFFF'], [1.0, '#FFFFFF']]
     """

@@ -234,7 +234,26 @@ LABELS: dict[str, str] = {
 
 
 def label_of(column: str, labels: Mapping[str, str] | None = None) -> str:
-    """The heading of ``column`` in plain words."""
+    """The heading of ``column`` in plain words.
+
+    Parameters
+    ----------
+    column : str
+        A column name.
+    labels : mapping of str to str, optional
+        Headings that take precedence over :data:`LABELS` (a table's own).
+
+    Returns
+    -------
+    str
+        ``labels[column]``, else ``LABELS[column]``, else the name with blanks for
+        underscores.
+
+    Examples
+    --------
+    >>> label_of("eot_days"), label_of("eot_days", {"eot_days": "extension"}), label_of("new_column")
+    ('extension of time (calendar days)', 'extension', 'new column')
+    """
     if labels and column in labels:
         return labels[column]
     return LABELS.get(column, column.replace("_", " "))
@@ -244,16 +263,6 @@ def label_of(column: str, labels: Mapping[str, str] | None = None) -> str:
 class BuildUp:
     """How the money of a table is built up, so that a reader can recompute it.
 
-    Attributes
-    ----------
-    products: a column whose values are the product of other columns (``{"cost": ("days",
-        "cost_per_day")}``).
-    capped: a column whose values are the smaller of two others, the second a cap that
-        applies only when above 0 (``{"ld_exposure": ("damages_before_cap", "cap")}``).
-    totals: columns summed in a total row after each group of rows.
-    group: the column whose runs of equal values are totalled apart (``""``: one total for
-        the whole table).
-
     In the page the total rows follow each group. In tables.xlsx each column of
     ``products``, ``capped`` and ``totals`` gets a formula column beside the values, named
     "... (formula)": a product of the row's cells, ``MIN`` of a figure and its cap, ``SUM``
@@ -262,6 +271,28 @@ class BuildUp:
     stores a formula without its result, so the values are written beside the formulas
     rather than as their cached results; a spreadsheet shows the formulas' results once it
     calculates (on opening).
+
+    Parameters
+    ----------
+    products : mapping of str to tuple of str, optional
+        A column whose values are the product of other columns (``{"cost": ("days",
+        "cost_per_day")}``).
+    capped : mapping of str to (str, str), optional
+        A column whose values are the smaller of two others, the second a cap that applies
+        only when above 0 (``{"ld_exposure": ("damages_before_cap", "cap")}``).
+    totals : tuple of str, optional
+        Columns summed in a total row after each group of rows.
+    group : str, optional
+        The column whose runs of equal values are totalled apart (``""``: one total for the
+        whole table).
+
+    Examples
+    --------
+    >>> import pandas as pd
+    >>> rows = pd.DataFrame({"section": ["A", "A", "B"], "days": [2, 3, 4], "cost": [20.0, 30.0, 40.0]})
+    >>> build_up = BuildUp(totals=("cost",), group="section")
+    >>> build_up.groups(rows), build_up.total(rows, 0, 2), build_up.total_label(rows, 2)
+    ([(0, 2), (2, 3)], {'cost': 50.0}, 'total, B')
     """
 
     products: Mapping[str, tuple[str, ...]] = field(default_factory=dict)
@@ -274,12 +305,13 @@ class BuildUp:
 
         Parameters
         ----------
-        columns: the table's columns.
+        columns : sequence of str
+            The table's columns.
 
         Returns
         -------
         list of str
-            In the table's column order.
+            Those of ``products``, ``capped`` or ``totals``, in the table's column order.
         """
         wanted = set(self.products) | set(self.capped) | set(self.totals)
         return [c for c in columns if c in wanted]
@@ -289,12 +321,14 @@ class BuildUp:
 
         Parameters
         ----------
-        frame: the table's rows.
+        frame : pandas.DataFrame
+            The table's rows.
 
         Returns
         -------
-        list of tuple
-            ``(first, past the last)`` positions of each run, in order.
+        list of tuple of int
+            ``(first, past the last)`` positions of each run, in order; one run for the whole
+            table without ``group``, none for no rows.
         """
         if not len(frame):
             return []
@@ -313,8 +347,10 @@ class BuildUp:
 
         Parameters
         ----------
-        frame: the table's rows.
-        first: the position of the group's first row.
+        frame : pandas.DataFrame
+            The table's rows.
+        first : int
+            The position of the group's first row.
 
         Returns
         -------
@@ -328,13 +364,18 @@ class BuildUp:
 
         Parameters
         ----------
-        frame: the table's rows.
-        first, stop: the group's positions (``stop`` past the last).
+        frame : pandas.DataFrame
+            The table's rows.
+        first : int
+            The position of the group's first row.
+        stop : int
+            The position past its last row.
 
         Returns
         -------
         dict
-            Column to sum: a float rounded to cents where the column holds floats, else an int.
+            Column to sum, missing values left out: a float rounded to cents where the column
+            holds floats, else an int.
         """
         sums = {}
         for column in self.totals:
@@ -348,19 +389,40 @@ class BuildUp:
 class ReportTable:
     """One table of the report.
 
-    Attributes
+    Parameters
     ----------
-    key: the file stem (``tables/<key>.csv``), the sheet name and the fingerprint's name;
-        at most 31 characters, letters, digits and underscores.
-    title: the caption, in plain words.
-    section: the key of the report section that shows it.
-    frame: the rows; its column names are the CSV header.
-    labels: headings in plain words for columns :data:`LABELS` does not name well here.
-    note: a sentence shown under the caption (what the figures mean, what need not add up).
-    shown_rows: at most this many rows appear in the page (all appear in the appendix).
-    build_up: for a table of money, how its figures are built up: the page adds a total
-        row after each group, the workbook recomputes the figures and totals by formula
-        (:class:`BuildUp`). The canonical CSV holds the rows alone.
+    key : str
+        The file stem (``tables/<key>.csv``), the sheet name and the fingerprint's name; at
+        most 31 characters, letters, digits and underscores.
+    title : str
+        The caption, in plain words.
+    section : str
+        The key of the report section that shows it.
+    frame : pandas.DataFrame
+        The rows; its column names are the CSV header.
+    labels : mapping of str to str, optional
+        Headings in plain words for columns :data:`LABELS` does not name well here.
+    note : str, optional
+        A sentence shown under the caption (what the figures mean, what need not add up).
+    shown_rows : int, default 1000
+        At most this many rows appear in the page (all appear in the appendix).
+    build_up : BuildUp, optional
+        For a table of money, how its figures are built up: the page adds a total row
+        after each group, the workbook recomputes the figures and totals by formula. The
+        canonical CSV holds the rows alone.
+
+    Raises
+    ------
+    ValueError
+        A key that is empty, longer than 31 characters or not letters, digits and
+        underscores.
+
+    Examples
+    --------
+    >>> import pandas as pd
+    >>> table = ReportTable("eot", "Extension of time", "money", pd.DataFrame({"eot_days": [12]}))
+    >>> table.canonical_csv(), table.headings
+    ('eot_days\\n12\\n', ['extension of time (calendar days)'])
     """
 
     key: str
@@ -378,10 +440,12 @@ class ReportTable:
 
     @property
     def columns(self) -> list[str]:
+        """The column names, as text."""
         return [str(c) for c in self.frame.columns]
 
     @property
     def headings(self) -> list[str]:
+        """The column headings in plain words (see :func:`label_of`)."""
         return [label_of(c, self.labels) for c in self.columns]
 
     @cached_property
@@ -389,11 +453,23 @@ class ReportTable:
         return canonical_csv(self.frame)
 
     def canonical_csv(self) -> str:
-        """The canonical CSV text (computed once; the frame must not change afterwards)."""
+        """The canonical CSV text of the table (computed once; the frame must not change afterwards).
+
+        Returns
+        -------
+        str
+            :func:`canonical_csv` of :attr:`frame`.
+        """
         return self._canonical
 
     def fingerprint(self) -> str:
-        """SHA-256 (hex) of :meth:`canonical_csv`."""
+        """The table's fingerprint.
+
+        Returns
+        -------
+        str
+            SHA-256 (64 hexadecimal digits) of :meth:`canonical_csv` encoded as UTF-8.
+        """
         return hashlib.sha256(self._canonical.encode("utf-8")).hexdigest()
 
 
@@ -411,6 +487,19 @@ def _missing(value) -> bool:
 def canonical_value(value) -> str:
     """One cell as it appears in the canonical CSV (see the module docstring).
 
+    Parameters
+    ----------
+    value : object
+        The cell: a number, boolean, date or timestamp, text, list, or a missing value.
+
+    Returns
+    -------
+    str
+        Its canonical text (not yet neutralised against formulas: :func:`canonical_csv`
+        does that for text cells).
+
+    Examples
+    --------
     >>> [canonical_value(v) for v in (None, True, 3, 0.1, dt.date(2025, 1, 6), ["A", "B"])]
     ['', 'true', '3', '0.1', '2025-01-06', 'A;B']
     """
@@ -447,6 +536,18 @@ def _csv_cell(value) -> str:
 def canonical_csv(frame: pd.DataFrame) -> str:
     """The canonical CSV text of ``frame`` (see the module docstring).
 
+    Parameters
+    ----------
+    frame : pandas.DataFrame
+        The table; its index is not written.
+
+    Returns
+    -------
+    str
+        The header row and the rows, each line ending in ``\\n``.
+
+    Examples
+    --------
     >>> canonical_csv(pd.DataFrame({"name": ["=1+1", "-3", "Dig"], "days": [-3, 2, 1]})).splitlines()
     ['name,days', "'=1+1,-3", '-3,2', 'Dig,1']
     """
@@ -460,7 +561,25 @@ def canonical_csv(frame: pd.DataFrame) -> str:
 
 
 def fingerprint(frame: pd.DataFrame) -> str:
-    """SHA-256 (hex) of the canonical CSV of ``frame``."""
+    """The fingerprint of a table.
+
+    Parameters
+    ----------
+    frame : pandas.DataFrame
+        The table.
+
+    Returns
+    -------
+    str
+        SHA-256 (64 hexadecimal digits) of its :func:`canonical_csv` encoded as UTF-8.
+
+    Examples
+    --------
+    >>> import hashlib
+    >>> frame = pd.DataFrame({"days": [1]})
+    >>> fingerprint(frame) == hashlib.sha256(b"days\\n1\\n").hexdigest()
+    True
+    """
     return hashlib.sha256(canonical_csv(frame).encode("utf-8")).hexdigest()
 
 
@@ -469,10 +588,33 @@ _LIST_SHOWN = 12
 
 
 def display_value(value, *, money: bool = False) -> str:
-    """A cell as the page shows it: dates ISO, lists joined by commas (the first dozen),
-    floats of 1,000 or more (sums of money) with two decimals and thousands separators,
-    yes/no for booleans, blank for
-    missing. The page escapes the text; nothing here is markup."""
+    """A cell as the page shows it.
+
+    Dates ISO, lists joined by commas (the first dozen, then "and N more"), ``;``-joined
+    ids with a space after each ``;``, floats of 1,000 or more (sums of money) with two
+    decimals and thousands separators, yes/no for booleans, blank for missing. The page
+    escapes the text; nothing here is markup.
+
+    Parameters
+    ----------
+    value : object
+        The cell.
+    money : bool, default False
+        The column holds money: every number with thousands separators, floats with two
+        decimals.
+
+    Returns
+    -------
+    str
+        The text shown.
+
+    Examples
+    --------
+    >>> display_value(1234.5), display_value(12.0), display_value(True), display_value("A1;A2")
+    ('1,234.50', '12', 'yes', 'A1; A2')
+    >>> display_value(7, money=True), display_value(None)
+    ('7', '')
+    """
     if isinstance(value, (list, tuple, np.ndarray)):
         items = [display_value(v) for v in value]
         if len(items) > _LIST_SHOWN:
@@ -497,7 +639,20 @@ def display_value(value, *, money: bool = False) -> str:
 
 # -- appendices ----------------------------------------------------------------------------------
 def write_csv_files(tables: Iterable[ReportTable], folder: Path) -> list[Path]:
-    """Write each table's canonical CSV to ``folder/<key>.csv``."""
+    """Write each table's canonical CSV to ``folder/<key>.csv``.
+
+    Parameters
+    ----------
+    tables : iterable of ReportTable
+        The tables.
+    folder : pathlib.Path
+        The folder, made when missing; files of the same name are overwritten.
+
+    Returns
+    -------
+    list of pathlib.Path
+        The files written, in the tables' order.
+    """
     folder = Path(folder)
     folder.mkdir(parents=True, exist_ok=True)
     written = []
@@ -695,6 +850,22 @@ def write_workbook(tables: Sequence[ReportTable], path: Path, *, title: str = ""
     cells (``yyyy-mm-dd``), numbers as numbers, and column widths set to fit the values. A
     table with a :class:`BuildUp` also has its formula columns and total rows. The workbook
     is written row by row (openpyxl's write-only mode).
+
+    Parameters
+    ----------
+    tables : sequence of ReportTable
+        The tables, one sheet each, in this order.
+    path : pathlib.Path
+        The workbook to write (overwritten when it exists).
+    title : str, optional
+        The heading of the contents sheet (default "Report tables").
+    caution : str, optional
+        A line under it.
+
+    Returns
+    -------
+    pathlib.Path
+        ``path``.
     """
     from openpyxl import Workbook
 

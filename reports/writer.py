@@ -57,22 +57,26 @@ def _case(case: Case | str | Path) -> Case:
 
 
 def write_report(content: ReportContent, folder: Path, location: Path) -> Path:
-    """Write the report of ``content`` into ``folder``, a new folder that will be moved to
-    ``location`` (the manifest records the case relative to that place).
+    """Write the report of ``content`` into ``folder``.
 
-    The folder gets its own marker (:func:`delay.output.mark_folder`), so that it is an
-    output of the toolkit wherever it sits (inside the folder of ``delay demo``, say).
+    ``folder`` is a new folder that will be moved to ``location`` (the manifest records the
+    case relative to that place). The folder gets its own marker
+    (:func:`delay.output.mark_folder`), so that it is an output of the toolkit wherever it
+    sits (inside the folder of ``delay demo``, say).
 
     Parameters
     ----------
-    content: the report's content (:func:`reports.builder.compute`).
-    folder: a new folder inside a folder being built by :func:`delay.output.output_folder`.
-    location: where ``folder`` will be once it is moved into place.
+    content : ReportContent
+        The report's content (:func:`reports.builder.compute`).
+    folder : pathlib.Path
+        A new folder inside a folder being built by :func:`delay.output.output_folder`.
+    location : pathlib.Path
+        Where ``folder`` will be once it is moved into place.
 
     Returns
     -------
-    Path
-        ``folder``.
+    pathlib.Path
+        ``folder``, holding report.html, tables.xlsx, tables/, manifest.json and the marker.
     """
     folder.mkdir(parents=True, exist_ok=True)
     output_id = mark_folder(folder, "report")
@@ -99,29 +103,45 @@ def build(
 
     Parameters
     ----------
-    case: a loaded case, or the path of a case folder or workbook.
-    out_dir: the report folder; it must be new, empty or an earlier output of the toolkit,
+    case : delay.model.Case or str or pathlib.Path
+        A loaded case, or the path of a case folder or workbook.
+    out_dir : str or pathlib.Path
+        The report folder; it must be new, empty or an earlier output of the toolkit,
         and neither the case folder, inside it, nor a folder holding it.
-    methods: among ``windows``, ``impacted``, ``tia``, ``collapsed``, ``asbuilt`` (a list or
+    methods : str or sequence of str, optional
+        Among ``windows``, ``impacted``, ``tia``, ``collapsed``, ``asbuilt`` (a list or
         comma-separated text); ``None`` or ``"all"``: every method the case supports.
-    title: the report's title.
-    echo: called with a line of progress now and then.
+    title : str, optional
+        The report's title (default "Delay analysis: <project name>").
+    echo : callable, optional
+        Called with a line of progress (``str``) now and then.
 
     Returns
     -------
-    Path
+    pathlib.Path
         ``out_dir``.
 
     Raises
     ------
-    CaseError: bad input or an unknown method. Nothing is written then.
-    delay.output.OutputRefused: an output folder that must not be replaced (checked before
-        any work). Nothing is written then.
-    delay.output.OutputFailed: an OSError while writing; an earlier report survives whole.
+    delay.errors.CaseError
+        Bad input or an unknown method. Nothing is written then.
+    delay.output.OutputRefused
+        An output folder that must not be replaced (checked before any work). Nothing is
+        written then.
+    delay.output.OutputFailed
+        An OSError while writing; an earlier report survives whole.
 
-    Example
-    -------
-    >>> build(load_case("case_demo"), "out/report", methods="windows,impacted")   # doctest: +SKIP
+    Examples
+    --------
+    >>> import pathlib, tempfile
+    >>> from delay.case import load_case
+    >>> from delay.synth import synthesise
+    >>> folder = tempfile.TemporaryDirectory()
+    >>> case = load_case(synthesise(pathlib.Path(folder.name) / "case", 20, updates=2))
+    >>> out = build(case, pathlib.Path(folder.name) / "report", methods="windows")
+    >>> sorted(p.name for p in out.iterdir())
+    ['delay-output.json', 'manifest.json', 'report.html', 'tables', 'tables.xlsx']
+    >>> folder.cleanup()
     """
     say = echo or (lambda line: None)
     loaded = _case(case)
@@ -141,17 +161,70 @@ def build(
 def demo_report(case: Case | str | Path, out_dir: str | Path, *, echo: Callable[[str], None] | None = None) -> Path:
     """The full report of the demo case (every method the case supports) into ``out_dir``.
 
-    This is what ``delay demo`` writes beside its other outputs.
+    This is what ``delay demo`` writes beside its other outputs: :func:`build` with the
+    title of :func:`demo_title`.
+
+    Parameters
+    ----------
+    case : delay.model.Case or str or pathlib.Path
+        The demo case, loaded or as a path.
+    out_dir : str or pathlib.Path
+        The report folder (see :func:`build`).
+    echo : callable, optional
+        Called with a line of progress (``str``) now and then.
+
+    Returns
+    -------
+    pathlib.Path
+        ``out_dir``.
+
+    Raises
+    ------
+    delay.errors.CaseError
+        Bad input. Nothing is written then.
+    delay.output.OutputRefused
+        An output folder that must not be replaced.
     """
     loaded = _case(case)
     return build(loaded, out_dir, methods=None, title=demo_title(loaded), echo=echo)
 
 
 def demo_title(case: Case) -> str:
-    """The title of the demo's report of ``case`` (a loaded case)."""
+    """The title of the demo's report of ``case``.
+
+    Parameters
+    ----------
+    case : delay.model.Case
+        A loaded case.
+
+    Returns
+    -------
+    str
+        ``"Delay analysis report: <project name>"``.
+    """
     return f"Delay analysis report: {case.settings.project.name}"
 
 
 def content_of(case: Case | str | Path, methods=None, title=None) -> ReportContent:
-    """The report's content without writing anything (for notebooks)."""
+    """The report's content without writing anything (for notebooks).
+
+    Parameters
+    ----------
+    case : delay.model.Case or str or pathlib.Path
+        A loaded case, or the path of a case folder or workbook.
+    methods : str or sequence of str, optional
+        As for :func:`reports.builder.compute`.
+    title : str, optional
+        The report's title.
+
+    Returns
+    -------
+    ReportContent
+        As :func:`reports.builder.compute` gives it.
+
+    Raises
+    ------
+    delay.errors.CaseError
+        A case that does not load, an unknown method, or input a method cannot use.
+    """
     return compute(_case(case), methods, title)

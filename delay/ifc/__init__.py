@@ -55,7 +55,15 @@ INSTALL_HINT = "install the ifc extra: pip install .[ifc]"
 
 
 class IfcExtraMissing(RuntimeError):
-    """ifcopenshell, the ``ifc`` extra of the toolkit, is not installed."""
+    """ifcopenshell, the ``ifc`` extra of the toolkit, is not installed.
+
+    The message is always the one line the command prints (ending in :data:`INSTALL_HINT`).
+
+    Parameters
+    ----------
+    detail : str, optional
+        What the import said, kept as ``detail`` and not shown.
+    """
 
     def __init__(self, detail: str = ""):
         self.detail = detail
@@ -70,6 +78,11 @@ def require_ifcopenshell():
     module
         The ``ifcopenshell`` module, with ``ifcopenshell.geom``, ``ifcopenshell.guid`` and
         ``ifcopenshell.util.unit`` imported.
+
+    Raises
+    ------
+    IfcExtraMissing
+        One of them cannot be imported.
     """
     try:
         for part in ("ifcopenshell.geom", "ifcopenshell.guid", "ifcopenshell.util.unit"):
@@ -80,7 +93,13 @@ def require_ifcopenshell():
 
 
 def available() -> bool:
-    """True when ifcopenshell imports (the ``ifc`` extra is installed)."""
+    """Whether ifcopenshell imports (the ``ifc`` extra is installed).
+
+    Returns
+    -------
+    bool
+        True when :func:`require_ifcopenshell` succeeds.
+    """
     try:
         require_ifcopenshell()
     except IfcExtraMissing:

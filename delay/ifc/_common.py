@@ -55,7 +55,20 @@ class Findings:
         self.rows: list[dict[str, str]] = []
 
     def add(self, kind: str, message: str, entity=None, subject: str = "") -> None:
-        """One finding; ``entity`` is an ifcopenshell entity (named ``#id IfcClass``) or None."""
+        """One finding.
+
+        Parameters
+        ----------
+        kind : str
+            What sort of finding it is (the reader's or writer's own short word).
+        message : str
+            The finding in words.
+        entity : ifcopenshell.entity_instance, optional
+            The IFC entity it is about, recorded as ``#id IfcClass`` with its GlobalId; ``None``
+            for none.
+        subject : str, optional
+            What else it is about (an activity id, a calendar name, ...).
+        """
         label, global_id = "", ""
         if entity is not None:
             label = f"#{entity.id()} {entity.is_a()}"
@@ -65,6 +78,13 @@ class Findings:
         )
 
     def frame(self) -> pd.DataFrame:
+        """The findings as a table.
+
+        Returns
+        -------
+        pandas.DataFrame
+            One row per finding, in the order found, with :data:`FINDING_COLUMNS`, all text.
+        """
         return pd.DataFrame(self.rows, columns=list(FINDING_COLUMNS)).astype(str)
 
     def __len__(self) -> int:
@@ -82,10 +102,19 @@ _DURATION = re.compile(
 
 @dataclass(frozen=True)
 class IsoDuration:
-    """An ISO 8601 duration (``IfcDuration``) split into its parts; ``sign`` is +1 or -1.
+    """An ISO 8601 duration (``IfcDuration``) split into its parts.
 
     ISO 8601 itself has no negative durations; IFC files carry a lead as ``-P2D``
     (common practice), which is read here with ``sign = -1``.
+
+    Parameters
+    ----------
+    sign : int, default 1
+        +1 or -1.
+    years, months, weeks, days : float, default 0.0
+        The date parts.
+    hours, minutes, seconds : float, default 0.0
+        The time parts.
     """
 
     sign: int = 1
@@ -104,12 +133,29 @@ class IsoDuration:
 
     @property
     def has_time_parts(self) -> bool:
+        """Hours, minutes or seconds."""
         return bool(self.hours or self.minutes or self.seconds)
 
 
 def ifc_value(value):
-    """The plain value of an IFC attribute: a measure or label entity's ``wrappedValue``,
-    anything else as it is (``None`` stays ``None``)."""
+    """The plain value of an IFC attribute.
+
+    Parameters
+    ----------
+    value : object
+        An attribute value read by ifcopenshell, or ``None``.
+
+    Returns
+    -------
+    object
+        A measure or label entity's ``wrappedValue``, anything else as it is (``None`` stays
+        ``None``).
+
+    Examples
+    --------
+    >>> ifc_value(None), ifc_value(2.5)
+    (None, 2.5)
+    """
     if value is None:
         return None
     return value.wrappedValue if hasattr(value, "wrappedValue") else value
@@ -117,6 +163,16 @@ def ifc_value(value):
 
 def ifc_text(value) -> str:
     """An IFC attribute as text: blank for none, a whole float without ``.0``, stripped.
+
+    Parameters
+    ----------
+    value : object
+        An attribute value (see :func:`ifc_value`), or ``None``.
+
+    Returns
+    -------
+    str
+        The value as text.
 
     Examples
     --------
@@ -132,10 +188,25 @@ def ifc_text(value) -> str:
 
 
 def parse_duration(text: str) -> IsoDuration | None:
-    """``"P5D"`` -> ``IsoDuration(days=5)``; ``None`` when ``text`` is not an ISO 8601 duration.
+    """Read an ISO 8601 duration such as ``"P5D"``.
 
+    Parameters
+    ----------
+    text : str
+        The duration; surrounding blanks and lower case are accepted, and a decimal comma.
+
+    Returns
+    -------
+    IsoDuration or None
+        Its parts (``"P5D"`` gives ``IsoDuration(days=5.0)``); ``None`` when ``text`` is not
+        an ISO 8601 duration.
+
+    Examples
+    --------
     >>> parse_duration("-P1W2DT4H").weeks, parse_duration("-P1W2DT4H").sign
     (1.0, -1)
+    >>> parse_duration("five days") is None
+    True
     """
     found = _DURATION.match(str(text).strip().upper())
     if not found:
@@ -145,15 +216,46 @@ def parse_duration(text: str) -> IsoDuration | None:
 
 
 def work_days_duration(days: int) -> str:
-    """Whole work days as an ``IfcDuration``: ``3 -> "P3D"``, ``-2 -> "-P2D"``, ``0 -> "P0D"``."""
+    """Whole work days as an ``IfcDuration``.
+
+    Parameters
+    ----------
+    days : int
+        Work days; negative for a lead.
+
+    Returns
+    -------
+    str
+        ``"P<n>D"``, or ``"-P<n>D"`` for a negative number.
+
+    Examples
+    --------
+    >>> work_days_duration(3), work_days_duration(-2), work_days_duration(0)
+    ('P3D', '-P2D', 'P0D')
+    """
     days = int(days)
     return f"-P{-days}D" if days < 0 else f"P{days}D"
 
 
 def parse_date(text) -> dt.date | None:
-    """The date of an ``IfcDateTime`` or ``IfcDate`` (``2025-03-03T08:00:00`` -> 2025-03-03).
+    """The date of an ``IfcDateTime`` or ``IfcDate``.
 
-    Returns None for a blank or unreadable value.
+    Parameters
+    ----------
+    text : str or None
+        The value; only its first ten characters (``YYYY-MM-DD``) are read.
+
+    Returns
+    -------
+    datetime.date or None
+        The date; ``None`` for a blank or unreadable value.
+
+    Examples
+    --------
+    >>> parse_date("2025-03-03T08:00:00")
+    datetime.date(2025, 3, 3)
+    >>> parse_date("") is None, parse_date("03/03/2025") is None
+    (True, True)
     """
     if text is None:
         return None
@@ -167,13 +269,50 @@ def parse_date(text) -> dt.date | None:
 
 
 def date_time_text(day: dt.date, time: str) -> str:
-    """An ``IfcDateTime``: the date with the time of day ``time`` (``"08:00:00"``)."""
+    """An ``IfcDateTime``: the date with a time of day.
+
+    Parameters
+    ----------
+    day : datetime.date
+        The date.
+    time : str
+        The time of day, ``"HH:MM:SS"``.
+
+    Returns
+    -------
+    str
+        ``"YYYY-MM-DDTHH:MM:SS"``.
+
+    Examples
+    --------
+    >>> import datetime
+    >>> date_time_text(datetime.date(2025, 3, 3), "08:00:00")
+    '2025-03-03T08:00:00'
+    """
     return f"{day.isoformat()}T{time}"
 
 
 # -- files --------------------------------------------------------------------------------------
 def open_model(path: str | Path):
-    """Open an IFC file with ifcopenshell; a file that cannot be read is a CaseError."""
+    """Open an IFC file with ifcopenshell.
+
+    Parameters
+    ----------
+    path : str or pathlib.Path
+        The ``.ifc`` file.
+
+    Returns
+    -------
+    ifcopenshell.file
+        The opened model.
+
+    Raises
+    ------
+    delay.ifc.IfcExtraMissing
+        ifcopenshell is not installed.
+    delay.errors.CaseError
+        The file does not exist or cannot be read as an IFC file.
+    """
     from . import require_ifcopenshell
 
     ifcopenshell = require_ifcopenshell()
@@ -196,7 +335,24 @@ def open_model(path: str | Path):
 
 
 def case_folder(case) -> Path:
-    """The folder of a loaded case; a workbook case cannot take files written beside it."""
+    """The folder of a loaded case.
+
+    Parameters
+    ----------
+    case : delay.model.Case
+        A loaded case.
+
+    Returns
+    -------
+    pathlib.Path
+        Its root folder (the one holding case.toml).
+
+    Raises
+    ------
+    delay.errors.CaseError
+        The case is a workbook (or its root holds no case.toml): the IFC commands write
+        files into a case folder.
+    """
     root = Path(case.root)
     if root.is_file() or not (root / "case.toml").is_file():
         raise CaseError(
@@ -214,16 +370,16 @@ def case_calendar_days(case, name: str) -> tuple[dict[dt.date, str], dict[dt.dat
 
     Parameters
     ----------
-    case:
+    case : delay.model.Case
         A loaded case.
-    name:
+    name : str
         The calendar's name.
 
     Returns
     -------
-    tuple[dict, dict]
-        The holidays and the extra working days, each date mapped to its reason, in the
-        order of calendar_exceptions.csv.
+    holidays, extra_workdays : dict
+        The holidays and the extra working days, each date (``datetime.date``) mapped to its
+        reason, in the order of calendar_exceptions.csv.
     """
     holidays: dict[dt.date, str] = {}
     extra_workdays: dict[dt.date, str] = {}
@@ -235,6 +391,27 @@ def case_calendar_days(case, name: str) -> tuple[dict[dt.date, str], dict[dt.dat
 
 
 def sha256_of(path: str | Path) -> str:
+    """The SHA-256 digest of a file, read in blocks of 1 MiB.
+
+    Parameters
+    ----------
+    path : str or pathlib.Path
+        The file.
+
+    Returns
+    -------
+    str
+        The digest as 64 lower-case hexadecimal digits.
+
+    Examples
+    --------
+    >>> import pathlib, tempfile
+    >>> with tempfile.TemporaryDirectory() as folder:
+    ...     empty = pathlib.Path(folder) / "empty.txt"
+    ...     _ = empty.write_bytes(b"")
+    ...     sha256_of(empty)
+    'e3b0c44298fc1c149afbf4c8996fb92427ae41e4649b934ca495991b7852b855'
+    """
     digest = hashlib.sha256()
     with open(path, "rb") as stream:
         for block in iter(lambda: stream.read(1 << 20), b""):
@@ -250,14 +427,23 @@ def validate_in_copy(case_root: Path, files: Mapping[str, bytes], snapshots: Ite
     each entry of ``files`` (path relative to the case -> content) is written into it.
     Problems name the files relative to the case, so they read as they would after writing.
 
+    Parameters
+    ----------
+    case_root : pathlib.Path
+        The case folder; nothing in it is changed.
+    files : mapping of str to bytes
+        Path relative to the case, to the content it is about to get.
+    snapshots : iterable of str, default ("baseline",)
+        The snapshot folders (under ``snapshots/``) to copy.
+
     Returns
     -------
-    Case
+    delay.model.Case
         The loaded copy (its root is a temporary folder that no longer exists).
 
     Raises
     ------
-    CaseError
+    delay.errors.CaseError
         When the copy does not load.
     """
     from ..case import load_case
@@ -280,7 +466,24 @@ def validate_in_copy(case_root: Path, files: Mapping[str, bytes], snapshots: Ite
 
 
 def csv_bytes(frame: pd.DataFrame) -> bytes:
-    """A table as the case's CSV files hold it: a header row, every cell as text, UTF-8."""
+    """A table as the case's CSV files hold it: a header row, every cell as text, UTF-8.
+
+    Parameters
+    ----------
+    frame : pandas.DataFrame
+        The table; its index is not written.
+
+    Returns
+    -------
+    bytes
+        The CSV text (``\\n`` line ends) encoded as UTF-8.
+
+    Examples
+    --------
+    >>> import pandas as pd
+    >>> csv_bytes(pd.DataFrame({"id": ["A1"], "duration": [5]}))
+    b'id,duration\\nA1,5\\n'
+    """
     buffer = io.StringIO()
     writer = csv.writer(buffer, lineterminator="\n")
     writer.writerow(list(frame.columns))

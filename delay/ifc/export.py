@@ -96,10 +96,29 @@ _GLOBAL_ID = re.compile(r"^[0-3][0-9A-Za-z_$]{21}$")
 
 @dataclass(frozen=True)
 class ScheduleExport:
-    """What :func:`export_schedule` wrote: ``path``, counts of ``tasks``, ``links``,
-    ``calendars``, ``model_elements`` (elements of the model the tasks were assigned to),
-    ``placeholders`` (proxies made from boxes), ``assignments`` (IfcRelAssignsToProduct),
-    the ``model`` the schedule was added to (or None), and ``findings``."""
+    """What :func:`export_schedule` wrote.
+
+    Parameters
+    ----------
+    path : pathlib.Path
+        The IFC file written.
+    tasks : int
+        ``IfcTask`` written, one per activity.
+    links : int
+        ``IfcRelSequence`` written, one per link.
+    calendars : int
+        ``IfcWorkCalendar`` written, one per calendar the activities use.
+    model_elements : int
+        Elements of the model the tasks were assigned to (found by GlobalId).
+    placeholders : int
+        ``IfcBuildingElementProxy`` placeholders made from elements.csv boxes.
+    assignments : int
+        ``IfcRelAssignsToProduct`` written (elements with at least one task that builds them).
+    model : pathlib.Path or None
+        The model the schedule was added to; ``None`` for a file of placeholders only.
+    findings : pandas.DataFrame
+        What the export found, :data:`delay.ifc._common.FINDING_COLUMNS`.
+    """
 
     path: Path
     tasks: int
@@ -452,6 +471,20 @@ def _placeholders(
 
 
 def model_by_guid(model, global_id: str):
+    """The entity of a model with a GlobalId, or None.
+
+    Parameters
+    ----------
+    model : ifcopenshell.file
+        An open model.
+    global_id : str
+        The GlobalId looked for.
+
+    Returns
+    -------
+    ifcopenshell.entity_instance or None
+        The entity; ``None`` when the model has none of that GlobalId.
+    """
     try:
         return model.by_guid(global_id)
     except RuntimeError:
@@ -691,18 +724,33 @@ WRITTEN_BY = "delay-toolkit"
 
 
 def written_by_toolkit(path: Path) -> bool:
-    """Whether ``path`` is an IFC file this toolkit's export wrote, and may therefore be
-    replaced by the next export.
+    """Whether ``path`` is an IFC file this toolkit's export wrote.
+
+    Such a file may be replaced by the next export.
 
     Parameters
     ----------
-    path: an existing file.
+    path : pathlib.Path
+        An existing file; one that cannot be read gives False.
 
     Returns
     -------
     bool
         True when the file is a STEP physical file (ISO 10303-21) whose header's FILE_NAME
-        names :data:`WRITTEN_BY` as the program that wrote it.
+        names :data:`WRITTEN_BY` as the program that wrote it (read from its first 4096
+        bytes).
+
+    Examples
+    --------
+    >>> import pathlib, tempfile
+    >>> header = "ISO-10303-21;\\nHEADER;\\nFILE_NAME('a.ifc','2025-01-01',(''),(''),'delay-toolkit 1.0','','');\\n"
+    >>> with tempfile.TemporaryDirectory() as folder:
+    ...     ours = pathlib.Path(folder) / "ours.ifc"
+    ...     _ = ours.write_text(header)
+    ...     other = pathlib.Path(folder) / "other.ifc"
+    ...     _ = other.write_text(header.replace("delay-toolkit", "another-writer"))
+    ...     written_by_toolkit(ours), written_by_toolkit(other)
+    (True, False)
     """
     try:
         with open(path, "rb") as stream:
@@ -743,35 +791,42 @@ def export_schedule(
 
     Parameters
     ----------
-    case:
+    case : delay.model.Case
         A loaded case.
-    snapshot:
+    snapshot : str or delay.model.Snapshot
         Folder name, label or ``"asbuilt"`` (or a Snapshot).
-    out_path:
+    out_path : str or pathlib.Path
         The .ifc file to write (written under a temporary name, then moved into place): a
         new file, or one an earlier export wrote (:func:`written_by_toolkit`); never an
         input file, the case folder or a file inside it.
-    model:
+    model : str or pathlib.Path, optional
         An IFC 4 model to add the schedule to; its elements whose GlobalId is an element id
         of the case are assigned to the tasks that build them.
-    use_imported_model:
+    use_imported_model : bool, default True
         Without ``model``: use the model the case's elements were imported from, when it is
         still there (``elements_source.json``). False writes placeholders only.
-    settings:
-        Scheduling settings overriding the case's (:class:`delay.model.ScheduleSettings`).
+    settings : delay.model.ScheduleSettings, optional
+        Scheduling settings overriding the case's.
 
     Returns
     -------
     ScheduleExport
+        The file written and the counts of what is in it, with the findings.
 
     Raises
     ------
-    CaseError
-        Unknown snapshot, a logic loop, a model that cannot be read or is not IFC 4.
+    delay.errors.CaseError
+        Unknown snapshot, a logic loop, a model that cannot be read, is not IFC 4 or has no
+        IfcProject.
     delay.output.OutputRefused
         When ``out_path`` must not be written (checked before any work).
-    IfcExtraMissing
+    delay.ifc.IfcExtraMissing
         When ifcopenshell is not installed.
+
+    References
+    ----------
+    ISO 16739-1:2018 (IFC 4): IfcWorkSchedule, IfcTask, IfcTaskTime, IfcRelSequence,
+    IfcLagTime, IfcWorkCalendar, IfcRelAssignsToProduct.
     """
     from ..cpm import _find, schedule
     from . import require_ifcopenshell
@@ -871,12 +926,14 @@ def _only_the_baseline(root: Path):
 
 
 def demo_outputs(case: Case, out_folder: str | Path) -> list[Path]:
-    """The IFC part of ``delay demo``: model import, element checks, schedule export and
-    its round trip, on a copy of the case (the case itself is never changed).
+    """The IFC part of ``delay demo``.
 
-    Looks for an IFC model under the case's ``model/`` folder (with the import options in
-    ``model/import_options.json``: ``code_property``, ``classification``,
-    ``code_classification``). Writes into ``out_folder/ifc/``:
+    Model import, element checks, schedule export and its round trip, on a copy of the
+    case (the case itself is never changed).
+
+    Looks for an IFC model under the case's ``model/`` folder (the first ``*.ifc`` by name,
+    with the import options in ``model/import_options.json``: ``code_property``,
+    ``classification``, ``code_classification``). Writes into ``out_folder/ifc/``:
 
     - ``elements_from_model.csv`` and ``elements_findings.csv``: the model's elements as
       imported, and what the import found;
@@ -887,10 +944,25 @@ def demo_outputs(case: Case, out_folder: str | Path) -> list[Path]:
     - ``schedule_round_trip.json``: that file read back as the baseline of another copy,
       compared activity by activity with the original schedule.
 
+    Parameters
+    ----------
+    case : delay.model.Case
+        A loaded case in folder form.
+    out_folder : str or pathlib.Path
+        The demo's output folder; ``ifc/`` is made under it.
+
     Returns
     -------
-    list[Path]
-        The files written (under ``out_folder``); empty when the case has no model.
+    list of pathlib.Path
+        The files written (under ``out_folder``); empty when the case has no model (or is a
+        workbook).
+
+    Raises
+    ------
+    delay.errors.CaseError
+        The model, or a copy of the case with it, does not read or load.
+    delay.ifc.IfcExtraMissing
+        When ifcopenshell is not installed.
     """
     from ..case import load_case
     from ..checks import element_checks

@@ -93,16 +93,22 @@ _DECIMALS = 6  # micrometres
 class ModelRead:
     """What :func:`read_model` found in one IFC file.
 
-    Attributes
+    Parameters
     ----------
-    elements: one row per physical element that has a code, columns :data:`ELEMENT_COLUMNS`
-        (boxes ``float64``, ``NaN`` without geometry; the rest ``str``), in file order.
-    findings: ``kind, entity, global_id, subject, message`` (kinds: ``no_geometry``,
+    elements : pandas.DataFrame
+        One row per physical element that has a code, columns :data:`ELEMENT_COLUMNS`
+        (boxes ``float64`` in metres, ``NaN`` without geometry; the rest ``str``), in file
+        order.
+    findings : pandas.DataFrame
+        ``kind, entity, global_id, subject, message`` (kinds: ``no_geometry``,
         ``geometry_failed``, ``no_code``, ``task_not_in_baseline``, ``several_codes``,
         ``several_classification_systems``, ``duplicate_global_id``, ``no_elements``).
-    schema: the file's schema (``IFC4`` ...).
-    length_unit_in_metres: the file's length unit in metres (0.001 for millimetres).
-    physical_elements: how many physical elements the file holds.
+    schema : str
+        The file's schema (``IFC4`` ...).
+    length_unit_in_metres : float
+        The file's length unit in metres (0.001 for millimetres).
+    physical_elements : int
+        How many physical elements the file holds.
     """
 
     elements: pd.DataFrame
@@ -114,9 +120,21 @@ class ModelRead:
 
 @dataclass(frozen=True)
 class ModelImport:
-    """What :func:`import_model` did: ``read`` (the :class:`ModelRead`), ``elements`` (the
-    merged elements.csv as written, all cells text), ``replaced`` and ``added`` (row counts)
-    and ``written`` (paths)."""
+    """What :func:`import_model` did.
+
+    Parameters
+    ----------
+    read : ModelRead
+        What was read from the model.
+    elements : pandas.DataFrame
+        The merged elements.csv as written, all cells text.
+    replaced : int
+        Rows of the existing elements.csv replaced by the model's (same id).
+    added : int
+        Rows added after them.
+    written : tuple of pathlib.Path
+        The files written into the case folder.
+    """
 
     read: ModelRead
     elements: pd.DataFrame
@@ -588,31 +606,39 @@ def read_model(
 
     Parameters
     ----------
-    path:
+    path : str or pathlib.Path
         The .ifc file (IFC 2x3, IFC 4 or IFC 4.3).
-    code_property:
+    code_property : str, optional
         ``"PSET.NAME"``: the property that carries the work breakdown code.
-    classification:
+    classification : str, optional
         The classification system (``IfcClassification.Name``) whose reference fills the
         ``classification`` column; default the first system by name.
-    code_classification:
+    code_classification : str, optional
         A classification system whose reference *is* the work breakdown code.
-    activity_wbs:
+    activity_wbs : mapping of str to str, optional
         Activity id -> wbs (the case's baseline), for codes taken from building tasks.
-    progress, on_total:
-        Called with the number of elements whose geometry was just processed, and once with
-        how many there are to process (for a progress bar).
+    progress : callable, optional
+        Called with the number of elements whose geometry was just processed (for a
+        progress bar).
+    on_total : callable, optional
+        Called once with how many elements have geometry to process.
 
     Returns
     -------
     ModelRead
+        The elements with a code, the findings, and the file's schema and length unit.
 
     Raises
     ------
-    CaseError
-        When the file cannot be read as IFC.
-    IfcExtraMissing
+    delay.errors.CaseError
+        When the file does not exist or cannot be read as IFC.
+    delay.ifc.IfcExtraMissing
         When ifcopenshell is not installed.
+
+    References
+    ----------
+    ISO 16739-1:2018 (IFC 4): IfcElement, IfcRelContainedInSpatialStructure,
+    IfcRelAssociatesClassification, IfcRelAssignsToProduct.
     """
     from . import require_ifcopenshell
 
@@ -665,8 +691,39 @@ def _read_existing(path: Path) -> pd.DataFrame | None:
 
 
 def merge_elements(existing: pd.DataFrame | None, imported: pd.DataFrame) -> tuple[pd.DataFrame, int, int]:
-    """Existing rows not in the model kept (in their order, cells as they were), rows with an
-    imported id replaced in place, new rows appended. Returns (table, replaced, added)."""
+    """Merge imported elements into an existing elements table.
+
+    Existing rows whose id is not in the model are kept (in their order, cells as they
+    were), rows with an imported id are replaced in place, new rows are appended; columns of
+    the existing table that the import does not know are kept (blank for new rows).
+
+    Parameters
+    ----------
+    existing : pandas.DataFrame or None
+        The case's elements.csv read as text, or ``None`` when there is none.
+    imported : pandas.DataFrame
+        :attr:`ModelRead.elements` (columns :data:`ELEMENT_COLUMNS`; boxes in metres).
+
+    Returns
+    -------
+    table : pandas.DataFrame
+        The merged table, every cell text (boxes rounded to the micrometre, blank for none).
+    replaced : int
+        Existing rows replaced.
+    added : int
+        Rows appended.
+
+    Examples
+    --------
+    >>> import pandas as pd
+    >>> existing = pd.DataFrame({"id": ["A", "B"], "name": ["old A", "old B"]})
+    >>> imported = pd.DataFrame([dict.fromkeys(ELEMENT_COLUMNS, "")] * 2).assign(
+    ...     id=["B", "C"], name=["new B", "new C"], x=[0.5, 1.0], y=0.0, z=0.0, dx=1.0, dy=1.0, dz=1.0
+    ... )
+    >>> table, replaced, added = merge_elements(existing, imported)
+    >>> list(table["id"]), list(table["name"]), list(table["x"]), replaced, added
+    (['A', 'B', 'C'], ['old A', 'new B', 'new C'], ['', '0.5', '1'], 1, 1)
+    """
     new = imported.copy()
     for column in ("x", "y", "z", "dx", "dy", "dz"):
         new[column] = [_number_text(v) for v in new[column]]
@@ -701,28 +758,44 @@ def import_model(
 ) -> ModelImport:
     """Read an IFC model and merge its elements into the case's elements.csv.
 
-    Parameters are those of :func:`read_model`; ``case_path`` is the case folder (its
-    baseline gives the wbs of activities named by building tasks).
-
     Writes ``elements_findings.csv``, ``elements_source.json`` and ``elements.csv``, each
     under a temporary name first, then all three moved into place together. The merged
     table is loaded with the case's settings before anything is written; a table the case
     would refuse is never written.
 
+    Parameters
+    ----------
+    model_path : str or pathlib.Path
+        The .ifc file (see :func:`read_model`).
+    case_path : str or pathlib.Path
+        The case folder; its baseline gives the wbs of activities named by building tasks.
+    code_property : str, optional
+        ``"PSET.NAME"``: the property that carries the work breakdown code.
+    classification : str, optional
+        The classification system whose reference fills the ``classification`` column.
+    code_classification : str, optional
+        A classification system whose reference *is* the work breakdown code.
+    progress : callable, optional
+        Called with the number of elements whose geometry was just processed.
+    on_total : callable, optional
+        Called once with how many elements have geometry to process.
+
     Returns
     -------
     ModelImport
+        What was read, the merged table, the counts replaced and added, the files written.
 
     Raises
     ------
-    CaseError
+    delay.errors.CaseError
         When the case does not load, is a workbook, the file is not IFC, or the merged
         elements would not load.
     delay.output.OutputRefused
-        When the model is one of the files written, or one of them is a link out of the case.
+        When the model is one of the files written, or one of them is a link out of the
+        case or a folder.
     delay.output.OutputFailed
         An OSError while writing; none of the three files is changed then.
-    IfcExtraMissing
+    delay.ifc.IfcExtraMissing
         When ifcopenshell is not installed.
     """
     from ..case import load_case
@@ -806,7 +879,19 @@ def _check_targets(model_path: Path, root: Path) -> None:
 
 
 def imported_model_path(case_root: Path) -> Path | None:
-    """The model the case's elements were last imported from, when the file is still there."""
+    """The model the case's elements were last imported from, when the file is still there.
+
+    Parameters
+    ----------
+    case_root : pathlib.Path
+        The case folder; its ``elements_source.json`` is read.
+
+    Returns
+    -------
+    pathlib.Path or None
+        The model's resolved path (tried relative to the case first, then as recorded);
+        ``None`` without a readable record or when neither path is a file.
+    """
     record = case_root / SOURCE_FILE
     if not record.is_file():
         return None

@@ -96,9 +96,31 @@ _RECURRING_YEARS_AFTER = 5  # a yearly exception is written out to this many yea
 class CalendarRead:
     """One ``IfcWorkCalendar`` as the case format holds calendars.
 
-    ``weekmask`` is Monday first; ``holidays`` and ``extra_workdays`` map a date to its
-    reason (the ``IfcWorkTime`` Name). ``hours_per_day`` comes from the time periods of the
-    weekly working time, else :data:`HOURS_PER_WORK_DAY`.
+    Parameters
+    ----------
+    name : str
+        The calendar's name (its Name, else Identification).
+    weekmask : tuple of bool
+        Seven flags, Monday first: the working weekdays.
+    holidays : dict, optional
+        Non-working dates (``datetime.date``) mapped to their reason (the ``IfcWorkTime``
+        Name).
+    extra_workdays : dict, optional
+        Working dates outside the weekmask, mapped to their reason.
+    hours_per_day : float, optional
+        Working hours a day, from the time periods of the weekly working time, else
+        :data:`HOURS_PER_WORK_DAY`.
+    global_id : str, optional
+        The calendar's GlobalId.
+
+    Examples
+    --------
+    >>> import datetime
+    >>> weekdays = CalendarRead("5d", (True,) * 5 + (False,) * 2)
+    >>> weekdays.workdays
+    'Mon Tue Wed Thu Fri'
+    >>> weekdays.count(datetime.date(2025, 3, 3), datetime.date(2025, 3, 9))  # Monday to Sunday
+    5
     """
 
     name: str
@@ -110,26 +132,61 @@ class CalendarRead:
 
     @property
     def workdays(self) -> str:
+        """The working weekdays as calendars.csv writes them (``"Mon Tue Wed Thu Fri"``)."""
         return " ".join(day for day, on in zip(WEEKDAYS, self.weekmask) if on)
 
     @property
     def workdays_per_week(self) -> int:
+        """How many weekdays are working days."""
         return int(sum(self.weekmask))
 
     def effective(self) -> tuple[tuple[bool, ...], frozenset, frozenset]:
-        """The calendar as the work days it gives: weekmask, holidays that fall on working
-        weekdays, extra working days that fall on other weekdays (for comparing calendars)."""
+        """The calendar as the work days it gives, for comparing calendars.
+
+        Returns
+        -------
+        weekmask : tuple of bool
+            The working weekdays, Monday first.
+        holidays : frozenset of datetime.date
+            Holidays that fall on working weekdays and are not also extra working days.
+        extra_workdays : frozenset of datetime.date
+            Extra working days that fall on other weekdays and are not also holidays.
+        """
         holidays = frozenset(d for d in self.holidays if self.weekmask[d.weekday()] and d not in self.extra_workdays)
         extra = frozenset(d for d in self.extra_workdays if not self.weekmask[d.weekday()] and d not in self.holidays)
         return self.weekmask, holidays, extra
 
     def is_workday(self, day: dt.date) -> bool:
+        """Whether one date is a working day of the calendar.
+
+        Parameters
+        ----------
+        day : datetime.date
+            The date.
+
+        Returns
+        -------
+        bool
+            False on a holiday; else True on an extra working day or a working weekday.
+        """
         if day in self.holidays:
             return False
         return day in self.extra_workdays or self.weekmask[day.weekday()]
 
     def count(self, first: dt.date, last: dt.date) -> int:
-        """Work days from ``first`` to ``last``, both included."""
+        """Work days from ``first`` to ``last``, both included.
+
+        Parameters
+        ----------
+        first, last : datetime.date
+            The first and last dates of the period.
+
+        Returns
+        -------
+        int
+            The working weekdays that are not holidays (counted with ``numpy.busday_count``),
+            plus the extra working days on other weekdays; 0 when ``last`` is before ``first``.
+        """
         if last < first:
             return 0
         end = np.datetime64(last, "D") + 1
@@ -155,20 +212,29 @@ class CalendarRead:
 class WorkScheduleRead:
     """What :func:`read_work_schedule` found.
 
-    Attributes
+    Parameters
     ----------
-    name: the work schedule's Name.
-    activities: columns ``COLUMNS["activities"]``, every cell text as it will be written.
-    links: ``pred, succ, type, lag`` as text.
-    calendars: the calendars the tasks use, by name (:class:`CalendarRead`).
-    data_date: the data date the file gives (our property set, else the tasks' common
+    name : str
+        The work schedule's Name.
+    activities : pandas.DataFrame
+        Columns ``COLUMNS["activities"]``, every cell text as it will be written.
+    links : pandas.DataFrame
+        ``pred, succ, type, lag`` as text (lags in work days).
+    calendars : dict
+        The calendars the tasks use, by name (:class:`CalendarRead`).
+    data_date : datetime.date or None
+        The data date the file gives (our property set, else the tasks' common
         StatusTime), or None.
-    facts: the values of our property set on the work schedule (``DataDate``,
+    facts : dict
+        The values of our property set on the work schedule (``DataDate``,
         ``SnapshotLabel``, ``SnapshotKind``, ...).
-    start_time: the date of the work schedule's StartTime.
-    file_dates: ``id, start, finish`` as the file schedules them (EarlyStart/EarlyFinish,
-        else ScheduleStart/ScheduleFinish), ``datetime64``.
-    findings: ``kind, entity, global_id, subject, message``.
+    file_dates : pandas.DataFrame
+        ``id, start, finish`` as the file schedules them (EarlyStart/EarlyFinish, else
+        ScheduleStart/ScheduleFinish), ``datetime64``.
+    findings : pandas.DataFrame
+        ``kind, entity, global_id, subject, message``.
+    start_time : datetime.date or None, optional
+        The date of the work schedule's StartTime.
     """
 
     name: str
@@ -184,10 +250,28 @@ class WorkScheduleRead:
 
 @dataclass(frozen=True)
 class ScheduleImport:
-    """What :func:`import_work_schedule` did: ``read``, the snapshot ``folder`` written,
-    its ``data_date``, ``label`` and ``kind``, ``calendars_added`` (names), ``findings``
-    (the read's findings and the comparison of the file's dates with the toolkit's
-    schedule), and ``written`` paths."""
+    """What :func:`import_work_schedule` did.
+
+    Parameters
+    ----------
+    read : WorkScheduleRead
+        What was read from the file.
+    folder : pathlib.Path
+        The snapshot folder written.
+    data_date : datetime.date
+        The snapshot's data date.
+    label : str
+        The snapshot's label.
+    kind : str
+        ``baseline`` or ``update``.
+    calendars_added : tuple of str
+        Names of the calendars added to the case.
+    findings : pandas.DataFrame
+        The read's findings and the comparison of the file's dates with the toolkit's
+        schedule (as written to ``ifc_findings.csv``).
+    written : tuple of pathlib.Path
+        The paths written.
+    """
 
     read: WorkScheduleRead
     folder: Path
@@ -333,7 +417,19 @@ def _dates_of(
 def read_calendar(calendar, findings: Findings, first: dt.date, last: dt.date) -> CalendarRead:
     """One ``IfcWorkCalendar`` as a :class:`CalendarRead`.
 
-    ``first`` and ``last`` bound the years over which a yearly exception is written out.
+    Parameters
+    ----------
+    calendar : ifcopenshell.entity_instance
+        The ``IfcWorkCalendar``.
+    findings : delay.ifc._common.Findings
+        Where what had to be approximated or left out is recorded.
+    first, last : datetime.date
+        Bound the years over which a yearly exception is written out.
+
+    Returns
+    -------
+    CalendarRead
+        The calendar.
     """
     name = ifc_text(calendar.Name) or ifc_text(calendar.Identification) or f"ifc-{calendar.id()}"
     mask = [False] * 7
@@ -985,22 +1081,29 @@ def read_work_schedule(path: str | Path, *, work_schedule: str | None = None) ->
 
     Parameters
     ----------
-    path:
+    path : str or pathlib.Path
         The .ifc file.
-    work_schedule:
+    work_schedule : str, optional
         Name, Identification or GlobalId of the work schedule when the file holds several.
 
     Returns
     -------
     WorkScheduleRead
+        The activities, links and calendars as text tables, the file's own dates and the
+        findings.
 
     Raises
     ------
-    CaseError
+    delay.errors.CaseError
         When the file is not IFC, holds no (or no such) work schedule, a task's
         Identification repeats, or the schedule has no task.
-    IfcExtraMissing
+    delay.ifc.IfcExtraMissing
         When ifcopenshell is not installed.
+
+    References
+    ----------
+    ISO 16739-1:2018 (IFC 4): IfcWorkSchedule, IfcTask, IfcTaskTime, IfcRelSequence,
+    IfcLagTime, IfcWorkCalendar.
     """
     path = Path(path)
     model, schedule = _open_schedule(path, work_schedule)
@@ -1277,44 +1380,47 @@ def import_work_schedule(
 ) -> ScheduleImport:
     """Read an IFC work schedule into the snapshot folder ``snapshots/FOLDER`` of a case.
 
-    Parameters
-    ----------
-    model_path:
-        The .ifc file holding the work schedule.
-    case_path:
-        The case folder.
-    folder:
-        The snapshot folder to write (``2025-06-30``, ``baseline``).
-    data_date:
-        The snapshot's data date; default the one the file gives (our property set on the
-        work schedule, else the tasks' common StatusTime), else for a baseline the work
-        schedule's StartTime.
-    label:
-        The snapshot's label; default the label the file gives (our property set), else
-        the folder name.
-    kind:
-        ``baseline`` or ``update``; default ``baseline`` for the folder ``baseline``.
-    work_schedule:
-        Which work schedule, when the file holds several.
-    replace:
-        Replace the folder when it exists.
-
     Writes snapshot.toml, activities.csv, links.csv and ifc_findings.csv into the folder
     (built under a temporary name and moved into place whole), and adds the file's
     calendars that the case does not have to calendars.csv and calendar_exceptions.csv.
     The new snapshot is loaded with the case's settings and calendars before anything is
     written.
 
+    Parameters
+    ----------
+    model_path : str or pathlib.Path
+        The .ifc file holding the work schedule.
+    case_path : str or pathlib.Path
+        The case folder.
+    folder : str
+        The snapshot folder to write (``2025-06-30``, ``baseline``).
+    data_date : datetime.date or str, optional
+        The snapshot's data date (a date or ``YYYY-MM-DD``); default the one the file gives
+        (our property set on the work schedule, else the tasks' common StatusTime), else for
+        a baseline the work schedule's StartTime.
+    label : str, optional
+        The snapshot's label; default the label the file gives (our property set), else
+        the folder name.
+    kind : {"baseline", "update"}, optional
+        Default ``baseline`` for the folder ``baseline``, else ``update``.
+    work_schedule : str, optional
+        Which work schedule, when the file holds several.
+    replace : bool, default False
+        Replace the folder when it exists.
+
     Returns
     -------
     ScheduleImport
+        What was read, where it was written and the findings.
 
     Raises
     ------
-    CaseError
-        Any problem with the file, the options or the snapshot it gives; nothing is
-        written then.
-    IfcExtraMissing
+    delay.errors.CaseError
+        Any problem with the file, the options or the snapshot it gives (a folder that is
+        not a plain name or exists without ``replace``, an unknown kind, no data date, a data
+        date or label another snapshot has, an actual date on or after the data date, a
+        snapshot that would not load); nothing is written then.
+    delay.ifc.IfcExtraMissing
         When ifcopenshell is not installed.
     """
     from ..case import load_case

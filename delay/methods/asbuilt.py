@@ -69,7 +69,36 @@ _TYPE_NAMES = ("FS", "SS", "FF", "SF")
 
 @dataclass(frozen=True)
 class AsBuiltResult:
-    """Planned against actual, the as-built critical path and the delay per period."""
+    """Planned against actual, the as-built critical path and the delay per period.
+
+    Made by :func:`compare`. Dates are calendar dates; ``*_days`` columns count calendar
+    days and ``*_work_days`` columns work days (of the activity's own calendar in
+    ``activities``, of the ledger calendar on the critical path).
+
+    Parameters
+    ----------
+    activities : pandas.DataFrame
+        Every activity (as-built order, then baseline activities not in the record): planned
+        and actual dates, planned and actual durations in work days, and the start, finish
+        and duration variances in calendar days and work days.
+    critical_path : pandas.DataFrame
+        The as-built critical path in path order: actual dates, planned finish, driving
+        predecessor, link, gap and lateness in work days, ``inherited``, the contribution in
+        ledger work days (``work_days``) and calendar days (``delay_days``), and its period.
+    periods : pandas.DataFrame
+        Delay per period along the path: ``period``, ``delay_days`` (calendar days),
+        ``work_days`` (ledger work days) and ``cumulative_days`` (running total).
+    planned_completion : datetime.date
+        The completion activity's finish in the baseline (its early finish).
+    actual_completion : datetime.date
+        The completion activity's actual finish in the as-built record.
+    period : str
+        The pandas period alias the periods are cut by (``"W"``, ``"M"`` or ``"Q"``).
+    target : str, optional
+        The completion activity's id.
+    ledger_calendar : str, optional
+        The name of the calendar the work days of the path are counted on.
+    """
 
     activities: pd.DataFrame
     critical_path: pd.DataFrame
@@ -82,9 +111,18 @@ class AsBuiltResult:
 
     @property
     def completion_variance_days(self) -> int:
+        """The actual less the planned completion, in calendar days (positive is late)."""
         return (self.actual_completion - self.planned_completion).days
 
     def to_json(self) -> dict:
+        """The result as plain JSON values (dates as ISO text, ``None`` for no value).
+
+        Returns
+        -------
+        dict
+            ``method`` (``"asbuilt"``), the target, ledger calendar, completions and
+            variance, and the ``critical_path``, ``periods`` and ``activities`` rows.
+        """
         return {
             "method": "asbuilt",
             "target": self.target,
@@ -219,8 +257,10 @@ def compare(case, period: str = "M") -> AsBuiltResult:
 
     Parameters
     ----------
-    case: a case with an as-built record (asbuilt.csv).
-    period: pandas period alias for the delay per period (``"M"`` monthly, ``"W"`` weekly,
+    case : delay.model.Case
+        A case with an as-built record (asbuilt.csv).
+    period : str, default "M"
+        Pandas period alias for the delay per period (``"M"`` monthly, ``"W"`` weekly,
         ``"Q"`` quarterly).
 
     Returns
@@ -234,9 +274,25 @@ def compare(case, period: str = "M") -> AsBuiltResult:
 
     Raises
     ------
-    CaseError: the case has no as-built record, or the completion activity is not in both
-        the baseline and the record.
-    ReconciliationError: the contributions do not add up to the completion variance.
+    delay.errors.CaseError
+        The case has no as-built record, or the completion activity is not in both the
+        baseline and the record.
+    delay.errors.ReconciliationError
+        The contributions do not add up to the completion variance.
+
+    Examples
+    --------
+    A small random case with two monthly updates and an as-built record; the
+    contributions along the as-built critical path add up to the completion variance:
+
+    >>> import pathlib, tempfile
+    >>> from delay.case import load_case
+    >>> from delay.synth import synthesise
+    >>> with tempfile.TemporaryDirectory() as folder:
+    ...     case = load_case(synthesise(pathlib.Path(folder) / "case", 20, updates=2))
+    >>> result = compare(case, period="M")
+    >>> int(result.critical_path["delay_days"].sum()) == result.completion_variance_days
+    True
 
     References
     ----------

@@ -148,31 +148,40 @@ _TYPE_NAMES = np.array(["FS", "SS", "FF", "SF"], dtype=object)
 
 @dataclass(frozen=True)
 class CollapsedResult:
-    """The collapsed as-built model, its check against the actual dates and the but-for
-    completions. Days are calendar days (``work_days_earlier``: work days of the default
-    calendar); positive ``days_earlier`` means the works would have finished earlier.
+    """The collapsed as-built model, its check against the actual dates, the but-for completions.
 
-    Attributes
+    Made by :func:`analyse`. Days are calendar days (``work_days_earlier``: work days of the
+    default calendar); positive ``days_earlier`` means the works would have finished earlier.
+
+    Parameters
     ----------
-    reproduced: the model places every activity on its actual dates.
-    mismatches: the activities it does not, with the reason (columns ``MISMATCH_COLUMNS``).
-    actual_completion: the latest actual finish of the as-built record.
-    modelled_completion: the as-built model's completion (the actual completion when it
-        reproduces); every ``days_earlier`` is measured from it.
-    by_party: one row per party with events in the register (employer, contractor,
-        neutral, in that order) and a last row ``"all"``: ``but_for_completion``,
-        ``days_earlier``, ``work_days_earlier``, ``events`` (taken out), ``not_scored``
-        (events of the party that could not be taken out). ``NaT``/``<NA>`` when none
-        could be.
-    by_event: one row per event of the register, in register order: ``but_for_completion``,
+    reproduced : bool
+        The model places every activity on its actual dates.
+    mismatches : pandas.DataFrame
+        The activities it does not, with the reason (columns ``MISMATCH_COLUMNS``).
+    actual_completion : datetime.date
+        The completion activity's actual finish in the as-built record.
+    modelled_completion : datetime.date
+        The as-built model's completion (the actual completion when it reproduces); every
+        ``days_earlier`` is measured from it.
+    by_party : pandas.DataFrame
+        One row per party with events in the register (employer, contractor, neutral, in
+        that order) and a last row ``"all"``: ``but_for_completion``, ``days_earlier``,
+        ``work_days_earlier``, ``events`` (taken out), ``not_scored`` (events of the party
+        that could not be taken out). ``NaT``/``<NA>`` when none could be.
+    by_event : pandas.DataFrame
+        One row per event of the register, in register order: ``but_for_completion``,
         ``days_earlier`` (``<NA>`` when not scored), ``found_in_as_built``, ``removed``
         (what was taken out, in words) and ``note`` (why it was not scored, or a caveat).
-    activities: the model, per activity: actual dates and duration, what holds it to its
-        actual start (``link``, ``start_no_earlier``, ``out_of_sequence`` or ``""``), its
-        gap, its start-no-earlier date, and its modelled dates.
-    links: the as-built logic with each link's gap, whether it is driving and the lag the
+    activities : pandas.DataFrame
+        The model, per activity: actual dates and duration, what holds it to its actual
+        start (``link``, ``start_no_earlier``, ``out_of_sequence`` or ``""``), its gap, its
+        start-no-earlier date, and its modelled dates.
+    links : pandas.DataFrame
+        The as-built logic with each link's gap, whether it is driving and the lag the
         model gives it.
-    notes: statements that go with the figures (``BUT_FOR_NOTE`` first).
+    notes : tuple of str, optional
+        Statements that go with the figures (``BUT_FOR_NOTE`` first).
     """
 
     reproduced: bool
@@ -186,13 +195,33 @@ class CollapsedResult:
     notes: tuple[str, ...] = ()
 
     def but_for(self, party: str) -> dt.date | None:
-        """The but-for completion of one party (or ``"all"``), ``None`` when not scored."""
+        """The but-for completion of one party (or ``"all"``).
+
+        Parameters
+        ----------
+        party : str
+            ``"employer"``, ``"contractor"``, ``"neutral"`` or ``"all"`` (:data:`ALL_PARTIES`).
+
+        Returns
+        -------
+        datetime.date or None
+            The completion with that party's events taken out; ``None`` when the party has
+            no row or none of its events could be taken out.
+        """
         rows = self.by_party[self.by_party["party"] == party]
         if not len(rows) or pd.isna(rows["but_for_completion"].iloc[0]):
             return None
         return pd.Timestamp(rows["but_for_completion"].iloc[0]).date()
 
     def to_json(self) -> dict:
+        """The result as plain JSON values (dates as ISO text, ``None`` for no value).
+
+        Returns
+        -------
+        dict
+            ``method`` (``"collapsed"``), ``reproduced``, the completions, and the
+            ``mismatches``, ``by_party`` and ``by_event`` rows and the ``notes``.
+        """
         return {
             "method": "collapsed",
             "reproduced": bool(self.reproduced),
@@ -586,7 +615,8 @@ def analyse(case: Case) -> CollapsedResult:
 
     Parameters
     ----------
-    case: a loaded case with an as-built record (asbuilt.csv) and, for figures, an event
+    case : delay.model.Case
+        A loaded case with an as-built record (asbuilt.csv) and, for figures, an event
         register (events.csv, with fragnets.csv for fragnet events).
 
     Returns
@@ -599,8 +629,12 @@ def analyse(case: Case) -> CollapsedResult:
 
     Raises
     ------
-    CaseError: the case has no as-built record, or its logic has a loop.
+    delay.errors.CaseError
+        The case has no as-built record, the completion activity is not in it, or its
+        logic has a loop.
 
+    Notes
+    -----
     A but-for completion later than the modelled one (or taking out every event finishing
     later than taking out one party's) is possible with start-to-start and finish-to-finish
     logic, where a shorter activity can hold its successors later; it is reported in
@@ -608,8 +642,19 @@ def analyse(case: Case) -> CollapsedResult:
 
     Examples
     --------
-    >>> result = analyse(load_case("case_demo"))            # doctest: +SKIP
-    >>> result.by_party[["party", "but_for_completion", "days_earlier"]]  # doctest: +SKIP
+    A small random case (it has no delay events, so only the ``"all"`` row is there, and
+    nothing could be taken out):
+
+    >>> import pathlib, tempfile
+    >>> from delay.case import load_case
+    >>> from delay.synth import synthesise
+    >>> with tempfile.TemporaryDirectory() as folder:
+    ...     case = load_case(synthesise(pathlib.Path(folder) / "case", 20, updates=2))
+    >>> result = analyse(case)
+    >>> list(result.by_party["party"]), result.but_for("all")
+    (['all'], None)
+    >>> result.notes[0] == BUT_FOR_NOTE
+    True
 
     References
     ----------

@@ -96,12 +96,26 @@ EVENT_COLUMNS = [
 def order_events(case: Case, events: Sequence[str] | None = None, order: str = "chronological") -> pd.DataFrame:
     """The register rows to insert, in insertion order.
 
-    ``chronological``: by start, then finish, then register row; ``as-listed``: the order of
-    ``events`` when given, else the register's.
+    Parameters
+    ----------
+    case : delay.model.Case
+        The loaded case; its event register is read.
+    events : sequence of str, optional
+        Event ids to keep; all of the register when ``None`` or empty.
+    order : {"chronological", "as-listed"}, default "chronological"
+        ``chronological``: by start, then finish, then register row; ``as-listed`` (or
+        ``as_listed``): the order of ``events`` when given, else the register's.
+
+    Returns
+    -------
+    pandas.DataFrame
+        The chosen rows of the register, with its columns, in insertion order and with a
+        fresh index.
 
     Raises
     ------
-    CaseError: an unknown event id or order.
+    delay.errors.CaseError
+        An unknown event id (events.csv, column ``id``) or an unknown order (``--order``).
     """
     register = case.events.reset_index(drop=True).assign(_row=lambda f: np.arange(len(f)))
     if events:
@@ -155,18 +169,26 @@ def _hold_effects(event: pd.Series, named: list[str], model: ScheduleModel) -> t
 
 
 def event_changes(case: Case, event: pd.Series, present: set[str], model: ScheduleModel | None = None) -> dict:
-    """The ``what_if`` arguments that model one event in a programme whose activity ids are
-    ``present``.
+    """The ``what_if`` arguments that model one event in a programme.
+
+    An ``extend`` lengthens each named activity by the event's ``days`` (work days); a
+    ``hold`` makes the event's start to finish, both included (from the programme's data
+    date on), non-working for each named activity not complete; a ``fragnet`` adds the
+    event's activities and the links among them and into ``present``, each fragnet activity
+    without a predecessor in its fragnet starting no earlier than the event's start.
 
     Parameters
     ----------
-    case, event:
-        The case and one row of its event register.
-    present:
+    case : delay.model.Case
+        The case (its fragnets.csv and fragnet_links.csv are read for a fragnet).
+    event : pandas.Series
+        One row of its event register.
+    present : set of str
         The activity ids of the programme (fragnet activities already inserted included).
-    model:
+    model : delay.cpm.ScheduleModel, optional
         The programme before the event: a hold needs it, to tell which named activities
-        have work in its period (and from which data date).
+        have work in its period (and from which data date); without it every named
+        activity is held from the event's start.
 
     Returns
     -------
@@ -230,8 +252,29 @@ def _fragnets(case: Case) -> dict[str, tuple[pd.DataFrame, pd.DataFrame]]:
 def apply_event(
     model: ScheduleModel, case: Case, event: pd.Series, present: set[str]
 ) -> tuple[ScheduleModel, list[str], list[str]]:
-    """``model`` with one event inserted, the named activities it could not find, and what
-    the event leaves alone, in words (see :func:`event_changes`)."""
+    """``model`` with one event inserted (see :func:`event_changes`).
+
+    Parameters
+    ----------
+    model : delay.cpm.ScheduleModel
+        The programme to insert the event into; it is not changed.
+    case : delay.model.Case
+        The case the event belongs to.
+    event : pandas.Series
+        One row of the event register.
+    present : set of str
+        The activity ids of ``model`` (fragnet activities already inserted included).
+
+    Returns
+    -------
+    model : delay.cpm.ScheduleModel
+        The programme with the event modelled (``model`` itself when the event changes
+        nothing).
+    missing : list of str
+        The named activities it could not find in the programme.
+    notes : list of str
+        What the event leaves alone, in words.
+    """
     changes = event_changes(case, event, present, model)
     missing = changes.pop("missing")
     notes = changes.pop("notes")
@@ -243,14 +286,38 @@ def apply_event(
 
 
 def targets_of(case: Case) -> list[str]:
-    """The activities the modelled methods measure: the project's completion activity, then
-    each section's completion milestone (each once)."""
+    """The activities the modelled methods measure.
+
+    Parameters
+    ----------
+    case : delay.model.Case
+        The loaded case.
+
+    Returns
+    -------
+    list of str
+        The project's completion activity, then each section's completion milestone, each
+        once.
+    """
     return list(dict.fromkeys([completion_activity(case), *case.sections["completion_activity"].astype(str)]))
 
 
 def actual_finishes(case: Case, targets: Sequence[str]) -> np.ndarray:
-    """Each target's actual finish (the as-built record's, else the last update's forecast),
-    as day numbers; :data:`delay.cpm.NO_DAY` where the record lacks it."""
+    """Each target's actual finish: the as-built record's, else the last update's forecast.
+
+    Parameters
+    ----------
+    case : delay.model.Case
+        The loaded case; its as-built record (else its last snapshot) is scheduled.
+    targets : sequence of str
+        Activity ids.
+
+    Returns
+    -------
+    numpy.ndarray
+        ``int64`` day numbers (days since 1970-01-01) of each target's finish, in the order
+        of ``targets``; :data:`delay.cpm.NO_DAY` where the record lacks the activity.
+    """
     record = case.asbuilt_snapshot if case.asbuilt_snapshot is not None else case.snapshots[-1]
     result = prepare(case, record, calendars=calendars_of(case)).run()
     return _finish_of(result.finish_day, result.model.network.index_of(list(targets)))
@@ -262,9 +329,23 @@ def _finish_of(finish: np.ndarray, where: np.ndarray) -> np.ndarray:
 
 @dataclass(frozen=True)
 class ImpactedRun:
-    """One target's figures of a run of events: ``events`` (:data:`EVENT_COLUMNS`, days
-    measured at the target's finish), its completion before and after every event, and
-    its actual completion."""
+    """One target's figures of a run of events.
+
+    Parameters
+    ----------
+    target : str
+        The activity measured (the project's completion activity or a section's milestone).
+    completion_base : datetime.date
+        Its finish in the base programme, before any event.
+    completion_cumulative : datetime.date
+        Its finish with every event inserted.
+    actual_completion : datetime.date
+        Its actual finish (the as-built record's, else the last update's forecast; the
+        cumulative completion when the analysis is prospective).
+    events : pandas.DataFrame
+        One row per event, :data:`EVENT_COLUMNS`; days measured at the target's finish,
+        calendar days (``*_work_days``: work days of the default calendar).
+    """
 
     target: str
     completion_base: dt.date
@@ -290,9 +371,27 @@ class ImpactedRun:
 
 @dataclass(frozen=True)
 class ImpactedResult:
-    """Per event: impact alone and increment in the cumulative run, for the whole works
-    (``run``, at the project's completion activity) and each section (``sections``:
-    section id to its :class:`ImpactedRun`); per party likewise."""
+    """Per event: impact alone and increment in the cumulative run, per party likewise.
+
+    Made by :func:`analyse`. The properties (``events``, ``total_days``, ...) are those of
+    ``run``, the whole works.
+
+    Parameters
+    ----------
+    base : str
+        The folder of the programme impacted.
+    run : ImpactedRun
+        The whole works, measured at the project's completion activity.
+    by_party : pandas.DataFrame
+        ``party``, ``events``, ``alone_days`` (the party's events together, without the
+        others) and ``increment_days`` (the sum of its events' increments), calendar days.
+    order : str
+        The order of insertion (``chronological`` or ``as-listed``).
+    notes : tuple of str
+        Statements that go with the figures.
+    sections : dict, optional
+        Section id to its :class:`ImpactedRun`, measured at its completion milestone.
+    """
 
     base: str
     run: ImpactedRun
@@ -303,33 +402,48 @@ class ImpactedResult:
 
     @property
     def events(self) -> pd.DataFrame:
+        """The whole works' event rows (:data:`EVENT_COLUMNS`)."""
         return self.run.events
 
     @property
     def completion_base(self) -> dt.date:
+        """The whole works' completion in the base programme, before any event."""
         return self.run.completion_base
 
     @property
     def completion_cumulative(self) -> dt.date:
+        """The whole works' completion with every event inserted."""
         return self.run.completion_cumulative
 
     @property
     def actual_completion(self) -> dt.date:
+        """The whole works' actual completion (see :class:`ImpactedRun`)."""
         return self.run.actual_completion
 
     @property
     def total_days(self) -> int:
+        """The cumulative impact in calendar days: the increments' sum."""
         return self.run.total_days
 
     @property
     def residual_days(self) -> int:
+        """The actual less the impacted completion, in calendar days."""
         return self.run.residual_days
 
     @property
     def explained_days(self) -> int:
+        """The actual less the planned completion, in calendar days."""
         return self.run.explained_days
 
     def to_json(self) -> dict:
+        """The result as plain JSON values (dates as ISO text).
+
+        Returns
+        -------
+        dict
+            ``method`` (``"impacted"``), base, target, completions, the event rows, the
+            totals, the same per section, and the notes.
+        """
         return {
             "method": "impacted",
             "base": self.base,
@@ -457,16 +571,36 @@ def run_events(
 ) -> tuple[list[pd.DataFrame], np.ndarray, np.ndarray, ScheduleModel]:
     """Impacts alone and the cumulative run of ``register`` on ``model``, at each target.
 
+    Parameters
+    ----------
+    case : delay.model.Case
+        The case the events belong to.
+    base : delay.model.Snapshot
+        The programme ``model`` was prepared from (its activity ids are the ones present).
+    model : delay.cpm.ScheduleModel
+        The prepared programme to insert the events into.
+    register : pandas.DataFrame
+        The event rows to insert, in insertion order (see :func:`order_events`).
+    label : str
+        The programme's name, used in the ``applied`` column and in errors.
+    targets : sequence of str
+        The activities to measure (see :func:`targets_of`).
+
     Returns
     -------
-    (frames, base_finish, final_finish, cumulative_model)
-        Per target a DataFrame with :data:`EVENT_COLUMNS`; the targets' finishes before
-        and after every event (day numbers, :data:`delay.cpm.NO_DAY` for a target not in the
-        programme); the model with every event inserted.
+    frames : list of pandas.DataFrame or None
+        Per target a DataFrame with :data:`EVENT_COLUMNS` (``None`` for a target not in
+        the programme).
+    base_finish, final_finish : numpy.ndarray
+        The targets' finishes before and after every event, by full schedules (day
+        numbers, days since 1970-01-01; :data:`delay.cpm.NO_DAY` for a target not in the
+        programme).
+    cumulative_model : delay.cpm.ScheduleModel
+        The model with every event inserted.
 
     Raises
     ------
-    ReconciliationError
+    delay.errors.ReconciliationError
         When the increments do not add up to the cumulative impact measured by full
         schedules.
     """
@@ -497,10 +631,14 @@ def analyse(
 
     Parameters
     ----------
-    case: the loaded case.
-    base: the programme to impact (folder name or label), by default the baseline.
-    events: event ids to insert (default all of the register).
-    order: ``chronological`` (start, finish, register row) or ``as-listed``.
+    case : delay.model.Case
+        The loaded case.
+    base : str, default "baseline"
+        The programme to impact (folder name or label), by default the baseline.
+    events : sequence of str, optional
+        Event ids to insert (default all of the register).
+    order : {"chronological", "as-listed"}, default "chronological"
+        ``chronological`` (start, finish, register row) or ``as-listed``.
 
     Returns
     -------
@@ -513,13 +651,27 @@ def analyse(
 
     Raises
     ------
-    CaseError: unknown base snapshot or event; a completion activity not in the base.
-    ReconciliationError: increments that do not add up.
+    delay.errors.CaseError
+        Unknown base snapshot, event or order; a completion activity not in the base, or
+        with no actual finish in the record.
+    delay.errors.ReconciliationError
+        Increments that do not add up.
 
     Examples
     --------
-    >>> result = analyse(load_case("case_demo"))   # doctest: +SKIP
-    >>> result.events[["event", "alone_days", "increment_days"]]   # doctest: +SKIP
+    A small random case with no delay events: nothing moves, and the residual is all of
+    the actual less the planned completion:
+
+    >>> import pathlib, tempfile
+    >>> from delay.case import load_case
+    >>> from delay.synth import synthesise
+    >>> with tempfile.TemporaryDirectory() as folder:
+    ...     case = load_case(synthesise(pathlib.Path(folder) / "case", 20, updates=2))
+    >>> result = analyse(case)
+    >>> result.total_days, len(result.events)
+    (0, 0)
+    >>> result.residual_days == result.explained_days
+    True
 
     References
     ----------

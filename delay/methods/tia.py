@@ -72,9 +72,24 @@ UPDATE_COLUMNS = [
 
 @dataclass(frozen=True)
 class TimeImpactTrace:
-    """One target's time impact analysis: ``events`` (:data:`delay.methods.impacted.EVENT_COLUMNS`
-    plus ``update``, ``completion_before`` and ``warnings``), ``updates`` (one row per
-    programme, :data:`UPDATE_COLUMNS`), the planned and the actual completion."""
+    """One target's time impact analysis.
+
+    Parameters
+    ----------
+    target : str
+        The activity measured (the project's completion activity or a section's milestone).
+    events : pandas.DataFrame
+        :data:`delay.methods.impacted.EVENT_COLUMNS` plus ``update`` (the programme the
+        event was inserted into), ``completion_before`` and ``warnings``; calendar days.
+    updates : pandas.DataFrame
+        One row per programme, :data:`UPDATE_COLUMNS`: its completion before and after its
+        events, the next programme's completion and the residual, in calendar days.
+    planned_completion : datetime.date
+        The target's finish in the first programme, before any event.
+    actual_completion : datetime.date
+        The last programme's ``next_completion``: the as-built record's finish, else the
+        last update's own (with the events inserted into it, when there are any).
+    """
 
     target: str
     events: pd.DataFrame
@@ -89,13 +104,23 @@ class TimeImpactTrace:
 
     @property
     def increment_days(self) -> int:
+        """The events' increments summed, in calendar days."""
         return int(self.events["increment_days"].sum()) if len(self.events) else 0
 
     @property
     def residual_days(self) -> int:
+        """The programmes' residuals summed, in calendar days."""
         return int(self.updates["residual_days"].sum()) if len(self.updates) else 0
 
     def to_json(self) -> dict:
+        """The trace as plain JSON values (dates as ISO text).
+
+        Returns
+        -------
+        dict
+            ``target``, the ``updates`` and ``events`` rows, the completions and the
+            increment, residual and explained days.
+        """
         return {
             "target": self.target,
             "updates": [
@@ -137,8 +162,23 @@ class TimeImpactTrace:
 
 @dataclass(frozen=True)
 class TimeImpactResult:
-    """The time impact analysis for the whole works (``trace``, at the project's completion
-    activity) and each section (``sections``: section id to its :class:`TimeImpactTrace`)."""
+    """The time impact analysis for the whole works and each section.
+
+    Made by :func:`analyse`. The properties (``events``, ``updates``, ...) are those of
+    ``trace``, the whole works.
+
+    Parameters
+    ----------
+    trace : TimeImpactTrace
+        The whole works, measured at the project's completion activity.
+    by_party : pandas.DataFrame
+        ``party``, ``alone_days`` and ``increment_days`` summed over the party's events,
+        calendar days.
+    notes : tuple of str
+        Statements that go with the figures.
+    sections : dict, optional
+        Section id to its :class:`TimeImpactTrace`, measured at its completion milestone.
+    """
 
     trace: TimeImpactTrace
     by_party: pd.DataFrame
@@ -147,22 +187,27 @@ class TimeImpactResult:
 
     @property
     def events(self) -> pd.DataFrame:
+        """The whole works' event rows."""
         return self.trace.events
 
     @property
     def updates(self) -> pd.DataFrame:
+        """The whole works' rows per programme (:data:`UPDATE_COLUMNS`)."""
         return self.trace.updates
 
     @property
     def planned_completion(self) -> dt.date:
+        """The completion in the first programme, before any event."""
         return self.trace.planned_completion
 
     @property
     def actual_completion(self) -> dt.date:
+        """The as-built record's completion, else the last update's (its events inserted)."""
         return self.trace.actual_completion
 
     @property
     def explained_days(self) -> int:
+        """The actual less the planned completion, in calendar days."""
         return self.trace.explained_days
 
     @property
@@ -171,6 +216,14 @@ class TimeImpactResult:
         return self.trace.increment_days
 
     def to_json(self) -> dict:
+        """The result as plain JSON values (dates as ISO text).
+
+        Returns
+        -------
+        dict
+            ``method`` (``"tia"``), the whole works' trace (see
+            :meth:`TimeImpactTrace.to_json`), the same per section, and the notes.
+        """
         return {
             "method": "tia",
             **self.trace.to_json(),
@@ -180,9 +233,28 @@ class TimeImpactResult:
 
 
 def current_programmes(case: Case, register: pd.DataFrame) -> list[str]:
-    """The folder of the programme each event is inserted into: the last snapshot whose
-    data date is strictly before the event's start (the baseline for an event before every
-    update), or the one its ``tia_update`` names."""
+    """The folder of the programme each event is inserted into.
+
+    Parameters
+    ----------
+    case : delay.model.Case
+        The loaded case; its snapshots (not the as-built record) are the candidates.
+    register : pandas.DataFrame
+        Rows of the event register (``start`` and, optionally, ``tia_update``).
+
+    Returns
+    -------
+    list of str
+        Per row, the folder of the last snapshot whose data date is strictly before the
+        event's start (the first snapshot, the baseline, for an event before every update
+        or with no start), or of the snapshot its ``tia_update`` names.
+
+    Raises
+    ------
+    KeyError
+        A ``tia_update`` that names no snapshot (from :meth:`delay.model.Case.snapshot`);
+        the case loader checks the column, so a loaded case does not raise it.
+    """
     snapshots = list(case.snapshots)
     chosen = []
     named = register["tia_update"] if "tia_update" in register else pd.Series([""] * len(register))
@@ -245,6 +317,12 @@ def _warnings(case: Case, event: pd.Series, current: Snapshot, previous: Snapsho
 def analyse(case: Case) -> TimeImpactResult:
     """Time impact analysis of every event of the register.
 
+    Parameters
+    ----------
+    case : delay.model.Case
+        The loaded case: its snapshots, event register and, where there is one, its
+        as-built record.
+
     Returns
     -------
     TimeImpactResult
@@ -256,9 +334,23 @@ def analyse(case: Case) -> TimeImpactResult:
 
     Raises
     ------
-    ReconciliationError
+    delay.errors.ReconciliationError
         When the increments and residuals do not add up to the actual less the planned
         completion.
+
+    Examples
+    --------
+    A small random case with no delay events: no increments, and the residuals are the
+    whole movement of completion:
+
+    >>> import pathlib, tempfile
+    >>> from delay.case import load_case
+    >>> from delay.synth import synthesise
+    >>> with tempfile.TemporaryDirectory() as folder:
+    ...     case = load_case(synthesise(pathlib.Path(folder) / "case", 20, updates=2))
+    >>> result = analyse(case)
+    >>> result.total_days, result.trace.residual_days == result.explained_days
+    (0, True)
 
     References
     ----------

@@ -126,13 +126,51 @@ REVISION_COLUMNS = [
 
 @dataclass(frozen=True)
 class Window:
-    """One window of the analysis for one target (the project's completion activity, or a
-    section's completion milestone). Days are calendar days, work days those of the ledger
-    calendar; positive is delay.
+    """One window of the analysis for one target.
 
-    ``charges`` has :data:`CHARGE_COLUMNS`: the counted chain first (``counted``), whose
-    ``work_days`` and ``days`` add up to the progress effect, then the activities of tied
-    paths beside it. ``revisions`` has :data:`REVISION_COLUMNS`, in the order applied.
+    The target is the project's completion activity or a section's completion milestone.
+    Days are calendar days, work days those of the ledger calendar (the target's own);
+    positive is delay. S is the window's start snapshot, H its half-step, E its end.
+
+    Parameters
+    ----------
+    number : int
+        The window's number, from 1.
+    start, end : str
+        The folders of the boundary snapshots S and E.
+    start_label, end_label : str
+        Their labels.
+    start_data_date, end_data_date : datetime.date
+        Their data dates.
+    target : str
+        The activity measured.
+    completion_start : datetime.date
+        The target's finish in S.
+    completion_half : datetime.date or None
+        Its finish in H; ``None`` without a half-step.
+    completion_end : datetime.date
+        Its finish in E.
+    movement_days, movement_work_days : int
+        E's finish less S's, in calendar days and in ledger work days.
+    progress_days, progress_work_days : int
+        The progress effect (H less S; without a half-step the whole movement), in calendar
+        days and ledger work days.
+    revision_days, revision_work_days : int
+        The revision effect (E less H), in calendar days and ledger work days.
+    charges : pandas.DataFrame
+        :data:`CHARGE_COLUMNS`: the counted chain first (``counted``), whose ``work_days``
+        and ``days`` add up to the progress effect, then the activities of tied paths
+        beside it.
+    revisions : pandas.DataFrame
+        :data:`REVISION_COLUMNS`, in the order applied (:data:`REVISION_KINDS`, then
+        ``other``).
+    driving_start, driving_half, driving_end : tuple of str, optional
+        The driving paths of S, H and E (filled in for the whole works' windows only;
+        ``driving_half`` empty without a half-step).
+    deleted_in_end : tuple of str, optional
+        Activities of S that E no longer has.
+    titles : dict, optional
+        Event id to title, for :attr:`sentence`.
     """
 
     number: int
@@ -198,6 +236,15 @@ class Window:
         return _sentence(self)
 
     def to_json(self) -> dict:
+        """The window as plain JSON values (dates as ISO text).
+
+        Returns
+        -------
+        dict
+            Boundaries, target, completions, movement and its split, days by party, the
+            sentence, the ``charged`` rows (those with days, work days or a tie group) and
+            the ``revisions`` rows.
+        """
         charges = self.charges[
             (self.charges["work_days"] != 0) | (self.charges["days"] != 0) | self.charges["group"].notna()
         ]
@@ -247,9 +294,30 @@ class Window:
 
 @dataclass(frozen=True)
 class WindowsResult:
-    """All windows of one analysis: the whole works' (``windows``, traced to the project's
-    completion activity) and each section's (``sections``: section id to its windows,
-    traced to its completion milestone)."""
+    """All windows of one analysis, for the whole works and each section.
+
+    Made by :func:`analyse`.
+
+    Parameters
+    ----------
+    windows : tuple of Window
+        The whole works' windows, traced to the project's completion activity.
+    half_step : bool
+        Whether each window was split into progress and revision effects.
+    first_completion : datetime.date
+        The completion activity's finish in the first boundary snapshot.
+    last_completion : datetime.date
+        Its finish in the last.
+    target : str, optional
+        The project's completion activity.
+    ledger_calendar : str, optional
+        The name of the calendar work days are counted on (the completion activity's).
+    sections : dict, optional
+        Section id to its tuple of windows, traced to its completion milestone (a section
+        whose milestone is missing from a boundary is left out).
+    attributions : pandas.DataFrame, optional
+        Each attributions.csv override applied, beside what the rule gave.
+    """
 
     windows: tuple[Window, ...]
     half_step: bool
@@ -262,6 +330,7 @@ class WindowsResult:
 
     @property
     def total_movement_days(self) -> int:
+        """The last less the first completion, in calendar days: the windows' sum."""
         return (self.last_completion - self.first_completion).days
 
     @property
@@ -320,6 +389,15 @@ class WindowsResult:
         return charges
 
     def to_json(self) -> dict:
+        """The result as plain JSON values (dates as ISO text).
+
+        Returns
+        -------
+        dict
+            ``method`` (``"windows"``), target, ledger calendar, ``half_step``, each
+            window's :meth:`Window.to_json`, the total movement, the same per section, and
+            the attributions applied.
+        """
         return {
             "method": "windows",
             "target": self.target,
@@ -394,13 +472,15 @@ def half_step_snapshot(start: Snapshot, end: Snapshot) -> Snapshot:
 
     Parameters
     ----------
-    start, end:
-        The snapshots S and E that bound the window.
+    start, end : delay.model.Snapshot
+        The snapshots S and E that bound the window; neither is changed.
 
     Returns
     -------
-    Snapshot
-        The half-step H (folder ``<S>~progress-to-<E>``).
+    delay.model.Snapshot
+        The half-step H (folder ``<S>~progress-to-<E>``, kind ``update``): S's activities
+        and links, with E's ``actual_start``, ``actual_finish`` and ``remaining`` for every
+        activity E shows started, and E's data date.
     """
     activities = start.activities
     progress = end.activities.set_index("id")
@@ -839,12 +919,12 @@ def analyse(case: Case, windows: Sequence[str] | None = None, half_step: bool | 
 
     Parameters
     ----------
-    case:
+    case : delay.model.Case
         The loaded case.
-    windows:
+    windows : sequence of str, optional
         Boundary snapshots (folder names or labels), earliest first; default every
         snapshot, with the as-built record last when there is one.
-    half_step:
+    half_step : bool, optional
         Split each window into progress and revision effects; ``None`` takes the case's
         ``[analysis] half_step`` setting. Without it, each window's whole movement is
         charged along E's driving chain and no revisions are listed.
@@ -852,19 +932,34 @@ def analyse(case: Case, windows: Sequence[str] | None = None, half_step: bool | 
     Returns
     -------
     WindowsResult
+        The whole works' windows and each section's.
 
     Raises
     ------
-    CaseError
-        Unknown or misordered boundary snapshots; a completion activity missing from a
-        boundary.
-    ReconciliationError
-        When a window's charges do not sum to its movement.
+    delay.errors.CaseError
+        Unknown or misordered boundary snapshots, fewer than two of them; the project's
+        completion activity missing from a boundary.
+    delay.errors.ReconciliationError
+        When a window's charges do not sum to its movement, or the windows do not sum to
+        the whole movement.
 
     Examples
     --------
-    >>> result = analyse(load_case("case_demo"))      # doctest: +SKIP
-    >>> result.table[["start", "end", "movement_days"]]   # doctest: +SKIP
+    A small random case with two monthly updates and an as-built record makes three
+    windows, which add up to the whole movement of completion:
+
+    >>> import pathlib, tempfile
+    >>> from delay.case import load_case
+    >>> from delay.synth import synthesise
+    >>> with tempfile.TemporaryDirectory() as folder:
+    ...     case = load_case(synthesise(pathlib.Path(folder) / "case", 20, updates=2))
+    >>> result = analyse(case, half_step=True)
+    >>> len(result.windows)
+    3
+    >>> sum(w.movement_days for w in result.windows) == result.total_movement_days
+    True
+    >>> all(w.progress_days + w.revision_days == w.movement_days for w in result.windows)
+    True
 
     References
     ----------

@@ -18,10 +18,17 @@ The package's parts:
 
 Example
 -------
->>> from delay.case import load_case                                   # doctest: +SKIP
->>> from reports.element_timeline import element_states, timeline_html # doctest: +SKIP
->>> timeline = element_states(load_case("case_demo"))                  # doctest: +SKIP
->>> fragment = timeline_html(timeline)                                 # doctest: +SKIP
+A small random case with a dozen elements:
+
+>>> import pathlib, tempfile
+>>> from delay.case import load_case
+>>> from delay.synth import synthesise
+>>> from reports.element_timeline import element_states, timeline_html
+>>> with tempfile.TemporaryDirectory() as folder:
+...     case = load_case(synthesise(pathlib.Path(folder) / "case", 20, updates=2, elements=12))
+>>> fragment = timeline_html(element_states(case), element_id="timeline")
+>>> fragment.startswith('<div id="timeline" class="element-timeline">')
+True
 """
 
 from .data import (

@@ -43,10 +43,17 @@ works.
 
 Example
 -------
->>> from delay.case import load_case                                   # doctest: +SKIP
->>> from reports.element_timeline import element_states                # doctest: +SKIP
->>> timeline = element_states(load_case("case_demo"))                  # doctest: +SKIP
->>> timeline.state_at("2025-09-01", "as_built")[:5]                    # doctest: +SKIP
+A small random case with a dozen elements, one state code each:
+
+>>> import pathlib, tempfile
+>>> from delay.case import load_case
+>>> from delay.synth import synthesise
+>>> from reports.element_timeline import element_states
+>>> with tempfile.TemporaryDirectory() as folder:
+...     case = load_case(synthesise(pathlib.Path(folder) / "case", 20, updates=2, elements=12))
+>>> timeline = element_states(case)
+>>> timeline.state_at(timeline.frame_dates[0], "as_built").shape
+(12,)
 """
 
 from __future__ import annotations
@@ -86,9 +93,11 @@ VIEW_TITLES = {"as_planned": "As planned", "as_built": "As built"}
 class ElementTimeline:
     """Per element its dates as planned and as built, and the weekly frames.
 
-    Attributes
+    Made by :func:`element_states`. The state codes are those of the module docstring.
+
+    Parameters
     ----------
-    elements:
+    elements : pandas.DataFrame
         One row per element, in elements.csv order: ``id, name, wbs, classification, level,
         zone, x, y, z, dx, dy, dz`` as loaded, then ``activities`` (the linked activity ids,
         ``;`` separated: those of the planned programme, then any only in the as-built one),
@@ -97,15 +106,35 @@ class ElementTimeline:
         ``planned_finish``, ``actual_start``, ``actual_finish`` (``datetime64``, ``NaT`` when
         not linked in that view), ``linked_as_planned``, ``linked_as_built`` and
         ``drawn_in_3d`` (the element has a complete box).
-    frames:
+    frames : pandas.DataFrame
         ``frame`` (0, 1, ...) and ``date`` (the Monday of each week shown).
-    unlinked:
+    unlinked : pandas.DataFrame
         The elements grey in at least one view: ``id, name, wbs, classification, level,
         zone, missing_from`` (``"both views"``, ``"as planned"`` or ``"as built"``).
-    planned_source, actual_source:
+    planned_source, actual_source : str
         In words, where each view's dates come from.
-    title:
+    title : str
         The figure's title, naming both sources.
+
+    Examples
+    --------
+    One element planned for the first week and built, late, in the second; the states
+    methods read only the dates and the ``linked_*`` columns:
+
+    >>> import pandas as pd
+    >>> days = pd.to_datetime
+    >>> elements = pd.DataFrame({
+    ...     "id": ["E1"],
+    ...     "planned_start": days(["2025-03-04"]), "planned_finish": days(["2025-03-07"]),
+    ...     "actual_start": days(["2025-03-12"]), "actual_finish": days(["2025-03-14"]),
+    ...     "linked_as_planned": [True], "linked_as_built": [True],
+    ... })
+    >>> frames = pd.DataFrame({"frame": [0, 1, 2], "date": days(["2025-03-03", "2025-03-10", "2025-03-17"])})
+    >>> timeline = ElementTimeline(elements, frames, elements.iloc[:0], "baseline", "as-built record", "E1")
+    >>> timeline.states("as_planned").tolist(), timeline.states("as_built").tolist()
+    ([[0, 2, 2]], [[0, 3, 2]])
+    >>> timeline.runs(), timeline.start_frames()
+    ([[(0, 1), (3, 1), (2, 1)]], array([2]))
     """
 
     elements: pd.DataFrame
@@ -135,12 +164,20 @@ class ElementTimeline:
 
         Parameters
         ----------
-        date: a date (``datetime.date``, ISO text, ``numpy.datetime64`` or ``Timestamp``).
-        view: ``"as_planned"`` or ``"as_built"``.
+        date : datetime.date or str or numpy.datetime64 or pandas.Timestamp
+            A date (ISO text accepted).
+        view : {"as_built", "as_planned"}, default "as_built"
+            The view.
 
         Returns
         -------
-        numpy.ndarray of int8, shape (elements,), codes as the module docstring defines.
+        numpy.ndarray
+            ``int8`` codes, shape (elements,), as the module docstring defines them.
+
+        Raises
+        ------
+        ValueError
+            An unknown view.
         """
         day = int(to_days([pd.Timestamp(date).to_datetime64()])[0])
         return self._codes(view, np.int64(day))
@@ -148,9 +185,20 @@ class ElementTimeline:
     def states(self, view: str = "as_built") -> np.ndarray:
         """State codes of every element in every frame.
 
+        Parameters
+        ----------
+        view : {"as_built", "as_planned"}, default "as_built"
+            The view.
+
         Returns
         -------
-        numpy.ndarray of int8, shape (elements, frames): one byte per element and week.
+        numpy.ndarray
+            ``int8`` codes, shape (elements, frames): one byte per element and week.
+
+        Raises
+        ------
+        ValueError
+            An unknown view.
         """
         return self._codes(view, self._days["frames"][None, :])
 
@@ -180,18 +228,37 @@ class ElementTimeline:
 
         Parameters
         ----------
-        view: ``"as_planned"`` or ``"as_built"``.
+        view : {"as_built", "as_planned"}, default "as_built"
+            The view.
 
         Returns
         -------
-        numpy.ndarray of int64, shape (elements,)
-            The frame number; the number of frames for an element not linked in the view
-            (its work never begins there).
+        numpy.ndarray
+            ``int64``, shape (elements,): the frame number; the number of frames for an element
+            not linked in the view (its work never begins there).
+
+        Raises
+        ------
+        ValueError
+            An unknown view.
 
         Examples
         --------
-        An element whose start is the Wednesday of the second week has begun by the third
-        Monday: frame 2.
+        An element whose actual start is the Wednesday of the second week has begun by the
+        third Monday, frame 2; its planned start, the Tuesday of the first week, gives frame 1:
+
+        >>> import pandas as pd
+        >>> days = pd.to_datetime
+        >>> elements = pd.DataFrame({
+        ...     "id": ["E1"],
+        ...     "planned_start": days(["2025-03-04"]), "planned_finish": days(["2025-03-07"]),
+        ...     "actual_start": days(["2025-03-12"]), "actual_finish": days(["2025-03-14"]),
+        ...     "linked_as_planned": [True], "linked_as_built": [True],
+        ... })
+        >>> frames = pd.DataFrame({"frame": [0, 1, 2], "date": days(["2025-03-03", "2025-03-10", "2025-03-17"])})
+        >>> timeline = ElementTimeline(elements, frames, elements.iloc[:0], "baseline", "as-built record", "E1")
+        >>> timeline.start_frames("as_built").tolist(), timeline.start_frames("as_planned").tolist()
+        ([2], [1])
         """
         if view not in VIEWS:
             raise ValueError(f"unknown view '{view}': use one of {', '.join(VIEWS)}")
@@ -208,6 +275,21 @@ class ElementTimeline:
         have the same code. They are found from the few dates at which an element's state
         can change (its start and the day after its finish in both views), without building
         the whole elements x frames table.
+
+        Parameters
+        ----------
+        view : {"as_built", "as_planned"}, default "as_built"
+            The view.
+
+        Returns
+        -------
+        list of list of (int, int)
+            Per element, in element order, its runs.
+
+        Raises
+        ------
+        ValueError
+            An unknown view.
         """
         codes, lengths = self._run_arrays(view)
         out = []
@@ -277,26 +359,28 @@ def element_states(
 
     Parameters
     ----------
-    case:
+    case : delay.model.Case
         A loaded case with rows in elements.csv.
-    planned:
+    planned : delay.cpm.ScheduleResult or pandas.DataFrame, optional
         The planned programme: a :class:`~delay.cpm.ScheduleResult`, or a DataFrame with
         ``id``, ``early_start``, ``early_finish`` (and optionally ``wbs``). Default: the
         baseline scheduled.
-    actual:
+    actual : delay.cpm.ScheduleResult or pandas.DataFrame, optional
         The as-built programme, in the same forms. Default: the as-built record's actual
         dates; without one, the last update scheduled at its data date; with no update, the
         baseline.
-    highlight:
+    highlight : iterable of str, optional
         Ids of the activities delayed by an event; their elements are picked out. Default:
         every activity named in events.csv.
-    planned_source, actual_source:
+    planned_source, actual_source : str, optional
         Words for the title saying where the dates come from (defaults describe the
         defaults above, or name the snapshot of a ScheduleResult).
 
     Returns
     -------
     ElementTimeline
+        The elements with their dates in both views, the weekly frames and the unlinked
+        elements.
 
     Raises
     ------
@@ -304,6 +388,17 @@ def element_states(
         When the case has no elements, or a programme DataFrame lacks a column.
     delay.errors.CaseError
         When a snapshot cannot be scheduled.
+
+    Examples
+    --------
+    >>> import pathlib, tempfile
+    >>> from delay.case import load_case
+    >>> from delay.synth import synthesise
+    >>> with tempfile.TemporaryDirectory() as folder:
+    ...     case = load_case(synthesise(pathlib.Path(folder) / "case", 20, updates=2, elements=12))
+    >>> timeline = element_states(case)
+    >>> timeline.states().shape == (12, len(timeline.frames))
+    True
     """
     elements = case.elements
     if elements.empty:

@@ -186,9 +186,12 @@ def timeline_html(
 
     Parameters
     ----------
-    timeline: from :func:`element_states`.
-    views: ``"3d"``, ``"2d"`` or both (for a very large model, the 2D view alone).
-    element_id: the ``id`` of the outer ``div``; default derived from the content, so the
+    timeline : ElementTimeline
+        From :func:`~reports.element_timeline.data.element_states`.
+    views : sequence of str, default ("3d", "2d")
+        ``"3d"``, ``"2d"`` or both (for a very large model, the 2D view alone).
+    element_id : str, optional
+        The ``id`` of the outer ``div``; default derived from the content, so the
         same timeline always gives the same text.
 
     Returns
@@ -200,6 +203,11 @@ def timeline_html(
         ``data-ready="true"``, ``data-frame`` (the week shown, from 0), ``data-top-level``
         (the number of the highest level shown in 3D, from 0 at the lowest) and
         ``data-drawn`` (``"<week>:<level>"`` once both are drawn).
+
+    Raises
+    ------
+    ValueError
+        ``views`` other than ``"3d"``, ``"2d"`` or both.
     """
     views = tuple(views)
     unknown = set(views) - {"3d", "2d"}
@@ -237,7 +245,26 @@ def standalone_html(timeline: ElementTimeline, title: str | None = None, **optio
     """A complete HTML page holding :func:`timeline_html`, with plotly.js inlined.
 
     It opens offline (``file://``): plotly.js is the copy shipped with the plotly package,
-    the same one ``include_plotlyjs=True`` writes. ``options`` go to :func:`timeline_html`.
+    the same one ``include_plotlyjs=True`` writes.
+
+    Parameters
+    ----------
+    timeline : ElementTimeline
+        From :func:`~reports.element_timeline.data.element_states`.
+    title : str, optional
+        The page's title (escaped; default "Element timeline").
+    **options
+        Passed to :func:`timeline_html` (``views``, ``element_id``).
+
+    Returns
+    -------
+    str
+        The page, one HTML document.
+
+    Raises
+    ------
+    ValueError
+        ``views`` other than ``"3d"``, ``"2d"`` or both.
     """
     from plotly.offline import get_plotlyjs
 

@@ -129,7 +129,8 @@ def hover_texts(timeline: ElementTimeline) -> list[str]:
 
     Parameters
     ----------
-    timeline: from :func:`~reports.element_timeline.data.element_states`.
+    timeline : ElementTimeline
+        From :func:`~reports.element_timeline.data.element_states`.
 
     Returns
     -------
@@ -228,12 +229,18 @@ def edge_margin(boxes: np.ndarray) -> float:
 
     Parameters
     ----------
-    boxes: ``x, y, z, dx, dy, dz`` of the boxes drawn, shape (n, 6).
+    boxes : numpy.ndarray
+        ``x, y, z, dx, dy, dz`` of the boxes drawn, shape (n, 6).
 
     Returns
     -------
     float
-        Metres (0.1 m on a model 70 m across; 0 with no boxes).
+        Metres (0.1 m on a model 70 m across; 0 with no boxes), rounded to the millimetre.
+
+    Examples
+    --------
+    >>> edge_margin(np.array([[0.0, 0.0, 0.0, 70.0, 20.0, 12.0]])), edge_margin(np.empty((0, 6)))
+    (0.105, 0.0)
     """
     if boxes.size == 0:
         return 0.0
@@ -246,7 +253,8 @@ def level_order(elements: pd.DataFrame) -> tuple[pd.Series, list[str]]:
 
     Parameters
     ----------
-    elements: the timeline's elements (``level`` and ``z`` columns).
+    elements : pandas.DataFrame
+        The timeline's elements (``level`` and ``z`` columns).
 
     Returns
     -------
@@ -274,8 +282,10 @@ def box_levels(timeline: ElementTimeline, drawn: np.ndarray) -> tuple[list[str],
 
     Parameters
     ----------
-    timeline: from :func:`~reports.element_timeline.data.element_states`.
-    drawn: row numbers of the elements drawn in 3D.
+    timeline : ElementTimeline
+        From :func:`~reports.element_timeline.data.element_states`.
+    drawn : numpy.ndarray
+        Row numbers of the elements drawn in 3D.
 
     Returns
     -------
@@ -297,10 +307,14 @@ def drawn_parts(
 
     Parameters
     ----------
-    box_states: state code of each box drawn (module :mod:`~reports.element_timeline.data`).
-    started: whether each box's work has begun in the view's own dates.
-    outlined: whether each box is built by an activity that a delay event affected.
-    shown: whether each box's level is shown (default every box).
+    box_states : numpy.ndarray
+        State code of each box drawn (module :mod:`~reports.element_timeline.data`).
+    started : numpy.ndarray
+        Whether each box's work has begun in the view's own dates.
+    outlined : numpy.ndarray
+        Whether each box is built by an activity that a delay event affected.
+    shown : numpy.ndarray, optional
+        Whether each box's level is shown (default every box).
 
     Returns
     -------
@@ -310,6 +324,17 @@ def drawn_parts(
         or late against plan and not begun); ``unlinked``: no linked activity, a dotted grey
         wire frame;
         ``outline``: solid boxes built by an affected activity.
+
+    Examples
+    --------
+    Four boxes: in progress and begun, late and not begun, complete and begun (built by
+    an affected activity), and one with no linked activity:
+
+    >>> parts = drawn_parts(
+    ...     np.array([1, 3, 2, 4]), np.array([True, False, True, False]), np.array([False, False, True, False])
+    ... )
+    >>> {name: numbers.tolist() for name, numbers in parts.items()}
+    {'solid': [0, 2], 'ghost': [1], 'unlinked': [3], 'outline': [2]}
     """
     shown = np.ones(box_states.shape, dtype=bool) if shown is None else shown
     linked = box_states != UNLINKED
@@ -345,8 +370,10 @@ def base_3d(timeline: ElementTimeline, *, legend: bool) -> dict:
 
     Parameters
     ----------
-    timeline: from :func:`~reports.element_timeline.data.element_states`.
-    legend: add the legend as an annotation under the scenes (a figure of its own); the
+    timeline : ElementTimeline
+        From :func:`~reports.element_timeline.data.element_states`.
+    legend : bool
+        Add the legend as an annotation under the scenes (a figure of its own); the
         report's fragment has its own legend in HTML.
 
     Returns
@@ -539,8 +566,10 @@ def figure_3d(timeline: ElementTimeline, *, frames: bool = True):
 
     Parameters
     ----------
-    timeline: from :func:`~reports.element_timeline.data.element_states`.
-    frames: add one animation frame per week (the triangles drawn solid and their colour
+    timeline : ElementTimeline
+        From :func:`~reports.element_timeline.data.element_states`.
+    frames : bool, default True
+        Add one animation frame per week (the triangles drawn solid and their colour
         values, the faint wire frames and the outlines) with a slider and play/pause buttons; ``False``
         gives the first week alone.
 
@@ -624,8 +653,10 @@ def base_2d(timeline: ElementTimeline, *, legend: bool) -> dict:
 
     Parameters
     ----------
-    timeline: from :func:`~reports.element_timeline.data.element_states`.
-    legend: add the legend as an annotation under the panels.
+    timeline : ElementTimeline
+        From :func:`~reports.element_timeline.data.element_states`.
+    legend : bool
+        Add the legend as an annotation under the panels.
 
     Returns
     -------
@@ -718,8 +749,15 @@ def figure_2d(timeline: ElementTimeline, *, frames: bool = True):
     """The same timeline drawn flat, by level (up) and zone (across), for large models.
 
     Each element is a small square in the cell of its level and zone; the two panels are
-    as planned and as built. With ``frames`` the figure has one frame per week (colour
-    values only), a slider and play/pause buttons.
+    as planned and as built.
+
+    Parameters
+    ----------
+    timeline : ElementTimeline
+        From :func:`~reports.element_timeline.data.element_states`.
+    frames : bool, default True
+        Add one animation frame per week (colour values only), a slider and play/pause
+        buttons; ``False`` gives the first week alone.
 
     Returns
     -------

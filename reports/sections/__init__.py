@@ -17,6 +17,23 @@ __all__ = ["SECTIONS", "method_title"]
 def method_title(method: str) -> str:
     """The title of a method's section: the method in words and its one-word name.
 
+    Parameters
+    ----------
+    method : str
+        A method's one-word name (a key of :data:`delay.methods.METHOD_TITLES`).
+
+    Returns
+    -------
+    str
+        ``"<Method in words> (<name>)"``.
+
+    Raises
+    ------
+    KeyError
+        An unknown method name.
+
+    Examples
+    --------
     >>> method_title("impacted")
     'Impacted as-planned (impacted)'
     """

@@ -58,8 +58,10 @@ def driving_path_frame(ctx: Context, result) -> pd.DataFrame:
 
     Parameters
     ----------
-    ctx: the report's results.
-    result: a :class:`delay.methods.asbuilt.AsBuiltResult`.
+    ctx : reports.context.Context
+        The report's results.
+    result : delay.methods.asbuilt.AsBuiltResult
+        The as-planned versus as-built comparison.
 
     Returns
     -------
@@ -131,7 +133,8 @@ def section(ctx: Context) -> Section:
 
     Parameters
     ----------
-    ctx: the report's results; this section reads ``ctx.results["asbuilt"]`` and the baseline's driving path.
+    ctx : reports.context.Context
+        The report's results; this section reads ``ctx.results["asbuilt"]`` and the baseline's driving path.
 
     Returns
     -------

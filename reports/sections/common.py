@@ -40,16 +40,23 @@ def causation_block(
 
     Parameters
     ----------
-    ctx: the report's results.
-    method: the method (also the section's key).
-    key, title: the table's.
-    columns: the columns shown (those the table has).
-    only_charged: keep only the rows with days or concurrency.
-    style: the block's style.
+    ctx : reports.context.Context
+        The report's results.
+    method : str
+        The method (also the section's key).
+    key, title : str
+        The table's.
+    columns : list of str
+        The columns shown (those the table has).
+    only_charged : bool, default False
+        Keep only the rows with days or concurrency.
+    style : str, default ""
+        The block's style.
 
     Returns
     -------
     reports.blocks.TableBlock
+        The table (key ``key``), registered in ``ctx``, with the causation note.
     """
     table = ctx.entitlement.method(method).causation.table
     if only_charged and len(table):
@@ -66,8 +73,10 @@ def event_rows(
 
     Parameters
     ----------
-    events: the method's events (:data:`delay.methods.impacted.EVENT_COLUMNS`).
-    extra, alone, increment: columns shown after ``start``, after ``alone_days`` and after
+    events : pandas.DataFrame
+        The method's events (:data:`delay.methods.impacted.EVENT_COLUMNS`).
+    extra, alone, increment : list of str, default ()
+        Columns shown after ``start``, after ``alone_days`` and after
         ``increment_days``.
 
     Returns
@@ -101,10 +110,17 @@ def steps_frame(rows: list[dict]) -> pd.DataFrame:
 
     Parameters
     ----------
-    rows: dicts with ``run``, ``step``, ``completion``, ``alone``, ``title``.
+    rows : list of dict
+        Dicts with ``run``, ``step``, ``completion``, ``alone``, ``title``.
 
     Returns
     -------
     pandas.DataFrame
+        Those columns, in that order (missing keys blank).
+
+    Examples
+    --------
+    >>> steps_frame([{"run": "baseline", "step": "before any event", "completion": "2025-06-30"}]).columns.tolist()
+    ['run', 'step', 'completion', 'alone', 'title']
     """
     return pd.DataFrame(rows, columns=["run", "step", "completion", "alone", "title"])

@@ -26,7 +26,8 @@ def section(ctx: Context) -> Section:
 
     Parameters
     ----------
-    ctx: the report's results; this section reads ``ctx.comparison`` (and runs :func:`delay.comparison.sensitivity`).
+    ctx : reports.context.Context
+        The report's results; this section reads ``ctx.comparison`` (and runs :func:`delay.comparison.sensitivity`).
 
     Returns
     -------

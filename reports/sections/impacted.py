@@ -33,7 +33,8 @@ def section(ctx: Context) -> Section:
 
     Parameters
     ----------
-    ctx: the report's results; this section reads ``ctx.results["impacted"]`` and the method's entitlement.
+    ctx : reports.context.Context
+        The report's results; this section reads ``ctx.results["impacted"]`` and the method's entitlement.
 
     Returns
     -------

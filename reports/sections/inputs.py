@@ -29,8 +29,10 @@ def docstring_part(doc: str, heading: str) -> list[str]:
 
     Parameters
     ----------
-    doc: the docstring (a method module's ``__doc__``).
-    heading: ``"References"``, ``"Assumptions"``, ...
+    doc : str
+        The docstring (a method module's ``__doc__``).
+    heading : str
+        ``"References"``, ``"Assumptions"``, ...
 
     Returns
     -------
@@ -75,9 +77,12 @@ def settings_frame(case, methods: list[str], title: str) -> pd.DataFrame:
 
     Parameters
     ----------
-    case: the loaded case.
-    methods: the methods of the report.
-    title: the report's title.
+    case : delay.model.Case
+        The loaded case.
+    methods : list of str
+        The methods of the report.
+    title : str
+        The report's title.
 
     Returns
     -------
@@ -111,12 +116,17 @@ def section(ctx: Context, title: str) -> Section:
 
     Parameters
     ----------
-    ctx: the report's results.
-    title: the report's title (listed among the settings).
+    ctx : reports.context.Context
+        The report's results.
+    title : str
+        The report's title (listed among the settings).
 
     Returns
     -------
     reports.blocks.Section
+        "Inputs and method": facts of the case, its settings, the disclosed
+        corrections, each method's published sources and assumptions, and the cautions;
+        always available.
     """
     inputs = Section("inputs", "Inputs and method")
     case = ctx.case

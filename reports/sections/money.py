@@ -52,7 +52,8 @@ def rates_frame(case) -> pd.DataFrame:
 
     Parameters
     ----------
-    case: the loaded case.
+    case : delay.model.Case
+        The loaded case.
 
     Returns
     -------
@@ -87,7 +88,8 @@ def prolongation_frame(ctx: Context) -> pd.DataFrame:
 
     Parameters
     ----------
-    ctx: the report's results.
+    ctx : reports.context.Context
+        The report's results.
 
     Returns
     -------
@@ -111,7 +113,8 @@ def damages_frame(ctx: Context) -> pd.DataFrame:
 
     Parameters
     ----------
-    ctx: the report's results.
+    ctx : reports.context.Context
+        The report's results.
 
     Returns
     -------
@@ -186,7 +189,8 @@ def section(ctx: Context) -> Section:
 
     Parameters
     ----------
-    ctx: the report's results; this section reads ``ctx.entitlement`` and the case's rates.
+    ctx : reports.context.Context
+        The report's results; this section reads ``ctx.entitlement`` and the case's rates.
 
     Returns
     -------

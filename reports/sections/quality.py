@@ -203,7 +203,8 @@ def section(ctx: Context) -> Section:
 
     Parameters
     ----------
-    ctx: the report's results; this section reads the case alone (and runs :func:`delay.checks.run_all`).
+    ctx : reports.context.Context
+        The report's results; this section reads the case alone (and runs :func:`delay.checks.run_all`).
 
     Returns
     -------

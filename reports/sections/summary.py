@@ -51,7 +51,8 @@ def headline_frame(ctx: Context) -> pd.DataFrame:
 
     Parameters
     ----------
-    ctx: the report's results.
+    ctx : reports.context.Context
+        The report's results.
 
     Returns
     -------
@@ -94,11 +95,15 @@ def key_dates(ctx: Context) -> str:
 
     Parameters
     ----------
-    ctx: the report's results.
+    ctx : reports.context.Context
+        The report's results.
 
     Returns
     -------
     str
+        The planned completion, the actual (as-built record) or forecast (last update)
+        one and how many calendar days later or earlier, the contract completion and the
+        date in force after the extensions already granted, and the overrun past it.
     """
     case = ctx.case
     planned = ctx.completion(case.baseline)
@@ -223,7 +228,8 @@ def grants_frame(case) -> pd.DataFrame:
 
     Parameters
     ----------
-    case: the loaded case.
+    case : delay.model.Case
+        The loaded case.
 
     Returns
     -------
@@ -374,12 +380,17 @@ def section(ctx: Context, left_out: list[str] = ()) -> Section:
 
     Parameters
     ----------
-    ctx: the report's results.
-    left_out: why methods the case cannot support were left out.
+    ctx : reports.context.Context
+        The report's results.
+    left_out : list of str, default ()
+        Why methods the case cannot support were left out.
 
     Returns
     -------
     reports.blocks.Section
+        "Summary": the points that need explaining, the methods left out, the completion
+        dates and the extensions already granted, the figures per method (when one
+        assessed entitlement) and the cautions; always available.
     """
     summary = Section("summary", "Summary")
     blocks = summary.blocks

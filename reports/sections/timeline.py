@@ -43,7 +43,8 @@ def section(ctx: Context) -> Section:
 
     Parameters
     ----------
-    ctx: the report's results; this section reads the case's elements and programmes.
+    ctx : reports.context.Context
+        The report's results; this section reads the case's elements and programmes.
 
     Returns
     -------

@@ -84,8 +84,10 @@ def in_force_steps(case, first: dt.date, last: dt.date) -> pd.DataFrame:
 
     Parameters
     ----------
-    case: the loaded case.
-    first, last: the dates the chart spans.
+    case : delay.model.Case
+        The loaded case.
+    first, last : datetime.date
+        The dates the chart spans.
 
     Returns
     -------
@@ -113,7 +115,8 @@ def party_frame(result) -> pd.DataFrame:
 
     Parameters
     ----------
-    result: a :class:`delay.methods.windows.WindowsResult`.
+    result : delay.methods.windows.WindowsResult
+        The windows analysis.
 
     Returns
     -------
@@ -181,7 +184,8 @@ def section(ctx: Context) -> Section:
 
     Parameters
     ----------
-    ctx: the report's results; this section reads ``ctx.results["windows"]``, the windows' entitlement and the grants.
+    ctx : reports.context.Context
+        The report's results; this section reads ``ctx.results["windows"]``, the windows' entitlement and the grants.
 
     Returns
     -------
