@@ -329,3 +329,28 @@ def test_cli_bad_case_is_a_plain_input_error(tmp_path):
     assert "events.csv" in run.stderr and "party" in run.stderr
     assert "Traceback" not in run.output
     assert run.stdout == ""
+
+
+def test_a_last_update_without_the_completion_activity_is_an_input_error(tmp_path):
+    """With no as-built record the last update's forecast is the actual completion; an
+    update that no longer holds the completion activity leaves nothing to reconcile the
+    increments with: one input problem naming that update's file, no traceback."""
+    root = tmp_path / "case"
+    write_case(
+        root,
+        activities=[A, C, F],
+        links=LINKS,
+        schedule=SEVEN_DAY,
+        snapshots={
+            "u1": {
+                "data_date": "2025-01-11",
+                "activities": [progressed(A, "2025-01-06", None, 5), progressed(C, "2025-01-06", None, 6)],
+                "links": [],
+            }
+        },
+        files={"events.csv": EVENTS},
+    )
+    result = CliRunner().invoke(tia, [str(root)])
+    assert result.exit_code == 2, result.output
+    assert "snapshots/u1/activities.csv" in result.output and "'F'" in result.output
+    assert "Traceback" not in result.output

@@ -48,7 +48,7 @@ import pandas as pd
 
 from ..convert import NO_DAY, day_to_date, split_ids
 from ..cpm import calendars_of, prepare
-from ..errors import ReconciliationError
+from ..errors import CaseError, Problem, ReconciliationError
 from ..memo import remembered
 from ..model import Case, Snapshot
 from .impacted import EVENT_COLUMNS, actual_finishes, event_changes, order_events, run_events, targets_of
@@ -438,6 +438,8 @@ def _analyse(case: Case) -> TimeImpactResult:
             )
         traces.append(trace)
     whole = traces[0]
+    if whole is None:
+        raise CaseError(_no_completion_problem(case, targets[0]))
     sections = {
         str(section): traces[targets.index(str(milestone))]
         for section, milestone in zip(case.sections["section"], case.sections["completion_activity"])
@@ -457,3 +459,28 @@ def _analyse(case: Case) -> TimeImpactResult:
         "the increments with what happened.",
     )
     return TimeImpactResult(whole, by_party, notes, sections)
+
+
+def _no_completion_problem(case: Case, completion: str) -> Problem:
+    """Why the whole works cannot be traced: the record holds no finish of the completion
+    activity (the as-built record, else the last update), or no update comes after the
+    baseline."""
+    if not case.updates:
+        return Problem(
+            file="snapshots",
+            message="the time impact analysis needs a progress update after the baseline",
+            fix="add an update under snapshots/, or use the impacted as-planned analysis",
+        )
+    if case.asbuilt_snapshot is not None:
+        return Problem(
+            file="asbuilt.csv",
+            message=f"the as-built record has no finish of the completion activity '{completion}'",
+            fix=f"add '{completion}' with its actual finish to asbuilt.csv, or name the completion activity "
+            "with [project] completion_activity in case.toml",
+        )
+    last = case.snapshots[-1]
+    return Problem(
+        file=f"snapshots/{last.folder}/activities.csv",
+        message=f"the last update '{last.label}' has no completion activity '{completion}' to forecast the finish",
+        fix="add the completion activity to the update, or name it with [project] completion_activity in case.toml",
+    )
