@@ -236,10 +236,10 @@ class ScheduleModel:
                 "start_bound": bounds,
             }
             arrays = {name: np.concatenate([arrays[name], extra[name]]) for name in arrays}
-        index = pd.Index(np.concatenate([net.ids, np.asarray(new_ids, dtype=object)])) if new_ids else net.index
+        added = {name: net.size + k for k, name in enumerate(new_ids)}
 
         def numbers(ids) -> np.ndarray:
-            found = index.get_indexer(pd.Index([str(i) for i in ids]))
+            found = net.numbers_of([str(i) for i in ids], added)
             if (found < 0).any():
                 bad = [str(i) for i, f in zip(ids, found) if f < 0]
                 raise KeyError(f"unknown activity id(s): {', '.join(bad)}")

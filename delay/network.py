@@ -13,6 +13,7 @@ predecessor's finish (FS, FF).
 from __future__ import annotations
 
 import dataclasses
+from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
 from functools import cached_property
 
@@ -135,6 +136,29 @@ class Network:
         found = np.zeros(self.size, dtype=bool)
         found[self.order] = on
         return found
+
+    @cached_property
+    def _number(self) -> dict[str, int]:
+        return {name: number for number, name in enumerate(self.ids.tolist())}
+
+    def numbers_of(self, ids: Sequence[str], added: Mapping[str, int] | None = None) -> np.ndarray:
+        """Activity numbers of a few ids by a dictionary built once per network (a what-if
+        names a handful; :meth:`index_of` is for whole columns); ``-1`` for an unknown id.
+
+        Parameters
+        ----------
+        ids : sequence of str
+            Activity ids.
+        added : mapping of str to int, optional
+            Numbers of activities beyond this network's (a what-if's added activities).
+
+        Returns
+        -------
+        numpy.ndarray
+            ``int64``, one number per id.
+        """
+        number, more = self._number, added or {}
+        return np.fromiter((number.get(i, more.get(i, -1)) for i in ids), dtype=np.int64, count=len(ids))
 
     def index_of(self, ids) -> np.ndarray:
         """Activity numbers of ids; ``-1`` for an unknown id."""
