@@ -164,7 +164,10 @@ class Network:
         """Activity numbers of ids; ``-1`` for an unknown id."""
         if isinstance(ids, np.ndarray) and ids.shape == self.ids.shape and np.array_equal(ids, self.ids):
             return np.arange(self.size)  # another schedule of the same activities: nothing to look up
-        return self.index.get_indexer(pd.Index(list(ids) if not isinstance(ids, str) else [ids]))
+        ids = [ids] if isinstance(ids, str) else list(ids)
+        if len(ids) <= 64:  # a few ids: a dictionary look-up each, no index built
+            return self.numbers_of([str(i) for i in ids])
+        return self.index.get_indexer(pd.Index(ids))
 
     def predecessor_count(self) -> np.ndarray:
         return np.bincount(self.succ, minlength=self.size)
