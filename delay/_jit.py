@@ -212,6 +212,11 @@ def kernel_mode(mode: str):
     mode : str
         One of ``"auto"``, ``"python"``, ``"compiled"``.
 
+    Yields
+    ------
+    None
+        Nothing: the block runs in that mode, and the mode before is restored after it.
+
     Raises
     ------
     ValueError

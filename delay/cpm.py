@@ -1147,7 +1147,9 @@ class ScheduleResult:
         return {**self._json_head(), "activities": rows}
 
     def to_json_text(self, indent: int = 2) -> str:
-        """``json.dumps(self.to_json(), indent=indent)``, the same text to the byte, made
+        """Write :meth:`to_json` as JSON text, made from whole columns.
+
+        The same text to the byte as ``json.dumps(self.to_json(), indent=indent)``, made
         from whole columns (each distinct date formatted once) instead of per-activity
         objects: what ``delay schedule --format json`` prints.
 

@@ -475,7 +475,7 @@ class Case:
     root : Path
         The case folder, or the workbook's path.
     settings : CaseSettings
-        case.toml, defaults applied.
+        The settings of case.toml, defaults applied.
     tables : Mapping of str to pandas.DataFrame
         The case's tables other than the snapshots' by name (``events``, ``sections`` ...),
         each also an attribute of the case (``case.events``), handed out as a
