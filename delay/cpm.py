@@ -817,18 +817,22 @@ class ScheduleResult:
 
     @property
     def data_date(self) -> dt.date:
+        """The snapshot's data date."""
         return day_to_date(self.model.data_day)
 
     @property
     def settings(self) -> ScheduleSettings:
+        """The scheduling settings the snapshot was scheduled with."""
         return self.model.settings
 
     @property
     def snapshot(self) -> str:
+        """The snapshot's label."""
         return self.model.label
 
     @property
     def ids(self) -> np.ndarray:
+        """The activity ids, network order (``object`` array)."""
         return self.model.network.ids
 
     @cached_property

@@ -445,6 +445,7 @@ class Correction:
 
     @property
     def record(self) -> str:
+        """The corrected thing in words: snapshot, activity or link, and column."""
         thing = "activity" if self.table == "activities" else "link"
         return f"snapshot '{self.snapshot}', {thing} {self.key}, column {self.column}"
 
@@ -607,10 +608,12 @@ class Case:
 
     @property
     def baseline(self) -> Snapshot:
+        """The first snapshot: the baseline."""
         return self.snapshots[0]
 
     @property
     def updates(self) -> tuple[Snapshot, ...]:
+        """The snapshots after the baseline, by data date (the as-built one not among them)."""
         return self.snapshots[1:]
 
     def __repr__(self) -> str:

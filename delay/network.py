@@ -145,10 +145,12 @@ class Network:
 
     @property
     def size(self) -> int:
+        """The number of activities, ``n``."""
         return int(self.ids.size)
 
     @property
     def link_count(self) -> int:
+        """The number of links, ``m``."""
         return int(self.pred.size)
 
     @cached_property
@@ -164,10 +166,12 @@ class Network:
 
     @property
     def in_ptr(self) -> np.ndarray:
+        """Row starts of the links by successor, shape ``(n + 1,)`` (built on first use)."""
         return self._in_rows[0]
 
     @property
     def in_link(self) -> np.ndarray:
+        """Link numbers grouped by successor, in input order within one (built on first use)."""
         return self._in_rows[1]
 
     @cached_property
@@ -393,10 +397,12 @@ class PassLayout:
 
     @property
     def forward(self) -> tuple:
+        """``(f_ptr, f_pred, f_type, f_lag)``, the forward pass's arguments."""
         return self.f_ptr, self.f_pred, self.f_type, self.f_lag
 
     @property
     def backward(self) -> tuple:
+        """``(b_ptr, b_succ, b_type, b_lag)``, the backward pass's arguments."""
         return self.b_ptr, self.b_succ, self.b_type, self.b_lag
 
 
