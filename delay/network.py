@@ -554,7 +554,8 @@ def compile_network(
     activities : DataFrame
         The activities, with column ``id``; they are numbered in row order.
     links : DataFrame
-        The links, with columns ``pred``, ``succ``, ``type``, ``lag`` (work days).
+        The links, with columns ``pred``, ``succ``, ``type``, ``lag`` (work days); ids must
+        be known (the case loader has checked them).
     source : str, default "links.csv"
         File named in the problem when the logic has a loop, a link names an unknown
         activity or has an unknown type.
