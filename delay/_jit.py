@@ -54,8 +54,11 @@ _registered: set = set()
 
 
 def jitable(function):
-    """Mark ``function`` as a helper the kernels call: plain Python as it is, registered
-    with numba when the kernels are first compiled, so that they call its compiled form.
+    """Mark ``function`` as a helper the kernels call.
+
+    The helper stays plain Python as it is, and is registered with numba
+    (``numba.extending.register_jitable``) when the kernels are first compiled, so that the
+    compiled kernels call its compiled form.
 
     (Left to LLVM to inline: numba's own ``inline="always"`` measured no faster on the
     passes over 100,000 activities and trips an internal check of numba's on a helper with
@@ -115,8 +118,18 @@ class Kernel:
         self._compiled = None
 
     def compiled(self):
-        """The numba dispatcher of this kernel (made at first use; the machine code is read
-        from numba's cache, or compiled and cached)."""
+        """Return the numba dispatcher of this kernel, made at its first use.
+
+        The first call imports numba, registers the helpers marked :func:`jitable` and
+        wraps the plain function in ``numba.njit(cache=True)``; the machine code is read
+        from numba's on-disk cache, or compiled and cached. From then on every kernel of
+        the process runs compiled in ``"auto"`` mode.
+
+        Returns
+        -------
+        numba.core.registry.CPUDispatcher
+            The compiled function, called with the same arguments as the plain one.
+        """
         if self._compiled is None:
             with _lock:
                 if self._compiled is None:
@@ -138,7 +151,9 @@ class Kernel:
 
 
 def sized(work):
-    """A :class:`Kernel` decorator with its own measure of work (see ``Kernel``'s ``work``).
+    """Make a :class:`Kernel` decorator with its own measure of work.
+
+    See the ``work`` parameter of :class:`Kernel`.
 
     Parameters
     ----------
@@ -148,7 +163,18 @@ def sized(work):
     Returns
     -------
     callable
-        The decorator.
+        The decorator: it takes the plain function and returns its :class:`Kernel`.
+
+    Examples
+    --------
+    >>> @sized(lambda args: len(args[0]))
+    ... def total(values):
+    ...     return values.sum()
+    >>> total
+    <kernel total>
+    >>> with kernel_mode("python"):  # the plain function, whatever ran before in the process
+    ...     int(total(np.arange(4)))
+    6
     """
     return lambda function: Kernel(function, work)
 
@@ -167,7 +193,13 @@ def _compile_now(kernel: Kernel, args) -> bool:
 
 
 def compiled_in_use() -> bool:
-    """Whether any kernel has been compiled (or read from the cache) in this process."""
+    """Tell whether any kernel has been compiled (or read from the cache) in this process.
+
+    Returns
+    -------
+    bool
+        ``True`` once a kernel's :meth:`Kernel.compiled` has run.
+    """
     return _state["compiled"]
 
 
@@ -179,6 +211,11 @@ def kernel_mode(mode: str):
     ----------
     mode : str
         One of ``"auto"``, ``"python"``, ``"compiled"``.
+
+    Yields
+    ------
+    None
+        Nothing: the block runs in that mode, and the mode before is restored after it.
 
     Raises
     ------

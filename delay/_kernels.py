@@ -15,6 +15,14 @@ Calendar look-ups inside the loops use the flat tables of
 :class:`delay.calendars.CalendarSet`; a look-up outside the tables returns
 :data:`TOO_EARLY` or :data:`TOO_LATE`, and the caller grows the tables on that side and runs
 the pass again.
+
+Examples
+--------
+Links keyed by activity (here their successors 2, 0 and 2), as compressed rows:
+
+>>> ptr, links = compressed_rows(3, np.array([2, 0, 2]))
+>>> ptr.tolist(), links.tolist()
+([0, 1, 1, 3], [1, 0, 2])
 """
 
 from __future__ import annotations
@@ -128,16 +136,50 @@ def order_and_layout(
     b_lag,
     b_link,
 ):
-    """A topological order and the links laid out for the passes, in one sweep; fills the
-    arrays given and returns how many activities were placed (fewer than ``n``: a loop).
+    """Find a topological order and lay the links out for the passes, in one sweep.
 
-    The order is Kahn's with a first-in first-out queue, taking the activities without
+    Fills the arrays given and returns how many activities were placed (fewer than ``n``:
+    the links form a loop). The order is Kahn's with a first-in first-out queue, taking the activities without
     predecessors in input order and each activity's links in input order (``out_ptr``,
     ``out_link``: links by predecessor). Position ``i`` stands for activity ``order[i]``.
     The backward stream lists the links out of each position in turn (``b_ptr[i]:b_ptr[i +
     1]``) with their successor's position, type, lag and link number; the forward stream the links into
     each position (``f_ptr``) with their predecessor's position, type, lag and link number.
     A pass then reads its links front to back and its activities' arrays in order.
+
+    Parameters
+    ----------
+    n : int
+        The number of activities.
+    pred, succ : numpy.ndarray
+        ``int64``, shape ``(m,)``: each link's predecessor and successor (activity numbers).
+    link_type : numpy.ndarray
+        ``int8``, shape ``(m,)``: FS 0, SS 1, FF 2, SF 3.
+    lag : numpy.ndarray
+        ``int64``, shape ``(m,)``: lags in work days.
+    out_ptr : numpy.ndarray
+        ``int64``, shape ``(n + 1,)``, all zero: filled with the row starts of the links by
+        predecessor.
+    out_link : numpy.ndarray
+        Shape ``(m,)``: filled with the link numbers grouped by predecessor.
+    order, rank : numpy.ndarray
+        Shape ``(n,)``: filled with the activity at each position, and each activity's
+        position (``rank`` only when every activity was placed).
+    f_ptr, f_pred, f_type, f_lag, f_link : numpy.ndarray
+        Filled with the forward stream (:class:`delay.network.PassLayout`).
+    b_ptr, b_succ, b_type, b_lag, b_link : numpy.ndarray
+        Filled with the backward stream.
+
+    Returns
+    -------
+    int
+        The number of activities placed: ``n``, or fewer when the links form a loop (the
+        layout is then incomplete).
+
+    References
+    ----------
+    A. B. Kahn, "Topological sorting of large networks", Communications of the ACM 5 (11),
+    1962 (the order).
     """
     m = pred.size
     indegree = np.zeros(n, dtype=np.int64)
@@ -243,7 +285,7 @@ def forward_pass(
     relative_float,
     link_free_float,
 ):
-    """Early dates, activities by topological position (see :func:`order_and_layout`).
+    """Compute early dates, activities by topological position (see :func:`order_and_layout`).
 
     By position ``i`` (activity ``order[i]``): ``status``, ``point_kind`` and ``calendar``
     in, ``early_finish_t`` and ``start_read_t`` out (what successors read). By activity
@@ -256,7 +298,56 @@ def forward_pass(
     in the forward stream's order; ``2**40`` for a link the pass ignores) and lowers each predecessor's
     ``link_free_float`` (by position) to the least slack over its links (predecessor's work
     days); the link's bound is at hand then, so this costs little more than the pass.
-    Returns a status code.
+    Boundaries are work-day indices on each activity's own calendar
+    (:mod:`delay.cpm`, "How time is held").
+
+    Parameters
+    ----------
+    f_ptr, f_pred, f_type, f_lag, f_link : numpy.ndarray
+        The forward stream of :class:`delay.network.PassLayout`.
+    order : numpy.ndarray
+        The activity at each topological position.
+    progress_override : bool
+        Whether links into an activity in progress are ignored (progress override).
+    lag_on_pred : bool
+        Whether a lag counts on the predecessor's calendar (else the successor's).
+    with_floats : bool
+        Whether to write ``relative_float`` and ``link_free_float`` too.
+    status, point_kind, calendar : numpy.ndarray
+        By position: status codes (0 not started, 1 in progress, 2 complete), how the
+        activity is scheduled (0 task, 1 start milestone, 2 finish milestone) and calendar
+        numbers.
+    lower, upper : numpy.ndarray
+        By activity: the earliest and the latest boundary the start of its remaining work
+        may take (the data date, an earliest-start constraint, a what-if's start bound;
+        a fixed constraint and the actual dates of a complete activity pin both).
+    duration : numpy.ndarray
+        By activity: the work days scheduled.
+    start_read_fixed : numpy.ndarray
+        By activity: the boundary of the actual start of one in progress.
+    known_finish : numpy.ndarray
+        By activity: the finish day number of a complete activity, else ``_LOW``.
+    table : numpy.ndarray
+        The packed calendar tables (:meth:`delay.calendars.CalendarSet.table`).
+    early_finish_t, start_read_t : numpy.ndarray
+        By position, written: the early finish boundary and the boundary successors read
+        as the start.
+    early_finish, start_read, remaining_start : numpy.ndarray
+        By activity, written: early finish, start as read, and early start of the
+        remaining work (boundaries).
+    finish_day : numpy.ndarray
+        By activity, written: the finish day number (days since 1970-01-01).
+    relative_float : numpy.ndarray
+        Shape ``(m,)`` with floats (else empty), written in the forward stream's order.
+    link_free_float : numpy.ndarray
+        By position, filled with ``2**40`` by the caller; lowered with floats.
+
+    Returns
+    -------
+    int
+        :data:`OK`, or :data:`TOO_EARLY` / :data:`TOO_LATE` when a calendar look-up fell
+        outside the tables: the caller grows them on that side
+        (:meth:`delay.calendars.CalendarSet.grow`) and runs the pass again.
     """
     n = f_ptr.size - 1
     far = np.int64(1) << 40
@@ -373,7 +464,7 @@ def backward_pass(
     total_float,
     free_float,
 ):
-    """Late dates, total and free float, activities by topological position.
+    """Compute late dates, total and free float, activities by topological position.
 
     By position: ``status``, ``point_kind``, ``calendar``, ``early_finish_t`` and
     ``link_free_float`` (from :func:`forward_pass`) in, ``late_start_t`` and
@@ -382,7 +473,44 @@ def backward_pass(
     ``late_start`` (of remaining work), ``late_finish``, ``total_float`` and ``free_float``
     out. Per calendar: ``end_bound``, the last work day on or before the date the late
     dates run back from, and ``completion_bound``, that of the completion (free float).
-    Returns a status code.
+
+    Parameters
+    ----------
+    b_ptr, b_succ, b_type, b_lag : numpy.ndarray
+        The backward stream of :class:`delay.network.PassLayout`.
+    order : numpy.ndarray
+        The activity at each topological position.
+    progress_override : bool
+        Whether links into an activity in progress are ignored (progress override).
+    lag_on_pred : bool
+        Whether a lag counts on the predecessor's calendar (else the successor's).
+    status, point_kind, calendar : numpy.ndarray
+        By position: status codes, how each activity is scheduled and calendar numbers, as
+        for :func:`forward_pass`.
+    late_upper : numpy.ndarray
+        By activity: a latest-finish boundary (``2**40`` for none).
+    pin_late : numpy.ndarray
+        By activity: a pinned late finish boundary, or ``-2**40`` for none.
+    duration : numpy.ndarray
+        By activity: the work days scheduled.
+    early_finish_t, link_free_float : numpy.ndarray
+        By position, from :func:`forward_pass`.
+    end_bound, completion_bound : numpy.ndarray
+        Per calendar, as above.
+    table : numpy.ndarray
+        The packed calendar tables (:meth:`delay.calendars.CalendarSet.table`).
+    late_start_t, late_finish_t : numpy.ndarray
+        By position, written.
+    late_start, late_finish, total_float, free_float : numpy.ndarray
+        By activity, written: boundaries, and floats in work days of the activity's
+        calendar (free float not below 0).
+
+    Returns
+    -------
+    int
+        :data:`OK`, or :data:`TOO_EARLY` / :data:`TOO_LATE` when a calendar look-up fell
+        outside the tables: the caller grows them on that side
+        (:meth:`delay.calendars.CalendarSet.grow`) and runs the pass again.
     """
     n = b_ptr.size - 1
     unpinned = -(np.int64(1) << 40)
@@ -434,11 +562,29 @@ def backward_pass(
 
 @Kernel
 def mark_upstream(f_ptr, f_pred, f_type, f_link, usable, driving_only, status, relative_float, on):
-    """Marks (``on``, by position) every activity from which a chain of links reaches a
-    marked one: links where ``usable`` (by link number) is true or, with ``driving_only``,
-    driving links a path from the data date can run through (relative float 0, in the
-    forward stream's order; the predecessor not complete, and not reading the actual, past,
-    start of one in progress; ``status`` by position)."""
+    """Mark every activity from which a chain of links reaches a marked one.
+
+    The links followed are those where ``usable`` (by link number) is true or, with
+    ``driving_only``, driving links a path from the data date can run through (relative
+    float 0, in the forward stream's order; the predecessor not complete, and not reading
+    the actual, past, start of one in progress; ``status`` by position). Positions are
+    walked from the last back, so one sweep marks every chain.
+
+    Parameters
+    ----------
+    f_ptr, f_pred, f_type, f_link : numpy.ndarray
+        The forward stream of :class:`delay.network.PassLayout`.
+    usable : numpy.ndarray
+        Boolean by link number: the links to follow (read without ``driving_only``).
+    driving_only : bool
+        Follow the driving links instead of ``usable``.
+    status : numpy.ndarray
+        Status codes by position (read with ``driving_only``).
+    relative_float : numpy.ndarray
+        Relative float in the forward stream's order (read with ``driving_only``).
+    on : numpy.ndarray
+        Boolean by position: the marked activities, marked further in place.
+    """
     for i in range(f_ptr.size - 2, -1, -1):
         if not on[i]:
             continue
@@ -455,8 +601,27 @@ def mark_upstream(f_ptr, f_pred, f_type, f_link, usable, driving_only, status, r
 
 @Kernel
 def compressed_rows(n, keys):
-    """Counting sort of link numbers by key: (ptr, links) with links of key v in
-    links[ptr[v]:ptr[v + 1]], in input order."""
+    """Sort link numbers by key with a counting sort (compressed rows).
+
+    Parameters
+    ----------
+    n : int
+        The number of keys (activities).
+    keys : numpy.ndarray
+        ``int64``, one key in ``0 .. n-1`` per link.
+
+    Returns
+    -------
+    ptr : numpy.ndarray
+        ``int64``, shape ``(n + 1,)``: the links of key ``v`` are ``links[ptr[v]:ptr[v + 1]]``.
+    links : numpy.ndarray
+        ``int64`` link numbers grouped by key, in input order within a key.
+
+    Notes
+    -----
+    The module docstring has an example (doctests do not collect a :class:`Kernel`'s own
+    docstring).
+    """
     ptr = np.zeros(n + 1, dtype=np.int64)
     for e in range(keys.size):
         ptr[keys[e] + 1] += 1
@@ -475,9 +640,33 @@ def compressed_rows(n, keys):
 def link_gaps(
     f_ptr, f_pred, f_type, f_lag, f_link, lag_on_pred, point_kind, start_read, early_finish, calendar, table, gaps
 ):
-    """Per link (by link number), how far the successor's point (``start_read`` or
-    ``early_finish``) lies after the bound the link sets, in the successor's work days;
-    every link counts, whatever the activities' status."""
+    """Measure per link how far the successor's point lies after the bound the link sets.
+
+    The successor's point is its ``start_read`` or its ``early_finish`` (its finish for FF
+    and SF links), in the successor's work days; every link counts, whatever the
+    activities' status.
+
+    Parameters
+    ----------
+    f_ptr, f_pred, f_type, f_lag, f_link : numpy.ndarray
+        The forward stream of :class:`delay.network.PassLayout`.
+    lag_on_pred : bool
+        Whether a lag counts on the predecessor's calendar (else the successor's).
+    point_kind, start_read, early_finish, calendar : numpy.ndarray
+        By position: how each activity is scheduled, its start as read and early finish
+        (boundaries), and its calendar number.
+    table : numpy.ndarray
+        The packed calendar tables (:meth:`delay.calendars.CalendarSet.table`).
+    gaps : numpy.ndarray
+        ``int64``, shape ``(m,)``: written by link number.
+
+    Returns
+    -------
+    int
+        :data:`OK`, or :data:`TOO_EARLY` / :data:`TOO_LATE` when a calendar look-up fell
+        outside the tables: the caller grows them on that side
+        (:meth:`delay.calendars.CalendarSet.grow`) and runs the pass again.
+    """
     n = f_ptr.size - 1
     for i in range(n):
         c = calendar[i]

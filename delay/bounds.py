@@ -39,11 +39,16 @@ _LISTED = 3  # the largest durations and lags named in the problem
 
 
 def driving_chain(model) -> tuple[int, list[int], list[int]]:
-    """The chain of activities and links that finishes furthest, counted in work days.
+    """Find the chain of activities and links that finishes furthest, counted in work days.
+
+    A forward pass in plain work-day counts from 0: each activity starts at the latest
+    point its links set (the strictly latest link drives it), durations are the remaining
+    ones where given, milestones count 0, and calendars, the data date, constraints and
+    actual dates are set aside.
 
     Parameters
     ----------
-    model:
+    model : ScheduleModel
         A :class:`delay.cpm.ScheduleModel` (its network, durations and remaining
         durations are read; calendars, the data date and actual dates are not).
 
@@ -56,7 +61,17 @@ def driving_chain(model) -> tuple[int, list[int], list[int]]:
     Examples
     --------
     A chain A -> B -> C of 5, 10 and 2 work days with a 3-day lag on B -> C finishes C
-    at 5 + 10 + 3 + 2 = 20: the far end is C and its chain runs through both links.
+    at 5 + 10 + 3 + 2 = 20: the far end is C and its chain runs through both links. The
+    function reads only the model's network, durations, remaining durations and kinds:
+
+    >>> from types import SimpleNamespace
+    >>> from delay.network import build_network
+    >>> network = build_network(np.array(["A", "B", "C"], dtype=object), [0, 1], [1, 2], [0, 0], [0, 3])
+    >>> model = SimpleNamespace(
+    ...     network=network, duration=np.array([5, 10, 2]), remaining=np.full(3, np.nan), kind=np.zeros(3)
+    ... )
+    >>> driving_chain(model)
+    (2, [0, 1, 2], [0, 1])
     """
     net = model.network
     n = net.size
@@ -95,13 +110,13 @@ def _largest(values: list[tuple[int, str]], unit: str) -> str:
 
 
 def runaway_error(model, earlier: bool) -> DateBoundError:
-    """The problem of a schedule whose dates would leave 1900-01-01 .. 2200-12-31.
+    """Describe the problem of a schedule whose dates would leave 1900-01-01 .. 2200-12-31.
 
     Parameters
     ----------
-    model:
+    model : ScheduleModel
         The :class:`delay.cpm.ScheduleModel` being scheduled.
-    earlier:
+    earlier : bool
         ``True`` when a date would fall before 1900-01-01 (late dates behind a constraint),
         ``False`` when after 2200-12-31.
 
@@ -109,7 +124,8 @@ def runaway_error(model, earlier: bool) -> DateBoundError:
     -------
     DateBoundError
         One problem naming the snapshot, the activity at the far end of the driving chain
-        and the chain's largest durations and lags.
+        (:func:`driving_chain`), the chain's three largest durations and lags (work days)
+        and what to check; the caller raises it.
     """
     net = model.network
     far, chain, links = driving_chain(model)
@@ -145,7 +161,17 @@ def runaway_error(model, earlier: bool) -> DateBoundError:
 
 
 def grow_within_bounds(model, calendars, earlier: bool) -> None:
-    """Grow ``calendars`` for a pass over ``model``; past the bounds, :func:`runaway_error`.
+    """Grow ``calendars`` for a pass over ``model``, or raise :func:`runaway_error` at a bound.
+
+    Parameters
+    ----------
+    model : ScheduleModel
+        The model being scheduled (named in the error).
+    calendars : CalendarSet
+        The calendar set whose horizon is too short for the pass.
+    earlier : bool
+        ``True`` to grow the horizon backwards (a date before its first), ``False``
+        forwards.
 
     Raises
     ------
@@ -161,6 +187,13 @@ def grow_within_bounds(model, calendars, earlier: bool) -> None:
 def check_finish_days(model, finish_day: np.ndarray) -> None:
     """Raise :func:`runaway_error` when an early finish falls after 2200-12-31.
 
+    Parameters
+    ----------
+    model : ScheduleModel
+        The model scheduled (named in the error).
+    finish_day : numpy.ndarray
+        The forward pass's finish day numbers (days since 1970-01-01).
+
     Raises
     ------
     DateBoundError
@@ -171,13 +204,22 @@ def check_finish_days(model, finish_day: np.ndarray) -> None:
 
 
 def check_late_days(model, calendars, late_start: np.ndarray) -> None:
-    """Raise :func:`runaway_error` when a late date of the backward pass falls before
-    1900-01-01.
+    """Raise :func:`runaway_error` when a late date of the backward pass falls before 1900-01-01.
 
     The earliest late boundary is turned into a date on every calendar of the set (a
     calendar's dates rise with its boundaries, so no activity's late date is earlier than
     that one on its own calendar); only when one of them falls before the bound are the
     activities' own calendars looked at. A few look-ups per run beside the passes.
+
+    Parameters
+    ----------
+    model : ScheduleModel
+        The model scheduled (its activities' calendars are read).
+    calendars : CalendarSet
+        The calendar set of the passes.
+    late_start : numpy.ndarray
+        The backward pass's late start boundaries (work-day indices on each activity's
+        calendar).
 
     Raises
     ------

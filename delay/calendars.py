@@ -40,9 +40,31 @@ HORIZON_LAST_DAY = int(np.datetime64(LAST_DATE, "D").astype(np.int64)) + 366
 
 
 def parse_workdays(text: str) -> tuple[bool, ...]:
-    """Weekday mask Mon..Sun from ``"Mon Tue Wed Thu Fri"``.
+    """Read a weekday list such as ``"Mon Tue Wed Thu Fri"`` as a mask, Monday first.
 
-    Raises ``ValueError`` naming an unknown token.
+    Tokens are separated by spaces or commas and read in any letter case.
+
+    Parameters
+    ----------
+    text : str
+        The working weekdays, by their three-letter English names.
+
+    Returns
+    -------
+    tuple of bool
+        Seven flags, Monday to Sunday: which weekdays are worked.
+
+    Raises
+    ------
+    ValueError
+        Naming an unknown token.
+
+    Examples
+    --------
+    >>> parse_workdays("Mon Tue Wed Thu Fri")
+    (True, True, True, True, True, False, False)
+    >>> parse_workdays("mon,sat")
+    (True, False, False, False, False, True, False)
     """
     mask = [False] * 7
     for token in str(text).replace(",", " ").split():
@@ -86,23 +108,28 @@ class WorkCalendar:
 
     Parameters
     ----------
-    name:
+    name : str
         The calendar's name.
-    weekmask:
+    weekmask : iterable of bool
         Seven booleans, Monday first: which weekdays are worked.
-    holidays:
+    holidays : iterable of date-like, optional
         Dates that are not worked although their weekday is.
-    extra_workdays:
+    extra_workdays : iterable of date-like, optional
         Dates that are worked although their weekday is not.
-    anchor:
-        The date from which indices count (index 0 is the first work day on or after it).
-    start, end:
-        The initial horizon (inclusive). It grows by itself when needed.
+    anchor : date-like, optional
+        The date from which indices count (index 0 is the first work day on or after it);
+        by default ``start``, else 2000-01-03.
+    start : date-like, optional
+        The first day of the initial horizon (inclusive); by default a year before the
+        anchor. It grows by itself when needed.
+    end : date-like, optional
+        The last day of the initial horizon (inclusive); by default three years after the
+        anchor.
 
     Raises
     ------
     ValueError
-        When the calendar has no work day at all.
+        When the weekmask does not have seven days, or the calendar has no work day at all.
 
     Examples
     --------
@@ -142,7 +169,35 @@ class WorkCalendar:
     def from_weekdays(
         cls, name, workdays="Mon Tue Wed Thu Fri", holidays=(), extra_workdays=(), start=None, end=None, anchor=None
     ) -> WorkCalendar:
-        """A calendar from a weekday list such as ``"Mon Tue Wed Thu Fri"``."""
+        """Make a calendar from a weekday list such as ``"Mon Tue Wed Thu Fri"``.
+
+        Parameters
+        ----------
+        name : str
+            The calendar's name.
+        workdays : str, default "Mon Tue Wed Thu Fri"
+            The working weekdays (:func:`parse_workdays`).
+        holidays : iterable of date-like, optional
+            Dates that are not worked although their weekday is.
+        extra_workdays : iterable of date-like, optional
+            Dates that are worked although their weekday is not.
+        start : date-like, optional
+            The first day of the initial horizon, and the anchor when none is given.
+        end : date-like, optional
+            The last day of the initial horizon.
+        anchor : date-like, optional
+            The date from which indices count.
+
+        Returns
+        -------
+        WorkCalendar
+            The calendar.
+
+        Raises
+        ------
+        ValueError
+            For an unknown weekday, or a calendar with no work day.
+        """
         return cls(
             name,
             parse_workdays(workdays),
@@ -190,51 +245,231 @@ class WorkCalendar:
 
     # -- conversions -----------------------------------------------------------------------
     def start_index_days(self, days: np.ndarray) -> np.ndarray:
-        """Index of the first work day on or after each day number."""
+        """Give the index of the first work day on or after each day number.
+
+        Parameters
+        ----------
+        days : array_like of int
+            Day numbers (days since 1970-01-01).
+
+        Returns
+        -------
+        numpy.ndarray
+            ``int64`` work-day indices, the shape of ``days``.
+
+        Raises
+        ------
+        DateBoundError
+            When a day lies more than a year beyond 1900-01-01 .. 2200-12-31, past what the
+            horizon may grow to.
+
+        Examples
+        --------
+        >>> cal = WorkCalendar.from_weekdays("5d", anchor="2025-01-06")
+        >>> cal.start_index_days(to_days(["2025-01-06", "2025-01-11"])).tolist()  # Monday, Saturday
+        [0, 5]
+        """
         days = np.asarray(days, dtype=np.int64)
         if days.size:
             self._grow_days(int(days.min()) - 7, int(days.max()) + 7)
         return self._before[days - self.first_day] - self._anchor_before
 
     def finish_index_days(self, days: np.ndarray) -> np.ndarray:
-        """Index of the last work day on or before each day number."""
+        """Give the index of the last work day on or before each day number.
+
+        Parameters
+        ----------
+        days : array_like of int
+            Day numbers (days since 1970-01-01).
+
+        Returns
+        -------
+        numpy.ndarray
+            ``int64`` work-day indices, the shape of ``days``.
+
+        Raises
+        ------
+        DateBoundError
+            When a day lies more than a year beyond 1900-01-01 .. 2200-12-31, past what the
+            horizon may grow to.
+
+        Examples
+        --------
+        >>> cal = WorkCalendar.from_weekdays("5d", anchor="2025-01-06")
+        >>> cal.finish_index_days(to_days(["2025-01-06", "2025-01-11"])).tolist()  # Monday, Saturday
+        [0, 4]
+        """
         days = np.asarray(days, dtype=np.int64)
         if days.size:
             self._grow_days(int(days.min()) - 7, int(days.max()) + 7)
         return self._before[days - self.first_day + 1] - self._anchor_before - 1
 
     def day_of(self, indices: np.ndarray) -> np.ndarray:
-        """Day number of each work-day index."""
+        """Give the day number of each work-day index.
+
+        Parameters
+        ----------
+        indices : array_like of int
+            Work-day indices of this calendar.
+
+        Returns
+        -------
+        numpy.ndarray
+            ``int64`` day numbers (days since 1970-01-01), the shape of ``indices``.
+
+        Raises
+        ------
+        DateBoundError
+            When an index lies beyond what the horizon may grow to.
+        ValueError
+            When the calendar has no work day that early or that late (one with extra work
+            days only).
+        """
         indices = np.asarray(indices, dtype=np.int64)
         if indices.size:
             self._grow_indices(int(indices.min()), int(indices.max()))
         return self._work_days[indices + self._anchor_before]
 
     def start_index(self, dates) -> np.ndarray:
-        """Work-day index (``int32``) of the first work day on or after each date."""
+        """Give the work-day index of the first work day on or after each date (a start rolls forward).
+
+        Parameters
+        ----------
+        dates : date-like or array_like of date-like
+            ``datetime64[D]`` values, ``datetime.date`` objects or ISO strings.
+
+        Returns
+        -------
+        numpy.ndarray
+            ``int32`` work-day indices.
+
+        Raises
+        ------
+        DateBoundError
+            When a day lies more than a year beyond 1900-01-01 .. 2200-12-31, past what the
+            horizon may grow to.
+
+        Examples
+        --------
+        >>> cal = WorkCalendar.from_weekdays("5d", anchor="2025-01-06")
+        >>> cal.start_index(["2025-01-10", "2025-01-11"]).tolist()  # Friday, Saturday
+        [4, 5]
+        """
         return self.start_index_days(to_days(dates)).astype(np.int32)
 
     def finish_index(self, dates) -> np.ndarray:
-        """Work-day index (``int32``) of the last work day on or before each date."""
+        """Give the work-day index of the last work day on or before each date (a finish rolls back).
+
+        Parameters
+        ----------
+        dates : date-like or array_like of date-like
+            ``datetime64[D]`` values, ``datetime.date`` objects or ISO strings.
+
+        Returns
+        -------
+        numpy.ndarray
+            ``int32`` work-day indices.
+
+        Raises
+        ------
+        DateBoundError
+            When a day lies more than a year beyond 1900-01-01 .. 2200-12-31, past what the
+            horizon may grow to.
+
+        Examples
+        --------
+        >>> cal = WorkCalendar.from_weekdays("5d", anchor="2025-01-06")
+        >>> cal.finish_index(["2025-01-10", "2025-01-11"]).tolist()  # Friday, Saturday
+        [4, 4]
+        """
         return self.finish_index_days(to_days(dates)).astype(np.int32)
 
     def date_of(self, indices) -> np.ndarray:
-        """``datetime64[D]`` date of each work-day index."""
+        """Give the date of each work-day index.
+
+        Parameters
+        ----------
+        indices : array_like of int
+            Work-day indices of this calendar.
+
+        Returns
+        -------
+        numpy.ndarray
+            ``datetime64[D]`` dates.
+
+        Raises
+        ------
+        DateBoundError
+            When an index lies beyond what the horizon may grow to.
+
+        Examples
+        --------
+        >>> cal = WorkCalendar.from_weekdays("5d", anchor="2025-01-06", holidays=["2025-01-08"])
+        >>> cal.date_of([0, 1, 2]).astype(str).tolist()  # Wednesday is a holiday
+        ['2025-01-06', '2025-01-07', '2025-01-09']
+        """
         return to_dates(self.day_of(indices))
 
     def count(self, start_dates, end_dates) -> np.ndarray:
-        """Work days in ``[start, end)``: the difference of the two dates' start indices.
+        """Count the work days in ``[start, end)``: the difference of the two dates' start indices.
 
         For ``end < start`` the result is ``-count(end, start)``. (numpy's ``busday_count``
         counts ``(end, start]`` for reversed arguments since numpy 1.25, which can differ by
         one day; the difference of indices is what the engine's arithmetic needs.)
+
+        Parameters
+        ----------
+        start_dates : date-like or array_like of date-like
+            The first dates, included.
+        end_dates : date-like or array_like of date-like
+            The end dates, excluded (broadcast with ``start_dates``).
+
+        Returns
+        -------
+        numpy.ndarray
+            ``int32`` work-day counts.
+
+        Raises
+        ------
+        DateBoundError
+            When a date lies more than a year beyond 1900-01-01 .. 2200-12-31.
+
+        Examples
+        --------
+        >>> cal = WorkCalendar.from_weekdays("5d", anchor="2025-01-06", holidays=["2025-01-08"])
+        >>> cal.count(["2025-01-06"], ["2025-01-13"]).tolist(), cal.count(["2025-01-13"], ["2025-01-06"]).tolist()
+        ([4], [-4])
+        >>> int(np.busday_count("2025-01-06", "2025-01-13", holidays=["2025-01-08"]))  # numpy agrees
+        4
         """
         return (self.start_index_days(to_days(end_dates)) - self.start_index_days(to_days(start_dates))).astype(
             np.int32
         )
 
     def is_workday(self, dates) -> np.ndarray:
-        """Whether each date is a work day."""
+        """Tell whether each date is a work day.
+
+        Parameters
+        ----------
+        dates : date-like or array_like of date-like
+            ``datetime64[D]`` values, ``datetime.date`` objects or ISO strings.
+
+        Returns
+        -------
+        numpy.ndarray
+            Boolean, one per date.
+
+        Raises
+        ------
+        DateBoundError
+            When a date lies more than a year beyond 1900-01-01 .. 2200-12-31.
+
+        Examples
+        --------
+        >>> cal = WorkCalendar.from_weekdays("5d", anchor="2025-01-06", holidays=["2025-01-08"])
+        >>> cal.is_workday(["2025-01-07", "2025-01-08", "2025-01-11"]).tolist()
+        [True, False, False]
+        """
         days = to_days(dates)
         if days.size:
             self._grow_days(int(np.min(days)), int(np.max(days)))
@@ -251,7 +486,33 @@ class CalendarSet:
     ``names`` gives each calendar's number (its position). Every lookup takes an array of
     calendar numbers beside the array of day numbers or indices (broadcast together), so one
     call converts a whole array whose elements sit on different calendars. The tables are
-    flat: calendar ``c``'s entries follow calendar ``c - 1``'s.
+    flat: calendar ``c``'s entries follow calendar ``c - 1``'s. Building the set widens every
+    calendar to the horizon they cover together.
+
+    Parameters
+    ----------
+    calendars : Mapping of str to WorkCalendar
+        The calendars by name; their order gives their numbers.
+    held : Mapping of int to tuple of (int, tuple of int), optional
+        For calendars derived by holding work (:meth:`with_held_days`): calendar number to
+        ``(base calendar number, held day numbers)``.
+
+    Raises
+    ------
+    ValueError
+        When ``calendars`` is empty.
+
+    Examples
+    --------
+    >>> five = WorkCalendar.from_weekdays("5d", anchor="2025-01-06")
+    >>> seven = WorkCalendar.from_weekdays("7d", "Mon Tue Wed Thu Fri Sat Sun", anchor="2025-01-06")
+    >>> calendars = CalendarSet({"5d": five, "7d": seven})
+    >>> calendars.number, len(calendars)
+    ({'5d': 0, '7d': 1}, 2)
+    >>> calendars.start_index_days([0, 1], to_days(["2025-01-11", "2025-01-11"])).tolist()  # a Saturday
+    [5, 5]
+    >>> calendars.finish_index_days([0, 1], to_days(["2025-01-11", "2025-01-11"])).tolist()
+    [4, 5]
     """
 
     def __init__(
@@ -295,17 +556,39 @@ class CalendarSet:
         self._cover(*_widened(self.first_day, self.last_day, low_day, high_day))
 
     def grow(self, earlier: bool) -> None:
-        """Widen the horizon fourfold on one side (the compiled passes ask for it when a
-        look-up falls outside the tables)."""
+        """Widen the horizon on one side by three times its span.
+
+        The compiled passes ask for it when a look-up falls outside the tables; the lookup
+        tables (:meth:`table`) are built again.
+
+        Parameters
+        ----------
+        earlier : bool
+            ``True`` to widen it backwards, ``False`` forwards.
+
+        Raises
+        ------
+        DateBoundError
+            When the horizon is already at its bound on that side (a year beyond
+            1900-01-01 or 2200-12-31).
+        """
         span = 3 * (self.last_day - self.first_day + 1)
         self._cover(*_further(self.first_day, self.last_day, span, earlier, not earlier))
 
     def table(self) -> np.ndarray:
-        """The lookup tables as the compiled passes take them: one ``int64`` array (a kernel
-        handed several arrays pays reference counting on each look-up). Layout: ``[count,
-        stride, first_day]``, then per calendar ``[anchor_before, before_at, work_at,
-        work_count]``, then every calendar's ``before`` table (``stride`` entries each), then
-        every calendar's work days. See :mod:`delay._kernels` for the look-ups."""
+        """Give the lookup tables as the compiled passes take them, in one ``int64`` array.
+
+        One array, because a kernel handed several arrays pays reference counting on each
+        look-up. Layout: ``[count, stride, first_day]``, then per calendar
+        ``[anchor_before, before_at, work_at, work_count]``, then every calendar's
+        ``before`` table (``stride`` entries each), then every calendar's work days. See
+        :mod:`delay._kernels` for the look-ups.
+
+        Returns
+        -------
+        numpy.ndarray
+            The packed table, read-only; built once and again after the horizon grows.
+        """
         if self._table is None:
             count = len(self.calendars)
             head = 3 + 4 * count
@@ -324,8 +607,19 @@ class CalendarSet:
         return self._table
 
     def base_of(self, number: int) -> tuple[int, tuple[int, ...]]:
-        """``(base calendar number, held day numbers)`` of calendar ``number``: the calendar
-        itself and no held days unless it was derived by :meth:`with_held_days`."""
+        """Give the calendar a calendar was derived from, and the days held on it.
+
+        Parameters
+        ----------
+        number : int
+            A calendar number of this set.
+
+        Returns
+        -------
+        tuple of (int, tuple of int)
+            ``(base calendar number, held day numbers)``: the calendar itself and no held
+            days unless it was derived by :meth:`with_held_days`.
+        """
         return self.held.get(int(number), (int(number), ()))
 
     def with_held_days(self, requests: Sequence[tuple[int, Iterable[int]]]) -> tuple[CalendarSet, list[int]]:
@@ -340,7 +634,7 @@ class CalendarSet:
 
         Parameters
         ----------
-        requests:
+        requests : sequence of tuple of (int, iterable of int)
             ``(calendar number, day numbers to take out of it)`` pairs, one per activity
             held.
 
@@ -391,7 +685,26 @@ class CalendarSet:
         return found, [known.get(spec, spec[0]) if spec[1] else spec[0] for spec in specs]
 
     def start_index_days(self, which, days) -> np.ndarray:
-        """Per element: index of the first work day on or after the day, on calendar ``which``."""
+        """Give, per element, the index of the first work day on or after the day, on calendar ``which``.
+
+        Parameters
+        ----------
+        which : array_like of int
+            Calendar numbers.
+        days : array_like of int
+            Day numbers (days since 1970-01-01), broadcast with ``which``.
+
+        Returns
+        -------
+        numpy.ndarray
+            ``int64`` work-day indices, each on its own calendar.
+
+        Raises
+        ------
+        DateBoundError
+            When a day lies more than a year beyond 1900-01-01 .. 2200-12-31, past what the
+            horizon may grow to.
+        """
         days = np.asarray(days, dtype=np.int64)
         if days.size and (days.min() < self.first_day + 7 or days.max() > self.last_day - 7):
             self._grow(int(days.min()) - 7, int(days.max()) + 7)
@@ -399,11 +712,59 @@ class CalendarSet:
         return self._before[which * self._stride + (days - self.first_day)] - self._anchor_before[which]
 
     def finish_index_days(self, which, days) -> np.ndarray:
-        """Per element: index of the last work day on or before the day."""
+        """Give, per element, the index of the last work day on or before the day, on calendar ``which``.
+
+        Parameters
+        ----------
+        which : array_like of int
+            Calendar numbers.
+        days : array_like of int
+            Day numbers (days since 1970-01-01), broadcast with ``which``.
+
+        Returns
+        -------
+        numpy.ndarray
+            ``int64`` work-day indices, each on its own calendar.
+
+        Raises
+        ------
+        DateBoundError
+            When a day lies more than a year beyond 1900-01-01 .. 2200-12-31, past what the
+            horizon may grow to.
+        """
         return self.start_index_days(which, np.asarray(days, dtype=np.int64) + 1) - 1
 
     def day_of(self, which, indices) -> np.ndarray:
-        """Per element: day number of work-day index on calendar ``which``."""
+        """Give, per element, the day number of a work-day index on calendar ``which``.
+
+        Parameters
+        ----------
+        which : array_like of int
+            Calendar numbers.
+        indices : array_like of int
+            Work-day indices, broadcast with ``which``.
+
+        Returns
+        -------
+        numpy.ndarray
+            ``int64`` day numbers (days since 1970-01-01).
+
+        Raises
+        ------
+        DateBoundError
+            When an index lies beyond what the horizon may grow to.
+        ValueError
+            When an index lies beyond every calendar's work days after the horizon has
+            grown 64 times.
+
+        Examples
+        --------
+        >>> five = WorkCalendar.from_weekdays("5d", anchor="2025-01-06")
+        >>> seven = WorkCalendar.from_weekdays("7d", "Mon Tue Wed Thu Fri Sat Sun", anchor="2025-01-06")
+        >>> days = CalendarSet({"5d": five, "7d": seven}).day_of([0, 1], [5, 5])
+        >>> to_dates(days).astype(str).tolist()  # the sixth work day from Monday 2025-01-06
+        ['2025-01-13', '2025-01-11']
+        """
         which = np.asarray(which, dtype=np.int64)
         indices = np.asarray(indices, dtype=np.int64)
         for _ in range(64):
@@ -435,19 +796,35 @@ def _ranges(days: tuple[int, ...]) -> str:
 
 
 def build_calendars(case, anchor=None) -> dict[str, WorkCalendar]:
-    """Every calendar of a case, with its exceptions.
+    """Build every calendar of a case, with its exceptions.
+
+    A row of calendar_exceptions.csv with ``working`` false is a holiday of its calendar,
+    one with ``working`` true an extra work day.
 
     Parameters
     ----------
-    case:
+    case : Case
         A :class:`delay.model.Case`.
-    anchor:
+    anchor : date-like, optional
         Index anchor date; default the contract start.
 
     Returns
     -------
-    dict
+    dict of str to WorkCalendar
         Calendar name to :class:`WorkCalendar`, in calendars.csv order.
+
+    Raises
+    ------
+    ValueError
+        For a calendar with no work day (the case loader has refused one already).
+
+    Examples
+    --------
+    >>> calendars = build_calendars(demo)
+    >>> list(calendars)
+    ['site5', 'cure7']
+    >>> calendars["site5"]
+    WorkCalendar('site5', 'Mon Tue Wed Thu Fri', holidays=41)
     """
     anchor = anchor if anchor is not None else case.settings.project.contract_start
     calendars = case.calendars

@@ -225,10 +225,16 @@ _EXCUSING = {"employer", "neutral"}
 class Causation:
     """One method's causation table.
 
-    Attributes
+    Made by :func:`causation` (or the function of each method). The properties
+    ``excusable_days``, ``culpable_delay_days`` and ``acceleration_days`` give the
+    table's :func:`class_totals`.
+
+    Parameters
     ----------
-    method: ``windows``, ``impacted``, ``tia`` or ``collapsed``.
-    table: one row per charge, event, residual or party, columns :data:`CAUSATION_COLUMNS`:
+    method : str
+        ``windows``, ``impacted``, ``tia`` or ``collapsed``.
+    table : pandas.DataFrame
+        One row per charge, event, residual or party, columns :data:`CAUSATION_COLUMNS`:
         ``step`` (the window and source, or the insertion), ``window`` (windows only),
         ``snapshot`` (the programme), ``event`` (event ids, ``;`` separated; blank when
         none), ``party`` (the row's own party, ``concurrent``, ``unexplained``, or
@@ -246,11 +252,23 @@ class Causation:
         were split, ``mixed`` when its days fall in several classes, ``no delay``),
         ``arose_on`` (the date the delay arose: a window's last day, an event's start; it
         prices prolongation).
-    explained_days: the delay the table explains (see Reconciliation above).
-    explains: what that delay is, in words.
-    planned_completion: the planned (baseline) completion the method measures from.
-    concurrency: the rule applied.
-    notes: statements that go with the figures.
+    explained_days : int
+        The delay the table explains, in calendar days (see "Reconciliation" in the module
+        docstring).
+    explains : str
+        What that delay is, in words.
+    planned_completion : datetime.date
+        The planned (baseline) completion the method measures from.
+    concurrency : str
+        The rule applied: ``time_not_money`` or ``apportion``.
+    notes : tuple of str, optional
+        Statements that go with the figures.
+
+    Examples
+    --------
+    >>> found = causation(demo, "impacted")
+    >>> found.explained_days, found.planned_completion, found.excusable_days
+    (44, datetime.date(2026, 5, 19), 34)
     """
 
     method: str
@@ -262,7 +280,30 @@ class Causation:
     notes: tuple[str, ...] = ()
 
     def total(self, column: str) -> int:
-        """The sum of one day column of the table."""
+        """Sum one day column of the table.
+
+        Parameters
+        ----------
+        column : str
+            A column of whole days: ``days``, ``excusable_days``, ``compensable_days``,
+            ``culpable_days`` or ``concurrent_days``.
+
+        Returns
+        -------
+        int
+            The sum; 0 for an empty table.
+
+        Raises
+        ------
+        KeyError
+            For a column the table does not have.
+
+        Examples
+        --------
+        >>> found = causation(demo, "impacted")
+        >>> found.total("days") == found.explained_days
+        True
+        """
         return int(self.table[column].sum()) if len(self.table) else 0
 
     @property
@@ -282,8 +323,21 @@ class Causation:
 
 
 def class_totals(table: pd.DataFrame) -> dict[str, int]:
-    """``excusable_days``, ``compensable_days``, ``culpable_delay_days`` and
-    ``acceleration_days`` of a causation table (see "Classes over a table").
+    """Total the classes of a causation table (see "Classes over a table" in the module docstring).
+
+    Parameters
+    ----------
+    table : pandas.DataFrame
+        A causation table, or any table with ``excusable_days``, ``compensable_days`` and
+        ``culpable_days``.
+
+    Returns
+    -------
+    dict of str to int
+        ``excusable_days`` (the sum, net of gains), ``compensable_days`` (the sum, not
+        below 0), ``culpable_delay_days`` (the contractor's net days when positive, else 0)
+        and ``acceleration_days`` (its net gain when positive, else 0); all 0 for an empty
+        table.
 
     Examples
     --------
@@ -314,28 +368,38 @@ def largest_remainder(total: int, weights: Sequence) -> list[int]:
 
     Parameters
     ----------
-    total: whole days to split.
-    weights: non-negative numbers, one per cause, earliest cause first.
+    total : int
+        Whole days to split.
+    weights : sequence of numbers
+        Non-negative numbers (ints, floats or fractions), one per cause, earliest cause
+        first.
 
     Returns
     -------
-    list of int, one per weight, summing to ``total``.
+    list of int
+        One share per weight, summing to ``total``.
 
     Raises
     ------
-    ValueError: a negative weight, or no weights for days other than zero.
-
-    Example
-    -------
-    >>> largest_remainder(7, [7, 7])
-    [4, 3]
-    >>> largest_remainder(4, [7, 4])
-    [3, 1]
+    ValueError
+        A negative weight, or no weights for days other than zero.
 
     References
     ----------
     The largest remainder (Hamilton) method of apportionment; M. L. Balinski and H. P. Young,
     *Fair Representation* (1982), chapter 2 (as recalled).
+
+    Examples
+    --------
+    Seven days split 1:1 give the extra day to the earlier cause; 4 days at 7:4 have
+    quotas 2.55 and 1.45, so the left-over day goes to the larger remainder:
+
+    >>> largest_remainder(7, [7, 7])
+    [4, 3]
+    >>> largest_remainder(4, [7, 4])
+    [3, 1]
+    >>> largest_remainder(-3, [1, 2])  # a gain, split as its size
+    [-1, -2]
     """
     count = len(weights)
     if count == 0:
@@ -364,20 +428,41 @@ def classify_days(causes: Sequence[tuple[str, object]], days: int, concurrency: 
 
     Parameters
     ----------
-    causes: ``(party, weight)`` pairs, earliest cause first; the weight (an impact alone)
-        is used only to apportion. At least one.
-    days: whole days (negative for a gain).
-    concurrency: ``time_not_money`` or ``apportion``.
+    causes : sequence of tuple of (str, number)
+        ``(party, weight)`` pairs, earliest cause first; the weight (an impact alone) is
+        used only to apportion. At least one; parties among ``employer``, ``contractor``,
+        ``neutral``.
+    days : int
+        Whole days (negative for a gain).
+    concurrency : str
+        ``time_not_money`` or ``apportion``.
 
     Returns
     -------
-    dict with ``excusable``, ``compensable``, ``culpable`` (excusable + culpable = days),
-    ``concurrent`` (the days when the causes are of more than one party, else 0) and
-    ``apportioned`` (whether the days were split).
+    dict
+        ``excusable``, ``compensable``, ``culpable`` (excusable + culpable = days),
+        ``concurrent`` (the days when the causes are of more than one party, else 0) and
+        ``apportioned`` (whether the days were split, by :func:`largest_remainder`).
 
     Raises
     ------
-    ValueError: an unknown concurrency rule or party, or no causes.
+    ValueError
+        An unknown concurrency rule or party, or no causes.
+
+    References
+    ----------
+    SCL Delay and Disruption Protocol, 2nd edition (2017), core principles 9 and 10; AACE
+    RP 29R-03 (2011), section 4.1 (both as recalled).
+
+    Examples
+    --------
+    Four days caused by the employer and the contractor together are excusable but not
+    compensable under "time but not money", and split 3:5 under apportionment:
+
+    >>> classify_days([("employer", 3), ("contractor", 5)], 4, "time_not_money")
+    {'excusable': 4, 'compensable': 0, 'culpable': 0, 'concurrent': 4, 'apportioned': False}
+    >>> classify_days([("employer", 3), ("contractor", 5)], 4, "apportion")
+    {'excusable': 2, 'compensable': 2, 'culpable': 2, 'concurrent': 4, 'apportioned': True}
     """
     if concurrency not in CONCURRENCY_RULES:
         raise ValueError(f"unknown concurrency rule '{concurrency}'")
@@ -446,7 +531,28 @@ def _row(method: str, step: str, days: int, split: dict, **values) -> dict:
 
 
 def causation_frame(rows: list[dict]) -> pd.DataFrame:
-    """A causation table (columns :data:`CAUSATION_COLUMNS`, typed) from row dicts."""
+    """Build a causation table from row dicts, its columns typed.
+
+    Day columns become ``int64``; ``window``, ``alone_days`` and ``work_days`` nullable
+    integers; ``arose_on`` ``datetime64[s]``; the text columns text, ``""`` for blank.
+
+    Parameters
+    ----------
+    rows : list of dict
+        One dict per row, keyed by the columns of :data:`CAUSATION_COLUMNS` (a missing key
+        is blank).
+
+    Returns
+    -------
+    pandas.DataFrame
+        Columns :data:`CAUSATION_COLUMNS`, in order.
+
+    Examples
+    --------
+    >>> table = causation_frame([])
+    >>> list(table.columns) == CAUSATION_COLUMNS, str(table["days"].dtype)
+    (True, 'int64')
+    """
     frame = pd.DataFrame(rows, columns=CAUSATION_COLUMNS)
     for column in ("days", "concurrent_days", "excusable_days", "compensable_days", "culpable_days"):
         frame[column] = frame[column].astype(np.int64) if len(frame) else pd.Series([], dtype=np.int64)
@@ -491,9 +597,29 @@ def reconcile(table: pd.DataFrame, explained_days: int, where: str) -> None:
     ``explained_days``, and so must excusable + culpable delay - acceleration days
     (:func:`class_totals`).
 
+    Parameters
+    ----------
+    table : pandas.DataFrame
+        A causation table.
+    explained_days : int
+        The delay it explains, in calendar days.
+    where : str
+        What the table is, for the error (``causation of the windows analysis``).
+
     Raises
     ------
-    ReconciliationError: naming ``where`` and the figures that disagree.
+    ReconciliationError
+        Naming ``where`` (and the row's step for a row that does not split) and the
+        figures that disagree.
+
+    Examples
+    --------
+    >>> table = causation(demo, "impacted").table
+    >>> reconcile(table, 44, "the impacted as-planned")
+    >>> reconcile(table, 45, "the impacted as-planned")
+    Traceback (most recent call last):
+    ...
+    delay.errors.ReconciliationError: the impacted as-planned: the figures do not reconcile (classified days = 44, ...)
     """
     if not len(table):
         if explained_days:
@@ -627,7 +753,7 @@ def _windows_rows(windows, rule: str) -> list[dict]:
 
 
 def windows_causation(case: Case, result, concurrency: str | None = None, section: str | None = None) -> Causation:
-    """The causation table of a windows analysis (:class:`delay.methods.windows.WindowsResult`).
+    """Build the causation table of a windows analysis (:class:`delay.methods.windows.WindowsResult`).
 
     See the module docstring, "How each method's result becomes causation rows". Rows are
     in window order; in each window the counted progress charges in path order, then the
@@ -637,13 +763,34 @@ def windows_causation(case: Case, result, concurrency: str | None = None, sectio
 
     Parameters
     ----------
-    section: a section of sections.csv: the table of its own trace to its completion
-        milestone (default: the whole works).
+    case : Case
+        The loaded case.
+    result : WindowsResult
+        The windows analysis (:func:`delay.methods.windows.analyse`).
+    concurrency : str, optional
+        Overrides the case's ``[analysis] concurrency``.
+    section : str, optional
+        A section of sections.csv: the table of its own trace to its completion milestone
+        (default: the whole works).
+
+    Returns
+    -------
+    Causation
+        The table, explaining the total movement of completion over the windows.
 
     Raises
     ------
-    ReconciliationError: when the classified days do not sum to the total movement.
-    KeyError: a section the result has no trace for.
+    CaseError
+        An unknown concurrency rule.
+    ReconciliationError
+        When the classified days do not sum to the total movement.
+    KeyError
+        A section the result has no trace for.
+
+    References
+    ----------
+    AACE RP 29R-03 (2011), MIP 3.3 and 3.4; SCL Delay and Disruption Protocol, 2nd edition
+    (2017), Part B, windows analysis (both as recalled).
     """
     rule = _concurrency_of(case, concurrency)
     windows = result.windows if section is None else result.sections[section]
@@ -678,15 +825,25 @@ def sequence_rows(events: pd.DataFrame, concurrency: str, method: str) -> list[d
 
     Parameters
     ----------
-    events: the run's events in insertion order, with ``event``, ``party``, ``activities``
+    events : pandas.DataFrame
+        The run's events in insertion order, with ``event``, ``party``, ``activities``
         (``;`` separated), ``alone_days``, ``days`` (the increment), ``arose_on`` (the
-        event's start), ``until`` (its finish), ``step`` and ``snapshot``.
-    concurrency: ``time_not_money`` or ``apportion``.
-    method: the method's name for the rows.
+        event's start), ``until`` (its finish; optional, the start when absent or blank),
+        ``step`` and ``snapshot``.
+    concurrency : str
+        ``time_not_money`` or ``apportion``.
+    method : str
+        The method's name for the rows.
 
     Returns
     -------
-    list of row dicts (columns :data:`CAUSATION_COLUMNS`), one per event, in order.
+    list of dict
+        Row dicts (columns :data:`CAUSATION_COLUMNS`), one per event, in order.
+
+    Raises
+    ------
+    ValueError
+        An unknown concurrency rule or party (:func:`classify_days`).
 
     Notes
     -----
@@ -695,6 +852,26 @@ def sequence_rows(events: pd.DataFrame, concurrency: str, method: str) -> list[d
     at position ``p``, taken by event ``i``, has as causes ``i`` and every other event ``m``
     whose period overlaps ``i``'s and whose impact alone is at least ``p``. The days of one
     event with the same causes form one segment, classified at once.
+
+    References
+    ----------
+    AACE RP 29R-03 (2011), section 4.2 on concurrency; SCL Delay and Disruption Protocol,
+    2nd edition (2017), guidance on concurrent delay (both as recalled).
+
+    Examples
+    --------
+    An employer event takes days 1 to 5; a contractor event in the same period, whose
+    impact alone is 4 days, adds nothing but is a cause of days 1 to 4 too:
+
+    >>> events = pd.DataFrame({
+    ...     "event": ["E1", "E2"], "party": ["employer", "contractor"], "activities": ["A", "B"],
+    ...     "alone_days": [5, 4], "days": [5, 0], "arose_on": pd.to_datetime(["2025-06-01"] * 2),
+    ...     "until": pd.to_datetime(["2025-06-20"] * 2), "step": ["insert E1", "insert E2"],
+    ...     "snapshot": ["baseline"] * 2,
+    ... })
+    >>> rows = pd.DataFrame(sequence_rows(events, "time_not_money", "impacted"))
+    >>> rows[["event", "days", "concurrent_days", "excusable_days", "compensable_days"]].values.tolist()
+    [['E1', 5, 4, 5, 1], ['E2', 0, 0, 0, 0]]
     """
     count = len(events)
     parties = events["party"].to_numpy(dtype=object)
@@ -812,15 +989,42 @@ def _residual_row(case: Case, method: str, snapshot: str, step: str, days: int, 
 
 
 def impacted_causation(case: Case, result, concurrency: str | None = None, section: str | None = None) -> Causation:
-    """The causation table of an impacted as-planned analysis
-    (:class:`delay.methods.impacted.ImpactedResult`): one row per event, its increment as its
-    days, concurrency in time (see the module docstring), and one row for the residual: the
-    actual completion less the base impacted with every event.
+    """Build the causation table of an impacted as-planned analysis.
+
+    One row per event of :class:`delay.methods.impacted.ImpactedResult`, its increment as
+    its days, concurrency in time (see the module docstring), and one row for the
+    residual: the actual completion less the base impacted with every event.
+
+    Parameters
+    ----------
+    case : Case
+        The loaded case.
+    result : ImpactedResult
+        The impacted as-planned analysis (:func:`delay.methods.impacted.analyse`).
+    concurrency : str, optional
+        Overrides the case's ``[analysis] concurrency``.
+    section : str, optional
+        A section of sections.csv: the table of the run measured at its completion
+        milestone (default: the whole works).
+
+    Returns
+    -------
+    Causation
+        The table, explaining the actual less the planned completion.
 
     Raises
     ------
-    ReconciliationError: when the classified days do not sum to the actual less the planned
-        completion.
+    CaseError
+        An unknown concurrency rule.
+    ReconciliationError
+        When the classified days do not sum to the actual less the planned completion.
+    KeyError
+        A section the result has no run for.
+
+    References
+    ----------
+    AACE RP 29R-03 (2011), MIP 3.6 and section 4.2; SCL Delay and Disruption Protocol, 2nd
+    edition (2017), Part B, impacted as-planned analysis (both as recalled).
     """
     rule = _concurrency_of(case, concurrency)
     run = result.run if section is None else result.sections[section]
@@ -861,15 +1065,42 @@ def impacted_causation(case: Case, result, concurrency: str | None = None, secti
 
 
 def time_impact_causation(case: Case, result, concurrency: str | None = None, section: str | None = None) -> Causation:
-    """The causation table of a time impact analysis
-    (:class:`delay.methods.tia.TimeImpactResult`): per programme, one row per event
+    """Build the causation table of a time impact analysis.
+
+    Per programme of :class:`delay.methods.tia.TimeImpactResult`, one row per event
     inserted into it (its increment), concurrency in time within the programme's run, and
     one row for its residual.
 
+    Parameters
+    ----------
+    case : Case
+        The loaded case.
+    result : TimeImpactResult
+        The time impact analysis (:func:`delay.methods.tia.analyse`).
+    concurrency : str, optional
+        Overrides the case's ``[analysis] concurrency``.
+    section : str, optional
+        A section of sections.csv: the table of the trace of its completion milestone
+        (default: the whole works).
+
+    Returns
+    -------
+    Causation
+        The table, explaining the actual less the planned completion.
+
     Raises
     ------
-    ReconciliationError: when the classified days do not sum to the actual less the planned
-        completion.
+    CaseError
+        An unknown concurrency rule.
+    ReconciliationError
+        When the classified days do not sum to the actual less the planned completion.
+    KeyError
+        A section the result has no trace for.
+
+    References
+    ----------
+    AACE RP 29R-03 (2011), MIP 3.7; SCL Delay and Disruption Protocol, 2nd edition (2017),
+    Part B, time impact analysis (both as recalled).
     """
     rule = _concurrency_of(case, concurrency)
     rows: list[dict] = []
@@ -928,17 +1159,40 @@ def _baseline_completion(case: Case) -> dt.date:
 def collapsed_causation(
     case: Case, result, concurrency: str | None = None, planned_completion: dt.date | None = None
 ) -> Causation:
-    """The causation table of a collapsed as-built analysis
-    (:class:`delay.methods.collapsed.CollapsedResult`): one row per party, a row of days
-    concurrent between parties and a row of unexplained days (see the module docstring).
+    """Build the causation table of a collapsed as-built analysis.
+
+    One row per party with events in :class:`delay.methods.collapsed.CollapsedResult`, a
+    row of days concurrent between parties and a row of unexplained days (see the module
+    docstring).
 
     Parameters
     ----------
-    planned_completion: the completion measured from (default: the baseline's).
+    case : Case
+        The loaded case.
+    result : CollapsedResult
+        The collapsed as-built analysis (:func:`delay.methods.collapsed.analyse`).
+    concurrency : str, optional
+        Overrides the case's ``[analysis] concurrency``.
+    planned_completion : datetime.date, optional
+        The completion measured from (default: the baseline's finish of the project's
+        completion activity).
+
+    Returns
+    -------
+    Causation
+        The table, explaining the actual less the planned completion.
 
     Raises
     ------
-    ReconciliationError: when the rows do not sum to the actual less the planned completion.
+    CaseError
+        An unknown concurrency rule.
+    ReconciliationError
+        When the rows do not sum to the actual less the planned completion.
+
+    References
+    ----------
+    AACE RP 29R-03 (2011), MIP 3.8; SCL Delay and Disruption Protocol, 2nd edition
+    (2017), Part B, collapsed as-built analysis (both as recalled).
     """
     rule = _concurrency_of(case, concurrency)
     planned = planned_completion or _baseline_completion(case)
@@ -1045,25 +1299,40 @@ def collapsed_causation(
 def causation(
     case: Case, method: str, result=None, concurrency: str | None = None, section: str | None = None
 ) -> Causation:
-    """The causation table of one method, running the method when ``result`` is not given.
+    """Build the causation table of one method, running the method when ``result`` is not given.
 
     Parameters
     ----------
-    case: the loaded case.
-    method: one of :data:`METHODS`.
-    result: the method's result (``analyse(case)`` of its module), if already computed.
-    concurrency: overrides the case's ``[analysis] concurrency``.
-    section: a section of sections.csv: the table of the method's own trace of its
-        completion milestone (windows, impacted, tia); default the whole works.
+    case : Case
+        The loaded case.
+    method : str
+        One of :data:`METHODS`.
+    result : object, optional
+        The method's result (``analyse(case)`` of its module), if already computed.
+    concurrency : str, optional
+        Overrides the case's ``[analysis] concurrency``.
+    section : str, optional
+        A section of sections.csv: the table of the method's own trace of its completion
+        milestone (windows, impacted, tia; the collapsed as-built measures the whole works
+        only and passes it over); default the whole works.
+
+    Returns
+    -------
+    Causation
+        The method's causation table.
 
     Raises
     ------
-    CaseError: an unknown method, or what the method raises for bad input.
-    ReconciliationError: a table that does not add up.
+    CaseError
+        An unknown method or concurrency rule, or what the method raises for bad input.
+    ReconciliationError
+        A table that does not add up.
 
-    Example
-    -------
-    >>> table = causation(load_case("case_demo"), "impacted").table   # doctest: +SKIP
+    Examples
+    --------
+    >>> table = causation(demo, "impacted").table
+    >>> table[["event", "party", "days", "classification"]].head(3).values.tolist()
+    [['EV01', 'neutral', 3, 'excusable'], ['EV02', 'employer', 10, 'compensable'], ['EV03', 'employer', 0, 'no delay']]
     """
     if method not in METHODS:
         raise CaseError(

@@ -352,9 +352,18 @@ for _command in all_commands():
 
 
 def main() -> None:
-    """The ``delay`` command: Ctrl-C and SIGTERM end it with one line (status 130 or 143)
-    after every temporary output is removed; an output refused or a failed write is one
-    line and status 2 even where a command did not catch it."""
+    """Run the ``delay`` command on the process's arguments (the console script's entry).
+
+    Ctrl-C and SIGTERM end it with one line (status 130 or 143) after every temporary
+    output is removed; an output refused, a failed write or another ``OSError`` is one line
+    on standard error and status 2 even where a command did not catch it. Bad input is
+    reported by the commands themselves (one line per problem, status 2).
+
+    Raises
+    ------
+    SystemExit
+        Always: with click's status (0 on success) or with the status above.
+    """
     from .output import Interrupted, OutputFailed, OutputRefused, describe_os_error, install_signal_handlers
 
     install_signal_handlers()

@@ -70,8 +70,27 @@ HEADLINE_DAYS = {
 
 
 def available_methods(case: Case) -> list[str]:
-    """The methods the case's records allow: windows needs two snapshots, the modelled ones
-    an event register, the collapsed as-built an as-built record too."""
+    """List the methods the case's records allow.
+
+    The windows analysis needs two snapshots (the as-built record counts as one), the
+    impacted as-planned and the time impact analysis an event register, the collapsed
+    as-built an as-built record too.
+
+    Parameters
+    ----------
+    case : Case
+        The loaded case.
+
+    Returns
+    -------
+    list of str
+        Method names in this order: ``windows``, ``impacted``, ``tia``, ``collapsed``.
+
+    Examples
+    --------
+    >>> available_methods(demo)
+    ['windows', 'impacted', 'tia', 'collapsed']
+    """
     methods = []
     if len(case.snapshots) + (case.asbuilt_snapshot is not None) >= 2:
         methods.append("windows")
@@ -84,7 +103,23 @@ def available_methods(case: Case) -> list[str]:
 
 @dataclass(frozen=True)
 class MethodComparison:
-    """Per party and per event, one column of days per method, and the explanation."""
+    """Per party and per event, one column of days per method, and the explanation.
+
+    Made by :func:`compare_methods`.
+
+    Parameters
+    ----------
+    methods : tuple of str
+        The methods compared, in column order.
+    by_party : pandas.DataFrame
+        Column ``party`` and one column of days of delay to completion per method.
+    by_event : pandas.DataFrame
+        Columns ``event``, ``party``, ``title`` and one column of days per method.
+    headline : pandas.DataFrame
+        One row per method: its headline figures of entitlement.
+    explanation : tuple of str
+        The differences in plain words, one sentence each.
+    """
 
     methods: tuple[str, ...]
     by_party: pd.DataFrame
@@ -93,6 +128,14 @@ class MethodComparison:
     explanation: tuple[str, ...]
 
     def to_json(self) -> dict:
+        """Give the comparison as plain JSON values (the ``comparison.json`` of ``delay demo``).
+
+        Returns
+        -------
+        dict
+            ``methods``, ``by_party``, ``by_event`` and ``headline`` (lists of records, dates
+            as ISO text) and ``explanation`` (list of sentences).
+        """
         records = json_records
         return {
             "methods": list(self.methods),
@@ -151,8 +194,12 @@ def compare_methods(case: Case, results: Mapping[str, Entitlement] | None = None
 
     Parameters
     ----------
-    case: the loaded case.
-    results: entitlements already assessed, by method (default: assessed here).
+    case : Case
+        The loaded case.
+    results : Mapping of str to Entitlement, optional
+        Entitlements already assessed, by method; their order is the comparison's. By
+        default every method of :func:`available_methods`, assessed here
+        (:func:`delay.entitlement.assess`).
 
     Returns
     -------
@@ -165,7 +212,21 @@ def compare_methods(case: Case, results: Mapping[str, Entitlement] | None = None
         and for the collapsed as-built one row of the days concurrent between parties.
         ``headline``: per method the extension of time, the revised completion, compensable
         days and prolongation cost, culpable delay and acceleration days, days of liquidated damages,
-        damages exposure and concurrent days. ``explanation``: sentences.
+        damages exposure, concurrent days and the days each explains. ``explanation``:
+        sentences. Only the parties some method gives days to have a row.
+
+    References
+    ----------
+    SCL Delay and Disruption Protocol, 2nd edition (2017), Part B on choosing a method of
+    analysis; AACE RP 29R-03 (2011), section 5 (both as recalled).
+
+    Examples
+    --------
+    >>> comparison = compare_methods(demo)
+    >>> comparison.methods
+    ('windows', 'impacted', 'tia', 'collapsed')
+    >>> comparison.headline[["method", "eot_days", "compensable_days"]].values.tolist()
+    [['windows', 0, 20], ['impacted', 0, 29], ['tia', 4, 32], ['collapsed', 12, 3]]
     """
     methods = tuple(results) if results else tuple(available_methods(case))
     if results is None:
@@ -287,20 +348,25 @@ def disagreements(comparison: MethodComparison, threshold: int = DISAGREEMENT_DA
 
     Parameters
     ----------
-    comparison: from :func:`compare_methods`.
-    threshold: calendar days (default :data:`DISAGREEMENT_DAYS`).
+    comparison : MethodComparison
+        From :func:`compare_methods`.
+    threshold : int, default DISAGREEMENT_DAYS
+        Calendar days.
 
     Returns
     -------
     list of dict
         One per figure of :data:`HEADLINE_DAYS` whose highest and lowest values differ by
         more than ``threshold``: ``figure`` (its name in words), ``difference``, ``low`` and
-        ``high`` (method names), ``low_days``, ``high_days``, ``sentence``.
+        ``high`` (method names), ``low_days``, ``high_days``, ``sentence``. Empty when fewer
+        than two methods were compared.
 
     Examples
     --------
-    >>> found = disagreements(compare_methods(load_case("case_demo")))      # doctest: +SKIP
-    >>> found[0]["sentence"]                                               # doctest: +SKIP
+    >>> found = disagreements(compare_methods(demo))
+    >>> [(f["figure"], f["low"], f["high"], f["difference"]) for f in found]
+    [('extension of time', 'windows', 'collapsed', 12), ('compensable days', 'collapsed', 'tia', 29)]
+    >>> found[0]["sentence"]
     'The methods differ by 12 days on the extension of time (0 days by windows analysis, ...'
     """
     found = []
@@ -328,17 +394,27 @@ def disagreements(comparison: MethodComparison, threshold: int = DISAGREEMENT_DA
 
 
 def why_they_differ(comparison: MethodComparison) -> tuple[str, ...]:
-    """One or two sentences for a first page: how far apart the methods are on the headline
-    figure of days that differs most (the extension of time on a tie), and what the two
-    methods at either end measure.
+    """Say in one or two sentences, for a first page, why the methods differ.
+
+    How far apart the methods are on the headline figure of days that differs most (the
+    first of :data:`HEADLINE_DAYS` on a tie), and what the two methods at either end
+    measure.
 
     Parameters
     ----------
-    comparison: from :func:`compare_methods`.
+    comparison : MethodComparison
+        From :func:`compare_methods`.
 
     Returns
     -------
     tuple of str
+        The sentences: one when no method, one method or methods that all agree were
+        compared, else two.
+
+    Examples
+    --------
+    >>> why_they_differ(compare_methods(demo))[0]
+    'The methods differ most on the compensable days: from 3 days by collapsed as-built to 32 by time impact analysis.'
     """
     methods = comparison.methods
     if not methods:
@@ -381,7 +457,19 @@ def _with_progress(case: Case, progress: str) -> Case:
 
 
 def sensitivity(case: Case, methods: Sequence[str] | None = None) -> pd.DataFrame:
-    """The headline figures of each method under the case's settings and the alternatives.
+    """Give the headline figures of each method under the case's settings and the alternatives.
+
+    The alternatives are the other progress mode (retained logic or progress override)
+    and the other concurrency rule (time but not money, or apportionment), one at a time.
+    Computed once per case and methods (:func:`delay.memo.remembered`); a copy is handed
+    out.
+
+    Parameters
+    ----------
+    case : Case
+        The loaded case.
+    methods : sequence of str, optional
+        The methods to run; by default :func:`available_methods`.
 
     Returns
     -------
@@ -390,6 +478,12 @@ def sensitivity(case: Case, methods: Sequence[str] | None = None) -> pd.DataFram
         concurrency rule``): ``progress``, ``concurrency``, ``eot_days``,
         ``compensable_days``, ``ld_days``, ``ld_exposure``, ``concurrent_days``, and
         ``changed`` (whether any figure differs from the case's own settings).
+
+    Examples
+    --------
+    >>> table = sensitivity(demo, ["windows"])
+    >>> table[["variant", "eot_days", "changed"]].values.tolist()
+    [['as set', 0, False], ['other progress mode', 0, False], ['other concurrency rule', 0, False]]
     """
     methods = list(methods) if methods else available_methods(case)
     return remembered(case, ("sensitivity", tuple(methods)), lambda: _sensitivity(case, methods)).copy()

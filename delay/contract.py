@@ -34,8 +34,28 @@ __all__ = ["whole_works_section", "completion_in_force", "grants"]
 
 
 def whole_works_section(case: Case) -> str | None:
-    """The id of the section that is the whole of the works (its completion activity is the
-    project's), or ``None`` when no section is."""
+    """Find the section that is the whole of the works.
+
+    It is the section of sections.csv whose ``completion_activity`` is the project's
+    completion activity (:func:`delay.events.completion_activity`); the first such row
+    when several are.
+
+    Parameters
+    ----------
+    case : Case
+        The loaded case.
+
+    Returns
+    -------
+    str or None
+        The section's id as text, or ``None`` when the case has no sections or none of
+        them completes with the project.
+
+    Examples
+    --------
+    >>> whole_works_section(demo)
+    '2'
+    """
     sections = case.sections
     if not len(sections):
         return None
@@ -45,13 +65,35 @@ def whole_works_section(case: Case) -> str | None:
 
 
 def grants(case: Case, section: str | None = None, at: dt.date | None = None) -> pd.DataFrame:
-    """The extensions granted that apply to the whole works (``section=None``) or to one
-    section, made on or before ``at`` (``None``: all), in the order of the file.
+    """Select the extensions granted that apply to the whole works or to one section.
+
+    A grant with a blank ``section`` applies to the whole works, and so does one naming the
+    whole-works section (:func:`whole_works_section`); a grant naming another section
+    applies to that section only.
+
+    Parameters
+    ----------
+    case : Case
+        The loaded case.
+    section : str or None, optional
+        A section of sections.csv, or ``None`` (or the whole-works section) for the whole
+        works. A section that is not in the file selects no rows.
+    at : datetime.date or None, optional
+        Count only the grants made on or before this date (``granted_on``); ``None``
+        counts them all.
 
     Returns
     -------
     DataFrame
-        The rows of extensions_granted.csv that apply (its columns as in the file).
+        The rows of extensions_granted.csv that apply, in the order of the file, with its
+        columns as in the file (``days`` in calendar days).
+
+    Examples
+    --------
+    >>> grants(demo)[["id", "days"]].values.tolist()
+    [['EOT-01', 21.0], ['EOT-02', 7.0]]
+    >>> len(grants(demo, at=dt.date(2025, 8, 1)))
+    0
     """
     granted = case.extensions_granted
     named = granted["section"].fillna("").astype(str).str.strip()
@@ -68,32 +110,44 @@ def grants(case: Case, section: str | None = None, at: dt.date | None = None) ->
 def completion_in_force(
     case: Case, section: str | None = None, at: dt.date | None = None
 ) -> tuple[dt.date, int, dt.date]:
-    """``(contract completion, days granted, completion in force)`` for the whole works
-    (``section=None``) or one section, counting the grants made on or before ``at``.
+    """Give the contract completion date in force for the whole works or one section.
+
+    The original date (``[project] contract_completion`` for the whole works, the
+    section's ``contract_completion`` otherwise) plus the calendar days of every grant
+    that applies (:func:`grants`) made on or before ``at``.
 
     Parameters
     ----------
-    case:
+    case : Case
         The loaded case.
-    section:
-        A section of sections.csv; the whole-works section gives the whole works' dates.
-    at:
+    section : str or None, optional
+        A section of sections.csv; ``None`` or the whole-works section gives the whole
+        works' dates.
+    at : datetime.date or None, optional
         The date the completion in force is wanted for (``None``: after every grant).
 
     Returns
     -------
-    tuple
-        The original completion date, the days granted by ``at``, and their sum.
+    tuple of (datetime.date, int, datetime.date)
+        The original completion date, the calendar days granted by ``at``, and the date in
+        force (the original date plus those days).
 
     Raises
     ------
     KeyError
         A section not in sections.csv.
 
+    References
+    ----------
+    Society of Construction Law, Delay and Disruption Protocol, 2nd edition (2017), core
+    principle 4 (as recalled).
+
     Examples
     --------
-    >>> completion_in_force(load_case("case_demo"), at=dt.date(2025, 8, 1))  # doctest: +SKIP
+    >>> completion_in_force(demo, at=dt.date(2025, 8, 1))
     (datetime.date(2026, 5, 29), 0, datetime.date(2026, 5, 29))
+    >>> completion_in_force(demo)
+    (datetime.date(2026, 5, 29), 28, datetime.date(2026, 6, 26))
     """
     whole = whole_works_section(case)
     if section is None or (whole is not None and str(section) == whole):

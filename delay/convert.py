@@ -61,7 +61,7 @@ LIST_SEPARATOR = ";"
 
 # -- day numbers and dates ----------------------------------------------------------------
 def to_days(dates) -> np.ndarray:
-    """Day numbers of dates.
+    """Convert dates to day numbers.
 
     Parameters
     ----------
@@ -97,7 +97,7 @@ def to_days(dates) -> np.ndarray:
 
 
 def to_dates(days) -> np.ndarray:
-    """``datetime64[D]`` dates of day numbers, ``NaT`` for :data:`NO_DAY`.
+    """Convert day numbers to ``datetime64[D]`` dates, ``NaT`` for :data:`NO_DAY`.
 
     Parameters
     ----------
@@ -107,7 +107,7 @@ def to_dates(days) -> np.ndarray:
     Returns
     -------
     numpy.ndarray
-        ``datetime64[D]``, one per day number.
+        ``datetime64[D]``, one per day number (``NaT`` for :data:`NO_DAY`).
 
     Examples
     --------
@@ -121,8 +121,9 @@ def to_dates(days) -> np.ndarray:
 
 
 def table_dates(days) -> np.ndarray:
-    """Dates of day numbers for a column of a result table (``datetime64[s]``, pandas's
-    own resolution for dates read from text), ``NaT`` for :data:`NO_DAY`.
+    """Convert day numbers to the dates of a result table's column, ``NaT`` for :data:`NO_DAY`.
+
+    The dates are ``datetime64[s]``, pandas's own resolution for dates read from text.
 
     Parameters
     ----------
@@ -132,7 +133,7 @@ def table_dates(days) -> np.ndarray:
     Returns
     -------
     numpy.ndarray
-        ``datetime64[s]``.
+        ``datetime64[s]``, one per day number.
 
     Examples
     --------
@@ -143,7 +144,7 @@ def table_dates(days) -> np.ndarray:
 
 
 def day_to_date(day: int) -> dt.date:
-    """The date of one day number.
+    """Convert one day number to its date.
 
     Parameters
     ----------
@@ -153,6 +154,7 @@ def day_to_date(day: int) -> dt.date:
     Returns
     -------
     datetime.date
+        The date ``day`` days after 1970-01-01.
 
     Examples
     --------
@@ -174,7 +176,7 @@ def _missing(value) -> bool:
 
 
 def iso_date(value) -> str | None:
-    """A date as ISO ``YYYY-MM-DD`` text, ``None`` when there is none.
+    """Write a date as ISO ``YYYY-MM-DD`` text, ``None`` when there is none.
 
     Parameters
     ----------
@@ -185,6 +187,7 @@ def iso_date(value) -> str | None:
     Returns
     -------
     str or None
+        The ISO date (the date part of a date and time), or ``None`` for a missing value.
 
     Examples
     --------
@@ -205,15 +208,17 @@ def iso_date(value) -> str | None:
 
 
 def json_int(value) -> int | None:
-    """A whole number for JSON, ``None`` when missing.
+    """Convert a whole number for JSON, ``None`` when missing.
 
     Parameters
     ----------
     value : int-like or None
+        A Python or numpy number, or a missing value (None, NaN, NaT, NA).
 
     Returns
     -------
     int or None
+        ``int(value)``, or ``None`` for a missing value.
 
     Examples
     --------
@@ -225,7 +230,7 @@ def json_int(value) -> int | None:
 
 # -- cells ----------------------------------------------------------------------------------
 def json_cell(value: Any) -> Any:
-    """A value ready for ``json.dumps``.
+    """Convert a value for ``json.dumps``.
 
     Parameters
     ----------
@@ -265,11 +270,12 @@ def json_cell(value: Any) -> Any:
 
 
 def json_records(frame: pd.DataFrame) -> list[dict[str, Any]]:
-    """The rows of a result table as JSON-ready dicts, columns in order.
+    """Convert the rows of a result table to JSON-ready dicts, columns in order.
 
     Parameters
     ----------
     frame : pandas.DataFrame
+        Any table (its index is left out).
 
     Returns
     -------
@@ -286,12 +292,15 @@ def json_records(frame: pd.DataFrame) -> list[dict[str, Any]]:
 
 
 def list_cells(frame: pd.DataFrame) -> pd.DataFrame:
-    """A result table for a CSV file: every cell that holds a list of ids written as one
-    cell (:func:`join_ids`), so that no cell shows Python's ``['A', 'B']``.
+    """Write every list of ids in a result table as one cell, for a CSV file.
+
+    Each list becomes :func:`join_ids` of it, so that no cell shows Python's
+    ``['A', 'B']``.
 
     Parameters
     ----------
     frame : pandas.DataFrame
+        Any table.
 
     Returns
     -------
@@ -317,7 +326,7 @@ def list_cells(frame: pd.DataFrame) -> pd.DataFrame:
 
 
 def text_cell(value: Any) -> str:
-    """A value as the text of a printed table's cell.
+    """Write a value as the text of a printed table's cell.
 
     Parameters
     ----------
@@ -328,6 +337,7 @@ def text_cell(value: Any) -> str:
     Returns
     -------
     str
+        The cell's text.
 
     Examples
     --------
@@ -349,7 +359,7 @@ def text_cell(value: Any) -> str:
 
 # -- lists of ids ------------------------------------------------------------------------------
 def split_ids(text) -> list[str]:
-    """The ids of a ``;``-separated cell, in order, blanks dropped, each once.
+    """Split a ``;``-separated cell into its ids, in order, blanks dropped, each once.
 
     Parameters
     ----------
@@ -359,6 +369,7 @@ def split_ids(text) -> list[str]:
     Returns
     -------
     list of str
+        The ids, stripped of surrounding spaces.
 
     Examples
     --------
@@ -376,8 +387,9 @@ def split_ids(text) -> list[str]:
 
 
 def split_id_column(text: pd.Series) -> pd.Series:
-    """:func:`split_ids` for a whole column at once: one entry per id named in a cell,
-    indexed by its row's label (repeats kept, blanks dropped), as the loader checks them.
+    """Split a whole column of ``;``-separated cells at once, as the loader checks them.
+
+    Unlike :func:`split_ids`, repeats are kept.
 
     Parameters
     ----------
@@ -387,6 +399,8 @@ def split_id_column(text: pd.Series) -> pd.Series:
     Returns
     -------
     pandas.Series of str
+        One entry per id named in a cell, indexed by its row's label (repeats kept, blanks
+        dropped).
 
     Examples
     --------
@@ -398,8 +412,9 @@ def split_id_column(text: pd.Series) -> pd.Series:
 
 
 def join_ids(values: Iterable) -> str:
-    """Ids written in one cell, :data:`LIST_SEPARATOR` between them (the inverse of
-    :func:`split_ids` for ids without ``;``).
+    """Join ids into one cell, :data:`LIST_SEPARATOR` between them.
+
+    The inverse of :func:`split_ids` for ids without ``;``.
 
     Parameters
     ----------
@@ -409,6 +424,7 @@ def join_ids(values: Iterable) -> str:
     Returns
     -------
     str
+        The cell (each id as its text).
 
     Examples
     --------
@@ -460,8 +476,7 @@ def _day_texts(days, quoted: bool) -> np.ndarray:
 
 
 def iso_dates(days) -> np.ndarray:
-    """ISO dates ``YYYY-MM-DD`` (``object`` array of str, ``None`` for :data:`NO_DAY`)
-    of day numbers (days since 1970-01-01), each distinct day formatted once.
+    """Write day numbers (days since 1970-01-01) as ISO dates, each distinct day formatted once.
 
     Parameters
     ----------
@@ -470,7 +485,8 @@ def iso_dates(days) -> np.ndarray:
 
     Returns
     -------
-    numpy.ndarray of object, the shape of ``days``
+    numpy.ndarray of object
+        ``YYYY-MM-DD`` text, ``None`` for :data:`NO_DAY`; the shape of ``days``.
 
     Examples
     --------
@@ -481,8 +497,9 @@ def iso_dates(days) -> np.ndarray:
 
 
 def json_date_cells(days) -> np.ndarray:
-    """The JSON text of date cells (``"2025-01-01"`` or ``null``) of day numbers, each
-    distinct day formatted once (see :func:`iso_dates`).
+    """Write day numbers as the JSON text of date cells, each distinct day formatted once.
+
+    See :func:`iso_dates`.
 
     Parameters
     ----------
@@ -492,6 +509,7 @@ def json_date_cells(days) -> np.ndarray:
     Returns
     -------
     numpy.ndarray of object (str)
+        ``"2025-01-01"`` (quotes included) or ``null``, per cell.
 
     Examples
     --------
@@ -502,16 +520,22 @@ def json_date_cells(days) -> np.ndarray:
 
 
 def json_text_cells(values) -> np.ndarray:
-    """The JSON text of text cells (``None`` as ``null``), escaped as :func:`json.dumps`
-    escapes them (``ensure_ascii``).
+    """Write text cells as JSON text, escaped as :func:`json.dumps` escapes them.
 
     Parameters
     ----------
     values : sequence of str or None
+        The cells; another value is written as its text.
 
     Returns
     -------
     numpy.ndarray of object (str)
+        Per cell its JSON string (quoted, ``ensure_ascii`` escapes), ``null`` for ``None``.
+
+    Examples
+    --------
+    >>> print(*json_text_cells(["A", "Café", None]))
+    "A" "Caf\\u00e9" null
     """
     items = list(values)
     if all(type(v) is str for v in items):
@@ -522,17 +546,19 @@ def json_text_cells(values) -> np.ndarray:
 
 
 def json_int_cells(values, missing=None) -> np.ndarray:
-    """The JSON text of whole-number cells; ``null`` where ``missing`` is true. Each
-    distinct number is formatted once.
+    """Write whole-number cells as JSON text, each distinct number formatted once.
 
     Parameters
     ----------
     values : array of int
+        The numbers.
     missing : array of bool, optional
+        ``True`` where the cell has no number (written ``null``); by default none.
 
     Returns
     -------
     numpy.ndarray of object (str)
+        Per cell the number's text, or ``null``.
 
     Examples
     --------
@@ -545,21 +571,28 @@ def json_int_cells(values, missing=None) -> np.ndarray:
 
 
 def json_bool_cells(values) -> np.ndarray:
-    """The JSON text (``true``/``false``) of boolean cells.
+    """Write boolean cells as JSON text.
 
     Parameters
     ----------
     values : array of bool
+        The flags.
 
     Returns
     -------
     numpy.ndarray of object (str)
+        ``true`` or ``false``, per cell.
+
+    Examples
+    --------
+    >>> json_bool_cells([True, False]).tolist()
+    ['true', 'false']
     """
     return np.where(np.asarray(values, dtype=bool), "true", "false").astype(object)
 
 
 def json_rows_text(columns: Mapping[str, np.ndarray], indent: int = 2, level: int = 1) -> str:
-    """A list of records as :func:`json.dumps` with ``indent`` writes it, from whole columns.
+    """Write a list of records as :func:`json.dumps` with ``indent`` writes it, from whole columns.
 
     Parameters
     ----------

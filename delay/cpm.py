@@ -132,9 +132,57 @@ class ScheduleModel:
     """One snapshot compiled for scheduling; immutable, cheap to vary.
 
     Per-activity arrays have shape ``(n,)`` in the network's activity order. Day numbers are
-    ``int64`` days since 1970-01-01, :data:`NO_DAY` where there is no date.
+    ``int64`` days since 1970-01-01, :data:`NO_DAY` where there is no date. Made by
+    :func:`prepare`; use :meth:`run` to schedule it, :meth:`what_if` for a variant.
 
-    Use :meth:`run` to schedule it, :meth:`what_if` for a variant.
+    Parameters
+    ----------
+    network : Network
+        The activities and links as arrays (:mod:`delay.network`).
+    calendars : CalendarSet
+        The work calendars the activities' ``calendar`` numbers refer to.
+    names : numpy.ndarray
+        Activity names (object).
+    calendar : numpy.ndarray
+        Each activity's calendar number in ``calendars`` (int64).
+    duration : numpy.ndarray
+        Planned (original) durations in work days of the activity's calendar (int64).
+    remaining : numpy.ndarray
+        Remaining durations in work days (float64), NaN where none is given.
+    actual_start : numpy.ndarray
+        Actual start day numbers, :data:`NO_DAY` for none.
+    actual_finish : numpy.ndarray
+        Actual finish day numbers, :data:`NO_DAY` for none.
+    kind : numpy.ndarray
+        Activity kind as given (int8): :data:`TASK`, :data:`START_MILESTONE` or
+        :data:`FINISH_MILESTONE`.
+    constraint : numpy.ndarray
+        Constraint code (int8): none, earliest start, latest finish, fixed start, fixed
+        finish.
+    constraint_day : numpy.ndarray
+        The constraint's day number, :data:`NO_DAY` for none.
+    start_bound : numpy.ndarray
+        An extra "start no earlier than" day number of a what-if hold, :data:`NO_DAY`
+        for none.
+    data_day : int
+        The snapshot's data date as a day number.
+    contract_completion_day : int
+        The contract completion date as a day number (where the backward pass starts
+        under ``float_to = "contract_completion"``).
+    settings : ScheduleSettings
+        The scheduling settings (progress rule, lag calendar, where float is measured to).
+    label : str, default ""
+        The snapshot's label.
+    folder : str, default ""
+        The snapshot's folder under snapshots/ (``"asbuilt"`` for the as-built record).
+    link_order : numpy.ndarray or None, optional
+        The input row of each link, used to break ties; ``None`` means link order.
+
+    Examples
+    --------
+    >>> model = prepare(demo, "baseline")
+    >>> model.network.size, model.completion()
+    (263, datetime.date(2026, 5, 19))
     """
 
     network: Network
@@ -167,33 +215,36 @@ class ScheduleModel:
         add_links: pd.DataFrame | None = None,
         settings: ScheduleSettings | None = None,
     ) -> ScheduleModel:
-        """A variant of this model.
+        """Make a variant of this model; the model itself does not change.
 
         Parameters
         ----------
-        extend:
-            Work days added to activities' durations (to the remaining duration of a
-            started or re-estimated activity), by id.
-        start_no_earlier:
-            A date before which the activity may not start, by id.
-        hold:
+        extend : Mapping of str to int, optional
+            Work days (of the activity's own calendar) added to activities' durations (to
+            the remaining duration of a started or re-estimated activity), by id.
+        start_no_earlier : Mapping of str to date-like, optional
+            A date before which the activity may not start, by id (the later bound wins
+            when there is one already).
+        hold : Mapping of str to sequence of (date-like, date-like), optional
             Periods in which an activity does no work, by id: ``(first, last)`` dates, both
             included. The activity's work days in them become non-working for it alone (a
             calendar derived from its own, :meth:`delay.calendars.CalendarSet.with_held_days`),
             whatever its status: work before a period stands and the rest resumes after it.
             A lag counted on the activity's calendar skips the held days too.
-        add_activities:
-            New activities: columns ``id``, ``name``, ``duration`` and optionally
-            ``calendar`` (default calendar when absent or blank) and ``start_no_earlier``.
-        add_links:
-            New links: ``pred``, ``succ``, ``type`` (default FS), ``lag`` (default 0); ids
-            may name existing or added activities.
-        settings:
+        add_activities : DataFrame, optional
+            New activities, not started: columns ``id``, ``duration`` (work days) and
+            optionally ``name`` (default: the id), ``calendar`` (default calendar when
+            absent or blank) and ``start_no_earlier``.
+        add_links : DataFrame, optional
+            New links: ``pred``, ``succ``, ``type`` (default FS), ``lag`` (work days,
+            default 0); ids may name existing or added activities.
+        settings : ScheduleSettings, optional
             Other scheduling settings.
 
         Returns
         -------
         ScheduleModel
+            The variant; arrays it does not change are shared with this model.
 
         Raises
         ------
@@ -201,6 +252,14 @@ class ScheduleModel:
             For an id that is in neither the model nor ``add_activities``.
         CaseError
             When added links close a logic loop.
+
+        Examples
+        --------
+        >>> model = prepare(demo, "baseline")
+        >>> model.completion()
+        datetime.date(2026, 5, 19)
+        >>> model.what_if(extend={"SET-HOARDING": 10}).completion()  # on the driving path
+        datetime.date(2026, 6, 2)
         """
         changes: dict[str, object] = {}
         net = self.network
@@ -291,17 +350,18 @@ class ScheduleModel:
         return dataclasses.replace(self, **changes)
 
     def restricted(self, keep: np.ndarray) -> ScheduleModel:
-        """The model of some of its activities and the links between them.
+        """Make the model of some of its activities and the links between them.
 
         Parameters
         ----------
-        keep:
+        keep : numpy.ndarray
             Boolean mask, shape ``(n,)``: the activities to keep (their order is kept).
 
         Returns
         -------
         ScheduleModel
-            This model when every activity is kept.
+            The model of the activities kept, its network rebuilt; this model itself when
+            every activity is kept.
         """
         keep = np.asarray(keep, dtype=bool)
         if keep.all():
@@ -328,12 +388,14 @@ class ScheduleModel:
 
         Parameters
         ----------
-        end_day:
+        end_day : int
             Day number (days since 1970-01-01) the backward pass starts from.
 
         Returns
         -------
         ScheduleModel
+            The variant, with ``float_to = "contract_completion"`` and
+            ``contract_completion_day = end_day``.
         """
         code = self.constraint.copy()
         code[(code == LATEST_FINISH) | (code == FIXED_START) | (code == FIXED_FINISH)] = NO_CONSTRAINT
@@ -342,32 +404,113 @@ class ScheduleModel:
 
     # -- scheduling ------------------------------------------------------------------------
     def run(self) -> ScheduleResult:
-        """Forward and backward passes, floats and driving links. See the module docstring."""
+        """Schedule the model: forward and backward passes, floats and driving links.
+
+        See the module docstring for how time is held.
+
+        Returns
+        -------
+        ScheduleResult
+            Early and late dates, total and free float, critical and driving flags.
+
+        Raises
+        ------
+        DateBoundError
+            When a computed date would fall outside 1900-01-01 .. 2200-12-31
+            (:mod:`delay.bounds` names the durations and lags that drive it there).
+
+        Examples
+        --------
+        >>> result = prepare(demo, "baseline").run()
+        >>> result.completion, result.data_date
+        (datetime.date(2026, 5, 19), datetime.date(2025, 3, 3))
+        """
         return _schedule(self)
 
     def completion_day(self) -> int:
-        """Completion (day number) from the forward pass alone: what a what-if that only
-        asks "when would the works finish?" needs, without late dates or floats."""
+        """Compute the completion from the forward pass alone.
+
+        What a what-if that only asks "when would the works finish?" needs, without late
+        dates or floats: the latest finish date of any activity (the data date when there
+        are no activities).
+
+        Returns
+        -------
+        int
+            The completion as a day number (days since 1970-01-01).
+
+        Raises
+        ------
+        DateBoundError
+            When a computed date would fall after 2200-12-31.
+
+        Examples
+        --------
+        >>> model = prepare(demo, "baseline")
+        >>> model.completion_day(), str(np.datetime64(model.completion_day(), "D"))
+        (20592, '2026-05-19')
+        """
         return _forward_completion(self)
 
     def completion(self) -> dt.date:
-        """Completion date from the forward pass alone (see :meth:`completion_day`)."""
+        """Compute the completion date from the forward pass alone.
+
+        Returns
+        -------
+        datetime.date
+            The date of :meth:`completion_day`.
+
+        Raises
+        ------
+        DateBoundError
+            When a computed date would fall after 2200-12-31.
+        """
         return day_to_date(self.completion_day())
 
     def work_dates(self) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-        """``(status, start day, finish day)`` of every activity from the forward pass alone:
-        the status code, the day its work starts (the actual start once started) and the day
-        it finishes (day numbers, network order). Computed once per model."""
+        """Give every activity's status, start and finish from the forward pass alone.
+
+        Computed once per model and kept with it.
+
+        Returns
+        -------
+        status : numpy.ndarray
+            Status codes (int8): :data:`NOT_STARTED`, :data:`IN_PROGRESS`,
+            :data:`COMPLETE`.
+        start_day : numpy.ndarray
+            The day its work starts: the actual start once started, else the early start
+            (day numbers, network order).
+        finish_day : numpy.ndarray
+            The day it finishes: the actual finish once complete, else the early finish
+            (day numbers, network order).
+
+        Raises
+        ------
+        DateBoundError
+            When a computed date would fall after 2200-12-31.
+        """
         found = self.__dict__.get("_work_dates")
         if found is None:  # a frozen model: its dates never change
             found = self.__dict__["_work_dates"] = _forward_dates(self)
         return found
 
     def finish_days(self) -> np.ndarray:
-        """Every activity's finish date (day numbers, network order) from the forward pass
-        alone: what a what-if that asks when some activities (a section's milestone, the
-        project's completion activity) would finish needs. Computed once per model, with
-        :meth:`work_dates`."""
+        """Give every activity's finish date from the forward pass alone.
+
+        What a what-if that asks when some activities (a section's milestone, the project's
+        completion activity) would finish needs. Computed once per model, with
+        :meth:`work_dates`.
+
+        Returns
+        -------
+        numpy.ndarray
+            Finish day numbers (days since 1970-01-01), network order.
+
+        Raises
+        ------
+        DateBoundError
+            When a computed date would fall after 2200-12-31.
+        """
         return self.work_dates()[2]
 
 
@@ -675,9 +818,47 @@ def _forward_dates(model: ScheduleModel) -> tuple[np.ndarray, np.ndarray, np.nda
 class ScheduleResult:
     """Dates and floats of one scheduled snapshot.
 
-    The arrays are in the network's activity order; boundaries are per the module
+    Made by :meth:`ScheduleModel.run`. The arrays are in the network's activity order;
+    boundaries are work-day boundaries on each activity's own calendar, per the module
     docstring. Most users want :attr:`activities`, :attr:`links`, :attr:`completion`,
     :meth:`driving_path` and :meth:`longest_path`.
+
+    Parameters
+    ----------
+    model : ScheduleModel
+        The model scheduled.
+    status : numpy.ndarray
+        Status codes (int8): :data:`NOT_STARTED`, :data:`IN_PROGRESS`, :data:`COMPLETE`.
+    point : numpy.ndarray
+        How each activity was scheduled (int8): a task, or a start or finish milestone (a
+        task of zero duration becomes a finish milestone when it has predecessors, a start
+        milestone otherwise).
+    duration : numpy.ndarray
+        The duration scheduled in work days (remaining work for one in progress).
+    early_start_read : numpy.ndarray
+        The boundary the activity's start is read at on the forward pass.
+    remaining_start : numpy.ndarray
+        Early boundary of the start of the remaining work.
+    early_finish : numpy.ndarray
+        Early finish boundary.
+    late_start : numpy.ndarray
+        Late start boundary.
+    late_finish : numpy.ndarray
+        Late finish boundary.
+    total_float : numpy.ndarray
+        Total float in work days of the activity's calendar.
+    free_float : numpy.ndarray
+        Free float in work days of the activity's calendar.
+    stream_float : numpy.ndarray
+        Relative float of each link in the passes' link order (see
+        :attr:`relative_float` for link order).
+    completion_day : int, default 0
+        The completion as a day number: the latest finish date of any activity.
+    finish_day : numpy.ndarray, optional
+        Every activity's finish day number.
+    near_critical_days : int, default NEAR_CRITICAL_DAYS
+        Total float (work days) at or below which an incomplete activity that is not
+        critical is near-critical.
     """
 
     model: ScheduleModel = field(repr=False)
@@ -704,18 +885,22 @@ class ScheduleResult:
 
     @property
     def data_date(self) -> dt.date:
+        """The snapshot's data date."""
         return day_to_date(self.model.data_day)
 
     @property
     def settings(self) -> ScheduleSettings:
+        """The scheduling settings the snapshot was scheduled with."""
         return self.model.settings
 
     @property
     def snapshot(self) -> str:
+        """The snapshot's label."""
         return self.model.label
 
     @property
     def ids(self) -> np.ndarray:
+        """The activity ids, network order (``object`` array)."""
         return self.model.network.ids
 
     @cached_property
@@ -779,7 +964,30 @@ class ScheduleResult:
         }
 
     def day_array(self, name: str) -> np.ndarray:
-        """Day numbers of one date column (``early_start`` ...); :data:`NO_DAY` for none."""
+        """Give the day numbers of one date column.
+
+        Parameters
+        ----------
+        name : str
+            ``"early_start"``, ``"early_finish"``, ``"late_start"`` or ``"late_finish"``.
+
+        Returns
+        -------
+        numpy.ndarray
+            Day numbers (days since 1970-01-01), network order; :data:`NO_DAY` for none
+            (the late dates of a complete activity).
+
+        Raises
+        ------
+        KeyError
+            For another name.
+
+        Examples
+        --------
+        >>> result = schedule(demo)
+        >>> int(result.day_array("early_finish").max()) == result.completion_day
+        True
+        """
         return self._days[name]
 
     @cached_property
@@ -899,8 +1107,21 @@ class ScheduleResult:
         return net.order[np.flatnonzero(on)]  # by position: in logic order
 
     def driving_path(self) -> list[str]:
-        """Every activity on a chain of driving links (relative float 0) from the data date to
-        the completion, in logic order. Where several chains drive at once, all are listed."""
+        """List every activity on a chain of driving links from the data date to the completion.
+
+        A link drives when its relative float is 0. Where several chains drive at once,
+        all are listed.
+
+        Returns
+        -------
+        list of str
+            Activity ids in logic (topological) order.
+
+        Examples
+        --------
+        >>> schedule(demo).driving_path()[:3]
+        ['MS-START', 'SET-HOARDING', 'SUB-CLEARANCE']
+        """
         return [str(i) for i in self.ids[self._driving_numbers]]
 
     def longest_path(self) -> list[str]:
@@ -909,6 +1130,18 @@ class ScheduleResult:
         Walking back from the activity that finishes at completion (the first in input order
         where several do), each step takes the driving predecessor by least relative float,
         then an FS link, then input order.
+
+        Returns
+        -------
+        list of str
+            Activity ids from the start of the chain to the activity finishing at
+            completion; empty when every activity is complete.
+
+        Examples
+        --------
+        >>> path = schedule(demo).longest_path()
+        >>> path[0], path[-1]
+        ('MS-START', 'MS-COMPLETION')
         """
         net = self.model.network
         incomplete = self.status != COMPLETE
@@ -963,17 +1196,32 @@ class ScheduleResult:
         }
 
     def to_json(self) -> dict:
-        """The JSON form of the ``delay schedule`` command: ``snapshot``, ``data_date``,
-        ``completion`` and per activity (network order) its id (``activity``), early and late start and
-        finish (ISO dates; ``None`` where there is none), ``total_float`` and
-        ``free_float`` (work days; ``None`` for a complete activity) and ``critical``."""
+        """Give the JSON form of the ``delay schedule`` command.
+
+        Returns
+        -------
+        dict
+            ``snapshot`` (the folder), ``label``, ``data_date``, ``completion`` and
+            ``activities``: per activity (network order) its id (``activity``), early and
+            late start and finish (ISO dates; ``None`` where there is none),
+            ``total_float`` and ``free_float`` (work days; ``None`` for a complete
+            activity) and ``critical``.
+
+        Examples
+        --------
+        >>> form = schedule(demo).to_json()
+        >>> form["completion"], form["activities"][0]["activity"]
+        ('2026-05-19', 'MS-START')
+        """
         cells = self._json_cells(text=False)
         keys = list(cells)
         rows = [dict(zip(keys, values)) for values in zip(*cells.values())]
         return {**self._json_head(), "activities": rows}
 
     def to_json_text(self, indent: int = 2) -> str:
-        """``json.dumps(self.to_json(), indent=indent)``, the same text to the byte, made
+        """Write :meth:`to_json` as JSON text, made from whole columns.
+
+        The same text to the byte as ``json.dumps(self.to_json(), indent=indent)``, made
         from whole columns (each distinct date formatted once) instead of per-activity
         objects: what ``delay schedule --format json`` prints.
 
@@ -985,6 +1233,13 @@ class ScheduleResult:
         Returns
         -------
         str
+            The JSON text.
+
+        Examples
+        --------
+        >>> result = schedule(demo)
+        >>> result.to_json_text() == json.dumps(result.to_json(), indent=2)
+        True
         """
         head = json.dumps(self._json_head(), indent=indent)
         rows = json_rows_text(self._json_cells(text=True), indent=indent, level=1)
@@ -1000,21 +1255,36 @@ def prepare(
 ) -> ScheduleModel:
     """Compile one snapshot of a case for scheduling.
 
+    The snapshot's arrays are compiled once and kept with it (``Snapshot.derived``,
+    read-only), so preparing the same snapshot again costs almost nothing.
+
     Parameters
     ----------
-    case: the loaded case.
-    snapshot: a folder name or label (``"asbuilt"`` for the as-built snapshot), or a Snapshot.
-    settings: scheduling settings overriding the case's (``dataclasses.replace`` them).
-    calendars: a calendar set to share between snapshots of the same case.
+    case : Case
+        The loaded case.
+    snapshot : str or Snapshot, default "baseline"
+        A folder name or label (``"asbuilt"`` for the as-built snapshot), or a Snapshot.
+    settings : ScheduleSettings, optional
+        Scheduling settings overriding the case's (``dataclasses.replace`` them).
+    calendars : CalendarSet, optional
+        A calendar set to share between snapshots of the same case; by default the case's
+        own (:func:`calendars_of`).
 
     Returns
     -------
     ScheduleModel
+        The snapshot compiled, not yet scheduled.
 
     Raises
     ------
     CaseError
-        For an unknown snapshot or a logic loop.
+        For an unknown snapshot, an unknown calendar or a logic loop.
+
+    Examples
+    --------
+    >>> model = prepare(demo, "Update 01")
+    >>> model.folder, model.label
+    ('2025-03-31', 'Update 01')
     """
     snap = snapshot if isinstance(snapshot, Snapshot) else _find(case, snapshot)
     settings = settings or case.settings.schedule
@@ -1109,7 +1379,23 @@ _CALENDARS: weakref.WeakKeyDictionary[Case, CalendarSet] = weakref.WeakKeyDictio
 
 
 def calendars_of(case: Case) -> CalendarSet:
-    """The case's calendars as one :class:`CalendarSet`, built once per loaded case."""
+    """Give the case's calendars as one :class:`CalendarSet`, built once per loaded case.
+
+    Parameters
+    ----------
+    case : Case
+        The loaded case.
+
+    Returns
+    -------
+    CalendarSet
+        The same set on every call for the same case (kept while the case lives).
+
+    Examples
+    --------
+    >>> calendars_of(demo) is calendars_of(demo)
+    True
+    """
     found = _CALENDARS.get(case)
     if found is None:
         found = _CALENDARS[case] = CalendarSet(build_calendars(case))
@@ -1136,11 +1422,11 @@ def schedule(
 
     Parameters
     ----------
-    case:
+    case : Case
         A loaded :class:`delay.model.Case`.
-    snapshot:
+    snapshot : str or Snapshot, default "baseline"
         Folder name under ``snapshots/`` or label; ``"asbuilt"`` for the as-built record.
-    settings:
+    settings : ScheduleSettings, optional
         A :class:`delay.model.ScheduleSettings` overriding the case's, for example
         ``dataclasses.replace(case.settings.schedule, progress="progress_override")``.
 
@@ -1153,16 +1439,21 @@ def schedule(
     Raises
     ------
     CaseError
-        Unknown snapshot, logic loop.
-
-    Examples
-    --------
-    >>> from delay.case import load_case                      # doctest: +SKIP
-    >>> result = schedule(load_case("case_demo"), "baseline")  # doctest: +SKIP
-    >>> result.completion                                      # doctest: +SKIP
+        Unknown snapshot, unknown calendar, logic loop.
+    DateBoundError
+        When a computed date would fall outside 1900-01-01 .. 2200-12-31.
 
     References
     ----------
-    Kelley and Walker (1959); Fondahl (1961); the scheduling rules of case-format v1.
+    Kelley and Walker (1959); Fondahl (1961); the scheduling rules of the case format
+    (shared/case-format.md, "Scheduling rules").
+
+    Examples
+    --------
+    >>> result = schedule(demo, "baseline")
+    >>> result.completion
+    datetime.date(2026, 5, 19)
+    >>> result.activities.loc[0, ["id", "early_start", "total_float", "critical"]].astype(str).tolist()
+    ['MS-START', '2025-03-03 00:00:00', '0', 'True']
     """
     return prepare(case, snapshot, settings).run()

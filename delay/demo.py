@@ -32,16 +32,35 @@ def run_demo(
     *,
     extra: Callable[[object, Path, Path], list[Path]] | None = None,
 ) -> list[Path]:
-    """Run the demo on ``case_path``, writing into ``out_dir``; returns the files written.
+    """Run the demo on ``case_path``, writing every output into ``out_dir``.
+
+    Loads and checks the case, then writes: the case summary and the checks (JSON); every
+    snapshot's schedule (the as-built record's too) as CSV and JSON with the completion of
+    each; the windows analysis and the as-planned versus as-built comparison where the
+    case has the snapshots for them; the impacted as-planned, time impact and collapsed
+    as-built analyses, the entitlement per method, the methods compared and the
+    sensitivity table where it has delay events; and the IFC outputs when the IFC extra is
+    installed. The folder is built under a temporary name and moved into place whole
+    (:func:`delay.output.output_folder`).
 
     Parameters
     ----------
-    case_path: the case folder or workbook.
-    out_dir: the output folder (new, empty or an earlier output of the toolkit).
-    echo: called with a line of progress.
-    extra: ``extra(case, folder, out_dir)`` writes more outputs into ``folder`` (the folder
+    case_path : Path
+        The case folder or workbook.
+    out_dir : Path
+        The output folder (new, empty or an earlier output of the toolkit, which is
+        replaced whole when the run succeeds).
+    echo : callable, default print
+        Called with each line of progress.
+    extra : callable, optional
+        ``extra(case, folder, out_dir)`` writes more outputs into ``folder`` (the folder
         being built) before it is moved to ``out_dir``, and returns their paths under
         ``out_dir``; the command line writes the report this way.
+
+    Returns
+    -------
+    list of Path
+        The files written, as paths under ``out_dir``.
 
     Raises
     ------

@@ -77,10 +77,12 @@ principles 4 (extension against the completion date in force), 7 and 8 (float), 
 International Recommended Practice 29R-03, Forensic Schedule Analysis (2011), section 4
 (concurrency, as recalled).
 
-Example
--------
->>> result = assess(load_case("case_demo"), ["impacted"])      # doctest: +SKIP
->>> result.summary[["method", "eot_days", "ld_exposure"]]       # doctest: +SKIP
+Examples
+--------
+>>> from delay.case import load_case
+>>> result = assess(load_case("case_demo"), ["impacted"])
+>>> result.summary[["method", "eot_days", "ld_days", "ld_exposure"]].values.tolist()
+[['impacted', 0, 6, 27000.0]]
 """
 
 from __future__ import annotations
@@ -156,9 +158,27 @@ EVENT_COLUMNS = [
 
 # -- the contract's figures -------------------------------------------------------------------
 def prolongation_rate(case: Case, day) -> float:
-    """Time-related cost of a day of prolongation arising on ``day``: the rate of the
-    period of prolongation_rates.csv that holds it, else the flat
-    ``[commercial] prolongation_cost_per_day`` (also for ``day=None``)."""
+    """Give the time-related cost of a day of prolongation arising on ``day``.
+
+    Parameters
+    ----------
+    case : Case
+        The loaded case.
+    day : date-like or None
+        The date the delay arose; ``None`` (or a blank) for no date.
+
+    Returns
+    -------
+    float
+        The rate of the period of prolongation_rates.csv that holds ``day`` (its first
+        such row), else the flat ``[commercial] prolongation_cost_per_day`` (also for no
+        date), in the case's currency per calendar day.
+
+    Examples
+    --------
+    >>> prolongation_rate(demo, dt.date(2025, 7, 1)), prolongation_rate(demo, None)
+    (2800.0, 3100.0)
+    """
     flat = float(case.settings.commercial.prolongation_cost_per_day)
     if day is None or pd.isna(day):
         return flat
@@ -169,16 +189,35 @@ def prolongation_rate(case: Case, day) -> float:
 
 
 def prolongation_build_up(case: Case, rows: pd.DataFrame) -> pd.DataFrame:
-    """The prolongation cost built up: one row per rate applied, with where the rate comes
-    from, the compensable days priced at it and their cost (the rows add up to
-    :func:`prolongation_cost`).
+    """Build up the prolongation cost: one row per rate applied.
+
+    Each row says where the rate comes from, the compensable days priced at it and their
+    cost; the rows add up to :func:`prolongation_cost`.
+
+    Parameters
+    ----------
+    case : Case
+        The loaded case.
+    rows : pandas.DataFrame
+        Rows of a causation table, with ``compensable_days`` and ``arose_on`` (the date
+        each row's delay arose, or blank).
 
     Returns
     -------
     DataFrame
         ``from``, ``to`` (the rate's period, blank for the flat rate), ``source``
         (``prolongation_rates.csv row N`` or ``case.toml [commercial]
-        prolongation_cost_per_day``), ``cost_per_day``, ``days``, ``cost``.
+        prolongation_cost_per_day``), ``cost_per_day``, ``days``, ``cost`` (rounded to
+        cents); the rates of prolongation_rates.csv in file order, then the flat rate.
+
+    Examples
+    --------
+    >>> arose = [dt.date(2025, 7, 1), None, dt.date(2025, 7, 15)]
+    >>> rows = pd.DataFrame({"compensable_days": [3, 2, 4], "arose_on": arose})
+    >>> prolongation_build_up(demo, rows)[["source", "cost_per_day", "days", "cost"]].values.tolist()
+    ... # doctest: +NORMALIZE_WHITESPACE
+    [['prolongation_rates.csv row 2', 2800.0, 7, 19600.0],
+     ['case.toml [commercial] prolongation_cost_per_day', 3100.0, 2, 6200.0]]
     """
     columns = ["from", "to", "source", "cost_per_day", "days", "cost"]
     rates = case.prolongation_rates.reset_index(drop=True)
@@ -223,14 +262,56 @@ def prolongation_build_up(case: Case, rows: pd.DataFrame) -> pd.DataFrame:
 
 
 def prolongation_cost(case: Case, rows: pd.DataFrame) -> float:
-    """Sum of each row's ``compensable_days`` times the rate on its ``arose_on`` date."""
+    """Price the compensable days of causation rows, each at the rate on its ``arose_on`` date.
+
+    Parameters
+    ----------
+    case : Case
+        The loaded case.
+    rows : pandas.DataFrame
+        Rows with ``compensable_days`` and ``arose_on``, as for :func:`prolongation_build_up`.
+
+    Returns
+    -------
+    float
+        The sum of each row's compensable days times its rate (:func:`prolongation_rate`),
+        rounded to cents.
+
+    Examples
+    --------
+    >>> arose = [dt.date(2025, 7, 1), None, dt.date(2025, 7, 15)]
+    >>> rows = pd.DataFrame({"compensable_days": [3, 2, 4], "arose_on": arose})
+    >>> prolongation_cost(demo, rows)  # 7 days at 2,800 and 2 at the flat 3,100
+    25800.0
+    """
     build_up = prolongation_build_up(case, rows)
     return round(float(build_up["cost"].sum()), 2) if len(build_up) else 0.0
 
 
 def liquidated_damages(case: Case, ld_days: int, rate: float) -> tuple[float, bool]:
-    """``(amount, capped)``: culpable days x rate, limited to the case's
-    ``liquidated_damages_cap`` when that is above 0."""
+    """Compute liquidated damages: days of damages times the rate, within the case's cap.
+
+    Parameters
+    ----------
+    case : Case
+        The loaded case (its ``[commercial] liquidated_damages_cap``; 0 for no cap).
+    ld_days : int
+        Days of liquidated damages (calendar days; a negative number counts as 0).
+    rate : float
+        Liquidated damages per day.
+
+    Returns
+    -------
+    tuple of (float, bool)
+        ``(amount, capped)``: the amount rounded to cents, and whether the cap limited it.
+
+    Examples
+    --------
+    >>> liquidated_damages(demo, 10, 4500.0)
+    (45000.0, False)
+    >>> liquidated_damages(demo, 1000, 4500.0)  # the demo's cap is 1,840,000
+    (1840000.0, True)
+    """
     amount = max(0, int(ld_days)) * float(rate)
     cap = float(case.settings.commercial.liquidated_damages_cap)
     if cap > 0 and amount > cap:
@@ -272,13 +353,74 @@ def _figures(
 class Entitlement:
     """One method's entitlement for the whole works, its sections and its events.
 
-    Days are calendar days; money is in ``currency``. See the module docstring for every
-    figure. ``causation`` is the method's :class:`delay.causation.Causation`; ``sections``
-    has :data:`SECTION_COLUMNS` (figures ``None`` where the method cannot give them, with
-    the reason in ``note``); ``events`` has :data:`EVENT_COLUMNS`; ``grants`` the
-    extensions already granted that apply to the whole works (extensions_granted.csv's
-    rows, the grant's id as ``grant``); ``prolongation`` the build-up
-    of the prolongation cost (:func:`prolongation_build_up`).
+    Made by :func:`entitlement`. Days are calendar days; money is in ``currency``. See the
+    module docstring for every figure.
+
+    Parameters
+    ----------
+    method : str
+        ``windows``, ``impacted``, ``tia`` or ``collapsed``.
+    currency : str
+        ISO 4217 code of every amount.
+    concurrency : str
+        The concurrency rule applied: ``time_not_money`` or ``apportion``.
+    contract_completion : datetime.date
+        The contract completion date of the whole works.
+    granted_days : int
+        Days of extension already granted for the whole works.
+    completion_in_force : datetime.date
+        The contract completion date plus the days granted.
+    planned_completion : datetime.date
+        The planned completion the method measures from (the baseline's).
+    excusable_days : int
+        The employer's and neutral days of the causation table, net.
+    completion_with_excusable_delays : datetime.date
+        The planned completion plus the excusable days.
+    eot_days : int
+        The extension of time.
+    revised_completion : datetime.date
+        The completion in force plus the extension of time.
+    actual_completion : datetime.date
+        The completion the method compares with the revised one: the actual completion
+        (the as-built record's), else the last update's forecast.
+    compensable_days : int
+        The compensable days of the causation table.
+    prolongation_cost : float
+        The compensable days priced at the rates of their periods.
+    culpable_delay_days : int
+        The contractor's net delay, when positive.
+    acceleration_days : int
+        The contractor's net gain (recovery), shown and never cutting the extension.
+    ld_days : int
+        Days of liquidated damages: the actual completion less the revised one, at least 0.
+    liquidated_damages_per_day : float
+        The rate of liquidated damages.
+    ld_exposure : float
+        ``ld_days`` times the rate, within the cap.
+    ld_capped : bool
+        Whether the cap limited ``ld_exposure``.
+    concurrent_days : int
+        Days of the table with causes of more than one party.
+    causation : Causation
+        The method's :class:`delay.causation.Causation`.
+    sections : pandas.DataFrame
+        :data:`SECTION_COLUMNS`, one row per section of sections.csv (figures ``None``
+        where the method cannot give them, with the reason in ``note``).
+    events : pandas.DataFrame
+        :data:`EVENT_COLUMNS`, one row per event of the register.
+    grants : pandas.DataFrame, optional
+        The extensions already granted that apply to the whole works
+        (extensions_granted.csv's rows, the grant's id as ``grant``).
+    prolongation : pandas.DataFrame, optional
+        The build-up of the prolongation cost (:func:`prolongation_build_up`).
+    notes : tuple of str, optional
+        What the reader should know about the figures, in words.
+
+    Examples
+    --------
+    >>> found = entitlement(demo, "impacted")
+    >>> found.completion_in_force, found.eot_days, found.revised_completion, found.overrun_days
+    (datetime.date(2026, 6, 26), 0, datetime.date(2026, 6, 26), 6)
     """
 
     method: str
@@ -315,6 +457,15 @@ class Entitlement:
         return (self.actual_completion - self.completion_in_force).days
 
     def to_json(self) -> dict:
+        """Give the entitlement as plain JSON values (dates as ISO text).
+
+        Returns
+        -------
+        dict
+            Every figure of the whole works, ``overrun_days``, the causation's explained
+            days and table, and the sections, events, grants and prolongation tables as
+            lists of records, with the notes.
+        """
         return {
             "method": self.method,
             "eot_days": self.eot_days,
@@ -349,13 +500,47 @@ class Entitlement:
 
 @dataclass(frozen=True)
 class EntitlementResult:
-    """The entitlement of every method assessed, in the order asked for."""
+    """The entitlement of every method assessed, in the order asked for.
+
+    Made by :func:`assess`.
+
+    Parameters
+    ----------
+    methods : tuple of Entitlement
+        One per method assessed.
+    currency : str
+        ISO 4217 code of every amount.
+    concurrency : str
+        The concurrency rule applied.
+    """
 
     methods: tuple[Entitlement, ...]
     currency: str
     concurrency: str
 
     def method(self, name: str) -> Entitlement:
+        """Give the entitlement of one method.
+
+        Parameters
+        ----------
+        name : str
+            ``windows``, ``impacted``, ``tia`` or ``collapsed``.
+
+        Returns
+        -------
+        Entitlement
+            The method's entitlement.
+
+        Raises
+        ------
+        KeyError
+            When the method was not assessed.
+
+        Examples
+        --------
+        >>> assess(demo, ["impacted"]).method("impacted").ld_days
+        6
+        """
         for item in self.methods:
             if item.method == name:
                 return item
@@ -384,6 +569,13 @@ class EntitlementResult:
         return pd.DataFrame([{c: getattr(m, c) for c in columns} for m in self.methods], columns=columns)
 
     def to_json(self) -> dict:
+        """Give every method's entitlement as plain JSON values.
+
+        Returns
+        -------
+        dict
+            ``currency``, ``concurrency`` and ``methods`` (each :meth:`Entitlement.to_json`).
+        """
         return {
             "currency": self.currency,
             "concurrency": self.concurrency,
@@ -554,24 +746,48 @@ def _actual_completion(case: Case, method: str, result) -> dt.date:
 
 
 def entitlement(case: Case, method: str, result=None, concurrency: str | None = None) -> Entitlement:
-    """The entitlement of one method for the whole works, each section and each event.
+    """Assess the entitlement of one method for the whole works, each section and each event.
+
+    Remembered per case, method, concurrency rule and result object
+    (:func:`delay.memo.remembered`): asking again hands back the same object.
 
     Parameters
     ----------
-    case: the loaded case.
-    method: ``windows``, ``impacted``, ``tia`` or ``collapsed``.
-    result: the method's result, if already computed (else the method is run with its
+    case : Case
+        The loaded case.
+    method : str
+        ``windows``, ``impacted``, ``tia`` or ``collapsed``.
+    result : object, optional
+        The method's result, if already computed (else the method is run with its
         defaults).
-    concurrency: overrides the case's ``[analysis] concurrency``.
+    concurrency : str, optional
+        Overrides the case's ``[analysis] concurrency`` (``time_not_money`` or
+        ``apportion``).
 
     Returns
     -------
     Entitlement
+        The method's figures (see the module docstring).
 
     Raises
     ------
-    CaseError: an unknown method, or what the method raises for bad input.
-    ReconciliationError: a causation table, or a section's, that does not add up.
+    CaseError
+        An unknown method, or what the method raises for bad input.
+    ReconciliationError
+        A causation table, or a section's, that does not add up.
+
+    References
+    ----------
+    SCL Delay and Disruption Protocol, 2nd edition (2017), core principles 4, 7, 9, 10 and
+    17 (as recalled).
+
+    Examples
+    --------
+    >>> found = entitlement(demo, "impacted")
+    >>> found.eot_days, found.ld_days, found.ld_exposure
+    (0, 6, 27000.0)
+    >>> entitlement(demo, "impacted") is found
+    True
     """
     if result is None:
         result = _run_method(case, method)
@@ -639,22 +855,35 @@ def assess(
     results: Mapping[str, object] | None = None,
     concurrency: str | None = None,
 ) -> EntitlementResult:
-    """The entitlement under each of ``methods`` (default all four).
+    """Assess the entitlement under each of ``methods`` (default all four).
 
     Parameters
     ----------
-    case: the loaded case.
-    methods: names among ``windows``, ``impacted``, ``tia``, ``collapsed``.
-    results: method results already computed, by method name.
-    concurrency: overrides the case's ``[analysis] concurrency``.
+    case : Case
+        The loaded case.
+    methods : sequence of str, optional
+        Names among ``windows``, ``impacted``, ``tia``, ``collapsed``, in the order wanted.
+    results : Mapping of str to object, optional
+        Method results already computed, by method name.
+    concurrency : str, optional
+        Overrides the case's ``[analysis] concurrency``.
 
     Returns
     -------
     EntitlementResult
+        One :class:`Entitlement` per method, in the order of ``methods``.
 
     Raises
     ------
-    CaseError: an unknown method or bad input. ReconciliationError: figures that do not add up.
+    CaseError
+        An unknown method or bad input.
+    ReconciliationError
+        Figures that do not add up.
+
+    Examples
+    --------
+    >>> assess(demo, ["impacted"]).summary[["method", "completion_in_force", "eot_days"]].values.tolist()
+    [['impacted', datetime.date(2026, 6, 26), 0]]
     """
     results = dict(results or {})
     done = tuple(entitlement(case, m, results.get(m), concurrency) for m in methods)

@@ -36,17 +36,22 @@ class Problem:
 
     Parameters
     ----------
-    file:
+    file : str
         Path of the file as the user would type it, relative to the case folder where
         possible (``snapshots/baseline/links.csv``), or ``case.xlsx:links`` for a sheet.
-    message:
+    message : str
         What is wrong, in plain words.
-    fix:
+    fix : str, default ""
         What the user should do.
-    row:
+    row : int or None, optional
         Spreadsheet row number (header = 1), or ``None`` when the problem is not in a row.
-    column:
+    column : str or None, optional
         Column name, or ``None``.
+
+    Examples
+    --------
+    >>> print(Problem("links.csv", "the lag is not a number", "write a whole number of days", row=3, column="lag"))
+    links.csv, row 3, column 'lag': the lag is not a number - write a whole number of days
     """
 
     file: str
@@ -68,7 +73,28 @@ class Problem:
 
 
 class CaseError(Exception):
-    """The case cannot be used as given. ``problems`` lists every problem found."""
+    """The case cannot be used as given; ``problems`` lists every problem found.
+
+    The message is one line per problem (:class:`Problem`'s text).
+
+    Parameters
+    ----------
+    problems : Problem or list of Problem or tuple of Problem
+        The problems found: at least one.
+
+    Raises
+    ------
+    ValueError
+        When ``problems`` is empty.
+
+    Examples
+    --------
+    >>> error = CaseError(Problem("events.csv", "the event id is blank", "give every event an id", row=2))
+    >>> len(error.problems)
+    1
+    >>> print(error)
+    events.csv, row 2: the event id is blank - give every event an id
+    """
 
     def __init__(self, problems: Problem | list[Problem] | tuple[Problem, ...]):
         if isinstance(problems, Problem):
@@ -87,6 +113,15 @@ class DateBoundError(CaseError):
     The engine turns it into a problem naming the snapshot and the durations and lags
     that drive the dates so far (:mod:`delay.bounds`); on its own it still reads as one
     plain line. ``earlier`` tells which bound: before the first date, or after the last.
+
+    Parameters
+    ----------
+    earlier : bool
+        ``True`` when the date would fall before the first date (1900-01-01), ``False``
+        when after the last (2200-12-31).
+    problems : Problem or list of Problem, optional
+        The problems to report; by default one problem on ``the schedule`` naming the
+        bound crossed and what to check.
     """
 
     def __init__(self, earlier: bool, problems: Problem | list[Problem] | None = None):
@@ -108,6 +143,18 @@ class ReconciliationError(Exception):
     Raised (never asserted, so ``python -O`` keeps the check) when, for example, the charges
     of a window do not sum to the window's movement of completion. ``where`` names the
     window or step and ``figures`` holds the numbers that disagree.
+
+    Parameters
+    ----------
+    where : str
+        The window, step or table whose figures disagree.
+    figures : dict
+        The figures that disagree, by name (copied).
+
+    Examples
+    --------
+    >>> print(ReconciliationError("window 2", {"charged_days": 9, "movement_days": 10}))
+    window 2: the figures do not reconcile (charged_days = 9, movement_days = 10)
     """
 
     def __init__(self, where: str, figures: dict):

@@ -75,13 +75,26 @@ MATCH_COLUMNS = ["activity", "events", "parties", "party", "basis"]
 
 
 def event_activities(case: Case) -> dict[str, set[str]]:
-    """Programme activity ids each event names: its ``activities`` and the programme
-    activities its fragnet links tie into.
+    """Give the programme activity ids each event names.
+
+    They are its ``activities`` and the programme activities its fragnet links tie into
+    (a link end that is not one of the fragnet's own activities). Computed once per case
+    (:func:`delay.memo.remembered`).
+
+    Parameters
+    ----------
+    case : Case
+        The loaded case.
 
     Returns
     -------
-    dict
+    dict of str to set of str
         Event id to a set of activity ids (every event of the register has an entry).
+
+    Examples
+    --------
+    >>> sorted(event_activities(demo)["EV02"])  # a fragnet tied into SUB-PILE-TEST-B
+    ['SUB-EXCAVATION-B', 'SUB-PILE-TEST-B', 'SUB-PILES-B']
     """
     from .memo import remembered
 
@@ -109,10 +122,21 @@ def asbuilt_activities(case: Case) -> dict[str, list[str]]:
     fragnet the as-built record shows as one recorded activity of its own); else, for a
     fragnet event, its fragnet's activity ids; else its ``activities``.
 
+    Parameters
+    ----------
+    case : Case
+        The loaded case.
+
     Returns
     -------
-    dict
+    dict of str to list of str
         Event id to the list of activity ids, in the order given.
+
+    Examples
+    --------
+    >>> found = asbuilt_activities(demo)
+    >>> found["EV01"], found["EV02"]  # EV02's fragnet shows as one recorded activity
+    (['SUB-EXCAVATION-A', 'SUB-EXCAVATION-B'], ['SUB-OBSTRUCTIONS'])
     """
     events = case.events
     given = events["asbuilt_activities"] if "asbuilt_activities" in events else pd.Series([""] * len(events))
@@ -131,13 +155,50 @@ def asbuilt_activities(case: Case) -> dict[str, list[str]]:
 
 
 def unexplained_risk(case: Case) -> str:
-    """Who carries slippage that no event and no risk column explains
-    (``[analysis] unexplained_risk``, default ``contractor``)."""
+    """Tell who carries slippage that no event and no risk column explains.
+
+    Parameters
+    ----------
+    case : Case
+        The loaded case.
+
+    Returns
+    -------
+    str
+        ``[analysis] unexplained_risk`` of case.toml: ``employer``, ``contractor`` or
+        ``neutral`` (``contractor`` when it is not set).
+
+    Examples
+    --------
+    >>> unexplained_risk(demo)
+    'contractor'
+    """
     return getattr(case.settings.analysis, "unexplained_risk", None) or "contractor"
 
 
 def activity_risk(snapshot: Snapshot, ids: Iterable[str]) -> list[str]:
-    """Each activity's ``risk`` column in a snapshot (``""`` when blank, absent or unknown)."""
+    """Give each activity's ``risk`` column in a snapshot.
+
+    The column is looked up once per snapshot and kept in ``snapshot.derived``.
+
+    Parameters
+    ----------
+    snapshot : Snapshot
+        The programme whose ``risk`` column is read.
+    ids : iterable of str
+        Activity ids.
+
+    Returns
+    -------
+    list of str
+        One party per id, in order: ``employer``, ``contractor`` or ``neutral``; ``""``
+        when the cell is blank or not a party, the column absent or the id unknown.
+
+    Examples
+    --------
+    >>> activity_risk(demo.baseline, ["ENV-DESIGN", "MEP-POWER-ON", "SET-HOARDING", "NOT-AN-ID"])
+    ['employer', 'neutral', '', '']
+    """
     ids = list(ids)
     risk = snapshot.derived.get("risk_by_id")
     if risk is None:  # looked up once per snapshot
@@ -177,13 +238,15 @@ def match_events(
 
     Parameters
     ----------
-    case:
+    case : Case
         The case with its event register.
-    activities:
+    activities : sequence of str
         Activity ids charged.
-    first, last:
-        The period charged, both included (``None``: open at that end).
-    snapshot:
+    first : datetime.date or None
+        The first day of the period charged, included (``None``: open at that end).
+    last : datetime.date or None
+        The last day of the period charged, included (``None``: open at that end).
+    snapshot : Snapshot, optional
         The programme whose ``risk`` column decides a charge no event explains (default:
         none: unexplained).
 
@@ -197,8 +260,13 @@ def match_events(
 
     Examples
     --------
-    >>> match_events(load_case("case_demo"), ["ENV-DESIGN"], dt.date(2025, 5, 31),
-    ...              dt.date(2025, 6, 30))   # doctest: +SKIP
+    Two events of different parties name FIT-B1-DECK in November 2025; nothing names
+    SET-HOARDING, whose ``risk`` is blank:
+
+    >>> found = match_events(demo, ["FIT-B1-DECK", "SET-HOARDING"], dt.date(2025, 10, 31),
+    ...                      dt.date(2025, 11, 30), demo.snapshot("2025-10-31"))
+    >>> found[["activity", "events", "party", "basis"]].values.tolist()
+    [['FIT-B1-DECK', ['EV05', 'EV06'], 'concurrent', 'event'], ['SET-HOARDING', [], 'contractor', 'unexplained']]
     """
     events = case.events
     named = event_activities(case)
@@ -227,9 +295,32 @@ def match_events(
 
 
 def events_naming(case: Case, activities: Iterable[str], first: dt.date | None, last: dt.date | None) -> list[str]:
-    """The events (register order) whose period overlaps ``first .. last`` (both included)
-    and that name any of ``activities``: the causes of a change to those activities, such
-    as a window's revision of their durations or logic."""
+    """List the events whose period overlaps ``first .. last`` and that name any of ``activities``.
+
+    These are the causes of a change to those activities, such as a window's revision of
+    their durations or logic.
+
+    Parameters
+    ----------
+    case : Case
+        The case with its event register.
+    activities : iterable of str
+        Activity ids.
+    first : datetime.date or None
+        The first day of the period, included (``None``: open at that end).
+    last : datetime.date or None
+        The last day of the period, included (``None``: open at that end).
+
+    Returns
+    -------
+    list of str
+        Event ids, in register order.
+
+    Examples
+    --------
+    >>> events_naming(demo, ["FIT-B1-DECK"], dt.date(2025, 10, 31), dt.date(2025, 11, 30))
+    ['EV05', 'EV06']
+    """
     wanted = set(activities)
     named = event_activities(case)
     live = _overlapping(case, first, last)
@@ -237,10 +328,26 @@ def events_naming(case: Case, activities: Iterable[str], first: dt.date | None, 
 
 
 def attributions(case: Case) -> pd.DataFrame:
-    """The analyst's attributions (attributions.csv, case format v2), with the snapshot
-    folder each names: columns ``window`` (as given), ``folder``, ``activity``, ``event``,
-    ``party`` (the event's party when an event is named) and ``reason``; empty when the
-    case has none."""
+    """Give the analyst's attributions (attributions.csv, case format v2), with the snapshot folder each names.
+
+    Parameters
+    ----------
+    case : Case
+        The loaded case.
+
+    Returns
+    -------
+    pandas.DataFrame
+        Columns ``window`` (as given), ``folder`` (the snapshot's folder; the window as
+        given when no snapshot has that name), ``activity``, ``event``, ``party`` (the
+        event's party when an event is named) and ``reason``; empty when the case has
+        none.
+
+    Examples
+    --------
+    >>> list(attributions(demo).columns), len(attributions(demo))
+    (['window', 'folder', 'activity', 'event', 'party', 'reason'], 0)
+    """
     columns = ["window", "folder", "activity", "event", "party", "reason"]
     table = getattr(case, "attributions", None)
     if table is None or not len(table):
@@ -272,16 +379,31 @@ _COMPLETION: weakref.WeakKeyDictionary[Case, str] = weakref.WeakKeyDictionary()
 
 
 def completion_activity(case: Case) -> str:
-    """The id of the project's completion activity.
+    """Give the id of the project's completion activity.
 
     ``[project] completion_activity`` when case.toml gives it; else the finish milestone
     that finishes last in the baseline (the last in the baseline's order on a tie); else
-    the activity that finishes last.
+    the activity that finishes last. Found once per case.
+
+    Parameters
+    ----------
+    case : Case
+        The loaded case.
+
+    Returns
+    -------
+    str
+        The activity's id.
 
     Raises
     ------
     CaseError
         When the baseline cannot be scheduled (a loop in its logic).
+
+    Examples
+    --------
+    >>> completion_activity(demo)
+    'MS-COMPLETION'
     """
     found = _COMPLETION.get(case)
     if found is not None:

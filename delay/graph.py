@@ -108,9 +108,9 @@ def topological_order(n: int, src: np.ndarray, dst: np.ndarray) -> np.ndarray | 
 
     Parameters
     ----------
-    n:
+    n : int
         Number of nodes; nodes are ``0 .. n-1``.
-    src, dst:
+    src, dst : numpy.ndarray
         Integer arrays of shape ``(m,)``: edge ``k`` runs from ``src[k]`` to ``dst[k]``.
         Parallel edges are allowed; a self-edge is a cycle.
 
@@ -151,9 +151,9 @@ def find_loop(n: int, src: np.ndarray, dst: np.ndarray) -> list[int] | None:
 
     Parameters
     ----------
-    n:
+    n : int
         Number of nodes; nodes are ``0 .. n-1``.
-    src, dst:
+    src, dst : numpy.ndarray
         Integer arrays of shape ``(m,)``: edge ``k`` runs from ``src[k]`` to ``dst[k]``.
 
     Returns

@@ -94,8 +94,32 @@ CHARGE_COLUMNS = [
 
 
 def ledger_number(result: ScheduleResult, activity: str) -> int:
-    """The number of the ledger calendar (the base calendar of ``activity``) in
-    ``result``'s calendar set, or of the default calendar when the activity is absent."""
+    """Give the number of the ledger calendar in ``result``'s calendar set.
+
+    The ledger calendar is the base calendar of ``activity`` (the calendar it was derived
+    from, when a hold gave it one of its own), or the default calendar when the activity
+    is absent.
+
+    Parameters
+    ----------
+    result : ScheduleResult
+        A scheduled snapshot.
+    activity : str
+        The id of the target activity (the project's completion activity, usually).
+
+    Returns
+    -------
+    int
+        A calendar number of ``result.model.calendars``.
+
+    Examples
+    --------
+    >>> from delay.cpm import schedule
+    >>> result = schedule(demo)
+    >>> number = ledger_number(result, "MS-COMPLETION")
+    >>> result.model.calendars.names[number]
+    'site5'
+    """
     model = result.model
     k = int(model.network.index_of([activity])[0])
     if k < 0:
@@ -104,14 +128,17 @@ def ledger_number(result: ScheduleResult, activity: str) -> int:
 
 
 def logic_late_finish(result: ScheduleResult, target: int) -> np.ndarray:
-    """Late finish and late start day numbers by logic alone, from the finish of activity
-    ``target``.
+    """Compute late finish and late start day numbers by logic alone, from the finish of ``target``.
+
+    The activities from which a chain of links leads to ``target`` are scheduled again
+    without the ``latest_finish`` and ``fixed_*`` constraints, their backward pass starting
+    from ``target``'s finish in ``result`` (:meth:`delay.cpm.ScheduleModel.logic_only`).
 
     Parameters
     ----------
-    result:
+    result : ScheduleResult
         A scheduled snapshot.
-    target:
+    target : int
         Activity number whose finish in ``result`` the backward pass starts from.
 
     Returns
@@ -119,7 +146,16 @@ def logic_late_finish(result: ScheduleResult, target: int) -> np.ndarray:
     numpy.ndarray
         ``int64`` day numbers, shape ``(2, n)``: late finishes, then late starts;
         :data:`delay.cpm.NO_DAY` for an activity that is complete or from which no chain of
-        links leads to ``target``.
+        links leads to ``target`` (for every activity when ``target`` is complete).
+
+    Examples
+    --------
+    >>> from delay.cpm import schedule
+    >>> result = schedule(demo)
+    >>> target = int(result.model.network.index_of("MS-COMPLETION")[0])
+    >>> late = logic_late_finish(result, target)
+    >>> late.shape, bool(late[0, target] == result.finish_day[target])
+    ((2, 263), True)
     """
     model = result.model
     net = model.network
@@ -135,11 +171,24 @@ def logic_late_finish(result: ScheduleResult, target: int) -> np.ndarray:
 
 @dataclass(frozen=True)
 class Levels:
-    """Per activity of *after*: its level at its finish and at its start (ledger work
-    days, ``NaN`` where *before* gives no late date), its number in *before* (``-1`` when
-    absent) and whether its duration (work days of its own calendar) is the same as in
-    *before* (``span_change``: its duration's growth in work days of its own calendar). A link
-    that reads a predecessor's start (SS, SF) passes on its start level."""
+    """Each activity's levels in *after* against *before*, made by :func:`levels`.
+
+    A link that reads a predecessor's start (SS, SF) passes on its start level; the other
+    links its level at its finish.
+
+    Parameters
+    ----------
+    level : numpy.ndarray
+        Per activity of *after*: its level at its finish, in ledger work days (``NaN``
+        where *before* gives no late date).
+    start_level : numpy.ndarray
+        Its level at its start, likewise.
+    before_number : numpy.ndarray
+        Its activity number in *before* (``-1`` when absent).
+    span_change : numpy.ndarray
+        Its duration's growth against *before*, in work days of its own calendar from
+        start to finish (0 when the same; 0 for a milestone).
+    """
 
     level: np.ndarray
     start_level: np.ndarray
@@ -192,23 +241,37 @@ def _level(
 
 
 def levels(after: ScheduleResult, before: ScheduleResult, late_before: np.ndarray, ledger: int) -> Levels:
-    """Each activity's levels in ``after`` against ``before`` (see the module docstring).
+    """Compute each activity's levels in ``after`` against ``before`` (see the module docstring).
 
     Parameters
     ----------
-    after, before:
-        Two schedules of the works (for example a window's half-step and its first
-        snapshot, or the as-built record and the baseline).
-    late_before:
+    after : ScheduleResult
+        The later of two schedules of the works (for example a window's half-step, or the
+        as-built record).
+    before : ScheduleResult
+        The earlier (the window's first snapshot, or the baseline).
+    late_before : numpy.ndarray
         Late finish and late start day numbers in ``before`` by logic alone
         (:func:`logic_late_finish`), aligned with ``before``'s activities.
-    ledger:
+    ledger : int
         Number of the ledger calendar in ``after``'s calendar set (the same number in
         ``before``'s: derived sets keep every calendar's number).
 
     Returns
     -------
     Levels
+        The levels, aligned with ``after``'s activities.
+
+    Examples
+    --------
+    The completion activity's level is its movement in ledger work days:
+
+    >>> from delay.cpm import schedule
+    >>> before, after = schedule(demo, "baseline"), schedule(demo, "2025-06-30")
+    >>> late = logic_late_finish(before, int(before.model.network.index_of("MS-COMPLETION")[0]))
+    >>> found = levels(after, before, late, ledger_number(before, "MS-COMPLETION"))
+    >>> before.completion, after.completion, float(found.level[after.model.network.index_of("MS-COMPLETION")[0]])
+    (datetime.date(2026, 5, 19), datetime.date(2026, 6, 1), 8.0)
     """
     position = before.model.network.index_of(after.ids)
     present = position >= 0
@@ -250,17 +313,25 @@ def _gap_change(after: ScheduleResult, before: ScheduleResult, link: int, before
 def trace_charges(
     after: ScheduleResult, before: ScheduleResult, late_before: np.ndarray, target: str, stop: np.ndarray, ledger: int
 ) -> pd.DataFrame:
-    """The charges of the movement of ``target`` along its driving chain in ``after``.
+    """Charge the movement of ``target`` along its driving chain in ``after``.
 
     Parameters
     ----------
-    after, before, late_before, ledger:
-        As for :func:`levels`.
-    target:
-        The id of the activity whose movement is explained (it must be in ``after``).
-    stop:
+    after : ScheduleResult
+        The later schedule, as for :func:`levels`.
+    before : ScheduleResult
+        The earlier schedule.
+    late_before : numpy.ndarray
+        Late finish and late start day numbers in ``before`` by logic alone
+        (:func:`logic_late_finish`).
+    target : str
+        The id of the activity whose movement is explained; no charges (an empty table)
+        when it is not in ``after`` or ``stop`` holds it.
+    stop : numpy.ndarray
         Boolean array over ``after``'s activities: the trace ends at these (their level
         counts as zero).
+    ledger : int
+        Number of the ledger calendar, as for :func:`levels`.
 
     Returns
     -------
@@ -276,6 +347,26 @@ def trace_charges(
     ------
     ReconciliationError
         When the counted charges do not add up to the target's level.
+
+    References
+    ----------
+    AACE International Recommended Practice 29R-03 (2011), MIP 3.1 to 3.4; SCL Delay and
+    Disruption Protocol, 2nd edition (2017), core principle 7 on float (both as recalled).
+
+    Examples
+    --------
+    From the baseline to the update of 2025-06-30 the completion moved 8 work days, all
+    charged to the facade design information (ENV-DESIGN):
+
+    >>> from delay.cpm import schedule
+    >>> before, after = schedule(demo, "baseline"), schedule(demo, "2025-06-30")
+    >>> late = logic_late_finish(before, int(before.model.network.index_of("MS-COMPLETION")[0]))
+    >>> nothing_stops = np.zeros(after.model.network.size, dtype=bool)
+    >>> charges = trace_charges(after, before, late, "MS-COMPLETION", nothing_stops, 0)
+    >>> charges[charges["counted"] & (charges["work_days"] != 0)][["activity", "work_days"]].values.tolist()
+    [['ENV-DESIGN', 8]]
+    >>> int(charges.loc[charges["counted"], "work_days"].sum())
+    8
     """
     net = after.model.network
     k = int(net.index_of([target])[0])
@@ -473,13 +564,16 @@ def split_days(first_day: int, last_day: int, steps, result: ScheduleResult, led
 
     Parameters
     ----------
-    first_day, last_day:
-        The two completion dates (day numbers) the steps lead from and to.
-    steps:
+    first_day : int
+        The completion date (day number) the steps lead from.
+    last_day : int
+        The completion date (day number) the steps lead to.
+    steps : iterable of int
         Work days of each step, in order (positive: later).
-    result:
-        A schedule whose calendar set holds the ledger calendar.
-    ledger:
+    result : ScheduleResult
+        A schedule whose calendar set holds the ledger calendar (only
+        ``result.model.calendars`` is read).
+    ledger : int
         The ledger calendar's number.
 
     Returns
@@ -495,7 +589,16 @@ def split_days(first_day: int, last_day: int, steps, result: ScheduleResult, led
     Examples
     --------
     Two steps of 1 and 2 work days from a Friday on a Monday-to-Friday calendar take 3 and
-    2 calendar days (to Monday, then to Wednesday).
+    2 calendar days (to Monday, then to Wednesday):
+
+    >>> from types import SimpleNamespace
+    >>> from delay.calendars import CalendarSet, WorkCalendar
+    >>> from delay.convert import to_days
+    >>> week = CalendarSet({"5d": WorkCalendar.from_weekdays("5d", anchor="2025-01-06")})
+    >>> result = SimpleNamespace(model=SimpleNamespace(calendars=week))
+    >>> friday, wednesday = (int(day) for day in to_days(["2025-01-10", "2025-01-15"]))
+    >>> split_days(friday, wednesday, [1, 2], result, 0).tolist()
+    [3, 2]
     """
     steps = np.asarray(list(steps), dtype=np.int64)
     cals = result.model.calendars

@@ -23,20 +23,22 @@ _STORE: weakref.WeakKeyDictionary[object, dict[Hashable, object]] = weakref.Weak
 
 
 def remembered(case, key: Hashable, compute: Callable[[], T]) -> T:
-    """The result of ``compute()`` for ``case`` and ``key``, computed on the first call only.
+    """Return the result of ``compute()`` for ``case`` and ``key``, computed on the first call only.
 
     Parameters
     ----------
-    case:
-        The loaded case the result belongs to (kept weakly).
-    key:
+    case : object
+        The loaded case the result belongs to (kept weakly: it must be weak-referenceable).
+    key : Hashable
         What was computed and with which options, e.g. ``("windows", (), True)``.
-    compute:
-        Computes the result when it is not known yet. An exception is not remembered.
+    compute : callable
+        Computes the result, called with no arguments when it is not known yet. An
+        exception it raises passes through and is not remembered.
 
     Returns
     -------
-    The remembered result.
+    object
+        The remembered result: the very object the first call computed.
 
     Examples
     --------
@@ -54,5 +56,24 @@ def remembered(case, key: Hashable, compute: Callable[[], T]) -> T:
 
 
 def forget(case) -> None:
-    """Drop every result remembered for ``case`` (tests that change a case's tables use it)."""
+    """Drop every result remembered for ``case``.
+
+    Tests that change a case's tables use it; a case with nothing remembered is left as it
+    is.
+
+    Parameters
+    ----------
+    case : object
+        The loaded case.
+
+    Examples
+    --------
+    >>> class Case: pass
+    >>> case = Case()
+    >>> remembered(case, "answer", lambda: 42)
+    42
+    >>> forget(case)
+    >>> remembered(case, "answer", lambda: 43)
+    43
+    """
     _STORE.pop(case, None)

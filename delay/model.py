@@ -135,11 +135,20 @@ COLUMNS: dict[str, tuple[str, ...]] = {
 
 @dataclass(frozen=True)
 class ProjectSettings:
-    """``[project]`` of case.toml.
+    """The ``[project]`` table of case.toml.
 
-    ``completion_activity`` is the activity whose finish is the completion of the whole
-    works, as given; ``None`` when case.toml names none (the methods then take the finish
-    milestone that finishes last in the baseline).
+    Parameters
+    ----------
+    name : str
+        The project's name.
+    contract_start : datetime.date
+        The date the works may start.
+    contract_completion : datetime.date
+        The contractual completion date of the whole works.
+    completion_activity : str or None, optional
+        The activity whose finish is the completion of the whole works, as given; ``None``
+        when case.toml names none (the methods then take the finish milestone that
+        finishes last in the baseline).
     """
 
     name: str
@@ -150,9 +159,28 @@ class ProjectSettings:
 
 @dataclass(frozen=True)
 class ScheduleSettings:
-    """``[schedule]`` of case.toml: everything the CPM engine needs to know.
+    """The ``[schedule]`` table of case.toml: everything the CPM engine needs to know.
 
     Override one field for a what-if with :func:`dataclasses.replace`.
+
+    Parameters
+    ----------
+    default_calendar : str, default "5d"
+        The calendar of an activity that names none.
+    progress : {"retained_logic", "progress_override"}, default "retained_logic"
+        How out-of-sequence progress is scheduled: the remaining work of an activity in
+        progress still waits for its predecessors, or not.
+    lag_calendar : {"successor", "predecessor"}, default "successor"
+        Whose calendar counts a lag, in work days.
+    float_to : {"project_finish", "contract_completion"}, default "project_finish"
+        Where the backward pass starts: the early completion, or the contract completion
+        date.
+
+    Examples
+    --------
+    >>> import dataclasses
+    >>> dataclasses.replace(ScheduleSettings(), progress="progress_override").progress
+    'progress_override'
     """
 
     default_calendar: str = "5d"
@@ -163,7 +191,21 @@ class ScheduleSettings:
 
 @dataclass(frozen=True)
 class CommercialSettings:
-    """``[commercial]`` of case.toml (all optional)."""
+    """The ``[commercial]`` table of case.toml (all optional).
+
+    Parameters
+    ----------
+    currency : str, default "EUR"
+        ISO 4217 code of every amount.
+    liquidated_damages_per_day : float, default 0.0
+        Liquidated damages per calendar day of delay for the whole works (sections.csv may
+        set a section's own).
+    liquidated_damages_cap : float, default 0.0
+        The most liquidated damages may come to; 0 for no cap.
+    prolongation_cost_per_day : float, default 0.0
+        Time-related cost per calendar day, a flat rate (prolongation_rates.csv overrides
+        it by period).
+    """
 
     currency: str = "EUR"
     liquidated_damages_per_day: float = 0.0
@@ -173,7 +215,19 @@ class CommercialSettings:
 
 @dataclass(frozen=True)
 class AnalysisSettings:
-    """``[analysis]`` of case.toml (all optional)."""
+    """The ``[analysis]`` table of case.toml (all optional).
+
+    Parameters
+    ----------
+    half_step : bool, default True
+        Whether the windows analysis splits each window into the effect of progress and
+        the effect of revisions.
+    concurrency : {"time_not_money", "apportion"}, default "time_not_money"
+        How concurrent critical delay is treated: time without money, or shared out in
+        proportion.
+    unexplained_risk : {"employer", "contractor", "neutral"}, default "contractor"
+        Who carries slippage that no event and no activity's ``risk`` explains.
+    """
 
     half_step: bool = True
     concurrency: Literal["time_not_money", "apportion"] = "time_not_money"
@@ -183,10 +237,13 @@ class AnalysisSettings:
 
 @dataclass(frozen=True)
 class ReportSettings:
-    """``[report]`` of case.toml (all optional).
+    """The ``[report]`` table of case.toml (all optional).
 
-    ``preferred_method`` is the method the analyst relies on (one of :data:`METHODS`), or
-    ``None`` when case.toml names none.
+    Parameters
+    ----------
+    preferred_method : {"windows", "asbuilt", "impacted", "tia", "collapsed"} or None, optional
+        The method the analyst relies on (one of :data:`METHODS`), or ``None`` when
+        case.toml names none.
     """
 
     preferred_method: Literal["windows", "asbuilt", "impacted", "tia", "collapsed"] | None = None
@@ -194,7 +251,7 @@ class ReportSettings:
 
 @dataclass(frozen=True)
 class InputSettings:
-    """``[input]`` of case.toml (all optional): the dialect the case's CSV files are in.
+    """The ``[input]`` table of case.toml (all optional): the dialect the case's CSV files are in.
 
     ``delimiter`` (``None``: detected from each file's header row) and ``encoding``
     (``None``: UTF-8; a byte-order mark always decides) say how files are read;
@@ -203,6 +260,20 @@ class InputSettings:
     point being understood too; ``columns`` maps, per table, a header of the user's files
     (matched ignoring case and surrounding spaces, as its key here) to the case format's
     column. What was read for each file is :attr:`Case.input_dialects`.
+
+    Parameters
+    ----------
+    delimiter : str or None, optional
+        The field delimiter; ``None`` to detect it from each file's header row.
+    encoding : str or None, optional
+        The text encoding; ``None`` for UTF-8 (a byte-order mark always decides).
+    date_format : str, default "%Y-%m-%d"
+        A :func:`datetime.datetime.strptime` format applied to every date column.
+    decimal : str, default "."
+        The decimal mark of every number, ``"."`` or ``","``.
+    columns : Mapping of str to Mapping of str to str, optional
+        Per table, a header of the user's files (lower case, spaces stripped) to the case
+        format's column.
     """
 
     delimiter: str | None = None
@@ -214,7 +285,33 @@ class InputSettings:
 
 @dataclass(frozen=True)
 class CaseSettings:
-    """All of case.toml, defaults applied. ``extra`` keeps keys the toolkit does not know."""
+    """All of case.toml, defaults applied.
+
+    Parameters
+    ----------
+    project : ProjectSettings
+        ``[project]``.
+    schedule : ScheduleSettings, optional
+        ``[schedule]``.
+    commercial : CommercialSettings, optional
+        ``[commercial]``.
+    analysis : AnalysisSettings, optional
+        ``[analysis]``.
+    report : ReportSettings, optional
+        ``[report]``.
+    input : InputSettings, optional
+        ``[input]``.
+    extra : Mapping of str to object, optional
+        The keys of case.toml the toolkit does not know, kept as read.
+
+    Examples
+    --------
+    >>> demo.settings.schedule  # doctest: +NORMALIZE_WHITESPACE
+    ScheduleSettings(default_calendar='site5', progress='retained_logic', lag_calendar='successor',
+                     float_to='project_finish')
+    >>> demo.settings.commercial.liquidated_damages_per_day
+    4500.0
+    """
 
     project: ProjectSettings
     schedule: ScheduleSettings = field(default_factory=ScheduleSettings)
@@ -239,6 +336,31 @@ class Snapshot:
     ``"update"`` or ``"asbuilt"``. The as-built snapshot is the last update with the
     as-built record's actual dates laid over it, every activity complete, and a data date
     one day after the latest actual finish.
+
+    Parameters
+    ----------
+    folder : str
+        The folder name under ``snapshots/`` (``"asbuilt"`` for the as-built snapshot).
+    label : str
+        The label from snapshot.toml.
+    data_date : datetime.date
+        The data date.
+    kind : {"baseline", "update", "asbuilt"}
+        What the snapshot is.
+    activities_table : pandas.DataFrame
+        The activities (read them through :attr:`activities`, a copy-on-write copy).
+    links_table : pandas.DataFrame
+        The links (read them through :attr:`links`).
+    derived : dict, optional
+        Data derived from the tables once per snapshot (the codes the case loader found
+        while checking them, the engine's compiled arrays), shared by every later use;
+        never part of the snapshot's identity.
+
+    Examples
+    --------
+    >>> snapshot = demo.snapshot("Update 01")
+    >>> snapshot.folder, snapshot.kind, snapshot.data_date
+    ('2025-03-31', 'update', datetime.date(2025, 3, 31))
     """
 
     folder: str
@@ -286,6 +408,30 @@ class Correction:
     ``record`` describes the corrected thing in words (``"snapshot 'Update 03', activity
     A120, column remaining"``); ``original`` and ``corrected`` are the cell values as text
     (``""`` for blank); ``row`` is the row of corrections.csv that asked for it.
+
+    Parameters
+    ----------
+    snapshot : str
+        The snapshot corrected (its label or folder, as corrections.csv gives it).
+    table : str
+        ``"activities"`` or ``"links"``.
+    key : str
+        The activity id, or the link's ends.
+    column : str
+        The column corrected.
+    original : str
+        The value before, as text.
+    corrected : str
+        The value after, as text.
+    reason : str
+        The analyst's reason, disclosed in the report.
+    row : int
+        The row of corrections.csv (header = 1).
+
+    Examples
+    --------
+    >>> print(demo.corrections[0].record)
+    snapshot 'Update 13', activity MEP-03-SECOND-FIX, column remaining
     """
 
     snapshot: str
@@ -299,6 +445,7 @@ class Correction:
 
     @property
     def record(self) -> str:
+        """The corrected thing in words: snapshot, activity or link, and column."""
         thing = "activity" if self.table == "activities" else "link"
         return f"snapshot '{self.snapshot}', {thing} {self.key}, column {self.column}"
 
@@ -324,22 +471,49 @@ _VERSION_2_TABLES = ("attributions",)
 class Case:
     """A validated case. Build it with :func:`delay.case.load_case`.
 
-    Attributes
+    Parameters
     ----------
-    root: the case folder, or the workbook's path.
-    settings: :class:`CaseSettings`.
-    snapshots: baseline first, then updates by data date (the as-built snapshot is not
-        among them; see :attr:`asbuilt_snapshot`).
-    asbuilt_snapshot: :class:`Snapshot` built from the as-built record, or ``None``.
-    corrections: the analyst's corrections, applied, in corrections.csv order.
-    input_files: every file read, for the report's manifest.
-    opinion: the analyst's opinion (opinion.md) as text, ``""`` when there is none.
-    input_dialects: per CSV file (or sheet) read, what was read: delimiter, encoding,
-        date format, decimal mark and renamed headers (``delay.case._dialect.Dialect``).
+    root : Path
+        The case folder, or the workbook's path.
+    settings : CaseSettings
+        The settings of case.toml, defaults applied.
+    tables : Mapping of str to pandas.DataFrame
+        The case's tables other than the snapshots' by name (``events``, ``sections`` ...),
+        each also an attribute of the case (``case.events``), handed out as a
+        copy-on-write copy.
+    snapshots : tuple of Snapshot
+        Baseline first, then updates by data date (the as-built snapshot is not among
+        them; see ``asbuilt_snapshot``).
+    asbuilt_snapshot : Snapshot or None
+        The snapshot built from the as-built record, or ``None``.
+    corrections : tuple of Correction
+        The analyst's corrections, applied, in corrections.csv order.
+    input_files : tuple of Path
+        Every file read, for the report's manifest.
+    opinion : str, default ""
+        The analyst's opinion (opinion.md) as text, ``""`` when there is none.
+    input_dialects : tuple, optional
+        Per CSV file (or sheet) read, what was read: delimiter, encoding, date format,
+        decimal mark and renamed headers (``delay.case._dialect.Dialect``).
 
+    Raises
+    ------
+    ValueError
+        When ``tables`` lacks a table the case format has (a fault of the caller).
+
+    Notes
+    -----
     Each optional table is present (empty, with its stable columns) even when its file
     is absent. A table added in case-format version 2 (``attributions``) may be left out
     of ``tables`` when a case is built by hand: it is then empty.
+
+    Examples
+    --------
+    >>> demo  # doctest: +NORMALIZE_WHITESPACE
+    Case('Tessaly Wharf, Brennholm: mixed-use building (fictitious demo case)', snapshots=17, events=11,
+         elements=687)
+    >>> demo.baseline.label, len(demo.updates), demo.asbuilt_snapshot.folder
+    ('Baseline', 16, 'asbuilt')
     """
 
     def __init__(
@@ -372,13 +546,53 @@ class Case:
         self.input_files = tuple(input_files)
 
     def table(self, name: str) -> pd.DataFrame:
-        """The table ``name`` (a key of ``COLUMNS`` other than activities and links)."""
+        """Give one of the case's tables by name, as a copy-on-write copy.
+
+        Parameters
+        ----------
+        name : str
+            A key of ``COLUMNS`` other than ``activities`` and ``links``.
+
+        Returns
+        -------
+        pandas.DataFrame
+            The table; changing it does not change the case.
+
+        Raises
+        ------
+        KeyError
+            For another name.
+
+        Examples
+        --------
+        >>> list(demo.table("sections").columns)[:3]
+        ['section', 'name', 'completion_activity']
+        """
         return _read_only(self._tables[name])
 
     def snapshot(self, name: str = "baseline") -> Snapshot:
-        """A snapshot by folder name, then by label; ``"asbuilt"`` gives the as-built one.
+        """Find a snapshot by folder name, then by label; ``"asbuilt"`` gives the as-built one.
 
-        Raises ``KeyError`` with the known names when there is none of that name.
+        Parameters
+        ----------
+        name : str, default "baseline"
+            A folder name under snapshots/ or a label; ``"baseline"`` also finds a
+            baseline whose folder and label are named otherwise.
+
+        Returns
+        -------
+        Snapshot
+            The snapshot.
+
+        Raises
+        ------
+        KeyError
+            With the known folder names, when there is none of that name.
+
+        Examples
+        --------
+        >>> demo.snapshot("Update 01").folder, demo.snapshot("2025-03-31").label
+        ('2025-03-31', 'Update 01')
         """
         candidates = list(self.snapshots)
         if self.asbuilt_snapshot is not None:
@@ -394,10 +608,12 @@ class Case:
 
     @property
     def baseline(self) -> Snapshot:
+        """The first snapshot: the baseline."""
         return self.snapshots[0]
 
     @property
     def updates(self) -> tuple[Snapshot, ...]:
+        """The snapshots after the baseline, by data date (the as-built one not among them)."""
         return self.snapshots[1:]
 
     def __repr__(self) -> str:

@@ -38,12 +38,44 @@ LINK_CODES = {name: code for code, name in enumerate(LINK_TYPES)}  # FS 0, SS 1,
 
 
 def reads_finish(link_type: np.ndarray) -> np.ndarray:
-    """Whether each link reads its predecessor's finish (FS, FF)."""
+    """Tell for each link whether it reads its predecessor's finish (FS, FF).
+
+    Parameters
+    ----------
+    link_type : numpy.ndarray
+        Link type codes: FS 0, SS 1, FF 2, SF 3.
+
+    Returns
+    -------
+    numpy.ndarray
+        Boolean, one per link.
+
+    Examples
+    --------
+    >>> reads_finish(np.array([0, 1, 2, 3])).tolist()
+    [True, False, True, False]
+    """
     return (np.asarray(link_type) == 0) | (np.asarray(link_type) == 2)
 
 
 def bounds_finish(link_type: np.ndarray) -> np.ndarray:
-    """Whether each link bounds its successor's finish (FF, SF)."""
+    """Tell for each link whether it bounds its successor's finish (FF, SF).
+
+    Parameters
+    ----------
+    link_type : numpy.ndarray
+        Link type codes: FS 0, SS 1, FF 2, SF 3.
+
+    Returns
+    -------
+    numpy.ndarray
+        Boolean, one per link.
+
+    Examples
+    --------
+    >>> bounds_finish(np.array([0, 1, 2, 3])).tolist()
+    [False, False, True, True]
+    """
     return np.asarray(link_type) >= 2
 
 
@@ -51,21 +83,54 @@ def bounds_finish(link_type: np.ndarray) -> np.ndarray:
 class Network:
     """Activities and links as arrays.
 
+    Made by :func:`build_network` (or :func:`compile_network` from case tables), which
+    checks the logic for loops and finds the topological order. The layout copies link
+    types and lags: vary a network through :meth:`with_lags` and :meth:`extended`, not
+    ``dataclasses.replace``.
+
+    Parameters
+    ----------
+    ids : numpy.ndarray
+        ``object`` array of activity ids, shape ``(n,)``.
+    pred : numpy.ndarray
+        ``int64`` array, shape ``(m,)``: the activity number of each link's predecessor.
+    succ : numpy.ndarray
+        ``int64`` array, shape ``(m,)``: the activity number of each link's successor.
+    link_type : numpy.ndarray
+        ``int8`` array, shape ``(m,)``: FS 0, SS 1, FF 2, SF 3.
+    lag : numpy.ndarray
+        ``int64`` array, shape ``(m,)``: lag in work days (negative: a lead).
+    order : numpy.ndarray
+        ``int64`` array, shape ``(n,)``: the activities in a topological order.
+    rank : numpy.ndarray
+        ``int64`` array, shape ``(n,)``: each activity's position in ``order``.
+    out_ptr : numpy.ndarray
+        ``int64`` array, shape ``(n + 1,)``: with ``out_link``, the links by predecessor
+        (compressed rows): the links out of activity ``v`` are
+        ``out_link[out_ptr[v]:out_ptr[v + 1]]``, in input order.
+    out_link : numpy.ndarray
+        ``int64`` array, shape ``(m,)``: link numbers grouped by predecessor.
+    passes : PassLayout
+        The links laid out for the CPM passes.
+
     Attributes
     ----------
-    ids: ``object`` array of activity ids, shape ``(n,)``.
-    pred, succ: ``int64`` arrays, shape ``(m,)``: activity numbers of each link's ends.
-    link_type: ``int8`` array, shape ``(m,)``: FS 0, SS 1, FF 2, SF 3.
-    lag: ``int64`` array, shape ``(m,)``: lag in work days (negative: a lead).
-    order: ``int64`` array, shape ``(n,)``: the activities in a topological order.
-    rank: ``int64`` array, shape ``(n,)``: each activity's position in ``order``.
-    out_ptr, out_link: CSR of links by predecessor: the links out of activity ``v`` are
-        ``out_link[out_ptr[v]:out_ptr[v + 1]]``, in input order.
-    passes: the links laid out for the CPM passes (:class:`PassLayout`).
-    in_ptr, in_link: the same as ``out_*`` by successor (built on first use).
+    size : int
+        The number of activities, ``n``.
+    link_count : int
+        The number of links, ``m``.
+    index : pandas.Index
+        The activity ids as an index (built once per network).
+    in_ptr, in_link : numpy.ndarray
+        The same as ``out_ptr`` and ``out_link`` by successor (built on first use).
+    has_predecessor : numpy.ndarray
+        Whether each activity has at least one link into it.
 
-    The layout copies link types and lags: vary a network through :meth:`with_lags` and
-    :meth:`extended`, not ``dataclasses.replace``.
+    Examples
+    --------
+    >>> net = build_network(np.array(["A", "B", "C"], dtype=object), [0, 1], [1, 2], [0, 0], [0, 3])
+    >>> net.size, net.link_count, net.order.tolist()
+    (3, 2, [0, 1, 2])
     """
 
     ids: np.ndarray
@@ -81,10 +146,12 @@ class Network:
 
     @property
     def size(self) -> int:
+        """The number of activities, ``n``."""
         return int(self.ids.size)
 
     @property
     def link_count(self) -> int:
+        """The number of links, ``m``."""
         return int(self.pred.size)
 
     @cached_property
@@ -100,10 +167,12 @@ class Network:
 
     @property
     def in_ptr(self) -> np.ndarray:
+        """Row starts of the links by successor, shape ``(n + 1,)`` (built on first use)."""
         return self._in_rows[0]
 
     @property
     def in_link(self) -> np.ndarray:
+        """Link numbers grouped by successor, in input order within one (built on first use)."""
         return self._in_rows[1]
 
     @cached_property
@@ -114,8 +183,27 @@ class Network:
         return has
 
     def upstream(self, activities, links: np.ndarray | None = None) -> np.ndarray:
-        """Boolean mask of the activities from which a chain of links (all links, or those
-        where ``links`` is true) leads to any of ``activities`` (numbers), them included."""
+        """Mark the activities from which a chain of links leads to any of ``activities``.
+
+        Parameters
+        ----------
+        activities : array_like of int
+            Activity numbers.
+        links : numpy.ndarray, optional
+            Boolean mask over the links (link order): only the links where it is true are
+            followed. By default every link is.
+
+        Returns
+        -------
+        numpy.ndarray
+            Boolean mask over the activities (activity order), ``activities`` included.
+
+        Examples
+        --------
+        >>> net = build_network(np.array(["A", "B", "C"], dtype=object), [0, 1], [1, 2], [0, 0], [0, 0])
+        >>> net.upstream([1]).tolist()
+        [True, True, False]
+        """
         from ._kernels import mark_upstream
 
         on = np.zeros(self.size, dtype=bool)
@@ -161,7 +249,25 @@ class Network:
         return np.fromiter((number.get(i, more.get(i, -1)) for i in ids), dtype=np.int64, count=len(ids))
 
     def index_of(self, ids) -> np.ndarray:
-        """Activity numbers of ids; ``-1`` for an unknown id."""
+        """Look up the activity numbers of ids.
+
+        Parameters
+        ----------
+        ids : str or iterable of str
+            One id or several.
+
+        Returns
+        -------
+        numpy.ndarray
+            One activity number per id (an array of one for a single id); ``-1`` for an
+            unknown id.
+
+        Examples
+        --------
+        >>> net = build_network(np.array(["A", "B", "C"], dtype=object), [0, 1], [1, 2], [0, 0], [0, 0])
+        >>> net.index_of(["C", "X"]).tolist(), net.index_of("B").tolist()
+        ([2, -1], [1])
+        """
         if isinstance(ids, np.ndarray) and ids.shape == self.ids.shape and np.array_equal(ids, self.ids):
             return np.arange(self.size)  # another schedule of the same activities: nothing to look up
         ids = [ids] if isinstance(ids, str) else list(ids)
@@ -170,13 +276,47 @@ class Network:
         return self.index.get_indexer(pd.Index(ids))
 
     def predecessor_count(self) -> np.ndarray:
+        """Count the links into each activity.
+
+        Returns
+        -------
+        numpy.ndarray
+            ``int64``, one per activity (activity order).
+        """
         return np.bincount(self.succ, minlength=self.size)
 
     def successor_count(self) -> np.ndarray:
+        """Count the links out of each activity.
+
+        Returns
+        -------
+        numpy.ndarray
+            ``int64``, one per activity (activity order).
+        """
         return np.bincount(self.pred, minlength=self.size)
 
     def with_lags(self, lag) -> Network:
-        """The same network with other lags (one per link, in link order)."""
+        """Make the same network with other lags.
+
+        The order and the layout are kept; only the lags are copied in (the whole layout
+        is built again when a lag no longer fits its 32-bit numbers).
+
+        Parameters
+        ----------
+        lag : array_like of int
+            One lag per link, in link order, in work days.
+
+        Returns
+        -------
+        Network
+            The new network; this one does not change.
+
+        Examples
+        --------
+        >>> net = build_network(np.array(["A", "B"], dtype=object), [0], [1], [0], [0])
+        >>> net.with_lags([4]).lag.tolist(), net.lag.tolist()
+        ([4], [0])
+        """
         lag = np.ascontiguousarray(lag, dtype=np.int64)
         layout = self.passes
         number = _layout_number(self.size, lag)
@@ -188,15 +328,40 @@ class Network:
         return dataclasses.replace(self, lag=lag, passes=passes)
 
     def extended(self, new_ids=(), pred=(), succ=(), link_type=(), lag=(), source="fragnet"):
-        """A new network with activities and links added (a fragnet, an added link).
+        """Make a new network with activities and links added (a fragnet, an added link).
 
-        ``pred`` and ``succ`` are activity numbers in the extended numbering (existing
-        activities keep theirs; new ones follow in ``new_ids`` order).
+        Parameters
+        ----------
+        new_ids : iterable of str, optional
+            Ids of the activities added; they are numbered after the existing ones, in
+            this order.
+        pred : array_like of int, optional
+            The added links' predecessors, as activity numbers in the extended numbering
+            (existing activities keep theirs).
+        succ : array_like of int, optional
+            The added links' successors, likewise.
+        link_type : array_like of int, optional
+            The added links' type codes (FS 0, SS 1, FF 2, SF 3).
+        lag : array_like of int, optional
+            The added links' lags in work days.
+        source : str, default "fragnet"
+            What the problem names as the file when the additions close a loop.
+
+        Returns
+        -------
+        Network
+            The extended network, its order and layout built anew.
 
         Raises
         ------
         CaseError
             When the additions close a logic loop; the message names the activities in it.
+
+        Examples
+        --------
+        >>> net = build_network(np.array(["A", "B"], dtype=object), [0], [1], [0], [0])
+        >>> net.extended(["C"], pred=[1], succ=[2], link_type=[0], lag=[0]).order.tolist()
+        [0, 1, 2]
         """
         ids = np.concatenate([self.ids, np.asarray(list(new_ids), dtype=object)])
         all_pred = np.concatenate([self.pred, np.asarray(pred, dtype=np.int64)])
@@ -208,9 +373,45 @@ class Network:
 
 @dataclass(frozen=True, eq=False)
 class PassLayout:
-    """A network's links in the order the CPM passes read them (see
-    :func:`delay._kernels.order_and_layout`): activities by topological position ``i`` (activity
-    ``order[i]``), the links into each position in ``f_*`` and out of it in ``b_*``."""
+    """A network's links in the order the CPM passes read them.
+
+    Built by :func:`delay._kernels.order_and_layout`: activities by topological position
+    ``i`` (activity ``order[i]``), the links into each position in ``f_*`` (the forward
+    pass) and out of it in ``b_*`` (the backward pass). Position, link and lag arrays are
+    ``int32`` where every value fits, else ``int64``.
+
+    Parameters
+    ----------
+    f_ptr : numpy.ndarray
+        Shape ``(n + 1,)``: the links into position ``i`` are entries
+        ``f_ptr[i]:f_ptr[i + 1]`` of the other ``f_*`` arrays.
+    f_pred : numpy.ndarray
+        The predecessor of each of those links, by topological position.
+    f_type : numpy.ndarray
+        Its link type code (``int8``).
+    f_lag : numpy.ndarray
+        Its lag in work days.
+    f_link : numpy.ndarray
+        Its link number (link order).
+    b_ptr : numpy.ndarray
+        Shape ``(n + 1,)``: the links out of position ``i`` are entries
+        ``b_ptr[i]:b_ptr[i + 1]`` of the other ``b_*`` arrays.
+    b_succ : numpy.ndarray
+        The successor of each of those links, by topological position.
+    b_type : numpy.ndarray
+        Its link type code (``int8``).
+    b_lag : numpy.ndarray
+        Its lag in work days.
+    b_link : numpy.ndarray
+        Its link number (link order).
+
+    Attributes
+    ----------
+    forward : tuple of numpy.ndarray
+        ``(f_ptr, f_pred, f_type, f_lag)``, the forward pass's arguments.
+    backward : tuple of numpy.ndarray
+        ``(b_ptr, b_succ, b_type, b_lag)``, the backward pass's arguments.
+    """
 
     f_ptr: np.ndarray
     f_pred: np.ndarray
@@ -225,10 +426,12 @@ class PassLayout:
 
     @property
     def forward(self) -> tuple:
+        """``(f_ptr, f_pred, f_type, f_lag)``, the forward pass's arguments."""
         return self.f_ptr, self.f_pred, self.f_type, self.f_lag
 
     @property
     def backward(self) -> tuple:
+        """``(b_ptr, b_succ, b_type, b_lag)``, the backward pass's arguments."""
         return self.b_ptr, self.b_succ, self.b_type, self.b_lag
 
 
@@ -253,12 +456,42 @@ def _layout_number(n: int, lag: np.ndarray):
 
 
 def build_network(ids, pred, succ, link_type, lag, source="links.csv") -> Network:
-    """A Network from arrays (activity numbers, link type codes, lags).
+    """Build a Network from arrays: its topological order and the passes' layout.
+
+    Parameters
+    ----------
+    ids : numpy.ndarray
+        ``object`` array of activity ids; the activities are numbered in this order.
+    pred : array_like of int
+        Each link's predecessor (activity number).
+    succ : array_like of int
+        Each link's successor (activity number).
+    link_type : array_like of int
+        Each link's type code: FS 0, SS 1, FF 2, SF 3.
+    lag : array_like of int
+        Each link's lag in work days (negative: a lead).
+    source : str, default "links.csv"
+        The file the problem names when the links form a loop.
+
+    Returns
+    -------
+    Network
+        The compiled network.
 
     Raises
     ------
     CaseError
         When the links form a loop; the message names every activity in it, in order.
+
+    Examples
+    --------
+    >>> ids = np.array(["A", "B", "C"], dtype=object)
+    >>> build_network(ids, pred=[2, 0], succ=[1, 2], link_type=[0, 0], lag=[0, 0]).order.tolist()
+    [0, 2, 1]
+    >>> build_network(ids[:2], pred=[0, 1], succ=[1, 0], link_type=[0, 0], lag=[0, 0])
+    Traceback (most recent call last):
+    ...
+    delay.errors.CaseError: links.csv: logic loop: A -> B -> A - remove or reverse one of the links in the loop
     """
     network = sorted_network(ids, pred, succ, link_type, lag)
     if network is None:
@@ -267,8 +500,33 @@ def build_network(ids, pred, succ, link_type, lag, source="links.csv") -> Networ
 
 
 def sorted_network(ids, pred, succ, link_type, lag) -> Network | None:
-    """:func:`build_network`, or ``None`` when the links form a loop (the case loader's
-    loop check: it names the loop itself, at the row of the file)."""
+    """Build a Network like :func:`build_network`, or give ``None`` when the links form a loop.
+
+    The case loader's loop check: it names the loop itself, at the row of the file.
+
+    Parameters
+    ----------
+    ids : numpy.ndarray
+        ``object`` array of activity ids.
+    pred : array_like of int
+        Each link's predecessor (activity number).
+    succ : array_like of int
+        Each link's successor (activity number).
+    link_type : array_like of int
+        Each link's type code: FS 0, SS 1, FF 2, SF 3.
+    lag : array_like of int
+        Each link's lag in work days.
+
+    Returns
+    -------
+    Network or None
+        The network, or ``None`` when the links form a loop.
+
+    Examples
+    --------
+    >>> print(sorted_network(np.array(["A", "B"], dtype=object), [0, 1], [1, 0], [0, 0], [0, 0]))
+    None
+    """
     from ._kernels import order_and_layout
 
     n = len(ids)
@@ -322,24 +580,32 @@ def compile_network(
 
     Parameters
     ----------
-    activities: DataFrame with column ``id``.
-    links: DataFrame with columns ``pred``, ``succ``, ``type``, ``lag``; ids must be known
-        (the case loader has checked them).
-    source: file named in the message when the logic has a loop.
-    link_numbers: the activity numbers of each link's ends when already known
+    activities : DataFrame
+        The activities, with column ``id``; they are numbered in row order.
+    links : DataFrame
+        The links, with columns ``pred``, ``succ``, ``type``, ``lag`` (work days); ids must
+        be known (the case loader has checked them).
+    source : str, default "links.csv"
+        File named in the problem when the logic has a loop, a link names an unknown
+        activity or has an unknown type.
+    link_numbers : tuple of numpy.ndarray, optional
+        The activity numbers of each link's ends when already known
         (:attr:`delay.model.Snapshot.link_numbers`).
-    type_codes: each link's position in ``LINK_TYPES`` when already known (the case loader
-        finds them while checking the links).
+    type_codes : numpy.ndarray, optional
+        Each link's position in ``LINK_TYPES`` when already known (the case loader finds
+        them while checking the links).
 
     Returns
     -------
     Network
+        The compiled network.
 
     Raises
     ------
     CaseError
-        When the links form a loop (the message names every activity in it, in order), or
-        name an activity that is not in ``activities``.
+        When the links form a loop (the message names every activity in it, in order),
+        name an activity that is not in ``activities`` or have a type other than FS, SS,
+        FF and SF (the problem names the row, counting the header as row 1).
 
     Examples
     --------

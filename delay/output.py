@@ -114,9 +114,17 @@ class OutputRefused(Exception):
 
     Parameters
     ----------
-    target: the output as the user gave it.
-    reason: why it is refused, in plain words.
-    fix: what to do.
+    target : str or Path
+        The output as the user gave it.
+    reason : str
+        Why it is refused, in plain words.
+    fix : str
+        What to do.
+
+    Examples
+    --------
+    >>> print(OutputRefused("out", "this is the case folder itself", "give a new folder outside the case"))
+    out: this is the case folder itself - give a new folder outside the case; nothing was written
     """
 
     def __init__(self, target: str | Path, reason: str, fix: str):
@@ -132,8 +140,16 @@ class OutputFailed(Exception):
 
     Parameters
     ----------
-    target: the output as the user gave it.
-    error: the error of the operating system.
+    target : str or Path
+        The output as the user gave it.
+    error : OSError
+        The error of the operating system.
+
+    Examples
+    --------
+    >>> print(OutputFailed("out/report", OSError(28, "No space left on device")))  # doctest: +NORMALIZE_WHITESPACE
+    out/report: cannot be written (No space left on device) - free some space on that disk, or write to
+    another folder; nothing half-written was left and an earlier output is unchanged
     """
 
     def __init__(self, target: str | Path, error: OSError):
@@ -148,13 +164,22 @@ class OutputFailed(Exception):
 
 
 class Interrupted(BaseException):
-    """SIGINT (Ctrl-C) or SIGTERM arrived; raised by the handlers of
-    :func:`install_signal_handlers`. A ``BaseException``, as ``KeyboardInterrupt`` is, so
-    that no ``except Exception`` swallows it.
+    """SIGINT (Ctrl-C) or SIGTERM arrived.
+
+    Raised by the handlers of :func:`install_signal_handlers`. A ``BaseException``, as
+    ``KeyboardInterrupt`` is, so that no ``except Exception`` swallows it. Its
+    ``exit_status`` is 128 plus the signal's number (130 for Ctrl-C, 143 for SIGTERM), as a
+    shell reports it.
 
     Parameters
     ----------
-    signum: the signal's number.
+    signum : int
+        The signal's number.
+
+    Examples
+    --------
+    >>> Interrupted(signal.SIGINT).exit_status, Interrupted(signal.SIGTERM).exit_status
+    (130, 143)
     """
 
     def __init__(self, signum: int):
@@ -189,8 +214,20 @@ def _os_fix(error: OSError) -> str:
 
 
 def describe_os_error(error: OSError) -> str:
-    """One line for an :class:`OSError` that reached the command line (reading or writing).
+    """Describe in one line an :class:`OSError` that reached the command line (reading or writing).
 
+    Parameters
+    ----------
+    error : OSError
+        The error of the operating system.
+
+    Returns
+    -------
+    str
+        The file (or "the file system"), the reason and what to do.
+
+    Examples
+    --------
     >>> describe_os_error(PermissionError(13, "Permission denied", "case/case.toml"))
     'case/case.toml: Permission denied - you may not write there: choose another folder, or get write permission'
     """
@@ -217,7 +254,8 @@ def _on_signal(signum, _frame):  # the signal module's signature
 def install_signal_handlers() -> None:
     """Make SIGINT and SIGTERM raise :class:`Interrupted` (the command line calls this once).
 
-    During :func:`critical` the signal waits until the block is done.
+    During :func:`critical` the signal waits until the block is done. Outside the main
+    thread (where Python cannot set signal handlers) nothing is changed.
     """
     if threading.current_thread() is not threading.main_thread():
         return
@@ -233,6 +271,23 @@ def critical() -> Iterator[None]:
     Where the platform can block signals (POSIX) they are blocked; with the handlers of
     :func:`install_signal_handlers` a signal that still arrives is kept and raised as
     :class:`Interrupted` when the block is done.
+
+    Yields
+    ------
+    None
+        Nothing: the block runs with the signals held.
+
+    Raises
+    ------
+    Interrupted
+        After the block (the outermost one, when blocks nest), for a signal kept while it
+        ran.
+
+    Examples
+    --------
+    >>> with critical():
+    ...     print("moved into place")
+    moved into place
     """
     blocked = None
     if hasattr(signal, "pthread_sigmask") and threading.current_thread() is threading.main_thread():
@@ -298,7 +353,9 @@ def clean_stale(folder: str | Path) -> None:
 
     Parameters
     ----------
-    folder: the folder to clean (its own entries only, not those of its subfolders).
+    folder : str or Path
+        The folder to clean (its own entries only, not those of its subfolders). A folder
+        that cannot be read (or does not exist) is left alone.
     """
     folder = Path(folder)
     try:
@@ -332,7 +389,7 @@ def _folder_mode(path: Path) -> None:
 
 # -- the marker -------------------------------------------------------------------------------
 def read_marker(folder: str | Path) -> dict | None:
-    """The marker of an output folder the toolkit wrote.
+    """Read the marker of an output folder the toolkit wrote.
 
     A marker is :data:`MARKER`, a plain file (not a link) of at most 8 MiB holding a JSON
     object that names :data:`TOOL`, with a random ``id`` of 32 hex digits and ``files``, the
@@ -340,12 +397,24 @@ def read_marker(folder: str | Path) -> dict | None:
 
     Parameters
     ----------
-    folder: the folder to look in.
+    folder : str or Path
+        The folder to look in.
 
     Returns
     -------
     dict or None
-        The marker's facts, or ``None`` when the folder holds no valid marker.
+        The marker's facts (``tool``, ``version``, ``id``, ``what``, ``note``, ``files``), or
+        ``None`` when the folder holds no valid marker.
+
+    Examples
+    --------
+    >>> import tempfile
+    >>> with tempfile.TemporaryDirectory() as folder:
+    ...     before = read_marker(folder)
+    ...     identity = mark_folder(folder, "report")
+    ...     facts = read_marker(folder)
+    >>> before, facts["what"], facts["id"] == identity, facts["files"]
+    (None, 'report', True, [])
     """
     path = Path(folder) / MARKER
     try:
@@ -363,13 +432,16 @@ def read_marker(folder: str | Path) -> dict | None:
 
 
 def mark_folder(folder: str | Path, what: str) -> str:
-    """Write the marker of a new output into ``folder``; its files are listed when
-    :func:`finish_marker` is called.
+    """Write the marker of a new output into ``folder``, with no files listed yet.
+
+    Its files are listed when :func:`finish_marker` is called.
 
     Parameters
     ----------
-    folder: a folder being built (under a temporary name).
-    what: what the output is (``report``, ``demo``), for a reader of the marker.
+    folder : str or Path
+        A folder being built (under a temporary name).
+    what : str
+        What the output is (``report``, ``demo``), for a reader of the marker.
 
     Returns
     -------
@@ -413,14 +485,30 @@ def _listing(folder: Path, prefix: str = "") -> list[str]:
 def finish_marker(folder: str | Path) -> None:
     """List in the marker of ``folder`` every path now written there.
 
+    Every file and folder under ``folder`` is listed by its path relative to it (``/``
+    between parts), in name order, the marker itself left out.
+
     Parameters
     ----------
-    folder: a folder marked by :func:`mark_folder`.
+    folder : str or Path
+        A folder marked by :func:`mark_folder`.
 
     Raises
     ------
     ValueError
         When the folder holds no marker (a fault of the caller).
+
+    Examples
+    --------
+    >>> import tempfile
+    >>> from pathlib import Path
+    >>> with tempfile.TemporaryDirectory() as folder:
+    ...     _ = mark_folder(folder, "demo")
+    ...     (Path(folder) / "tables").mkdir()
+    ...     _ = (Path(folder) / "tables" / "windows.csv").write_text("window\\n")
+    ...     finish_marker(folder)
+    ...     read_marker(folder)["files"]
+    ['tables', 'tables/windows.csv']
     """
     folder = Path(folder)
     facts = read_marker(folder)
@@ -497,14 +585,23 @@ def check_folder_target(
 ) -> Path:
     """Check that an output folder may be written at ``target`` (see the module docstring).
 
+    A folder may be written when it is new, empty (but for the files an operating system
+    adds, :data:`OS_LITTER`) or, with ``earlier``, an output the toolkit wrote to which
+    nothing was added; never when it is an input, the case folder, inside it or above it.
+
     Parameters
     ----------
-    target: the output folder as the user gave it.
-    case_root: the case folder (or workbook) the output is made from, if any.
-    inputs: every input file of the run.
-    earlier: whether a folder the toolkit wrote may be replaced (``False`` for a new case:
-        the target must then be new or empty).
-    option: how the user names the target (`` with --out``), for the message.
+    target : str or Path
+        The output folder as the user gave it.
+    case_root : str or Path, optional
+        The case folder (or workbook) the output is made from, if any.
+    inputs : iterable of path-like, optional
+        Every input file of the run.
+    earlier : bool, default True
+        Whether a folder the toolkit wrote may be replaced (``False`` for a new case: the
+        target must then be new or empty).
+    option : str, default ""
+        How the user names the target (`` with --out``), for the message.
 
     Returns
     -------
@@ -515,6 +612,16 @@ def check_folder_target(
     ------
     OutputRefused
         When the target must not be written; nothing is written then.
+    OutputFailed
+        When the target is a folder that cannot be read.
+
+    Examples
+    --------
+    >>> check_folder_target("case_demo/out", case_root="case_demo")  # doctest: +NORMALIZE_WHITESPACE
+    Traceback (most recent call last):
+    ...
+    delay.output.OutputRefused: case_demo/out: this is inside the case folder; the toolkit never writes
+    into its inputs - give a path outside the case; nothing was written
     """
     shown = str(target)
     real = _real(target)
@@ -556,17 +663,24 @@ def check_file_target(
     recognise: Callable[[Path], bool] | None = None,
     option: str = "",
 ) -> Path:
-    """Check that an output file may be written at ``target``: new, or a file the toolkit
-    wrote (``recognise(path)`` says so); never an input, the case folder or inside it.
+    """Check that an output file may be written at ``target``.
+
+    It may when it is new, or a file the toolkit wrote (``recognise(path)`` says so);
+    never when it is an input, a folder, the case folder or inside it.
 
     Parameters
     ----------
-    target: the output file as the user gave it.
-    case_root: the case folder (or workbook) the output is made from, if any.
-    inputs: every input file of the run.
-    recognise: whether an existing file is one the toolkit wrote; without it, an existing
-        file is refused.
-    option: how the user names the target, for the message.
+    target : str or Path
+        The output file as the user gave it.
+    case_root : str or Path, optional
+        The case folder (or workbook) the output is made from, if any.
+    inputs : iterable of path-like, optional
+        Every input file of the run.
+    recognise : callable, optional
+        ``recognise(path)`` tells whether an existing file is one the toolkit wrote;
+        without it, an existing file is refused.
+    option : str, default ""
+        How the user names the target, for the message.
 
     Returns
     -------
@@ -667,16 +781,21 @@ def output_folder(
 
     Parameters
     ----------
-    target, case_root, inputs, option: as for :func:`check_folder_target`.
-    what: what the output is, for its marker.
+    target : str or Path
+        The output folder as the user gave it.
+    case_root : str or Path, optional
+        The case folder (or workbook) the output is made from, if any.
+    inputs : iterable of path-like, optional
+        Every input file of the run.
+    what : str, default "output"
+        What the output is, for its marker.
+    option : str, default ""
+        How the user names the target, for the message.
 
     Yields
     ------
     Path
         The folder to write into (it becomes ``target`` when the block ends without error).
-
-    >>> with output_folder("out/demo", case_root="case_demo") as folder:   # doctest: +SKIP
-    ...     (folder / "summary.json").write_text("{}")
 
     Raises
     ------
@@ -684,6 +803,16 @@ def output_folder(
         The target must not be written (nothing is written).
     OutputFailed
         An OSError while writing (the temporary folder is removed; the target is as it was).
+
+    Examples
+    --------
+    >>> import tempfile
+    >>> from pathlib import Path
+    >>> with tempfile.TemporaryDirectory() as scratch:
+    ...     with output_folder(Path(scratch) / "demo", case_root="case_demo", what="demo") as folder:
+    ...         _ = (folder / "summary.json").write_text("{}")
+    ...     sorted(p.name for p in (Path(scratch) / "demo").iterdir())
+    ['delay-output.json', 'summary.json']
     """
     inputs = tuple(inputs)
 
@@ -697,14 +826,17 @@ def output_folder(
 
 @contextlib.contextmanager
 def new_folder(target: str | Path, *, option: str = "") -> Iterator[Path]:
-    """Build a new folder (a new case) under a temporary name, then move it to ``target``,
-    which must be new or empty. No marker is written: the folder is the user's, not an
-    output the toolkit may replace later.
+    """Build a new folder (a new case) under a temporary name, then move it to ``target``.
+
+    ``target`` must be new or empty. No marker is written: the folder is the user's, not
+    an output the toolkit may replace later.
 
     Parameters
     ----------
-    target: the new folder.
-    option: how the user names it, for the message.
+    target : str or Path
+        The new folder.
+    option : str, default ""
+        How the user names it, for the message.
 
     Yields
     ------
@@ -713,8 +845,10 @@ def new_folder(target: str | Path, *, option: str = "") -> Iterator[Path]:
 
     Raises
     ------
-    OutputRefused, OutputFailed
-        As :func:`output_folder`.
+    OutputRefused
+        When ``target`` is a file or a folder that is not empty (nothing is written).
+    OutputFailed
+        An OSError while writing (the temporary folder is removed).
     """
 
     def check() -> Path:
@@ -732,12 +866,10 @@ def replace_directory(target: str | Path) -> Iterator[Path]:
     The mechanism alone, for a folder the caller has already decided may be replaced (a
     snapshot folder the user asked to replace); outputs use :func:`output_folder`.
 
-    >>> with replace_directory("case/snapshots/u01") as folder:   # doctest: +SKIP
-    ...     (folder / "snapshot.toml").write_text("...")
-
     Parameters
     ----------
-    target: the folder to replace (or to create).
+    target : str or Path
+        The folder to replace (or to create).
 
     Yields
     ------
@@ -749,6 +881,19 @@ def replace_directory(target: str | Path) -> Iterator[Path]:
     OutputFailed
         An OSError while writing; the temporary folder is removed and ``target`` is left as
         it was (as on any other exception).
+
+    Examples
+    --------
+    >>> import tempfile
+    >>> from pathlib import Path
+    >>> with tempfile.TemporaryDirectory() as scratch:
+    ...     target = Path(scratch) / "u01"
+    ...     target.mkdir()
+    ...     _ = (target / "old.txt").write_text("old")
+    ...     with replace_directory(target) as folder:
+    ...         _ = (folder / "snapshot.toml").write_text('label = "Update 01"')
+    ...     [p.name for p in target.iterdir()]
+    ['snapshot.toml']
     """
     with _staged(_real(target), str(target), None, None) as building:
         yield building
@@ -764,16 +909,19 @@ def _temporary_file(path: Path, suffix: str) -> Path:
 
 
 def write_through(path: str | Path, write: Callable[[str], object], suffix: str = ".part") -> Path:
-    """Have ``write(temporary)`` write a file under a temporary name in ``path``'s folder,
-    then move it to ``path``; on an exception the temporary file is removed and ``path`` is
-    left as it was. ``suffix`` ends the temporary name (a writer may choose its format by
-    it).
+    """Have ``write(temporary)`` write a file under a temporary name, then move it to ``path``.
+
+    The temporary file is in ``path``'s folder (made when missing); on an exception it is
+    removed and ``path`` is left as it was.
 
     Parameters
     ----------
-    path: the file to write.
-    write: writes the file at the path it is given.
-    suffix: the end of the temporary name.
+    path : str or Path
+        The file to write.
+    write : callable
+        ``write(temporary)`` writes the file at the path (a ``str``) it is given.
+    suffix : str, default ".part"
+        The end of the temporary name (a writer may choose its format by it).
 
     Returns
     -------
@@ -784,6 +932,15 @@ def write_through(path: str | Path, write: Callable[[str], object], suffix: str 
     ------
     OutputFailed
         An OSError while writing.
+
+    Examples
+    --------
+    >>> import tempfile
+    >>> from pathlib import Path
+    >>> with tempfile.TemporaryDirectory() as scratch:
+    ...     path = write_through(Path(scratch) / "a.txt", lambda temporary: Path(temporary).write_text("done"))
+    ...     path.read_text()
+    'done'
     """
     path = Path(path)
     temporary = None
@@ -808,8 +965,21 @@ def write_through(path: str | Path, write: Callable[[str], object], suffix: str 
 
 
 def write_bytes(path: str | Path, data: bytes) -> Path:
-    """Write ``data`` to ``path`` through a temporary file in the same folder
-    (:func:`write_through`); returns ``path``.
+    """Write ``data`` to ``path`` through a temporary file in the same folder.
+
+    See :func:`write_through`.
+
+    Parameters
+    ----------
+    path : str or Path
+        The file to write.
+    data : bytes
+        Its content.
+
+    Returns
+    -------
+    Path
+        ``path``.
 
     Raises
     ------
@@ -820,18 +990,39 @@ def write_bytes(path: str | Path, data: bytes) -> Path:
 
 
 def write_text(path: str | Path, text: str) -> Path:
-    """Write UTF-8 ``text`` to ``path`` through a temporary file (:func:`write_bytes`)."""
+    """Write ``text`` to ``path`` as UTF-8, through a temporary file (:func:`write_bytes`).
+
+    Parameters
+    ----------
+    path : str or Path
+        The file to write.
+    text : str
+        Its content.
+
+    Returns
+    -------
+    Path
+        ``path``.
+
+    Raises
+    ------
+    OutputFailed
+        An OSError while writing.
+    """
     return write_bytes(path, text.encode("utf-8"))
 
 
 def write_together(files: Mapping[str | Path, bytes]) -> tuple[Path, ...]:
-    """Write several files that belong together: every one under a temporary name first,
-    then all moved into place at once, so that a failure (a full disk) leaves all of them
-    as they were.
+    """Write several files that belong together, all moved into place at once.
+
+    Every one is written under a temporary name first, then all are moved into place
+    together, so that a failure while writing (a full disk) leaves all of them as they
+    were.
 
     Parameters
     ----------
-    files: each file's path and its content.
+    files : Mapping of path-like to bytes
+        Each file's path and its content.
 
     Returns
     -------
@@ -882,13 +1073,26 @@ def write_output_file(
     suffix: str = ".part",
     option: str = "",
 ) -> Path:
-    """Check ``target`` with :func:`check_file_target`, then write it through a temporary
-    file (:func:`write_through`).
+    """Check ``target`` with :func:`check_file_target`, then write it through a temporary file.
+
+    See :func:`write_through`.
 
     Parameters
     ----------
-    target, case_root, inputs, recognise, option: as for :func:`check_file_target`.
-    write, suffix: as for :func:`write_through`.
+    target : str or Path
+        The output file as the user gave it.
+    write : callable
+        ``write(temporary)`` writes the file at the path (a ``str``) it is given.
+    case_root : str or Path, optional
+        The case folder (or workbook) the output is made from, if any.
+    inputs : iterable of path-like, optional
+        Every input file of the run.
+    recognise : callable, optional
+        ``recognise(path)`` tells whether an existing file is one the toolkit wrote.
+    suffix : str, default ".part"
+        The end of the temporary name.
+    option : str, default ""
+        How the user names the target, for the message.
 
     Returns
     -------
@@ -913,15 +1117,30 @@ _PLAIN_NUMBER = re.compile(r"[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?\Z")
 
 
 def neutralise(text: str) -> str:
-    """A text cell safe to open in a spreadsheet (see the module docstring).
+    """Make a text cell safe to open in a spreadsheet (see the module docstring).
 
-    >>> [neutralise(t) for t in ("=1+1", "@SUM(A1)", "-2+3", "-3", "+2.5", "Dig", "")]
-    ["'=1+1", "'@SUM(A1)", "'-2+3", '-3', '+2.5', 'Dig', '']
+    A cell that starts with ``=``, ``+``, ``-``, ``@``, a tab or a carriage return gets a
+    leading apostrophe, unless it reads as a plain decimal number.
+
+    Parameters
+    ----------
+    text : str
+        The cell.
+
+    Returns
+    -------
+    str
+        The cell, with a leading apostrophe where a spreadsheet would run it.
 
     References
     ----------
     OWASP, "CSV Injection" (owasp.org/www-community/attacks/CSV_Injection): cells beginning
     with ``=``, ``+``, ``-``, ``@``, tab or carriage return are prefixed with a single quote.
+
+    Examples
+    --------
+    >>> [neutralise(t) for t in ("=1+1", "@SUM(A1)", "-2+3", "-3", "+2.5", "Dig", "")]
+    ["'=1+1", "'@SUM(A1)", "'-2+3", '-3', '+2.5', 'Dig', '']
     """
     if text and text[0] in _FORMULA_START and not _PLAIN_NUMBER.match(text):
         return "'" + text
@@ -933,16 +1152,27 @@ def _safe_cell(value):
 
 
 def csv_safe(frame: pd.DataFrame) -> pd.DataFrame:
-    """``frame`` with every text cell and column name passed through :func:`neutralise`.
+    """Copy ``frame`` with every text cell and column name passed through :func:`neutralise`.
 
     Parameters
     ----------
-    frame: any table.
+    frame : pandas.DataFrame
+        Any table.
 
     Returns
     -------
     pandas.DataFrame
         A copy; numbers, dates and blanks unchanged (their columns keep their types).
+
+    References
+    ----------
+    OWASP, "CSV Injection" (owasp.org/www-community/attacks/CSV_Injection).
+
+    Examples
+    --------
+    >>> frame = pd.DataFrame({"event": ["=HYPERLINK(1)", "Rain"], "days": [-3, 4]})
+    >>> csv_safe(frame).values.tolist()
+    [["'=HYPERLINK(1)", -3], ['Rain', 4]]
     """
     import numpy as np
     import pandas as pd
@@ -970,8 +1200,27 @@ def csv_safe(frame: pd.DataFrame) -> pd.DataFrame:
 
 
 def csv_text(frame: pd.DataFrame, **to_csv) -> str:
-    """The CSV text of ``frame`` (no index), text cells neutralised (:func:`csv_safe`);
-    ``to_csv`` goes to :meth:`pandas.DataFrame.to_csv` (``date_format``, say)."""
+    """Write ``frame`` as CSV text (no index), its text cells neutralised (:func:`csv_safe`).
+
+    Parameters
+    ----------
+    frame : pandas.DataFrame
+        Any table.
+    **to_csv
+        Passed to :meth:`pandas.DataFrame.to_csv` (``date_format``, say).
+
+    Returns
+    -------
+    str
+        The CSV text.
+
+    Examples
+    --------
+    >>> print(csv_text(pd.DataFrame({"id": ["A", "@B"], "days": [1, -2]})), end="")
+    id,days
+    A,1
+    '@B,-2
+    """
     buffer = io.StringIO()
     csv_safe(frame).to_csv(buffer, index=False, **to_csv)
     return buffer.getvalue()
@@ -979,6 +1228,15 @@ def csv_text(frame: pd.DataFrame, **to_csv) -> str:
 
 def write_csv(path: str | Path, frame: pd.DataFrame, **to_csv) -> Path:
     """Write ``frame`` as an output CSV (:func:`csv_text`) through a temporary file.
+
+    Parameters
+    ----------
+    path : str or Path
+        The file to write (UTF-8).
+    frame : pandas.DataFrame
+        Any table.
+    **to_csv
+        Passed to :meth:`pandas.DataFrame.to_csv` (``date_format``, say).
 
     Returns
     -------
@@ -999,13 +1257,21 @@ def copy_csv(source: str | Path, target: str | Path) -> Path:
 
     Parameters
     ----------
-    source: a UTF-8 CSV file (a byte-order mark is dropped).
-    target: the copy to write (through a temporary file).
+    source : str or Path
+        A UTF-8 CSV file (a byte-order mark is dropped).
+    target : str or Path
+        The copy to write (through a temporary file).
 
     Returns
     -------
     Path
         ``target``.
+
+    Raises
+    ------
+    OutputFailed
+        An OSError while writing ``target``; an OSError reading ``source`` passes through
+        as it is.
     """
     with open(source, newline="", encoding="utf-8-sig") as handle:
         rows = list(csv.reader(handle))

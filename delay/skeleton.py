@@ -434,15 +434,21 @@ def _next_monday(day: dt.date) -> dt.date:
 
 
 def write_skeleton(directory: str | Path, *, project_name: str = "New project", start: dt.date | None = None) -> Path:
-    """Write an empty, valid case into ``directory`` (which must not exist or be empty).
+    """Write an empty, valid case into ``directory``, which must not exist or be empty.
+
+    The case holds case.toml with every setting explained, the ``5d`` and ``7d``
+    calendars, a baseline snapshot with one start milestone and no links, every optional
+    file of the case format with its header row only, and :data:`GUIDE_NAME`, a text file
+    explaining each column. The folder is built under a temporary name and moved into
+    place (:func:`delay.output.new_folder`).
 
     Parameters
     ----------
-    directory:
+    directory : str or Path
         The new case folder.
-    project_name:
+    project_name : str, default "New project"
         The project's name in case.toml.
-    start:
+    start : datetime.date, optional
         The contract start and baseline data date; by default the next Monday (today if
         it is a Monday). The contract completion is set 52 weeks later, on the Friday
         before.
@@ -456,6 +462,16 @@ def write_skeleton(directory: str | Path, *, project_name: str = "New project", 
     ------
     CaseError
         When ``directory`` is a file or a folder that is not empty; nothing is written.
+
+    Examples
+    --------
+    >>> import tempfile
+    >>> from pathlib import Path
+    >>> from delay.case import load_case
+    >>> with tempfile.TemporaryDirectory() as folder:
+    ...     case = load_case(write_skeleton(Path(folder) / "new", start=dt.date(2026, 3, 2)))
+    ...     case.settings.project.contract_start, case.settings.project.contract_completion
+    (datetime.date(2026, 3, 2), datetime.date(2027, 2, 26))
     """
     directory = Path(directory)
     if directory.exists() and (not directory.is_dir() or any(directory.iterdir())):

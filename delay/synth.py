@@ -51,11 +51,49 @@ HOLIDAYS = [
 
 
 def synthetic_network(activities: int, links_per_activity: float = 2.5, seed: int = 0):
-    """The tables of a random programme (before progress).
+    """Build the tables of a random programme, before any progress.
+
+    Activities come in work packages of forty, each a chain with parallel lanes, the first
+    of a package tied to an activity of an earlier package; further links reach close by
+    or into an earlier package. Every link runs from a lower to a higher activity number,
+    so the logic never loops. Durations are 1 to 10 work days (0 for the milestones, the
+    first activity a start milestone and the last a finish milestone); lags are 0, 1 to 5
+    or a lead of 1 to 2 work days (never a lead on an SF link); about one activity in 500
+    has an ``earliest_start`` constraint. Calendars are ``5d`` or ``7d`` (about one in
+    eight).
+
+    Parameters
+    ----------
+    activities : int
+        Number of activities (at least two).
+    links_per_activity : float, default 2.5
+        Links per activity on average, before the duplicates are dropped.
+    seed : int, default 0
+        Random seed; the same arguments give the same tables.
 
     Returns
     -------
-    (activities DataFrame, links DataFrame) in case-format columns.
+    activities : DataFrame
+        Columns ``id`` (``A000`` ...), ``name``, ``duration``, ``calendar``, ``wbs``,
+        ``kind``, ``constraint``, ``constraint_date`` (ISO text or blank).
+    links : DataFrame
+        Columns ``pred``, ``succ``, ``type`` (FS, SS, FF, SF), ``lag``, sorted by
+        successor and predecessor.
+
+    Raises
+    ------
+    ValueError
+        When ``activities`` is less than two.
+
+    Examples
+    --------
+    >>> activities, links = synthetic_network(100, seed=1)
+    >>> len(activities), list(links.columns)
+    (100, ['pred', 'succ', 'type', 'lag'])
+    >>> activities["kind"].iloc[[0, -1]].tolist()
+    ['start_milestone', 'finish_milestone']
+    >>> bool((links["pred"] < links["succ"]).all())  # ids of one width sort by number
+    True
     """
     rng = np.random.default_rng(seed)
     n = int(activities)
@@ -183,25 +221,41 @@ def synthesise(
     seed: int = 0,
     elements: int = 0,
 ) -> Path:
-    """Write a valid random case folder to ``out`` (which must not exist or be empty).
+    """Write a valid random case folder to ``out``, which must not exist or be empty.
+
+    The baseline is :func:`synthetic_network` starting on Monday 2026-01-05, with a
+    five-day calendar with holidays and a seven-day one. The updates have data dates on the
+    first of each following month and take their progress from one simulated actual run
+    (the baseline durations scaled at random and scheduled by the engine); from the second
+    update on each also re-plans some work not yet started. The contract completion is
+    set at four fifths of the simulated run (at least 30 calendar days after the start).
 
     Parameters
     ----------
-    out: the case folder to create.
-    activities: number of activities.
-    links_per_activity: links per activity on average.
-    updates: number of monthly progress updates (an as-built record is written when > 0).
-    seed: random seed; the same arguments give the same case.
-    elements: number of model elements to write (boxes on a grid, linked by ``wbs``).
+    out : str or Path
+        The case folder to create.
+    activities : int
+        Number of activities (at least two).
+    links_per_activity : float, default 2.5
+        Links per activity on average.
+    updates : int, default 0
+        Number of monthly progress updates (an as-built record is written when > 0).
+    seed : int, default 0
+        Random seed; the same arguments give the same case.
+    elements : int, default 0
+        Number of model elements to write (boxes on a grid, linked by ``wbs``).
 
     Returns
     -------
-    Path of the case folder.
+    Path
+        The case folder, ``out``.
 
     Raises
     ------
     delay.output.OutputRefused
         When ``out`` is a file or a folder that is not empty (nothing is written).
+    ValueError
+        When ``activities`` is less than two (nothing is written).
     """
     out = Path(out)
     check_folder_target(out, earlier=False)  # new or empty, before any work

@@ -23,7 +23,7 @@ __all__ = ["DrivingGraph", "driving_predecessors", "explore"]
 
 
 def driving_predecessors(result: ScheduleResult, activity: int) -> list[tuple[int, int, int]]:
-    """The tied driving predecessors of one activity, as ``(predecessor, link, gap)``.
+    """Find the tied driving predecessors of one activity.
 
     - not started: the links with relative float 0 on early dates;
     - in progress: those driving its remaining work (retained logic); when none does, the
@@ -32,6 +32,29 @@ def driving_predecessors(result: ScheduleResult, activity: int) -> list[tuple[in
 
     An empty list means nothing in the logic drives the activity (it is driven by the data
     date, a constraint, or it is an open start).
+
+    Parameters
+    ----------
+    result : ScheduleResult
+        A scheduled snapshot.
+    activity : int
+        The activity's number in the result's network.
+
+    Returns
+    -------
+    list of tuple of (int, int, int)
+        ``(predecessor, link, gap)`` per tied predecessor: its activity number, the link's
+        number and the gap (work days of the activity's calendar,
+        :attr:`~delay.cpm.ScheduleResult.link_gaps`; 0 for a link driving on early dates),
+        ordered by an FS link first, then input order.
+
+    Examples
+    --------
+    >>> from delay.cpm import schedule
+    >>> result = schedule(demo)
+    >>> found = driving_predecessors(result, int(result.model.network.index_of("SUB-CLEARANCE")[0]))
+    >>> [(str(result.ids[pred]), gap) for pred, link, gap in found]
+    [('SET-HOARDING', 0)]
     """
     net = result.model.network
     links = net.in_link[net.in_ptr[activity] : net.in_ptr[activity + 1]]
@@ -58,9 +81,19 @@ def driving_predecessors(result: ScheduleResult, activity: int) -> list[tuple[in
 class DrivingGraph:
     """Activities reached backwards from the seeds through tied driving predecessors.
 
-    ``parents[v]`` lists ``(predecessor, link, gap)`` in tie order; ``stopped`` holds the
-    activities where the trace ended because ``stop`` said so; ``capped`` is true when the
-    exploration reached its size limit.
+    Made by :func:`explore`.
+
+    Parameters
+    ----------
+    seeds : tuple of int
+        The activity numbers the trace started from.
+    parents : dict of int to list of tuple of (int, int, int)
+        For every activity explored, its :func:`driving_predecessors`:
+        ``(predecessor, link, gap)`` in tie order.
+    stopped : frozenset of int
+        The activities where the trace ended because ``stop`` said so (not explored).
+    capped : bool
+        Whether the exploration reached its size limit before it was done.
     """
 
     seeds: tuple[int, ...]
@@ -74,11 +107,29 @@ def explore(result: ScheduleResult, seeds, stop: np.ndarray, limit: int = 20000)
 
     Parameters
     ----------
-    result: a scheduled snapshot.
-    seeds: activity numbers to start from (those finishing at completion, usually).
-    stop: boolean array, shape ``(n,)``: the trace ends at these activities (they are
+    result : ScheduleResult
+        A scheduled snapshot.
+    seeds : iterable of int
+        Activity numbers to start from (those finishing at completion, usually).
+    stop : numpy.ndarray
+        Boolean array, shape ``(n,)``: the trace ends at these activities (they are
         recorded in ``stopped`` and not explored further).
-    limit: at most this many activities are explored.
+    limit : int, default 20000
+        At most this many activities are explored; the graph is ``capped`` beyond.
+
+    Returns
+    -------
+    DrivingGraph
+        The activities explored with their driving predecessors.
+
+    Examples
+    --------
+    >>> from delay.cpm import schedule
+    >>> result = schedule(demo)
+    >>> ends = np.flatnonzero(result.finish_day == result.completion_day)
+    >>> graph = explore(result, ends, stop=np.zeros(result.model.network.size, dtype=bool))
+    >>> len(graph.parents) == len(result.driving_path()), graph.capped
+    (True, False)
     """
     parents: dict[int, list[tuple[int, int, int]]] = {}
     stopped: set[int] = set()

@@ -12,9 +12,10 @@ is wrong and what to do).
 
 Example
 -------
->>> from delay.case import load_case, summarise          # doctest: +SKIP
->>> case = load_case("case_demo")                         # doctest: +SKIP
->>> summarise(case)["snapshots"][0]["folder"]             # doctest: +SKIP
+>>> from pathlib import Path
+>>> from delay.case import load_case, summarise
+>>> case = load_case(Path(demo.root))  # the demo case, read again from its folder
+>>> summarise(case)["snapshots"][0]["folder"]
 'baseline'
 """
 

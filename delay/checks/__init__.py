@@ -19,11 +19,17 @@ with the one before.
 
 Example
 -------
->>> from delay.case import load_case                          # doctest: +SKIP
->>> from delay.checks import quality_metrics, compare         # doctest: +SKIP
->>> case = load_case("case_demo")                             # doctest: +SKIP
->>> quality_metrics(case, "2025-06-30")[["key", "passed"]]    # doctest: +SKIP
->>> compare(case, "2025-05-31", "2025-06-30").counts()        # doctest: +SKIP
+On the demo case (``demo``, loaded from case_demo/ for the doctests):
+
+>>> from delay.checks import quality_metrics, compare
+>>> quality_metrics(demo, "2025-06-30")[["key", "passed"]].head(3)
+     key  passed
+0  logic    True
+1  leads   False
+2   lags   False
+>>> counts = compare(demo, "2025-05-31", "2025-06-30").counts()
+>>> counts["activity_added"], counts["link_added"], counts["progress"]
+(1, 2, 10)
 """
 
 from __future__ import annotations

@@ -224,9 +224,8 @@ def compare(case: Case, earlier: str | Snapshot, later: str | Snapshot) -> Compa
 
     Examples
     --------
-    >>> from delay.case import load_case                        # doctest: +SKIP
-    >>> changes = compare(load_case("case_demo"), "baseline", "2025-06-30")   # doctest: +SKIP
-    >>> changes.revisions("additions")["activity"].tolist()     # doctest: +SKIP
+    >>> changes = compare(demo, "baseline", "2025-06-30")  # the demo case
+    >>> changes.revisions("additions")["activity"].tolist()
     ['SUB-OBSTRUCTIONS']
     """
     first, second = resolve(case, earlier), resolve(case, later)

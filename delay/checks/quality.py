@@ -296,9 +296,8 @@ def quality_metrics(case: Case, snapshot: str | Snapshot = "baseline") -> pd.Dat
 
     Examples
     --------
-    >>> from delay.case import load_case                     # doctest: +SKIP
-    >>> metrics = quality_metrics(load_case("case_demo"))    # doctest: +SKIP
-    >>> metrics.set_index("key").loc["logic", "passed"]      # doctest: +SKIP
+    >>> metrics = quality_metrics(demo)  # the demo case
+    >>> bool(metrics.set_index("key").loc["logic", "passed"])
     True
     """
     metrics = metric_list(case, snapshot)
