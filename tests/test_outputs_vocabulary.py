@@ -6,7 +6,7 @@ The external references are the document itself (its ``### `name``` entries, eac
 section 4, for what a key is: the name of a member of an object. The walk collects the
 member names of every object, at any depth, including the objects inside arrays; the
 values of arrays of strings are values, not keys. A CSV column is a field of the file's
-header record (RFC 4180, section 2).
+header record (RFC 4180, section 2). Both section numbers are recalled from memory.
 
 Some objects and columns are keyed by data, not by vocabulary (party names, snapshot
 folders, method names, kinds of change, the headers a case file gave): docs/outputs.md
@@ -154,7 +154,7 @@ def _file_name(file: str) -> str:
     return "schedules/<snapshot>.csv" if file.startswith("schedules/") else file
 
 
-def emitters(outputs) -> dict[str, set[str]]:
+def _emitters(outputs) -> dict[str, set[str]]:
     """Each vocabulary name and the commands and CSV files that emit it."""
     found: dict[str, set[str]] = {}
     methods = _methods(outputs)
@@ -169,7 +169,7 @@ def emitters(outputs) -> dict[str, set[str]]:
     return found
 
 
-def documented() -> dict[str, dict[str, str]]:
+def _documented() -> dict[str, dict[str, str]]:
     """The doc's entries: ``### `name``` headings, each with its unit and emitters line."""
     entries: dict[str, dict[str, str]] = {}
     current = None
@@ -189,7 +189,7 @@ def documented() -> dict[str, dict[str, str]]:
 
 
 def test_every_json_key_is_defined(outputs):
-    defined = documented()
+    defined = _documented()
     methods = _methods(outputs)
     for command, form in outputs["json"].items():
         missing = sorted(_keys(form, methods) - set(defined))
@@ -197,21 +197,21 @@ def test_every_json_key_is_defined(outputs):
 
 
 def test_every_csv_column_is_defined(outputs):
-    defined = documented()
+    defined = _documented()
     for file, columns in outputs["csv"].items():
         missing = sorted(set(columns) - _data_columns(outputs, file, columns) - set(defined))
         assert not missing, f"{file}: columns not in docs/outputs.md: {missing}"
 
 
 def test_every_defined_name_is_emitted(outputs):
-    emitted = emitters(outputs)
-    stale = sorted(set(documented()) - set(emitted))
+    emitted = _emitters(outputs)
+    stale = sorted(set(_documented()) - set(emitted))
     assert not stale, f"docs/outputs.md defines names no output emits: {stale}"
 
 
 def test_each_entry_gives_its_unit_and_exactly_its_emitters(outputs):
-    emitted = emitters(outputs)
-    for name, entry in documented().items():
+    emitted = _emitters(outputs)
+    for name, entry in _documented().items():
         assert entry.get("unit"), f"{name}: no '- unit:' line"
         assert "emitted by" in entry, f"{name}: no '- emitted by:' line"
         listed = set(re.findall(r"`([^`]+)`", entry["emitted by"]))
