@@ -1107,7 +1107,7 @@ def time_impact_causation(case: Case, result, concurrency: str | None = None, se
     trace = result.trace if section is None else result.sections[section]
     events = trace.events
     for update in trace.updates.itertuples(index=False):
-        run = events[events["update"] == update.snapshot].reset_index(drop=True) if len(events) else events
+        run = events[events["snapshot"] == update.snapshot].reset_index(drop=True) if len(events) else events
         if len(run):
             rows += sequence_rows(_run_frame(run, update.snapshot, update.snapshot), rule, "tia")
         if int(update.residual_days):

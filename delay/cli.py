@@ -95,7 +95,7 @@ def _print_summary(summary: dict) -> None:
     if summary.get("asbuilt_snapshot"):
         snapshots.append(summary["asbuilt_snapshot"])
     rows = [
-        [s.get("folder"), s.get("label"), s.get("kind"), s.get("data_date"), s.get("activities"), s.get("links")]
+        [s.get("snapshot"), s.get("label"), s.get("kind"), s.get("data_date"), s.get("activities"), s.get("links")]
         for s in snapshots
     ]
     _print_table("Snapshots", ["folder", "label", "kind", "data date", "activities", "links"], rows)

@@ -415,9 +415,9 @@ def gantt_order(activities: pd.DataFrame, critical_path=None) -> pd.DataFrame:
 
     Examples
     --------
-    >>> rows = pd.DataFrame({"id": ["A", "B", "C"], "planned_start": pd.to_datetime(
+    >>> rows = pd.DataFrame({"activity": ["A", "B", "C"], "planned_start": pd.to_datetime(
     ...     ["2025-01-06", "2025-01-13", "2025-01-08"]), "actual_start": pd.NaT})
-    >>> gantt_order(rows, ["B", "A"])["id"].tolist()
+    >>> gantt_order(rows, ["B", "A"])["activity"].tolist()
     ['B', 'A', 'C']
     """
     if critical_path is None:
@@ -427,7 +427,7 @@ def gantt_order(activities: pd.DataFrame, critical_path=None) -> pd.DataFrame:
     else:
         path = [str(a) for a in critical_path]
     position = {ident: k for k, ident in enumerate(dict.fromkeys(path))}
-    ids = activities["id"].astype(str)
+    ids = activities["activity"].astype(str)
     start = pd.to_datetime(activities["planned_start"]).fillna(pd.to_datetime(activities["actual_start"]))
     keys = pd.DataFrame(
         {"path": ids.map(position).to_numpy(dtype=float), "start": start.to_numpy(), "id": ids.to_numpy()}
@@ -455,7 +455,7 @@ def planned_against_built(
     Parameters
     ----------
     activities : pandas.DataFrame
-        One row per activity: ``wbs``, ``id``, ``name``, ``planned_start``,
+        One row per activity: ``wbs``, ``activity``, ``name``, ``planned_start``,
         ``planned_finish``, ``actual_start``, ``actual_finish`` (dates; a missing pair
         draws no bar) and ``milestone`` (bool). A bar runs from the start of its start date
         to the end of its finish date (work happens on both), so its length is
@@ -483,7 +483,7 @@ def planned_against_built(
 
     rows = gantt_order(activities, critical_path)
     groups = [g.replace(" ", "<br>", 1) for g in rows["group"]]
-    ids = [_text(i) for i in rows["id"]]
+    ids = [_text(i) for i in rows["activity"]]
     names = [_text(n) for n in rows["name"]]
     codes = [_text(w) or "(no code)" for w in rows["wbs"]]
     height = max(360, _GANTT_TOP_PX + _GANTT_BOTTOM_PX + 22 * len(ids))

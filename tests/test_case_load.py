@@ -258,7 +258,7 @@ def test_summary(tmp_path):
     assert summary["contract_completion"] == "2025-12-19"
     assert summary["snapshots"] == [
         {
-            "folder": "baseline",
+            "snapshot": "baseline",
             "label": "Baseline",
             "kind": "baseline",
             "data_date": "2025-01-06",
@@ -266,7 +266,7 @@ def test_summary(tmp_path):
             "links": 2,
         },
         {
-            "folder": "u1",
+            "snapshot": "u1",
             "label": "Update 01",
             "kind": "update",
             "data_date": "2025-02-03",

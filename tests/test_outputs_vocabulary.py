@@ -137,7 +137,7 @@ def _data_columns(outputs, file: str, columns: list[str]) -> set:
     """The columns of one CSV file that are data (see the constants above)."""
     name = file.rsplit("/", 1)[-1]
     summary = outputs["json"]["delay validate"]
-    folders = {s["folder"] for s in summary["snapshots"]} | {summary["asbuilt_snapshot"]["folder"]}
+    folders = {s["snapshot"] for s in summary["snapshots"]} | {summary["asbuilt_snapshot"]["snapshot"]}
     kinds = set(outputs["json"]["delay check --compare"]["counts"])
     data = {c for c in columns if c.endswith(INPUT_COLUMN)}
     if name in SNAPSHOT_COLUMN_FILES:

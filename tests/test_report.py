@@ -220,7 +220,7 @@ def test_windows_and_as_built_match_the_hand_working(small_report):
     ]
     trend = rows_of(out, "completion_trend")
     assert [t["completion"] for t in trend] == ["2025-01-17", "2025-01-17", "2025-01-22"]
-    path = {r["id"]: r for r in rows_of(out, "driving_path_activities")}
+    path = {r["activity"]: r for r in rows_of(out, "driving_path_activities")}
     assert set(path) == {"START", "A", "B", "END"}  # one chain: every activity drives
     assert (path["B"]["planned_finish"], path["B"]["actual_finish"], path["B"]["finish_variance_days"]) == (
         "2025-01-17",
@@ -239,7 +239,7 @@ def test_an_activity_named_like_a_script_is_text_in_the_page(small_report):
     # in the charts' data it is escaped for plotly's labels and kept out of the script element
     assert "&lt;script&gt;alert(1)&lt;\\u002fscript&gt;" in page or "&lt;script&gt;alert(1)&lt;/script&gt;" in page
     # the appendix keeps the name as recorded
-    names = {r["id"]: r["name"] for r in rows_of(out, "asbuilt_activities")}
+    names = {r["activity"]: r["name"] for r in rows_of(out, "asbuilt_activities")}
     assert names["B"] == SCRIPT
 
 

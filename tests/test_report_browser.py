@@ -307,7 +307,7 @@ def test_the_headline_the_reasons_and_the_opinion_are_seen_without_scrolling(fir
     shown = page.evaluate("""() => Array.from(document.querySelectorAll('[data-table="headline"] tbody tr'))
         .map(tr => Array.from(tr.cells).map(td => td.textContent.trim()))""")
     rows = _csv_rows(demo.out, "headline")
-    assert [r[0] for r in shown] == [r["method"] for r in rows]
+    assert [r[0] for r in shown] == [r["method_title"] for r in rows]
     assert [(r[1], r[2]) for r in shown] == [(r["eot_days"], r["revised_completion"]) for r in rows]
     assert "Why the methods differ" in page.inner_text(".first-page")
     assert "No opinion was given" in page.inner_text(".first-page .group.opinion")  # the demo has no opinion.md
@@ -325,7 +325,7 @@ def test_the_warnings_the_demo_needs_are_on_its_first_page(first_page, demo):
     # further apart than 10 days are a disagreement
     actual = {r["what"]: r["date"] for r in _csv_rows(demo.out, "completion_dates")}["actual completion"]
     headline = _csv_rows(demo.out, "headline")
-    late = [r["method"] for r in headline if r["revised_completion"] > actual]
+    late = [r["method_title"] for r in headline if r["revised_completion"] > actual]
     assert late, "the demo has a revised completion after the actual completion"
     for method in late:
         assert any(

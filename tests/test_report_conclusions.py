@@ -224,7 +224,7 @@ def test_the_opinion_and_the_method_relied_on_are_on_the_first_page(tmp_path):
     first = page.split('<div class="group first-page">', 1)[1].split("<h3>Dates and extensions", 1)[0]
     assert "I rely on the <strong>time impact analysis</strong>." in first
     assert "Method relied on: the time impact analysis ([report] preferred_method)." in first
-    headline = {r["method"]: r for r in rows_of(out, "headline")}
+    headline = {r["method_title"]: r for r in rows_of(out, "headline")}
     assert "time impact analysis (relied on by the analyst)" in headline
     # the small case's working (test_report.py): 5 days, all excusable and compensable
     assert headline["windows analysis"]["eot_days"] == "5" and headline["windows analysis"]["ld_days"] == "0"

@@ -142,7 +142,7 @@ def _three_activities() -> pd.DataFrame:
     return pd.DataFrame(
         {
             "wbs": ["1", "1", "2"],
-            "id": ["A", "M", "B"],
+            "activity": ["A", "M", "B"],
             "name": ["Dig", "Handover", "<b>Pour</b>"],
             "planned_start": pd.to_datetime(["2025-01-06", "2025-01-17", "2025-01-13"]),
             "planned_finish": pd.to_datetime(["2025-01-10", "2025-01-17", "2025-01-17"]),
@@ -202,7 +202,7 @@ def test_the_legend_sits_between_the_title_and_the_date_ticks():
 def test_gantt_order_puts_the_path_first_then_the_rest_by_start():
     activities = pd.DataFrame(
         {
-            "id": ["A", "B", "C", "D", "E"],
+            "activity": ["A", "B", "C", "D", "E"],
             "planned_start": pd.to_datetime(["2025-01-13", None, "2025-01-06", "2025-01-06", None]),
             "actual_start": pd.to_datetime([None, "2025-01-08", None, None, "2025-01-20"]),
         }
@@ -210,9 +210,9 @@ def test_gantt_order_puts_the_path_first_then_the_rest_by_start():
     # path E, A; the others by start: C and D both 01-06 (then by id), B 01-08 (its actual
     # start, having no planned one)
     ordered = figures.gantt_order(activities, ["E", "A"])
-    assert ordered["id"].tolist() == ["E", "A", "C", "D", "B"]
+    assert ordered["activity"].tolist() == ["E", "A", "C", "D", "B"]
     assert ordered["group"].tolist() == [figures.GANTT_GROUPS[0]] * 2 + [figures.GANTT_GROUPS[1]] * 3
-    assert figures.gantt_order(activities)["id"].tolist() == ["C", "D", "B", "A", "E"]
+    assert figures.gantt_order(activities)["activity"].tolist() == ["C", "D", "B", "A", "E"]
 
 
 @pytest.mark.parametrize("vision", ["normal", *_DICHROMACY])

@@ -156,7 +156,7 @@ def test_the_demo_prolongation_totals_are_the_first_page_figures(demo, demo_book
                 row[headings.index("compensable days")],
                 _evaluate(sheet, sheet.cell(row=number, column=formula).value),
             )
-    headline = {r["method"]: r for r in rows_of(demo, "headline")}
+    headline = {r["method_title"]: r for r in rows_of(demo, "headline")}
     for method, row in headline.items():
         compensable, cost = int(row["compensable_days"]), float(row["prolongation_cost"])
         if compensable:
@@ -186,8 +186,8 @@ def test_the_demo_damages_are_days_times_rate_under_the_cap(demo):
 
     with open(DEMO / "case.toml", "rb") as handle:
         commercial = tomllib.load(handle)["commercial"]
-    headline = {r["method"]: r for r in rows_of(demo, "headline")}
-    whole = {r["method"]: r for r in rows_of(demo, "damages_build_up") if r["applies_to"] == "the whole works"}
+    headline = {r["method_title"]: r for r in rows_of(demo, "headline")}
+    whole = {r["method_title"]: r for r in rows_of(demo, "damages_build_up") if r["applies_to"] == "the whole works"}
     assert set(whole) == set(headline)
     for method, row in whole.items():
         before = int(row["ld_days"]) * float(commercial["liquidated_damages_per_day"])
@@ -234,7 +234,7 @@ def test_the_small_case_prolongation_is_five_days_at_the_flat_rate(tmp_path):
 
     out = build(write_small_case(tmp_path / "case"), tmp_path / "report")
     rows = rows_of(out, "prolongation_build_up")
-    assert [(r["method"], r["days"], r["cost_per_day"], r["cost"]) for r in rows] == [
+    assert [(r["method_title"], r["days"], r["cost_per_day"], r["cost"]) for r in rows] == [
         (m, "5", "100.0", "500.0")
         for m in ("windows analysis", "impacted as-planned", "time impact analysis", "collapsed as-built")
     ]

@@ -155,7 +155,7 @@ def test_events_go_into_the_last_programme_before_they_began(tmp_path):
     result = analyse(load_case(two_update_case(tmp_path / "case")))
     events = result.events.set_index("event")
     assert list(result.events["event"]) == ["E0", "E3", "E1", "E2"]
-    assert dict(events["update"]) == {"E0": "baseline", "E3": "u1", "E1": "u1", "E2": "u1"}
+    assert dict(events["snapshot"]) == {"E0": "baseline", "E3": "u1", "E1": "u1", "E2": "u1"}
     assert dict(events["completion_before"]) == {
         "E0": day("2025-01-15"),
         "E3": day("2025-01-16"),
@@ -192,7 +192,7 @@ def test_each_programme_reconciles_with_the_next(tmp_path):
     assert dict(updates["residual_days"]) == {"baseline": 0, "u1": -3, "u2": 1}
     assert [list(e) for e in updates["events"]] == [["E0"], ["E3", "E1", "E2"], []]
     for snapshot, row in updates.iterrows():  # within each programme the increments add up
-        own = result.events[result.events["update"] == snapshot]
+        own = result.events[result.events["snapshot"] == snapshot]
         assert int(own["increment_days"].sum()) == row["increment_days"]
     assert (result.planned_completion, result.actual_completion) == (day("2025-01-15"), day("2025-01-18"))
     assert result.explained_days == 3 == result.total_days + int(updates["residual_days"].sum())
@@ -215,7 +215,7 @@ def test_tia_update_names_the_programme(tmp_path):
     events = [{**e, "tia_update": "u2" if e["id"] == "E2" else ""} for e in EVENTS]
     result = analyse(load_case(two_update_case(tmp_path / "case", events)))
     events_by_id = result.events.set_index("event")
-    assert dict(events_by_id["update"]) == {"E0": "baseline", "E3": "u1", "E1": "u1", "E2": "u2"}
+    assert dict(events_by_id["snapshot"]) == {"E0": "baseline", "E3": "u1", "E1": "u1", "E2": "u2"}
     assert int(events_by_id.loc["E2", "increment_days"]) == 1
     updates = result.updates.set_index("snapshot")
     assert dict(updates["residual_days"]) == {"baseline": 0, "u1": -1, "u2": 0}
@@ -292,11 +292,11 @@ def test_cli_json(tmp_path):
             "residual_days": 1,
         },
     ]
-    assert [{k: e[k] for k in ("event", "update", "increment_days", "alone_days")} for e in data["events"]] == [
-        {"event": "E0", "update": "baseline", "increment_days": 1, "alone_days": 1},
-        {"event": "E3", "update": "u1", "increment_days": 1, "alone_days": 1},
-        {"event": "E1", "update": "u1", "increment_days": 1, "alone_days": 2},
-        {"event": "E2", "update": "u1", "increment_days": 2, "alone_days": 3},
+    assert [{k: e[k] for k in ("event", "snapshot", "increment_days", "alone_days")} for e in data["events"]] == [
+        {"event": "E0", "snapshot": "baseline", "increment_days": 1, "alone_days": 1},
+        {"event": "E3", "snapshot": "u1", "increment_days": 1, "alone_days": 1},
+        {"event": "E1", "snapshot": "u1", "increment_days": 1, "alone_days": 2},
+        {"event": "E2", "snapshot": "u1", "increment_days": 2, "alone_days": 3},
     ]
     assert all(isinstance(e["warnings"], list) for e in data["events"])
 

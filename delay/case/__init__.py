@@ -15,7 +15,7 @@ Example
 >>> from pathlib import Path
 >>> from delay.case import load_case, summarise
 >>> case = load_case(Path(demo.root))  # the demo case, read again from its folder
->>> summarise(case)["snapshots"][0]["folder"]
+>>> summarise(case)["snapshots"][0]["snapshot"]
 'baseline'
 """
 
@@ -86,7 +86,7 @@ def load_case(path: str | Path) -> Case:
 
 def _snapshot_summary(snap: Snapshot) -> dict[str, Any]:
     return {
-        "folder": snap.folder,
+        "snapshot": snap.folder,
         "label": snap.label,
         "kind": snap.kind,
         "data_date": snap.data_date.isoformat(),
@@ -125,7 +125,7 @@ def summarise(case: Case) -> dict[str, Any]:
     >>> folder = tempfile.TemporaryDirectory()
     >>> case = load_case(synthesise(Path(folder.name) / "case", activities=12, updates=1))
     >>> facts = summarise(case)
-    >>> facts["snapshots"][1]["folder"], facts["snapshots"][1]["activities"], facts["asbuilt"]
+    >>> facts["snapshots"][1]["snapshot"], facts["snapshots"][1]["activities"], facts["asbuilt"]
     ('u01', 12, True)
     >>> folder.cleanup()
     """

@@ -195,7 +195,7 @@ def tia(case, output_format):
             r.party,
             r.impact,
             text_cell(r.start),
-            r.update,
+            r.snapshot,
             r.completion_before,
             r.alone_days,
             r.increment_days,

@@ -79,7 +79,7 @@ class TimeImpactTrace:
     target : str
         The activity measured (the project's completion activity or a section's milestone).
     events : pandas.DataFrame
-        :data:`delay.methods.impacted.EVENT_COLUMNS` plus ``update`` (the programme the
+        :data:`delay.methods.impacted.EVENT_COLUMNS` plus ``snapshot`` (the folder of the programme the
         event was inserted into), ``completion_before`` and ``warnings``; calendar days.
     updates : pandas.DataFrame
         One row per programme, :data:`UPDATE_COLUMNS`: its completion before and after its
@@ -142,7 +142,7 @@ class TimeImpactTrace:
                 {
                     "event": r.event,
                     "party": r.party,
-                    "update": r.update,
+                    "snapshot": r.snapshot,
                     "increment_days": int(r.increment_days),
                     "alone_days": int(r.alone_days),
                     "completion_after": r.completion_after.isoformat(),
@@ -393,7 +393,7 @@ def _analyse(case: Case) -> TimeImpactResult:
                 continue
             before = day_to_date(int(base_full[t]))
             per_target_events[t].append(
-                frames[t].assign(update=snap.folder, completion_before=before, warnings=warnings)
+                frames[t].assign(snapshot=snap.folder, completion_before=before, warnings=warnings)
             )
             next_day = int(next_finish[t]) if after is not None else int(final_full[t])
             if after is None:  # no as-built record: the last update's own forecast is the end
@@ -418,7 +418,7 @@ def _analyse(case: Case) -> TimeImpactResult:
         if not per_target_updates[t] or actual[t] == NO_DAY:
             traces.append(None)
             continue
-        columns = EVENT_COLUMNS + ["update", "completion_before", "warnings"]
+        columns = EVENT_COLUMNS + ["snapshot", "completion_before", "warnings"]
         events = (
             pd.concat(per_target_events[t], ignore_index=True)
             if per_target_events[t]

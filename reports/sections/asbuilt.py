@@ -36,7 +36,7 @@ _EXPLAIN = (
 
 _COLUMNS = [
     "wbs",
-    "id",
+    "activity",
     "name",
     "on_paths",
     "planned_start",
@@ -101,7 +101,7 @@ def driving_path_frame(ctx: Context, result) -> pd.DataFrame:
         rows.append(
             {
                 "wbs": wbs.get(ident, ""),
-                "id": ident,
+                "activity": ident,
                 "name": row["name"],
                 "on_paths": paths,
                 "planned_start": row["planned_start"],
@@ -121,7 +121,7 @@ def driving_path_frame(ctx: Context, result) -> pd.DataFrame:
                 pd.Timestamp(frame["planned_start"].iloc[k])
                 if pd.notna(frame["planned_start"].iloc[k])
                 else pd.Timestamp(frame["actual_start"].iloc[k]),
-                frame["id"].iloc[k],
+                frame["activity"].iloc[k],
             ),
         )
         frame = frame.iloc[order].reset_index(drop=True)
@@ -200,6 +200,11 @@ def section(ctx: Context) -> Section:
         )
     )
     blocks.append(
-        ctx.table("asbuilt_activities", "Every activity, planned against actual", "asbuilt", result.activities)
+        ctx.table(
+            "asbuilt_activities",
+            "Every activity, planned against actual",
+            "asbuilt",
+            result.activities.rename(columns={"id": "activity"}),
+        )
     )
     return asbuilt

@@ -108,7 +108,8 @@ def settings_frame(case, methods: list[str], title: str) -> pd.DataFrame:
 
 def _corrections(case) -> pd.DataFrame:
     columns = ["record", "snapshot", "table", "key", "column", "original", "corrected", "reason", "row"]
-    return pd.DataFrame([{c: getattr(item, c) for c in columns} for item in case.corrections], columns=columns)
+    frame = pd.DataFrame([{c: getattr(item, c) for c in columns} for item in case.corrections], columns=columns)
+    return frame.rename(columns={"snapshot": "label"})  # a correction names its snapshot by label
 
 
 def section(ctx: Context, title: str) -> Section:

@@ -26,7 +26,7 @@ from ..tables import BuildUp
 __all__ = ["section", "rates_frame", "prolongation_frame", "damages_frame", "PROLONGATION", "DAMAGES"]
 
 #: How the prolongation cost is built up: days x rate, totals per method.
-PROLONGATION = BuildUp(products={"cost": ("days", "cost_per_day")}, totals=("days", "cost"), group="method")
+PROLONGATION = BuildUp(products={"cost": ("days", "cost_per_day")}, totals=("days", "cost"), group="method_title")
 
 #: How liquidated damages are built up: days of liquidated damages x rate, then the cap where it is above 0.
 DAMAGES = BuildUp(
@@ -94,15 +94,15 @@ def prolongation_frame(ctx: Context) -> pd.DataFrame:
     Returns
     -------
     pandas.DataFrame
-        ``method`` (in words) and the columns of
+        ``method_title`` (the method in words) and the columns of
         :func:`delay.entitlement.prolongation_build_up`, method by method.
     """
     frames = [
-        m.prolongation.assign(method=METHOD_NAMES[m.method])
+        m.prolongation.assign(method_title=METHOD_NAMES[m.method])
         for m in ctx.entitled
         if m.prolongation is not None and len(m.prolongation)
     ]
-    columns = ["method", "from", "to", "source", "cost_per_day", "days", "cost"]
+    columns = ["method_title", "from", "to", "source", "cost_per_day", "days", "cost"]
     if not frames:
         return pd.DataFrame(columns=columns)
     return pd.concat(frames, ignore_index=True)[columns]
@@ -119,7 +119,7 @@ def damages_frame(ctx: Context) -> pd.DataFrame:
     Returns
     -------
     pandas.DataFrame
-        ``method``, ``applies_to``, ``ld_days``, ``liquidated_damages_per_day``,
+        ``method_title``, ``applies_to``, ``ld_days``, ``liquidated_damages_per_day``,
         ``damages_before_cap`` (days x rate), ``cap`` (``[commercial]
         liquidated_damages_cap``, 0: none), ``ld_exposure`` and ``ld_capped`` (the
         entitlement's figures).
@@ -142,7 +142,7 @@ def damages_frame(ctx: Context) -> pd.DataFrame:
         for what, days, rate, exposure, capped in figures:
             rows.append(
                 {
-                    "method": METHOD_NAMES[item.method],
+                    "method_title": METHOD_NAMES[item.method],
                     "applies_to": what,
                     "ld_days": int(days),
                     "liquidated_damages_per_day": float(rate),
@@ -155,7 +155,7 @@ def damages_frame(ctx: Context) -> pd.DataFrame:
     return pd.DataFrame(
         rows,
         columns=[
-            "method",
+            "method_title",
             "applies_to",
             "ld_days",
             "liquidated_damages_per_day",
@@ -179,7 +179,8 @@ def _cap_sentence(frame: pd.DataFrame, cap: float, currency: str) -> str:
         largest = frame["damages_before_cap"].max() if len(frame) else 0
         return text + f"; it limits none of them (the largest before the cap is {money_text(largest, currency)})."
     limited = "; ".join(
-        f"{r.method}, {r.applies_to}: {money_text(r.damages_before_cap, currency)}" for r in bit.itertuples(index=False)
+        f"{r.method_title}, {r.applies_to}: {money_text(r.damages_before_cap, currency)}"
+        for r in bit.itertuples(index=False)
     )
     return text + f"; it limits: {limited}."
 

@@ -59,7 +59,7 @@ def _metrics(ctx: Context, snapshots: list[dict], folders: list[str], labels: di
     ]
     detail = [
         {
-            "snapshot": snap["label"],
+            "label": snap["label"],
             "metric": m["title"],
             "count": m.get("count"),
             "denominator": m.get("denominator"),
@@ -90,7 +90,7 @@ def _metrics(ctx: Context, snapshots: list[dict], folders: list[str], labels: di
             pd.DataFrame(
                 detail,
                 columns=[
-                    "snapshot",
+                    "label",
                     "metric",
                     "count",
                     "denominator",
@@ -123,7 +123,7 @@ def _data_checks(ctx: Context, snapshots: list[dict], folders: list[str], labels
     ]
     findings = [
         {
-            "snapshot": snap["label"],
+            "label": snap["label"],
             "check": item["title"],
             "status": item.get("status"),
             "count": item.get("count"),
@@ -147,7 +147,7 @@ def _data_checks(ctx: Context, snapshots: list[dict], folders: list[str], labels
             "data_check_findings",
             "Forensic checks: what was found",
             "quality",
-            pd.DataFrame(findings, columns=["snapshot", "check", "status", "count", "items", "note"]),
+            pd.DataFrame(findings, columns=["label", "check", "status", "count", "items", "note"]),
         ),
     ]
 
@@ -227,8 +227,8 @@ def section(ctx: Context) -> Section:
         kinds = list(dict.fromkeys(k for c in comparisons for k in c.get("counts", {})))
         rows = [
             {
-                "earlier": c.get("earlier_label"),
-                "later": c.get("later_label"),
+                "earlier_label": c.get("earlier_label"),
+                "later_label": c.get("later_label"),
                 **{k: c.get("counts", {}).get(k, 0) for k in kinds},
             }
             for c in comparisons
@@ -238,7 +238,7 @@ def section(ctx: Context) -> Section:
                 "snapshot_changes",
                 "Changes from each programme to the next",
                 "quality",
-                pd.DataFrame(rows, columns=["earlier", "later"] + kinds),
+                pd.DataFrame(rows, columns=["earlier_label", "later_label"] + kinds),
                 labels={k: k.replace("_", " ") for k in kinds},
             )
         )

@@ -37,7 +37,7 @@ __all__ = ["section", "headline_frame", "grants_frame", "key_dates"]
 
 #: Headings of the headline table (money columns get the currency).
 _HEADLINE_LABELS = {
-    "method": "method",
+    "method_title": "method",
     "eot_days": "extension of time (days)",
     "revised_completion": "revised completion",
     "compensable_days": "compensable days",
@@ -57,14 +57,14 @@ def headline_frame(ctx: Context) -> pd.DataFrame:
     Returns
     -------
     pandas.DataFrame
-        ``method`` (in words; the method the analyst relies on marked), ``eot_days``,
+        ``method_title`` (the method in words; the one the analyst relies on marked), ``eot_days``,
         ``revised_completion``, ``compensable_days``, ``prolongation_cost``,
         ``ld_days``, ``ld_exposure``, ``acceleration_days``.
     """
     preferred = ctx.case.settings.report.preferred_method
     rows = [
         {
-            "method": METHOD_NAMES[m.method] + (" (relied on by the analyst)" if m.method == preferred else ""),
+            "method_title": METHOD_NAMES[m.method] + (" (relied on by the analyst)" if m.method == preferred else ""),
             "eot_days": m.eot_days,
             "revised_completion": m.revised_completion,
             "compensable_days": m.compensable_days,
@@ -78,7 +78,7 @@ def headline_frame(ctx: Context) -> pd.DataFrame:
     return pd.DataFrame(
         rows,
         columns=[
-            "method",
+            "method_title",
             "eot_days",
             "revised_completion",
             "compensable_days",
@@ -342,7 +342,9 @@ def _entitlement_tables(ctx: Context) -> list:
             "ld_exposure",
             "note",
         ]
-        frame = frame[columns].assign(method=frame["method"].map(METHOD_NAMES))
+        frame = (
+            frame[columns].assign(method=frame["method"].map(METHOD_NAMES)).rename(columns={"method": "method_title"})
+        )
         blocks.append(
             ctx.table(
                 "entitlement_by_section",
@@ -361,7 +363,7 @@ def _entitlement_tables(ctx: Context) -> list:
                 "entitlement_by_event",
                 "Events: days claimed beside days assessed",
                 "summary",
-                frame.assign(method=frame["method"].map(METHOD_NAMES)),
+                frame.assign(method=frame["method"].map(METHOD_NAMES)).rename(columns={"method": "method_title"}),
                 labels={"title": "event title"},
             )
         )

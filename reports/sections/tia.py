@@ -56,7 +56,7 @@ def section(ctx: Context) -> Section:
                 "title": f"the update of {update.data_date.isoformat()} before its events",
             }
         )
-        events = result.events[result.events["update"] == update.snapshot]
+        events = result.events[result.events["snapshot"] == update.snapshot]
         rows += [
             {
                 "run": update.snapshot,
@@ -89,7 +89,8 @@ def section(ctx: Context) -> Section:
             "tia_events",
             "Each event in the programme it was inserted into",
             "tia",
-            event_rows(result.events, ["update", "completion_before"]),
+            event_rows(result.events, ["snapshot", "completion_before"]),
+            labels={"snapshot": "programme inserted into"},
             note=" ".join(result.notes),
         )
     )

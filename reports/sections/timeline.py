@@ -20,7 +20,7 @@ _EXPLAIN = (
 )
 
 _COLUMNS = [
-    "id",
+    "element",
     "name",
     "wbs",
     "classification",
@@ -64,7 +64,7 @@ def section(ctx: Context) -> Section:
             "element_dates",
             "Each element's dates as planned and as built",
             "timeline",
-            timeline.elements[_COLUMNS],
+            timeline.elements.rename(columns={"id": "element"})[_COLUMNS],
             note=f"{len(timeline.frames)} weekly frames from {timeline.frame_dates[0]} to {timeline.frame_dates[-1]}.",
         )
     )
