@@ -28,9 +28,10 @@ import networkx as nx
 import numpy as np
 import pandas as pd
 from casewriter import write_case
-from conftest import activity_table, schedule_case
 from hypothesis import given, settings
 from hypothesis import strategies as st
+
+from conftest import activity_table, schedule_case
 
 DATA_DATE = np.datetime64("2025-01-06")  # casewriter's default start: a Monday
 FIVE_DAY = "Mon Tue Wed Thu Fri"

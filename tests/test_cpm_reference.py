@@ -28,6 +28,7 @@ import datetime as dt
 
 import pandas as pd
 import pytest
+
 from conftest import (
     activity_table,
     check_critical,
