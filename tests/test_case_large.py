@@ -26,7 +26,7 @@ def large_root(tmp_path_factory):
 def test_large_case_loads_with_every_row(large_root):
     case = load_case(large_root)
     summary = summarise(case)
-    assert [(s["folder"], s["activities"], s["links"]) for s in summary["snapshots"]] == [
+    assert [(s["snapshot"], s["activities"], s["links"]) for s in summary["snapshots"]] == [
         ("baseline", 50_000, 120_000),
         ("update_01", 50_000, 120_000),
     ]
