@@ -368,7 +368,12 @@ class Network:
         all_succ = np.concatenate([self.succ, np.asarray(succ, dtype=np.int64)])
         all_type = np.concatenate([self.link_type, np.asarray(link_type, dtype=np.int8)])
         all_lag = np.concatenate([self.lag, np.asarray(lag, dtype=np.int64)])
-        return build_network(ids, all_pred, all_succ, all_type, all_lag, source)
+        network = build_network(ids, all_pred, all_succ, all_type, all_lag, source)
+        if "_number" in self.__dict__:  # the existing activities keep their numbers: extend the look-up
+            number = dict(self._number)
+            number.update((str(name), self.size + k) for k, name in enumerate(new_ids))
+            network.__dict__["_number"] = number
+        return network
 
 
 @dataclass(frozen=True, eq=False)
