@@ -24,6 +24,8 @@ from .commands.common import FORMAT, reports_input_errors
 from .commands.common import load_case_argument as _load
 from .commands.common import print_table as _print_table
 
+__all__ = ["cli", "main"]
+
 
 class _Commands(click.Group):
     """The ``delay`` group: a former command name (:data:`delay.commands.ALIASES`) runs the

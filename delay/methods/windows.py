@@ -349,7 +349,9 @@ class WindowsResult:
                 "movement_days": w.movement_days,
                 "movement_work_days": w.movement_work_days,
                 "progress_days": w.progress_days,
+                "progress_work_days": w.progress_work_days,
                 "revision_days": w.revision_days,
+                "revision_work_days": w.revision_work_days,
                 **{f"{party}_days": w.by_party_days.get(party, 0) for party in (*PARTIES, CONCURRENT)},
                 "sentence": w.sentence,
             }

@@ -101,7 +101,7 @@ def _metrics(ctx: Context, snapshots: list[dict], folders: list[str], labels: di
                     "activities",
                     "note",
                 ],
-            ),
+            ).astype({"count": "Int64", "denominator": "Int64"}),  # whole numbers, blank where none
             labels={"activities": "activities or links found"},
         ),
     ]
