@@ -253,7 +253,7 @@ def section(ctx: Context) -> Section:
             "windows",
             "Windows: movement of completion and its split",
             "windows",
-            table,
+            table.drop(columns=["progress_work_days", "revision_work_days"]),  # the page's width: the JSON has them
             note=f"Total movement {days_text(result.total_movement_days)}, from "
             f"{result.first_completion.isoformat()} to {result.last_completion.isoformat()}.",
         )
