@@ -144,11 +144,7 @@ def _retrospective(case, folder: Path, out_dir: Path, echo) -> list[Path]:
     if case.asbuilt_snapshot is not None:
         compared = asbuilt.compare(case)
         (folder / "asbuilt.json").write_text(json.dumps(compared.to_json(), indent=2), encoding="utf-8")
-        write_csv(
-            folder / "asbuilt_activities.csv",
-            compared.activities.rename(columns={"id": "activity"}),
-            date_format="%Y-%m-%d",
-        )
+        write_csv(folder / "asbuilt_activities.csv", compared.activities, date_format="%Y-%m-%d")
         write_csv(folder / "asbuilt_critical_path.csv", compared.critical_path, date_format="%Y-%m-%d")
         written += [out_dir / "asbuilt.json", out_dir / "asbuilt_activities.csv", out_dir / "asbuilt_critical_path.csv"]
         echo(f"As-built: planned completion {compared.planned_completion}, actual {compared.actual_completion}")

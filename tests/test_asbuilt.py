@@ -149,7 +149,7 @@ def test_completions_and_variance(result):
 
 
 def test_planned_against_actual_per_activity(result):
-    table = result.activities.set_index("id")
+    table = result.activities.set_index("activity")
     expected = {  # planned start, planned finish, actual start, actual finish, variances
         "A": ("2025-01-27", "2025-01-29", "2025-01-27", "2025-01-30", 0, 1, 3, 4, 1),
         "B": ("2025-01-30", "2025-02-02", "2025-02-01", "2025-02-06", 2, 4, 4, 6, 2),
@@ -317,7 +317,7 @@ def test_a_delay_carried_across_a_shutdown_falls_where_it_arose(tmp_path):
         ("2025-12", 18, 2),
         ("2026-01", 0, 0),
     ]
-    b = result.activities.set_index("id").loc["B"]
+    b = result.activities.set_index("activity").loc["B"]
     assert (int(b["start_variance_work_days"]), int(b["start_variance_days"])) == (2, 2)
     assert (int(b["finish_variance_work_days"]), int(b["finish_variance_days"])) == (2, 18)
     assert int(b["duration_variance_work_days"]) == 0
@@ -395,7 +395,7 @@ def test_a_five_day_task_over_a_weekend_is_not_late_in_work_days(tmp_path):
         ],
         "2025-01-06",
     )
-    table = compare(case).activities.set_index("id")
+    table = compare(case).activities.set_index("activity")
     a, b = table.loc["A"], table.loc["B"]
     assert (int(a["start_variance_work_days"]), int(a["finish_variance_work_days"])) == (0, 0)
     assert (int(b["start_variance_work_days"]), int(b["finish_variance_work_days"])) == (3, 3)

@@ -158,7 +158,7 @@ class AsBuiltResult:
             ],
             "activities": [
                 {
-                    "activity": r.id,
+                    "activity": r.activity,
                     "planned_start": iso_date(r.planned_start),
                     "planned_finish": iso_date(r.planned_finish),
                     "actual_start": iso_date(r.actual_start),
@@ -233,9 +233,9 @@ def _activity_table(planned, built) -> pd.DataFrame:
         "Int64"
     )
     table["duration_variance_work_days"] = (table["actual_duration"] - table["planned_duration"]).astype("Int64")
-    return table[
+    return table.rename(columns={"id": "activity"})[
         [
-            "id",
+            "activity",
             "name",
             "planned_start",
             "planned_finish",
@@ -360,7 +360,7 @@ def _path_table(built, table: pd.DataFrame, chain: pd.DataFrame, days: np.ndarra
     net = built.model.network
     numbers = net.index_of(list(chain["activity"]))
     predecessors = net.index_of([p or "" for p in chain["driving_predecessor"]])
-    planned_finish = table.set_index("id")["planned_finish"]
+    planned_finish = table.set_index("activity")["planned_finish"]
     actual_start = built.day_array("early_start")
     actual_finish = built.day_array("early_finish")
     rows = []

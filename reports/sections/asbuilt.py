@@ -79,7 +79,7 @@ def driving_path_frame(ctx: Context, result) -> pd.DataFrame:
             if code and ident not in wbs:
                 wbs[ident] = code
     on_planned, on_built = set(planned_path), set(built_path)
-    table = result.activities.set_index("id")
+    table = result.activities.set_index("activity")
     rows = []
     for ident in dict.fromkeys(planned_path + built_path):
         if ident not in table.index:
@@ -204,7 +204,7 @@ def section(ctx: Context) -> Section:
             "asbuilt_activities",
             "Every activity, planned against actual",
             "asbuilt",
-            result.activities.rename(columns={"id": "activity"}),
+            result.activities,
         )
     )
     return asbuilt
