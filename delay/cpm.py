@@ -262,6 +262,7 @@ class ScheduleModel:
         datetime.date(2026, 6, 2)
         """
         changes: dict[str, object] = {}
+        changed: list[np.ndarray] = []  # the activities whose arrays change
         net = self.network
         arrays = {name: getattr(self, name) for name in ACTIVITY_ARRAYS}
         new_ids: list = []
@@ -313,12 +314,14 @@ class ScheduleModel:
             np.add.at(duration, where, days)
             np.add.at(remaining, where[has_remaining], days[has_remaining].astype(float))
             arrays["duration"], arrays["remaining"] = duration, remaining
+            changed.append(where)
         if start_no_earlier:
             where = numbers(list(start_no_earlier))
             days = to_days(np.asarray([np.datetime64(v, "D") for v in start_no_earlier.values()]))
             bound = arrays["start_bound"].copy()
             np.maximum.at(bound, where, days)
             arrays["start_bound"] = bound
+            changed.append(where)
         if hold:
             where = numbers(list(hold))
             requests = []
@@ -334,6 +337,7 @@ class ScheduleModel:
             calendar = np.array(arrays["calendar"], dtype=np.int64)
             calendar[where] = held
             arrays["calendar"] = calendar
+            changed.append(where)
         if new_ids or (add_links is not None and len(add_links)):
             links = add_links if add_links is not None else pd.DataFrame(columns=["pred", "succ"])
             pred = numbers(list(links["pred"])) if len(links) else np.empty(0, np.int64)
@@ -344,10 +348,16 @@ class ScheduleModel:
             changes["network"] = net.extended(new_ids, pred, succ, type_codes, lags)
             order = self.link_order if self.link_order is not None else np.arange(net.link_count)
             changes["link_order"] = np.concatenate([order, order.size + np.arange(len(links))])
+            changed += [net.size + np.arange(len(new_ids)), succ]  # what the new logic touches
         changes.update(arrays)
         if settings is not None:
             changes["settings"] = settings
-        return dataclasses.replace(self, **changes)
+        variant = dataclasses.replace(self, **changes)
+        if settings is None or settings == self.settings:
+            # the same logic, or more of it: its forward dates are brought up to date from this model's
+            variant.__dict__["_parent"] = self
+            variant.__dict__["_changed"] = np.concatenate(changed) if changed else np.empty(0, np.int64)
+        return variant
 
     def restricted(self, keep: np.ndarray) -> ScheduleModel:
         """Make the model of some of its activities and the links between them.
@@ -666,6 +676,16 @@ class _Forward(NamedTuple):
     finish_day: np.ndarray  # the early finish as a day number
     relative_float: np.ndarray  # per link (only with floats)
     link_free_float_t: np.ndarray  # per activity by position (only with floats)
+    start_read_t: np.ndarray  # the start as successors read it, by position
+
+
+def _known_finish(model, st: _Status) -> np.ndarray:
+    """The finish day of each complete activity (its actual finish; a milestone's one
+    date), :data:`NO_DAY` for the others."""
+    known_finish = np.full(st.status.size, NO_DAY, dtype=np.int64)
+    rows = np.flatnonzero(st.complete)
+    known_finish[rows] = np.where(st.has_finish[rows], model.actual_finish[rows], model.actual_start[rows])
+    return known_finish
 
 
 def _forward(model: ScheduleModel, st: _Status, bounds: _Bounds, with_floats: bool) -> _Forward:
@@ -676,9 +696,7 @@ def _forward(model: ScheduleModel, st: _Status, bounds: _Bounds, with_floats: bo
 
     net, cals, settings = model.network, model.calendars, model.settings
     n, layout, order = net.size, net.passes, net.order
-    known_finish = np.full(n, NO_DAY, dtype=np.int64)  # complete: the actual finish (milestone: its date)
-    rows = np.flatnonzero(st.complete)
-    known_finish[rows] = np.where(st.has_finish[rows], model.actual_finish[rows], model.actual_start[rows])
+    known_finish = _known_finish(model, st)
     early_finish_t, start_read_t, early_finish, start_read, remaining_start, finish_day = (
         np.empty(n, dtype=np.int64) for _ in range(6)
     )
@@ -716,7 +734,14 @@ def _forward(model: ScheduleModel, st: _Status, bounds: _Bounds, with_floats: bo
         grow_within_bounds(model, cals, code == _kernels.TOO_EARLY)
     check_finish_days(model, finish_day)
     return _Forward(
-        early_finish_t, start_read, early_finish, remaining_start, finish_day, relative_float, link_free_float_t
+        early_finish_t,
+        start_read,
+        early_finish,
+        remaining_start,
+        finish_day,
+        relative_float,
+        link_free_float_t,
+        start_read_t,
     )
 
 
@@ -808,10 +833,182 @@ def _forward_completion(model: ScheduleModel) -> int:
 def _forward_dates(model: ScheduleModel) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     """``(status, start day, finish day)`` from the forward pass alone: the actual start
     where there is one, else the early start."""
+    state = _forward_state(model)
+    return state.st.status, state.start_day, state.dates.finish_day
+
+
+class _ForwardState(NamedTuple):
+    """What a forward pass alone leaves of a model, kept so that a variant of it
+    (:meth:`ScheduleModel.what_if`) is brought up to date instead of scheduled again."""
+
+    st: _Status
+    bounds: _Bounds
+    known_finish: np.ndarray
+    by_position: tuple  # status, point and calendar by topological position
+    dates: _Forward  # without floats
+    start_day: np.ndarray  # the actual start, else the early start (day numbers)
+
+
+def _forward_state(model: ScheduleModel) -> _ForwardState:
+    """The forward state of ``model``, computed once: brought up to date from the model
+    it was made from when only some activities' inputs changed (:func:`_updated_state`),
+    else by a whole forward pass. Each model of a chain of what-ifs keeps its own state
+    and lets go of the model it came from."""
+    chain = []
+    while "_forward_state" not in model.__dict__:
+        chain.append(model)
+        parent = model.__dict__.get("_parent")
+        if parent is None:
+            break
+        model = parent
+    for variant in reversed(chain):
+        parent = variant.__dict__.pop("_parent", None)
+        changed = variant.__dict__.pop("_changed", None)
+        if parent is not None:
+            state = _updated_state(variant, parent.__dict__["_forward_state"], changed)
+        else:
+            state = _whole_state(variant)
+        variant.__dict__["_forward_state"] = state
+    return chain[0].__dict__["_forward_state"] if chain else model.__dict__["_forward_state"]
+
+
+def _whole_state(model: ScheduleModel) -> _ForwardState:
     st = _status(model)
-    fwd = _forward(model, st, _bounds(model, st), with_floats=False)
+    bounds = _bounds(model, st)
+    fwd = _forward(model, st, bounds, with_floats=False)
+    order = model.network.order
     start_day = np.where(st.has_start, model.actual_start, model.calendars.day_of(model.calendar, fwd.start_read))
-    return st.status, start_day, fwd.finish_day
+    by_position = (st.status[order], st.point[order], model.calendar[order])
+    return _ForwardState(st, bounds, _known_finish(model, st), by_position, fwd, start_day)
+
+
+class _Rows:
+    """Some activities of a model, with the attributes :func:`_status` and
+    :func:`_bounds` read, so that they compute those activities alone."""
+
+    def __init__(self, model: ScheduleModel, rows: np.ndarray):
+        for name in ACTIVITY_ARRAYS:
+            setattr(self, name, getattr(model, name)[rows])
+        self.calendars = model.calendars
+        self.data_day = model.data_day
+        self.network = _RowsNetwork(rows.size, model.network.has_predecessor[rows])
+
+
+class _RowsNetwork(NamedTuple):
+    size: int
+    has_predecessor: np.ndarray
+
+
+def _put(values: np.ndarray, rows: np.ndarray, new: np.ndarray) -> np.ndarray:
+    """``values`` with ``new`` at ``rows``: a copy, or ``values`` itself when they are there
+    already (the arrays of a forward state are never written once made)."""
+    if (values[rows] == new).all():
+        return values
+    values = values.copy()
+    values[rows] = new
+    return values
+
+
+def _extended_state(base: _ForwardState, model: ScheduleModel) -> _ForwardState:
+    """``base`` for the network it was computed on extended by activities (numbered after
+    the others) and links, ``model``'s: the new activities get placeholders, to be
+    computed, and the arrays by topological position are laid out in the extended
+    network's order."""
+    added = model.network.size - base.st.status.size
+
+    def longer(values: np.ndarray) -> np.ndarray:
+        return np.concatenate([values, np.zeros(added, dtype=values.dtype)])
+
+    st = _Status(*(longer(a) for a in base.st))
+    bounds = _Bounds(*(longer(a) for a in base.bounds))
+    dates = base.dates
+    dates = dates._replace(
+        start_read=longer(dates.start_read),
+        early_finish=longer(dates.early_finish),
+        remaining_start=longer(dates.remaining_start),
+        finish_day=longer(dates.finish_day),
+    )
+    order = model.network.order
+    dates = dates._replace(early_finish_t=dates.early_finish[order], start_read_t=dates.start_read[order])
+    by_position = (st.status[order], st.point[order], model.calendar[order])
+    return _ForwardState(st, bounds, longer(base.known_finish), by_position, dates, longer(base.start_day))
+
+
+def _updated_state(model: ScheduleModel, base: _ForwardState, changed: np.ndarray) -> _ForwardState:
+    """The forward state of a what-if whose network, settings and data date are those of
+    the model with state ``base``, and whose activity arrays differ at ``changed`` at
+    most: status and bounds are computed for those activities alone, and the forward pass
+    visits them and what lies downstream of a date that moves (the kernel
+    :func:`delay._kernels.forward_update`). The dates equal a whole forward pass's."""
+    from . import _kernels
+
+    rows = np.unique(np.asarray(changed, dtype=np.int64))
+    if not rows.size:
+        return base
+    net = model.network
+    if base.st.status.size != net.size:
+        base = _extended_state(base, model)
+    part = _Rows(model, rows)
+    st_rows = _status(part)
+    st = _Status(*(_put(a, rows, b) for a, b in zip(base.st, st_rows)))
+    bounds = _Bounds(*(_put(a, rows, b) for a, b in zip(base.bounds, _bounds(part, st_rows))))
+    known_finish = _put(base.known_finish, rows, _known_finish(part, st_rows))
+    cals, settings = model.calendars, model.settings
+    positions = net.rank[rows]
+    status_t, point_t, calendar_t = (
+        _put(a, positions, b) for a, b in zip(base.by_position, (st_rows.status, st_rows.point, part.calendar))
+    )
+    layout = net.passes
+    touched = np.empty(net.size + 1, dtype=np.int64)
+    while True:
+        early_finish_t, start_read_t, early_finish, start_read, remaining_start, finish_day = (
+            a.copy()
+            for a in (
+                base.dates.early_finish_t,
+                base.dates.start_read_t,
+                base.dates.early_finish,
+                base.dates.start_read,
+                base.dates.remaining_start,
+                base.dates.finish_day,
+            )
+        )
+        code = _kernels.forward_update(
+            *layout.forward,
+            layout.b_ptr,
+            layout.b_succ,
+            net.order,
+            positions,
+            settings.progress == "progress_override",
+            settings.lag_calendar == "predecessor",
+            status_t,
+            point_t,
+            calendar_t,
+            bounds.lower,
+            bounds.upper,
+            bounds.duration,
+            bounds.start_read_fixed,
+            known_finish,
+            cals.table(),
+            early_finish_t,
+            start_read_t,
+            early_finish,
+            start_read,
+            remaining_start,
+            finish_day,
+            touched,
+        )
+        if code == _kernels.OK:
+            break
+        grow_within_bounds(model, cals, code == _kernels.TOO_EARLY)
+    check_finish_days(model, finish_day)
+    moved = touched[1 : 1 + touched[0]]
+    start_day = base.start_day.copy()
+    start_day[moved] = np.where(
+        st.has_start[moved], model.actual_start[moved], cals.day_of(model.calendar[moved], start_read[moved])
+    )
+    empty = np.empty(0, dtype=np.int64)
+    dates = _Forward(early_finish_t, start_read, early_finish, remaining_start, finish_day, empty, empty, start_read_t)
+    return _ForwardState(st, bounds, known_finish, (status_t, point_t, calendar_t), dates, start_day)
 
 
 @dataclass(frozen=True, eq=False)

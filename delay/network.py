@@ -13,6 +13,7 @@ predecessor's finish (FS, FF).
 from __future__ import annotations
 
 import dataclasses
+from collections import ChainMap
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
 from functools import cached_property
@@ -370,9 +371,10 @@ class Network:
         all_lag = np.concatenate([self.lag, np.asarray(lag, dtype=np.int64)])
         network = build_network(ids, all_pred, all_succ, all_type, all_lag, source)
         if "_number" in self.__dict__:  # the existing activities keep their numbers: extend the look-up
-            number = dict(self._number)
-            number.update((str(name), self.size + k) for k, name in enumerate(new_ids))
-            network.__dict__["_number"] = number
+            number = self._number
+            first, *rest = number.maps if isinstance(number, ChainMap) else ({}, number)
+            more = {**first, **{str(name): self.size + k for k, name in enumerate(new_ids)}}
+            network.__dict__["_number"] = ChainMap(more, *rest)  # the added ids, then the parent's look-up
         return network
 
 

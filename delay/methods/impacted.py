@@ -48,7 +48,7 @@ what the events would have done to the plan, not what happened).
 from __future__ import annotations
 
 import datetime as dt
-from collections.abc import Sequence
+from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -146,7 +146,7 @@ def order_events(case: Case, events: Sequence[str] | None = None, order: str = "
     return register.drop(columns=["_row", "_listed"]).reset_index(drop=True)
 
 
-def _hold_effects(event: pd.Series, named: list[str], model: ScheduleModel) -> tuple[list[str], list[str]]:
+def _hold_effects(event: Mapping, named: list[str], model: ScheduleModel) -> tuple[list[str], list[str]]:
     """Which named activities a hold applies to (every one not complete), and a sentence
     for each one that has no work planned in its period."""
     first = np.datetime64(pd.Timestamp(event["start"]).date(), "D").astype(np.int64)
@@ -168,7 +168,7 @@ def _hold_effects(event: pd.Series, named: list[str], model: ScheduleModel) -> t
     return held, notes
 
 
-def event_changes(case: Case, event: pd.Series, present: set[str], model: ScheduleModel | None = None) -> dict:
+def event_changes(case: Case, event: Mapping, present: set[str], model: ScheduleModel | None = None) -> dict:
     """The ``what_if`` arguments that model one event in a programme.
 
     An ``extend`` lengthens each named activity by the event's ``days`` (work days); a
@@ -181,8 +181,9 @@ def event_changes(case: Case, event: pd.Series, present: set[str], model: Schedu
     ----------
     case : delay.model.Case
         The case (its fragnets.csv and fragnet_links.csv are read for a fragnet).
-    event : pandas.Series
-        One row of its event register.
+    event : Mapping
+        One row of its event register (a ``pandas.Series`` or a record of
+        ``DataFrame.to_dict("records")``).
     present : set of str
         The activity ids of the programme (fragnet activities already inserted included).
     model : delay.cpm.ScheduleModel, optional
@@ -219,17 +220,20 @@ def event_changes(case: Case, event: pd.Series, present: set[str], model: Schedu
         if fragnet is None:
             return changes
         ids = set(fragnet["id"])
-        known = [
-            (p in ids or p in present) and (q in ids or q in present) for p, q in zip(links["pred"], links["succ"])
-        ]
-        usable = links[np.asarray(known, dtype=bool)] if len(links) else links
-        missing += sorted({a for a in (*links["pred"], *links["succ"]) if a not in ids and a not in present})
-        has_pred = {q for q in usable["succ"] if q in ids}
-        start = pd.Timestamp(event["start"]).date() if pd.notna(event["start"]) else None
-        changes["add_activities"] = fragnet.assign(
-            start_no_earlier=[None if i in has_pred else start for i in fragnet["id"]]
-        )
-        changes["add_links"] = usable.reset_index(drop=True)
+        ends = list(zip(links["pred"], links["succ"])) if len(links) else []
+        known = tuple((p in ids or p in present) and (q in ids or q in present) for p, q in ends)
+        missing += sorted({a for pair in ends for a in pair if a not in ids and a not in present})
+
+        def inserted() -> tuple[pd.DataFrame, pd.DataFrame]:
+            usable = links[np.asarray(known, dtype=bool)] if len(links) else links
+            has_pred = {q for q in usable["succ"] if q in ids}
+            start = pd.Timestamp(event["start"]).date() if pd.notna(event["start"]) else None
+            activities = fragnet.assign(start_no_earlier=[None if i in has_pred else start for i in fragnet["id"]])
+            return activities, usable.reset_index(drop=True)
+
+        # the same insertion alone, in the cumulative run and in a party's run: built once
+        key = ("fragnet inserted", event["id"], known, event["start"])
+        changes["add_activities"], changes["add_links"] = remembered(case, key, inserted)
         changes["touches"] = named
     return changes
 
@@ -250,7 +254,7 @@ def _fragnets(case: Case) -> dict[str, tuple[pd.DataFrame, pd.DataFrame]]:
 
 
 def apply_event(
-    model: ScheduleModel, case: Case, event: pd.Series, present: set[str]
+    model: ScheduleModel, case: Case, event: Mapping, present: set[str]
 ) -> tuple[ScheduleModel, list[str], list[str]]:
     """``model`` with one event inserted (see :func:`event_changes`).
 
@@ -260,8 +264,8 @@ def apply_event(
         The programme to insert the event into; it is not changed.
     case : delay.model.Case
         The case the event belongs to.
-    event : pandas.Series
-        One row of the event register.
+    event : Mapping
+        One row of the event register (a ``pandas.Series`` or a record).
     present : set of str
         The activity ids of ``model`` (fragnet activities already inserted included).
 
@@ -512,14 +516,16 @@ def _insert(
     targets' finishes from forward passes."""
     where = model.network.index_of(list(targets))
     base_finish = _finish_of(model.finish_days(), where)
-    present = set(base.activities["id"])
+    present = set(base.activities["id"].tolist())
+    in_cumulative = set(present)  # with the fragnet activities inserted so far
     alone, cumulative_finish, applied, effect = [], [], [], []
     cumulative = model
-    for _, event in register.iterrows():
+    for event in register.to_dict("records"):
         alone_model, missing, notes = apply_event(model, case, event, present)
         alone.append(_finish_of(alone_model.finish_days(), where))
-        added = {str(i) for i in cumulative.network.ids[model.network.size :]}
-        cumulative, _, cumulative_notes = apply_event(cumulative, case, event, present | added)
+        size = cumulative.network.size
+        cumulative, _, cumulative_notes = apply_event(cumulative, case, event, in_cumulative)
+        in_cumulative.update(str(i) for i in cumulative.network.ids[size:])
         cumulative_finish.append(_finish_of(cumulative.finish_days(), where))
         applied.append("" if not missing else f"not in {label}: {', '.join(missing)}")
         words = [f"alone: {n}" for n in notes if n not in cumulative_notes]
@@ -542,7 +548,7 @@ def _frame(register: pd.DataFrame, runs: _Runs, t: int, model: ScheduleModel) ->
     base = int(runs.base[t])
     after = np.concatenate([[base], runs.cumulative[:, t]]) if len(register) else np.array([base])
     rows = []
-    for i, (_, event) in enumerate(register.iterrows()):
+    for i, event in enumerate(register.to_dict("records")):
         alone_day, before, now = int(runs.alone[i, t]), int(after[i]), int(after[i + 1])
         rows.append(
             {
@@ -733,18 +739,18 @@ def _analyse(case: Case, snapshot: Snapshot, register: pd.DataFrame, order: str)
         for section, milestone in zip(case.sections["section"], case.sections["completion_activity"])
         if runs[targets.index(str(milestone))] is not None
     }
-    present = set(snapshot.activities["id"])
+    present = set(snapshot.activities["id"].tolist())
     k = int(model.network.index_of([targets[0]])[0])
     parties = []
     for party in PARTIES:
         own = register[register["party"] == party]
         if not len(own):
             continue
-        together = model
-        for _, event in own.iterrows():
-            together, _, _ = apply_event(
-                together, case, event, present | {str(i) for i in together.network.ids[model.network.size :]}
-            )
+        together, in_together = model, set(present)
+        for event in own.to_dict("records"):
+            size = together.network.size
+            together, _, _ = apply_event(together, case, event, in_together)
+            in_together.update(str(i) for i in together.network.ids[size:])
         day = int(together.finish_days()[k])
         parties.append(
             {
