@@ -37,7 +37,6 @@ __all__ = [
     "TOO_LATE",
     "order_and_layout",
     "forward_pass",
-    "forward_update",
     "backward_pass",
     "mark_upstream",
     "compressed_rows",
@@ -257,92 +256,6 @@ def _links_ignored(status, progress_override):
     return status == 2 or (progress_override and status == 1)
 
 
-@jitable
-def _early_dates(
-    i,
-    f_ptr,
-    f_pred,
-    f_type,
-    f_lag,
-    order,
-    progress_override,
-    lag_on_pred,
-    status,
-    point_kind,
-    calendar,
-    lower,
-    upper,
-    duration,
-    start_read_fixed,
-    known_finish,
-    table,
-    early_finish_t,
-    start_read_t,
-    early_finish,
-    start_read,
-    remaining_start,
-    finish_day,
-    bounds,
-):
-    """The early dates of the activity at topological position ``i`` from its links (the
-    arguments of :func:`forward_pass`); each link's bound goes into ``bounds``.
-
-    Returns :data:`OK`, or :data:`TOO_EARLY` / :data:`TOO_LATE` for a calendar look-up
-    outside the tables.
-    """
-    v = order[i]
-    bound = lower[v]
-    length = duration[v]
-    st = status[i]
-    first = f_ptr[i]
-    c = calendar[i]
-    if not _links_ignored(st, progress_override):
-        for j in range(first, f_ptr[i + 1]):
-            p = f_pred[j]
-            t = f_type[j]
-            reads_finish = t == 0 or t == 2
-            point = early_finish_t[p] if reads_finish else start_read_t[p]
-            if calendar[p] != c:
-                value = _bound_across(
-                    point,
-                    _reads_as_finish(point_kind[p], reads_finish),
-                    f_lag[j],
-                    lag_on_pred,
-                    calendar[p],
-                    c,
-                    table,
-                )
-                if value == _LOW:
-                    return TOO_EARLY
-                if value == _HIGH:
-                    return TOO_LATE
-            else:
-                value = point + f_lag[j]
-            if t >= 2:
-                value -= length
-            bounds[j - first] = value
-            if value > bound:
-                bound = value
-    if bound > upper[v]:
-        bound = upper[v]
-    remaining_start[v] = bound
-    read = start_read_fixed[v] if st == 1 else bound
-    start_read_t[i] = read
-    start_read[v] = read
-    finish = bound + length
-    early_finish_t[i] = finish
-    early_finish[v] = finish
-    day = known_finish[v]
-    if day == _LOW:
-        day = _day_of(c, finish if point_kind[i] == 1 else finish - 1, table)
-        if day == _LOW:
-            return TOO_EARLY
-        if day == _HIGH:
-            return TOO_LATE
-    finish_day[v] = day
-    return OK
-
-
 @Kernel
 def forward_pass(
     f_ptr,
@@ -371,6 +284,10 @@ def forward_pass(
     finish_day,
     relative_float,
     link_free_float,
+    b_ptr,
+    b_succ,
+    changed,
+    touched,
 ):
     """Compute early dates, activities by topological position (see :func:`order_and_layout`).
 
@@ -428,13 +345,27 @@ def forward_pass(
         Shape ``(m,)`` with floats (else empty), written in the forward stream's order.
     link_free_float : numpy.ndarray
         By position, filled with ``2**40`` by the caller; lowered with floats.
+    b_ptr, b_succ : numpy.ndarray
+        The backward stream's extents and successor positions (what lies downstream), read
+        when ``changed`` is not empty.
+    changed : numpy.ndarray
+        Empty: every activity is computed. Else the topological positions of the
+        activities whose inputs differ from those of a model whose dates the output arrays
+        hold on entry (a what-if's parent): only those, and the activities downstream of a
+        date that moves, are computed again, with the same rule, so the result equals a
+        whole pass. The successors of a changed position are always visited, since its
+        calendar or its kind, which they read, may have changed. (No floats then.)
+    touched : numpy.ndarray
+        Shape ``(n + 1,)`` when ``changed`` is not empty, written: ``touched[0]`` is how
+        many activities were computed, ``touched[1:1 + touched[0]]`` their numbers.
 
     Returns
     -------
     int
         :data:`OK`, or :data:`TOO_EARLY` / :data:`TOO_LATE` when a calendar look-up fell
         outside the tables: the caller grows them on that side
-        (:meth:`delay.calendars.CalendarSet.grow`) and runs the pass again.
+        (:meth:`delay.calendars.CalendarSet.grow`) and runs the pass again (from the
+        parent's dates again, when ``changed`` is given: the arrays are partly updated).
     """
     n = f_ptr.size - 1
     far = np.int64(1) << 40
@@ -443,44 +374,92 @@ def forward_pass(
         if f_ptr[i + 1] - f_ptr[i] > widest:
             widest = f_ptr[i + 1] - f_ptr[i]
     bounds = np.empty(widest, dtype=np.int64)  # each link's bound on the activity in hand
-    for i in range(n):
-        code = _early_dates(
-            i,
-            f_ptr,
-            f_pred,
-            f_type,
-            f_lag,
-            order,
-            progress_override,
-            lag_on_pred,
-            status,
-            point_kind,
-            calendar,
-            lower,
-            upper,
-            duration,
-            start_read_fixed,
-            known_finish,
-            table,
-            early_finish_t,
-            start_read_t,
-            early_finish,
-            start_read,
-            remaining_start,
-            finish_day,
-            bounds,
-        )
-        if code != OK:
-            return code
-        if not with_floats:
-            continue
+    update = changed.size > 0
+    mark = np.zeros(n if update else 0, dtype=np.int8)  # 1: to compute again; 2: its own inputs changed
+    pending = 0
+    begin = n if update else 0
+    for k in range(changed.size):
+        i = changed[k]
+        if mark[i] == 0:
+            pending += 1
+        mark[i] = 2
+        if i < begin:
+            begin = i
+    count = 0
+    before_finish = 0
+    before_read = 0
+    for i in range(begin, n):
+        if update:
+            if pending == 0:
+                break
+            if mark[i] == 0:
+                continue
+            pending -= 1
+            before_finish = early_finish_t[i]
+            before_read = start_read_t[i]
         v = order[i]
-        bound = remaining_start[v]
-        finish = early_finish_t[i]
-        ignored = _links_ignored(status[i], progress_override)
+        bound = lower[v]
+        length = duration[v]
+        st = status[i]
+        ignored = _links_ignored(st, progress_override)
         first = f_ptr[i]
         last = f_ptr[i + 1]
         c = calendar[i]
+        if not ignored:
+            for j in range(first, last):
+                p = f_pred[j]
+                t = f_type[j]
+                reads_finish = t == 0 or t == 2
+                point = early_finish_t[p] if reads_finish else start_read_t[p]
+                if calendar[p] != c:
+                    value = _bound_across(
+                        point,
+                        _reads_as_finish(point_kind[p], reads_finish),
+                        f_lag[j],
+                        lag_on_pred,
+                        calendar[p],
+                        c,
+                        table,
+                    )
+                    if value == _LOW:
+                        return TOO_EARLY
+                    if value == _HIGH:
+                        return TOO_LATE
+                else:
+                    value = point + f_lag[j]
+                if t >= 2:
+                    value -= length
+                bounds[j - first] = value
+                if value > bound:
+                    bound = value
+        if bound > upper[v]:
+            bound = upper[v]
+        remaining_start[v] = bound
+        read = start_read_fixed[v] if st == 1 else bound
+        start_read_t[i] = read
+        start_read[v] = read
+        finish = bound + length
+        early_finish_t[i] = finish
+        early_finish[v] = finish
+        day = known_finish[v]
+        if day == _LOW:
+            day = _day_of(c, finish if point_kind[i] == 1 else finish - 1, table)
+            if day == _LOW:
+                return TOO_EARLY
+            if day == _HIGH:
+                return TOO_LATE
+        finish_day[v] = day
+        if update:
+            count += 1
+            touched[count] = v
+            if mark[i] == 2 or finish != before_finish or read != before_read:
+                for k in range(b_ptr[i], b_ptr[i + 1]):
+                    w = b_succ[k]
+                    if mark[w] == 0:
+                        mark[w] = 1
+                        pending += 1
+        if not with_floats:
+            continue
         for j in range(first, last):
             if ignored:
                 relative_float[j] = far
@@ -504,141 +483,8 @@ def forward_pass(
                 slack = latest - (early_finish_t[p] if reads_finish else start_read_t[p])
             if slack < link_free_float[p]:
                 link_free_float[p] = slack
-    return OK
-
-
-@Kernel
-def forward_update(
-    f_ptr,
-    f_pred,
-    f_type,
-    f_lag,
-    b_ptr,
-    b_succ,
-    order,
-    changed,
-    progress_override,
-    lag_on_pred,
-    status,
-    point_kind,
-    calendar,
-    lower,
-    upper,
-    duration,
-    start_read_fixed,
-    known_finish,
-    table,
-    early_finish_t,
-    start_read_t,
-    early_finish,
-    start_read,
-    remaining_start,
-    finish_day,
-    touched,
-):
-    """Bring the early dates of a variant up to date from those of the model it was made from.
-
-    The output arrays of :func:`forward_pass` (``early_finish_t`` to ``finish_day``) hold
-    the earlier model's dates on entry; the inputs are the variant's. Only the activities
-    at the positions ``changed`` and those downstream of a date that moves are computed
-    again, in topological order, with the same per-activity rule as :func:`forward_pass`
-    (:func:`_early_dates`): an activity whose inputs and predecessors' dates are all as
-    before keeps its dates, so the result equals a whole forward pass of the variant.
-    The successors of a changed position are always visited, since its calendar or its
-    kind, which they read, may have changed.
-
-    Parameters
-    ----------
-    f_ptr, f_pred, f_type, f_lag : numpy.ndarray
-        The forward stream of :class:`delay.network.PassLayout`.
-    b_ptr, b_succ : numpy.ndarray
-        The backward stream's extents and successor positions, to find what lies
-        downstream.
-    order : numpy.ndarray
-        The activity at each topological position.
-    changed : numpy.ndarray
-        Topological positions of the activities whose inputs differ from the earlier
-        model's.
-    progress_override, lag_on_pred : bool
-        As for :func:`forward_pass`.
-    status, point_kind, calendar, lower, upper, duration, start_read_fixed, known_finish, table : numpy.ndarray
-        The variant's inputs, as for :func:`forward_pass`.
-    early_finish_t, start_read_t, early_finish, start_read, remaining_start, finish_day : numpy.ndarray
-        Updated in place, as written by :func:`forward_pass`.
-    touched : numpy.ndarray
-        Shape ``(n + 1,)``, written: ``touched[0]`` is how many activities were computed
-        again, ``touched[1:1 + touched[0]]`` their numbers.
-
-    Returns
-    -------
-    int
-        :data:`OK`, or :data:`TOO_EARLY` / :data:`TOO_LATE` as for :func:`forward_pass`;
-        the arrays are then partly updated, and the caller starts again from the earlier
-        model's dates once the tables have grown.
-    """
-    n = f_ptr.size - 1
-    mark = np.zeros(n, dtype=np.int8)  # 1: to compute again; 2: its own inputs changed
-    pending = 0
-    begin = n
-    for k in range(changed.size):
-        i = changed[k]
-        if mark[i] == 0:
-            pending += 1
-        mark[i] = 2
-        if i < begin:
-            begin = i
-    widest = 0
-    for i in range(n):
-        if f_ptr[i + 1] - f_ptr[i] > widest:
-            widest = f_ptr[i + 1] - f_ptr[i]
-    bounds = np.empty(widest, dtype=np.int64)
-    count = 0
-    i = begin
-    while pending > 0 and i < n:
-        if mark[i] == 0:
-            i += 1
-            continue
-        pending -= 1
-        before_finish = early_finish_t[i]
-        before_read = start_read_t[i]
-        code = _early_dates(
-            i,
-            f_ptr,
-            f_pred,
-            f_type,
-            f_lag,
-            order,
-            progress_override,
-            lag_on_pred,
-            status,
-            point_kind,
-            calendar,
-            lower,
-            upper,
-            duration,
-            start_read_fixed,
-            known_finish,
-            table,
-            early_finish_t,
-            start_read_t,
-            early_finish,
-            start_read,
-            remaining_start,
-            finish_day,
-            bounds,
-        )
-        if code != OK:
-            return code
-        count += 1
-        touched[count] = order[i]
-        if mark[i] == 2 or early_finish_t[i] != before_finish or start_read_t[i] != before_read:
-            for k in range(b_ptr[i], b_ptr[i + 1]):
-                w = b_succ[k]
-                if mark[w] == 0:
-                    mark[w] = 1
-                    pending += 1
-        i += 1
-    touched[0] = count
+    if update:
+        touched[0] = count
     return OK
 
 

@@ -267,34 +267,7 @@ class ScheduleModel:
         arrays = {name: getattr(self, name) for name in ACTIVITY_ARRAYS}
         new_ids: list = []
         if add_activities is not None and len(add_activities):
-            add = add_activities
-            new_ids = list(add["id"].astype(str))
-            cal_names = add["calendar"] if "calendar" in add else pd.Series([""] * len(add))
-            cal_numbers = [
-                self.calendars.number[c if isinstance(c, str) and c else self.settings.default_calendar]
-                for c in cal_names
-            ]
-            k = len(add)
-            bounds = np.full(k, NO_DAY, dtype=np.int64)
-            if "start_no_earlier" in add:
-                given = add["start_no_earlier"]
-                mask = given.notna().to_numpy()
-                if mask.any():
-                    bounds[mask] = to_days(given[mask].to_numpy(dtype="datetime64[D]"))
-            extra = {
-                "names": add["name"].astype(str).to_numpy(dtype=object)
-                if "name" in add
-                else np.asarray(new_ids, dtype=object),
-                "calendar": np.asarray(cal_numbers, dtype=np.int64),
-                "duration": add["duration"].to_numpy(dtype=np.int64),
-                "remaining": np.full(k, np.nan),
-                "actual_start": np.full(k, NO_DAY, dtype=np.int64),
-                "actual_finish": np.full(k, NO_DAY, dtype=np.int64),
-                "kind": np.zeros(k, dtype=np.int8),
-                "constraint": np.zeros(k, dtype=np.int8),
-                "constraint_day": np.full(k, NO_DAY, dtype=np.int64),
-                "start_bound": bounds,
-            }
+            new_ids, extra = _added_activities(add_activities, self.calendars, self.settings.default_calendar)
             arrays = {name: np.concatenate([arrays[name], extra[name]]) for name in arrays}
         added = {name: net.size + k for k, name in enumerate(new_ids)}
 
@@ -340,11 +313,13 @@ class ScheduleModel:
             changed.append(where)
         if new_ids or (add_links is not None and len(add_links)):
             links = add_links if add_links is not None else pd.DataFrame(columns=["pred", "succ"])
-            pred = numbers(list(links["pred"])) if len(links) else np.empty(0, np.int64)
-            succ = numbers(list(links["succ"])) if len(links) else np.empty(0, np.int64)
-            types = links["type"].fillna("FS") if "type" in links else pd.Series(["FS"] * len(links))
-            type_codes = np.asarray([LINK_CODES[str(t).upper() or "FS"] for t in types], dtype=np.int8)
-            lags = links["lag"].fillna(0).to_numpy(dtype=np.int64) if "lag" in links else np.zeros(len(links), np.int64)
+            count = len(links)
+            pred = numbers(links["pred"].tolist()) if count else np.empty(0, np.int64)
+            succ = numbers(links["succ"].tolist()) if count else np.empty(0, np.int64)
+            types = links["type"].tolist() if "type" in links else ["FS"] * count
+            type_codes = np.asarray([LINK_CODES[_given(t, "FS").upper() or "FS"] for t in types], dtype=np.int8)
+            lags = [int(_given(v, 0)) for v in links["lag"].tolist()] if "lag" in links else [0] * count
+            lags = np.asarray(lags, dtype=np.int64)
             changes["network"] = net.extended(new_ids, pred, succ, type_codes, lags)
             order = self.link_order if self.link_order is not None else np.arange(net.link_count)
             changes["link_order"] = np.concatenate([order, order.size + np.arange(len(links))])
@@ -477,10 +452,17 @@ class ScheduleModel:
         """
         return day_to_date(self.completion_day())
 
-    def work_dates(self) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-        """Give every activity's status, start and finish from the forward pass alone.
+    def work_dates(self, where: np.ndarray | None = None) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+        """Give activities' status, start and finish from the forward pass alone.
 
-        Computed once per model and kept with it.
+        The forward pass runs once per model (brought up to date from the model a what-if
+        was made from, see :meth:`what_if`) and is kept with it.
+
+        Parameters
+        ----------
+        where : numpy.ndarray, optional
+            Activity numbers (network order) to give the dates of; every activity when
+            ``None``.
 
         Returns
         -------
@@ -489,20 +471,29 @@ class ScheduleModel:
             :data:`COMPLETE`.
         start_day : numpy.ndarray
             The day its work starts: the actual start once started, else the early start
-            (day numbers, network order).
+            (day numbers).
         finish_day : numpy.ndarray
             The day it finishes: the actual finish once complete, else the early finish
-            (day numbers, network order).
+            (day numbers).
 
         Raises
         ------
         DateBoundError
             When a computed date would fall after 2200-12-31.
+
+        Examples
+        --------
+        >>> model = prepare(demo, "baseline")
+        >>> status, start, finish = model.work_dates(model.network.index_of(["SET-HOARDING"]))
+        >>> status.tolist(), str(np.datetime64(int(start[0]), "D")), str(np.datetime64(int(finish[0]), "D"))
+        ([0], '2025-03-03', '2025-03-07')
         """
-        found = self.__dict__.get("_work_dates")
-        if found is None:  # a frozen model: its dates never change
-            found = self.__dict__["_work_dates"] = _forward_dates(self)
-        return found
+        state = _forward_state(self)
+        rows = slice(None) if where is None else np.asarray(where, dtype=np.int64)
+        has_start = state.st.has_start[rows]
+        start_read = state.dates.start_read[rows]
+        start_day = np.where(has_start, self.actual_start[rows], self.calendars.day_of(self.calendar[rows], start_read))
+        return state.st.status[rows], start_day, state.dates.finish_day[rows]
 
     def finish_days(self) -> np.ndarray:
         """Give every activity's finish date from the forward pass alone.
@@ -521,7 +512,40 @@ class ScheduleModel:
         DateBoundError
             When a computed date would fall after 2200-12-31.
         """
-        return self.work_dates()[2]
+        return _forward_state(self).dates.finish_day
+
+
+def _given(value, default):
+    """``value``, or ``default`` for a blank cell (None, NaN, NaT)."""
+    return default if value is None or (not isinstance(value, str) and pd.isna(value)) else value
+
+
+def _added_activities(add: pd.DataFrame, calendars: CalendarSet, default_calendar: str) -> tuple[list, dict]:
+    """The ids and the per-activity arrays (:data:`ACTIVITY_ARRAYS`) of a what-if's added
+    activities, not started (see :meth:`ScheduleModel.what_if`); a few rows, read as lists."""
+    new_ids = [str(i) for i in add["id"].tolist()]
+    k = len(new_ids)
+    given_calendars = add["calendar"].tolist() if "calendar" in add else [""] * k
+    cal_numbers = [calendars.number[c if isinstance(c, str) and c else default_calendar] for c in given_calendars]
+    bounds = np.full(k, NO_DAY, dtype=np.int64)
+    if "start_no_earlier" in add:
+        for row, value in enumerate(add["start_no_earlier"].tolist()):
+            if _given(value, None) is not None:
+                bounds[row] = int(to_days(np.datetime64(value, "D")))
+    names = [str(v) for v in add["name"].tolist()] if "name" in add else new_ids
+    extra = {
+        "names": np.asarray(names, dtype=object),
+        "calendar": np.asarray(cal_numbers, dtype=np.int64),
+        "duration": np.asarray(add["duration"].tolist(), dtype=np.int64),
+        "remaining": np.full(k, np.nan),
+        "actual_start": np.full(k, NO_DAY, dtype=np.int64),
+        "actual_finish": np.full(k, NO_DAY, dtype=np.int64),
+        "kind": np.zeros(k, dtype=np.int8),
+        "constraint": np.zeros(k, dtype=np.int8),
+        "constraint_day": np.full(k, NO_DAY, dtype=np.int64),
+        "start_bound": bounds,
+    }
+    return new_ids, extra
 
 
 class _Status(NamedTuple):
@@ -679,6 +703,9 @@ class _Forward(NamedTuple):
     start_read_t: np.ndarray  # the start as successors read it, by position
 
 
+_EVERY = np.empty(0, dtype=np.int64)  # no positions named: the forward pass computes every activity
+
+
 def _known_finish(model, st: _Status) -> np.ndarray:
     """The finish day of each complete activity (its actual finish; a milestone's one
     date), :data:`NO_DAY` for the others."""
@@ -728,6 +755,10 @@ def _forward(model: ScheduleModel, st: _Status, bounds: _Bounds, with_floats: bo
             finish_day,
             relative_float,
             link_free_float_t,
+            layout.b_ptr,
+            layout.b_succ,
+            _EVERY,
+            _EVERY,
         )
         if code == _kernels.OK:
             break
@@ -830,13 +861,6 @@ def _forward_completion(model: ScheduleModel) -> int:
     return _completion_of(model, _forward(model, st, _bounds(model, st), with_floats=False))
 
 
-def _forward_dates(model: ScheduleModel) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-    """``(status, start day, finish day)`` from the forward pass alone: the actual start
-    where there is one, else the early start."""
-    state = _forward_state(model)
-    return state.st.status, state.start_day, state.dates.finish_day
-
-
 class _ForwardState(NamedTuple):
     """What a forward pass alone leaves of a model, kept so that a variant of it
     (:meth:`ScheduleModel.what_if`) is brought up to date instead of scheduled again."""
@@ -846,7 +870,6 @@ class _ForwardState(NamedTuple):
     known_finish: np.ndarray
     by_position: tuple  # status, point and calendar by topological position
     dates: _Forward  # without floats
-    start_day: np.ndarray  # the actual start, else the early start (day numbers)
 
 
 def _forward_state(model: ScheduleModel) -> _ForwardState:
@@ -877,9 +900,8 @@ def _whole_state(model: ScheduleModel) -> _ForwardState:
     bounds = _bounds(model, st)
     fwd = _forward(model, st, bounds, with_floats=False)
     order = model.network.order
-    start_day = np.where(st.has_start, model.actual_start, model.calendars.day_of(model.calendar, fwd.start_read))
     by_position = (st.status[order], st.point[order], model.calendar[order])
-    return _ForwardState(st, bounds, _known_finish(model, st), by_position, fwd, start_day)
+    return _ForwardState(st, bounds, _known_finish(model, st), by_position, fwd)
 
 
 class _Rows:
@@ -902,7 +924,7 @@ class _RowsNetwork(NamedTuple):
 def _put(values: np.ndarray, rows: np.ndarray, new: np.ndarray) -> np.ndarray:
     """``values`` with ``new`` at ``rows``: a copy, or ``values`` itself when they are there
     already (the arrays of a forward state are never written once made)."""
-    if (values[rows] == new).all():
+    if values[rows].tolist() == new.tolist():  # a few rows: compared as lists, cheaper than in numpy
         return values
     values = values.copy()
     values[rows] = new
@@ -931,7 +953,7 @@ def _extended_state(base: _ForwardState, model: ScheduleModel) -> _ForwardState:
     order = model.network.order
     dates = dates._replace(early_finish_t=dates.early_finish[order], start_read_t=dates.start_read[order])
     by_position = (st.status[order], st.point[order], model.calendar[order])
-    return _ForwardState(st, bounds, longer(base.known_finish), by_position, dates, longer(base.start_day))
+    return _ForwardState(st, bounds, longer(base.known_finish), by_position, dates)
 
 
 def _updated_state(model: ScheduleModel, base: _ForwardState, changed: np.ndarray) -> _ForwardState:
@@ -939,10 +961,10 @@ def _updated_state(model: ScheduleModel, base: _ForwardState, changed: np.ndarra
     the model with state ``base``, and whose activity arrays differ at ``changed`` at
     most: status and bounds are computed for those activities alone, and the forward pass
     visits them and what lies downstream of a date that moves (the kernel
-    :func:`delay._kernels.forward_update`). The dates equal a whole forward pass's."""
+    :func:`delay._kernels.forward_pass` given the changed positions). The dates equal a whole forward pass's."""
     from . import _kernels
 
-    rows = np.unique(np.asarray(changed, dtype=np.int64))
+    rows = np.asarray(sorted(set(np.asarray(changed).tolist())), dtype=np.int64)
     if not rows.size:
         return base
     net = model.network
@@ -972,14 +994,13 @@ def _updated_state(model: ScheduleModel, base: _ForwardState, changed: np.ndarra
                 base.dates.finish_day,
             )
         )
-        code = _kernels.forward_update(
+        code = _kernels.forward_pass(
             *layout.forward,
-            layout.b_ptr,
-            layout.b_succ,
+            layout.f_link,
             net.order,
-            positions,
             settings.progress == "progress_override",
             settings.lag_calendar == "predecessor",
+            False,
             status_t,
             point_t,
             calendar_t,
@@ -995,20 +1016,20 @@ def _updated_state(model: ScheduleModel, base: _ForwardState, changed: np.ndarra
             start_read,
             remaining_start,
             finish_day,
+            _EVERY,
+            _EVERY,
+            layout.b_ptr,
+            layout.b_succ,
+            positions,
             touched,
         )
         if code == _kernels.OK:
             break
         grow_within_bounds(model, cals, code == _kernels.TOO_EARLY)
-    check_finish_days(model, finish_day)
-    moved = touched[1 : 1 + touched[0]]
-    start_day = base.start_day.copy()
-    start_day[moved] = np.where(
-        st.has_start[moved], model.actual_start[moved], cals.day_of(model.calendar[moved], start_read[moved])
-    )
+    check_finish_days(model, finish_day[touched[1 : 1 + touched[0]]])  # only these moved
     empty = np.empty(0, dtype=np.int64)
     dates = _Forward(early_finish_t, start_read, early_finish, remaining_start, finish_day, empty, empty, start_read_t)
-    return _ForwardState(st, bounds, known_finish, (status_t, point_t, calendar_t), dates, start_day)
+    return _ForwardState(st, bounds, known_finish, (status_t, point_t, calendar_t), dates)
 
 
 @dataclass(frozen=True, eq=False)

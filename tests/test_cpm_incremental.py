@@ -2,7 +2,8 @@
 
 :meth:`delay.cpm.ScheduleModel.what_if` keeps the model it was made from, and the forward
 dates of the variant are computed by visiting only the activities it changes and what lies
-downstream of a date that moves (:func:`delay._kernels.forward_update`). The check here
+downstream of a date that moves (:func:`delay._kernels.forward_pass` given the changed
+positions). The check here
 is an invariance, not a reference value: on synthetic cases with progress, two calendars,
 constraints and all four link types, every array of the updated forward state (status,
 boundaries, early dates, finish and start days) must equal that of a whole forward pass of

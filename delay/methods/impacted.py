@@ -151,11 +151,10 @@ def _hold_effects(event: Mapping, named: list[str], model: ScheduleModel) -> tup
     for each one that has no work planned in its period."""
     first = np.datetime64(pd.Timestamp(event["start"]).date(), "D").astype(np.int64)
     last = np.datetime64(pd.Timestamp(event["finish"]).date(), "D").astype(np.int64)
-    where = model.network.index_of(named)
-    status, start, finish = model.work_dates()
+    status, start, finish = model.work_dates(model.network.index_of(named))
     data_day = model.data_day
     held, notes = [], []
-    for activity, k in zip(named, where):
+    for k, activity in enumerate(named):
         if status[k] == COMPLETE:
             notes.append(f"{activity}: no effect on this programme: the work was complete before the hold")
             continue
@@ -216,11 +215,9 @@ def event_changes(case: Case, event: Mapping, present: set[str], model: Schedule
                 changes["hold"] = {a: [(first, last)] for a in held}
             changes["notes"] = notes
     elif impact == "fragnet":
-        fragnet, links = _fragnets(case).get(event["id"], (None, None))
+        fragnet, links, ids, ends = _fragnets(case).get(event["id"], (None, None, None, None))
         if fragnet is None:
             return changes
-        ids = set(fragnet["id"])
-        ends = list(zip(links["pred"], links["succ"])) if len(links) else []
         known = tuple((p in ids or p in present) and (q in ids or q in present) for p, q in ends)
         missing += sorted({a for pair in ends for a in pair if a not in ids and a not in present})
 
@@ -238,17 +235,22 @@ def event_changes(case: Case, event: Mapping, present: set[str], model: Schedule
     return changes
 
 
-def _fragnets(case: Case) -> dict[str, tuple[pd.DataFrame, pd.DataFrame]]:
-    """Each fragnet event's activities (``id, name, duration, calendar``) and links
-    (``pred, succ, type, lag``), grouped once per case."""
+def _fragnets(case: Case) -> dict[str, tuple[pd.DataFrame, pd.DataFrame, set, list]]:
+    """Each fragnet event's activities (``id, name, duration, calendar``), links (``pred,
+    succ, type, lag``), activity ids and link ends ``(pred, succ)``, grouped once per case."""
 
-    def group() -> dict[str, tuple[pd.DataFrame, pd.DataFrame]]:
+    def group() -> dict[str, tuple[pd.DataFrame, pd.DataFrame, set, list]]:
         activities = case.fragnets[["event", "id", "name", "duration", "calendar"]]
         links = case.fragnet_links[["event", "pred", "succ", "type", "lag"]]
         by_event = {e: rows.drop(columns="event").reset_index(drop=True) for e, rows in activities.groupby("event")}
         linked = {e: rows.drop(columns="event").reset_index(drop=True) for e, rows in links.groupby("event")}
         empty = links.drop(columns="event").iloc[:0]
-        return {e: (rows, linked.get(e, empty)) for e, rows in by_event.items()}
+        found = {}
+        for event, rows in by_event.items():
+            links = linked.get(event, empty)
+            ends = list(zip(links["pred"].tolist(), links["succ"].tolist()))
+            found[event] = (rows, links, set(rows["id"].tolist()), ends)
+        return found
 
     return remembered(case, ("fragnets by event",), group)
 

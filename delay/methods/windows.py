@@ -566,6 +566,8 @@ class _Programme:
         rows = np.argsort(order, kind="stable")  # links in their input order
         self.links = (self.codes[net.pred[rows]], self.codes[net.succ[rows]], net.link_type[rows], net.lag[rows])
         self._network = None  # compiled again only when the activities or the links change
+        self._last: ScheduleModel | None = None  # the model made last, on the same network
+        self._changed: list[np.ndarray] = []  # the activities whose arrays changed since
 
     def _has(self, codes: np.ndarray) -> np.ndarray:
         """Per code: whether this programme holds the activity."""
@@ -604,15 +606,26 @@ class _Programme:
         self._network = None
         self.links = links
 
+    def reassign(self, name: str, values: np.ndarray, changed: np.ndarray) -> None:
+        """Take one per-activity array, which differs from the current one at ``changed``."""
+        self.arrays[name] = values
+        self._changed.append(np.flatnonzero(changed))
+
     def model(self) -> ScheduleModel:
         if self._network is None:
             position = self.positions()
             pred, succ = position[self.links[0]], position[self.links[1]]
             self._network = build_network(self.ids, pred, succ, self.links[2], self.links[3])
+            self._last = None
         network = self._network
-        return dataclasses.replace(
+        model = dataclasses.replace(
             self.template, network=network, link_order=np.arange(network.link_count), **self.arrays
         )
+        if self._last is not None:  # the same logic: its forward dates are brought up to date from the last model's
+            model.__dict__["_parent"] = self._last
+            model.__dict__["_changed"] = np.concatenate(self._changed) if self._changed else np.empty(0, np.int64)
+        self._last, self._changed = model, []
+        return model
 
     def finishes(self, targets: np.ndarray) -> np.ndarray:
         """Finish day numbers of the target codes in the forward pass; ``-1`` for a target
@@ -691,8 +704,9 @@ def _revision_steps(
         changed = np.zeros(current.ids.size, dtype=bool)
         for name in _KIND_ARRAYS[kind]:
             theirs = end.arrays[name][position]
-            changed |= _differs(current.arrays[name], theirs)
-            current.arrays[name] = theirs
+            differs = _differs(current.arrays[name], theirs)
+            current.reassign(name, theirs, differs)
+            changed |= differs
         step(kind, current.ids[changed])
 
     reassign("durations")
