@@ -244,7 +244,12 @@ class ScheduleModel:
         Returns
         -------
         ScheduleModel
-            The variant; arrays it does not change are shared with this model.
+            The variant; arrays it does not change are shared with this model. With the
+            same settings it keeps this model, so that its forward dates
+            (:meth:`finish_days`, :meth:`work_dates`) are brought up to date from this
+            model's: only the activities it changes, and those downstream of a date that
+            moves, are computed again (the same dates as a whole pass, in a fraction of
+            its time). It lets go of this model once they are.
 
         Raises
         ------
