@@ -1499,8 +1499,24 @@ def _names_asbuilt(text: pd.Series) -> np.ndarray:
     return lowered.isin([ASBUILT]).to_numpy()
 
 
+#: The empty tables built so far, by name (:func:`_empty` hands out copies).
+_EMPTY_TABLES: dict[str, pd.DataFrame] = {}
+
+
 def _empty(name: str) -> pd.DataFrame:
-    """The table ``name`` with no rows, its stable columns typed."""
+    """The table ``name`` with no rows, its stable columns typed.
+
+    Each table is built once; every call returns a copy of it (a frame without rows is
+    copied at almost no cost), so that no two cases share one.
+    """
+    table = _EMPTY_TABLES.get(name)
+    if table is None:
+        table = _EMPTY_TABLES[name] = _build_empty(name)
+    return table.copy()
+
+
+def _build_empty(name: str) -> pd.DataFrame:
+    """The table ``name`` with no rows, its stable columns typed, built afresh."""
     data = {}
     empty: dict[object, pd.Series] = {}  # one empty column per type, shared (copy-on-write)
     for column in COLUMNS[name]:

@@ -101,9 +101,14 @@ class RawTable:
             The column names the table must have; those already there are left as they
             are.
         """
-        for column in columns:
-            if column not in self.frame.columns:
-                self.frame[column] = pd.Series([""] * len(self.frame), dtype="str", index=self.frame.index)
+        missing = [column for column in columns if column not in self.frame.columns]
+        if not missing:
+            return
+        # One blank column, shared by every column added (copy-on-write: a change to one
+        # of them copies it first).
+        blank = pd.Series(np.full(len(self.frame), "", dtype=object), dtype="str", index=self.frame.index)
+        for column in missing:
+            self.frame[column] = blank
 
     def keep(self, mask: np.ndarray) -> None:
         """Keep only the rows where ``mask`` is true.
