@@ -171,9 +171,10 @@ def blank(table: RawTable, column: str) -> np.ndarray:
     Returns
     -------
     numpy.ndarray
-        One boolean per row, true where the cell is ``""``.
+        One boolean per row, true where the cell is ``""`` (found once per column:
+        :meth:`RawTable.blank`; read-only).
     """
-    return empty_cells(table.frame[column])
+    return table.blank(column)
 
 
 def required_cells(problems: Problems, table: RawTable, column: str, message: Text, fix: Text) -> np.ndarray:
@@ -230,8 +231,8 @@ def dates(
         The dates, of dtype :data:`DATE_DTYPE`.
     """
     text = table.frame[column]
-    empty = empty_cells(text)
-    parsed = parse_dates(text, table.date_format)
+    empty = blank(table, column)
+    parsed = parse_dates(text, table.date_format, empty)
     example = dt.date(2025, 3, 31).strftime(table.date_format)
     shown = "YYYY-MM-DD" if table.date_format == ISO_DATE else f"{table.date_format} ([input] of case.toml)"
     problems.flag(
@@ -257,7 +258,7 @@ def dates(
     return parsed
 
 
-def parse_dates(text: pd.Series, date_format: str = ISO_DATE) -> pd.Series:
+def parse_dates(text: pd.Series, date_format: str = ISO_DATE, empty: np.ndarray | None = None) -> pd.Series:
     """Read a text column of dates written in ``date_format``.
 
     ISO ``YYYY-MM-DD`` is understood too, whatever ``date_format`` is (workbook date cells
@@ -269,6 +270,8 @@ def parse_dates(text: pd.Series, date_format: str = ISO_DATE) -> pd.Series:
         A column of stripped text, blank as ``""``.
     date_format : str, optional
         A strptime format; ISO ``%Y-%m-%d`` by default.
+    empty : numpy.ndarray or None, optional
+        The mask of the blank cells of ``text`` when it is already known.
 
     Returns
     -------
@@ -281,7 +284,7 @@ def parse_dates(text: pd.Series, date_format: str = ISO_DATE) -> pd.Series:
     >>> parse_dates(pd.Series(["31/03/2025", "2025-04-01", "", "soon"]), "%d/%m/%Y").tolist()
     [Timestamp('2025-03-31 00:00:00'), Timestamp('2025-04-01 00:00:00'), NaT, NaT]
     """
-    empty = empty_cells(text)
+    empty = empty_cells(text) if empty is None else empty
     if empty.all():
         return pd.Series(np.full(len(text), np.datetime64("NaT"), dtype=DATE_DTYPE), index=text.index, name=text.name)
     parsed = pd.to_datetime(text.where(~empty), format=date_format, errors="coerce")
@@ -324,7 +327,9 @@ def parse_numbers(text: pd.Series, decimal: str = ".") -> np.ndarray:
 
 
 _DIGITS_AND_LINES = str.maketrans("", "", "0123456789\n")
-_LONG_DIGITS = re.compile(r"[0-9]{16}")
+#: The most digits a plain whole number may have (more may not be exact as a float).
+_MOST_DIGITS = 15
+_LONG_DIGITS = re.compile(r"[0-9]{%d}" % (_MOST_DIGITS + 1))
 
 
 def _plain_integers(cells: np.ndarray, empty: np.ndarray) -> np.ndarray | None:
@@ -340,7 +345,7 @@ def _plain_integers(cells: np.ndarray, empty: np.ndarray) -> np.ndarray | None:
         or joined.count("\n-") + joined.startswith("-") != len(signs)
         or "-\n" in joined
         or joined.endswith("-")
-        or _LONG_DIGITS.search(joined)
+        or _has_long_number(joined)
     ):
         return None
     with warnings.catch_warnings():
@@ -356,9 +361,24 @@ def _plain_integers(cells: np.ndarray, empty: np.ndarray) -> np.ndarray | None:
     return values
 
 
-def _numbers(text: pd.Series, decimal: str = ".") -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-    """(values, blank mask, not-a-number mask) of a text column."""
-    empty = empty_cells(text)
+def _has_long_number(joined: str) -> bool:
+    """Whether a line of ``joined`` holds more than :data:`_MOST_DIGITS` digits (lines of
+    digits, each with an optional leading minus: ASCII text, as :func:`_plain_integers`
+    has made sure). Only when a line is that long are its digits counted."""
+    octets = np.frombuffer(joined.encode("ascii"), dtype=np.uint8)
+    breaks = np.flatnonzero(octets == ord("\n"))
+    bounds = np.concatenate(([-1], breaks, [octets.size]))
+    if int(np.diff(bounds).max()) - 1 <= _MOST_DIGITS:  # no line is that long
+        return False
+    return _LONG_DIGITS.search(joined) is not None
+
+
+def _numbers(
+    text: pd.Series, decimal: str = ".", empty: np.ndarray | None = None
+) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """(values, blank mask, not-a-number mask) of a text column (``empty``: its blank
+    cells, when known)."""
+    empty = empty_cells(text) if empty is None else empty
     if empty.all():
         nothing = np.zeros(len(text), dtype=bool)
         return np.full(len(text), np.nan), empty, nothing
@@ -420,7 +440,7 @@ def integers(
     >>> problems.count()
     1
     """
-    values, empty, not_number = _numbers(table.frame[column], table.decimal)
+    values, empty, not_number = _numbers(table.frame[column], table.decimal, blank(table, column))
     problems.flag(table, not_number, column, "'{value}' is not a number", f"write a whole number of {unit}")
     fraction = ~empty & ~not_number & (np.floor(values) != values)
     problems.flag(table, fraction, column, "'{value}' is not a whole number", f"give a whole number of {unit}")
@@ -493,7 +513,7 @@ def numbers(
     pandas.Series
         The numbers (``float64``); blank and bad cells are ``NaN``.
     """
-    values, empty, not_number = _numbers(table.frame[column], table.decimal)
+    values, empty, not_number = _numbers(table.frame[column], table.decimal, blank(table, column))
     what = f"a whole number of {unit}" if whole else (f"a number of {unit}" if unit else "a number")
     mark = (
         ", with a decimal comma and no thousands separator ([input] of case.toml)"
@@ -621,10 +641,13 @@ def coded_choices(
     (['FS', 'FS', 'XX'], [0, 0, -1], 1)
     """
     allowed = tuple(allowed)
-    index = pd.Index(allowed)
     text = table.frame[column]
-    empty = empty_cells(text)
-    codes = index.get_indexer(text)
+    empty = blank(table, column)
+    index = pd.Index(allowed)
+    if empty.all():  # a blank column (an optional one the file leaves out): nothing to look up
+        codes = np.full(len(text), -1, dtype=np.intp)
+    else:
+        codes = index.get_indexer(text)
     other = ~empty & (codes < 0)
     normal = text
     if other.any():
@@ -755,7 +778,7 @@ def references(problems: Problems, table: RawTable, column: str, known, message:
         The mask of the unknown cells.
     """
     text = table.frame[column]
-    unknown = ~empty_cells(text) & ~member(text, known)
+    unknown = ~blank(table, column) & ~member(text, known)
     problems.flag(table, unknown, column, message, fix)
     return unknown
 
@@ -789,7 +812,7 @@ def coded_references(
     """
     text = table.frame[column]
     codes = known.get_indexer(text)
-    unknown = (codes < 0) & ~empty_cells(text)
+    unknown = (codes < 0) & ~blank(table, column)
     problems.flag(table, unknown, column, message, fix)
     return unknown, codes
 
@@ -857,4 +880,6 @@ def assemble(table: RawTable, typed: dict[str, pd.Series]) -> pd.DataFrame:
     for column in frame.columns:
         if column not in data:
             data[column] = frame[column].astype("str")
-    return pd.DataFrame(data, index=pd.RangeIndex(len(frame)))
+    # No copy is made: the new frame shares the columns' memory until either side writes
+    # (copy-on-write keeps them apart).
+    return pd.DataFrame(data, index=pd.RangeIndex(len(frame)), copy=False)

@@ -295,9 +295,9 @@ class _Loader:
                 f"add it to calendars.csv or use one of: {known}",
             )
             if derived is not None and self.default_calendar in names:
-                codes[columns.empty_cells(text)] = names.get_loc(self.default_calendar)
+                codes[table.blank(column)] = names.get_loc(self.default_calendar)
                 derived["calendar_codes"] = (tuple(names), codes)
-        return text.where(text != "", self.default_calendar).astype("str")
+        return text.where(~table.blank(column), self.default_calendar).astype("str")
 
     def check_calendar_exceptions(self) -> None:
         table = self.optional("calendar_exceptions")
@@ -547,18 +547,23 @@ class _Loader:
     def check_snapshot(self, facts: _SnapshotFacts) -> None:
         activities = facts.source.activities
         if columns.require_columns(self.problems, activities):
-            facts.activities = self.check_activities(activities, facts.data_date, facts.derived)
-        if facts.activities is not None:
-            facts.id_index = pd.Index(facts.activities["id"].drop_duplicates())
+            # The ids' hash table is built once: it tells whether an id repeats, and the
+            # links and the registers look their ids up in it.
+            nodes = pd.Index(activities.frame["id"])
+            facts.activities = self.check_activities(activities, facts.data_date, facts.derived, nodes)
+            facts.id_index = nodes if nodes.is_unique else pd.Index(facts.activities["id"].drop_duplicates())
         links = facts.source.links
         if columns.require_columns(self.problems, links):
             ids = facts.activities["id"] if facts.activities is not None else None
             facts.links = self.check_links(links, ids, facts.derived, facts.id_index)
 
-    def check_activities(self, table: RawTable, data_date: dt.date | None, derived: dict | None = None) -> pd.DataFrame:
+    def check_activities(
+        self, table: RawTable, data_date: dt.date | None, derived: dict | None = None, nodes: pd.Index | None = None
+    ) -> pd.DataFrame:
         """Type and check one snapshot's activities; codes found go into ``derived``
         (``calendar_codes``, ``kind_codes`` by ACTIVITY_KINDS, ``constraint_codes`` by
-        CONSTRAINTS, ``-1`` for none)."""
+        CONSTRAINTS, ``-1`` for none). ``nodes``, the ids as an index, spares the search
+        for repeated ids when they are unique."""
         p = self.problems
         frame = table.frame
         ids = frame["id"]
@@ -567,15 +572,16 @@ class _Loader:
         no_id = columns.required_cells(
             p, table, "id", "the activity has no id", "give every activity an id, unique in the snapshot"
         )
-        columns.duplicates(
-            p,
-            table,
-            ["id"],
-            "id",
-            lambda i: f"the activity id '{ids.iat[i]}'",
-            "give every activity of the snapshot a different id",
-            skip=no_id,
-        )
+        if nodes is None or not nodes.is_unique:
+            columns.duplicates(
+                p,
+                table,
+                ["id"],
+                "id",
+                lambda i: f"the activity id '{ids.iat[i]}'",
+                "give every activity of the snapshot a different id",
+                skip=no_id,
+            )
         duration = columns.integers(
             p, table, "duration", unit="work days", minimum=0, required="the duration is missing"
         )
@@ -595,8 +601,8 @@ class _Loader:
             derived["constraint_codes"] = constraint_codes
         constraint_date = columns.dates(p, table, "constraint_date")
         risk = columns.choices(p, table, "risk", PARTIES, what="risk owner")
-        has_constraint = ~columns.empty_cells(frame["constraint"])
-        has_date = ~columns.empty_cells(frame["constraint_date"])
+        has_constraint = ~table.blank("constraint")
+        has_date = ~table.blank("constraint_date")
         p.flag(
             table,
             has_constraint & ~has_date,
@@ -753,7 +759,7 @@ class _Loader:
                 p, table, "succ", nodes, "the successor '{value}' is not an activity of this snapshot", fix
             )
             bad |= unknown
-        itself = ~bad & (pred == succ).to_numpy()
+        itself = ~bad & (pred.to_numpy() == succ.to_numpy())
         p.flag(
             table,
             itself,

@@ -69,9 +69,70 @@ class RawTable:
     #: strptime format (ISO dates are understood too), ``decimal`` the decimal mark.
     date_format: str = "%Y-%m-%d"
     decimal: str = "."
+    #: The blank-cell masks found so far, by column (see :meth:`blank`).
+    _blanks: dict[str, np.ndarray] = field(default_factory=dict, init=False, repr=False, compare=False)
+
+    def __setattr__(self, name: str, value) -> None:
+        if name == "frame":  # a new frame: no mask found for the old one holds for it
+            self.__dict__.setdefault("_blanks", {}).clear()
+        object.__setattr__(self, name, value)
 
     def __len__(self) -> int:
         return len(self.frame)
+
+    def blank(self, column: str) -> np.ndarray:
+        """Mask of the blank cells of ``column``, found once and kept.
+
+        Several checks look at the blank cells of one column; the comparison of every
+        cell with ``""`` is made only the first time. A cell is changed through
+        :meth:`set_cell` (or the whole :attr:`frame` replaced), which forgets the mask.
+
+        Parameters
+        ----------
+        column : str
+            One of the table's columns.
+
+        Returns
+        -------
+        numpy.ndarray
+            One boolean per row, true where the cell is ``""`` (read-only: copy it to
+            change it).
+        """
+        mask = self._blanks.get(column)
+        if mask is None:
+            mask = self.frame[column].to_numpy() == ""
+            mask.flags.writeable = False
+            self._blanks[column] = mask
+        return mask
+
+    def remember_blank(self, column: str, mask: np.ndarray) -> None:
+        """Keep the mask of the blank cells of ``column``, found while reading the table.
+
+        Parameters
+        ----------
+        column : str
+            One of the table's columns.
+        mask : numpy.ndarray
+            One boolean per row, true where the cell is ``""``.
+        """
+        mask = np.asarray(mask, dtype=bool)
+        mask.flags.writeable = False
+        self._blanks[column] = mask
+
+    def set_cell(self, position: int, column: str, value: str) -> None:
+        """Write one cell (the row at ``position``, from 0, in ``column``).
+
+        Parameters
+        ----------
+        position : int
+            The row's position in :attr:`frame`.
+        column : str
+            One of the table's columns.
+        value : str
+            The cell's new text.
+        """
+        self.frame.loc[position, column] = value
+        self._blanks.pop(column, None)
 
     def where(self, position: int) -> tuple[str, int]:
         """The (file, spreadsheet row) of the row at ``position``.
@@ -105,10 +166,13 @@ class RawTable:
         if not missing:
             return
         # One blank column, shared by every column added (copy-on-write: a change to one
-        # of them copies it first).
+        # of them copies it first), and its mask, known without looking.
         blank = pd.Series(np.full(len(self.frame), "", dtype=object), dtype="str", index=self.frame.index)
+        every = np.ones(len(self.frame), dtype=bool)
+        every.flags.writeable = False
         for column in missing:
             self.frame[column] = blank
+            self._blanks[column] = every
 
     def keep(self, mask: np.ndarray) -> None:
         """Keep only the rows where ``mask`` is true.
@@ -121,7 +185,7 @@ class RawTable:
         mask : numpy.ndarray
             One boolean per row of :attr:`frame`.
         """
-        self.frame = self.frame.loc[mask].reset_index(drop=True)
+        self.frame = self.frame.loc[mask].reset_index(drop=True)  # forgets the masks
         self.rows = self.rows[mask]
 
 

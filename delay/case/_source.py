@@ -184,12 +184,15 @@ def _needs_strip(data: bytes, delimiter: str = ",") -> bool:
     and only their neighbours are looked at; a file without one has no cell that needs
     stripping, and the costly strip of every column is skipped.
     """
-    if b"\xc2\xa0" in data or delimiter == "\t":  # a no-break space, or tab-separated
+    # A no-break space (its second byte is searched for first: one byte is found faster),
+    # or a tab-separated file.
+    if (b"\xa0" in data and b"\xc2\xa0" in data) or delimiter == "\t":
         return True
-    if b" " not in data and b"\t" not in data:
+    tabs = b"\t" in data
+    if b" " not in data and not tabs:
         return False
     octets = np.frombuffer(data, dtype=np.uint8)
-    spaces = np.flatnonzero((octets == ord(" ")) | (octets == ord("\t")))
+    spaces = np.flatnonzero((octets == ord(" ")) | (octets == ord("\t")) if tabs else octets == ord(" "))
     if spaces[0] == 0 or spaces[-1] == octets.size - 1:
         return True
     edges = _EDGES.copy()
@@ -249,19 +252,23 @@ def _make_table(
         return None, renamed
     # The cells are the parser's own (nothing else holds them): no copy is made.
     frame = pd.DataFrame(kept, index=pd.RangeIndex(len(body)), copy=False)
+    first_blank = None  # the blank cells of the first column, when every row is kept
     if len(frame) and len(frame.columns):
         filled = np.zeros(len(frame), dtype=bool)
         for column in frame.columns:
             filled |= frame[column].to_numpy() != ""
+            if first_blank is None:
+                first_blank = ~filled
             if filled.all():  # no blank row: the other columns need not be looked at
                 break
         else:
             frame = frame.loc[filled].reset_index(drop=True)
             rows = rows[filled]
+            first_blank = None
     elif not len(frame.columns):
         frame = frame.iloc[0:0]
         rows = rows[:0]
-    return RawTable(
+    table = RawTable(
         name=name,
         file=file,
         frame=frame,
@@ -269,7 +276,10 @@ def _make_table(
         path=path,
         date_format=settings.date_format,
         decimal=settings.decimal,
-    ), renamed
+    )
+    if first_blank is not None:
+        table.remember_blank(frame.columns[0], first_blank)
+    return table, renamed
 
 
 _DELIMITER_NAMES = {",": "comma", ";": "semicolon", "\t": "tab", "|": "vertical bar"}
