@@ -329,7 +329,7 @@ def parse_numbers(text: pd.Series, decimal: str = ".") -> np.ndarray:
 _DIGITS_AND_LINES = str.maketrans("", "", "0123456789\n")
 #: The most digits a plain whole number may have (more may not be exact as a float).
 _MOST_DIGITS = 15
-_LONG_DIGITS = re.compile(r"[0-9]{%d}" % (_MOST_DIGITS + 1))
+_LONG_DIGITS = re.compile(rf"[0-9]{{{_MOST_DIGITS + 1}}}")
 
 
 def _plain_integers(cells: np.ndarray, empty: np.ndarray) -> np.ndarray | None:
