@@ -531,7 +531,8 @@ class Case:
     ):
         tables = dict(tables)
         for name in _VERSION_2_TABLES:
-            tables.setdefault(name, pd.DataFrame({column: pd.Series([], dtype="str") for column in COLUMNS[name]}))
+            if name not in tables:  # built only when missing
+                tables[name] = pd.DataFrame({column: pd.Series([], dtype="str") for column in COLUMNS[name]})
         missing = set(_TABLE_DOCS) - set(tables)
         if missing:
             raise ValueError(f"tables missing: {sorted(missing)}")

@@ -707,17 +707,21 @@ def duplicates(
         One whole number per row standing for its ``columns`` (equal exactly where they
         are equal: the link ends' activity numbers, say), compared instead of the text.
     """
-    key = _combined(table, columns) if codes is None else pd.Series(np.asarray(codes, dtype=np.int64))
-    if skip is not None:
-        key = key.where(~skip)
-    repeated = key.duplicated(keep="first").to_numpy() & key.notna().to_numpy()
-    if not repeated.any():
+    values = _combined(table, columns).to_numpy(dtype=object) if codes is None else np.asarray(codes, dtype=np.int64)
+    # Rows in ``skip`` take no part: neither repeated nor the first of a repetition.
+    considered = np.flatnonzero(~np.asarray(skip, dtype=bool)) if skip is not None else None
+    looked_at = values if considered is None else values[considered]
+    repeated_among = pd.Index(looked_at, dtype=looked_at.dtype, copy=False).duplicated(keep="first")
+    if not repeated_among.any():
         return
-    first = key[~key.duplicated(keep="first") & key.notna()]
-    first_position = pd.Series(first.index.to_numpy(), index=first.to_numpy())
+    positions = np.arange(len(values)) if considered is None else considered
+    repeated = np.zeros(len(values), dtype=bool)
+    repeated[positions[repeated_among]] = True
+    firsts = positions[~repeated_among]
+    first_position = dict(zip(values[firsts].tolist(), firsts.tolist()))
 
     def message(position: int) -> str:
-        file, row = table.where(int(first_position[key.iat[position]]))
+        file, row = table.where(int(first_position[values[position]]))
         return f"{describe(position)} is given twice (first on row {row})"
 
     problems.flag(table, repeated, column, message, fix)

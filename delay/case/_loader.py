@@ -44,6 +44,8 @@ from delay.network import sorted_network
 __all__ = ["load", "Loaded"]
 
 _MILESTONE_KINDS = ("start_milestone", "finish_milestone")
+#: Their positions in ACTIVITY_KINDS (the kind codes of a milestone).
+_MILESTONE_CODES = np.array([ACTIVITY_KINDS.index(kind) for kind in _MILESTONE_KINDS])
 _SNAPSHOT_KINDS = ("baseline", "update")
 
 
@@ -587,7 +589,7 @@ class _Loader:
         )
         calendar = self.calendar_check(table, derived=derived)
         kind, kind_codes = columns.coded_choices(p, table, "kind", ACTIVITY_KINDS, default="task", what="activity kind")
-        milestone_kind = kind.isin(_MILESTONE_KINDS).to_numpy()
+        milestone_kind = np.isin(kind_codes, _MILESTONE_CODES)  # the codes say it: no text compared
         p.flag(
             table,
             milestone_kind & (duration.to_numpy() > 0),
@@ -622,7 +624,9 @@ class _Loader:
         remaining = columns.numbers(
             p, table, "remaining", unit="work days", whole=True, minimum=0, maximum=columns.LARGEST_WHOLE_NUMBER
         )
-        start, finish, remaining = self.check_progress(table, duration, kind, start, finish, remaining, data_date)
+        start, finish, remaining = self.check_progress(
+            table, duration, milestone_kind, start, finish, remaining, data_date
+        )
         return columns.assemble(
             table,
             {
@@ -642,7 +646,7 @@ class _Loader:
         self,
         table: RawTable,
         duration: pd.Series,
-        kind: pd.Series,
+        milestone_kind: np.ndarray,
         start: pd.Series,
         finish: pd.Series,
         remaining: pd.Series,
@@ -654,7 +658,7 @@ class _Loader:
         one of its actual dates is given, the other takes the same date.
         """
         p = self.problems
-        milestone = (kind.isin(_MILESTONE_KINDS) | (duration == 0)).to_numpy()
+        milestone = milestone_kind | (duration.to_numpy() == 0)
         has_start = start.notna().to_numpy()
         has_finish = finish.notna().to_numpy()
         p.flag(
