@@ -326,10 +326,16 @@ def parse_numbers(text: pd.Series, decimal: str = ".") -> np.ndarray:
     return pd.to_numeric(text, errors="coerce").to_numpy(dtype=np.float64)
 
 
-_DIGITS_AND_LINES = str.maketrans("", "", "0123456789\n")
 #: The most digits a plain whole number may have (more may not be exact as a float).
 _MOST_DIGITS = 15
 _LONG_DIGITS = re.compile(rf"[0-9]{{{_MOST_DIGITS + 1}}}")
+#: What each byte of a column of plain whole numbers may be: 0 nothing allowed, 1 a digit,
+#: 2 the line break between two cells, 3 a minus.
+_DIGIT, _BREAK, _MINUS = 1, 2, 3
+_OCTET_KINDS = np.zeros(256, dtype=np.uint8)
+_OCTET_KINDS[np.frombuffer(b"0123456789", dtype=np.uint8)] = _DIGIT
+_OCTET_KINDS[ord("\n")] = _BREAK
+_OCTET_KINDS[ord("-")] = _MINUS
 
 
 def _plain_integers(cells: np.ndarray, empty: np.ndarray) -> np.ndarray | None:
@@ -339,14 +345,7 @@ def _plain_integers(cells: np.ndarray, empty: np.ndarray) -> np.ndarray | None:
     reader then decides, cell by cell, what it is)."""
     given = cells[~empty]
     joined = "\n".join(given.tolist())
-    signs = joined.translate(_DIGITS_AND_LINES)
-    if (
-        signs.count("-") != len(signs)
-        or joined.count("\n-") + joined.startswith("-") != len(signs)
-        or "-\n" in joined
-        or joined.endswith("-")
-        or _has_long_number(joined)
-    ):
+    if not _plain_lines(joined):
         return None
     with warnings.catch_warnings():
         warnings.simplefilter("error")
@@ -361,16 +360,31 @@ def _plain_integers(cells: np.ndarray, empty: np.ndarray) -> np.ndarray | None:
     return values
 
 
-def _has_long_number(joined: str) -> bool:
-    """Whether a line of ``joined`` holds more than :data:`_MOST_DIGITS` digits (lines of
-    digits, each with an optional leading minus: ASCII text, as :func:`_plain_integers`
-    has made sure). Only when a line is that long are its digits counted."""
-    octets = np.frombuffer(joined.encode("ascii"), dtype=np.uint8)
-    breaks = np.flatnonzero(octets == ord("\n"))
-    bounds = np.concatenate(([-1], breaks, [octets.size]))
-    if int(np.diff(bounds).max()) - 1 <= _MOST_DIGITS:  # no line is that long
+def _plain_lines(joined: str) -> bool:
+    """Whether every line of ``joined`` is a plain whole number: digits, a minus only as
+    the line's first character and followed by a digit, at most :data:`_MOST_DIGITS`
+    digits. Whole-array operations over the text's bytes."""
+    if not joined.isascii():
         return False
-    return _LONG_DIGITS.search(joined) is not None
+    octets = np.frombuffer(joined.encode("ascii"), dtype=np.uint8)
+    if not octets.size:
+        return True
+    kinds = _OCTET_KINDS[octets]
+    if not kinds.all():  # a byte that is neither a digit, a line break nor a minus
+        return False
+    breaks = np.flatnonzero(kinds == _BREAK)
+    minus = np.flatnonzero(kinds == _MINUS)
+    if minus.size:
+        line_start = np.zeros(octets.size + 1, dtype=bool)
+        line_start[0] = True
+        line_start[breaks + 1] = True
+        after = np.append(kinds, 0)[minus + 1]
+        if not (line_start[minus].all() and (after == _DIGIT).all()):
+            return False
+    bounds = np.concatenate(([-1], breaks, [octets.size]))
+    if int(np.diff(bounds).max()) - 1 <= _MOST_DIGITS:  # no line is long enough to hold more
+        return True
+    return _LONG_DIGITS.search(joined) is None
 
 
 def _numbers(
@@ -660,7 +674,9 @@ def coded_choices(
     if required is not None:
         problems.flag(table, empty, column, required, "use one of: " + ", ".join(allowed))
     if default is not None:
-        normal = normal.where(~empty, default)
+        if empty.any():
+            filled = np.where(empty, default, normal.to_numpy(dtype=object))
+            normal = pd.Series(filled, index=text.index, name=text.name, dtype="str")
         codes[empty] = allowed.index(default)
     return normal.astype("str"), codes
 

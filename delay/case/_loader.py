@@ -299,7 +299,8 @@ class _Loader:
             if derived is not None and self.default_calendar in names:
                 codes[table.blank(column)] = names.get_loc(self.default_calendar)
                 derived["calendar_codes"] = (tuple(names), codes)
-        return text.where(~table.blank(column), self.default_calendar).astype("str")
+        filled = np.where(table.blank(column), self.default_calendar, text.to_numpy(dtype=object))
+        return pd.Series(filled, index=text.index, name=text.name, dtype="str")
 
     def check_calendar_exceptions(self) -> None:
         table = self.optional("calendar_exceptions")
@@ -763,7 +764,9 @@ class _Loader:
                 p, table, "succ", nodes, "the successor '{value}' is not an activity of this snapshot", fix
             )
             bad |= unknown
-        itself = ~bad & (pred.to_numpy() == succ.to_numpy())
+        # Known ends are the same activity exactly where their numbers are equal.
+        same = (pred_at == succ_at) if ids is not None else (pred.to_numpy() == succ.to_numpy())
+        itself = ~bad & same
         p.flag(
             table,
             itself,
