@@ -404,6 +404,16 @@ def _numbers(
     return values, empty, not_number
 
 
+def _column_numbers(table: RawTable, column: str) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """:func:`_numbers` of a table's column, each distinct text read once."""
+    codes, texts = table.distinct(column)
+    empty = blank(table, column)
+    if empty.all():
+        return np.full(len(empty), np.nan), empty, np.zeros(len(empty), dtype=bool)
+    values, _, not_number = _numbers(pd.Series(texts, dtype="str"), table.decimal, texts == "")
+    return values[codes], empty, not_number[codes]
+
+
 def integers(
     problems: Problems,
     table: RawTable,
@@ -454,7 +464,7 @@ def integers(
     >>> problems.count()
     1
     """
-    values, empty, not_number = _numbers(table.frame[column], table.decimal, blank(table, column))
+    values, empty, not_number = _column_numbers(table, column)
     problems.flag(table, not_number, column, "'{value}' is not a number", f"write a whole number of {unit}")
     fraction = ~empty & ~not_number & (np.floor(values) != values)
     problems.flag(table, fraction, column, "'{value}' is not a whole number", f"give a whole number of {unit}")
@@ -527,7 +537,7 @@ def numbers(
     pandas.Series
         The numbers (``float64``); blank and bad cells are ``NaN``.
     """
-    values, empty, not_number = _numbers(table.frame[column], table.decimal, blank(table, column))
+    values, empty, not_number = _column_numbers(table, column)
     what = f"a whole number of {unit}" if whole else (f"a number of {unit}" if unit else "a number")
     mark = (
         ", with a decimal comma and no thousands separator ([input] of case.toml)"
@@ -660,25 +670,28 @@ def coded_choices(
     index = pd.Index(allowed)
     if empty.all():  # a blank column (an optional one the file leaves out): nothing to look up
         codes = np.full(len(text), -1, dtype=np.intp)
-    else:
-        codes = index.get_indexer(text)
-    other = ~empty & (codes < 0)
-    normal = text
-    if other.any():
-        changed = text[other].str.upper() if upper else text[other].str.lower()
-        codes[other] = index.get_indexer(changed)
-        normal = text.copy()
-        normal[other] = changed
+        other = np.zeros(len(text), dtype=bool)
+        normal = text.to_numpy(dtype=object)
+    else:  # each distinct text is looked up once
+        rows, texts = table.distinct(column)
+        found = index.get_indexer(texts)
+        differ = (texts != "") & (found < 0)
+        written = texts.copy()
+        if differ.any():
+            cells = pd.Series(texts[differ], dtype="str")
+            changed = (cells.str.upper() if upper else cells.str.lower()).to_numpy(dtype=object)
+            found[differ] = index.get_indexer(changed)
+            written[differ] = changed
+        codes, other, normal = found[rows], differ[rows], written[rows]
     unknown = other & (codes < 0)
     problems.flag(table, unknown, column, f"'{{value}}' is not a known {what}", "use one of: " + ", ".join(allowed))
     if required is not None:
         problems.flag(table, empty, column, required, "use one of: " + ", ".join(allowed))
     if default is not None:
         if empty.any():
-            filled = np.where(empty, default, normal.to_numpy(dtype=object))
-            normal = pd.Series(filled, index=text.index, name=text.name, dtype="str")
+            normal = np.where(empty, default, normal)
         codes[empty] = allowed.index(default)
-    return normal.astype("str"), codes
+    return pd.Series(normal, index=text.index, name=text.name, dtype="str"), codes
 
 
 def _combined(table: RawTable, columns: list[str]) -> pd.Series:

@@ -71,10 +71,15 @@ class RawTable:
     decimal: str = "."
     #: The blank-cell masks found so far, by column (see :meth:`blank`).
     _blanks: dict[str, np.ndarray] = field(default_factory=dict, init=False, repr=False, compare=False)
+    #: The distinct texts found so far, by column (see :meth:`distinct`).
+    _distinct: dict[str, tuple[np.ndarray, np.ndarray]] = field(
+        default_factory=dict, init=False, repr=False, compare=False
+    )
 
     def __setattr__(self, name: str, value) -> None:
-        if name == "frame":  # a new frame: no mask found for the old one holds for it
+        if name == "frame":  # a new frame: nothing found for the old one holds for it
             self.__dict__.setdefault("_blanks", {}).clear()
+            self.__dict__.setdefault("_distinct", {}).clear()
         object.__setattr__(self, name, value)
 
     def __len__(self) -> int:
@@ -100,10 +105,41 @@ class RawTable:
         """
         mask = self._blanks.get(column)
         if mask is None:
-            mask = self.frame[column].to_numpy() == ""
+            found = self._distinct.get(column)
+            if found is not None:  # the blank text is one of the distinct ones, or none
+                codes, texts = found
+                mask = codes == int(np.flatnonzero(texts == "")[0]) if (texts == "").any() else np.zeros(len(codes), bool)
+            else:
+                mask = self.frame[column].to_numpy() == ""
             mask.flags.writeable = False
             self._blanks[column] = mask
         return mask
+
+    def distinct(self, column: str) -> tuple[np.ndarray, np.ndarray]:
+        """The distinct texts of ``column`` and each cell's number among them, found once.
+
+        A check that depends on a cell's text alone is made once per distinct text and
+        carried to the cells through the numbers: a column of durations or link types
+        holds few.
+
+        Parameters
+        ----------
+        column : str
+            One of the table's columns.
+
+        Returns
+        -------
+        codes : numpy.ndarray
+            For each row, the position of its text in ``texts``.
+        texts : numpy.ndarray
+            The distinct texts (``object``), in the order they first appear.
+        """
+        found = self._distinct.get(column)
+        if found is None:
+            codes, texts = pd.factorize(self.frame[column].to_numpy(dtype=object))
+            codes.flags.writeable = False
+            found = self._distinct[column] = (codes, np.asarray(texts, dtype=object))
+        return found
 
     def remember_blank(self, column: str, mask: np.ndarray) -> None:
         """Keep the mask of the blank cells of ``column``, found while reading the table.
@@ -133,6 +169,7 @@ class RawTable:
         """
         self.frame.loc[position, column] = value
         self._blanks.pop(column, None)
+        self._distinct.pop(column, None)
 
     def where(self, position: int) -> tuple[str, int]:
         """The (file, spreadsheet row) of the row at ``position``.
@@ -170,9 +207,12 @@ class RawTable:
         blank = pd.Series(np.full(len(self.frame), "", dtype=object), dtype="str", index=self.frame.index)
         every = np.ones(len(self.frame), dtype=bool)
         every.flags.writeable = False
+        nothing_else = (np.zeros(len(self.frame), dtype=np.intp), np.array([""], dtype=object))
+        nothing_else[0].flags.writeable = False
         for column in missing:
             self.frame[column] = blank
             self._blanks[column] = every
+            self._distinct[column] = nothing_else
 
     def keep(self, mask: np.ndarray) -> None:
         """Keep only the rows where ``mask`` is true.
