@@ -670,19 +670,24 @@ def coded_choices(
     index = pd.Index(allowed)
     if empty.all():  # a blank column (an optional one the file leaves out): nothing to look up
         codes = np.full(len(text), -1, dtype=np.intp)
-        other = np.zeros(len(text), dtype=bool)
-        normal = text.to_numpy(dtype=object)
-    else:  # each distinct text is looked up once
-        rows, texts = table.distinct(column)
-        found = index.get_indexer(texts)
-        differ = (texts != "") & (found < 0)
-        written = texts.copy()
-        if differ.any():
-            cells = pd.Series(texts[differ], dtype="str")
-            changed = (cells.str.upper() if upper else cells.str.lower()).to_numpy(dtype=object)
-            found[differ] = index.get_indexer(changed)
-            written[differ] = changed
-        codes, other, normal = found[rows], differ[rows], written[rows]
+        if required is not None:
+            problems.flag(table, empty, column, required, "use one of: " + ", ".join(allowed))
+        if default is None:
+            return text.astype("str"), codes
+        codes[:] = allowed.index(default)
+        return pd.Series(default, index=text.index, name=text.name, dtype="str"), codes
+    # Each distinct text is looked up once; cells written in another case, changed to
+    # upper (or lower) case, once more.
+    rows, texts = table.distinct(column)
+    found = index.get_indexer(texts)
+    differ = (texts != "") & (found < 0)
+    written = texts.copy()
+    if differ.any():
+        cells = pd.Series(texts[differ], dtype="str")
+        changed = (cells.str.upper() if upper else cells.str.lower()).to_numpy(dtype=object)
+        found[differ] = index.get_indexer(changed)
+        written[differ] = changed
+    codes, other, normal = found[rows], differ[rows], written[rows]
     unknown = other & (codes < 0)
     problems.flag(table, unknown, column, f"'{{value}}' is not a known {what}", "use one of: " + ", ".join(allowed))
     if required is not None:
@@ -817,7 +822,14 @@ def references(problems: Problems, table: RawTable, column: str, known, message:
 
 
 def coded_references(
-    problems: Problems, table: RawTable, column: str, known: pd.Index, message: Text, fix: Text
+    problems: Problems,
+    table: RawTable,
+    column: str,
+    known: pd.Index,
+    message: Text,
+    fix: Text,
+    *,
+    few: bool = False,
 ) -> tuple[np.ndarray, np.ndarray]:
     """:func:`references` against an index of unique ``known`` values, and each cell's position in it.
 
@@ -835,6 +847,9 @@ def coded_references(
         What is wrong, for each unknown cell (see :meth:`Problems.flag`).
     fix : str or callable
         What to do about it.
+    few : bool, optional
+        The column holds few distinct texts (calendar names, say): each is looked up
+        once (:meth:`RawTable.distinct`) rather than every cell.
 
     Returns
     -------
@@ -843,8 +858,11 @@ def coded_references(
     codes : numpy.ndarray
         Each cell's position in ``known``; ``-1`` for a blank or unknown cell.
     """
-    text = table.frame[column]
-    codes = known.get_indexer(text)
+    if few:
+        rows, texts = table.distinct(column)
+        codes = known.get_indexer(texts)[rows]
+    else:
+        codes = known.get_indexer(table.frame[column])
     unknown = (codes < 0) & ~blank(table, column)
     problems.flag(table, unknown, column, message, fix)
     return unknown, codes

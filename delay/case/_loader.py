@@ -295,6 +295,7 @@ class _Loader:
                 names,
                 "the calendar '{value}' is not in calendars.csv",
                 f"add it to calendars.csv or use one of: {known}",
+                few=True,
             )
             if derived is not None and self.default_calendar in names:
                 codes[table.blank(column)] = names.get_loc(self.default_calendar)

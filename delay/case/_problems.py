@@ -108,7 +108,8 @@ class RawTable:
             found = self._distinct.get(column)
             if found is not None:  # the blank text is one of the distinct ones, or none
                 codes, texts = found
-                mask = codes == int(np.flatnonzero(texts == "")[0]) if (texts == "").any() else np.zeros(len(codes), bool)
+                where_blank = np.flatnonzero(texts == "")
+                mask = codes == where_blank[0] if where_blank.size else np.zeros(len(codes), dtype=bool)
             else:
                 mask = self.frame[column].to_numpy() == ""
             mask.flags.writeable = False
