@@ -567,8 +567,10 @@ def _empty_table(name: str, file: str) -> RawTable:
     each stand-in, so that a column added to one stand-in is not added to the next.
     """
     frame = _EMPTY_FRAMES.get(name)
-    if frame is None:
-        frame = _EMPTY_FRAMES[name] = pd.DataFrame(columns=list(COLUMNS[name]), dtype="str")
+    if frame is None:  # every column shares one text array of length 0
+        cells = pd.array([], dtype="str")
+        frame = pd.DataFrame(dict.fromkeys(COLUMNS[name], cells), index=pd.RangeIndex(0), copy=False)
+        _EMPTY_FRAMES[name] = frame
     return RawTable(name=name, file=file, frame=frame.copy(), rows=np.zeros(0, dtype=np.int64), present=False)
 
 
