@@ -133,7 +133,7 @@ class _Loader:
         self.settings: CaseSettings | None = None
         self.default_calendar = "5d"
         self.calendar_names: list[str] | None = None
-        self.tables: dict[str, pd.DataFrame] = {}
+        self.tables: dict[str, pd.DataFrame | _EmptyTable] = {}
         self.snapshots: list[_SnapshotFacts] = []
         self.corrections: list[Correction] = []
         self.all_activity_ids: pd.Index | None = None
@@ -1517,16 +1517,33 @@ def _names_asbuilt(text: pd.Series) -> np.ndarray:
 _EMPTY_TABLES: dict[str, pd.DataFrame] = {}
 
 
-def _empty(name: str) -> pd.DataFrame:
-    """The table ``name`` with no rows, its stable columns typed.
+def _empty(name: str) -> _EmptyTable:
+    """The table ``name`` with no rows, its stable columns typed, to be built when a case's
+    user first asks for it (:class:`delay.model.Case` calls it then): a command that never
+    reads the table never builds it."""
+    return _EmptyTable(name)
 
-    Each table is built once; every call returns a copy of it (a frame without rows is
-    copied at almost no cost), so that no two cases share one.
+
+class _EmptyTable:
+    """Builds the empty table ``name`` when called; has no rows (``len`` is 0) until then.
+
+    Each table is built once per process; every call returns a copy of it (a frame without
+    rows is copied at almost no cost), so that no two cases share one.
     """
-    table = _EMPTY_TABLES.get(name)
-    if table is None:
-        table = _EMPTY_TABLES[name] = _build_empty(name)
-    return table.copy()
+
+    __slots__ = ("name",)
+
+    def __init__(self, name: str):
+        self.name = name
+
+    def __len__(self) -> int:
+        return 0
+
+    def __call__(self) -> pd.DataFrame:
+        table = _EMPTY_TABLES.get(self.name)
+        if table is None:
+            table = _EMPTY_TABLES[self.name] = _build_empty(self.name)
+        return table.copy()
 
 
 def _build_empty(name: str) -> pd.DataFrame:
