@@ -19,7 +19,7 @@ from pathlib import Path
 import click
 
 from . import __version__
-from .commands import ALIASES, all_commands
+from .commands import ALIASES, COMMAND_MODULES, command_named
 from .commands.common import FORMAT, reports_input_errors
 from .commands.common import load_case_argument as _load
 from .commands.common import print_table as _print_table
@@ -29,10 +29,16 @@ __all__ = ["cli", "main"]
 
 class _Commands(click.Group):
     """The ``delay`` group: a former command name (:data:`delay.commands.ALIASES`) runs the
-    command it became, and ``--help`` lists each command once, by its name."""
+    command it became, and ``--help`` lists each command once, by its name. The commands
+    of :mod:`delay.commands` are imported when they run (:data:`COMMAND_MODULES`), so that
+    a command pays for no other's imports."""
 
     def get_command(self, ctx, cmd_name):
-        return super().get_command(ctx, ALIASES.get(cmd_name, cmd_name))
+        name = ALIASES.get(cmd_name, cmd_name)
+        return super().get_command(ctx, name) or command_named(name)
+
+    def list_commands(self, ctx):
+        return sorted(set(super().list_commands(ctx)) | set(COMMAND_MODULES))
 
     def resolve_command(self, ctx, args):
         _, command, rest = super().resolve_command(ctx, args)
@@ -347,10 +353,6 @@ def _demo_report(case, folder: Path, out_dir: Path) -> list[Path]:
     click.echo(f"Writing the report: {len(content.tables)} tables")
     write_report(content, folder / "report", out_dir / "report")
     return [out_dir / "report" / REPORT_FILE]
-
-
-for _command in all_commands():
-    cli.add_command(_command)
 
 
 def main() -> None:

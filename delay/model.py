@@ -480,7 +480,9 @@ class Case:
     tables : Mapping of str to pandas.DataFrame
         The case's tables other than the snapshots' by name (``events``, ``sections`` ...),
         each also an attribute of the case (``case.events``), handed out as a
-        copy-on-write copy.
+        copy-on-write copy. A table may also be given as a function without arguments
+        that builds it (the empty table of a file the case does not have, say): it is
+        called once, when the table is first asked for.
     snapshots : tuple of Snapshot
         Baseline first, then updates by data date (the as-built snapshot is not among
         them; see ``asbuilt_snapshot``).
@@ -531,7 +533,8 @@ class Case:
     ):
         tables = dict(tables)
         for name in _VERSION_2_TABLES:
-            tables.setdefault(name, pd.DataFrame({column: pd.Series([], dtype="str") for column in COLUMNS[name]}))
+            if name not in tables:  # built only when missing
+                tables[name] = pd.DataFrame({column: pd.Series([], dtype="str") for column in COLUMNS[name]})
         missing = set(_TABLE_DOCS) - set(tables)
         if missing:
             raise ValueError(f"tables missing: {sorted(missing)}")
@@ -568,7 +571,14 @@ class Case:
         >>> list(demo.table("sections").columns)[:3]
         ['section', 'name', 'completion_activity']
         """
-        return _read_only(self._tables[name])
+        return _read_only(self._table(name))
+
+    def _table(self, name: str) -> pd.DataFrame:
+        """The table ``name`` itself, built first if it was given as a function."""
+        table = self._tables[name]
+        if callable(table):
+            table = self._tables[name] = table()
+        return table
 
     def snapshot(self, name: str = "baseline") -> Snapshot:
         """Find a snapshot by folder name, then by label; ``"asbuilt"`` gives the as-built one.
@@ -619,7 +629,7 @@ class Case:
     def __repr__(self) -> str:
         return (
             f"Case({self.settings.project.name!r}, snapshots={len(self.snapshots)}, "
-            f"events={len(self._tables['events'])}, elements={len(self._tables['elements'])})"
+            f"events={len(self._table('events'))}, elements={len(self._table('elements'))})"
         )
 
 
@@ -627,5 +637,5 @@ for _name, _doc in _TABLE_DOCS.items():
     setattr(
         Case,
         _name,
-        property(lambda self, _n=_name: _read_only(self._tables[_n]), doc=f"{_doc.capitalize()}."),
+        property(lambda self, _n=_name: _read_only(self._table(_n)), doc=f"{_doc.capitalize()}."),
     )

@@ -271,3 +271,29 @@ def test_former_command_names_run_the_command_they_became(tmp_path):
     listed = [line.split()[0] for line in run("--help").output.split("Commands:")[1].splitlines() if line.strip()]
     assert "impacted" in listed and "collapsed" in listed
     assert "impact" not in listed and "butfor" not in listed
+
+
+def test_each_command_module_is_imported_only_when_its_command_runs():
+    # The registry of where each command lives must name every command of every module
+    # and no other; a run of one command imports its own module and none of the others
+    # (checked in a fresh interpreter, where nothing else has imported them).
+    import subprocess
+    import sys
+
+    from delay.commands import COMMAND_MODULES, MODULES, all_commands, command_named
+
+    defined = {command.name: command.callback.__module__.rsplit(".", 1)[1] for command in all_commands()}
+    assert COMMAND_MODULES == defined
+    assert set(COMMAND_MODULES.values()) == set(MODULES)
+    assert all(command_named(name).name == name for name in COMMAND_MODULES)
+    assert command_named("schedule") is None  # defined in delay.cli itself
+    script = (
+        "import sys\n"
+        "from click.testing import CliRunner\n"
+        "from delay.cli import cli\n"
+        "result = CliRunner().invoke(cli, ['tia', '--help'])\n"
+        "assert result.exit_code == 0, result.output\n"
+        "print(sorted(m for m in sys.modules if m.startswith('delay.commands.')))\n"
+    )
+    found = subprocess.run([sys.executable, "-c", script], capture_output=True, text=True, check=True)
+    assert found.stdout.strip() == "['delay.commands.common', 'delay.commands.modelled']"

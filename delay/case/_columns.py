@@ -171,9 +171,10 @@ def blank(table: RawTable, column: str) -> np.ndarray:
     Returns
     -------
     numpy.ndarray
-        One boolean per row, true where the cell is ``""``.
+        One boolean per row, true where the cell is ``""`` (found once per column:
+        :meth:`RawTable.blank`; read-only).
     """
-    return empty_cells(table.frame[column])
+    return table.blank(column)
 
 
 def required_cells(problems: Problems, table: RawTable, column: str, message: Text, fix: Text) -> np.ndarray:
@@ -230,8 +231,8 @@ def dates(
         The dates, of dtype :data:`DATE_DTYPE`.
     """
     text = table.frame[column]
-    empty = empty_cells(text)
-    parsed = parse_dates(text, table.date_format)
+    empty = blank(table, column)
+    parsed = parse_dates(text, table.date_format, empty)
     example = dt.date(2025, 3, 31).strftime(table.date_format)
     shown = "YYYY-MM-DD" if table.date_format == ISO_DATE else f"{table.date_format} ([input] of case.toml)"
     problems.flag(
@@ -257,7 +258,7 @@ def dates(
     return parsed
 
 
-def parse_dates(text: pd.Series, date_format: str = ISO_DATE) -> pd.Series:
+def parse_dates(text: pd.Series, date_format: str = ISO_DATE, empty: np.ndarray | None = None) -> pd.Series:
     """Read a text column of dates written in ``date_format``.
 
     ISO ``YYYY-MM-DD`` is understood too, whatever ``date_format`` is (workbook date cells
@@ -269,6 +270,8 @@ def parse_dates(text: pd.Series, date_format: str = ISO_DATE) -> pd.Series:
         A column of stripped text, blank as ``""``.
     date_format : str, optional
         A strptime format; ISO ``%Y-%m-%d`` by default.
+    empty : numpy.ndarray or None, optional
+        The mask of the blank cells of ``text`` when it is already known.
 
     Returns
     -------
@@ -281,7 +284,7 @@ def parse_dates(text: pd.Series, date_format: str = ISO_DATE) -> pd.Series:
     >>> parse_dates(pd.Series(["31/03/2025", "2025-04-01", "", "soon"]), "%d/%m/%Y").tolist()
     [Timestamp('2025-03-31 00:00:00'), Timestamp('2025-04-01 00:00:00'), NaT, NaT]
     """
-    empty = empty_cells(text)
+    empty = empty_cells(text) if empty is None else empty
     if empty.all():
         return pd.Series(np.full(len(text), np.datetime64("NaT"), dtype=DATE_DTYPE), index=text.index, name=text.name)
     parsed = pd.to_datetime(text.where(~empty), format=date_format, errors="coerce")
@@ -323,8 +326,16 @@ def parse_numbers(text: pd.Series, decimal: str = ".") -> np.ndarray:
     return pd.to_numeric(text, errors="coerce").to_numpy(dtype=np.float64)
 
 
-_DIGITS_AND_LINES = str.maketrans("", "", "0123456789\n")
-_LONG_DIGITS = re.compile(r"[0-9]{16}")
+#: The most digits a plain whole number may have (more may not be exact as a float).
+_MOST_DIGITS = 15
+_LONG_DIGITS = re.compile(rf"[0-9]{{{_MOST_DIGITS + 1}}}")
+#: What each byte of a column of plain whole numbers may be: 0 nothing allowed, 1 a digit,
+#: 2 the line break between two cells, 3 a minus.
+_DIGIT, _BREAK, _MINUS = 1, 2, 3
+_OCTET_KINDS = np.zeros(256, dtype=np.uint8)
+_OCTET_KINDS[np.frombuffer(b"0123456789", dtype=np.uint8)] = _DIGIT
+_OCTET_KINDS[ord("\n")] = _BREAK
+_OCTET_KINDS[ord("-")] = _MINUS
 
 
 def _plain_integers(cells: np.ndarray, empty: np.ndarray) -> np.ndarray | None:
@@ -334,14 +345,7 @@ def _plain_integers(cells: np.ndarray, empty: np.ndarray) -> np.ndarray | None:
     reader then decides, cell by cell, what it is)."""
     given = cells[~empty]
     joined = "\n".join(given.tolist())
-    signs = joined.translate(_DIGITS_AND_LINES)
-    if (
-        signs.count("-") != len(signs)
-        or joined.count("\n-") + joined.startswith("-") != len(signs)
-        or "-\n" in joined
-        or joined.endswith("-")
-        or _LONG_DIGITS.search(joined)
-    ):
+    if not _plain_lines(joined):
         return None
     with warnings.catch_warnings():
         warnings.simplefilter("error")
@@ -356,9 +360,39 @@ def _plain_integers(cells: np.ndarray, empty: np.ndarray) -> np.ndarray | None:
     return values
 
 
-def _numbers(text: pd.Series, decimal: str = ".") -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-    """(values, blank mask, not-a-number mask) of a text column."""
-    empty = empty_cells(text)
+def _plain_lines(joined: str) -> bool:
+    """Whether every line of ``joined`` is a plain whole number: digits, a minus only as
+    the line's first character and followed by a digit, at most :data:`_MOST_DIGITS`
+    digits. Whole-array operations over the text's bytes."""
+    if not joined.isascii():
+        return False
+    octets = np.frombuffer(joined.encode("ascii"), dtype=np.uint8)
+    if not octets.size:
+        return True
+    kinds = _OCTET_KINDS[octets]
+    if not kinds.all():  # a byte that is neither a digit, a line break nor a minus
+        return False
+    breaks = np.flatnonzero(kinds == _BREAK)
+    minus = np.flatnonzero(kinds == _MINUS)
+    if minus.size:
+        line_start = np.zeros(octets.size + 1, dtype=bool)
+        line_start[0] = True
+        line_start[breaks + 1] = True
+        after = np.append(kinds, 0)[minus + 1]
+        if not (line_start[minus].all() and (after == _DIGIT).all()):
+            return False
+    bounds = np.concatenate(([-1], breaks, [octets.size]))
+    if int(np.diff(bounds).max()) - 1 <= _MOST_DIGITS:  # no line is long enough to hold more
+        return True
+    return _LONG_DIGITS.search(joined) is None
+
+
+def _numbers(
+    text: pd.Series, decimal: str = ".", empty: np.ndarray | None = None
+) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """(values, blank mask, not-a-number mask) of a text column (``empty``: its blank
+    cells, when known)."""
+    empty = empty_cells(text) if empty is None else empty
     if empty.all():
         nothing = np.zeros(len(text), dtype=bool)
         return np.full(len(text), np.nan), empty, nothing
@@ -368,6 +402,16 @@ def _numbers(text: pd.Series, decimal: str = ".") -> tuple[np.ndarray, np.ndarra
     not_number = ~empty & ~np.isfinite(values)
     values = np.where(not_number, np.nan, values)
     return values, empty, not_number
+
+
+def _column_numbers(table: RawTable, column: str) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """:func:`_numbers` of a table's column, each distinct text read once."""
+    codes, texts = table.distinct(column)
+    empty = blank(table, column)
+    if empty.all():
+        return np.full(len(empty), np.nan), empty, np.zeros(len(empty), dtype=bool)
+    values, _, not_number = _numbers(pd.Series(texts, dtype="str"), table.decimal, texts == "")
+    return values[codes], empty, not_number[codes]
 
 
 def integers(
@@ -420,7 +464,7 @@ def integers(
     >>> problems.count()
     1
     """
-    values, empty, not_number = _numbers(table.frame[column], table.decimal)
+    values, empty, not_number = _column_numbers(table, column)
     problems.flag(table, not_number, column, "'{value}' is not a number", f"write a whole number of {unit}")
     fraction = ~empty & ~not_number & (np.floor(values) != values)
     problems.flag(table, fraction, column, "'{value}' is not a whole number", f"give a whole number of {unit}")
@@ -493,7 +537,7 @@ def numbers(
     pandas.Series
         The numbers (``float64``); blank and bad cells are ``NaN``.
     """
-    values, empty, not_number = _numbers(table.frame[column], table.decimal)
+    values, empty, not_number = _column_numbers(table, column)
     what = f"a whole number of {unit}" if whole else (f"a number of {unit}" if unit else "a number")
     mark = (
         ", with a decimal comma and no thousands separator ([input] of case.toml)"
@@ -621,25 +665,38 @@ def coded_choices(
     (['FS', 'FS', 'XX'], [0, 0, -1], 1)
     """
     allowed = tuple(allowed)
-    index = pd.Index(allowed)
     text = table.frame[column]
-    empty = empty_cells(text)
-    codes = index.get_indexer(text)
-    other = ~empty & (codes < 0)
-    normal = text
-    if other.any():
-        changed = text[other].str.upper() if upper else text[other].str.lower()
-        codes[other] = index.get_indexer(changed)
-        normal = text.copy()
-        normal[other] = changed
+    empty = blank(table, column)
+    index = pd.Index(allowed)
+    if empty.all():  # a blank column (an optional one the file leaves out): nothing to look up
+        codes = np.full(len(text), -1, dtype=np.intp)
+        if required is not None:
+            problems.flag(table, empty, column, required, "use one of: " + ", ".join(allowed))
+        if default is None:
+            return text.astype("str"), codes
+        codes[:] = allowed.index(default)
+        return pd.Series(default, index=text.index, name=text.name, dtype="str"), codes
+    # Each distinct text is looked up once; cells written in another case, changed to
+    # upper (or lower) case, once more.
+    rows, texts = table.distinct(column)
+    found = index.get_indexer(texts)
+    differ = (texts != "") & (found < 0)
+    written = texts.copy()
+    if differ.any():
+        cells = pd.Series(texts[differ], dtype="str")
+        changed = (cells.str.upper() if upper else cells.str.lower()).to_numpy(dtype=object)
+        found[differ] = index.get_indexer(changed)
+        written[differ] = changed
+    codes, other, normal = found[rows], differ[rows], written[rows]
     unknown = other & (codes < 0)
     problems.flag(table, unknown, column, f"'{{value}}' is not a known {what}", "use one of: " + ", ".join(allowed))
     if required is not None:
         problems.flag(table, empty, column, required, "use one of: " + ", ".join(allowed))
     if default is not None:
-        normal = normal.where(~empty, default)
+        if empty.any():
+            normal = np.where(empty, default, normal)
         codes[empty] = allowed.index(default)
-    return normal.astype("str"), codes
+    return pd.Series(normal, index=text.index, name=text.name, dtype="str"), codes
 
 
 def _combined(table: RawTable, columns: list[str]) -> pd.Series:
@@ -684,17 +741,21 @@ def duplicates(
         One whole number per row standing for its ``columns`` (equal exactly where they
         are equal: the link ends' activity numbers, say), compared instead of the text.
     """
-    key = _combined(table, columns) if codes is None else pd.Series(np.asarray(codes, dtype=np.int64))
-    if skip is not None:
-        key = key.where(~skip)
-    repeated = key.duplicated(keep="first").to_numpy() & key.notna().to_numpy()
-    if not repeated.any():
+    values = _combined(table, columns).to_numpy(dtype=object) if codes is None else np.asarray(codes, dtype=np.int64)
+    # Rows in ``skip`` take no part: neither repeated nor the first of a repetition.
+    considered = np.flatnonzero(~np.asarray(skip, dtype=bool)) if skip is not None else None
+    looked_at = values if considered is None else values[considered]
+    repeated_among = pd.Index(looked_at, dtype=looked_at.dtype, copy=False).duplicated(keep="first")
+    if not repeated_among.any():
         return
-    first = key[~key.duplicated(keep="first") & key.notna()]
-    first_position = pd.Series(first.index.to_numpy(), index=first.to_numpy())
+    positions = np.arange(len(values)) if considered is None else considered
+    repeated = np.zeros(len(values), dtype=bool)
+    repeated[positions[repeated_among]] = True
+    firsts = positions[~repeated_among]
+    first_position = dict(zip(values[firsts].tolist(), firsts.tolist()))
 
     def message(position: int) -> str:
-        file, row = table.where(int(first_position[key.iat[position]]))
+        file, row = table.where(int(first_position[values[position]]))
         return f"{describe(position)} is given twice (first on row {row})"
 
     problems.flag(table, repeated, column, message, fix)
@@ -755,13 +816,20 @@ def references(problems: Problems, table: RawTable, column: str, known, message:
         The mask of the unknown cells.
     """
     text = table.frame[column]
-    unknown = ~empty_cells(text) & ~member(text, known)
+    unknown = ~blank(table, column) & ~member(text, known)
     problems.flag(table, unknown, column, message, fix)
     return unknown
 
 
 def coded_references(
-    problems: Problems, table: RawTable, column: str, known: pd.Index, message: Text, fix: Text
+    problems: Problems,
+    table: RawTable,
+    column: str,
+    known: pd.Index,
+    message: Text,
+    fix: Text,
+    *,
+    few: bool = False,
 ) -> tuple[np.ndarray, np.ndarray]:
     """:func:`references` against an index of unique ``known`` values, and each cell's position in it.
 
@@ -779,6 +847,9 @@ def coded_references(
         What is wrong, for each unknown cell (see :meth:`Problems.flag`).
     fix : str or callable
         What to do about it.
+    few : bool, optional
+        The column holds few distinct texts (calendar names, say): each is looked up
+        once (:meth:`RawTable.distinct`) rather than every cell.
 
     Returns
     -------
@@ -787,9 +858,12 @@ def coded_references(
     codes : numpy.ndarray
         Each cell's position in ``known``; ``-1`` for a blank or unknown cell.
     """
-    text = table.frame[column]
-    codes = known.get_indexer(text)
-    unknown = (codes < 0) & ~empty_cells(text)
+    if few:
+        rows, texts = table.distinct(column)
+        codes = known.get_indexer(texts)[rows]
+    else:
+        codes = known.get_indexer(table.frame[column])
+    unknown = (codes < 0) & ~blank(table, column)
     problems.flag(table, unknown, column, message, fix)
     return unknown, codes
 
@@ -857,4 +931,6 @@ def assemble(table: RawTable, typed: dict[str, pd.Series]) -> pd.DataFrame:
     for column in frame.columns:
         if column not in data:
             data[column] = frame[column].astype("str")
-    return pd.DataFrame(data, index=pd.RangeIndex(len(frame)))
+    # No copy is made: the new frame shares the columns' memory until either side writes
+    # (copy-on-write keeps them apart).
+    return pd.DataFrame(data, index=pd.RangeIndex(len(frame)), copy=False)

@@ -146,7 +146,7 @@ class _Applier:
         """Write one cell; the original cell's text is returned."""
         table.ensure_columns([column])
         original = table.frame[column].iat[at]
-        table.frame.loc[at, column] = value
+        table.set_cell(at, column, value)
         where = table.where(at)
         self.problems.corrected_cells[(where[0], where[1], column)] = self.row
         return original

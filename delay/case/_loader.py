@@ -44,6 +44,8 @@ from delay.network import sorted_network
 __all__ = ["load", "Loaded"]
 
 _MILESTONE_KINDS = ("start_milestone", "finish_milestone")
+#: Their positions in ACTIVITY_KINDS (the kind codes of a milestone).
+_MILESTONE_CODES = np.array([ACTIVITY_KINDS.index(kind) for kind in _MILESTONE_KINDS])
 _SNAPSHOT_KINDS = ("baseline", "update")
 
 
@@ -131,7 +133,7 @@ class _Loader:
         self.settings: CaseSettings | None = None
         self.default_calendar = "5d"
         self.calendar_names: list[str] | None = None
-        self.tables: dict[str, pd.DataFrame] = {}
+        self.tables: dict[str, pd.DataFrame | _EmptyTable] = {}
         self.snapshots: list[_SnapshotFacts] = []
         self.corrections: list[Correction] = []
         self.all_activity_ids: pd.Index | None = None
@@ -293,11 +295,13 @@ class _Loader:
                 names,
                 "the calendar '{value}' is not in calendars.csv",
                 f"add it to calendars.csv or use one of: {known}",
+                few=True,
             )
             if derived is not None and self.default_calendar in names:
-                codes[columns.empty_cells(text)] = names.get_loc(self.default_calendar)
+                codes[table.blank(column)] = names.get_loc(self.default_calendar)
                 derived["calendar_codes"] = (tuple(names), codes)
-        return text.where(text != "", self.default_calendar).astype("str")
+        filled = np.where(table.blank(column), self.default_calendar, text.to_numpy(dtype=object))
+        return pd.Series(filled, index=text.index, name=text.name, dtype="str")
 
     def check_calendar_exceptions(self) -> None:
         table = self.optional("calendar_exceptions")
@@ -547,18 +551,23 @@ class _Loader:
     def check_snapshot(self, facts: _SnapshotFacts) -> None:
         activities = facts.source.activities
         if columns.require_columns(self.problems, activities):
-            facts.activities = self.check_activities(activities, facts.data_date, facts.derived)
-        if facts.activities is not None:
-            facts.id_index = pd.Index(facts.activities["id"].drop_duplicates())
+            # The ids' hash table is built once: it tells whether an id repeats, and the
+            # links and the registers look their ids up in it.
+            nodes = pd.Index(activities.frame["id"])
+            facts.activities = self.check_activities(activities, facts.data_date, facts.derived, nodes)
+            facts.id_index = nodes if nodes.is_unique else pd.Index(facts.activities["id"].drop_duplicates())
         links = facts.source.links
         if columns.require_columns(self.problems, links):
             ids = facts.activities["id"] if facts.activities is not None else None
             facts.links = self.check_links(links, ids, facts.derived, facts.id_index)
 
-    def check_activities(self, table: RawTable, data_date: dt.date | None, derived: dict | None = None) -> pd.DataFrame:
+    def check_activities(
+        self, table: RawTable, data_date: dt.date | None, derived: dict | None = None, nodes: pd.Index | None = None
+    ) -> pd.DataFrame:
         """Type and check one snapshot's activities; codes found go into ``derived``
         (``calendar_codes``, ``kind_codes`` by ACTIVITY_KINDS, ``constraint_codes`` by
-        CONSTRAINTS, ``-1`` for none)."""
+        CONSTRAINTS, ``-1`` for none). ``nodes``, the ids as an index, spares the search
+        for repeated ids when they are unique."""
         p = self.problems
         frame = table.frame
         ids = frame["id"]
@@ -567,21 +576,22 @@ class _Loader:
         no_id = columns.required_cells(
             p, table, "id", "the activity has no id", "give every activity an id, unique in the snapshot"
         )
-        columns.duplicates(
-            p,
-            table,
-            ["id"],
-            "id",
-            lambda i: f"the activity id '{ids.iat[i]}'",
-            "give every activity of the snapshot a different id",
-            skip=no_id,
-        )
+        if nodes is None or not nodes.is_unique:
+            columns.duplicates(
+                p,
+                table,
+                ["id"],
+                "id",
+                lambda i: f"the activity id '{ids.iat[i]}'",
+                "give every activity of the snapshot a different id",
+                skip=no_id,
+            )
         duration = columns.integers(
             p, table, "duration", unit="work days", minimum=0, required="the duration is missing"
         )
         calendar = self.calendar_check(table, derived=derived)
         kind, kind_codes = columns.coded_choices(p, table, "kind", ACTIVITY_KINDS, default="task", what="activity kind")
-        milestone_kind = kind.isin(_MILESTONE_KINDS).to_numpy()
+        milestone_kind = np.isin(kind_codes, _MILESTONE_CODES)  # the codes say it: no text compared
         p.flag(
             table,
             milestone_kind & (duration.to_numpy() > 0),
@@ -595,8 +605,8 @@ class _Loader:
             derived["constraint_codes"] = constraint_codes
         constraint_date = columns.dates(p, table, "constraint_date")
         risk = columns.choices(p, table, "risk", PARTIES, what="risk owner")
-        has_constraint = ~columns.empty_cells(frame["constraint"])
-        has_date = ~columns.empty_cells(frame["constraint_date"])
+        has_constraint = ~table.blank("constraint")
+        has_date = ~table.blank("constraint_date")
         p.flag(
             table,
             has_constraint & ~has_date,
@@ -616,7 +626,9 @@ class _Loader:
         remaining = columns.numbers(
             p, table, "remaining", unit="work days", whole=True, minimum=0, maximum=columns.LARGEST_WHOLE_NUMBER
         )
-        start, finish, remaining = self.check_progress(table, duration, kind, start, finish, remaining, data_date)
+        start, finish, remaining = self.check_progress(
+            table, duration, milestone_kind, start, finish, remaining, data_date
+        )
         return columns.assemble(
             table,
             {
@@ -636,7 +648,7 @@ class _Loader:
         self,
         table: RawTable,
         duration: pd.Series,
-        kind: pd.Series,
+        milestone_kind: np.ndarray,
         start: pd.Series,
         finish: pd.Series,
         remaining: pd.Series,
@@ -648,7 +660,7 @@ class _Loader:
         one of its actual dates is given, the other takes the same date.
         """
         p = self.problems
-        milestone = (kind.isin(_MILESTONE_KINDS) | (duration == 0)).to_numpy()
+        milestone = milestone_kind | (duration.to_numpy() == 0)
         has_start = start.notna().to_numpy()
         has_finish = finish.notna().to_numpy()
         p.flag(
@@ -753,7 +765,9 @@ class _Loader:
                 p, table, "succ", nodes, "the successor '{value}' is not an activity of this snapshot", fix
             )
             bad |= unknown
-        itself = ~bad & (pred == succ).to_numpy()
+        # Known ends are the same activity exactly where their numbers are equal.
+        same = (pred_at == succ_at) if ids is not None else (pred.to_numpy() == succ.to_numpy())
+        itself = ~bad & same
         p.flag(
             table,
             itself,
@@ -1499,10 +1513,47 @@ def _names_asbuilt(text: pd.Series) -> np.ndarray:
     return lowered.isin([ASBUILT]).to_numpy()
 
 
-def _empty(name: str) -> pd.DataFrame:
-    """The table ``name`` with no rows, its stable columns typed."""
+#: The empty tables built so far, by name (:func:`_empty` hands out copies).
+_EMPTY_TABLES: dict[str, pd.DataFrame] = {}
+
+
+def _empty(name: str) -> _EmptyTable:
+    """The table ``name`` with no rows, its stable columns typed, to be built when a case's
+    user first asks for it (:class:`delay.model.Case` calls it then): a command that never
+    reads the table never builds it."""
+    return _EmptyTable(name)
+
+
+class _EmptyTable:
+    """Builds the empty table ``name`` when called; has no rows (``len`` is 0) until then.
+
+    Each table is built once per process; every call returns a copy of it (a frame without
+    rows is copied at almost no cost), so that no two cases share one.
+    """
+
+    __slots__ = ("name",)
+
+    def __init__(self, name: str):
+        self.name = name
+
+    def __len__(self) -> int:
+        return 0
+
+    def __call__(self) -> pd.DataFrame:
+        table = _EMPTY_TABLES.get(self.name)
+        if table is None:
+            table = _EMPTY_TABLES[self.name] = _build_empty(self.name)
+        return table.copy()
+
+
+def _build_empty(name: str) -> pd.DataFrame:
+    """The table ``name`` with no rows, its stable columns typed, built afresh.
+
+    The columns of one type share one array of length 0 (nothing can be written into
+    it): built from arrays, the frame costs a fraction of one built from Series.
+    """
     data = {}
-    empty: dict[object, pd.Series] = {}  # one empty column per type, shared (copy-on-write)
+    empty: dict[object, object] = {}  # one empty array per type
     for column in COLUMNS[name]:
         if column in columns.DATE_COLUMNS.get(name, ()):
             dtype = columns.DATE_DTYPE
@@ -1515,6 +1566,6 @@ def _empty(name: str) -> pd.DataFrame:
         else:
             dtype = "str"
         if dtype not in empty:
-            empty[dtype] = pd.Series([], dtype=dtype)
+            empty[dtype] = pd.array([], dtype="str") if dtype == "str" else np.array([], dtype=dtype)
         data[column] = empty[dtype]
-    return pd.DataFrame(data)
+    return pd.DataFrame(data, index=pd.RangeIndex(0), copy=False)

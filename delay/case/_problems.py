@@ -69,9 +69,108 @@ class RawTable:
     #: strptime format (ISO dates are understood too), ``decimal`` the decimal mark.
     date_format: str = "%Y-%m-%d"
     decimal: str = "."
+    #: The blank-cell masks found so far, by column (see :meth:`blank`).
+    _blanks: dict[str, np.ndarray] = field(default_factory=dict, init=False, repr=False, compare=False)
+    #: The distinct texts found so far, by column (see :meth:`distinct`).
+    _distinct: dict[str, tuple[np.ndarray, np.ndarray]] = field(
+        default_factory=dict, init=False, repr=False, compare=False
+    )
+
+    def __setattr__(self, name: str, value) -> None:
+        if name == "frame":  # a new frame: nothing found for the old one holds for it
+            self.__dict__.setdefault("_blanks", {}).clear()
+            self.__dict__.setdefault("_distinct", {}).clear()
+        object.__setattr__(self, name, value)
 
     def __len__(self) -> int:
         return len(self.frame)
+
+    def blank(self, column: str) -> np.ndarray:
+        """Mask of the blank cells of ``column``, found once and kept.
+
+        Several checks look at the blank cells of one column; the comparison of every
+        cell with ``""`` is made only the first time. A cell is changed through
+        :meth:`set_cell` (or the whole :attr:`frame` replaced), which forgets the mask.
+
+        Parameters
+        ----------
+        column : str
+            One of the table's columns.
+
+        Returns
+        -------
+        numpy.ndarray
+            One boolean per row, true where the cell is ``""`` (read-only: copy it to
+            change it).
+        """
+        mask = self._blanks.get(column)
+        if mask is None:
+            found = self._distinct.get(column)
+            if found is not None:  # the blank text is one of the distinct ones, or none
+                codes, texts = found
+                where_blank = np.flatnonzero(texts == "")
+                mask = codes == where_blank[0] if where_blank.size else np.zeros(len(codes), dtype=bool)
+            else:
+                mask = self.frame[column].to_numpy() == ""
+            mask.flags.writeable = False
+            self._blanks[column] = mask
+        return mask
+
+    def distinct(self, column: str) -> tuple[np.ndarray, np.ndarray]:
+        """The distinct texts of ``column`` and each cell's number among them, found once.
+
+        A check that depends on a cell's text alone is made once per distinct text and
+        carried to the cells through the numbers: a column of durations or link types
+        holds few.
+
+        Parameters
+        ----------
+        column : str
+            One of the table's columns.
+
+        Returns
+        -------
+        codes : numpy.ndarray
+            For each row, the position of its text in ``texts``.
+        texts : numpy.ndarray
+            The distinct texts (``object``), in the order they first appear.
+        """
+        found = self._distinct.get(column)
+        if found is None:
+            codes, texts = pd.factorize(self.frame[column].to_numpy(dtype=object))
+            codes.flags.writeable = False
+            found = self._distinct[column] = (codes, np.asarray(texts, dtype=object))
+        return found
+
+    def remember_blank(self, column: str, mask: np.ndarray) -> None:
+        """Keep the mask of the blank cells of ``column``, found while reading the table.
+
+        Parameters
+        ----------
+        column : str
+            One of the table's columns.
+        mask : numpy.ndarray
+            One boolean per row, true where the cell is ``""``.
+        """
+        mask = np.asarray(mask, dtype=bool)
+        mask.flags.writeable = False
+        self._blanks[column] = mask
+
+    def set_cell(self, position: int, column: str, value: str) -> None:
+        """Write one cell (the row at ``position``, from 0, in ``column``).
+
+        Parameters
+        ----------
+        position : int
+            The row's position in :attr:`frame`.
+        column : str
+            One of the table's columns.
+        value : str
+            The cell's new text.
+        """
+        self.frame.loc[position, column] = value
+        self._blanks.pop(column, None)
+        self._distinct.pop(column, None)
 
     def where(self, position: int) -> tuple[str, int]:
         """The (file, spreadsheet row) of the row at ``position``.
@@ -101,9 +200,20 @@ class RawTable:
             The column names the table must have; those already there are left as they
             are.
         """
-        for column in columns:
-            if column not in self.frame.columns:
-                self.frame[column] = pd.Series([""] * len(self.frame), dtype="str", index=self.frame.index)
+        missing = [column for column in columns if column not in self.frame.columns]
+        if not missing:
+            return
+        # One blank column, shared by every column added (copy-on-write: a change to one
+        # of them copies it first), and its mask, known without looking.
+        blank = pd.Series(np.full(len(self.frame), "", dtype=object), dtype="str", index=self.frame.index)
+        every = np.ones(len(self.frame), dtype=bool)
+        every.flags.writeable = False
+        nothing_else = (np.zeros(len(self.frame), dtype=np.intp), np.array([""], dtype=object))
+        nothing_else[0].flags.writeable = False
+        for column in missing:
+            self.frame[column] = blank
+            self._blanks[column] = every
+            self._distinct[column] = nothing_else
 
     def keep(self, mask: np.ndarray) -> None:
         """Keep only the rows where ``mask`` is true.
@@ -116,7 +226,7 @@ class RawTable:
         mask : numpy.ndarray
             One boolean per row of :attr:`frame`.
         """
-        self.frame = self.frame.loc[mask].reset_index(drop=True)
+        self.frame = self.frame.loc[mask].reset_index(drop=True)  # forgets the masks
         self.rows = self.rows[mask]
 
 

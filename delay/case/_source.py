@@ -8,6 +8,7 @@ missing files, unreadable files, broken headers.
 
 from __future__ import annotations
 
+import codecs
 import datetime as dt
 import io
 import re
@@ -183,12 +184,15 @@ def _needs_strip(data: bytes, delimiter: str = ",") -> bool:
     and only their neighbours are looked at; a file without one has no cell that needs
     stripping, and the costly strip of every column is skipped.
     """
-    if b"\xc2\xa0" in data or delimiter == "\t":  # a no-break space, or tab-separated
+    # A no-break space (its second byte is searched for first: one byte is found faster),
+    # or a tab-separated file.
+    if (b"\xa0" in data and b"\xc2\xa0" in data) or delimiter == "\t":
         return True
-    if b" " not in data and b"\t" not in data:
+    tabs = b"\t" in data
+    if b" " not in data and not tabs:
         return False
     octets = np.frombuffer(data, dtype=np.uint8)
-    spaces = np.flatnonzero((octets == ord(" ")) | (octets == ord("\t")))
+    spaces = np.flatnonzero((octets == ord(" ")) | (octets == ord("\t")) if tabs else octets == ord(" "))
     if spaces[0] == 0 or spaces[-1] == octets.size - 1:
         return True
     edges = _EDGES.copy()
@@ -215,16 +219,13 @@ def _make_table(
     settings = settings or InputSettings()
     given = [str(h).strip() for h in header]
     header, renamed = rename_header(name, given, settings)
-    body = body.copy()
-    body.columns = range(body.shape[1])
     usable = True
-    keep_columns = []
+    kept: dict[str, object] = {}  # column name -> its cells (a pandas array)
     seen: dict[str, str] = {}
     for number, column_name in enumerate(header):
-        column = body[number].astype("str")
+        column = body.iloc[:, number].astype("str")
         if strip and len(body):
             column = column.str.strip()
-        body[number] = column
         if not column_name:
             if len(body) and (column != "").any():
                 problems.add(
@@ -246,22 +247,28 @@ def _make_table(
             usable = False
             continue
         seen[column_name] = given[number]
-        keep_columns.append(number)
+        kept[column_name] = column.array
     if not usable:
         return None, renamed
-    frame = body[keep_columns]
-    frame.columns = [header[n] for n in keep_columns]
+    # The cells are the parser's own (nothing else holds them): no copy is made.
+    frame = pd.DataFrame(kept, index=pd.RangeIndex(len(body)), copy=False)
+    first_blank = None  # the blank cells of the first column, when every row is kept
     if len(frame) and len(frame.columns):
         filled = np.zeros(len(frame), dtype=bool)
         for column in frame.columns:
             filled |= frame[column].to_numpy() != ""
-        frame = frame.loc[filled]
-        rows = rows[filled]
+            if first_blank is None:
+                first_blank = ~filled
+            if filled.all():  # no blank row: the other columns need not be looked at
+                break
+        else:
+            frame = frame.loc[filled].reset_index(drop=True)
+            rows = rows[filled]
+            first_blank = None
     elif not len(frame.columns):
         frame = frame.iloc[0:0]
         rows = rows[:0]
-    frame = frame.reset_index(drop=True)
-    return RawTable(
+    table = RawTable(
         name=name,
         file=file,
         frame=frame,
@@ -269,7 +276,10 @@ def _make_table(
         path=path,
         date_format=settings.date_format,
         decimal=settings.decimal,
-    ), renamed
+    )
+    if first_blank is not None:
+        table.remember_blank(frame.columns[0], first_blank)
+    return table, renamed
 
 
 _DELIMITER_NAMES = {",": "comma", ";": "semicolon", "\t": "tab", "|": "vertical bar"}
@@ -337,9 +347,15 @@ def read_csv_table(
     line_end = text.find("\n")
     delimiter = settings.delimiter or detect_delimiter(text[: line_end if line_end >= 0 else None])
     separator = _DELIMITER_NAMES[delimiter]
+    # UTF-8 bytes go to the parser as they are (it decodes them itself, without a copy of
+    # the whole text); other encodings go as the decoded text.
+    utf8 = encoding == "utf-8"
+    raw = (data[len(codecs.BOM_UTF8) :] if data.startswith(codecs.BOM_UTF8) else data) if utf8 else None
     try:
         cells = pd.read_csv(
-            io.StringIO(text),
+            io.BytesIO(raw) if utf8 else io.StringIO(text),
+            encoding="utf-8",
+            low_memory=False,
             sep=delimiter,
             header=None,
             dtype=str,
@@ -370,7 +386,7 @@ def read_csv_table(
     header = cells.iloc[0].tolist() if len(cells) else []
     body = cells.iloc[1:]
     rows = np.arange(2, len(cells) + 1, dtype=np.int64)
-    raw = data if encoding == "utf-8" else text.encode("utf-8")
+    raw = raw if utf8 else text.encode("utf-8")
     table, renamed = _make_table(
         name, file, header, body, rows, problems, path, strip=_needs_strip(raw, delimiter), settings=settings
     )
@@ -540,9 +556,22 @@ def _input_settings(settings: SettingsSource, problems: Problems) -> InputSettin
     return parse_input(settings.values.get("input"), report)
 
 
+#: The frames of the empty stand-ins built so far, by table name.
+_EMPTY_FRAMES: dict[str, pd.DataFrame] = {}
+
+
 def _empty_table(name: str, file: str) -> RawTable:
-    frame = pd.DataFrame(columns=list(COLUMNS[name]), dtype="str")  # one block: a third of the cost
-    return RawTable(name=name, file=file, frame=frame, rows=np.zeros(0, dtype=np.int64), present=False)
+    """The empty stand-in for the optional file ``name`` the case does not have.
+
+    Its frame (every stable column, as text) is built once per table name and copied for
+    each stand-in, so that a column added to one stand-in is not added to the next.
+    """
+    frame = _EMPTY_FRAMES.get(name)
+    if frame is None:  # every column shares one text array of length 0
+        cells = pd.array([], dtype="str")
+        frame = pd.DataFrame(dict.fromkeys(COLUMNS[name], cells), index=pd.RangeIndex(0), copy=False)
+        _EMPTY_FRAMES[name] = frame
+    return RawTable(name=name, file=file, frame=frame.copy(), rows=np.zeros(0, dtype=np.int64), present=False)
 
 
 # --------------------------------------------------------------------------- workbook form
