@@ -28,6 +28,7 @@ import datetime as dt
 import pandas as pd
 
 from .events import completion_activity
+from .memo import remembered
 from .model import Case
 
 __all__ = ["whole_works_section", "completion_in_force", "grants"]
@@ -149,6 +150,10 @@ def completion_in_force(
     >>> completion_in_force(demo)
     (datetime.date(2026, 5, 29), 28, datetime.date(2026, 6, 26))
     """
+    return remembered(case, ("completion in force", section, at), lambda: _in_force(case, section, at))
+
+
+def _in_force(case: Case, section: str | None, at: dt.date | None) -> tuple[dt.date, int, dt.date]:
     whole = whole_works_section(case)
     if section is None or (whole is not None and str(section) == whole):
         contract = case.settings.project.contract_completion

@@ -26,6 +26,7 @@ import numpy as np
 import pandas as pd
 
 from ..convert import json_records
+from ..memo import remembered
 from ..model import Case, Snapshot
 from ._common import ordered_snapshots, resolve
 
@@ -150,13 +151,8 @@ def element_checks(case: Case, snapshot: str | Snapshot | None = None) -> Elemen
     elements = case.elements
     snapshots = ordered_snapshots(case)
     chosen = [resolve(case, snapshot)] if snapshot is not None else snapshots
-    programme_codes = set()
-    for snap in snapshots:
-        programme_codes.update(snap.activities_table["wbs"].to_numpy(dtype=object))
-    programme_codes.discard("")
     wbs = elements["wbs"].astype(str)
-    unlinked = elements.loc[~wbs.isin(programme_codes).to_numpy(), ["id", "name", "wbs", "classification"]]
-    unlinked = unlinked.rename(columns={"id": "element"})
+    unlinked, duplicates = remembered(case, ("element checks of the case",), lambda: _of_the_case(case, snapshots))
 
     note = ""
     rows = []
@@ -175,9 +171,21 @@ def element_checks(case: Case, snapshot: str | Snapshot | None = None) -> Elemen
         unmodelled = pd.concat(rows, ignore_index=True).drop_duplicates(["activity", "wbs"], keep="first")
     else:
         unmodelled = pd.DataFrame({c: pd.Series([], dtype=object) for c in ("activity", "name", "wbs", "snapshot")})
-    return ElementChecks(
-        unlinked.reset_index(drop=True), unmodelled.reset_index(drop=True), _duplicates(elements), note
-    )
+    return ElementChecks(unlinked.copy(), unmodelled.reset_index(drop=True), duplicates.copy(), note)
+
+
+def _of_the_case(case: Case, snapshots) -> tuple[pd.DataFrame, pd.DataFrame]:
+    """What does not depend on the snapshot checked, found once per case: the elements whose
+    wbs no activity of any snapshot carries, and the suspected duplicates."""
+    elements = case.elements
+    programme_codes = set()
+    for snap in snapshots:
+        programme_codes.update(snap.activities_table["wbs"].to_numpy(dtype=object))
+    programme_codes.discard("")
+    wbs = elements["wbs"].astype(str)
+    unlinked = elements.loc[~wbs.isin(programme_codes).to_numpy(), ["id", "name", "wbs", "classification"]]
+    unlinked = unlinked.rename(columns={"id": "element"}).reset_index(drop=True)
+    return unlinked, _duplicates(elements)
 
 
 def _duplicates(elements: pd.DataFrame) -> pd.DataFrame:
