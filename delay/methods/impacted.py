@@ -242,8 +242,15 @@ def _fragnets(case: Case) -> dict[str, tuple[pd.DataFrame, pd.DataFrame, set, li
     def group() -> dict[str, tuple[pd.DataFrame, pd.DataFrame, set, list]]:
         activities = case.fragnets[["event", "id", "name", "duration", "calendar"]]
         links = case.fragnet_links[["event", "pred", "succ", "type", "lag"]]
-        by_event = {e: rows.drop(columns="event").reset_index(drop=True) for e, rows in activities.groupby("event")}
-        linked = {e: rows.drop(columns="event").reset_index(drop=True) for e, rows in links.groupby("event")}
+
+        def split(table: pd.DataFrame) -> dict[str, pd.DataFrame]:
+            """The rows of each event, without the event column: one selection each by
+            the positions of a single grouping."""
+            rest = table.drop(columns="event")
+            groups = table.groupby("event", sort=True).indices
+            return {e: rest.take(rows).reset_index(drop=True) for e, rows in groups.items()}
+
+        by_event, linked = split(activities), split(links)
         empty = links.drop(columns="event").iloc[:0]
         found = {}
         for event, rows in by_event.items():

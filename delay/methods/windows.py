@@ -677,7 +677,7 @@ def _revision_steps(
     changed, finishes of the targets after it)`` per kind that changed something, then
     ``other`` when the steps do not end exactly at E."""
     end_net, half_net = end_result.model.network, half_result.model.network
-    in_end = end_net.index.get_indexer(pd.Index(half_net.ids))  # the one look-up of ids per window
+    in_end = end_net.index_of(half_net.ids)  # the one look-up of ids per window (none when they are the same)
     only_half = np.flatnonzero(in_end < 0)
     size = end_net.size + only_half.size
     half_codes = in_end.astype(np.int64)
