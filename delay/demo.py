@@ -25,6 +25,71 @@ from .output import output_folder, write_csv
 __all__ = ["run_demo"]
 
 
+class _IfcPart:
+    """The IFC part of the demo (:func:`delay.ifc.demo_outputs`) in a process of its own,
+    started first so that it runs beside the rest of the demo on a second core. It writes
+    into a temporary folder of its own and hands the files back, which the demo writes into
+    its folder as it is built; stopped, it leaves nothing behind."""
+
+    def __init__(self, root: Path):
+        import multiprocessing
+
+        context = multiprocessing.get_context("spawn")  # a fresh interpreter, on every platform
+        self._receive, send = context.Pipe(duplex=False)
+        self._process = context.Process(target=_ifc_part, args=(str(root), send), daemon=True)
+        self._process.start()
+        send.close()
+
+    @classmethod
+    def start(cls, case) -> _IfcPart | None:
+        """Start the IFC part when the extra is installed and the case has a model."""
+        from .ifc import available
+
+        root = Path(case.root)
+        if not available() or not root.is_dir() or not sorted((root / "model").glob("*.ifc")):
+            return None
+        return cls(root)
+
+    def files(self) -> dict[str, bytes]:
+        """Wait for the IFC outputs: path under the demo's folder to content; raises what
+        the IFC part raised."""
+        try:
+            kind, found = self._receive.recv()
+        except EOFError:
+            raise RuntimeError("the IFC part of the demo stopped without a result") from None
+        finally:
+            self._process.join()
+        if kind == "error":
+            raise found
+        return found
+
+    def stop(self) -> None:
+        """End the process if it still runs (the demo failed or was interrupted)."""
+        if self._process.is_alive():
+            self._process.terminate()
+        self._process.join()
+        self._receive.close()
+
+
+def _ifc_part(root: str, send) -> None:
+    """The body of :class:`_IfcPart`'s process."""
+    import tempfile
+
+    try:
+        from .ifc import demo_outputs
+
+        with tempfile.TemporaryDirectory(prefix="delay-demo-ifc-out-") as folder:
+            paths = demo_outputs(load_case(Path(root)), folder)
+            send.send(("files", {p.relative_to(folder).as_posix(): p.read_bytes() for p in paths}))
+    except Exception as error:  # handed back: the demo raises it
+        try:
+            send.send(("error", error))
+        except Exception:  # an error that does not pickle goes back as its text
+            send.send(("error", RuntimeError(str(error))))
+    finally:
+        send.close()
+
+
 def run_demo(
     case_path: Path,
     out_dir: Path,
@@ -40,8 +105,9 @@ def run_demo(
     case has the snapshots for them; the impacted as-planned, time impact and collapsed
     as-built analyses, the entitlement per method, the methods compared and the
     sensitivity table where it has delay events; and the IFC outputs when the IFC extra is
-    installed. The folder is built under a temporary name and moved into place whole
-    (:func:`delay.output.output_folder`).
+    installed (made in a process of their own, started first, so that they take a second
+    core while the rest runs). The folder is built under a temporary name and moved into
+    place whole (:func:`delay.output.output_folder`).
 
     Parameters
     ----------
@@ -73,6 +139,15 @@ def run_demo(
     """
     case = load_case(case_path)
     echo(f"Loaded {case.settings.project.name}: {len(case.snapshots)} snapshots")
+    background = _IfcPart.start(case)  # beside the rest, on another core
+    try:
+        return _run(case, out_dir, echo, extra, background)
+    finally:
+        if background is not None:
+            background.stop()
+
+
+def _run(case, out_dir: Path, echo, extra, background: _IfcPart | None) -> list[Path]:
     written: list[Path] = []
     with output_folder(out_dir, case_root=case.root, inputs=case.input_files, what="demo", option=" (--out)") as folder:
         summary = summarise(case)
@@ -112,20 +187,19 @@ def run_demo(
         written.append(out_dir / "completion_by_snapshot.csv")
         written += _retrospective(case, folder, out_dir, echo)
         written += _modelled(case, folder, out_dir, echo)
-        from .ifc import available
-
-        if available():
-            from .ifc import demo_outputs
-
-            ifc_files = demo_outputs(case, folder)
-            written += [out_dir / p.relative_to(folder) for p in ifc_files]
+        if extra is not None:
+            written += extra(case, folder, out_dir)
+        if background is not None:
+            ifc_files = background.files()
+            for name, data in ifc_files.items():
+                (folder / name).parent.mkdir(parents=True, exist_ok=True)
+                (folder / name).write_bytes(data)
+            written += [out_dir / name for name in ifc_files]
             if ifc_files:
                 echo(
                     "IFC: the demo model imported and the baseline exported as a work schedule "
                     f"({len(ifc_files)} files)"
                 )
-        if extra is not None:
-            written += extra(case, folder, out_dir)
     return written
 
 

@@ -104,6 +104,10 @@ class CaseError(Exception):
             raise ValueError("CaseError needs at least one problem")
         super().__init__("\n".join(str(p) for p in self.problems))
 
+    def __reduce__(self):
+        """Pickle by the problems (a process of the demo hands its errors back this way)."""
+        return (type(self), (self.problems,))
+
 
 class DateBoundError(CaseError):
     """A computed date would fall outside the dates the toolkit works with.
