@@ -709,6 +709,8 @@ class _Forward(NamedTuple):
 
 
 _EVERY = np.empty(0, dtype=np.int64)  # no positions named: the forward pass computes every activity
+#: The arrays of :class:`_Forward` that a forward pass brings up to date.
+_UPDATED = ("early_finish_t", "start_read", "early_finish", "remaining_start", "finish_day", "start_read_t")
 
 
 def _known_finish(model, st: _Status) -> np.ndarray:
@@ -726,58 +728,71 @@ def _forward(model: ScheduleModel, st: _Status, bounds: _Bounds, with_floats: bo
     again when a date falls outside it."""
     from . import _kernels
 
-    net, cals, settings = model.network, model.calendars, model.settings
-    n, layout, order = net.size, net.passes, net.order
+    net = model.network
+    n, order = net.size, net.order
     known_finish = _known_finish(model, st)
-    early_finish_t, start_read_t, early_finish, start_read, remaining_start, finish_day = (
-        np.empty(n, dtype=np.int64) for _ in range(6)
+    by_position = (st.status[order], st.point[order], model.calendar[order])
+    empty = np.empty(0, dtype=np.int64)
+    dates = _Forward(
+        *(np.empty(n, dtype=np.int64) for _ in range(5)),
+        relative_float=np.empty(net.link_count, dtype=np.int64) if with_floats else empty,
+        link_free_float_t=np.empty(n, dtype=np.int64) if with_floats else empty,
+        start_read_t=np.empty(n, dtype=np.int64),
     )
-    relative_float = np.empty(net.link_count if with_floats else 0, dtype=np.int64)
-    link_free_float_t = np.empty(n if with_floats else 0, dtype=np.int64)
     while True:
-        link_free_float_t.fill(_FAR)
-        code = _kernels.forward_pass(
-            *layout.forward,
-            layout.f_link,
-            order,
-            settings.progress == "progress_override",
-            settings.lag_calendar == "predecessor",
-            with_floats,
-            st.status[order],
-            st.point[order],
-            model.calendar[order],
-            bounds.lower,
-            bounds.upper,
-            bounds.duration,
-            bounds.start_read_fixed,
-            known_finish,
-            cals.table(),
-            early_finish_t,
-            start_read_t,
-            early_finish,
-            start_read,
-            remaining_start,
-            finish_day,
-            relative_float,
-            link_free_float_t,
-            layout.b_ptr,
-            layout.b_succ,
-            _EVERY,
-            _EVERY,
-        )
+        dates.link_free_float_t.fill(_FAR)
+        code = _forward_pass(model, by_position, bounds, known_finish, dates, with_floats, _EVERY, _EVERY)
         if code == _kernels.OK:
             break
-        grow_within_bounds(model, cals, code == _kernels.TOO_EARLY)
-    check_finish_days(model, finish_day)
-    return _Forward(
-        early_finish_t,
-        start_read,
-        early_finish,
-        remaining_start,
-        finish_day,
-        relative_float,
-        link_free_float_t,
-        start_read_t,
+        grow_within_bounds(model, model.calendars, code == _kernels.TOO_EARLY)
+    check_finish_days(model, dates.finish_day)
+    return dates
+
+
+def _forward_pass(
+    model: ScheduleModel,
+    by_position: tuple,
+    bounds: _Bounds,
+    known_finish: np.ndarray,
+    dates: _Forward,
+    with_floats: bool,
+    changed: np.ndarray,
+    touched: np.ndarray,
+) -> int:
+    """One call of :func:`delay._kernels.forward_pass` writing into ``dates``: every
+    activity when ``changed`` is empty, else those positions and what lies downstream of a
+    date that moves (``dates`` holding the parent's dates on entry). Gives the kernel's
+    code."""
+    from . import _kernels
+
+    net, settings = model.network, model.settings
+    layout = net.passes
+    return _kernels.forward_pass(
+        *layout.forward,
+        layout.f_link,
+        net.order,
+        settings.progress == "progress_override",
+        settings.lag_calendar == "predecessor",
+        with_floats,
+        *by_position,
+        bounds.lower,
+        bounds.upper,
+        bounds.duration,
+        bounds.start_read_fixed,
+        known_finish,
+        model.calendars.table(),
+        dates.early_finish_t,
+        dates.start_read_t,
+        dates.early_finish,
+        dates.start_read,
+        dates.remaining_start,
+        dates.finish_day,
+        dates.relative_float,
+        dates.link_free_float_t,
+        layout.b_ptr,
+        layout.b_succ,
+        changed,
+        touched,
     )
 
 
@@ -980,61 +995,23 @@ def _updated_state(model: ScheduleModel, base: _ForwardState, changed: np.ndarra
     st = _Status(*(_put(a, rows, b) for a, b in zip(base.st, st_rows)))
     bounds = _Bounds(*(_put(a, rows, b) for a, b in zip(base.bounds, _bounds(part, st_rows))))
     known_finish = _put(base.known_finish, rows, _known_finish(part, st_rows))
-    cals, settings = model.calendars, model.settings
     positions = net.rank[rows]
-    status_t, point_t, calendar_t = (
+    by_position = tuple(
         _put(a, positions, b) for a, b in zip(base.by_position, (st_rows.status, st_rows.point, part.calendar))
     )
-    layout = net.passes
     touched = np.empty(net.size + 1, dtype=np.int64)
-    while True:
-        early_finish_t, start_read_t, early_finish, start_read, remaining_start, finish_day = (
-            a.copy()
-            for a in (
-                base.dates.early_finish_t,
-                base.dates.start_read_t,
-                base.dates.early_finish,
-                base.dates.start_read,
-                base.dates.remaining_start,
-                base.dates.finish_day,
-            )
+    while True:  # from the parent's dates, again after the tables grow
+        dates = base.dates._replace(
+            **{name: getattr(base.dates, name).copy() for name in _UPDATED},
+            relative_float=_EVERY,
+            link_free_float_t=_EVERY,
         )
-        code = _kernels.forward_pass(
-            *layout.forward,
-            layout.f_link,
-            net.order,
-            settings.progress == "progress_override",
-            settings.lag_calendar == "predecessor",
-            False,
-            status_t,
-            point_t,
-            calendar_t,
-            bounds.lower,
-            bounds.upper,
-            bounds.duration,
-            bounds.start_read_fixed,
-            known_finish,
-            cals.table(),
-            early_finish_t,
-            start_read_t,
-            early_finish,
-            start_read,
-            remaining_start,
-            finish_day,
-            _EVERY,
-            _EVERY,
-            layout.b_ptr,
-            layout.b_succ,
-            positions,
-            touched,
-        )
+        code = _forward_pass(model, by_position, bounds, known_finish, dates, False, positions, touched)
         if code == _kernels.OK:
             break
-        grow_within_bounds(model, cals, code == _kernels.TOO_EARLY)
-    check_finish_days(model, finish_day[touched[1 : 1 + touched[0]]])  # only these moved
-    empty = np.empty(0, dtype=np.int64)
-    dates = _Forward(early_finish_t, start_read, early_finish, remaining_start, finish_day, empty, empty, start_read_t)
-    return _ForwardState(st, bounds, known_finish, (status_t, point_t, calendar_t), dates)
+        grow_within_bounds(model, model.calendars, code == _kernels.TOO_EARLY)
+    check_finish_days(model, dates.finish_day[touched[1 : 1 + touched[0]]])  # only these moved
+    return _ForwardState(st, bounds, known_finish, by_position, dates)
 
 
 @dataclass(frozen=True, eq=False)
