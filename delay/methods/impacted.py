@@ -298,6 +298,17 @@ def apply_event(
     return model.what_if(**arguments), missing, notes
 
 
+def _apply_next(
+    model: ScheduleModel, case: Case, event: Mapping, present: set[str]
+) -> tuple[ScheduleModel, list[str], list[str]]:
+    """:func:`apply_event` for the next event of a run of events inserted one after
+    another: ``present`` (the ids of ``model``) takes the fragnet activities it adds."""
+    size = model.network.size
+    model, missing, notes = apply_event(model, case, event, present)
+    present.update(str(i) for i in model.network.ids[size:])
+    return model, missing, notes
+
+
 def targets_of(case: Case) -> list[str]:
     """The activities the modelled methods measure.
 
@@ -532,9 +543,7 @@ def _insert(
     for event in register.to_dict("records"):
         alone_model, missing, notes = apply_event(model, case, event, present)
         alone.append(_finish_of(alone_model.finish_days(), where))
-        size = cumulative.network.size
-        cumulative, _, cumulative_notes = apply_event(cumulative, case, event, in_cumulative)
-        in_cumulative.update(str(i) for i in cumulative.network.ids[size:])
+        cumulative, _, cumulative_notes = _apply_next(cumulative, case, event, in_cumulative)
         cumulative_finish.append(_finish_of(cumulative.finish_days(), where))
         applied.append("" if not missing else f"not in {label}: {', '.join(missing)}")
         words = [f"alone: {n}" for n in notes if n not in cumulative_notes]
@@ -757,9 +766,7 @@ def _analyse(case: Case, snapshot: Snapshot, register: pd.DataFrame, order: str)
             continue
         together, in_together = model, set(present)
         for event in own.to_dict("records"):
-            size = together.network.size
-            together, _, _ = apply_event(together, case, event, in_together)
-            in_together.update(str(i) for i in together.network.ids[size:])
+            together, _, _ = _apply_next(together, case, event, in_together)
         day = int(together.finish_days()[k])
         parties.append(
             {
