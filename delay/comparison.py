@@ -32,6 +32,8 @@ from .model import Case
 __all__ = [
     "compare_methods",
     "sensitivity",
+    "other_progress_figures",
+    "adopt_other_progress_figures",
     "available_methods",
     "disagreements",
     "why_they_differ",
@@ -489,37 +491,99 @@ def sensitivity(case: Case, methods: Sequence[str] | None = None) -> pd.DataFram
     return remembered(case, ("sensitivity", tuple(methods)), lambda: _sensitivity(case, methods)).copy()
 
 
+#: The headline figures of one method that the sensitivity table compares, in its order.
+FIGURES = ("eot_days", "compensable_days", "ld_days", "ld_exposure", "concurrent_days")
+
+
+def _other_progress(case: Case) -> str:
+    return "progress_override" if case.settings.schedule.progress == "retained_logic" else "retained_logic"
+
+
+def _figures(assessed: Entitlement, methods: Sequence[str]) -> dict[str, tuple]:
+    return {m: tuple(getattr(assessed.method(m), f) for f in FIGURES) for m in methods}
+
+
+def other_progress_figures(case: Case, methods: Sequence[str]) -> dict[str, tuple]:
+    """Give each method's headline figures under the other progress mode.
+
+    The costliest row of :func:`sensitivity`: every method is run again on the case under
+    the other progress mode (retained logic or progress override), with the case's own
+    concurrency rule. Computed once per case and methods (:func:`delay.memo.remembered`),
+    or adopted from another process that made them from the same case
+    (:func:`adopt_other_progress_figures`).
+
+    Parameters
+    ----------
+    case : Case
+        The loaded case.
+    methods : sequence of str
+        The methods to run.
+
+    Returns
+    -------
+    dict
+        Method to its figures, in the order of :data:`FIGURES`.
+
+    Examples
+    --------
+    >>> other_progress_figures(demo, ["windows"])["windows"][:3]
+    (0, 20, 6)
+    """
+    methods = tuple(methods)
+    return remembered(
+        case,
+        ("other progress figures", methods),
+        lambda: _figures(assess(_with_progress(case, _other_progress(case)), methods), methods),
+    )
+
+
+def adopt_other_progress_figures(case: Case, methods: Sequence[str], figures: Mapping[str, tuple]) -> None:
+    """Take figures of :func:`other_progress_figures` made in another process as this case's.
+
+    ``delay demo`` makes them on its second core from the same case files: the methods are
+    pure functions of the case, so the figures are those this process would compute. Figures
+    already known for the case and methods are kept.
+
+    Parameters
+    ----------
+    case : Case
+        The loaded case.
+    methods : sequence of str
+        The methods the figures were made for.
+    figures : mapping
+        Method to its figures, as :func:`other_progress_figures` gives them.
+
+    Raises
+    ------
+    ValueError
+        When ``figures`` is not one tuple of :data:`FIGURES` per method.
+    """
+    methods = tuple(methods)
+    if sorted(figures) != sorted(methods) or any(len(f) != len(FIGURES) for f in figures.values()):
+        raise ValueError(f"figures for {sorted(figures)} do not fit the methods {sorted(methods)}")
+    remembered(case, ("other progress figures", methods), lambda: {m: tuple(figures[m]) for m in methods})
+
+
 def _sensitivity(case: Case, methods: list[str]) -> pd.DataFrame:
     progress = case.settings.schedule.progress
     concurrency = case.settings.analysis.concurrency
-    other_progress = "progress_override" if progress == "retained_logic" else "retained_logic"
     other_concurrency = "apportion" if concurrency == "time_not_money" else "time_not_money"
     variants = [
-        ("as set", case, progress, concurrency),
-        ("other progress mode", _with_progress(case, other_progress), other_progress, concurrency),
-        ("other concurrency rule", case, progress, other_concurrency),
+        ("as set", progress, concurrency, _figures(assess(case, methods), methods)),
+        ("other progress mode", _other_progress(case), concurrency, other_progress_figures(case, methods)),
+        (
+            "other concurrency rule",
+            progress,
+            other_concurrency,
+            _figures(assess(case, methods, concurrency=other_concurrency), methods),
+        ),
     ]
     rows = []
-    base: dict[str, tuple] = {}
-    for name, variant_case, mode, rule in variants:
-        assessed = assess(variant_case, methods, concurrency=rule)
+    for name, mode, rule, figures in variants:
         for m in methods:
-            e = assessed.method(m)
-            figures = (e.eot_days, e.compensable_days, e.ld_days, e.ld_exposure, e.concurrent_days)
-            if name == "as set":
-                base[m] = figures
             rows.append(
-                {
-                    "method": m,
-                    "variant": name,
-                    "progress": mode,
-                    "concurrency": rule,
-                    "eot_days": e.eot_days,
-                    "compensable_days": e.compensable_days,
-                    "ld_days": e.ld_days,
-                    "ld_exposure": e.ld_exposure,
-                    "concurrent_days": e.concurrent_days,
-                    "changed": figures != base[m],
-                }
+                {"method": m, "variant": name, "progress": mode, "concurrency": rule}
+                | dict(zip(FIGURES, figures[m], strict=True))
+                | {"changed": figures[m] != variants[0][3][m]}
             )
     return pd.DataFrame(rows)

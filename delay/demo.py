@@ -11,6 +11,7 @@ Each capability adds its outputs here as it is built.
 from __future__ import annotations
 
 import json
+import os
 from collections.abc import Callable
 from pathlib import Path
 
@@ -25,62 +26,116 @@ from .output import output_folder, write_csv
 __all__ = ["run_demo"]
 
 
-class _IfcPart:
-    """The IFC part of the demo (:func:`delay.ifc.demo_outputs`) in a process of its own,
-    started first so that it runs beside the rest of the demo on a second core. It writes
-    into a temporary folder of its own and hands the files back, which the demo writes into
-    its folder as it is built; stopped, it leaves nothing behind."""
+class _Beside:
+    """Parts of the demo made in a process of their own, started first so that they run
+    beside the rest of the demo on a second core.
 
-    def __init__(self, root: Path):
+    In order: the headline figures of each method under the other progress mode (the
+    costliest row of the sensitivity table, :func:`delay.comparison.other_progress_figures`),
+    when the case has delay events; the checks (:func:`delay.checks.run_all`); both only
+    where the machine has a second core; then the IFC outputs
+    (:func:`delay.ifc.demo_outputs`), when the IFC extra is installed and the case has a
+    model. The process loads the case itself from the same files; each part is handed back
+    through a pipe as it is made. The IFC part writes into a temporary folder of its own and
+    hands the files back, which the demo writes into its folder as it is built; an error is
+    handed back and raised where its part is waited for; stopped, the process leaves
+    nothing behind."""
+
+    def __init__(self, case_path: Path, methods: tuple[str, ...], checks: bool, ifc: bool):
         import multiprocessing
 
+        self.methods, self.checks, self.ifc = methods, checks, ifc
         context = multiprocessing.get_context("spawn")  # a fresh interpreter, on every platform
         self._receive, send = context.Pipe(duplex=False)
-        self._process = context.Process(target=_ifc_part, args=(str(root), send), daemon=True)
+        self._process = context.Process(target=_beside, args=(str(case_path), methods, checks, ifc, send), daemon=True)
         self._process.start()
         send.close()
 
     @classmethod
-    def start(cls, case) -> _IfcPart | None:
-        """Start the IFC part when the extra is installed and the case has a model."""
+    def start(cls, case, case_path: Path) -> _Beside | None:
+        """Start the process when ``case``, loaded from ``case_path``, has a part for it."""
+        from .comparison import available_methods
         from .ifc import available
 
         root = Path(case.root)
-        if not available() or not root.is_dir() or not sorted((root / "model").glob("*.ifc")):
+        ifc = available() and root.is_dir() and bool(sorted((root / "model").glob("*.ifc")))
+        checks = _cores() > 1
+        methods = tuple(available_methods(case)) if len(case.events) and checks else ()
+        if not ifc and not checks:
             return None
-        return cls(root)
+        return cls(case_path, methods, checks, ifc)
 
-    def files(self) -> dict[str, bytes]:
-        """Wait for the IFC outputs: path under the demo's folder to content; raises what
-        the IFC part raised."""
+    def _next(self, kind: str):
         try:
-            kind, found = self._receive.recv()
+            got, found = self._receive.recv()
         except EOFError:
-            raise RuntimeError("the IFC part of the demo stopped without a result") from None
-        finally:
-            self._process.join()
-        if kind == "error":
+            raise RuntimeError("the second process of the demo stopped without a result") from None
+        if got == "error":
             raise found
+        if got != kind:  # the parts come in the order they are asked for
+            raise RuntimeError(f"the second process of the demo handed back {got} where {kind} was due")
         return found
 
+    def adopt_figures(self, case) -> None:
+        """Wait for the figures under the other progress mode and take them as ``case``'s."""
+        from .comparison import adopt_other_progress_figures
+
+        if self.methods:
+            adopt_other_progress_figures(case, self.methods, self._next("figures"))
+
+    def adopt_checks(self, case) -> bool:
+        """Wait for the checks and take them as ``case``'s; tell whether the process made them."""
+        from .checks import adopt_checks
+
+        if self.checks:
+            adopt_checks(case, self._next("checks"))
+        return self.checks
+
+    def files(self) -> dict[str, bytes]:
+        """Wait for the IFC outputs: path under the demo's folder to content (none when the
+        process makes no IFC part); raises what the IFC part raised."""
+        if not self.ifc:
+            return {}
+        try:
+            return self._next("files")
+        finally:
+            self._process.join()
+
     def stop(self) -> None:
-        """End the process if it still runs (the demo failed or was interrupted)."""
+        """End the process if it still runs (the demo failed, was interrupted or is done)."""
         if self._process.is_alive():
             self._process.terminate()
         self._process.join()
         self._receive.close()
 
 
-def _ifc_part(root: str, send) -> None:
-    """The body of :class:`_IfcPart`'s process."""
+def _cores() -> int:
+    try:
+        return len(os.sched_getaffinity(0))
+    except AttributeError:  # not on every platform
+        return os.cpu_count() or 1
+
+
+def _beside(case_path: str, methods: tuple[str, ...], checks: bool, ifc: bool, send) -> None:
+    """The body of :class:`_Beside`'s process."""
     import tempfile
 
     try:
-        from .ifc import demo_outputs
+        case = load_case(Path(case_path))
+        if methods:
+            from .comparison import other_progress_figures
 
-        with tempfile.TemporaryDirectory(prefix="delay-demo-ifc-out-") as folder:
-            paths = demo_outputs(load_case(Path(root)), folder)
-            send.send(("files", {p.relative_to(folder).as_posix(): p.read_bytes() for p in paths}))
+            send.send(("figures", other_progress_figures(case, methods)))
+        if checks:
+            from .checks import run_all
+
+            send.send(("checks", run_all(case)))
+        if ifc:
+            from .ifc import demo_outputs
+
+            with tempfile.TemporaryDirectory(prefix="delay-demo-ifc-out-") as folder:
+                paths = demo_outputs(case, folder)
+                send.send(("files", {p.relative_to(folder).as_posix(): p.read_bytes() for p in paths}))
     except Exception as error:  # handed back: the demo raises it
         try:
             send.send(("error", error))
@@ -105,8 +160,9 @@ def run_demo(
     case has the snapshots for them; the impacted as-planned, time impact and collapsed
     as-built analyses, the entitlement per method, the methods compared and the
     sensitivity table where it has delay events; and the IFC outputs when the IFC extra is
-    installed (made in a process of their own, started first, so that they take a second
-    core while the rest runs). The folder is built under a temporary name and moved into
+    installed. The IFC outputs and the sensitivity table's figures under the other progress
+    mode are made in a process of their own, started first, so that they take a second core
+    while the rest runs (:class:`_Beside`). The folder is built under a temporary name and moved into
     place whole (:func:`delay.output.output_folder`).
 
     Parameters
@@ -139,7 +195,7 @@ def run_demo(
     """
     case = load_case(case_path)
     echo(f"Loaded {case.settings.project.name}: {len(case.snapshots)} snapshots")
-    background = _IfcPart.start(case)  # beside the rest, on another core
+    background = _Beside.start(case, case_path)  # beside the rest, on another core
     try:
         return _run(case, out_dir, echo, extra, background)
     finally:
@@ -147,19 +203,13 @@ def run_demo(
             background.stop()
 
 
-def _run(case, out_dir: Path, echo, extra, background: _IfcPart | None) -> list[Path]:
+def _run(case, out_dir: Path, echo, extra, background: _Beside | None) -> list[Path]:
     written: list[Path] = []
     with output_folder(out_dir, case_root=case.root, inputs=case.input_files, what="demo", option=" (--out)") as folder:
         summary = summarise(case)
         summary["root"] = Path(case.root).resolve().name  # the case by its name, never a path of the machine
         (folder / "case_summary.json").write_text(json.dumps(summary, indent=2), encoding="utf-8")
         written.append(out_dir / "case_summary.json")
-        from .checks import run_all
-
-        (folder / "checks.json").write_text(json.dumps(run_all(case), indent=2), encoding="utf-8")
-        written.append(out_dir / "checks.json")
-        echo("Checked the programmes' quality, the records and the model links (checks.json)")
-
         schedules = folder / "schedules"
         schedules.mkdir()
         calendars = CalendarSet(build_calendars(case))
@@ -186,7 +236,8 @@ def _run(case, out_dir: Path, echo, extra, background: _IfcPart | None) -> list[
         write_csv(folder / "completion_by_snapshot.csv", pd.DataFrame(trend))
         written.append(out_dir / "completion_by_snapshot.csv")
         written += _retrospective(case, folder, out_dir, echo)
-        written += _modelled(case, folder, out_dir, echo)
+        written += _modelled(case, folder, out_dir, echo, background)
+        written += _checks(case, folder, out_dir, echo, background)
         if extra is not None:
             written += extra(case, folder, out_dir)
         if background is not None:
@@ -201,6 +252,17 @@ def _run(case, out_dir: Path, echo, extra, background: _IfcPart | None) -> list[
                     f"({len(ifc_files)} files)"
                 )
     return written
+
+
+def _checks(case, folder: Path, out_dir: Path, echo, background: _Beside | None) -> list[Path]:
+    """The checks of every snapshot (made on the second core where there is one)."""
+    from .checks import run_all
+
+    if background is not None:
+        background.adopt_checks(case)
+    (folder / "checks.json").write_text(json.dumps(run_all(case), indent=2), encoding="utf-8")
+    echo("Checked the programmes' quality, the records and the model links (checks.json)")
+    return [out_dir / "checks.json"]
 
 
 def _retrospective(case, folder: Path, out_dir: Path, echo) -> list[Path]:
@@ -225,7 +287,7 @@ def _retrospective(case, folder: Path, out_dir: Path, echo) -> list[Path]:
     return written
 
 
-def _modelled(case, folder: Path, out_dir: Path, echo) -> list[Path]:
+def _modelled(case, folder: Path, out_dir: Path, echo, background: _Beside | None) -> list[Path]:
     """Impacted as-planned, time impact and collapsed as-built, where the case allows them."""
     from .methods import collapsed, impacted, tia
 
@@ -250,6 +312,8 @@ def _modelled(case, folder: Path, out_dir: Path, echo) -> list[Path]:
                 f"Collapsed as-built: the model {'reproduces' if butfor.reproduced else 'does not fully reproduce'} "
                 "the actual dates; but-for completions written"
             )
+        if background is not None:
+            background.adopt_figures(case)  # made on the second core meanwhile
         written += _entitlement(case, folder, out_dir, echo)
     return written
 

@@ -1,11 +1,17 @@
-"""The demo's IFC part runs in a process of its own, beside the rest of the demo.
+"""Parts of the demo run in a process of their own, beside the rest of the demo.
 
-What is checked: its outputs are the same bytes as the IFC part run in the demo's own
-process; an error it meets reaches the demo as the same one-line problem, and the demo then
-writes nothing; a stopped part leaves no process and no folder behind. The outputs
-themselves are checked against the IFC standard in test_ifc_demo.py; this file checks only
-that moving the work to another process changes nothing (an invariance, common practice
-for a parallel step).
+Those parts are the figures under the other progress mode, the checks and the IFC outputs.
+What is checked:
+- each part hands back what the same part gives in the demo's own process: the same
+  figures, the same checks, the same bytes;
+- the demo's sensitivity table and checks are the same whether the second process made
+  them or the demo did (on a machine with one core);
+- an error the process meets reaches the demo as the same one-line problem, and the demo
+  then writes nothing;
+- a stopped process leaves no process and no folder behind.
+The outputs themselves are checked elsewhere (the IFC standard in test_ifc_demo.py, the
+methods in their own tests). This file checks only that moving the work to another process
+changes nothing (an invariance, common practice for a parallel step).
 """
 
 from __future__ import annotations
@@ -15,12 +21,16 @@ import pickle
 import shutil
 from pathlib import Path
 
+import pandas as pd
 import pytest
 
 pytest.importorskip("ifcopenshell")
 
+from delay import demo
 from delay.case import load_case
-from delay.demo import _IfcPart, run_demo
+from delay.checks import adopt_checks, run_all
+from delay.comparison import adopt_other_progress_figures, available_methods, other_progress_figures, sensitivity
+from delay.demo import _Beside, run_demo
 from delay.errors import CaseError, Problem
 from delay.ifc import demo_outputs
 
@@ -37,17 +47,44 @@ def test_a_case_error_crosses_a_process_with_its_problems():
     assert str(again) == str(error)
 
 
-def test_the_part_hands_back_what_it_writes_in_process(tmp_path):
-    part = _IfcPart.start(load_case(DEMO))
-    assert part is not None
+def test_each_part_hands_back_what_it_gives_in_process(tmp_path):
+    case = load_case(DEMO)
+    part = _Beside.start(case, DEMO)
+    assert part is not None and part.methods == tuple(available_methods(case)) and part.checks and part.ifc
+    part.adopt_figures(case)
+    assert part.adopt_checks(case)
     handed = part.files()
     part.stop()
-    paths = demo_outputs(load_case(DEMO), tmp_path)
+    fresh = load_case(DEMO)  # nothing adopted: computed here
+    assert other_progress_figures(case, part.methods) == other_progress_figures(fresh, part.methods)
+    assert run_all(case) == run_all(fresh)
+    pd.testing.assert_frame_equal(sensitivity(case), sensitivity(fresh))
+    paths = demo_outputs(fresh, tmp_path)
     here = {p.relative_to(tmp_path).as_posix(): p.read_bytes() for p in paths}
     assert sorted(handed) == sorted(here)
     for name in ("ifc/elements_from_model.csv", "ifc/elements_findings.csv", "ifc/element_checks.json"):
         assert handed[name] == here[name]
     assert not multiprocessing.active_children()
+
+
+def test_the_demo_writes_the_same_figures_and_checks_on_one_core(tmp_path, monkeypatch):
+    run_demo(DEMO, tmp_path / "two", echo=lambda line: None)
+    monkeypatch.setattr(demo, "_cores", lambda: 1)
+    assert _Beside.start(load_case(DEMO), DEMO).methods == ()  # only the IFC part goes beside then
+    run_demo(DEMO, tmp_path / "one", echo=lambda line: None)
+    for name in ("sensitivity.csv", "checks.json", "entitlement.json", "comparison.json"):
+        assert (tmp_path / "one" / name).read_bytes() == (tmp_path / "two" / name).read_bytes(), name
+    assert not multiprocessing.active_children()
+
+
+def test_figures_or_checks_that_do_not_fit_are_refused():
+    case = load_case(DEMO)
+    with pytest.raises(ValueError, match="do not fit"):
+        adopt_other_progress_figures(case, ["windows", "tia"], {"windows": (0, 20, 6, 27000, 0)})
+    with pytest.raises(ValueError, match="do not fit"):
+        adopt_other_progress_figures(case, ["windows"], {"windows": (0, 20)})
+    with pytest.raises(ValueError, match="not a result of the checks"):
+        adopt_checks(case, {"snapshots": []})
 
 
 def test_an_error_of_the_part_stops_the_demo_with_its_problem_and_nothing_written(tmp_path):
@@ -64,6 +101,6 @@ def test_an_error_of_the_part_stops_the_demo_with_its_problem_and_nothing_writte
 
 
 def test_a_part_stopped_early_leaves_no_process():
-    part = _IfcPart.start(load_case(DEMO))
+    part = _Beside.start(load_case(DEMO), DEMO)
     part.stop()
     assert not multiprocessing.active_children()

@@ -52,6 +52,7 @@ __all__ = [
     "element_checks",
     "check_snapshot",
     "run_all",
+    "adopt_checks",
     "contract_completion_in_force",
     "Metric",
     "DataCheck",
@@ -163,6 +164,32 @@ def run_all(case: Case) -> dict[str, Any]:
     from ..memo import remembered
 
     return copy.deepcopy(remembered(case, ("checks",), lambda: _run_all(case)))
+
+
+def adopt_checks(case: Case, found: dict[str, Any]) -> None:
+    """Take the result of :func:`run_all` made in another process as this case's.
+
+    ``delay demo`` runs the checks on its second core from the same case files: the checks
+    are pure functions of the case, so the result is the one this process would compute.
+    A result already known for the case is kept.
+
+    Parameters
+    ----------
+    case : Case
+        A loaded case.
+    found : dict
+        What :func:`run_all` gave for the same case in the other process.
+
+    Raises
+    ------
+    ValueError
+        When ``found`` is not a result of :func:`run_all`.
+    """
+    from ..memo import remembered
+
+    if set(found) != {"project", "completion_in_force", "snapshots", "comparisons"}:
+        raise ValueError(f"not a result of the checks: {sorted(found)}")
+    remembered(case, ("checks",), lambda: found)
 
 
 def _run_all(case: Case) -> dict[str, Any]:
