@@ -293,21 +293,33 @@ def levels(after: ScheduleResult, before: ScheduleResult, late_before: np.ndarra
     return Levels(finish, start, position, change)
 
 
-def _gap_change(after: ScheduleResult, before: ScheduleResult, link: int, before_number: np.ndarray) -> int | None:
-    """How much the gap of link ``link`` of ``after`` grew against the same link (same ends
-    and type) in ``before``, in work days of the successor's calendar; ``None`` when
-    ``before`` has no such link."""
-    net = after.model.network
-    other = before.model.network
-    succ = int(before_number[net.succ[link]])
-    pred = int(before_number[net.pred[link]])
-    if succ < 0 or pred < 0:
-        return None
-    links = other.in_link[other.in_ptr[succ] : other.in_ptr[succ + 1]]
-    same = links[(other.pred[links] == pred) & (other.link_type[links] == net.link_type[link])]
-    if not same.size:
-        return None
-    return int(after.link_gaps[link]) - int(before.link_gaps[int(same[0])])
+def _gap_changes(
+    after: ScheduleResult, before: ScheduleResult, links: np.ndarray, before_number: np.ndarray
+) -> tuple[np.ndarray, np.ndarray]:
+    """How much the gap of each of ``links`` of ``after`` grew against the same link (same
+    ends and type) in ``before``, in work days of the successor's calendar, and whether
+    ``before`` has such a link; on arrays, each link's successor's links in ``before``
+    searched together."""
+    net, other = after.model.network, before.model.network
+    links = np.asarray(links, dtype=np.int64)
+    succ = before_number[net.succ[links]]
+    pred = before_number[net.pred[links]]
+    asked = np.flatnonzero((succ >= 0) & (pred >= 0))
+    first = other.in_ptr[succ[asked]]
+    counts = other.in_ptr[succ[asked] + 1] - first
+    query = np.repeat(np.arange(asked.size), counts)  # one row per link of a successor in before
+    offset = np.arange(query.size) - np.repeat(np.cumsum(counts) - counts, counts)
+    candidate = other.in_link[first[query] + offset]
+    same = (other.pred[candidate] == pred[asked][query]) & (
+        other.link_type[candidate] == net.link_type[links[asked]][query]
+    )
+    match = np.full(links.size, -1, dtype=np.int64)
+    hit = np.flatnonzero(same)[::-1]  # assigned last to first, so that the first match stays
+    match[asked[query[hit]]] = candidate[hit]
+    known = match >= 0
+    change = np.zeros(links.size, dtype=np.int64)
+    change[known] = after.link_gaps[links[known]] - before.link_gaps[match[known]]
+    return change, known
 
 
 def trace_charges(
@@ -375,7 +387,14 @@ def trace_charges(
         return empty
     found = levels(after, before, late_before, ledger)
     graph = explore(after, [k], stop)
-    nodes = sorted(set(graph.parents) | set(graph.stopped), key=lambda v: net.rank[v])
+    nodes = list(set(graph.parents) | set(graph.stopped))
+    at = np.asarray(nodes, dtype=np.int64)
+    nodes = at[np.argsort(net.rank[at], kind="stable")].tolist()  # in rank order: predecessors first
+    at = np.asarray(nodes, dtype=np.int64)
+    own_level = dict(zip(nodes, found.level[at].tolist()))  # NaN: no level of its own
+    own_start_level = dict(zip(nodes, found.start_level[at].tolist()))
+    graph_links = sorted({link for found_v in graph.parents.values() for _, link, _ in found_v})
+    reads_start = dict(zip(graph_links, np.isin(net.link_type[graph_links], (1, 3)).tolist()))
     level: dict[int, float] = {}  # at the finish
     start_level: dict[int, float] = {}
     parent: dict[int, tuple[int, int] | None] = {}
@@ -383,7 +402,7 @@ def trace_charges(
     def passed(p: int, link: int) -> float:
         """What ``p`` passes on through ``link``: its start level through a link that reads
         its start (SS, SF), else its finish level."""
-        return start_level[p] if net.link_type[link] in (1, 3) else level[p]
+        return start_level[p] if reads_start[link] else level[p]
 
     for v in nodes:
         if v in graph.stopped:
@@ -397,9 +416,9 @@ def trace_charges(
             chosen = next(option for option in options if passed(*option) == top)
         parent[v] = chosen
         carried_in = passed(*chosen) if chosen is not None else 0.0
-        own, own_start = found.level[v], found.start_level[v]
-        level[v] = carried_in if np.isnan(own) else float(own)
-        start_level[v] = carried_in if np.isnan(own_start) else float(own_start)
+        own, own_start = own_level[v], own_start_level[v]
+        level[v] = carried_in if own != own else own  # own != own: NaN
+        start_level[v] = carried_in if own_start != own_start else own_start
     chain = [k]
     while parent.get(chain[-1]) is not None:
         chain.append(parent[chain[-1]][0])
@@ -409,17 +428,16 @@ def trace_charges(
     for v, after_v in zip(chain[:-1], chain[1:]):
         out[v] = passed(v, parent[after_v][1])
 
-    changes: dict[int, int | None] = {}
+    # The work days each activity itself added (its gap behind its driving predecessor and
+    # its duration, against *before*); None when *before* cannot tell.
+    driven = [v for v in nodes if parent.get(v) is not None and found.before_number[v] >= 0]
+    changes: dict[int, int | None] = dict.fromkeys(nodes)
+    if driven:
+        gap, known = _gap_changes(after, before, [parent[v][1] for v in driven], found.before_number)
+        span = found.span_change[np.asarray(driven, dtype=np.int64)]
+        changes.update({v: int(g + c) if ok else None for v, g, c, ok in zip(driven, gap, span, known)})
 
     def own_change(v: int) -> int | None:
-        """The work days ``v`` itself added (its gap behind its driving predecessor and its
-        duration, against *before*); ``None`` when *before* cannot tell."""
-        if v not in changes:
-            chosen = parent.get(v)
-            gap = None
-            if chosen is not None and found.before_number[v] >= 0:
-                gap = _gap_change(after, before, chosen[1], found.before_number)
-            changes[v] = None if gap is None else gap + int(found.span_change[v])
         return changes[v]
 
     def inherited(v: int) -> bool:

@@ -19,7 +19,7 @@ import numpy as np
 
 from .cpm import COMPLETE, IN_PROGRESS, NOT_STARTED, ScheduleResult
 
-__all__ = ["DrivingGraph", "driving_predecessors", "explore"]
+__all__ = ["DrivingGraph", "DrivingTable", "driving_predecessors", "driving_table", "explore"]
 
 
 def driving_predecessors(result: ScheduleResult, activity: int) -> list[tuple[int, int, int]]:
@@ -78,6 +78,112 @@ def driving_predecessors(result: ScheduleResult, activity: int) -> list[tuple[in
 
 
 @dataclass(frozen=True)
+class DrivingTable:
+    """The tied driving predecessors of every activity of a schedule, on arrays.
+
+    Made by :func:`driving_table`. The predecessors of activity ``v`` are the entries
+    ``ptr[v]`` to ``ptr[v + 1]``, in tie order.
+
+    Parameters
+    ----------
+    ptr : numpy.ndarray
+        Offsets, shape ``(n + 1,)``.
+    pred : numpy.ndarray
+        Each entry's predecessor (its activity number).
+    link : numpy.ndarray
+        Each entry's link number.
+    gap : numpy.ndarray
+        Each entry's gap, as :func:`driving_predecessors` gives it.
+    """
+
+    ptr: np.ndarray
+    pred: np.ndarray
+    link: np.ndarray
+    gap: np.ndarray
+
+    def of(self, activity: int) -> list[tuple[int, int, int]]:
+        """Give the entries of one activity, as :func:`driving_predecessors` gives them.
+
+        Parameters
+        ----------
+        activity : int
+            The activity's number in the schedule's network.
+
+        Returns
+        -------
+        list of tuple of (int, int, int)
+            ``(predecessor, link, gap)`` per tied predecessor, in tie order.
+        """
+        at = slice(int(self.ptr[activity]), int(self.ptr[activity + 1]))
+        return list(zip(self.pred[at].tolist(), self.link[at].tolist(), self.gap[at].tolist()))
+
+
+def driving_table(result: ScheduleResult) -> DrivingTable:
+    """Find the tied driving predecessors of every activity at once, on arrays.
+
+    The same rule as :func:`driving_predecessors`, applied to every link in a few whole-array
+    operations instead of one activity at a time; :func:`explore` reads it. Computed once
+    per schedule (:func:`delay.memo.remembered`).
+
+    Parameters
+    ----------
+    result : ScheduleResult
+        A scheduled snapshot.
+
+    Returns
+    -------
+    DrivingTable
+        Every activity's tied driving predecessors, in the order of
+        :func:`driving_predecessors`.
+
+    Examples
+    --------
+    >>> from delay.cpm import schedule
+    >>> result = schedule(demo)
+    >>> v = int(result.model.network.index_of("SUB-CLEARANCE")[0])
+    >>> driving_table(result).of(v) == driving_predecessors(result, v)
+    True
+    """
+    from .memo import remembered
+
+    return remembered(result, ("driving table",), lambda: _driving_table(result))
+
+
+def _driving_table(result: ScheduleResult) -> DrivingTable:
+    net = result.model.network
+    n = net.size
+    links = np.asarray(net.in_link, dtype=np.int64)
+    counts = np.diff(net.in_ptr)
+    succ = np.repeat(np.arange(n), counts)  # the successor of each entry (in_link is grouped by it)
+    status = result.status[succ]
+    kind = net.link_type[links]
+    pred = net.pred[links]
+    order = result.model.link_order if result.model.link_order is not None else np.arange(net.link_count)
+    reads_start = (kind == 1) | (kind == 3)
+    # Not complete: the links driving on early dates; in progress, less those reading the
+    # start of a predecessor in progress.
+    early = (status != COMPLETE) & result.driving_link[links]
+    early &= ~((status == IN_PROGRESS) & reads_start & (result.status[pred] == IN_PROGRESS))
+    has_early = np.bincount(succ[early], minlength=n) > 0
+    on_early = (status == NOT_STARTED) | ((status == IN_PROGRESS) & has_early[succ])
+    # Else (complete, or in progress with no link driving its remaining work): the links
+    # closest to the actual dates, least absolute gap.
+    gaps = np.asarray(result.link_gaps[links], dtype=np.int64)
+    distance = np.abs(gaps)
+    closest = np.zeros(n, dtype=np.int64)
+    some = counts > 0
+    if links.size:
+        closest[some] = np.minimum.reduceat(distance, net.in_ptr[:-1][some])
+    keep = np.where(on_early, early, distance == closest[succ])
+    chosen = np.flatnonzero(keep)
+    chosen = chosen[np.lexsort((order[links[chosen]], kind[chosen] != 0, succ[chosen]))]
+    ptr = np.zeros(n + 1, dtype=np.int64)
+    np.cumsum(np.bincount(succ[chosen], minlength=n), out=ptr[1:])
+    gap = np.where(on_early[chosen], 0, gaps[chosen])
+    return DrivingTable(ptr, pred[chosen].astype(np.int64), links[chosen], gap)
+
+
+@dataclass(frozen=True)
 class DrivingGraph:
     """Activities reached backwards from the seeds through tied driving predecessors.
 
@@ -131,6 +237,7 @@ def explore(result: ScheduleResult, seeds, stop: np.ndarray, limit: int = 20000)
     >>> len(graph.parents) == len(result.driving_path()), graph.capped
     (True, False)
     """
+    table = driving_table(result)
     parents: dict[int, list[tuple[int, int, int]]] = {}
     stopped: set[int] = set()
     pending = [int(s) for s in seeds]
@@ -145,7 +252,7 @@ def explore(result: ScheduleResult, seeds, stop: np.ndarray, limit: int = 20000)
         if len(parents) >= limit:
             capped = True
             break
-        found = driving_predecessors(result, v)
+        found = table.of(v)
         parents[v] = found
         pending.extend(p for p, _, _ in found)
     return DrivingGraph(tuple(int(s) for s in seeds), parents, frozenset(stopped), capped)
