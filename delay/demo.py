@@ -160,10 +160,10 @@ def run_demo(
     case has the snapshots for them; the impacted as-planned, time impact and collapsed
     as-built analyses, the entitlement per method, the methods compared and the
     sensitivity table where it has delay events; and the IFC outputs when the IFC extra is
-    installed. The IFC outputs and the sensitivity table's figures under the other progress
-    mode are made in a process of their own, started first, so that they take a second core
-    while the rest runs (:class:`_Beside`). The folder is built under a temporary name and moved into
-    place whole (:func:`delay.output.output_folder`).
+    installed. The IFC outputs, the checks and the sensitivity table's figures under the
+    other progress mode are made in a process of their own, started first, so that they
+    take a second core while the rest runs (:class:`_Beside`). The folder is built under a
+    temporary name and moved into place whole (:func:`delay.output.output_folder`).
 
     Parameters
     ----------

@@ -140,6 +140,10 @@ class DateBoundError(CaseError):
             )
         super().__init__(problems)
 
+    def __reduce__(self):
+        """Pickle by the side crossed and the problems (as :class:`CaseError`)."""
+        return (type(self), (self.earlier, self.problems))
+
 
 class ReconciliationError(Exception):
     """A delay figure does not add up to the movement of completion it explains.
@@ -166,3 +170,7 @@ class ReconciliationError(Exception):
         self.figures = dict(figures)
         detail = ", ".join(f"{key} = {value}" for key, value in self.figures.items())
         super().__init__(f"{where}: the figures do not reconcile ({detail})")
+
+    def __reduce__(self):
+        """Pickle by where and the figures (a process of the demo hands its errors back this way)."""
+        return (type(self), (self.where, self.figures))

@@ -30,10 +30,20 @@ from delay.case import load_case
 from delay.checks import adopt_checks, run_all
 from delay.comparison import adopt_other_progress_figures, available_methods, other_progress_figures, sensitivity
 from delay.demo import _Beside, run_demo
-from delay.errors import CaseError, Problem
+from delay.errors import CaseError, DateBoundError, Problem, ReconciliationError
 from delay.ifc import demo_outputs
 
 DEMO = Path(__file__).resolve().parent.parent / "case_demo"
+
+
+def test_the_other_errors_a_part_may_meet_cross_a_process_whole():
+    bound = DateBoundError(False)
+    again = pickle.loads(pickle.dumps(bound))
+    assert isinstance(again, DateBoundError) and again.earlier is False and again.problems == bound.problems
+    reconciling = ReconciliationError("window 2", {"charged_days": 9, "movement_days": 10})
+    again = pickle.loads(pickle.dumps(reconciling))
+    assert isinstance(again, ReconciliationError)
+    assert (again.where, again.figures, str(again)) == ("window 2", reconciling.figures, str(reconciling))
 
 
 def test_a_case_error_crosses_a_process_with_its_problems():
