@@ -199,7 +199,6 @@ def activity_risk(snapshot: Snapshot, ids: Iterable[str]) -> list[str]:
     >>> activity_risk(demo.baseline, ["ENV-DESIGN", "MEP-POWER-ON", "SET-HOARDING", "NOT-AN-ID"])
     ['employer', 'neutral', '', '']
     """
-    ids = list(ids)
     risk = snapshot.derived.get("risk_by_id")
     if risk is None:  # looked up once per snapshot
         activities = snapshot.activities_table
@@ -209,21 +208,23 @@ def activity_risk(snapshot: Snapshot, ids: Iterable[str]) -> list[str]:
             else pd.Series([""] * len(activities))
         )
         values = values.where(values.isin(PARTIES), "")
-        risk = snapshot.derived["risk_by_id"] = pd.Series(
-            values.to_numpy(dtype=object), index=activities["id"].to_numpy(dtype=object)
-        )
-    if not ids:
-        return []
-    return list(risk.reindex(ids).fillna("").to_numpy(dtype=object))
+        risk = snapshot.derived["risk_by_id"] = dict(zip(activities["id"].tolist(), values.tolist()))
+    return [risk.get(activity, "") for activity in ids]
+
+
+def _periods(events: pd.DataFrame) -> tuple[np.ndarray, np.ndarray]:
+    """Each event's first and last day (its start when it has no finish)."""
+    start = pd.to_datetime(events["start"]).to_numpy()
+    finish = pd.to_datetime(events["finish"]).to_numpy()
+    return start, np.where(pd.isna(finish), start, finish)
 
 
 def _overlapping(case: Case, first: dt.date | None, last: dt.date | None) -> np.ndarray:
     """Which events' periods overlap ``first .. last`` (both included; None: open)."""
-    events = case.events
-    start = pd.to_datetime(events["start"]).to_numpy()
-    finish = pd.to_datetime(events["finish"]).to_numpy()
-    finish = np.where(pd.isna(finish), start, finish)
-    keep = np.ones(len(events), dtype=bool)
+    from .memo import remembered
+
+    start, finish = remembered(case, ("event periods",), lambda: _periods(case.events))
+    keep = np.ones(start.size, dtype=bool)
     if last is not None:
         keep &= ~(start > np.datetime64(last, "D"))
     if first is not None:
@@ -232,7 +233,12 @@ def _overlapping(case: Case, first: dt.date | None, last: dt.date | None) -> np.
 
 
 def match_events(
-    case: Case, activities: Sequence[str], first: dt.date | None, last: dt.date | None, snapshot: Snapshot | None = None
+    case: Case,
+    activities: Sequence[str],
+    first: dt.date | None,
+    last: dt.date | None,
+    snapshot: Snapshot | None = None,
+    risks: Sequence[str] | None = None,
 ) -> pd.DataFrame:
     """The events that explain a charge on each activity in a period, and the charge's party.
 
@@ -249,6 +255,8 @@ def match_events(
     snapshot : Snapshot, optional
         The programme whose ``risk`` column decides a charge no event explains (default:
         none: unexplained).
+    risks : sequence of str, optional
+        Instead of ``snapshot``: each activity's risk, in order (``""`` for none).
 
     Returns
     -------
@@ -277,21 +285,24 @@ def match_events(
             for activity in named.get(event_id, ()):
                 by_activity.setdefault(activity, []).append((event_id, party))
     ids = [str(a) for a in activities]
-    risks = activity_risk(snapshot, ids) if snapshot is not None else ["" for _ in ids]
+    if risks is None:
+        risks = activity_risk(snapshot, ids) if snapshot is not None else ["" for _ in ids]
     default = unexplained_risk(case)
-    rows = []
+    columns: dict[str, list] = {name: [] for name in MATCH_COLUMNS}
     for activity, risk in zip(ids, risks):
-        found = by_activity.get(activity, [])
-        matched = [event_id for event_id, _ in found]
-        parties = [p for p in PARTIES if p in {party for _, party in found}]
-        if matched:
+        found = by_activity.get(activity)
+        if found:
+            present = {party for _, party in found}
+            parties = [p for p in PARTIES if p in present]
+            matched = [event_id for event_id, _ in found]
             party, basis = (parties[0] if len(parties) == 1 else CONCURRENT), "event"
         elif risk:
-            party, basis, parties = risk, "risk", [risk]
+            matched, party, basis, parties = [], risk, "risk", [risk]
         else:
-            party, basis, parties = default, "unexplained", [default]
-        rows.append({"activity": activity, "events": matched, "parties": parties, "party": party, "basis": basis})
-    return pd.DataFrame(rows, columns=MATCH_COLUMNS)
+            matched, party, basis, parties = [], default, "unexplained", [default]
+        for name, value in zip(MATCH_COLUMNS, (activity, matched, parties, party, basis)):
+            columns[name].append(value)
+    return pd.DataFrame(columns, columns=MATCH_COLUMNS)
 
 
 def events_naming(case: Case, activities: Iterable[str], first: dt.date | None, last: dt.date | None) -> list[str]:

@@ -733,14 +733,8 @@ def _risk_lookup(snapshots: Sequence[Snapshot], ids: Sequence[str]) -> list[str]
 
 def _causes(case: Case, ids: Sequence[str], start: Snapshot, end: Snapshot) -> pd.DataFrame:
     """The rule's causes of charges on ``ids`` in the window from ``start`` to ``end``."""
-    matched = match_events(case, ids, start.data_date, end.data_date)
-    risks = _risk_lookup([end, start], list(matched["activity"]))
-    default = matched["basis"] == "unexplained"
-    for i in np.flatnonzero(default.to_numpy() & (np.asarray(risks, dtype=object) != "")):
-        matched.at[int(i), "party"] = risks[i]
-        matched.at[int(i), "parties"] = [risks[i]]
-        matched.at[int(i), "basis"] = "risk"
-    return matched
+    ids = [str(a) for a in ids]
+    return match_events(case, ids, start.data_date, end.data_date, risks=_risk_lookup([end, start], ids))
 
 
 def _charge_frame(
@@ -755,7 +749,7 @@ def _charge_frame(
     for name in ("party", "basis", "events"):  # what the rules gave, kept beside an analyst's attribution
         cells[f"rule_{name}"] = cells[name].copy()
     cells["reason"] = np.full(len(traced), "", dtype=object)
-    frame = pd.DataFrame(cells)
+    frame = pd.DataFrame({name: cells[name] for name in CHARGE_COLUMNS})
     mine = overrides[overrides["folder"] == end.folder] if len(overrides) else overrides
     for record in mine.itertuples(index=False):
         rows = np.flatnonzero((frame["activity"] == record.activity).to_numpy())
@@ -765,7 +759,7 @@ def _charge_frame(
             frame.at[int(i), "party"] = record.party
             frame.at[int(i), "basis"] = "analyst"
             frame.at[int(i), "reason"] = record.reason
-    return frame[CHARGE_COLUMNS]
+    return frame
 
 
 def _revision_frame(
