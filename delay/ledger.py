@@ -209,23 +209,21 @@ def _ledger_index(result: ScheduleResult, ledger: int, days: np.ndarray, start: 
     return out
 
 
-def _spans(result: ScheduleResult) -> np.ndarray:
-    """Work days of each activity's own calendar from its start to its finish (0 for a
-    milestone)."""
+def _spans(result: ScheduleResult, rows: np.ndarray) -> np.ndarray:
+    """Work days of the own calendar of each activity of ``rows`` from its start to its
+    finish (0 for a milestone)."""
     model = result.model
-    start = result.day_array("early_start")
-    finish = result.day_array("early_finish")
-    known = (start != NO_DAY) & (finish != NO_DAY)
+    start = result.day_array("early_start")[rows]
+    finish = result.day_array("early_finish")[rows]
+    known = np.flatnonzero((start != NO_DAY) & (finish != NO_DAY))
     span = np.zeros(start.size, dtype=np.int64)
-    rows = np.flatnonzero(known)
-    if rows.size:
+    if known.size:
         cals = model.calendars
-        span[rows] = (
-            cals.finish_index_days(model.calendar[rows], finish[rows])
-            + 1
-            - cals.start_index_days(model.calendar[rows], start[rows])
+        calendar = model.calendar[rows[known]]
+        span[known] = (
+            cals.finish_index_days(calendar, finish[known]) + 1 - cals.start_index_days(calendar, start[known])
         )
-    return np.where((result.point == TASK) & (model.kind == TASK), np.maximum(span, 0), 0)
+    return np.where((result.point[rows] == TASK) & (model.kind[rows] == TASK), np.maximum(span, 0), 0)
 
 
 def _level(
@@ -240,7 +238,9 @@ def _level(
     return np.where(known, np.maximum(past_late, 0) + np.minimum(past_early, 0), np.nan).astype(np.float64)
 
 
-def levels(after: ScheduleResult, before: ScheduleResult, late_before: np.ndarray, ledger: int) -> Levels:
+def levels(
+    after: ScheduleResult, before: ScheduleResult, late_before: np.ndarray, ledger: int, rows: np.ndarray | None = None
+) -> Levels:
     """Compute each activity's levels in ``after`` against ``before`` (see the module docstring).
 
     Parameters
@@ -256,6 +256,9 @@ def levels(after: ScheduleResult, before: ScheduleResult, late_before: np.ndarra
     ledger : int
         Number of the ledger calendar in ``after``'s calendar set (the same number in
         ``before``'s: derived sets keep every calendar's number).
+    rows : numpy.ndarray, optional
+        Compute the levels of these activities of ``after`` only (the others get no level,
+        ``NaN``, and no duration's growth, 0); by default of every activity.
 
     Returns
     -------
@@ -274,23 +277,31 @@ def levels(after: ScheduleResult, before: ScheduleResult, late_before: np.ndarra
     (datetime.date(2026, 5, 19), datetime.date(2026, 6, 1), 8.0)
     """
     position = before.model.network.index_of(after.ids)
-    present = position >= 0
-    safe = np.maximum(position, 0)
+    every = rows is None
+    rows = np.arange(position.size) if every else np.asarray(rows, dtype=np.int64)
+    present = position[rows] >= 0
+    safe = np.maximum(position[rows], 0)
 
     def aligned(values: np.ndarray) -> np.ndarray:
         return np.where(present, values[safe], NO_DAY)
 
-    finish = _level(after, ledger, after.finish_day, aligned(late_before[0]), aligned(before.finish_day), False)
+    finish = _level(after, ledger, after.finish_day[rows], aligned(late_before[0]), aligned(before.finish_day), False)
     start = _level(
         after,
         ledger,
-        after.day_array("early_start"),
+        after.day_array("early_start")[rows],
         aligned(late_before[1]),
         aligned(before.day_array("early_start")),
         True,
     )
-    change = np.where(present, _spans(after) - _spans(before)[safe], 0)
-    return Levels(finish, start, position, change)
+    change = np.where(present, _spans(after, rows) - _spans(before, safe), 0)
+    if every:
+        return Levels(finish, start, position, change)
+    whole = {"finish": np.full(position.size, np.nan), "start": np.full(position.size, np.nan)}
+    whole["finish"][rows], whole["start"][rows] = finish, start
+    whole["change"] = np.zeros(position.size, dtype=np.int64)
+    whole["change"][rows] = change
+    return Levels(whole["finish"], whole["start"], position, whole["change"])
 
 
 def _gap_changes(
@@ -385,12 +396,12 @@ def trace_charges(
     empty = pd.DataFrame(columns=CHARGE_COLUMNS)
     if k < 0 or stop[k]:
         return empty
-    found = levels(after, before, late_before, ledger)
     graph = explore(after, [k], stop)
     nodes = list(set(graph.parents) | set(graph.stopped))
     at = np.asarray(nodes, dtype=np.int64)
     nodes = at[np.argsort(net.rank[at], kind="stable")].tolist()  # in rank order: predecessors first
     at = np.asarray(nodes, dtype=np.int64)
+    found = levels(after, before, late_before, ledger, rows=at)  # of the activities explored only
     own_level = dict(zip(nodes, found.level[at].tolist()))  # NaN: no level of its own
     own_start_level = dict(zip(nodes, found.start_level[at].tolist()))
     graph_links = sorted({link for found_v in graph.parents.values() for _, link, _ in found_v})

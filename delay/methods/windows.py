@@ -503,11 +503,11 @@ def half_step_snapshot(start: Snapshot, end: Snapshot) -> Snapshot:
     )
 
 
-def _half_step_model(start: ScheduleModel, end: ScheduleModel) -> ScheduleModel:
+def _half_step_model(start: ScheduleModel, end: ScheduleModel, in_end: np.ndarray) -> ScheduleModel:
     """:func:`half_step_snapshot` on the engine's arrays: S's compiled programme with E's
     data date and E's progress (actual dates, remaining durations) for the activities E
-    shows started; nothing is compiled again."""
-    in_end = end.network.index_of(start.network.ids)
+    shows started; nothing is compiled again. ``in_end`` gives each of S's activities its
+    number in E (``-1`` when E lacks it)."""
     safe = np.maximum(in_end, 0)
     started = (in_end >= 0) & ((end.actual_start[safe] != NO_DAY) | (end.actual_finish[safe] != NO_DAY))
     arrays = {
@@ -671,13 +671,17 @@ def _missing_from(values: np.ndarray, other: np.ndarray) -> np.ndarray:
 
 
 def _revision_steps(
-    scheduler: _Scheduler, half_result: ScheduleResult, end_result: ScheduleResult, targets: Sequence[str]
+    scheduler: _Scheduler,
+    half_result: ScheduleResult,
+    end_result: ScheduleResult,
+    targets: Sequence[str],
+    in_end: np.ndarray,
 ) -> list[tuple[str, list[str], np.ndarray]]:
     """E's changes applied to H one kind at a time, on the engine's arrays: ``(kind,
     changed, finishes of the targets after it)`` per kind that changed something, then
-    ``other`` when the steps do not end exactly at E."""
+    ``other`` when the steps do not end exactly at E. ``in_end`` gives each of H's
+    activities (S's) its number in E (``-1`` when E lacks it)."""
     end_net, half_net = end_result.model.network, half_result.model.network
-    in_end = end_net.index_of(half_net.ids)  # the one look-up of ids per window (none when they are the same)
     only_half = np.flatnonzero(in_end < 0)
     size = end_net.size + only_half.size
     half_codes = in_end.astype(np.int64)
@@ -833,8 +837,10 @@ def _window(
     traced: ScheduleResult,
     steps,
     overrides: pd.DataFrame,
+    deleted: tuple[str, ...],
 ) -> Window | None:
-    """One window for one target, or ``None`` when the target is missing from a boundary."""
+    """One window for one target, or ``None`` when the target is missing from a boundary;
+    ``deleted`` lists the ids of S's activities that E lacks."""
     s_result, e_result = start.result, end.result
     late = start.late_finish(target)
     finish_s = _finishes(s_result, [target])[0]
@@ -891,7 +897,6 @@ def _window(
         raise ReconciliationError(
             f"window {number}, {target}", {"calendar days charged": int(days.sum()), "movement": movement}
         )
-    deleted = tuple(sorted(s_result.model.network.index.difference(e_result.model.network.index)))
     return Window(
         number=number,
         start=start.snapshot.folder,
@@ -1001,15 +1006,18 @@ def _analyse(case: Case, windows: Sequence[str] | None, half_step: bool) -> Wind
     overrides = attributions(case)
     per_target: dict[str, list[Window]] = {t: [] for t in targets}
     for number, (start, end) in enumerate(zip(marks[:-1], marks[1:]), start=1):
+        # the one look-up of ids per window (none when they are the same); H has S's activities
+        in_end = end.result.model.network.index_of(start.result.model.network.ids)
+        deleted = tuple(sorted(np.asarray(start.result.model.network.ids, dtype=object)[in_end < 0].tolist()))
         if half_step:
-            traced = _half_step_model(start.result.model, end.result.model).run()
-            steps = _revision_steps(scheduler, traced, end.result, targets)
+            traced = _half_step_model(start.result.model, end.result.model, in_end).run()
+            steps = _revision_steps(scheduler, traced, end.result, targets, in_end)
         else:
             traced = end.result
             steps = []
         for t, name in enumerate(targets):
             own = [(kind, changed, finish[t]) for kind, changed, finish in steps]
-            found = _window(case, number, start, end, name, half_step, traced, own, overrides)
+            found = _window(case, number, start, end, name, half_step, traced, own, overrides, deleted)
             if found is None:
                 if name == target:
                     raise CaseError(
