@@ -466,7 +466,7 @@ def trace_charges(
     off = [v for v in nodes if v not in counted and v not in graph.stopped]
     for v in off:
         charge[v] = 0.0 if inherited(v) else raw[v]
-    group_number, concurrent = _groups(chain, off, graph, charge, k)
+    group_number, concurrent = _groups(chain, off, graph, charge, k, net.ids)
     ids = net.ids
     rows = []
     for v in chain + off:
@@ -481,7 +481,7 @@ def trace_charges(
                 "inherited": bool(carried.get(v, inherited(v))),
                 "driving_predecessor": str(ids[chosen[0]]) if chosen is not None else "",
                 "group": group_number.get(v),
-                "concurrent_with": sorted(str(ids[x]) for x in concurrent.get(v, ())),
+                "concurrent_with": concurrent.get(v, []),
             }
         )
     frame = pd.DataFrame(rows, columns=CHARGE_COLUMNS)
@@ -535,9 +535,10 @@ def _redistribute(chain: list[int], raw: dict[int, float], carried: dict[int, bo
     return charge
 
 
-def _groups(chain: list[int], off: list[int], graph, charge: dict[int, float], seed: int):
+def _groups(chain: list[int], off: list[int], graph, charge: dict[int, float], seed: int, ids):
     """Concurrency groups: connected stretches of activities off the counted chain, with the
-    stretch of the chain they run beside (from where they leave it to where they join)."""
+    stretch of the chain they run beside (from where they leave it to where they join).
+    Gives each member's group number and the sorted ids of the other members of its groups."""
     position = {v: i for i, v in enumerate(chain)}
     neighbours: dict[int, set[int]] = {v: set() for v in off}
     for v in off:
@@ -557,7 +558,7 @@ def _groups(chain: list[int], off: list[int], graph, charge: dict[int, float], s
                 continue
             group_of[x] = len(groups)
             members.append(x)
-            pending.extend(neighbours[x] - set(group_of))
+            pending.extend(y for y in neighbours[x] if y not in group_of)
         groups.append(members)
     diverge: list[list[int]] = [[] for _ in groups]
     merge: list[list[int]] = [[] for _ in groups]
@@ -570,7 +571,7 @@ def _groups(chain: list[int], off: list[int], graph, charge: dict[int, float], s
             if p in group_of:
                 merge[group_of[p]].append(position[v])
     group_number: dict[int, int] = {}
-    concurrent: dict[int, set[int]] = {}
+    member_of: dict[int, list[list[int]]] = {}  # each activity's reported groups
     reported = 0
     for number, members in enumerate(groups):
         if seed in members:
@@ -584,7 +585,18 @@ def _groups(chain: list[int], off: list[int], graph, charge: dict[int, float], s
         reported += 1
         for v in everyone:
             group_number[v] = reported
-            concurrent.setdefault(v, set()).update(set(everyone) - {v})
+            member_of.setdefault(v, []).append(everyone)
+    named: dict[int, list[str]] = {}  # each group's ids, sorted once
+    concurrent: dict[int, list[str]] = {}
+    for v, found in member_of.items():
+        if len(found) == 1:  # one group: its sorted ids but v's own
+            key = id(found[0])
+            if key not in named:
+                named[key] = sorted(str(ids[x]) for x in set(found[0]))
+            own = str(ids[v])
+            concurrent[v] = [x for x in named[key] if x != own]
+        else:
+            concurrent[v] = sorted(str(ids[x]) for x in set().union(*found) - {v})
     return group_number, concurrent
 
 

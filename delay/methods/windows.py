@@ -1067,8 +1067,10 @@ def _attribution_table(windows: Sequence[Window], overrides: pd.DataFrame) -> pd
     columns = ["window", "end", "activity", "days", "rule_party", "rule_events", "party", "events", "reason"]
     rows = []
     for w in windows:
-        charged = w.charges[w.charges["basis"] == "analyst"]
-        for record in charged.itertuples(index=False):
+        analyst = np.flatnonzero(w.charges["basis"].to_numpy(dtype=object) == "analyst")
+        if not analyst.size:  # most windows: nothing to look through
+            continue
+        for record in w.charges.iloc[analyst].itertuples(index=False):
             rows.append(
                 {
                     "window": w.number,
