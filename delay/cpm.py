@@ -722,16 +722,31 @@ def _known_finish(model, st: _Status) -> np.ndarray:
     return known_finish
 
 
-def _forward(model: ScheduleModel, st: _Status, bounds: _Bounds, with_floats: bool) -> _Forward:
+def _by_position(model, st: _Status) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Status, point and calendar of each activity by topological position (as the
+    forward pass reads them)."""
+    order = model.network.order
+    return st.status[order], st.point[order], model.calendar[order]
+
+
+def _forward(
+    model: ScheduleModel,
+    st: _Status,
+    bounds: _Bounds,
+    with_floats: bool,
+    known_finish: np.ndarray | None = None,
+    by_position: tuple | None = None,
+) -> _Forward:
     """The forward pass over the activities in topological order, reading each one's links
     front to back (:attr:`Network.passes`); the calendar horizon grows and the pass runs
-    again when a date falls outside it."""
+    again when a date falls outside it. ``known_finish`` and ``by_position`` are found here
+    unless the caller has them (:func:`_known_finish`, :func:`_by_position`)."""
     from . import _kernels
 
     net = model.network
-    n, order = net.size, net.order
-    known_finish = _known_finish(model, st)
-    by_position = (st.status[order], st.point[order], model.calendar[order])
+    n = net.size
+    known_finish = _known_finish(model, st) if known_finish is None else known_finish
+    by_position = _by_position(model, st) if by_position is None else by_position
     empty = np.empty(0, dtype=np.int64)
     dates = _Forward(
         *(np.empty(n, dtype=np.int64) for _ in range(5)),
@@ -918,10 +933,9 @@ def _forward_state(model: ScheduleModel) -> _ForwardState:
 def _whole_state(model: ScheduleModel) -> _ForwardState:
     st = _status(model)
     bounds = _bounds(model, st)
-    fwd = _forward(model, st, bounds, with_floats=False)
-    order = model.network.order
-    by_position = (st.status[order], st.point[order], model.calendar[order])
-    return _ForwardState(st, bounds, _known_finish(model, st), by_position, fwd)
+    known_finish, by_position = _known_finish(model, st), _by_position(model, st)
+    fwd = _forward(model, st, bounds, False, known_finish, by_position)
+    return _ForwardState(st, bounds, known_finish, by_position, fwd)
 
 
 class _Rows:
@@ -972,8 +986,7 @@ def _extended_state(base: _ForwardState, model: ScheduleModel) -> _ForwardState:
     )
     order = model.network.order
     dates = dates._replace(early_finish_t=dates.early_finish[order], start_read_t=dates.start_read[order])
-    by_position = (st.status[order], st.point[order], model.calendar[order])
-    return _ForwardState(st, bounds, longer(base.known_finish), by_position, dates)
+    return _ForwardState(st, bounds, longer(base.known_finish), _by_position(model, st), dates)
 
 
 def _updated_state(model: ScheduleModel, base: _ForwardState, changed: np.ndarray) -> _ForwardState:

@@ -397,10 +397,9 @@ def trace_charges(
     if k < 0 or stop[k]:
         return empty
     graph = explore(after, [k], stop)
-    nodes = list(set(graph.parents) | set(graph.stopped))
-    at = np.asarray(nodes, dtype=np.int64)
-    nodes = at[np.argsort(net.rank[at], kind="stable")].tolist()  # in rank order: predecessors first
-    at = np.asarray(nodes, dtype=np.int64)
+    at = np.asarray(list(set(graph.parents) | set(graph.stopped)), dtype=np.int64)
+    at = at[np.argsort(net.rank[at], kind="stable")]  # in rank order: predecessors first
+    nodes = at.tolist()
     found = levels(after, before, late_before, ledger, rows=at)  # of the activities explored only
     own_level = dict(zip(nodes, found.level[at].tolist()))  # NaN: no level of its own
     own_start_level = dict(zip(nodes, found.start_level[at].tolist()))
